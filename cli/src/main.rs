@@ -1,0 +1,5 @@
+//! The `tuft` command.
+
+fn main() {
+    println!("tuft {}", env!("CARGO_PKG_VERSION"));
+}

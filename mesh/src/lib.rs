@@ -1,0 +1,39 @@
+//! # tuft-mesh: from an STL scan to clean surface panels
+//!
+//! This crate knows geometry only, no aerodynamics. The data walk is
+//!
+//! ```text
+//! STL file --import--> TriMesh --repair--> TriMesh (closed, outward)
+//!          --coarsen--> TriMesh --PanelMesh::new--> PanelMesh (+ Mirrors)
+//! ```
+//!
+//! Main types: [`TriMesh`] (indexed triangles in metres), [`PanelMesh`]
+//! (flat triangular panels with centroid, unit normal, area, local frame and
+//! neighbours), [`Mirrors`] (the ground plane and the symmetry plane, whose
+//! images close a cut body).
+//!
+//! ```
+//! use tuft_mesh::{generate, Mirrors, PanelMesh};
+//! let sphere = generate::icosphere(1.0, 2);
+//! let panels = PanelMesh::new(sphere, Mirrors::none()).unwrap();
+//! assert_eq!(panels.len(), 320);
+//! let area: f64 = panels.panels.iter().map(|p| p.area).sum();
+//! assert!((area - 4.0 * std::f64::consts::PI).abs() < 0.2);
+//! ```
+#![deny(missing_docs)]
+
+pub mod error;
+pub mod generate;
+pub mod mirror;
+pub mod panels;
+pub mod trimesh;
+
+pub use error::MeshError;
+pub use mirror::{Mirrors, Reflection};
+pub use panels::{Panel, PanelMesh};
+pub use trimesh::TriMesh;
+
+/// Points and vectors used throughout: metres, `f64`.
+pub type Point = nalgebra::Point3<f64>;
+/// A free vector in metres (or unitless where stated).
+pub type Vector = nalgebra::Vector3<f64>;

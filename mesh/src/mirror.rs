@@ -1,0 +1,107 @@
+//! Mirror planes: the ground plane `z = h` and the symmetry plane `y = 0`.
+//!
+//! A body cut by a mirror plane is closed by its image. The panel method
+//! adds image panels (the body reflected in each plane, and in both) to every
+//! influence; this module only says where the images are.
+
+use crate::{Point, Vector};
+
+/// Which mirror planes the case declares.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Mirrors {
+    /// Height of the ground plane `z = h`, metres; `None` in free air.
+    pub ground: Option<f64>,
+    /// True for a half model: the STL holds the `y >= 0` half, cut at `y = 0`.
+    pub symmetry: bool,
+}
+
+/// One reflection (or the product of two): `p -> S p + o`, `S` diagonal.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Reflection {
+    /// Diagonal of `S` (each entry +1 or -1).
+    pub scale: Vector,
+    /// Offset `o`.
+    pub offset: Vector,
+}
+
+impl Reflection {
+    /// Image of a point.
+    pub fn point(&self, p: &Point) -> Point {
+        Point::from(p.coords.component_mul(&self.scale) + self.offset)
+    }
+
+    /// Image of a free vector (normals, velocities).
+    pub fn vector(&self, v: &Vector) -> Vector {
+        v.component_mul(&self.scale)
+    }
+
+    /// True when the map reverses orientation (one plane, determinant -1):
+    /// image triangles then need their vertex order reversed to keep normals
+    /// pointing out of the image body.
+    pub fn reverses_orientation(&self) -> bool {
+        self.scale.x * self.scale.y * self.scale.z < 0.0
+    }
+}
+
+impl Mirrors {
+    /// Free air, full model.
+    pub fn none() -> Self {
+        Self::default()
+    }
+
+    /// Ground plane at height `z`.
+    pub fn ground(z: f64) -> Self {
+        Self {
+            ground: Some(z),
+            symmetry: false,
+        }
+    }
+
+    /// Every image of the real body: zero, one or three reflections.
+    pub fn images(&self) -> Vec<Reflection> {
+        let ground = self.ground.map(|h| Reflection {
+            scale: Vector::new(1.0, 1.0, -1.0),
+            offset: Vector::new(0.0, 0.0, 2.0 * h),
+        });
+        let sym = self.symmetry.then_some(Reflection {
+            scale: Vector::new(1.0, -1.0, 1.0),
+            offset: Vector::zeros(),
+        });
+        let mut out = Vec::new();
+        out.extend(ground);
+        out.extend(sym);
+        if let (Some(g), Some(s)) = (ground, sym) {
+            out.push(Reflection {
+                scale: g.scale.component_mul(&s.scale),
+                offset: g.offset + s.offset,
+            });
+        }
+        out
+    }
+
+    /// Is point `p` on one of the declared planes, within `tol` metres?
+    pub fn on_plane(&self, p: &Point, tol: f64) -> bool {
+        self.ground.is_some_and(|h| (p.z - h).abs() <= tol) || (self.symmetry && p.y.abs() <= tol)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn both_planes_make_three_images() {
+        let m = Mirrors {
+            ground: Some(-0.5),
+            symmetry: true,
+        };
+        let imgs = m.images();
+        assert_eq!(imgs.len(), 3);
+        let p = Point::new(1.0, 2.0, 3.0);
+        assert_eq!(imgs[0].point(&p), Point::new(1.0, 2.0, -4.0));
+        assert_eq!(imgs[1].point(&p), Point::new(1.0, -2.0, 3.0));
+        assert_eq!(imgs[2].point(&p), Point::new(1.0, -2.0, -4.0));
+        assert!(imgs[0].reverses_orientation());
+        assert!(!imgs[2].reverses_orientation());
+    }
+}

@@ -1,0 +1,1 @@
+//! Shared helpers for the validation suite and the end-to-end tests.
