@@ -1,5 +1,57 @@
-//! The `tuft` command.
+//! The `tuft` command: overnight aerodynamic screening of concept car shapes.
+//!
+//! Exit codes: 0 success; 1 the run finished but left warnings the user must
+//! read; 2 bad input or failure. Every error message starts with `tuft:` and
+//! names the file and the problem.
 
-fn main() {
-    println!("tuft {}", env!("CARGO_PKG_VERSION"));
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+mod check;
+
+/// Exit code for a run that finished but left warnings the user must read.
+pub const EXIT_WARNINGS: u8 = 1;
+/// Exit code for bad input or a failed run.
+pub const EXIT_FAILURE: u8 = 2;
+
+#[derive(Parser)]
+#[command(
+    name = "tuft",
+    version,
+    about = "Aerodynamic screening of concept car shapes: surface pressure, boundary-layer \
+             separation risk, lift and a drag estimate, from an STL, on a laptop.",
+    after_help = "Exit codes: 0 success, 1 finished with warnings to read, 2 bad input or failure.\n\
+                  Screening estimates only: confirm lift, drag and stability at speed with \
+                  validated CFD or tunnel tests."
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Read an STL, repair it, and report what a run would use.
+    Check(check::CheckArgs),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let outcome = match cli.command {
+        Command::Check(args) => check::run(&args),
+    };
+    match outcome {
+        Ok(code) => code,
+        Err(err) => {
+            report_error(&err);
+            ExitCode::from(EXIT_FAILURE)
+        }
+    }
+}
+
+/// Print an error and its causes on one line, prefixed with the program name.
+fn report_error(err: &anyhow::Error) {
+    let chain: Vec<String> = err.chain().map(ToString::to_string).collect();
+    eprintln!("tuft: {}", chain.join(": "));
 }
