@@ -8,6 +8,7 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+mod case;
 mod check;
 
 /// Exit code for a run that finished but left warnings the user must read.
