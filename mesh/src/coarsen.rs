@@ -67,13 +67,24 @@ pub struct CoarsenReport {
 }
 
 /// Coarsen to `target_panels` with default settings.
-pub fn coarsen(mesh: &TriMesh, mirrors: &Mirrors, target_panels: usize) -> (TriMesh, CoarsenReport) {
-    let params = CoarsenParams { target_panels, ..CoarsenParams::default() };
+pub fn coarsen(
+    mesh: &TriMesh,
+    mirrors: &Mirrors,
+    target_panels: usize,
+) -> (TriMesh, CoarsenReport) {
+    let params = CoarsenParams {
+        target_panels,
+        ..CoarsenParams::default()
+    };
     coarsen_with_params(mesh, mirrors, &params)
 }
 
 /// Coarsen; never fails (the input is kept when no try passes the checks).
-pub fn coarsen_with_params(mesh: &TriMesh, mirrors: &Mirrors, p: &CoarsenParams) -> (TriMesh, CoarsenReport) {
+pub fn coarsen_with_params(
+    mesh: &TriMesh,
+    mirrors: &Mirrors,
+    p: &CoarsenParams,
+) -> (TriMesh, CoarsenReport) {
     let diagonal = mesh.bounds().map_or(0.0, |(lo, hi)| (hi - lo).norm());
     let locks = locked_vertices(mesh, mirrors, p.plane_tolerance * diagonal);
     let mut report = CoarsenReport {
@@ -119,7 +130,11 @@ pub fn coarsen_with_params(mesh: &TriMesh, mirrors: &Mirrors, p: &CoarsenParams)
 
 /// Lock vertices on a mirror plane or on an open border.
 fn locked_vertices(mesh: &TriMesh, mirrors: &Mirrors, tol: f64) -> Vec<bool> {
-    let mut locks: Vec<bool> = mesh.vertices.iter().map(|v| mirrors.on_plane(v, tol)).collect();
+    let mut locks: Vec<bool> = mesh
+        .vertices
+        .iter()
+        .map(|v| mirrors.on_plane(v, tol))
+        .collect();
     let uses = sorted_edge_uses(&mesh.triangles);
     for group in edge_groups(&uses) {
         if group.len() != 2 {
@@ -132,13 +147,25 @@ fn locked_vertices(mesh: &TriMesh, mirrors: &Mirrors, tol: f64) -> Vec<bool> {
 }
 
 fn simplify(mesh: &TriMesh, locks: &[bool], target: usize, regularize: bool) -> TriMesh {
-    let positions: Vec<[f32; 3]> = mesh.vertices.iter().map(|v| [v.x as f32, v.y as f32, v.z as f32]).collect();
+    let positions: Vec<[f32; 3]> = mesh
+        .vertices
+        .iter()
+        .map(|v| [v.x as f32, v.y as f32, v.z as f32])
+        .collect();
     let indices: Vec<u32> = mesh.triangles.iter().flatten().copied().collect();
     let mut options = SimplifyOptions::LockBorder;
     if regularize {
         options |= SimplifyOptions::Regularize;
     }
-    let out = meshopt::simplify_with_locks_decoder(&indices, &positions, locks, target * 3, 1.0, options, None);
+    let out = meshopt::simplify_with_locks_decoder(
+        &indices,
+        &positions,
+        locks,
+        target * 3,
+        1.0,
+        options,
+        None,
+    );
     TriMesh {
         vertices: mesh.vertices.clone(),
         triangles: out.chunks_exact(3).map(|c| [c[0], c[1], c[2]]).collect(),
@@ -165,7 +192,10 @@ fn check_closed(coarse: &TriMesh, locks: &[bool]) -> Result<(), String> {
             } => {}
             _ => {
                 let (a, b) = group[0].ends();
-                return Err(format!("edge {a}-{b} is used by {} facets or misoriented", group.len()));
+                return Err(format!(
+                    "edge {a}-{b} is used by {} facets or misoriented",
+                    group.len()
+                ));
             }
         }
     }
@@ -173,7 +203,9 @@ fn check_closed(coarse: &TriMesh, locks: &[bool]) -> Result<(), String> {
 }
 
 fn measure_deviation(fine: &TriMesh, coarse: &TriMesh, samples: usize, report: &mut CoarsenReport) {
-    let Some((lo, hi)) = fine.bounds() else { return };
+    let Some((lo, hi)) = fine.bounds() else {
+        return;
+    };
     let grid = SurfaceGrid::new(coarse, lo, hi);
     let stride = fine.vertices.len().div_ceil(samples.max(1)).max(1);
     let (mut max, mut sum_sq, mut n) = (0.0f64, 0.0, 0usize);

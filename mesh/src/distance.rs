@@ -54,16 +54,26 @@ impl<'a> SurfaceGrid<'a> {
         let (mlo, mhi) = mesh.bounds().unwrap_or((lo, hi));
         let (lo, hi) = (lo.inf(&mlo), hi.sup(&mhi));
         let ext = (hi - lo).map(|e| e.max(1e-12));
-        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt() / (mesh.len().max(1) as f64).sqrt();
+        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt()
+            / (mesh.len().max(1) as f64).sqrt();
         let cell = cell.max(ext.max() / 128.0);
         let dims = [0, 1, 2].map(|k| ((ext[k] / cell).ceil() as usize).clamp(1, 128));
-        let mut grid = Self { mesh, origin: lo, cell, dims, start: Vec::new(), items: Vec::new() };
+        let mut grid = Self {
+            mesh,
+            origin: lo,
+            cell,
+            dims,
+            start: Vec::new(),
+            items: Vec::new(),
+        };
         grid.bin();
         grid
     }
 
     fn cell_index(&self, p: &Point) -> [usize; 3] {
-        [0, 1, 2].map(|k| (((p[k] - self.origin[k]) / self.cell).floor().max(0.0) as usize).min(self.dims[k] - 1))
+        [0, 1, 2].map(|k| {
+            (((p[k] - self.origin[k]) / self.cell).floor().max(0.0) as usize).min(self.dims[k] - 1)
+        })
     }
 
     fn flat(&self, c: [usize; 3]) -> usize {
@@ -76,7 +86,10 @@ impl<'a> SurfaceGrid<'a> {
         let ranges: Vec<([usize; 3], [usize; 3])> = (0..self.mesh.len())
             .map(|t| {
                 let [a, b, c] = self.mesh.corners(t);
-                (self.cell_index(&a.inf(&b).inf(&c)), self.cell_index(&a.sup(&b).sup(&c)))
+                (
+                    self.cell_index(&a.inf(&b).inf(&c)),
+                    self.cell_index(&a.sup(&b).sup(&c)),
+                )
             })
             .collect();
         let mut count = vec![0u32; n + 1];
@@ -121,7 +134,10 @@ impl<'a> SurfaceGrid<'a> {
         for z in lo[2].max(0)..=hi[2].min(self.dims[2] as i64 - 1) {
             for y in lo[1].max(0)..=hi[1].min(self.dims[1] as i64 - 1) {
                 for x in lo[0].max(0)..=hi[0].min(self.dims[0] as i64 - 1) {
-                    let on_shell = [x, y, z].iter().zip(lo.iter().zip(hi.iter())).any(|(v, (l, h))| v == l || v == h);
+                    let on_shell = [x, y, z]
+                        .iter()
+                        .zip(lo.iter().zip(hi.iter()))
+                        .any(|(v, (l, h))| v == l || v == h);
                     if ring == 0 || on_shell {
                         let f_idx = self.flat([x as usize, y as usize, z as usize]);
                         let (s, e) = (self.start[f_idx] as usize, self.start[f_idx + 1] as usize);

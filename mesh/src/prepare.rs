@@ -92,7 +92,10 @@ pub struct PrepareReport {
 /// # Errors
 /// Every reading error of [`read_stl`], every repair error, and
 /// [`MeshError::Mirror`] when the body crosses a declared mirror plane.
-pub fn prepare(path: &Path, params: &PrepareParams) -> Result<(PanelMesh, PrepareReport), MeshError> {
+pub fn prepare(
+    path: &Path,
+    params: &PrepareParams,
+) -> Result<(PanelMesh, PrepareReport), MeshError> {
     let (mesh, read) = read_stl(path)?;
     prepare_mesh(mesh, Some(read), params)
 }
@@ -116,7 +119,10 @@ pub fn prepare_mesh(
     let suggested = suggest(&mesh);
     let target = params.target_panels.unwrap_or(suggested);
     let (mesh, coarsen) = if mesh.len() > target {
-        let cp = CoarsenParams { target_panels: target, ..params.coarsen };
+        let cp = CoarsenParams {
+            target_panels: target,
+            ..params.coarsen
+        };
         let (m, r) = coarsen_with_params(&mesh, &params.mirrors, &cp);
         (m, Some(r))
     } else {
@@ -128,7 +134,10 @@ pub fn prepare_mesh(
         read,
         units: params.units,
         transformed: params.transform.is_some(),
-        mirrors: MirrorReport { ground: params.mirrors.ground, symmetry: params.mirrors.symmetry },
+        mirrors: MirrorReport {
+            ground: params.mirrors.ground,
+            symmetry: params.mirrors.symmetry,
+        },
         repair,
         suggested_panels: suggested,
         coarsen,
@@ -142,14 +151,18 @@ pub fn prepare_mesh(
 
 /// Suggested count for the whole body: a half model counts double area.
 fn suggest(mesh: &TriMesh) -> usize {
-    let Some((lo, hi)) = mesh.bounds() else { return 0 };
+    let Some((lo, hi)) = mesh.bounds() else {
+        return 0;
+    };
     let length = (hi - lo).max();
     suggested_panels(mesh.area(), length)
 }
 
 /// A half model must lie in `y >= 0`, a grounded body above the ground.
 fn check_mirror_sides(mesh: &TriMesh, mirrors: &Mirrors, rel_tol: f64) -> Result<(), MeshError> {
-    let Some((lo, hi)) = mesh.bounds() else { return Ok(()) };
+    let Some((lo, hi)) = mesh.bounds() else {
+        return Ok(());
+    };
     let tol = rel_tol * (hi - lo).norm();
     if mirrors.symmetry && lo.y < -tol {
         return Err(MeshError::Mirror(format!(

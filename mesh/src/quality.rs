@@ -87,12 +87,17 @@ pub fn quality(mesh: &PanelMesh) -> QualityReport {
 pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport {
     let aspect: Vec<f64> = mesh.panels.iter().map(aspect_ratio).collect();
     let angle: Vec<f64> = mesh.panels.iter().map(smallest_angle_deg).collect();
-    let ratio: Vec<f64> = (0..mesh.len()).map(|i| neighbour_area_ratio(mesh, i)).collect();
+    let ratio: Vec<f64> = (0..mesh.len())
+        .map(|i| neighbour_area_ratio(mesh, i))
+        .collect();
     let mut r = QualityReport {
         panels: mesh.len(),
         high_aspect: aspect.iter().filter(|&&a| a > q.max_aspect_ratio).count(),
         small_angle: angle.iter().filter(|&&a| a < q.min_angle_deg).count(),
-        size_jump: ratio.iter().filter(|&&a| a > q.max_neighbour_area_ratio).count(),
+        size_jump: ratio
+            .iter()
+            .filter(|&&a| a > q.max_neighbour_area_ratio)
+            .count(),
         aspect_ratio: spread(aspect),
         min_angle_deg: spread(angle),
         neighbour_area_ratio: spread(ratio),
@@ -108,7 +113,10 @@ fn warnings(r: &QualityReport, q: &QualityParams) -> Vec<String> {
     let mut out = Vec::new();
     let mut warn = |count: usize, what: String, harm: &str| {
         if count as f64 > q.warn_fraction * n {
-            out.push(format!("{count} panels ({:.1} %) {what}: {harm}", 100.0 * count as f64 / n));
+            out.push(format!(
+                "{count} panels ({:.1} %) {what}: {harm}",
+                100.0 * count as f64 / n
+            ));
         }
     };
     warn(
@@ -123,7 +131,10 @@ fn warnings(r: &QualityReport, q: &QualityParams) -> Vec<String> {
     );
     warn(
         r.size_jump,
-        format!("differ in area by more than {}x from a neighbour", q.max_neighbour_area_ratio),
+        format!(
+            "differ in area by more than {}x from a neighbour",
+            q.max_neighbour_area_ratio
+        ),
         "abrupt size changes cause local errors in pressure",
     );
     out

@@ -24,7 +24,10 @@ fn header_only() {
     bytes.extend_from_slice(&0u32.to_le_bytes());
     assert!(matches!(err_of(&bytes), MeshError::NoFacets));
     // The 80-byte header alone, without the count.
-    assert!(matches!(err_of(&[0u8; 80]), MeshError::TooShort { bytes: 80 }));
+    assert!(matches!(
+        err_of(&[0u8; 80]),
+        MeshError::TooShort { bytes: 80 }
+    ));
 }
 
 #[test]
@@ -34,7 +37,14 @@ fn truncated_binary() {
     let e = err_of(&bytes);
     // 80 facets declared, 79 whole facets and 20 bytes present.
     assert!(
-        matches!(e, MeshError::FacetCountMismatch { declared: 80, room: 79, .. }),
+        matches!(
+            e,
+            MeshError::FacetCountMismatch {
+                declared: 80,
+                room: 79,
+                ..
+            }
+        ),
         "{e}"
     );
 }
@@ -44,7 +54,17 @@ fn facet_count_larger_than_file() {
     let mut bytes = common::binary_stl(&generate::icosphere(1.0, 0));
     bytes[80..84].copy_from_slice(&4_000_000_000u32.to_le_bytes());
     let e = err_of(&bytes);
-    assert!(matches!(e, MeshError::FacetCountMismatch { declared: 4_000_000_000, room: 20, .. }), "{e}");
+    assert!(
+        matches!(
+            e,
+            MeshError::FacetCountMismatch {
+                declared: 4_000_000_000,
+                room: 20,
+                ..
+            }
+        ),
+        "{e}"
+    );
     assert!(e.to_string().contains("4000000000 facets"), "{e}");
 }
 
@@ -56,7 +76,16 @@ fn nan_and_infinite_coordinates() {
         let at = 84 + 3 * 50 + 12 + 12 + 4;
         bytes[at..at + 4].copy_from_slice(&bad.to_le_bytes());
         let e = err_of(&bytes);
-        assert!(matches!(e, MeshError::NonFiniteCorner { facet: 3, corner: 1 }), "{e}");
+        assert!(
+            matches!(
+                e,
+                MeshError::NonFiniteCorner {
+                    facet: 3,
+                    corner: 1
+                }
+            ),
+            "{e}"
+        );
     }
 }
 
@@ -64,7 +93,10 @@ fn nan_and_infinite_coordinates() {
 fn text_that_is_not_stl() {
     let text = "This is a shopping list, not a surface.\n".repeat(10);
     assert!(matches!(err_of(text.as_bytes()), MeshError::NotStl));
-    assert!(matches!(err_of(b"hello\n"), MeshError::TooShort { bytes: 6 }));
+    assert!(matches!(
+        err_of(b"hello\n"),
+        MeshError::TooShort { bytes: 6 }
+    ));
 }
 
 #[test]
@@ -85,7 +117,10 @@ fn a_directory() {
 #[test]
 fn missing_file() {
     let dir = tempfile::tempdir().unwrap();
-    assert!(matches!(read_stl(&dir.path().join("none.stl")), Err(MeshError::Io { .. })));
+    assert!(matches!(
+        read_stl(&dir.path().join("none.stl")),
+        Err(MeshError::Io { .. })
+    ));
 }
 
 #[test]
@@ -96,7 +131,10 @@ fn binary_and_ascii_read_the_same_mesh() {
     let a = common::write(dir.path(), "a.stl", common::ascii_stl(&sphere).as_bytes());
     let (mb, rb) = read_stl(&b).unwrap();
     let (ma, ra) = read_stl(&a).unwrap();
-    assert_eq!((rb.format, ra.format), (StlFormat::Binary, StlFormat::Ascii));
+    assert_eq!(
+        (rb.format, ra.format),
+        (StlFormat::Binary, StlFormat::Ascii)
+    );
     // Exact-duplicate welding recovers the indexed sphere: 20 * 4^2 facets,
     // 10 * 4^2 + 2 vertices (Euler: V = F/2 + 2 for a closed triangulated sphere).
     assert_eq!((rb.facets, rb.vertices), (320, 162));

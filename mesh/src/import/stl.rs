@@ -136,7 +136,10 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     if looks_ascii {
         return Ok(Kind::Ascii);
     }
-    if head.iter().all(|&b| b.is_ascii_graphic() || b.is_ascii_whitespace()) {
+    if head
+        .iter()
+        .all(|&b| b.is_ascii_graphic() || b.is_ascii_whitespace())
+    {
         return Err(MeshError::NotStl);
     }
     if expected > bytes {

@@ -32,7 +32,8 @@ impl RigidTransform {
     /// Rotation by roll (about x), pitch (about y) and yaw (about z), in
     /// degrees, applied in that order, then the translation.
     pub fn from_euler_deg(roll: f64, pitch: f64, yaw: f64, translation: Vector) -> Self {
-        let r = Rotation3::from_euler_angles(roll.to_radians(), pitch.to_radians(), yaw.to_radians());
+        let r =
+            Rotation3::from_euler_angles(roll.to_radians(), pitch.to_radians(), yaw.to_radians());
         Self {
             rotation: UnitQuaternion::from_rotation_matrix(&r),
             translation,

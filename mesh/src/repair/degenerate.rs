@@ -37,7 +37,11 @@ enum Defect {
 /// Drop degenerate facets in place. A sliver is a facet whose largest angle
 /// exceeds `max_angle_deg` and whose `2A / L^2` is below `sliver_ratio`
 /// (for an equilateral triangle `2A / L^2 = sqrt(3)/2`).
-pub fn drop_degenerate(mesh: &mut TriMesh, max_angle_deg: f64, sliver_ratio: f64) -> DegenerateReport {
+pub fn drop_degenerate(
+    mesh: &mut TriMesh,
+    max_angle_deg: f64,
+    sliver_ratio: f64,
+) -> DegenerateReport {
     let mut report = DegenerateReport::default();
     let cos_limit = max_angle_deg.to_radians().cos();
     let vertices = &mesh.vertices;

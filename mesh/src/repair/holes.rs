@@ -79,7 +79,11 @@ struct HalfEdge {
 /// # Errors
 /// [`MeshError::OpenHole`] naming the largest loop that can be neither
 /// filled nor closed by a mirror.
-pub fn close_holes(mesh: &mut TriMesh, component: &mut Vec<u32>, s: &HoleSettings) -> Result<HoleReport, MeshError> {
+pub fn close_holes(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    s: &HoleSettings,
+) -> Result<HoleReport, MeshError> {
     let (half, non_manifold) = boundary_half_edges(&mesh.triangles);
     let loops = chain_loops(&half);
     let mut report = HoleReport {
@@ -163,7 +167,9 @@ fn chain_loops(half: &[HalfEdge]) -> Vec<(Vec<usize>, bool)> {
         let mut at = half[start].to;
         let mut closed = true;
         while at != half[start].from {
-            let next = outgoing.get(&at).and_then(|l| l.iter().copied().find(|&e| !used[e]));
+            let next = outgoing
+                .get(&at)
+                .and_then(|l| l.iter().copied().find(|&e| !used[e]));
             let Some(e) = next else {
                 closed = false;
                 break;
@@ -203,7 +209,12 @@ fn ends(vertices: &[Point], h: &HalfEdge) -> (Point, Point) {
     (vertices[h.from as usize], vertices[h.to as usize])
 }
 
-fn on_plane(vertices: &[Point], half: &[HalfEdge], edges: &[usize], s: &HoleSettings) -> Option<&'static str> {
+fn on_plane(
+    vertices: &[Point],
+    half: &[HalfEdge],
+    edges: &[usize],
+    s: &HoleSettings,
+) -> Option<&'static str> {
     let all = |f: &dyn Fn(&Point) -> bool| {
         edges.iter().all(|&e| {
             let (a, b) = ends(vertices, &half[e]);
@@ -220,7 +231,13 @@ fn on_plane(vertices: &[Point], half: &[HalfEdge], edges: &[usize], s: &HoleSett
 }
 
 /// Vector area `1/2 sum (a - c) x (b - c)` against the perimeter squared.
-fn is_slit(vertices: &[Point], half: &[HalfEdge], edges: &[usize], info: &LoopInfo, ratio: f64) -> bool {
+fn is_slit(
+    vertices: &[Point],
+    half: &[HalfEdge],
+    edges: &[usize],
+    info: &LoopInfo,
+    ratio: f64,
+) -> bool {
     let c = Point::from(info.centre);
     let area: Vector = edges
         .iter()
@@ -233,7 +250,13 @@ fn is_slit(vertices: &[Point], half: &[HalfEdge], edges: &[usize], info: &LoopIn
 }
 
 /// Fill one closed loop; returns the number of facets added.
-fn fill(mesh: &mut TriMesh, component: &mut Vec<u32>, half: &[HalfEdge], edges: &[usize], info: &LoopInfo) -> usize {
+fn fill(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    half: &[HalfEdge],
+    edges: &[usize],
+    info: &LoopInfo,
+) -> usize {
     let part = component[half[edges[0]].facet as usize];
     let before = mesh.triangles.len();
     if let [e0, e1, _] = edges {

@@ -148,7 +148,9 @@ pub fn repair_with_params(
     r.vertices_welded = weld(&mut mesh, r.weld_tolerance);
     r.degenerate = drop_degenerate(&mut mesh, p.sliver_angle_deg, p.sliver_ratio);
     if mesh.is_empty() {
-        return Err(MeshError::AllDegenerate { facets: r.input_facets });
+        return Err(MeshError::AllDegenerate {
+            facets: r.input_facets,
+        });
     }
     r.duplicates = drop_duplicates(&mut mesh);
     let (orientation, mut component) = orient_consistently(&mut mesh);

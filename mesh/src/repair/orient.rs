@@ -74,7 +74,13 @@ fn manifold_neighbours(triangles: &[[u32; 3]]) -> Neighbours {
 
 /// Breadth-first fill from `seed`, recording each facet's part and whether
 /// it must flip relative to the seed; returns the facets reached.
-fn flood(seed: usize, id: u32, neighbours: &Neighbours, component: &mut [u32], flip: &mut [bool]) -> Vec<u32> {
+fn flood(
+    seed: usize,
+    id: u32,
+    neighbours: &Neighbours,
+    component: &mut [u32],
+    flip: &mut [bool],
+) -> Vec<u32> {
     let mut members = vec![seed as u32];
     let mut queue = VecDeque::from([seed as u32]);
     component[seed] = id;
@@ -95,7 +101,12 @@ fn count_conflicts(neighbours: &Neighbours, flip: &[bool]) -> usize {
     neighbours
         .iter()
         .enumerate()
-        .flat_map(|(t, sides)| sides.iter().flatten().map(move |&(u, same)| (t, u as usize, same)))
+        .flat_map(|(t, sides)| {
+            sides
+                .iter()
+                .flatten()
+                .map(move |&(u, same)| (t, u as usize, same))
+        })
         .filter(|&(t, u, same)| t < u && (same ^ flip[t] ^ flip[u]))
         .count()
 }

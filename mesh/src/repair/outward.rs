@@ -22,7 +22,12 @@ pub struct OutwardReport {
 
 /// Reverse every part of `mesh` (ids in `component`, `parts` of them) whose
 /// signed volume is negative.
-pub fn orient_outward(mesh: &mut TriMesh, component: &[u32], parts: usize, mirrors: &Mirrors) -> OutwardReport {
+pub fn orient_outward(
+    mesh: &mut TriMesh,
+    component: &[u32],
+    parts: usize,
+    mirrors: &Mirrors,
+) -> OutwardReport {
     let r = reference_point(mesh, mirrors);
     let mut volume = vec![0.0; parts];
     let mut scale = vec![0.0f64; parts];
@@ -52,7 +57,9 @@ pub fn orient_outward(mesh: &mut TriMesh, component: &[u32], parts: usize, mirro
 
 /// A point on every declared plane: `(x, 0, h)` with the body's mid `x`.
 fn reference_point(mesh: &TriMesh, mirrors: &Mirrors) -> Point {
-    let mid = mesh.bounds().map_or(Point::origin(), |(lo, hi)| nalgebra::center(&lo, &hi));
+    let mid = mesh
+        .bounds()
+        .map_or(Point::origin(), |(lo, hi)| nalgebra::center(&lo, &hi));
     Point::new(
         mid.x,
         if mirrors.symmetry { 0.0 } else { mid.y },

@@ -17,19 +17,17 @@ pub fn weld(mesh: &mut TriMesh, tol: f64) -> usize {
     if tol.is_nan() || tol <= 0.0 {
         return 0;
     }
-    let cell = 2.0 * tol;
-    let mut grid: FastMap<[i64; 3], Vec<u32>> = FastMap::default();
+    let mut grid = KeptGrid::new(2.0 * tol, mesh.vertices.len());
     let mut map: Vec<u32> = Vec::with_capacity(mesh.vertices.len());
     let mut merged = 0;
     for (i, p) in mesh.vertices.iter().enumerate() {
-        let found = nearby_kept(&grid, &mesh.vertices, p, cell, tol);
-        match found {
+        match grid.nearby(&mesh.vertices, p, tol) {
             Some(k) => {
                 map.push(k);
                 merged += 1;
             }
             None => {
-                grid.entry(cell_of(p, cell)).or_default().push(i as u32);
+                grid.insert(p, i as u32);
                 map.push(i as u32);
             }
         }
@@ -40,33 +38,63 @@ pub fn weld(mesh: &mut TriMesh, tol: f64) -> usize {
     merged
 }
 
-fn cell_of(p: &Point, cell: f64) -> [i64; 3] {
-    [p.x, p.y, p.z].map(|c| (c / cell).floor() as i64)
+/// Kept vertices by cell: the first in each cell in `head`, the rest
+/// chained through `next` (no allocation per cell).
+struct KeptGrid {
+    cell: f64,
+    head: FastMap<u64, u32>,
+    next: Vec<u32>,
 }
 
-/// The first kept vertex within `tol` of `p`, looking in the 8 cells that
-/// can hold one.
-fn nearby_kept(
-    grid: &FastMap<[i64; 3], Vec<u32>>,
-    vertices: &[Point],
-    p: &Point,
-    cell: f64,
-    tol: f64,
-) -> Option<u32> {
-    let base = cell_of(p, cell);
-    let side: [i64; 3] = std::array::from_fn(|k| {
-        let frac = p[k] / cell - base[k] as f64;
-        if frac < 0.5 { -1 } else { 1 }
-    });
-    let mut best: Option<u32> = None;
-    for corner in 0..8u8 {
-        let key: [i64; 3] = std::array::from_fn(|k| base[k] + side[k] * i64::from((corner >> k) & 1));
-        let Some(list) = grid.get(&key) else { continue };
-        for &j in list {
-            if (vertices[j as usize] - p).norm() <= tol && best.is_none_or(|b| j < b) {
-                best = Some(j);
-            }
+impl KeptGrid {
+    fn new(cell: f64, capacity: usize) -> Self {
+        let mut head = FastMap::default();
+        head.reserve(capacity);
+        Self {
+            cell,
+            head,
+            next: vec![u32::MAX; capacity],
         }
     }
-    best
+
+    fn cell_of(&self, p: &Point) -> [i64; 3] {
+        [p.x, p.y, p.z].map(|c| (c / self.cell).floor() as i64)
+    }
+
+    /// 21 bits per axis; distant cells that share a key only add candidates
+    /// that the distance test then rejects.
+    fn key(c: [i64; 3]) -> u64 {
+        let m = (1u64 << 21) - 1;
+        (c[0] as u64 & m) | ((c[1] as u64 & m) << 21) | ((c[2] as u64 & m) << 42)
+    }
+
+    fn insert(&mut self, p: &Point, i: u32) {
+        let key = Self::key(self.cell_of(p));
+        if let Some(old) = self.head.insert(key, i) {
+            self.next[i as usize] = old;
+        }
+    }
+
+    /// The smallest-index kept vertex within `tol` of `p`, looking in the 8
+    /// cells that can hold one.
+    fn nearby(&self, vertices: &[Point], p: &Point, tol: f64) -> Option<u32> {
+        let base = self.cell_of(p);
+        let side: [i64; 3] = std::array::from_fn(|k| {
+            let frac = p[k] / self.cell - base[k] as f64;
+            if frac < 0.5 { -1 } else { 1 }
+        });
+        let mut best: Option<u32> = None;
+        for corner in 0..8u8 {
+            let c: [i64; 3] =
+                std::array::from_fn(|k| base[k] + side[k] * i64::from((corner >> k) & 1));
+            let mut j = self.head.get(&Self::key(c)).copied().unwrap_or(u32::MAX);
+            while j != u32::MAX {
+                if (vertices[j as usize] - p).norm() <= tol && best.is_none_or(|b| j < b) {
+                    best = Some(j);
+                }
+                j = self.next[j as usize];
+            }
+        }
+        best
+    }
 }
