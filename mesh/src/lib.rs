@@ -22,13 +22,21 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod coarsen;
+pub mod distance;
 pub mod error;
+mod fasthash;
 pub mod generate;
+pub mod import;
 pub mod mirror;
 pub mod panels;
+pub mod prepare;
+pub mod quality;
+pub mod repair;
 pub mod trimesh;
 
 pub use error::MeshError;
+pub use import::{LengthUnit, RigidTransform};
 pub use mirror::{Mirrors, Reflection};
 pub use panels::{Panel, PanelMesh};
 pub use trimesh::TriMesh;
