@@ -13,7 +13,7 @@
 
 mod ahmed;
 mod builder;
-
+mod coupe;
 mod ellipsoid;
 mod loft;
 mod sphere;
@@ -23,7 +23,7 @@ mod wing;
 pub(crate) mod check;
 
 pub use ahmed::{AhmedParams, ahmed, ahmed_with_params};
-
+pub use coupe::{CoupeParams, coupe, coupe_with_params};
 pub use ellipsoid::{EllipsoidParams, ellipsoid, ellipsoid_with_params};
 pub use sphere::{icosphere, latlong_sphere};
 pub use wing::{WingMesh, WingParams, wing, wing_with_params};
