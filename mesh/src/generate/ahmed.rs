@@ -96,7 +96,7 @@ pub fn ahmed_with_params(p: &AhmedParams) -> Result<TriMesh, MeshError> {
     if !p.half {
         builder.mirror_y();
     }
-    Ok(builder.finish(1e-9).0)
+    Ok(builder.finish(1e-9 * p.length).0)
 }
 
 fn validate(p: &AhmedParams) -> Result<(), MeshError> {

@@ -73,9 +73,13 @@ const SHOULDER: [f64; 2] = [0.35, 0.42];
 const PLAN_ROUNDING: [f64; 2] = [0.30, 0.22];
 /// Superellipse exponents: side-view end rounding (blunt), plan-view end
 /// rounding (elliptic, so the sections near the poles stay round enough
-/// for well-shaped panels), lower section (boxy), upper section
-/// (tumblehome).
-const EXPONENTS: [f64; 4] = [4.0, 2.0, 4.0, 2.6];
+/// for well-shaped panels), lower section (boxy).
+const EXPONENTS: [f64; 3] = [4.0, 2.0, 4.0];
+/// Exponent of the upper section: flat and wide over bonnet and deck (the
+/// first value, where the top is at most the first fraction of the height
+/// above the shoulder), round over the cabin for the tumblehome (the
+/// second value, from the second fraction up), blended in between.
+const UPPER: [f64; 4] = [4.0, 2.2, 0.25, 0.6];
 /// Half-lengths of the parabolic blends at the cowl, the top of the
 /// windscreen, the rear of the roof and the foot of the rear window.
 const BLENDS: [f64; 4] = [0.15, 0.25, 0.15, 0.10];
@@ -173,6 +177,7 @@ fn quarter(t: f64, p: f64) -> (f64, f64) {
 /// The coupe's profiles, ready to give sections.
 struct Body {
     length: f64,
+    height: f64,
     half_width: f64,
     top: Profile,
     bottom: Profile,
@@ -244,6 +249,7 @@ impl Body {
         )?;
         Ok(Self {
             length: l,
+            height: h,
             half_width: 0.5 * p.width,
             top,
             bottom,
@@ -309,7 +315,7 @@ impl Sections for Body {
 
     fn point(&self, x: f64, u: f64) -> Point {
         let l = self.length;
-        let [m_side, m_plan, p_low, p_up] = EXPONENTS;
+        let [m_side, m_plan, p_low] = EXPONENTS;
         let e_side = end_factor(x / self.nose_tail[0], m_side)
             .min(end_factor((l - x) / self.nose_tail[1], m_side));
         let e_plan =
@@ -321,9 +327,11 @@ impl Sections for Body {
             let down = (z_sh - self.bottom.at(x)) * e_side;
             Point::new(x, w * s, z_sh - down * c)
         } else {
+            let rise = self.top.at(x) - z_sh;
+            let f = ((rise / self.height - UPPER[2]) / (UPPER[3] - UPPER[2])).clamp(0.0, 1.0);
+            let p_up = UPPER[0] + (UPPER[1] - UPPER[0]) * f * f * (3.0 - 2.0 * f);
             let (c, s) = quarter((u - 0.5) * 2.0 * FRAC_PI_2, p_up);
-            let up = (self.top.at(x) - z_sh) * e_side;
-            Point::new(x, w * c, z_sh + up * s)
+            Point::new(x, w * c, z_sh + rise * e_side * s)
         }
     }
 }
