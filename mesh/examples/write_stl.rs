@@ -9,7 +9,7 @@
 //! - `sphere`: `radius`, `levels` (icosphere subdivisions)
 //! - `ellipsoid`: `a`, `b`, `c`, `panels`
 //! - `wing`: `naca` (e.g. 2412), `span`, `chord`, `alpha`, `height`,
-//!   `chord_panels`, `span_panels`
+//!   `chord_panels`, `span_panels`, `rounded_tips` (true/false)
 //! - `ahmed`: `slant`, `clearance`, `panels`, `half` (true/false)
 //! - `coupe`: `rear_window`, `windscreen`, `length`, `width`, `height`,
 //!   `ride_height`, `bonnet`, `roof`, `deck`, `panels`, `half`
@@ -108,6 +108,7 @@ fn wing(o: &mut Options) -> Result<TriMesh, Box<dyn Error>> {
         height: take(o, "height", d.height)?,
         chord_panels: take(o, "chord_panels", d.chord_panels)?,
         span_panels: take(o, "span_panels", d.span_panels)?,
+        rounded_tips: take(o, "rounded_tips", d.rounded_tips)?,
         ..d
     };
     let p = p
