@@ -14,3 +14,13 @@ pub mod error;
 pub mod influence;
 
 pub use error::SolverError;
+pub mod assemble;
+pub mod gradient;
+pub mod linear;
+pub mod potential;
+
+pub use assemble::{InfluenceSystem, assemble};
+pub use potential::{
+    Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, solve_potential,
+    solve_potential_with_params, surface_velocity,
+};
