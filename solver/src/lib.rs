@@ -19,6 +19,7 @@ pub mod gradient;
 pub mod linear;
 pub mod loads;
 pub mod potential;
+pub mod wake;
 
 pub use assemble::{InfluenceSystem, assemble};
 pub use potential::{
