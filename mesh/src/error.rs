@@ -30,6 +30,16 @@ pub enum MeshError {
         /// Index of the vertex (or facet corner when read from STL).
         vertex: usize,
     },
+    /// A shape generator was given a parameter it cannot build.
+    #[error("generator parameter {name} = {value}: {reason}")]
+    InvalidParameter {
+        /// Name of the parameter.
+        name: &'static str,
+        /// The value given.
+        value: f64,
+        /// What is wrong with it.
+        reason: &'static str,
+    },
     /// The mirror planes asked for are not consistent with the body.
     #[error("mirror plane problem: {0}")]
     Mirror(String),
