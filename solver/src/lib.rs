@@ -18,6 +18,7 @@ pub mod assemble;
 pub mod gradient;
 pub mod linear;
 pub mod loads;
+pub mod offbody;
 pub mod potential;
 pub mod wake;
 

@@ -16,7 +16,8 @@ use tuft_mesh::{Panel, PanelMesh, Point, Reflection, Vector};
 use super::detect::{
     DetectParams, TrailingEdge, find_trailing_edges_with_params, trailing_edges_from_list,
 };
-use super::{WakeError, split_trailing_edges};
+use super::split::{sharp_edges, split_edges};
+use super::WakeError;
 use crate::assemble::{InfluenceSystem, assemble, doublet_column};
 use crate::potential::{
     Freestream, PotentialParams, PotentialSolution, post_process, solve_system,
@@ -86,6 +87,12 @@ pub struct WakeParams {
     pub edges: Option<Vec<[u32; 2]>>,
     /// Settings of the potential-flow solve.
     pub potential: PotentialParams,
+    /// The surface gradient of `mu` is not taken across trailing edges nor
+    /// across edges whose normals are more than this many degrees apart
+    /// (default 75: a 90-degree wing tip or box corner is cut, a
+    /// coarsely panelled curved surface is not; 180 cuts trailing edges
+    /// only).
+    pub gradient_cut_angle_deg: f64,
 }
 
 impl Default for WakeParams {
@@ -95,6 +102,7 @@ impl Default for WakeParams {
             detect: DetectParams::default(),
             edges: None,
             potential: PotentialParams::default(),
+            gradient_cut_angle_deg: 75.0,
         }
     }
 }
@@ -173,7 +181,8 @@ pub fn solve_potential_with_wake(
 
 /// Find (or take) the trailing edges, shed the wake, assemble and solve
 /// with the Kutta condition, then compute the surface velocity on the mesh
-/// cut open along the trailing edges. A body without trailing edges gets
+/// cut open along the trailing edges and the sharp edges
+/// ([`WakeParams::gradient_cut_angle_deg`]). A body without trailing edges gets
 /// an empty wake and the plain solution.
 ///
 /// # Errors
@@ -208,7 +217,9 @@ pub fn solve_potential_with_wake_params(
     let (mut mus, stats) = solve_system(system, vec![rhs], &params.potential)?;
     let mu = mus.pop().unwrap_or_default();
     let strength = edges.iter().map(|e| mu[e.upper] - mu[e.lower]).collect();
-    let cut = split_trailing_edges(mesh, &edges)?;
+    let mut cut_edges = sharp_edges(mesh, params.gradient_cut_angle_deg);
+    cut_edges.extend(edges.iter().map(|e| [e.start, e.end]));
+    let cut = split_edges(mesh, &cut_edges)?;
     Ok(WakeSolution {
         solution: post_process(&cut, mu, fs, stats),
         wake: Wake { panels, strength },

@@ -26,7 +26,7 @@ pub use kutta::{
     Wake, WakeParams, WakeSolution, add_wake_columns, solve_potential_with_wake,
     solve_potential_with_wake_params, wake_panels,
 };
-pub use split::split_trailing_edges;
+pub use split::{sharp_edges, split_edges, split_trailing_edges};
 
 /// What can go wrong when shedding a wake.
 #[derive(Debug, Error)]

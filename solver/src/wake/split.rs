@@ -7,6 +7,13 @@
 //! vertex neighbourhoods stop at the edge, and the gradient (and so the
 //! surface velocity) on each side uses that side only, as a one-sided
 //! difference at a wake junction does in Katz & Plotkin (2001, sec. 12.4).
+//!
+//! The same cut is made along other sharp edges (a wing tip, the corners of
+//! a box): the tangential gradient is not continuous across a fold, so a
+//! fit in one panel's plane should not use values from a face turned far
+//! from it. Where a trailing edge meets a wing tip the trailing-edge vertex
+//! is then split three ways (upper, lower, tip face), which keeps the tip
+//! panels of the trailing edge one-sided too.
 
 use std::collections::HashSet;
 
@@ -15,12 +22,7 @@ use tuft_mesh::{MeshError, PanelMesh, TriMesh};
 use super::TrailingEdge;
 
 /// The same panels, in the same order and with the same geometry, with
-/// the connectivity cut along `edges`.
-///
-/// Around each vertex, panel corners are grouped by walking across the
-/// shared edges that are not cut; each group gets its own copy of the
-/// vertex. A vertex where the cut ends (a trailing edge meeting a wing tip)
-/// stays one group and is not split.
+/// the connectivity cut along the trailing `edges`.
 ///
 /// # Errors
 /// Only those of [`PanelMesh::new`], which cannot occur for panels that
@@ -29,9 +31,42 @@ pub fn split_trailing_edges(
     mesh: &PanelMesh,
     edges: &[TrailingEdge],
 ) -> Result<PanelMesh, MeshError> {
+    let pairs: Vec<[u32; 2]> = edges.iter().map(|e| [e.start, e.end]).collect();
+    split_edges(mesh, &pairs)
+}
+
+/// Edges whose two outward normals are more than `min_normal_angle_deg`
+/// apart (a wing tip, the corners of a box), as vertex pairs.
+pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]> {
+    let cos = min_normal_angle_deg.to_radians().cos();
+    let mut out = Vec::new();
+    for (t, tri) in mesh.triangles.iter().enumerate() {
+        for k in 0..3 {
+            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize) {
+                if o > t && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos {
+                    out.push([tri[k], tri[(k + 1) % 3]]);
+                }
+            }
+        }
+    }
+    out
+}
+
+/// The same panels, in the same order and with the same geometry, with
+/// the connectivity cut along `edges` (vertex pairs in either order).
+///
+/// Around each vertex, panel corners are grouped by walking across the
+/// shared edges that are not cut; each group gets its own copy of the
+/// vertex. A vertex where a cut simply ends stays one group and is not
+/// split.
+///
+/// # Errors
+/// Only those of [`PanelMesh::new`], which cannot occur for panels that
+/// already formed a [`PanelMesh`].
+pub fn split_edges(mesh: &PanelMesh, edges: &[[u32; 2]]) -> Result<PanelMesh, MeshError> {
     let cut: HashSet<(u32, u32)> = edges
         .iter()
-        .flat_map(|e| [(e.start, e.end), (e.end, e.start)])
+        .flat_map(|&[a, b]| [(a, b), (b, a)])
         .collect();
     let corners = mesh.triangles.len() * 3;
     let mut groups = UnionFind::new(corners);
