@@ -17,7 +17,10 @@ pub use error::SolverError;
 pub mod assemble;
 pub mod gradient;
 pub mod linear;
+pub mod loads;
+pub mod offbody;
 pub mod potential;
+pub mod wake;
 
 pub use assemble::{InfluenceSystem, assemble};
 pub use potential::{
