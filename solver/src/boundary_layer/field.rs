@@ -15,6 +15,9 @@ pub struct SurfaceField {
     pub speed: Vec<f64>,
     /// Area-weighted mean of the speeds of the panels round each vertex.
     pub vertex_speed: Vec<f64>,
+    /// Area-weighted mean of the tangential velocities of the panels round
+    /// each vertex (the continuous field the streamlines follow).
+    pub vertex_velocity: Vec<Vector3<f64>>,
     /// Inward unit normal of each panel edge `k` (from corner `k` to `k+1`)
     /// in the panel's plane.
     pub inward: Vec<[Vector3<f64>; 3]>,
@@ -50,12 +53,31 @@ impl SurfaceField {
         let spreading = spreading(mesh, &direction);
         Self {
             vertex_speed: vertex_speeds(mesh, &speed),
+            vertex_velocity: vertex_velocities(mesh, &tangential),
             sharp: sharp_panels(mesh, sharp_edge_deg),
             direction,
             speed,
             inward,
             spreading,
         }
+    }
+
+    /// Unit flow direction at a point of panel `t`: the vertex velocities
+    /// interpolated linearly (barycentric weights), projected onto the
+    /// panel's plane. `None` where that vanishes.
+    pub fn direction_at(
+        &self,
+        mesh: &PanelMesh,
+        t: usize,
+        p: &Point3<f64>,
+    ) -> Option<Vector3<f64>> {
+        let w = barycentric(mesh, t, p);
+        let tri = mesh.triangles[t];
+        let v: Vector3<f64> = (0..3)
+            .map(|k| self.vertex_velocity[tri[k] as usize] * w[k])
+            .sum();
+        let n = mesh.panels[t].normal.into_inner();
+        (v - n * v.dot(&n)).try_normalize(1e-300)
     }
 
     /// Speed at a point of panel `t`, interpolated linearly from the vertex
@@ -111,6 +133,24 @@ fn vertex_speeds(mesh: &PanelMesh, speed: &[f64]) -> Vec<f64> {
         .collect()
 }
 
+/// Area-weighted mean tangential velocity of the panels round each vertex.
+fn vertex_velocities(mesh: &PanelMesh, tangential: &[Vector3<f64>]) -> Vec<Vector3<f64>> {
+    mesh.vertex_panels
+        .iter()
+        .map(|ps| {
+            let (sum, area) = ps.iter().fold((Vector3::zeros(), 0.0), |(s, a), &t| {
+                let ar = mesh.panels[t as usize].area;
+                (s + tangential[t as usize] * ar, a + ar)
+            });
+            if area > 0.0 {
+                sum / area
+            } else {
+                Vector3::zeros()
+            }
+        })
+        .collect()
+}
+
 /// Surface divergence of the unit flow direction `t` per panel, the
 /// streamline spreading `(1/h) dh/ds` (Rott & Crabtree 1952: `h` the
 /// distance between neighbouring streamlines; on a body of revolution
@@ -150,16 +190,14 @@ pub fn spreading(mesh: &PanelMesh, direction: &[Vector3<f64>]) -> Vec<f64> {
 /// (the neighbour's centroid lies below the panel's plane).
 pub fn sharp_panels(mesh: &PanelMesh, sharp_edge_deg: f64) -> Vec<bool> {
     let cos_limit = sharp_edge_deg.to_radians().cos();
-    let mut sharp = vec![false; mesh.len()];
-    for t in 0..mesh.len() {
-        let a = &mesh.panels[t];
-        for j in mesh.edge_neighbours[t].iter().flatten() {
-            let b = &mesh.panels[*j as usize];
-            let convex = a.normal.dot(&(b.centroid - a.centroid)) < 0.0;
-            if convex && a.normal.dot(&b.normal) < cos_limit {
-                sharp[t] = true;
-            }
-        }
-    }
-    sharp
+    (0..mesh.len())
+        .map(|t| {
+            let a = &mesh.panels[t];
+            mesh.edge_neighbours[t].iter().flatten().any(|&j| {
+                let b = &mesh.panels[j as usize];
+                let convex = a.normal.dot(&(b.centroid - a.centroid)) < 0.0;
+                convex && a.normal.dot(&b.normal) < cos_limit
+            })
+        })
+        .collect()
 }

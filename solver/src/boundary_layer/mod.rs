@@ -127,16 +127,16 @@ impl BoundaryLayerParams {
         if !(self.separation_h.is_finite() && self.separation_h > self.flat_plate_h) {
             return bad("separation_h", self.separation_h);
         }
-        if !(self.flat_plate_h > 1.1) {
+        if self.flat_plate_h.is_nan() || self.flat_plate_h <= 1.1 {
             return bad("flat_plate_h", self.flat_plate_h);
         }
         if !(self.turbulent_start_h > 1.1 && self.turbulent_start_h < self.separation_h) {
             return bad("turbulent_start_h", self.turbulent_start_h);
         }
-        if let Transition::Forced { x_fraction } = self.transition {
-            if !(0.0..=1.0).contains(&x_fraction) {
-                return bad("transition.x_fraction", x_fraction);
-            }
+        if let Transition::Forced { x_fraction } = self.transition
+            && !(0.0..=1.0).contains(&x_fraction)
+        {
+            return bad("transition.x_fraction", x_fraction);
         }
         for (name, v) in [
             ("base_edge_turn_deg", self.base_edge_turn_deg),

@@ -458,15 +458,15 @@ impl<'a> LineContext<'a> {
 fn interpolate_run(samples: &mut [LineSample], first: usize, end: usize) {
     let before = first.checked_sub(1).map(|i| samples[i]);
     let after = samples.get(end).copied();
-    for k in first..end {
-        samples[k].speed = match (before, after) {
+    for sample in &mut samples[first..end] {
+        sample.speed = match (before, after) {
             (Some(a), Some(b)) => {
-                let t = (samples[k].s - a.s) / (b.s - a.s).max(1e-300);
+                let t = (sample.s - a.s) / (b.s - a.s).max(1e-300);
                 a.speed + (b.speed - a.speed) * t
             }
             (Some(a), None) => a.speed,
             (None, Some(b)) => b.speed,
-            (None, None) => samples[k].speed,
+            (None, None) => sample.speed,
         };
     }
 }

@@ -1,13 +1,16 @@
 //! Surface streamlines traced over the triangulated surface.
 //!
-//! Within a panel the flow direction is the panel's own (constant) unit
-//! direction, so the path is an exact straight segment in the panel's plane
-//! from the entry point to the exit edge; it then crosses into the
-//! neighbour across that edge. Robustness rules:
+//! Within a panel the path follows the vertex velocities interpolated
+//! linearly over the triangle ([`SurfaceField::direction_at`]), in midpoint
+//! (second-order Runge-Kutta) steps of [`STEP_SIZES`] panel sizes, each step
+//! cut at the exit edge; it then crosses into the neighbour across that
+//! edge. A continuous field keeps neighbouring lines apart (a piecewise
+//! constant one makes them merge on the edges where directions converge).
+//! Robustness rules:
 //!
-//! - when the neighbour's direction points back across the entry edge (the
-//!   two directions converge on the edge), the path slides along the edge in
-//!   the direction of the sum of the two, nudged just inside the panel;
+//! - when the direction at the entry point points back across the entry
+//!   edge (directions converge on the edge), the path slides along the edge
+//!   in the direction of the sum of the two, nudged just inside the panel;
 //! - zero-length steps at a vertex are allowed a few times in a row, then
 //!   the line stops as stalled;
 //! - a panel visited more than [`MAX_VISITS`] times ends the line (loop);
@@ -21,6 +24,9 @@ use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
 
 use super::field::SurfaceField;
+
+/// Step length of the in-panel integration, in panel sizes.
+pub const STEP_SIZES: f64 = 0.5;
 
 /// Visits of one panel by one line before the line is declared a loop.
 pub const MAX_VISITS: u32 = 4;
@@ -87,13 +93,17 @@ impl Tracer<'_> {
                 line.end = TraceEnd::Stalled;
                 return line;
             };
-            let Some((k, tau)) = self.exit(t, &q0, &d) else {
+            let Some((k, tau, d)) = self.step(t, q0, d, entry, sign) else {
                 line.end = TraceEnd::Stalled;
                 return line;
             };
             let q = q0 + d * tau;
             line.panels.push(t as u32);
             line.points.push(q);
+            let Some(k) = k else {
+                (entry, prev_dir, p) = (None, d, q);
+                continue;
+            };
             zero_steps = if tau < 1e-9 * self.mesh.panels[t].size {
                 zero_steps + 1
             } else {
@@ -121,6 +131,35 @@ impl Tracer<'_> {
         line
     }
 
+    /// One midpoint step from `p` in panel `t` with start direction `d`:
+    /// `(exit edge or None when the step ends inside, length, direction)`.
+    /// A sliding step (entry edge set and `d` along it) goes straight to the
+    /// exit edge.
+    fn step(
+        &self,
+        t: usize,
+        p: Point3<f64>,
+        d: Vector3<f64>,
+        entry: Option<usize>,
+        sign: f64,
+    ) -> Option<(Option<usize>, f64, Vector3<f64>)> {
+        let size = self.mesh.panels[t].size;
+        let sliding = entry.is_some_and(|k| d.dot(&self.field.inward[t][k]) <= 1e-6);
+        let h = STEP_SIZES * size;
+        let dm = if sliding {
+            d
+        } else {
+            self.field
+                .direction_at(self.mesh, t, &(p + d * (0.5 * h)))
+                .map_or(d, |m| m * sign)
+        };
+        let (k, tau) = self.exit(t, &p, &dm)?;
+        if !sliding && tau > h {
+            return Some((None, h, dm));
+        }
+        Some((Some(k), tau, dm))
+    }
+
     /// The direction to follow in panel `t` entered through edge `entry`,
     /// and the (possibly nudged) start point. Slides along the entry edge
     /// when the panel's own direction points back across it.
@@ -132,10 +171,7 @@ impl Tracer<'_> {
         prev_dir: Vector3<f64>,
         sign: f64,
     ) -> Option<(Vector3<f64>, Point3<f64>)> {
-        let d = self.field.direction[t] * sign;
-        if d == Vector3::zeros() {
-            return None;
-        }
+        let d = self.field.direction_at(self.mesh, t, &p)? * sign;
         let Some(k) = entry else {
             return Some((d, p));
         };
