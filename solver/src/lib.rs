@@ -15,6 +15,7 @@ pub mod influence;
 
 pub use error::SolverError;
 pub mod assemble;
+pub mod boundary_layer;
 pub mod gradient;
 pub mod linear;
 pub mod loads;

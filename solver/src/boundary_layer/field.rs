@@ -1,0 +1,203 @@
+//! The surface flow field the streamlines follow: per-panel unit flow
+//! direction and speed, vertex speeds for interpolation, in-plane edge
+//! normals, the spreading term and the sharp-edge flags.
+
+use nalgebra::{Point3, Vector3};
+use tuft_mesh::PanelMesh;
+
+/// Flow quantities per panel, ready for tracing and marching.
+#[derive(Debug, Clone)]
+pub struct SurfaceField {
+    /// Unit flow direction in each panel's plane (zero where the panel has
+    /// no tangential velocity).
+    pub direction: Vec<Vector3<f64>>,
+    /// Tangential speed per panel, m/s.
+    pub speed: Vec<f64>,
+    /// Area-weighted mean of the speeds of the panels round each vertex.
+    pub vertex_speed: Vec<f64>,
+    /// Area-weighted mean of the tangential velocities of the panels round
+    /// each vertex (the continuous field the streamlines follow).
+    pub vertex_velocity: Vec<Vector3<f64>>,
+    /// Inward unit normal of each panel edge `k` (from corner `k` to `k+1`)
+    /// in the panel's plane.
+    pub inward: Vec<[Vector3<f64>; 3]>,
+    /// Streamline spreading `(1/h) dh/ds`: surface divergence of the unit
+    /// flow direction, 1/m ([`spreading`]).
+    pub spreading: Vec<f64>,
+    /// True for a panel that touches a sharp convex edge ([`sharp_panels`]).
+    pub sharp: Vec<bool>,
+}
+
+impl SurfaceField {
+    /// Build the field from one velocity per panel (its tangential part is
+    /// used). `sharp_edge_deg` is the dihedral angle above which an edge is
+    /// sharp.
+    ///
+    /// # Panics
+    /// If `velocity.len() != mesh.len()` (checked by the caller).
+    #[track_caller]
+    pub fn new(mesh: &PanelMesh, velocity: &[Vector3<f64>], sharp_edge_deg: f64) -> Self {
+        assert_eq!(velocity.len(), mesh.len(), "one velocity per panel");
+        let tangential: Vec<Vector3<f64>> = mesh
+            .panels
+            .iter()
+            .zip(velocity)
+            .map(|(p, v)| v - p.normal.into_inner() * v.dot(&p.normal))
+            .collect();
+        let speed: Vec<f64> = tangential.iter().map(|v| v.norm()).collect();
+        let direction = tangential
+            .iter()
+            .map(|v| v.try_normalize(1e-300).unwrap_or_else(Vector3::zeros))
+            .collect::<Vec<_>>();
+        let inward = mesh.panels.iter().map(inward_normals).collect();
+        let spreading = spreading(mesh, &direction);
+        Self {
+            vertex_speed: vertex_speeds(mesh, &speed),
+            vertex_velocity: vertex_velocities(mesh, &tangential),
+            sharp: sharp_panels(mesh, sharp_edge_deg),
+            direction,
+            speed,
+            inward,
+            spreading,
+        }
+    }
+
+    /// Unit flow direction at a point of panel `t`: the vertex velocities
+    /// interpolated linearly (barycentric weights), projected onto the
+    /// panel's plane. `None` where that vanishes.
+    pub fn direction_at(
+        &self,
+        mesh: &PanelMesh,
+        t: usize,
+        p: &Point3<f64>,
+    ) -> Option<Vector3<f64>> {
+        let w = barycentric(mesh, t, p);
+        let tri = mesh.triangles[t];
+        let v: Vector3<f64> = (0..3)
+            .map(|k| self.vertex_velocity[tri[k] as usize] * w[k])
+            .sum();
+        let n = mesh.panels[t].normal.into_inner();
+        (v - n * v.dot(&n)).try_normalize(1e-300)
+    }
+
+    /// Speed at a point of panel `t`, interpolated linearly from the vertex
+    /// speeds (barycentric weights).
+    pub fn speed_at(&self, mesh: &PanelMesh, t: usize, p: &Point3<f64>) -> f64 {
+        let w = barycentric(mesh, t, p);
+        let tri = mesh.triangles[t];
+        (0..3)
+            .map(|k| w[k] * self.vertex_speed[tri[k] as usize])
+            .sum::<f64>()
+            .max(0.0)
+    }
+}
+
+/// Barycentric weights of `p` (projected on the plane) in panel `t`,
+/// clamped to the triangle.
+pub fn barycentric(mesh: &PanelMesh, t: usize, p: &Point3<f64>) -> [f64; 3] {
+    let panel = &mesh.panels[t];
+    let [a, b, c] = panel.vertices;
+    let n = panel.normal.into_inner();
+    let twice = 2.0 * panel.area;
+    let wa = ((c - b).cross(&(p - b))).dot(&n) / twice;
+    let wb = ((a - c).cross(&(p - c))).dot(&n) / twice;
+    let w = [wa.max(0.0), wb.max(0.0), (1.0 - wa - wb).max(0.0)];
+    let sum = w[0] + w[1] + w[2];
+    if sum > 0.0 {
+        [w[0] / sum, w[1] / sum, w[2] / sum]
+    } else {
+        [1.0 / 3.0; 3]
+    }
+}
+
+/// In-plane inward unit normals of the three edges: `n x (v[k+1] - v[k])`
+/// for counter-clockwise corners.
+fn inward_normals(panel: &tuft_mesh::Panel) -> [Vector3<f64>; 3] {
+    std::array::from_fn(|k| {
+        let e = panel.vertices[(k + 1) % 3] - panel.vertices[k];
+        panel.normal.cross(&e).normalize()
+    })
+}
+
+/// Area-weighted mean speed of the panels round each vertex.
+fn vertex_speeds(mesh: &PanelMesh, speed: &[f64]) -> Vec<f64> {
+    mesh.vertex_panels
+        .iter()
+        .map(|ps| {
+            let (sum, area) = ps.iter().fold((0.0, 0.0), |(s, a), &t| {
+                let ar = mesh.panels[t as usize].area;
+                (s + speed[t as usize] * ar, a + ar)
+            });
+            if area > 0.0 { sum / area } else { 0.0 }
+        })
+        .collect()
+}
+
+/// Area-weighted mean tangential velocity of the panels round each vertex.
+fn vertex_velocities(mesh: &PanelMesh, tangential: &[Vector3<f64>]) -> Vec<Vector3<f64>> {
+    mesh.vertex_panels
+        .iter()
+        .map(|ps| {
+            let (sum, area) = ps.iter().fold((Vector3::zeros(), 0.0), |(s, a), &t| {
+                let ar = mesh.panels[t as usize].area;
+                (s + tangential[t as usize] * ar, a + ar)
+            });
+            if area > 0.0 {
+                sum / area
+            } else {
+                Vector3::zeros()
+            }
+        })
+        .collect()
+}
+
+/// Surface divergence of the unit flow direction `t` per panel, the
+/// streamline spreading `(1/h) dh/ds` (Rott & Crabtree 1952: `h` the
+/// distance between neighbouring streamlines; on a body of revolution
+/// `h = r`). Green-Gauss over the panel's three edges (e.g. Blazek,
+/// *Computational Fluid Dynamics*, 2001, sec. 5.3): `div t = (1/A) sum_k
+/// L_k (t_k . o_k)`, with `o_k` the outward in-plane edge normal and `t_k`
+/// the mean of the panel's and the neighbour's directions, the neighbour's
+/// projected onto the panel's plane. An open edge uses the panel's own
+/// direction; a panel without direction gets zero.
+pub fn spreading(mesh: &PanelMesh, direction: &[Vector3<f64>]) -> Vec<f64> {
+    (0..mesh.len())
+        .map(|t| {
+            let panel = &mesh.panels[t];
+            let own = direction[t];
+            if own == Vector3::zeros() {
+                return 0.0;
+            }
+            let n = panel.normal.into_inner();
+            let flux: f64 = (0..3)
+                .map(|k| {
+                    let e = panel.vertices[(k + 1) % 3] - panel.vertices[k];
+                    let outward_scaled = e.cross(&n); // |e| times the outward normal
+                    let other = mesh.edge_neighbours[t][k]
+                        .map(|j| direction[j as usize])
+                        .filter(|d| *d != Vector3::zeros())
+                        .map_or(own, |d| d - n * d.dot(&n));
+                    0.5 * (own + other).dot(&outward_scaled)
+                })
+                .sum();
+            flux / panel.area
+        })
+        .collect()
+}
+
+/// Panels touching a sharp convex edge: an edge whose dihedral angle (between
+/// the two normals) exceeds `sharp_edge_deg` and where the surface turns away
+/// (the neighbour's centroid lies below the panel's plane).
+pub fn sharp_panels(mesh: &PanelMesh, sharp_edge_deg: f64) -> Vec<bool> {
+    let cos_limit = sharp_edge_deg.to_radians().cos();
+    (0..mesh.len())
+        .map(|t| {
+            let a = &mesh.panels[t];
+            mesh.edge_neighbours[t].iter().flatten().any(|&j| {
+                let b = &mesh.panels[j as usize];
+                let convex = a.normal.dot(&(b.centroid - a.centroid)) < 0.0;
+                convex && a.normal.dot(&b.normal) < cos_limit
+            })
+        })
+        .collect()
+}

@@ -1,0 +1,367 @@
+//! The 1D march of the integral boundary layer along one line of edge
+//! velocities, with the streamline spreading term: Thwaites (laminar),
+//! Michel or a forced trip (transition), Head with Ludwieg-Tillmann
+//! (turbulent).
+//!
+//! The same routine serves a 2D section (spreading zero), a body of
+//! revolution (spreading `r'/r`, Mangler) and a 3D surface streamline
+//! (spreading = surface divergence of the unit flow direction).
+
+use super::{BoundaryLayerParams, FlowState, Transition, head, michel, thwaites};
+
+/// The edge flow at one station of the line.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LineSample {
+    /// Arc length along the line, m (increasing).
+    pub s: f64,
+    /// Edge speed `U`, m/s (non-negative).
+    pub speed: f64,
+    /// Spreading `(1/h) dh/ds`, 1/m: zero in 2D, `r'/r` on a body of
+    /// revolution.
+    pub spreading: f64,
+    /// Position along the body as a fraction of its length (for
+    /// [`Transition::Forced`]).
+    pub body_fraction: f64,
+    /// True when the flow leaves the surface at this station regardless of
+    /// the boundary layer (a bluff base edge).
+    pub forced_separation: bool,
+}
+
+/// How the line starts.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct LineStart {
+    /// Momentum thickness at the first station, m; `None` derives it from a
+    /// stagnation start (`lambda` by [`thwaites::stagnation_lambda`] with
+    /// `spreading_exponent`) when the speed rises from the first station, or
+    /// zero (a sharp leading edge) otherwise.
+    pub theta: Option<f64>,
+    /// Distance from the attachment point to the first station, m (enters
+    /// `Re_x` of Michel's criterion).
+    pub x0: f64,
+    /// Exponent `m` of the spreading metric near the start, `h ~ s^m`:
+    /// 0 for a 2D stagnation line, 1 for a point (nose) attachment.
+    pub spreading_exponent: f64,
+}
+
+/// The boundary layer at one station.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LineState {
+    /// Momentum thickness, m.
+    pub theta: f64,
+    /// Displacement thickness `H theta`, m.
+    pub delta_star: f64,
+    /// Shape factor.
+    pub h: f64,
+    /// Skin-friction coefficient based on the local edge speed.
+    pub cf: f64,
+    /// `U theta / nu`.
+    pub re_theta: f64,
+    /// Thwaites' parameter (laminar stations; 0 elsewhere).
+    pub lambda: f64,
+    /// Laminar, turbulent or separated.
+    pub state: FlowState,
+    /// How close the layer is to its separation criterion, 0..1.
+    pub risk: f64,
+}
+
+/// Result of a march.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LineMarch {
+    /// One state per station.
+    pub states: Vec<LineState>,
+    /// First turbulent station, if any.
+    pub transition: Option<usize>,
+    /// First separated station, if any.
+    pub separation: Option<usize>,
+}
+
+/// The march as it goes.
+enum Phase {
+    Laminar { accumulated: f64 },
+    Turbulent(head::HeadState),
+    Separated(LineState),
+}
+
+/// March the boundary layer along `samples` (Thwaites 1949, Michel 1951,
+/// Head 1958, Ludwieg & Tillmann 1949; spreading by Rott & Crabtree 1952).
+///
+/// Rules: in every transition mode except [`Transition::Laminar`], a laminar
+/// separation ahead of transition is taken as transition through a short
+/// bubble (common practice); at transition `theta` is continuous and `H`
+/// restarts at `params.turbulent_start_h` (common practice). Turbulent
+/// separation when `H >= params.separation_h`. Once separated, every later
+/// station is separated and holds the thicknesses of the separation point.
+pub fn march_line(
+    samples: &[LineSample],
+    start: &LineStart,
+    params: &BoundaryLayerParams,
+) -> LineMarch {
+    let dspeed = speed_derivative(samples);
+    let log_h = log_metric(samples);
+    let mut out = LineMarch {
+        states: Vec::with_capacity(samples.len()),
+        transition: None,
+        separation: None,
+    };
+    let Some(first) = samples.first() else {
+        return out;
+    };
+    let theta0 = start_theta(dspeed[0], start, params.nu);
+    // In the all-turbulent mode the first station with a positive speed
+    // turns turbulent (Head's equations are singular where U = 0).
+    let mut phase = Phase::Laminar {
+        accumulated: theta0 * theta0 * first.speed.powi(6),
+    };
+    for i in 0..samples.len() {
+        let ctx = Station {
+            i,
+            samples,
+            dspeed: &dspeed,
+            log_h: &log_h,
+            start,
+            params,
+        };
+        let state = advance(&mut phase, &ctx, &mut out, theta0);
+        out.states.push(state);
+    }
+    out
+}
+
+/// Everything one station needs.
+struct Station<'a> {
+    i: usize,
+    samples: &'a [LineSample],
+    dspeed: &'a [f64],
+    log_h: &'a [f64],
+    start: &'a LineStart,
+    params: &'a BoundaryLayerParams,
+}
+
+/// Advance the phase to station `ctx.i` and return its state.
+fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -> LineState {
+    let sample = ctx.samples[ctx.i];
+    if let Phase::Separated(held) = phase {
+        return *held;
+    }
+    if sample.forced_separation {
+        let prev = out.states.last().copied();
+        return separate(phase, out, ctx.i, prev, theta0, ctx.params);
+    }
+    let state = match phase {
+        Phase::Laminar { accumulated } => {
+            let lam = laminar_station(accumulated, ctx, theta0);
+            match laminar_decision(&lam, ctx) {
+                Decision::Stay => lam,
+                Decision::Separate => {
+                    return separate(phase, out, ctx.i, Some(lam), theta0, ctx.params);
+                }
+                Decision::Transition => {
+                    let hs = turbulent_start(lam.theta, sample.speed, ctx.params);
+                    *phase = Phase::Turbulent(hs);
+                    out.transition = Some(ctx.i);
+                    turbulent_state(&hs, sample.speed, ctx.params)
+                }
+            }
+        }
+        Phase::Turbulent(hs) => {
+            if ctx.i > 0 {
+                *hs = turbulent_interval(*hs, ctx);
+            }
+            turbulent_state(hs, sample.speed, ctx.params)
+        }
+        Phase::Separated(held) => *held,
+    };
+    if state.state == FlowState::Turbulent && state.h >= ctx.params.separation_h {
+        return separate(phase, out, ctx.i, Some(state), theta0, ctx.params);
+    }
+    state
+}
+
+/// What a laminar station leads to.
+enum Decision {
+    Stay,
+    Separate,
+    Transition,
+}
+
+/// Laminar separation (`lambda < -0.09`, Thwaites 1949) or transition (by the
+/// chosen mode; Michel's criterion for free transition).
+fn laminar_decision(lam: &LineState, ctx: &Station) -> Decision {
+    let sample = ctx.samples[ctx.i];
+    let separated = lam.lambda < thwaites::SEPARATION_LAMBDA;
+    let transition = match ctx.params.transition {
+        Transition::Laminar => false,
+        Transition::Turbulent => sample.speed > 0.0,
+        Transition::Forced { x_fraction } => sample.body_fraction >= x_fraction,
+        Transition::Free => {
+            let x = sample.s - ctx.samples[0].s + ctx.start.x0;
+            michel::has_transitioned(lam.re_theta, sample.speed * x / ctx.params.nu)
+        }
+    };
+    match (separated, transition, ctx.params.transition) {
+        (true, _, Transition::Laminar) => Decision::Separate,
+        (true, _, _) | (false, true, _) => Decision::Transition,
+        _ => Decision::Stay,
+    }
+}
+
+/// Enter the separated phase at station `i`.
+fn separate(
+    phase: &mut Phase,
+    out: &mut LineMarch,
+    i: usize,
+    last: Option<LineState>,
+    theta0: f64,
+    params: &BoundaryLayerParams,
+) -> LineState {
+    let mut held = last.unwrap_or(LineState {
+        theta: theta0,
+        delta_star: theta0 * params.separation_h,
+        h: params.separation_h,
+        cf: 0.0,
+        re_theta: 0.0,
+        lambda: 0.0,
+        state: FlowState::Separated,
+        risk: 1.0,
+    });
+    held.state = FlowState::Separated;
+    held.risk = 1.0;
+    held.cf = 0.0;
+    *phase = Phase::Separated(held);
+    out.separation = Some(i);
+    held
+}
+
+/// Thwaites' station: accumulate the integral and evaluate the closure.
+fn laminar_station(accumulated: &mut f64, ctx: &Station, theta0: f64) -> LineState {
+    let i = ctx.i;
+    let sample = ctx.samples[i];
+    let nu = ctx.params.nu;
+    let metric = ctx.log_h[i].exp();
+    if i > 0 {
+        let prev = ctx.samples[i - 1];
+        let f0 = thwaites::integrand(nu, prev.speed, ctx.log_h[i - 1].exp());
+        let f1 = thwaites::integrand(nu, sample.speed, metric);
+        *accumulated += 0.5 * (f0 + f1) * (sample.s - prev.s);
+    }
+    let theta = if i == 0 || sample.speed <= 0.0 {
+        theta0
+    } else {
+        thwaites::theta_from_integral(*accumulated, sample.speed, metric)
+    };
+    let lambda = theta * theta * ctx.dspeed[i] / nu;
+    let (h, l) = thwaites::closure(lambda);
+    let cf = if theta > 0.0 && sample.speed > 0.0 {
+        thwaites::skin_friction(nu, sample.speed, theta, l)
+    } else {
+        0.0
+    };
+    LineState {
+        theta,
+        delta_star: h * theta,
+        h,
+        cf,
+        re_theta: sample.speed * theta / nu,
+        lambda,
+        state: FlowState::Laminar,
+        risk: thwaites::risk(lambda),
+    }
+}
+
+/// First-station momentum thickness (see [`LineStart::theta`]).
+fn start_theta(dspeed: f64, start: &LineStart, nu: f64) -> f64 {
+    match start.theta {
+        Some(theta) => theta.max(0.0),
+        None if dspeed > 0.0 => {
+            (thwaites::stagnation_lambda(start.spreading_exponent) * nu / dspeed).sqrt()
+        }
+        None => 0.0,
+    }
+}
+
+/// Turbulent start: `theta` continuous (floored at `Re_theta` =
+/// [`head::MIN_RE_THETA`]), `H = turbulent_start_h` (common practice).
+fn turbulent_start(theta: f64, speed: f64, params: &BoundaryLayerParams) -> head::HeadState {
+    let floor = head::MIN_RE_THETA * params.nu / speed.max(1e-12);
+    head::HeadState::new(theta.max(floor), params.turbulent_start_h)
+}
+
+/// The station state of a turbulent layer.
+fn turbulent_state(hs: &head::HeadState, speed: f64, params: &BoundaryLayerParams) -> LineState {
+    let h = hs.h();
+    LineState {
+        theta: hs.theta,
+        delta_star: h * hs.theta,
+        h,
+        cf: hs.cf(params.nu, speed.max(1e-12)),
+        re_theta: speed * hs.theta / params.nu,
+        lambda: 0.0,
+        state: FlowState::Turbulent,
+        risk: head::risk(h, params.flat_plate_h, params.separation_h),
+    }
+}
+
+/// Integrate Head's equations from station `i - 1` to `i` by RK4 substeps of
+/// at most 20 momentum thicknesses, with the edge flow interpolated linearly.
+fn turbulent_interval(mut hs: head::HeadState, ctx: &Station) -> head::HeadState {
+    let (a, b) = (ctx.i - 1, ctx.i);
+    let (s0, s1) = (ctx.samples[a].s, ctx.samples[b].s);
+    let length = s1 - s0;
+    if length <= 0.0 {
+        return hs;
+    }
+    let flow = |t: f64| head::EdgeFlow {
+        speed: lerp(ctx.samples[a].speed, ctx.samples[b].speed, t).max(1e-9),
+        dspeed: lerp(ctx.dspeed[a], ctx.dspeed[b], t),
+        spreading: lerp(ctx.samples[a].spreading, ctx.samples[b].spreading, t),
+    };
+    let mut t = 0.0;
+    let mut steps = 0;
+    while t < 1.0 && steps < 1000 {
+        let dt = (20.0 * hs.theta / length).max(1e-3).min(1.0 - t);
+        hs = head::rk4_step(
+            hs,
+            [flow(t), flow(t + 0.5 * dt), flow(t + dt)],
+            dt * length,
+            ctx.params.nu,
+        );
+        t += dt;
+        steps += 1;
+    }
+    hs
+}
+
+fn lerp(a: f64, b: f64, t: f64) -> f64 {
+    a + (b - a) * t
+}
+
+/// `dU/ds` by central differences (one-sided at the ends).
+pub fn speed_derivative(samples: &[LineSample]) -> Vec<f64> {
+    let n = samples.len();
+    (0..n)
+        .map(|i| {
+            let (a, b) = (i.saturating_sub(1), (i + 1).min(n - 1));
+            let ds = samples[b].s - samples[a].s;
+            if ds > 0.0 {
+                (samples[b].speed - samples[a].speed) / ds
+            } else {
+                0.0
+            }
+        })
+        .collect()
+}
+
+/// `ln h` relative to the first station, by the trapezoidal rule on the
+/// spreading `(1/h) dh/ds`.
+pub fn log_metric(samples: &[LineSample]) -> Vec<f64> {
+    let mut out = Vec::with_capacity(samples.len());
+    let mut acc = 0.0;
+    for (i, s) in samples.iter().enumerate() {
+        if i > 0 {
+            let p = samples[i - 1];
+            acc += 0.5 * (p.spreading + s.spreading) * (s.s - p.s);
+        }
+        out.push(acc);
+    }
+    out
+}
