@@ -18,15 +18,15 @@
 //!
 //! Units are SI throughout (metres, m/s); angles in the captions in degrees.
 
-// pub mod canvas;
-// pub mod colorbar;
+pub mod canvas;
+pub mod colorbar;
 pub mod csv;
 // pub mod html;
 // pub mod plot;
-// pub mod render;
-// pub mod sheet;
+pub mod render;
+pub mod sheet;
 // pub mod slice;
-// pub mod text;
+pub mod text;
 pub mod vtk;
 
 #[cfg(test)]
