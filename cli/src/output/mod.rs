@@ -22,10 +22,10 @@ pub mod canvas;
 pub mod colorbar;
 pub mod csv;
 // pub mod html;
-// pub mod plot;
+pub mod plot;
 pub mod render;
 pub mod sheet;
-// pub mod slice;
+pub mod slice;
 pub mod text;
 pub mod vtk;
 
