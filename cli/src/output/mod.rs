@@ -21,7 +21,7 @@
 pub mod canvas;
 pub mod colorbar;
 pub mod csv;
-// pub mod html;
+pub mod html;
 pub mod plot;
 pub mod render;
 pub mod sheet;
