@@ -76,7 +76,12 @@ impl Default for FlowSection {
     /// 40 m/s in air at 20 degC and 101.325 kPa (rho 1.204 kg/m^3,
     /// nu 1.506e-5 m^2/s, derived from ISO 2533 relations).
     fn default() -> Self {
-        Self { speed: 40.0, yaw: 0.0, density: 1.204, viscosity: 1.506e-5 }
+        Self {
+            speed: 40.0,
+            yaw: 0.0,
+            density: 1.204,
+            viscosity: 1.506e-5,
+        }
     }
 }
 
@@ -102,7 +107,11 @@ pub struct BoundaryLayerSection {
 
 impl Default for BoundaryLayerSection {
     fn default() -> Self {
-        Self { transition: "free".into(), forced_at: None, separation_h: None }
+        Self {
+            transition: "free".into(),
+            forced_at: None,
+            separation_h: None,
+        }
     }
 }
 
@@ -188,12 +197,19 @@ impl Case {
 
     /// Check a parsed case; `path` locates relative STL paths and names the case.
     pub fn from_file(path: &Path, file: CaseFile) -> Result<Self> {
-        let name = path.file_stem().map_or("case".into(), |s| s.to_string_lossy().into_owned());
+        let name = path
+            .file_stem()
+            .map_or("case".into(), |s| s.to_string_lossy().into_owned());
         check_flow(&file)?;
         check_reference(&file.reference)?;
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
-        Ok(Self { name, file, source, transition })
+        Ok(Self {
+            name,
+            file,
+            source,
+            transition,
+        })
     }
 }
 
@@ -214,13 +230,19 @@ fn check_flow(file: &CaseFile) -> Result<()> {
     positive("flow.density", f.density)?;
     positive("flow.viscosity", f.viscosity)?;
     if !(f.yaw.is_finite() && f.yaw.abs() <= 30.0) {
-        bail!("flow.yaw must be between -30 and 30 degrees (got {})", f.yaw);
+        bail!(
+            "flow.yaw must be between -30 and 30 degrees (got {})",
+            f.yaw
+        );
     }
     if file.geometry.half_model && f.yaw != 0.0 {
         bail!("flow.yaw must be 0 with geometry.half_model = true (a half model is symmetric)");
     }
     if f.speed > 100.0 {
-        bail!("flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s)", f.speed);
+        bail!(
+            "flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s)",
+            f.speed
+        );
     }
     Ok(())
 }
@@ -258,7 +280,10 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
                 anyhow::anyhow!("geometry.units must be one of m, cm, mm, in (got \"{units}\")")
             })?;
             let base = case_path.parent().unwrap_or(Path::new("."));
-            Ok(GeometrySource::Stl { path: base.join(stl), scale })
+            Ok(GeometrySource::Stl {
+                path: base.join(stl),
+                scale,
+            })
         }
         (None, Some(name)) => {
             if !["coupe", "ahmed", "sphere"].contains(&name.as_str()) {
@@ -282,7 +307,9 @@ fn resolve_transition(b: &BoundaryLayerSection) -> Result<TransitionMode> {
                 anyhow::anyhow!("boundary_layer.forced_at is required with transition = \"forced\"")
             })?;
             if !(at > 0.0 && at < 1.0) {
-                bail!("boundary_layer.forced_at must be a fraction of the body length in (0, 1) (got {at})");
+                bail!(
+                    "boundary_layer.forced_at must be a fraction of the body length in (0, 1) (got {at})"
+                );
             }
             TransitionMode::Forced(at)
         }
@@ -342,7 +369,10 @@ mod tests {
         assert_eq!(c.transition, TransitionMode::Forced(0.05));
         assert_eq!(
             c.source,
-            GeometrySource::Stl { path: PathBuf::from("cases/body.stl"), scale: 0.001 }
+            GeometrySource::Stl {
+                path: PathBuf::from("cases/body.stl"),
+                scale: 0.001
+            }
         );
     }
 
@@ -351,10 +381,22 @@ mod tests {
         let geo = "[geometry]\nshape = \"sphere\"\n";
         assert!(err(&format!("{geo}[flow]\nspeed = -3.0\n")).contains("flow.speed"));
         assert!(err(&format!("{geo}[flow]\nspeed = 3.0\nspeedd = 2\n")).contains("speedd"));
-        assert!(err("[geometry]\nstl = \"a.stl\"\nhalf_model = true\n[flow]\nyaw = 3.0\n").contains("flow.yaw"));
-        assert!(err("[geometry]\nstl = \"a.stl\"\nunits = \"furlong\"\n").contains("geometry.units"));
-        assert!(err(&format!("{geo}[boundary_layer]\ntransition = \"forced\"\n")).contains("forced_at"));
-        assert!(err(&format!("{geo}[reference]\nfront_axle_x = 3.0\nrear_axle_x = 1.0\n")).contains("rear_axle_x"));
+        assert!(
+            err("[geometry]\nstl = \"a.stl\"\nhalf_model = true\n[flow]\nyaw = 3.0\n")
+                .contains("flow.yaw")
+        );
+        assert!(
+            err("[geometry]\nstl = \"a.stl\"\nunits = \"furlong\"\n").contains("geometry.units")
+        );
+        assert!(
+            err(&format!("{geo}[boundary_layer]\ntransition = \"forced\"\n")).contains("forced_at")
+        );
+        assert!(
+            err(&format!(
+                "{geo}[reference]\nfront_axle_x = 3.0\nrear_axle_x = 1.0\n"
+            ))
+            .contains("rear_axle_x")
+        );
         assert!(err(&format!("{geo}[flow]\nspeed = \"fast\"\n")).contains("speed"));
         assert!(err("[geometry]\n").contains("geometry"));
     }

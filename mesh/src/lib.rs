@@ -18,7 +18,8 @@
 //! let panels = PanelMesh::new(sphere, Mirrors::none()).unwrap();
 //! assert_eq!(panels.len(), 320);
 //! let area: f64 = panels.panels.iter().map(|p| p.area).sum();
-//! assert!((area - 4.0 * std::f64::consts::PI).abs() < 0.2);
+//! // An inscribed polyhedron: its area approaches 4 pi from below.
+//! assert!(area < 4.0 * std::f64::consts::PI && area > 0.97 * 4.0 * std::f64::consts::PI);
 //! ```
 #![deny(missing_docs)]
 

@@ -269,16 +269,33 @@ fn check_inputs(
 }
 
 /// Sum of the panel forces `f(j, panel)` and of their moments about `m`.
+///
+/// A half model (symmetry plane `y = 0`) stands for the whole body, so the
+/// mirror half's forces are added: each panel force reflected in `y = 0`,
+/// acting at the reflected centroid. The ground image is not part of the
+/// body and adds nothing.
 fn sum_forces(
     mesh: &PanelMesh,
     m: Point,
     f: impl Fn(usize, &tuft_mesh::Panel) -> Vector,
 ) -> (Vector, Vector) {
+    let mirror = Vector::new(1.0, -1.0, 1.0);
+    let symmetric = mesh.mirrors.symmetry;
     mesh.panels.iter().enumerate().fold(
         (Vector::zeros(), Vector::zeros()),
-        |(force, moment), (j, p)| {
+        |(mut force, mut moment), (j, p)| {
             let df = f(j, p);
-            (force + df, moment + (p.centroid - m).cross(&df))
+            force += df;
+            moment += (p.centroid - m).cross(&df);
+            if symmetric {
+                let (c, dfi) = (
+                    Point::from(p.centroid.coords.component_mul(&mirror)),
+                    df.component_mul(&mirror),
+                );
+                force += dfi;
+                moment += (c - m).cross(&dfi);
+            }
+            (force, moment)
         },
     )
 }

@@ -16,13 +16,31 @@ struct Lift {
     edges: usize,
 }
 
-fn wing_lift(alpha_deg: f64, ground: Option<f64>, wake_length: f64, panels: (usize, usize)) -> Lift {
+fn wing_lift(
+    alpha_deg: f64,
+    ground: Option<f64>,
+    wake_length: f64,
+    panels: (usize, usize),
+) -> Lift {
     wing_lift_t(alpha_deg, ground, wake_length, panels, 0.12)
 }
-fn wing_lift_t(alpha_deg: f64, ground: Option<f64>, wake_length: f64, panels: (usize, usize), t: f64) -> Lift {
+fn wing_lift_t(
+    alpha_deg: f64,
+    ground: Option<f64>,
+    wake_length: f64,
+    panels: (usize, usize),
+    t: f64,
+) -> Lift {
     wing_lift_ar(alpha_deg, ground, wake_length, panels, t, 6.0)
 }
-fn wing_lift_ar(alpha_deg: f64, ground: Option<f64>, wake_length: f64, panels: (usize, usize), t: f64, ar: f64) -> Lift {
+fn wing_lift_ar(
+    alpha_deg: f64,
+    ground: Option<f64>,
+    wake_length: f64,
+    panels: (usize, usize),
+    t: f64,
+    ar: f64,
+) -> Lift {
     let w = WingParams {
         span: ar,
         chord: 1.0,
@@ -74,7 +92,15 @@ fn explore() {
         let l6 = wing_lift(6.0, None, 50.0, n);
         let a = (l6.pressure - l2.pressure) / 4f64.to_radians();
         let akj = (l6.kutta_joukowski - l2.kutta_joukowski) / 4f64.to_radians();
-        println!("{n:?} edges {} CL2 {:.4} CL6 {:.4} a {a:.4} kj {:.4} {:.4} a_kj {akj:.4} t {:?}", l2.edges, l2.pressure, l6.pressure, l2.kutta_joukowski, l6.kutta_joukowski, t.elapsed());
+        println!(
+            "{n:?} edges {} CL2 {:.4} CL6 {:.4} a {a:.4} kj {:.4} {:.4} a_kj {akj:.4} t {:?}",
+            l2.edges,
+            l2.pressure,
+            l6.pressure,
+            l2.kutta_joukowski,
+            l6.kutta_joukowski,
+            t.elapsed()
+        );
     }
     let h = 2.0 * PI * 6.0 / (2.0 + (40f64).sqrt());
     println!("helmbold {h}");
@@ -82,14 +108,36 @@ fn explore() {
 
 #[test]
 fn explore_cp() {
-    let w = WingParams { span: 6.0, chord: 1.0, alpha_deg: 4.0, chord_panels: 16, span_panels: 16, ..WingParams::default() };
+    let w = WingParams {
+        span: 6.0,
+        chord: 1.0,
+        alpha_deg: 4.0,
+        chord_panels: 16,
+        span_panels: 16,
+        ..WingParams::default()
+    };
     let mesh = wing_with_params(&w).unwrap();
     let pm = PanelMesh::new(mesh.mesh, Mirrors::none()).unwrap();
-    let sol = solve_potential_with_wake_params(&pm, &Freestream::new(1.0, 0.0), &WakeParams::default()).unwrap();
-    let plain = tuft_solver::potential::post_process(&pm, sol.solution.mu.clone(), &Freestream::new(1.0, 0.0), sol.solution.stats);
+    let sol =
+        solve_potential_with_wake_params(&pm, &Freestream::new(1.0, 0.0), &WakeParams::default())
+            .unwrap();
+    let plain = tuft_solver::potential::post_process(
+        &pm,
+        sol.solution.mu.clone(),
+        &Freestream::new(1.0, 0.0),
+        sol.solution.stats,
+    );
     for (j, p) in pm.panels.iter().enumerate() {
         if sol.solution.cp[j].abs() > 1.5 {
-            println!("x {:.3} z {:.3} nz {:.2} mu {:.4} cp {:.3} cp_plain {:.3}", p.centroid.x, p.centroid.z, p.normal.z, sol.solution.mu[j], sol.solution.cp[j], plain.cp[j]);
+            println!(
+                "x {:.3} z {:.3} nz {:.2} mu {:.4} cp {:.3} cp_plain {:.3}",
+                p.centroid.x,
+                p.centroid.z,
+                p.normal.z,
+                sol.solution.mu[j],
+                sol.solution.cp[j],
+                plain.cp[j]
+            );
         }
     }
     println!("{:?}", sol.wake.strength);

@@ -64,10 +64,7 @@ pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]>
 /// Only those of [`PanelMesh::new`], which cannot occur for panels that
 /// already formed a [`PanelMesh`].
 pub fn split_edges(mesh: &PanelMesh, edges: &[[u32; 2]]) -> Result<PanelMesh, MeshError> {
-    let cut: HashSet<(u32, u32)> = edges
-        .iter()
-        .flat_map(|&[a, b]| [(a, b), (b, a)])
-        .collect();
+    let cut: HashSet<(u32, u32)> = edges.iter().flat_map(|&[a, b]| [(a, b), (b, a)]).collect();
     let corners = mesh.triangles.len() * 3;
     let mut groups = UnionFind::new(corners);
     for (t, tri) in mesh.triangles.iter().enumerate() {
@@ -88,15 +85,18 @@ pub fn split_edges(mesh: &PanelMesh, edges: &[[u32; 2]]) -> Result<PanelMesh, Me
         }
     }
     let (vertices, triangles) = relabel(mesh, &mut groups);
-    PanelMesh::new(TriMesh { vertices, triangles }, mesh.mirrors)
+    PanelMesh::new(
+        TriMesh {
+            vertices,
+            triangles,
+        },
+        mesh.mirrors,
+    )
 }
 
 /// One vertex per group of corners; the first group of each vertex keeps
 /// the original index, later groups are appended.
-fn relabel(
-    mesh: &PanelMesh,
-    groups: &mut UnionFind,
-) -> (Vec<tuft_mesh::Point>, Vec<[u32; 3]>) {
+fn relabel(mesh: &PanelMesh, groups: &mut UnionFind) -> (Vec<tuft_mesh::Point>, Vec<[u32; 3]>) {
     let mut vertices = mesh.vertices.clone();
     let mut owner_of_root: Vec<Option<u32>> = vec![None; mesh.triangles.len() * 3];
     let mut first_root: Vec<Option<usize>> = vec![None; mesh.vertices.len()];
