@@ -115,7 +115,11 @@ pub fn write_all(
     output::write_file(&out.file("streamlines.vtp"), |w| {
         vtk::write_streamlines(w, &streamlines)
     })?;
+    progress.end(phase, "");
+    let phase = progress.begin("flow slices", "computing flow slices off the body");
     let slices = flow_slices(mesh, c)?;
+    progress.end(phase, "");
+    let phase = progress.begin("pictures", "drawing pictures and the report");
     for s in &slices {
         output::write_file(&out.file(&format!("slice-{}.vti", s.name)), |w| {
             vtk::write_slice(w, s)
@@ -190,6 +194,7 @@ fn pictures(
 pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
     let p = &c.potential;
     let field = FlowField::new(mesh, &p.sigma, &p.mu, p.freestream.velocity(), None)?;
+    let u2 = p.freestream.velocity().norm_squared();
     let (lo, hi) = mesh.bounds();
     let (len, height) = (hi.x - lo.x, hi.z - lo.z);
     let half_width = hi.y.max(-lo.y);
@@ -202,6 +207,7 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
     let z1 = hi.z + 0.8 * height;
     let centre = grid(
         &field,
+        u2,
         "centre-plane",
         Point3::new(x0, 0.0, z0),
         Vector3::z(),
@@ -211,6 +217,7 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
     let y0 = -2.0 * half_width;
     let horizontal = grid(
         &field,
+        u2,
         "horizontal-plane",
         Point3::new(x0, y0, zm),
         Vector3::y(),
@@ -221,6 +228,7 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
 
 fn grid(
     field: &FlowField,
+    field_speed2: f64,
     name: &str,
     origin: Point3<f64>,
     up: Vector3<f64>,
@@ -239,7 +247,11 @@ fn grid(
         })
         .collect();
     let velocity = field.velocities(&points);
-    let cp = field.pressure_coefficients(&points);
+    let u2 = field_speed2;
+    let cp = velocity
+        .iter()
+        .map(|v| v.map(|v| 1.0 - v.norm_squared() / u2))
+        .collect();
     Slice {
         name: name.into(),
         origin,
