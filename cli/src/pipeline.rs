@@ -19,8 +19,6 @@ pub struct Computed {
     pub potential: PotentialSolution,
     /// Boundary layer with the case's settings.
     pub layer: BoundaryLayer,
-    /// Cp with separated panels held at their separation value.
-    pub cp_plateau: Vec<f64>,
     /// Loads of the attached potential flow (pressure only).
     pub attached: Loads,
     /// Loads with the plateau model and skin friction: the drag estimate.
@@ -200,7 +198,6 @@ pub fn compute(mesh: &PanelMesh, case: &Case, progress: &mut Progress) -> Result
     Ok(Computed {
         potential,
         layer,
-        cp_plateau,
         attached,
         estimate,
         drag_band,

@@ -74,13 +74,6 @@ impl Progress {
         self.timings.push((phase.name, secs));
     }
 
-    /// Print a one-off message (unless quiet).
-    pub fn say(&self, msg: &str) {
-        if !self.quiet {
-            eprintln!("{}: {msg}", self.prefix);
-        }
-    }
-
     /// Seconds per phase, in order.
     pub fn timings(&self) -> &[(String, f64)] {
         &self.timings

@@ -42,10 +42,11 @@ pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]>
     let mut out = Vec::new();
     for (t, tri) in mesh.triangles.iter().enumerate() {
         for k in 0..3 {
-            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize) {
-                if o > t && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos {
-                    out.push([tri[k], tri[(k + 1) % 3]]);
-                }
+            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize)
+                && o > t
+                && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos
+            {
+                out.push([tri[k], tri[(k + 1) % 3]]);
             }
         }
     }
