@@ -11,6 +11,7 @@ use tuft_solver::loads::{self, Loads, Reference};
 use tuft_solver::{Freestream, PotentialSolution, solve_potential};
 
 use crate::case::{Case, TransitionMode};
+use crate::estimate;
 use crate::progress::Progress;
 
 /// Everything computed for one case.
@@ -113,8 +114,25 @@ pub fn friction_vectors(
 }
 
 /// Run the physics of a case on a prepared mesh.
-pub fn compute(mesh: &PanelMesh, case: &Case, progress: &mut Progress) -> Result<Computed> {
+pub fn compute(
+    mesh: &PanelMesh,
+    case: &Case,
+    memory_limit: Option<f64>,
+    progress: &mut Progress,
+) -> Result<Computed> {
     let flow = &case.file.flow;
+    estimate::check_fits(
+        mesh.len(),
+        mesh.mirrors.symmetry,
+        estimate::available_memory(memory_limit),
+    )?;
+    let guess = estimate::estimate(mesh, rayon::current_num_threads());
+    progress.note(&format!(
+        "{} panels: expect about {:.0} s for the solve and {:.2} GB of memory",
+        mesh.len(),
+        guess.seconds.max(1.0),
+        guess.memory_bytes / 1e9
+    ));
     let fs = Freestream::new(flow.speed, flow.yaw);
     let phase = progress.begin(
         "potential flow",

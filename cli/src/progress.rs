@@ -74,6 +74,13 @@ impl Progress {
         self.timings.push((phase.name, secs));
     }
 
+    /// Print a one-off note (unless quiet).
+    pub fn note(&self, msg: &str) {
+        if !self.quiet {
+            eprintln!("{}: {msg}", self.prefix);
+        }
+    }
+
     /// Seconds per phase, in order.
     pub fn timings(&self) -> &[(String, f64)] {
         &self.timings
