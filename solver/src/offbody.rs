@@ -116,7 +116,7 @@ impl FlowField {
         params: OffBodyParams,
     ) -> Result<Self, OffBodyError> {
         check_lengths(mesh, sigma, mu, wake)?;
-        if !(params.far_field_ratio > 0.0) {
+        if params.far_field_ratio.is_nan() || params.far_field_ratio <= 0.0 {
             return Err(OffBodyError::BadFarFieldRatio(params.far_field_ratio));
         }
         let reflections = mesh.mirrors.images();

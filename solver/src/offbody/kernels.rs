@@ -139,7 +139,10 @@ mod tests {
             for k in 0..3 {
                 let mut dp = Vector::zeros();
                 dp[k] = h;
-                let (a, b) = (triangle::exact(&(p + dp), &t), triangle::exact(&(p - dp), &t));
+                let (a, b) = (
+                    triangle::exact(&(p + dp), &t),
+                    triangle::exact(&(p - dp), &t),
+                );
                 gs[k] = (a.source - b.source) / (2.0 * h) / (4.0 * PI);
                 gd[k] = -(a.doublet - b.doublet) / (2.0 * h) / (4.0 * PI);
             }

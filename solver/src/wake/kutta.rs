@@ -13,11 +13,11 @@
 use nalgebra::Vector3;
 use tuft_mesh::{Panel, PanelMesh, Point, Reflection, Vector};
 
+use super::WakeError;
 use super::detect::{
     DetectParams, TrailingEdge, find_trailing_edges_with_params, trailing_edges_from_list,
 };
 use super::split::{sharp_edges, split_edges};
-use super::WakeError;
 use crate::assemble::{InfluenceSystem, assemble, doublet_column};
 use crate::potential::{
     Freestream, PotentialParams, PotentialSolution, post_process, solve_system,

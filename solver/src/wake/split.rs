@@ -42,10 +42,11 @@ pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]>
     let mut out = Vec::new();
     for (t, tri) in mesh.triangles.iter().enumerate() {
         for k in 0..3 {
-            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize) {
-                if o > t && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos {
-                    out.push([tri[k], tri[(k + 1) % 3]]);
-                }
+            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize)
+                && o > t
+                && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos
+            {
+                out.push([tri[k], tri[(k + 1) % 3]]);
             }
         }
     }
@@ -64,10 +65,7 @@ pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]>
 /// Only those of [`PanelMesh::new`], which cannot occur for panels that
 /// already formed a [`PanelMesh`].
 pub fn split_edges(mesh: &PanelMesh, edges: &[[u32; 2]]) -> Result<PanelMesh, MeshError> {
-    let cut: HashSet<(u32, u32)> = edges
-        .iter()
-        .flat_map(|&[a, b]| [(a, b), (b, a)])
-        .collect();
+    let cut: HashSet<(u32, u32)> = edges.iter().flat_map(|&[a, b]| [(a, b), (b, a)]).collect();
     let corners = mesh.triangles.len() * 3;
     let mut groups = UnionFind::new(corners);
     for (t, tri) in mesh.triangles.iter().enumerate() {
@@ -88,15 +86,18 @@ pub fn split_edges(mesh: &PanelMesh, edges: &[[u32; 2]]) -> Result<PanelMesh, Me
         }
     }
     let (vertices, triangles) = relabel(mesh, &mut groups);
-    PanelMesh::new(TriMesh { vertices, triangles }, mesh.mirrors)
+    PanelMesh::new(
+        TriMesh {
+            vertices,
+            triangles,
+        },
+        mesh.mirrors,
+    )
 }
 
 /// One vertex per group of corners; the first group of each vertex keeps
 /// the original index, later groups are appended.
-fn relabel(
-    mesh: &PanelMesh,
-    groups: &mut UnionFind,
-) -> (Vec<tuft_mesh::Point>, Vec<[u32; 3]>) {
+fn relabel(mesh: &PanelMesh, groups: &mut UnionFind) -> (Vec<tuft_mesh::Point>, Vec<[u32; 3]>) {
     let mut vertices = mesh.vertices.clone();
     let mut owner_of_root: Vec<Option<u32>> = vec![None; mesh.triangles.len() * 3];
     let mut first_root: Vec<Option<usize>> = vec![None; mesh.vertices.len()];
