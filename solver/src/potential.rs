@@ -24,7 +24,7 @@ use tuft_mesh::{Mirrors, PanelMesh};
 
 use crate::SolverError;
 use crate::assemble::{InfluenceSystem, assemble};
-use crate::gradient::surface_gradient;
+use crate::gradient::{surface_gradient, surface_normals};
 use crate::linear::{DenseLu, gmres};
 
 /// Uniform free stream `speed * (cos yaw, sin yaw, 0)`, parallel to the
@@ -279,19 +279,19 @@ fn solve_krylov(
 /// Surface velocity at each panel centroid from the doublet strengths:
 /// `V = V_inf - (V_inf . n) n - grad_t mu` (Katz & Plotkin 2001, eq.
 /// 12.33, with their sign convention for `mu` = inside minus outside).
+/// `n` is the smooth surface normal of
+/// [`crate::gradient::surface_normals`] (the panel normal across creases),
+/// so the velocity is tangent to the underlying smooth surface.
 ///
 /// # Panics
 /// If `mu` is not one value per panel.
 #[track_caller]
 pub fn surface_velocity(mesh: &PanelMesh, mu: &[f64], v_inf: &Vector3<f64>) -> Vec<Vector3<f64>> {
     let grad = surface_gradient(mesh, mu);
-    mesh.panels
-        .iter()
+    surface_normals(mesh)
+        .into_iter()
         .zip(grad)
-        .map(|(p, g)| {
-            let n = p.normal.into_inner();
-            v_inf - n * n.dot(v_inf) - g
-        })
+        .map(|(n, g)| v_inf - n * n.dot(v_inf) - g)
         .collect()
 }
 

@@ -33,8 +33,12 @@ fn cp_errors(mesh: TriMesh) -> (f64, f64, f64, usize) {
 #[test]
 fn sphere_quick() {
     for m in [
+        generate::icosphere(1.0, 2),
         generate::icosphere(1.0, 3),
+        generate::icosphere(1.0, 4),
+        generate::latlong_sphere(1.0, 12, 14),
         generate::latlong_sphere(1.0, 24, 28),
+        generate::latlong_sphere(1.0, 48, 54),
     ] {
         let (rms, max, h, n) = cp_errors(m);
         println!("n {n} h {h:.4} rms {rms:.2e} max {max:.2e}");
