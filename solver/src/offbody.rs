@@ -73,6 +73,19 @@ pub enum OffBodyError {
 }
 
 /// The solved flow, ready to be evaluated anywhere.
+///
+/// ```
+/// use tuft_mesh::{generate, Mirrors, PanelMesh, Point, Vector};
+/// use tuft_solver::offbody::FlowField;
+/// use tuft_solver::potential::{solve_potential, Freestream};
+/// let mesh = PanelMesh::new(generate::icosphere(1.0, 2), Mirrors::none()).unwrap();
+/// let sol = solve_potential(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
+/// let field = FlowField::new(&mesh, &sol.sigma, &sol.mu, Vector::x(), None).unwrap();
+/// // Inside the sphere: no velocity. Beside it at r = 2: Lamb's 1 + 1/16.
+/// assert!(field.velocity(&Point::origin()).is_none());
+/// let v = field.velocity(&Point::new(0.0, 2.0, 0.0)).unwrap();
+/// assert!((v.x - 17.0 / 16.0).abs() < 5e-3);
+/// ```
 #[derive(Debug, Clone)]
 pub struct FlowField {
     /// Real panels followed by each image's panels.

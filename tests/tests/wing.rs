@@ -125,14 +125,17 @@ fn lift_slope_of_an_aspect_ratio_6_wing_matches_helmbold() {
     // (1 % allowed).
     assert!((l6.pressure / l2.pressure - 3.0).abs() < 0.03);
     // Helmbold with the thickness-corrected section slope: 4.80 per rad.
-    // This mesh gives 5.6 % below it, and the finest meshes tried
-    // (64 x 16, 64 x 24 panels) 4.9 % below; the thin-section value 4.53
-    // is matched to 1 %. 7 % is allowed so that the check bites on any
-    // real regression (a wrong wake sign or strength changes the slope by
-    // tens of percent) while leaving the method's own bias visible.
+    // This mesh gives 4.59 (pressure, 4.5 % below) and 4.53 (Kutta-
+    // Joukowski, 5.7 % below); finer meshes tried (up to 64 x 24 panels a
+    // surface) stay 4 to 6 % below, so the method sits close to the
+    // thin-section value 4.53 (within 1.5 %) rather than the thick one.
+    // 7 % is allowed: the check still bites on any real regression (a
+    // wrong wake sign or strength changes the slope by tens of percent)
+    // and the bias is stated, not hidden.
     assert!((slope / thick - 1.0).abs() < 0.07, "{slope} vs {thick}");
     // Pressure integration and the Kutta-Joukowski lift of the same
-    // solution agree (they are independent post-processings): 3 %.
+    // solution agree (they are independent post-processings): 1.3 % seen,
+    // 3 % allowed.
     assert!(
         (slope_kj / slope - 1.0).abs() < 0.03,
         "{slope_kj} vs {slope}"
@@ -191,7 +194,7 @@ fn lift_rises_as_the_wing_nears_the_ground() {
     // the height falls (Wieselsberger 1922; Katz & Plotkin 2001, sec. 12.x
     // (from memory)). Heights of the quarter-chord line: free air, 2 and
     // 1 chord. Closer than about one chord this thick wing's lift falls
-    // again in the method (0.3502 at h/c 1, 0.3475 at 0.5, 0.3216 at 0.25
+    // again in the method (0.350 at h/c 1, 0.348 at 0.5, 0.322 at 0.25
     // seen at 4 degrees), where the image of the bound vortex slows the
     // flow past the wing and the gap under it acts as a venturi; that
     // range is not asserted.
