@@ -77,9 +77,11 @@ pub fn ahmed(slant_deg: f64, panels: usize) -> Result<TriMesh, MeshError> {
 /// # Errors
 /// [`MeshError::InvalidParameter`] for a slant outside [0, 40] degrees, a
 /// negative clearance, non-positive dimensions, a nose radius of half the
-/// width or height or more, or a slant module that reaches the nose.
+/// width or height or more, a slant module that reaches the nose, or a
+/// panel count outside [1, [`MAX_PANELS`](super::MAX_PANELS)].
 pub fn ahmed_with_params(p: &AhmedParams) -> Result<TriMesh, MeshError> {
     validate(p)?;
+    super::panel_count("panels", p.panels)?;
     let shape = Shape::new(p);
     let area = 2.0 * (p.length * (p.width + p.height) + p.width * p.height);
     let mut size = (2.0 * area / p.panels.max(8) as f64).sqrt();
@@ -446,5 +448,7 @@ mod tests {
         assert!(ahmed(-1.0, 1000).is_err());
         assert!(ahmed(41.0, 1000).is_err());
         assert!(ahmed(f64::NAN, 1000).is_err());
+        assert!(ahmed(25.0, 0).is_err());
+        assert!(ahmed(25.0, super::super::MAX_PANELS + 1).is_err());
     }
 }

@@ -109,9 +109,11 @@ pub fn coupe(rear_window_deg: f64, panels: usize) -> Result<TriMesh, MeshError> 
 /// # Errors
 /// [`MeshError::InvalidParameter`] for non-positive sizes, angles outside
 /// (5, 85) degrees, or lengths that leave no room for the blends, the rear
-/// window or a boot deck above the shoulder line.
+/// window or a boot deck above the shoulder line, or a panel count outside
+/// [1, [`MAX_PANELS`](super::MAX_PANELS)].
 pub fn coupe_with_params(p: &CoupeParams) -> Result<TriMesh, MeshError> {
     let body = Body::new(p)?;
+    super::panel_count("panels", p.panels)?;
     let spec = LoftSpec {
         panels: p.panels,
         clustering: 0.4,
