@@ -99,6 +99,11 @@ fn diagnostics() {
             report(&format!("ahmed {s} {n}"), &ahmed(s, n).unwrap());
         }
     }
+    for rw in [15.0, 25.0, 45.0] {
+        for n in [2000, 8000] {
+            report(&format!("coupe {rw} {n}"), &coupe(rw, n).unwrap());
+        }
+    }
     for (a, b, c) in [(1.0, 1.0, 1.0), (0.5, 0.125, 0.125), (1.0, 0.5, 0.25)] {
         for n in [800, 3200] {
             report(

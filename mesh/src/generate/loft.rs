@@ -1,7 +1,8 @@
 //! A closed body lofted through cross-sections along x, with a pole at each
 //! end and as many points on each section as its perimeter needs, so the
 //! panels stay near-square from the nose to the middle (no pole fans of
-//! slivers: the ring next to a pole has eight points).
+//! slivers: the ring next to a pole has eight points). Sections should
+//! stay within a few to one in width to height near the poles.
 //!
 //! The sections are half sections on y >= 0, from the bottom centre line
 //! (y = 0) round the widest side point to the top centre line (y = 0); the
@@ -54,12 +55,14 @@ pub(crate) fn loft(body: &impl Sections, spec: LoftSpec) -> TriMesh {
     }
     let plan = plan_stations(&table, size, spec.clustering);
     let mut builder = Builder::default();
-    let rows: Vec<Vec<u32>> = plan
+    let rows: Vec<[Vec<u32>; 2]> = plan
         .iter()
-        .map(|st| builder.row(&half_section(body, st.x, st.counts)))
+        .map(|st| half_section(body, st.x, st.counts).map(|q| builder.row(&q)))
         .collect();
     for pair in rows.windows(2) {
-        builder.zip(&pair[0], &pair[1], true);
+        for (a, b) in pair[0].iter().zip(&pair[1]) {
+            builder.zip(a, b, true);
+        }
     }
     if !spec.half {
         builder.mirror_y();
@@ -145,9 +148,10 @@ fn quarter_lengths(body: &impl Sections, x: f64) -> [f64; 2] {
     })
 }
 
-/// Stations at clustered arc length; interior sections get enough points
-/// for near-square panels of the local station spacing (at least two per
-/// quarter, so the ring next to a pole has eight points on the full body).
+/// Stations at clustered arc length; sections get enough points for
+/// near-square panels of the local station spacing (at least two per
+/// quarter, so the ring next to a pole has eight points on the full body);
+/// the end sections are poles (no intervals).
 fn plan_stations(table: &ArcTable, size: f64, clustering: f64) -> Vec<Station> {
     let n = ((table.length / size).round() as usize).max(4);
     let s: Vec<f64> = (0..=n)
@@ -179,24 +183,25 @@ fn estimate_triangles(plan: &[Station]) -> f64 {
         .sum()
 }
 
-/// The half section at `x`, by equal arc length within each quarter; the
-/// centre-line ends get y = 0 exactly. A pole is a single point.
-fn half_section(body: &impl Sections, x: f64, counts: [usize; 2]) -> Vec<Point> {
+/// The lower and upper quarter of the half section at `x` (sharing the
+/// side point), by equal arc length within each; the centre-line ends get
+/// y = 0 exactly. A pole is a single point.
+fn half_section(body: &impl Sections, x: f64, counts: [usize; 2]) -> [Vec<Point>; 2] {
     if counts == [0, 0] {
         let p = body.point(x, 0.5);
-        return vec![Point::new(p.x, 0.0, p.z)];
+        let pole = vec![Point::new(p.x, 0.0, p.z)];
+        return [pole.clone(), pole];
     }
-    let mut out = Vec::new();
-    for (q, &n) in counts.iter().enumerate() {
+    let mut quarters = [0, 1].map(|q| {
         let u0 = 0.5 * q as f64;
-        let us = equal_arc_parameters(|u| body.point(x, u), u0, u0 + 0.5, n);
-        let skip = usize::from(q == 1);
-        out.extend(us.iter().skip(skip).map(|&u| body.point(x, u)));
-    }
-    let last = out.len() - 1;
-    out[0].y = 0.0;
-    out[last].y = 0.0;
-    out
+        let us = equal_arc_parameters(|u| body.point(x, u), u0, u0 + 0.5, counts[q]);
+        us.iter().map(|&u| body.point(x, u)).collect::<Vec<Point>>()
+    });
+    quarters[0][0].y = 0.0;
+    let last = quarters[1].len() - 1;
+    quarters[1][last].y = 0.0;
+    quarters[1][0] = quarters[0][counts[0]];
+    quarters
 }
 
 /// `n + 1` parameters on [u0, u1] at equal arc length of `curve`, the
