@@ -255,3 +255,95 @@ fn ground_image_of_the_wake_equals_an_explicit_mirror_wing() {
     // the far-field switch at identical distances.
     assert!(worst < 1e-9 * scale, "{worst}");
 }
+
+#[test]
+fn half_wing_on_the_symmetry_plane_equals_the_full_wing() {
+    // Method identity: a half model with the symmetry-plane image (body
+    // and wake) solves the same system as the full, mirror-symmetric wing.
+    let w = WingParams {
+        span: SPAN,
+        chord: CHORD,
+        alpha_deg: 5.0,
+        chord_panels: 10,
+        span_panels: 8,
+        span_clustering: 0.0,
+        ..WingParams::default()
+    };
+    // The generator's half (y > 0), and the full wing as that half plus
+    // its exact mirror (welded on y = 0), so the full mesh is symmetric.
+    let generated = PanelMesh::new(wing_with_params(&w).unwrap().mesh, Mirrors::none()).unwrap();
+    let half_tris: Vec<[u32; 3]> = (0..generated.len())
+        .filter(|&j| generated.panels[j].centroid.y > 0.0)
+        .map(|j| generated.triangles[j])
+        .collect();
+    let vertices = generated.vertices.clone();
+    let mut full_vertices = vertices.clone();
+    let mirror_index: Vec<u32> = vertices
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            if p.y.abs() < 1e-12 {
+                i as u32
+            } else {
+                full_vertices.push(Point::new(p.x, -p.y, p.z));
+                (full_vertices.len() - 1) as u32
+            }
+        })
+        .collect();
+    let mut full_tris = half_tris.clone();
+    full_tris.extend(half_tris.iter().map(|t| {
+        [
+            mirror_index[t[0] as usize],
+            mirror_index[t[2] as usize],
+            mirror_index[t[1] as usize],
+        ]
+    }));
+    let full = PanelMesh::new(
+        tuft_mesh::TriMesh::new(full_vertices, full_tris).unwrap(),
+        Mirrors::none(),
+    )
+    .unwrap();
+    let keep: Vec<usize> = (0..half_tris.len()).collect();
+    let half = PanelMesh::new(
+        tuft_mesh::TriMesh::new(vertices, half_tris).unwrap(),
+        Mirrors {
+            ground: None,
+            symmetry: true,
+        },
+    )
+    .unwrap();
+    let fs = Freestream::new(1.0, 0.0);
+    let a = solve_potential_with_wake_params(&full, &fs, &WakeParams::default()).unwrap();
+    let b = solve_potential_with_wake_params(&half, &fs, &WakeParams::default()).unwrap();
+    assert_eq!(a.edges.len(), 2 * b.edges.len());
+    let worst = keep
+        .iter()
+        .enumerate()
+        .map(|(i, &j)| (a.solution.mu[j] - b.solution.mu[i]).abs())
+        .fold(0.0, f64::max);
+    let scale = a.solution.mu.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    println!("half vs full: largest mu difference {worst:.2e} of {scale:.3}");
+    assert!(worst < 1e-9 * scale, "{worst}");
+}
+
+/// Mesh study of the lift slope (slow: about two minutes). Run with
+/// `cargo test --release -p tuft-tests --test wing -- --ignored --nocapture`.
+#[test]
+#[ignore = "mesh-convergence study, about two minutes"]
+fn lift_slope_mesh_study() {
+    let thick = helmbold(SPAN / CHORD, section_slope(0.12));
+    for panels in [(12, 12), (16, 16), (24, 16), (32, 24), (48, 16), (64, 16)] {
+        let (l2, l6) = (wing(2.0, 0.12, panels, None), wing(6.0, 0.12, panels, None));
+        let d = 4f64.to_radians();
+        let (a, akj) = (
+            (l6.pressure - l2.pressure) / d,
+            (l6.kutta_joukowski - l2.kutta_joukowski) / d,
+        );
+        println!(
+            "{panels:?}: slope {a:.4} ({:+.1} %), Kutta-Joukowski {akj:.4} ({:+.1} %)",
+            100.0 * (a / thick - 1.0),
+            100.0 * (akj / thick - 1.0)
+        );
+        assert!((a / thick - 1.0).abs() < 0.08);
+    }
+}
