@@ -26,7 +26,7 @@ use thiserror::Error;
 use tuft_mesh::{Panel, PanelMesh, Point, Vector};
 
 use crate::influence::image_panels;
-use crate::wake::Wake;
+use crate::wake::{Wake, WakeSolution};
 
 use kernels::{panel_velocity, ring_velocity};
 
@@ -149,6 +149,21 @@ impl FlowField {
             ground: mesh.mirrors.ground,
             params,
         })
+    }
+
+    /// The flow field of a solve with a Kutta wake, default settings.
+    ///
+    /// # Errors
+    /// As [`FlowField::new`] (only for a solution of another mesh).
+    pub fn from_wake_solution(mesh: &PanelMesh, sol: &WakeSolution) -> Result<Self, OffBodyError> {
+        let s = &sol.solution;
+        Self::new(
+            mesh,
+            &s.sigma,
+            &s.mu,
+            s.freestream.velocity(),
+            Some(&sol.wake),
+        )
     }
 
     /// Velocity at `p`, or `None` inside the body, inside an image body or

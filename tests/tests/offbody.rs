@@ -129,14 +129,7 @@ fn circulation_round_a_wing_section_equals_the_wake_jump() {
     };
     let mesh = PanelMesh::new(wing_with_params(&w).unwrap().mesh, Mirrors::none()).unwrap();
     let sol = solve_potential_with_wake(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
-    let field = FlowField::new(
-        &mesh,
-        &sol.solution.sigma,
-        &sol.solution.mu,
-        Vector::x(),
-        Some(&sol.wake),
-    )
-    .unwrap();
+    let field = FlowField::from_wake_solution(&mesh, &sol).unwrap();
     // The wake panel just off midspan; the loop in its mid-plane.
     let k = sol
         .wake

@@ -182,8 +182,9 @@ pub fn solve_potential_with_wake(
 /// Find (or take) the trailing edges, shed the wake, assemble and solve
 /// with the Kutta condition, then compute the surface velocity on the mesh
 /// cut open along the trailing edges and the sharp edges
-/// ([`WakeParams::gradient_cut_angle_deg`]). A body without trailing edges gets
-/// an empty wake and the plain solution.
+/// ([`WakeParams::gradient_cut_angle_deg`]). A body without trailing edges
+/// gets an empty wake and the strengths of the plain solve (its surface
+/// velocity still comes from the gradient cut at sharp edges).
 ///
 /// # Errors
 /// [`WakeError::BadParameter`] for a wake length that is not positive,
