@@ -146,3 +146,34 @@ impl UnionFind {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::wake::find_trailing_edges;
+    use tuft_mesh::generate::{WingParams, wing_with_params};
+    use tuft_mesh::{Mirrors, Vector};
+
+    /// After the cut no panel of the upper surface touches one of the
+    /// lower surface across the trailing edge, and the geometry is intact.
+    #[test]
+    fn trailing_edge_cut_separates_the_sides() {
+        let w = wing_with_params(&WingParams {
+            chord_panels: 8,
+            span_panels: 6,
+            ..WingParams::default()
+        })
+        .unwrap_or_else(|e| panic!("{e}"));
+        let mesh = PanelMesh::new(w.mesh, Mirrors::none()).unwrap_or_else(|e| panic!("{e}"));
+        let edges = find_trailing_edges(&mesh, &Vector::x());
+        let cut = split_trailing_edges(&mesh, &edges).unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(cut.panels, mesh.panels);
+        for e in &edges {
+            assert!(!cut.edge_neighbours[e.upper].contains(&Some(e.lower as u32)));
+            assert!(!cut.edge_neighbours[e.lower].contains(&Some(e.upper as u32)));
+        }
+        // Interior trailing-edge vertices are doubled; the two tip ends are
+        // not (the cut ends there).
+        assert_eq!(cut.vertices.len(), mesh.vertices.len() + edges.len() - 1);
+    }
+}
