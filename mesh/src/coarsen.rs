@@ -101,22 +101,20 @@ pub fn coarsen_with_params(
         return (mesh.clone(), report);
     }
     let mut notes = Vec::new();
-    let mut target = p.target_panels.max(4);
     let mut result = None;
-    for _ in 0..3 {
+    for (target, regularize) in attempts(p) {
         if target >= mesh.len() {
             break;
         }
-        let mut coarse = simplify(mesh, &locks, target, p.regularize);
+        let mut coarse = simplify(mesh, &locks, target, regularize);
         match check_closed(&coarse, &locks) {
             Ok(()) => {
                 remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
                 break;
             }
-            Err(why) => notes.push(format!("{target} panels: {why}")),
+            Err(why) => notes.push(format!("{target} panels (regularize {regularize}): {why}")),
         }
-        target *= 2;
     }
     let out = result.unwrap_or_else(|| {
         notes.push("kept the repaired mesh".to_string());
@@ -126,6 +124,14 @@ pub fn coarsen_with_params(
     report.achieved_panels = out.len();
     measure_deviation(mesh, &out, p.deviation_samples, &mut report);
     (out, report)
+}
+
+/// Targets and settings tried in turn: the target with and without the
+/// regularizing option, then twice and four times the target.
+fn attempts(p: &CoarsenParams) -> Vec<(usize, bool)> {
+    let t = p.target_panels.max(4);
+    let r = p.regularize;
+    vec![(t, r), (t, !r), (2 * t, r), (2 * t, !r), (4 * t, r)]
 }
 
 /// Lock vertices on a mirror plane or on an open border.

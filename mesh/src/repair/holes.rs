@@ -17,7 +17,7 @@
 
 use serde::Serialize;
 
-use super::edges::{edge_groups, sorted_edge_uses};
+use super::edges::{EdgeUse, edge_groups, sorted_edge_uses};
 use crate::fasthash::FastMap;
 use crate::{MeshError, Mirrors, Point, TriMesh, Vector};
 
@@ -84,7 +84,18 @@ pub fn close_holes(
     component: &mut Vec<u32>,
     s: &HoleSettings,
 ) -> Result<HoleReport, MeshError> {
-    let (half, non_manifold) = boundary_half_edges(&mesh.triangles);
+    let uses = sorted_edge_uses(&mesh.triangles);
+    close_holes_with_uses(mesh, component, s, &uses)
+}
+
+/// As [`close_holes`], given the sorted edge uses of the current facets.
+pub(crate) fn close_holes_with_uses(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    s: &HoleSettings,
+    uses: &[EdgeUse],
+) -> Result<HoleReport, MeshError> {
+    let (half, non_manifold) = boundary_half_edges(&mesh.triangles, uses);
     let loops = chain_loops(&half);
     let mut report = HoleReport {
         loops: loops.len(),
@@ -127,18 +138,21 @@ fn refuse(mut refused: Vec<(usize, LoopInfo)>, limit: f64) -> Result<(), MeshErr
 }
 
 /// Boundary half-edges and the number of non-manifold edges.
-fn boundary_half_edges(triangles: &[[u32; 3]]) -> (Vec<HalfEdge>, usize) {
-    let uses = sorted_edge_uses(triangles);
+/// The direction is read from the facet as it is now (an earlier pass may
+/// have flipped it since the uses were sorted).
+fn boundary_half_edges(triangles: &[[u32; 3]], uses: &[EdgeUse]) -> (Vec<HalfEdge>, usize) {
     let mut half = Vec::new();
     let mut non_manifold = 0;
-    for group in edge_groups(&uses) {
+    for group in edge_groups(uses) {
         match group {
             [u] => {
                 let t = triangles[u.facet as usize];
-                let k = u.side as usize;
+                let (a, b) = u.ends();
+                let runs_ab = (0..3).any(|k| t[k] == a && t[(k + 1) % 3] == b);
+                let (from, to) = if runs_ab { (a, b) } else { (b, a) };
                 half.push(HalfEdge {
-                    from: t[k],
-                    to: t[(k + 1) % 3],
+                    from,
+                    to,
                     facet: u.facet,
                 });
             }
