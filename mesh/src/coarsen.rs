@@ -225,3 +225,40 @@ fn measure_deviation(fine: &TriMesh, coarse: &TriMesh, samples: usize, report: &
     report.rms_deviation = (sum_sq / n.max(1) as f64).sqrt();
     report.samples = n;
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::{Point, generate};
+
+    #[test]
+    fn edge_matching_refuses_non_manifold_and_open_results() {
+        let sphere = generate::icosphere(1.0, 1);
+        let free = vec![false; sphere.vertices.len()];
+        assert!(check_closed(&sphere, &free).is_ok());
+        // Two tetrahedra sharing edge 0-1: four facets on one edge.
+        let v = vec![
+            Point::new(0.0, 0.0, 0.0),
+            Point::new(1.0, 0.0, 0.0),
+            Point::new(0.5, 1.0, 0.0),
+            Point::new(0.5, 0.3, 1.0),
+            Point::new(0.5, -1.0, 0.0),
+            Point::new(0.5, -0.3, -1.0),
+        ];
+        let tet = |a: u32, b: u32, c: u32, d: u32| [[a, c, b], [a, b, d], [b, c, d], [c, a, d]];
+        let mut t = tet(0, 1, 2, 3).to_vec();
+        t.extend(tet(1, 0, 4, 5));
+        let pinched = TriMesh {
+            vertices: v,
+            triangles: t,
+        };
+        assert!(check_closed(&pinched, &[false; 6]).is_err());
+        // An open sphere passes only where its border vertices were locked.
+        let mut open = sphere.clone();
+        let removed = open.triangles.pop().unwrap_or_default();
+        assert!(check_closed(&open, &free).is_err());
+        let mut locks = free.clone();
+        removed.iter().for_each(|&v| locks[v as usize] = true);
+        assert!(check_closed(&open, &locks).is_ok());
+    }
+}
