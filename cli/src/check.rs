@@ -181,7 +181,7 @@ fn hole_lines(r: &PrepareReport) -> String {
     };
     for l in h.mirror_closed.iter().take(5) {
         s += &describe(
-            &format!("closed by the {} plane:", l.plane.unwrap_or("?")),
+            &format!("closed by the {} mirror:", l.plane.unwrap_or("?")),
             l,
         );
     }

@@ -140,5 +140,5 @@ fn check_half_model_needs_the_symmetry_flag() {
         "{}",
         String::from_utf8_lossy(&accepted.stderr)
     );
-    assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry plane"));
+    assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
 }

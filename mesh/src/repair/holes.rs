@@ -2,7 +2,7 @@
 //!
 //! An edge used by one facet is a boundary edge; chained head to tail they
 //! make boundary loops. Each loop is, in this order:
-//! 1. closed by a mirror: every vertex on one declared plane (the image
+//! 1. closed by a mirror: every edge on a declared plane (the image
 //!    body supplies the other side), left open;
 //! 2. a slit: it encloses (numerically) no area, `|A| < ratio * P^2`, as
 //!    after a T-junction or a removed cap sliver; zero width leaks nothing,
@@ -30,7 +30,8 @@ pub struct LoopInfo {
     pub perimeter: f64,
     /// Edges around the loop.
     pub edges: usize,
-    /// The mirror plane that closes it, if any (`"ground"` or `"symmetry"`).
+    /// The mirror plane(s) that close it, if any (`"ground"`, `"symmetry"`
+    /// or `"ground and symmetry"`).
     pub plane: Option<&'static str>,
 }
 
@@ -223,25 +224,35 @@ fn ends(vertices: &[Point], h: &HalfEdge) -> (Point, Point) {
     (vertices[h.from as usize], vertices[h.to as usize])
 }
 
+/// The plane(s) closing a loop: every edge must lie on a declared plane
+/// (both ends within the tolerance). A half model standing on the ground
+/// has loops with edges on both planes.
 fn on_plane(
     vertices: &[Point],
     half: &[HalfEdge],
     edges: &[usize],
     s: &HoleSettings,
 ) -> Option<&'static str> {
-    let all = |f: &dyn Fn(&Point) -> bool| {
-        edges.iter().all(|&e| {
-            let (a, b) = ends(vertices, &half[e]);
-            f(&a) && f(&b)
-        })
-    };
     let tol = s.plane_tolerance;
-    if let Some(h) = s.mirrors.ground
-        && all(&|p| (p.z - h).abs() <= tol)
-    {
-        return Some("ground");
+    let on_ground = |p: &Point| s.mirrors.ground.is_some_and(|h| (p.z - h).abs() <= tol);
+    let on_sym = |p: &Point| s.mirrors.symmetry && p.y.abs() <= tol;
+    let (mut ground, mut sym) = (false, false);
+    for &e in edges {
+        let (a, b) = ends(vertices, &half[e]);
+        if on_ground(&a) && on_ground(&b) {
+            ground = true;
+        } else if on_sym(&a) && on_sym(&b) {
+            sym = true;
+        } else {
+            return None;
+        }
     }
-    (s.mirrors.symmetry && all(&|p| p.y.abs() <= tol)).then_some("symmetry")
+    match (ground, sym) {
+        (true, true) => Some("ground and symmetry"),
+        (true, false) => Some("ground"),
+        (false, true) => Some("symmetry"),
+        (false, false) => None,
+    }
 }
 
 /// Vector area `1/2 sum (a - c) x (b - c)` against the perimeter squared.
