@@ -1,6 +1,6 @@
 //! The surface flow field the streamlines follow: per-panel unit flow
 //! direction and speed, vertex speeds for interpolation, in-plane edge
-//! normals, the spreading term and the sharp-edge flags.
+//! normals, the spreading term, and the sharp-edge test.
 
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
@@ -24,19 +24,16 @@ pub struct SurfaceField {
     /// Streamline spreading `(1/h) dh/ds`: surface divergence of the unit
     /// flow direction, 1/m ([`spreading`]).
     pub spreading: Vec<f64>,
-    /// True for a panel that touches a sharp convex edge ([`sharp_panels`]).
-    pub sharp: Vec<bool>,
 }
 
 impl SurfaceField {
     /// Build the field from one velocity per panel (its tangential part is
-    /// used). `sharp_edge_deg` is the dihedral angle above which an edge is
-    /// sharp.
+    /// used).
     ///
     /// # Panics
     /// If `velocity.len() != mesh.len()` (checked by the caller).
     #[track_caller]
-    pub fn new(mesh: &PanelMesh, velocity: &[Vector3<f64>], sharp_edge_deg: f64) -> Self {
+    pub fn new(mesh: &PanelMesh, velocity: &[Vector3<f64>]) -> Self {
         assert_eq!(velocity.len(), mesh.len(), "one velocity per panel");
         let tangential: Vec<Vector3<f64>> = mesh
             .panels
@@ -54,7 +51,6 @@ impl SurfaceField {
         Self {
             vertex_speed: vertex_speeds(mesh, &speed),
             vertex_velocity: vertex_velocities(mesh, &tangential),
-            sharp: sharp_panels(mesh, sharp_edge_deg),
             direction,
             speed,
             inward,
@@ -185,19 +181,11 @@ pub fn spreading(mesh: &PanelMesh, direction: &[Vector3<f64>]) -> Vec<f64> {
         .collect()
 }
 
-/// Panels touching a sharp convex edge: an edge whose dihedral angle (between
-/// the two normals) exceeds `sharp_edge_deg` and where the surface turns away
-/// (the neighbour's centroid lies below the panel's plane).
-pub fn sharp_panels(mesh: &PanelMesh, sharp_edge_deg: f64) -> Vec<bool> {
-    let cos_limit = sharp_edge_deg.to_radians().cos();
-    (0..mesh.len())
-        .map(|t| {
-            let a = &mesh.panels[t];
-            mesh.edge_neighbours[t].iter().flatten().any(|&j| {
-                let b = &mesh.panels[j as usize];
-                let convex = a.normal.dot(&(b.centroid - a.centroid)) < 0.0;
-                convex && a.normal.dot(&b.normal) < cos_limit
-            })
-        })
-        .collect()
+/// True when the edge between panels `a` and `b` is sharp and convex: the
+/// angle between the normals exceeds `sharp_edge_deg` and the surface turns
+/// away (`b`'s centroid lies below `a`'s plane).
+pub fn sharp_convex(mesh: &PanelMesh, a: usize, b: usize, sharp_edge_deg: f64) -> bool {
+    let (pa, pb) = (&mesh.panels[a], &mesh.panels[b]);
+    let convex = pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0;
+    convex && pa.normal.dot(&pb.normal) < sharp_edge_deg.to_radians().cos()
 }
