@@ -471,3 +471,51 @@ fn bluff_base_edges_separate_and_a_slant_edge_is_left_to_the_layer() {
     }
     assert!(base_panels * 2 > (0..mesh.len()).filter(|&t| base(t)).count());
 }
+
+#[test]
+fn hemisphere_on_the_ground_plane() {
+    // A sphere whose centre lies on the ground plane is its own image, so the
+    // exact velocity is still 1.5 U_inf [e_x - (e_x.n) n] (Lamb sec. 92,
+    // images in a plane); the upper half with a ground mirror at z = 0 must
+    // give the same separation line as the full sphere: the axisymmetric
+    // Thwaites integral (derived, 103.6 deg), within 3 degrees. The lines
+    // that run along the cut end at the mirror-plane boundary.
+    let full = generate::latlong_sphere(1.0, 90, 120);
+    let triangles: Vec<[u32; 3]> = full
+        .triangles
+        .iter()
+        .copied()
+        .filter(|t| t.iter().map(|&v| full.vertices[v as usize].z).sum::<f64>() > 0.0)
+        .collect();
+    let half = TriMesh::new(full.vertices.clone(), triangles).unwrap();
+    let mesh = PanelMesh::new(half, Mirrors::ground(0.0)).unwrap();
+    let open = mesh
+        .edge_neighbours
+        .iter()
+        .flatten()
+        .filter(|n| n.is_none())
+        .count();
+    assert!(open > 100, "the cut leaves open edges on the ground plane");
+    let velocity = ellipsoid_velocity(&mesh, 0.5, 20.0, Vector3::x());
+    let layer = screen_boundary_layer(&mesh, &velocity, 20.0, &laminar(1.5e-5)).unwrap();
+    check_accounting(&layer, mesh.len());
+    let reference =
+        axisymmetric_thwaites_separation(|t| (t.cos(), t.sin(), 1.5 * t.sin(), 1.0)).to_degrees();
+    let mut separated = 0;
+    for line in &layer.streamlines {
+        let Some(i) = line.separated_at else { continue };
+        separated += 1;
+        let angle = (-line.points[i].coords.normalize().x).acos().to_degrees();
+        assert!((angle - reference).abs() < 3.0, "separation at {angle} deg");
+        assert!(
+            line.points.iter().all(|p| p.z > -1e-9),
+            "lines stay on the half model"
+        );
+    }
+    assert!(separated * 10 >= layer.streamlines.len() * 9);
+    assert!(
+        layer.unresolved * 50 < mesh.len(),
+        "{} unresolved",
+        layer.unresolved
+    );
+}
