@@ -2,6 +2,26 @@
 //!
 //! No I/O, no printing: everything here takes geometry and flow conditions
 //! and returns numbers.
+//!
+//! The potential-flow panel method (Katz & Plotkin, *Low-Speed
+//! Aerodynamics*, 2nd ed., 2001, ch. 9-12) is in [`potential`]: influence
+//! coefficients in [`influence`], assembly with mirror images in
+//! [`assemble`], linear solvers in [`linear`], the surface gradient of the
+//! doublet strength in [`gradient`].
 #![deny(missing_docs)]
 
+pub mod error;
+pub mod influence;
+
+pub use error::SolverError;
+pub mod assemble;
 pub mod boundary_layer;
+pub mod gradient;
+pub mod linear;
+pub mod potential;
+
+pub use assemble::{InfluenceSystem, assemble};
+pub use potential::{
+    Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, solve_potential,
+    solve_potential_with_params, surface_velocity,
+};
