@@ -218,3 +218,22 @@ fn demo_writes_two_reports() {
         );
     }
 }
+
+#[test]
+fn the_readme_case_file_runs() {
+    // The README's example case file, with the committed coupe as its STL
+    // (both in millimetres, axles at the same places).
+    let readme = std::fs::read_to_string(cases_dir().join("../README.md")).unwrap();
+    let start = readme.find("```toml\n").expect("a TOML example") + "```toml\n".len();
+    let case = &readme[start..start + readme[start..].find("```").unwrap()];
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("my-car.toml"), case).unwrap();
+    std::fs::copy(cases_dir().join("coupe.stl"), dir.path().join("my-car.stl")).unwrap();
+    let o = tuft(dir.path(), &["run", "my-car.toml", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let summary: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("my-car/summary.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(summary["reference"]["front_axle_x_m"].as_f64(), Some(0.95));
+}
