@@ -266,10 +266,10 @@ fn check_reference(r: &ReferenceSection) -> Result<()> {
 }
 
 fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySource> {
-    if let Some(n) = g.panels {
-        if !(100..=200_000).contains(&n) {
-            bail!("geometry.panels must be between 100 and 200000 (got {n})");
-        }
+    if let Some(n) = g.panels
+        && !(100..=200_000).contains(&n)
+    {
+        bail!("geometry.panels must be between 100 and 200000 (got {n})");
     }
     match (&g.stl, &g.shape) {
         (Some(_), Some(_)) => bail!("geometry: give either stl or shape, not both"),
@@ -317,10 +317,10 @@ fn resolve_transition(b: &BoundaryLayerSection) -> Result<TransitionMode> {
             "boundary_layer.transition must be free, laminar, turbulent or forced (got \"{other}\")"
         ),
     };
-    if let Some(h) = b.separation_h {
-        if !(1.5..=4.0).contains(&h) {
-            bail!("boundary_layer.separation_h must be between 1.5 and 4.0 (got {h})");
-        }
+    if let Some(h) = b.separation_h
+        && !(1.5..=4.0).contains(&h)
+    {
+        bail!("boundary_layer.separation_h must be between 1.5 and 4.0 (got {h})");
     }
     Ok(mode)
 }

@@ -10,6 +10,7 @@ use clap::{Parser, Subcommand};
 
 mod case;
 mod check;
+mod estimate;
 mod geometry;
 mod outdir;
 // Some writer helpers serve only the tests and later commands.

@@ -54,16 +54,6 @@ impl Staging {
         self.tmp.join(name)
     }
 
-    /// The folder being written.
-    pub fn dir(&self) -> &Path {
-        &self.tmp
-    }
-
-    /// Where the results will be once committed.
-    pub fn destination(&self) -> &Path {
-        &self.dest
-    }
-
     /// Move the finished folder into place.
     pub fn commit(mut self) -> Result<PathBuf> {
         if self.dest.exists() {

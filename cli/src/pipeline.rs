@@ -11,6 +11,7 @@ use tuft_solver::loads::{self, Loads, Reference};
 use tuft_solver::{Freestream, PotentialSolution, solve_potential};
 
 use crate::case::{Case, TransitionMode};
+use crate::estimate;
 use crate::progress::Progress;
 
 /// Everything computed for one case.
@@ -19,8 +20,6 @@ pub struct Computed {
     pub potential: PotentialSolution,
     /// Boundary layer with the case's settings.
     pub layer: BoundaryLayer,
-    /// Cp with separated panels held at their separation value.
-    pub cp_plateau: Vec<f64>,
     /// Loads of the attached potential flow (pressure only).
     pub attached: Loads,
     /// Loads with the plateau model and skin friction: the drag estimate.
@@ -115,8 +114,25 @@ pub fn friction_vectors(
 }
 
 /// Run the physics of a case on a prepared mesh.
-pub fn compute(mesh: &PanelMesh, case: &Case, progress: &mut Progress) -> Result<Computed> {
+pub fn compute(
+    mesh: &PanelMesh,
+    case: &Case,
+    memory_limit: Option<f64>,
+    progress: &mut Progress,
+) -> Result<Computed> {
     let flow = &case.file.flow;
+    estimate::check_fits(
+        mesh.len(),
+        mesh.mirrors.symmetry,
+        estimate::available_memory(memory_limit),
+    )?;
+    let guess = estimate::estimate(mesh, rayon::current_num_threads());
+    progress.note(&format!(
+        "{} panels: expect about {:.0} s for the solve and {:.2} GB of memory",
+        mesh.len(),
+        guess.seconds.max(1.0),
+        guess.memory_bytes / 1e9
+    ));
     let fs = Freestream::new(flow.speed, flow.yaw);
     let phase = progress.begin(
         "potential flow",
@@ -200,7 +216,6 @@ pub fn compute(mesh: &PanelMesh, case: &Case, progress: &mut Progress) -> Result
     Ok(Computed {
         potential,
         layer,
-        cp_plateau,
         attached,
         estimate,
         drag_band,

@@ -74,8 +74,8 @@ impl Progress {
         self.timings.push((phase.name, secs));
     }
 
-    /// Print a one-off message (unless quiet).
-    pub fn say(&self, msg: &str) {
+    /// Print a one-off note (unless quiet).
+    pub fn note(&self, msg: &str) {
         if !self.quiet {
             eprintln!("{}: {msg}", self.prefix);
         }

@@ -24,6 +24,21 @@ pub struct RunOptions {
     /// No progress messages.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Memory the run may use, e.g. 8G (default: what the system has
+    /// available). A run that would need more stops before solving and
+    /// suggests a panel count that fits.
+    #[arg(long, value_name = "SIZE")]
+    pub memory_limit: Option<String>,
+}
+
+impl RunOptions {
+    /// The memory limit in bytes, if given.
+    pub fn memory_limit_bytes(&self) -> Result<Option<f64>> {
+        self.memory_limit
+            .as_deref()
+            .map(crate::estimate::parse_size)
+            .transpose()
+    }
 }
 
 /// Arguments of `tuft run`.
@@ -83,12 +98,13 @@ fn default_out(case_path: &Path, name: &str) -> PathBuf {
 /// Run one checked case into `out`; nothing appears in `out` unless the
 /// whole run succeeds.
 pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary> {
+    let memory_limit = options.memory_limit_bytes()?;
     let staging = Staging::new(out, options.force)?;
     let mut progress = Progress::new(options.quiet, &case.name);
     let phase = progress.begin("geometry", "reading and preparing the geometry");
     let geo = geometry::load(case)?;
     progress.end(phase, &format!("{} panels", geo.mesh.len()));
-    let computed = pipeline::compute(&geo.mesh, case, &mut progress)?;
+    let computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
     let summary = write::write_all(case, &geo, &computed, &staging, &mut progress)
         .with_context(|| format!("writing results for {}", out.display()))?;
     staging.commit()?;

@@ -25,7 +25,7 @@ use crate::summary::{
 };
 
 /// Samples along the longer side of a flow slice.
-const SLICE_SAMPLES: usize = 150;
+const SLICE_SAMPLES: usize = 110;
 
 /// Per-panel fields in the shapes the writers take.
 pub struct Fields {

@@ -101,22 +101,20 @@ pub fn coarsen_with_params(
         return (mesh.clone(), report);
     }
     let mut notes = Vec::new();
-    let mut target = p.target_panels.max(4);
     let mut result = None;
-    for _ in 0..3 {
+    for (target, regularize) in attempts(p) {
         if target >= mesh.len() {
             break;
         }
-        let mut coarse = simplify(mesh, &locks, target, p.regularize);
+        let mut coarse = simplify(mesh, &locks, target, regularize);
         match check_closed(&coarse, &locks) {
             Ok(()) => {
                 remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
                 break;
             }
-            Err(why) => notes.push(format!("{target} panels: {why}")),
+            Err(why) => notes.push(format!("{target} panels (regularize {regularize}): {why}")),
         }
-        target *= 2;
     }
     let out = result.unwrap_or_else(|| {
         notes.push("kept the repaired mesh".to_string());
@@ -126,6 +124,14 @@ pub fn coarsen_with_params(
     report.achieved_panels = out.len();
     measure_deviation(mesh, &out, p.deviation_samples, &mut report);
     (out, report)
+}
+
+/// Targets and settings tried in turn: the target with and without the
+/// regularizing option, then twice and four times the target.
+fn attempts(p: &CoarsenParams) -> Vec<(usize, bool)> {
+    let t = p.target_panels.max(4);
+    let r = p.regularize;
+    vec![(t, r), (t, !r), (2 * t, r), (2 * t, !r), (4 * t, r)]
 }
 
 /// Lock vertices on a mirror plane or on an open border.
@@ -218,4 +224,41 @@ fn measure_deviation(fine: &TriMesh, coarse: &TriMesh, samples: usize, report: &
     report.max_deviation = max;
     report.rms_deviation = (sum_sq / n.max(1) as f64).sqrt();
     report.samples = n;
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::{Point, generate};
+
+    #[test]
+    fn edge_matching_refuses_non_manifold_and_open_results() {
+        let sphere = generate::icosphere(1.0, 1);
+        let free = vec![false; sphere.vertices.len()];
+        assert!(check_closed(&sphere, &free).is_ok());
+        // Two tetrahedra sharing edge 0-1: four facets on one edge.
+        let v = vec![
+            Point::new(0.0, 0.0, 0.0),
+            Point::new(1.0, 0.0, 0.0),
+            Point::new(0.5, 1.0, 0.0),
+            Point::new(0.5, 0.3, 1.0),
+            Point::new(0.5, -1.0, 0.0),
+            Point::new(0.5, -0.3, -1.0),
+        ];
+        let tet = |a: u32, b: u32, c: u32, d: u32| [[a, c, b], [a, b, d], [b, c, d], [c, a, d]];
+        let mut t = tet(0, 1, 2, 3).to_vec();
+        t.extend(tet(1, 0, 4, 5));
+        let pinched = TriMesh {
+            vertices: v,
+            triangles: t,
+        };
+        assert!(check_closed(&pinched, &[false; 6]).is_err());
+        // An open sphere passes only where its border vertices were locked.
+        let mut open = sphere.clone();
+        let removed = open.triangles.pop().unwrap_or_default();
+        assert!(check_closed(&open, &free).is_err());
+        let mut locks = free.clone();
+        removed.iter().for_each(|&v| locks[v as usize] = true);
+        assert!(check_closed(&open, &locks).is_ok());
+    }
 }

@@ -118,13 +118,31 @@ impl<'a> SurfaceGrid<'a> {
                 let [a, b, c] = self.mesh.corners(t as usize);
                 best = best.min((closest_point_on_triangle(p, &a, &b, &c) - p).norm());
             });
-            // Cells beyond this ring lie at least `ring * cell` from `p`
-            // (plus `p`'s distance outside the grid, ignored: conservative).
-            if best <= ring as f64 * self.cell {
+            if best <= self.clearance(p, centre, ring) {
                 break;
             }
         }
         best
+    }
+
+    /// Distance from `p` to the outside of the block of cells within `ring`
+    /// of `centre`: nothing unvisited can be nearer (a block edge at the
+    /// grid's border counts as infinitely far).
+    fn clearance(&self, p: &Point, centre: [usize; 3], ring: usize) -> f64 {
+        (0..3)
+            .map(|k| {
+                let lo = centre[k] as f64 - ring as f64;
+                let hi = (centre[k] + ring + 1) as f64;
+                let x = (p[k] - self.origin[k]) / self.cell;
+                let below = if lo <= 0.0 { f64::INFINITY } else { x - lo };
+                let above = if hi >= self.dims[k] as f64 {
+                    f64::INFINITY
+                } else {
+                    hi - x
+                };
+                below.min(above).max(0.0) * self.cell
+            })
+            .fold(f64::INFINITY, f64::min)
     }
 
     fn visit_ring(&self, c: [usize; 3], ring: usize, mut f: impl FnMut(u32)) {

@@ -21,6 +21,10 @@
 //! // An inscribed polyhedron: its area approaches 4 pi from below.
 //! assert!(area < 4.0 * std::f64::consts::PI && area > 0.97 * 4.0 * std::f64::consts::PI);
 //! ```
+//!
+//! From a file, [`prepare::prepare`] does it all: read (binary or ASCII
+//! STL), scale to metres, move, repair ([`repair`]), coarsen ([`coarsen`]),
+//! build panels and measure their [`quality`], with a serializable report.
 #![deny(missing_docs)]
 
 pub mod coarsen;

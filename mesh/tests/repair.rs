@@ -223,3 +223,21 @@ fn non_manifold_edge_is_counted() {
     assert_eq!(r.holes.non_manifold_edges, 1);
     assert_eq!(r.holes.loops, 0);
 }
+
+#[test]
+fn quarter_sphere_is_closed_by_ground_and_symmetry_together() {
+    // y >= 0 and z >= 0: one loop, half on y = 0 and half on z = 0.
+    let quarter = half_sphere(|c| c.y > 0.0 && c.z > 0.0);
+    let both = Mirrors {
+        ground: Some(0.0),
+        symmetry: true,
+    };
+    let (fixed, r) = repair(quarter.clone(), &both).unwrap();
+    assert_eq!(r.holes.mirror_closed.len(), 1);
+    assert_eq!(r.holes.mirror_closed[0].plane, Some("ground and symmetry"));
+    // A quarter of 4/3 pi, within the polyhedron's shortfall (3 %).
+    let v = fixed.signed_volume();
+    assert!((v - PI / 3.0).abs() / (PI / 3.0) < 0.03, "{v}");
+    // One plane alone cannot close it.
+    assert!(repair(quarter, &Mirrors::ground(0.0)).is_err());
+}

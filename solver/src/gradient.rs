@@ -100,24 +100,50 @@ pub fn surface_normals(mesh: &PanelMesh) -> Vec<Vector3<f64>> {
         .collect()
 }
 
-/// Crease-aware vertex normals at the three corners of every panel.
+/// Crease-aware vertex normals at the three corners of every panel. A
+/// corner on a mirror plane also counts the mirror images of the panels
+/// around it (the image body continues the surface there).
 fn corner_normals(mesh: &PanelMesh) -> Vec<[Vector3<f64>; 3]> {
-    let cos_crease = CREASE_ANGLE_DEG.to_radians().cos();
+    let reflections = mesh.mirrors.images();
     (0..mesh.len())
         .into_par_iter()
         .map(|i| {
             let own = mesh.panels[i].normal.into_inner();
+            let tol = 1e-6 * mesh.panels[i].size;
             mesh.triangles[i].map(|v| {
-                let s: Vector3<f64> = mesh.vertex_panels[v as usize]
+                let at = mesh.vertices[v as usize];
+                let mut s = fan_normal(mesh, v, &own, None);
+                for r in reflections
                     .iter()
-                    .map(|&j| &mesh.panels[j as usize])
-                    .filter(|p| p.normal.dot(&own) >= cos_crease)
-                    .map(|p| p.normal.into_inner() * p.area)
-                    .sum();
+                    .filter(|r| (r.point(&at) - at).norm() <= tol)
+                {
+                    s += fan_normal(mesh, v, &own, Some(r));
+                }
                 s.try_normalize(1e-300).unwrap_or(own)
             })
         })
         .collect()
+}
+
+/// Area-weighted sum of the normals of the panels around vertex `v` (or of
+/// their images in `reflection`) within the crease angle of `own`.
+fn fan_normal(
+    mesh: &PanelMesh,
+    v: u32,
+    own: &Vector3<f64>,
+    reflection: Option<&Reflection>,
+) -> Vector3<f64> {
+    let cos_crease = CREASE_ANGLE_DEG.to_radians().cos();
+    mesh.vertex_panels[v as usize]
+        .iter()
+        .map(|&j| &mesh.panels[j as usize])
+        .map(|p| {
+            let n = p.normal.into_inner();
+            (reflection.map_or(n, |r| r.vector(&n)), p.area)
+        })
+        .filter(|(n, _)| n.dot(own) >= cos_crease)
+        .map(|(n, a)| n * a)
+        .sum()
 }
 
 /// One stencil member: a centroid and the panel whose value it carries.

@@ -191,6 +191,19 @@ pub struct Loads {
 /// of the surface flow. Moments are `(c_j - m) x F_j` about the moment point
 /// `m` (Katz & Plotkin 2001, sec. 12.4, panel force summation).
 ///
+/// ```
+/// use tuft_mesh::{generate, Mirrors, PanelMesh};
+/// use tuft_solver::loads::{integrate_loads, FlowState, Reference};
+/// let mesh = PanelMesh::new(generate::icosphere(0.5, 2), Mirrors::none()).unwrap();
+/// let reference = Reference::from_mesh(&mesh, -0.3, 0.3);
+/// let air = FlowState { density: 1.225, speed: 30.0, yaw: 0.0 };
+/// // A uniform pressure on a closed body gives no net force.
+/// let cp = vec![0.4; mesh.len()];
+/// let loads = integrate_loads(&mesh, &cp, None, &reference, &air).unwrap();
+/// assert!(loads.total.coefficients.drag.abs() < 1e-12);
+/// assert!((loads.axles.front + loads.axles.rear - loads.lift).abs() < 1e-9);
+/// ```
+///
 /// # Errors
 /// [`LoadsError`] when the inputs do not match the mesh, hold non-finite
 /// values, or the references are not positive.

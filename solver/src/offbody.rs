@@ -26,7 +26,7 @@ use thiserror::Error;
 use tuft_mesh::{Panel, PanelMesh, Point, Vector};
 
 use crate::influence::image_panels;
-use crate::wake::Wake;
+use crate::wake::{Wake, WakeSolution};
 
 use kernels::{panel_velocity, ring_velocity};
 
@@ -73,6 +73,19 @@ pub enum OffBodyError {
 }
 
 /// The solved flow, ready to be evaluated anywhere.
+///
+/// ```
+/// use tuft_mesh::{generate, Mirrors, PanelMesh, Point, Vector};
+/// use tuft_solver::offbody::FlowField;
+/// use tuft_solver::potential::{solve_potential, Freestream};
+/// let mesh = PanelMesh::new(generate::icosphere(1.0, 2), Mirrors::none()).unwrap();
+/// let sol = solve_potential(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
+/// let field = FlowField::new(&mesh, &sol.sigma, &sol.mu, Vector::x(), None).unwrap();
+/// // Inside the sphere: no velocity. Beside it at r = 2: Lamb's 1 + 1/16.
+/// assert!(field.velocity(&Point::origin()).is_none());
+/// let v = field.velocity(&Point::new(0.0, 2.0, 0.0)).unwrap();
+/// assert!((v.x - 17.0 / 16.0).abs() < 5e-3);
+/// ```
 #[derive(Debug, Clone)]
 pub struct FlowField {
     /// Real panels followed by each image's panels.
@@ -116,7 +129,7 @@ impl FlowField {
         params: OffBodyParams,
     ) -> Result<Self, OffBodyError> {
         check_lengths(mesh, sigma, mu, wake)?;
-        if !(params.far_field_ratio > 0.0) {
+        if params.far_field_ratio.is_nan() || params.far_field_ratio <= 0.0 {
             return Err(OffBodyError::BadFarFieldRatio(params.far_field_ratio));
         }
         let reflections = mesh.mirrors.images();
@@ -136,6 +149,21 @@ impl FlowField {
             ground: mesh.mirrors.ground,
             params,
         })
+    }
+
+    /// The flow field of a solve with a Kutta wake, default settings.
+    ///
+    /// # Errors
+    /// As [`FlowField::new`] (only for a solution of another mesh).
+    pub fn from_wake_solution(mesh: &PanelMesh, sol: &WakeSolution) -> Result<Self, OffBodyError> {
+        let s = &sol.solution;
+        Self::new(
+            mesh,
+            &s.sigma,
+            &s.mu,
+            s.freestream.velocity(),
+            Some(&sol.wake),
+        )
     }
 
     /// Velocity at `p`, or `None` inside the body, inside an image body or

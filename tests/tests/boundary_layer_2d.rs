@@ -261,3 +261,20 @@ fn head_and_ludwieg_tillmann_point_values() {
     // Re_theta 1e4 -> c_f = 0.00234 (derived).
     assert!((head::ludwieg_tillmann(1.4, 1e4) - 0.00234).abs() < 1e-5);
 }
+
+#[test]
+fn forced_transition_at_a_body_fraction() {
+    // A trip at 30 % of the length turns the layer turbulent at the first
+    // station at or past it, with theta continuous and H = 1.4 (common
+    // practice).
+    let (u, nu) = (20.0, 1.5e-5);
+    let samples = line(1000, 0.0, 1.0, |_| u);
+    let p = params(nu, Transition::Forced { x_fraction: 0.3 });
+    let m = march_line(&samples, &LineStart::default(), &p);
+    let k = m.transition.expect("tripped");
+    assert!((samples[k].body_fraction - 0.3).abs() <= 1e-3 + 1e-12);
+    assert_eq!(m.states[k - 1].state, FlowState::Laminar);
+    assert_eq!(m.states[k].state, FlowState::Turbulent);
+    assert!((m.states[k].theta / m.states[k - 1].theta - 1.0).abs() < 0.01);
+    assert!((m.states[k].h - 1.4).abs() < 1e-3);
+}

@@ -109,9 +109,11 @@ pub fn coupe(rear_window_deg: f64, panels: usize) -> Result<TriMesh, MeshError> 
 /// # Errors
 /// [`MeshError::InvalidParameter`] for non-positive sizes, angles outside
 /// (5, 85) degrees, or lengths that leave no room for the blends, the rear
-/// window or a boot deck above the shoulder line.
+/// window or a boot deck above the shoulder line, or a panel count outside
+/// [1, [`MAX_PANELS`](super::MAX_PANELS)].
 pub fn coupe_with_params(p: &CoupeParams) -> Result<TriMesh, MeshError> {
     let body = Body::new(p)?;
+    super::panel_count("panels", p.panels)?;
     let spec = LoftSpec {
         panels: p.panels,
         clustering: 0.4,
@@ -240,13 +242,9 @@ impl Body {
         };
         let room = UNDERBODY[2] + UNDERBODY[3] + 0.6 < l;
         require("length", l, room, "too short for the underbody")?;
-        let ends = p.nose_length + p.tail_length < p.bonnet_length;
-        require(
-            "nose_length",
-            p.nose_length,
-            ends,
-            "nose and tail roundings too long",
-        )?;
+        let nose = p.nose_length < p.bonnet_length - BLENDS[0];
+        let why = "the nose rounding reaches the windscreen";
+        require("nose_length", p.nose_length, nose, why)?;
         Ok(Self {
             length: l,
             height: h,
@@ -400,6 +398,32 @@ mod tests {
                 let err = m.signed_volume() / exact - 1.0;
                 assert!(err.abs() < tol, "{rw} {panels}: volume error {err}");
             }
+        }
+    }
+
+    #[test]
+    fn other_proportions_fill_their_box_too() {
+        // A longer, wider, lower car with a raked screen: the bounding box
+        // still equals the parameters (exact by construction).
+        let p = CoupeParams {
+            length: 4.8,
+            width: 1.95,
+            height: 1.22,
+            ride_height: 0.10,
+            windscreen_deg: 22.0,
+            roof_length: 0.9,
+            rear_window_deg: 18.0,
+            panels: 3000,
+            ..CoupeParams::default()
+        };
+        let m = coupe_with_params(&p).unwrap();
+        check::closed_outward(&m);
+        check::min_angle_above(&m, 10.0);
+        let (lo, hi) = m.bounds().unwrap();
+        let want = ([0.0, -0.975, 0.10], [4.8, 0.975, 1.22]);
+        for k in 0..3 {
+            assert!((lo[k] - want.0[k]).abs() < 1e-9, "min {lo}");
+            assert!((hi[k] - want.1[k]).abs() < 1e-9, "max {hi}");
         }
     }
 

@@ -56,12 +56,14 @@ pub fn ellipsoid(a: f64, b: f64, c: f64, panels: usize) -> Result<TriMesh, MeshE
 ///
 /// # Errors
 /// [`MeshError::InvalidParameter`] when a semi-axis is not a positive
-/// finite number or the clustering is outside [0, 1].
+/// finite number, the clustering is outside [0, 1] or the panel count
+/// outside [1, [`MAX_PANELS`](super::MAX_PANELS)].
 pub fn ellipsoid_with_params(params: &EllipsoidParams) -> Result<TriMesh, MeshError> {
     positive("a", params.a)?;
     positive("b", params.b)?;
     positive("c", params.c)?;
     super::unit_interval("clustering", params.clustering)?;
+    super::panel_count("panels", params.panels)?;
     let spec = LoftSpec {
         panels: params.panels,
         clustering: params.clustering,

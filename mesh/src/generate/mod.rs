@@ -30,6 +30,20 @@ pub use wing::{WingMesh, WingParams, wing, wing_with_params};
 
 use crate::MeshError;
 
+/// Largest panel count a generator accepts (memory stays near a gigabyte;
+/// far beyond what a dense panel solve on one machine can use).
+pub const MAX_PANELS: usize = 10_000_000;
+
+/// A target panel count must lie in [1, [`MAX_PANELS`]].
+fn panel_count(name: &'static str, n: usize) -> Result<(), MeshError> {
+    require(
+        name,
+        n as f64,
+        (1..=MAX_PANELS).contains(&n),
+        "must lie between 1 and 10,000,000",
+    )
+}
+
 /// `value` must be a positive finite number.
 fn positive(name: &'static str, value: f64) -> Result<(), MeshError> {
     require(

@@ -156,7 +156,8 @@ pub fn wing(span: f64, chord: f64, naca: &str, alpha_deg: f64) -> Result<WingMes
 /// [`MeshError::InvalidParameter`] for non-positive sizes, a thickness
 /// outside (0, 0.4], camber outside [0, 0.095] or its position outside
 /// (0, 1), |alpha| of 45 degrees or more, fewer than 2 chordwise panels or
-/// no spanwise panel.
+/// no spanwise panel, or more than [`MAX_PANELS`](super::MAX_PANELS)
+/// chordwise times spanwise panels.
 pub fn wing_with_params(w: &WingParams) -> Result<WingMesh, MeshError> {
     validate(w)?;
     let n = w.chord_panels;
@@ -282,6 +283,10 @@ fn validate(w: &WingParams) -> Result<(), MeshError> {
     )?;
     let ns = w.span_panels as f64;
     require("span_panels", ns, w.span_panels >= 1, "must be at least 1")?;
+    super::panel_count(
+        "chord_panels x span_panels",
+        w.chord_panels.saturating_mul(w.span_panels),
+    )?;
     unit_interval("span_clustering", w.span_clustering)
 }
 

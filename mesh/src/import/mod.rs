@@ -7,4 +7,4 @@ mod units;
 
 pub use stl::{StlFormat, StlReport, read_stl, read_stl_from};
 pub use transform::RigidTransform;
-pub use units::LengthUnit;
+pub use units::{LengthUnit, UnknownUnit};

@@ -2,7 +2,7 @@
 //!
 //! An edge used by one facet is a boundary edge; chained head to tail they
 //! make boundary loops. Each loop is, in this order:
-//! 1. closed by a mirror: every vertex on one declared plane (the image
+//! 1. closed by a mirror: every edge on a declared plane (the image
 //!    body supplies the other side), left open;
 //! 2. a slit: it encloses (numerically) no area, `|A| < ratio * P^2`, as
 //!    after a T-junction or a removed cap sliver; zero width leaks nothing,
@@ -17,7 +17,7 @@
 
 use serde::Serialize;
 
-use super::edges::{edge_groups, sorted_edge_uses};
+use super::edges::{EdgeUse, edge_groups, sorted_edge_uses};
 use crate::fasthash::FastMap;
 use crate::{MeshError, Mirrors, Point, TriMesh, Vector};
 
@@ -30,7 +30,8 @@ pub struct LoopInfo {
     pub perimeter: f64,
     /// Edges around the loop.
     pub edges: usize,
-    /// The mirror plane that closes it, if any (`"ground"` or `"symmetry"`).
+    /// The mirror plane(s) that close it, if any (`"ground"`, `"symmetry"`
+    /// or `"ground and symmetry"`).
     pub plane: Option<&'static str>,
 }
 
@@ -84,7 +85,18 @@ pub fn close_holes(
     component: &mut Vec<u32>,
     s: &HoleSettings,
 ) -> Result<HoleReport, MeshError> {
-    let (half, non_manifold) = boundary_half_edges(&mesh.triangles);
+    let uses = sorted_edge_uses(&mesh.triangles);
+    close_holes_with_uses(mesh, component, s, &uses)
+}
+
+/// As [`close_holes`], given the sorted edge uses of the current facets.
+pub(crate) fn close_holes_with_uses(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    s: &HoleSettings,
+    uses: &[EdgeUse],
+) -> Result<HoleReport, MeshError> {
+    let (half, non_manifold) = boundary_half_edges(&mesh.triangles, uses);
     let loops = chain_loops(&half);
     let mut report = HoleReport {
         loops: loops.len(),
@@ -127,18 +139,21 @@ fn refuse(mut refused: Vec<(usize, LoopInfo)>, limit: f64) -> Result<(), MeshErr
 }
 
 /// Boundary half-edges and the number of non-manifold edges.
-fn boundary_half_edges(triangles: &[[u32; 3]]) -> (Vec<HalfEdge>, usize) {
-    let uses = sorted_edge_uses(triangles);
+/// The direction is read from the facet as it is now (an earlier pass may
+/// have flipped it since the uses were sorted).
+fn boundary_half_edges(triangles: &[[u32; 3]], uses: &[EdgeUse]) -> (Vec<HalfEdge>, usize) {
     let mut half = Vec::new();
     let mut non_manifold = 0;
-    for group in edge_groups(&uses) {
+    for group in edge_groups(uses) {
         match group {
             [u] => {
                 let t = triangles[u.facet as usize];
-                let k = u.side as usize;
+                let (a, b) = u.ends();
+                let runs_ab = (0..3).any(|k| t[k] == a && t[(k + 1) % 3] == b);
+                let (from, to) = if runs_ab { (a, b) } else { (b, a) };
                 half.push(HalfEdge {
-                    from: t[k],
-                    to: t[(k + 1) % 3],
+                    from,
+                    to,
                     facet: u.facet,
                 });
             }
@@ -209,25 +224,35 @@ fn ends(vertices: &[Point], h: &HalfEdge) -> (Point, Point) {
     (vertices[h.from as usize], vertices[h.to as usize])
 }
 
+/// The plane(s) closing a loop: every edge must lie on a declared plane
+/// (both ends within the tolerance). A half model standing on the ground
+/// has loops with edges on both planes.
 fn on_plane(
     vertices: &[Point],
     half: &[HalfEdge],
     edges: &[usize],
     s: &HoleSettings,
 ) -> Option<&'static str> {
-    let all = |f: &dyn Fn(&Point) -> bool| {
-        edges.iter().all(|&e| {
-            let (a, b) = ends(vertices, &half[e]);
-            f(&a) && f(&b)
-        })
-    };
     let tol = s.plane_tolerance;
-    if let Some(h) = s.mirrors.ground
-        && all(&|p| (p.z - h).abs() <= tol)
-    {
-        return Some("ground");
+    let on_ground = |p: &Point| s.mirrors.ground.is_some_and(|h| (p.z - h).abs() <= tol);
+    let on_sym = |p: &Point| s.mirrors.symmetry && p.y.abs() <= tol;
+    let (mut ground, mut sym) = (false, false);
+    for &e in edges {
+        let (a, b) = ends(vertices, &half[e]);
+        if on_ground(&a) && on_ground(&b) {
+            ground = true;
+        } else if on_sym(&a) && on_sym(&b) {
+            sym = true;
+        } else {
+            return None;
+        }
     }
-    (s.mirrors.symmetry && all(&|p| p.y.abs() <= tol)).then_some("symmetry")
+    match (ground, sym) {
+        (true, true) => Some("ground and symmetry"),
+        (true, false) => Some("ground"),
+        (false, true) => Some("symmetry"),
+        (false, false) => None,
+    }
 }
 
 /// Vector area `1/2 sum (a - c) x (b - c)` against the perimeter squared.

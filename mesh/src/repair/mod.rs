@@ -153,7 +153,8 @@ pub fn repair_with_params(
         });
     }
     r.duplicates = drop_duplicates(&mut mesh);
-    let (orientation, mut component) = orient_consistently(&mut mesh);
+    let uses = edges::sorted_edge_uses(&mesh.triangles);
+    let (orientation, mut component) = orient::orient_with_uses(&mut mesh, &uses);
     r.orientation = orientation;
     let settings = HoleSettings {
         mirrors: *mirrors,
@@ -161,7 +162,8 @@ pub fn repair_with_params(
         fill_limit: p.hole_fill * diagonal,
         slit_ratio: p.slit_ratio,
     };
-    r.holes = close_holes(&mut mesh, &mut component, &settings)?;
+    r.holes = holes::close_holes_with_uses(&mut mesh, &mut component, &settings, &uses)?;
+    drop(uses);
     r.outward = orient_outward(&mut mesh, &component, orientation.components, mirrors);
     r.unused_vertices = remove_unused_vertices(&mut mesh);
     r.output_facets = mesh.len();

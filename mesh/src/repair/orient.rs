@@ -9,7 +9,7 @@ use std::collections::VecDeque;
 
 use serde::Serialize;
 
-use super::edges::{edge_groups, sorted_edge_uses};
+use super::edges::{EdgeUse, edge_groups, sorted_edge_uses};
 use crate::TriMesh;
 
 /// What the consistency pass did.
@@ -26,7 +26,14 @@ pub struct OrientReport {
 
 /// Orient consistently in place; returns the report and the part of each facet.
 pub fn orient_consistently(mesh: &mut TriMesh) -> (OrientReport, Vec<u32>) {
-    let neighbours = manifold_neighbours(&mesh.triangles);
+    let uses = sorted_edge_uses(&mesh.triangles);
+    orient_with_uses(mesh, &uses)
+}
+
+/// As [`orient_consistently`], given the sorted edge uses (which flipping
+/// does not change, apart from their directions).
+pub(crate) fn orient_with_uses(mesh: &mut TriMesh, uses: &[EdgeUse]) -> (OrientReport, Vec<u32>) {
+    let neighbours = manifold_neighbours(mesh.triangles.len(), uses);
     let n = mesh.triangles.len();
     let mut component = vec![u32::MAX; n];
     let mut flip = vec![false; n];
@@ -57,10 +64,9 @@ pub fn orient_consistently(mesh: &mut TriMesh) -> (OrientReport, Vec<u32>) {
 /// the edge in the same direction (inconsistent orientation).
 type Neighbours = Vec<[Option<(u32, bool)>; 3]>;
 
-fn manifold_neighbours(triangles: &[[u32; 3]]) -> Neighbours {
-    let uses = sorted_edge_uses(triangles);
-    let mut out: Neighbours = vec![[None; 3]; triangles.len()];
-    for group in edge_groups(&uses) {
+fn manifold_neighbours(facets: usize, uses: &[EdgeUse]) -> Neighbours {
+    let mut out: Neighbours = vec![[None; 3]; facets];
+    for group in edge_groups(uses) {
         if let [a, b] = group
             && a.facet != b.facet
         {

@@ -1,6 +1,6 @@
 //! The surface flow field the streamlines follow: per-panel unit flow
 //! direction and speed, vertex speeds for interpolation, in-plane edge
-//! normals, the spreading term and the sharp-edge flags.
+//! normals, the spreading term, and the sharp-edge test.
 
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
@@ -24,19 +24,16 @@ pub struct SurfaceField {
     /// Streamline spreading `(1/h) dh/ds`: surface divergence of the unit
     /// flow direction, 1/m ([`spreading`]).
     pub spreading: Vec<f64>,
-    /// True for a panel that touches a sharp convex edge ([`sharp_panels`]).
-    pub sharp: Vec<bool>,
 }
 
 impl SurfaceField {
     /// Build the field from one velocity per panel (its tangential part is
-    /// used). `sharp_edge_deg` is the dihedral angle above which an edge is
-    /// sharp.
+    /// used).
     ///
     /// # Panics
     /// If `velocity.len() != mesh.len()` (checked by the caller).
     #[track_caller]
-    pub fn new(mesh: &PanelMesh, velocity: &[Vector3<f64>], sharp_edge_deg: f64) -> Self {
+    pub fn new(mesh: &PanelMesh, velocity: &[Vector3<f64>]) -> Self {
         assert_eq!(velocity.len(), mesh.len(), "one velocity per panel");
         let tangential: Vec<Vector3<f64>> = mesh
             .panels
@@ -50,11 +47,11 @@ impl SurfaceField {
             .map(|v| v.try_normalize(1e-300).unwrap_or_else(Vector3::zeros))
             .collect::<Vec<_>>();
         let inward = mesh.panels.iter().map(inward_normals).collect();
+        let vertex_velocity = vertex_velocities(mesh, &tangential);
         let spreading = spreading(mesh, &direction);
         Self {
             vertex_speed: vertex_speeds(mesh, &speed),
-            vertex_velocity: vertex_velocities(mesh, &tangential),
-            sharp: sharp_panels(mesh, sharp_edge_deg),
+            vertex_velocity,
             direction,
             speed,
             inward,
@@ -154,50 +151,63 @@ fn vertex_velocities(mesh: &PanelMesh, tangential: &[Vector3<f64>]) -> Vec<Vecto
 /// Surface divergence of the unit flow direction `t` per panel, the
 /// streamline spreading `(1/h) dh/ds` (Rott & Crabtree 1952: `h` the
 /// distance between neighbouring streamlines; on a body of revolution
-/// `h = r`). Green-Gauss over the panel's three edges (e.g. Blazek,
-/// *Computational Fluid Dynamics*, 2001, sec. 5.3): `div t = (1/A) sum_k
-/// L_k (t_k . o_k)`, with `o_k` the outward in-plane edge normal and `t_k`
-/// the mean of the panel's and the neighbour's directions, the neighbour's
-/// projected onto the panel's plane. An open edge uses the panel's own
-/// direction; a panel without direction gets zero.
+/// `h = r`, so `(1/h) dh/ds = r'/r`, Mangler).
+///
+/// Least-squares gradient (e.g. Blazek, *Computational Fluid Dynamics*,
+/// 2001, sec. 5.3.4): in the panel's frame `(l, m)`, the directions of the
+/// panel and of its vertex neighbourhood, projected onto the plane, are
+/// fitted by `t(x) = t0 + G x` over the neighbours' centroid offsets; the
+/// divergence is the trace of `G`. The fit is exact for a linear field, so
+/// the estimate converges with the panel size on irregular meshes too.
+/// Panels without direction, or with too few neighbours for a fit, get zero.
 pub fn spreading(mesh: &PanelMesh, direction: &[Vector3<f64>]) -> Vec<f64> {
     (0..mesh.len())
         .map(|t| {
-            let panel = &mesh.panels[t];
-            let own = direction[t];
-            if own == Vector3::zeros() {
+            if direction[t] == Vector3::zeros() {
                 return 0.0;
             }
-            let n = panel.normal.into_inner();
-            let flux: f64 = (0..3)
-                .map(|k| {
-                    let e = panel.vertices[(k + 1) % 3] - panel.vertices[k];
-                    let outward_scaled = e.cross(&n); // |e| times the outward normal
-                    let other = mesh.edge_neighbours[t][k]
-                        .map(|j| direction[j as usize])
-                        .filter(|d| *d != Vector3::zeros())
-                        .map_or(own, |d| d - n * d.dot(&n));
-                    0.5 * (own + other).dot(&outward_scaled)
-                })
-                .sum();
-            flux / panel.area
+            least_squares_divergence(mesh, direction, t).unwrap_or(0.0)
         })
         .collect()
 }
 
-/// Panels touching a sharp convex edge: an edge whose dihedral angle (between
-/// the two normals) exceeds `sharp_edge_deg` and where the surface turns away
-/// (the neighbour's centroid lies below the panel's plane).
-pub fn sharp_panels(mesh: &PanelMesh, sharp_edge_deg: f64) -> Vec<bool> {
-    let cos_limit = sharp_edge_deg.to_radians().cos();
-    (0..mesh.len())
-        .map(|t| {
-            let a = &mesh.panels[t];
-            mesh.edge_neighbours[t].iter().flatten().any(|&j| {
-                let b = &mesh.panels[j as usize];
-                let convex = a.normal.dot(&(b.centroid - a.centroid)) < 0.0;
-                convex && a.normal.dot(&b.normal) < cos_limit
-            })
-        })
-        .collect()
+/// The fit of [`spreading`] for panel `t`; `None` when it is singular.
+fn least_squares_divergence(mesh: &PanelMesh, direction: &[Vector3<f64>], t: usize) -> Option<f64> {
+    let panel = &mesh.panels[t];
+    let (l, m, n) = (
+        panel.l.into_inner(),
+        panel.m.into_inner(),
+        panel.normal.into_inner(),
+    );
+    let mut normal = nalgebra::Matrix3::<f64>::zeros();
+    let mut rhs_u = Vector3::zeros();
+    let mut rhs_v = Vector3::zeros();
+    let own = std::iter::once(t as u32);
+    for j in own.chain(mesh.vertex_neighbourhood(t)) {
+        let dj = direction[j as usize];
+        if dj == Vector3::zeros() {
+            continue;
+        }
+        let d = mesh.panels[j as usize].centroid - panel.centroid;
+        let row = Vector3::new(1.0, d.dot(&l), d.dot(&m));
+        let tj = dj - n * dj.dot(&n);
+        normal += row * row.transpose();
+        rhs_u += row * tj.dot(&l);
+        rhs_v += row * tj.dot(&m);
+    }
+    let scale = panel.size * panel.size;
+    let conditioned = normal.determinant().abs() > 1e-12 * scale * scale * normal[(0, 0)].powi(3);
+    let inverse = normal.try_inverse().filter(|_| conditioned)?;
+    let gu = inverse * rhs_u;
+    let gv = inverse * rhs_v;
+    Some(gu[1] + gv[2])
+}
+
+/// True when the edge between panels `a` and `b` is sharp and convex: the
+/// angle between the normals exceeds `sharp_edge_deg` and the surface turns
+/// away (`b`'s centroid lies below `a`'s plane).
+pub fn sharp_convex(mesh: &PanelMesh, a: usize, b: usize, sharp_edge_deg: f64) -> bool {
+    let (pa, pb) = (&mesh.panels[a], &mesh.panels[b]);
+    let convex = pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0;
+    convex && pa.normal.dot(&pb.normal) < sharp_edge_deg.to_radians().cos()
 }

@@ -171,8 +171,16 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
         }
         Phase::Separated(held) => *held,
     };
-    if state.state == FlowState::Turbulent && state.h >= ctx.params.separation_h {
-        return separate(phase, out, ctx.i, Some(state), theta0, ctx.params);
+    let finite = state.theta.is_finite() && state.h.is_finite();
+    if state.state == FlowState::Turbulent && (!finite || state.h >= ctx.params.separation_h) {
+        // A march that ran out of range (edge speed near zero) counts as
+        // separated, holding the last finite state.
+        let last = if finite {
+            Some(state)
+        } else {
+            out.states.last().copied()
+        };
+        return separate(phase, out, ctx.i, last, theta0, ctx.params);
     }
     state
 }

@@ -13,11 +13,13 @@
 //!   suction peak that grows without bound as the panels shrink, so no
 //!   verdict can rest on it. A gentler turn (a 10-40 degree slant) is left to
 //!   the boundary layer.
-//! - **Edge peaks.** On panels that touch a sharp convex edge (dihedral angle
-//!   above `params.sharp_edge_deg`) the speed seen by the march is the
-//!   linear interpolation between the last station before and the first
-//!   station after those panels, so the edge's mesh-dependent suction peak
-//!   and its recovery do not drive `H` on the next panels.
+//! - **Edge peaks.** Where a streamline crosses a sharp convex edge
+//!   (dihedral angle above `params.sharp_edge_deg`), the speed the march
+//!   sees on the two panels either side of the crossing is the linear
+//!   interpolation between the last station before and the first station
+//!   after them, so the edge's mesh-dependent suction peak and its recovery
+//!   do not drive `H` on the next panels. Edges the flow runs along are left
+//!   alone.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -36,7 +38,7 @@ use rayon::prelude::*;
 use tuft_mesh::PanelMesh;
 
 use super::attachment::{self, Seed};
-use super::field::SurfaceField;
+use super::field::{SurfaceField, sharp_convex};
 use super::march::{self, LineMarch, LineSample, LineStart};
 use super::streamlines::{Trace, Tracer};
 use super::{BoundaryLayerError, BoundaryLayerParams, FlowState, thwaites};
@@ -102,8 +104,8 @@ pub struct BoundaryLayer {
     /// Panels where a streamline separated (sorted, unique).
     pub separation_panels: Vec<u32>,
     /// For each separated panel, the panel whose pressure holds at its
-    /// separation point (the last panel before the separation point that
-    /// does not touch a sharp edge); `None` elsewhere.
+    /// separation point (the last panel before the separation point that is
+    /// not beside a sharp-edge crossing); `None` elsewhere.
     pub separation_source: Vec<Option<u32>>,
     /// The attachment panels the lines started from.
     pub attachments: Vec<u32>,
@@ -130,7 +132,7 @@ pub fn screen_boundary_layer(
 ) -> Result<BoundaryLayer, BoundaryLayerError> {
     check_inputs(mesh, velocity, speed)?;
     params.validate()?;
-    let field = SurfaceField::new(mesh, velocity, params.sharp_edge_deg);
+    let field = SurfaceField::new(mesh, velocity);
     let flow_dir = flow_direction(mesh, velocity, params);
     let tracer = Tracer {
         mesh,
@@ -253,13 +255,15 @@ impl<'a> LineContext<'a> {
         let x_range = xs.fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), x| {
             (lo.min(x), hi.max(x))
         });
-        let mean_size = mesh.panels.iter().map(|p| p.size).sum::<f64>() / mesh.len() as f64;
+        let mut sizes: Vec<f64> = mesh.panels.iter().map(|p| p.size).collect();
+        sizes.sort_by(f64::total_cmp);
+        let median_size = sizes[sizes.len() / 2];
         Self {
             mesh,
             field,
             flow_dir: *flow_dir,
             x_range,
-            step: 0.5 * mean_size,
+            step: 0.5 * median_size,
             params,
         }
     }
@@ -268,11 +272,12 @@ impl<'a> LineContext<'a> {
     fn run(&self, tracer: &Tracer, seed: &Seed) -> LineResult {
         let trace = tracer.trace(seed.panel, seed.point, 1.0);
         let arc = arc_lengths(&trace.points);
-        let (mut samples, panels_of) = self.samples(&trace, &arc);
-        self.clip_edge_peaks(&mut samples, &panels_of);
+        let peak = self.peak_segments(&trace);
+        let (mut samples, segments) = self.samples(&trace, &arc);
+        clip_edge_peaks(&mut samples, |k| peak[segments[k]]);
         let start = self.start(seed, samples.first().map_or(0.0, |s| s.speed));
         let marched = march::march_line(&samples, &start, self.params);
-        self.split(trace, arc, &samples, &marched)
+        self.split(trace, arc, &peak, &samples, &marched)
     }
 
     /// Stagnation start at distance `r` from the attachment point with
@@ -293,14 +298,38 @@ impl<'a> LineContext<'a> {
         }
     }
 
-    /// Evenly spaced stations along the trace (half the mean panel size
-    /// apart), with the panel holding each.
-    fn samples(&self, trace: &Trace, arc: &[f64]) -> (Vec<LineSample>, Vec<u32>) {
+    /// Segments on the panels either side of each crossing of a sharp convex
+    /// edge (the runs of segments in the panel before and after it).
+    fn peak_segments(&self, trace: &Trace) -> Vec<bool> {
+        let p = &trace.panels;
+        let mut peak = vec![false; p.len()];
+        for j in 1..p.len() {
+            let (a, b) = (p[j - 1] as usize, p[j] as usize);
+            if a == b || !sharp_convex(self.mesh, a, b, self.params.sharp_edge_deg) {
+                continue;
+            }
+            let mut i = j;
+            while i > 0 && p[i - 1] as usize == a {
+                i -= 1;
+                peak[i] = true;
+            }
+            let mut i = j;
+            while i < p.len() && p[i] as usize == b {
+                peak[i] = true;
+                i += 1;
+            }
+        }
+        peak
+    }
+
+    /// Evenly spaced stations along the trace (half the median panel size
+    /// apart), with the segment holding each.
+    fn samples(&self, trace: &Trace, arc: &[f64]) -> (Vec<LineSample>, Vec<usize>) {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
         let mut out = Vec::with_capacity(n + 1);
-        let mut panels = Vec::with_capacity(n + 1);
+        let mut segments = Vec::with_capacity(n + 1);
         let mut seg = 0;
         let mut next_forced = 0;
         for k in 0..=n {
@@ -324,9 +353,9 @@ impl<'a> LineContext<'a> {
                 body_fraction: self.body_fraction(&p),
                 forced_separation: forced_here,
             });
-            panels.push(panel);
+            segments.push(seg);
         }
-        (out, panels)
+        (out, segments)
     }
 
     fn body_fraction(&self, p: &Point3<f64>) -> f64 {
@@ -349,35 +378,33 @@ impl<'a> LineContext<'a> {
             .collect()
     }
 
-    /// Replace the speed on stations in panels touching a sharp edge by the
-    /// linear interpolation between the nearest clean stations (module doc).
-    fn clip_edge_peaks(&self, samples: &mut [LineSample], panels: &[u32]) {
-        let sharp = |k: usize| self.field.sharp[panels[k] as usize];
-        let mut k = 0;
-        while k < samples.len() {
-            if !sharp(k) {
-                k += 1;
-                continue;
-            }
-            let first = k;
-            while k < samples.len() && sharp(k) {
-                k += 1;
-            }
-            interpolate_run(samples, first, k);
-        }
-    }
-
     /// Split the marched line over its segments.
     fn split(
         &self,
         mut trace: Trace,
         mut arc: Vec<f64>,
+        peak: &[bool],
         samples: &[LineSample],
         marched: &LineMarch,
     ) -> LineResult {
-        let sep_s = marched.separation.map(|k| samples[k].s);
+        // At a bluff edge the line separates at the edge crossing itself and
+        // the pressure is held at the last clean panel before it.
+        let bluff = self.bluff_crossings(&trace);
+        let crossing = |k: usize| {
+            let seg = arc
+                .partition_point(|&a| a <= samples[k].s)
+                .saturating_sub(1);
+            let j = bluff.iter().rev().find(|&&j| j <= seg).copied();
+            j.filter(|_| samples[k].forced_separation)
+        };
+        let sep_s = marched
+            .separation
+            .map(|k| crossing(k).map_or(samples[k].s, |j| arc[j]));
+        let source = marched.separation.map(|k| {
+            let s = crossing(k).map_or(samples[k].s, |j| arc[j.saturating_sub(1)]);
+            clean_panel_before(&trace, &arc, peak, s)
+        });
         let separated_at = sep_s.map(|s| insert_point(&mut trace, &mut arc, s));
-        let source = separated_at.map(|j| self.clean_panel_before(&trace, j));
         let station_of = |s: f64| -> usize {
             let k = (s / self.step.max(1e-300)).round() as usize;
             let k = k.min(samples.len().saturating_sub(1));
@@ -440,24 +467,50 @@ impl<'a> LineContext<'a> {
             },
         }
     }
+}
 
-    /// The last panel at or before segment `j` that does not touch a sharp
-    /// edge (the separation point's own panel when all do).
-    fn clean_panel_before(&self, trace: &Trace, j: usize) -> u32 {
-        let j = j.min(trace.panels.len().saturating_sub(1));
-        (0..=j)
-            .rev()
-            .map(|i| trace.panels[i])
-            .find(|&t| !self.field.sharp[t as usize])
-            .unwrap_or(trace.panels.get(j).copied().unwrap_or(0))
+/// The panel of the last segment at or before arc length `s` that is not on
+/// either side of a sharp-edge crossing (the segment at `s` when all are).
+fn clean_panel_before(trace: &Trace, arc: &[f64], peak: &[bool], s: f64) -> u32 {
+    let last = trace.panels.len().saturating_sub(1);
+    let j = arc.partition_point(|&a| a <= s).saturating_sub(1).min(last);
+    let clean = (0..=j)
+        .rev()
+        .find(|&i| !peak.get(i).copied().unwrap_or(false));
+    trace.panels.get(clean.unwrap_or(j)).copied().unwrap_or(0)
+}
+
+/// Replace the speed on the stations flagged by `peak` by the linear
+/// interpolation between the nearest clean stations (module doc).
+fn clip_edge_peaks(samples: &mut [LineSample], peak: impl Fn(usize) -> bool) {
+    let mut k = 0;
+    while k < samples.len() {
+        if !peak(k) {
+            k += 1;
+            continue;
+        }
+        let first = k;
+        while k < samples.len() && peak(k) {
+            k += 1;
+        }
+        interpolate_run(samples, first, k);
     }
 }
 
 /// Linear interpolation of the speed over stations `first..end` between
-/// stations `first - 1` and `end` (held constant at an open end).
+/// stations `first - 1` and `end`; held at the value of `first - 1` when the
+/// run ends at a bluff edge (the flow leaves there, so the speeds beyond it
+/// must not reach back) or at the end of the line.
 fn interpolate_run(samples: &mut [LineSample], first: usize, end: usize) {
     let before = first.checked_sub(1).map(|i| samples[i]);
-    let after = samples.get(end).copied();
+    let bluff = samples[first..(end + 1).min(samples.len())]
+        .iter()
+        .any(|s| s.forced_separation);
+    let after = if bluff {
+        None
+    } else {
+        samples.get(end).copied()
+    };
     for sample in &mut samples[first..end] {
         sample.speed = match (before, after) {
             (Some(a), Some(b)) => {
@@ -538,7 +591,7 @@ fn combine(
         separation_panels.extend(line.separation_panel);
         streamlines.push(line.line);
     }
-    fill(mesh, &mut best, params.fill_hops);
+    fill(mesh, &mut best, params);
     transition_panels.sort_unstable();
     transition_panels.dedup();
     separation_panels.sort_unstable();
@@ -559,8 +612,10 @@ fn combine(
 }
 
 /// Breadth-first fill of panels without a line from the nearest panel with
-/// one, at most `hops` edge steps away.
-fn fill(mesh: &PanelMesh, best: &mut [Option<Contribution>], hops: usize) {
+/// one, at most `params.fill_hops` edge steps away, never across a sharp
+/// convex edge (the state may jump there: a bluff base edge).
+fn fill(mesh: &PanelMesh, best: &mut [Option<Contribution>], params: &BoundaryLayerParams) {
+    let hops = params.fill_hops;
     let mut depth: Vec<usize> = best
         .iter()
         .map(|b| if b.is_some() { 0 } else { usize::MAX })
@@ -572,7 +627,7 @@ fn fill(mesh: &PanelMesh, best: &mut [Option<Contribution>], hops: usize) {
         }
         for j in mesh.edge_neighbours[t].iter().flatten() {
             let j = *j as usize;
-            if depth[j] == usize::MAX {
+            if depth[j] == usize::MAX && !sharp_convex(mesh, t, j, params.sharp_edge_deg) {
                 depth[j] = depth[t] + 1;
                 best[j] = best[t].map(|c| Contribution {
                     panel: j as u32,

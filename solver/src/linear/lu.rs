@@ -79,6 +79,24 @@ impl DenseLu {
         solve::solve_transpose_in_place(lu, lu, perm, rhs, par(), MemStack::new(&mut buf));
     }
 
+    /// Solve `C x_k = b_k` for several right-hand sides at once.
+    ///
+    /// # Panics
+    /// If a right-hand side does not have [`Self::len`] entries.
+    #[track_caller]
+    pub fn solve_many(&self, rhs: &[Vec<f64>]) -> Vec<Vec<f64>> {
+        let n = self.len();
+        assert!(
+            rhs.iter().all(|b| b.len() == n),
+            "one right-hand-side row per panel"
+        );
+        let mut x = Mat::from_fn(n, rhs.len(), |i, k| rhs[k][i]);
+        self.solve_in_place(x.as_mut());
+        (0..rhs.len())
+            .map(|k| (0..n).map(|i| x[(i, k)]).collect())
+            .collect()
+    }
+
     /// Solve `C x = b` for one right-hand side.
     ///
     /// # Panics

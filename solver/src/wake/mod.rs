@@ -23,8 +23,8 @@ pub use detect::{
     trailing_edges_from_list,
 };
 pub use kutta::{
-    Wake, WakeParams, WakeSolution, add_wake_columns, solve_potential_with_wake,
-    solve_potential_with_wake_params, wake_panels,
+    Wake, WakeParams, WakeSolution, add_wake_columns, side_weights, solve_potential_with_wake,
+    solve_potential_with_wake_params, wake_panels, wake_strengths,
 };
 pub use split::{sharp_edges, split_edges, split_trailing_edges};
 

@@ -42,10 +42,11 @@ pub fn sharp_edges(mesh: &PanelMesh, min_normal_angle_deg: f64) -> Vec<[u32; 2]>
     let mut out = Vec::new();
     for (t, tri) in mesh.triangles.iter().enumerate() {
         for k in 0..3 {
-            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize) {
-                if o > t && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos {
-                    out.push([tri[k], tri[(k + 1) % 3]]);
-                }
+            if let Some(o) = mesh.edge_neighbours[t][k].map(|o| o as usize)
+                && o > t
+                && mesh.panels[t].normal.dot(&mesh.panels[o].normal) < cos
+            {
+                out.push([tri[k], tri[(k + 1) % 3]]);
             }
         }
     }
@@ -143,5 +144,36 @@ impl UnionFind {
         if ra != rb {
             self.0[ra] = rb;
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::wake::find_trailing_edges;
+    use tuft_mesh::generate::{WingParams, wing_with_params};
+    use tuft_mesh::{Mirrors, Vector};
+
+    /// After the cut no panel of the upper surface touches one of the
+    /// lower surface across the trailing edge, and the geometry is intact.
+    #[test]
+    fn trailing_edge_cut_separates_the_sides() {
+        let w = wing_with_params(&WingParams {
+            chord_panels: 8,
+            span_panels: 6,
+            ..WingParams::default()
+        })
+        .unwrap_or_else(|e| panic!("{e}"));
+        let mesh = PanelMesh::new(w.mesh, Mirrors::none()).unwrap_or_else(|e| panic!("{e}"));
+        let edges = find_trailing_edges(&mesh, &Vector::x());
+        let cut = split_trailing_edges(&mesh, &edges).unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(cut.panels, mesh.panels);
+        for e in &edges {
+            assert!(!cut.edge_neighbours[e.upper].contains(&Some(e.lower as u32)));
+            assert!(!cut.edge_neighbours[e.lower].contains(&Some(e.upper as u32)));
+        }
+        // Interior trailing-edge vertices are doubled; the two tip ends are
+        // not (the cut ends there).
+        assert_eq!(cut.vertices.len(), mesh.vertices.len() + edges.len() - 1);
     }
 }
