@@ -3,7 +3,7 @@
 use anyhow::{Context, Result, bail};
 use tuft_mesh::generate::{self, AhmedParams, CoupeParams};
 use tuft_mesh::prepare::{PrepareParams, PrepareReport, prepare, prepare_mesh};
-use tuft_mesh::{LengthUnit, Mirrors, PanelMesh, TriMesh};
+use tuft_mesh::{LengthUnit, MeshError, Mirrors, PanelMesh, TriMesh};
 
 use crate::case::{Case, GeometrySource};
 
@@ -40,8 +40,9 @@ pub fn load(case: &Case) -> Result<Geometry> {
                 target_panels: g.panels,
                 ..PrepareParams::default()
             };
-            let (mesh, report) =
-                prepare(path, &params).with_context(|| path.display().to_string())?;
+            let (mesh, report) = prepare(path, &params)
+                .map_err(|e| name_mirror_keys(e, case))
+                .with_context(|| format!("geometry.stl = \"{}\"", path.display()))?;
             let facets = report.read.as_ref().map_or(0, |r| r.facets);
             (mesh, report, facets)
         }
@@ -55,6 +56,7 @@ pub fn load(case: &Case) -> Result<Geometry> {
                 ..PrepareParams::default()
             };
             let (mesh, report) = prepare_mesh(body, None, &params)
+                .map_err(|e| name_mirror_keys(e, case))
                 .with_context(|| format!("geometry.shape = \"{name}\""))?;
             (mesh, report, facets)
         }
@@ -65,6 +67,21 @@ pub fn load(case: &Case) -> Result<Geometry> {
         input_facets,
         report,
     })
+}
+
+/// A mirror-plane refusal names the case keys that declared the planes.
+fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
+    if !matches!(err, MeshError::Mirror(_)) {
+        return err.into();
+    }
+    let mut keys = Vec::new();
+    if let Some(g) = &case.file.ground {
+        keys.push(format!("ground.z = {}", g.z));
+    }
+    if case.file.geometry.half_model {
+        keys.push("geometry.half_model = true".to_string());
+    }
+    anyhow::Error::new(err).context(keys.join(", "))
 }
 
 fn unit_of(scale: f64) -> LengthUnit {

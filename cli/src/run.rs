@@ -85,7 +85,8 @@ pub fn run(args: &RunArgs) -> Result<ExitCode> {
         .out
         .clone()
         .unwrap_or_else(|| default_out(&args.case, &case.name));
-    let summary = run_case(&case, &out, &args.options)?;
+    let summary =
+        run_case(&case, &out, &args.options).with_context(|| args.case.display().to_string())?;
     finish(&out, &summary, args.options.quiet)
 }
 

@@ -1,5 +1,5 @@
 //! End-to-end tests of `tuft check` on generated STL files in a fresh
-//! temporary folder.
+//! temporary folder, and on the committed case STL.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
 use std::io::Write;
@@ -8,25 +8,10 @@ use std::process::{Command, Output};
 
 use tuft_mesh::{TriMesh, generate};
 
-/// The release `tuft` binary of this workspace (`TUFT_BIN` overrides), built
-/// first if it is missing (a plain `cargo test --release --workspace` has
-/// already built it).
+/// The binary under test, as Cargo built it for these tests (never a
+/// stale copy found on disk).
 fn tuft() -> PathBuf {
-    if let Some(bin) = std::env::var_os("TUFT_BIN") {
-        return PathBuf::from(bin);
-    }
-    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("..");
-    let target = std::env::var_os("CARGO_TARGET_DIR").map_or(root.join("target"), PathBuf::from);
-    let bin = target.join("release").join("tuft");
-    if !bin.exists() {
-        let status = Command::new(env!("CARGO"))
-            .args(["build", "--release", "-p", "tuft"])
-            .current_dir(&root)
-            .status()
-            .unwrap();
-        assert!(status.success(), "building tuft failed");
-    }
-    bin
+    PathBuf::from(env!("CARGO_BIN_EXE_tuft"))
 }
 
 fn write_binary_stl(path: &Path, mesh: &TriMesh, scale: f64) {
@@ -84,6 +69,16 @@ fn check_reports_a_generated_sphere() {
         "{area}"
     );
     assert!(report["panels"].as_u64().unwrap() <= 2000);
+}
+
+#[test]
+fn check_accepts_the_committed_coupe() {
+    let stl = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/coupe.stl");
+    let out = check(&[stl.to_str().unwrap(), "--units", "mm"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    assert!(stdout.contains("3956 facets"), "{stdout}");
+    assert!(stdout.contains("verdict    usable"), "{stdout}");
 }
 
 #[test]

@@ -1,0 +1,239 @@
+//! End-to-end: refusals of bad case files, result folders that are never
+//! overwritten without `--force`, `--quiet`, and `tuft demo`, each in a
+//! fresh temporary folder.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod common;
+
+use std::path::Path;
+
+use common::{cases_dir, entries, tuft};
+
+/// Write `files` (name, contents) into a fresh folder, copying `coupe.stl`
+/// from `cases/` when asked, and run `tuft run STEM.toml` there.
+/// The run must be refused: exit 2, exactly one error line (the last line
+/// on stderr, after any progress lines of the case) naming the case file
+/// and every one of `names`, and nothing left in the folder but the inputs.
+fn refused(stem: &str, case: &str, with_stl: bool, names: &[&str]) {
+    let dir = tempfile::tempdir().unwrap();
+    let file = format!("{stem}.toml");
+    std::fs::write(dir.path().join(&file), case).unwrap();
+    if with_stl {
+        std::fs::copy(cases_dir().join("coupe.stl"), dir.path().join("coupe.stl")).unwrap();
+    }
+    let before = entries(dir.path());
+    let o = tuft(dir.path(), &["run", &file]);
+    assert_eq!(o.code, 2, "exit code; stderr: {}", o.stderr);
+    let lines: Vec<&str> = o.stderr.lines().collect();
+    let errors: Vec<&&str> = lines.iter().filter(|l| l.starts_with("tuft:")).collect();
+    assert_eq!(errors.len(), 1, "one error line: {:?}", o.stderr);
+    let error = *errors[0];
+    assert_eq!(lines.last(), Some(&error), "the error comes last");
+    for l in &lines[..lines.len() - 1] {
+        assert!(l.starts_with(&format!("{stem}: ")), "progress line: {l}");
+    }
+    assert!(error.contains(&file), "names the file: {error}");
+    for n in names {
+        assert!(error.contains(n), "names {n}: {error}");
+    }
+    assert!(o.stdout.is_empty(), "nothing on stdout: {}", o.stdout);
+    // No result folder and no half-written staging folder.
+    assert_eq!(entries(dir.path()), before);
+}
+
+const SPHERE: &str = "[geometry]\nshape = \"sphere\"\n";
+
+#[test]
+fn negative_speed_is_refused() {
+    refused(
+        "negative-speed",
+        &format!("{SPHERE}[flow]\nspeed = -40.0\n"),
+        false,
+        &["flow.speed"],
+    );
+}
+
+#[test]
+fn yaw_with_a_half_model_is_refused() {
+    refused(
+        "yawed-half",
+        "[geometry]\nstl = \"coupe.stl\"\nhalf_model = true\n[flow]\nyaw = 5.0\n",
+        true,
+        &["flow.yaw", "half_model"],
+    );
+}
+
+#[test]
+fn unknown_key_is_refused() {
+    refused(
+        "unknown-key",
+        &format!("{SPHERE}[flow]\nsped = 40.0\n"),
+        false,
+        &["sped"],
+    );
+}
+
+#[test]
+fn wrong_type_is_refused() {
+    refused(
+        "wrong-type",
+        &format!("{SPHERE}[flow]\nspeed = \"fast\"\n"),
+        false,
+        &["speed", "line 4"],
+    );
+}
+
+#[test]
+fn ground_plane_above_the_body_is_refused() {
+    // The built-in sphere has radius 0.5 m about z = 0: a ground at
+    // z = 0.2 m cuts through it.
+    refused(
+        "ground-above",
+        &format!("{SPHERE}[ground]\nz = 0.2\n"),
+        false,
+        &["ground.z"],
+    );
+}
+
+#[test]
+fn missing_stl_is_refused() {
+    refused(
+        "missing-stl",
+        "[geometry]\nstl = \"nothere.stl\"\n",
+        false,
+        &["geometry.stl", "nothere.stl"],
+    );
+}
+
+#[test]
+fn malformed_toml_is_refused() {
+    refused(
+        "malformed",
+        "[geometry\nshape = \"sphere\"\n",
+        false,
+        &["geometry", "line 1"],
+    );
+}
+
+#[test]
+fn bad_units_are_refused() {
+    refused(
+        "bad-units",
+        "[geometry]\nstl = \"coupe.stl\"\nunits = \"furlong\"\n",
+        true,
+        &["geometry.units", "furlong"],
+    );
+}
+
+#[test]
+fn forced_transition_without_its_position_is_refused() {
+    refused(
+        "forced",
+        &format!("{SPHERE}[boundary_layer]\ntransition = \"forced\"\n"),
+        false,
+        &["boundary_layer.forced_at"],
+    );
+}
+
+/// A case small enough to run in a second or two: the sphere at its
+/// coarsest (80 panels).
+const TINY: &str = "[geometry]\nshape = \"sphere\"\npanels = 100\n\
+                    [reference]\nfront_axle_x = -0.3\nrear_axle_x = 0.3\n";
+
+fn file_list_and_bytes(dir: &Path) -> Vec<(String, Vec<u8>)> {
+    entries(dir)
+        .into_iter()
+        .map(|e| {
+            let bytes = std::fs::read(dir.join(&e)).unwrap();
+            (e, bytes)
+        })
+        .collect()
+}
+
+#[test]
+fn existing_results_are_kept_without_force_and_replaced_with_it() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("tiny.toml"), TINY).unwrap();
+    // --quiet: nothing on stdout or stderr.
+    let o = tuft(dir.path(), &["run", "tiny.toml", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    assert!(
+        o.stdout.is_empty() && o.stderr.is_empty(),
+        "quiet: {o:?}",
+        o = o.stderr
+    );
+    // The default result folder sits beside the case, named after it.
+    let out = dir.path().join("tiny");
+    assert!(out.join("summary.json").is_file());
+    std::fs::write(out.join("notes.txt"), "mine").unwrap();
+    let before = file_list_and_bytes(&out);
+
+    let o = tuft(dir.path(), &["run", "tiny.toml", "--quiet"]);
+    assert_eq!(o.code, 2);
+    assert_eq!(o.stderr.lines().count(), 1, "{}", o.stderr);
+    assert!(o.stderr.starts_with("tuft:"), "{}", o.stderr);
+    assert!(o.stderr.contains("tiny") && o.stderr.contains("--force"));
+    assert_eq!(file_list_and_bytes(&out), before, "untouched");
+
+    let o = tuft(dir.path(), &["run", "tiny.toml", "--force", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    assert!(!out.join("notes.txt").exists(), "replaced whole");
+    assert!(out.join("summary.json").is_file());
+    assert_eq!(
+        entries(dir.path()),
+        ["tiny", "tiny.toml"],
+        "no staging left"
+    );
+}
+
+#[test]
+fn demo_writes_two_reports() {
+    let dir = tempfile::tempdir().unwrap();
+    let o = tuft(dir.path(), &["demo", "--out", "demo"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let demo = dir.path().join("demo");
+    let runs = entries(&demo);
+    assert_eq!(runs.len(), 2, "{runs:?}");
+    for run in &runs {
+        let report = demo.join(run).join("report.html");
+        assert!(report.is_file(), "{run}");
+        assert!(
+            o.stdout.contains(
+                &report
+                    .strip_prefix(dir.path())
+                    .unwrap()
+                    .display()
+                    .to_string()
+            )
+        );
+        let summary: serde_json::Value = serde_json::from_str(
+            &std::fs::read_to_string(demo.join(run).join("summary.json")).unwrap(),
+        )
+        .unwrap();
+        assert!(
+            summary["coefficients"]["drag"]
+                .as_f64()
+                .unwrap()
+                .is_finite()
+        );
+    }
+}
+
+#[test]
+fn the_readme_case_file_runs() {
+    // The README's example case file, with the committed coupe as its STL
+    // (both in millimetres, axles at the same places).
+    let readme = std::fs::read_to_string(cases_dir().join("../README.md")).unwrap();
+    let start = readme.find("```toml\n").expect("a TOML example") + "```toml\n".len();
+    let case = &readme[start..start + readme[start..].find("```").unwrap()];
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("my-car.toml"), case).unwrap();
+    std::fs::copy(cases_dir().join("coupe.stl"), dir.path().join("my-car.stl")).unwrap();
+    let o = tuft(dir.path(), &["run", "my-car.toml", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let summary: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("my-car/summary.json")).unwrap(),
+    )
+    .unwrap();
+    assert_eq!(summary["reference"]["front_axle_x_m"].as_f64(), Some(0.95));
+}
