@@ -1,0 +1,77 @@
+//! A symmetric body run as a half model (symmetry plane y = 0, by images)
+//! gives the same loads as the full model: the image method is an exact
+//! identity of the panel method (Katz & Plotkin, *Low-Speed Aerodynamics*,
+//! 2nd ed., 2001, sec. 12.x on images; the reflected panels carry the same
+//! singularity strengths), so the only differences are round-off.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use tuft_mesh::generate::{AhmedParams, ahmed_with_params};
+use tuft_mesh::{Mirrors, PanelMesh};
+use tuft_solver::loads::{FlowState, Reference, integrate_loads};
+use tuft_solver::{Freestream, solve_potential};
+
+fn loads(half: bool) -> (usize, tuft_solver::loads::Loads) {
+    let body = ahmed_with_params(&AhmedParams {
+        slant_deg: 25.0,
+        panels: 1600,
+        half,
+        ..Default::default()
+    })
+    .unwrap();
+    let mirrors = Mirrors {
+        ground: Some(0.0),
+        symmetry: half,
+    };
+    let mesh = PanelMesh::new(body, mirrors).unwrap();
+    let sol = solve_potential(&mesh, &Freestream::new(40.0, 0.0)).unwrap();
+    let reference = Reference::from_mesh(&mesh, 0.2, 0.85);
+    let air = FlowState {
+        density: 1.204,
+        speed: 40.0,
+        yaw: 0.0,
+    };
+    (
+        mesh.len(),
+        integrate_loads(&mesh, &sol.cp, None, &reference, &air).unwrap(),
+    )
+}
+
+#[test]
+fn half_model_gives_the_full_model_loads() {
+    let (n_full, full) = loads(false);
+    let (n_half, half) = loads(true);
+    // Half the unknowns: a quarter of the dense matrix.
+    assert_eq!(
+        2 * n_half,
+        n_full,
+        "the half model holds exactly half the panels"
+    );
+    let rel = |a: f64, b: f64| (a - b).abs() / b.abs().max(1e-12);
+    let (cf, ch) = (full.total.coefficients, half.total.coefficients);
+    println!(
+        "full: lift {:.9} drag {:.9} pitch {:.9}; half: lift {:.9} drag {:.9} pitch {:.9}",
+        cf.lift, cf.drag, cf.pitch, ch.lift, ch.drag, ch.pitch
+    );
+    // Same loads within 1e-6 relative (image identity, round-off only).
+    assert!(
+        rel(half.lift, full.lift) < 1e-6,
+        "lift {} vs {}",
+        half.lift,
+        full.lift
+    );
+    assert!(
+        rel(ch.drag, cf.drag) < 1e-6,
+        "drag {} vs {}",
+        ch.drag,
+        cf.drag
+    );
+    assert!(
+        rel(ch.pitch, cf.pitch) < 1e-6,
+        "pitch {} vs {}",
+        ch.pitch,
+        cf.pitch
+    );
+    assert!(rel(half.axles.front, full.axles.front) < 1e-6);
+    // By symmetry the half model has no side force at all.
+    assert!(ch.side.abs() < 1e-12);
+}
