@@ -1,6 +1,6 @@
 //! Assembly of the Dirichlet influence system, mirror images folded in.
 //!
-//! Katz & Plotkin (2001), eqs. 12.14-12.16 with constant-strength panels:
+//! Katz & Plotkin (2001), sec. 12.2 (from memory) with constant-strength panels:
 //! at each collocation point (panel centroid, just inside the body)
 //!
 //! ```text
@@ -27,7 +27,8 @@ use crate::potential::PotentialParams;
 
 /// Influence of a panel on its own centroid, from the inside of the body:
 /// the exact source integral and the doublet limit `-1/2` (Katz & Plotkin
-/// 2001, eq. 10.8: the jump of a doublet sheet is `mu`, half on each side).
+/// 2001, ch. 10 (from memory): the jump of a doublet sheet is `mu`, half
+/// on each side).
 pub fn self_influence(panel: &Panel) -> Influence {
     let raw = triangle::exact(&panel.centroid, panel);
     Influence {
@@ -276,7 +277,7 @@ pub fn doublet_column(mesh: &PanelMesh, panel: &Panel, far_field_ratio: f64) -> 
 
 /// Potential at an arbitrary point from given strengths, images included:
 /// `phi(P) = sum_j [sigma_j source_j(P) - mu_j doublet_j(P)]` (Katz &
-/// Plotkin 2001, eq. 10.8). Exact at points off the surface.
+/// Plotkin 2001, ch. 10). Exact at points off the surface.
 ///
 /// # Panics
 /// If `sigma` or `mu` is not one value per panel.
