@@ -1,6 +1,6 @@
 //! Assembly of the Dirichlet influence system, mirror images folded in.
 //!
-//! Katz & Plotkin (2001), eqs. 12.14-12.16 with constant-strength panels:
+//! Katz & Plotkin (2001), sec. 12.2 (from memory) with constant-strength panels:
 //! at each collocation point (panel centroid, just inside the body)
 //!
 //! ```text
@@ -27,7 +27,8 @@ use crate::potential::PotentialParams;
 
 /// Influence of a panel on its own centroid, from the inside of the body:
 /// the exact source integral and the doublet limit `-1/2` (Katz & Plotkin
-/// 2001, eq. 10.8: the jump of a doublet sheet is `mu`, half on each side).
+/// 2001, ch. 10 (from memory): the jump of a doublet sheet is `mu`, half
+/// on each side).
 pub fn self_influence(panel: &Panel) -> Influence {
     let raw = triangle::exact(&panel.centroid, panel);
     Influence {
@@ -154,10 +155,10 @@ pub fn assemble(
     let n = mesh.len();
     let images = mesh_images(mesh);
     let layers = Layers {
-        real: (&mesh.panels, compact(&mesh.panels, far_field_ratio)),
+        real: (&mesh.panels, pack(&mesh.panels, far_field_ratio)),
         images: images
             .iter()
-            .map(|img| (img.as_slice(), compact(img, far_field_ratio)))
+            .map(|img| (img.as_slice(), pack(img, far_field_ratio)))
             .collect(),
     };
     let mut transposed = Mat::<f64>::zeros(n, n);
@@ -182,74 +183,104 @@ pub fn assemble(
 }
 
 /// What the far-field test and the point-singularity kernel need of a
-/// panel, packed (64 bytes) so a row streams through memory quickly.
-#[derive(Debug, Clone, Copy)]
-struct Compact {
-    centroid: [f64; 3],
-    normal: [f64; 3],
-    area: f64,
-    limit2: f64,
+/// set of panels, as separate arrays so the far-field pass over a row is a
+/// branch-free loop the compiler can vectorise.
+#[derive(Debug, Clone, Default)]
+struct Packed {
+    centroid: [Vec<f64>; 3],
+    normal: [Vec<f64>; 3],
+    area: Vec<f64>,
+    limit2: Vec<f64>,
 }
 
-fn compact(panels: &[Panel], ratio: f64) -> Vec<Compact> {
-    panels
-        .iter()
-        .map(|p| Compact {
-            centroid: p.centroid.coords.into(),
-            normal: p.normal.into_inner().into(),
-            area: p.area,
-            limit2: (ratio * p.size).powi(2),
-        })
-        .collect()
-}
-
-/// Raw `(S, D)` of one panel at `p`: the same switch and the same far
-/// field as [`influence::triangle_influence`] (before the `1/(4 pi)`).
-#[inline]
-fn raw(p: &[f64; 3], q: &Compact, panel: &Panel) -> (f64, f64) {
-    let d = [
-        p[0] - q.centroid[0],
-        p[1] - q.centroid[1],
-        p[2] - q.centroid[2],
-    ];
-    let r2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
-    if r2 > q.limit2 {
-        let inv = 1.0 / r2.sqrt();
-        let dn = d[0] * q.normal[0] + d[1] * q.normal[1] + d[2] * q.normal[2];
-        (q.area * inv, q.area * dn * inv * inv * inv)
-    } else {
-        let e = triangle::exact(&Point::from(*p), panel);
-        (e.source, e.doublet)
+fn pack(panels: &[Panel], ratio: f64) -> Packed {
+    let col = |f: &dyn Fn(&Panel) -> f64| panels.iter().map(f).collect::<Vec<f64>>();
+    Packed {
+        centroid: [
+            col(&|p| p.centroid.x),
+            col(&|p| p.centroid.y),
+            col(&|p| p.centroid.z),
+        ],
+        normal: [
+            col(&|p| p.normal.x),
+            col(&|p| p.normal.y),
+            col(&|p| p.normal.z),
+        ],
+        area: col(&|p| p.area),
+        limit2: col(&|p| (ratio * p.size).powi(2)),
     }
 }
 
 /// The real panels and each image set, with their packed copies.
 struct Layers<'a> {
-    real: (&'a [Panel], Vec<Compact>),
-    images: Vec<(&'a [Panel], Vec<Compact>)>,
+    real: (&'a [Panel], Packed),
+    images: Vec<(&'a [Panel], Packed)>,
+}
+
+/// Add the point-singularity `S` to `s` and `D` to `d` for every panel of
+/// `q` farther from `p` than its far-field limit (the same switch and the
+/// same formulas as [`influence::triangle_influence`], before `1/(4 pi)`);
+/// nearer panels add nothing here.
+fn far_pass(p: &[f64; 3], q: &Packed, s: &mut [f64], d: &mut [f64]) {
+    let [cx, cy, cz] = &q.centroid;
+    let [nx, ny, nz] = &q.normal;
+    for j in 0..s.len() {
+        let (dx, dy, dz) = (p[0] - cx[j], p[1] - cy[j], p[2] - cz[j]);
+        let r2 = dx * dx + dy * dy + dz * dz;
+        let far = r2 > q.limit2[j];
+        // Selects rather than branches; near panels (r2 possibly 0) give 0.
+        let inv = if far { 1.0 / r2.sqrt() } else { 0.0 };
+        let a = if far { q.area[j] } else { 0.0 };
+        s[j] += a * inv;
+        d[j] += a * (dx * nx[j] + dy * ny[j] + dz * nz[j]) * inv * inv * inv;
+    }
+}
+
+/// Add the exact `S` and `D` of every panel of `q` within its far-field
+/// limit of `p`, except panel `skip` (the self term).
+fn near_pass(
+    p: &[f64; 3],
+    panels: &[Panel],
+    q: &Packed,
+    skip: Option<usize>,
+    s: &mut [f64],
+    d: &mut [f64],
+) {
+    let [cx, cy, cz] = &q.centroid;
+    let at = Point::new(p[0], p[1], p[2]);
+    for j in 0..s.len() {
+        let (dx, dy, dz) = (p[0] - cx[j], p[1] - cy[j], p[2] - cz[j]);
+        if dx * dx + dy * dy + dz * dz > q.limit2[j] || skip == Some(j) {
+            continue;
+        }
+        let e = triangle::exact(&at, &panels[j]);
+        s[j] += e.source;
+        d[j] += e.doublet;
+    }
 }
 
 /// Row `i` of `C` into `row`; returns row `i` of `-B n_k` for `k = x, y, z`.
 fn fill_row(i: usize, layers: &Layers<'_>, row: &mut [f64]) -> [f64; 3] {
-    let (panels, packed) = (&layers.real.0, &layers.real.1);
+    let (panels, packed) = (layers.real.0, &layers.real.1);
     let p: [f64; 3] = panels[i].centroid.coords.into();
     let k = 1.0 / (4.0 * std::f64::consts::PI);
+    let mut s = vec![0.0; panels.len()];
+    let d = row;
+    d.fill(0.0);
+    let own = self_influence(&panels[i]);
+    s[i] = own.source / k;
+    d[i] = own.doublet / k;
+    far_pass(&p, packed, &mut s, d);
+    near_pass(&p, panels, packed, Some(i), &mut s, d);
+    for (img, q) in &layers.images {
+        far_pass(&p, q, &mut s, d);
+        near_pass(&p, img, q, None, &mut s, d);
+    }
     let mut rhs = [0.0; 3];
-    for (j, (panel, q)) in panels.iter().zip(packed).enumerate() {
-        let (mut s, mut d) = if j == i {
-            let own = self_influence(panel);
-            (own.source / k, own.doublet / k)
-        } else {
-            raw(&p, q, panel)
-        };
-        for (img, img_packed) in &layers.images {
-            let (si, di) = raw(&p, &img_packed[j], &img[j]);
-            s += si;
-            d += di;
-        }
-        row[j] = -d * k;
-        for (r, nk) in rhs.iter_mut().zip(&q.normal) {
-            *r -= s * k * nk;
+    for j in 0..s.len() {
+        d[j] *= -k;
+        for (r, n) in rhs.iter_mut().zip(&packed.normal) {
+            *r -= s[j] * k * n[j];
         }
     }
     rhs
@@ -276,7 +307,7 @@ pub fn doublet_column(mesh: &PanelMesh, panel: &Panel, far_field_ratio: f64) -> 
 
 /// Potential at an arbitrary point from given strengths, images included:
 /// `phi(P) = sum_j [sigma_j source_j(P) - mu_j doublet_j(P)]` (Katz &
-/// Plotkin 2001, eq. 10.8). Exact at points off the surface.
+/// Plotkin 2001, ch. 10). Exact at points off the surface.
 ///
 /// # Panics
 /// If `sigma` or `mu` is not one value per panel.

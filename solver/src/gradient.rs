@@ -7,7 +7,7 @@
 //! on the plane normal to the area-weighted vertex-interpolated normal at
 //! the centroid; weights `1/r^2`. This is the quadratic least-squares
 //! gradient of finite-volume practice (Barth & Jespersen 1989; Blazek,
-//! *Computational Fluid Dynamics*, 3rd ed., 2015, sec. 5.3.4) on a curved
+//! *Computational Fluid Dynamics*, 3rd ed., 2015, ch. 5 (from memory)) on a curved
 //! surface. On a poor stencil (fewer than six neighbours or a
 //! near-singular fit) it falls back to the linear fit `a u + b v` over the
 //! same neighbours (first order).
@@ -88,7 +88,7 @@ pub const CREASE_ANGLE_DEG: f64 = 30.0;
 /// normals of the panels around that vertex that lie within
 /// [`CREASE_ANGLE_DEG`] of the panel's own normal. On a smooth surface it
 /// is within `O(h^2)` of the true normal where the flat panel's normal is
-/// only within `O(h)` (Max 1999 compares such vertex-normal weightings).
+/// only within `O(h)` (Max, J. Graphics Tools 4, 1999, compares such vertex-normal weightings (from memory)).
 pub fn surface_normals(mesh: &PanelMesh) -> Vec<Vector3<f64>> {
     corner_normals(mesh)
         .into_iter()

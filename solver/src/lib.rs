@@ -6,7 +6,7 @@
 //! The potential-flow panel method (Katz & Plotkin, *Low-Speed
 //! Aerodynamics*, 2nd ed., 2001, ch. 9-12) is in [`potential`]: influence
 //! coefficients in [`influence`], assembly with mirror images in
-//! [`assemble`], linear solvers in [`linear`], the surface gradient of the
+//! [`mod@assemble`], linear solvers in [`linear`], the surface gradient of the
 //! doublet strength in [`gradient`].
 #![deny(missing_docs)]
 

@@ -9,6 +9,13 @@
 //! the inside minus the outside perturbation potential, so on a sphere of
 //! radius `a` at speed `U` it tends to `-U x / 2`.
 //!
+//! Parallelism: assembly (one row per rayon task) and the surface gradient
+//! (one panel per task) do each row's and panel's sums in a fixed order, so
+//! they do not depend on the thread count; the LU and the matrix-vector
+//! products are faer's parallel kernels over all rayon threads (their
+//! rounding may depend on the thread count; not checked). Run inside a
+//! `rayon::ThreadPool::install` to limit the threads.
+//!
 //! ```
 //! use tuft_mesh::{generate, Mirrors, PanelMesh};
 //! use tuft_solver::potential::{solve_potential, Freestream};
@@ -296,7 +303,7 @@ pub fn surface_velocity(mesh: &PanelMesh, mu: &[f64], v_inf: &Vector3<f64>) -> V
 }
 
 /// Pressure coefficient from the steady Bernoulli equation,
-/// `Cp = 1 - |V|^2 / U^2` (Katz & Plotkin 2001, eq. 2.65 / 12.35).
+/// `Cp = 1 - |V|^2 / U^2` (Katz & Plotkin 2001, ch. 2 and sec. 12.2 (from memory)).
 pub fn pressure_coefficients(velocity: &[Vector3<f64>], speed: f64) -> Vec<f64> {
     velocity
         .iter()

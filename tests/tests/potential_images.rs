@@ -183,7 +183,7 @@ fn one_factorisation_serves_several_yaws() {
 }
 
 /// Vertical force coefficient F_z / (q pi a^2) = -sum Cp n_z A / (pi a^2)
-/// (pressure integration, Katz & Plotkin 2001, eq. 12.37 (from memory)).
+/// (pressure integration, Katz & Plotkin 2001, ch. 12 (from memory)).
 fn cz(mesh: &PanelMesh, sol: &PotentialSolution) -> f64 {
     -mesh
         .panels

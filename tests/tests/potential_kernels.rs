@@ -10,7 +10,7 @@ const FOUR_PI: f64 = 4.0 * std::f64::consts::PI;
 use tuft_solver::potential::PotentialParams;
 
 /// Radon's 7-point degree-5 rule on a triangle (Stroud, *Approximate
-/// Calculation of Multiple Integrals*, 1971, formula T2:5-1): barycentric
+/// Calculation of Multiple Integrals*, 1971, formula T2:5-1 (from memory)): barycentric
 /// points and weights (summing to 1).
 fn radon7() -> [([f64; 3], f64); 7] {
     let s15 = 15f64.sqrt();
@@ -73,7 +73,7 @@ fn panel() -> Panel {
 }
 
 /// S and D by quadrature of their definitions (Katz & Plotkin 2001,
-/// eq. 10.8): S = int 1/r, D = int n.(P - Q)/r^3.
+/// ch. 10 (from memory)): S = int 1/r, D = int n.(P - Q)/r^3.
 fn quadrature(p: &Point, t: &Panel) -> (f64, f64) {
     let n = t.normal.into_inner();
     let s = |q: &Point| 1.0 / (p - q).norm();

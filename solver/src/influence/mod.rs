@@ -1,7 +1,7 @@
 //! Influence coefficients of constant-strength source and doublet panels.
 //!
 //! Formulation of Katz & Plotkin, *Low-Speed Aerodynamics*, 2nd ed. (2001),
-//! ch. 10 (eqs. 10.8 and 10.28): on a closed body with outward normals the
+//! ch. 10 (from memory): on a closed body with outward normals the
 //! perturbation potential at `P` is
 //!
 //! ```text
@@ -23,7 +23,7 @@ use tuft_mesh::{Panel, Point, Reflection};
 ///
 /// `source = S / (4 pi)` (always positive) and `doublet = D / (4 pi)`, with
 /// `D` the solid angle the panel subtends, positive on the side its normal
-/// points to. In the Dirichlet system of Katz & Plotkin (2001, eq. 12.14)
+/// points to. In the Dirichlet system of Katz & Plotkin (2001, sec. 12.2 (from memory))
 /// the doublet coefficient is `C = -doublet` and the source coefficient is
 /// `B = source`.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
@@ -43,7 +43,7 @@ impl std::ops::AddAssign for Influence {
 
 /// Influence of `panel` at `p`: exact (Newman 1986; van Oosterom &
 /// Strackee 1983) within `far_field_ratio` panel sizes of the centroid,
-/// point source and point doublet beyond (Katz & Plotkin 2001, eq. 10.91).
+/// point source and point doublet beyond (Katz & Plotkin 2001, ch. 10 (from memory)).
 ///
 /// A point in the panel plane inside the triangle gets the limit from the
 /// inside of the body (`doublet = -1/2`): that is the self-influence used

@@ -1,7 +1,7 @@
 //! Far-field influence: the panel replaced by a point source and a point
 //! doublet of the same total strength at its centroid.
 //!
-//! Katz & Plotkin (2001), eqs. 10.91-10.92 (far-field approximations of
+//! Katz & Plotkin (2001), ch. 10 (from memory) (far-field approximations of
 //! the constant-strength panel): `S ~ A / r`, `D ~ A n.(P - c) / r^3`.
 //! The relative error falls as `(size / r)^2`; the switch-over distance is
 //! [`crate::potential::PotentialParams::far_field_ratio`] panel sizes.

@@ -2,8 +2,8 @@
 //! source and a unit constant-strength doublet.
 //!
 //! Doublet: the signed solid angle by van Oosterom & Strackee (IEEE Trans.
-//! Biomed. Eng. 30, 1983, eq. 8). Source: the closed form of Newman
-//! (J. Ship Res. 30, 1986, eq. 3.9; Hess & Smith 1967 for the same
+//! Biomed. Eng. 30, 1983). Source: the closed form of Newman
+//! (J. Ship Res. 30, 1986 (from memory); Hess & Smith 1967 for the same
 //! integral), written edge by edge with logarithms and the solid angle.
 
 use tuft_mesh::{Panel, Point};
@@ -22,7 +22,7 @@ pub struct RawIntegrals {
 /// the field point, i.e. `a = A - P`), positive when `P` is on the side the
 /// counter-clockwise normal points to.
 ///
-/// van Oosterom & Strackee (1983), eq. 8:
+/// van Oosterom & Strackee (1983):
 /// `tan(Omega/2) = a.(b x c) / (|a||b||c| + (a.b)|c| + (a.c)|b| + (b.c)|a|)`.
 /// Their `Omega` is positive for `P` behind the counter-clockwise face, so
 /// the sign is flipped here to match `D`.
@@ -40,7 +40,7 @@ pub fn solid_angle(
 /// Exact source and doublet integrals of `panel` at `p`.
 ///
 /// `S = sum_k h_k ln((r_k + r_{k+1} + d_k) / (r_k + r_{k+1} - d_k)) - z D`
-/// (Newman 1986, eq. 3.9, edge form), with `z` the height of `p` above the
+/// (Newman 1986, edge form (from memory)), with `z` the height of `p` above the
 /// panel plane along `n`, `h_k` the in-plane distance from the projection
 /// of `p` to edge `k` (positive on the panel's side of the edge), `d_k` the
 /// edge length and `r_k` the distance from `p` to corner `k`.
@@ -48,7 +48,7 @@ pub fn solid_angle(
 /// A point in the panel plane and inside the triangle has no unique solid
 /// angle (it jumps by `4 pi` across the panel); there `D` is the limit from
 /// the inside of the body, `-2 pi` (the Dirichlet collocation side, Katz &
-/// Plotkin 2001, eq. 10.8). On an edge line the `0 * ln(0)` term is zero.
+/// Plotkin 2001, ch. 10 (from memory)). On an edge line the `0 * ln(0)` term is zero.
 pub fn exact(p: &Point, panel: &Panel) -> RawIntegrals {
     let n = panel.normal.into_inner();
     let rel = panel.vertices.map(|v| v - p);
@@ -108,7 +108,7 @@ mod tests {
 
     /// Far away both integrals tend to the point values `A/r` and (to the
     /// second-order term, about `(size/r)^2 = 1e-4` relative)
-    /// `A z / r^3` (Katz & Plotkin 2001, eq. 10.91); the solid angle is
+    /// `A z / r^3` (Katz & Plotkin 2001, ch. 10 (from memory)); the solid angle is
     /// positive on the normal side by definition.
     #[test]
     fn far_limits_and_signs() {

@@ -1,8 +1,8 @@
 //! Restarted GMRES with a Jacobi (diagonal) right preconditioner.
 //!
-//! Saad & Schultz, SIAM J. Sci. Stat. Comput. 7 (1986), alg. 4 (GMRES(m))
+//! Saad & Schultz, SIAM J. Sci. Stat. Comput. 7 (1986), (GMRES(m), from memory)
 //! with Givens rotations; right preconditioning (Saad, *Iterative Methods
-//! for Sparse Linear Systems*, 2nd ed., 2003, alg. 9.5) so the monitored
+//! for Sparse Linear Systems*, 2nd ed., 2003, sec. 9.3 (from memory)) so the monitored
 //! residual is the true one. Matrix-vector products by faer.
 
 use faer::linalg::matmul::matmul;

@@ -1,6 +1,6 @@
 //! Dense LU factorisation with partial pivoting, in place.
 //!
-//! Golub & Van Loan, *Matrix Computations*, 4th ed. (2013), alg. 3.4.1,
+//! Golub & Van Loan, *Matrix Computations*, 4th ed. (2013), alg. 3.4.1 (from memory),
 //! as implemented by faer (blocked, recursive, parallel).
 
 use faer::dyn_stack::{MemBuffer, MemStack};
