@@ -1,16 +1,240 @@
 //! `tuft check FILE.stl`: read, repair and report on a surface mesh.
+//!
+//! Prints what was read, what each repair pass changed, the boundary loops,
+//! the coarsening, the panel quality and a suggested panel count. Exit 0
+//! when the mesh is usable; a problem is returned as an error and printed
+//! as one line `tuft: FILE: problem` (exit 2).
 
 use std::path::PathBuf;
 use std::process::ExitCode;
+
+use anyhow::Context;
+use tuft_mesh::prepare::{PrepareParams, PrepareReport, prepare};
+use tuft_mesh::repair::LoopInfo;
+use tuft_mesh::{LengthUnit, Mirrors};
 
 /// Arguments of `tuft check`.
 #[derive(clap::Args)]
 pub struct CheckArgs {
     /// The STL file (binary or ASCII).
     pub file: PathBuf,
+    /// Length unit of the file: m, cm, mm or in.
+    #[arg(long, default_value = "mm")]
+    pub units: LengthUnit,
+    /// The file holds the y >= 0 half of the body, mirrored in y = 0.
+    #[arg(long)]
+    pub half: bool,
+    /// Height of the ground plane z = Z, in metres (after unit conversion).
+    #[arg(long, value_name = "Z", allow_hyphen_values = true)]
+    pub ground: Option<f64>,
+    /// Coarsen to about N panels (default: the suggested count).
+    #[arg(long, value_name = "N")]
+    pub panels: Option<usize>,
+    /// Print the full report as JSON instead of text.
+    #[arg(long)]
+    pub json: bool,
 }
 
 /// Run `tuft check`.
 pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
-    anyhow::bail!("{}: check is not implemented yet", args.file.display())
+    let params = settings(args)?;
+    let (_, report) =
+        prepare(&args.file, &params).with_context(|| args.file.display().to_string())?;
+    if args.json {
+        println!("{}", serde_json::to_string_pretty(&report)?);
+    } else {
+        print!("{}", summary(&args.file.display().to_string(), &report));
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// Checked settings from the raw flags.
+fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
+    if let Some(z) = args.ground {
+        anyhow::ensure!(z.is_finite(), "--ground must be a finite height in metres");
+    }
+    if let Some(n) = args.panels {
+        anyhow::ensure!(n >= 4, "--panels must be at least 4");
+    }
+    Ok(PrepareParams {
+        units: args.units,
+        mirrors: Mirrors {
+            ground: args.ground,
+            symmetry: args.half,
+        },
+        target_panels: args.panels,
+        ..PrepareParams::default()
+    })
+}
+
+/// The human-readable report.
+fn summary(file: &str, r: &PrepareReport) -> String {
+    let mut out = format!("tuft check: {file}\n");
+    out += &read_lines(r);
+    out += &repair_lines(r);
+    out += &hole_lines(r);
+    out += &panel_lines(r);
+    out += &quality_lines(r);
+    let half = if r.mirrors.symmetry {
+        " for the modelled half"
+    } else {
+        ""
+    };
+    out += &format!(
+        "suggested  {} panels{half}: edges about 1/50 of the body length, clamped to \
+         1,000-12,000 (4,000-12,000 is usual for a full car; common practice)\n",
+        r.suggested_panels
+    );
+    out += "verdict    usable\n";
+    out
+}
+
+fn read_lines(r: &PrepareReport) -> String {
+    let mut s = String::new();
+    if let Some(read) = &r.read {
+        s += &format!(
+            "read       {:?} STL, {} bytes, {} facets, {} distinct vertices; unit {} (x {} to metres)\n",
+            read.format,
+            read.bytes,
+            read.facets,
+            read.vertices,
+            r.units,
+            r.units.to_metres()
+        )
+        .to_lowercase();
+        if read.trailing_bytes > 0 {
+            s += &format!(
+                "           {} bytes after the last facet ignored\n",
+                read.trailing_bytes
+            );
+        }
+    }
+    let [lo, hi] = r.bounds;
+    s += &format!(
+        "size       {:.3} x {:.3} x {:.3} m (x from {:.3} to {:.3}), surface {:.3} m^2\n",
+        hi[0] - lo[0],
+        hi[1] - lo[1],
+        hi[2] - lo[2],
+        lo[0],
+        hi[0],
+        r.area
+    );
+    let ground = r
+        .mirrors
+        .ground
+        .map_or("none".to_string(), |z| format!("z = {z} m"));
+    s += &format!(
+        "mirrors    ground plane: {ground}; symmetry plane y = 0: {}\n",
+        if r.mirrors.symmetry {
+            "yes (half model)"
+        } else {
+            "no"
+        }
+    );
+    s
+}
+
+fn repair_lines(r: &PrepareReport) -> String {
+    let p = &r.repair;
+    let d = &p.degenerate;
+    format!(
+        "repair     weld within {:.3e} m: {} vertices merged\n\
+         \x20          degenerate facets dropped: {} collapsed, {} zero-area, {} slivers\n\
+         \x20          duplicate facets dropped: {}\n\
+         \x20          orientation: {} connected parts, {} facets flipped to agree, {} edges still disagree\n\
+         \x20          outward: {} parts turned outward ({} facets), {} parts enclosing no volume\n\
+         \x20          unused vertices removed: {}; {} facets, {} vertices after repair\n",
+        p.weld_tolerance,
+        p.vertices_welded,
+        d.collapsed,
+        d.zero_area,
+        d.slivers,
+        p.duplicates,
+        p.orientation.components,
+        p.orientation.facets_flipped,
+        p.orientation.conflicting_edges,
+        p.outward.components_reversed,
+        p.outward.facets_flipped,
+        p.outward.flat_components,
+        p.unused_vertices,
+        p.output_facets,
+        p.output_vertices,
+    )
+}
+
+fn hole_lines(r: &PrepareReport) -> String {
+    let h = &r.repair.holes;
+    let mut s = format!(
+        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (limit {:.3} m perimeter), {} zero-width slits; {} non-manifold edges\n",
+        h.loops,
+        h.mirror_closed.len(),
+        h.filled.len(),
+        h.fill_limit,
+        h.slits,
+        h.non_manifold_edges
+    );
+    let describe = |what: &str, l: &LoopInfo| {
+        format!(
+            "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m, {} edges\n",
+            l.centre[0], l.centre[1], l.centre[2], l.perimeter, l.edges
+        )
+    };
+    for l in h.mirror_closed.iter().take(5) {
+        s += &describe(
+            &format!("closed by the {} mirror:", l.plane.unwrap_or("?")),
+            l,
+        );
+    }
+    for l in h.filled.iter().take(5) {
+        s += &describe("filled:", l);
+    }
+    if h.non_manifold_edges > 0 {
+        s += "           warning: edges shared by three or more facets make the surface ambiguous there\n";
+    }
+    s
+}
+
+fn panel_lines(r: &PrepareReport) -> String {
+    match &r.coarsen {
+        None => format!("panels     {} (no coarsening needed)\n", r.panels),
+        Some(c) => {
+            let mut s = format!(
+                "panels     {} coarsened to {} (target {}); largest deviation from the input surface {:.3e} m, rms {:.3e} m ({} input vertices sampled)\n",
+                c.input_panels,
+                c.achieved_panels,
+                c.target_panels,
+                c.max_deviation,
+                c.rms_deviation,
+                c.samples
+            );
+            if let Some(f) = &c.fallback {
+                s += &format!("           fallback: {f}\n");
+            }
+            s
+        }
+    }
+}
+
+fn quality_lines(r: &PrepareReport) -> String {
+    let q = &r.quality;
+    let t = &q.thresholds;
+    let mut s = format!(
+        "quality    aspect ratio median {:.2}, max {:.2} ({} above {}); smallest angle min {:.1} deg ({} below {} deg);\n\
+         \x20          neighbour area ratio median {:.2}, max {:.2} ({} above {}); thresholds are common practice\n",
+        q.aspect_ratio.median,
+        q.aspect_ratio.max,
+        q.high_aspect,
+        t.max_aspect_ratio,
+        q.min_angle_deg.min,
+        q.small_angle,
+        t.min_angle_deg,
+        q.neighbour_area_ratio.median,
+        q.neighbour_area_ratio.max,
+        q.size_jump,
+        t.max_neighbour_area_ratio
+    );
+    for w in &q.warnings {
+        s += &format!("           warning: {w}\n");
+    }
+    s
 }

@@ -8,7 +8,19 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+mod case;
 mod check;
+mod estimate;
+mod geometry;
+mod outdir;
+// Some writer helpers serve only the tests and later commands.
+#[allow(dead_code)]
+mod output;
+mod pipeline;
+mod progress;
+mod run;
+mod summary;
+mod write;
 
 /// Exit code for a run that finished but left warnings the user must read.
 pub const EXIT_WARNINGS: u8 = 1;
@@ -32,13 +44,36 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
+    /// Run a case file: potential flow, boundary layer, loads, pictures and a report.
+    Run(run::RunArgs),
+    /// Run the built-in example: a concept coupe with two rear-window slopes.
+    Demo(run::DemoArgs),
     /// Read an STL, repair it, and report what a run would use.
     Check(check::CheckArgs),
 }
 
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) if !e.use_stderr() => {
+            // --help and --version.
+            print!("{e}");
+            return ExitCode::SUCCESS;
+        }
+        Err(e) => {
+            let text = e.to_string();
+            let first = text
+                .lines()
+                .next()
+                .unwrap_or("bad arguments")
+                .trim_start_matches("error: ");
+            eprintln!("tuft: {first} (see tuft --help)");
+            return ExitCode::from(EXIT_FAILURE);
+        }
+    };
     let outcome = match cli.command {
+        Command::Run(args) => run::run(&args),
+        Command::Demo(args) => run::demo(&args),
         Command::Check(args) => check::run(&args),
     };
     match outcome {

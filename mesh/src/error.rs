@@ -30,6 +30,108 @@ pub enum MeshError {
         /// Index of the vertex (or facet corner when read from STL).
         vertex: usize,
     },
+    /// The path names a directory, not a file.
+    #[error("it is a directory, not an STL file")]
+    IsDirectory,
+    /// The file could not be opened or read before the first facet.
+    #[error("cannot read the file")]
+    Io {
+        /// What the operating system said.
+        #[source]
+        source: std::io::Error,
+    },
+    /// The file has no bytes at all.
+    #[error("the file is empty (0 bytes)")]
+    EmptyFile,
+    /// Too short for a binary STL and not ASCII STL.
+    #[error(
+        "{bytes} bytes is too short for a binary STL (an 84-byte header, then 50 bytes per facet) \
+         and it does not start with `solid` as ASCII STL does"
+    )]
+    TooShort {
+        /// File length in bytes.
+        bytes: u64,
+    },
+    /// Text that does not start with `solid`: neither ASCII nor binary STL.
+    #[error("it is text that does not start with `solid`: neither ASCII nor binary STL")]
+    NotStl,
+    /// The binary header declares more facets than the file can hold.
+    #[error(
+        "the binary STL header declares {declared} facets ({expected} bytes) but the file has \
+         {bytes} bytes, room for {room} facets: it is truncated or not STL"
+    )]
+    FacetCountMismatch {
+        /// Facet count in the header.
+        declared: u64,
+        /// File length that count implies.
+        expected: u64,
+        /// Actual file length.
+        bytes: u64,
+        /// Whole facets the file can hold.
+        room: u64,
+    },
+    /// A facet could not be read or parsed (truncated file, malformed number).
+    #[error("cannot read facet {facet}")]
+    BadFacet {
+        /// Index of the facet (0-based) being read.
+        facet: usize,
+        /// The reader's complaint.
+        #[source]
+        source: std::io::Error,
+    },
+    /// A facet corner has a NaN or infinite coordinate.
+    #[error("facet {facet}, corner {corner} has a coordinate that is not a finite number")]
+    NonFiniteCorner {
+        /// Index of the facet.
+        facet: usize,
+        /// Corner 0, 1 or 2.
+        corner: usize,
+    },
+    /// The file was read but holds no facets.
+    #[error("the file holds no facets")]
+    NoFacets,
+    /// Every facet was degenerate: nothing is left after repair.
+    #[error("all {facets} facets are degenerate (zero area or collapsed): no surface is left")]
+    AllDegenerate {
+        /// Number of facets read.
+        facets: usize,
+    },
+    /// A boundary loop too large to fill and on no declared mirror plane.
+    #[error(
+        "open hole (boundary loop {loop_index}, {edges} edges) centred at \
+         ({cx:.4}, {cy:.4}, {cz:.4}) m with perimeter {perimeter:.4} m, above the fill limit of \
+         {limit:.4} m, and no declared mirror plane closes it ({refused} such holes in all): the \
+         panel method needs a closed surface, because it holds the potential inside the body at \
+         zero and an open surface has no inside; close the hole in the model, or declare the \
+         ground or symmetry plane it lies on",
+        cx = .centre[0],
+        cy = .centre[1],
+        cz = .centre[2]
+    )]
+    OpenHole {
+        /// Index of the loop among the boundary loops found.
+        loop_index: usize,
+        /// Number of edges around the loop.
+        edges: usize,
+        /// Length-weighted centre of the loop, metres.
+        centre: [f64; 3],
+        /// Perimeter, metres.
+        perimeter: f64,
+        /// Largest perimeter that would have been filled, metres.
+        limit: f64,
+        /// Number of holes refused (this one is the largest).
+        refused: usize,
+    },
+    /// A shape generator was given a parameter it cannot build.
+    #[error("generator parameter {name} = {value}: {reason}")]
+    InvalidParameter {
+        /// Name of the parameter.
+        name: &'static str,
+        /// The value given.
+        value: f64,
+        /// What is wrong with it.
+        reason: &'static str,
+    },
     /// The mirror planes asked for are not consistent with the body.
     #[error("mirror plane problem: {0}")]
     Mirror(String),

@@ -33,7 +33,7 @@ impl Panel {
         let cross = e0.cross(&(c - a));
         let twice_area = cross.norm();
         let size = e0.norm().max((c - b).norm()).max((a - c).norm());
-        if !(twice_area > 1e-14 * size * size) {
+        if twice_area.is_nan() || twice_area <= 1e-14 * size * size {
             return None;
         }
         let normal = Unit::try_new(cross, 0.0)?;

@@ -153,6 +153,13 @@ pub fn assemble(
     }
     let n = mesh.len();
     let images = mesh_images(mesh);
+    let layers = Layers {
+        real: (&mesh.panels, compact(&mesh.panels, far_field_ratio)),
+        images: images
+            .iter()
+            .map(|img| (img.as_slice(), compact(img, far_field_ratio)))
+            .collect(),
+    };
     let mut transposed = Mat::<f64>::zeros(n, n);
     let rhs: Vec<[f64; 3]> = transposed
         .as_mut()
@@ -161,7 +168,7 @@ pub fn assemble(
         .map(|(i, col)| {
             let row = col.try_as_col_major_mut().map(|c| c.as_slice_mut());
             match row {
-                Some(row) => fill_row(i, mesh, &images, far_field_ratio, row),
+                Some(row) => fill_row(i, &layers, row),
                 None => unreachable!("owned faer columns are contiguous"),
             }
         })
@@ -174,28 +181,75 @@ pub fn assemble(
     })
 }
 
+/// What the far-field test and the point-singularity kernel need of a
+/// panel, packed (64 bytes) so a row streams through memory quickly.
+#[derive(Debug, Clone, Copy)]
+struct Compact {
+    centroid: [f64; 3],
+    normal: [f64; 3],
+    area: f64,
+    limit2: f64,
+}
+
+fn compact(panels: &[Panel], ratio: f64) -> Vec<Compact> {
+    panels
+        .iter()
+        .map(|p| Compact {
+            centroid: p.centroid.coords.into(),
+            normal: p.normal.into_inner().into(),
+            area: p.area,
+            limit2: (ratio * p.size).powi(2),
+        })
+        .collect()
+}
+
+/// Raw `(S, D)` of one panel at `p`: the same switch and the same far
+/// field as [`influence::triangle_influence`] (before the `1/(4 pi)`).
+#[inline]
+fn raw(p: &[f64; 3], q: &Compact, panel: &Panel) -> (f64, f64) {
+    let d = [
+        p[0] - q.centroid[0],
+        p[1] - q.centroid[1],
+        p[2] - q.centroid[2],
+    ];
+    let r2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+    if r2 > q.limit2 {
+        let inv = 1.0 / r2.sqrt();
+        let dn = d[0] * q.normal[0] + d[1] * q.normal[1] + d[2] * q.normal[2];
+        (q.area * inv, q.area * dn * inv * inv * inv)
+    } else {
+        let e = triangle::exact(&Point::from(*p), panel);
+        (e.source, e.doublet)
+    }
+}
+
+/// The real panels and each image set, with their packed copies.
+struct Layers<'a> {
+    real: (&'a [Panel], Vec<Compact>),
+    images: Vec<(&'a [Panel], Vec<Compact>)>,
+}
+
 /// Row `i` of `C` into `row`; returns row `i` of `-B n_k` for `k = x, y, z`.
-fn fill_row(
-    i: usize,
-    mesh: &PanelMesh,
-    images: &[Vec<Panel>],
-    ratio: f64,
-    row: &mut [f64],
-) -> [f64; 3] {
-    let p = mesh.panels[i].centroid;
+fn fill_row(i: usize, layers: &Layers<'_>, row: &mut [f64]) -> [f64; 3] {
+    let (panels, packed) = (&layers.real.0, &layers.real.1);
+    let p: [f64; 3] = panels[i].centroid.coords.into();
+    let k = 1.0 / (4.0 * std::f64::consts::PI);
     let mut rhs = [0.0; 3];
-    for (j, panel) in mesh.panels.iter().enumerate() {
-        let mut inf = if j == i {
-            self_influence(panel)
+    for (j, (panel, q)) in panels.iter().zip(packed).enumerate() {
+        let (mut s, mut d) = if j == i {
+            let own = self_influence(panel);
+            (own.source / k, own.doublet / k)
         } else {
-            influence::triangle_influence(&p, panel, ratio)
+            raw(&p, q, panel)
         };
-        for img in images {
-            inf += influence::triangle_influence(&p, &img[j], ratio);
+        for (img, img_packed) in &layers.images {
+            let (si, di) = raw(&p, &img_packed[j], &img[j]);
+            s += si;
+            d += di;
         }
-        row[j] = -inf.doublet;
-        for (k, r) in rhs.iter_mut().enumerate() {
-            *r -= inf.source * panel.normal[k];
+        row[j] = -d * k;
+        for (r, nk) in rhs.iter_mut().zip(&q.normal) {
+            *r -= s * k * nk;
         }
     }
     rhs

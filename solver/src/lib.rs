@@ -18,7 +18,10 @@ pub mod assemble;
 pub mod boundary_layer;
 pub mod gradient;
 pub mod linear;
+pub mod loads;
+pub mod offbody;
 pub mod potential;
+pub mod wake;
 
 pub use assemble::{InfluenceSystem, assemble};
 pub use potential::{

@@ -1,0 +1,403 @@
+//! Case files: the TOML a user writes to describe one run.
+//!
+//! Two stages, as in any careful command line: [`CaseFile`] is what the TOML
+//! says (every key optional where a default exists, unknown keys refused by
+//! serde), [`Case`] is the checked, resolved case a run uses. Lengths are in
+//! metres except the STL, which `geometry.units` scales.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, bail};
+use serde::{Deserialize, Serialize};
+
+/// The case file as written.
+#[derive(Debug, Clone, Deserialize, Serialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct CaseFile {
+    /// Geometry: an STL or a built-in shape.
+    pub geometry: GeometrySection,
+    /// Free stream and air properties.
+    #[serde(default)]
+    pub flow: FlowSection,
+    /// Ground plane; absent for free air.
+    pub ground: Option<GroundSection>,
+    /// Boundary-layer options.
+    #[serde(default)]
+    pub boundary_layer: BoundaryLayerSection,
+    /// Reference values for coefficients and the axle split.
+    #[serde(default)]
+    pub reference: ReferenceSection,
+}
+
+/// `[geometry]`.
+#[derive(Debug, Clone, Deserialize, Serialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct GeometrySection {
+    /// STL path, relative to the case file.
+    pub stl: Option<PathBuf>,
+    /// A built-in shape instead of an STL: `coupe`, `ahmed`, `sphere`.
+    pub shape: Option<String>,
+    /// Length unit of the STL: m, cm, mm, in.
+    pub units: Option<String>,
+    /// Coarsen to about this many panels.
+    pub panels: Option<usize>,
+    /// The STL is the y >= 0 half, cut at y = 0.
+    #[serde(default)]
+    pub half_model: bool,
+    /// Built-in coupe: rear-window slope from horizontal, degrees.
+    pub rear_window_deg: Option<f64>,
+    /// Built-in coupe: boot-deck length, metres.
+    pub boot_deck_length: Option<f64>,
+    /// Built-in coupe and slant-back body: ground clearance, metres.
+    pub ride_height: Option<f64>,
+    /// Built-in slant-back body: slant angle, degrees.
+    pub slant_deg: Option<f64>,
+    /// Built-in sphere: radius, metres.
+    pub radius: Option<f64>,
+    /// Built-in sphere: height of the centre, metres.
+    pub centre_z: Option<f64>,
+}
+
+/// `[flow]`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct FlowSection {
+    /// Free-stream speed, m/s.
+    pub speed: f64,
+    /// Yaw angle, degrees (free stream rotated about z).
+    pub yaw: f64,
+    /// Air density, kg/m^3.
+    pub density: f64,
+    /// Kinematic viscosity, m^2/s.
+    pub viscosity: f64,
+}
+
+impl Default for FlowSection {
+    /// 40 m/s in air at 20 degC and 101.325 kPa (rho 1.204 kg/m^3,
+    /// nu 1.506e-5 m^2/s, derived from ISO 2533 relations).
+    fn default() -> Self {
+        Self {
+            speed: 40.0,
+            yaw: 0.0,
+            density: 1.204,
+            viscosity: 1.506e-5,
+        }
+    }
+}
+
+/// `[ground]`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct GroundSection {
+    /// Height of the ground plane, metres.
+    pub z: f64,
+}
+
+/// `[boundary_layer]`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct BoundaryLayerSection {
+    /// free | laminar | turbulent | forced.
+    pub transition: String,
+    /// For `forced`: fraction of body length from the nose.
+    pub forced_at: Option<f64>,
+    /// Turbulent separation threshold on the shape factor H.
+    pub separation_h: Option<f64>,
+}
+
+impl Default for BoundaryLayerSection {
+    fn default() -> Self {
+        Self {
+            transition: "free".into(),
+            forced_at: None,
+            separation_h: None,
+        }
+    }
+}
+
+/// `[reference]`.
+#[derive(Debug, Clone, Deserialize, Serialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct ReferenceSection {
+    /// Reference area, m^2 (default: frontal area).
+    pub area: Option<f64>,
+    /// Reference length, m (default: body length).
+    pub length: Option<f64>,
+    /// Front axle position along x, m.
+    pub front_axle_x: Option<f64>,
+    /// Rear axle position along x, m.
+    pub rear_axle_x: Option<f64>,
+}
+
+/// Where the geometry comes from, once checked.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "snake_case")]
+pub enum GeometrySource {
+    /// An STL file (absolute or relative to the working directory).
+    Stl {
+        /// Path to the STL.
+        path: PathBuf,
+        /// Metres per STL unit.
+        scale: f64,
+    },
+    /// A built-in shape by name, with the section's parameters.
+    Shape {
+        /// `coupe`, `ahmed` or `sphere`.
+        name: String,
+    },
+}
+
+/// How the boundary layer becomes turbulent, once checked.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum TransitionMode {
+    /// Michel's criterion.
+    Free,
+    /// All laminar.
+    Laminar,
+    /// Turbulent from the attachment line.
+    Turbulent,
+    /// Forced at a fraction of the body length.
+    Forced(f64),
+}
+
+/// A checked case, ready to run.
+#[derive(Debug, Clone, Serialize)]
+pub struct Case {
+    /// Case name (file stem).
+    pub name: String,
+    /// The case file as read (defaults filled).
+    pub file: CaseFile,
+    /// Resolved geometry source.
+    pub source: GeometrySource,
+    /// Resolved transition mode.
+    pub transition: TransitionMode,
+}
+
+/// Metres per unit for the unit names a case accepts.
+pub fn unit_scale(units: &str) -> Option<f64> {
+    match units {
+        "m" => Some(1.0),
+        "cm" => Some(0.01),
+        "mm" => Some(0.001),
+        "in" => Some(0.0254),
+        _ => None,
+    }
+}
+
+impl Case {
+    /// Read and check a case file.
+    pub fn load(path: &Path) -> Result<Self> {
+        let text = std::fs::read_to_string(path)
+            .with_context(|| format!("{}: cannot read the case file", path.display()))?;
+        let file: CaseFile = toml::from_str(&text)
+            .map_err(|e| anyhow::anyhow!("{}: {}", path.display(), one_line(&e.to_string())))?;
+        Self::from_file(path, file).with_context(|| path.display().to_string())
+    }
+
+    /// Check a parsed case; `path` locates relative STL paths and names the case.
+    pub fn from_file(path: &Path, file: CaseFile) -> Result<Self> {
+        let name = path
+            .file_stem()
+            .map_or("case".into(), |s| s.to_string_lossy().into_owned());
+        check_flow(&file)?;
+        check_reference(&file.reference)?;
+        let source = resolve_geometry(path, &file.geometry)?;
+        let transition = resolve_transition(&file.boundary_layer)?;
+        Ok(Self {
+            name,
+            file,
+            source,
+            transition,
+        })
+    }
+}
+
+fn one_line(s: &str) -> String {
+    s.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+fn positive(key: &str, v: f64) -> Result<()> {
+    if !(v.is_finite() && v > 0.0) {
+        bail!("{key} must be a positive number (got {v})");
+    }
+    Ok(())
+}
+
+fn check_flow(file: &CaseFile) -> Result<()> {
+    let f = &file.flow;
+    positive("flow.speed", f.speed)?;
+    positive("flow.density", f.density)?;
+    positive("flow.viscosity", f.viscosity)?;
+    if !(f.yaw.is_finite() && f.yaw.abs() <= 30.0) {
+        bail!(
+            "flow.yaw must be between -30 and 30 degrees (got {})",
+            f.yaw
+        );
+    }
+    if file.geometry.half_model && f.yaw != 0.0 {
+        bail!("flow.yaw must be 0 with geometry.half_model = true (a half model is symmetric)");
+    }
+    if f.speed > 100.0 {
+        bail!(
+            "flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s)",
+            f.speed
+        );
+    }
+    Ok(())
+}
+
+fn check_reference(r: &ReferenceSection) -> Result<()> {
+    if let Some(a) = r.area {
+        positive("reference.area", a)?;
+    }
+    if let Some(l) = r.length {
+        positive("reference.length", l)?;
+    }
+    match (r.front_axle_x, r.rear_axle_x) {
+        (Some(f), Some(b)) if !(b > f) => {
+            bail!("reference.rear_axle_x ({b}) must lie behind reference.front_axle_x ({f})")
+        }
+        (Some(_), None) | (None, Some(_)) => {
+            bail!("reference.front_axle_x and reference.rear_axle_x must be given together")
+        }
+        _ => Ok(()),
+    }
+}
+
+fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySource> {
+    if let Some(n) = g.panels
+        && !(100..=200_000).contains(&n)
+    {
+        bail!("geometry.panels must be between 100 and 200000 (got {n})");
+    }
+    match (&g.stl, &g.shape) {
+        (Some(_), Some(_)) => bail!("geometry: give either stl or shape, not both"),
+        (None, None) => bail!("geometry: give stl (a file) or shape (coupe, ahmed, sphere)"),
+        (Some(stl), None) => {
+            let units = g.units.as_deref().unwrap_or("mm");
+            let scale = unit_scale(units).ok_or_else(|| {
+                anyhow::anyhow!("geometry.units must be one of m, cm, mm, in (got \"{units}\")")
+            })?;
+            let base = case_path.parent().unwrap_or(Path::new("."));
+            Ok(GeometrySource::Stl {
+                path: base.join(stl),
+                scale,
+            })
+        }
+        (None, Some(name)) => {
+            if !["coupe", "ahmed", "sphere"].contains(&name.as_str()) {
+                bail!("geometry.shape must be coupe, ahmed or sphere (got \"{name}\")");
+            }
+            if g.units.is_some() {
+                bail!("geometry.units applies to an STL only; built-in shapes are in metres");
+            }
+            Ok(GeometrySource::Shape { name: name.clone() })
+        }
+    }
+}
+
+fn resolve_transition(b: &BoundaryLayerSection) -> Result<TransitionMode> {
+    let mode = match b.transition.as_str() {
+        "free" => TransitionMode::Free,
+        "laminar" => TransitionMode::Laminar,
+        "turbulent" => TransitionMode::Turbulent,
+        "forced" => {
+            let at = b.forced_at.ok_or_else(|| {
+                anyhow::anyhow!("boundary_layer.forced_at is required with transition = \"forced\"")
+            })?;
+            if !(at > 0.0 && at < 1.0) {
+                bail!(
+                    "boundary_layer.forced_at must be a fraction of the body length in (0, 1) (got {at})"
+                );
+            }
+            TransitionMode::Forced(at)
+        }
+        other => bail!(
+            "boundary_layer.transition must be free, laminar, turbulent or forced (got \"{other}\")"
+        ),
+    };
+    if let Some(h) = b.separation_h
+        && !(1.5..=4.0).contains(&h)
+    {
+        bail!("boundary_layer.separation_h must be between 1.5 and 4.0 (got {h})");
+    }
+    Ok(mode)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str) -> Result<Case> {
+        let file: CaseFile = toml::from_str(text).map_err(|e| anyhow::anyhow!("{e}"))?;
+        Case::from_file(Path::new("cases/demo.toml"), file)
+    }
+
+    fn err(text: &str) -> String {
+        format!("{:#}", parse(text).unwrap_err())
+    }
+
+    #[test]
+    fn full_example_parses() {
+        let c = parse(
+            r#"
+            [geometry]
+            stl = "body.stl"
+            units = "mm"
+            panels = 8000
+            half_model = false
+            [flow]
+            speed = 40.0
+            yaw = 0.0
+            density = 1.204
+            viscosity = 1.506e-5
+            [ground]
+            z = 0.0
+            [boundary_layer]
+            transition = "forced"
+            forced_at = 0.05
+            [reference]
+            area = 2.1
+            length = 4.6
+            front_axle_x = 0.9
+            rear_axle_x = 3.6
+            "#,
+        )
+        .unwrap();
+        assert_eq!(c.name, "demo");
+        assert_eq!(c.transition, TransitionMode::Forced(0.05));
+        assert_eq!(
+            c.source,
+            GeometrySource::Stl {
+                path: PathBuf::from("cases/body.stl"),
+                scale: 0.001
+            }
+        );
+    }
+
+    #[test]
+    fn refusals_name_the_key() {
+        let geo = "[geometry]\nshape = \"sphere\"\n";
+        assert!(err(&format!("{geo}[flow]\nspeed = -3.0\n")).contains("flow.speed"));
+        assert!(err(&format!("{geo}[flow]\nspeed = 3.0\nspeedd = 2\n")).contains("speedd"));
+        assert!(
+            err("[geometry]\nstl = \"a.stl\"\nhalf_model = true\n[flow]\nyaw = 3.0\n")
+                .contains("flow.yaw")
+        );
+        assert!(
+            err("[geometry]\nstl = \"a.stl\"\nunits = \"furlong\"\n").contains("geometry.units")
+        );
+        assert!(
+            err(&format!("{geo}[boundary_layer]\ntransition = \"forced\"\n")).contains("forced_at")
+        );
+        assert!(
+            err(&format!(
+                "{geo}[reference]\nfront_axle_x = 3.0\nrear_axle_x = 1.0\n"
+            ))
+            .contains("rear_axle_x")
+        );
+        assert!(err(&format!("{geo}[flow]\nspeed = \"fast\"\n")).contains("speed"));
+        assert!(err("[geometry]\n").contains("geometry"));
+    }
+}

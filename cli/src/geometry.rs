@@ -1,0 +1,148 @@
+//! From a case's geometry section to a prepared panel mesh.
+
+use anyhow::{Context, Result, bail};
+use tuft_mesh::generate::{self, AhmedParams, CoupeParams};
+use tuft_mesh::prepare::{PrepareParams, PrepareReport, prepare, prepare_mesh};
+use tuft_mesh::{LengthUnit, Mirrors, PanelMesh, TriMesh};
+
+use crate::case::{Case, GeometrySource};
+
+/// Default panel count of the built-in shapes (a few seconds per run).
+pub const SHAPE_PANELS: usize = 4000;
+
+/// The prepared mesh of a case and how it was made.
+pub struct Geometry {
+    /// Real panels with their mirror planes.
+    pub mesh: PanelMesh,
+    /// Facets read or generated.
+    pub input_facets: usize,
+    /// Everything preparation did.
+    pub report: PrepareReport,
+}
+
+/// Mirror planes a case declares.
+pub fn mirrors(case: &Case) -> Mirrors {
+    Mirrors {
+        ground: case.file.ground.as_ref().map(|g| g.z),
+        symmetry: case.file.geometry.half_model,
+    }
+}
+
+/// Build or read the case's body and prepare it.
+pub fn load(case: &Case) -> Result<Geometry> {
+    let mirrors = mirrors(case);
+    let g = &case.file.geometry;
+    let (mesh, report, input_facets) = match &case.source {
+        GeometrySource::Stl { path, scale } => {
+            let params = PrepareParams {
+                units: unit_of(*scale),
+                mirrors,
+                target_panels: g.panels,
+                ..PrepareParams::default()
+            };
+            let (mesh, report) =
+                prepare(path, &params).with_context(|| path.display().to_string())?;
+            let facets = report.read.as_ref().map_or(0, |r| r.facets);
+            (mesh, report, facets)
+        }
+        GeometrySource::Shape { name } => {
+            let body = shape(name, case).with_context(|| format!("geometry.shape = \"{name}\""))?;
+            let facets = body.len();
+            let params = PrepareParams {
+                units: LengthUnit::M,
+                mirrors,
+                target_panels: Some(facets.max(g.panels.unwrap_or(0))),
+                ..PrepareParams::default()
+            };
+            let (mesh, report) = prepare_mesh(body, None, &params)
+                .with_context(|| format!("geometry.shape = \"{name}\""))?;
+            (mesh, report, facets)
+        }
+    };
+    check_ground(&mesh, case)?;
+    Ok(Geometry {
+        mesh,
+        input_facets,
+        report,
+    })
+}
+
+fn unit_of(scale: f64) -> LengthUnit {
+    [
+        LengthUnit::M,
+        LengthUnit::Cm,
+        LengthUnit::Mm,
+        LengthUnit::In,
+    ]
+    .into_iter()
+    .find(|u| (u.to_metres() - scale).abs() < 1e-12)
+    .unwrap_or(LengthUnit::M)
+}
+
+/// A built-in shape with the case's parameters.
+fn shape(name: &str, case: &Case) -> Result<TriMesh> {
+    let g = &case.file.geometry;
+    let panels = g.panels.unwrap_or(SHAPE_PANELS);
+    let mesh = match name {
+        "coupe" => {
+            let d = CoupeParams::default();
+            generate::coupe_with_params(&CoupeParams {
+                rear_window_deg: g.rear_window_deg.unwrap_or(d.rear_window_deg),
+                boot_deck_length: g.boot_deck_length.unwrap_or(d.boot_deck_length),
+                ride_height: g.ride_height.unwrap_or(d.ride_height),
+                panels,
+                half: g.half_model,
+                ..d
+            })?
+        }
+        "ahmed" => {
+            let d = AhmedParams::default();
+            generate::ahmed_with_params(&AhmedParams {
+                slant_deg: g.slant_deg.unwrap_or(d.slant_deg),
+                clearance: g.ride_height.unwrap_or(d.clearance),
+                panels,
+                half: g.half_model,
+                ..d
+            })?
+        }
+        "sphere" => sphere(
+            g.radius.unwrap_or(0.5),
+            g.centre_z.unwrap_or(0.0),
+            panels,
+            g.half_model,
+        )?,
+        other => bail!("unknown shape {other}"),
+    };
+    Ok(mesh)
+}
+
+fn sphere(radius: f64, centre_z: f64, panels: usize, half: bool) -> Result<TriMesh> {
+    if half {
+        bail!("geometry.half_model is not available for the built-in sphere");
+    }
+    if !(radius.is_finite() && radius > 0.0) {
+        bail!("geometry.radius must be a positive number (got {radius})");
+    }
+    // Icosphere levels give 20 * 4^k panels: take the level nearest the request.
+    let level = ((panels as f64 / 20.0).log(4.0)).round().clamp(1.0, 6.0) as u32;
+    let mut m = generate::icosphere(radius, level);
+    m.map_vertices(|p| nalgebra::Point3::new(p.x, p.y, p.z + centre_z));
+    Ok(m)
+}
+
+/// Refuse a ground plane above the body's lowest point.
+fn check_ground(mesh: &PanelMesh, case: &Case) -> Result<()> {
+    let Some(ground) = case.file.ground.as_ref() else {
+        return Ok(());
+    };
+    let (lo, hi) = mesh.bounds();
+    let tol = 1e-6 * (hi - lo).norm();
+    if lo.z < ground.z - tol {
+        bail!(
+            "ground.z = {} m lies above the body's lowest point (z = {:.4} m): put the ground plane at or below the body",
+            ground.z,
+            lo.z
+        );
+    }
+    Ok(())
+}

@@ -1,0 +1,353 @@
+//! Everything a run writes: tables, VTK files, pictures and the report.
+//!
+//! The writers take plain data (the structs below), never solver types, so
+//! they can be tested on analytic fields and wired to any solver output.
+//! One file per format:
+//!
+//! - [`csv`]: `panels.csv`, one row per real panel;
+//! - [`vtk`]: `surface.vtu`, `streamlines.vtp`, `wake.vtu`, slices as `.vti`
+//!   (VTK XML, raw little-endian data base64-encoded inline);
+//! - [`render`]: orthographic z-buffered views of the body, coloured by a
+//!   field; [`sheet`] lays four of them out with a title and a colour bar;
+//! - [`colorbar`]: colour scales (Cp, separation risk, speed) and their bars;
+//! - [`text`]: text drawing with an embedded font (DejaVu Sans), so pictures
+//!   come out the same on a machine with no fonts installed;
+//! - [`plot`]: line plots, among them Cp along the centre line;
+//! - [`slice`]: pictures of flow slices;
+//! - [`html`]: the self-contained `report.html`.
+//!
+//! Units are SI throughout (metres, m/s); angles in the captions in degrees.
+
+pub mod canvas;
+pub mod colorbar;
+pub mod csv;
+pub mod html;
+pub mod plot;
+pub mod render;
+pub mod sheet;
+pub mod slice;
+pub mod text;
+pub mod vtk;
+
+#[cfg(test)]
+pub(crate) mod fixture;
+
+use std::fs::File;
+use std::io::{BufWriter, Write};
+use std::path::{Path, PathBuf};
+
+use nalgebra::{Point3, Vector3};
+
+/// Boundary-layer state of a panel.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum PanelState {
+    /// Laminar boundary layer.
+    Laminar,
+    /// Turbulent boundary layer.
+    Turbulent,
+    /// The boundary layer has separated (or the panel lies downstream of a
+    /// separation line).
+    Separated,
+    /// No boundary-layer result (no streamline reached the panel).
+    Unresolved,
+}
+
+impl PanelState {
+    /// Every state, in code order.
+    pub const ALL: [PanelState; 4] = [
+        PanelState::Laminar,
+        PanelState::Turbulent,
+        PanelState::Separated,
+        PanelState::Unresolved,
+    ];
+
+    /// Lowercase name, as written in `panels.csv`.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            PanelState::Laminar => "laminar",
+            PanelState::Turbulent => "turbulent",
+            PanelState::Separated => "separated",
+            PanelState::Unresolved => "unresolved",
+        }
+    }
+
+    /// Integer code written to VTK files: 0 laminar, 1 turbulent,
+    /// 2 separated, 3 unresolved.
+    pub fn code(self) -> i32 {
+        match self {
+            PanelState::Laminar => 0,
+            PanelState::Turbulent => 1,
+            PanelState::Separated => 2,
+            PanelState::Unresolved => 3,
+        }
+    }
+}
+
+/// Surface results, one value per real panel of `mesh` (same order).
+#[derive(Debug, Clone, Copy)]
+pub struct SurfaceResult<'a> {
+    /// The real panels (no images).
+    pub mesh: &'a tuft_mesh::PanelMesh,
+    /// Pressure coefficient `(p - p_inf) / (0.5 rho U^2)`.
+    pub cp: &'a [f64],
+    /// Surface velocity, m/s.
+    pub velocity: &'a [Vector3<f64>],
+    /// Momentum thickness, m.
+    pub theta: &'a [f64],
+    /// Shape factor `H = delta* / theta`.
+    pub shape_factor: &'a [f64],
+    /// Skin-friction coefficient.
+    pub cf: &'a [f64],
+    /// Boundary-layer state.
+    pub state: &'a [PanelState],
+    /// Separation risk, 0 (far from separating) to 1 (separated).
+    pub risk: &'a [f64],
+}
+
+impl SurfaceResult<'_> {
+    /// Number of real panels.
+    pub fn len(&self) -> usize {
+        self.mesh.len()
+    }
+
+    /// True when there are no panels.
+    pub fn is_empty(&self) -> bool {
+        self.mesh.is_empty()
+    }
+
+    /// Check that every field has one value per panel.
+    ///
+    /// # Errors
+    /// [`OutputError::EmptyMesh`] without panels, [`OutputError::LengthMismatch`]
+    /// naming the first field of the wrong length.
+    pub fn validate(&self) -> Result<(), OutputError> {
+        let n = self.mesh.len();
+        if n == 0 {
+            return Err(OutputError::EmptyMesh);
+        }
+        let lengths = [
+            ("cp", self.cp.len()),
+            ("velocity", self.velocity.len()),
+            ("theta", self.theta.len()),
+            ("shape_factor", self.shape_factor.len()),
+            ("cf", self.cf.len()),
+            ("state", self.state.len()),
+            ("risk", self.risk.len()),
+        ];
+        check_lengths(&lengths, n)
+    }
+}
+
+/// Fail on the first `(name, length)` pair whose length is not `expected`.
+fn check_lengths(lengths: &[(&'static str, usize)], expected: usize) -> Result<(), OutputError> {
+    match lengths.iter().find(|(_, len)| *len != expected) {
+        Some(&(field, found)) => Err(OutputError::LengthMismatch {
+            field,
+            expected,
+            found,
+        }),
+        None => Ok(()),
+    }
+}
+
+/// A named scalar carried along streamlines, one value per point.
+#[derive(Debug, Clone, Copy)]
+pub struct PointScalars<'a> {
+    /// Array name in the VTK file (e.g. `speed_ratio`).
+    pub name: &'a str,
+    /// One vector per line, one value per point of that line.
+    pub values: &'a [Vec<f64>],
+}
+
+/// Streamlines (surface or off-body), as polylines in metres.
+#[derive(Debug, Clone, Copy)]
+pub struct Streamlines<'a> {
+    /// The polylines.
+    pub lines: &'a [Vec<Point3<f64>>],
+    /// Optional per-point scalars (may be empty).
+    pub scalars: &'a [PointScalars<'a>],
+}
+
+/// Wake sheets as quadrilaterals with their doublet strength.
+#[derive(Debug, Clone, Copy)]
+pub struct WakeSheets<'a> {
+    /// Corners of each quad, in order round the quad, metres.
+    pub quads: &'a [[Point3<f64>; 4]],
+    /// Doublet strength of each quad, m^2/s.
+    pub strength: &'a [f64],
+}
+
+/// A rectangular grid of flow samples on a plane.
+///
+/// Sample `(i, j)` sits at `origin + spacing (i axes.0 + j axes.1)`, and is
+/// stored at index `i + j dims.0` (i fastest, as VTK image data).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Slice {
+    /// Short name, used in file names and titles (e.g. `centre-plane`).
+    pub name: String,
+    /// Position of sample `(0, 0)`, metres.
+    pub origin: Point3<f64>,
+    /// Unit vectors along `i` and along `j`.
+    pub axes: (Vector3<f64>, Vector3<f64>),
+    /// Distance between samples, metres.
+    pub spacing: f64,
+    /// Samples along `i` and along `j`.
+    pub dims: (usize, usize),
+    /// Velocity, m/s; `None` inside the body.
+    pub velocity: Vec<Option<Vector3<f64>>>,
+    /// Pressure coefficient; `None` inside the body.
+    pub cp: Vec<Option<f64>>,
+}
+
+impl Slice {
+    /// Number of samples.
+    pub fn len(&self) -> usize {
+        self.dims.0 * self.dims.1
+    }
+
+    /// True when the grid has no samples.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Position of sample `(i, j)`.
+    pub fn point(&self, i: usize, j: usize) -> Point3<f64> {
+        self.origin + self.spacing * (i as f64 * self.axes.0 + j as f64 * self.axes.1)
+    }
+
+    /// Check the sample arrays against `dims`.
+    ///
+    /// # Errors
+    /// [`OutputError::EmptySlice`] for a grid without samples,
+    /// [`OutputError::LengthMismatch`] for arrays of the wrong length.
+    pub fn validate(&self) -> Result<(), OutputError> {
+        if self.dims.0 < 2 || self.dims.1 < 2 || self.spacing.is_nan() || self.spacing <= 0.0 {
+            return Err(OutputError::EmptySlice {
+                name: self.name.clone(),
+            });
+        }
+        let lengths = [
+            ("slice velocity", self.velocity.len()),
+            ("slice cp", self.cp.len()),
+        ];
+        check_lengths(&lengths, self.len())
+    }
+}
+
+/// What a picture shows the run as: case name and conditions.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Caption {
+    /// Case name (e.g. `coupe-25`).
+    pub case: String,
+    /// Free-stream speed, m/s.
+    pub speed_ms: f64,
+    /// Yaw angle, degrees (free stream `(cos yaw, sin yaw, 0)`).
+    pub yaw_deg: f64,
+}
+
+impl Caption {
+    /// `"coupe-25, 40 m/s, yaw 0°"`.
+    pub fn conditions(&self) -> String {
+        format!(
+            "{}, {} m/s, yaw {}°",
+            self.case,
+            short_number(self.speed_ms),
+            short_number(self.yaw_deg)
+        )
+    }
+
+    /// A picture title: `"Surface pressure, coupe-25, 40 m/s, yaw 0°"`.
+    pub fn title(&self, what: &str) -> String {
+        format!("{what}, {}", self.conditions())
+    }
+}
+
+/// A number with at most three decimals and no trailing zeros.
+pub fn short_number(v: f64) -> String {
+    let s = format!("{v:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s == "-0" {
+        "0".to_owned()
+    } else {
+        s.to_owned()
+    }
+}
+
+/// Why an output could not be written.
+#[derive(Debug, thiserror::Error)]
+pub enum OutputError {
+    /// The file could not be created or written.
+    #[error("{}: {source}", path.display())]
+    Io {
+        /// The file.
+        path: PathBuf,
+        /// The cause.
+        source: std::io::Error,
+    },
+    /// Writing to a stream failed (no file name known).
+    #[error("write failed: {0}")]
+    Write(#[from] std::io::Error),
+    /// A field has the wrong number of values.
+    #[error("{field} has {found} values, expected {expected}")]
+    LengthMismatch {
+        /// Which field.
+        field: &'static str,
+        /// Values expected (panels, points or samples).
+        expected: usize,
+        /// Values given.
+        found: usize,
+    },
+    /// There are no panels to write.
+    #[error("the surface has no panels")]
+    EmptyMesh,
+    /// A slice grid with fewer than 2 x 2 samples or no spacing.
+    #[error("slice {name} has fewer than 2 x 2 samples or no spacing")]
+    EmptySlice {
+        /// Slice name.
+        name: String,
+    },
+    /// Streamline `line` has a scalar array of the wrong length.
+    #[error("streamline {line}: scalar {name} has {found} values for {expected} points")]
+    StreamlineScalars {
+        /// Line index.
+        line: usize,
+        /// Scalar name.
+        name: String,
+        /// Points on the line.
+        expected: usize,
+        /// Values given.
+        found: usize,
+    },
+    /// The picture could not be encoded.
+    #[error("PNG encoding failed: {0}")]
+    Png(#[from] png::EncodingError),
+    /// A picture size of zero or beyond what can be drawn.
+    #[error("picture size {width} x {height} cannot be drawn")]
+    PictureSize {
+        /// Width, pixels.
+        width: u32,
+        /// Height, pixels.
+        height: u32,
+    },
+}
+
+/// Write a file through a buffered writer, naming the file in any error.
+///
+/// # Errors
+/// [`OutputError::Io`] when the file cannot be created or written; errors of
+/// `body` otherwise.
+pub fn write_file<F>(path: &Path, body: F) -> Result<(), OutputError>
+where
+    F: FnOnce(&mut BufWriter<File>) -> Result<(), OutputError>,
+{
+    let io = |source| OutputError::Io {
+        path: path.to_owned(),
+        source,
+    };
+    let mut w = BufWriter::new(File::create(path).map_err(io)?);
+    match body(&mut w) {
+        Err(OutputError::Write(source)) => Err(io(source)),
+        other => other,
+    }?;
+    w.flush().map_err(io)
+}

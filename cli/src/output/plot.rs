@@ -1,0 +1,415 @@
+//! Line plots with axes, ticks, grid, legend and title; among them the
+//! pressure coefficient along the centre line (upper and lower surface),
+//! drawn with the Cp axis inverted (suction up), as the trade reads it.
+
+use super::canvas::{Canvas, GRID, INK, MUTED, Rgb, WHITE};
+use super::colorbar::{nice_ticks, tick_label};
+use super::text::{self, Align, TextStyle};
+use super::{Caption, OutputError, SurfaceResult};
+
+/// One named curve.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Series {
+    /// Legend text.
+    pub name: String,
+    /// Points in data units, drawn in the given order.
+    pub points: Vec<(f64, f64)>,
+    /// Line colour.
+    pub colour: Rgb,
+}
+
+/// A plot to draw.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LinePlot {
+    /// Title (what, which case, what speed).
+    pub title: String,
+    /// One line under the title.
+    pub subtitle: String,
+    /// Horizontal axis label with unit.
+    pub x_label: String,
+    /// Vertical axis label with unit.
+    pub y_label: String,
+    /// Draw the vertical axis with its smallest value at the top.
+    pub invert_y: bool,
+    /// The curves.
+    pub series: Vec<Series>,
+}
+
+/// Picture size of a plot.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PlotParams {
+    /// Width, pixels.
+    pub width: u32,
+    /// Height, pixels.
+    pub height: u32,
+}
+
+impl Default for PlotParams {
+    fn default() -> Self {
+        Self {
+            width: 1400,
+            height: 800,
+        }
+    }
+}
+
+/// The data-to-pixel map of a drawn plot.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PlotFrame {
+    /// Plot area: left, top, width, height, pixels.
+    pub rect: (f64, f64, f64, f64),
+    /// Horizontal data range (left, right).
+    pub x_range: (f64, f64),
+    /// Vertical data range (bottom, top) as drawn (swapped when inverted).
+    pub y_range: (f64, f64),
+}
+
+impl PlotFrame {
+    /// Pixel position of a data point.
+    pub fn pixel_at(&self, x: f64, y: f64) -> (f64, f64) {
+        let (l, t, w, h) = self.rect;
+        let u = (x - self.x_range.0) / (self.x_range.1 - self.x_range.0);
+        let v = (y - self.y_range.0) / (self.y_range.1 - self.y_range.0);
+        (l + u * w, t + (1.0 - v) * h)
+    }
+}
+
+/// Series colours: a dark blue and an orange (distinguishable with the
+/// common colour-vision deficiencies), then a green and a purple.
+pub const SERIES_COLOURS: [Rgb; 4] = [[31, 90, 166], [222, 110, 20], [44, 140, 80], [120, 70, 160]];
+
+/// Draw a line plot.
+///
+/// # Errors
+/// [`OutputError::PictureSize`] for an unusable size.
+pub fn draw_line_plot(
+    plot: &LinePlot,
+    params: &PlotParams,
+) -> Result<(Canvas, PlotFrame), OutputError> {
+    let mut c = Canvas::new(params.width, params.height)?;
+    let frame = plot_frame(plot, params);
+    draw_grid_and_ticks(&mut c, &frame, plot.invert_y);
+    // Later series are drawn first and wider, so curves that coincide
+    // (a symmetric body's upper and lower surface) both stay visible.
+    for (k, s) in plot.series.iter().enumerate().rev() {
+        let width = 2.2 + 1.8 * k as f32;
+        let pts: Vec<(f32, f32)> = s
+            .points
+            .iter()
+            .filter(|p| p.0.is_finite() && p.1.is_finite())
+            .map(|&(x, y)| frame.pixel_at(x, y))
+            .map(|(x, y)| (x as f32, y as f32))
+            .collect();
+        c.polyline(&pts, s.colour, width);
+        for &(x, y) in &pts {
+            c.fill_circle(x, y, 1.0 + width, s.colour);
+        }
+    }
+    let (l, t, w, h) = frame.rect;
+    c.stroke_rect(l as f32, t as f32, w as f32, h as f32, INK, 1.2);
+    draw_labels(&mut c, plot, &frame);
+    draw_legend(&mut c, &plot.series, &frame);
+    Ok((c, frame))
+}
+
+/// Axis ranges rounded out to ticks, and the plot area.
+fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
+    let finite = |f: fn(&(f64, f64)) -> f64| -> Vec<f64> {
+        plot.series
+            .iter()
+            .flat_map(|s| s.points.iter().map(f))
+            .filter(|v| v.is_finite())
+            .collect()
+    };
+    let x_range = padded_range(&finite(|p| p.0), 0.0);
+    let y = padded_range(&finite(|p| p.1), 0.05);
+    let y_range = if plot.invert_y { (y.1, y.0) } else { y };
+    let rect = (
+        110.0,
+        120.0,
+        f64::from(params.width) - 150.0,
+        f64::from(params.height) - 210.0,
+    );
+    PlotFrame {
+        rect,
+        x_range,
+        y_range,
+    }
+}
+
+/// `[min, max]` of `v`, widened by `pad` of its span and rounded out to
+/// round ticks; `[0, 1]` for no data.
+fn padded_range(v: &[f64], pad: f64) -> (f64, f64) {
+    let lo = v.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    if !(lo.is_finite() && hi.is_finite()) {
+        return (0.0, 1.0);
+    }
+    let (lo, hi) = if hi - lo < 1e-12 {
+        (lo - 0.5, hi + 0.5)
+    } else {
+        (lo, hi)
+    };
+    let (lo, hi) = (lo - pad * (hi - lo), hi + pad * (hi - lo));
+    let ticks = nice_ticks(lo, hi, 6);
+    let step = match ticks.as_slice() {
+        [a, b, ..] => b - a,
+        _ => hi - lo,
+    };
+    (
+        (lo / step - 1e-9).floor() * step,
+        (hi / step + 1e-9).ceil() * step,
+    )
+}
+
+/// Grid lines and tick labels on both axes.
+fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool) {
+    let (l, t, w, h) = f.rect;
+    let style = TextStyle::new(15.0);
+    let xt = nice_ticks(f.x_range.0, f.x_range.1, 8);
+    for &x in &xt {
+        let (px, _) = f.pixel_at(x, f.y_range.0);
+        c.polyline(
+            &[(px as f32, t as f32), (px as f32, (t + h) as f32)],
+            GRID,
+            1.0,
+        );
+        c.polyline(
+            &[
+                (px as f32, (t + h) as f32),
+                (px as f32, (t + h + 6.0) as f32),
+            ],
+            INK,
+            1.2,
+        );
+        text::draw(
+            c,
+            &tick_label(x, &xt),
+            px as f32,
+            (t + h + 24.0) as f32,
+            &style.align(Align::Centre),
+        );
+    }
+    let (ylo, yhi) = if invert_y {
+        (f.y_range.1, f.y_range.0)
+    } else {
+        f.y_range
+    };
+    let yt = nice_ticks(ylo, yhi, 7);
+    for &y in &yt {
+        let (_, py) = f.pixel_at(f.x_range.0, y);
+        let colour = if y.abs() < 1e-12 {
+            [170, 172, 178]
+        } else {
+            GRID
+        };
+        c.polyline(
+            &[(l as f32, py as f32), ((l + w) as f32, py as f32)],
+            colour,
+            1.0,
+        );
+        c.polyline(
+            &[((l - 6.0) as f32, py as f32), (l as f32, py as f32)],
+            INK,
+            1.2,
+        );
+        text::draw(
+            c,
+            &tick_label(y, &yt),
+            (l - 10.0) as f32,
+            (py + 5.0) as f32,
+            &style.align(Align::Right),
+        );
+    }
+}
+
+/// Title, subtitle and axis labels.
+fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
+    let (l, t, w, h) = f.rect;
+    text::draw(c, &plot.title, 30.0, 44.0, &TextStyle::new(28.0).bold());
+    text::draw(
+        c,
+        &plot.subtitle,
+        30.0,
+        76.0,
+        &TextStyle::new(16.0).colour(MUTED),
+    );
+    let axis = TextStyle::new(17.0).bold().align(Align::Centre);
+    text::draw(
+        c,
+        &plot.x_label,
+        (l + 0.5 * w) as f32,
+        (t + h + 58.0) as f32,
+        &axis,
+    );
+    text::draw_vertical(c, &plot.y_label, 30.0, (t + 0.5 * h) as f32, &axis);
+}
+
+/// Legend box in the top-right corner of the plot area.
+fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
+    if series.is_empty() {
+        return;
+    }
+    let style = TextStyle::new(15.0);
+    let text_w = series
+        .iter()
+        .map(|s| text::width(&s.name, &style))
+        .fold(0.0, f32::max);
+    let (bw, bh) = (text_w + 70.0, 12.0 + 26.0 * series.len() as f32);
+    let (x, y) = (
+        (f.rect.0 + f.rect.2) as f32 - bw - 12.0,
+        f.rect.1 as f32 + 12.0,
+    );
+    c.fill_rect(x, y, bw, bh, WHITE);
+    c.stroke_rect(x, y, bw, bh, [180, 182, 188], 1.0);
+    for (k, s) in series.iter().enumerate() {
+        let cy = y + 19.0 + 26.0 * k as f32;
+        let width = 2.2 + 1.8 * k as f32;
+        c.polyline(&[(x + 12.0, cy), (x + 48.0, cy)], s.colour, width);
+        c.fill_circle(x + 30.0, cy, 1.0 + width, s.colour);
+        text::draw(c, &s.name, x + 58.0, cy + 5.0, &style);
+    }
+}
+
+/// Settings of the centre-line extraction.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct CentrelineParams {
+    /// Half-width of the band about y = 0 whose panel centroids count,
+    /// metres; `None` for 0.6 times the median panel size (which takes
+    /// the panels the plane y = 0 cuts).
+    pub band: Option<f64>,
+}
+
+/// Cp along the centre line: `(x, Cp)` of panels with centroid within the
+/// band about y = 0, split by the sign of the normal's z component into
+/// upper and lower surface, each sorted by x.
+pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centreline {
+    let band = params.band.unwrap_or_else(|| 0.6 * median_size(s.mesh));
+    let (mut upper, mut lower) = (Vec::new(), Vec::new());
+    for (p, &cp) in s.mesh.panels.iter().zip(s.cp) {
+        if p.centroid.y.abs() <= band {
+            let side = if p.normal.z >= 0.0 {
+                &mut upper
+            } else {
+                &mut lower
+            };
+            side.push((p.centroid.x, cp));
+        }
+    }
+    upper.sort_by(|a, b| a.0.total_cmp(&b.0));
+    lower.sort_by(|a, b| a.0.total_cmp(&b.0));
+    Centreline { upper, lower }
+}
+
+/// Cp along the centre line, `(x [m], Cp)` pairs sorted by x.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Centreline {
+    /// Panels whose normal points up (or sideways).
+    pub upper: Vec<(f64, f64)>,
+    /// Panels whose normal points down.
+    pub lower: Vec<(f64, f64)>,
+}
+
+/// Median panel size (longest edge), metres.
+fn median_size(mesh: &tuft_mesh::PanelMesh) -> f64 {
+    let mut sizes: Vec<f64> = mesh.panels.iter().map(|p| p.size).collect();
+    sizes.sort_by(f64::total_cmp);
+    sizes.get(sizes.len() / 2).copied().unwrap_or(0.0)
+}
+
+/// The centre-line Cp plot.
+///
+/// # Errors
+/// [`OutputError::LengthMismatch`] for fields of the wrong length.
+pub fn centreline_cp_plot(
+    s: &SurfaceResult<'_>,
+    caption: &Caption,
+) -> Result<(Canvas, PlotFrame), OutputError> {
+    centreline_cp_plot_with_params(
+        s,
+        caption,
+        &CentrelineParams::default(),
+        &PlotParams::default(),
+    )
+}
+
+/// [`centreline_cp_plot`] with explicit band and size.
+///
+/// # Errors
+/// As [`centreline_cp_plot`].
+pub fn centreline_cp_plot_with_params(
+    s: &SurfaceResult<'_>,
+    caption: &Caption,
+    params: &CentrelineParams,
+    plot_params: &PlotParams,
+) -> Result<(Canvas, PlotFrame), OutputError> {
+    s.validate()?;
+    let Centreline { upper, lower } = centreline_cp(s, params);
+    let plot = LinePlot {
+        title: caption.title("Centre-line pressure"),
+        subtitle: "Panels on the plane y = 0; upper surface: normal pointing up. Cp axis inverted: suction up.".to_owned(),
+        x_label: "x [m] (downstream)".to_owned(),
+        y_label: "Cp [-]".to_owned(),
+        invert_y: true,
+        series: vec![
+            Series { name: "upper surface".to_owned(), points: upper, colour: SERIES_COLOURS[0] },
+            Series { name: "lower surface".to_owned(), points: lower, colour: SERIES_COLOURS[1] },
+        ],
+    };
+    draw_line_plot(&plot, plot_params)
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use super::*;
+    use crate::output::canvas::testing::{decode, keep};
+    use crate::output::fixture::{Fixture, caption};
+
+    #[test]
+    fn centre_line_follows_lambs_sphere() {
+        // Lamb (Hydrodynamics, §92) on the plane y = 0 of a unit sphere:
+        // Cp = 1 - 9/4 (1 - x^2) with x the centroid direction's x. The
+        // extraction must return those panels, both surfaces, nose to tail.
+        let f = Fixture::sphere(3);
+        let Centreline { upper, lower } = centreline_cp(&f.surface(), &CentrelineParams::default());
+        assert!(
+            upper.len() >= 16 && lower.len() >= 16,
+            "{} {}",
+            upper.len(),
+            lower.len()
+        );
+        for &(x, cp) in upper.iter().chain(&lower) {
+            // Centroids sit 1 % inside the unit sphere at this level, and
+            // within the band |y| is small: |x| error < 0.02 (derived).
+            let exact = 1.0 - 2.25 * (1.0 - x * x);
+            assert!((cp - exact).abs() < 0.12, "x {x}: {cp} vs {exact}");
+        }
+        assert!(upper.windows(2).all(|w| w[0].0 <= w[1].0));
+    }
+
+    #[test]
+    fn plot_draws_suction_peak_at_the_top() {
+        let f = Fixture::sphere(3);
+        let (canvas, frame) = centreline_cp_plot(&f.surface(), &caption()).unwrap();
+        let png = canvas.to_png().unwrap();
+        keep("centreline.png", &png);
+        let img = decode(&png);
+        assert_eq!((img.width, img.height), (1400, 800));
+        assert!(img.distinct_colours() > 50);
+        // Inverted axis: Cp = -1.25 (Lamb's minimum) plots above Cp = 1.
+        let (_, y_min) = frame.pixel_at(0.0, -1.25);
+        let (_, y_stag) = frame.pixel_at(-1.0, 1.0);
+        assert!(y_min < y_stag);
+        // The upper-surface curve passes through the suction peak: a pixel
+        // of its colour within 6 px of (0, -1.25).
+        let (px, py) = frame.pixel_at(0.0, -1.25);
+        let near = (-6..=6)
+            .flat_map(|dx| (-6..=6).map(move |dy| (dx, dy)))
+            .any(|(dx, dy)| img.pixel(px as i64 + dx, py as i64 + dy) == SERIES_COLOURS[0]);
+        assert!(near);
+        // The lower surface, drawn wider underneath, shows beside it.
+        let lower = (-8..=8).any(|dy| img.pixel(px as i64, py as i64 + dy) == SERIES_COLOURS[1]);
+        assert!(lower);
+    }
+}

@@ -1,0 +1,401 @@
+//! The four-view sheet: one PNG per surface field with side, top,
+//! underneath and rear views at one common scale, a title naming the
+//! field, case and speed, view labels, a scale bar and one colour bar.
+
+use tuft_mesh::Point;
+
+use super::canvas::{Canvas, GRID, INK, MUTED, Rgb};
+use super::colorbar::{self, ColourScale, Swatch, nice_ticks};
+use super::render::{self, DisplayTri, Frame, PanelPaint, RenderParams, View, display_triangles};
+use super::text::{self, Align, TextStyle};
+use super::{Caption, OutputError, PanelState, SurfaceResult};
+
+/// Colour of panels without a value (NaN, or no boundary-layer result).
+pub const NO_VALUE: Rgb = [200, 200, 204];
+/// Hatching of separated panels.
+pub const SEPARATED: (Rgb, Rgb) = ([40, 40, 46], [150, 150, 158]);
+
+/// Which surface field a sheet shows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SurfaceField {
+    /// Pressure coefficient.
+    Pressure,
+    /// Separation risk, separated panels hatched.
+    SeparationRisk,
+}
+
+/// Size and renderer settings of a sheet.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SheetParams {
+    /// Picture width, pixels.
+    pub width: u32,
+    /// Picture height, pixels.
+    pub height: u32,
+    /// Body renderer settings.
+    pub render: RenderParams,
+}
+
+impl Default for SheetParams {
+    fn default() -> Self {
+        Self {
+            width: 1600,
+            height: 1000,
+            render: RenderParams::default(),
+        }
+    }
+}
+
+/// Where each view sits on the sheet.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Layout {
+    /// The views with their frames, in [`View::ALL`] order.
+    pub views: Vec<(View, Frame)>,
+}
+
+impl Layout {
+    /// The frame of a view.
+    pub fn frame(&self, view: View) -> Option<&Frame> {
+        self.views.iter().find(|(v, _)| *v == view).map(|(_, f)| f)
+    }
+}
+
+/// Heights of the title band and of a view label, pixels.
+const TITLE_BAND: f64 = 96.0;
+const LABEL_BAND: f64 = 34.0;
+/// Width of the colour-bar column, pixels.
+const BAR_COLUMN: f64 = 230.0;
+
+/// Frames for the four views at one common scale (largest that fits all).
+pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
+    let cell_w = (f64::from(params.width) - BAR_COLUMN - 20.0) / 2.0;
+    let cell_h = (f64::from(params.height) - TITLE_BAND - 10.0) / 2.0;
+    let (pic_w, pic_h) = (cell_w - 30.0, cell_h - LABEL_BAND - 14.0);
+    let extents = View::ALL.map(|v| render::extent(tris, v));
+    let scale = extents
+        .iter()
+        .map(|e| (0.92 * pic_w / (e.1 - e.0)).min(0.9 * pic_h / (e.3 - e.2)))
+        .fold(f64::INFINITY, f64::min);
+    let scale = if scale.is_finite() && scale > 0.0 {
+        scale
+    } else {
+        1.0
+    };
+    let views = View::ALL
+        .iter()
+        .zip(extents)
+        .enumerate()
+        .map(|(k, (&v, e))| {
+            let left = 20.0 + cell_w * (k % 2) as f64 + 10.0;
+            let top = TITLE_BAND + cell_h * (k / 2) as f64 + LABEL_BAND;
+            let frame = Frame {
+                scale,
+                centre: (0.5 * (e.0 + e.1), 0.5 * (e.2 + e.3)),
+                rect: (left as i64, top as i64, pic_w as i64, pic_h as i64),
+            };
+            (v, frame)
+        })
+        .collect();
+    Layout { views }
+}
+
+/// Draw the four-view sheet of `field`.
+///
+/// # Errors
+/// [`OutputError::LengthMismatch`] for fields of the wrong length,
+/// [`OutputError::PictureSize`] for an unusable size.
+pub fn surface_sheet(
+    s: &SurfaceResult<'_>,
+    field: SurfaceField,
+    caption: &Caption,
+) -> Result<Canvas, OutputError> {
+    surface_sheet_with_params(s, field, caption, &SheetParams::default())
+}
+
+/// [`surface_sheet`] with explicit size and renderer settings.
+///
+/// # Errors
+/// As [`surface_sheet`].
+pub fn surface_sheet_with_params(
+    s: &SurfaceResult<'_>,
+    field: SurfaceField,
+    caption: &Caption,
+    params: &SheetParams,
+) -> Result<Canvas, OutputError> {
+    s.validate()?;
+    let mut canvas = Canvas::new(params.width, params.height)?;
+    let tris = display_triangles(s.mesh);
+    let lay = layout(&tris, params);
+    let (scale, legend, what, note) = field_style(s, field);
+    let paint = |i: usize| panel_paint(s, field, &scale, i);
+    for (view, frame) in &lay.views {
+        draw_cell(&mut canvas, &tris, *view, frame, params, &paint);
+        decorate(&mut canvas, s, *view, frame, caption);
+    }
+    draw_titles(&mut canvas, &caption.title(what), note);
+    let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
+    let bar_h = (f64::from(params.height) * 0.5).min(520.0);
+    colorbar::draw_bar(
+        &mut canvas,
+        &scale,
+        (bar_x as f32, (TITLE_BAND + 50.0) as f32, 30.0, bar_h as f32),
+        &legend,
+    );
+    Ok(canvas)
+}
+
+/// Scale, legend, title word and explanatory note of a field.
+fn field_style(
+    s: &SurfaceResult<'_>,
+    field: SurfaceField,
+) -> (
+    ColourScale,
+    Vec<(String, Swatch)>,
+    &'static str,
+    &'static str,
+) {
+    match field {
+        SurfaceField::Pressure => (
+            ColourScale::cp(s.cp),
+            vec![],
+            "Surface pressure",
+            "Pressure coefficient Cp = (p \u{2212} p\u{221e}) / (\u{bd}\u{3c1}U\u{b2}). Red: above free-stream pressure; blue: suction.",
+        ),
+        SurfaceField::SeparationRisk => (
+            ColourScale::risk(),
+            vec![
+                (
+                    "separated".to_owned(),
+                    Swatch::Hatched(SEPARATED.0, SEPARATED.1),
+                ),
+                ("not resolved".to_owned(), Swatch::Solid(NO_VALUE)),
+            ],
+            "Separation risk",
+            "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated.",
+        ),
+    }
+}
+
+/// Paint of panel `i` for a field.
+fn panel_paint(
+    s: &SurfaceResult<'_>,
+    field: SurfaceField,
+    scale: &ColourScale,
+    i: usize,
+) -> PanelPaint {
+    match field {
+        SurfaceField::Pressure => PanelPaint::Solid(scale.colour(s.cp[i]).unwrap_or(NO_VALUE)),
+        SurfaceField::SeparationRisk => match s.state[i] {
+            PanelState::Separated => PanelPaint::Hatched(SEPARATED.0, SEPARATED.1),
+            PanelState::Unresolved => PanelPaint::Solid(NO_VALUE),
+            _ => PanelPaint::Solid(scale.colour(s.risk[i]).unwrap_or(NO_VALUE)),
+        },
+    }
+}
+
+/// One view with its label.
+fn draw_cell(
+    canvas: &mut Canvas,
+    tris: &[DisplayTri],
+    view: View,
+    frame: &Frame,
+    params: &SheetParams,
+    paint: &dyn Fn(usize) -> PanelPaint,
+) {
+    let (l, t, w, _) = frame.rect;
+    text::draw(
+        canvas,
+        view.label(),
+        l as f32,
+        (t - 12) as f32,
+        &TextStyle::new(17.0).bold(),
+    );
+    canvas.polyline(
+        &[(l as f32, (t - 4) as f32), ((l + w) as f32, (t - 4) as f32)],
+        GRID,
+        1.0,
+    );
+    render::draw_view(canvas, tris, view, frame, &params.render, paint);
+}
+
+/// Ground line, flow arrow and scale bar where they apply.
+fn decorate(
+    canvas: &mut Canvas,
+    s: &SurfaceResult<'_>,
+    view: View,
+    frame: &Frame,
+    caption: &Caption,
+) {
+    let (l, t, w, h) = frame.rect;
+    if let (Some(z), View::Side | View::Rear) = (s.mesh.mirrors.ground, view) {
+        let (_, y) = frame.project(view, &Point::new(0.0, 0.0, z));
+        if (t as f64..(t + h) as f64).contains(&y) {
+            canvas.polyline(
+                &[(l as f32, y as f32), ((l + w) as f32, y as f32)],
+                [150, 120, 90],
+                1.5,
+            );
+            text::draw(
+                canvas,
+                "ground",
+                (l + w - 4) as f32,
+                (y - 5.0) as f32,
+                &TextStyle::new(13.0).colour(MUTED).align(Align::Right),
+            );
+        }
+    }
+    let yaw = caption.yaw_deg.to_radians();
+    let dir = match view {
+        View::Side => Some((1.0, 0.0)),
+        View::Top => Some((yaw.cos(), -yaw.sin())),
+        View::Underneath => Some((yaw.cos(), yaw.sin())),
+        View::Rear => None,
+    };
+    if let Some((dx, dy)) = dir {
+        let (x0, y0) = ((l + w - 70) as f32, (t + 20) as f32);
+        let (dx, dy) = (28.0 * dx as f32, 28.0 * dy as f32);
+        canvas.arrow((x0 - dx, y0 - dy), (x0 + dx, y0 + dy), MUTED, 2.0);
+        text::draw(
+            canvas,
+            "flow",
+            x0,
+            y0 + 38.0,
+            &TextStyle::new(13.0).colour(MUTED).align(Align::Centre),
+        );
+    }
+    if view == View::Side {
+        draw_scale_bar(canvas, frame);
+    }
+}
+
+/// A round-length scale bar in the bottom-left corner of a view.
+fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
+    let (l, t, w, h) = frame.rect;
+    let metres = nice_ticks(0.0, 0.25 * w as f64 / frame.scale, 1)
+        .get(1)
+        .copied()
+        .unwrap_or(1.0);
+    let len = (metres * frame.scale) as f32;
+    let (x, y) = (l as f32 + 4.0, (t + h) as f32 - 6.0);
+    canvas.polyline(
+        &[(x, y - 6.0), (x, y), (x + len, y), (x + len, y - 6.0)],
+        INK,
+        1.5,
+    );
+    let label = format!("{} m", super::short_number(metres));
+    text::draw(
+        canvas,
+        &label,
+        x + 0.5 * len,
+        y - 8.0,
+        &TextStyle::new(13.0).align(Align::Centre),
+    );
+}
+
+/// Title and explanatory note at the top.
+fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
+    text::draw(canvas, title, 30.0, 44.0, &TextStyle::new(28.0).bold());
+    text::draw(
+        canvas,
+        note,
+        30.0,
+        74.0,
+        &TextStyle::new(16.0).colour(MUTED),
+    );
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use nalgebra::Vector3;
+
+    use super::*;
+    use crate::output::canvas::testing::{decode, keep};
+    use crate::output::fixture::{Fixture, caption};
+    use crate::output::render::shade;
+
+    fn sheet(
+        f: &Fixture,
+        field: SurfaceField,
+        name: &str,
+    ) -> crate::output::canvas::testing::Decoded {
+        let png = surface_sheet(&f.surface(), field, &caption())
+            .unwrap()
+            .to_png()
+            .unwrap();
+        keep(name, &png);
+        decode(&png)
+    }
+
+    #[test]
+    fn pressure_sheet_shows_the_sphere_in_four_views() {
+        let f = Fixture::sphere(3);
+        let img = sheet(&f, SurfaceField::Pressure, "pressure.png");
+        assert_eq!((img.width, img.height), (1600, 1000));
+        // Text, outline, shading and the colour map give thousands of colours.
+        assert!(img.distinct_colours() > 200, "{}", img.distinct_colours());
+        let lay = layout(&display_triangles(&f.mesh), &SheetParams::default());
+        for (view, frame) in &lay.views {
+            // The sphere's centre projects to the frame centre; a 60 px box
+            // around it lies on the body (radius well over 100 px).
+            let (cx, cy) = frame.project(*view, &Point::origin());
+            let body = (-30..30)
+                .flat_map(|dx| (-30..30).map(move |dy| (dx, dy)))
+                .filter(|&(dx, dy)| img.pixel(cx as i64 + dx, cy as i64 + dy) != [255, 255, 255])
+                .count();
+            assert_eq!(body, 3600, "{view:?}");
+            assert!(frame.scale > 100.0, "{view:?} scale {}", frame.scale);
+        }
+    }
+
+    #[test]
+    fn side_view_stagnation_point_has_the_colour_of_cp_one() {
+        // Lamb (Hydrodynamics, §92): Cp = 1 at the stagnation point
+        // (-1, 0, 0), which the side view shows at the left edge of the
+        // disc. Three pixels inward (about 11 degrees round the sphere,
+        // exact Cp 0.92) the colour must be the map's colour at Cp = 1
+        // times the Lambert factor of the sphere's normal there. Tolerance
+        // 14 of 255 per channel: the map moves about 10 levels from Cp 1 to
+        // 0.9, and the flat facets tilt a few degrees from the sphere.
+        let f = Fixture::sphere(3);
+        let img = sheet(&f, SurfaceField::Pressure, "pressure.png");
+        let frame = *layout(&display_triangles(&f.mesh), &SheetParams::default())
+            .frame(View::Side)
+            .unwrap();
+        let (x, y) = frame.project(View::Side, &Point::new(-1.0, 0.0, 0.0));
+        let px = x.round() as i64 + 3;
+        let got = img.pixel(px, y as i64);
+        let wx = -1.0 + (px as f64 + 0.5 - x) / frame.scale;
+        let normal = Vector3::new(wx, -(1.0 - wx * wx).sqrt(), 0.0);
+        let k = shade(View::Side, &normal, &RenderParams::default());
+        let want = ColourScale::cp(&f.cp)
+            .colour(1.0)
+            .unwrap()
+            .map(|c| f64::from(c) * k);
+        for ch in 0..3 {
+            assert!(
+                (f64::from(got[ch]) - want[ch]).abs() <= 14.0,
+                "got {got:?}, want {want:?}"
+            );
+        }
+        // And it is not the suction colour (Cp = -1.25 at the equator).
+        let suction = ColourScale::cp(&f.cp).colour(-1.25).unwrap();
+        assert!((i32::from(got[2]) - i32::from(suction[2])).abs() > 60);
+    }
+
+    #[test]
+    fn risk_sheet_hatches_separated_panels() {
+        let f = Fixture::sphere(3);
+        let img = sheet(&f, SurfaceField::SeparationRisk, "risk.png");
+        assert_eq!((img.width, img.height), (1600, 1000));
+        let frame = *layout(&display_triangles(&f.mesh), &SheetParams::default())
+            .frame(View::Side)
+            .unwrap();
+        // The fixture marks 0.5 < x < 0.93 separated: at x = 0.7 on the
+        // equator (seen from the side) a row of pixels shows both stripes.
+        let (x, y) = frame.project(View::Side, &Point::new(0.7, -0.7, 0.0));
+        let row: Vec<[u8; 3]> = (0..14).map(|d| img.pixel(x as i64 + d, y as i64)).collect();
+        let dark = row.iter().filter(|c| c[0] < 60).count();
+        let light = row.iter().filter(|c| c[0] > 90 && c[0] < 160).count();
+        assert!(dark >= 2 && light >= 2, "{row:?}");
+    }
+}

@@ -1,0 +1,401 @@
+//! Pictures of flow slices: speed ratio |V|/U and Cp on a sampled plane,
+//! one above the other at the same scale, the body cross-section in grey,
+//! each with its colour bar, axes in metres and a title.
+
+use nalgebra::Vector3;
+
+use super::canvas::{Canvas, INK, MUTED, Rgb};
+use super::colorbar::{self, ColourScale, nice_ticks, tick_label};
+use super::text::{self, Align, TextStyle};
+use super::{Caption, OutputError, Slice, short_number};
+
+/// Colour of the body cross-section.
+pub const BODY: Rgb = [140, 142, 150];
+
+/// Picture size of a slice picture.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SliceParams {
+    /// Width, pixels.
+    pub width: u32,
+    /// Height, pixels.
+    pub height: u32,
+}
+
+impl Default for SliceParams {
+    fn default() -> Self {
+        Self {
+            width: 1600,
+            height: 1000,
+        }
+    }
+}
+
+/// Where one field of the slice landed: grid index to pixel.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SliceFrame {
+    /// Pixel of sample (0, 0)'s position (bottom-left corner of the grid).
+    pub origin: (f64, f64),
+    /// Pixels per grid step.
+    pub pixels_per_step: f64,
+}
+
+impl SliceFrame {
+    /// Pixel position of the (fractional) grid index `(i, j)`; `j` grows up.
+    pub fn pixel_at(&self, i: f64, j: f64) -> (f64, f64) {
+        (
+            self.origin.0 + i * self.pixels_per_step,
+            self.origin.1 - j * self.pixels_per_step,
+        )
+    }
+
+    /// Grid index of pixel centre `(x, y)`.
+    fn grid_at(&self, x: f64, y: f64) -> (f64, f64) {
+        (
+            (x + 0.5 - self.origin.0) / self.pixels_per_step,
+            (self.origin.1 - y - 0.5) / self.pixels_per_step,
+        )
+    }
+}
+
+/// Draw a slice picture: |V|/U above, Cp below.
+///
+/// # Errors
+/// [`OutputError::EmptySlice`] or [`OutputError::LengthMismatch`] for a
+/// malformed slice, [`OutputError::PictureSize`] for an unusable size.
+pub fn slice_picture(
+    slice: &Slice,
+    caption: &Caption,
+) -> Result<(Canvas, [SliceFrame; 2]), OutputError> {
+    slice_picture_with_params(slice, caption, &SliceParams::default())
+}
+
+/// [`slice_picture`] with an explicit size.
+///
+/// # Errors
+/// As [`slice_picture`].
+pub fn slice_picture_with_params(
+    slice: &Slice,
+    caption: &Caption,
+    params: &SliceParams,
+) -> Result<(Canvas, [SliceFrame; 2]), OutputError> {
+    slice.validate()?;
+    let mut c = Canvas::new(params.width, params.height)?;
+    let u = caption.speed_ms.abs().max(f64::MIN_POSITIVE);
+    let speed: Vec<Option<f64>> = slice
+        .velocity
+        .iter()
+        .map(|v| v.map(|v| v.norm() / u))
+        .collect();
+    let finite = |v: &[Option<f64>]| v.iter().flatten().copied().collect::<Vec<f64>>();
+    let scales = [
+        ColourScale::speed_ratio(&finite(&speed)),
+        ColourScale::cp(&finite(&slice.cp)),
+    ];
+    let names = ["Speed |V|/U", "Pressure coefficient Cp"];
+    let fields = [&speed, &slice.cp];
+    let frames = panel_frames(slice, params);
+    for k in 0..2 {
+        draw_field(&mut c, slice, fields[k], &scales[k], &frames[k]);
+        draw_axes(&mut c, slice, &frames[k], names[k]);
+        let (x, top) = frames[k].pixel_at(slice.dims.0 as f64 - 1.0, slice.dims.1 as f64 - 1.0);
+        let h = (slice.dims.1 - 1) as f64 * frames[k].pixels_per_step;
+        colorbar::draw_bar(
+            &mut c,
+            &scales[k],
+            (
+                (x + 40.0) as f32,
+                (top + 24.0) as f32,
+                26.0,
+                (h - 24.0).max(40.0) as f32,
+            ),
+            &[],
+        );
+    }
+    text::draw(
+        &mut c,
+        &caption.title(&format!("Flow slice {}", slice.name)),
+        30.0,
+        44.0,
+        &TextStyle::new(28.0).bold(),
+    );
+    text::draw(
+        &mut c,
+        &describe_plane(slice),
+        30.0,
+        74.0,
+        &TextStyle::new(16.0).colour(MUTED),
+    );
+    Ok((c, frames))
+}
+
+/// Two stacked frames at one scale that keeps the grid's aspect ratio.
+fn panel_frames(slice: &Slice, params: &SliceParams) -> [SliceFrame; 2] {
+    let (ni, nj) = ((slice.dims.0 - 1) as f64, (slice.dims.1 - 1) as f64);
+    let (left, top) = (110.0, 130.0);
+    let avail_w = f64::from(params.width) - left - 230.0;
+    let avail_h = (f64::from(params.height) - top - 40.0) / 2.0 - 90.0;
+    let pps = (avail_w / ni).min(avail_h / nj).max(1e-3);
+    let width = ni * pps;
+    let x0 = left + 0.5 * (avail_w - width);
+    [0.0, 1.0].map(|k| SliceFrame {
+        origin: (x0, top + k * (avail_h + 90.0) + nj * pps),
+        pixels_per_step: pps,
+    })
+}
+
+/// Colour every pixel of one field: bilinear between four samples outside
+/// the body, the nearest sample next to it, grey inside.
+fn draw_field(
+    c: &mut Canvas,
+    slice: &Slice,
+    field: &[Option<f64>],
+    scale: &ColourScale,
+    f: &SliceFrame,
+) {
+    let (ni, nj) = slice.dims;
+    let (x0, y1) = f.pixel_at(0.0, 0.0);
+    let (x1, y0) = f.pixel_at((ni - 1) as f64, (nj - 1) as f64);
+    for y in y0.floor() as i64..y1.ceil() as i64 {
+        for x in x0.floor() as i64..x1.ceil() as i64 {
+            let (gi, gj) = f.grid_at(x as f64, y as f64);
+            if gi < 0.0 || gj < 0.0 || gi > (ni - 1) as f64 || gj > (nj - 1) as f64 {
+                continue;
+            }
+            let colour = match sample(field, slice.dims, gi, gj) {
+                Some(v) => scale.colour(v).unwrap_or(BODY),
+                None => BODY,
+            };
+            c.blend(x, y, colour, 1.0);
+        }
+    }
+}
+
+/// Value of a field at fractional index `(gi, gj)`; `None` in the body.
+///
+/// Bilinear weights over the four surrounding samples; the point is in the
+/// body when the body samples carry half the weight or more (a smooth
+/// cross-section edge instead of a staircase), otherwise the weighted mean
+/// of the samples outside.
+fn sample(field: &[Option<f64>], (ni, nj): (usize, usize), gi: f64, gj: f64) -> Option<f64> {
+    let (i0, j0) = (
+        (gi.floor() as usize).min(ni - 2),
+        (gj.floor() as usize).min(nj - 2),
+    );
+    let (fi, fj) = (gi - i0 as f64, gj - j0 as f64);
+    let corners = [
+        (field[i0 + j0 * ni], (1.0 - fi) * (1.0 - fj)),
+        (field[i0 + 1 + j0 * ni], fi * (1.0 - fj)),
+        (field[i0 + (j0 + 1) * ni], (1.0 - fi) * fj),
+        (field[i0 + 1 + (j0 + 1) * ni], fi * fj),
+    ];
+    let (sum, weight) = corners
+        .iter()
+        .filter_map(|&(v, w)| v.map(|v| (v * w, w)))
+        .fold((0.0, 0.0), |a, b| (a.0 + b.0, a.1 + b.1));
+    (weight > 0.5).then(|| sum / weight)
+}
+
+/// Frame, ticks in metres along both axes, axis names and the panel label.
+fn draw_axes(c: &mut Canvas, slice: &Slice, f: &SliceFrame, label: &str) {
+    let (ni, nj) = ((slice.dims.0 - 1) as f64, (slice.dims.1 - 1) as f64);
+    let (x0, y1) = f.pixel_at(0.0, 0.0);
+    let (x1, y0) = f.pixel_at(ni, nj);
+    c.stroke_rect(
+        x0 as f32,
+        y0 as f32,
+        (x1 - x0) as f32,
+        (y1 - y0) as f32,
+        INK,
+        1.0,
+    );
+    text::draw(
+        c,
+        label,
+        x0 as f32,
+        (y0 - 10.0) as f32,
+        &TextStyle::new(17.0).bold(),
+    );
+    let style = TextStyle::new(14.0);
+    let (a, b) = slice.axes;
+    let (oa, ob) = (slice.origin.coords.dot(&a), slice.origin.coords.dot(&b));
+    let ta = nice_ticks(oa, oa + ni * slice.spacing, 8);
+    for &t in &ta {
+        let (px, _) = f.pixel_at((t - oa) / slice.spacing, 0.0);
+        c.polyline(
+            &[(px as f32, y1 as f32), (px as f32, (y1 + 5.0) as f32)],
+            INK,
+            1.2,
+        );
+        text::draw(
+            c,
+            &tick_label(t, &ta),
+            px as f32,
+            (y1 + 21.0) as f32,
+            &style.align(Align::Centre),
+        );
+    }
+    let tb = nice_ticks(ob, ob + nj * slice.spacing, 4);
+    for &t in &tb {
+        let (_, py) = f.pixel_at(0.0, (t - ob) / slice.spacing);
+        c.polyline(
+            &[((x0 - 5.0) as f32, py as f32), (x0 as f32, py as f32)],
+            INK,
+            1.2,
+        );
+        text::draw(
+            c,
+            &tick_label(t, &tb),
+            (x0 - 9.0) as f32,
+            (py + 5.0) as f32,
+            &style.align(Align::Right),
+        );
+    }
+    let axis = TextStyle::new(15.0).bold().align(Align::Centre);
+    text::draw(
+        c,
+        &format!("{} [m]", axis_name(&a)),
+        (0.5 * (x0 + x1)) as f32,
+        (y1 + 42.0) as f32,
+        &axis,
+    );
+    text::draw_vertical(
+        c,
+        &format!("{} [m]", axis_name(&b)),
+        (x0 - 58.0) as f32,
+        (0.5 * (y0 + y1)) as f32,
+        &axis,
+    );
+}
+
+/// `x`, `y` or `z` for a coordinate axis (either sense), else `s`.
+fn axis_name(a: &Vector3<f64>) -> &'static str {
+    match (a.x.abs() > 0.999, a.y.abs() > 0.999, a.z.abs() > 0.999) {
+        (true, _, _) => "x",
+        (_, true, _) => "y",
+        (_, _, true) => "z",
+        _ => "s",
+    }
+}
+
+/// One line saying where the plane is.
+fn describe_plane(s: &Slice) -> String {
+    let n = s.axes.0.cross(&s.axes.1);
+    let pos = s.origin.coords.dot(&n);
+    let plane = match axis_name(&n) {
+        "s" => format!(
+            "plane through ({}, {}, {}) m",
+            short_number(s.origin.x),
+            short_number(s.origin.y),
+            short_number(s.origin.z)
+        ),
+        name => format!(
+            "plane {name} = {} m",
+            short_number(pos * n.dot(&axis_unit(name)).signum())
+        ),
+    };
+    format!(
+        "{plane}; {} x {} samples {} m apart. Grey: inside the body.",
+        s.dims.0,
+        s.dims.1,
+        short_number(s.spacing)
+    )
+}
+
+/// Unit vector of a coordinate axis by name.
+fn axis_unit(name: &str) -> Vector3<f64> {
+    match name {
+        "x" => Vector3::x(),
+        "y" => Vector3::y(),
+        _ => Vector3::z(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use nalgebra::Point3;
+
+    use super::*;
+    use crate::output::canvas::testing::{decode, keep};
+    use crate::output::fixture::{SPEED, caption};
+
+    /// Potential flow past a unit sphere, free stream U along x (Lamb,
+    /// Hydrodynamics, §92): phi = U x (1 + 1/(2 r^3)), so
+    /// V = U [e_x (1 + 1/(2 r^3)) - 3/2 x r / r^5].
+    fn sphere_velocity(p: &Point3<f64>) -> Option<Vector3<f64>> {
+        let r = p.coords.norm();
+        (r > 1.0).then(|| {
+            SPEED * (Vector3::x() * (1.0 + 0.5 / r.powi(3)) - 1.5 * p.x * p.coords / r.powi(5))
+        })
+    }
+
+    fn centre_plane() -> Slice {
+        let dims = (121, 61);
+        let spacing = 0.05;
+        let origin = Point3::new(-3.0, 0.0, -1.5);
+        let mut s = Slice {
+            name: "centre-plane".to_owned(),
+            origin,
+            axes: (Vector3::x(), Vector3::z()),
+            spacing,
+            dims,
+            velocity: vec![],
+            cp: vec![],
+        };
+        for j in 0..dims.1 {
+            for i in 0..dims.0 {
+                let v = sphere_velocity(&s.point(i, j));
+                s.velocity.push(v);
+                s.cp.push(v.map(|v| 1.0 - v.norm_squared() / (SPEED * SPEED)));
+            }
+        }
+        s
+    }
+
+    #[test]
+    fn sphere_slice_shows_body_stagnation_and_free_stream() {
+        let slice = centre_plane();
+        let (canvas, frames) = slice_picture(&slice, &caption()).unwrap();
+        let png = canvas.to_png().unwrap();
+        keep("slice.png", &png);
+        let img = decode(&png);
+        assert_eq!((img.width, img.height), (1600, 1000));
+        assert!(img.distinct_colours() > 100);
+        let grid = |x: f64, z: f64| ((x + 3.0) / 0.05, (z + 1.5) / 0.05);
+        for f in &frames {
+            // The sphere's centre is inside the body: grey.
+            let (gi, gj) = grid(0.0, 0.0);
+            let (px, py) = f.pixel_at(gi, gj);
+            assert_eq!(img.pixel(px as i64, py as i64), BODY);
+        }
+        // Far upstream on the axis (x = -2.9, r = 2.9) Lamb's |V|/U is
+        // 1 - 1/r^3 = 0.959: the speed map's colour there, within 6 levels
+        // (bilinear interpolation between samples).
+        let speed_scale = ColourScale::speed_ratio(&[1.5]);
+        let (gi, gj) = grid(-2.9, 0.0);
+        let (px, py) = frames[0].pixel_at(gi, gj);
+        let want = speed_scale.colour(1.0 - 1.0 / 2.9f64.powi(3)).unwrap();
+        let got = img.pixel(px as i64, py as i64);
+        for ch in 0..3 {
+            assert!(
+                (i32::from(got[ch]) - i32::from(want[ch])).abs() <= 6,
+                "{got:?} vs {want:?}"
+            );
+        }
+        // Just ahead of the stagnation point (x = -1.1) the speed is low
+        // (|V|/U = 1 - 1/1.1^3 = 0.25) and Cp high (0.94): dark in viridis,
+        // red in the Cp map.
+        let (gi, gj) = grid(-1.1, 0.0);
+        let dark = img.pixel(
+            frames[0].pixel_at(gi, gj).0 as i64,
+            frames[0].pixel_at(gi, gj).1 as i64,
+        );
+        assert!(
+            dark.iter().map(|&c| u32::from(c)).sum::<u32>() < 300,
+            "{dark:?}"
+        );
+        let (px, py) = frames[1].pixel_at(gi, gj);
+        let red = img.pixel(px as i64, py as i64);
+        assert!(red[0] > 100 && red[0] > red[2] + 60, "{red:?}");
+    }
+}

@@ -1,0 +1,274 @@
+//! The physics of one run, in order: potential flow, boundary layer, loads,
+//! the drag band, flow slices. No file is written here.
+
+use anyhow::{Context, Result};
+use nalgebra::{Point3, Vector3};
+use tuft_mesh::PanelMesh;
+use tuft_solver::boundary_layer::{
+    BoundaryLayer, BoundaryLayerParams, FlowState, Transition, plateau_cp, screen_boundary_layer,
+};
+use tuft_solver::loads::{self, Loads, Reference};
+use tuft_solver::{Freestream, PotentialSolution, solve_potential};
+
+use crate::case::{Case, TransitionMode};
+use crate::estimate;
+use crate::progress::Progress;
+
+/// Everything computed for one case.
+pub struct Computed {
+    /// Potential-flow solution on the real panels.
+    pub potential: PotentialSolution,
+    /// Boundary layer with the case's settings.
+    pub layer: BoundaryLayer,
+    /// Loads of the attached potential flow (pressure only).
+    pub attached: Loads,
+    /// Loads with the plateau model and skin friction: the drag estimate.
+    pub estimate: Loads,
+    /// Drag coefficients of the sensitivity runs (lowest, highest).
+    pub drag_band: (f64, f64),
+    /// What the sensitivity runs varied.
+    pub band_note: String,
+    /// Reference values used.
+    pub reference: Reference,
+    /// Whether the reference area, length and axles came from the case.
+    pub reference_given: ReferenceGiven,
+    /// Separated area, m^2 (real panels).
+    pub separated_area: f64,
+    /// Warnings the user must read.
+    pub warnings: Vec<String>,
+}
+
+/// Which reference values the case gave (the rest are computed).
+#[derive(Debug, Clone, Copy, serde::Serialize)]
+pub struct ReferenceGiven {
+    /// Area from the case.
+    pub area: bool,
+    /// Length from the case.
+    pub length: bool,
+    /// Axle positions from the case.
+    pub axles: bool,
+}
+
+/// Boundary-layer settings from a case.
+pub fn layer_params(case: &Case, flow_direction: Vector3<f64>) -> BoundaryLayerParams {
+    let mut p = BoundaryLayerParams {
+        nu: case.file.flow.viscosity,
+        flow_direction: Some(flow_direction),
+        ..BoundaryLayerParams::default()
+    };
+    p.transition = match case.transition {
+        TransitionMode::Free => Transition::Free,
+        TransitionMode::Laminar => Transition::Laminar,
+        TransitionMode::Turbulent => Transition::Turbulent,
+        TransitionMode::Forced(x_fraction) => Transition::Forced { x_fraction },
+    };
+    if let Some(h) = case.file.boundary_layer.separation_h {
+        p.separation_h = h;
+    }
+    p
+}
+
+/// Reference area, length, moment point and axles for a mesh and a case.
+pub fn reference(mesh: &PanelMesh, case: &Case) -> (Reference, ReferenceGiven) {
+    let r = &case.file.reference;
+    let (lo, hi) = mesh.bounds();
+    let length = loads::body_length(mesh);
+    let (front_axle_x, rear_axle_x) = match (r.front_axle_x, r.rear_axle_x) {
+        (Some(f), Some(b)) => (f, b),
+        // Common practice for a passenger car: overhangs of about a fifth
+        // of the length at each end.
+        _ => (lo.x + 0.2 * length, hi.x - 0.2 * length),
+    };
+    let ground = mesh.mirrors.ground.unwrap_or(lo.z);
+    let reference = Reference {
+        area: r.area.unwrap_or_else(|| loads::frontal_area(mesh)),
+        length: r.length.unwrap_or(length),
+        moment_point: Point3::new(0.5 * (front_axle_x + rear_axle_x), 0.0, ground),
+        front_axle_x,
+        rear_axle_x,
+    };
+    let given = ReferenceGiven {
+        area: r.area.is_some(),
+        length: r.length.is_some(),
+        axles: r.front_axle_x.is_some(),
+    };
+    (reference, given)
+}
+
+/// Skin-friction vectors on the free-stream dynamic pressure:
+/// `c_f (|V_e| / U)^2` along the local flow direction, zero where separated.
+pub fn friction_vectors(
+    velocity: &[Vector3<f64>],
+    layer: &BoundaryLayer,
+    speed: f64,
+) -> Vec<Vector3<f64>> {
+    velocity
+        .iter()
+        .zip(&layer.panels)
+        .map(|(v, l)| {
+            let ratio2 = v.norm_squared() / (speed * speed);
+            v.try_normalize(1e-12)
+                .map_or(Vector3::zeros(), |d| d * l.cf * ratio2)
+        })
+        .collect()
+}
+
+/// Run the physics of a case on a prepared mesh.
+pub fn compute(
+    mesh: &PanelMesh,
+    case: &Case,
+    memory_limit: Option<f64>,
+    progress: &mut Progress,
+) -> Result<Computed> {
+    let flow = &case.file.flow;
+    estimate::check_fits(
+        mesh.len(),
+        mesh.mirrors.symmetry,
+        estimate::available_memory(memory_limit),
+    )?;
+    let guess = estimate::estimate(mesh, rayon::current_num_threads());
+    progress.note(&format!(
+        "{} panels: expect about {:.0} s for the solve and {:.2} GB of memory",
+        mesh.len(),
+        guess.seconds.max(1.0),
+        guess.memory_bytes / 1e9
+    ));
+    let fs = Freestream::new(flow.speed, flow.yaw);
+    let phase = progress.begin(
+        "potential flow",
+        &format!("solving potential flow on {} panels", mesh.len()),
+    );
+    let potential = solve_potential(mesh, &fs).context("potential-flow solve")?;
+    let note = match potential.stats.iterations {
+        Some(it) => format!(
+            "{:?}, {it} iterations, residual {:.1e}",
+            potential.stats.method, potential.stats.residual
+        ),
+        None => format!(
+            "{:?}, residual {:.1e}",
+            potential.stats.method, potential.stats.residual
+        ),
+    };
+    progress.end(phase, &note);
+
+    let phase = progress.begin(
+        "boundary layer",
+        "marching boundary layers along surface streamlines",
+    );
+    let params = layer_params(case, fs.velocity().normalize());
+    let layer = screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
+        .context("boundary-layer screening")?;
+    progress.end(
+        phase,
+        &format!(
+            "{} streamlines, {} panels unresolved",
+            layer.streamlines.len(),
+            layer.unresolved
+        ),
+    );
+
+    let phase = progress.begin("loads", "integrating loads");
+    let (reference, reference_given) = reference(mesh, case);
+    let air = loads::FlowState {
+        density: flow.density,
+        speed: flow.speed,
+        yaw: flow.yaw.to_radians(),
+    };
+    let attached = loads::integrate_loads(mesh, &potential.cp, None, &reference, &air)?;
+    let cp_plateau = plateau_cp(mesh, &potential.cp, &layer);
+    let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
+    let estimate = loads::integrate_loads(mesh, &cp_plateau, Some(&friction), &reference, &air)?;
+    let (drag_band, band_note) = drag_band(
+        mesh,
+        &potential,
+        &params,
+        &reference,
+        &air,
+        estimate.total.coefficients.drag,
+    )?;
+    progress.end(
+        phase,
+        &format!("drag estimate {:.3}", estimate.total.coefficients.drag),
+    );
+
+    let separated_area = mesh
+        .panels
+        .iter()
+        .zip(&layer.panels)
+        .filter(|(_, l)| l.state == FlowState::Separated)
+        .map(|(p, _)| p.area)
+        .sum();
+    let mut warnings = Vec::new();
+    if layer.unresolved > 0 {
+        warnings.push(format!(
+            "{} of {} panels were reached by no surface streamline; their boundary layer is unresolved",
+            layer.unresolved,
+            mesh.len()
+        ));
+    }
+    if !reference_given.axles {
+        warnings.push(
+            "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \
+             (set reference.front_axle_x and reference.rear_axle_x)"
+                .into(),
+        );
+    }
+    Ok(Computed {
+        potential,
+        layer,
+        attached,
+        estimate,
+        drag_band,
+        band_note,
+        reference,
+        reference_given,
+        separated_area,
+        warnings,
+    })
+}
+
+/// The drag estimate's sensitivity band: the boundary layer re-marched with
+/// the separation threshold at the ends of the published range (H = 2.0 and
+/// 2.8 around the default; "separation very likely when H exceeds 2.2 to
+/// 2.4", Cebeci & Bradshaw use 1.8-2.4) and with a fully turbulent layer.
+/// This is a model-sensitivity band, not a confidence interval.
+fn drag_band(
+    mesh: &PanelMesh,
+    potential: &PotentialSolution,
+    base: &BoundaryLayerParams,
+    reference: &Reference,
+    air: &loads::FlowState,
+    central: f64,
+) -> Result<((f64, f64), String)> {
+    let variants = [
+        BoundaryLayerParams {
+            separation_h: 2.0,
+            ..base.clone()
+        },
+        BoundaryLayerParams {
+            separation_h: 2.8,
+            ..base.clone()
+        },
+        BoundaryLayerParams {
+            transition: Transition::Turbulent,
+            ..base.clone()
+        },
+    ];
+    let mut lo = central;
+    let mut hi = central;
+    for params in &variants {
+        let layer = screen_boundary_layer(mesh, &potential.velocity, air.speed, params)?;
+        let cp = plateau_cp(mesh, &potential.cp, &layer);
+        let friction = friction_vectors(&potential.velocity, &layer, air.speed);
+        let cd = loads::integrate_loads(mesh, &cp, Some(&friction), reference, air)?
+            .total
+            .coefficients
+            .drag;
+        lo = lo.min(cd);
+        hi = hi.max(cd);
+    }
+    Ok((
+        (lo, hi),
+        "separation threshold H 2.0-2.8 and fully turbulent boundary layer".into(),
+    ))
+}

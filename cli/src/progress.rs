@@ -1,0 +1,88 @@
+//! Progress on stderr: a spinner per phase when stderr is a terminal, one
+//! plain line per phase otherwise, nothing with `--quiet`.
+
+use std::io::IsTerminal;
+use std::time::{Duration, Instant};
+
+use indicatif::{ProgressBar, ProgressStyle};
+
+/// Reports the phases of a run and times them.
+pub struct Progress {
+    quiet: bool,
+    terminal: bool,
+    prefix: String,
+    timings: Vec<(String, f64)>,
+}
+
+/// One running phase; finish it with [`Progress::end`].
+pub struct Phase {
+    name: String,
+    start: Instant,
+    bar: Option<ProgressBar>,
+}
+
+impl Progress {
+    /// A reporter; `prefix` (e.g. the case name) starts every line.
+    pub fn new(quiet: bool, prefix: &str) -> Self {
+        Self {
+            quiet,
+            terminal: std::io::stderr().is_terminal(),
+            prefix: prefix.to_string(),
+            timings: Vec::new(),
+        }
+    }
+
+    /// Start a phase with a human description.
+    pub fn begin(&self, name: &str, what: &str) -> Phase {
+        let bar = if self.quiet {
+            None
+        } else if self.terminal {
+            let bar = ProgressBar::new_spinner();
+            if let Ok(style) = ProgressStyle::with_template("{spinner} {prefix}: {msg} [{elapsed}]")
+            {
+                bar.set_style(style);
+            }
+            bar.set_prefix(self.prefix.clone());
+            bar.set_message(what.to_string());
+            bar.enable_steady_tick(Duration::from_millis(120));
+            Some(bar)
+        } else {
+            eprintln!("{}: {what} ...", self.prefix);
+            None
+        };
+        Phase {
+            name: name.to_string(),
+            start: Instant::now(),
+            bar,
+        }
+    }
+
+    /// Finish a phase, with a short result note.
+    pub fn end(&mut self, phase: Phase, note: &str) {
+        let secs = phase.start.elapsed().as_secs_f64();
+        if let Some(bar) = phase.bar {
+            bar.finish_and_clear();
+        }
+        if !self.quiet {
+            eprintln!(
+                "{}: {} done in {secs:.1} s{}{note}",
+                self.prefix,
+                phase.name,
+                if note.is_empty() { "" } else { ": " }
+            );
+        }
+        self.timings.push((phase.name, secs));
+    }
+
+    /// Print a one-off note (unless quiet).
+    pub fn note(&self, msg: &str) {
+        if !self.quiet {
+            eprintln!("{}: {msg}", self.prefix);
+        }
+    }
+
+    /// Seconds per phase, in order.
+    pub fn timings(&self) -> &[(String, f64)] {
+        &self.timings
+    }
+}

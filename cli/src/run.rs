@@ -1,0 +1,193 @@
+//! `tuft run CASE.toml` and `tuft demo`.
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result};
+
+use crate::case::{Case, CaseFile, GeometrySection};
+use crate::outdir::Staging;
+use crate::progress::Progress;
+use crate::summary::Summary;
+use crate::{EXIT_WARNINGS, geometry, pipeline, write};
+
+/// Options shared by the commands that run cases.
+#[derive(clap::Args, Clone)]
+pub struct RunOptions {
+    /// Worker threads (default: all cores). Results do not depend on it
+    /// beyond round-off.
+    #[arg(long)]
+    pub threads: Option<usize>,
+    /// Replace an existing result folder.
+    #[arg(long)]
+    pub force: bool,
+    /// No progress messages.
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Memory the run may use, e.g. 8G (default: what the system has
+    /// available). A run that would need more stops before solving and
+    /// suggests a panel count that fits.
+    #[arg(long, value_name = "SIZE")]
+    pub memory_limit: Option<String>,
+}
+
+impl RunOptions {
+    /// The memory limit in bytes, if given.
+    pub fn memory_limit_bytes(&self) -> Result<Option<f64>> {
+        self.memory_limit
+            .as_deref()
+            .map(crate::estimate::parse_size)
+            .transpose()
+    }
+}
+
+/// Arguments of `tuft run`.
+#[derive(clap::Args)]
+pub struct RunArgs {
+    /// The case file (TOML).
+    pub case: PathBuf,
+    /// Result folder (default: next to the case, named after it).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub options: RunOptions,
+}
+
+/// Arguments of `tuft demo`.
+#[derive(clap::Args)]
+pub struct DemoArgs {
+    /// Folder for the two results (default: `tuft-demo` in the working folder).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub options: RunOptions,
+}
+
+/// Set the worker thread count once for the process.
+pub fn set_threads(threads: Option<usize>) -> Result<()> {
+    if let Some(n) = threads {
+        if n == 0 {
+            anyhow::bail!("--threads must be at least 1");
+        }
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build_global()
+            .context("cannot set the thread count")?;
+    }
+    Ok(())
+}
+
+/// `tuft run`.
+pub fn run(args: &RunArgs) -> Result<ExitCode> {
+    set_threads(args.options.threads)?;
+    let case = Case::load(&args.case)?;
+    let out = args
+        .out
+        .clone()
+        .unwrap_or_else(|| default_out(&args.case, &case.name));
+    let summary = run_case(&case, &out, &args.options)?;
+    finish(&out, &summary, args.options.quiet)
+}
+
+/// Default result folder: beside the case file, named after it.
+fn default_out(case_path: &Path, name: &str) -> PathBuf {
+    case_path.parent().unwrap_or(Path::new(".")).join(name)
+}
+
+/// Run one checked case into `out`; nothing appears in `out` unless the
+/// whole run succeeds.
+pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary> {
+    let memory_limit = options.memory_limit_bytes()?;
+    let staging = Staging::new(out, options.force)?;
+    let mut progress = Progress::new(options.quiet, &case.name);
+    let phase = progress.begin("geometry", "reading and preparing the geometry");
+    let geo = geometry::load(case)?;
+    progress.end(phase, &format!("{} panels", geo.mesh.len()));
+    let computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
+    let summary = write::write_all(case, &geo, &computed, &staging, &mut progress)
+        .with_context(|| format!("writing results for {}", out.display()))?;
+    staging.commit()?;
+    Ok(summary)
+}
+
+fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
+    if !quiet {
+        print_summary(out, summary);
+    }
+    Ok(if summary.warnings.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_WARNINGS)
+    })
+}
+
+/// A few lines on stdout: the headline numbers and where the report is.
+fn print_summary(out: &Path, s: &Summary) {
+    let k = &s.coefficients;
+    println!(
+        "{}: drag estimate C_D {:.3} (band {:.3}-{:.3}), lift C_L {:.3}",
+        s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
+    );
+    println!(
+        "  lift {:.0} kg (front {:.0}, rear {:.0}), separated {:.1} % of the surface",
+        s.lift_kg.total,
+        s.lift_kg.front_axle,
+        s.lift_kg.rear_axle,
+        100.0 * s.separation.fraction
+    );
+    for w in &s.warnings {
+        println!("  warning: {w}");
+    }
+    println!("  report: {}", out.join("report.html").display());
+}
+
+/// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle
+/// fastback-like slope and a steep notch-like one.
+pub const DEMO_SLOPES: [f64; 2] = [22.0, 38.0];
+
+/// The demo's case for one rear-window slope.
+pub fn demo_case(slope: f64) -> Result<Case> {
+    let file = CaseFile {
+        geometry: GeometrySection {
+            shape: Some("coupe".into()),
+            rear_window_deg: Some(slope),
+            ..GeometrySection::default()
+        },
+        ground: Some(crate::case::GroundSection { z: 0.0 }),
+        reference: crate::case::ReferenceSection {
+            front_axle_x: Some(0.95),
+            rear_axle_x: Some(3.65),
+            ..Default::default()
+        },
+        ..CaseFile::default()
+    };
+    Case::from_file(Path::new(&format!("coupe-{slope:.0}deg.toml")), file)
+}
+
+/// `tuft demo`.
+pub fn demo(args: &DemoArgs) -> Result<ExitCode> {
+    set_threads(args.options.threads)?;
+    let root = args
+        .out
+        .clone()
+        .unwrap_or_else(|| PathBuf::from("tuft-demo"));
+    let mut worst = ExitCode::SUCCESS;
+    for slope in DEMO_SLOPES {
+        let case = demo_case(slope)?;
+        let out = root.join(&case.name);
+        let summary = run_case(&case, &out, &args.options)?;
+        let code = finish(&out, &summary, args.options.quiet)?;
+        if code != ExitCode::SUCCESS {
+            worst = code;
+        }
+    }
+    if !args.options.quiet {
+        println!(
+            "Compare the two: tuft compare {0}/coupe-{1:.0}deg {0}/coupe-{2:.0}deg",
+            root.display(),
+            DEMO_SLOPES[0],
+            DEMO_SLOPES[1]
+        );
+    }
+    Ok(worst)
+}

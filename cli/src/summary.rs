@@ -1,0 +1,151 @@
+//! `summary.json`: the numbers of one run, for people and scripts.
+//!
+//! The same struct is read back by `compare` and `collect`, so the field
+//! names are part of tuft's interface; add fields, rename none.
+
+use std::collections::BTreeMap;
+
+use serde::{Deserialize, Serialize};
+
+/// Force and moment coefficients on the reference area and length.
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct CoefficientSet {
+    /// Lift coefficient (+z).
+    pub lift: f64,
+    /// Drag coefficient (along the free stream): pressure plus friction.
+    pub drag: f64,
+    /// Friction part of the drag coefficient.
+    pub drag_friction: f64,
+    /// Pressure part of the drag coefficient.
+    pub drag_pressure: f64,
+    /// Side-force coefficient.
+    pub side: f64,
+    /// Pitching-moment coefficient about the moment point (nose up +).
+    pub pitch: f64,
+}
+
+/// Vertical loads in kilograms-force at the run speed (trade habit).
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct LiftKg {
+    /// Whole body.
+    pub total: f64,
+    /// On the front axle.
+    pub front_axle: f64,
+    /// On the rear axle.
+    pub rear_axle: f64,
+}
+
+/// Where the boundary layer separated.
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct Separation {
+    /// Separated area, m^2 (whole body: both halves of a half model).
+    pub area_m2: f64,
+    /// Fraction of the wetted area.
+    pub fraction: f64,
+}
+
+/// The drag estimate with its sensitivity band.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct DragEstimate {
+    /// Central estimate of the drag coefficient.
+    pub cd: f64,
+    /// Lowest drag coefficient of the sensitivity runs.
+    pub cd_low: f64,
+    /// Highest drag coefficient of the sensitivity runs.
+    pub cd_high: f64,
+    /// What the sensitivity runs varied.
+    pub band: String,
+    /// Drag force, N.
+    pub force_n: f64,
+}
+
+/// Mesh facts.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct MeshFacts {
+    /// Facets read from the file (or generated).
+    pub input_facets: usize,
+    /// Real panels solved.
+    pub panels: usize,
+    /// Ground plane height, m.
+    pub ground_z: Option<f64>,
+    /// Half model mirrored in y = 0.
+    pub symmetry_plane: bool,
+    /// Wetted area of the whole body, m^2.
+    pub wetted_area_m2: f64,
+    /// Preparation report (reading, repair passes, coarsening, quality).
+    pub preparation: serde_json::Value,
+}
+
+/// Reference values.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct ReferenceValues {
+    /// Reference area, m^2.
+    pub area_m2: f64,
+    /// Reference length, m.
+    pub length_m: f64,
+    /// Moment point, m.
+    pub moment_point_m: [f64; 3],
+    /// Front axle x, m.
+    pub front_axle_x_m: f64,
+    /// Rear axle x, m.
+    pub rear_axle_x_m: f64,
+    /// Which of these the case gave (the rest were computed or assumed).
+    pub given: BTreeMap<String, bool>,
+}
+
+/// Solver facts.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct SolverFacts {
+    /// Linear solver used.
+    pub method: String,
+    /// Krylov iterations, if iterative.
+    pub iterations: Option<usize>,
+    /// Relative residual of the solve.
+    pub residual: f64,
+    /// Surface streamlines traced.
+    pub streamlines: usize,
+    /// Panels no streamline reached.
+    pub unresolved_panels: usize,
+}
+
+/// The whole summary.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct Summary {
+    /// `tuft` and its version.
+    pub tool: String,
+    /// Case name.
+    pub case_name: String,
+    /// The resolved case.
+    pub case: serde_json::Value,
+    /// Mesh facts.
+    pub mesh: MeshFacts,
+    /// Reference values.
+    pub reference: ReferenceValues,
+    /// Dynamic pressure, Pa.
+    pub dynamic_pressure_pa: f64,
+    /// Reynolds number on the reference length.
+    pub reynolds_number: f64,
+    /// Coefficients of the drag estimate (plateau pressure plus friction).
+    pub coefficients: CoefficientSet,
+    /// Coefficients of the attached potential flow (pressure only).
+    pub coefficients_attached: CoefficientSet,
+    /// Drag estimate with its band.
+    pub drag_estimate: DragEstimate,
+    /// Lift in kg at the run speed.
+    pub lift_kg: LiftKg,
+    /// Separation.
+    pub separation: Separation,
+    /// Solver facts.
+    pub solver: SolverFacts,
+    /// Seconds per phase.
+    pub timings_s: BTreeMap<String, f64>,
+    /// Warnings the user must read.
+    pub warnings: Vec<String>,
+    /// The caution that goes with every number here.
+    pub caution: String,
+}
+
+/// The caution printed with every result.
+pub const CAUTION: &str = "Screening estimate only. Lift, drag and stability at speed must be \
+confirmed by validated CFD or wind-tunnel tests and by the responsible engineer, under local \
+regulations.";

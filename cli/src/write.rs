@@ -1,0 +1,448 @@
+//! Writing one run's results: tables, VTK files, pictures, summary, report.
+
+use std::collections::BTreeMap;
+
+use anyhow::{Context, Result};
+use nalgebra::{Point3, Vector3};
+use tuft_mesh::PanelMesh;
+use tuft_solver::boundary_layer::FlowState;
+use tuft_solver::offbody::FlowField;
+
+use crate::case::Case;
+use crate::geometry::Geometry;
+use crate::outdir::Staging;
+use crate::output::html::{NumberRow, Picture, Report, TextSection};
+use crate::output::sheet::SurfaceField;
+use crate::output::{
+    self, Caption, PanelState, PointScalars, Slice, Streamlines, SurfaceResult, csv, html, plot,
+    sheet, slice, vtk,
+};
+use crate::pipeline::Computed;
+use crate::progress::Progress;
+use crate::summary::{
+    CAUTION, CoefficientSet, DragEstimate, LiftKg, MeshFacts, ReferenceValues, Separation,
+    SolverFacts, Summary,
+};
+
+/// Samples along the longer side of a flow slice.
+const SLICE_SAMPLES: usize = 110;
+
+/// Per-panel fields in the shapes the writers take.
+pub struct Fields {
+    /// Momentum thickness.
+    pub theta: Vec<f64>,
+    /// Shape factor.
+    pub shape_factor: Vec<f64>,
+    /// Skin friction.
+    pub cf: Vec<f64>,
+    /// State.
+    pub state: Vec<PanelState>,
+    /// Risk.
+    pub risk: Vec<f64>,
+}
+
+impl Fields {
+    /// Unpack the boundary layer.
+    pub fn new(c: &Computed) -> Self {
+        let l = &c.layer.panels;
+        Self {
+            theta: l.iter().map(|p| p.theta).collect(),
+            shape_factor: l.iter().map(|p| p.h).collect(),
+            cf: l.iter().map(|p| p.cf).collect(),
+            state: l.iter().map(|p| panel_state(p.state)).collect(),
+            risk: l.iter().map(|p| p.risk).collect(),
+        }
+    }
+
+    /// The writers' view of a result.
+    pub fn surface<'a>(&'a self, mesh: &'a PanelMesh, c: &'a Computed) -> SurfaceResult<'a> {
+        SurfaceResult {
+            mesh,
+            cp: &c.potential.cp,
+            velocity: &c.potential.velocity,
+            theta: &self.theta,
+            shape_factor: &self.shape_factor,
+            cf: &self.cf,
+            state: &self.state,
+            risk: &self.risk,
+        }
+    }
+}
+
+fn panel_state(s: FlowState) -> PanelState {
+    match s {
+        FlowState::Laminar => PanelState::Laminar,
+        FlowState::Turbulent => PanelState::Turbulent,
+        FlowState::Separated => PanelState::Separated,
+        FlowState::Unresolved => PanelState::Unresolved,
+    }
+}
+
+/// Write every output of a run into `out` and return the summary.
+pub fn write_all(
+    case: &Case,
+    geo: &Geometry,
+    c: &Computed,
+    out: &Staging,
+    progress: &mut Progress,
+) -> Result<Summary> {
+    let phase = progress.begin(
+        "outputs",
+        "writing tables, VTK files, pictures and the report",
+    );
+    let mesh = &geo.mesh;
+    let fields = Fields::new(c);
+    let surface = fields.surface(mesh, c);
+    let caption = Caption {
+        case: case.name.clone(),
+        speed_ms: case.file.flow.speed,
+        yaw_deg: case.file.flow.yaw,
+    };
+    output::write_file(&out.file("panels.csv"), |w| csv::write_panels(w, &surface))?;
+    output::write_file(&out.file("surface.vtu"), |w| {
+        vtk::write_surface(w, &surface)
+    })?;
+    let lines: Vec<Vec<Point3<f64>>> = c
+        .layer
+        .streamlines
+        .iter()
+        .map(|s| s.points.clone())
+        .collect();
+    let streamlines = Streamlines {
+        lines: &lines,
+        scalars: &[] as &[PointScalars<'_>],
+    };
+    output::write_file(&out.file("streamlines.vtp"), |w| {
+        vtk::write_streamlines(w, &streamlines)
+    })?;
+    progress.end(phase, "");
+    let phase = progress.begin("flow slices", "computing flow slices off the body");
+    let slices = flow_slices(mesh, c)?;
+    progress.end(phase, "");
+    let phase = progress.begin("pictures", "drawing pictures and the report");
+    for s in &slices {
+        output::write_file(&out.file(&format!("slice-{}.vti", s.name)), |w| {
+            vtk::write_slice(w, s)
+        })?;
+    }
+    let pictures = pictures(&surface, &slices, &caption)?;
+    for p in &pictures {
+        std::fs::write(out.file(&p.0), &p.1.png).with_context(|| p.0.clone())?;
+    }
+    let summary = summary(case, geo, c, progress);
+    let json = serde_json::to_string_pretty(&summary)?;
+    std::fs::write(out.file("summary.json"), json + "\n").context("summary.json")?;
+    let report = report(
+        case,
+        &summary,
+        c,
+        pictures.into_iter().map(|p| p.1).collect(),
+        caption,
+    );
+    output::write_file(&out.file("report.html"), |w| html::write_report(w, &report))?;
+    progress.end(phase, "");
+    Ok(summary)
+}
+
+/// The pictures of a run, with their file names.
+fn pictures(
+    s: &SurfaceResult<'_>,
+    slices: &[Slice],
+    caption: &Caption,
+) -> Result<Vec<(String, Picture)>> {
+    let mut out = Vec::new();
+    let mut add = |file: &str, title: &str, png: Vec<u8>| {
+        out.push((
+            file.to_string(),
+            Picture {
+                title: title.to_string(),
+                png,
+            },
+        ));
+    };
+    let cp = sheet::surface_sheet(s, SurfaceField::Pressure, caption)?;
+    add(
+        "pressure.png",
+        "Surface pressure coefficient: side, top, underneath and rear",
+        cp.to_png()?,
+    );
+    let risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;
+    add(
+        "separation-risk.png",
+        "Separation risk, separated areas hatched",
+        risk.to_png()?,
+    );
+    let (line, _) = plot::centreline_cp_plot(s, caption)?;
+    add(
+        "centreline-cp.png",
+        "Cp along the centre line, upper and lower surface",
+        line.to_png()?,
+    );
+    for sl in slices {
+        let (pic, _) = slice::slice_picture(sl, caption)?;
+        add(
+            &format!("slice-{}.png", sl.name),
+            &format!("Flow slice: {}", sl.name.replace('-', " ")),
+            pic.to_png()?,
+        );
+    }
+    Ok(out)
+}
+
+/// Velocity and Cp on the centre plane (y = 0) and on a horizontal plane
+/// through the middle of the body, from the panel solution.
+pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
+    let p = &c.potential;
+    let field = FlowField::new(mesh, &p.sigma, &p.mu, p.freestream.velocity(), None)?;
+    let u2 = p.freestream.velocity().norm_squared();
+    let (lo, hi) = mesh.bounds();
+    let (len, height) = (hi.x - lo.x, hi.z - lo.z);
+    let half_width = hi.y.max(-lo.y);
+    let x0 = lo.x - 0.3 * len;
+    let x1 = hi.x + 0.6 * len;
+    let z0 = mesh
+        .mirrors
+        .ground
+        .map_or(lo.z - 0.6 * height, |g| g + 1e-3 * height);
+    let z1 = hi.z + 0.8 * height;
+    let centre = grid(
+        &field,
+        u2,
+        "centre-plane",
+        Point3::new(x0, 0.0, z0),
+        Vector3::z(),
+        (x1 - x0, z1 - z0),
+    );
+    let zm = 0.5 * (lo.z + hi.z);
+    let y0 = -2.0 * half_width;
+    let horizontal = grid(
+        &field,
+        u2,
+        "horizontal-plane",
+        Point3::new(x0, y0, zm),
+        Vector3::y(),
+        (x1 - x0, -2.0 * y0),
+    );
+    Ok(vec![centre, horizontal])
+}
+
+fn grid(
+    field: &FlowField,
+    field_speed2: f64,
+    name: &str,
+    origin: Point3<f64>,
+    up: Vector3<f64>,
+    size: (f64, f64),
+) -> Slice {
+    let spacing = size.0.max(size.1) / SLICE_SAMPLES as f64;
+    let dims = (
+        (size.0 / spacing).round() as usize + 1,
+        (size.1 / spacing).round() as usize + 1,
+    );
+    let points: Vec<Point3<f64>> = (0..dims.1)
+        .flat_map(|j| {
+            (0..dims.0).map(move |i| {
+                origin + Vector3::x() * (i as f64 * spacing) + up * (j as f64 * spacing)
+            })
+        })
+        .collect();
+    let velocity = field.velocities(&points);
+    let u2 = field_speed2;
+    let cp = velocity
+        .iter()
+        .map(|v| v.map(|v| 1.0 - v.norm_squared() / u2))
+        .collect();
+    Slice {
+        name: name.into(),
+        origin,
+        axes: (Vector3::x(), up),
+        spacing,
+        dims,
+        velocity,
+        cp,
+    }
+}
+
+fn coefficient_set(l: &tuft_solver::loads::Loads) -> CoefficientSet {
+    CoefficientSet {
+        lift: l.total.coefficients.lift,
+        drag: l.total.coefficients.drag,
+        drag_friction: l.friction.coefficients.drag,
+        drag_pressure: l.pressure.coefficients.drag,
+        side: l.total.coefficients.side,
+        pitch: l.total.coefficients.pitch,
+    }
+}
+
+/// The summary of a finished computation.
+pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -> Summary {
+    let mesh = &geo.mesh;
+    let flow = &case.file.flow;
+    let e = &c.estimate;
+    let sym = if mesh.mirrors.symmetry { 2.0 } else { 1.0 };
+    let wetted = sym * mesh.area();
+    let r = &c.reference;
+    let given: BTreeMap<String, bool> = [
+        ("area".to_string(), c.reference_given.area),
+        ("length".to_string(), c.reference_given.length),
+        ("axles".to_string(), c.reference_given.axles),
+    ]
+    .into_iter()
+    .collect();
+    let mut warnings = c.warnings.clone();
+    warnings.extend(geo.report.quality.warnings.iter().cloned());
+    Summary {
+        tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
+        case_name: case.name.clone(),
+        case: serde_json::to_value(&case.file).unwrap_or_default(),
+        mesh: MeshFacts {
+            input_facets: geo.input_facets,
+            panels: mesh.len(),
+            ground_z: mesh.mirrors.ground,
+            symmetry_plane: mesh.mirrors.symmetry,
+            wetted_area_m2: wetted,
+            preparation: serde_json::to_value(&geo.report).unwrap_or_default(),
+        },
+        reference: ReferenceValues {
+            area_m2: r.area,
+            length_m: r.length,
+            moment_point_m: [r.moment_point.x, r.moment_point.y, r.moment_point.z],
+            front_axle_x_m: r.front_axle_x,
+            rear_axle_x_m: r.rear_axle_x,
+            given,
+        },
+        dynamic_pressure_pa: e.dynamic_pressure,
+        reynolds_number: flow.speed * r.length / flow.viscosity,
+        coefficients: coefficient_set(e),
+        coefficients_attached: coefficient_set(&c.attached),
+        drag_estimate: DragEstimate {
+            cd: e.total.coefficients.drag,
+            cd_low: c.drag_band.0,
+            cd_high: c.drag_band.1,
+            band: c.band_note.clone(),
+            force_n: e.total.coefficients.drag * e.dynamic_pressure * r.area,
+        },
+        lift_kg: LiftKg {
+            total: e.lift_kg,
+            front_axle: e.axles.front_kg,
+            rear_axle: e.axles.rear_kg,
+        },
+        separation: Separation {
+            area_m2: sym * c.separated_area,
+            fraction: sym * c.separated_area / wetted,
+        },
+        solver: SolverFacts {
+            method: format!("{:?}", c.potential.stats.method),
+            iterations: c.potential.stats.iterations,
+            residual: c.potential.stats.residual,
+            streamlines: c.layer.streamlines.len(),
+            unresolved_panels: c.layer.unresolved,
+        },
+        timings_s: progress.timings().iter().cloned().collect(),
+        warnings,
+        caution: CAUTION.into(),
+    }
+}
+
+fn report(
+    case: &Case,
+    s: &Summary,
+    c: &Computed,
+    pictures: Vec<Picture>,
+    caption: Caption,
+) -> Report {
+    let v = case.file.flow.speed;
+    let at = format!("kg at {} m/s", output::short_number(v));
+    let k = &s.coefficients;
+    let numbers = vec![
+        NumberRow::number("Drag coefficient C_D (estimate)", k.drag, "-"),
+        NumberRow::text(
+            "Drag estimate band",
+            &format!(
+                "{:.0} to {:.0}",
+                1000.0 * s.drag_estimate.cd_low,
+                1000.0 * s.drag_estimate.cd_high
+            ),
+            "counts",
+        ),
+        NumberRow::counts("Drag, pressure part (plateau model)", k.drag_pressure),
+        NumberRow::counts("Drag, friction part", k.drag_friction),
+        NumberRow::number("Lift coefficient C_L", k.lift, "-"),
+        NumberRow::number("Lift, whole body", s.lift_kg.total, &at),
+        NumberRow::number("Lift, front axle", s.lift_kg.front_axle, &at),
+        NumberRow::number("Lift, rear axle", s.lift_kg.rear_axle, &at),
+        NumberRow::number("Side-force coefficient", k.side, "-"),
+        NumberRow::number("Pitching-moment coefficient", k.pitch, "-"),
+        NumberRow::number("Separated area", s.separation.area_m2, "m²"),
+        NumberRow::number(
+            "Separated fraction of the wetted area",
+            100.0 * s.separation.fraction,
+            "%",
+        ),
+        NumberRow::number(
+            "Lift coefficient, attached flow",
+            s.coefficients_attached.lift,
+            "-",
+        ),
+        NumberRow::number("Reference area", s.reference.area_m2, "m²"),
+        NumberRow::number("Reference length", s.reference.length_m, "m"),
+        NumberRow::number(
+            "Reynolds number on the reference length",
+            s.reynolds_number,
+            "-",
+        ),
+        NumberRow::text("Panels", &s.mesh.panels.to_string(), "-"),
+    ];
+    let summary = format!(
+        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {:.0} kg at {} m/s ({:.0} front, {:.0} rear); \
+         {:.1} % of the surface separated.",
+        k.drag,
+        s.drag_estimate.cd_low,
+        s.drag_estimate.cd_high,
+        s.lift_kg.total,
+        output::short_number(v),
+        s.lift_kg.front_axle,
+        s.lift_kg.rear_axle,
+        100.0 * s.separation.fraction
+    );
+    let method = TextSection {
+        title: "How these numbers were made".into(),
+        body: format!(
+            "Inviscid potential flow by a source/doublet panel method on {} panels{}; integral boundary \
+             layers (Thwaites laminar, {} transition, Head turbulent with Ludwieg-Tillmann skin friction) \
+             along {} surface streamlines, separation at lambda = -0.09 (laminar) or H = {} (turbulent).\n\n\
+             The drag estimate holds the pressure in separated regions at its value at the separation line \
+             (plateau model) and adds skin friction; its band re-runs the boundary layer with {}. It is a \
+             screening estimate: attached potential flow does not see the wake that a real separation makes, \
+             so absolute drag can be off by much more than the band, while differences between close \
+             variants are more trustworthy. Differences of a few drag counts are within the noise of any \
+             simulation (common practice).",
+            s.mesh.panels,
+            if s.mesh.ground_z.is_some() {
+                " with the ground plane as a mirror image"
+            } else {
+                " in free air"
+            },
+            match case.transition {
+                crate::case::TransitionMode::Free => "Michel's free".to_string(),
+                crate::case::TransitionMode::Laminar => "no (all laminar)".to_string(),
+                crate::case::TransitionMode::Turbulent => "immediate (all turbulent)".to_string(),
+                crate::case::TransitionMode::Forced(f) =>
+                    format!("forced at {:.0} % of the length", 100.0 * f),
+            },
+            s.solver.streamlines,
+            case.file.boundary_layer.separation_h.unwrap_or(2.4),
+            c.band_note
+        ),
+    };
+    Report {
+        caption,
+        summary,
+        numbers,
+        warnings: s.warnings.clone(),
+        pictures,
+        sections: vec![method],
+        cautions: vec![],
+        generator: s.tool.clone(),
+    }
+}

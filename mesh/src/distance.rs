@@ -1,0 +1,180 @@
+//! Distance from points to a triangle surface: closest point on a triangle
+//! (Ericson 2005, *Real-Time Collision Detection*, sec. 5.1.5, by Voronoi
+//! regions) and a uniform grid of triangle boxes searched in growing shells.
+
+use crate::{Point, TriMesh};
+
+/// Closest point to `p` on triangle `abc` (Ericson 2005, sec. 5.1.5).
+pub fn closest_point_on_triangle(p: &Point, a: &Point, b: &Point, c: &Point) -> Point {
+    let (ab, ac, ap) = (b - a, c - a, p - a);
+    let (d1, d2) = (ab.dot(&ap), ac.dot(&ap));
+    if d1 <= 0.0 && d2 <= 0.0 {
+        return *a;
+    }
+    let bp = p - b;
+    let (d3, d4) = (ab.dot(&bp), ac.dot(&bp));
+    if d3 >= 0.0 && d4 <= d3 {
+        return *b;
+    }
+    let vc = d1 * d4 - d3 * d2;
+    if vc <= 0.0 && d1 >= 0.0 && d3 <= 0.0 {
+        return a + ab * (d1 / (d1 - d3));
+    }
+    let cp = p - c;
+    let (d5, d6) = (ab.dot(&cp), ac.dot(&cp));
+    if d6 >= 0.0 && d5 <= d6 {
+        return *c;
+    }
+    let vb = d5 * d2 - d1 * d6;
+    if vb <= 0.0 && d2 >= 0.0 && d6 <= 0.0 {
+        return a + ac * (d2 / (d2 - d6));
+    }
+    let va = d3 * d6 - d5 * d4;
+    if va <= 0.0 && (d4 - d3) >= 0.0 && (d5 - d6) >= 0.0 {
+        return b + (c - b) * ((d4 - d3) / ((d4 - d3) + (d5 - d6)));
+    }
+    let denom = 1.0 / (va + vb + vc);
+    a + ab * (vb * denom) + ac * (vc * denom)
+}
+
+/// Triangles binned by bounding box into a uniform grid.
+pub struct SurfaceGrid<'a> {
+    mesh: &'a TriMesh,
+    origin: Point,
+    cell: f64,
+    dims: [usize; 3],
+    start: Vec<u32>,
+    items: Vec<u32>,
+}
+
+impl<'a> SurfaceGrid<'a> {
+    /// A grid over `mesh` covering at least the box `lo..hi`, with about
+    /// two triangles per occupied cell (at most 128 cells a side).
+    pub fn new(mesh: &'a TriMesh, lo: Point, hi: Point) -> Self {
+        let (mlo, mhi) = mesh.bounds().unwrap_or((lo, hi));
+        let (lo, hi) = (lo.inf(&mlo), hi.sup(&mhi));
+        let ext = (hi - lo).map(|e| e.max(1e-12));
+        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt()
+            / (mesh.len().max(1) as f64).sqrt();
+        let cell = cell.max(ext.max() / 128.0);
+        let dims = [0, 1, 2].map(|k| ((ext[k] / cell).ceil() as usize).clamp(1, 128));
+        let mut grid = Self {
+            mesh,
+            origin: lo,
+            cell,
+            dims,
+            start: Vec::new(),
+            items: Vec::new(),
+        };
+        grid.bin();
+        grid
+    }
+
+    fn cell_index(&self, p: &Point) -> [usize; 3] {
+        [0, 1, 2].map(|k| {
+            (((p[k] - self.origin[k]) / self.cell).floor().max(0.0) as usize).min(self.dims[k] - 1)
+        })
+    }
+
+    fn flat(&self, c: [usize; 3]) -> usize {
+        (c[2] * self.dims[1] + c[1]) * self.dims[0] + c[0]
+    }
+
+    /// Counting sort of triangle ids into cells their boxes overlap.
+    fn bin(&mut self) {
+        let n = self.dims.iter().product::<usize>();
+        let ranges: Vec<([usize; 3], [usize; 3])> = (0..self.mesh.len())
+            .map(|t| {
+                let [a, b, c] = self.mesh.corners(t);
+                (
+                    self.cell_index(&a.inf(&b).inf(&c)),
+                    self.cell_index(&a.sup(&b).sup(&c)),
+                )
+            })
+            .collect();
+        let mut count = vec![0u32; n + 1];
+        for_cells(&ranges, |_, c| count[self.flat(c) + 1] += 1);
+        for i in 0..n {
+            count[i + 1] += count[i];
+        }
+        let mut fill = count.clone();
+        let mut items = vec![0u32; count[n] as usize];
+        for_cells(&ranges, |t, c| {
+            let f = self.flat(c);
+            items[fill[f] as usize] = t as u32;
+            fill[f] += 1;
+        });
+        self.start = count;
+        self.items = items;
+    }
+
+    /// Distance from `p` to the nearest triangle.
+    pub fn distance(&self, p: &Point) -> f64 {
+        let centre = self.cell_index(p);
+        let mut best = f64::INFINITY;
+        let max_ring = *self.dims.iter().max().unwrap_or(&1);
+        for ring in 0..=max_ring {
+            self.visit_ring(centre, ring, |t| {
+                let [a, b, c] = self.mesh.corners(t as usize);
+                best = best.min((closest_point_on_triangle(p, &a, &b, &c) - p).norm());
+            });
+            if best <= self.clearance(p, centre, ring) {
+                break;
+            }
+        }
+        best
+    }
+
+    /// Distance from `p` to the outside of the block of cells within `ring`
+    /// of `centre`: nothing unvisited can be nearer (a block edge at the
+    /// grid's border counts as infinitely far).
+    fn clearance(&self, p: &Point, centre: [usize; 3], ring: usize) -> f64 {
+        (0..3)
+            .map(|k| {
+                let lo = centre[k] as f64 - ring as f64;
+                let hi = (centre[k] + ring + 1) as f64;
+                let x = (p[k] - self.origin[k]) / self.cell;
+                let below = if lo <= 0.0 { f64::INFINITY } else { x - lo };
+                let above = if hi >= self.dims[k] as f64 {
+                    f64::INFINITY
+                } else {
+                    hi - x
+                };
+                below.min(above).max(0.0) * self.cell
+            })
+            .fold(f64::INFINITY, f64::min)
+    }
+
+    fn visit_ring(&self, c: [usize; 3], ring: usize, mut f: impl FnMut(u32)) {
+        let r = ring as i64;
+        let lo = c.map(|x| x as i64 - r);
+        let hi = c.map(|x| x as i64 + r);
+        for z in lo[2].max(0)..=hi[2].min(self.dims[2] as i64 - 1) {
+            for y in lo[1].max(0)..=hi[1].min(self.dims[1] as i64 - 1) {
+                for x in lo[0].max(0)..=hi[0].min(self.dims[0] as i64 - 1) {
+                    let on_shell = [x, y, z]
+                        .iter()
+                        .zip(lo.iter().zip(hi.iter()))
+                        .any(|(v, (l, h))| v == l || v == h);
+                    if ring == 0 || on_shell {
+                        let f_idx = self.flat([x as usize, y as usize, z as usize]);
+                        let (s, e) = (self.start[f_idx] as usize, self.start[f_idx + 1] as usize);
+                        self.items[s..e].iter().for_each(|&t| f(t));
+                    }
+                }
+            }
+        }
+    }
+}
+
+fn for_cells(ranges: &[([usize; 3], [usize; 3])], mut f: impl FnMut(usize, [usize; 3])) {
+    for (t, (lo, hi)) in ranges.iter().enumerate() {
+        for z in lo[2]..=hi[2] {
+            for y in lo[1]..=hi[1] {
+                for x in lo[0]..=hi[0] {
+                    f(t, [x, y, z]);
+                }
+            }
+        }
+    }
+}

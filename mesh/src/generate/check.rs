@@ -1,0 +1,115 @@
+//! Test helpers: the properties every generated mesh must have.
+
+use std::collections::HashMap;
+
+use crate::TriMesh;
+
+/// Directed edge counts of a mesh.
+fn directed_edges(m: &TriMesh) -> HashMap<(u32, u32), usize> {
+    let mut edges = HashMap::new();
+    for t in &m.triangles {
+        for k in 0..3 {
+            *edges.entry((t[k], t[(k + 1) % 3])).or_insert(0) += 1;
+        }
+    }
+    edges
+}
+
+/// Every edge is used once in each direction (closed, consistently
+/// oriented, manifold) and the enclosed volume is positive (outward).
+#[track_caller]
+pub(crate) fn closed_outward(m: &TriMesh) {
+    let edges = directed_edges(m);
+    for (&(a, b), &n) in &edges {
+        assert_eq!(n, 1, "edge {a}-{b} used {n} times in one direction");
+        assert_eq!(edges.get(&(b, a)), Some(&1), "edge {a}-{b} has no twin");
+    }
+    assert!(m.signed_volume() > 0.0, "volume {}", m.signed_volume());
+}
+
+/// Half model: consistently oriented, every open edge lies on y = 0
+/// exactly, every vertex has y >= 0.
+#[track_caller]
+pub(crate) fn half_open_on_symmetry_plane(m: &TriMesh) {
+    let edges = directed_edges(m);
+    let mut open = 0;
+    for (&(a, b), &n) in &edges {
+        assert_eq!(n, 1, "edge {a}-{b} used {n} times in one direction");
+        if !edges.contains_key(&(b, a)) {
+            open += 1;
+            for v in [a, b] {
+                let y = m.vertices[v as usize].y;
+                assert!(y == 0.0, "open edge {a}-{b} off y = 0 (y = {y})");
+            }
+        }
+    }
+    assert!(open > 0, "a half model has an open boundary");
+    assert!(m.vertices.iter().all(|p| p.y >= 0.0));
+}
+
+/// Smallest interior angle of any triangle, degrees.
+pub(crate) fn min_angle_deg(m: &TriMesh) -> f64 {
+    (0..m.len())
+        .flat_map(|t| {
+            let p = m.corners(t);
+            (0..3).map(move |k| {
+                let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
+                (b - a).angle(&(c - a)).to_degrees()
+            })
+        })
+        .fold(f64::INFINITY, f64::min)
+}
+
+/// No triangle has an angle below `bound` degrees.
+#[track_caller]
+pub(crate) fn min_angle_above(m: &TriMesh, bound: f64) {
+    let a = min_angle_deg(m);
+    assert!(a > bound, "smallest angle {a:.2} deg, bound {bound}");
+}
+
+/// Print the worst triangle (debugging aid).
+pub(crate) fn report(name: &str, m: &TriMesh) {
+    let mut worst = (f64::INFINITY, 0);
+    for t in 0..m.len() {
+        let p = m.corners(t);
+        for k in 0..3 {
+            let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
+            let ang = (b - a).angle(&(c - a)).to_degrees();
+            if ang < worst.0 {
+                worst = (ang, t);
+            }
+        }
+    }
+    let c = m.corners(worst.1);
+    println!(
+        "{name}: {} tris, vol {:.6}, min angle {:.2} at {:?}",
+        m.len(),
+        m.signed_volume(),
+        worst.0,
+        c.map(|p| [p.x, p.y, p.z])
+    );
+}
+
+#[test]
+#[ignore = "diagnostic: cargo test --release -p tuft-mesh diagnostics -- --ignored --nocapture"]
+fn diagnostics() {
+    use super::*;
+    for s in [0.0, 12.5, 25.0, 40.0] {
+        for n in [1500, 6000] {
+            report(&format!("ahmed {s} {n}"), &ahmed(s, n).unwrap());
+        }
+    }
+    for rw in [15.0, 25.0, 45.0] {
+        for n in [2000, 8000] {
+            report(&format!("coupe {rw} {n}"), &coupe(rw, n).unwrap());
+        }
+    }
+    for (a, b, c) in [(1.0, 1.0, 1.0), (0.5, 0.125, 0.125), (1.0, 0.5, 0.25)] {
+        for n in [800, 3200] {
+            report(
+                &format!("ellipsoid {a} {b} {c} {n}"),
+                &ellipsoid(a, b, c, n).unwrap(),
+            );
+        }
+    }
+}

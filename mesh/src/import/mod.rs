@@ -1,0 +1,10 @@
+//! From a file to a [`TriMesh`](crate::TriMesh) in metres: STL reading
+//! (binary and ASCII, streamed), length units and an optional rigid motion.
+
+mod stl;
+mod transform;
+mod units;
+
+pub use stl::{StlFormat, StlReport, read_stl, read_stl_from};
+pub use transform::RigidTransform;
+pub use units::{LengthUnit, UnknownUnit};

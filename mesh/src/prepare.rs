@@ -1,0 +1,182 @@
+//! One call from an STL file to panels: read, scale to metres, move, check
+//! the mirror planes, repair, coarsen, build panels and measure them.
+//!
+//! ```
+//! # fn main() -> Result<(), tuft_mesh::MeshError> {
+//! use tuft_mesh::{generate, prepare::{prepare_mesh, PrepareParams}, LengthUnit, Mirrors};
+//! let params = PrepareParams { units: LengthUnit::M, target_panels: Some(500), ..PrepareParams::default() };
+//! let (panels, report) = prepare_mesh(generate::icosphere(1.0, 4), None, &params)?;
+//! assert!(panels.len() <= 500 && report.coarsen.is_some());
+//! # Ok(()) }
+//! ```
+
+use std::path::Path;
+
+use serde::Serialize;
+
+use crate::coarsen::{CoarsenParams, CoarsenReport, coarsen_with_params};
+use crate::import::{LengthUnit, RigidTransform, StlReport, read_stl};
+use crate::quality::{QualityReport, quality, suggested_panels};
+use crate::repair::{RepairParams, RepairReport, repair_with_params};
+use crate::{MeshError, Mirrors, PanelMesh, TriMesh};
+
+/// Everything `prepare` needs besides the file.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PrepareParams {
+    /// Length unit of the file.
+    pub units: LengthUnit,
+    /// Rigid motion applied after scaling (to put x downstream, z up).
+    pub transform: Option<RigidTransform>,
+    /// Mirror planes (ground height in metres, after the transform).
+    pub mirrors: Mirrors,
+    /// Panels wanted; `None` uses [`suggested_panels`]. A mesh already at or
+    /// below the target is not coarsened.
+    pub target_panels: Option<usize>,
+    /// Repair tolerances.
+    pub repair: RepairParams,
+    /// Coarsening settings (its `target_panels` is replaced by the above).
+    pub coarsen: CoarsenParams,
+}
+
+impl Default for PrepareParams {
+    fn default() -> Self {
+        Self {
+            units: LengthUnit::Mm,
+            transform: None,
+            mirrors: Mirrors::none(),
+            target_panels: None,
+            repair: RepairParams::default(),
+            coarsen: CoarsenParams::default(),
+        }
+    }
+}
+
+/// The mirror planes as reported.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct MirrorReport {
+    /// Ground plane height, metres.
+    pub ground: Option<f64>,
+    /// Half model mirrored in `y = 0`.
+    pub symmetry: bool,
+}
+
+/// What `prepare` did, step by step (serializable).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PrepareReport {
+    /// What the file held (absent for an in-memory mesh).
+    pub read: Option<StlReport>,
+    /// Length unit assumed.
+    pub units: LengthUnit,
+    /// Whether a rigid motion was applied.
+    pub transformed: bool,
+    /// Mirror planes.
+    pub mirrors: MirrorReport,
+    /// Every repair pass.
+    pub repair: RepairReport,
+    /// Suggested panel count for this body and how it was found.
+    pub suggested_panels: usize,
+    /// Coarsening (absent when the mesh was already small enough).
+    pub coarsen: Option<CoarsenReport>,
+    /// Quality of the final panels.
+    pub quality: QualityReport,
+    /// Final panels.
+    pub panels: usize,
+    /// Area of the real panels, m^2.
+    pub area: f64,
+    /// Bounding box of the real panels, metres.
+    pub bounds: [[f64; 3]; 2],
+}
+
+/// Read `path` and prepare it.
+///
+/// # Errors
+/// Every reading error of [`read_stl`], every repair error, and
+/// [`MeshError::Mirror`] when the body crosses a declared mirror plane.
+pub fn prepare(
+    path: &Path,
+    params: &PrepareParams,
+) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    let (mesh, read) = read_stl(path)?;
+    prepare_mesh(mesh, Some(read), params)
+}
+
+/// Prepare a mesh already in memory (in `params.units`).
+///
+/// # Errors
+/// As [`prepare`], less the reading errors.
+pub fn prepare_mesh(
+    mut mesh: TriMesh,
+    read: Option<StlReport>,
+    params: &PrepareParams,
+) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    let scale = params.units.to_metres();
+    mesh.map_vertices(|p| p * scale);
+    if let Some(t) = params.transform {
+        t.apply(&mut mesh);
+    }
+    check_mirror_sides(&mesh, &params.mirrors, params.repair.plane_tolerance)?;
+    let (mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
+    let suggested = suggest(&mesh);
+    let target = params.target_panels.unwrap_or(suggested);
+    let (mesh, coarsen) = if mesh.len() > target {
+        let cp = CoarsenParams {
+            target_panels: target,
+            ..params.coarsen
+        };
+        let (m, r) = coarsen_with_params(&mesh, &params.mirrors, &cp);
+        (m, Some(r))
+    } else {
+        (mesh, None)
+    };
+    let panels = PanelMesh::new(mesh, params.mirrors)?;
+    let (lo, hi) = panels.bounds();
+    let report = PrepareReport {
+        read,
+        units: params.units,
+        transformed: params.transform.is_some(),
+        mirrors: MirrorReport {
+            ground: params.mirrors.ground,
+            symmetry: params.mirrors.symmetry,
+        },
+        repair,
+        suggested_panels: suggested,
+        coarsen,
+        quality: quality(&panels),
+        panels: panels.len(),
+        area: panels.area(),
+        bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
+    };
+    Ok((panels, report))
+}
+
+/// Suggested count for the whole body: a half model counts double area.
+fn suggest(mesh: &TriMesh) -> usize {
+    let Some((lo, hi)) = mesh.bounds() else {
+        return 0;
+    };
+    let length = (hi - lo).max();
+    suggested_panels(mesh.area(), length)
+}
+
+/// A half model must lie in `y >= 0`, a grounded body above the ground.
+fn check_mirror_sides(mesh: &TriMesh, mirrors: &Mirrors, rel_tol: f64) -> Result<(), MeshError> {
+    let Some((lo, hi)) = mesh.bounds() else {
+        return Ok(());
+    };
+    let tol = rel_tol * (hi - lo).norm();
+    if mirrors.symmetry && lo.y < -tol {
+        return Err(MeshError::Mirror(format!(
+            "a half model must lie in y >= 0 (its mirror image supplies y < 0), but the body reaches y = {:.4} m",
+            lo.y
+        )));
+    }
+    if let Some(h) = mirrors.ground
+        && lo.z < h - tol
+    {
+        return Err(MeshError::Mirror(format!(
+            "the body reaches z = {:.4} m, below the ground plane z = {h:.4} m",
+            lo.z
+        )));
+    }
+    Ok(())
+}

@@ -1,0 +1,172 @@
+//! Repair as explicit passes, each reporting what it changed.
+//!
+//! In order: [`weld`] vertices within a tolerance, [`drop_degenerate`]
+//! facets, [`drop_duplicates`], [`orient_consistently`], [`close_holes`]
+//! (mirror-closed loops accepted, small holes filled, others refused),
+//! [`orient_outward`], [`remove_unused_vertices`]. Repair applied to its own
+//! output changes nothing ([`RepairReport::changes`] is zero): welded
+//! vertices are more than the tolerance apart, dropped facets are gone,
+//! orientation is consistent and outward, filled holes are closed.
+//!
+//! ```
+//! use tuft_mesh::{generate, repair, Mirrors};
+//! let mut sphere = generate::icosphere(1.0, 2);
+//! sphere.flip(); // inside out
+//! let (fixed, report) = repair::repair(sphere, &Mirrors::none()).unwrap();
+//! assert_eq!(report.outward.components_reversed, 1);
+//! assert!(fixed.signed_volume() > 0.0);
+//! ```
+
+mod compact;
+mod degenerate;
+mod duplicates;
+pub(crate) mod edges;
+mod holes;
+mod orient;
+mod outward;
+mod weld;
+
+use serde::Serialize;
+
+pub use compact::remove_unused_vertices;
+pub use degenerate::{DegenerateReport, drop_degenerate};
+pub use duplicates::drop_duplicates;
+pub use holes::{HoleReport, HoleSettings, LoopInfo, close_holes};
+pub use orient::{OrientReport, orient_consistently};
+pub use outward::{OutwardReport, orient_outward};
+pub use weld::weld;
+
+use crate::{MeshError, Mirrors, TriMesh};
+
+/// Repair settings. Lengths relative to the bounding-box diagonal `D` of
+/// the input.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct RepairParams {
+    /// Weld vertices closer than `weld_tolerance * D` (default `1e-5`:
+    /// 50 micrometres on a 5 m car, far below scan resolution).
+    pub weld_tolerance: f64,
+    /// A facet whose largest angle exceeds this (degrees) ...
+    pub sliver_angle_deg: f64,
+    /// ... and whose `2A / L^2` is below this is a collapsed sliver.
+    pub sliver_ratio: f64,
+    /// Holes with perimeter up to `hole_fill * D` are filled (default 2 %).
+    pub hole_fill: f64,
+    /// A vertex within `plane_tolerance * D` of a mirror plane is on it.
+    pub plane_tolerance: f64,
+    /// A loop enclosing less than `slit_ratio * P^2` is a slit.
+    pub slit_ratio: f64,
+}
+
+impl Default for RepairParams {
+    fn default() -> Self {
+        Self {
+            weld_tolerance: 1e-5,
+            sliver_angle_deg: 179.0,
+            sliver_ratio: 1e-3,
+            hole_fill: 0.02,
+            plane_tolerance: 1e-4,
+            slit_ratio: 1e-4,
+        }
+    }
+}
+
+/// What each pass changed, and what the mesh looked like before and after.
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
+pub struct RepairReport {
+    /// Facets in.
+    pub input_facets: usize,
+    /// Vertices in.
+    pub input_vertices: usize,
+    /// Bounding-box diagonal, metres (all relative tolerances scale with it).
+    pub diagonal: f64,
+    /// Weld tolerance, metres.
+    pub weld_tolerance: f64,
+    /// Vertices merged into a neighbour.
+    pub vertices_welded: usize,
+    /// Degenerate facets dropped.
+    pub degenerate: DegenerateReport,
+    /// Duplicate facets dropped.
+    pub duplicates: usize,
+    /// Consistency pass.
+    pub orientation: OrientReport,
+    /// Boundary loops, non-manifold edges, holes filled.
+    pub holes: HoleReport,
+    /// Outward pass.
+    pub outward: OutwardReport,
+    /// Vertices no facet used, removed.
+    pub unused_vertices: usize,
+    /// Facets out.
+    pub output_facets: usize,
+    /// Vertices out.
+    pub output_vertices: usize,
+}
+
+impl RepairReport {
+    /// Number of changes made (zero when the mesh needed no repair).
+    pub fn changes(&self) -> usize {
+        self.vertices_welded
+            + self.degenerate.total()
+            + self.duplicates
+            + self.orientation.facets_flipped
+            + self.holes.facets_added
+            + self.outward.facets_flipped
+            + self.unused_vertices
+    }
+}
+
+/// Repair with default settings.
+///
+/// # Errors
+/// See [`repair_with_params`].
+pub fn repair(mesh: TriMesh, mirrors: &Mirrors) -> Result<(TriMesh, RepairReport), MeshError> {
+    repair_with_params(mesh, mirrors, &RepairParams::default())
+}
+
+/// Run every pass in order.
+///
+/// # Errors
+/// [`MeshError::NoFacets`] for an empty mesh, [`MeshError::AllDegenerate`]
+/// when no facet survives, [`MeshError::OpenHole`] for a hole that is too
+/// large to fill and lies on no declared mirror plane.
+pub fn repair_with_params(
+    mut mesh: TriMesh,
+    mirrors: &Mirrors,
+    p: &RepairParams,
+) -> Result<(TriMesh, RepairReport), MeshError> {
+    let (lo, hi) = mesh.bounds().ok_or(MeshError::NoFacets)?;
+    if mesh.is_empty() {
+        return Err(MeshError::NoFacets);
+    }
+    let diagonal = (hi - lo).norm();
+    let mut r = RepairReport {
+        input_facets: mesh.len(),
+        input_vertices: mesh.vertices.len(),
+        diagonal,
+        weld_tolerance: p.weld_tolerance * diagonal,
+        ..RepairReport::default()
+    };
+    r.vertices_welded = weld(&mut mesh, r.weld_tolerance);
+    r.degenerate = drop_degenerate(&mut mesh, p.sliver_angle_deg, p.sliver_ratio);
+    if mesh.is_empty() {
+        return Err(MeshError::AllDegenerate {
+            facets: r.input_facets,
+        });
+    }
+    r.duplicates = drop_duplicates(&mut mesh);
+    let uses = edges::sorted_edge_uses(&mesh.triangles);
+    let (orientation, mut component) = orient::orient_with_uses(&mut mesh, &uses);
+    r.orientation = orientation;
+    let settings = HoleSettings {
+        mirrors: *mirrors,
+        plane_tolerance: p.plane_tolerance * diagonal,
+        fill_limit: p.hole_fill * diagonal,
+        slit_ratio: p.slit_ratio,
+    };
+    r.holes = holes::close_holes_with_uses(&mut mesh, &mut component, &settings, &uses)?;
+    drop(uses);
+    r.outward = orient_outward(&mut mesh, &component, orientation.components, mirrors);
+    r.unused_vertices = remove_unused_vertices(&mut mesh);
+    r.output_facets = mesh.len();
+    r.output_vertices = mesh.vertices.len();
+    Ok((mesh, r))
+}

@@ -1,0 +1,91 @@
+//! Coarsening: counts, closedness, mirror cuts, and the measured deviation.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod common;
+
+use common::{closed, cut};
+use tuft_mesh::coarsen::coarsen;
+use tuft_mesh::distance::closest_point_on_triangle;
+use tuft_mesh::panels::edge_neighbours;
+use tuft_mesh::{Mirrors, Point, generate};
+
+#[test]
+fn sphere_reaches_target_and_deviation_is_bounded() {
+    let fine = generate::icosphere(1.0, 5); // 20480 facets, vertices on the unit sphere
+    let (coarse, r) = coarsen(&fine, &Mirrors::none(), 1000);
+    assert!(closed(&coarse));
+    assert!(
+        r.achieved_panels <= 1000 && r.achieved_panels > 800,
+        "{r:?}"
+    );
+    assert!(r.fallback.is_none());
+    // Brute force over every coarse facet gives the same largest distance
+    // as the grid search (the grid only prunes).
+    let brute = fine
+        .vertices
+        .iter()
+        .step_by(fine.vertices.len().div_ceil(r.samples))
+        .map(|p| {
+            (0..coarse.len())
+                .map(|t| {
+                    let [a, b, c] = coarse.corners(t);
+                    (closest_point_on_triangle(p, &a, &b, &c) - p).norm()
+                })
+                .fold(f64::INFINITY, f64::min)
+        })
+        .fold(0.0, f64::max);
+    assert!(
+        (brute - r.max_deviation).abs() < 1e-12,
+        "{brute} vs {}",
+        r.max_deviation
+    );
+    // The coarse vertices lie on the unit sphere (a subset of the fine
+    // ones), so the coarse body is an inscribed polyhedron: a point of the
+    // sphere is at most 1 - d_min from it, d_min the smallest distance from
+    // the centre to a facet plane. (Elementary geometry.)
+    let d_min = (0..coarse.len())
+        .map(|t| {
+            let [a, b, c] = coarse.corners(t);
+            let n = (b - a).cross(&(c - a)).normalize();
+            n.dot(&a.coords).abs()
+        })
+        .fold(f64::INFINITY, f64::min);
+    assert!(r.max_deviation <= 1.0 - d_min + 1e-12 && r.max_deviation > 0.0);
+}
+
+#[test]
+fn small_mesh_is_left_alone() {
+    let fine = generate::icosphere(1.0, 2);
+    let (coarse, r) = coarsen(&fine, &Mirrors::none(), 1000);
+    assert_eq!(coarse, fine);
+    assert_eq!(r.achieved_panels, 320);
+}
+
+#[test]
+fn half_model_keeps_its_cut_on_the_symmetry_plane() {
+    // Lat-long sphere with 48 meridians: meridians 12 and 36 lie in y = 0.
+    let half = cut(&generate::latlong_sphere(1.0, 48, 96), |c| c.y > 0.0);
+    let mut half = half;
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let sym = Mirrors {
+        ground: None,
+        symmetry: true,
+    };
+    let (coarse, r) = coarsen(&half, &sym, 600);
+    assert!(r.fallback.is_none(), "{r:?}");
+    assert!(coarse.len() <= 600 + 200, "{r:?}"); // locked cut vertices may keep some extra
+    let open: Vec<(u32, u32)> = edge_neighbours(&coarse.triangles)
+        .iter()
+        .zip(&coarse.triangles)
+        .flat_map(|(nb, t)| {
+            (0..3)
+                .filter(|&k| nb[k].is_none())
+                .map(move |k| (t[k], t[(k + 1) % 3]))
+        })
+        .collect();
+    assert!(!open.is_empty());
+    // Every open edge lies exactly on y = 0 (locked vertices do not move).
+    let on_plane = |v: u32| coarse.vertices[v as usize].y.abs() < 1e-12;
+    assert!(open.iter().all(|&(a, b)| on_plane(a) && on_plane(b)));
+    assert!(coarse.vertices.iter().all(|p: &Point| p.y > -1e-12));
+}

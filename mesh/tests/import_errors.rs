@@ -1,0 +1,160 @@
+//! Each bad input gives one clear error, never a panic.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod common;
+
+use tuft_mesh::import::{StlFormat, read_stl};
+use tuft_mesh::{MeshError, generate};
+
+fn err_of(bytes: &[u8]) -> MeshError {
+    let dir = tempfile::tempdir().unwrap();
+    let path = common::write(dir.path(), "bad.stl", bytes);
+    read_stl(&path).expect_err("bad input must be refused")
+}
+
+#[test]
+fn empty_file() {
+    assert!(matches!(err_of(b""), MeshError::EmptyFile));
+}
+
+#[test]
+fn header_only() {
+    // 80-byte header and a facet count of zero: a valid but empty binary STL.
+    let mut bytes = vec![0u8; 80];
+    bytes.extend_from_slice(&0u32.to_le_bytes());
+    assert!(matches!(err_of(&bytes), MeshError::NoFacets));
+    // The 80-byte header alone, without the count.
+    assert!(matches!(
+        err_of(&[0u8; 80]),
+        MeshError::TooShort { bytes: 80 }
+    ));
+}
+
+#[test]
+fn truncated_binary() {
+    let mut bytes = common::binary_stl(&generate::icosphere(1.0, 1));
+    bytes.truncate(bytes.len() - 30);
+    let e = err_of(&bytes);
+    // 80 facets declared, 79 whole facets and 20 bytes present.
+    assert!(
+        matches!(
+            e,
+            MeshError::FacetCountMismatch {
+                declared: 80,
+                room: 79,
+                ..
+            }
+        ),
+        "{e}"
+    );
+}
+
+#[test]
+fn facet_count_larger_than_file() {
+    let mut bytes = common::binary_stl(&generate::icosphere(1.0, 0));
+    bytes[80..84].copy_from_slice(&4_000_000_000u32.to_le_bytes());
+    let e = err_of(&bytes);
+    assert!(
+        matches!(
+            e,
+            MeshError::FacetCountMismatch {
+                declared: 4_000_000_000,
+                room: 20,
+                ..
+            }
+        ),
+        "{e}"
+    );
+    assert!(e.to_string().contains("4000000000 facets"), "{e}");
+}
+
+#[test]
+fn nan_and_infinite_coordinates() {
+    for bad in [f32::NAN, f32::INFINITY, f32::NEG_INFINITY] {
+        let mut bytes = common::binary_stl(&generate::icosphere(1.0, 0));
+        // Facet 3, corner 1, y coordinate: 84 + 3*50 + 12 (normal) + 12 (corner 0) + 4.
+        let at = 84 + 3 * 50 + 12 + 12 + 4;
+        bytes[at..at + 4].copy_from_slice(&bad.to_le_bytes());
+        let e = err_of(&bytes);
+        assert!(
+            matches!(
+                e,
+                MeshError::NonFiniteCorner {
+                    facet: 3,
+                    corner: 1
+                }
+            ),
+            "{e}"
+        );
+    }
+}
+
+#[test]
+fn text_that_is_not_stl() {
+    let text = "This is a shopping list, not a surface.\n".repeat(10);
+    assert!(matches!(err_of(text.as_bytes()), MeshError::NotStl));
+    assert!(matches!(
+        err_of(b"hello\n"),
+        MeshError::TooShort { bytes: 6 }
+    ));
+}
+
+#[test]
+fn ascii_with_malformed_number() {
+    let good = common::ascii_stl(&generate::icosphere(1.0, 0));
+    // The first corner's x becomes "1.2.3e..." (two decimal points).
+    let bad = good.replacen("vertex ", "vertex 1.2.3e", 1);
+    let e = err_of(bad.as_bytes());
+    assert!(matches!(e, MeshError::BadFacet { facet: 0, .. }), "{e}");
+}
+
+#[test]
+fn a_directory() {
+    let dir = tempfile::tempdir().unwrap();
+    assert!(matches!(read_stl(dir.path()), Err(MeshError::IsDirectory)));
+}
+
+#[test]
+fn missing_file() {
+    let dir = tempfile::tempdir().unwrap();
+    assert!(matches!(
+        read_stl(&dir.path().join("none.stl")),
+        Err(MeshError::Io { .. })
+    ));
+}
+
+#[test]
+fn binary_and_ascii_read_the_same_mesh() {
+    let sphere = generate::icosphere(1.0, 2);
+    let dir = tempfile::tempdir().unwrap();
+    let b = common::write(dir.path(), "b.stl", &common::binary_stl(&sphere));
+    let a = common::write(dir.path(), "a.stl", common::ascii_stl(&sphere).as_bytes());
+    let (mb, rb) = read_stl(&b).unwrap();
+    let (ma, ra) = read_stl(&a).unwrap();
+    assert_eq!(
+        (rb.format, ra.format),
+        (StlFormat::Binary, StlFormat::Ascii)
+    );
+    // Exact-duplicate welding recovers the indexed sphere: 20 * 4^2 facets,
+    // 10 * 4^2 + 2 vertices (Euler: V = F/2 + 2 for a closed triangulated sphere).
+    assert_eq!((rb.facets, rb.vertices), (320, 162));
+    assert_eq!(mb.triangles, ma.triangles);
+}
+
+#[test]
+fn binary_header_starting_with_solid_is_still_binary() {
+    let sphere = generate::icosphere(1.0, 1);
+    let mut bytes = common::binary_stl(&sphere);
+    bytes[..12].copy_from_slice(b"solid part  ");
+    let dir = tempfile::tempdir().unwrap();
+    let (_, r) = read_stl(&common::write(dir.path(), "s.stl", &bytes)).unwrap();
+    assert_eq!((r.format, r.facets), (StlFormat::Binary, 80));
+}
+
+#[test]
+fn ascii_solid_without_name() {
+    let text = common::ascii_stl(&generate::icosphere(1.0, 0)).replacen("solid test", "solid", 1);
+    let dir = tempfile::tempdir().unwrap();
+    let (_, r) = read_stl(&common::write(dir.path(), "n.stl", text.as_bytes())).unwrap();
+    assert_eq!(r.facets, 20);
+}

@@ -1,0 +1,144 @@
+//! End-to-end tests of `tuft check` on generated STL files in a fresh
+//! temporary folder.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use tuft_mesh::{TriMesh, generate};
+
+/// The release `tuft` binary of this workspace (`TUFT_BIN` overrides), built
+/// first if it is missing (a plain `cargo test --release --workspace` has
+/// already built it).
+fn tuft() -> PathBuf {
+    if let Some(bin) = std::env::var_os("TUFT_BIN") {
+        return PathBuf::from(bin);
+    }
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("..");
+    let target = std::env::var_os("CARGO_TARGET_DIR").map_or(root.join("target"), PathBuf::from);
+    let bin = target.join("release").join("tuft");
+    if !bin.exists() {
+        let status = Command::new(env!("CARGO"))
+            .args(["build", "--release", "-p", "tuft"])
+            .current_dir(&root)
+            .status()
+            .unwrap();
+        assert!(status.success(), "building tuft failed");
+    }
+    bin
+}
+
+fn write_binary_stl(path: &Path, mesh: &TriMesh, scale: f64) {
+    let mut out = vec![0u8; 80];
+    out.extend_from_slice(&(mesh.len() as u32).to_le_bytes());
+    for t in &mesh.triangles {
+        out.extend_from_slice(&[0u8; 12]);
+        for &v in t {
+            let p = mesh.vertices[v as usize] * scale;
+            for c in [p.x, p.y, p.z] {
+                out.extend_from_slice(&(c as f32).to_le_bytes());
+            }
+        }
+        out.extend_from_slice(&[0u8; 2]);
+    }
+    std::fs::File::create(path)
+        .unwrap()
+        .write_all(&out)
+        .unwrap();
+}
+
+fn check(args: &[&str]) -> Output {
+    Command::new(tuft())
+        .arg("check")
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+#[test]
+fn check_reports_a_generated_sphere() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    // A 1 m radius icosphere written in millimetres, 5120 facets.
+    write_binary_stl(&path, &generate::icosphere(1.0, 4), 1000.0);
+    let out = check(&[path.to_str().unwrap(), "--units", "mm", "--panels", "2000"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{stdout}\n{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(stdout.contains("5120 facets"), "{stdout}");
+    assert!(stdout.contains("coarsened to"), "{stdout}");
+    assert!(stdout.contains("verdict    usable"), "{stdout}");
+
+    let json = check(&[path.to_str().unwrap(), "--panels", "2000", "--json"]);
+    let report: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    // Surface 4 pi r^2 = 12.57 m^2 (Archimedes); the inscribed polyhedron,
+    // coarsened to 2000 panels, keeps it within 3 %.
+    let area = report["area"].as_f64().unwrap();
+    assert!(
+        (area - 4.0 * std::f64::consts::PI).abs() / (4.0 * std::f64::consts::PI) < 0.03,
+        "{area}"
+    );
+    assert!(report["panels"].as_u64().unwrap() <= 2000);
+}
+
+#[test]
+fn check_refuses_a_truncated_file_in_one_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("cut.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 2), 1.0);
+    let bytes = std::fs::read(&path).unwrap();
+    std::fs::write(&path, &bytes[..bytes.len() - 75]).unwrap();
+    let out = check(&[path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    let expected = format!(
+        "tuft: {}: the binary STL header declares 320 facets",
+        path.display()
+    );
+    assert!(stderr.starts_with(&expected), "{stderr}");
+}
+
+#[test]
+fn check_half_model_needs_the_symmetry_flag() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("half.stl");
+    let sphere = generate::latlong_sphere(1.0, 24, 48);
+    let half = TriMesh {
+        triangles: sphere
+            .triangles
+            .iter()
+            .copied()
+            .filter(|t| {
+                t.iter()
+                    .map(|&v| sphere.vertices[v as usize].y)
+                    .sum::<f64>()
+                    > 0.0
+            })
+            .collect(),
+        vertices: sphere.vertices.clone(),
+    };
+    write_binary_stl(&path, &half, 1.0);
+    let p = path.to_str().unwrap();
+    let refused = check(&[p, "--units", "m"]);
+    assert_eq!(refused.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&refused.stderr);
+    assert!(
+        stderr.contains("open hole") && stderr.contains("perimeter"),
+        "{stderr}"
+    );
+    let accepted = check(&[p, "--units", "m", "--half"]);
+    assert_eq!(
+        accepted.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&accepted.stderr)
+    );
+    assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
+}
