@@ -8,8 +8,11 @@
 //! - **Bluff edges.** Where a streamline crosses a sharp convex edge and the
 //!   flow direction turns down round it by more than
 //!   `params.base_edge_turn_deg` (a bluff base edge), the flow is taken to
-//!   leave the surface at the edge: the line separates there whatever the
-//!   boundary layer says. Attached potential flow turns any corner with a
+//!   leave the surface at the edge: the line separates at the crossing
+//!   whatever the boundary layer says, is traced on, and every panel
+//!   downstream along it is separated; its plateau pressure is that of the
+//!   last clean panel before the edge. Attached potential flow turns any
+//!   corner with a
 //!   suction peak that grows without bound as the panels shrink, so no
 //!   verdict can rest on it. A gentler turn (a 10-40 degree slant) is left to
 //!   the boundary layer.
@@ -17,15 +20,17 @@
 //!   (dihedral angle above `params.sharp_edge_deg`), the speed the march
 //!   sees on the two panels either side of the crossing is the linear
 //!   interpolation between the last station before and the first station
-//!   after them, so the edge's mesh-dependent suction peak and its recovery
-//!   do not drive `H` on the next panels. Edges the flow runs along are left
-//!   alone.
+//!   after them (held at the value before when the edge is a bluff edge), so
+//!   the edge's mesh-dependent suction peak and its recovery do not drive
+//!   `H` on the next panels. Edges the flow runs along are left alone.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
 //! - **Fill.** Panels no line crossed take the state of the nearest crossed
-//!   panel within `params.fill_hops` edge steps; the rest are counted as
-//!   [`FlowState::Unresolved`].
+//!   panel within `params.fill_hops` edge steps, never across a sharp convex
+//!   edge; the rest are counted as [`FlowState::Unresolved`].
+//! - **Stations.** Each line is marched on stations half the median panel
+//!   size apart, the speed interpolated linearly from the vertex speeds.
 //!
 //! Streamlines are traced and marched in parallel; each is independent and
 //! the results are combined in seed order, so the output does not depend on
