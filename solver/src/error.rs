@@ -69,4 +69,8 @@ pub enum SolverError {
         /// Length given.
         got: usize,
     },
+    /// The boundary-layer screening failed (its error names the panel or
+    /// setting).
+    #[error(transparent)]
+    BoundaryLayer(#[from] crate::boundary_layer::BoundaryLayerError),
 }

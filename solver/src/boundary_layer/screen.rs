@@ -8,8 +8,11 @@
 //! - **Bluff edges.** Where a streamline crosses a sharp convex edge and the
 //!   flow direction turns down round it by more than
 //!   `params.base_edge_turn_deg` (a bluff base edge), the flow is taken to
-//!   leave the surface at the edge: the line separates there whatever the
-//!   boundary layer says. Attached potential flow turns any corner with a
+//!   leave the surface at the edge: the line separates at the crossing
+//!   whatever the boundary layer says, is traced on, and every panel
+//!   downstream along it is separated; its plateau pressure is that of the
+//!   last clean panel before the edge. Attached potential flow turns any
+//!   corner with a
 //!   suction peak that grows without bound as the panels shrink, so no
 //!   verdict can rest on it. A gentler turn (a 10-40 degree slant) is left to
 //!   the boundary layer.
@@ -17,15 +20,17 @@
 //!   (dihedral angle above `params.sharp_edge_deg`), the speed the march
 //!   sees on the two panels either side of the crossing is the linear
 //!   interpolation between the last station before and the first station
-//!   after them, so the edge's mesh-dependent suction peak and its recovery
-//!   do not drive `H` on the next panels. Edges the flow runs along are left
-//!   alone.
+//!   after them (held at the value before when the edge is a bluff edge), so
+//!   the edge's mesh-dependent suction peak and its recovery do not drive
+//!   `H` on the next panels. Edges the flow runs along are left alone.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
 //! - **Fill.** Panels no line crossed take the state of the nearest crossed
-//!   panel within `params.fill_hops` edge steps; the rest are counted as
-//!   [`FlowState::Unresolved`].
+//!   panel within `params.fill_hops` edge steps, never across a sharp convex
+//!   edge; the rest are counted as [`FlowState::Unresolved`].
+//! - **Stations.** Each line is marched on stations half the median panel
+//!   size apart, the speed interpolated linearly from the vertex speeds.
 //!
 //! Streamlines are traced and marched in parallel; each is independent and
 //! the results are combined in seed order, so the output does not depend on
@@ -387,78 +392,19 @@ impl<'a> LineContext<'a> {
         samples: &[LineSample],
         marched: &LineMarch,
     ) -> LineResult {
-        // At a bluff edge the line separates at the edge crossing itself and
-        // the pressure is held at the last clean panel before it.
-        let bluff = self.bluff_crossings(&trace);
-        let crossing = |k: usize| {
-            let seg = arc
+        let mark = self.separation_mark(&trace, &arc, peak, samples, marched);
+        let separated_at = mark.map(|(s, _)| insert_point(&mut trace, &mut arc, s));
+        let contributions = contributions(&trace, &arc, samples, marched, mark);
+        let panel_at = |k: Option<usize>| {
+            let (k, last) = (k?, trace.panels.len().checked_sub(1)?);
+            let j = arc
                 .partition_point(|&a| a <= samples[k].s)
                 .saturating_sub(1);
-            let j = bluff.iter().rev().find(|&&j| j <= seg).copied();
-            j.filter(|_| samples[k].forced_separation)
-        };
-        let sep_s = marched
-            .separation
-            .map(|k| crossing(k).map_or(samples[k].s, |j| arc[j]));
-        let source = marched.separation.map(|k| {
-            let s = crossing(k).map_or(samples[k].s, |j| arc[j.saturating_sub(1)]);
-            clean_panel_before(&trace, &arc, peak, s)
-        });
-        let separated_at = sep_s.map(|s| insert_point(&mut trace, &mut arc, s));
-        let station_of = |s: f64| -> usize {
-            let k = (s / self.step.max(1e-300)).round() as usize;
-            let k = k.min(samples.len().saturating_sub(1));
-            match (marched.separation, sep_s) {
-                (Some(ks), Some(ss)) if s > ss => k.max(ks),
-                (Some(ks), Some(ss)) if s <= ss => k.min(ks.saturating_sub(1)),
-                _ => k,
-            }
-        };
-        let contributions = trace
-            .panels
-            .iter()
-            .enumerate()
-            .filter_map(|(j, &panel)| {
-                let st = marched
-                    .states
-                    .get(station_of(0.5 * (arc[j] + arc[j + 1])))?;
-                let layer = PanelLayer {
-                    theta: st.theta,
-                    delta_star: st.delta_star,
-                    h: st.h,
-                    cf: st.cf,
-                    re_theta: st.re_theta,
-                    state: st.state,
-                    risk: st.risk,
-                };
-                let src = (st.state == FlowState::Separated)
-                    .then_some(source)
-                    .flatten();
-                Some(Contribution {
-                    panel,
-                    layer,
-                    source: src,
-                })
-            })
-            .collect();
-        let panel_at = |k: Option<usize>| {
-            k.map(|k| {
-                let s = samples[k].s;
-                let j = arc.partition_point(|&a| a <= s).saturating_sub(1);
-                trace.panels[j.min(trace.panels.len().saturating_sub(1))]
-            })
+            Some(trace.panels[j.min(last)])
         };
         LineResult {
-            transition_panel: if trace.panels.is_empty() {
-                None
-            } else {
-                panel_at(marched.transition)
-            },
-            separation_panel: if trace.panels.is_empty() {
-                None
-            } else {
-                panel_at(marched.separation)
-            },
+            transition_panel: panel_at(marched.transition),
+            separation_panel: panel_at(marched.separation),
             contributions,
             line: Streamline {
                 points: trace.points,
@@ -467,6 +413,80 @@ impl<'a> LineContext<'a> {
             },
         }
     }
+
+    /// Where the line separates (arc length) and the panel whose pressure
+    /// holds there. At a bluff edge the line separates at the edge crossing
+    /// itself and the pressure is that of the last clean panel before it.
+    fn separation_mark(
+        &self,
+        trace: &Trace,
+        arc: &[f64],
+        peak: &[bool],
+        samples: &[LineSample],
+        marched: &LineMarch,
+    ) -> Option<(f64, u32)> {
+        let k = marched.separation?;
+        let s = samples[k].s;
+        let seg = arc.partition_point(|&a| a <= s).saturating_sub(1);
+        let bluff = self.bluff_crossings(trace);
+        let crossing = bluff.iter().rev().find(|&&j| j <= seg).copied();
+        match crossing.filter(|_| samples[k].forced_separation) {
+            Some(j) => Some((
+                arc[j],
+                clean_panel_before(trace, arc, peak, arc[j.saturating_sub(1)]),
+            )),
+            None => Some((s, clean_panel_before(trace, arc, peak, s))),
+        }
+    }
+}
+
+/// What each segment of a marched line gives its panel: the state of the
+/// station nearest the segment's middle, never an attached state past the
+/// separation point nor a separated one before it.
+fn contributions(
+    trace: &Trace,
+    arc: &[f64],
+    samples: &[LineSample],
+    marched: &LineMarch,
+    mark: Option<(f64, u32)>,
+) -> Vec<Contribution> {
+    let spacing = match samples {
+        [a, b, ..] => b.s - a.s,
+        _ => f64::INFINITY,
+    };
+    let last = samples.len().saturating_sub(1);
+    let station_of = |s: f64| -> usize {
+        let k = ((s / spacing).round() as usize).min(last);
+        match (marched.separation, mark) {
+            (Some(ks), Some((ss, _))) if s > ss => k.max(ks),
+            (Some(ks), Some(_)) => k.min(ks.saturating_sub(1)),
+            _ => k,
+        }
+    };
+    trace
+        .panels
+        .iter()
+        .enumerate()
+        .filter_map(|(j, &panel)| {
+            let st = marched
+                .states
+                .get(station_of(0.5 * (arc[j] + arc[j + 1])))?;
+            let separated = st.state == FlowState::Separated;
+            Some(Contribution {
+                panel,
+                layer: PanelLayer {
+                    theta: st.theta,
+                    delta_star: st.delta_star,
+                    h: st.h,
+                    cf: st.cf,
+                    re_theta: st.re_theta,
+                    state: st.state,
+                    risk: st.risk,
+                },
+                source: mark.filter(|_| separated).map(|(_, src)| src),
+            })
+        })
+        .collect()
 }
 
 /// The panel of the last segment at or before arc length `s` that is not on
