@@ -17,6 +17,7 @@
 //! prescribed edge velocities.
 
 pub mod attachment;
+pub mod coverage;
 pub mod field;
 pub mod head;
 pub mod march;

@@ -43,6 +43,7 @@ use rayon::prelude::*;
 use tuft_mesh::PanelMesh;
 
 use super::attachment::{self, Seed};
+use super::coverage;
 use super::field::{SurfaceField, sharp_convex};
 use super::march::{self, LineMarch, LineSample, LineStart};
 use super::streamlines::{Trace, Tracer};
@@ -163,11 +164,41 @@ pub fn screen_boundary_layer(
         .flat_map(|&a| attachment::ring_seeds(&tracer, a, count, 1.5))
         .collect();
     let ctx = LineContext::new(mesh, &field, &flow_dir, params);
-    let lines: Vec<LineResult> = seeds
+    let mut lines: Vec<LineResult> = seeds
         .par_iter()
         .map(|seed| ctx.run(&tracer, seed))
         .collect();
+    let limits = coverage::StartLimits {
+        start_speed: coverage::START_SPEED_FRACTION * speed,
+        bluff_edge_deg: params.base_edge_turn_deg,
+        flow_dir,
+    };
+    for _ in 0..COVERAGE_ROUNDS {
+        let targets = coverage::spread_targets(mesh, &covered(mesh, &lines));
+        if targets.is_empty() {
+            break;
+        }
+        let extra: Vec<LineResult> = targets
+            .par_iter()
+            .filter_map(|&t| coverage::line_through(&tracer, t, &attachments, &limits))
+            .map(|(seed, trace)| ctx.run_trace(&seed, trace))
+            .collect();
+        lines.extend(extra);
+    }
     Ok(combine(mesh, lines, attachments, params))
+}
+
+/// Rounds of upstream seeding for panels the attachment rings missed
+/// ([`coverage`]).
+const COVERAGE_ROUNDS: usize = 3;
+
+/// Panels crossed by at least one line.
+fn covered(mesh: &PanelMesh, lines: &[LineResult]) -> Vec<bool> {
+    let mut out = vec![false; mesh.len()];
+    for c in lines.iter().flat_map(|l| &l.contributions) {
+        out[c.panel as usize] = true;
+    }
+    out
 }
 
 /// Validate the per-panel inputs.
@@ -275,7 +306,11 @@ impl<'a> LineContext<'a> {
 
     /// Trace from a seed, march, and split the result over the panels.
     fn run(&self, tracer: &Tracer, seed: &Seed) -> LineResult {
-        let trace = tracer.trace(seed.panel, seed.point, 1.0);
+        self.run_trace(seed, tracer.trace(seed.panel, seed.point, 1.0))
+    }
+
+    /// March along an already traced line that starts at `seed`.
+    fn run_trace(&self, seed: &Seed, trace: Trace) -> LineResult {
         let arc = arc_lengths(&trace.points);
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
