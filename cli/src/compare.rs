@@ -190,6 +190,7 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
     map_nearest(&src, &targets).unwrap_or(Mapping {
         source: Vec::new(),
         distance: Vec::new(),
+        weights: Vec::new(),
     })
 }
 
@@ -257,7 +258,7 @@ pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comp
 
 /// Per-panel values of B and of A mapped onto B.
 pub struct MappedFields {
-    /// Cp(B) - Cp(A) per B panel.
+    /// Cp(B) - Cp(A) per B panel (A interpolated to first order).
     pub delta_cp: Vec<f64>,
     /// risk(B) - risk(A), NaN where either is unresolved.
     pub delta_risk: Vec<f64>,
@@ -268,20 +269,24 @@ pub struct MappedFields {
 /// A's fields on B's panels and their differences.
 pub fn mapped_fields(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> MappedFields {
     let on_b = mapping.pull(&a.panels);
+    let field = |f: fn(&folder::PanelRow) -> f64| {
+        mapping.interpolate(&a.panels.iter().map(f).collect::<Vec<_>>())
+    };
+    let (cp_a, risk_a) = (field(|p| p.cp), field(|p| p.risk));
     let delta_cp = b
         .panels
         .iter()
-        .zip(&on_b)
-        .map(|(pb, pa)| pb.cp - pa.cp)
+        .zip(&cp_a)
+        .map(|(pb, ca)| pb.cp - ca)
         .collect();
     let resolved = |s: PanelState| s != PanelState::Unresolved;
     let delta_risk = b
         .panels
         .iter()
-        .zip(&on_b)
-        .map(|(pb, pa)| {
+        .zip(on_b.iter().zip(&risk_a))
+        .map(|(pb, (pa, ra))| {
             if resolved(pb.state) && resolved(pa.state) {
-                pb.risk - pa.risk
+                pb.risk - ra
             } else {
                 f64::NAN
             }
