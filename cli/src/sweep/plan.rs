@@ -444,7 +444,7 @@ mod tests {
     #[test]
     fn each_mode_and_stl_lists() {
         let p = plan(&format!(
-            "{BASE}combine = \"each\"\n[[vary]]\nkey = \"stl\"\nvalues = [\"a.stl\", \"b/b.stl\"]\n\
+            "combine = \"each\"\n{BASE}[[vary]]\nkey = \"stl\"\nvalues = [\"a.stl\", \"b/b.stl\"]\n\
              [[vary]]\nkey = \"ground\"\nvalues = [-0.1]\n"
         ))
         .unwrap();
