@@ -262,7 +262,7 @@ pub fn csv(c: &Collected) -> String {
 fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
     let metrics: [Metric; 3] = [
-        ("Drag estimate", "C_D [counts]", |r| 1000.0 * r.cd),
+        ("Drag estimate", "drag estimate [counts]", |r| 1000.0 * r.cd),
         ("Lift", "lift [kg]", |r| r.lift_kg),
         ("Separated area", "separated area [m²]", |r| {
             r.separated_area_m2
@@ -282,7 +282,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 title: format!("{what} against {key}, sweep {}", c.sweep),
                 subtitle: "Screening estimates; one line per combination of the other swept values"
                     .into(),
-                x_label: key.clone(),
+                x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
                 series: series(c, key, *f),
@@ -292,6 +292,23 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
     }
     Ok(out)
+}
+
+/// A swept key with its unit.
+fn axis_label(key: &str) -> String {
+    let unit = match key {
+        "flow.speed" => "m/s",
+        "flow.yaw" | "geometry.rear_window_deg" | "geometry.slant_deg" => "degrees",
+        "ground.z"
+        | "geometry.boot_deck_length"
+        | "geometry.ride_height"
+        | "geometry.radius"
+        | "geometry.centre_z" => "m",
+        "flow.density" => "kg/m³",
+        "flow.viscosity" => "m²/s",
+        _ => "-",
+    };
+    format!("{key} [{unit}]")
 }
 
 fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
