@@ -10,8 +10,11 @@ use clap::{Parser, Subcommand};
 
 mod case;
 mod check;
+mod collect;
+mod compare;
 mod estimate;
 mod geometry;
+mod meshfile;
 mod outdir;
 // Some writer helpers serve only the tests and later commands.
 #[allow(dead_code)]
@@ -19,7 +22,9 @@ mod output;
 mod pipeline;
 mod progress;
 mod run;
+mod slurm;
 mod summary;
+mod sweep;
 mod write;
 
 /// Exit code for a run that finished but left warnings the user must read.
@@ -50,6 +55,12 @@ enum Command {
     Demo(run::DemoArgs),
     /// Read an STL, repair it, and report what a run would use.
     Check(check::CheckArgs),
+    /// Compare two result folders: differences of the numbers and pictures on B's body.
+    Compare(compare::CompareArgs),
+    /// Run a sweep of variants of a base case (locally, one shard, or as a Slurm job array).
+    Sweep(sweep::SweepArgs),
+    /// Merge the finished variants of a sweep into sweep.csv, sweep.json and sweep.html.
+    Collect(collect::CollectArgs),
 }
 
 fn main() -> ExitCode {
@@ -75,6 +86,9 @@ fn main() -> ExitCode {
         Command::Run(args) => run::run(&args),
         Command::Demo(args) => run::demo(&args),
         Command::Check(args) => check::run(&args),
+        Command::Compare(args) => compare::run(&args),
+        Command::Sweep(args) => sweep::run(&args),
+        Command::Collect(args) => collect::run(&args),
     };
     match outcome {
         Ok(code) => code,

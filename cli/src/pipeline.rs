@@ -150,7 +150,20 @@ pub fn compute(
         ),
     };
     progress.end(phase, &note);
+    compute_from_potential(mesh, case, potential, progress)
+}
 
+/// The physics after the potential flow (boundary layer, loads, drag band)
+/// for a potential solution solved elsewhere (e.g. a sweep that factorises
+/// one matrix for several free streams).
+pub fn compute_from_potential(
+    mesh: &PanelMesh,
+    case: &Case,
+    potential: PotentialSolution,
+    progress: &mut Progress,
+) -> Result<Computed> {
+    let flow = &case.file.flow;
+    let fs = potential.freestream;
     let phase = progress.begin(
         "boundary layer",
         "marching boundary layers along surface streamlines",

@@ -99,6 +99,7 @@ pub fn write_all(
         yaw_deg: case.file.flow.yaw,
     };
     output::write_file(&out.file("panels.csv"), |w| csv::write_panels(w, &surface))?;
+    crate::meshfile::write(&out.file(crate::meshfile::FILE), mesh)?;
     output::write_file(&out.file("surface.vtu"), |w| {
         vtk::write_surface(w, &surface)
     })?;

@@ -143,6 +143,54 @@ pub fn surface_sheet_with_params(
     Ok(canvas)
 }
 
+/// What a sheet of any per-panel field shows: the colour scale, legend
+/// swatches, title word and note (for pictures such as the differences
+/// between two runs drawn on one body).
+#[derive(Debug, Clone)]
+pub struct FieldStyle {
+    /// Colour scale of the bar.
+    pub scale: ColourScale,
+    /// Extra swatches under the bar.
+    pub legend: Vec<(String, Swatch)>,
+    /// Title word, e.g. "Cp difference".
+    pub what: String,
+    /// One explanatory line under the title.
+    pub note: String,
+}
+
+/// Draw the four-view sheet of a field given by `paint` (one paint per
+/// panel of `s.mesh`), with the same layout, views and decorations as
+/// [`surface_sheet`].
+///
+/// # Errors
+/// As [`surface_sheet`].
+pub fn field_sheet(
+    s: &SurfaceResult<'_>,
+    style: &FieldStyle,
+    caption: &Caption,
+    paint: &dyn Fn(usize) -> PanelPaint,
+) -> Result<Canvas, OutputError> {
+    s.validate()?;
+    let params = SheetParams::default();
+    let mut canvas = Canvas::new(params.width, params.height)?;
+    let tris = display_triangles(s.mesh);
+    let lay = layout(&tris, &params);
+    for (view, frame) in &lay.views {
+        draw_cell(&mut canvas, &tris, *view, frame, &params, paint);
+        decorate(&mut canvas, s, *view, frame, caption);
+    }
+    draw_titles(&mut canvas, &caption.title(&style.what), &style.note);
+    let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
+    let bar_h = (f64::from(params.height) * 0.5).min(520.0);
+    colorbar::draw_bar(
+        &mut canvas,
+        &style.scale,
+        (bar_x as f32, (TITLE_BAND + 50.0) as f32, 30.0, bar_h as f32),
+        &style.legend,
+    );
+    Ok(canvas)
+}
+
 /// Scale, legend, title word and explanatory note of a field.
 fn field_style(
     s: &SurfaceResult<'_>,

@@ -1,0 +1,399 @@
+//! `tuft compare A B`: what changed from result A to result B.
+//!
+//! Reads two finished result folders (their meshes may differ), takes the
+//! differences of the headline numbers (B minus A: drag in counts, lift and
+//! axle loads in kg, separated area in m^2 and in percentage points of the
+//! wetted area), maps A's surface fields onto B's panels by the nearest
+//! surface point ([`mapping`]) and draws the Cp difference and the change
+//! in separation on B's body. Writes `compare.json`, two sheets and a
+//! self-contained `compare.html` into a folder that appears whole or not at
+//! all.
+//!
+//! A drag difference is only called a difference when it exceeds the noise
+//! floor of a few counts (common practice) and keeps its sign at both ends
+//! of the two runs' sensitivity bands; otherwise the verdict says it is
+//! within the uncertainty instead of naming a winner.
+
+mod folder;
+mod mapping;
+mod pictures;
+mod verdict;
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result};
+use serde::{Deserialize, Serialize};
+
+pub use folder::{ResultFolder, read_summary};
+use mapping::{Mapping, SourcePanel, map_nearest};
+pub use verdict::{DragVerdict, NOISE_COUNTS, drag_verdict};
+
+use crate::outdir::Staging;
+use crate::output::PanelState;
+
+/// Arguments of `tuft compare`.
+#[derive(clap::Args)]
+pub struct CompareArgs {
+    /// The reference result folder (A).
+    pub a: PathBuf,
+    /// The variant result folder (B); differences are B minus A, drawn on B.
+    pub b: PathBuf,
+    /// Folder for the comparison (default: `compare-A-vs-B` beside B).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    /// Replace an existing comparison folder.
+    #[arg(long)]
+    pub force: bool,
+    /// Print nothing on success.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+/// Differences of the headline numbers, B minus A.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct Deltas {
+    /// Drag estimate, counts (1 count = 0.001 C_D, common practice).
+    pub drag_counts: f64,
+    /// Pressure part of the drag, counts.
+    pub drag_pressure_counts: f64,
+    /// Friction part of the drag, counts.
+    pub drag_friction_counts: f64,
+    /// Drag force at each run's own speed, N.
+    pub drag_force_n: f64,
+    /// Lift coefficient.
+    pub lift_coefficient: f64,
+    /// Lift, whole body, kg.
+    pub lift_kg: f64,
+    /// Lift on the front axle, kg.
+    pub front_axle_kg: f64,
+    /// Lift on the rear axle, kg.
+    pub rear_axle_kg: f64,
+    /// Separated area, m^2.
+    pub separated_area_m2: f64,
+    /// Separated fraction of the wetted area, percentage points.
+    pub separated_percent_points: f64,
+}
+
+/// The surface fields of A mapped onto B's panels, and what they show.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct SurfaceDeltas {
+    /// B's panels.
+    pub panels_b: usize,
+    /// B's panels that received a value from A (all of them, by design).
+    pub mapped: usize,
+    /// Largest distance from a B centroid to A's surface, m.
+    pub max_distance_m: f64,
+    /// Median distance from a B centroid to A's surface, m.
+    pub median_distance_m: f64,
+    /// B panels farther than 2 % of the body length from A's surface
+    /// (where the shapes differ, the mapped values mean little).
+    pub far_panels: usize,
+    /// Root mean square of Cp(B) - Cp(A), area-weighted over B.
+    pub delta_cp_rms: f64,
+    /// Largest |Cp(B) - Cp(A)|.
+    pub delta_cp_max_abs: f64,
+    /// Area-weighted mean of risk(B) - risk(A) over panels resolved in both.
+    pub delta_risk_mean: f64,
+    /// Area separated in B but not in A, m^2 (whole body).
+    pub separation_appears_m2: f64,
+    /// Area separated in A but not in B, m^2 (whole body).
+    pub separation_disappears_m2: f64,
+    /// Area separated in both, m^2 (whole body).
+    pub separated_in_both_m2: f64,
+}
+
+/// One side of the comparison.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct Side {
+    /// Result folder.
+    pub folder: String,
+    /// Case name.
+    pub case_name: String,
+    /// Panels.
+    pub panels: usize,
+    /// Drag estimate C_D with its band.
+    pub cd: f64,
+    /// Low end of the drag band.
+    pub cd_low: f64,
+    /// High end of the drag band.
+    pub cd_high: f64,
+    /// Lift coefficient.
+    pub cl: f64,
+    /// Lift, kg.
+    pub lift_kg: f64,
+    /// Separated area, m^2.
+    pub separated_area_m2: f64,
+    /// Speed, m/s.
+    pub speed: f64,
+}
+
+/// `compare.json`.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct Comparison {
+    /// `tuft` and its version.
+    pub tool: String,
+    /// The reference run.
+    pub a: Side,
+    /// The variant run.
+    pub b: Side,
+    /// B minus A.
+    pub deltas: Deltas,
+    /// Whether the drag difference stands out of the uncertainty.
+    pub drag: DragVerdict,
+    /// Surface differences on B's panels.
+    pub surface: SurfaceDeltas,
+    /// Things the reader must know (different speeds, panel counts...).
+    pub notes: Vec<String>,
+    /// The caution that goes with every number.
+    pub caution: String,
+}
+
+/// `tuft compare`.
+pub fn run(args: &CompareArgs) -> Result<ExitCode> {
+    let a = ResultFolder::read(&args.a)?;
+    let b = ResultFolder::read(&args.b)?;
+    let out = args.out.clone().unwrap_or_else(|| default_out(&a, &b));
+    let staging = Staging::new(&out, args.force)?;
+    let mesh_b = b.mesh()?;
+    let mapping = map_a_onto_b(&a, &b);
+    let cmp = comparison(&a, &b, &mapping);
+    let json = serde_json::to_string_pretty(&cmp)? + "\n";
+    std::fs::write(staging.file("compare.json"), json).context("compare.json")?;
+    pictures::write(&staging, &a, &b, &mesh_b, &mapping, &cmp)
+        .with_context(|| format!("writing pictures for {}", out.display()))?;
+    staging.commit()?;
+    if !args.quiet {
+        print_comparison(&cmp, &out);
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+fn default_out(a: &ResultFolder, b: &ResultFolder) -> PathBuf {
+    let parent = b.path.parent().unwrap_or(Path::new("."));
+    parent.join(format!("compare-{}-vs-{}", a.label(), b.label()))
+}
+
+/// A's panels mapped onto B's centroids.
+pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
+    let src: Vec<SourcePanel> = a
+        .panels
+        .iter()
+        .map(|p| SourcePanel {
+            centroid: p.centroid,
+            normal: p.normal,
+            area: p.area,
+        })
+        .collect();
+    let targets: Vec<_> = b.panels.iter().map(|p| (p.centroid, p.normal)).collect();
+    // ResultFolder::read refuses a folder without panels, so A is not empty.
+    map_nearest(&src, &targets).unwrap_or(Mapping {
+        source: Vec::new(),
+        distance: Vec::new(),
+        weights: Vec::new(),
+    })
+}
+
+fn side(r: &ResultFolder) -> Side {
+    let s = &r.summary;
+    Side {
+        folder: r.path.display().to_string(),
+        case_name: s.case_name.clone(),
+        panels: s.mesh.panels,
+        cd: s.coefficients.drag,
+        cd_low: s.drag_estimate.cd_low,
+        cd_high: s.drag_estimate.cd_high,
+        cl: s.coefficients.lift,
+        lift_kg: s.lift_kg.total,
+        separated_area_m2: s.separation.area_m2,
+        speed: speed_of(s),
+    }
+}
+
+/// Free-stream speed of a run, from its case.
+fn speed_of(s: &crate::summary::Summary) -> f64 {
+    s.case
+        .pointer("/flow/speed")
+        .and_then(serde_json::Value::as_f64)
+        .unwrap_or(f64::NAN)
+}
+
+fn yaw_of(s: &crate::summary::Summary) -> f64 {
+    s.case
+        .pointer("/flow/yaw")
+        .and_then(serde_json::Value::as_f64)
+        .unwrap_or(0.0)
+}
+
+/// Headline differences, B minus A.
+pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Deltas {
+    let (ka, kb) = (&a.coefficients, &b.coefficients);
+    Deltas {
+        drag_counts: 1000.0 * (kb.drag - ka.drag),
+        drag_pressure_counts: 1000.0 * (kb.drag_pressure - ka.drag_pressure),
+        drag_friction_counts: 1000.0 * (kb.drag_friction - ka.drag_friction),
+        drag_force_n: b.drag_estimate.force_n - a.drag_estimate.force_n,
+        lift_coefficient: kb.lift - ka.lift,
+        lift_kg: b.lift_kg.total - a.lift_kg.total,
+        front_axle_kg: b.lift_kg.front_axle - a.lift_kg.front_axle,
+        rear_axle_kg: b.lift_kg.rear_axle - a.lift_kg.rear_axle,
+        separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
+        separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
+    }
+}
+
+/// Everything `compare.json` holds.
+pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comparison {
+    Comparison {
+        tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
+        a: side(a),
+        b: side(b),
+        deltas: deltas(&a.summary, &b.summary),
+        drag: drag_verdict(&a.summary, &b.summary),
+        surface: surface_deltas(a, b, mapping),
+        notes: notes(a, b),
+        caution: crate::summary::CAUTION.into(),
+    }
+}
+
+/// Per-panel values of B and of A mapped onto B.
+pub struct MappedFields {
+    /// Cp(B) - Cp(A) per B panel (A interpolated to first order).
+    pub delta_cp: Vec<f64>,
+    /// risk(B) - risk(A), NaN where either is unresolved.
+    pub delta_risk: Vec<f64>,
+    /// A's state at each B panel.
+    pub state_a: Vec<PanelState>,
+}
+
+/// A's fields on B's panels and their differences.
+pub fn mapped_fields(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> MappedFields {
+    let on_b = mapping.pull(&a.panels);
+    let field = |f: fn(&folder::PanelRow) -> f64| {
+        mapping.interpolate(&a.panels.iter().map(f).collect::<Vec<_>>())
+    };
+    let (cp_a, risk_a) = (field(|p| p.cp), field(|p| p.risk));
+    let delta_cp = b
+        .panels
+        .iter()
+        .zip(&cp_a)
+        .map(|(pb, ca)| pb.cp - ca)
+        .collect();
+    let resolved = |s: PanelState| s != PanelState::Unresolved;
+    let delta_risk = b
+        .panels
+        .iter()
+        .zip(on_b.iter().zip(&risk_a))
+        .map(|(pb, (pa, ra))| {
+            if resolved(pb.state) && resolved(pa.state) {
+                pb.risk - ra
+            } else {
+                f64::NAN
+            }
+        })
+        .collect();
+    MappedFields {
+        delta_cp,
+        delta_risk,
+        state_a: on_b.iter().map(|p| p.state).collect(),
+    }
+}
+
+fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> SurfaceDeltas {
+    let f = mapped_fields(a, b, mapping);
+    let area: Vec<f64> = b.panels.iter().map(|p| p.area).collect();
+    let total: f64 = area.iter().sum();
+    let halves = b.halves();
+    let sep = |s: PanelState| s == PanelState::Separated;
+    let mut out = SurfaceDeltas {
+        panels_b: b.panels.len(),
+        mapped: mapping.source.len(),
+        ..SurfaceDeltas::default()
+    };
+    let mut dist = mapping.distance.clone();
+    dist.sort_by(f64::total_cmp);
+    out.max_distance_m = dist.last().copied().unwrap_or(0.0);
+    out.median_distance_m = dist.get(dist.len() / 2).copied().unwrap_or(0.0);
+    let far = 0.02 * b.summary.reference.length_m.max(f64::MIN_POSITIVE);
+    out.far_panels = mapping.distance.iter().filter(|&&d| d > far).count();
+    let (mut sq, mut risk, mut risk_area) = (0.0, 0.0, 0.0);
+    for (i, pb) in b.panels.iter().enumerate() {
+        let d = f.delta_cp[i];
+        sq += area[i] * d * d;
+        out.delta_cp_max_abs = out.delta_cp_max_abs.max(d.abs());
+        if f.delta_risk[i].is_finite() {
+            risk += area[i] * f.delta_risk[i];
+            risk_area += area[i];
+        }
+        let slot = match (sep(f.state_a[i]), sep(pb.state)) {
+            (false, true) => &mut out.separation_appears_m2,
+            (true, false) => &mut out.separation_disappears_m2,
+            (true, true) => &mut out.separated_in_both_m2,
+            (false, false) => continue,
+        };
+        *slot += halves * area[i];
+    }
+    out.delta_cp_rms = if total > 0.0 {
+        (sq / total).sqrt()
+    } else {
+        0.0
+    };
+    out.delta_risk_mean = if risk_area > 0.0 {
+        risk / risk_area
+    } else {
+        0.0
+    };
+    out
+}
+
+/// Warnings about what makes the two runs hard to compare.
+fn notes(a: &ResultFolder, b: &ResultFolder) -> Vec<String> {
+    let (sa, sb) = (&a.summary, &b.summary);
+    let mut notes = Vec::new();
+    let (va, vb) = (speed_of(sa), speed_of(sb));
+    if (va - vb).abs() > 1e-9 * va.abs().max(1.0) {
+        notes.push(format!(
+            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the speed"
+        ));
+    }
+    let (ya, yb) = (yaw_of(sa), yaw_of(sb));
+    if (ya - yb).abs() > 1e-9 {
+        notes.push(format!(
+            "the runs are at different yaw angles ({ya} and {yb} degrees)"
+        ));
+    }
+    let (na, nb) = (sa.mesh.panels as f64, sb.mesh.panels as f64);
+    if (na - nb).abs() > 0.05 * na.max(nb) {
+        notes.push(format!(
+            "the panel counts differ ({} and {}): part of every difference is discretisation error; \
+             compare variants at about the same panel count",
+            sa.mesh.panels, sb.mesh.panels
+        ));
+    }
+    let ra = (sa.reference.area_m2 - sb.reference.area_m2).abs();
+    if ra > 1e-6 * sa.reference.area_m2.abs().max(1e-12) {
+        notes.push(format!(
+            "the reference areas differ ({:.4} and {:.4} m^2): compare forces (N, kg) rather than coefficients",
+            sa.reference.area_m2, sb.reference.area_m2
+        ));
+    }
+    notes
+}
+
+fn print_comparison(c: &Comparison, out: &Path) {
+    let d = &c.deltas;
+    println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
+    println!(
+        "  drag {:+.1} counts, lift {:+.1} kg (front {:+.1}, rear {:+.1}), separated area {:+.3} m^2 ({:+.2} points)",
+        d.drag_counts,
+        d.lift_kg,
+        d.front_axle_kg,
+        d.rear_axle_kg,
+        d.separated_area_m2,
+        d.separated_percent_points
+    );
+    for n in &c.notes {
+        println!("  note: {n}");
+    }
+    println!("  report: {}", out.join("compare.html").display());
+}

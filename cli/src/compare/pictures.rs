@@ -1,0 +1,257 @@
+//! The comparison's pictures and page: the Cp difference and the change in
+//! separation drawn on B's body in the run report's four views, and a
+//! self-contained `compare.html`.
+
+use anyhow::{Context, Result};
+use nalgebra::Vector3;
+use tuft_mesh::PanelMesh;
+
+use super::mapping::Mapping;
+use super::{Comparison, ResultFolder, mapped_fields};
+use crate::outdir::Staging;
+use crate::output::colorbar::{ColourScale, Swatch, nice_ticks};
+use crate::output::html::{self, NumberRow, Picture, Report, TextSection};
+use crate::output::render::PanelPaint;
+use crate::output::sheet::{FieldStyle, NO_VALUE, field_sheet};
+use crate::output::{self, Caption, PanelState, SurfaceResult};
+
+/// Stripes where separation appears in B (dark red on light red).
+const APPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([150, 20, 30], [240, 150, 150]);
+/// Stripes where separation disappears in B (dark blue on light blue).
+const DISAPPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([20, 60, 150], [150, 190, 240]);
+/// Stripes where both runs separate.
+const BOTH: (output::canvas::Rgb, output::canvas::Rgb) = ([40, 40, 46], [150, 150, 158]);
+
+/// B's panel values in the writers' shape.
+struct Owned {
+    cp: Vec<f64>,
+    zeros: Vec<f64>,
+    velocity: Vec<Vector3<f64>>,
+    state: Vec<PanelState>,
+    risk: Vec<f64>,
+}
+
+impl Owned {
+    fn new(b: &ResultFolder) -> Self {
+        let n = b.panels.len();
+        Self {
+            cp: b.panels.iter().map(|p| p.cp).collect(),
+            zeros: vec![0.0; n],
+            velocity: vec![Vector3::zeros(); n],
+            state: b.panels.iter().map(|p| p.state).collect(),
+            risk: b.panels.iter().map(|p| p.risk).collect(),
+        }
+    }
+
+    fn surface<'a>(&'a self, mesh: &'a PanelMesh) -> SurfaceResult<'a> {
+        SurfaceResult {
+            mesh,
+            cp: &self.cp,
+            velocity: &self.velocity,
+            theta: &self.zeros,
+            shape_factor: &self.zeros,
+            cf: &self.zeros,
+            state: &self.state,
+            risk: &self.risk,
+        }
+    }
+}
+
+/// A diverging scale centred on zero, `±m` with `m` the 98th percentile of
+/// `|values|` rounded up to a round number (at least `floor`).
+fn diverging(label: &str, values: &[f64], floor: f64) -> ColourScale {
+    let mut mags: Vec<f64> = values
+        .iter()
+        .filter(|v| v.is_finite())
+        .map(|v| v.abs())
+        .collect();
+    mags.sort_by(f64::total_cmp);
+    let q = mags
+        .get(((mags.len() as f64 - 1.0) * 0.98).round().max(0.0) as usize)
+        .copied()
+        .unwrap_or(0.0)
+        .max(floor);
+    let m = nice_ticks(0.0, q, 2)
+        .into_iter()
+        .find(|&t| t >= q)
+        .unwrap_or(q);
+    // The Cp scale is the diverging red-blue map centred on zero; only its
+    // range and label change here.
+    let mut scale = ColourScale::cp(&[]);
+    scale.label = label.into();
+    scale.min = -m;
+    scale.max = m;
+    scale
+}
+
+/// Write the sheets and `compare.html` into the staging folder.
+pub fn write(
+    out: &Staging,
+    a: &ResultFolder,
+    b: &ResultFolder,
+    mesh_b: &PanelMesh,
+    mapping: &Mapping,
+    cmp: &Comparison,
+) -> Result<()> {
+    let owned = Owned::new(b);
+    let surface = owned.surface(mesh_b);
+    let f = mapped_fields(a, b, mapping);
+    let caption = Caption {
+        case: format!("{} minus {}", b.summary.case_name, a.summary.case_name),
+        speed_ms: cmp.b.speed,
+        yaw_deg: super::yaw_of(&b.summary),
+    };
+    let cp_style = FieldStyle {
+        scale: diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
+        legend: vec![],
+        what: "Cp difference".into(),
+        note: "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B.".into(),
+    };
+    let dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
+        PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
+    })?;
+    let sep_style = FieldStyle {
+        scale: diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
+        legend: vec![
+            ("separates in B only".into(), Swatch::Hatched(APPEARS.0, APPEARS.1)),
+            ("separates in A only".into(), Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1)),
+            ("separates in both".into(), Swatch::Hatched(BOTH.0, BOTH.1)),
+            ("not resolved".into(), Swatch::Solid(NO_VALUE)),
+        ],
+        what: "Separation change".into(),
+        note: "Where separation appears (red stripes) or disappears (blue stripes) in B; colour: risk of B minus risk of A.".into(),
+    };
+    let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
+    let dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
+        let sep_b = owned.state[i] == PanelState::Separated;
+        match (sep_a(i), sep_b) {
+            (false, true) => PanelPaint::Hatched(APPEARS.0, APPEARS.1),
+            (true, false) => PanelPaint::Hatched(DISAPPEARS.0, DISAPPEARS.1),
+            (true, true) => PanelPaint::Hatched(BOTH.0, BOTH.1),
+            (false, false) => {
+                PanelPaint::Solid(sep_style.scale.colour(f.delta_risk[i]).unwrap_or(NO_VALUE))
+            }
+        }
+    })?;
+    let pictures = vec![
+        (
+            "delta-cp.png",
+            Picture {
+                title: "Cp of B minus Cp of A, on B's body: side, top, underneath and rear".into(),
+                png: dcp.to_png()?,
+            },
+        ),
+        (
+            "separation-change.png",
+            Picture {
+                title: "Where separation appears or disappears, on B's body".into(),
+                png: dsep.to_png()?,
+            },
+        ),
+    ];
+    for (name, p) in &pictures {
+        std::fs::write(out.file(name), &p.png).with_context(|| name.to_string())?;
+    }
+    let report = page(cmp, caption, pictures.into_iter().map(|p| p.1).collect());
+    output::write_file(&out.file("compare.html"), |w| {
+        html::write_report(w, &report)
+    })?;
+    Ok(())
+}
+
+/// The comparison page.
+fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
+    let d = &c.deltas;
+    let s = &c.surface;
+    let at = format!("kg at {} m/s", output::short_number(c.b.speed));
+    let signed = |v: f64| format!("{v:+.1}").replace('-', "\u{2212}");
+    let numbers = vec![
+        NumberRow::text(
+            "Drag C_D, A and B",
+            &format!("{:.3} and {:.3}", c.a.cd, c.b.cd),
+            "-",
+        ),
+        NumberRow::text("Drag difference", &signed(d.drag_counts), "counts"),
+        NumberRow::text(
+            "Drag difference at the band ends (low, high)",
+            &format!(
+                "{} and {}",
+                signed(c.drag.band_deltas_counts[0]),
+                signed(c.drag.band_deltas_counts[1])
+            ),
+            "counts",
+        ),
+        NumberRow::text(
+            "  of which pressure",
+            &signed(d.drag_pressure_counts),
+            "counts",
+        ),
+        NumberRow::text(
+            "  of which friction",
+            &signed(d.drag_friction_counts),
+            "counts",
+        ),
+        NumberRow::text("Drag force difference", &signed(d.drag_force_n), "N"),
+        NumberRow::text("Lift difference, whole body", &signed(d.lift_kg), &at),
+        NumberRow::text("Lift difference, front axle", &signed(d.front_axle_kg), &at),
+        NumberRow::text("Lift difference, rear axle", &signed(d.rear_axle_kg), &at),
+        NumberRow::number("Lift coefficient difference", d.lift_coefficient, "-"),
+        NumberRow::number("Separated area difference", d.separated_area_m2, "m²"),
+        NumberRow::number(
+            "Separated fraction difference",
+            d.separated_percent_points,
+            "% points",
+        ),
+        NumberRow::number("Separation appears in B", s.separation_appears_m2, "m²"),
+        NumberRow::number(
+            "Separation disappears in B",
+            s.separation_disappears_m2,
+            "m²",
+        ),
+        NumberRow::number("RMS Cp difference (area-weighted)", s.delta_cp_rms, "-"),
+        NumberRow::number(
+            "Largest distance from B's panels to A's surface",
+            s.max_distance_m,
+            "m",
+        ),
+        NumberRow::text(
+            "Panels, A and B",
+            &format!("{} and {}", c.a.panels, c.b.panels),
+            "-",
+        ),
+    ];
+    let method = TextSection {
+        title: "How to read this".into(),
+        body: format!(
+            "A is {} ({}), B is {} ({}); every difference is B minus A. A's surface values are carried \
+             onto B's panels by the nearest point of A's surface (panel-constant values, panels facing the \
+             same way), so the pictures are drawn on B's body.\n\n\
+             A drag difference is called one only when it exceeds {} counts (differences of a few counts \
+             are within the noise of any simulation, common practice) and keeps its sign at both ends of \
+             the two runs' sensitivity bands. Verdict: {}.",
+            c.a.case_name,
+            c.a.folder,
+            c.b.case_name,
+            c.b.folder,
+            super::NOISE_COUNTS,
+            c.drag.text
+        ),
+    };
+    Report {
+        caption,
+        summary: format!("{}.", upper_first(&c.drag.text)),
+        numbers,
+        warnings: c.notes.clone(),
+        pictures,
+        sections: vec![method],
+        cautions: vec![],
+        generator: c.tool.clone(),
+    }
+}
+
+fn upper_first(s: &str) -> String {
+    let mut cs = s.chars();
+    cs.next().map_or_else(String::new, |f| {
+        f.to_uppercase().collect::<String>() + cs.as_str()
+    })
+}

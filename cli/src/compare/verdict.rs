@@ -1,0 +1,104 @@
+//! Whether a drag difference stands out of the uncertainty.
+//!
+//! Two tests, both needed before a difference is called one:
+//! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (differences of a
+//!    few counts are within the noise of any simulation, common practice);
+//! 2. it keeps its sign and stays above the floor at both ends of the two
+//!    runs' sensitivity bands (low end against low end, high end against
+//!    high end): the bands re-run the boundary layer with the separation
+//!    threshold and transition at the ends of their plausible ranges, so a
+//!    difference that changes sign inside them depends on the model more
+//!    than on the shape.
+
+use serde::{Deserialize, Serialize};
+
+use crate::summary::Summary;
+
+/// Noise floor of a drag difference, counts (common practice: "a few
+/// counts").
+pub const NOISE_COUNTS: f64 = 3.0;
+
+/// The verdict on a drag difference.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct DragVerdict {
+    /// The difference stands out of the uncertainty.
+    pub resolved: bool,
+    /// B minus A at the central estimate, counts.
+    pub delta_counts: f64,
+    /// B minus A at the low and the high ends of the bands, counts.
+    pub band_deltas_counts: [f64; 2],
+    /// Noise floor used, counts.
+    pub noise_counts: f64,
+    /// "lower", "higher" or "undecided": B's drag against A's.
+    pub direction: String,
+    /// One sentence for people.
+    pub text: String,
+}
+
+/// Judge B's drag against A's.
+pub fn drag_verdict(a: &Summary, b: &Summary) -> DragVerdict {
+    let counts = |x: f64, y: f64| 1000.0 * (y - x);
+    let delta = counts(a.coefficients.drag, b.coefficients.drag);
+    let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
+    let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
+    let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= NOISE_COUNTS;
+    let above_noise = delta.abs() >= NOISE_COUNTS;
+    let resolved = above_noise && same_way(low) && same_way(high);
+    let direction = match (resolved, delta < 0.0) {
+        (false, _) => "undecided",
+        (true, true) => "lower",
+        (true, false) => "higher",
+    };
+    let text = if !above_noise {
+        format!(
+            "drag difference {delta:+.1} counts is within the noise floor of {NOISE_COUNTS} counts: no winner"
+        )
+    } else if !resolved {
+        format!(
+            "drag difference {delta:+.1} counts, but {low:+.1} and {high:+.1} counts at the ends of the \
+             sensitivity bands: within the model uncertainty, no winner"
+        )
+    } else {
+        format!(
+            "B has {direction} drag by {:.1} counts ({low:+.1} to {high:+.1} across the sensitivity bands)",
+            delta.abs()
+        )
+    };
+    DragVerdict {
+        resolved,
+        delta_counts: delta,
+        band_deltas_counts: [low, high],
+        noise_counts: NOISE_COUNTS,
+        direction: direction.into(),
+        text,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn summary(cd: f64, lo: f64, hi: f64) -> Summary {
+        let mut s = Summary::default();
+        s.coefficients.drag = cd;
+        s.drag_estimate.cd = cd;
+        s.drag_estimate.cd_low = lo;
+        s.drag_estimate.cd_high = hi;
+        s
+    }
+
+    #[test]
+    fn small_or_model_dependent_differences_name_no_winner() {
+        let a = summary(0.300, 0.290, 0.320);
+        // 2 counts: under the noise floor of a few counts (common practice).
+        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322));
+        assert!(!v.resolved && v.direction == "undecided", "{v:?}");
+        // 10 counts lower at the centre but higher at the top of the band.
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325));
+        assert!(!v.resolved, "{v:?}");
+        // 10 counts lower everywhere.
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310));
+        assert!(v.resolved && v.direction == "lower", "{v:?}");
+        assert!((v.delta_counts + 10.0).abs() < 1e-9);
+    }
+}

@@ -1,0 +1,196 @@
+//! `tuft sweep SWEEP.toml`: run the variants of a base case.
+//!
+//! Each variant writes a normal run folder `DIR/<variant>/` (plus its
+//! `variant.json`); variants sharing a geometry share one assembled and
+//! factorised matrix ([`group`]). A variant that fails is reported and the
+//! rest go on. Finished variant folders are kept (a sweep that stopped
+//! overnight picks up where it was) unless `--force`. `--shard K/N` runs
+//! the K-th of N contiguous slices of the variant list; `--slurm` writes a
+//! Slurm job array for the shards instead of running.
+//!
+//! Exit codes: 0 every variant of this process finished (warnings are in
+//! each report and in `tuft collect`), 2 some variant failed or bad input.
+
+pub mod group;
+pub mod plan;
+
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result};
+
+use crate::EXIT_FAILURE;
+use crate::run::{RunOptions, set_threads};
+use group::{Member, Outcome, run_group};
+use plan::{Plan, parse_shard, shard_range};
+
+/// File listing every variant of the sweep, at the top of the sweep folder.
+pub const PLAN_FILE: &str = "sweep-plan.json";
+
+/// Arguments of `tuft sweep`.
+#[derive(clap::Args)]
+pub struct SweepArgs {
+    /// The sweep file (TOML).
+    pub sweep: PathBuf,
+    /// Folder for the variants (default: beside the sweep file, named after it).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+    /// Run only shard K of N (1 <= K <= N): a contiguous slice of the variants.
+    #[arg(long, value_name = "K/N")]
+    pub shard: Option<String>,
+    /// Write a Slurm job array (one task per shard) and a collect job instead of running.
+    #[arg(long)]
+    pub slurm: bool,
+    /// Number of shards for --slurm (default: one per geometry).
+    #[arg(long, requires = "slurm")]
+    pub shards: Option<usize>,
+    /// Extra `#SBATCH` option for every job, e.g. `--slurm-option=--partition=long` (repeatable).
+    #[arg(long = "slurm-option", requires = "slurm", allow_hyphen_values = true)]
+    pub slurm_options: Vec<String>,
+    #[command(flatten)]
+    pub options: RunOptions,
+}
+
+/// The sweep's result folder.
+pub fn out_dir(args_out: Option<&Path>, plan: &Plan) -> PathBuf {
+    args_out.map_or_else(
+        || {
+            plan.path
+                .parent()
+                .unwrap_or(Path::new("."))
+                .join(&plan.name)
+        },
+        Path::to_path_buf,
+    )
+}
+
+/// `tuft sweep`.
+pub fn run(args: &SweepArgs) -> Result<ExitCode> {
+    let plan = Plan::load(&args.sweep)?;
+    let root = out_dir(args.out.as_deref(), &plan);
+    if args.slurm {
+        if args.shard.is_some() {
+            anyhow::bail!("--slurm and --shard do not go together: the job array runs the shards");
+        }
+        return crate::slurm::write_scripts(args, &plan, &root);
+    }
+    set_threads(args.options.threads)?;
+    let (k, n) = match &args.shard {
+        Some(s) => parse_shard(s)?,
+        None => (1, 1),
+    };
+    std::fs::create_dir_all(&root)
+        .with_context(|| format!("{}: cannot create the folder", root.display()))?;
+    write_plan(&root, &plan)?;
+    let range = shard_range(plan.variants.len(), k, n);
+    let failed = run_range(&plan, &root, range, &args.options);
+    Ok(if failed == 0 {
+        ExitCode::SUCCESS
+    } else {
+        eprintln!("tuft: {failed} variant(s) of {} failed", plan.name);
+        ExitCode::from(EXIT_FAILURE)
+    })
+}
+
+/// Run the variants in `range`, group by group; returns how many failed.
+fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunOptions) -> usize {
+    let dir = plan.path.parent().unwrap_or(Path::new("."));
+    let total = range.len();
+    let mut done = 0;
+    let mut failed = 0;
+    let mut todo: Vec<Member<'_>> = Vec::new();
+    for index in range {
+        let variant = &plan.variants[index];
+        if !opt.force && root.join(&variant.name).join("summary.json").exists() {
+            done += 1;
+            say(
+                opt.quiet,
+                &format!("[{done}/{total}] {}: already finished, kept", variant.name),
+            );
+            continue;
+        }
+        todo.push(Member { index, variant });
+    }
+    let mut report = |m: &Member<'_>, outcome: &Outcome, secs: f64| {
+        done += 1;
+        let line = match outcome {
+            Outcome::Done(s, matrix) => format!(
+                "C_D {:.3} (band {:.3}-{:.3}), lift {:.0} kg, separated {:.1} % ({secs:.1} s, {})",
+                s.coefficients.drag,
+                s.drag_estimate.cd_low,
+                s.drag_estimate.cd_high,
+                s.lift_kg.total,
+                100.0 * s.separation.fraction,
+                if matrix.reused {
+                    "matrix reused".to_string()
+                } else {
+                    format!(
+                        "matrix factorised for {} variant(s)",
+                        matrix.variants_sharing
+                    )
+                }
+            ),
+            Outcome::Failed(why) => {
+                failed += 1;
+                format!("FAILED: {why}")
+            }
+        };
+        say(
+            opt.quiet && matches!(outcome, Outcome::Done(..)),
+            &format!("[{done}/{total}] {}: {line}", m.variant.name),
+        );
+    };
+    let mut start = 0;
+    while start < todo.len() {
+        let key = &todo[start].variant.geometry_key;
+        let end = start
+            + todo[start..]
+                .iter()
+                .take_while(|m| &m.variant.geometry_key == key)
+                .count();
+        run_group(
+            &plan.name,
+            dir,
+            root,
+            &todo[start..end],
+            opt.force,
+            &mut report,
+        );
+        start = end;
+    }
+    failed
+}
+
+fn say(quiet: bool, line: &str) {
+    if !quiet {
+        eprintln!("{line}");
+    }
+}
+
+/// Entry of `sweep-plan.json`.
+#[derive(serde::Serialize, serde::Deserialize, Debug, Clone, PartialEq)]
+pub struct PlanEntry {
+    /// Variant (folder) name.
+    pub name: String,
+    /// What differs from the base case.
+    pub settings: Vec<plan::Setting>,
+}
+
+/// `sweep-plan.json`: the sweep's name and every variant, written whole
+/// (temporary file renamed into place; every shard writes the same bytes).
+fn write_plan(root: &Path, plan: &Plan) -> Result<()> {
+    let entries: Vec<PlanEntry> = plan
+        .variants
+        .iter()
+        .map(|v| PlanEntry {
+            name: v.name.clone(),
+            settings: v.settings.clone(),
+        })
+        .collect();
+    let value = serde_json::json!({ "sweep": plan.name, "variants": entries });
+    let tmp = root.join(format!(".{PLAN_FILE}.{}", std::process::id()));
+    std::fs::write(&tmp, serde_json::to_string_pretty(&value)? + "\n")
+        .with_context(|| format!("{}: cannot write", tmp.display()))?;
+    std::fs::rename(&tmp, root.join(PLAN_FILE))
+        .with_context(|| format!("{}: cannot write", root.join(PLAN_FILE).display()))
+}

@@ -1,0 +1,496 @@
+//! The sweep file and the list of variants it stands for.
+//!
+//! ```toml
+//! # rear-window.toml
+//! base = "coupe.toml"          # a case file (relative to this file) ...
+//! # [base]                     # ... or the case written inline
+//! # geometry = { shape = "coupe" }
+//! combine = "all"              # every combination ("all") or one list at a time ("each")
+//!
+//! [[vary]]
+//! key = "yaw"                  # short name or a dotted case key
+//! values = [0.0, 5.0, 10.0]
+//!
+//! [[vary]]
+//! key = "rear_window_deg"
+//! values = [22.0, 30.0, 38.0]
+//! ```
+//!
+//! Short names: `speed`, `yaw`, `ground` (the ground height), `panels`,
+//! `transition`, `stl` (files relative to the sweep file),
+//! `rear_window_deg`, `boot_deck_length`, `ride_height`, `slant_deg`; any
+//! other key is a dotted path into the case file (`flow.density`,
+//! `boundary_layer.separation_h`, ...). Each variant is the base case with
+//! its values set, named after them (`yaw-5_rear_window_deg-30`), and runs
+//! into a folder of that name. Variants are ordered so that those sharing
+//! geometry (only the flow, boundary-layer or reference keys differ) sit
+//! together; shards are contiguous slices of that order.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, bail};
+use serde::{Deserialize, Serialize};
+
+use crate::case::CaseFile;
+
+/// The base case: a path or an inline case table.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(untagged)]
+enum BaseCase {
+    /// A case file, relative to the sweep file.
+    Path(PathBuf),
+    /// The case itself.
+    Inline(Box<toml::Value>),
+}
+
+/// How lists combine.
+#[derive(Debug, Clone, Copy, Deserialize, Default, PartialEq, Eq)]
+#[serde(rename_all = "lowercase")]
+enum Combine {
+    /// Every combination of the lists (a full grid).
+    #[default]
+    All,
+    /// Each list alone, the other keys at the base value.
+    Each,
+}
+
+/// One `[[vary]]` table.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Vary {
+    key: String,
+    values: Vec<toml::Value>,
+}
+
+/// The sweep file as written.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SweepFile {
+    base: BaseCase,
+    #[serde(default)]
+    combine: Combine,
+    #[serde(default)]
+    vary: Vec<Vary>,
+}
+
+/// One swept setting of a variant: the dotted case key and its value.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct Setting {
+    /// Dotted case key, e.g. `flow.yaw`.
+    pub key: String,
+    /// The value as written in the sweep file.
+    pub value: serde_json::Value,
+}
+
+/// One variant to run.
+#[derive(Debug, Clone)]
+pub struct Variant {
+    /// Folder name.
+    pub name: String,
+    /// What differs from the base case.
+    pub settings: Vec<Setting>,
+    /// The case file of the variant (or why it cannot be made).
+    pub file: Result<CaseFile, String>,
+    /// Variants with equal keys share geometry (and one matrix).
+    pub geometry_key: String,
+}
+
+/// A checked sweep.
+#[derive(Debug, Clone)]
+pub struct Plan {
+    /// Sweep name (file stem).
+    pub name: String,
+    /// The sweep file.
+    pub path: PathBuf,
+    /// Every variant, geometry groups together.
+    pub variants: Vec<Variant>,
+}
+
+/// The dotted case key a short name stands for.
+pub fn full_key(key: &str) -> String {
+    match key {
+        "speed" | "yaw" | "density" | "viscosity" => format!("flow.{key}"),
+        "ground" => "ground.z".into(),
+        "transition" => "boundary_layer.transition".into(),
+        "panels" | "stl" | "shape" | "rear_window_deg" | "boot_deck_length" | "ride_height"
+        | "slant_deg" | "radius" | "centre_z" | "units" => format!("geometry.{key}"),
+        other => other.into(),
+    }
+}
+
+/// Short label of a dotted key for variant names.
+fn short_key(key: &str) -> &str {
+    match key {
+        "ground.z" => "ground",
+        k => k.rsplit('.').next().unwrap_or(k),
+    }
+}
+
+impl Plan {
+    /// Read a sweep file.
+    pub fn load(path: &Path) -> Result<Self> {
+        let text = std::fs::read_to_string(path)
+            .with_context(|| format!("{}: cannot read the sweep file", path.display()))?;
+        let file: SweepFile = toml::from_str(&text).map_err(|e| {
+            anyhow::anyhow!(
+                "{}: {}",
+                path.display(),
+                e.to_string()
+                    .split_whitespace()
+                    .collect::<Vec<_>>()
+                    .join(" ")
+            )
+        })?;
+        Self::from_file(path, file).with_context(|| path.display().to_string())
+    }
+
+    fn from_file(path: &Path, file: SweepFile) -> Result<Self> {
+        let dir = path.parent().unwrap_or(Path::new(".")).to_path_buf();
+        let base = base_value(&dir, &file.base)?;
+        let vary = check_vary(&file.vary)?;
+        let combos = match file.combine {
+            Combine::All => grid(&vary),
+            Combine::Each => each(&vary),
+        };
+        let mut variants: Vec<Variant> = combos
+            .into_iter()
+            .map(|settings| variant(&base, &dir, settings))
+            .collect();
+        unique_names(&mut variants);
+        let variants = group_by_geometry(variants);
+        let name = path
+            .file_stem()
+            .map_or("sweep".into(), |s| s.to_string_lossy().into_owned());
+        Ok(Self {
+            name,
+            path: path.to_path_buf(),
+            variants,
+        })
+    }
+
+    /// Number of distinct geometries.
+    pub fn geometry_groups(&self) -> usize {
+        let mut keys: Vec<&str> = self
+            .variants
+            .iter()
+            .map(|v| v.geometry_key.as_str())
+            .collect();
+        keys.sort_unstable();
+        keys.dedup();
+        keys.len()
+    }
+}
+
+/// The base case as a TOML value, STL paths made relative to the sweep's
+/// folder.
+fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
+    let (value, case_dir) = match base {
+        BaseCase::Path(p) => {
+            let file = dir.join(p);
+            let text = std::fs::read_to_string(&file)
+                .with_context(|| format!("base = {}: cannot read the case file", file.display()))?;
+            let v: toml::Value =
+                toml::from_str(&text).map_err(|e| anyhow::anyhow!("{}: {}", file.display(), e))?;
+            (v, file.parent().unwrap_or(Path::new(".")).to_path_buf())
+        }
+        BaseCase::Inline(v) => ((**v).clone(), dir.to_path_buf()),
+    };
+    let mut value = value;
+    if let Some(stl) = value.get_mut("geometry").and_then(|g| g.get_mut("stl"))
+        && let Some(s) = stl.as_str()
+    {
+        *stl = toml::Value::String(path_string(&case_dir.join(s)));
+    }
+    // Check the base now so its mistakes are reported once, up front.
+    let _: CaseFile = value
+        .clone()
+        .try_into()
+        .map_err(|e: toml::de::Error| anyhow::anyhow!("base case: {}", e.to_string().trim()))?;
+    Ok(value)
+}
+
+fn path_string(p: &Path) -> String {
+    std::path::absolute(p)
+        .unwrap_or_else(|_| p.to_path_buf())
+        .to_string_lossy()
+        .into_owned()
+}
+
+/// Lists with their full keys; refuses empty lists and repeated keys.
+fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
+    let mut out: Vec<(String, Vec<toml::Value>)> = Vec::new();
+    for (k, v) in vary.iter().enumerate() {
+        let key = full_key(&v.key);
+        if v.values.is_empty() {
+            bail!("vary #{} (key \"{}\"): values is empty", k + 1, v.key);
+        }
+        if out.iter().any(|(o, _)| *o == key) {
+            bail!("vary #{}: key \"{}\" is varied twice", k + 1, v.key);
+        }
+        out.push((key, v.values.clone()));
+    }
+    if out.is_empty() {
+        bail!("no [[vary]] lists: a sweep needs at least one");
+    }
+    Ok(out)
+}
+
+/// Every combination, the first list varying slowest.
+fn grid(vary: &[(String, Vec<toml::Value>)]) -> Vec<Vec<(String, toml::Value)>> {
+    let mut combos: Vec<Vec<(String, toml::Value)>> = vec![Vec::new()];
+    for (key, values) in vary {
+        combos = combos
+            .into_iter()
+            .flat_map(|c| {
+                values.iter().map(move |v| {
+                    let mut c = c.clone();
+                    c.push((key.clone(), v.clone()));
+                    c
+                })
+            })
+            .collect();
+    }
+    combos
+}
+
+/// Each list on its own.
+fn each(vary: &[(String, Vec<toml::Value>)]) -> Vec<Vec<(String, toml::Value)>> {
+    vary.iter()
+        .flat_map(|(key, values)| values.iter().map(move |v| vec![(key.clone(), v.clone())]))
+        .collect()
+}
+
+/// Build one variant from the base and its settings.
+fn variant(base: &toml::Value, dir: &Path, settings: Vec<(String, toml::Value)>) -> Variant {
+    let mut value = base.clone();
+    let mut applied = Vec::new();
+    let mut names = Vec::new();
+    let mut error = None;
+    for (key, v) in settings {
+        let v = if key == "geometry.stl" {
+            v.as_str().map_or(v.clone(), |s| {
+                toml::Value::String(path_string(&dir.join(s)))
+            })
+        } else {
+            v
+        };
+        names.push(format!("{}-{}", short_key(&key), value_label(&key, &v)));
+        if let Err(e) = set_key(&mut value, &key, v.clone()) {
+            error.get_or_insert(e);
+        }
+        applied.push(Setting {
+            key,
+            value: serde_json::to_value(&v).unwrap_or(serde_json::Value::Null),
+        });
+    }
+    let file = match error {
+        Some(e) => Err(e),
+        None => value.clone().try_into::<CaseFile>().map_err(|e| {
+            e.to_string()
+                .split_whitespace()
+                .collect::<Vec<_>>()
+                .join(" ")
+        }),
+    };
+    let geometry_key = geometry_key(&value);
+    Variant {
+        name: names.join("_"),
+        settings: applied,
+        file,
+        geometry_key,
+    }
+}
+
+/// What decides the panel mesh: the geometry section and the ground.
+fn geometry_key(v: &toml::Value) -> String {
+    let g = v
+        .get("geometry")
+        .map(ToString::to_string)
+        .unwrap_or_default();
+    let z = v.get("ground").map(ToString::to_string).unwrap_or_default();
+    format!("{g}|{z}")
+}
+
+/// Set a dotted key, creating tables on the way; setting `geometry.stl`
+/// drops `geometry.shape` and the other way round.
+fn set_key(root: &mut toml::Value, key: &str, value: toml::Value) -> Result<(), String> {
+    let parts: Vec<&str> = key.split('.').collect();
+    let (last, path) = parts.split_last().ok_or_else(|| "empty key".to_string())?;
+    let mut node = root;
+    for p in path {
+        let table = node
+            .as_table_mut()
+            .ok_or_else(|| format!("{key}: \"{p}\" is not a table"))?;
+        node = table
+            .entry(p.to_string())
+            .or_insert_with(|| toml::Value::Table(toml::map::Map::new()));
+    }
+    let table = node
+        .as_table_mut()
+        .ok_or_else(|| format!("{key}: not a table"))?;
+    match key {
+        "geometry.stl" => drop(table.remove("shape")),
+        "geometry.shape" => drop(table.remove("stl")),
+        _ => {}
+    }
+    table.insert(last.to_string(), value);
+    Ok(())
+}
+
+/// A value as it appears in a folder name.
+fn value_label(key: &str, v: &toml::Value) -> String {
+    let raw = match v {
+        toml::Value::Float(f) => crate::output::short_number(*f),
+        toml::Value::Integer(i) => i.to_string(),
+        toml::Value::String(s) if key == "geometry.stl" => Path::new(s)
+            .file_stem()
+            .map_or(s.clone(), |x| x.to_string_lossy().into_owned()),
+        toml::Value::String(s) => s.clone(),
+        toml::Value::Boolean(b) => b.to_string(),
+        other => other.to_string(),
+    };
+    raw.chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || "-.+".contains(c) {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect()
+}
+
+/// Make names unique by numbering repeats.
+fn unique_names(variants: &mut [Variant]) {
+    let names: Vec<String> = variants.iter().map(|v| v.name.clone()).collect();
+    for (k, v) in variants.iter_mut().enumerate() {
+        if names.iter().filter(|n| **n == v.name).count() > 1 {
+            v.name = format!("{}-{}", v.name, k + 1);
+        }
+    }
+}
+
+/// Stable grouping: geometry groups in order of first appearance.
+fn group_by_geometry(variants: Vec<Variant>) -> Vec<Variant> {
+    let mut keys: Vec<String> = Vec::new();
+    for v in &variants {
+        if !keys.contains(&v.geometry_key) {
+            keys.push(v.geometry_key.clone());
+        }
+    }
+    let mut out = Vec::with_capacity(variants.len());
+    for k in &keys {
+        out.extend(variants.iter().filter(|v| &v.geometry_key == k).cloned());
+    }
+    out
+}
+
+/// Indices of the variants shard `k` of `n` runs (1-based `k`): the
+/// contiguous slice `[(k-1) len / n, k len / n)`, so the shards partition
+/// the list with no loss and no repeats.
+pub fn shard_range(len: usize, k: usize, n: usize) -> std::ops::Range<usize> {
+    ((k - 1) * len / n)..(k * len / n)
+}
+
+/// Parse `K/N` with `1 <= K <= N`.
+pub fn parse_shard(s: &str) -> Result<(usize, usize)> {
+    let (k, n) = s
+        .split_once('/')
+        .ok_or_else(|| anyhow::anyhow!("--shard must look like K/N, e.g. 2/8 (got \"{s}\")"))?;
+    let parse = |x: &str| x.trim().parse::<usize>().ok();
+    match (parse(k), parse(n)) {
+        (Some(k), Some(n)) if k >= 1 && k <= n => Ok((k, n)),
+        _ => bail!("--shard K/N needs whole numbers 1 <= K <= N (got \"{s}\")"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use super::*;
+
+    fn plan(text: &str) -> Result<Plan> {
+        let file: SweepFile = toml::from_str(text).map_err(|e| anyhow::anyhow!("{e}"))?;
+        Plan::from_file(Path::new("study/s.toml"), file)
+    }
+
+    const BASE: &str = "[base.geometry]\nshape = \"coupe\"\n[base.ground]\nz = 0.0\n";
+
+    #[test]
+    fn grid_groups_geometry_and_names_variants() {
+        let p = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"yaw\"\nvalues = [0.0, 5.0]\n\
+             [[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\n"
+        ))
+        .unwrap();
+        let names: Vec<&str> = p.variants.iter().map(|v| v.name.as_str()).collect();
+        // Grid order is yaw-0/22, yaw-0/38, yaw-5/22, yaw-5/38; grouping by
+        // geometry puts the two 22-degree variants together.
+        assert_eq!(
+            names,
+            [
+                "yaw-0_rear_window_deg-22",
+                "yaw-5_rear_window_deg-22",
+                "yaw-0_rear_window_deg-38",
+                "yaw-5_rear_window_deg-38"
+            ]
+        );
+        assert_eq!(p.geometry_groups(), 2);
+        let f = p.variants[1].file.as_ref().unwrap();
+        assert_eq!(f.flow.yaw, 5.0);
+        assert_eq!(f.geometry.rear_window_deg, Some(22.0));
+    }
+
+    #[test]
+    fn each_mode_and_stl_lists() {
+        let p = plan(&format!(
+            "combine = \"each\"\n{BASE}[[vary]]\nkey = \"stl\"\nvalues = [\"a.stl\", \"b/b.stl\"]\n\
+             [[vary]]\nkey = \"ground\"\nvalues = [-0.1]\n"
+        ))
+        .unwrap();
+        assert_eq!(p.variants.len(), 3);
+        let f = p.variants[0].file.as_ref().unwrap();
+        assert!(f.geometry.shape.is_none());
+        assert!(f.geometry.stl.as_ref().unwrap().ends_with("study/a.stl"));
+        assert_eq!(p.variants[1].name, "stl-b");
+        assert_eq!(
+            p.variants[2]
+                .file
+                .as_ref()
+                .unwrap()
+                .ground
+                .as_ref()
+                .unwrap()
+                .z,
+            -0.1
+        );
+    }
+
+    #[test]
+    fn bad_sweeps_are_refused_and_bad_values_fail_their_variant_only() {
+        assert!(plan(BASE).is_err(), "no vary lists");
+        assert!(plan(&format!("{BASE}[[vary]]\nkey = \"yaw\"\nvalues = []\n")).is_err());
+        let p = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
+        ))
+        .unwrap();
+        assert!(p.variants[0].file.as_ref().unwrap_err().contains("speeed"));
+    }
+
+    #[test]
+    fn shards_partition_the_list() {
+        for len in 0..30 {
+            for n in 1..9 {
+                let mut seen = Vec::new();
+                for k in 1..=n {
+                    seen.extend(shard_range(len, k, n));
+                }
+                assert_eq!(seen, (0..len).collect::<Vec<_>>(), "len {len} n {n}");
+            }
+        }
+        assert_eq!(parse_shard("2/5").unwrap(), (2, 5));
+        assert!(
+            parse_shard("0/5").is_err() && parse_shard("6/5").is_err() && parse_shard("x").is_err()
+        );
+    }
+}

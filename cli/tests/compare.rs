@@ -1,0 +1,190 @@
+//! End-to-end tests of `tuft compare` on runs of the built binary.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use std::path::Path;
+use std::process::Command;
+
+use serde_json::Value;
+
+const TUFT: &str = env!("CARGO_BIN_EXE_tuft");
+
+fn tuft(args: &[&str]) -> std::process::Output {
+    let out = Command::new(TUFT).args(args).output().unwrap();
+    assert!(
+        out.status.code() == Some(0) || out.status.code() == Some(1),
+        "tuft {args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out
+}
+
+fn run_case(dir: &Path, name: &str, body: &str) -> String {
+    let case = dir.join(format!("{name}.toml"));
+    std::fs::write(&case, body).unwrap();
+    let out = dir.join(name);
+    tuft(&[
+        "run",
+        case.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+    ]);
+    out.to_string_lossy().into_owned()
+}
+
+fn compare(a: &str, b: &str, out: &Path) -> Value {
+    tuft(&["compare", a, b, "--out", out.to_str().unwrap(), "--quiet"]);
+    for f in ["compare.html", "delta-cp.png", "separation-change.png"] {
+        assert!(out.join(f).is_file(), "{f}");
+    }
+    serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap()
+}
+
+fn num(v: &Value, path: &str) -> f64 {
+    v.pointer(path)
+        .and_then(Value::as_f64)
+        .unwrap_or_else(|| panic!("{path}"))
+}
+
+fn coupe(slope: f64) -> String {
+    format!(
+        "[geometry]\nshape = \"coupe\"\nrear_window_deg = {slope}\npanels = 1200\n[ground]\nz = 0.0\n\
+         [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n"
+    )
+}
+
+#[test]
+fn a_run_against_itself_and_two_rear_window_slopes() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = run_case(dir.path(), "c22", &coupe(22.0));
+    let b = run_case(dir.path(), "c38", &coupe(38.0));
+
+    // Against itself every difference is exactly zero (the mapping of a
+    // panel set onto itself is the identity) and no winner is named.
+    let same = compare(&a, &a, &dir.path().join("self"));
+    for (k, v) in same["deltas"].as_object().unwrap() {
+        assert_eq!(v.as_f64().unwrap(), 0.0, "{k}");
+    }
+    for k in [
+        "delta_cp_rms",
+        "delta_cp_max_abs",
+        "separation_appears_m2",
+        "separation_disappears_m2",
+    ] {
+        assert_eq!(num(&same, &format!("/surface/{k}")), 0.0, "{k}");
+    }
+    assert_eq!(same["drag"]["resolved"], Value::Bool(false));
+    assert_eq!(same["drag"]["direction"], "undecided");
+    assert!(same["notes"].as_array().unwrap().is_empty());
+
+    // Two slopes: the deltas follow from the two summaries.
+    let c = compare(&a, &b, &dir.path().join("slopes"));
+    let sa: Value =
+        serde_json::from_str(&std::fs::read_to_string(Path::new(&a).join("summary.json")).unwrap())
+            .unwrap();
+    let sb: Value =
+        serde_json::from_str(&std::fs::read_to_string(Path::new(&b).join("summary.json")).unwrap())
+            .unwrap();
+    let diff = |p: &str| num(&sb, p) - num(&sa, p);
+    let close = |x: f64, y: f64| (x - y).abs() <= 1e-9 * (1.0 + y.abs());
+    assert!(close(
+        num(&c, "/deltas/drag_counts"),
+        1000.0 * diff("/coefficients/drag")
+    ));
+    assert!(close(num(&c, "/deltas/lift_kg"), diff("/lift_kg/total")));
+    assert!(close(
+        num(&c, "/deltas/separated_area_m2"),
+        diff("/separation/area_m2")
+    ));
+    // Axle loads add up to the whole body's, so their deltas do too.
+    assert!(close(
+        num(&c, "/deltas/front_axle_kg") + num(&c, "/deltas/rear_axle_kg"),
+        num(&c, "/deltas/lift_kg")
+    ));
+    // The verdict's direction agrees with the sign of the difference.
+    let d = num(&c, "/drag/delta_counts");
+    match c["drag"]["direction"].as_str().unwrap() {
+        "lower" => assert!(d <= -3.0),
+        "higher" => assert!(d >= 3.0),
+        _ => assert!(!c["drag"]["resolved"].as_bool().unwrap()),
+    }
+    // Every B panel got a value from A; the two bodies differ only behind
+    // the roof, so only a small share of B lies far from A's surface.
+    let n = num(&sb, "/mesh/panels");
+    assert_eq!(num(&c, "/surface/mapped"), n);
+    assert_eq!(num(&c, "/surface/panels_b"), n);
+    assert!(num(&c, "/surface/far_panels") < 0.15 * n);
+    // Where separation appears minus where it disappears is B's separated
+    // area minus A's separated area as seen on B's panels: with the same
+    // panel count the two agree to within the panels the slope moves
+    // (here within a quarter of the larger separated area).
+    let net =
+        num(&c, "/surface/separation_appears_m2") - num(&c, "/surface/separation_disappears_m2");
+    let scale = num(&sa, "/separation/area_m2").max(num(&sb, "/separation/area_m2"));
+    assert!(
+        (net - diff("/separation/area_m2")).abs() <= 0.25 * scale,
+        "net {net}"
+    );
+}
+
+/// Cp of Lamb's sphere (Hydrodynamics, 1932, sec. 92): 1 - 9/4 sin^2 theta.
+fn lamb_cp(x: f64, y: f64, z: f64) -> f64 {
+    let c = x / (x * x + y * y + z * z).sqrt();
+    1.0 - 2.25 * (1.0 - c * c)
+}
+
+/// Area-weighted RMS error of a run's Cp against Lamb's solution.
+fn rms_error(run: &str) -> f64 {
+    let text = std::fs::read_to_string(Path::new(run).join("panels.csv")).unwrap();
+    let (mut sq, mut area) = (0.0, 0.0);
+    for line in text.lines().skip(1) {
+        let v: Vec<f64> = line
+            .split(',')
+            .take(8)
+            .map(|s| s.parse().unwrap())
+            .collect();
+        sq += v[6] * (v[7] - lamb_cp(v[0], v[1], v[2])).powi(2);
+        area += v[6];
+    }
+    (sq / area).sqrt()
+}
+
+#[test]
+fn the_same_body_at_two_resolutions_differs_within_the_discretisation_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = run_case(
+        dir.path(),
+        "s320",
+        "[geometry]\nshape = \"sphere\"\npanels = 320\n",
+    );
+    let b = run_case(
+        dir.path(),
+        "s1280",
+        "[geometry]\nshape = \"sphere\"\npanels = 1280\n",
+    );
+    let c = compare(&a, &b, &dir.path().join("res"));
+    // The bound: each run's discretisation error is measured against the
+    // exact solution; by the triangle inequality the mapped difference can
+    // exceed their sum only by the error of interpolating A onto B's
+    // centroids, which is of second order in A's panel size and allowed
+    // here as half of A's own error. (A panel-constant nearest-value map
+    // gives an RMS difference of about 0.09 here, four times the bound.)
+    let (ea, eb) = (rms_error(&a), rms_error(&b));
+    let bound = ea + eb + 0.5 * ea;
+    let rms = num(&c, "/surface/delta_cp_rms");
+    assert!(
+        rms <= bound,
+        "RMS delta Cp {rms} > bound {bound} (errors {ea}, {eb})"
+    );
+    assert!(rms > 0.0);
+    assert_eq!(num(&c, "/surface/mapped"), 1280.0);
+    assert_eq!(num(&c, "/surface/far_panels"), 0.0);
+    // The page says the panel counts differ.
+    let notes = c["notes"].as_array().unwrap();
+    assert!(
+        notes
+            .iter()
+            .any(|n| n.as_str().unwrap().contains("panel counts differ")),
+        "{notes:?}"
+    );
+}

@@ -1,0 +1,207 @@
+//! End-to-end tests of `tuft sweep` and `tuft collect`.
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use std::collections::BTreeSet;
+use std::path::Path;
+use std::process::Command;
+
+use serde_json::Value;
+
+const TUFT: &str = env!("CARGO_BIN_EXE_tuft");
+
+fn tuft(args: &[&str]) -> (i32, String) {
+    let out = Command::new(TUFT).args(args).output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn json(path: &Path) -> Value {
+    serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap()
+}
+
+fn rel_close(a: f64, b: f64, tol: f64) -> bool {
+    (a - b).abs() <= tol * a.abs().max(b.abs()).max(1e-300)
+}
+
+const COUPE: &str = "[geometry]\nshape = \"coupe\"\npanels = 1000\n[ground]\nz = 0.0\n\
+                     [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n";
+
+#[test]
+fn three_yaw_angles_share_one_factorisation_and_equal_separate_runs() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    std::fs::write(d.join("base.toml"), COUPE).unwrap();
+    std::fs::write(
+        d.join("yaw.toml"),
+        "base = \"base.toml\"\n[[vary]]\nkey = \"yaw\"\nvalues = [0.0, 4.0, 8.0]\n",
+    )
+    .unwrap();
+    let out = d.join("yaw");
+    let (code, err) = tuft(&[
+        "sweep",
+        d.join("yaw.toml").to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    // One progress line per variant.
+    assert_eq!(
+        err.lines().filter(|l| l.starts_with('[')).count(),
+        3,
+        "{err}"
+    );
+    for (k, yaw) in [0.0, 4.0, 8.0].into_iter().enumerate() {
+        let name = format!("yaw-{yaw}");
+        let v = json(&out.join(&name).join("variant.json"));
+        // The flag each variant carries: one factorisation for the three,
+        // paid for by the first, reused by the others.
+        assert_eq!(v["matrix"]["variants_sharing"], 3);
+        assert_eq!(v["matrix"]["factorisations"], 1);
+        assert_eq!(v["matrix"]["factorised_for"], "yaw-0");
+        assert_eq!(v["matrix"]["reused"], Value::Bool(k > 0));
+        // The same case run alone with `tuft run` (its own assembly and
+        // factorisation) gives the same numbers to 1e-10 relative: the
+        // matrix does not depend on the free stream (Katz & Plotkin 2001,
+        // sec. 12.2), only the right-hand side does.
+        let case = d.join(format!("alone-{k}.toml"));
+        std::fs::write(&case, format!("{COUPE}[flow]\nyaw = {yaw:?}\n")).unwrap();
+        let alone = d.join(format!("alone-{k}"));
+        let (code, err) = tuft(&[
+            "run",
+            case.to_str().unwrap(),
+            "--out",
+            alone.to_str().unwrap(),
+            "--quiet",
+        ]);
+        assert!(code == 0 || code == 1, "{err}");
+        let (s1, s2) = (
+            json(&out.join(&name).join("summary.json")),
+            json(&alone.join("summary.json")),
+        );
+        for p in [
+            "/coefficients/drag",
+            "/coefficients/lift",
+            "/coefficients/side",
+            "/lift_kg/front_axle",
+            "/drag_estimate/cd_low",
+            "/drag_estimate/cd_high",
+            "/separation/area_m2",
+        ] {
+            let (a, b) = (
+                s1.pointer(p).unwrap().as_f64().unwrap(),
+                s2.pointer(p).unwrap().as_f64().unwrap(),
+            );
+            assert!(rel_close(a, b, 1e-10), "{name} {p}: {a} vs {b}");
+        }
+        let cp = |dir: &Path| -> Vec<f64> {
+            std::fs::read_to_string(dir.join("panels.csv"))
+                .unwrap()
+                .lines()
+                .skip(1)
+                .map(|l| l.split(',').nth(7).unwrap().parse().unwrap())
+                .collect()
+        };
+        let (c1, c2) = (cp(&out.join(&name)), cp(&alone));
+        assert_eq!(c1.len(), c2.len());
+        let scale = c2.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+        for (a, b) in c1.iter().zip(&c2) {
+            assert!((a - b).abs() <= 1e-10 * scale, "{name}: Cp {a} vs {b}");
+        }
+    }
+    // Collect ranks the three by drag and plots against yaw.
+    let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 0, "{err}");
+    let c = json(&out.join("sweep.json"));
+    let rows = c["variants"].as_array().unwrap();
+    assert_eq!(rows.len(), 3);
+    let cds: Vec<f64> = rows.iter().map(|r| r["cd"].as_f64().unwrap()).collect();
+    assert!(cds.windows(2).all(|w| w[0] <= w[1]), "{cds:?}");
+    let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+    assert_eq!(csv.lines().count(), 4);
+    let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
+    assert_eq!(
+        html.matches("data:image/png;base64,").count(),
+        3,
+        "drag, lift, separated area against yaw"
+    );
+}
+
+const SPHERE_SWEEP: &str = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+    [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n\
+    [[vary]]\nkey = \"yaw\"\nvalues = [0.0, 45.0, 10.0]\n";
+
+#[test]
+fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("s.toml");
+    std::fs::write(&file, SPHERE_SWEEP).unwrap();
+    let out = d.join("s");
+    // Six variants, two of which (yaw 45, beyond the 30 degrees a case
+    // accepts) fail; four shards of 1 or 2 variants each.
+    let mut ran: Vec<String> = Vec::new();
+    let mut failed = 0;
+    for k in 1..=4 {
+        let shard = format!("{k}/4");
+        let (code, err) = tuft(&[
+            "sweep",
+            file.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--shard",
+            &shard,
+        ]);
+        let lines: Vec<&str> = err.lines().filter(|l| l.starts_with('[')).collect();
+        assert!((1..=2).contains(&lines.len()), "{shard}: {err}");
+        let bad = lines.iter().filter(|l| l.contains("FAILED")).count();
+        assert_eq!(code, if bad > 0 { 2 } else { 0 }, "{shard}: {err}");
+        failed += bad;
+        ran.extend(lines.iter().map(|l| {
+            l.split_whitespace()
+                .nth(1)
+                .unwrap()
+                .trim_end_matches(':')
+                .to_string()
+        }));
+    }
+    assert_eq!(failed, 2);
+    let unique: BTreeSet<&String> = ran.iter().collect();
+    assert_eq!(unique.len(), ran.len(), "no variant runs twice: {ran:?}");
+    let plan = json(&out.join("sweep-plan.json"));
+    let planned: BTreeSet<String> = plan["variants"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v["name"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(planned.len(), 6);
+    assert_eq!(
+        unique.into_iter().cloned().collect::<BTreeSet<_>>(),
+        planned,
+        "every variant ran once"
+    );
+    // Collect finds the four that finished and names the two that failed.
+    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 1);
+    let c = json(&out.join("sweep.json"));
+    assert_eq!(c["variants"].as_array().unwrap().len(), 4);
+    let missing: Vec<&str> = c["missing"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|m| m.as_str().unwrap())
+        .collect();
+    assert_eq!(missing.len(), 2);
+    assert!(missing.iter().all(|m| m.contains("yaw-45")), "{missing:?}");
+    // A second pass keeps the finished folders and runs only what failed.
+    let (code, err) = tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 2);
+    assert_eq!(err.matches("already finished").count(), 4, "{err}");
+}
