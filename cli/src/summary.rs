@@ -100,8 +100,9 @@ pub struct SolverFacts {
     pub method: String,
     /// Krylov iterations, if iterative.
     pub iterations: Option<usize>,
-    /// Relative residual of the solve.
-    pub residual: f64,
+    /// Relative residual of an iterative solve (absent for a direct LU
+    /// solve, which overwrites the matrix it would be checked against).
+    pub residual: Option<f64>,
     /// Surface streamlines traced.
     pub streamlines: usize,
     /// Panels no streamline reached.

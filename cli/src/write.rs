@@ -335,7 +335,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         solver: SolverFacts {
             method: format!("{:?}", c.potential.stats.method),
             iterations: c.potential.stats.iterations,
-            residual: c.potential.stats.residual,
+            residual: Some(c.potential.stats.residual).filter(|r| r.is_finite()),
             streamlines: c.layer.streamlines.len(),
             unresolved_panels: c.layer.unresolved,
         },

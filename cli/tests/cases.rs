@@ -20,8 +20,9 @@ use serde_json::Value;
 const CASES: [&str; 4] = ["coupe", "ahmed-25", "ahmed-35", "sphere"];
 
 /// Every file a run writes, sorted.
-const OUTPUTS: [&str; 12] = [
+const OUTPUTS: [&str; 13] = [
     "centreline-cp.png",
+    "mesh.json",
     "panels.csv",
     "pressure.png",
     "report.html",

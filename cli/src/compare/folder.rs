@@ -112,18 +112,7 @@ pub fn read_summary(dir: &Path) -> Result<Summary> {
         )
     })?;
     let bad = || format!("{}: not a tuft summary", file.display());
-    let mut value: serde_json::Value = serde_json::from_str(&text).with_context(bad)?;
-    // A direct solve has no residual: written as NaN, which JSON spells null.
-    let residual = value.pointer_mut("/solver/residual");
-    let no_residual = residual.as_ref().is_some_and(|v| v.is_null());
-    if let (true, Some(r)) = (no_residual, residual) {
-        *r = serde_json::json!(0.0);
-    }
-    let mut summary: Summary = serde_json::from_value(value).with_context(bad)?;
-    if no_residual {
-        summary.solver.residual = f64::NAN;
-    }
-    Ok(summary)
+    serde_json::from_str(&text).with_context(bad)
 }
 
 /// Parse `panels.csv` by column name.
