@@ -8,6 +8,10 @@ use tuft_solver::boundary_layer::{
     BoundaryLayer, BoundaryLayerParams, FlowState, Transition, plateau_cp, screen_boundary_layer,
 };
 use tuft_solver::loads::{self, Loads, Reference};
+use tuft_solver::viscous_loop::{
+    ViscousLoop, ViscousLoopParams, base_pressure, viscous_loop_with_params,
+};
+use tuft_solver::wake::Wake;
 use tuft_solver::{Freestream, PotentialSolution, solve_potential};
 
 use crate::case::{Case, TransitionMode};
@@ -36,6 +40,28 @@ pub struct Computed {
     pub separated_area: f64,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
+    /// The separated-wake loop, unless the case asked for attached flow.
+    pub wakes: Option<WakeLoop>,
+}
+
+/// What the separated-wake loop found.
+pub struct WakeLoop {
+    /// Passes run, the attached pass included.
+    pub passes: usize,
+    /// Whether the separated set settled.
+    pub converged: bool,
+    /// Whether a pass blew up and was discarded.
+    pub diverged: bool,
+    /// Loads of the last pass: separated panels at the Cp of the flow with
+    /// its wakes at their separation line, plus friction.
+    pub loads: Loads,
+    /// Base pressure coefficient (mean Cp over downstream-facing panels)
+    /// of the attached pass with the plateau model.
+    pub base_cp_plateau: Option<f64>,
+    /// Base pressure coefficient of the last pass.
+    pub base_cp_loop: Option<f64>,
+    /// The wake sheets of the last pass.
+    pub wake: Wake,
 }
 
 /// Which reference values the case gave (the rest are computed).
@@ -138,7 +164,25 @@ pub fn compute(
         "potential flow",
         &format!("solving potential flow on {} panels", mesh.len()),
     );
-    let potential = solve_potential(mesh, &fs).context("potential-flow solve")?;
+    let params = layer_params(case, fs.velocity().normalize());
+    let (potential, layer, wake_loop) = if case.separated_wakes {
+        let loop_params = ViscousLoopParams {
+            layer: params.clone(),
+            ..ViscousLoopParams::default()
+        };
+        let r = viscous_loop_with_params(mesh, &fs, &loop_params)
+            .context("potential flow with separated wakes")?;
+        (
+            r.attached.solution.clone(),
+            r.attached.layer.clone(),
+            Some(r),
+        )
+    } else {
+        let potential = solve_potential(mesh, &fs).context("potential-flow solve")?;
+        let layer = screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
+            .context("boundary-layer screening")?;
+        (potential, layer, None)
+    };
     let note = match potential.stats.iterations {
         Some(it) => format!(
             "{:?}, {it} iterations, residual {:.1e}",
@@ -149,8 +193,22 @@ pub fn compute(
             potential.stats.method, potential.stats.residual
         ),
     };
+    let note = match &wake_loop {
+        Some(r) => format!(
+            "{note}; separated wakes: {} passes, {}",
+            r.passes,
+            if r.diverged {
+                "diverged"
+            } else if r.converged {
+                "converged"
+            } else {
+                "not converged"
+            }
+        ),
+        None => note,
+    };
     progress.end(phase, &note);
-    compute_from_potential(mesh, case, potential, progress)
+    finish(mesh, case, potential, Some(layer), wake_loop, progress)
 }
 
 /// The physics after the potential flow (boundary layer, loads, drag band)
@@ -162,15 +220,30 @@ pub fn compute_from_potential(
     potential: PotentialSolution,
     progress: &mut Progress,
 ) -> Result<Computed> {
+    finish(mesh, case, potential, None, None, progress)
+}
+
+/// Boundary layer (unless already marched), loads, drag band, warnings.
+fn finish(
+    mesh: &PanelMesh,
+    case: &Case,
+    potential: PotentialSolution,
+    layer: Option<BoundaryLayer>,
+    wake_loop: Option<ViscousLoop>,
+    progress: &mut Progress,
+) -> Result<Computed> {
     let flow = &case.file.flow;
     let fs = potential.freestream;
+    let params = layer_params(case, fs.velocity().normalize());
     let phase = progress.begin(
         "boundary layer",
         "marching boundary layers along surface streamlines",
     );
-    let params = layer_params(case, fs.velocity().normalize());
-    let layer = screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
-        .context("boundary-layer screening")?;
+    let layer = match layer {
+        Some(layer) => layer,
+        None => screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
+            .context("boundary-layer screening")?,
+    };
     progress.end(
         phase,
         &format!(
@@ -205,6 +278,10 @@ pub fn compute_from_potential(
         &format!("drag estimate {:.3}", estimate.total.coefficients.drag),
     );
 
+    let wakes = match wake_loop {
+        Some(r) => Some(wake_summary(mesh, r, &reference, &air, &fs)?),
+        None => None,
+    };
     let separated_area = mesh
         .panels
         .iter()
@@ -238,6 +315,32 @@ pub fn compute_from_potential(
         reference_given,
         separated_area,
         warnings,
+        wakes,
+    })
+}
+
+/// Loads and base pressures of the loop's last pass beside the attached
+/// pass's plateau estimate.
+fn wake_summary(
+    mesh: &PanelMesh,
+    r: ViscousLoop,
+    reference: &Reference,
+    air: &loads::FlowState,
+    fs: &Freestream,
+) -> Result<WakeLoop> {
+    let u = fs.velocity().normalize();
+    let deg = ViscousLoopParams::default().lines.base_normal_deg;
+    let first = plateau_cp(mesh, &r.attached.solution.cp, &r.attached.layer);
+    let cp = plateau_cp(mesh, &r.last.solution.cp, &r.last.layer);
+    let friction = friction_vectors(&r.last.solution.velocity, &r.last.layer, fs.speed);
+    Ok(WakeLoop {
+        passes: r.passes,
+        converged: r.converged,
+        diverged: r.diverged,
+        loads: loads::integrate_loads(mesh, &cp, Some(&friction), reference, air)?,
+        base_cp_plateau: base_pressure(mesh, &first, &u, deg),
+        base_cp_loop: base_pressure(mesh, &cp, &u, deg),
+        wake: r.last.wake,
     })
 }
 

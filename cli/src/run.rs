@@ -136,6 +136,22 @@ fn print_summary(out: &Path, s: &Summary) {
         s.lift_kg.rear_axle,
         100.0 * s.separation.fraction
     );
+    if let Some(w) = &s.separated_wakes {
+        let state = match (w.diverged, w.converged) {
+            (true, _) => "diverged, last good pass kept",
+            (false, true) => "converged",
+            (false, false) => "not converged",
+        };
+        let cpb = |v: Option<f64>| v.map_or("none".to_string(), |v| format!("{v:.2}"));
+        println!(
+            "  separated wakes: {} passes, {state}; C_D {:.3} (plateau {:.3}), base C_p {} (plateau {})",
+            w.passes,
+            w.cd_loop,
+            w.cd_plateau,
+            cpb(w.base_cp_loop),
+            cpb(w.base_cp_plateau)
+        );
+    }
     for w in &s.warnings {
         println!("  warning: {w}");
     }

@@ -138,12 +138,40 @@ pub struct Summary {
     pub separation: Separation,
     /// Solver facts.
     pub solver: SolverFacts,
+    /// The separated-wake loop (absent when the case asked for attached
+    /// flow only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub separated_wakes: Option<SeparatedWakes>,
     /// Seconds per phase.
     pub timings_s: BTreeMap<String, f64>,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
     /// The caution that goes with every number here.
     pub caution: String,
+}
+
+/// What the separated-wake loop found.
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct SeparatedWakes {
+    /// Passes run, the attached pass included.
+    pub passes: usize,
+    /// Whether the separated set settled before the pass limit.
+    pub converged: bool,
+    /// Whether a pass blew up and was discarded.
+    pub diverged: bool,
+    /// Drag coefficient of the attached pass with the plateau model and
+    /// friction (the same as `drag_estimate.cd`).
+    pub cd_plateau: f64,
+    /// Drag coefficient of the last pass: separated panels at the Cp of the
+    /// flow with its wakes at their separation line, plus friction.
+    pub cd_loop: f64,
+    /// Base pressure coefficient of the attached pass with the plateau
+    /// model (mean Cp over downstream-facing panels).
+    pub base_cp_plateau: Option<f64>,
+    /// Base pressure coefficient of the last pass.
+    pub base_cp_loop: Option<f64>,
+    /// Wake panels shed in the last pass.
+    pub wake_panels: usize,
 }
 
 /// The caution printed with every result.

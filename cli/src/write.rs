@@ -14,14 +14,14 @@ use crate::outdir::Staging;
 use crate::output::html::{NumberRow, Picture, Report, TextSection};
 use crate::output::sheet::SurfaceField;
 use crate::output::{
-    self, Caption, PanelState, PointScalars, Slice, Streamlines, SurfaceResult, csv, html, plot,
-    sheet, slice, vtk,
+    self, Caption, PanelState, PointScalars, Slice, Streamlines, SurfaceResult, WakeSheets, csv,
+    html, plot, sheet, slice, vtk,
 };
 use crate::pipeline::Computed;
 use crate::progress::Progress;
 use crate::summary::{
-    CAUTION, CoefficientSet, DragEstimate, LiftKg, MeshFacts, ReferenceValues, Separation,
-    SolverFacts, Summary,
+    CAUTION, CoefficientSet, DragEstimate, LiftKg, MeshFacts, ReferenceValues, SeparatedWakes,
+    Separation, SolverFacts, Summary,
 };
 
 /// Samples along the longer side of a flow slice.
@@ -116,6 +116,13 @@ pub fn write_all(
     output::write_file(&out.file("streamlines.vtp"), |w| {
         vtk::write_streamlines(w, &streamlines)
     })?;
+    if let Some(w) = c.wakes.as_ref().filter(|w| !w.wake.panels.is_empty()) {
+        let sheets = WakeSheets {
+            quads: &w.wake.panels,
+            strength: &w.wake.strength,
+        };
+        output::write_file(&out.file("wake.vtu"), |f| vtk::write_wake(f, &sheets))?;
+    }
     progress.end(phase, "");
     let phase = progress.begin("flow slices", "computing flow slices off the body");
     let slices = flow_slices(mesh, c)?;
@@ -339,6 +346,16 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             streamlines: c.layer.streamlines.len(),
             unresolved_panels: c.layer.unresolved,
         },
+        separated_wakes: c.wakes.as_ref().map(|w| SeparatedWakes {
+            passes: w.passes,
+            converged: w.converged,
+            diverged: w.diverged,
+            cd_plateau: e.total.coefficients.drag,
+            cd_loop: w.loads.total.coefficients.drag,
+            base_cp_plateau: w.base_cp_plateau,
+            base_cp_loop: w.base_cp_loop,
+            wake_panels: w.wake.panels.len(),
+        }),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
         caution: CAUTION.into(),

@@ -21,6 +21,7 @@ pub mod linear;
 pub mod loads;
 pub mod offbody;
 pub mod potential;
+pub mod viscous_loop;
 pub mod wake;
 
 pub use assemble::{InfluenceSystem, assemble};

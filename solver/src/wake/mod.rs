@@ -12,6 +12,7 @@
 
 pub mod detect;
 pub mod kutta;
+pub mod separated;
 pub mod split;
 
 use thiserror::Error;
