@@ -123,6 +123,11 @@ fn half_model_ahmed_body_matches_the_full_model() {
         println!("attached {key}: full {a:.9}, half {b:.9}");
         assert!(rel(b, a) < 1e-6, "attached {key}: half {b} vs full {a}");
     }
+    // With the boundary layer the two differ by about 1 % and are not
+    // compared: the half model seeds its surface streamlines on its own
+    // panels (63 lines against the full model's 145 on this body), so the
+    // marched lines, the separation line and the plateau pressure behind it
+    // fall slightly differently. Printed for the record only.
     for key in ["lift", "drag"] {
         let a = f["coefficients"][key].as_f64().unwrap();
         let b = h["coefficients"][key].as_f64().unwrap();
