@@ -12,11 +12,14 @@ use tuft_solver::influence::triangle_influence;
 const ENTRY: f64 = 8.0;
 /// Working memory beyond the matrix: the solver holds the N x N matrix
 /// plus O(N) vectors, the run's meshes, fields and pictures. Measured peak
-/// resident memory of whole `tuft run`s on the concept coupe: 130 MB at
-/// 3,960 panels (matrix 125 MB), 518 MB at 8,060 panels (matrix 520 MB);
-/// the margins below keep the estimate above both.
-const OVERHEAD: f64 = 1.05;
-const FIXED_BYTES: f64 = 100e6;
+/// resident memory of whole `tuft run`s of the built-in coupe over a
+/// ground plane (`/usr/bin/time -v`, see BENCHMARKS.md): 56 MB at 1,980
+/// panels (matrix 31 MB), 203 MB at 4,920 (194 MB), 821 MB at 10,048
+/// (808 MB), 3,170 MB at 19,844 (3,150 MB): the matrix plus 10-25 MB. The
+/// constants below keep the estimate 4-65 % above every measurement.
+const OVERHEAD: f64 = 1.03;
+/// Fixed part of the working memory, bytes (see `OVERHEAD`).
+const FIXED_BYTES: f64 = 60e6;
 
 /// What a run is expected to cost.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
@@ -95,7 +98,7 @@ pub fn check_fits(n: usize, half_model: bool, available: Option<f64>) -> Result<
                 .to_string()
         };
         bail!(
-            "{n} panels need about {:.1} GB but only {:.1} GB is available: set geometry.panels to \
+            "{n} panels need about {:.2} GB but only {:.2} GB is available: set geometry.panels to \
              {fit} or fewer{half}",
             need / 1e9,
             avail / 1e9
