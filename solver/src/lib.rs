@@ -17,6 +17,7 @@ pub use error::SolverError;
 pub mod assemble;
 pub mod boundary_layer;
 pub mod gradient;
+pub mod hmatrix;
 pub mod linear;
 pub mod loads;
 pub mod offbody;
