@@ -83,13 +83,16 @@ impl Freestream {
 /// Which linear solver to use.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum LinearSolver {
-    /// Dense LU below [`PotentialParams::krylov_from`] panels, Krylov above.
+    /// Dense LU below [`PotentialParams::krylov_from`] panels, Krylov
+    /// from there, [`LinearSolver::Compressed`] from
+    /// [`PotentialParams::compressed_from`].
     Auto,
     /// Dense LU with partial pivoting, in place.
     DenseLu,
     /// Restarted GMRES with a Jacobi preconditioner.
     Krylov,
-    /// Opt-in for large meshes: the matrix compressed as a hierarchical
+    /// For large meshes (`Auto` picks it from
+    /// [`PotentialParams::compressed_from`] panels): the matrix compressed as a hierarchical
     /// matrix (near field dense, far field low rank by ACA, see
     /// [`crate::hmatrix`]), solved by GMRES with a block-Jacobi
     /// preconditioner. Never assembles the dense `N x N` matrix. Given an
@@ -115,6 +118,12 @@ pub struct PotentialParams {
     pub krylov_restart: usize,
     /// Panel count from which [`LinearSolver::Auto`] picks Krylov.
     pub krylov_from: usize,
+    /// Panel count from which [`LinearSolver::Auto`] picks the compressed
+    /// operator (default 20,000: measured faster than the dense Krylov
+    /// path there, 14 s against 25 s for build and solve of the Ahmed-type
+    /// body over the ground, and `8 N^2` bytes stop fitting in memory
+    /// beyond about 40,000 panels; see BENCHMARKS.md).
+    pub compressed_from: usize,
     /// Settings of [`LinearSolver::Compressed`].
     pub compressed: CompressedParams,
 }
@@ -128,6 +137,7 @@ impl Default for PotentialParams {
             max_iterations: 500,
             krylov_restart: 60,
             krylov_from: 2000,
+            compressed_from: 20_000,
             compressed: CompressedParams::default(),
         }
     }
@@ -265,6 +275,7 @@ pub fn solve_system(
 /// The solver `Auto` stands for at `n` panels.
 fn chosen_solver(params: &PotentialParams, n: usize) -> LinearSolver {
     match params.linear_solver {
+        LinearSolver::Auto if n >= params.compressed_from => LinearSolver::Compressed,
         LinearSolver::Auto if n >= params.krylov_from => LinearSolver::Krylov,
         LinearSolver::Auto => LinearSolver::DenseLu,
         other => other,
