@@ -199,3 +199,40 @@ fn bad_settings_are_refused() {
         }
     ));
 }
+
+#[test]
+fn half_model_with_ground_and_symmetry_images_matches_the_dense_path() {
+    // Three images per panel, one of them (the symmetry image) touching
+    // the body along y = 0: the admissibility test must see it.
+    let body = generate::ahmed_with_params(&AhmedParams {
+        panels: 3000,
+        half: true,
+        ..AhmedParams::default()
+    })
+    .unwrap();
+    let mirrors = Mirrors {
+        ground: Some(0.0),
+        symmetry: true,
+    };
+    let mesh = PanelMesh::new(body, mirrors).unwrap();
+    assert!(max_cp_difference(&mesh, "half Ahmed-type body") < 1e-3);
+}
+
+#[test]
+fn auto_picks_the_compressed_operator_from_its_threshold() {
+    let mesh = PanelMesh::new(generate::icosphere(1.0, 2), Mirrors::none()).unwrap();
+    let fs = Freestream::new(1.0, 0.0);
+    let mut params = PotentialParams::default();
+    let below = solve_potential_with_params(&mesh, &fs, &params).unwrap();
+    assert_eq!(below.stats.method, LinearSolver::DenseLu);
+    params.compressed_from = mesh.len();
+    let above = solve_potential_with_params(&mesh, &fs, &params).unwrap();
+    assert_eq!(above.stats.method, LinearSolver::Compressed);
+    // Same Cp as the dense LU (task target 1e-3).
+    let d = below
+        .cp
+        .iter()
+        .zip(&above.cp)
+        .fold(0.0f64, |m, (a, b)| m.max((a - b).abs()));
+    assert!(d < 1e-3, "Cp difference {d:.2e}");
+}
