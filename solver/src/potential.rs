@@ -4,7 +4,7 @@
 //! Katz & Plotkin, *Low-Speed Aerodynamics*, 2nd ed. (2001), sec. 12.2
 //! (Dirichlet formulation with constant-strength sources and doublets):
 //! `sigma_j = n_j . V_inf`, the doublet strengths `mu` solve
-//! `C mu = -B sigma` ([`crate::assemble`]), and the surface velocity is
+//! `C mu = -B sigma` ([`mod@crate::assemble`]), and the surface velocity is
 //! `V = V_inf - (V_inf . n) n - grad_t mu` ([`surface_velocity`]); `mu` is
 //! the inside minus the outside perturbation potential, so on a sphere of
 //! radius `a` at speed `U` it tends to `-U x / 2`.

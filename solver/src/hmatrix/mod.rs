@@ -1,6 +1,6 @@
 //! Compressed (hierarchical-matrix) influence operator for large meshes.
 //!
-//! The dense system of [`crate::assemble`] needs `8 N^2` bytes and `N^2`
+//! The dense system of [`mod@crate::assemble`] needs `8 N^2` bytes and `N^2`
 //! kernel evaluations. Here the same matrix entries (images folded in,
 //! [`entry`]) are grouped by a cluster tree of the panels ([`cluster`]);
 //! blocks of well-separated clusters are approximated by adaptive cross
