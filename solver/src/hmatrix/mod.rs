@@ -7,8 +7,9 @@
 //! approximation ([`aca`]) to a relative tolerance, the rest stored dense
 //! ([`operator`]), so memory and work grow roughly as `N log N`
 //! (Bebendorf 2000; Rjasanow & Steinbach 2007, ch. 3 (from memory)). The source matrix
-//! `B` is compressed the same way, applied to the three normal components
-//! for the right-hand-side basis and dropped. The doublet system is solved
+//! `B` is never stored: each of its blocks (dense near field, ACA far
+//! field) is applied to the three normal components for the
+//! right-hand-side basis as it is computed. The doublet system is solved
 //! by GMRES with a block-Jacobi preconditioner ([`precondition`]).
 
 pub mod aca;

@@ -15,7 +15,7 @@ use rayon::prelude::*;
 use tuft_mesh::{Point, Reflection};
 
 use super::aca::{LowRank, aca};
-use super::cluster::{BoundingBox, ClusterTree};
+use super::cluster::{BoundingBox, Cluster, ClusterTree};
 
 /// Settings of the compressed operator.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -151,6 +151,65 @@ impl CompressedMatrix {
         }
     }
 
+    /// Build `A` from `entry(i, j).0` and, with the same block structure
+    /// but without storing it, the products `B x` of a second matrix with
+    /// entries `entry(i, j).1` for every vector of `xs` (original panel
+    /// order). Near-field entries of both come from one call of `entry`.
+    ///
+    /// # Panics
+    /// If a vector of `xs` is not of length `N`.
+    #[track_caller]
+    pub fn build_with_products(
+        tree: &ClusterTree,
+        reflections: &[Reflection],
+        params: &CompressedParams,
+        entry: impl Fn(usize, usize) -> (f64, f64) + Sync,
+        xs: &[Vec<f64>],
+    ) -> (Self, Vec<Vec<f64>>) {
+        let n = tree.len();
+        assert!(xs.iter().all(|x| x.len() == n), "vectors of length N");
+        let mut pairs = Vec::new();
+        if !tree.is_empty() {
+            block_pairs(tree, reflections, params.eta, 0, 0, &mut pairs);
+        }
+        let perm = &tree.perm;
+        let xp: Vec<Vec<f64>> = xs
+            .iter()
+            .map(|x| perm.iter().map(|&i| x[i]).collect())
+            .collect();
+        let empty = || (Vec::new(), vec![vec![0.0; n]; xs.len()]);
+        let (blocks, yp) = pairs
+            .into_par_iter()
+            .with_min_len(16)
+            .fold(empty, |(mut blocks, mut ys), (t, s, admissible)| {
+                let (t, s) = (&tree.clusters[t], &tree.clusters[s]);
+                let at = |i: usize, j: usize| entry(perm[t.start + i], perm[s.start + j]);
+                let block = pair_block(t, s, admissible, params, &at, &xp, &mut ys);
+                blocks.push(block);
+                (blocks, ys)
+            })
+            .reduce(empty, |(mut b1, mut y1), (b2, y2)| {
+                b1.extend(b2);
+                for (a, b) in y1.iter_mut().zip(&y2) {
+                    a.iter_mut().zip(b).for_each(|(p, q)| *p += q);
+                }
+                (b1, y1)
+            });
+        let ys = yp
+            .iter()
+            .map(|y| {
+                let mut out = vec![0.0; n];
+                perm.iter().zip(y).for_each(|(&i, v)| out[i] = *v);
+                out
+            })
+            .collect();
+        let matrix = Self {
+            perm: perm.clone(),
+            blocks,
+        };
+        (matrix, ys)
+    }
+
     /// Size `N`.
     pub fn len(&self) -> usize {
         self.perm.len()
@@ -226,6 +285,57 @@ impl CompressedMatrix {
             }
         }
         s
+    }
+}
+
+/// One block of `A` (first entry of `at`) for clusters `t` by `s`; the
+/// same block of `B` (second entry) times each `xp[k]` (tree order) is
+/// added to `ys[k]`. Admissible blocks are compressed by ACA separately
+/// for `A` and `B`; the others are computed dense once for both.
+fn pair_block(
+    t: &Cluster,
+    s: &Cluster,
+    admissible: bool,
+    params: &CompressedParams,
+    at: &(impl Fn(usize, usize) -> (f64, f64) + Sync),
+    xp: &[Vec<f64>],
+    ys: &mut [Vec<f64>],
+) -> Block {
+    let (m, n) = (t.len(), s.len());
+    let max_rank = (m * n / (m + n)).max(1);
+    let tol = params.aca_tolerance;
+    let (a_low, b_low) = if admissible {
+        (
+            aca(m, n, |i, j| at(i, j).0, tol, max_rank),
+            aca(m, n, |i, j| at(i, j).1, tol, max_rank),
+        )
+    } else {
+        (None, None)
+    };
+    let dense: Vec<(f64, f64)> = if a_low.is_none() || b_low.is_none() {
+        (0..m * n).map(|k| at(k / n, k % n)).collect()
+    } else {
+        Vec::new()
+    };
+    for (x, y) in xp.iter().zip(ys.iter_mut()) {
+        let (xs, yt) = (&x[s.start..s.end], &mut y[t.start..t.end]);
+        match &b_low {
+            Some(lr) => lr.apply_add(xs, yt),
+            None => {
+                for (yi, row) in yt.iter_mut().zip(dense.chunks_exact(n)) {
+                    *yi += row.iter().zip(xs).map(|(e, q)| e.1 * q).sum::<f64>();
+                }
+            }
+        }
+    }
+    let data = match a_low {
+        Some(lr) => BlockData::LowRank(lr),
+        None => BlockData::Dense(dense.iter().map(|e| e.0).collect()),
+    };
+    Block {
+        rows: (t.start, t.end),
+        cols: (s.start, s.end),
+        data,
     }
 }
 

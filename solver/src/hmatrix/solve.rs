@@ -5,7 +5,7 @@ use tuft_mesh::PanelMesh;
 
 use super::cluster::ClusterTree;
 use super::entry::EntryKernel;
-use super::operator::{CompressedMatrix, CompressionStats};
+use super::operator::CompressedMatrix;
 use super::precondition::BlockJacobi;
 use crate::SolverError;
 use crate::assemble::check_mesh;
@@ -21,8 +21,6 @@ pub struct CompressedSystem {
     /// included (as [`crate::InfluenceSystem::rhs_basis`], to the ACA
     /// tolerance).
     pub rhs_basis: [Vec<f64>; 3],
-    /// Memory of the compressed source matrix `B`, dropped after use.
-    pub source_stats: CompressionStats,
 }
 
 impl CompressedSystem {
@@ -60,22 +58,25 @@ pub fn assemble_compressed(
     let kernel = EntryKernel::new(mesh, params.far_field_ratio);
     let tree = ClusterTree::new(kernel.panels(), cp.leaf_size);
     let reflections = mesh.mirrors.images();
-    let source = CompressedMatrix::build(&tree, &reflections, cp, |i, j| kernel.source(i, j));
-    let rhs_basis = std::array::from_fn(|k| {
-        let n: Vec<f64> = mesh.panels.iter().map(|p| p.normal[k]).collect();
-        let mut b = vec![0.0; n.len()];
-        source.apply(&n, &mut b);
+    let normals: Vec<Vec<f64>> = (0..3)
+        .map(|k| mesh.panels.iter().map(|p| p.normal[k]).collect())
+        .collect();
+    let (matrix, products) = CompressedMatrix::build_with_products(
+        &tree,
+        &reflections,
+        cp,
+        |i, j| {
+            let e = kernel.influence(i, j);
+            (-e.doublet, e.source)
+        },
+        &normals,
+    );
+    let mut rhs = products.into_iter().map(|mut b| {
         b.iter_mut().for_each(|v| *v = -*v);
         b
     });
-    let source_stats = source.stats();
-    drop(source);
-    let matrix = CompressedMatrix::build(&tree, &reflections, cp, |i, j| kernel.doublet(i, j));
-    Ok(CompressedSystem {
-        matrix,
-        rhs_basis,
-        source_stats,
-    })
+    let rhs_basis = std::array::from_fn(|_| rhs.next().unwrap_or_default());
+    Ok(CompressedSystem { matrix, rhs_basis })
 }
 
 /// Solve `C mu = rhs` by GMRES with the block-Jacobi preconditioner, to
