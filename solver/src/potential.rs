@@ -120,9 +120,9 @@ pub struct PotentialParams {
     pub krylov_from: usize,
     /// Panel count from which [`LinearSolver::Auto`] picks the compressed
     /// operator (default 20,000: measured faster than the dense Krylov
-    /// path there, 14 s against 25 s for build and solve of the Ahmed-type
-    /// body over the ground, and `8 N^2` bytes stop fitting in memory
-    /// beyond about 40,000 panels; see BENCHMARKS.md).
+    /// path there, 8.5 s against 25 s for build and solve of the
+    /// Ahmed-type body over the ground, and `8 N^2` bytes stop fitting in
+    /// memory beyond about 40,000 panels; see BENCHMARKS.md).
     pub compressed_from: usize,
     /// Settings of [`LinearSolver::Compressed`].
     pub compressed: CompressedParams,
