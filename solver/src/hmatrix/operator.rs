@@ -108,49 +108,6 @@ pub struct CompressedMatrix {
 }
 
 impl CompressedMatrix {
-    /// Build from entries `entry(i, j)` (original panel indices).
-    /// `reflections` are the mirror images folded into each column.
-    pub fn build(
-        tree: &ClusterTree,
-        reflections: &[Reflection],
-        params: &CompressedParams,
-        entry: impl Fn(usize, usize) -> f64 + Sync,
-    ) -> Self {
-        let mut pairs = Vec::new();
-        if !tree.is_empty() {
-            block_pairs(tree, reflections, params.eta, 0, 0, &mut pairs);
-        }
-        let perm = &tree.perm;
-        let blocks = pairs
-            .into_par_iter()
-            .map(|(t, s, admissible)| {
-                let (t, s) = (&tree.clusters[t], &tree.clusters[s]);
-                let at = |i: usize, j: usize| entry(perm[t.start + i], perm[s.start + j]);
-                let (m, n) = (t.len(), s.len());
-                let low = admissible
-                    .then(|| aca(m, n, at, params.aca_tolerance, (m * n / (m + n)).max(1)))
-                    .flatten();
-                let data = match low {
-                    Some(lr) => BlockData::LowRank(lr),
-                    None => BlockData::Dense(
-                        (0..m * n)
-                            .map(|k| entry(perm[t.start + k / n], perm[s.start + k % n]))
-                            .collect(),
-                    ),
-                };
-                Block {
-                    rows: (t.start, t.end),
-                    cols: (s.start, s.end),
-                    data,
-                }
-            })
-            .collect();
-        Self {
-            perm: perm.clone(),
-            blocks,
-        }
-    }
-
     /// Build `A` from `entry(i, j).0` and, with the same block structure
     /// but without storing it, the products `B x` of a second matrix with
     /// entries `entry(i, j).1` for every vector of `xs` (original panel
