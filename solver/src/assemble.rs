@@ -117,7 +117,7 @@ fn mesh_images(mesh: &PanelMesh) -> Vec<Vec<Panel>> {
 }
 
 /// Check that every panel is finite before assembling.
-fn check_mesh(mesh: &PanelMesh) -> Result<(), SolverError> {
+pub(crate) fn check_mesh(mesh: &PanelMesh) -> Result<(), SolverError> {
     if mesh.is_empty() {
         return Err(SolverError::EmptyMesh);
     }

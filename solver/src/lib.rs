@@ -7,7 +7,8 @@
 //! Aerodynamics*, 2nd ed., 2001, ch. 9-12) is in [`potential`]: influence
 //! coefficients in [`influence`], assembly with mirror images in
 //! [`mod@assemble`], linear solvers in [`linear`], the surface gradient of the
-//! doublet strength in [`gradient`].
+//! doublet strength in [`gradient`], and the compressed (hierarchical
+//! matrix) operator for large meshes in [`hmatrix`].
 #![deny(missing_docs)]
 
 pub mod error;
@@ -17,6 +18,7 @@ pub use error::SolverError;
 pub mod assemble;
 pub mod boundary_layer;
 pub mod gradient;
+pub mod hmatrix;
 pub mod linear;
 pub mod loads;
 pub mod offbody;

@@ -4,7 +4,7 @@
 //! Katz & Plotkin, *Low-Speed Aerodynamics*, 2nd ed. (2001), sec. 12.2
 //! (Dirichlet formulation with constant-strength sources and doublets):
 //! `sigma_j = n_j . V_inf`, the doublet strengths `mu` solve
-//! `C mu = -B sigma` ([`crate::assemble`]), and the surface velocity is
+//! `C mu = -B sigma` ([`mod@crate::assemble`]), and the surface velocity is
 //! `V = V_inf - (V_inf . n) n - grad_t mu` ([`surface_velocity`]); `mu` is
 //! the inside minus the outside perturbation potential, so on a sphere of
 //! radius `a` at speed `U` it tends to `-U x / 2`.
@@ -32,6 +32,7 @@ use tuft_mesh::{Mirrors, PanelMesh};
 use crate::SolverError;
 use crate::assemble::{InfluenceSystem, assemble};
 use crate::gradient::{surface_gradient, surface_normals};
+use crate::hmatrix::{CompressedParams, assemble_compressed, solve_compressed};
 use crate::linear::{DenseLu, gmres};
 
 /// Uniform free stream `speed * (cos yaw, sin yaw, 0)`, parallel to the
@@ -82,12 +83,22 @@ impl Freestream {
 /// Which linear solver to use.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum LinearSolver {
-    /// Dense LU below [`PotentialParams::krylov_from`] panels, Krylov above.
+    /// Dense LU below [`PotentialParams::krylov_from`] panels, Krylov
+    /// from there, [`LinearSolver::Compressed`] from
+    /// [`PotentialParams::compressed_from`].
     Auto,
     /// Dense LU with partial pivoting, in place.
     DenseLu,
     /// Restarted GMRES with a Jacobi preconditioner.
     Krylov,
+    /// For large meshes (`Auto` picks it from
+    /// [`PotentialParams::compressed_from`] panels): the matrix compressed as a hierarchical
+    /// matrix (near field dense, far field low rank by ACA, see
+    /// [`crate::hmatrix`]), solved by GMRES with a block-Jacobi
+    /// preconditioner. Never assembles the dense `N x N` matrix. Given an
+    /// already assembled dense system ([`solve_system`]) it means
+    /// [`LinearSolver::Krylov`].
+    Compressed,
 }
 
 /// Settings of the potential-flow solve.
@@ -107,6 +118,14 @@ pub struct PotentialParams {
     pub krylov_restart: usize,
     /// Panel count from which [`LinearSolver::Auto`] picks Krylov.
     pub krylov_from: usize,
+    /// Panel count from which [`LinearSolver::Auto`] picks the compressed
+    /// operator (default 20,000: measured faster than the dense Krylov
+    /// path there, 8.5 s against 25 s for build and solve of the
+    /// Ahmed-type body over the ground, and `8 N^2` bytes stop fitting in
+    /// memory beyond about 40,000 panels; see BENCHMARKS.md).
+    pub compressed_from: usize,
+    /// Settings of [`LinearSolver::Compressed`].
+    pub compressed: CompressedParams,
 }
 
 impl Default for PotentialParams {
@@ -118,6 +137,8 @@ impl Default for PotentialParams {
             max_iterations: 500,
             krylov_restart: 60,
             krylov_from: 2000,
+            compressed_from: 20_000,
+            compressed: CompressedParams::default(),
         }
     }
 }
@@ -130,7 +151,8 @@ pub struct SolveStats {
     /// Krylov iterations; `None` for LU.
     pub iterations: Option<usize>,
     /// Relative residual `|b - C mu| / |b|` (largest over right-hand
-    /// sides); NaN for LU, whose factorisation overwrites `C`.
+    /// sides; for [`LinearSolver::Compressed`] with the compressed `C`);
+    /// NaN for LU, whose factorisation overwrites `C`.
     pub residual: f64,
 }
 
@@ -175,12 +197,33 @@ pub fn solve_potential_with_params(
     params: &PotentialParams,
 ) -> Result<PotentialSolution, SolverError> {
     fs.check(&mesh.mirrors)?;
+    if chosen_solver(params, mesh.len()) == LinearSolver::Compressed {
+        return solve_compressed_path(mesh, fs, params);
+    }
     let system = assemble(mesh, params)?;
     let v_inf = fs.velocity();
     let rhs = system.rhs(&v_inf);
     let (mut mus, stats) = solve_system(system, vec![rhs], params)?;
     let mu = mus.pop().unwrap_or_default();
     Ok(post_process(mesh, mu, fs, stats))
+}
+
+/// The [`LinearSolver::Compressed`] path: compressed assembly, GMRES,
+/// the same post-processing.
+fn solve_compressed_path(
+    mesh: &PanelMesh,
+    fs: &Freestream,
+    params: &PotentialParams,
+) -> Result<PotentialSolution, SolverError> {
+    let system = assemble_compressed(mesh, params)?;
+    let rhs = system.rhs(&fs.velocity());
+    let sol = solve_compressed(&system, &rhs, params)?;
+    let stats = SolveStats {
+        method: LinearSolver::Compressed,
+        iterations: Some(sol.iterations),
+        residual: sol.residual,
+    };
+    Ok(post_process(mesh, sol.x, fs, stats))
 }
 
 /// Sigma, surface velocity and Cp from a solved `mu`.
@@ -224,7 +267,7 @@ pub fn solve_system(
         });
     }
     match chosen_solver(params, n) {
-        LinearSolver::Krylov => solve_krylov(&system, &rhs, params),
+        LinearSolver::Krylov | LinearSolver::Compressed => solve_krylov(&system, &rhs, params),
         _ => solve_lu(system, rhs),
     }
 }
@@ -232,6 +275,7 @@ pub fn solve_system(
 /// The solver `Auto` stands for at `n` panels.
 fn chosen_solver(params: &PotentialParams, n: usize) -> LinearSolver {
     match params.linear_solver {
+        LinearSolver::Auto if n >= params.compressed_from => LinearSolver::Compressed,
         LinearSolver::Auto if n >= params.krylov_from => LinearSolver::Krylov,
         LinearSolver::Auto => LinearSolver::DenseLu,
         other => other,

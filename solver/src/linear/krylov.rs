@@ -3,7 +3,8 @@
 //! Saad & Schultz, SIAM J. Sci. Stat. Comput. 7 (1986), (GMRES(m), from memory)
 //! with Givens rotations; right preconditioning (Saad, *Iterative Methods
 //! for Sparse Linear Systems*, 2nd ed., 2003, sec. 9.3 (from memory)) so the monitored
-//! residual is the true one. Matrix-vector products by faer.
+//! residual is the true one. Matrix-vector products by faer for a dense
+//! matrix, or any product closure ([`gmres_operator`]).
 
 use faer::linalg::matmul::matmul;
 use faer::{Accum, ColMut, ColRef, MatRef};
@@ -65,12 +66,46 @@ pub fn gmres(
         "square system, one rhs entry per row"
     );
     let inv_diag = jacobi(a)?;
+    let precondition = |v: &[f64], z: &mut [f64]| {
+        z.iter_mut()
+            .zip(v)
+            .zip(&inv_diag)
+            .for_each(|((zi, vi), d)| *zi = vi * d);
+    };
+    gmres_operator(
+        &|v: &[f64], y: &mut [f64]| apply(a, v, y),
+        &precondition,
+        b,
+        tol,
+        max_iterations,
+        restart,
+    )
+}
+
+/// `y = A v` for a matrix known only by its product.
+pub type Product<'a> = &'a dyn Fn(&[f64], &mut [f64]);
+
+/// GMRES(`restart`) for any operator `apply` (`y = A v`) with the right
+/// preconditioner `precondition` (`z = M^-1 v`), to relative residual
+/// `tol`.
+///
+/// # Errors
+/// [`SolverError::NotConverged`] after `max_iterations` products.
+pub fn gmres_operator(
+    apply: Product<'_>,
+    precondition: Product<'_>,
+    b: &[f64],
+    tol: f64,
+    max_iterations: usize,
+    restart: usize,
+) -> Result<KrylovSolution, SolverError> {
+    let n = b.len();
     let b_norm = norm(b).max(f64::MIN_POSITIVE);
     let mut x = vec![0.0; n];
     let mut iterations = 0;
     let mut r = vec![0.0; n];
     loop {
-        apply(a, &x, &mut r);
+        apply(&x, &mut r);
         r.iter_mut().zip(b).for_each(|(ri, bi)| *ri = bi - *ri);
         let residual = norm(&r) / b_norm;
         if residual <= tol || iterations >= max_iterations {
@@ -88,8 +123,18 @@ pub fn gmres(
             };
         }
         let m = restart.min(max_iterations - iterations).max(1);
-        iterations += cycle(a, &inv_diag, &mut x, &r, m, tol * b_norm);
+        let ops = Ops {
+            apply,
+            precondition,
+        };
+        iterations += cycle(&ops, &mut x, &r, m, tol * b_norm);
     }
+}
+
+/// The operator and its preconditioner.
+struct Ops<'a> {
+    apply: Product<'a>,
+    precondition: Product<'a>,
 }
 
 /// Inverse diagonal of `A` (Jacobi preconditioner).
@@ -108,14 +153,7 @@ fn jacobi(a: MatRef<'_, f64>) -> Result<Vec<f64>, SolverError> {
 
 /// One GMRES cycle of at most `m` steps from residual `r0`; updates `x`
 /// and returns the number of steps taken.
-fn cycle(
-    a: MatRef<'_, f64>,
-    inv_diag: &[f64],
-    x: &mut [f64],
-    r0: &[f64],
-    m: usize,
-    abs_tol: f64,
-) -> usize {
+fn cycle(ops: &Ops<'_>, x: &mut [f64], r0: &[f64], m: usize, abs_tol: f64) -> usize {
     let n = x.len();
     let beta = norm(r0);
     let mut basis: Vec<Vec<f64>> = vec![r0.iter().map(|v| v / beta).collect()];
@@ -126,12 +164,9 @@ fn cycle(
     let mut z = vec![0.0; n];
     let mut steps = 0;
     for j in 0..m {
-        z.iter_mut()
-            .zip(&basis[j])
-            .zip(inv_diag)
-            .for_each(|((zi, v), d)| *zi = v * d);
+        (ops.precondition)(&basis[j], &mut z);
         let mut w = vec![0.0; n];
-        apply(a, &z, &mut w);
+        (ops.apply)(&z, &mut w);
         for (i, v) in basis.iter().enumerate() {
             h[i][j] = dot(&w, v);
             w.iter_mut().zip(v).for_each(|(wi, vi)| *wi -= h[i][j] * vi);
@@ -146,12 +181,15 @@ fn cycle(
         basis.push(w.iter().map(|v| v / hn).collect());
     }
     let y = back_substitute(&h, &g, steps);
+    let mut combo = vec![0.0; n];
     for (k, yk) in y.iter().enumerate() {
-        x.iter_mut()
+        combo
+            .iter_mut()
             .zip(&basis[k])
-            .zip(inv_diag)
-            .for_each(|((xi, v), d)| *xi += yk * v * d);
+            .for_each(|(c, v)| *c += yk * v);
     }
+    (ops.precondition)(&combo, &mut z);
+    x.iter_mut().zip(&z).for_each(|(xi, zi)| *xi += zi);
     steps
 }
 

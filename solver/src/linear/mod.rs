@@ -9,7 +9,7 @@
 pub mod krylov;
 pub mod lu;
 
-pub use krylov::{KrylovSolution, gmres};
+pub use krylov::{KrylovSolution, gmres, gmres_operator};
 pub use lu::DenseLu;
 
 /// faer parallelism over all rayon threads.
