@@ -43,12 +43,17 @@ pub struct SolverSection {
     /// pressure and its verdict at 35 degrees on the slant-back research
     /// body do not yet match the published experiments (see DEVELOPERS.md).
     pub wakes: String,
+    /// How the influence matrix is held: `auto` (default: dense below
+    /// 20,000 panels, compressed from there), `dense`, or `compressed`
+    /// (hierarchical matrix with low-rank far-field blocks).
+    pub linear: String,
 }
 
 impl Default for SolverSection {
     fn default() -> Self {
         Self {
             wakes: "attached".into(),
+            linear: "auto".into(),
         }
     }
 }
@@ -198,6 +203,8 @@ pub struct Case {
     pub transition: TransitionMode,
     /// Whether to run the separated-wake loop.
     pub separated_wakes: bool,
+    /// The operator forced by the case (`None`: chosen by size).
+    pub operator: Option<crate::estimate::Operator>,
 }
 
 /// Metres per unit for the unit names a case accepts.
@@ -235,12 +242,19 @@ impl Case {
             "attached" => false,
             other => bail!("solver.wakes must be separated or attached (got \"{other}\")"),
         };
+        let operator = match file.solver.linear.as_str() {
+            "auto" => None,
+            "dense" => Some(crate::estimate::Operator::Dense),
+            "compressed" => Some(crate::estimate::Operator::Compressed),
+            other => bail!("solver.linear must be auto, dense or compressed (got \"{other}\")"),
+        };
         Ok(Self {
             name,
             file,
             source,
             transition,
             separated_wakes,
+            operator,
         })
     }
 }
@@ -413,6 +427,7 @@ mod tests {
         let geo = "[geometry]\nshape = \"sphere\"\n";
         assert!(err(&format!("{geo}[flow]\nspeed = -3.0\n")).contains("flow.speed"));
         assert!(err(&format!("{geo}[solver]\nwakes = \"rolled\"\n")).contains("solver.wakes"));
+        assert!(err(&format!("{geo}[solver]\nlinear = \"sparse\"\n")).contains("solver.linear"));
         assert!(err(&format!("{geo}[flow]\nspeed = 3.0\nspeedd = 2\n")).contains("speedd"));
         assert!(
             err("[geometry]\nstl = \"a.stl\"\nhalf_model = true\n[flow]\nyaw = 3.0\n")

@@ -21,6 +21,41 @@ const OVERHEAD: f64 = 1.03;
 /// Fixed part of the working memory, bytes (see `OVERHEAD`).
 const FIXED_BYTES: f64 = 60e6;
 
+/// Bytes per panel of the compressed (hierarchical) operator and its run,
+/// above the fixed part. Measured (`solver/examples/compressed_scaling.rs`,
+/// slant-back body over the ground, see BENCHMARKS.md): 21 KB per panel at
+/// 9,938 panels, 24 KB at 19,170, 27 KB at 40,334, 30.6 KB at 99,840 (the
+/// low-rank blocks grow about as N log N); 36 KB keeps the estimate above
+/// them up to a few hundred thousand panels.
+const COMPRESSED_BYTES_PER_PANEL: f64 = 36e3;
+/// Seconds per `N log2 N` of the compressed build and solve on the 2-core
+/// reference machine (45 s at 99,840 panels with a ground image, loaded by
+/// other builds: an upper bound).
+const COMPRESSED_SECONDS_PER_NLOGN: f64 = 2.8e-5;
+
+/// How the influence matrix is held.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Operator {
+    /// Dense N x N matrix.
+    Dense,
+    /// Hierarchical matrix with low-rank far-field blocks.
+    Compressed,
+}
+
+/// The operator a run with `n` panels uses: forced, or chosen by size as
+/// the solver's `Auto` does (compressed from
+/// `PotentialParams::compressed_from` panels on).
+pub fn operator_for(n: usize, forced: Option<Operator>) -> Operator {
+    forced.unwrap_or(
+        if n >= tuft_solver::PotentialParams::default().compressed_from {
+            Operator::Compressed
+        } else {
+            Operator::Dense
+        },
+    )
+}
+
 /// What a run is expected to cost.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Estimate {
@@ -32,21 +67,29 @@ pub struct Estimate {
     pub seconds_per_pair: f64,
 }
 
-/// Expected peak memory of a run with `n` panels.
-pub fn memory_for(n: usize) -> f64 {
+/// Expected peak memory of a run with `n` panels on `op`.
+pub fn memory_for(n: usize, op: Operator) -> f64 {
     let n = n as f64;
-    OVERHEAD * ENTRY * n * n + FIXED_BYTES
+    match op {
+        Operator::Dense => OVERHEAD * ENTRY * n * n + FIXED_BYTES,
+        Operator::Compressed => COMPRESSED_BYTES_PER_PANEL * n + FIXED_BYTES,
+    }
 }
 
-/// The largest panel count whose run fits in `bytes`.
-pub fn panels_fitting(bytes: f64) -> usize {
-    (((bytes - FIXED_BYTES).max(0.0)) / (OVERHEAD * ENTRY)).sqrt() as usize
+/// The largest panel count whose run on `op` fits in `bytes`.
+pub fn panels_fitting(bytes: f64, op: Operator) -> usize {
+    let room = (bytes - FIXED_BYTES).max(0.0);
+    match op {
+        Operator::Dense => (room / (OVERHEAD * ENTRY)).sqrt() as usize,
+        Operator::Compressed => (room / COMPRESSED_BYTES_PER_PANEL) as usize,
+    }
 }
 
 /// Time a sample of influence evaluations on `mesh` and scale to the
 /// whole assembly (N^2 pairs per image) on `threads` cores; the Krylov
-/// solve adds about 20 dense matrix-vector products.
-pub fn estimate(mesh: &PanelMesh, threads: usize) -> Estimate {
+/// solve adds about 20 dense matrix-vector products. The compressed
+/// operator is scaled from its measured `N log N` cost instead.
+pub fn estimate(mesh: &PanelMesh, threads: usize, op: Operator) -> Estimate {
     let n = mesh.len();
     let step = (n / 64).max(1);
     let targets: Vec<_> = mesh.panels.iter().step_by(step).collect();
@@ -64,9 +107,16 @@ pub fn estimate(mesh: &PanelMesh, threads: usize) -> Estimate {
     let nn = (n * n) as f64;
     let assembly = per_pair * nn * images as f64 / threads.max(1) as f64;
     let solve = 20.0 * 2.0 * nn / 2e9;
+    let seconds = match op {
+        Operator::Dense => assembly + solve,
+        Operator::Compressed => {
+            let n = n as f64;
+            COMPRESSED_SECONDS_PER_NLOGN * n * n.log2() * images as f64 / 2.0
+        }
+    };
     Estimate {
-        memory_bytes: memory_for(n),
-        seconds: assembly + solve,
+        memory_bytes: memory_for(n, op),
+        seconds,
         seconds_per_pair: per_pair,
     }
 }
@@ -83,13 +133,22 @@ pub fn available_memory(limit: Option<f64>) -> Option<f64> {
 }
 
 /// Refuse a run that would not fit, suggesting a panel count that does.
-pub fn check_fits(n: usize, half_model: bool, available: Option<f64>) -> Result<()> {
+pub fn check_fits(n: usize, op: Operator, half_model: bool, available: Option<f64>) -> Result<()> {
     let Some(avail) = available else {
         return Ok(());
     };
-    let need = memory_for(n);
+    let need = memory_for(n, op);
     if need > avail {
-        let fit = (panels_fitting(avail) / 100 * 100).max(100);
+        if op == Operator::Dense && memory_for(n, Operator::Compressed) <= avail {
+            bail!(
+                "{n} panels need about {:.2} GB with a dense matrix but only {:.2} GB is available: \
+                 set solver.linear = \"compressed\" (or \"auto\"), which fits, or set geometry.panels to {} or fewer",
+                need / 1e9,
+                avail / 1e9,
+                (panels_fitting(avail, op) / 100 * 100).max(100)
+            );
+        }
+        let fit = (panels_fitting(avail, op) / 100 * 100).max(100);
         let half = if half_model {
             String::new()
         } else {

@@ -12,7 +12,9 @@ use tuft_solver::viscous_loop::{
     ViscousLoop, ViscousLoopParams, base_pressure, viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
-use tuft_solver::{Freestream, PotentialSolution, solve_potential};
+use tuft_solver::{
+    Freestream, LinearSolver, PotentialParams, PotentialSolution, solve_potential_with_params,
+};
 
 use crate::case::{Case, TransitionMode};
 use crate::estimate;
@@ -147,15 +149,21 @@ pub fn compute(
     progress: &mut Progress,
 ) -> Result<Computed> {
     let flow = &case.file.flow;
+    let operator = estimate::operator_for(mesh.len(), case.operator);
     estimate::check_fits(
         mesh.len(),
+        operator,
         mesh.mirrors.symmetry,
         estimate::available_memory(memory_limit),
     )?;
-    let guess = estimate::estimate(mesh, rayon::current_num_threads());
+    let guess = estimate::estimate(mesh, rayon::current_num_threads(), operator);
     progress.note(&format!(
-        "{} panels: expect about {:.0} s for the solve and {:.2} GB of memory",
+        "{} panels, {} operator: expect about {:.0} s for the solve and {:.2} GB of memory",
         mesh.len(),
+        match operator {
+            estimate::Operator::Dense => "dense",
+            estimate::Operator::Compressed => "compressed",
+        },
         guess.seconds.max(1.0),
         guess.memory_bytes / 1e9
     ));
@@ -178,7 +186,16 @@ pub fn compute(
             Some(r),
         )
     } else {
-        let potential = solve_potential(mesh, &fs).context("potential-flow solve")?;
+        let solver = PotentialParams {
+            linear_solver: match operator {
+                estimate::Operator::Dense => LinearSolver::Auto,
+                estimate::Operator::Compressed => LinearSolver::Compressed,
+            },
+            compressed_from: usize::MAX,
+            ..PotentialParams::default()
+        };
+        let potential =
+            solve_potential_with_params(mesh, &fs, &solver).context("potential-flow solve")?;
         let layer = screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
             .context("boundary-layer screening")?;
         (potential, layer, None)
