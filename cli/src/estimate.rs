@@ -21,13 +21,15 @@ const OVERHEAD: f64 = 1.03;
 /// Fixed part of the working memory, bytes (see `OVERHEAD`).
 const FIXED_BYTES: f64 = 60e6;
 
-/// Bytes per panel of the compressed (hierarchical) operator and its run,
-/// above the fixed part. Measured (`solver/examples/compressed_scaling.rs`,
-/// slant-back body over the ground, see BENCHMARKS.md): 21 KB per panel at
-/// 9,938 panels, 24 KB at 19,170, 27 KB at 40,334, 30.6 KB at 99,840 (the
-/// low-rank blocks grow about as N log N); 36 KB keeps the estimate above
-/// them up to a few hundred thousand panels.
-const COMPRESSED_BYTES_PER_PANEL: f64 = 36e3;
+/// Bytes per panel of a whole run on the compressed (hierarchical)
+/// operator, above the fixed part. The operator alone measured 21 KB per
+/// panel at 9,938 panels and 30.6 KB at 99,840 (slant-back body over the
+/// ground, `solver/examples/compressed_scaling.rs`; the low-rank blocks
+/// grow about as N log N); a whole `tuft run` of the concept coupe at
+/// 99,696 panels over the ground peaked at 5.59 GB resident (56 KB per
+/// panel: the operator plus the boundary-layer streamlines, slices and
+/// pictures). 60 KB keeps the estimate above that.
+const COMPRESSED_BYTES_PER_PANEL: f64 = 60e3;
 /// Seconds per `N log2 N` of the compressed build and solve on the 2-core
 /// reference machine (45 s at 99,840 panels with a ground image, loaded by
 /// other builds: an upper bound).
@@ -198,15 +200,29 @@ mod tests {
 
     #[test]
     fn refusal_suggests_a_count_that_fits() {
-        let err = check_fits(20_000, false, Some(1e9))
+        let err = check_fits(20_000, Operator::Compressed, false, Some(0.5e9))
             .unwrap_err()
             .to_string();
         assert!(
             err.contains("geometry.panels") && err.contains("half model"),
             "{err}"
         );
-        let fit = panels_fitting(1e9);
-        assert!(memory_for(fit) <= 1e9 && memory_for(fit + 10) > 1e9);
-        assert!(check_fits(fit, false, Some(1e9)).is_ok());
+        for op in [Operator::Dense, Operator::Compressed] {
+            let fit = panels_fitting(1e9, op);
+            assert!(memory_for(fit, op) <= 1e9 && memory_for(fit + 10, op) > 1e9);
+            assert!(check_fits(fit, op, false, Some(1e9)).is_ok());
+        }
+        // A dense run that would fit on the compressed operator says so.
+        let err = check_fits(15_000, Operator::Dense, false, Some(1e9))
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("compressed"), "{err}");
+    }
+
+    #[test]
+    fn the_size_picks_the_operator_unless_forced() {
+        assert_eq!(operator_for(5_000, None), Operator::Dense);
+        assert_eq!(operator_for(50_000, None), Operator::Compressed);
+        assert_eq!(operator_for(50_000, Some(Operator::Dense)), Operator::Dense);
     }
 }
