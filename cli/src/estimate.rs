@@ -47,15 +47,16 @@ pub enum Operator {
 
 /// The operator a run with `n` panels uses: forced, or chosen by size as
 /// the solver's `Auto` does (compressed from
-/// `PotentialParams::compressed_from` panels on).
-pub fn operator_for(n: usize, forced: Option<Operator>) -> Operator {
-    forced.unwrap_or(
-        if n >= tuft_solver::PotentialParams::default().compressed_from {
-            Operator::Compressed
-        } else {
-            Operator::Dense
-        },
-    )
+/// `PotentialParams::compressed_from` panels on), or compressed when a
+/// dense matrix would not fit in `available` bytes.
+pub fn operator_for(n: usize, forced: Option<Operator>, available: Option<f64>) -> Operator {
+    let too_big = available.is_some_and(|a| memory_for(n, Operator::Dense) > a);
+    let by_size = n >= tuft_solver::PotentialParams::default().compressed_from;
+    forced.unwrap_or(if by_size || too_big {
+        Operator::Compressed
+    } else {
+        Operator::Dense
+    })
 }
 
 /// What a run is expected to cost.
@@ -150,7 +151,11 @@ pub fn check_fits(n: usize, op: Operator, half_model: bool, available: Option<f6
                 (panels_fitting(avail, op) / 100 * 100).max(100)
             );
         }
-        let fit = (panels_fitting(avail, op) / 100 * 100).max(100);
+        // The larger count that fits on either operator (the run picks the
+        // operator that fits).
+        let most =
+            panels_fitting(avail, Operator::Dense).max(panels_fitting(avail, Operator::Compressed));
+        let fit = (most / 100 * 100).max(100);
         let half = if half_model {
             String::new()
         } else {
@@ -221,8 +226,14 @@ mod tests {
 
     #[test]
     fn the_size_picks_the_operator_unless_forced() {
-        assert_eq!(operator_for(5_000, None), Operator::Dense);
-        assert_eq!(operator_for(50_000, None), Operator::Compressed);
-        assert_eq!(operator_for(50_000, Some(Operator::Dense)), Operator::Dense);
+        assert_eq!(operator_for(5_000, None, None), Operator::Dense);
+        assert_eq!(operator_for(50_000, None, None), Operator::Compressed);
+        assert_eq!(
+            operator_for(50_000, Some(Operator::Dense), None),
+            Operator::Dense
+        );
+        // 15,000 panels dense need 1.9 GB: with 1 GB free, compressed.
+        assert_eq!(operator_for(15_000, None, Some(1e9)), Operator::Compressed);
+        assert_eq!(operator_for(15_000, None, Some(4e9)), Operator::Dense);
     }
 }

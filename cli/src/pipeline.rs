@@ -149,13 +149,9 @@ pub fn compute(
     progress: &mut Progress,
 ) -> Result<Computed> {
     let flow = &case.file.flow;
-    let operator = estimate::operator_for(mesh.len(), case.operator);
-    estimate::check_fits(
-        mesh.len(),
-        operator,
-        mesh.mirrors.symmetry,
-        estimate::available_memory(memory_limit),
-    )?;
+    let available = estimate::available_memory(memory_limit);
+    let operator = estimate::operator_for(mesh.len(), case.operator, available);
+    estimate::check_fits(mesh.len(), operator, mesh.mirrors.symmetry, available)?;
     let guess = estimate::estimate(mesh, rayon::current_num_threads(), operator);
     progress.note(&format!(
         "{} panels, {} operator: expect about {:.0} s for the solve and {:.2} GB of memory",
