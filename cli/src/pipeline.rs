@@ -178,7 +178,7 @@ pub fn compute(
             .context("potential flow with separated wakes")?;
         (
             r.attached.solution.clone(),
-            r.attached.layer.clone(),
+            Some(r.attached.layer.clone()),
             Some(r),
         )
     } else {
@@ -192,9 +192,8 @@ pub fn compute(
         };
         let potential =
             solve_potential_with_params(mesh, &fs, &solver).context("potential-flow solve")?;
-        let layer = screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
-            .context("boundary-layer screening")?;
-        (potential, layer, None)
+        // The boundary layer is marched in its own phase, in `finish`.
+        (potential, None, None)
     };
     let note = match potential.stats.iterations {
         Some(it) => format!(
@@ -221,7 +220,7 @@ pub fn compute(
         None => note,
     };
     progress.end(phase, &note);
-    finish(mesh, case, potential, Some(layer), wake_loop, progress)
+    finish(mesh, case, potential, layer, wake_loop, progress)
 }
 
 /// The physics after the potential flow (boundary layer, loads, drag band)
