@@ -121,8 +121,20 @@ fn orient(mesh: &PanelMesh, a: u32, b: u32, p: usize, q: usize, u: &Vector) -> T
     let p_up = (np.z, np.y, np.x) >= (nq.z, nq.y, nq.x);
     let (upper, lower) = if p_up { (p, q) } else { (q, p) };
     let diff = mesh.panels[upper].normal.into_inner() - mesh.panels[lower].normal.into_inner();
+    edge_facing(mesh, [a, b], (upper, lower), &diff, u)
+}
+
+/// The edge `a`-`b` between panels `upper` and `lower`, directed so that
+/// `edge x u` points along `side` (the side the wake normal must face).
+pub(crate) fn edge_facing(
+    mesh: &PanelMesh,
+    [a, b]: [u32; 2],
+    (upper, lower): (usize, usize),
+    side: &Vector,
+    u: &Vector,
+) -> TrailingEdge {
     let e = mesh.vertices[b as usize] - mesh.vertices[a as usize];
-    let (start, end) = if e.cross(u).dot(&diff) >= 0.0 {
+    let (start, end) = if e.cross(u).dot(side) >= 0.0 {
         (a, b)
     } else {
         (b, a)

@@ -92,18 +92,7 @@ pub fn oriented(
     u: &Vector,
 ) -> TrailingEdge {
     let out = mesh.panels[upper].normal.into_inner() + mesh.panels[lower].normal.into_inner();
-    let e = mesh.vertices[b as usize] - mesh.vertices[a as usize];
-    let (start, end) = if e.cross(u).dot(&out) >= 0.0 {
-        (a, b)
-    } else {
-        (b, a)
-    };
-    TrailingEdge {
-        start,
-        end,
-        upper,
-        lower,
-    }
+    super::detect::edge_facing(mesh, [a, b], (upper, lower), &out, u)
 }
 
 /// The perimeter of every bluff base: sharp convex edges between a
