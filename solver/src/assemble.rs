@@ -305,6 +305,37 @@ pub fn doublet_column(mesh: &PanelMesh, panel: &Panel, far_field_ratio: f64) -> 
         .collect()
 }
 
+/// Potential at every collocation point induced by sources of the given
+/// strengths on some panels of `mesh` (images included, self terms from
+/// [`self_influence`]): `out[i] = sum_(j, s) B_ij s`. A change `ds_j` of
+/// the source strengths changes the right-hand side `-B sigma` by `-out`.
+pub fn source_sum(mesh: &PanelMesh, strengths: &[(usize, f64)], far_field_ratio: f64) -> Vec<f64> {
+    let images = mesh_images(mesh);
+    mesh.panels
+        .par_iter()
+        .enumerate()
+        .map(|(i, q)| {
+            let mut sum = 0.0;
+            for &(j, s) in strengths {
+                let own = if i == j {
+                    self_influence(&mesh.panels[j]).source
+                } else {
+                    influence::triangle_influence(&q.centroid, &mesh.panels[j], far_field_ratio)
+                        .source
+                };
+                let imaged: f64 = images
+                    .iter()
+                    .map(|img| {
+                        influence::triangle_influence(&q.centroid, &img[j], far_field_ratio).source
+                    })
+                    .sum();
+                sum += s * (own + imaged);
+            }
+            sum
+        })
+        .collect()
+}
+
 /// Potential at an arbitrary point from given strengths, images included:
 /// `phi(P) = sum_j [sigma_j source_j(P) - mu_j doublet_j(P)]` (Katz &
 /// Plotkin 2001, ch. 10). Exact at points off the surface.

@@ -1,36 +1,55 @@
-//! The viscous-inviscid loop: separated wakes from the separation lines the
-//! boundary layer finds, solved again until the lines stop moving.
+//! The viscous-inviscid loop: the separated regions the boundary layer
+//! finds act on the outer flow, and the boundary layer is marched again
+//! until the separated set stops growing.
 //!
 //! Pass 1 is the attached potential flow and its boundary layer (the
 //! plateau model of [`crate::boundary_layer::plateau_cp`] gives its
-//! separated pressure). Each later pass sheds a flat doublet wake along the
-//! free stream from the bluff-base perimeter and from the upstream boundary
-//! of every separated region ([`crate::wake::separated`]), with the
-//! Kutta-type strength `mu_attached - mu_separated` folded into the columns
-//! of the assembled body matrix ([`crate::wake::add_wake_columns`]; the body
-//! matrix is assembled once and copied each pass), solves, and marches the
-//! boundary layer again on the new surface velocity. The pressure in the
-//! separated regions then comes from the solution with its wakes. This is
-//! the displacement-free, fixed-wake form of the free-streamline wake models
-//! for bluff bodies (Hoerner, *Fluid-Dynamic Drag*, 1965, ch. 3; the wake
-//! panels as in Katz & Plotkin, 2001, sec. 12.3); the wake does not roll
-//! up and carries no displacement thickness.
+//! separated pressure). Attached potential flow turns round a bluff base
+//! and down a steep slant as if nothing separated, with a suction peak at
+//! every sharp edge it turns round, so the boundary layer ahead of a
+//! separated region sees too mild a pressure rise.
 //!
-//! The loop stops when fewer than [`ViscousLoopParams::change_fraction`] of
-//! the previously separated panels change state between two passes (less
-//! than one panel row on the meshes this tool uses), or after
-//! [`ViscousLoopParams::max_passes`] passes.
+//! [`WakeModel::OpenDeadWater`] (the default): every panel separated so far
+//! is dead water, and the dead water is opened to the free stream
+//! (transpiration through its panels, see `DeadWater`). The separated
+//! region and the wake behind it then act on the outer flow as an
+//! extension of the body along the stream, the flow leaves the separation
+//! line without turning round it (the smooth exit of a free streamline;
+//! Roshko 1955, Hoerner 1965 ch. 3), and the boundary layer ahead of the
+//! region sees the full pressure rise. Only the right-hand side changes,
+//! so the body matrix is factored once. The dead-water set only grows, so
+//! the loop ends; it has converged when a pass adds fewer than
+//! [`ViscousLoopParams::change_fraction`] of the set (at least one panel).
+//! The pressure in the dead water is the plateau model's, read on the last
+//! pass's flow: an open wake is Kirchhoff's free-streamline limit and is
+//! known to give too weak a base suction (Roshko 1955), see the project's
+//! DEVELOPERS.md for the measured figures.
+//!
+//! [`WakeModel::Sheets`] (experimental): a flat doublet wake along the free
+//! stream from the bluff-base perimeter and from the upstream boundary of
+//! every separated region ([`crate::wake::separated`]), with the Kutta-type
+//! strength `mu_attached - mu_separated` folded into the columns of the
+//! body matrix ([`crate::wake::add_wake_columns`]; the wake panels as in
+//! Katz & Plotkin, 2001, sec. 12.3). A constant-strength sheet carries no
+//! velocity jump along the stream, so the dead water moves as fast as the
+//! outer flow; the model misses the validation the open dead water meets
+//! and is kept for comparison only.
+//!
+//! Either way the loop stops after [`ViscousLoopParams::max_passes`]
+//! passes at most.
 
 use std::collections::HashSet;
 
 use tuft_mesh::{PanelMesh, Vector};
 
-use crate::assemble::{InfluenceSystem, assemble};
+use crate::assemble::{InfluenceSystem, assemble, source_sum};
 use crate::boundary_layer::{
     BoundaryLayer, BoundaryLayerError, BoundaryLayerParams, FlowState, screen_boundary_layer,
 };
+use crate::linear::DenseLu;
 use crate::potential::{
-    Freestream, PotentialParams, PotentialSolution, post_process, solve_system,
+    Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, post_process,
+    solve_system,
 };
 use crate::wake::separated::{SeparationLineParams, base_edges, separation_edges};
 use crate::wake::split_edges;
@@ -58,7 +77,7 @@ pub enum ViscousLoopError {
 /// Settings of the loop.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ViscousLoopParams {
-    /// Most passes, the attached pass included. Default 4.
+    /// Most passes, the attached pass included. Default 6.
     pub max_passes: usize,
     /// Converged when fewer than this fraction of the previously separated
     /// panels (at least one panel) change state. Default 0.03.
@@ -71,17 +90,35 @@ pub struct ViscousLoopParams {
     pub potential: PotentialParams,
     /// Boundary-layer settings.
     pub layer: BoundaryLayerParams,
+    /// How the separated regions act on the outer flow.
+    pub model: WakeModel,
+    /// Length, in body lengths, over which the dead water's edge turns from
+    /// an inclined surface to the stream (see `DeadWater`). Default 0.1.
+    pub ramp_length: f64,
+}
+
+/// How a separated region acts on the outer flow.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum WakeModel {
+    /// The separated surface is open to the free stream (see `DeadWater`);
+    /// no sheets.
+    OpenDeadWater,
+    /// Doublet sheets with a Kutta-type strength from the separation lines
+    /// (experimental: fails the validation the open dead water passes).
+    Sheets,
 }
 
 impl Default for ViscousLoopParams {
     fn default() -> Self {
         Self {
-            max_passes: 4,
+            max_passes: 6,
             change_fraction: 0.03,
             wake_length: 20.0,
             lines: SeparationLineParams::default(),
             potential: PotentialParams::default(),
             layer: BoundaryLayerParams::default(),
+            model: WakeModel::OpenDeadWater,
+            ramp_length: 0.1,
         }
     }
 }
@@ -143,39 +180,53 @@ pub fn viscous_loop_with_params(
 ) -> Result<ViscousLoop, ViscousLoopError> {
     check(params)?;
     fs.check(&mesh.mirrors).map_err(WakeError::from)?;
-    let body = assemble(mesh, &params.potential).map_err(WakeError::from)?;
     let u = fs.velocity().normalize();
+    let body = assemble(mesh, &params.potential).map_err(WakeError::from)?;
+    let body = Body::new(body, &fs.velocity(), params.model)?;
     let base = base_edges(mesh, &u, &params.lines);
-    let attached = run_pass(mesh, fs, &body, Vec::new(), params)?;
+    let attached = run_pass(mesh, fs, &body, Vec::new(), &[], params)?;
     let mut last = attached.clone();
     let (mut passes, mut converged, mut changes) = (1, false, Vec::new());
     let mut diverged = false;
+    let mut dead = DeadWater::new(mesh.len());
+    dead.grow(&last.layer);
     while passes < params.max_passes {
-        let mut edges = base.clone();
         let states: Vec<FlowState> = last.layer.panels.iter().map(|l| l.state).collect();
-        let velocity = &last.solution.velocity;
-        edges.extend(separation_edges(
-            mesh,
-            &states,
-            velocity,
-            &u,
-            &base,
-            &params.lines,
-        ));
-        if edges.is_empty() {
+        let open: Vec<(usize, f64)> = match params.model {
+            WakeModel::Sheets => Vec::new(),
+            WakeModel::OpenDeadWater => {
+                dead.weights(mesh, &last.solution.velocity, &u, params.ramp_length)
+            }
+        };
+        let mut edges = Vec::new();
+        if params.model != WakeModel::OpenDeadWater {
+            edges = base.clone();
+            let velocity = &last.solution.velocity;
+            edges.extend(separation_edges(
+                mesh,
+                &states,
+                velocity,
+                &u,
+                &base,
+                &params.lines,
+            ));
+        }
+        if edges.is_empty() && open.is_empty() {
             converged = true;
             break;
         }
-        let next = run_pass(mesh, fs, &body, edges, params)?;
+        let mut next = run_pass(mesh, fs, &body, edges, &open, params)?;
         passes += 1;
         if blown_up(&attached.solution.mu, &next.solution.mu) {
             diverged = true;
             break;
         }
-        let (moved, before) = moved(&last.layer, &next.layer);
-        changes.push(moved);
+        let before = dead.count();
+        let grown = dead.grow(&next.layer);
+        dead.impose(&mut next.layer);
+        changes.push(grown);
         last = next;
-        if (moved as f64) < (params.change_fraction * before as f64).max(1.0) {
+        if (grown as f64) < (params.change_fraction * before as f64).max(1.0) {
             converged = true;
             break;
         }
@@ -212,29 +263,39 @@ fn check(params: &ViscousLoopParams) -> Result<(), ViscousLoopError> {
     if !(params.wake_length.is_finite() && params.wake_length > 0.0) {
         return bad("wake_length", params.wake_length);
     }
+    if !(params.ramp_length.is_finite() && params.ramp_length >= 0.0) {
+        return bad("ramp_length", params.ramp_length);
+    }
     Ok(())
 }
 
-/// Panels whose separated state differs between two layers, and the number
-/// separated in the first.
-fn moved(before: &BoundaryLayer, after: &BoundaryLayer) -> (usize, usize) {
-    let sep = |l: &crate::boundary_layer::PanelLayer| l.state == FlowState::Separated;
-    let changed = before
-        .panels
-        .iter()
-        .zip(&after.panels)
-        .filter(|(a, b)| sep(a) != sep(b))
-        .count();
-    (changed, before.panels.iter().filter(|l| sep(l)).count())
+/// The body's system: factored once when only right-hand sides change
+/// (the open dead water), or kept assembled to add wake columns each pass.
+enum Body {
+    Factored { lu: DenseLu, rhs: Vec<f64> },
+    Assembled(InfluenceSystem),
 }
 
-/// Solve with wakes from `edges` (none: the attached flow) and march the
-/// boundary layer.
+impl Body {
+    fn new(system: InfluenceSystem, v_inf: &Vector, model: WakeModel) -> Result<Self, WakeError> {
+        Ok(match model {
+            WakeModel::OpenDeadWater => Self::Factored {
+                rhs: system.rhs(v_inf),
+                lu: DenseLu::factor(system)?,
+            },
+            WakeModel::Sheets => Self::Assembled(system),
+        })
+    }
+}
+
+/// Solve with wakes from `edges` (none: the attached flow) and the outflow
+/// of the `open` dead water, and march the boundary layer.
 fn run_pass(
     mesh: &PanelMesh,
     fs: &Freestream,
-    body: &InfluenceSystem,
+    body: &Body,
     edges: Vec<TrailingEdge>,
+    open: &[(usize, f64)],
     params: &ViscousLoopParams,
 ) -> Result<LoopPass, ViscousLoopError> {
     let v_inf = fs.velocity();
@@ -242,13 +303,38 @@ fn run_pass(
     let (lo, hi) = mesh.bounds();
     let length = (hi.x - lo.x).max(1e-3 * (hi - lo).amax()) * params.wake_length;
     let panels = wake_panels(mesh, &edges, &u, length);
-    let mut system = body.clone();
-    add_wake_columns(&mut system, mesh, &edges, &panels)?;
-    pin_dead_water(&mut system, mesh, &edges);
-    let rhs = system.rhs(&v_inf);
-    let (mut mus, stats) =
-        solve_system(system, vec![rhs], &params.potential).map_err(WakeError::from)?;
-    let mu = mus.pop().unwrap_or_default();
+    let system = match body {
+        Body::Assembled(body) => {
+            let mut system = body.clone();
+            add_wake_columns(&mut system, mesh, &edges, &panels)?;
+            pin_dead_water(&mut system, mesh, &edges);
+            Some(system)
+        }
+        Body::Factored { .. } => None,
+    };
+    let mut rhs = match (&system, body) {
+        (Some(system), _) => system.rhs(&v_inf),
+        (None, Body::Factored { rhs, .. }) => rhs.clone(),
+        (None, Body::Assembled(b)) => b.rhs(&v_inf),
+    };
+    let outflow: Vec<(usize, f64)> = open
+        .iter()
+        .map(|&(j, w)| (j, w * mesh.panels[j].normal.dot(&v_inf).max(0.0)))
+        .filter(|&(_, v)| v > 0.0)
+        .collect();
+    if !outflow.is_empty() {
+        let extra = source_sum(mesh, &outflow, params.potential.far_field_ratio);
+        rhs.iter_mut().zip(extra).for_each(|(r, e)| *r += e);
+    }
+    let (mu, stats) = match (system, body) {
+        (Some(system), _) => {
+            let (mut mus, stats) =
+                solve_system(system, vec![rhs], &params.potential).map_err(WakeError::from)?;
+            (mus.pop().unwrap_or_default(), stats)
+        }
+        (None, Body::Factored { lu, .. }) => (lu.solve(&rhs), lu_stats()),
+        (None, Body::Assembled(_)) => unreachable!("an assembled body always gives a system"),
+    };
     let strength = wake_strengths(mesh, &edges, &mu);
     let solution = if edges.is_empty() {
         post_process(mesh, mu, fs, stats)
@@ -261,6 +347,10 @@ fn run_pass(
             stats,
         )
     };
+    let mut solution = solution;
+    for &(j, v) in &outflow {
+        solution.sigma[j] -= v;
+    }
     let layer = screen_boundary_layer(mesh, &solution.velocity, fs.speed, &params.layer)?;
     Ok(LoopPass {
         solution,
@@ -268,6 +358,117 @@ fn run_pass(
         wake: Wake { panels, strength },
         edges,
     })
+}
+
+fn lu_stats() -> SolveStats {
+    SolveStats {
+        method: LinearSolver::DenseLu,
+        iterations: None,
+        residual: f64::NAN,
+    }
+}
+
+/// The dead water: every panel the boundary layer has called separated in
+/// any pass so far (the set only grows, so the loop ends), with the panel
+/// its separation was read from.
+///
+/// Each dead-water panel facing downstream lets the free stream's normal
+/// component through, `v_n = w max(n . V_inf, 0)` (its source strength
+/// `n . V_inf` reduced by `v_n`; Lighthill 1958's equivalent sources for a
+/// displacement, here the dead water's). The region and the wake behind it
+/// then act on the outer flow as an extension of the body along the
+/// stream, so the flow leaves the separation line without turning round it
+/// (the smooth exit of a free streamline; Roshko 1955; Hoerner 1965,
+/// ch. 3). The weight `w` is 1 where the flow at the separation line
+/// already runs along the stream (a base edge, a roof edge ahead of a
+/// slant); where it leaves a surface inclined to the stream, `w` ramps
+/// from 0 at the separation line to 1 at [`ViscousLoopParams::ramp_length`]
+/// body lengths downstream, so the dead water's edge leaves tangentially
+/// and turns to the stream instead of making a concave corner.
+#[derive(Debug, Clone)]
+struct DeadWater {
+    source: Vec<Option<u32>>,
+    dead: Vec<bool>,
+}
+
+/// The flow at the separation line runs along the stream when within this
+/// angle of it (degrees).
+const ALONG_STREAM_DEG: f64 = 10.0;
+
+/// A panel whose outward normal is within this angle of the stream faces
+/// downstream (a base); its outflow is never ramped (degrees).
+const BASE_NORMAL_DEG: f64 = 45.0;
+
+impl DeadWater {
+    fn new(n: usize) -> Self {
+        Self {
+            source: vec![None; n],
+            dead: vec![false; n],
+        }
+    }
+
+    fn count(&self) -> usize {
+        self.dead.iter().filter(|&&d| d).count()
+    }
+
+    /// Add the separated panels of `layer`; returns how many were new.
+    fn grow(&mut self, layer: &BoundaryLayer) -> usize {
+        let mut added = 0;
+        for (t, l) in layer.panels.iter().enumerate() {
+            if l.state == FlowState::Separated && !self.dead[t] {
+                self.dead[t] = true;
+                self.source[t] = layer.separation_source[t];
+                added += 1;
+            }
+        }
+        added
+    }
+
+    /// Mark every dead-water panel separated in `layer`, with its source.
+    fn impose(&self, layer: &mut BoundaryLayer) {
+        for (t, &d) in self.dead.iter().enumerate() {
+            if d {
+                layer.panels[t].state = FlowState::Separated;
+                layer.panels[t].risk = 1.0;
+                if layer.separation_source[t].is_none() {
+                    layer.separation_source[t] = self.source[t];
+                }
+            }
+        }
+    }
+
+    /// `(panel, w)` for every dead-water panel (see the type's doc).
+    fn weights(
+        &self,
+        mesh: &PanelMesh,
+        velocity: &[Vector],
+        stream: &Vector,
+        ramp_length: f64,
+    ) -> Vec<(usize, f64)> {
+        let (lo, hi) = mesh.bounds();
+        let ramp = ramp_length * (hi - lo).dot(stream).abs().max(1e-9);
+        let cos_along = ALONG_STREAM_DEG.to_radians().cos();
+        let cos_base = BASE_NORMAL_DEG.to_radians().cos();
+        (0..mesh.len())
+            .filter(|&t| self.dead[t])
+            .map(|t| {
+                let Some(s) = self.source[t].map(|s| s as usize) else {
+                    return (t, 1.0);
+                };
+                if mesh.panels[t].normal.dot(stream) > cos_base {
+                    return (t, 1.0);
+                }
+                let along = velocity[s]
+                    .try_normalize(1e-12)
+                    .is_none_or(|d| d.dot(stream) > cos_along);
+                if along {
+                    return (t, 1.0);
+                }
+                let d = (mesh.panels[t].centroid - mesh.panels[s].centroid).norm();
+                (t, (d / ramp).min(1.0))
+            })
+            .collect()
+    }
 }
 
 /// Fix the level of the dead-water potential.
