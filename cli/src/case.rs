@@ -36,12 +36,12 @@ pub struct CaseFile {
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(default, deny_unknown_fields)]
 pub struct SolverSection {
-    /// `attached` (default): the attached potential flow, with the plateau
-    /// model in separated regions; `separated` (experimental): wakes from
-    /// the base edges and separation lines, solved again until the
-    /// separation lines settle. The loop is not yet the default: its base
-    /// pressure and its verdict at 35 degrees on the slant-back research
-    /// body do not yet match the published experiments (see DEVELOPERS.md).
+    /// `auto` (default): the separated-flow loop for a body with a bluff
+    /// base on the dense operator, attached flow otherwise; `separated`:
+    /// always the loop (the separated regions opened as dead water and the
+    /// boundary layer marched again until the separated set settles);
+    /// `attached`: the attached potential flow only, with the plateau
+    /// model in separated regions.
     pub wakes: String,
     /// How the influence matrix is held: `auto` (default: dense below
     /// 20,000 panels, compressed from there), `dense`, or `compressed`
@@ -52,7 +52,7 @@ pub struct SolverSection {
 impl Default for SolverSection {
     fn default() -> Self {
         Self {
-            wakes: "attached".into(),
+            wakes: "auto".into(),
             linear: "auto".into(),
         }
     }
@@ -201,10 +201,22 @@ pub struct Case {
     pub source: GeometrySource,
     /// Resolved transition mode.
     pub transition: TransitionMode,
-    /// Whether to run the separated-wake loop.
-    pub separated_wakes: bool,
+    /// When to run the separated-flow loop.
+    pub wakes: WakesMode,
     /// The operator forced by the case (`None`: chosen by size).
     pub operator: Option<crate::estimate::Operator>,
+}
+
+/// When the separated-flow loop runs (`[solver] wakes`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum WakesMode {
+    /// For a body with a bluff base, on the dense operator.
+    Auto,
+    /// Always (refused on the compressed operator).
+    Separated,
+    /// Never.
+    Attached,
 }
 
 /// Metres per unit for the unit names a case accepts.
@@ -237,10 +249,11 @@ impl Case {
         check_reference(&file.reference)?;
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
-        let separated_wakes = match file.solver.wakes.as_str() {
-            "separated" => true,
-            "attached" => false,
-            other => bail!("solver.wakes must be separated or attached (got \"{other}\")"),
+        let wakes = match file.solver.wakes.as_str() {
+            "auto" => WakesMode::Auto,
+            "separated" => WakesMode::Separated,
+            "attached" => WakesMode::Attached,
+            other => bail!("solver.wakes must be auto, separated or attached (got \"{other}\")"),
         };
         let operator = match file.solver.linear.as_str() {
             "auto" => None,
@@ -253,7 +266,7 @@ impl Case {
             file,
             source,
             transition,
-            separated_wakes,
+            wakes,
             operator,
         })
     }

@@ -1,7 +1,7 @@
 //! The physics of one run, in order: potential flow, boundary layer, loads,
 //! the drag band, flow slices. No file is written here.
 
-use anyhow::{Context, Result};
+use anyhow::{Context, Result, bail};
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
 use tuft_solver::boundary_layer::{
@@ -12,11 +12,12 @@ use tuft_solver::viscous_loop::{
     ViscousLoop, ViscousLoopParams, base_pressure, viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
+use tuft_solver::wake::separated::{SeparationLineParams, base_edges};
 use tuft_solver::{
     Freestream, LinearSolver, PotentialParams, PotentialSolution, solve_potential_with_params,
 };
 
-use crate::case::{Case, TransitionMode};
+use crate::case::{Case, TransitionMode, WakesMode};
 use crate::estimate;
 use crate::progress::Progress;
 
@@ -54,9 +55,12 @@ pub struct WakeLoop {
     pub converged: bool,
     /// Whether a pass blew up and was discarded.
     pub diverged: bool,
-    /// Loads of the last pass: separated panels at the Cp of the flow with
-    /// its wakes at their separation line, plus friction.
+    /// Loads of the last pass: separated panels at the Cp of the last
+    /// pass's flow at their separation line, plus friction.
     pub loads: Loads,
+    /// Loads of the attached pass with the plateau model, plus friction
+    /// (the estimate without the loop).
+    pub loads_plateau: Loads,
     /// Base pressure coefficient (mean Cp over downstream-facing panels)
     /// of the attached pass with the plateau model.
     pub base_cp_plateau: Option<f64>,
@@ -169,18 +173,10 @@ pub fn compute(
         &format!("solving potential flow on {} panels", mesh.len()),
     );
     let params = layer_params(case, fs.velocity().normalize());
-    let (potential, layer, wake_loop) = if case.separated_wakes {
-        let loop_params = ViscousLoopParams {
-            layer: params.clone(),
-            ..ViscousLoopParams::default()
-        };
-        let r = viscous_loop_with_params(mesh, &fs, &loop_params)
-            .context("potential flow with separated wakes")?;
-        (
-            r.attached.solution.clone(),
-            Some(r.attached.layer.clone()),
-            Some(r),
-        )
+    let run_loop = loop_wanted(mesh, case, operator)?;
+    let (potential, layer, wake_loop) = if run_loop {
+        let r = separated_loop(mesh, &fs, &params)?;
+        (r.last.solution.clone(), Some(r.last.layer.clone()), Some(r))
     } else {
         let solver = PotentialParams {
             linear_solver: match operator {
@@ -207,7 +203,7 @@ pub fn compute(
     };
     let note = match &wake_loop {
         Some(r) => format!(
-            "{note}; separated wakes: {} passes, {}",
+            "{note}; separated-flow loop: {} passes, {}",
             r.passes,
             if r.diverged {
                 "diverged"
@@ -225,14 +221,61 @@ pub fn compute(
 
 /// The physics after the potential flow (boundary layer, loads, drag band)
 /// for a potential solution solved elsewhere (e.g. a sweep that factorises
-/// one matrix for several free streams).
+/// one matrix for several free streams). When the case wants the
+/// separated-flow loop (see [`loop_wanted`]) the loop runs here with its
+/// own factorisation and `potential` only serves as its check, so a sweep
+/// variant gives the numbers `tuft run` gives.
 pub fn compute_from_potential(
     mesh: &PanelMesh,
     case: &Case,
     potential: PotentialSolution,
     progress: &mut Progress,
 ) -> Result<Computed> {
+    if loop_wanted(mesh, case, estimate::Operator::Dense)? {
+        let fs = potential.freestream;
+        let params = layer_params(case, fs.velocity().normalize());
+        let r = separated_loop(mesh, &fs, &params)?;
+        let (p, l) = (r.last.solution.clone(), r.last.layer.clone());
+        return finish(mesh, case, p, Some(l), Some(r), progress);
+    }
     finish(mesh, case, potential, None, None, progress)
+}
+
+/// Whether the separated-flow loop runs: always for `wakes = "separated"`
+/// (refused on the compressed operator, whose matrix the loop cannot
+/// factor), never for `"attached"`, and for `"auto"` when the body has a
+/// bluff base (sharp convex edges round downstream-facing panels, judged
+/// along the body's x axis so the choice does not change with yaw) and the
+/// operator is dense.
+///
+/// # Errors
+/// `wakes = "separated"` on the compressed operator.
+pub fn loop_wanted(mesh: &PanelMesh, case: &Case, operator: estimate::Operator) -> Result<bool> {
+    Ok(match case.wakes {
+        WakesMode::Attached => false,
+        WakesMode::Separated if operator == estimate::Operator::Compressed => bail!(
+            "solver.wakes = \"separated\" needs the dense operator, and {} panels need the compressed one: use fewer panels or wakes = \"auto\"",
+            mesh.len()
+        ),
+        WakesMode::Separated => true,
+        WakesMode::Auto => {
+            operator == estimate::Operator::Dense
+                && !base_edges(mesh, &Vector3::x(), &SeparationLineParams::default()).is_empty()
+        }
+    })
+}
+
+fn separated_loop(
+    mesh: &PanelMesh,
+    fs: &Freestream,
+    layer: &BoundaryLayerParams,
+) -> Result<ViscousLoop> {
+    let loop_params = ViscousLoopParams {
+        layer: layer.clone(),
+        ..ViscousLoopParams::default()
+    };
+    viscous_loop_with_params(mesh, fs, &loop_params)
+        .context("potential flow with separated regions")
 }
 
 /// Boundary layer (unless already marched), loads, drag band, warnings.
@@ -272,7 +315,11 @@ fn finish(
         speed: flow.speed,
         yaw: flow.yaw.to_radians(),
     };
-    let attached = loads::integrate_loads(mesh, &potential.cp, None, &reference, &air)?;
+    // Attached potential flow: the loop's first pass when the loop ran.
+    let attached_cp = wake_loop
+        .as_ref()
+        .map_or(&potential.cp, |r| &r.attached.solution.cp);
+    let attached = loads::integrate_loads(mesh, attached_cp, None, &reference, &air)?;
     let cp_plateau = plateau_cp(mesh, &potential.cp, &layer);
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
     let estimate = loads::integrate_loads(mesh, &cp_plateau, Some(&friction), &reference, &air)?;
@@ -345,7 +392,12 @@ fn wake_summary(
     let first = plateau_cp(mesh, &r.attached.solution.cp, &r.attached.layer);
     let cp = plateau_cp(mesh, &r.last.solution.cp, &r.last.layer);
     let friction = friction_vectors(&r.last.solution.velocity, &r.last.layer, fs.speed);
+    let friction_first =
+        friction_vectors(&r.attached.solution.velocity, &r.attached.layer, fs.speed);
+    let loads_plateau =
+        loads::integrate_loads(mesh, &first, Some(&friction_first), reference, air)?;
     Ok(WakeLoop {
+        loads_plateau,
         passes: r.passes,
         converged: r.converged,
         diverged: r.diverged,
