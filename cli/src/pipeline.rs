@@ -7,9 +7,9 @@ use tuft_mesh::PanelMesh;
 use tuft_solver::boundary_layer::{
     BoundaryLayer, BoundaryLayerParams, FlowState, Transition, plateau_cp, screen_boundary_layer,
 };
-use tuft_solver::loads::{self, Loads, Reference};
+use tuft_solver::loads::{self, Loads, Reference, friction_vectors};
 use tuft_solver::viscous_loop::{
-    ViscousLoop, ViscousLoopParams, base_pressure, viscous_loop_with_params,
+    ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp, viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
 use tuft_solver::wake::separated::{SeparationLineParams, base_edges};
@@ -125,24 +125,6 @@ pub fn reference(mesh: &PanelMesh, case: &Case) -> (Reference, ReferenceGiven) {
         axles: r.front_axle_x.is_some(),
     };
     (reference, given)
-}
-
-/// Skin-friction vectors on the free-stream dynamic pressure:
-/// `c_f (|V_e| / U)^2` along the local flow direction, zero where separated.
-pub fn friction_vectors(
-    velocity: &[Vector3<f64>],
-    layer: &BoundaryLayer,
-    speed: f64,
-) -> Vec<Vector3<f64>> {
-    velocity
-        .iter()
-        .zip(&layer.panels)
-        .map(|(v, l)| {
-            let ratio2 = v.norm_squared() / (speed * speed);
-            v.try_normalize(1e-12)
-                .map_or(Vector3::zeros(), |d| d * l.cf * ratio2)
-        })
-        .collect()
 }
 
 /// Run the physics of a case on a prepared mesh.
@@ -320,13 +302,14 @@ fn finish(
         .as_ref()
         .map_or(&potential.cp, |r| &r.attached.solution.cp);
     let attached = loads::integrate_loads(mesh, attached_cp, None, &reference, &air)?;
-    let cp_plateau = plateau_cp(mesh, &potential.cp, &layer);
+    let dead_water = wake_loop.is_some().then_some(&layer);
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
-    let estimate = loads::integrate_loads(mesh, &cp_plateau, Some(&friction), &reference, &air)?;
+    let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water.is_some());
+    let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
     let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
-        &params,
+        (&params, dead_water),
         &reference,
         &air,
         estimate.total.coefficients.drag,
@@ -378,6 +361,24 @@ fn finish(
     })
 }
 
+/// Pressure with the separated regions' model: the plateau model after the
+/// attached flow, the dead water at Hoerner's base pressure after the loop
+/// (`tuft_solver::viscous_loop::dead_water_cp`).
+fn separated_cp(
+    mesh: &PanelMesh,
+    potential: &PotentialSolution,
+    layer: &BoundaryLayer,
+    friction: &[Vector3<f64>],
+    dead_water: bool,
+) -> Vec<f64> {
+    if dead_water {
+        let stream = potential.freestream.velocity();
+        dead_water_cp(mesh, &potential.cp, layer, friction, &stream)
+    } else {
+        plateau_cp(mesh, &potential.cp, layer)
+    }
+}
+
 /// Loads and base pressures of the loop's last pass beside the attached
 /// pass's plateau estimate.
 fn wake_summary(
@@ -390,8 +391,8 @@ fn wake_summary(
     let u = fs.velocity().normalize();
     let deg = ViscousLoopParams::default().lines.base_normal_deg;
     let first = plateau_cp(mesh, &r.attached.solution.cp, &r.attached.layer);
-    let cp = plateau_cp(mesh, &r.last.solution.cp, &r.last.layer);
     let friction = friction_vectors(&r.last.solution.velocity, &r.last.layer, fs.speed);
+    let cp = separated_cp(mesh, &r.last.solution, &r.last.layer, &friction, true);
     let friction_first =
         friction_vectors(&r.attached.solution.velocity, &r.attached.layer, fs.speed);
     let loads_plateau =
@@ -419,7 +420,7 @@ fn wake_summary(
 fn drag_band(
     mesh: &PanelMesh,
     potential: &PotentialSolution,
-    base: &BoundaryLayerParams,
+    (base, dead_water): (&BoundaryLayerParams, Option<&BoundaryLayer>),
     reference: &Reference,
     air: &loads::FlowState,
     central: f64,
@@ -442,9 +443,17 @@ fn drag_band(
     let mut lo = central;
     let mut hi = central;
     for params in &variants {
-        let layer = screen_boundary_layer(mesh, &potential.velocity, air.speed, params)?;
-        let cp = plateau_cp(mesh, &potential.cp, &layer);
+        let mut layer = screen_boundary_layer(mesh, &potential.velocity, air.speed, params)?;
+        if let Some(dead) = dead_water {
+            // The loop's dead water stays dead whatever the threshold.
+            for (l, d) in layer.panels.iter_mut().zip(&dead.panels) {
+                if d.state == FlowState::Separated {
+                    *l = *d;
+                }
+            }
+        }
         let friction = friction_vectors(&potential.velocity, &layer, air.speed);
+        let cp = separated_cp(mesh, potential, &layer, &friction, dead_water.is_some());
         let cd = loads::integrate_loads(mesh, &cp, Some(&friction), reference, air)?
             .total
             .coefficients

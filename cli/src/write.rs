@@ -460,10 +460,12 @@ fn report(
             body: format!(
                 "The separated regions were opened to the free stream as dead water (the flow leaves each \
                  separation line without turning round it) and the boundary layer was marched again: {} passes, \
-                 {}. The separation verdicts and the pressures above come from the last pass. The open wake is \
-                 known to give too weak a base suction (base C_p {} here, against about -0.15 to -0.35 measured \
-                 on square-back bodies), so the drag estimate tends to be low; the attached-flow estimate with the \
-                 plateau model was C_D {:.3}.",
+                 {}. The separation verdicts and the pressures above come from the last pass. The dead water's \
+                 pressure (base C_p {}) is Hoerner's base-drag correlation with the skin friction computed here, \
+                 since an open wake alone gives far too weak a base suction; square-back bodies near the ground \
+                 measure about -0.15 to -0.35. The attached-flow estimate with the plateau model was C_D {:.3}. \
+                 Vortices shed from the side edges of a slant (which raise the drag of 20-30 degree slants) are \
+                 not modelled.",
                 w.passes,
                 if w.converged { "converged" } else { "not converged" },
                 w.base_cp_loop.map_or("-".into(), |v| format!("{v:.2}")),

@@ -408,3 +408,23 @@ pub fn body_length(mesh: &PanelMesh) -> f64 {
     let (lo, hi) = mesh.bounds();
     hi.x - lo.x
 }
+
+/// Skin-friction vectors on the free-stream dynamic pressure:
+/// `c_f (|V_e| / U)^2` along the local flow direction, zero where
+/// separated (the boundary layer's `c_f` is zero there). Pass them to
+/// [`integrate_loads`] as its friction.
+pub fn friction_vectors(
+    velocity: &[Vector],
+    layer: &crate::boundary_layer::BoundaryLayer,
+    speed: f64,
+) -> Vec<Vector> {
+    velocity
+        .iter()
+        .zip(&layer.panels)
+        .map(|(v, l)| {
+            let ratio2 = v.norm_squared() / (speed * speed);
+            v.try_normalize(1e-12)
+                .map_or(Vector::zeros(), |d| d * l.cf * ratio2)
+        })
+        .collect()
+}

@@ -595,6 +595,75 @@ fn dedup(edges: &[TrailingEdge]) -> Vec<[u32; 2]> {
     set.into_iter().collect()
 }
 
+/// Hoerner's base-drag correlation for three-dimensional bodies,
+/// `C_DB = 0.029 / sqrt(C_Df)` with `C_Df` the forebody skin-friction drag
+/// on the base area (Hoerner, *Fluid-Dynamic Drag*, 1965, ch. 3 (from
+/// memory)): a thicker boundary layer arriving at the base feeds a weaker
+/// base suction. Here the base is the dead water's area projected on the
+/// plane normal to `stream` (separated panels facing downstream) and the
+/// friction is `friction` (on the free-stream dynamic pressure, see
+/// [`crate::loads::friction_vectors`]) over the attached panels; the
+/// result is the dead water's pressure coefficient `-C_DB`. `None` when
+/// there is no dead water facing downstream or no friction.
+pub fn hoerner_base_cp(
+    mesh: &PanelMesh,
+    layer: &BoundaryLayer,
+    friction: &[Vector],
+    stream: &Vector,
+) -> Option<f64> {
+    let u = stream.normalize();
+    let (mut base, mut drag) = (0.0, 0.0);
+    for ((p, l), f) in mesh.panels.iter().zip(&layer.panels).zip(friction) {
+        if l.state == FlowState::Separated {
+            base += p.area * p.normal.dot(&u).max(0.0);
+        } else {
+            drag += p.area * f.dot(&u);
+        }
+    }
+    (base > 0.0 && drag > 0.0).then(|| -HOERNER_BASE_DRAG / (drag / base).sqrt())
+}
+
+/// The constant of [`hoerner_base_cp`] (Hoerner 1965, ch. 3 (from memory)).
+pub const HOERNER_BASE_DRAG: f64 = 0.029;
+
+/// Pressure with the dead water at one pressure: every separated panel
+/// holds [`hoerner_base_cp`], attached panels keep `cp`. An open wake
+/// (the loop's dead water) is Kirchhoff's free-streamline limit, whose own
+/// base suction is known to be far too weak (Roshko 1955), so the dead
+/// water's pressure is taken from the correlation instead. Falls back to
+/// the plateau model ([`crate::boundary_layer::plateau_cp`]) when the
+/// correlation has no base to act on.
+///
+/// # Panics
+/// If `cp`, `layer` or `friction` do not have one entry per panel (a
+/// programmer mistake).
+#[track_caller]
+pub fn dead_water_cp(
+    mesh: &PanelMesh,
+    cp: &[f64],
+    layer: &BoundaryLayer,
+    friction: &[Vector],
+    stream: &Vector,
+) -> Vec<f64> {
+    assert_eq!(friction.len(), mesh.len(), "one friction vector per panel");
+    let plateau = crate::boundary_layer::plateau_cp(mesh, cp, layer);
+    let Some(cpb) = hoerner_base_cp(mesh, layer, friction, stream) else {
+        return plateau;
+    };
+    layer
+        .panels
+        .iter()
+        .zip(plateau)
+        .map(|(l, c)| {
+            if l.state == FlowState::Separated {
+                cpb
+            } else {
+                c
+            }
+        })
+        .collect()
+}
+
 /// Base pressure coefficient: the area-weighted mean Cp over the panels
 /// facing downstream (outward normal within `base_normal_deg` of the free
 /// stream `stream`); `None` for a body without such panels.
