@@ -12,7 +12,6 @@ use tuft_solver::viscous_loop::{
     ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp, viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
-use tuft_solver::wake::separated::{SeparationLineParams, base_edges};
 use tuft_solver::{
     Freestream, LinearSolver, PotentialParams, PotentialSolution, solve_potential_with_params,
 };
@@ -198,7 +197,16 @@ pub fn compute(
         None => note,
     };
     progress.end(phase, &note);
-    finish(mesh, case, potential, layer, wake_loop, progress)
+    let mut computed = finish(mesh, case, potential, layer, wake_loop, progress)?;
+    if !run_loop && case.wakes == WakesMode::Auto {
+        computed.warnings.push(format!(
+            "{} panels use the compressed operator, which the separated-flow loop does not use yet: \
+             attached flow with the plateau model only, whose verdicts on steep slants and bluff bases \
+             come late (see the report)",
+            mesh.len()
+        ));
+    }
+    Ok(computed)
 }
 
 /// The physics after the potential flow (boundary layer, loads, drag band)
@@ -224,11 +232,9 @@ pub fn compute_from_potential(
 }
 
 /// Whether the separated-flow loop runs: always for `wakes = "separated"`
-/// (refused on the compressed operator, whose matrix the loop cannot
-/// factor), never for `"attached"`, and for `"auto"` when the body has a
-/// bluff base (sharp convex edges round downstream-facing panels, judged
-/// along the body's x axis so the choice does not change with yaw) and the
-/// operator is dense.
+/// (refused on the compressed operator, which the loop does not use yet),
+/// never for `"attached"`, and for `"auto"` whenever the operator is dense
+/// (a body the attached pass finds no separation on stops after that pass).
 ///
 /// # Errors
 /// `wakes = "separated"` on the compressed operator.
@@ -240,10 +246,7 @@ pub fn loop_wanted(mesh: &PanelMesh, case: &Case, operator: estimate::Operator) 
             mesh.len()
         ),
         WakesMode::Separated => true,
-        WakesMode::Auto => {
-            operator == estimate::Operator::Dense
-                && !base_edges(mesh, &Vector3::x(), &SeparationLineParams::default()).is_empty()
-        }
+        WakesMode::Auto => operator == estimate::Operator::Dense,
     })
 }
 
@@ -306,7 +309,7 @@ fn finish(
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
     let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water.is_some());
     let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
-    let (drag_band, band_note) = drag_band(
+    let (mut drag_band, mut band_note) = drag_band(
         mesh,
         &potential,
         (&params, dead_water),
@@ -315,6 +318,13 @@ fn finish(
         estimate.total.coefficients.drag,
         attached.total.coefficients.drag.abs(),
     )?;
+    if dead_water.is_some() {
+        drag_band.1 += LOOP_DRAG_SHORTFALL;
+        band_note.push_str(&format!(
+            "; raised by {LOOP_DRAG_SHORTFALL} at the top, the most the separated-flow loop fell short of \
+             the measured drag of the slant-back research body (0 to 35 degrees)"
+        ));
+    }
     progress.end(
         phase,
         &format!("drag estimate {:.3}", estimate.total.coefficients.drag),
@@ -360,6 +370,14 @@ fn finish(
         wakes,
     })
 }
+
+/// How far the separated-flow loop's drag estimate fell below the measured
+/// drag of the Ahmed-type body (slants 0, 12.5, 25, 30, 35 degrees; Ahmed,
+/// Ramm & Faltin 1984, values from memory; computed in
+/// `tests/tests/separated_wakes.rs`, table in BENCHMARKS.md): 0.07 to
+/// 0.19, largest at 30 degrees where the side-edge vortices the loop does
+/// not model carry the most drag. The band's top is raised by it.
+pub const LOOP_DRAG_SHORTFALL: f64 = 0.19;
 
 /// Pressure with the separated regions' model: the plateau model after the
 /// attached flow, the dead water at Hoerner's base pressure after the loop

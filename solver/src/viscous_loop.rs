@@ -46,7 +46,7 @@ use crate::assemble::{InfluenceSystem, assemble, source_sum};
 use crate::boundary_layer::{
     BoundaryLayer, BoundaryLayerError, BoundaryLayerParams, FlowState, screen_boundary_layer,
 };
-use crate::linear::DenseLu;
+use crate::linear::{DenseLu, gmres};
 use crate::potential::{
     Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, post_process,
     solve_system,
@@ -182,7 +182,7 @@ pub fn viscous_loop_with_params(
     fs.check(&mesh.mirrors).map_err(WakeError::from)?;
     let u = fs.velocity().normalize();
     let body = assemble(mesh, &params.potential).map_err(WakeError::from)?;
-    let body = Body::new(body, &fs.velocity(), params.model)?;
+    let body = Body::new(body, &fs.velocity(), params)?;
     let base = base_edges(mesh, &u, &params.lines);
     let attached = run_pass(mesh, fs, &body, Vec::new(), &[], params)?;
     let mut last = attached.clone();
@@ -269,16 +269,29 @@ fn check(params: &ViscousLoopParams) -> Result<(), ViscousLoopError> {
     Ok(())
 }
 
-/// The body's system: factored once when only right-hand sides change
-/// (the open dead water), or kept assembled to add wake columns each pass.
+/// The body's system when only right-hand sides change (the open dead
+/// water): factored once below [`PotentialParams::krylov_from`] panels,
+/// kept for GMRES (a few dozen products per pass) above; kept assembled
+/// to add wake columns each pass for the sheets.
 enum Body {
     Factored { lu: DenseLu, rhs: Vec<f64> },
+    Iterative(InfluenceSystem),
     Assembled(InfluenceSystem),
 }
 
 impl Body {
-    fn new(system: InfluenceSystem, v_inf: &Vector, model: WakeModel) -> Result<Self, WakeError> {
-        Ok(match model {
+    fn new(
+        system: InfluenceSystem,
+        v_inf: &Vector,
+        params: &ViscousLoopParams,
+    ) -> Result<Self, WakeError> {
+        let krylov = match params.potential.linear_solver {
+            LinearSolver::Auto => system.len() >= params.potential.krylov_from,
+            LinearSolver::DenseLu => false,
+            _ => true,
+        };
+        Ok(match params.model {
+            WakeModel::OpenDeadWater if krylov => Self::Iterative(system),
             WakeModel::OpenDeadWater => Self::Factored {
                 rhs: system.rhs(v_inf),
                 lu: DenseLu::factor(system)?,
@@ -310,12 +323,12 @@ fn run_pass(
             pin_dead_water(&mut system, mesh, &edges);
             Some(system)
         }
-        Body::Factored { .. } => None,
+        Body::Factored { .. } | Body::Iterative(_) => None,
     };
     let mut rhs = match (&system, body) {
         (Some(system), _) => system.rhs(&v_inf),
         (None, Body::Factored { rhs, .. }) => rhs.clone(),
-        (None, Body::Assembled(b)) => b.rhs(&v_inf),
+        (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
     let outflow: Vec<(usize, f64)> = open
         .iter()
@@ -333,6 +346,23 @@ fn run_pass(
             (mus.pop().unwrap_or_default(), stats)
         }
         (None, Body::Factored { lu, .. }) => (lu.solve(&rhs), lu_stats()),
+        (None, Body::Iterative(b)) => {
+            let p = &params.potential;
+            let s = gmres(
+                b.matrix(),
+                &rhs,
+                p.krylov_tolerance,
+                p.max_iterations,
+                p.krylov_restart,
+            )
+            .map_err(WakeError::from)?;
+            let stats = SolveStats {
+                method: LinearSolver::Krylov,
+                iterations: Some(s.iterations),
+                residual: s.residual,
+            };
+            (s.x, stats)
+        }
         (None, Body::Assembled(_)) => unreachable!("an assembled body always gives a system"),
     };
     let strength = wake_strengths(mesh, &edges, &mu);
