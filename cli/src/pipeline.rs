@@ -42,11 +42,11 @@ pub struct Computed {
     pub separated_area: f64,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
-    /// The separated-wake loop, unless the case asked for attached flow.
+    /// The separated-flow loop, when it ran.
     pub wakes: Option<WakeLoop>,
 }
 
-/// What the separated-wake loop found.
+/// What the separated-flow loop found.
 pub struct WakeLoop {
     /// Passes run, the attached pass included.
     pub passes: usize,

@@ -144,7 +144,7 @@ fn print_summary(out: &Path, s: &Summary) {
         };
         let cpb = |v: Option<f64>| v.map_or("none".to_string(), |v| format!("{v:.2}"));
         println!(
-            "  separated wakes: {} passes, {state}; C_D {:.3} (plateau {:.3}), base C_p {} (plateau {})",
+            "  separated-flow loop: {} passes, {state}; C_D {:.3} (attached with plateau {:.3}), base C_p {} (attached with plateau {})",
             w.passes,
             w.cd_loop,
             w.cd_plateau,

@@ -138,8 +138,8 @@ pub struct Summary {
     pub separation: Separation,
     /// Solver facts.
     pub solver: SolverFacts,
-    /// The separated-wake loop (absent when the case asked for attached
-    /// flow only).
+    /// The separated-flow loop (absent when it did not run: attached flow
+    /// asked for, or the compressed operator).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub separated_wakes: Option<SeparatedWakes>,
     /// Seconds per phase.
@@ -150,7 +150,7 @@ pub struct Summary {
     pub caution: String,
 }
 
-/// What the separated-wake loop found.
+/// What the separated-flow loop found.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
 pub struct SeparatedWakes {
     /// Passes run, the attached pass included.
