@@ -184,19 +184,17 @@ pub fn viscous_loop_with_params(
     let body = assemble(mesh, &params.potential).map_err(WakeError::from)?;
     let body = Body::new(body, &fs.velocity(), params)?;
     let base = base_edges(mesh, &u, &params.lines);
-    let attached = run_pass(mesh, fs, &body, Vec::new(), &[], params)?;
+    let attached = run_pass(mesh, fs, &body, Vec::new(), &Outflow::default(), params)?;
     let mut last = attached.clone();
     let (mut passes, mut converged, mut changes) = (1, false, Vec::new());
     let mut diverged = false;
-    let mut dead = DeadWater::new(mesh.len());
-    dead.grow(&last.layer);
+    let mut dead = DeadWater::new(mesh, fs.velocity(), params);
+    dead.grow(&last.layer, &last.solution.velocity);
     while passes < params.max_passes {
         let states: Vec<FlowState> = last.layer.panels.iter().map(|l| l.state).collect();
-        let open: Vec<(usize, f64)> = match params.model {
-            WakeModel::Sheets => Vec::new(),
-            WakeModel::OpenDeadWater => {
-                dead.weights(mesh, &last.solution.velocity, &u, params.ramp_length)
-            }
+        let open = match params.model {
+            WakeModel::Sheets => Outflow::default(),
+            WakeModel::OpenDeadWater => dead.outflow(),
         };
         let mut edges = Vec::new();
         if params.model != WakeModel::OpenDeadWater {
@@ -211,7 +209,7 @@ pub fn viscous_loop_with_params(
                 &params.lines,
             ));
         }
-        if edges.is_empty() && open.is_empty() {
+        if edges.is_empty() && open.panels.is_empty() {
             converged = true;
             break;
         }
@@ -222,7 +220,7 @@ pub fn viscous_loop_with_params(
             break;
         }
         let before = dead.count();
-        let grown = dead.grow(&next.layer);
+        let grown = dead.grow(&next.layer, &next.solution.velocity);
         dead.impose(&mut next.layer);
         changes.push(grown);
         last = next;
@@ -308,7 +306,7 @@ fn run_pass(
     fs: &Freestream,
     body: &Body,
     edges: Vec<TrailingEdge>,
-    open: &[(usize, f64)],
+    open: &Outflow,
     params: &ViscousLoopParams,
 ) -> Result<LoopPass, ViscousLoopError> {
     let v_inf = fs.velocity();
@@ -330,14 +328,8 @@ fn run_pass(
         (None, Body::Factored { rhs, .. }) => rhs.clone(),
         (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
-    let outflow: Vec<(usize, f64)> = open
-        .iter()
-        .map(|&(j, w)| (j, w * mesh.panels[j].normal.dot(&v_inf).max(0.0)))
-        .filter(|&(_, v)| v > 0.0)
-        .collect();
-    if !outflow.is_empty() {
-        let extra = source_sum(mesh, &outflow, params.potential.far_field_ratio);
-        rhs.iter_mut().zip(extra).for_each(|(r, e)| *r += e);
+    if !open.panels.is_empty() {
+        rhs.iter_mut().zip(&open.rhs).for_each(|(r, e)| *r += e);
     }
     let (mu, stats) = match (system, body) {
         (Some(system), _) => {
@@ -378,7 +370,7 @@ fn run_pass(
         )
     };
     let mut solution = solution;
-    for &(j, v) in &outflow {
+    for &(j, v) in &open.panels {
         solution.sigma[j] -= v;
     }
     let layer = screen_boundary_layer(mesh, &solution.velocity, fs.speed, &params.layer)?;
@@ -415,10 +407,27 @@ fn lu_stats() -> SolveStats {
 /// from 0 at the separation line to 1 at [`ViscousLoopParams::ramp_length`]
 /// body lengths downstream, so the dead water's edge leaves tangentially
 /// and turns to the stream instead of making a concave corner.
-#[derive(Debug, Clone)]
-struct DeadWater {
+struct DeadWater<'a> {
+    mesh: &'a PanelMesh,
+    v_inf: Vector,
+    ramp_length: f64,
+    far_field_ratio: f64,
     source: Vec<Option<u32>>,
     dead: Vec<bool>,
+    /// Outflow `v_n` of each dead panel, fixed when it joined.
+    outflow: Vec<(usize, f64)>,
+    /// Right-hand-side change of all of `outflow` so far.
+    rhs: Vec<f64>,
+    /// How many entries of `outflow` are in `rhs`.
+    summed: usize,
+}
+
+/// The dead water's outflow for one pass: `(panel, v_n)` and the
+/// right-hand-side change it makes.
+#[derive(Debug, Clone, Default)]
+struct Outflow {
+    panels: Vec<(usize, f64)>,
+    rhs: Vec<f64>,
 }
 
 /// The flow at the separation line runs along the stream when within this
@@ -429,11 +438,18 @@ const ALONG_STREAM_DEG: f64 = 10.0;
 /// downstream (a base); its outflow is never ramped (degrees).
 const BASE_NORMAL_DEG: f64 = 45.0;
 
-impl DeadWater {
-    fn new(n: usize) -> Self {
+impl<'a> DeadWater<'a> {
+    fn new(mesh: &'a PanelMesh, v_inf: Vector, params: &ViscousLoopParams) -> Self {
         Self {
-            source: vec![None; n],
-            dead: vec![false; n],
+            mesh,
+            v_inf,
+            ramp_length: params.ramp_length,
+            far_field_ratio: params.potential.far_field_ratio,
+            source: vec![None; mesh.len()],
+            dead: vec![false; mesh.len()],
+            outflow: Vec::new(),
+            rhs: vec![0.0; mesh.len()],
+            summed: 0,
         }
     }
 
@@ -441,17 +457,38 @@ impl DeadWater {
         self.dead.iter().filter(|&&d| d).count()
     }
 
-    /// Add the separated panels of `layer`; returns how many were new.
-    fn grow(&mut self, layer: &BoundaryLayer) -> usize {
+    /// Add the separated panels of `layer` (on the flow `velocity`), each
+    /// with its outflow; returns how many were new.
+    fn grow(&mut self, layer: &BoundaryLayer, velocity: &[Vector]) -> usize {
         let mut added = 0;
         for (t, l) in layer.panels.iter().enumerate() {
             if l.state == FlowState::Separated && !self.dead[t] {
                 self.dead[t] = true;
                 self.source[t] = layer.separation_source[t];
+                let v = self.weight(t, velocity) * self.mesh.panels[t].normal.dot(&self.v_inf);
+                if v > 0.0 {
+                    self.outflow.push((t, v));
+                }
                 added += 1;
             }
         }
         added
+    }
+
+    /// Every outflow so far, its right-hand side brought up to date with
+    /// the panels added since the last call (the influence of each panel
+    /// is summed once).
+    fn outflow(&mut self) -> Outflow {
+        let new = &self.outflow[self.summed..];
+        if !new.is_empty() {
+            let extra = source_sum(self.mesh, new, self.far_field_ratio);
+            self.rhs.iter_mut().zip(extra).for_each(|(r, e)| *r += e);
+            self.summed = self.outflow.len();
+        }
+        Outflow {
+            panels: self.outflow.clone(),
+            rhs: self.rhs.clone(),
+        }
     }
 
     /// Mark every dead-water panel separated in `layer`, with its source.
@@ -467,37 +504,26 @@ impl DeadWater {
         }
     }
 
-    /// `(panel, w)` for every dead-water panel (see the type's doc).
-    fn weights(
-        &self,
-        mesh: &PanelMesh,
-        velocity: &[Vector],
-        stream: &Vector,
-        ramp_length: f64,
-    ) -> Vec<(usize, f64)> {
+    /// The weight `w` of dead panel `t` (see the type's doc).
+    fn weight(&self, t: usize, velocity: &[Vector]) -> f64 {
+        let mesh = self.mesh;
+        let stream = self.v_inf.normalize();
+        let Some(s) = self.source[t].map(|s| s as usize) else {
+            return 1.0;
+        };
+        if mesh.panels[t].normal.dot(&stream) > BASE_NORMAL_DEG.to_radians().cos() {
+            return 1.0;
+        }
+        let along = velocity[s]
+            .try_normalize(1e-12)
+            .is_none_or(|d| d.dot(&stream) > ALONG_STREAM_DEG.to_radians().cos());
+        if along {
+            return 1.0;
+        }
         let (lo, hi) = mesh.bounds();
-        let ramp = ramp_length * (hi - lo).dot(stream).abs().max(1e-9);
-        let cos_along = ALONG_STREAM_DEG.to_radians().cos();
-        let cos_base = BASE_NORMAL_DEG.to_radians().cos();
-        (0..mesh.len())
-            .filter(|&t| self.dead[t])
-            .map(|t| {
-                let Some(s) = self.source[t].map(|s| s as usize) else {
-                    return (t, 1.0);
-                };
-                if mesh.panels[t].normal.dot(stream) > cos_base {
-                    return (t, 1.0);
-                }
-                let along = velocity[s]
-                    .try_normalize(1e-12)
-                    .is_none_or(|d| d.dot(stream) > cos_along);
-                if along {
-                    return (t, 1.0);
-                }
-                let d = (mesh.panels[t].centroid - mesh.panels[s].centroid).norm();
-                (t, (d / ramp).min(1.0))
-            })
-            .collect()
+        let ramp = self.ramp_length * (hi - lo).dot(&stream).abs().max(1e-9);
+        let d = (mesh.panels[t].centroid - mesh.panels[s].centroid).norm();
+        (d / ramp).min(1.0)
     }
 }
 
