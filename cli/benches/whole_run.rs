@@ -10,7 +10,10 @@
 //! benchmark process faer factorises a seeded random diagonally dominant
 //! N x N matrix (partial pivoting, all threads), N the run's panel count;
 //! the table gives the median of the repetitions and the ratio
-//! "whole run / bare LU".
+//! "whole run / bare LU". The run is the default one, with the
+//! separated-flow loop; the same case with `[solver] wakes = "attached"`
+//! is timed beside it, for the loop's cost (target: at most three times
+//! the attached run).
 //!
 //! This is a plain timing harness, not criterion: one 10,000-panel LU takes
 //! tens of seconds on a small machine and criterion wants at least ten
@@ -50,11 +53,16 @@ fn main() {
     let dir = tempfile::tempdir().expect("a temporary folder");
     println!("whole_run: {reps} repetitions, median wall-clock time (phases of the median run)");
     println!(
-        "| panels (requested) | panels | whole run | peak RSS | bare LU | whole / LU | phases (s) |"
+        "| panels (requested) | panels | whole run | peak RSS | bare LU | whole / LU | attached only | loop / attached | phases (s) |"
     );
-    println!("| --- | --- | --- | --- | --- | --- | --- |");
+    println!("| --- | --- | --- | --- | --- | --- | --- | --- | --- |");
     for &n in &sizes {
-        let mut runs: Vec<Run> = (0..reps).map(|_| run_case(dir.path(), n)).collect();
+        let mut runs: Vec<Run> = (0..reps).map(|_| run_case(dir.path(), n, "auto")).collect();
+        let attached = median(
+            (0..reps)
+                .map(|_| run_case(dir.path(), n, "attached").seconds)
+                .collect(),
+        );
         runs.sort_by(|a, b| a.seconds.total_cmp(&b.seconds));
         let mid = &runs[runs.len() / 2];
         let panels = mid.panels;
@@ -62,12 +70,13 @@ fn main() {
         let rss = runs.iter().filter_map(|r| r.peak_kb).max();
         let lu = median((0..reps).map(|i| bare_lu(panels, i as u64)).collect());
         println!(
-            "| {n} | {panels} | {whole:.2} s | {} | {lu:.2} s | {:.2} | {} |",
+            "| {n} | {panels} | {whole:.2} s | {} | {lu:.2} s | {:.2} | {attached:.2} s | {:.2} | {} |",
             rss.map_or("-".to_string(), |kb| format!(
                 "{:.0} MB",
                 kb as f64 * 1024.0 / 1e6
             )),
             whole / lu,
+            whole / attached,
             mid.phases
         );
     }
@@ -81,15 +90,17 @@ struct Run {
     phases: String,
 }
 
-/// Write the case for `n` panels, run `tuft run` on it, read back what it did.
-fn run_case(dir: &Path, n: usize) -> Run {
-    let case = dir.join(format!("coupe-{n}.toml"));
+/// Write the case for `n` panels (separated-flow loop setting `wakes`),
+/// run `tuft run` on it, read back what it did.
+fn run_case(dir: &Path, n: usize, wakes: &str) -> Run {
+    let case = dir.join(format!("coupe-{n}-{wakes}.toml"));
     let body = format!(
         "[geometry]\nshape = \"coupe\"\npanels = {n}\n\n[flow]\nspeed = 40.0\n\n\
-         [ground]\nz = 0.0\n\n[reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n"
+         [ground]\nz = 0.0\n\n[reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n\n\
+         [solver]\nwakes = \"{wakes}\"\n"
     );
     std::fs::write(&case, body).expect("case file written");
-    let out = dir.join(format!("coupe-{n}"));
+    let out = dir.join(format!("coupe-{n}-{wakes}"));
     let timer = Path::new("/usr/bin/time").exists();
     let mut cmd = if timer {
         let mut c = Command::new("/usr/bin/time");
