@@ -39,6 +39,8 @@ pub struct Fields {
     pub state: Vec<PanelState>,
     /// Risk.
     pub risk: Vec<f64>,
+    /// How the separated regions were found (the loop's passes).
+    pub separation_note: Option<String>,
 }
 
 impl Fields {
@@ -51,6 +53,17 @@ impl Fields {
             cf: l.iter().map(|p| p.cf).collect(),
             state: l.iter().map(|p| panel_state(p.state)).collect(),
             risk: l.iter().map(|p| p.risk).collect(),
+            separation_note: c.wakes.as_ref().map(|w| {
+                format!(
+                    "Separated regions from the separated-flow loop ({} passes, {}).",
+                    w.passes,
+                    if w.converged {
+                        "converged"
+                    } else {
+                        "not converged"
+                    }
+                )
+            }),
         }
     }
 
@@ -65,6 +78,7 @@ impl Fields {
             cf: &self.cf,
             state: &self.state,
             risk: &self.risk,
+            separation_note: self.separation_note.as_deref(),
         }
     }
 }

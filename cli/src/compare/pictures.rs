@@ -53,6 +53,7 @@ impl Owned {
             cf: &self.zeros,
             state: &self.state,
             risk: &self.risk,
+            separation_note: None,
         }
     }
 }

@@ -70,6 +70,7 @@ impl Fixture {
             cf: &self.cf,
             state: &self.state,
             risk: &self.risk,
+            separation_note: None,
         }
     }
 }

@@ -102,6 +102,9 @@ pub struct SurfaceResult<'a> {
     pub state: &'a [PanelState],
     /// Separation risk, 0 (far from separating) to 1 (separated).
     pub risk: &'a [f64],
+    /// How the separated regions were found, for the risk picture (e.g.
+    /// the separated-flow loop's passes); `None` says nothing.
+    pub separation_note: Option<&'a str>,
 }
 
 impl SurfaceResult<'_> {

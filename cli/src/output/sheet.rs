@@ -131,7 +131,11 @@ pub fn surface_sheet_with_params(
         draw_cell(&mut canvas, &tris, *view, frame, params, &paint);
         decorate(&mut canvas, s, *view, frame, caption);
     }
-    draw_titles(&mut canvas, &caption.title(what), note);
+    let note = match (field, &s.separation_note) {
+        (SurfaceField::SeparationRisk, Some(extra)) => format!("{note} {extra}"),
+        _ => note.to_owned(),
+    };
+    draw_titles(&mut canvas, &caption.title(what), &note);
     let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
     let bar_h = (f64::from(params.height) * 0.5).min(520.0);
     colorbar::draw_bar(
