@@ -1,8 +1,9 @@
 //! The attached-flow screening on an Ahmed-type slant-back body over the
 //! ground (Ahmed, Ramm & Faltin 1984, SAE 840300; dimensions from memory):
-//! the slant's peak shape factor and peak risk rise steadily with the slant
-//! angle, and are stable when the panel count doubles (the risk measure
-//! keeps the sharp roof-slant edge's mesh-dependent suction peak out).
+//! the slant's peak shape factor and its mean risk rise steadily with the
+//! slant angle, and are stable when the panel count doubles (the screening
+//! keeps the sharp roof-slant edge's mesh-dependent suction peak out of the
+//! march over a window of a couple of boundary-layer thicknesses).
 //! The test also records the first slant angle the attached screening calls
 //! separated over most of the slant; experiments see full separation above
 //! 30 degrees, and an attached-flow screening is known to call it late.
@@ -16,7 +17,7 @@ use tuft_solver::{Freestream, solve_potential};
 
 struct Slant {
     peak_h: f64,
-    peak_risk: f64,
+    mean_risk: f64,
     separated: f64,
 }
 
@@ -55,14 +56,14 @@ fn slant(slant_deg: f64, panels: usize) -> Slant {
         .collect();
     let peak_h = pct(&turbulent, 0.9);
     let risks: Vec<f64> = on_slant.iter().map(|&t| layer.panels[t].risk).collect();
-    let peak_risk = risks.iter().sum::<f64>() / risks.len().max(1) as f64;
+    let mean_risk = risks.iter().sum::<f64>() / risks.len().max(1) as f64;
     let sep = on_slant
         .iter()
         .filter(|&&t| layer.panels[t].state == FlowState::Separated)
         .count();
     Slant {
         peak_h,
-        peak_risk,
+        mean_risk,
         separated: sep as f64 / on_slant.len() as f64,
     }
 }
@@ -87,8 +88,8 @@ fn slant_risk_rises_with_angle_and_is_stable_under_refinement() {
             "slant {a:>4} deg: peak H {:.3} / {:.3}, mean risk {:.3} / {:.3}, separated {:.0} % / {:.0} % (4,000 / 8,000 panels)",
             c.peak_h,
             f.peak_h,
-            c.peak_risk,
-            f.peak_risk,
+            c.mean_risk,
+            f.mean_risk,
             100.0 * c.separated,
             100.0 * f.separated
         );
@@ -100,22 +101,56 @@ fn slant_risk_rises_with_angle_and_is_stable_under_refinement() {
                 "peak H rises with the slant angle"
             );
             assert!(
-                w[1].peak_risk > w[0].peak_risk,
+                w[1].mean_risk > w[0].mean_risk,
                 "risk rises with the slant angle"
             );
         }
     }
-    // Mesh doubling: the risk moves by at most 0.035 (measured), 0.05
-    // allowed. Peak H moves 0.002, 0.031, 0.012 and 0.048 at 10, 20, 30 and
-    // 40 degrees (measured): the layer near a steep slant's separation line
-    // is still mesh dependent there, so 0.03 is held at 10 and 30 degrees
-    // and 0.06 at 20 and 40.
+    // Mesh doubling (the bar): peak H moves by less than 0.03.
+    // Peak H, in words: the 90th percentile of the shape factor H over the
+    // slant's panels whose boundary layer is attached and turbulent (the
+    // high end of what the attached layer reaches on the slant, so that no
+    // single panel decides it). Measured (4,000 / 8,000 / 16,000 panels):
+    // 1.396 / 1.369 / 1.375 at 10 degrees, 1.410 / 1.414 / 1.416 at 20,
+    // 1.618 / 1.618 / 1.620 at 30 and 1.945 / 1.916 / 1.933 at 40
+    // (`refinement_study` below). The margins are thin at 10 degrees (the
+    // highest H sits on the panels along the slant's side edges, which the
+    // flow crosses from the side wall) and at 40 (most of the slant is
+    // separated, and the top tenth of the attached panels is the row just
+    // ahead of the separation line, where H climbs steeply to the
+    // criterion). The mean risk moves by at most 0.022 (measured), 0.05
+    // allowed.
     for ((a, c), f) in angles.iter().zip(&coarse).zip(&fine) {
         let dh = (c.peak_h - f.peak_h).abs();
-        let bound = if *a == 10.0 || *a == 30.0 { 0.03 } else { 0.06 };
-        assert!(dh < bound, "{a} degrees: peak H moves {dh} on doubling");
-        let dr = (c.peak_risk - f.peak_risk).abs();
+        assert!(dh < 0.03, "{a} degrees: peak H moves {dh} on doubling");
+        let dr = (c.mean_risk - f.mean_risk).abs();
         assert!(dr < 0.05, "{a} degrees: risk moves {dr} on doubling");
+    }
+}
+
+/// The same table at 4,000, 8,000 and 16,000 panels (about 30 s in release
+/// mode): `cargo test --release -p tuft-tests --test slant_risk --
+/// --ignored --nocapture refinement_study`.
+#[test]
+#[ignore = "refinement study, about 30 s"]
+fn refinement_study() {
+    for a in [10.0, 20.0, 30.0, 40.0] {
+        let row: Vec<String> = [4000, 8000, 16000]
+            .iter()
+            .map(|&n| {
+                let s = slant(a, n);
+                format!(
+                    "H {:.3} risk {:.3} sep {:.0} %",
+                    s.peak_h,
+                    s.mean_risk,
+                    100.0 * s.separated
+                )
+            })
+            .collect();
+        println!(
+            "slant {a:>4} deg (4,000 / 8,000 / 16,000 panels): {}",
+            row.join(" | ")
+        );
     }
 }
 
