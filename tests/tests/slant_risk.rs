@@ -139,8 +139,11 @@ fn slant_risk_rises_with_angle_and_is_stable_under_refinement() {
     // separated, and the top tenth of the attached panels is the row just
     // ahead of the separation line, where H climbs steeply to the
     // criterion: with 1.5 or 3 thicknesses instead of 2 it moves by up to
-    // 0.09 or 0.15 on a doubling). The mean risk moves by at most 0.022
-    // (measured), 0.05 allowed.
+    // 0.09 or 0.15 on a doubling). Marching stations a quarter of a median
+    // panel apart instead of a half move it by at most 0.008 at 20 and 30
+    // degrees but by 0.07 at 40 (measured), so at 10 and 40 degrees the bar
+    // is met within the statistic's own noise. The mean risk moves by at
+    // most 0.022 (measured), 0.05 allowed.
     for (a, c, f) in table(WINDOW) {
         let dh = (c.peak_h - f.peak_h).abs();
         assert!(dh < 0.03, "{a} degrees: peak H moves {dh} on doubling");
