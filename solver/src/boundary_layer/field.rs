@@ -203,11 +203,23 @@ fn least_squares_divergence(mesh: &PanelMesh, direction: &[Vector3<f64>], t: usi
     Some(gu[1] + gv[2])
 }
 
+/// Angle (degrees) by which an edge may fall short of the sharp-edge
+/// threshold and still count as sharp: far above the rounding of normals
+/// computed from single-precision vertices (about 1e-5 degrees), far below
+/// any design intent. Without it, an edge of exactly the threshold angle
+/// (a 20-degree slant under the default) is sharp on one mesh and not on the
+/// next, by rounding.
+pub const SHARP_EDGE_TOLERANCE_DEG: f64 = 1e-3;
+
 /// True when the edge between panels `a` and `b` is sharp and convex: the
-/// angle between the normals exceeds `sharp_edge_deg` and the surface turns
-/// away (`b`'s centroid lies below `a`'s plane).
+/// angle between the normals reaches `sharp_edge_deg` (within
+/// [`SHARP_EDGE_TOLERANCE_DEG`]) and the surface turns away (`b`'s centroid
+/// lies below `a`'s plane).
 pub fn sharp_convex(mesh: &PanelMesh, a: usize, b: usize, sharp_edge_deg: f64) -> bool {
     let (pa, pb) = (&mesh.panels[a], &mesh.panels[b]);
     let convex = pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0;
-    convex && pa.normal.dot(&pb.normal) < sharp_edge_deg.to_radians().cos()
+    let limit = (sharp_edge_deg - SHARP_EDGE_TOLERANCE_DEG)
+        .to_radians()
+        .cos();
+    convex && pa.normal.dot(&pb.normal) < limit
 }

@@ -71,10 +71,20 @@ pub struct BoundaryLayerParams {
     /// is taken to leave the surface at the edge (a bluff base edge; common
     /// practice: the flow does not turn a sharp corner). Default 50.
     pub base_edge_turn_deg: f64,
-    /// Dihedral angle (degrees) above which an edge counts as sharp: on the
+    /// Dihedral angle (degrees) from which on an edge counts as sharp: on the
     /// panels that touch it the attached-flow suction peak is replaced by an
-    /// interpolation across it (see [`screen`]). Default 20.
+    /// interpolation across it (see [`screen`]). Default 20 (an edge of
+    /// exactly this angle counts as sharp).
     pub sharp_edge_deg: f64,
+    /// Half-width of the window round a sharp convex edge crossing over
+    /// which the speed is interpolated across the edge, in turbulent
+    /// flat-plate boundary-layer thicknesses at the edge's distance from the
+    /// nose (see [`screen`]). Default 0 (the panels either side of the edge
+    /// only). 2 makes the shape factor on a slant behind a sharp edge
+    /// converge under mesh refinement, but it also removes the remnant of
+    /// the edge's suction peak that drives part of the separation on steep
+    /// slants, which moves their separation verdicts (DEVELOPERS.md).
+    pub edge_window_thicknesses: f64,
     /// Streamline seeds round each attachment point; 0 chooses
     /// `2 sqrt(panels)`, clamped to 32..=1024.
     pub seeds_per_attachment: usize,
@@ -105,6 +115,7 @@ impl Default for BoundaryLayerParams {
             turbulent_start_h: 1.4,
             base_edge_turn_deg: 50.0,
             sharp_edge_deg: 20.0,
+            edge_window_thicknesses: 0.0,
             seeds_per_attachment: 0,
             attachment_speed_fraction: 0.3,
             stop_speed_fraction: 0.02,
@@ -146,6 +157,10 @@ impl BoundaryLayerParams {
             if !(v > 0.0 && v <= 180.0) {
                 return bad(name, v);
             }
+        }
+        let w = self.edge_window_thicknesses;
+        if !(w.is_finite() && w >= 0.0) {
+            return bad("edge_window_thicknesses", w);
         }
         if !(self.attachment_speed_fraction > 0.0 && self.stop_speed_fraction >= 0.0) {
             return bad("attachment_speed_fraction", self.attachment_speed_fraction);

@@ -17,12 +17,28 @@
 //!   verdict can rest on it. A gentler turn (a 10-40 degree slant) is left to
 //!   the boundary layer.
 //! - **Edge peaks.** Where a streamline crosses a sharp convex edge
-//!   (dihedral angle above `params.sharp_edge_deg`), the speed the march
-//!   sees on the two panels either side of the crossing is the linear
-//!   interpolation between the last station before and the first station
-//!   after them (held at the value before when the edge is a bluff edge), so
-//!   the edge's mesh-dependent suction peak and its recovery do not drive
-//!   `H` on the next panels. Edges the flow runs along are left alone.
+//!   (dihedral angle of `params.sharp_edge_deg` or more), the speed the
+//!   march sees on the two panels either side of the crossing, and at every
+//!   station within `params.edge_window_thicknesses` boundary-layer
+//!   thicknesses of it, is the linear interpolation between the last
+//!   station before and the first station after them (held at the value
+//!   before when the edge is a bluff edge), so the edge's mesh-dependent
+//!   suction peak and its recovery do not drive `H` further on. The
+//!   thickness is the turbulent flat-plate one at the crossing's distance
+//!   `x` from the nose, `delta = 0.37 x Re_x^(-1/5)` (Prandtl's 1/7-power
+//!   law; Schlichting, *Boundary-Layer Theory*, ch. 21). Why a physical
+//!   length and not whole panels: the vertex interpolation carries a
+//!   panel's peak onto the next row of panels, and the stations may or may
+//!   not fall on the panels beside the edge, so a window of panels leaves a
+//!   remnant of the peak that changes with the mesh (on the slant-back body
+//!   the slant's shape factor moved by up to 0.05 when the panels doubled).
+//!   The integral method assumes an edge flow that varies slowly over a
+//!   boundary-layer thickness, and the real layer's displacement smooths a
+//!   corner's suction over about that length (viscous-inviscid
+//!   interaction), so the march can be given no detail finer than a
+//!   couple of thicknesses (a factor 2 is our choice; the default 0 keeps
+//!   the window of panels, see the setting's doc). Edges the flow runs
+//!   along are left alone.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -163,7 +179,7 @@ pub fn screen_boundary_layer(
         .iter()
         .flat_map(|&a| attachment::ring_seeds(&tracer, a, count, 1.5))
         .collect();
-    let ctx = LineContext::new(mesh, &field, &flow_dir, params);
+    let ctx = LineContext::new(mesh, &field, &flow_dir, speed, params);
     let mut lines: Vec<LineResult> = seeds
         .par_iter()
         .map(|seed| ctx.run(&tracer, seed))
@@ -277,6 +293,8 @@ struct LineContext<'a> {
     flow_dir: Vector3<f64>,
     x_range: (f64, f64),
     step: f64,
+    /// Free-stream speed, m/s.
+    speed: f64,
     params: &'a BoundaryLayerParams,
 }
 
@@ -285,6 +303,7 @@ impl<'a> LineContext<'a> {
         mesh: &'a PanelMesh,
         field: &'a SurfaceField,
         flow_dir: &Vector3<f64>,
+        speed: f64,
         params: &'a BoundaryLayerParams,
     ) -> Self {
         let xs = mesh.vertices.iter().map(|p| p.coords.dot(flow_dir));
@@ -300,6 +319,7 @@ impl<'a> LineContext<'a> {
             flow_dir: *flow_dir,
             x_range,
             step: 0.5 * median_size,
+            speed,
             params,
         }
     }
@@ -314,7 +334,15 @@ impl<'a> LineContext<'a> {
         let arc = arc_lengths(&trace.points);
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
-        clip_edge_peaks(&mut samples, |k| peak[segments[k]]);
+        let windows = self.edge_windows(&trace, &arc);
+        let clipped: Vec<bool> = samples
+            .iter()
+            .zip(&segments)
+            .map(|(sample, &seg)| {
+                peak[seg] || windows.iter().any(|&(c, w)| (sample.s - c).abs() < w)
+            })
+            .collect();
+        clip_edge_peaks(&mut samples, |k| clipped[k]);
         let start = self.start(seed, samples.first().map_or(0.0, |s| s.speed));
         let marched = march::march_line(&samples, &start, self.params);
         self.split(trace, arc, &peak, &samples, &marched)
@@ -360,6 +388,32 @@ impl<'a> LineContext<'a> {
             }
         }
         peak
+    }
+
+    /// `(arc length, half-width)` of the window round each crossing of a
+    /// sharp convex edge: `params.edge_window_thicknesses` turbulent
+    /// flat-plate thicknesses `0.37 x Re_x^(-1/5)` (Schlichting,
+    /// *Boundary-Layer Theory*, ch. 21) at the crossing's distance `x` from
+    /// the nose (module doc).
+    fn edge_windows(&self, trace: &Trace, arc: &[f64]) -> Vec<(f64, f64)> {
+        let p = &trace.panels;
+        let length = self.x_range.1 - self.x_range.0;
+        (1..p.len())
+            .filter(|&j| {
+                let (a, b) = (p[j - 1] as usize, p[j] as usize);
+                a != b && sharp_convex(self.mesh, a, b, self.params.sharp_edge_deg)
+            })
+            .map(|j| {
+                let x = self.body_fraction(&trace.points[j]) * length;
+                let re_x = self.speed * x / self.params.nu;
+                let delta = if re_x > 0.0 {
+                    0.37 * x * re_x.powf(-0.2)
+                } else {
+                    0.0
+                };
+                (arc[j], self.params.edge_window_thicknesses * delta)
+            })
+            .collect()
     }
 
     /// Evenly spaced stations along the trace (half the median panel size
