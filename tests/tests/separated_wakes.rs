@@ -172,10 +172,10 @@ fn ahmed_slant_regimes_with_separated_wakes() {
 /// ground, about -0.15 to -0.35 (from memory). The plateau estimate of the
 /// attached pass is printed beside the loop's (Hoerner's correlation on
 /// the loop's friction). Known failure: at 2,520 panels the loop gives
-/// -0.142 and the attached pass with the plateau -0.42 (the corner suction
+/// -0.141 and the attached pass with the plateau -0.42 (the corner suction
 /// of attached flow). Run with `-- --ignored`.
 #[test]
-#[ignore = "known failure: base Cp -0.142, just above the -0.15 bound"]
+#[ignore = "known failure: base Cp -0.141, just above the -0.15 bound"]
 fn square_back_base_pressure() {
     let mesh = ahmed(0.0);
     let t = Instant::now();

@@ -79,11 +79,11 @@ pub struct BoundaryLayerParams {
     /// Half-width of the window round a sharp convex edge crossing over
     /// which the speed is interpolated across the edge, in turbulent
     /// flat-plate boundary-layer thicknesses at the edge's distance from the
-    /// nose (see [`screen`]). Default 0 (the panels either side of the edge
-    /// only). 2 makes the shape factor on a slant behind a sharp edge
-    /// converge under mesh refinement, but it also removes the remnant of
-    /// the edge's suction peak that drives part of the separation on steep
-    /// slants, which moves their separation verdicts (DEVELOPERS.md).
+    /// nose (see [`screen`]). Default 2, which makes the shape factor on a
+    /// slant behind a sharp edge converge under mesh refinement; 0 keeps
+    /// the interpolation to the panels either side of the edge, whose
+    /// remnant of the edge's mesh-dependent suction peak reaches the march
+    /// (DEVELOPERS.md).
     pub edge_window_thicknesses: f64,
     /// Streamline seeds round each attachment point; 0 chooses
     /// `2 sqrt(panels)`, clamped to 32..=1024.
@@ -115,7 +115,7 @@ impl Default for BoundaryLayerParams {
             turbulent_start_h: 1.4,
             base_edge_turn_deg: 50.0,
             sharp_edge_deg: 20.0,
-            edge_window_thicknesses: 0.0,
+            edge_window_thicknesses: 2.0,
             seeds_per_attachment: 0,
             attachment_speed_fraction: 0.3,
             stop_speed_fraction: 0.02,

@@ -36,8 +36,8 @@
 //!   boundary-layer thickness, and the real layer's displacement smooths a
 //!   corner's suction over about that length (viscous-inviscid
 //!   interaction), so the march can be given no detail finer than a
-//!   couple of thicknesses (a factor 2 is our choice; the default 0 keeps
-//!   the window of panels, see the setting's doc). Edges the flow runs
+//!   couple of thicknesses (a factor 2, the default, is our choice; 0
+//!   keeps the window of panels, see the setting's doc). Edges the flow runs
 //!   along are left alone.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
