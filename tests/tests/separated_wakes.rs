@@ -78,9 +78,9 @@ fn slant_separated(mesh: &PanelMesh, layer: &BoundaryLayer) -> f64 {
     sep / area
 }
 
-/// Drag coefficient of `pass` with the pressure `cp`, skin friction
-/// included (the estimate `tuft run` reports).
-fn drag(mesh: &PanelMesh, cp: &[f64], pass: &LoopPass) -> f64 {
+/// Drag and lift coefficients of `pass` with the pressure `cp`, skin
+/// friction included (the estimate `tuft run` reports).
+fn drag(mesh: &PanelMesh, cp: &[f64], pass: &LoopPass) -> (f64, f64) {
     let friction = loads::friction_vectors(&pass.solution.velocity, &pass.layer, SPEED);
     let (lo, hi) = mesh.bounds();
     let reference = Reference::from_mesh(mesh, lo.x + 0.2, hi.x - 0.2);
@@ -89,11 +89,11 @@ fn drag(mesh: &PanelMesh, cp: &[f64], pass: &LoopPass) -> f64 {
         speed: SPEED,
         yaw: 0.0,
     };
-    loads::integrate_loads(mesh, cp, Some(&friction), &reference, &air)
+    let c = loads::integrate_loads(mesh, cp, Some(&friction), &reference, &air)
         .unwrap()
         .total
-        .coefficients
-        .drag
+        .coefficients;
+    (c.drag, c.lift)
 }
 
 /// The pressure the loop reports: the dead water at Hoerner's base
@@ -136,20 +136,22 @@ fn published(slant: f64) -> &'static str {
 /// 0.23 at 12.5, 0.285 at 25, 0.378 at 30, 0.26 at 35 degrees).
 #[test]
 fn ahmed_slant_regimes_with_separated_wakes() {
-    println!("slant  passes conv  attached-pass  loop  predicted / published  Cd plateau  Cd loop");
+    println!(
+        "slant  passes conv  attached-pass  loop  predicted / published  Cd plateau  Cd loop  CL plateau  CL loop"
+    );
     for slant in [0.0, 5.0, 10.0, 12.5, 20.0, 25.0, 30.0, 35.0, 40.0] {
         let mesh = ahmed(slant);
         let r = run(&mesh, along_x());
         let f0 = slant_separated(&mesh, &r.attached.layer);
         let f = slant_separated(&mesh, &r.last.layer);
-        let cd0 = drag(
+        let (cd0, cl0) = drag(
             &mesh,
             &plateau_cp(&mesh, &r.attached.solution.cp, &r.attached.layer),
             &r.attached,
         );
-        let cd = drag(&mesh, &loop_cp(&mesh, &r), &r.last);
+        let (cd, cl) = drag(&mesh, &loop_cp(&mesh, &r), &r.last);
         println!(
-            "{slant:5.1}  {}  {:5}  {f0:.2}  {f:.2}  {} / {}  {cd0:.3}  {cd:.3}",
+            "{slant:5.1}  {}  {:5}  {f0:.2}  {f:.2}  {} / {}  {cd0:.3}  {cd:.3}  {cl0:.3}  {cl:.3}",
             r.passes,
             r.converged && !r.diverged,
             regime(f),
