@@ -37,6 +37,11 @@ pub struct MatrixUse {
     pub factorised_for: String,
     /// True when this variant used a matrix factorised for another.
     pub reused: bool,
+    /// True when the variant ran the separated-flow loop (the default on
+    /// the dense operator), which assembles and solves its own system: the
+    /// shared solve then gave only the free stream.
+    #[serde(default)]
+    pub own_loop: bool,
 }
 
 /// `variant.json`: what a sweep set for this run folder.
@@ -128,11 +133,15 @@ pub fn run_group(
                 .unwrap_or_default();
             for (k, ((m, case, _), potential)) in ok.iter().zip(solutions).enumerate() {
                 let t = Instant::now();
+                let own_loop =
+                    pipeline::loop_wanted(&geo.mesh, case, crate::estimate::Operator::Dense)
+                        .unwrap_or(false);
                 let matrix = MatrixUse {
                     variants_sharing: ok.len(),
                     factorisations: 1,
                     factorised_for: first_name.clone(),
                     reused: k > 0,
+                    own_loop,
                 };
                 let record = VariantRecord {
                     sweep: sweep.into(),
