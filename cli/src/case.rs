@@ -36,12 +36,10 @@ pub struct CaseFile {
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(default, deny_unknown_fields)]
 pub struct SolverSection {
-    /// `auto` (default): the separated-flow loop for a body with a bluff
-    /// base on the dense operator, attached flow otherwise; `separated`:
-    /// always the loop (the separated regions opened as dead water and the
-    /// boundary layer marched again until the separated set settles);
-    /// `attached`: the attached potential flow only, with the plateau
-    /// model in separated regions.
+    /// `separated` (default): the separated-flow loop (the separated
+    /// regions opened as dead water and the boundary layer marched again
+    /// until the separated set settles); `attached`: the attached potential
+    /// flow only, with the plateau model in separated regions.
     pub wakes: String,
     /// How the influence matrix is held: `auto` (default: dense below
     /// 20,000 panels, compressed from there), `dense`, or `compressed`
@@ -52,7 +50,7 @@ pub struct SolverSection {
 impl Default for SolverSection {
     fn default() -> Self {
         Self {
-            wakes: "auto".into(),
+            wakes: "separated".into(),
             linear: "auto".into(),
         }
     }
@@ -211,11 +209,9 @@ pub struct Case {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum WakesMode {
-    /// For a body with a bluff base, on the dense operator.
-    Auto,
-    /// Always (refused on the compressed operator).
+    /// The separated-flow loop (default).
     Separated,
-    /// Never.
+    /// Attached flow only.
     Attached,
 }
 
@@ -250,10 +246,9 @@ impl Case {
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
         let wakes = match file.solver.wakes.as_str() {
-            "auto" => WakesMode::Auto,
             "separated" => WakesMode::Separated,
             "attached" => WakesMode::Attached,
-            other => bail!("solver.wakes must be auto, separated or attached (got \"{other}\")"),
+            other => bail!("solver.wakes must be separated or attached (got \"{other}\")"),
         };
         let operator = match file.solver.linear.as_str() {
             "auto" => None,

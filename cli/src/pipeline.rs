@@ -1,7 +1,7 @@
 //! The physics of one run, in order: potential flow, boundary layer, loads,
 //! the drag band, flow slices. No file is written here.
 
-use anyhow::{Context, Result, bail};
+use anyhow::{Context, Result};
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
 use tuft_solver::boundary_layer::{
@@ -154,9 +154,9 @@ pub fn compute(
         &format!("solving potential flow on {} panels", mesh.len()),
     );
     let params = layer_params(case, fs.velocity().normalize());
-    let run_loop = loop_wanted(mesh, case, operator)?;
+    let run_loop = loop_wanted(case);
     let (potential, layer, wake_loop) = if run_loop {
-        let r = separated_loop(mesh, &fs, &params)?;
+        let r = separated_loop(mesh, &fs, &params, operator)?;
         (r.last.solution.clone(), Some(r.last.layer.clone()), Some(r))
     } else {
         let solver = PotentialParams {
@@ -197,16 +197,7 @@ pub fn compute(
         None => note,
     };
     progress.end(phase, &note);
-    let mut computed = finish(mesh, case, potential, layer, wake_loop, progress)?;
-    if !run_loop && case.wakes == WakesMode::Auto {
-        computed.warnings.push(format!(
-            "{} panels use the compressed operator, which the separated-flow loop does not use yet: \
-             attached flow with the plateau model only, whose verdicts on steep slants and bluff bases \
-             come late (see the report)",
-            mesh.len()
-        ));
-    }
-    Ok(computed)
+    finish(mesh, case, potential, layer, wake_loop, progress)
 }
 
 /// The physics after the potential flow (boundary layer, loads, drag band)
@@ -221,44 +212,39 @@ pub fn compute_from_potential(
     potential: PotentialSolution,
     progress: &mut Progress,
 ) -> Result<Computed> {
-    if loop_wanted(mesh, case, estimate::Operator::Dense)? {
+    if loop_wanted(case) {
         let fs = potential.freestream;
         let params = layer_params(case, fs.velocity().normalize());
-        let r = separated_loop(mesh, &fs, &params)?;
+        let r = separated_loop(mesh, &fs, &params, estimate::Operator::Dense)?;
         let (p, l) = (r.last.solution.clone(), r.last.layer.clone());
         return finish(mesh, case, p, Some(l), Some(r), progress);
     }
     finish(mesh, case, potential, None, None, progress)
 }
 
-/// Whether the separated-flow loop runs: always for `wakes = "separated"`
-/// (refused on the compressed operator, which the loop does not use yet),
-/// never for `"attached"`, and for `"auto"` whenever the operator is dense
-/// (a body the attached pass finds no separation on stops after that pass).
-///
-/// # Errors
-/// `wakes = "separated"` on the compressed operator.
-pub fn loop_wanted(mesh: &PanelMesh, case: &Case, operator: estimate::Operator) -> Result<bool> {
-    Ok(match case.wakes {
-        WakesMode::Attached => false,
-        WakesMode::Separated if operator == estimate::Operator::Compressed => bail!(
-            "solver.wakes = \"separated\" needs the dense operator, and {} panels need the compressed one: use fewer panels or wakes = \"auto\"",
-            mesh.len()
-        ),
-        WakesMode::Separated => true,
-        WakesMode::Auto => operator == estimate::Operator::Dense,
-    })
+/// Whether the separated-flow loop runs: not for `wakes = "attached"`,
+/// otherwise always (a body the attached pass finds no separation on
+/// stops after that pass).
+pub fn loop_wanted(case: &Case) -> bool {
+    case.wakes != WakesMode::Attached
 }
 
+/// The loop on the operator the run chose.
 fn separated_loop(
     mesh: &PanelMesh,
     fs: &Freestream,
     layer: &BoundaryLayerParams,
+    operator: estimate::Operator,
 ) -> Result<ViscousLoop> {
-    let loop_params = ViscousLoopParams {
+    let mut loop_params = ViscousLoopParams {
         layer: layer.clone(),
         ..ViscousLoopParams::default()
     };
+    loop_params.potential.linear_solver = match operator {
+        estimate::Operator::Dense => LinearSolver::Auto,
+        estimate::Operator::Compressed => LinearSolver::Compressed,
+    };
+    loop_params.potential.compressed_from = usize::MAX;
     viscous_loop_with_params(mesh, fs, &loop_params)
         .context("potential flow with separated regions")
 }

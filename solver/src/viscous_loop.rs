@@ -46,6 +46,7 @@ use crate::assemble::{InfluenceSystem, assemble, source_sum};
 use crate::boundary_layer::{
     BoundaryLayer, BoundaryLayerError, BoundaryLayerParams, FlowState, screen_boundary_layer,
 };
+use crate::hmatrix::{CompressedSystem, assemble_compressed, solve_compressed};
 use crate::linear::{DenseLu, gmres};
 use crate::potential::{
     Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, post_process,
@@ -181,8 +182,7 @@ pub fn viscous_loop_with_params(
     check(params)?;
     fs.check(&mesh.mirrors).map_err(WakeError::from)?;
     let u = fs.velocity().normalize();
-    let body = assemble(mesh, &params.potential).map_err(WakeError::from)?;
-    let body = Body::new(body, &fs.velocity(), params)?;
+    let body = Body::build(mesh, &fs.velocity(), params)?;
     let base = base_edges(mesh, &u, &params.lines);
     let attached = run_pass(mesh, fs, &body, Vec::new(), &Outflow::default(), params)?;
     let mut last = attached.clone();
@@ -269,25 +269,34 @@ fn check(params: &ViscousLoopParams) -> Result<(), ViscousLoopError> {
 
 /// The body's system when only right-hand sides change (the open dead
 /// water): factored once below [`PotentialParams::krylov_from`] panels,
-/// kept for GMRES (a few dozen products per pass) above; kept assembled
+/// kept for GMRES (a few dozen products per pass) above, compressed from
+/// [`PotentialParams::compressed_from`] (or when asked); kept assembled
 /// to add wake columns each pass for the sheets.
 enum Body {
     Factored { lu: DenseLu, rhs: Vec<f64> },
     Iterative(InfluenceSystem),
+    Compressed(CompressedSystem),
     Assembled(InfluenceSystem),
 }
 
 impl Body {
-    fn new(
-        system: InfluenceSystem,
+    fn build(
+        mesh: &PanelMesh,
         v_inf: &Vector,
         params: &ViscousLoopParams,
     ) -> Result<Self, WakeError> {
-        let krylov = match params.potential.linear_solver {
-            LinearSolver::Auto => system.len() >= params.potential.krylov_from,
-            LinearSolver::DenseLu => false,
-            _ => true,
+        let p = &params.potential;
+        let n = mesh.len();
+        let (compressed, krylov) = match p.linear_solver {
+            LinearSolver::Auto => (n >= p.compressed_from, n >= p.krylov_from),
+            LinearSolver::DenseLu => (false, false),
+            LinearSolver::Krylov => (false, true),
+            LinearSolver::Compressed => (true, true),
         };
+        if params.model == WakeModel::OpenDeadWater && compressed {
+            return Ok(Self::Compressed(assemble_compressed(mesh, p)?));
+        }
+        let system = assemble(mesh, p)?;
         Ok(match params.model {
             WakeModel::OpenDeadWater if krylov => Self::Iterative(system),
             WakeModel::OpenDeadWater => Self::Factored {
@@ -321,11 +330,12 @@ fn run_pass(
             pin_dead_water(&mut system, mesh, &edges);
             Some(system)
         }
-        Body::Factored { .. } | Body::Iterative(_) => None,
+        Body::Factored { .. } | Body::Iterative(_) | Body::Compressed(_) => None,
     };
     let mut rhs = match (&system, body) {
         (Some(system), _) => system.rhs(&v_inf),
         (None, Body::Factored { rhs, .. }) => rhs.clone(),
+        (None, Body::Compressed(c)) => c.rhs(&v_inf),
         (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
     if !open.panels.is_empty() {
@@ -350,6 +360,15 @@ fn run_pass(
             .map_err(WakeError::from)?;
             let stats = SolveStats {
                 method: LinearSolver::Krylov,
+                iterations: Some(s.iterations),
+                residual: s.residual,
+            };
+            (s.x, stats)
+        }
+        (None, Body::Compressed(c)) => {
+            let s = solve_compressed(c, &rhs, &params.potential).map_err(WakeError::from)?;
+            let stats = SolveStats {
+                method: LinearSolver::Compressed,
                 iterations: Some(s.iterations),
                 residual: s.residual,
             };

@@ -133,9 +133,7 @@ pub fn run_group(
                 .unwrap_or_default();
             for (k, ((m, case, _), potential)) in ok.iter().zip(solutions).enumerate() {
                 let t = Instant::now();
-                let own_loop =
-                    pipeline::loop_wanted(&geo.mesh, case, crate::estimate::Operator::Dense)
-                        .unwrap_or(false);
+                let own_loop = pipeline::loop_wanted(case);
                 let matrix = MatrixUse {
                     variants_sharing: ok.len(),
                     factorisations: 1,
