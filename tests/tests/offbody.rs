@@ -89,24 +89,28 @@ fn points_inside_the_body_and_its_image_are_flagged() {
 #[test]
 fn ground_plane_has_no_normal_velocity() {
     // Image method: the reflected body makes the flow mirror-symmetric
-    // about z = h, so w = 0 on the plane exactly (to round-off).
+    // about z = h, so w = 0 on the plane exactly (to round-off), in the
+    // direct sum and in the treecode (which walks the real panels' tree at
+    // the mirrored point, the same point on the plane).
     let mut sphere = generate::icosphere(0.5, 3);
     sphere.map_vertices(|p| p + Vector::new(0.0, 0.0, 0.75));
     let h = 0.0;
     let mesh = PanelMesh::new(sphere, Mirrors::ground(h)).unwrap();
     let sol = solve_potential(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
-    let field = FlowField::new(&mesh, &sol.sigma, &sol.mu, Vector::x(), None).unwrap();
     let points: Vec<Point> = (0..50)
         .map(|k| Point::new(-1.5 + 0.06 * k as f64, 0.3 - 0.01 * k as f64, h))
         .collect();
-    let mut largest_u: f64 = 0.0;
-    for v in field.velocities(&points) {
-        let v = v.unwrap();
-        assert!(v.z.abs() < 1e-12, "w = {}", v.z);
-        largest_u = largest_u.max((v.x - 1.0).abs());
+    for method in [OffBodyMethod::Direct, OffBodyMethod::Tree] {
+        let field = field_with(&mesh, &sol, method, 6.0);
+        let mut largest_u: f64 = 0.0;
+        for v in field.velocities(&points) {
+            let v = v.unwrap();
+            assert!(v.z.abs() < 1e-12, "{method:?}: w = {}", v.z);
+            largest_u = largest_u.max((v.x - 1.0).abs());
+        }
+        // ... and the flow there is disturbed (the check is not vacuous).
+        assert!(largest_u > 0.05, "{largest_u}");
     }
-    // ... and the flow there is disturbed (the check is not vacuous).
-    assert!(largest_u > 0.05, "{largest_u}");
 }
 
 #[test]
@@ -131,7 +135,6 @@ fn circulation_round_a_wing_section_equals_the_wake_jump() {
     };
     let mesh = PanelMesh::new(wing_with_params(&w).unwrap().mesh, Mirrors::none()).unwrap();
     let sol = solve_potential_with_wake(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
-    let field = FlowField::from_wake_solution(&mesh, &sol).unwrap();
     // The wake panel just off midspan; the loop in its mid-plane.
     let k = sol
         .wake
@@ -141,22 +144,50 @@ fn circulation_round_a_wing_section_equals_the_wake_jump() {
         .unwrap();
     let q = sol.wake.panels[k];
     let y = 0.5 * (q[0].y + q[1].y);
-    let (zc, n) = (q[0].z, 200);
+    let zc = q[0].z;
     let corners = [
         Point::new(-1.0, y, zc - 1.0),
         Point::new(3.0, y, zc - 1.0),
         Point::new(3.0, y, zc + 1.0),
         Point::new(-1.0, y, zc + 1.0),
     ];
+    let mu_w = sol.wake.strength[k];
+    assert!(mu_w.abs() > 0.05, "the wing lifts: {mu_w}");
+    // The body sum directly (the default at this size) and on the
+    // treecode; the wake rings are summed directly in both.
+    let s = &sol.solution;
+    let tree = OffBodyParams {
+        method: OffBodyMethod::Tree,
+        ..OffBodyParams::default()
+    };
+    let v = s.freestream.velocity();
+    let fields = [
+        FlowField::from_wake_solution(&mesh, &sol).unwrap(),
+        FlowField::with_params(&mesh, &s.sigma, &s.mu, v, Some(&sol.wake), tree).unwrap(),
+    ];
+    for field in &fields {
+        let gamma = circulation(field, &corners, 200);
+        let tree = field.uses_tree();
+        println!("treecode {tree}: circulation {gamma:.6}, wake strength {mu_w:.6}");
+        // Quadrature error of a smooth integrand (Simpson, 200 intervals
+        // a side): 5e-6 relative seen, 1e-4 allowed.
+        assert!(
+            (gamma - mu_w).abs() < 1e-4 * mu_w.abs(),
+            "treecode {tree}: {gamma} vs {mu_w}"
+        );
+    }
+}
+
+/// Circulation round the closed polygon `corners`, composite Simpson rule
+/// with `n` (even) intervals a side.
+fn circulation(field: &FlowField, corners: &[Point], n: usize) -> f64 {
     let mut gamma = 0.0;
-    for s in 0..4 {
-        let (a, b) = (corners[s], corners[(s + 1) % 4]);
-        // Composite Simpson rule, n intervals per side.
+    for s in 0..corners.len() {
+        let (a, b) = (corners[s], corners[(s + 1) % corners.len()]);
         let pts: Vec<Point> = (0..=n)
             .map(|i| a + (b - a) * (i as f64 / n as f64))
             .collect();
-        let vel = field.velocities(&pts);
-        for (i, v) in vel.iter().enumerate() {
+        for (i, v) in field.velocities(&pts).iter().enumerate() {
             let wgt = if i == 0 || i == n {
                 1.0
             } else if i % 2 == 1 {
@@ -167,15 +198,31 @@ fn circulation_round_a_wing_section_equals_the_wake_jump() {
             gamma += wgt * v.unwrap().dot(&(b - a)) / (3.0 * n as f64);
         }
     }
-    let mu_w = sol.wake.strength[k];
-    println!("circulation {gamma:.6}, wake strength {mu_w:.6}");
-    // Quadrature error of a smooth integrand (Simpson, 200 intervals a
-    // side): 5e-6 relative seen, 1e-4 allowed.
-    assert!(mu_w.abs() > 0.05, "the wing lifts: {mu_w}");
-    assert!(
-        (gamma - mu_w).abs() < 1e-4 * mu_w.abs(),
-        "{gamma} vs {mu_w}"
-    );
+    gamma
+}
+
+#[test]
+fn treecode_matches_the_direct_sum_on_a_half_model() {
+    // Ground and symmetry planes: three images, one of them touching the
+    // body along y = 0, all evaluated by mirroring the point into the real
+    // tree. Reference and tolerance as in the tests above; points on both
+    // sides of the symmetry plane.
+    let body = generate::ahmed_with_params(&AhmedParams {
+        panels: 3000,
+        half: true,
+        ..AhmedParams::default()
+    })
+    .unwrap();
+    let mirrors = Mirrors {
+        ground: Some(0.0),
+        symmetry: true,
+    };
+    let mesh = PanelMesh::new(body, mirrors).unwrap();
+    let pts = slice_points(&mesh, 40, 300);
+    assert!(pts.iter().any(|p| p.y < -0.05) && pts.iter().any(|p| p.y > 0.05));
+    let (exact, _, flags) = tree_against_reference(&mesh, "half Ahmed-type body", &pts);
+    assert!(exact < 1e-4, "{exact:.2e}");
+    assert_eq!(flags, 0);
 }
 
 fn field_with(
@@ -195,7 +242,7 @@ fn field_with(
 
 /// Points of two flow slices like those `tuft run` writes (the plane
 /// y = 0 and the horizontal plane through the middle of the body, from
-/// 0.3 lengths ahead to 0.6 behind), `n` samples along the longer side,
+/// 0.3 lengths ahead to 0.6 behind), `n` samples along the length,
 /// plus shells at 1.5 and 3 panel sizes off each of `near` panels.
 fn slice_points(mesh: &PanelMesh, n: usize, near: usize) -> Vec<Point> {
     let (lo, hi) = mesh.bounds();
@@ -212,8 +259,10 @@ fn slice_points(mesh: &PanelMesh, n: usize, near: usize) -> Vec<Point> {
             pts.push(Point::new(x, 0.0, z));
             z += step;
         }
-        let mut y = -yw;
-        while y <= yw {
+        // From beyond the body's side (not on it: a point on the surface
+        // is inside or outside by round-off).
+        let mut y = -1.2 * yw;
+        while y <= 1.2 * yw {
             pts.push(Point::new(x, y, zm));
             y += step;
         }
@@ -227,8 +276,9 @@ fn slice_points(mesh: &PanelMesh, n: usize, near: usize) -> Vec<Point> {
     pts
 }
 
-/// Largest `|V_tree - V_reference| / U` over the points, and the number of
-/// points whose inside flag differs.
+/// Largest `|V_tree - V| / U` over the points against the exact direct
+/// sum and against the default direct sum, and the number of points the
+/// treecode and the exact sum flag differently as inside.
 fn tree_against_reference(mesh: &PanelMesh, name: &str, pts: &[Point]) -> (f64, f64, usize) {
     let sol = solve_potential(mesh, &Freestream::new(1.0, 0.0)).unwrap();
     let tree = field_with(mesh, &sol, OffBodyMethod::Tree, 6.0);
@@ -243,14 +293,21 @@ fn tree_against_reference(mesh: &PanelMesh, name: &str, pts: &[Point]) -> (f64, 
     let te = t0.elapsed().as_secs_f64();
     let vd = direct.velocities(pts);
     let (mut worst_exact, mut worst_direct, mut flags) = (0.0f64, 0.0f64, 0);
-    for ((t, e), d) in vt.iter().zip(&ve).zip(&vd) {
-        match (t, e, d) {
-            (Some(t), Some(e), Some(d)) => {
-                worst_exact = worst_exact.max((t - e).norm());
-                worst_direct = worst_direct.max((t - d).norm());
-            }
-            (None, None, None) => {}
-            _ => flags += 1,
+    for (((t, e), d), p) in vt.iter().zip(&ve).zip(&vd).zip(pts) {
+        if let (Some(t), Some(e)) = (t, e) {
+            worst_exact = worst_exact.max((t - e).norm());
+        }
+        if let (Some(t), Some(d)) = (t, d) {
+            worst_direct = worst_direct.max((t - d).norm());
+        }
+        if t.is_some() != e.is_some() {
+            eprintln!(
+                "inside flag differs at {p}: tree {} exact {} direct {}",
+                t.is_some(),
+                e.is_some(),
+                d.is_some()
+            );
+            flags += 1;
         }
     }
     eprintln!(
@@ -389,6 +446,29 @@ fn treecode_settings_study() {
         eprintln!(
             "treecode theta {opening} order {order}: {tt:.2} s, max error {:.2e} U",
             err(&vt)
+        );
+    }
+}
+
+#[test]
+fn bad_treecode_settings_are_refused() {
+    use tuft_solver::offbody::OffBodyError;
+    use tuft_solver::offbody::treecode::TreecodeParams;
+    let mesh = PanelMesh::new(generate::icosphere(1.0, 1), Mirrors::none()).unwrap();
+    let sol = solve_potential(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
+    for opening in [0.0, 1.0, f64::NAN] {
+        let params = OffBodyParams {
+            treecode: TreecodeParams {
+                opening,
+                ..TreecodeParams::default()
+            },
+            ..OffBodyParams::default()
+        };
+        let v = Vector::x();
+        let err = FlowField::with_params(&mesh, &sol.sigma, &sol.mu, v, None, params).unwrap_err();
+        assert!(
+            matches!(err, OffBodyError::BadOpening(_)),
+            "{opening}: {err}"
         );
     }
 }
