@@ -387,7 +387,8 @@ fn treecode_gives_the_exact_sphere_flow() {
 
 /// Study behind the treecode's default settings (not a check): error
 /// against the exact direct sum and time for a few opening ratios and
-/// orders on the Ahmed-type body over the ground. Run with
+/// orders on the Ahmed-type body over the ground (times: the fastest of
+/// three evaluations). Run with
 /// `TUFT_STUDY_PANELS=10000 cargo test --release -p tuft-tests --test
 /// offbody treecode_settings_study -- --ignored --nocapture`.
 #[test]
@@ -403,10 +404,16 @@ fn treecode_settings_study() {
     let mesh = PanelMesh::new(body, Mirrors::ground(0.0)).unwrap();
     let sol = solve_potential(&mesh, &Freestream::new(1.0, 0.0)).unwrap();
     let pts = slice_points(&mesh, 60, 300);
+    // Fastest of three evaluations (the machine is shared).
     let timed = |f: &FlowField| {
-        let t0 = std::time::Instant::now();
-        let v = f.velocities(&pts);
-        (v, t0.elapsed().as_secs_f64())
+        let mut best = f64::INFINITY;
+        let mut v = Vec::new();
+        for _ in 0..3 {
+            let t0 = std::time::Instant::now();
+            v = f.velocities(&pts);
+            best = best.min(t0.elapsed().as_secs_f64());
+        }
+        (v, best)
     };
     let (exact, te) = timed(&field_with(
         &mesh,
