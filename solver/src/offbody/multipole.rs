@@ -273,8 +273,14 @@ impl Multipole {
     /// Velocity and solid angle at `p` from the expansion (meaningful
     /// only well outside the ball of [`Multipole::radius`]).
     pub fn evaluate(&self, orders: &Orders, p: &Point) -> FarField {
+        self.evaluate_with(orders, p, &mut Vec::new())
+    }
+
+    /// [`Multipole::evaluate`] with a scratch buffer for the Taylor
+    /// coefficients, reused between calls.
+    pub fn evaluate_with(&self, orders: &Orders, p: &Point, b: &mut Vec<f64>) -> FarField {
         let r = p - self.centre;
-        let b = taylor_coefficients(orders, &r);
+        taylor_coefficients(orders, &r, b);
         let mut v = Vector::zeros();
         let mut solid = 0.0;
         for (pos, (k, up)) in orders.list.iter().zip(&orders.upper).enumerate() {
@@ -291,10 +297,12 @@ impl Multipole {
 }
 
 /// `b_k(R) = (-1)^|k| D^k (1/|R|) / k!` for `|k| <= order + 1`, in the
-/// order of the tables (Lindsay & Krasny 2001, recurrence above).
-fn taylor_coefficients(orders: &Orders, r: &Vector) -> Vec<f64> {
+/// order of the tables, into `b` (Lindsay & Krasny 2001, recurrence
+/// above).
+fn taylor_coefficients(orders: &Orders, r: &Vector, b: &mut Vec<f64>) {
     let r2 = r.norm_squared();
-    let mut b = vec![0.0; orders.list.len()];
+    b.clear();
+    b.resize(orders.list.len(), 0.0);
     b[0] = 1.0 / r2.sqrt();
     for pos in 1..orders.list.len() {
         let k = orders.list[pos];
@@ -310,7 +318,6 @@ fn taylor_coefficients(orders: &Orders, r: &Vector) -> Vec<f64> {
         }
         b[pos] = ((2.0 * deg - 1.0) * one - (deg - 1.0) * two) / (deg * r2);
     }
-    b
 }
 
 #[cfg(test)]

@@ -114,6 +114,7 @@ impl Treecode {
             velocity: Vector::zeros(),
             solid_angle: 0.0,
         };
+        let mut scratch = Vec::new();
         for r in &self.reflections {
             let q = Point::from((p - Point::from(r.offset)).component_mul(&r.scale));
             let mut own = FarField {
@@ -121,7 +122,7 @@ impl Treecode {
                 solid_angle: 0.0,
             };
             if !self.tree.is_empty() {
-                self.walk(&q, 0, &mut own);
+                self.walk(&q, 0, &mut own, &mut scratch);
             }
             sum.velocity += r.vector(&own.velocity);
             sum.solid_angle += own.solid_angle;
@@ -129,18 +130,18 @@ impl Treecode {
         sum
     }
 
-    fn walk(&self, p: &Point, id: usize, acc: &mut FarField) {
+    fn walk(&self, p: &Point, id: usize, acc: &mut FarField, scratch: &mut Vec<f64>) {
         let mp = &self.moments[id];
         if mp.radius * mp.radius < self.opening2 * (p - mp.centre).norm_squared() {
-            let f = mp.evaluate(&self.orders, p);
+            let f = mp.evaluate_with(&self.orders, p, scratch);
             acc.velocity += f.velocity;
             acc.solid_angle += f.solid_angle;
             return;
         }
         let c = &self.tree.clusters[id];
         if let Some((a, b)) = c.sons {
-            self.walk(p, a, acc);
-            self.walk(p, b, acc);
+            self.walk(p, a, acc, scratch);
+            self.walk(p, b, acc, scratch);
             return;
         }
         for (panel, s, m) in &self.panels[c.start..c.end] {
