@@ -20,7 +20,9 @@
 //! (Lindsay & Krasny, *J. Comput. Phys.* 172, 2001, eq. 10 (from memory);
 //! Duan & Krasny 2001). So `Phi = sum_k b_k(R) m_k` with the moments
 //! `m_k = sum [q s^k - sum_i d_i k_i s^(k - e_i)]`, and
-//! `v_i = -sum_k (k_i + 1) b_(k + e_i) m_k`. Truncated at `|k| <= p`, the
+//! `v_i = -sum_k (k_i + 1) b_(k + e_i) m_k`; the solid angle is
+//! `sum_k b_k w_k` with `w_k = -sum sum_i e_i k_i s^(k - e_i)` (the doublet
+//! moments with `e` for `d`, no source). Truncated at `|k| <= p`, the
 //! relative error of a cluster of radius `rho` is of order
 //! `(rho/|R|)^(p+1)` for sources and `(rho/|R|)^p` for doublets.
 //! Parents' moments come from their sons' by the binomial shift
