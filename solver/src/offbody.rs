@@ -14,10 +14,19 @@
 //! the velocity is that of the mirrored half, which is the real flow of the
 //! full body.
 //!
+//! The body sum is either direct (every panel and image at every point,
+//! `O(points x panels)`) or a treecode over the panels' cluster tree with
+//! multipole expansions of far clusters ([`treecode`], [`multipole`]);
+//! [`OffBodyMethod::Auto`] picks the treecode from
+//! [`OffBodyParams::tree_from`] panels. The wake is always summed
+//! directly (a few hundred rings at most).
+//!
 //! Evaluation is parallel over points (rayon); each point's sum runs in a
 //! fixed order, so results do not depend on the thread count.
 
 pub mod kernels;
+pub mod multipole;
+pub mod treecode;
 
 use std::f64::consts::PI;
 
@@ -29,19 +38,46 @@ use crate::influence::image_panels;
 use crate::wake::{Wake, WakeSolution};
 
 use kernels::{panel_velocity, ring_velocity};
+use treecode::{Treecode, TreecodeParams};
+
+/// How the body panels' velocity is summed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum OffBodyMethod {
+    /// [`OffBodyMethod::Direct`] below [`OffBodyParams::tree_from`] real
+    /// panels, [`OffBodyMethod::Tree`] from there.
+    Auto,
+    /// Every panel and image at every point: the reference.
+    Direct,
+    /// The treecode of [`treecode`].
+    Tree,
+}
 
 /// Settings of the off-body evaluation.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct OffBodyParams {
-    /// Beyond this many panel sizes a panel acts as a point source and a
-    /// point doublet (default 6, as in the surface solve).
+    /// In the direct sum, beyond this many panel sizes a panel acts as a
+    /// point source and a point doublet (default 6, as in the surface
+    /// solve); `f64::INFINITY` for the exact kernels everywhere. The
+    /// treecode uses the exact kernels for every panel it does not expand.
     pub far_field_ratio: f64,
+    /// Direct sum or treecode.
+    pub method: OffBodyMethod,
+    /// Real panel count from which [`OffBodyMethod::Auto`] uses the
+    /// treecode (default 2,000: from about 1,000 panels up the treecode
+    /// was measured faster than the direct sum, see BENCHMARKS.md; small
+    /// meshes keep the direct sum).
+    pub tree_from: usize,
+    /// Settings of the treecode.
+    pub treecode: TreecodeParams,
 }
 
 impl Default for OffBodyParams {
     fn default() -> Self {
         Self {
             far_field_ratio: 6.0,
+            method: OffBodyMethod::Auto,
+            tree_from: 2000,
+            treecode: TreecodeParams::default(),
         }
     }
 }
@@ -70,6 +106,9 @@ pub enum OffBodyError {
     /// A far-field ratio that is not positive.
     #[error("far-field ratio {0} is not a positive number")]
     BadFarFieldRatio(f64),
+    /// A treecode opening ratio outside (0, 1).
+    #[error("treecode opening ratio {0} is not between 0 and 1")]
+    BadOpening(f64),
 }
 
 /// The solved flow, ready to be evaluated anywhere.
@@ -97,6 +136,8 @@ pub struct FlowField {
     v_inf: Vector,
     ground: Option<f64>,
     params: OffBodyParams,
+    /// The treecode, when chosen (then `bodies` is unused).
+    tree: Option<Treecode>,
 }
 
 impl FlowField {
@@ -119,7 +160,8 @@ impl FlowField {
     /// [`FlowField::new`] with explicit settings.
     ///
     /// # Errors
-    /// As [`FlowField::new`], and [`OffBodyError::BadFarFieldRatio`].
+    /// As [`FlowField::new`], [`OffBodyError::BadFarFieldRatio`] and
+    /// [`OffBodyError::BadOpening`].
     pub fn with_params(
         mesh: &PanelMesh,
         sigma: &[f64],
@@ -132,9 +174,25 @@ impl FlowField {
         if params.far_field_ratio.is_nan() || params.far_field_ratio <= 0.0 {
             return Err(OffBodyError::BadFarFieldRatio(params.far_field_ratio));
         }
+        let opening = params.treecode.opening;
+        if !(opening > 0.0 && opening < 1.0) {
+            return Err(OffBodyError::BadOpening(opening));
+        }
         let reflections = mesh.mirrors.images();
-        let mut bodies = vec![mesh.panels.clone()];
-        bodies.extend(image_panels(&mesh.panels, &reflections));
+        let use_tree = match params.method {
+            OffBodyMethod::Auto => mesh.len() >= params.tree_from,
+            OffBodyMethod::Direct => false,
+            OffBodyMethod::Tree => true,
+        };
+        let tree =
+            use_tree.then(|| Treecode::new(&mesh.panels, sigma, mu, &reflections, params.treecode));
+        let bodies = if use_tree {
+            Vec::new()
+        } else {
+            let mut b = vec![mesh.panels.clone()];
+            b.extend(image_panels(&mesh.panels, &reflections));
+            b
+        };
         let wakes = wake.map_or_else(Vec::new, |w| {
             let mut all = vec![w.clone()];
             all.extend(reflections.iter().map(|r| w.reflected(r)));
@@ -148,6 +206,7 @@ impl FlowField {
             v_inf,
             ground: mesh.mirrors.ground,
             params,
+            tree,
         })
     }
 
@@ -172,18 +231,11 @@ impl FlowField {
         if self.ground.is_some_and(|h| p.z < h) {
             return None;
         }
-        let mut v = self.v_inf;
-        let mut solid = 0.0;
-        for body in &self.bodies {
-            for ((panel, s), m) in body.iter().zip(&self.sigma).zip(&self.mu) {
-                let k = panel_velocity(p, panel, self.params.far_field_ratio);
-                v += k.source * *s + k.doublet * *m;
-                solid += k.solid_angle;
-            }
-        }
+        let (body, solid) = self.body_sum(p);
         if solid < -2.0 * PI {
             return None;
         }
+        let mut v = self.v_inf + body;
         for wake in &self.wakes {
             for (q, m) in wake.panels.iter().zip(&wake.strength) {
                 v += ring_velocity(p, q) * *m;
@@ -196,13 +248,31 @@ impl FlowField {
     /// angle of the body panels below `-2 pi`; it is `-4 pi` inside and
     /// zero outside a closed surface).
     pub fn is_inside(&self, p: &Point) -> bool {
-        let solid: f64 = self
-            .bodies
-            .iter()
-            .flatten()
-            .map(|panel| panel_velocity(p, panel, self.params.far_field_ratio).solid_angle)
-            .sum();
-        solid < -2.0 * PI
+        self.body_sum(p).1 < -2.0 * PI
+    }
+
+    /// True when the body sum runs on the treecode.
+    pub fn uses_tree(&self) -> bool {
+        self.tree.is_some()
+    }
+
+    /// Velocity of the body panels and images (free stream and wake left
+    /// out) and their total solid angle at `p`.
+    fn body_sum(&self, p: &Point) -> (Vector, f64) {
+        if let Some(tree) = &self.tree {
+            let f = tree.evaluate(p);
+            return (f.velocity, f.solid_angle);
+        }
+        let mut v = Vector::zeros();
+        let mut solid = 0.0;
+        for body in &self.bodies {
+            for ((panel, s), m) in body.iter().zip(&self.sigma).zip(&self.mu) {
+                let k = panel_velocity(p, panel, self.params.far_field_ratio);
+                v += k.source * *s + k.doublet * *m;
+                solid += k.solid_angle;
+            }
+        }
+        (v, solid)
     }
 
     /// Velocities at many points, in parallel.
