@@ -30,6 +30,23 @@ const FIXED_BYTES: f64 = 60e6;
 /// panel: the operator plus the boundary-layer streamlines, slices and
 /// pictures). 60 KB keeps the estimate above that.
 const COMPRESSED_BYTES_PER_PANEL: f64 = 60e3;
+/// Bytes per panel the separated-flow loop adds to a run on either
+/// operator: the boundary layer is marched (and its streamlines kept for
+/// the attached and the last pass) while the operator is still held.
+/// Measured peaks of the concept coupe over the ground with the loop: 951
+/// MB at 10,048 dense panels (59 MB above the attached-run estimate), 3.43
+/// GB at 19,844 (0.13 GB above), 9.41 GB at 99,696 compressed (3.35 GB
+/// above: 34 KB per panel; the attached run peaked at 5.72 GB). 40 KB keeps
+/// the estimate above every one.
+const LOOP_BYTES_PER_PANEL: f64 = 40e3;
+/// Right-hand sides the loop solves on the dense operator (the attached
+/// pass and up to five more; the matrix is assembled once).
+const LOOP_SOLVES: f64 = 6.0;
+/// The loop's cost over the attached build and solve on the compressed
+/// operator (measured 3.4 times at 99,696 panels: five passes, each a
+/// boundary-layer march and a preconditioned solve).
+const LOOP_COMPRESSED_FACTOR: f64 = 3.5;
+
 /// Seconds per `N log2 N` of the compressed build and solve on the 2-core
 /// reference machine (45 s at 99,840 panels with a ground image, loaded by
 /// other builds: an upper bound).
@@ -49,8 +66,13 @@ pub enum Operator {
 /// the solver's `Auto` does (compressed from
 /// `PotentialParams::compressed_from` panels on), or compressed when a
 /// dense matrix would not fit in `available` bytes.
-pub fn operator_for(n: usize, forced: Option<Operator>, available: Option<f64>) -> Operator {
-    let too_big = available.is_some_and(|a| memory_for(n, Operator::Dense) > a);
+pub fn operator_for(
+    n: usize,
+    forced: Option<Operator>,
+    available: Option<f64>,
+    loop_on: bool,
+) -> Operator {
+    let too_big = available.is_some_and(|a| memory_for(n, Operator::Dense, loop_on) > a);
     let by_size = n >= tuft_solver::PotentialParams::default().compressed_from;
     forced.unwrap_or(if by_size || too_big {
         Operator::Compressed
@@ -70,21 +92,33 @@ pub struct Estimate {
     pub seconds_per_pair: f64,
 }
 
-/// Expected peak memory of a run with `n` panels on `op`.
-pub fn memory_for(n: usize, op: Operator) -> f64 {
+/// Expected peak memory of a run with `n` panels on `op`, with or without
+/// the separated-flow loop.
+pub fn memory_for(n: usize, op: Operator, loop_on: bool) -> f64 {
     let n = n as f64;
-    match op {
-        Operator::Dense => OVERHEAD * ENTRY * n * n + FIXED_BYTES,
-        Operator::Compressed => COMPRESSED_BYTES_PER_PANEL * n + FIXED_BYTES,
-    }
+    let extra = if loop_on {
+        LOOP_BYTES_PER_PANEL * n
+    } else {
+        0.0
+    };
+    extra
+        + match op {
+            Operator::Dense => OVERHEAD * ENTRY * n * n + FIXED_BYTES,
+            Operator::Compressed => COMPRESSED_BYTES_PER_PANEL * n + FIXED_BYTES,
+        }
 }
 
 /// The largest panel count whose run on `op` fits in `bytes`.
-pub fn panels_fitting(bytes: f64, op: Operator) -> usize {
+pub fn panels_fitting(bytes: f64, op: Operator, loop_on: bool) -> usize {
     let room = (bytes - FIXED_BYTES).max(0.0);
+    let per = if loop_on { LOOP_BYTES_PER_PANEL } else { 0.0 };
     match op {
-        Operator::Dense => (room / (OVERHEAD * ENTRY)).sqrt() as usize,
-        Operator::Compressed => (room / COMPRESSED_BYTES_PER_PANEL) as usize,
+        // a n^2 + per n = room
+        Operator::Dense => {
+            let a = OVERHEAD * ENTRY;
+            ((-per + (per * per + 4.0 * a * room).sqrt()) / (2.0 * a)) as usize
+        }
+        Operator::Compressed => (room / (COMPRESSED_BYTES_PER_PANEL + per)) as usize,
     }
 }
 
@@ -92,7 +126,7 @@ pub fn panels_fitting(bytes: f64, op: Operator) -> usize {
 /// whole assembly (N^2 pairs per image) on `threads` cores; the Krylov
 /// solve adds about 20 dense matrix-vector products. The compressed
 /// operator is scaled from its measured `N log N` cost instead.
-pub fn estimate(mesh: &PanelMesh, threads: usize, op: Operator) -> Estimate {
+pub fn estimate(mesh: &PanelMesh, threads: usize, op: Operator, loop_on: bool) -> Estimate {
     let n = mesh.len();
     let step = (n / 64).max(1);
     let targets: Vec<_> = mesh.panels.iter().step_by(step).collect();
@@ -111,14 +145,16 @@ pub fn estimate(mesh: &PanelMesh, threads: usize, op: Operator) -> Estimate {
     let assembly = per_pair * nn * images as f64 / threads.max(1) as f64;
     let solve = 20.0 * 2.0 * nn / 2e9;
     let seconds = match op {
+        Operator::Dense if loop_on => assembly + LOOP_SOLVES * solve,
         Operator::Dense => assembly + solve,
         Operator::Compressed => {
             let n = n as f64;
-            COMPRESSED_SECONDS_PER_NLOGN * n * n.log2() * images as f64 / 2.0
+            let factor = if loop_on { LOOP_COMPRESSED_FACTOR } else { 1.0 };
+            factor * COMPRESSED_SECONDS_PER_NLOGN * n * n.log2() * images as f64 / 2.0
         }
     };
     Estimate {
-        memory_bytes: memory_for(n, op),
+        memory_bytes: memory_for(n, op, loop_on),
         seconds,
         seconds_per_pair: per_pair,
     }
@@ -136,25 +172,33 @@ pub fn available_memory(limit: Option<f64>) -> Option<f64> {
 }
 
 /// Refuse a run that would not fit, suggesting a panel count that does.
-pub fn check_fits(n: usize, op: Operator, half_model: bool, available: Option<f64>) -> Result<()> {
+pub fn check_fits(
+    n: usize,
+    op: Operator,
+    (half_model, loop_on): (bool, bool),
+    available: Option<f64>,
+) -> Result<()> {
     let Some(avail) = available else {
         return Ok(());
     };
-    let need = memory_for(n, op);
+    let need = memory_for(n, op, loop_on);
     if need > avail {
-        if op == Operator::Dense && memory_for(n, Operator::Compressed) <= avail {
+        if op == Operator::Dense && memory_for(n, Operator::Compressed, loop_on) <= avail {
             bail!(
                 "{n} panels need about {:.2} GB with a dense matrix but only {:.2} GB is available: \
                  set solver.linear = \"compressed\" (or \"auto\"), which fits, or set geometry.panels to {} or fewer",
                 need / 1e9,
                 avail / 1e9,
-                (panels_fitting(avail, op) / 100 * 100).max(100)
+                (panels_fitting(avail, op, loop_on) / 100 * 100).max(100)
             );
         }
         // The larger count that fits on either operator (the run picks the
         // operator that fits).
-        let most =
-            panels_fitting(avail, Operator::Dense).max(panels_fitting(avail, Operator::Compressed));
+        let most = panels_fitting(avail, Operator::Dense, loop_on).max(panels_fitting(
+            avail,
+            Operator::Compressed,
+            loop_on,
+        ));
         let fit = (most / 100 * 100).max(100);
         let half = if half_model {
             String::new()
@@ -163,9 +207,14 @@ pub fn check_fits(n: usize, op: Operator, half_model: bool, available: Option<f6
                which solves half the panels in a quarter of the memory)"
                 .to_string()
         };
+        let attached = if loop_on {
+            ", or solver.wakes = \"attached\" (no separated-flow loop, less memory)"
+        } else {
+            ""
+        };
         bail!(
             "{n} panels need about {:.2} GB but only {:.2} GB is available: set geometry.panels to \
-             {fit} or fewer{half}",
+             {fit} or fewer{half}{attached}",
             need / 1e9,
             avail / 1e9
         );
@@ -205,20 +254,26 @@ mod tests {
 
     #[test]
     fn refusal_suggests_a_count_that_fits() {
-        let err = check_fits(20_000, Operator::Compressed, false, Some(0.5e9))
+        let err = check_fits(20_000, Operator::Compressed, (false, true), Some(0.5e9))
             .unwrap_err()
             .to_string();
         assert!(
-            err.contains("geometry.panels") && err.contains("half model"),
+            err.contains("geometry.panels")
+                && err.contains("half model")
+                && err.contains("attached"),
             "{err}"
         );
         for op in [Operator::Dense, Operator::Compressed] {
-            let fit = panels_fitting(1e9, op);
-            assert!(memory_for(fit, op) <= 1e9 && memory_for(fit + 10, op) > 1e9);
-            assert!(check_fits(fit, op, false, Some(1e9)).is_ok());
+            for loop_on in [false, true] {
+                let fit = panels_fitting(1e9, op, loop_on);
+                assert!(
+                    memory_for(fit, op, loop_on) <= 1e9 && memory_for(fit + 10, op, loop_on) > 1e9
+                );
+                assert!(check_fits(fit, op, (false, loop_on), Some(1e9)).is_ok());
+            }
         }
         // A dense run that would fit on the compressed operator says so.
-        let err = check_fits(15_000, Operator::Dense, false, Some(1e9))
+        let err = check_fits(15_000, Operator::Dense, (false, false), Some(1e9))
             .unwrap_err()
             .to_string();
         assert!(err.contains("compressed"), "{err}");
@@ -226,14 +281,17 @@ mod tests {
 
     #[test]
     fn the_size_picks_the_operator_unless_forced() {
-        assert_eq!(operator_for(5_000, None, None), Operator::Dense);
-        assert_eq!(operator_for(50_000, None, None), Operator::Compressed);
+        assert_eq!(operator_for(5_000, None, None, true), Operator::Dense);
+        assert_eq!(operator_for(50_000, None, None, true), Operator::Compressed);
         assert_eq!(
-            operator_for(50_000, Some(Operator::Dense), None),
+            operator_for(50_000, Some(Operator::Dense), None, true),
             Operator::Dense
         );
         // 15,000 panels dense need 1.9 GB: with 1 GB free, compressed.
-        assert_eq!(operator_for(15_000, None, Some(1e9)), Operator::Compressed);
-        assert_eq!(operator_for(15_000, None, Some(4e9)), Operator::Dense);
+        assert_eq!(
+            operator_for(15_000, None, Some(1e9), false),
+            Operator::Compressed
+        );
+        assert_eq!(operator_for(15_000, None, Some(4e9), true), Operator::Dense);
     }
 }

@@ -135,9 +135,15 @@ pub fn compute(
 ) -> Result<Computed> {
     let flow = &case.file.flow;
     let available = estimate::available_memory(memory_limit);
-    let operator = estimate::operator_for(mesh.len(), case.operator, available);
-    estimate::check_fits(mesh.len(), operator, mesh.mirrors.symmetry, available)?;
-    let guess = estimate::estimate(mesh, rayon::current_num_threads(), operator);
+    let loop_on = loop_wanted(case);
+    let operator = estimate::operator_for(mesh.len(), case.operator, available, loop_on);
+    estimate::check_fits(
+        mesh.len(),
+        operator,
+        (mesh.mirrors.symmetry, loop_on),
+        available,
+    )?;
+    let guess = estimate::estimate(mesh, rayon::current_num_threads(), operator, loop_on);
     progress.note(&format!(
         "{} panels, {} operator: expect about {:.0} s for the solve and {:.2} GB of memory",
         mesh.len(),
