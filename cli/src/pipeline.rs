@@ -9,7 +9,8 @@ use tuft_solver::boundary_layer::{
 };
 use tuft_solver::loads::{self, Loads, Reference, friction_vectors};
 use tuft_solver::viscous_loop::{
-    ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp, viscous_loop_with_params,
+    LoopPass, ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp,
+    viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
 use tuft_solver::{
@@ -163,7 +164,8 @@ pub fn compute(
     let run_loop = loop_wanted(case);
     let (potential, layer, wake_loop) = if run_loop {
         let r = separated_loop(mesh, &fs, &params, operator)?;
-        (r.last.solution.clone(), Some(r.last.layer.clone()), Some(r))
+        let (solution, layer, run) = LoopRun::split(r);
+        (solution, Some(layer), Some(run))
     } else {
         let solver = PotentialParams {
             linear_solver: match operator {
@@ -222,7 +224,7 @@ pub fn compute_from_potential(
         let fs = potential.freestream;
         let params = layer_params(case, fs.velocity().normalize());
         let r = separated_loop(mesh, &fs, &params, estimate::Operator::Dense)?;
-        let (p, l) = (r.last.solution.clone(), r.last.layer.clone());
+        let (p, l, r) = LoopRun::split(r);
         return finish(mesh, case, p, Some(l), Some(r), progress);
     }
     finish(mesh, case, potential, None, None, progress)
@@ -261,7 +263,7 @@ fn finish(
     case: &Case,
     potential: PotentialSolution,
     layer: Option<BoundaryLayer>,
-    wake_loop: Option<ViscousLoop>,
+    wake_loop: Option<LoopRun>,
     progress: &mut Progress,
 ) -> Result<Computed> {
     let flow = &case.file.flow;
@@ -298,9 +300,22 @@ fn finish(
         .map_or(&potential.cp, |r| &r.attached.solution.cp);
     let attached = loads::integrate_loads(mesh, attached_cp, None, &reference, &air)?;
     let dead_water = wake_loop.is_some().then_some(&layer);
+    let dead_water_run = dead_water.is_some();
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
-    let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water.is_some());
+    let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water_run);
     let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
+    // The loop's summary needs its attached pass; done here so that pass
+    // (with its streamlines) is freed before the sensitivity passes.
+    let wakes = match wake_loop {
+        Some(r) => Some(wake_summary(
+            mesh,
+            r,
+            (&estimate, &cp_separated),
+            &reference,
+            &air,
+        )?),
+        None => None,
+    };
     let (mut drag_band, mut band_note) = drag_band(
         mesh,
         &potential,
@@ -322,10 +337,6 @@ fn finish(
         &format!("drag estimate {:.3}", estimate.total.coefficients.drag),
     );
 
-    let wakes = match wake_loop {
-        Some(r) => Some(wake_summary(mesh, r, &reference, &air, &fs)?),
-        None => None,
-    };
     let separated_area = mesh
         .panels
         .iter()
@@ -389,20 +400,63 @@ fn separated_cp(
     }
 }
 
-/// Loads and base pressures of the loop's last pass beside the attached
-/// pass's plateau estimate.
+/// What `finish` keeps of the separated-flow loop beside the last pass's
+/// solution and boundary layer (which become the run's own).
+pub struct LoopRun {
+    /// The attached pass.
+    pub attached: LoopPass,
+    /// Passes run, the attached pass included.
+    pub passes: usize,
+    /// Whether the separated set settled.
+    pub converged: bool,
+    /// Whether a pass blew up and was discarded.
+    pub diverged: bool,
+    /// The wake sheets of the last pass (none for the open dead water).
+    pub wake: Wake,
+}
+
+impl LoopRun {
+    /// The last pass's solution and layer, and the rest, without copies.
+    fn split(r: ViscousLoop) -> (PotentialSolution, BoundaryLayer, Self) {
+        let ViscousLoop {
+            attached,
+            last,
+            passes,
+            converged,
+            diverged,
+            ..
+        } = r;
+        let LoopPass {
+            solution,
+            layer,
+            wake,
+            ..
+        } = last;
+        let run = Self {
+            attached,
+            passes,
+            converged,
+            diverged,
+            wake,
+        };
+        (solution, layer, run)
+    }
+}
+
+/// The loop's figures: its loads and pressure (the run's estimate and
+/// separated-region Cp, `last`) beside the attached pass's plateau
+/// estimate and both base pressures.
 fn wake_summary(
     mesh: &PanelMesh,
-    r: ViscousLoop,
+    r: LoopRun,
+    last: (&Loads, &[f64]),
     reference: &Reference,
     air: &loads::FlowState,
-    fs: &Freestream,
 ) -> Result<WakeLoop> {
+    let fs = r.attached.solution.freestream;
     let u = fs.velocity().normalize();
     let deg = ViscousLoopParams::default().lines.base_normal_deg;
     let first = plateau_cp(mesh, &r.attached.solution.cp, &r.attached.layer);
-    let friction = friction_vectors(&r.last.solution.velocity, &r.last.layer, fs.speed);
-    let cp = separated_cp(mesh, &r.last.solution, &r.last.layer, &friction, true);
     let friction_first =
         friction_vectors(&r.attached.solution.velocity, &r.attached.layer, fs.speed);
     let loads_plateau =
@@ -412,10 +466,10 @@ fn wake_summary(
         passes: r.passes,
         converged: r.converged,
         diverged: r.diverged,
-        loads: loads::integrate_loads(mesh, &cp, Some(&friction), reference, air)?,
+        loads: *last.0,
         base_cp_plateau: base_pressure(mesh, &first, &u, deg),
-        base_cp_loop: base_pressure(mesh, &cp, &u, deg),
-        wake: r.last.wake,
+        base_cp_loop: base_pressure(mesh, last.1, &u, deg),
+        wake: r.wake,
     })
 }
 

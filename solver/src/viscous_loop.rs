@@ -185,12 +185,15 @@ pub fn viscous_loop_with_params(
     let body = Body::build(mesh, &fs.velocity(), params)?;
     let base = base_edges(mesh, &u, &params.lines);
     let attached = run_pass(mesh, fs, &body, Vec::new(), &Outflow::default(), params)?;
-    let mut last = attached.clone();
+    // The last pass after the attached one (none yet): no copy of the
+    // attached pass, whose streamlines are large on a big mesh.
+    let mut later: Option<LoopPass> = None;
     let (mut passes, mut converged, mut changes) = (1, false, Vec::new());
     let mut diverged = false;
     let mut dead = DeadWater::new(mesh, fs.velocity(), params);
-    dead.grow(&last.layer, &last.solution.velocity);
+    dead.grow(&attached.layer, &attached.solution.velocity);
     while passes < params.max_passes {
+        let last = later.as_ref().unwrap_or(&attached);
         let states: Vec<FlowState> = last.layer.panels.iter().map(|l| l.state).collect();
         let open = match params.model {
             WakeModel::Sheets => Outflow::default(),
@@ -223,12 +226,13 @@ pub fn viscous_loop_with_params(
         let grown = dead.grow(&next.layer, &next.solution.velocity);
         dead.impose(&mut next.layer);
         changes.push(grown);
-        last = next;
+        later = Some(next);
         if (grown as f64) < (params.change_fraction * before as f64).max(1.0) {
             converged = true;
             break;
         }
     }
+    let last = later.unwrap_or_else(|| attached.clone());
     Ok(ViscousLoop {
         attached,
         last,
