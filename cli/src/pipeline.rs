@@ -23,6 +23,11 @@ use crate::progress::Progress;
 
 /// Everything computed for one case.
 pub struct Computed {
+    /// Cp the outputs show: the potential flow's, with the dead water at
+    /// its pressure when the separated-flow loop ran (the loop's own
+    /// potential Cp there is that of the free stream let through, not a
+    /// pressure).
+    pub surface_cp: Vec<f64>,
     /// Potential-flow solution on the real panels.
     pub potential: PotentialSolution,
     /// Boundary layer with the case's settings.
@@ -359,7 +364,13 @@ fn finish(
                 .into(),
         );
     }
+    let surface_cp = if dead_water_run {
+        cp_separated
+    } else {
+        potential.cp.clone()
+    };
     Ok(Computed {
+        surface_cp,
         potential,
         layer,
         attached,

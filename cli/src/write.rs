@@ -71,7 +71,7 @@ impl Fields {
     pub fn surface<'a>(&'a self, mesh: &'a PanelMesh, c: &'a Computed) -> SurfaceResult<'a> {
         SurfaceResult {
             mesh,
-            cp: &c.potential.cp,
+            cp: &c.surface_cp,
             velocity: &c.potential.velocity,
             theta: &self.theta,
             shape_factor: &self.shape_factor,
