@@ -321,7 +321,7 @@ fn finish(
         )?),
         None => None,
     };
-    let (mut drag_band, mut band_note) = drag_band(
+    let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
         (&params, dead_water),
@@ -330,13 +330,6 @@ fn finish(
         estimate.total.coefficients.drag,
         attached.total.coefficients.drag.abs(),
     )?;
-    if dead_water.is_some() {
-        drag_band.1 += LOOP_DRAG_SHORTFALL;
-        band_note.push_str(&format!(
-            "; raised by {LOOP_DRAG_SHORTFALL} at the top, the most the separated-flow loop fell short of \
-             the measured drag of the slant-back research body (0 to 35 degrees)"
-        ));
-    }
     progress.end(
         phase,
         &format!("drag estimate {:.3}", estimate.total.coefficients.drag),
@@ -535,6 +528,20 @@ fn drag_band(
             .drag;
         lo = lo.min(cd);
         hi = hi.max(cd);
+    }
+    if dead_water.is_some() {
+        // The attached flow's residual comes mostly from the suction peaks
+        // at the edges the flow separates from, which the loop removes: on
+        // the slant-back body the loop's drag moved by at most 0.002 when
+        // the panels doubled (BENCHMARKS.md), so it is not added here.
+        return Ok((
+            (lo, hi + LOOP_DRAG_SHORTFALL),
+            format!(
+                "separation threshold H 2.0-2.8, fully turbulent boundary layer; raised by \
+                 {LOOP_DRAG_SHORTFALL} at the top, the most the separated-flow loop fell short of the \
+                 measured drag of the slant-back research body (0 to 35 degrees)"
+            ),
+        ));
     }
     Ok((
         (lo - residual, hi + residual),
