@@ -57,7 +57,9 @@ fn main() {
     );
     println!("| --- | --- | --- | --- | --- | --- | --- | --- | --- |");
     for &n in &sizes {
-        let mut runs: Vec<Run> = (0..reps).map(|_| run_case(dir.path(), n, "auto")).collect();
+        let mut runs: Vec<Run> = (0..reps)
+            .map(|_| run_case(dir.path(), n, "separated"))
+            .collect();
         let attached = median(
             (0..reps)
                 .map(|_| run_case(dir.path(), n, "attached").seconds)

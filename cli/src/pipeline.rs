@@ -60,8 +60,8 @@ pub struct WakeLoop {
     pub converged: bool,
     /// Whether a pass blew up and was discarded.
     pub diverged: bool,
-    /// Loads of the last pass: separated panels at the Cp of the last
-    /// pass's flow at their separation line, plus friction.
+    /// Loads of the last pass: the dead water at its pressure
+    /// (`dead_water_cp`), plus friction (the run's drag estimate).
     pub loads: Loads,
     /// Loads of the attached pass with the plateau model, plus friction
     /// (the estimate without the loop).
@@ -228,7 +228,15 @@ pub fn compute_from_potential(
     if loop_wanted(case) {
         let fs = potential.freestream;
         let params = layer_params(case, fs.velocity().normalize());
-        let r = separated_loop(mesh, &fs, &params, estimate::Operator::Dense)?;
+        let available = estimate::available_memory(None);
+        let operator = estimate::operator_for(mesh.len(), case.operator, available, true);
+        estimate::check_fits(
+            mesh.len(),
+            operator,
+            (mesh.mirrors.symmetry, true),
+            available,
+        )?;
+        let r = separated_loop(mesh, &fs, &params, operator)?;
         let (p, l, r) = LoopRun::split(r);
         return finish(mesh, case, p, Some(l), Some(r), progress);
     }
@@ -514,9 +522,10 @@ fn drag_band(
         let mut layer = screen_boundary_layer(mesh, &potential.velocity, air.speed, params)?;
         if let Some(dead) = dead_water {
             // The loop's dead water stays dead whatever the threshold.
-            for (l, d) in layer.panels.iter_mut().zip(&dead.panels) {
+            for (t, d) in dead.panels.iter().enumerate() {
                 if d.state == FlowState::Separated {
-                    *l = *d;
+                    layer.panels[t] = *d;
+                    layer.separation_source[t] = dead.separation_source[t];
                 }
             }
         }

@@ -126,7 +126,9 @@ pub struct Summary {
     pub dynamic_pressure_pa: f64,
     /// Reynolds number on the reference length.
     pub reynolds_number: f64,
-    /// Coefficients of the drag estimate (plateau pressure plus friction).
+    /// Coefficients of the drag estimate: pressure (the dead water at its
+    /// pressure after the separated-flow loop, the plateau model with
+    /// attached flow only) plus friction.
     pub coefficients: CoefficientSet,
     /// Coefficients of the attached potential flow (pressure only).
     pub coefficients_attached: CoefficientSet,
@@ -138,8 +140,8 @@ pub struct Summary {
     pub separation: Separation,
     /// Solver facts.
     pub solver: SolverFacts,
-    /// The separated-flow loop (absent when it did not run: attached flow
-    /// asked for, or the compressed operator).
+    /// The separated-flow loop (absent when the case asked for attached
+    /// flow only).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub separated_wakes: Option<SeparatedWakes>,
     /// Seconds per phase.
@@ -160,17 +162,18 @@ pub struct SeparatedWakes {
     /// Whether a pass blew up and was discarded.
     pub diverged: bool,
     /// Drag coefficient of the attached pass with the plateau model and
-    /// friction (the same as `drag_estimate.cd`).
+    /// friction (what `wakes = "attached"` would report).
     pub cd_plateau: f64,
-    /// Drag coefficient of the last pass: separated panels at the Cp of the
-    /// flow with its wakes at their separation line, plus friction.
+    /// Drag coefficient of the last pass with the dead water at its
+    /// pressure, plus friction (the same as `drag_estimate.cd`).
     pub cd_loop: f64,
     /// Base pressure coefficient of the attached pass with the plateau
     /// model (mean Cp over downstream-facing panels).
     pub base_cp_plateau: Option<f64>,
     /// Base pressure coefficient of the last pass.
     pub base_cp_loop: Option<f64>,
-    /// Wake panels shed in the last pass.
+    /// Wake-sheet panels shed in the last pass (0 with the open dead
+    /// water, which sheds none).
     pub wake_panels: usize,
 }
 

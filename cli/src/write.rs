@@ -53,7 +53,7 @@ impl Fields {
             cf: l.iter().map(|p| p.cf).collect(),
             state: l.iter().map(|p| panel_state(p.state)).collect(),
             risk: l.iter().map(|p| p.risk).collect(),
-            separation_note: c.wakes.as_ref().map(|w| {
+            separation_note: c.wakes.as_ref().filter(|w| w.passes > 1).map(|w| {
                 format!(
                     "Separated regions from the separated-flow loop ({} passes, {}).",
                     w.passes,
@@ -376,6 +376,38 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     }
 }
 
+/// The report's words on the separated-flow loop.
+fn loop_text(w: &SeparatedWakes) -> String {
+    let state = match (w.diverged, w.converged) {
+        (true, _) => "a pass blew up and was discarded, so the pass before it is used",
+        (false, true) => "converged",
+        (false, false) => "not converged within the pass limit",
+    };
+    if w.passes <= 1 {
+        return "The attached flow separated nowhere, so the separated-flow loop stopped after its \
+                first pass."
+            .into();
+    }
+    let pressure = match w.base_cp_loop {
+        Some(v) => format!(
+            "The dead water's pressure (base C_p {v:.2}) is Hoerner's base-drag correlation with the \
+             skin friction computed here, since an open wake alone gives far too weak a base suction; \
+             square-back bodies near the ground measure about -0.15 to -0.35."
+        ),
+        None => "No separated panel faces downstream, so the dead water holds the plateau model's \
+                 pressure."
+            .into(),
+    };
+    format!(
+        "The separated regions were opened to the free stream as dead water (the flow leaves each \
+         separation line without turning round it) and the boundary layer was marched again: {} passes, \
+         {state}. The separation verdicts and the pressures above come from the last pass. {pressure} \
+         The attached-flow estimate with the plateau model was C_D {:.3}. Vortices shed from the side \
+         edges of a slant (which raise the drag of 20-30 degree slants) are not modelled.",
+        w.passes, w.cd_plateau
+    )
+}
+
 fn report(
     case: &Case,
     s: &Summary,
@@ -397,7 +429,14 @@ fn report(
             ),
             "counts",
         ),
-        NumberRow::counts("Drag, pressure part (plateau model)", k.drag_pressure),
+        NumberRow::counts(
+            if s.separated_wakes.is_some() {
+                "Drag, pressure part (dead water at its pressure)"
+            } else {
+                "Drag, pressure part (plateau model)"
+            },
+            k.drag_pressure,
+        ),
         NumberRow::counts("Drag, friction part", k.drag_friction),
         NumberRow::number("Lift coefficient C_L", k.lift, "-"),
         NumberRow::number("Lift, whole body", s.lift_kg.total, &at),
@@ -443,10 +482,8 @@ fn report(
             "Inviscid potential flow by a source/doublet panel method on {} panels{}; integral boundary \
              layers (Thwaites laminar, {} transition, Head turbulent with Ludwieg-Tillmann skin friction) \
              along {} surface streamlines, separation at lambda = -0.09 (laminar) or H = {} (turbulent).\n\n\
-             The drag estimate holds the pressure in separated regions at its value at the separation line \
-             (plateau model) and adds skin friction; its band re-runs the boundary layer with {}. It is a \
-             screening estimate: attached potential flow does not see the wake that a real separation makes, \
-             so absolute drag can be off by much more than the band, while differences between close \
+             {} and adds skin friction; its band re-runs the boundary layer with {}. It is a screening \
+             estimate: absolute drag can be off by more than the band, while differences between close \
              variants are more trustworthy. Differences of a few drag counts are within the noise of any \
              simulation (common practice).",
             s.mesh.panels,
@@ -464,6 +501,14 @@ fn report(
             },
             s.solver.streamlines,
             case.file.boundary_layer.separation_h.unwrap_or(2.4),
+            if s.separated_wakes.is_some() {
+                "The drag estimate integrates the pressure of the separated-flow loop's last pass (below), \
+                 with the dead water at its pressure,"
+            } else {
+                "The drag estimate holds the pressure in separated regions at its value at the separation \
+                 line (plateau model; attached potential flow does not see the wake that a real separation \
+                 makes)"
+            },
             c.band_note
         ),
     };
@@ -471,20 +516,7 @@ fn report(
     if let Some(w) = &s.separated_wakes {
         sections.push(TextSection {
             title: "Separated regions".into(),
-            body: format!(
-                "The separated regions were opened to the free stream as dead water (the flow leaves each \
-                 separation line without turning round it) and the boundary layer was marched again: {} passes, \
-                 {}. The separation verdicts and the pressures above come from the last pass. The dead water's \
-                 pressure (base C_p {}) is Hoerner's base-drag correlation with the skin friction computed here, \
-                 since an open wake alone gives far too weak a base suction; square-back bodies near the ground \
-                 measure about -0.15 to -0.35. The attached-flow estimate with the plateau model was C_D {:.3}. \
-                 Vortices shed from the side edges of a slant (which raise the drag of 20-30 degree slants) are \
-                 not modelled.",
-                w.passes,
-                if w.converged { "converged" } else { "not converged" },
-                w.base_cp_loop.map_or("-".into(), |v| format!("{v:.2}")),
-                w.cd_plateau
-            ),
+            body: loop_text(w),
         });
     }
     Report {

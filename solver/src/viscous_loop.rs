@@ -20,12 +20,13 @@
 //! so the body matrix is factored once. The dead-water set only grows, so
 //! the loop ends; it has converged when a pass adds fewer than
 //! [`ViscousLoopParams::change_fraction`] of the set (at least one panel).
-//! The pressure in the dead water is the plateau model's, read on the last
-//! pass's flow: an open wake is Kirchhoff's free-streamline limit and is
-//! known to give too weak a base suction (Roshko 1955), see the project's
-//! DEVELOPERS.md for the measured figures.
+//! The pressure in the dead water is one value from Hoerner's base-drag
+//! correlation ([`dead_water_cp`]): an open wake is Kirchhoff's
+//! free-streamline limit, whose own base suction is known to be far too
+//! weak (Roshko 1955); see the project's DEVELOPERS.md for the measured
+//! figures.
 //!
-//! [`WakeModel::Sheets`] (experimental): a flat doublet wake along the free
+//! [`WakeModel::Sheets`] (kept for comparison only): a flat doublet wake along the free
 //! stream from the bluff-base perimeter and from the upstream boundary of
 //! every separated region ([`crate::wake::separated`]), with the Kutta-type
 //! strength `mu_attached - mu_separated` folded into the columns of the
@@ -80,8 +81,8 @@ pub enum ViscousLoopError {
 pub struct ViscousLoopParams {
     /// Most passes, the attached pass included. Default 6.
     pub max_passes: usize,
-    /// Converged when fewer than this fraction of the previously separated
-    /// panels (at least one panel) change state. Default 0.03.
+    /// Converged when a pass adds fewer than this fraction of the dead-water
+    /// panels so far (at least one panel). Default 0.03.
     pub change_fraction: f64,
     /// Wake length in body lengths. Default 20.
     pub wake_length: f64,
@@ -105,7 +106,8 @@ pub enum WakeModel {
     /// no sheets.
     OpenDeadWater,
     /// Doublet sheets with a Kutta-type strength from the separation lines
-    /// (experimental: fails the validation the open dead water passes).
+    /// (kept for comparison only: fails the validation the open dead water
+    /// passes).
     Sheets,
 }
 
@@ -152,8 +154,7 @@ pub struct ViscousLoop {
     /// beyond [`BLOW_UP_RATIO`] times the attached ones (an ill-conditioned
     /// wake system); `last` is then the pass before it.
     pub diverged: bool,
-    /// Panels whose separated/not-separated state changed at each pass
-    /// after the first.
+    /// Panels each pass after the first added to the dead water.
     pub changes: Vec<usize>,
 }
 
@@ -172,8 +173,8 @@ pub fn viscous_loop(mesh: &PanelMesh, fs: &Freestream) -> Result<ViscousLoop, Vi
 ///
 /// # Errors
 /// [`ViscousLoopError::BadParameter`] for no passes, a change fraction
-/// outside 0..1 or a wake length that is not positive; the solver's and the
-/// boundary layer's errors.
+/// outside 0..1, a wake length that is not positive or a ramp length that
+/// is negative; the solver's and the boundary layer's errors.
 pub fn viscous_loop_with_params(
     mesh: &PanelMesh,
     fs: &Freestream,
@@ -518,8 +519,10 @@ impl<'a> DeadWater<'a> {
     fn impose(&self, layer: &mut BoundaryLayer) {
         for (t, &d) in self.dead.iter().enumerate() {
             if d {
+                // As a separated station holds it: no wall friction.
                 layer.panels[t].state = FlowState::Separated;
                 layer.panels[t].risk = 1.0;
+                layer.panels[t].cf = 0.0;
                 if layer.separation_source[t].is_none() {
                     layer.separation_source[t] = self.source[t];
                 }
@@ -699,8 +702,16 @@ pub fn hoerner_base_cp(
             drag += p.area * f.dot(&u);
         }
     }
-    (base > 0.0 && drag > 0.0).then(|| -HOERNER_BASE_DRAG / (drag / base).sqrt())
+    (base > 0.0 && drag > 0.0)
+        .then(|| -HOERNER_BASE_DRAG / (drag / base).max(HOERNER_MIN_FRICTION).sqrt())
 }
+
+/// Smallest forebody friction coefficient (on the base area) the
+/// correlation is applied with: it grows without bound as the friction
+/// vanishes (a large dead water behind a short laminar forebody), so the
+/// base suction is capped at `0.029 / sqrt(0.004)`, Cp -0.46. The value is
+/// our choice, not Hoerner's.
+pub const HOERNER_MIN_FRICTION: f64 = 0.004;
 
 /// The constant of [`hoerner_base_cp`] (Hoerner 1965, ch. 3 (from memory)).
 pub const HOERNER_BASE_DRAG: f64 = 0.029;
