@@ -613,17 +613,7 @@ fn a_surface_at_rest_is_unresolved_not_a_panic() {
 /// ground and symmetry mirrors, 40 m/s, free transition) that the screening
 /// marks separated, and whether every resolved base panel is separated.
 fn ahmed_slant_separation(slant_deg: f64) -> (f64, bool) {
-    let p = generate::AhmedParams {
-        slant_deg,
-        panels: 4000,
-        half: true,
-        ..generate::AhmedParams::default()
-    };
-    let mirrors = Mirrors {
-        ground: Some(0.0),
-        symmetry: true,
-    };
-    let mesh = PanelMesh::new(generate::ahmed_with_params(&p).unwrap(), mirrors).unwrap();
+    let mesh = tuft_tests::half_ahmed(slant_deg, 4000).unwrap();
     let solution = solve_potential(&mesh, &Freestream::new(40.0, 0.0)).unwrap();
     let params = BoundaryLayerParams {
         flow_direction: Some(Vector3::x()),

@@ -245,17 +245,7 @@ fn bad_settings_are_refused() {
 fn half_model_with_ground_and_symmetry_images_matches_the_dense_path() {
     // Three images per panel, one of them (the symmetry image) touching
     // the body along y = 0: the admissibility test must see it.
-    let body = generate::ahmed_with_params(&AhmedParams {
-        panels: 3000,
-        half: true,
-        ..AhmedParams::default()
-    })
-    .unwrap();
-    let mirrors = Mirrors {
-        ground: Some(0.0),
-        symmetry: true,
-    };
-    let mesh = PanelMesh::new(body, mirrors).unwrap();
+    let mesh = tuft_tests::half_ahmed(AhmedParams::default().slant_deg, 3000).unwrap();
     assert!(max_cp_difference(&mesh, "half Ahmed-type body") < 1e-3);
 }
 

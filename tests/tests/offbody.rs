@@ -207,17 +207,7 @@ fn treecode_matches_the_direct_sum_on_a_half_model() {
     // body along y = 0, all evaluated by mirroring the point into the real
     // tree. Reference and tolerance as in the tests above; points on both
     // sides of the symmetry plane.
-    let body = generate::ahmed_with_params(&AhmedParams {
-        panels: 3000,
-        half: true,
-        ..AhmedParams::default()
-    })
-    .unwrap();
-    let mirrors = Mirrors {
-        ground: Some(0.0),
-        symmetry: true,
-    };
-    let mesh = PanelMesh::new(body, mirrors).unwrap();
+    let mesh = tuft_tests::half_ahmed(AhmedParams::default().slant_deg, 3000).unwrap();
     let pts = slice_points(&mesh, 40, 300);
     assert!(pts.iter().any(|p| p.y < -0.05) && pts.iter().any(|p| p.y > 0.05));
     let (exact, _, flags) = tree_against_reference(&mesh, "half Ahmed-type body", &pts);

@@ -24,17 +24,7 @@ const SPEED: f64 = 40.0;
 const AHMED_PANELS: usize = 5000;
 
 fn ahmed(slant_deg: f64) -> PanelMesh {
-    let p = generate::AhmedParams {
-        slant_deg,
-        panels: AHMED_PANELS,
-        half: true,
-        ..generate::AhmedParams::default()
-    };
-    let mirrors = Mirrors {
-        ground: Some(0.0),
-        symmetry: true,
-    };
-    PanelMesh::new(generate::ahmed_with_params(&p).unwrap(), mirrors).unwrap()
+    tuft_tests::half_ahmed(slant_deg, AHMED_PANELS).unwrap()
 }
 
 fn run(mesh: &PanelMesh, layer: BoundaryLayerParams) -> ViscousLoop {
@@ -265,11 +255,7 @@ fn coupe_loop_converges() {
             half: true,
             ..generate::CoupeParams::default()
         };
-        let mirrors = Mirrors {
-            ground: Some(0.0),
-            symmetry: true,
-        };
-        let mesh = PanelMesh::new(generate::coupe_with_params(&p).unwrap(), mirrors).unwrap();
+        let mesh = tuft_tests::on_ground_half(generate::coupe_with_params(&p).unwrap()).unwrap();
         let r = run(&mesh, along_x());
         let row = r.attached.layer.separation_panels.len().max(1);
         println!(

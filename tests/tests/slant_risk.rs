@@ -13,8 +13,6 @@
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
 use nalgebra::Vector3;
-use tuft_mesh::generate::{AhmedParams, ahmed_with_params};
-use tuft_mesh::{Mirrors, PanelMesh};
 use tuft_solver::boundary_layer::{BoundaryLayerParams, FlowState, screen_boundary_layer};
 use tuft_solver::{Freestream, solve_potential};
 
@@ -32,17 +30,7 @@ const WINDOW: f64 = 2.0;
 /// one panel does not decide it), the slant's mean risk (separated panels
 /// count as 1), and the separated fraction of the slant.
 fn slant(slant_deg: f64, panels: usize, window: f64) -> Slant {
-    let p = AhmedParams {
-        slant_deg,
-        panels,
-        half: true,
-        ..AhmedParams::default()
-    };
-    let mirrors = Mirrors {
-        ground: Some(0.0),
-        symmetry: true,
-    };
-    let mesh = PanelMesh::new(ahmed_with_params(&p).unwrap(), mirrors).unwrap();
+    let mesh = tuft_tests::half_ahmed(slant_deg, panels).unwrap();
     let sol = solve_potential(&mesh, &Freestream::new(40.0, 0.0)).unwrap();
     let params = BoundaryLayerParams {
         nu: 1.506e-5,
