@@ -140,15 +140,8 @@ pub fn compute(
     progress: &mut Progress,
 ) -> Result<Computed> {
     let flow = &case.file.flow;
-    let available = estimate::available_memory(memory_limit);
     let loop_on = loop_wanted(case);
-    let operator = estimate::operator_for(mesh.len(), case.operator, available, loop_on);
-    estimate::check_fits(
-        mesh.len(),
-        operator,
-        (mesh.mirrors.symmetry, loop_on),
-        available,
-    )?;
+    let operator = fitting_operator(mesh, case, memory_limit, loop_on)?;
     let guess = estimate::estimate(mesh, rayon::current_num_threads(), operator, loop_on);
     progress.note(&format!(
         "{} panels, {} operator: expect about {:.0} s for the solve and {:.2} GB of memory",
@@ -228,19 +221,31 @@ pub fn compute_from_potential(
     if loop_wanted(case) {
         let fs = potential.freestream;
         let params = layer_params(case, fs.velocity().normalize());
-        let available = estimate::available_memory(None);
-        let operator = estimate::operator_for(mesh.len(), case.operator, available, true);
-        estimate::check_fits(
-            mesh.len(),
-            operator,
-            (mesh.mirrors.symmetry, true),
-            available,
-        )?;
+        let operator = fitting_operator(mesh, case, None, true)?;
         let r = separated_loop(mesh, &fs, &params, operator)?;
         let (p, l, r) = LoopRun::split(r);
         return finish(mesh, case, p, Some(l), Some(r), progress);
     }
     finish(mesh, case, potential, None, None, progress)
+}
+
+/// The operator a run uses (forced by the case, or chosen by size and the
+/// memory available under `memory_limit`), refused when it does not fit.
+fn fitting_operator(
+    mesh: &PanelMesh,
+    case: &Case,
+    memory_limit: Option<f64>,
+    loop_on: bool,
+) -> Result<estimate::Operator> {
+    let available = estimate::available_memory(memory_limit);
+    let operator = estimate::operator_for(mesh.len(), case.operator, available, loop_on);
+    estimate::check_fits(
+        mesh.len(),
+        operator,
+        (mesh.mirrors.symmetry, loop_on),
+        available,
+    )?;
+    Ok(operator)
 }
 
 /// Whether the separated-flow loop runs: not for `wakes = "attached"`,
