@@ -4,6 +4,18 @@ use std::collections::HashMap;
 
 use crate::TriMesh;
 
+/// Weight of sample `k` of `0..=n` (n even) in Simpson's rule: 1, 4, 2,
+/// ..., 4, 1 (multiply the weighted sum by `h / 3`).
+pub(crate) fn simpson_weight(k: usize, n: usize) -> f64 {
+    if k == 0 || k == n {
+        1.0
+    } else if k % 2 == 1 {
+        4.0
+    } else {
+        2.0
+    }
+}
+
 /// Directed edge counts of a mesh.
 fn directed_edges(m: &TriMesh) -> HashMap<(u32, u32), usize> {
     let mut edges = HashMap::new();

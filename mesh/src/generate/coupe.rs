@@ -357,13 +357,7 @@ mod tests {
         };
         (0..=n)
             .map(|k| {
-                let wgt = if k == 0 || k == n {
-                    1.0
-                } else if k % 2 == 1 {
-                    4.0
-                } else {
-                    2.0
-                };
+                let wgt = check::simpson_weight(k, n);
                 wgt * area(k as f64 * dx).abs()
             })
             .sum::<f64>()

@@ -305,13 +305,7 @@ mod tests {
             .map(|k| {
                 let b = k as f64 * h;
                 let x = 0.5 * (1.0 - b.cos());
-                let wgt = if k == 0 || k == n {
-                    1.0
-                } else if k % 2 == 1 {
-                    4.0
-                } else {
-                    2.0
-                };
+                let wgt = check::simpson_weight(k, n);
                 wgt * 2.0 * naca_half_thickness(x, t) * 0.5 * b.sin()
             })
             .sum::<f64>()
@@ -391,13 +385,7 @@ mod tests {
             .map(|k| {
                 let b = k as f64 * h;
                 let x = 0.5 * (1.0 - b.cos());
-                let wgt = if k == 0 || k == n {
-                    1.0
-                } else if k % 2 == 1 {
-                    4.0
-                } else {
-                    2.0
-                };
+                let wgt = check::simpson_weight(k, n);
                 wgt * naca_half_thickness(x, p.thickness).powi(2) * 0.5 * b.sin()
             })
             .sum::<f64>()
