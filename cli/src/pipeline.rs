@@ -159,8 +159,7 @@ pub fn compute(
         &format!("solving potential flow on {} panels", mesh.len()),
     );
     let params = layer_params(case, fs.velocity().normalize());
-    let run_loop = loop_wanted(case);
-    let (potential, layer, wake_loop) = if run_loop {
+    let (potential, layer, wake_loop) = if loop_on {
         let r = separated_loop(mesh, &fs, &params, operator)?;
         let (solution, layer, run) = LoopRun::split(r);
         (solution, Some(layer), Some(run))

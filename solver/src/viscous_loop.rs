@@ -320,7 +320,7 @@ fn run_pass(
     fs: &Freestream,
     body: &Body,
     edges: Vec<TrailingEdge>,
-    open: &Outflow,
+    open: &Outflow<'_>,
     params: &ViscousLoopParams,
 ) -> Result<LoopPass, ViscousLoopError> {
     let v_inf = fs.velocity();
@@ -344,7 +344,7 @@ fn run_pass(
         (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
     if !open.panels.is_empty() {
-        rhs.iter_mut().zip(&open.rhs).for_each(|(r, e)| *r += e);
+        rhs.iter_mut().zip(open.rhs).for_each(|(r, e)| *r += e);
     }
     let (mu, stats) = match (system, body) {
         (Some(system), _) => {
@@ -394,7 +394,7 @@ fn run_pass(
         )
     };
     let mut solution = solution;
-    for &(j, v) in &open.panels {
+    for &(j, v) in open.panels {
         solution.sigma[j] -= v;
     }
     let layer = screen_boundary_layer(mesh, &solution.velocity, fs.speed, &params.layer)?;
@@ -434,7 +434,8 @@ fn lu_stats() -> SolveStats {
 struct DeadWater<'a> {
     mesh: &'a PanelMesh,
     v_inf: Vector,
-    ramp_length: f64,
+    /// The ramp's length, m.
+    ramp: f64,
     far_field_ratio: f64,
     source: Vec<Option<u32>>,
     dead: Vec<bool>,
@@ -448,10 +449,10 @@ struct DeadWater<'a> {
 
 /// The dead water's outflow for one pass: `(panel, v_n)` and the
 /// right-hand-side change it makes.
-#[derive(Debug, Clone, Default)]
-struct Outflow {
-    panels: Vec<(usize, f64)>,
-    rhs: Vec<f64>,
+#[derive(Debug, Clone, Copy, Default)]
+struct Outflow<'b> {
+    panels: &'b [(usize, f64)],
+    rhs: &'b [f64],
 }
 
 /// The flow at the separation line runs along the stream when within this
@@ -464,10 +465,12 @@ const BASE_NORMAL_DEG: f64 = 45.0;
 
 impl<'a> DeadWater<'a> {
     fn new(mesh: &'a PanelMesh, v_inf: Vector, params: &ViscousLoopParams) -> Self {
+        let (lo, hi) = mesh.bounds();
+        let along = (hi - lo).dot(&v_inf.normalize()).abs().max(1e-9);
         Self {
             mesh,
             v_inf,
-            ramp_length: params.ramp_length,
+            ramp: params.ramp_length * along,
             far_field_ratio: params.potential.far_field_ratio,
             source: vec![None; mesh.len()],
             dead: vec![false; mesh.len()],
@@ -502,7 +505,7 @@ impl<'a> DeadWater<'a> {
     /// Every outflow so far, its right-hand side brought up to date with
     /// the panels added since the last call (the influence of each panel
     /// is summed once).
-    fn outflow(&mut self) -> Outflow {
+    fn outflow(&mut self) -> Outflow<'_> {
         let new = &self.outflow[self.summed..];
         if !new.is_empty() {
             let extra = source_sum(self.mesh, new, self.far_field_ratio);
@@ -510,8 +513,8 @@ impl<'a> DeadWater<'a> {
             self.summed = self.outflow.len();
         }
         Outflow {
-            panels: self.outflow.clone(),
-            rhs: self.rhs.clone(),
+            panels: &self.outflow,
+            rhs: &self.rhs,
         }
     }
 
@@ -546,10 +549,8 @@ impl<'a> DeadWater<'a> {
         if along {
             return 1.0;
         }
-        let (lo, hi) = mesh.bounds();
-        let ramp = self.ramp_length * (hi - lo).dot(&stream).abs().max(1e-9);
         let d = (mesh.panels[t].centroid - mesh.panels[s].centroid).norm();
-        (d / ramp).min(1.0)
+        (d / self.ramp).min(1.0)
     }
 }
 
@@ -736,15 +737,17 @@ pub fn dead_water_cp(
     stream: &Vector,
 ) -> Vec<f64> {
     assert_eq!(friction.len(), mesh.len(), "one friction vector per panel");
-    let plateau = crate::boundary_layer::plateau_cp(mesh, cp, layer);
+    assert_eq!(cp.len(), mesh.len(), "one Cp per panel");
+    assert_eq!(layer.panels.len(), mesh.len(), "one layer per panel");
     let Some(cpb) = hoerner_base_cp(mesh, layer, friction, stream) else {
-        return plateau;
+        return crate::boundary_layer::plateau_cp(mesh, cp, layer);
     };
+    // Attached panels keep `cp` (the plateau model changes only separated ones).
     layer
         .panels
         .iter()
-        .zip(plateau)
-        .map(|(l, c)| {
+        .zip(cp)
+        .map(|(l, &c)| {
             if l.state == FlowState::Separated {
                 cpb
             } else {
