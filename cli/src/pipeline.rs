@@ -14,7 +14,8 @@ use tuft_solver::viscous_loop::{
 };
 use tuft_solver::wake::Wake;
 use tuft_solver::{
-    Freestream, LinearSolver, PotentialParams, PotentialSolution, solve_potential_with_params,
+    Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats,
+    solve_potential_with_params,
 };
 
 use crate::case::{Case, TransitionMode, WakesMode};
@@ -177,16 +178,7 @@ pub fn compute(
         // The boundary layer is marched in its own phase, in `finish`.
         (potential, None, None)
     };
-    let note = match potential.stats.iterations {
-        Some(it) => format!(
-            "{:?}, {it} iterations, residual {:.1e}",
-            potential.stats.method, potential.stats.residual
-        ),
-        None => format!(
-            "{:?}, residual {:.1e}",
-            potential.stats.method, potential.stats.residual
-        ),
-    };
+    let note = solver_note(&potential.stats);
     let note = match &wake_loop {
         Some(r) => format!(
             "{note}; separated-flow loop: {} passes, {}",
@@ -255,6 +247,26 @@ pub fn loop_wanted(case: &Case) -> bool {
 }
 
 /// The loop on the operator the run chose.
+/// How the linear system was solved, in words for the console and the
+/// report: the method, its iterations and its residual where it has them
+/// (a direct LU computes none).
+fn solver_note(stats: &SolveStats) -> String {
+    let method = match stats.method {
+        LinearSolver::Auto => "automatic",
+        LinearSolver::DenseLu => "dense LU",
+        LinearSolver::Krylov => "dense GMRES",
+        LinearSolver::Compressed => "compressed GMRES",
+    };
+    let mut note = method.to_string();
+    if let Some(it) = stats.iterations {
+        note += &format!(", {it} iterations");
+    }
+    if stats.residual.is_finite() {
+        note += &format!(", residual {:.1e}", stats.residual);
+    }
+    note
+}
+
 fn separated_loop(
     mesh: &PanelMesh,
     fs: &Freestream,
