@@ -353,6 +353,21 @@ th{background:#eef1f0;font-size:13px}td.name{text-align:left;font-weight:600}fig
 figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 
 /// The self-contained page.
+/// A warning when the separated share of the surface varies across the
+/// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
+/// ranking then rests on the separated-flow model.
+fn separation_spread(c: &Collected) -> Option<String> {
+    let shares = c.variants.iter().map(|r| r.separated_percent);
+    let lo = shares.clone().fold(f64::INFINITY, f64::min);
+    let hi = shares.fold(f64::NEG_INFINITY, f64::max);
+    (hi - lo > 100.0 * crate::compare::SEPARATION_SHIFT).then(|| {
+        format!(
+            "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
+            crate::compare::SEPARATION_CAUTION
+        )
+    })
+}
+
 fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     let mut s = format!(
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>{0}: sweep</title>\n\
@@ -366,6 +381,9 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
          of any simulation (common practice); use <code>tuft compare</code> on two variants for a verdict.</p>",
         c.variants.len()
     );
+    if let Some(text) = separation_spread(c) {
+        let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(&text));
+    }
     s.push_str("<h2>Ranking</h2>\n<table>\n<tr><th>#</th><th>variant</th>");
     for k in &c.keys {
         let _ = write!(s, "<th>{}</th>", escape(k));
@@ -423,4 +441,56 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         env!("CARGO_PKG_VERSION")
     );
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sweep(shares: &[f64]) -> Collected {
+        let row = |(k, &p): (usize, &f64)| Row {
+            rank: k + 1,
+            name: format!("v{k}"),
+            settings: BTreeMap::new(),
+            cd: 0.3,
+            cd_low: 0.28,
+            cd_high: 0.32,
+            cl: 0.0,
+            lift_kg: 0.0,
+            front_axle_kg: 0.0,
+            rear_axle_kg: 0.0,
+            separated_area_m2: p / 10.0,
+            separated_percent: p,
+            panels: 1000,
+            warnings: 0,
+            matrix_reused: false,
+        };
+        Collected {
+            sweep: "s".into(),
+            keys: Vec::new(),
+            variants: shares.iter().enumerate().map(row).collect(),
+            missing: Vec::new(),
+            caution: CAUTION.into(),
+        }
+    }
+
+    /// The page warns when the separated share of the surface moves by
+    /// more than one point across the variants, and only then.
+    #[test]
+    fn warns_when_the_separated_share_moves() {
+        for (shares, warned) in [
+            (vec![10.0, 10.5, 10.9], false),
+            (vec![10.0, 12.0], true),
+            (vec![5.0], false),
+        ] {
+            let c = sweep(&shares);
+            assert_eq!(separation_spread(&c).is_some(), warned, "{shares:?}");
+            let html = page(&c, &[]);
+            assert_eq!(
+                html.contains("rests largely on the separated-flow model"),
+                warned,
+                "{shares:?}"
+            );
+        }
+    }
 }

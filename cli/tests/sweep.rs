@@ -126,6 +126,19 @@ fn three_yaw_angles_share_one_factorisation_and_equal_separate_runs() {
         3,
         "drag, lift, separated area against yaw"
     );
+    // The page warns that the drag ranking rests on the separated-flow
+    // model exactly when the separated share moves by more than a point.
+    let shares: Vec<f64> = rows
+        .iter()
+        .map(|r| r["separated_percent"].as_f64().unwrap())
+        .collect();
+    let spread = shares.iter().fold(f64::NEG_INFINITY, |m, &v| m.max(v))
+        - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v));
+    assert_eq!(
+        html.contains("rests largely on the separated-flow model"),
+        spread > 1.0,
+        "separated shares {shares:?}"
+    );
 }
 
 const SPHERE_SWEEP: &str = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
