@@ -313,6 +313,11 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     .collect();
     let mut warnings = c.warnings.clone();
     warnings.extend(geo.report.quality.warnings.iter().cloned());
+    warnings.extend(crate::pipeline::coarse_warning(
+        mesh.len(),
+        geo.report.suggested_panels,
+        c.wakes.is_some(),
+    ));
     Summary {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),
