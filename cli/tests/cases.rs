@@ -144,14 +144,7 @@ fn exits_with_progress_and_summary(r: &Run) {
 
 fn summary_is_complete(r: &Run) {
     let s = &r.summary;
-    for k in [
-        "lift",
-        "drag",
-        "drag_friction",
-        "drag_pressure",
-        "side",
-        "pitch",
-    ] {
+    for k in common::COEFFICIENTS {
         number(s, &format!("coefficients/{k}"));
     }
     // Drag is its pressure and friction parts.

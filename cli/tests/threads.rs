@@ -43,14 +43,7 @@ fn one_and_two_threads_agree() {
         worst <= 1e-10 * scale,
         "Cp differs by {worst} between 1 and 2 threads"
     );
-    for key in [
-        "lift",
-        "drag",
-        "drag_friction",
-        "drag_pressure",
-        "side",
-        "pitch",
-    ] {
+    for key in common::COEFFICIENTS {
         let (a, b) = (
             s1["coefficients"][key].as_f64().unwrap(),
             s2["coefficients"][key].as_f64().unwrap(),

@@ -81,18 +81,7 @@ fn gradient_is_about_second_order() {
 /// one-sided fit over the real neighbours only is less accurate.
 #[test]
 fn mirror_plane_panels_use_reflected_neighbours() {
-    let full = generate::latlong_sphere(1.0, 24, 28);
-    let keep: Vec<[u32; 3]> = full
-        .triangles
-        .iter()
-        .copied()
-        .filter(|t| t.iter().map(|&v| full.vertices[v as usize].y).sum::<f64>() > 0.0)
-        .collect();
-    let mut half = TriMesh {
-        vertices: full.vertices.clone(),
-        triangles: keep,
-    };
-    half.map_vertices(|p| Point::new(p.x, if p.y.abs() < 1e-12 { 0.0 } else { p.y }, p.z));
+    let half = tuft_tests::half_sphere(24, 28, 0.0);
     // The explicit mirror: reflected copy, plane vertices shared, order reversed.
     let n = half.vertices.len() as u32;
     let mut whole = half.clone();

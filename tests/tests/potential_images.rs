@@ -57,33 +57,6 @@ fn mirrored_union(
     }
 }
 
-/// The part of a lat-long sphere (poles on x, meridians every 360/n_lon
-/// degrees, n_lon divisible by 4) with y >= 0, cut on meridians.
-fn half_sphere(n_lat: usize, n_lon: usize, centre_z: f64) -> TriMesh {
-    let full = generate::latlong_sphere(1.0, n_lat, n_lon);
-    let keep: Vec<[u32; 3]> = full
-        .triangles
-        .iter()
-        .copied()
-        .filter(|t| t.iter().map(|&v| full.vertices[v as usize].y).sum::<f64>() > 0.0)
-        .collect();
-    let vertices = full
-        .vertices
-        .iter()
-        .map(|p| {
-            Point::new(
-                p.x,
-                if p.y.abs() < 1e-12 { 0.0 } else { p.y },
-                p.z + centre_z,
-            )
-        })
-        .collect();
-    TriMesh {
-        vertices,
-        triangles: keep,
-    }
-}
-
 /// Largest difference of mu and Cp over the real panels.
 fn max_diff(a: &PotentialSolution, b: &PotentialSolution, n: usize) -> (f64, f64) {
     let d = |x: &[f64], y: &[f64]| {
@@ -123,7 +96,7 @@ fn ground_image_equals_explicit_mirror() {
 #[test]
 fn symmetry_image_equals_explicit_mirror() {
     check_identity(
-        half_sphere(10, 16, 0.0),
+        tuft_tests::half_sphere(10, 16, 0.0),
         Mirrors {
             ground: None,
             symmetry: true,
@@ -138,14 +111,18 @@ fn both_images_equal_explicit_mirrors() {
         ground: Some(0.0),
         symmetry: true,
     };
-    check_identity(half_sphere(10, 16, 1.5), mirrors, Freestream::new(1.0, 0.0));
+    check_identity(
+        tuft_tests::half_sphere(10, 16, 1.5),
+        mirrors,
+        Freestream::new(1.0, 0.0),
+    );
 }
 
 /// A half model cannot be yawed: typed error naming the angle.
 #[test]
 fn yaw_with_symmetry_is_refused() {
     let mesh = PanelMesh::new(
-        half_sphere(6, 8, 0.0),
+        tuft_tests::half_sphere(6, 8, 0.0),
         Mirrors {
             ground: None,
             symmetry: true,

@@ -9,6 +9,17 @@ use std::process::Command;
 /// The binary under test, as Cargo built it for these tests.
 pub const TUFT: &str = env!("CARGO_BIN_EXE_tuft");
 
+/// The force and moment coefficients every `summary.json` carries under
+/// `coefficients`.
+pub const COEFFICIENTS: [&str; 6] = [
+    "lift",
+    "drag",
+    "drag_friction",
+    "drag_pressure",
+    "side",
+    "pitch",
+];
+
 /// What one run of the binary did.
 pub struct Output {
     /// Exit code.
