@@ -47,6 +47,8 @@ pub struct Computed {
     pub reference_given: ReferenceGiven,
     /// Separated area, m^2 (real panels).
     pub separated_area: f64,
+    /// Lift of the ground-facing panels' pressure, kg.
+    pub underbody_lift_kg: f64,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
     /// The separated-flow loop, when it ran.
@@ -268,6 +270,41 @@ pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> 
     })
 }
 
+/// A panel faces the ground when its outward normal points down by more
+/// than this (the z component of the unit normal below minus this).
+pub const UNDERBODY_NORMAL_Z: f64 = 0.5;
+
+/// Lift, kg at the run speed, of the pressure `cp` on the ground-facing
+/// panels alone (outward normal's z below `-UNDERBODY_NORMAL_Z`), gauge
+/// pressure on the free stream's. Over the ground, attached potential flow
+/// speeds up under a smooth floor and sucks the body down; a real
+/// underbody (wheels, roughness, cooling flow) recovers much less of that
+/// suction, so this part of the lift is the least certain and the report
+/// names it.
+///
+/// # Errors
+/// Those of [`loads::integrate_loads`].
+pub fn underbody_lift_kg(
+    mesh: &PanelMesh,
+    cp: &[f64],
+    reference: &Reference,
+    air: &loads::FlowState,
+) -> Result<f64> {
+    let under: Vec<f64> = mesh
+        .panels
+        .iter()
+        .zip(cp)
+        .map(|(p, &c)| {
+            if p.normal.z < -UNDERBODY_NORMAL_Z {
+                c
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    Ok(loads::integrate_loads(mesh, &under, None, reference, air)?.lift_kg)
+}
+
 /// How the linear system was solved, in words for the console and the
 /// report: the method, its iterations and its residual where it has them
 /// (a direct LU computes none).
@@ -366,6 +403,7 @@ fn finish(
         )?),
         None => None,
     };
+    let underbody_lift_kg = underbody_lift_kg(mesh, &cp_separated, &reference, &air)?;
     let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
@@ -418,6 +456,7 @@ fn finish(
         reference,
         reference_given,
         separated_area,
+        underbody_lift_kg,
         warnings,
         wakes,
     })

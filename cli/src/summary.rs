@@ -33,6 +33,10 @@ pub struct LiftKg {
     pub front_axle: f64,
     /// On the rear axle.
     pub rear_axle: f64,
+    /// Of the total, the pressure on the ground-facing panels (the
+    /// underbody; see `pipeline::underbody_lift_kg`).
+    #[serde(default)]
+    pub underbody: f64,
 }
 
 /// Where the boundary layer separated.

@@ -353,6 +353,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             total: e.lift_kg,
             front_axle: e.axles.front_kg,
             rear_axle: e.axles.rear_kg,
+            underbody: c.underbody_lift_kg,
         },
         separation: Separation {
             area_m2: sym * c.separated_area,
@@ -382,6 +383,21 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
 }
 
 /// The report's words on the separated-flow loop.
+fn lift_text(l: &LiftKg, at: &str) -> String {
+    format!(
+        "Of the lift of {:.0} {at}, the underbody's pressure gives {:.0} kg and the rest of the body {:.0} kg. \
+         The ground is a mirror image here and the underbody is as smooth as the surface given, so the \
+         flow under the body speeds up and sucks it down as no real underbody does (wheels, roughness \
+         and cooling flow slow it): the underbody's part is the least certain number on this page, \
+         and a negative total (downforce) on a body without aerodynamic devices is most likely this \
+         bias. Differences between variants that share the underbody are more trustworthy than the \
+         totals.",
+        l.total,
+        l.underbody,
+        l.total - l.underbody
+    )
+}
+
 fn loop_text(w: &SeparatedWakes) -> String {
     let state = match (w.diverged, w.converged) {
         (true, _) => "a pass blew up and was discarded, so the pass before it is used",
@@ -447,6 +463,11 @@ fn report(
         NumberRow::number("Lift, whole body", s.lift_kg.total, &at),
         NumberRow::number("Lift, front axle", s.lift_kg.front_axle, &at),
         NumberRow::number("Lift, rear axle", s.lift_kg.rear_axle, &at),
+        NumberRow::number(
+            "Lift, of which the underbody (ground-facing panels)",
+            s.lift_kg.underbody,
+            &at,
+        ),
         NumberRow::number("Side-force coefficient", k.side, "-"),
         NumberRow::number("Pitching-moment coefficient", k.pitch, "-"),
         NumberRow::number("Separated area", s.separation.area_m2, "m²"),
@@ -518,6 +539,12 @@ fn report(
         ),
     };
     let mut sections = vec![method];
+    if s.mesh.ground_z.is_some() {
+        sections.push(TextSection {
+            title: "Lift near the ground".into(),
+            body: lift_text(&s.lift_kg, &at),
+        });
+    }
     if let Some(w) = &s.separated_wakes {
         sections.push(TextSection {
             title: "Separated regions".into(),

@@ -236,6 +236,26 @@ fn panels_csv_matches_summary(r: &Run) {
     let area: f64 = rows.iter().map(|r| r[6]).sum();
     let wetted = number(&r.summary, "mesh/wetted_area_m2");
     assert!((area - wetted).abs() < 1e-9 * wetted, "{area} vs {wetted}");
+    // The underbody's lift from the table: the gauge pressure Cp q on the
+    // ground-facing panels (normal z below -0.5), lift along +z, in kg at
+    // standard gravity; the table rounds its columns, so 1e-6 relative.
+    // Only with the separated-flow loop does the table's Cp carry the
+    // separated regions' pressure that the loads integrate (an attached
+    // run's table keeps the potential-flow Cp there).
+    if r.summary["separated_wakes"].is_null() {
+        return;
+    }
+    let q = number(&r.summary, "dynamic_pressure_pa");
+    let under: f64 = rows
+        .iter()
+        .filter(|r| r[5] < -0.5)
+        .map(|r| -r[7] * q * r[6] * r[5] / 9.80665)
+        .sum();
+    let reported = number(&r.summary, "lift_kg/underbody");
+    assert!(
+        (under - reported).abs() <= 1e-6 * under.abs().max(1.0),
+        "underbody lift {reported} kg, table gives {under} kg"
+    );
 }
 
 /// Reads every VTK file of a result folder with VTK's XML readers and
