@@ -75,6 +75,9 @@ pub struct GeometrySection {
     pub rear_window_deg: Option<f64>,
     /// Built-in coupe: boot-deck length, metres.
     pub boot_deck_length: Option<f64>,
+    /// Built-in coupe: angle of the underbody's rise at the tail (the
+    /// diffuser), degrees.
+    pub diffuser_deg: Option<f64>,
     /// Built-in coupe and slant-back body: ground clearance, metres.
     pub ride_height: Option<f64>,
     /// Built-in slant-back body: slant angle, degrees.

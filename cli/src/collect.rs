@@ -298,7 +298,10 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
 fn axis_label(key: &str) -> String {
     let unit = match key {
         "flow.speed" => "m/s",
-        "flow.yaw" | "geometry.rear_window_deg" | "geometry.slant_deg" => "degrees",
+        "flow.yaw"
+        | "geometry.rear_window_deg"
+        | "geometry.diffuser_deg"
+        | "geometry.slant_deg" => "degrees",
         "ground.z"
         | "geometry.boot_deck_length"
         | "geometry.ride_height"
@@ -352,7 +355,6 @@ table{border-collapse:collapse;background:#fff}th,td{padding:6px 12px;border-bot
 th{background:#eef1f0;font-size:13px}td.name{text-align:left;font-weight:600}figure{margin:0 0 24px;background:#fff;padding:10px}\
 figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 
-/// The self-contained page.
 /// A warning when the separated share of the surface varies across the
 /// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
 /// ranking then rests on the separated-flow model.
@@ -368,6 +370,7 @@ fn separation_spread(c: &Collected) -> Option<String> {
     })
 }
 
+/// The self-contained page.
 fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     let mut s = format!(
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>{0}: sweep</title>\n\

@@ -106,6 +106,7 @@ fn shape(name: &str, case: &Case) -> Result<TriMesh> {
             generate::coupe_with_params(&CoupeParams {
                 rear_window_deg: g.rear_window_deg.unwrap_or(d.rear_window_deg),
                 boot_deck_length: g.boot_deck_length.unwrap_or(d.boot_deck_length),
+                diffuser_deg: g.diffuser_deg.unwrap_or(d.diffuser_deg),
                 ride_height: g.ride_height.unwrap_or(d.ride_height),
                 panels,
                 half: g.half_model,

@@ -382,22 +382,33 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     }
 }
 
-/// The report's words on the separated-flow loop.
+/// The report's words on the lift near the ground: the underbody's part,
+/// the least certain one.
 fn lift_text(l: &LiftKg, at: &str) -> String {
-    format!(
-        "Of the lift of {:.0} {at}, the underbody's pressure gives {:.0} kg and the rest of the body {:.0} kg. \
-         The ground is a mirror image here and the underbody is as smooth as the surface given, so the \
-         flow under the body speeds up and sucks it down as no real underbody does (wheels, roughness \
-         and cooling flow slow it): the underbody's part is the least certain number on this page, \
-         and a negative total (downforce) on a body without aerodynamic devices is most likely this \
-         bias. Differences between variants that share the underbody are more trustworthy than the \
-         totals.",
-        l.total,
-        l.underbody,
-        l.total - l.underbody
-    )
+    let rest = l.total - l.underbody;
+    let mut text = format!(
+        "Of the lift of {:.0} {at}, the underbody's pressure gives {:.0} kg and the rest of the body \
+         {rest:.0} kg. The ground is modelled as a smooth plane moving with the air, and the underbody \
+         is as smooth as the surface given, ",
+        l.total, l.underbody
+    );
+    if l.underbody < 0.0 {
+        text += "so the flow under the body speeds up and sucks it down more than under a real car, \
+                 whose wheels, roughness and cooling flow slow it: the underbody's part is among the \
+                 least certain numbers on this page";
+        if l.total < 0.0 {
+            text += ", and a net downforce on a body without aerodynamic devices most likely comes \
+                     from it";
+        }
+        text += ". ";
+    } else {
+        text += "which a real underbody (wheels, roughness, cooling flow) is not: its part is among \
+                 the least certain numbers on this page. ";
+    }
+    text + "Differences between variants that share the underbody are more trustworthy than the totals."
 }
 
+/// The report's words on the separated-flow loop.
 fn loop_text(w: &SeparatedWakes) -> String {
     let state = match (w.diverged, w.converged) {
         (true, _) => "a pass blew up and was discarded, so the pass before it is used",

@@ -18,7 +18,7 @@
 //!
 //! Short names: `speed`, `yaw`, `ground` (the ground height), `panels`,
 //! `transition`, `stl` (files relative to the sweep file),
-//! `rear_window_deg`, `boot_deck_length`, `ride_height`, `slant_deg`; any
+//! `rear_window_deg`, `boot_deck_length`, `diffuser_deg`, `ride_height`, `slant_deg`; any
 //! other key is a dotted path into the case file (`flow.density`,
 //! `boundary_layer.separation_h`, ...). Each variant is the base case with
 //! its values set, named after them (`yaw-5_rear_window_deg-30`), and runs
@@ -112,8 +112,10 @@ pub fn full_key(key: &str) -> String {
         "speed" | "yaw" | "density" | "viscosity" => format!("flow.{key}"),
         "ground" => "ground.z".into(),
         "transition" => "boundary_layer.transition".into(),
-        "panels" | "stl" | "shape" | "rear_window_deg" | "boot_deck_length" | "ride_height"
-        | "slant_deg" | "radius" | "centre_z" | "units" => format!("geometry.{key}"),
+        "panels" | "stl" | "shape" | "rear_window_deg" | "boot_deck_length" | "diffuser_deg"
+        | "ride_height" | "slant_deg" | "radius" | "centre_z" | "units" => {
+            format!("geometry.{key}")
+        }
         other => other.into(),
     }
 }
@@ -415,6 +417,14 @@ mod tests {
     }
 
     const BASE: &str = "[base.geometry]\nshape = \"coupe\"\n[base.ground]\nz = 0.0\n";
+
+    #[test]
+    fn short_keys_name_their_sections() {
+        assert_eq!(full_key("diffuser_deg"), "geometry.diffuser_deg");
+        assert_eq!(full_key("rear_window_deg"), "geometry.rear_window_deg");
+        assert_eq!(full_key("yaw"), "flow.yaw");
+        assert_eq!(full_key("flow.speed"), "flow.speed");
+    }
 
     #[test]
     fn grid_groups_geometry_and_names_variants() {

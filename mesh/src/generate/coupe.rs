@@ -33,6 +33,10 @@ pub struct CoupeParams {
     /// Length of the boot deck, from the foot of the rear window to the
     /// start of the tail rounding.
     pub boot_deck_length: f64,
+    /// Angle of the underbody's rise at the tail (the diffuser) from the
+    /// horizontal, over the last [`DIFFUSER_LENGTH`] m; 0 keeps the floor
+    /// flat to the tail. The default, about 14.5 degrees, rises 0.22 m.
+    pub diffuser_deg: f64,
     /// Length over which the nose is rounded in side view.
     pub nose_length: f64,
     /// Length over which the tail is rounded in side view.
@@ -55,6 +59,7 @@ impl Default for CoupeParams {
             roof_length: 1.10,
             rear_window_deg: 25.0,
             boot_deck_length: 0.45,
+            diffuser_deg: (UNDERBODY[1] / DIFFUSER_LENGTH).atan().to_degrees(),
             nose_length: 0.30,
             tail_length: 0.35,
             panels: 6000,
@@ -83,8 +88,12 @@ const UPPER: [f64; 4] = [4.0, 2.2, 0.25, 0.6];
 /// Half-lengths of the parabolic blends at the cowl, the top of the
 /// windscreen, the rear of the roof and the foot of the rear window.
 const BLENDS: [f64; 4] = [0.15, 0.25, 0.15, 0.10];
-/// Underbody: rise at the nose and tail, and the lengths over which it rises.
-const UNDERBODY: [f64; 4] = [0.20, 0.22, 0.75, 0.85];
+/// Underbody: rise at the nose and the default rise at the tail, and the
+/// lengths over which they rise.
+const UNDERBODY: [f64; 4] = [0.20, 0.22, 0.75, DIFFUSER_LENGTH];
+
+/// Length of the underbody's rise at the tail (the diffuser), m.
+pub const DIFFUSER_LENGTH: f64 = 0.85;
 
 /// Coupe with the given rear-window slope and otherwise the defaults; see
 /// [`coupe_with_params`].
@@ -220,14 +229,27 @@ impl Body {
                 "must lie between 5 and 85 degrees",
             )?;
         }
+        require(
+            "diffuser_deg",
+            p.diffuser_deg,
+            (0.0..=30.0).contains(&p.diffuser_deg),
+            "must lie between 0 and 30 degrees",
+        )?;
         let h = p.height;
         let shoulder = (SHOULDER[0] * h, SHOULDER[1] * h);
-        let clear = p.ride_height + UNDERBODY[0].max(UNDERBODY[1]) < shoulder.0.min(shoulder.1);
+        let tail_rise = DIFFUSER_LENGTH * p.diffuser_deg.to_radians().tan();
+        let clear = p.ride_height + UNDERBODY[0] < shoulder.0;
         require(
             "ride_height",
             p.ride_height,
-            clear,
+            clear && p.ride_height + UNDERBODY[1] < shoulder.1,
             "the underbody reaches the shoulder line",
+        )?;
+        require(
+            "diffuser_deg",
+            p.diffuser_deg,
+            p.ride_height + tail_rise < shoulder.1 - 0.05,
+            "the diffuser rises to the shoulder line at the tail",
         )?;
         let top = top_profile(p, shoulder.1)?;
         let l = p.length;
@@ -236,7 +258,7 @@ impl Body {
                 (0.0, p.ride_height + UNDERBODY[0]),
                 (UNDERBODY[2], p.ride_height),
                 (l - UNDERBODY[3], p.ride_height),
-                (l, p.ride_height + UNDERBODY[1]),
+                (l, p.ride_height + tail_rise),
             ],
             blends: vec![0.3, 0.3],
         };
@@ -393,6 +415,44 @@ mod tests {
                 assert!(err.abs() < tol, "{rw} {panels}: volume error {err}");
             }
         }
+    }
+
+    /// The diffuser: its floor line rises at the set angle behind the blend
+    /// that leaves the flat floor (the slope of the profile's last piece,
+    /// read back); the default is the former fixed 0.22 m rise over
+    /// 0.85 m; 0 degrees keeps the floor flat to the tail; a rise that
+    /// reaches the shoulder line is refused naming `diffuser_deg`.
+    #[test]
+    fn diffuser_angle_sets_the_tail_rise() {
+        let d = CoupeParams::default();
+        assert!((d.diffuser_deg - (0.22f64 / 0.85).atan().to_degrees()).abs() < 1e-12);
+        for deg in [0.0, 8.0, 14.5, 20.0] {
+            let p = CoupeParams {
+                diffuser_deg: deg,
+                ..d
+            };
+            let body = Body::new(&p).unwrap();
+            let slope = body.bottom.slope(body.bottom.points.len() - 2);
+            assert!(
+                (slope.atan().to_degrees() - deg).abs() < 1e-9,
+                "{deg}: {slope}"
+            );
+            // Past the blend the floor is on that line.
+            let x = p.length - 0.1;
+            let want = p.ride_height + (x - (p.length - DIFFUSER_LENGTH)) * slope;
+            assert!((body.bottom.at(x) - want).abs() < 1e-9, "{deg}");
+            let m = coupe_with_params(&CoupeParams { panels: 2000, ..p }).unwrap();
+            check::closed_outward(&m);
+        }
+        let steep = CoupeParams {
+            diffuser_deg: 29.0,
+            ..d
+        };
+        let err = Body::new(&steep)
+            .err()
+            .map(|e| e.to_string())
+            .unwrap_or_default();
+        assert!(err.contains("diffuser_deg"), "{err}");
     }
 
     #[test]
