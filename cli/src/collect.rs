@@ -59,6 +59,9 @@ pub struct Row {
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, %.
     pub separated_percent: f64,
+    /// Separated fraction of the underbody (ground-facing panels), %.
+    #[serde(default)]
+    pub underbody_separated_percent: f64,
     /// Panels.
     pub panels: usize,
     /// Warnings in the variant's summary.
@@ -194,6 +197,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         rear_axle_kg: s.lift_kg.rear_axle,
         separated_area_m2: s.separation.area_m2,
         separated_percent: 100.0 * s.separation.fraction,
+        underbody_separated_percent: 100.0 * s.separation.underbody_fraction,
         panels: s.mesh.panels,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
@@ -359,15 +363,28 @@ figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 /// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
 /// ranking then rests on the separated-flow model.
 fn separation_spread(c: &Collected) -> Option<String> {
-    let shares = c.variants.iter().map(|r| r.separated_percent);
-    let lo = shares.clone().fold(f64::INFINITY, f64::min);
-    let hi = shares.fold(f64::NEG_INFINITY, f64::max);
-    (hi - lo > 100.0 * crate::compare::SEPARATION_SHIFT).then(|| {
-        format!(
-            "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
-            crate::compare::SEPARATION_CAUTION
-        )
-    })
+    let (lo, hi) = spread(c, |r| r.separated_percent)?;
+    Some(format!(
+        "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
+        crate::compare::SEPARATION_CAUTION
+    ))
+}
+
+/// The same for the underbody's separated share and the lift ranking.
+fn underbody_spread(c: &Collected) -> Option<String> {
+    let (lo, hi) = spread(c, |r| r.underbody_separated_percent)?;
+    Some(format!(
+        "The separated share of the underbody ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
+        crate::compare::UNDERBODY_CAUTION
+    ))
+}
+
+/// Lowest and highest of a percentage over the variants, when they lie
+/// more than [`crate::compare::SEPARATION_SHIFT`] apart.
+fn spread(c: &Collected, f: fn(&Row) -> f64) -> Option<(f64, f64)> {
+    let lo = c.variants.iter().map(f).fold(f64::INFINITY, f64::min);
+    let hi = c.variants.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
+    (hi - lo > 100.0 * crate::compare::SEPARATION_SHIFT).then_some((lo, hi))
 }
 
 /// The self-contained page.
@@ -384,7 +401,10 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
          of any simulation (common practice); use <code>tuft compare</code> on two variants for a verdict.</p>",
         c.variants.len()
     );
-    if let Some(text) = separation_spread(c) {
+    for text in [separation_spread(c), underbody_spread(c)]
+        .into_iter()
+        .flatten()
+    {
         let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(&text));
     }
     s.push_str("<h2>Ranking</h2>\n<table>\n<tr><th>#</th><th>variant</th>");
@@ -464,6 +484,7 @@ mod tests {
             rear_axle_kg: 0.0,
             separated_area_m2: p / 10.0,
             separated_percent: p,
+            underbody_separated_percent: 2.0 * p,
             panels: 1000,
             warnings: 0,
             matrix_reused: false,
@@ -488,10 +509,22 @@ mod tests {
         ] {
             let c = sweep(&shares);
             assert_eq!(separation_spread(&c).is_some(), warned, "{shares:?}");
+            // The underbody's shares here are twice the surface's, so they
+            // spread by more than a point whenever those spread by more
+            // than half a point.
+            let under = shares.iter().fold(f64::NEG_INFINITY, |m, &v| m.max(v))
+                - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v))
+                > 0.5;
+            assert_eq!(underbody_spread(&c).is_some(), under, "{shares:?}");
             let html = page(&c, &[]);
             assert_eq!(
-                html.contains("rests largely on the separated-flow model"),
+                html.contains("drag ranking of rear slants"),
                 warned,
+                "{shares:?}"
+            );
+            assert_eq!(
+                html.contains("loss of downforce when a diffuser stalls"),
+                under,
                 "{shares:?}"
             );
         }

@@ -380,6 +380,9 @@ fn notes(a: &ResultFolder, b: &ResultFolder) -> Vec<String> {
     if let Some(n) = separation_note(sa, sb) {
         notes.push(n);
     }
+    if let Some(n) = underbody_note(sa, sb) {
+        notes.push(n);
+    }
     notes
 }
 
@@ -389,6 +392,30 @@ pub const SEPARATION_CAUTION: &str = "the drag difference rests largely on the s
      whose drag ranking of rear slants between 25 and 35 degrees is the wrong way round against \
      wind-tunnel data; read the separation pictures first and confirm the drag ranking with validated \
      CFD or a tunnel";
+
+/// What a lift difference between runs whose underbodies separate
+/// differently rests on (see [`underbody_note`]).
+pub const UNDERBODY_CAUTION: &str = "the lift difference rests largely on the separated-flow \
+     model, which does not show the loss of downforce when a diffuser stalls (on the concept coupe \
+     the downforce kept growing to a 20-degree diffuser while half of it separated); read the \
+     separation pictures first and confirm with validated CFD or a tunnel";
+
+/// A warning when the separated share of the ground-facing panels differs
+/// by more than [`SEPARATION_SHIFT`] between two runs over the ground.
+fn underbody_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (fa, fb) = (
+        a.separation.underbody_fraction,
+        b.separation.underbody_fraction,
+    );
+    let ground = a.mesh.ground_z.is_some() && b.mesh.ground_z.is_some();
+    (ground && (fb - fa).abs() > SEPARATION_SHIFT).then(|| {
+        format!(
+            "the separated share of the underbody changes from {:.1} % to {:.1} %: {UNDERBODY_CAUTION}",
+            100.0 * fa,
+            100.0 * fb
+        )
+    })
+}
 
 /// Separated areas differing by more than this fraction of the larger
 /// wetted area make the drag difference rest on the separated-flow model.

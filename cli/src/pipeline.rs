@@ -47,6 +47,9 @@ pub struct Computed {
     pub reference_given: ReferenceGiven,
     /// Separated area, m^2 (real panels).
     pub separated_area: f64,
+    /// Separated and total area of the ground-facing panels (real panels),
+    /// m^2.
+    pub underbody_separation: (f64, f64),
     /// Lift of the ground-facing panels' pressure, kg.
     pub underbody_lift_kg: f64,
     /// Warnings the user must read.
@@ -428,6 +431,15 @@ fn finish(
         .filter(|(_, l)| l.state == FlowState::Separated)
         .map(|(p, _)| p.area)
         .sum();
+    let underbody = |p: &tuft_mesh::Panel| p.normal.z < -UNDERBODY_NORMAL_Z;
+    let underbody_area = mesh.panels.iter().filter(|p| underbody(p)).map(|p| p.area);
+    let underbody_separated = mesh
+        .panels
+        .iter()
+        .zip(&layer.panels)
+        .filter(|(p, l)| underbody(p) && l.state == FlowState::Separated)
+        .map(|(p, _)| p.area);
+    let underbody_separation = (underbody_separated.sum(), underbody_area.sum());
     let mut warnings = Vec::new();
     if layer.unresolved > 0 {
         warnings.push(format!(
@@ -459,6 +471,7 @@ fn finish(
         reference,
         reference_given,
         separated_area,
+        underbody_separation,
         underbody_lift_kg,
         warnings,
         wakes,

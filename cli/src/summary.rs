@@ -46,6 +46,10 @@ pub struct Separation {
     pub area_m2: f64,
     /// Fraction of the wetted area.
     pub fraction: f64,
+    /// Separated fraction of the ground-facing panels' area (the
+    /// underbody; zero for a body without them).
+    #[serde(default)]
+    pub underbody_fraction: f64,
 }
 
 /// The drag estimate with its sensitivity band.

@@ -358,6 +358,10 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         separation: Separation {
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
+            underbody_fraction: match c.underbody_separation {
+                (s, a) if a > 0.0 => s / a,
+                _ => 0.0,
+            },
         },
         solver: SolverFacts {
             method: format!("{:?}", c.potential.stats.method),

@@ -135,7 +135,7 @@ fn three_yaw_angles_share_one_factorisation_and_equal_separate_runs() {
     let spread = shares.iter().fold(f64::NEG_INFINITY, |m, &v| m.max(v))
         - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v));
     assert_eq!(
-        html.contains("rests largely on the separated-flow model"),
+        html.contains("drag ranking of rear slants"),
         spread > 1.0,
         "separated shares {shares:?}"
     );
