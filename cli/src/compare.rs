@@ -397,8 +397,9 @@ pub const SEPARATION_CAUTION: &str = "the drag difference rests largely on the s
 /// differently rests on (see [`underbody_note`]).
 pub const UNDERBODY_CAUTION: &str = "the lift difference rests largely on the separated-flow \
      model, which does not show the loss of downforce when a diffuser stalls (on the concept coupe \
-     the downforce kept growing to a 20-degree diffuser while half of it separated); read the \
-     separation pictures first and confirm with validated CFD or a tunnel";
+     the downforce kept growing up to a 20-degree diffuser, whose ramp the boundary layer still \
+     called 79 % attached); read the separation pictures first and confirm with validated CFD or \
+     a tunnel";
 
 /// A warning when the separated share of the ground-facing panels differs
 /// by more than [`SEPARATION_SHIFT`] between two runs over the ground.
