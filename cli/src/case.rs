@@ -30,6 +30,10 @@ pub struct CaseFile {
     /// Solver options.
     #[serde(default)]
     pub solver: SolverSection,
+    /// Named regions whose separation the summary and report give
+    /// (`[[region]]`).
+    #[serde(default, rename = "region", skip_serializing_if = "Vec::is_empty")]
+    pub regions: Vec<crate::region::RegionSection>,
 }
 
 /// `[solver]`.
@@ -246,6 +250,7 @@ impl Case {
             .map_or("case".into(), |s| s.to_string_lossy().into_owned());
         check_flow(&file)?;
         check_reference(&file.reference)?;
+        crate::region::check(&file.regions)?;
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
         let wakes = match file.solver.wakes.as_str() {

@@ -62,6 +62,9 @@ pub struct Row {
     /// Separated fraction of the underbody (ground-facing panels), %.
     #[serde(default)]
     pub underbody_separated_percent: f64,
+    /// Separated area as the stream sees it, % of the reference area.
+    #[serde(default)]
+    pub separated_frontal_percent: f64,
     /// Panels.
     pub panels: usize,
     /// Warnings in the variant's summary.
@@ -198,6 +201,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         separated_area_m2: s.separation.area_m2,
         separated_percent: 100.0 * s.separation.fraction,
         underbody_separated_percent: 100.0 * s.separation.underbody_fraction,
+        separated_frontal_percent: 100.0 * s.separation.frontal_m2
+            / s.reference.area_m2.max(f64::MIN_POSITIVE),
         panels: s.mesh.panels,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
@@ -363,28 +368,48 @@ figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 /// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
 /// ranking then rests on the separated-flow model.
 fn separation_spread(c: &Collected) -> Option<String> {
-    let (lo, hi) = spread(c, |r| r.separated_percent)?;
+    let by_area = spread(c, |r| r.separated_percent, crate::compare::SEPARATION_SHIFT);
+    let by_stream = spread(
+        c,
+        |r| r.separated_frontal_percent,
+        crate::compare::SEPARATION_FRONTAL_SHIFT,
+    );
+    if by_area.is_none() && by_stream.is_none() {
+        return None;
+    }
+    let (lo, hi) = range(c, |r| r.separated_percent);
+    let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
-        "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
+        "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants, and \
+         the separated area the stream sees from {flo:.1} % to {fhi:.1} % of the reference area: {}.",
         crate::compare::SEPARATION_CAUTION
     ))
 }
 
 /// The same for the underbody's separated share and the lift ranking.
 fn underbody_spread(c: &Collected) -> Option<String> {
-    let (lo, hi) = spread(c, |r| r.underbody_separated_percent)?;
+    let (lo, hi) = spread(
+        c,
+        |r| r.underbody_separated_percent,
+        crate::compare::SEPARATION_SHIFT,
+    )?;
     Some(format!(
         "The separated share of the underbody ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
         crate::compare::UNDERBODY_CAUTION
     ))
 }
 
-/// Lowest and highest of a percentage over the variants, when they lie
-/// more than [`crate::compare::SEPARATION_SHIFT`] apart.
-fn spread(c: &Collected, f: fn(&Row) -> f64) -> Option<(f64, f64)> {
+/// Lowest and highest of a percentage over the variants.
+fn range(c: &Collected, f: fn(&Row) -> f64) -> (f64, f64) {
     let lo = c.variants.iter().map(f).fold(f64::INFINITY, f64::min);
     let hi = c.variants.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
-    (hi - lo > 100.0 * crate::compare::SEPARATION_SHIFT).then_some((lo, hi))
+    (lo, hi)
+}
+
+/// [`range`] when the two lie more than `shift` (a fraction) apart.
+fn spread(c: &Collected, f: fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> {
+    let (lo, hi) = range(c, f);
+    (hi - lo > 100.0 * shift).then_some((lo, hi))
 }
 
 /// The self-contained page.
@@ -485,6 +510,7 @@ mod tests {
             separated_area_m2: p / 10.0,
             separated_percent: p,
             underbody_separated_percent: 2.0 * p,
+            separated_frontal_percent: 0.0,
             panels: 1000,
             warnings: 0,
             matrix_reused: false,
@@ -496,6 +522,21 @@ mod tests {
             missing: Vec::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    /// The separated area the stream sees moving by more than 2 % of the
+    /// reference area warns too, even when the share of the surface stays
+    /// within a point (the slant-back body from 25 to 35 degrees).
+    #[test]
+    fn warns_when_the_separated_area_seen_by_the_stream_moves() {
+        let mut c = sweep(&[10.0, 10.5]);
+        assert!(separation_spread(&c).is_none());
+        c.variants[1].separated_frontal_percent = 12.7;
+        let text = separation_spread(&c).unwrap_or_default();
+        assert!(
+            text.contains("from 0.0 % to 12.7 % of the reference area"),
+            "{text}"
+        );
     }
 
     /// The page warns when the separated share of the surface moves by

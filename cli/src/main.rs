@@ -21,6 +21,7 @@ mod outdir;
 mod output;
 mod pipeline;
 mod progress;
+mod region;
 mod run;
 mod slurm;
 mod summary;

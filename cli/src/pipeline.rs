@@ -50,8 +50,14 @@ pub struct Computed {
     /// Separated and total area of the ground-facing panels (real panels),
     /// m^2.
     pub underbody_separation: (f64, f64),
+    /// Separated area as the stream sees it (each panel's area times the
+    /// magnitude of its normal's component along the stream; real panels),
+    /// m^2.
+    pub separated_frontal: f64,
     /// Lift of the ground-facing panels' pressure, kg.
     pub underbody_lift_kg: f64,
+    /// The case's named regions.
+    pub regions: Vec<crate::region::RegionResult>,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
     /// The separated-flow loop, when it ran.
@@ -440,7 +446,22 @@ fn finish(
         .filter(|(p, l)| underbody(p) && l.state == FlowState::Separated)
         .map(|(p, _)| p.area);
     let underbody_separation = (underbody_separated.sum(), underbody_area.sum());
+    let stream = fs.velocity().normalize();
+    let separated_frontal = mesh
+        .panels
+        .iter()
+        .zip(&layer.panels)
+        .filter(|(_, l)| l.state == FlowState::Separated)
+        .map(|(p, _)| p.area * p.normal.dot(&stream).abs())
+        .sum();
+    let regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
     let mut warnings = Vec::new();
+    for r in regions.iter().filter(|r| r.panels == 0) {
+        warnings.push(format!(
+            "region \"{}\" holds no panels: check its ranges (metres, after geometry.units) and facing",
+            r.name
+        ));
+    }
     if layer.unresolved > 0 {
         warnings.push(format!(
             "{} of {} panels were reached by no surface streamline; their boundary layer is unresolved",
@@ -472,7 +493,9 @@ fn finish(
         reference_given,
         separated_area,
         underbody_separation,
+        separated_frontal,
         underbody_lift_kg,
+        regions,
         warnings,
         wakes,
     })

@@ -50,6 +50,10 @@ pub struct Separation {
     /// underbody; zero for a body without them).
     #[serde(default)]
     pub underbody_fraction: f64,
+    /// Separated area as the stream sees it (area times the magnitude of
+    /// the normal's component along the stream), m^2, whole body.
+    #[serde(default)]
+    pub frontal_m2: f64,
 }
 
 /// The drag estimate with its sensitivity band.
@@ -152,6 +156,9 @@ pub struct Summary {
     /// flow only).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub separated_wakes: Option<SeparatedWakes>,
+    /// The case's named regions and how much of each separated.
+    #[serde(default)]
+    pub regions: Vec<crate::region::RegionResult>,
     /// Seconds per phase.
     pub timings_s: BTreeMap<String, f64>,
     /// Warnings the user must read.

@@ -358,6 +358,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         separation: Separation {
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
+            frontal_m2: sym * c.separated_frontal,
             underbody_fraction: match c.underbody_separation {
                 (s, a) if a > 0.0 => s / a,
                 _ => 0.0,
@@ -380,6 +381,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             base_cp_loop: w.base_cp_loop,
             wake_panels: w.wake.panels.len(),
         }),
+        regions: c.regions.clone(),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
         caution: CAUTION.into(),
@@ -454,7 +456,7 @@ fn report(
     let v = case.file.flow.speed;
     let at = format!("kg at {} m/s", output::short_number(v));
     let k = &s.coefficients;
-    let numbers = vec![
+    let mut numbers = vec![
         NumberRow::number("Drag coefficient C_D (estimate)", k.drag, "-"),
         NumberRow::text(
             "Drag estimate band",
@@ -491,6 +493,21 @@ fn report(
             100.0 * s.separation.fraction,
             "%",
         ),
+    ];
+    for r in &s.regions {
+        numbers.push(NumberRow::text(
+            &format!("Region \"{}\": separated share", r.name),
+            &format!(
+                "{:.0} % ({}; mean risk {:.2}, {:.3} m²)",
+                100.0 * r.separated_fraction,
+                r.verdict,
+                r.mean_risk,
+                r.area_m2
+            ),
+            "-",
+        ));
+    }
+    numbers.extend([
         NumberRow::number(
             "Lift coefficient, attached flow",
             s.coefficients_attached.lift,
@@ -504,7 +521,7 @@ fn report(
             "-",
         ),
         NumberRow::text("Panels", &s.mesh.panels.to_string(), "-"),
-    ];
+    ]);
     let summary = format!(
         "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {:.0} kg at {} m/s ({:.0} front, {:.0} rear); \
          {:.1} % of the surface separated.",

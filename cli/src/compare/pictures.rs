@@ -166,7 +166,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let s = &c.surface;
     let at = format!("kg at {} m/s", output::short_number(c.b.speed));
     let signed = |v: f64| format!("{v:+.1}").replace('-', "\u{2212}");
-    let numbers = vec![
+    let mut numbers = vec![
         NumberRow::text(
             "Drag C_D, A and B",
             &format!("{:.3} and {:.3}", c.a.cd, c.b.cd),
@@ -221,6 +221,13 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             "-",
         ),
     ];
+    for r in &c.regions {
+        numbers.push(NumberRow::text(
+            &format!("Region \"{}\"", r.name),
+            &super::region_text(r),
+            "-",
+        ));
+    }
     let method = TextSection {
         title: "How to read this".into(),
         body: format!(

@@ -1,6 +1,9 @@
 //! Whether a drag difference stands out of the uncertainty.
 //!
-//! Two tests, both needed before a difference is called one:
+//! Two tests, both needed before a difference is called one (and none is
+//! called when the separated regions of the two runs differ enough for the
+//! difference to rest on the separated-flow model, see
+//! `compare::separation_note`):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (differences of a
 //!    few counts are within the noise of any simulation, common practice);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
@@ -35,15 +38,18 @@ pub struct DragVerdict {
     pub text: String,
 }
 
-/// Judge B's drag against A's.
-pub fn drag_verdict(a: &Summary, b: &Summary) -> DragVerdict {
+/// Judge B's drag against A's; `separation_differs` when the separated
+/// regions differ enough that the difference rests on the separated-flow
+/// model, whose drag ranking is known to fail (no winner is named then).
+pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragVerdict {
     let counts = |x: f64, y: f64| 1000.0 * (y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
     let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
     let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= NOISE_COUNTS;
     let above_noise = delta.abs() >= NOISE_COUNTS;
-    let resolved = above_noise && same_way(low) && same_way(high);
+    let banded = above_noise && same_way(low) && same_way(high);
+    let resolved = banded && !separation_differs;
     let direction = match (resolved, delta < 0.0) {
         (false, _) => "undecided",
         (true, true) => "lower",
@@ -52,6 +58,11 @@ pub fn drag_verdict(a: &Summary, b: &Summary) -> DragVerdict {
     let text = if !above_noise {
         format!(
             "drag difference {delta:+.1} counts is within the noise floor of {NOISE_COUNTS} counts: no winner"
+        )
+    } else if banded {
+        format!(
+            "drag difference {delta:+.1} counts ({low:+.1} to {high:+.1} across the sensitivity bands), but \
+             the separated regions differ, where the model's drag ranking is not reliable: no winner"
         )
     } else if !resolved {
         format!(
@@ -91,14 +102,19 @@ mod tests {
     fn small_or_model_dependent_differences_name_no_winner() {
         let a = summary(0.300, 0.290, 0.320);
         // 2 counts: under the noise floor of a few counts (common practice).
-        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322));
+        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), false);
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
         // 10 counts lower at the centre but higher at the top of the band.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325));
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), false);
         assert!(!v.resolved, "{v:?}");
         // 10 counts lower everywhere.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310));
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), false);
         assert!(v.resolved && v.direction == "lower", "{v:?}");
         assert!((v.delta_counts + 10.0).abs() < 1e-9);
+        // The same, but the separated regions differ: no winner, and the
+        // text says why.
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), true);
+        assert!(!v.resolved && v.direction == "undecided", "{v:?}");
+        assert!(v.text.contains("separated regions differ"), "{}", v.text);
     }
 }

@@ -1,0 +1,217 @@
+//! Named regions of the surface (`[[region]]` in a case): how much of each
+//! the boundary layer calls separated, so "does the rear window keep the
+//! flow?" gets a number beside the pictures.
+//!
+//! A region is every panel whose centroid lies in the given coordinate
+//! ranges (metres, the body as solved: after `geometry.units`) and whose
+//! outward normal faces the given way. On a half model the mirror half's
+//! panels count too (each real panel is tested as itself and as its
+//! image), so a region means the same on a half and on a whole body.
+
+use anyhow::{Result, bail};
+use serde::{Deserialize, Serialize};
+use tuft_mesh::{PanelMesh, Point, Vector};
+use tuft_solver::boundary_layer::{BoundaryLayer, FlowState};
+
+/// `[[region]]` as written.
+#[derive(Debug, Clone, Deserialize, Serialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct RegionSection {
+    /// Name shown in the summary, the report and comparisons.
+    pub name: String,
+    /// Range of x, m (absent: any).
+    pub x: Option<[f64; 2]>,
+    /// Range of y, m.
+    pub y: Option<[f64; 2]>,
+    /// Range of z, m.
+    pub z: Option<[f64; 2]>,
+    /// Which way the panels face: `up`, `down`, `front`, `rear` or `side`
+    /// (absent: any).
+    pub facing: Option<String>,
+}
+
+/// A panel faces a direction when its outward normal's component along
+/// it exceeds this (about 60 degrees from it at most). Our choice.
+pub const FACING_COS: f64 = 0.5;
+
+/// Share of a region's area separated below which it is called attached,
+/// and from which it is called separated; between them, partly
+/// separated. The same lines the slant-back validation draws between the
+/// published regimes (`tests/tests/separated_wakes.rs`); our choice.
+pub const VERDICT_LINES: [f64; 2] = [0.2, 0.6];
+
+/// One region's result.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct RegionResult {
+    /// Its name.
+    pub name: String,
+    /// Panels in it (mirror images counted).
+    pub panels: usize,
+    /// Its area, m^2.
+    pub area_m2: f64,
+    /// Share of its area the boundary layer calls separated.
+    pub separated_fraction: f64,
+    /// Area-mean separation risk (0 far from separating, 1 separated).
+    pub mean_risk: f64,
+    /// "attached", "partly separated" or "separated" (see
+    /// [`VERDICT_LINES`]).
+    pub verdict: String,
+}
+
+fn facing_vector(word: &str) -> Option<Vector> {
+    Some(match word {
+        "up" => Vector::z(),
+        "down" => -Vector::z(),
+        "front" => -Vector::x(),
+        "rear" => Vector::x(),
+        "side" => Vector::y(),
+        _ => return None,
+    })
+}
+
+/// Check the regions of a case: names given and distinct, ranges finite
+/// and increasing, facing words known.
+///
+/// # Errors
+/// One sentence naming the region and the key.
+pub fn check(regions: &[RegionSection]) -> Result<()> {
+    for (k, r) in regions.iter().enumerate() {
+        if r.name.trim().is_empty() {
+            bail!("region {}: give it a name", k + 1);
+        }
+        if regions[..k].iter().any(|o| o.name == r.name) {
+            bail!("region \"{}\" is named twice", r.name);
+        }
+        for (axis, range) in [("x", r.x), ("y", r.y), ("z", r.z)] {
+            if let Some([lo, hi]) = range
+                && !(lo.is_finite() && hi.is_finite() && lo < hi)
+            {
+                bail!(
+                    "region \"{}\": {axis} must be [low, high] with low below high (got [{lo}, {hi}])",
+                    r.name
+                );
+            }
+        }
+        if let Some(f) = &r.facing
+            && facing_vector(f).is_none()
+        {
+            bail!(
+                "region \"{}\": facing must be up, down, front, rear or side (got \"{f}\")",
+                r.name
+            );
+        }
+    }
+    Ok(())
+}
+
+fn inside(r: &RegionSection, c: &Point, n: &Vector) -> bool {
+    let within = |range: Option<[f64; 2]>, v: f64| range.is_none_or(|[lo, hi]| lo <= v && v <= hi);
+    let faces = match r.facing.as_deref() {
+        None => true,
+        // Either side.
+        Some("side") => n.y.abs() > FACING_COS,
+        Some(w) => facing_vector(w).is_some_and(|d| n.dot(&d) > FACING_COS),
+    };
+    within(r.x, c.x) && within(r.y, c.y) && within(r.z, c.z) && faces
+}
+
+/// Each region's separated share and mean risk on `mesh` with `layer`.
+pub fn evaluate(
+    regions: &[RegionSection],
+    mesh: &PanelMesh,
+    layer: &BoundaryLayer,
+) -> Vec<RegionResult> {
+    regions
+        .iter()
+        .map(|r| {
+            let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
+            for (p, l) in mesh.panels.iter().zip(&layer.panels) {
+                let n = p.normal.into_inner();
+                let mut copies = vec![(p.centroid, n)];
+                if mesh.mirrors.symmetry {
+                    let c = p.centroid;
+                    copies.push((Point::new(c.x, -c.y, c.z), Vector::new(n.x, -n.y, n.z)));
+                }
+                for (c, n) in copies {
+                    if inside(r, &c, &n) {
+                        panels += 1;
+                        area += p.area;
+                        risk += p.area * l.risk;
+                        if l.state == FlowState::Separated {
+                            separated += p.area;
+                        }
+                    }
+                }
+            }
+            let share = |x: f64| if area > 0.0 { x / area } else { 0.0 };
+            let fraction = share(separated);
+            RegionResult {
+                name: r.name.clone(),
+                panels,
+                area_m2: area,
+                separated_fraction: fraction,
+                mean_risk: share(risk),
+                verdict: verdict(fraction).into(),
+            }
+        })
+        .collect()
+}
+
+/// The word for a separated share (see [`VERDICT_LINES`]).
+pub fn verdict(fraction: f64) -> &'static str {
+    if fraction < VERDICT_LINES[0] {
+        "attached"
+    } else if fraction < VERDICT_LINES[1] {
+        "partly separated"
+    } else {
+        "separated"
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn region(toml_text: &str) -> Vec<RegionSection> {
+        #[derive(Deserialize)]
+        struct File {
+            region: Vec<RegionSection>,
+        }
+        toml::from_str::<File>(toml_text)
+            .map(|f| f.region)
+            .unwrap_or_else(|e| panic!("{e}"))
+    }
+
+    #[test]
+    fn bad_regions_are_refused_by_name() {
+        let cases = [
+            ("[[region]]\nname = \"\"\n", "give it a name"),
+            (
+                "[[region]]\nname = \"a\"\n[[region]]\nname = \"a\"\n",
+                "named twice",
+            ),
+            (
+                "[[region]]\nname = \"w\"\nx = [2.0, 1.0]\n",
+                "region \"w\": x must be [low, high]",
+            ),
+            (
+                "[[region]]\nname = \"w\"\nfacing = \"sideways\"\n",
+                "facing must be up, down",
+            ),
+        ];
+        for (text, want) in cases {
+            let err = check(&region(text)).err().map(|e| e.to_string());
+            assert!(err.as_deref().is_some_and(|e| e.contains(want)), "{err:?}");
+        }
+        let good = "[[region]]\nname = \"rear window\"\nx = [3.0, 3.8]\nfacing = \"up\"\n";
+        assert!(check(&region(good)).is_ok());
+    }
+
+    #[test]
+    fn verdict_lines() {
+        assert_eq!(verdict(0.19), "attached");
+        assert_eq!(verdict(0.2), "partly separated");
+        assert_eq!(verdict(0.59), "partly separated");
+        assert_eq!(verdict(0.6), "separated");
+    }
+}
