@@ -207,6 +207,66 @@ mod tests {
         assert!(check(&region(good)).is_ok());
     }
 
+    /// A region means the same on a half model (mirror half counted) as on
+    /// the whole body: the generated coupe's rear window, with a made-up
+    /// layer separated behind x = 3.4 m and a risk growing along x.
+    #[test]
+    fn half_and_whole_bodies_agree() {
+        use tuft_mesh::Mirrors;
+        use tuft_mesh::generate::{CoupeParams, coupe_with_params};
+        use tuft_solver::boundary_layer::PanelLayer;
+        let regions =
+            region("[[region]]\nname = \"rear window\"\nx = [3.15, 3.7]\nfacing = \"up\"\n");
+        let result = |half: bool| {
+            let body = coupe_with_params(&CoupeParams {
+                panels: 3000,
+                half,
+                ..CoupeParams::default()
+            })
+            .unwrap_or_else(|e| panic!("{e}"));
+            let mirrors = Mirrors {
+                ground: Some(0.0),
+                symmetry: half,
+            };
+            let mesh = PanelMesh::new(body, mirrors).unwrap_or_else(|e| panic!("{e}"));
+            let panels = mesh
+                .panels
+                .iter()
+                .map(|p| PanelLayer {
+                    state: if p.centroid.x > 3.4 {
+                        FlowState::Separated
+                    } else {
+                        FlowState::Turbulent
+                    },
+                    risk: (p.centroid.x / 4.5).clamp(0.0, 1.0),
+                    ..PanelLayer::unresolved()
+                })
+                .collect();
+            let layer = BoundaryLayer {
+                panels,
+                streamlines: Vec::new(),
+                unresolved: 0,
+                transition_panels: Vec::new(),
+                separation_panels: Vec::new(),
+                separation_source: vec![None; mesh.len()],
+                attachments: Vec::new(),
+            };
+            evaluate(&regions, &mesh, &layer).remove(0)
+        };
+        let (whole, half) = (result(false), result(true));
+        assert_eq!(whole.panels, half.panels);
+        for (a, b) in [
+            (whole.area_m2, half.area_m2),
+            (whole.separated_fraction, half.separated_fraction),
+            (whole.mean_risk, half.mean_risk),
+        ] {
+            assert!((a - b).abs() <= 1e-9 * a.abs().max(1.0), "{a} vs {b}");
+        }
+        // About half the window lies behind x = 3.4 m.
+        assert!((0.3..0.7).contains(&whole.separated_fraction), "{whole:?}");
+        assert_eq!(whole.verdict, "partly separated");
+    }
+
     #[test]
     fn verdict_lines() {
         assert_eq!(verdict(0.19), "attached");
