@@ -457,7 +457,7 @@ fn report(
     let at = format!("kg at {} m/s", output::short_number(v));
     let k = &s.coefficients;
     let mut numbers = vec![
-        NumberRow::number("Drag coefficient C_D (estimate)", k.drag, "-"),
+        NumberRow::fixed("Drag coefficient C_D (estimate)", k.drag, 3, "-"),
         NumberRow::text(
             "Drag estimate band",
             &format!(
@@ -476,21 +476,23 @@ fn report(
             k.drag_pressure,
         ),
         NumberRow::counts("Drag, friction part", k.drag_friction),
-        NumberRow::number("Lift coefficient C_L", k.lift, "-"),
-        NumberRow::number("Lift, whole body", s.lift_kg.total, &at),
-        NumberRow::number("Lift, front axle", s.lift_kg.front_axle, &at),
-        NumberRow::number("Lift, rear axle", s.lift_kg.rear_axle, &at),
-        NumberRow::number(
+        NumberRow::fixed("Lift coefficient C_L", k.lift, 3, "-"),
+        NumberRow::fixed("Lift, whole body", s.lift_kg.total, 0, &at),
+        NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
+        NumberRow::fixed("Lift, rear axle", s.lift_kg.rear_axle, 0, &at),
+        NumberRow::fixed(
             "Lift, of which the underbody (ground-facing panels)",
             s.lift_kg.underbody,
+            0,
             &at,
         ),
-        NumberRow::number("Side-force coefficient", k.side, "-"),
-        NumberRow::number("Pitching-moment coefficient", k.pitch, "-"),
-        NumberRow::number("Separated area", s.separation.area_m2, "m²"),
-        NumberRow::number(
+        NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
+        NumberRow::fixed("Pitching-moment coefficient", k.pitch, 3, "-"),
+        NumberRow::fixed("Separated area", s.separation.area_m2, 2, "m²"),
+        NumberRow::fixed(
             "Separated fraction of the wetted area",
             100.0 * s.separation.fraction,
+            1,
             "%",
         ),
     ];
@@ -508,9 +510,10 @@ fn report(
         ));
     }
     numbers.extend([
-        NumberRow::number(
+        NumberRow::fixed(
             "Lift coefficient, attached flow",
             s.coefficients_attached.lift,
+            3,
             "-",
         ),
         NumberRow::number("Reference area", s.reference.area_m2, "m²"),

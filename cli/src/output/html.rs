@@ -31,6 +31,20 @@ impl NumberRow {
         Self::text(label, &significant(value, 4), unit)
     }
 
+    /// A row with a number shown to `decimals` places: as many as the
+    /// quantity is worth (whole kilograms of lift, three places of a
+    /// coefficient), not as many as the arithmetic carried.
+    pub fn fixed(label: &str, value: f64, decimals: usize, unit: &str) -> Self {
+        let text = format!("{value:.decimals$}");
+        let magnitude = text.trim_start_matches('-');
+        // A value that rounds to zero reads "0.000", not "-0.000".
+        if magnitude.chars().all(|c| c == '0' || c == '.') {
+            Self::text(label, magnitude, unit)
+        } else {
+            Self::text(label, &text.replace('-', "\u{2212}"), unit)
+        }
+    }
+
     /// A drag (or any force) coefficient in counts (1 count = 0.001,
     /// common practice), rounded to whole counts.
     pub fn counts(label: &str, coefficient: f64) -> Self {
@@ -352,5 +366,14 @@ mod tests {
         assert_eq!(significant(-123.456, 4), "\u{2212}123.5");
         assert_eq!(significant(0.0123, 3), "0.0123");
         assert_eq!(NumberRow::counts("C_D", 0.2854).value, "285");
+        assert_eq!(
+            NumberRow::fixed("lift", -94.53, 0, "kg").value,
+            "\u{2212}95"
+        );
+        assert_eq!(
+            NumberRow::fixed("C_L", -0.51338, 3, "-").value,
+            "\u{2212}0.513"
+        );
+        assert_eq!(NumberRow::fixed("side", -0.0001, 3, "-").value, "0.000");
     }
 }
