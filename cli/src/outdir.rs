@@ -18,13 +18,24 @@ pub struct Staging {
 }
 
 impl Staging {
-    /// Prepare to write `dest`. Refuses when `dest` exists and `force` is false.
+    /// Prepare to write `dest`. Refuses when `dest` exists and `force` is
+    /// false, and, with `force`, when `dest` is not a result folder tuft
+    /// wrote (see [`replaceable`]).
     pub fn new(dest: &Path, force: bool) -> Result<Self> {
-        if dest.exists() && !force {
-            bail!(
-                "{}: the result folder already exists; pass --force to replace it or --out to choose another",
-                dest.display()
-            );
+        if dest.exists() {
+            if !dest.is_dir() {
+                bail!(
+                    "{}: a file of that name is in the way of the result folder; choose another with --out",
+                    dest.display()
+                );
+            }
+            if !force {
+                bail!(
+                    "{}: the result folder already exists; pass --force to replace it or --out to choose another",
+                    dest.display()
+                );
+            }
+            replaceable(dest)?;
         }
         let parent = match dest.parent() {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
@@ -35,6 +46,7 @@ impl Staging {
         let leaf = dest
             .file_name()
             .map_or("tuft".into(), |s| s.to_string_lossy().into_owned());
+        remove_stale(&parent, &leaf);
         let tmp = parent.join(format!(".{leaf}.partial-{}", std::process::id()));
         if tmp.exists() {
             std::fs::remove_dir_all(&tmp).ok();
@@ -63,6 +75,7 @@ impl Staging {
                     self.dest.display()
                 );
             }
+            replaceable(&self.dest)?;
             std::fs::remove_dir_all(&self.dest).with_context(|| {
                 format!("{}: cannot replace the old results", self.dest.display())
             })?;
@@ -76,6 +89,60 @@ impl Staging {
         self.done = true;
         Ok(self.dest.clone())
     }
+}
+
+/// Remove the hidden staging folders `.{leaf}.partial-PID` that an
+/// interrupted run (Ctrl-C, a killed job) left beside `leaf`: those whose
+/// process is gone. Where there is no `/proc` to ask, none are removed.
+fn remove_stale(parent: &Path, leaf: &str) {
+    let prefix = format!(".{leaf}.partial-");
+    let Ok(entries) = std::fs::read_dir(parent) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().into_owned();
+        let Some(pid) = name.strip_prefix(&prefix) else {
+            continue;
+        };
+        let alive = || Path::new("/proc").join(pid).exists();
+        if pid.parse::<u32>().is_ok() && Path::new("/proc/self").exists() && !alive() {
+            std::fs::remove_dir_all(e.path()).ok();
+        }
+    }
+}
+
+/// Files only a tuft result folder holds: a run's or a sweep variant's
+/// `summary.json`, a comparison's `compare.json`.
+const RESULT_MARKERS: [&str; 2] = ["summary.json", "compare.json"];
+
+/// `--force` deletes the old folder, so it may only delete what tuft wrote:
+/// a folder holding one of [`RESULT_MARKERS`] that is neither the working
+/// folder nor one of its parents (`--out .` beside the case and the STL
+/// would otherwise delete them).
+///
+/// # Errors
+/// When `dest` does not look like a result folder or holds the working
+/// folder.
+pub fn replaceable(dest: &Path) -> Result<()> {
+    let full = dest
+        .canonicalize()
+        .with_context(|| format!("{}: cannot read the folder", dest.display()))?;
+    let here = std::env::current_dir().and_then(|d| d.canonicalize());
+    if here.is_ok_and(|h| h.starts_with(&full)) {
+        bail!(
+            "{}: --force would delete the working folder (or one holding it); choose a result folder with --out",
+            dest.display()
+        );
+    }
+    if !RESULT_MARKERS.iter().any(|m| full.join(m).is_file()) {
+        bail!(
+            "{}: the folder exists but holds no tuft results (no {}), so --force will not delete it; \
+             choose another with --out",
+            dest.display(),
+            RESULT_MARKERS.join(" or ")
+        );
+    }
+    Ok(())
 }
 
 impl Drop for Staging {
@@ -110,10 +177,61 @@ mod tests {
             Staging::new(&dest, false).is_err(),
             "no overwrite without force"
         );
+        let err = Staging::new(&dest, true).err().unwrap();
+        assert!(format!("{err}").contains("holds no tuft results"), "{err}");
+        assert_eq!(std::fs::read_to_string(dest.join("a.txt")).unwrap(), "1");
+        std::fs::write(dest.join("summary.json"), "{}").unwrap();
         let s = Staging::new(&dest, true).unwrap();
         std::fs::write(s.file("a.txt"), "2").unwrap();
         s.commit().unwrap();
         assert_eq!(std::fs::read_to_string(dest.join("a.txt")).unwrap(), "2");
         assert_eq!(std::fs::read_dir(root.path()).unwrap().count(), 1);
+    }
+
+    /// A staging folder left by a process that is gone is removed by the
+    /// next run to the same folder; one of a live process is kept.
+    #[test]
+    fn interrupted_runs_leave_nothing_for_long() {
+        if !Path::new("/proc/self").exists() {
+            return; // nothing to ask whether a process lives
+        }
+        let root = tempfile::tempdir().unwrap();
+        // PID 4194304 is beyond Linux's largest (2^22), so never alive.
+        let stale = root.path().join(".case.partial-4194304");
+        // PID 1 (the init process) always lives.
+        let live = root.path().join(".case.partial-1");
+        std::fs::create_dir_all(&stale).unwrap();
+        std::fs::create_dir_all(&live).unwrap();
+        let other = root.path().join(".other.partial-4194304");
+        std::fs::create_dir_all(&other).unwrap();
+        let s = Staging::new(&root.path().join("case"), false).unwrap();
+        assert!(!stale.exists());
+        assert!(live.exists(), "a live process's folder is in use");
+        assert!(other.exists(), "another result's staging is not touched");
+        drop(s);
+    }
+
+    /// `--force` never deletes a folder tuft did not write, nor a file in
+    /// the way, nor the working folder's parents.
+    #[test]
+    fn force_deletes_only_result_folders() {
+        let root = tempfile::tempdir().unwrap();
+        let mine = root.path().join("my-scans");
+        std::fs::create_dir_all(mine.join("sub")).unwrap();
+        std::fs::write(mine.join("sub/scan-v3.stl"), "solid").unwrap();
+        assert!(Staging::new(&mine, true).is_err());
+        assert!(
+            mine.join("sub/scan-v3.stl").is_file(),
+            "the user's file stays"
+        );
+        let file = root.path().join("afile");
+        std::fs::write(&file, "x").unwrap();
+        let err = Staging::new(&file, true).err().unwrap();
+        assert!(format!("{err}").contains("a file of that name"), "{err}");
+        // The working folder (cargo runs tests in the crate's folder) and
+        // its parents are never replaced, even holding a summary.
+        let here = std::env::current_dir().unwrap();
+        assert!(replaceable(&here).is_err());
+        assert!(replaceable(here.parent().unwrap()).is_err());
     }
 }
