@@ -62,6 +62,9 @@ pub fn load(case: &Case) -> Result<Geometry> {
         }
     };
     check_ground(&mesh, case)?;
+    check_size(&mesh, case)?;
+    check_axles(&mesh, case)?;
+    crate::region::check_on_body(&case.file.regions, &mesh)?;
     Ok(Geometry {
         mesh,
         input_facets,
@@ -161,6 +164,68 @@ fn check_ground(mesh: &PanelMesh, case: &Case) -> Result<()> {
             ground.z,
             lo.z
         );
+    }
+    Ok(())
+}
+
+/// Smallest and largest body (its largest extent, m) a run accepts: below
+/// and above them the STL's unit was almost surely misread (a car in metres
+/// read as millimetres is 4.5 mm long; in millimetres read as metres,
+/// 4.5 km).
+pub const BODY_SIZE_LIMITS: [f64; 2] = [0.05, 100.0];
+
+/// Refuse a body whose size says the length unit was misread.
+fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {
+    let (lo, hi) = mesh.bounds();
+    let size = (hi - lo).max();
+    if (BODY_SIZE_LIMITS[0]..=BODY_SIZE_LIMITS[1]).contains(&size) {
+        return Ok(());
+    }
+    let unit = match &case.source {
+        GeometrySource::Stl { scale, .. } => {
+            format!(
+                "; is geometry.units right (the STL was read as {})?",
+                unit_name(*scale)
+            )
+        }
+        GeometrySource::Shape { .. } => String::new(),
+    };
+    bail!(
+        "the body is {} m across at its largest, outside the {} to {} m tuft screens{unit}",
+        crate::output::html::significant(size, 2),
+        BODY_SIZE_LIMITS[0],
+        BODY_SIZE_LIMITS[1]
+    )
+}
+
+fn unit_name(scale: f64) -> &'static str {
+    match unit_of(scale) {
+        LengthUnit::M => "metres",
+        LengthUnit::Cm => "centimetres",
+        LengthUnit::Mm => "millimetres",
+        LengthUnit::In => "inches",
+    }
+}
+
+/// Refuse axle positions outside the body's length (given in millimetres,
+/// or for another body).
+fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
+    let r = &case.file.reference;
+    let (lo, hi) = mesh.bounds();
+    for (key, x) in [
+        ("front_axle_x", r.front_axle_x),
+        ("rear_axle_x", r.rear_axle_x),
+    ] {
+        if let Some(x) = x
+            && !(lo.x <= x && x <= hi.x)
+        {
+            bail!(
+                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m \
+                 (lengths in the case file are metres)",
+                lo.x,
+                hi.x
+            );
+        }
     }
     Ok(())
 }

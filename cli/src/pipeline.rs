@@ -281,6 +281,22 @@ pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> 
     })
 }
 
+/// A ground plane further below the body than the body is long leaves the
+/// run close to free air, which is more often a ground height given in
+/// millimetres than a wish (leaving `[ground]` out gives free air).
+pub fn far_ground_warning(mesh: &PanelMesh) -> Option<String> {
+    let ground = mesh.mirrors.ground?;
+    let (lo, hi) = mesh.bounds();
+    let (gap, length) = (lo.z - ground, (hi - lo).max());
+    (gap > length).then(|| {
+        format!(
+            "the ground plane (z = {ground} m) is {gap:.1} m below the body, more than the body's {length:.1} m \
+             length: the run is close to free air; lengths in the case file are metres (leave [ground] out \
+             for free air)"
+        )
+    })
+}
+
 /// A panel faces the ground when its outward normal points down by more
 /// than this (the z component of the unit normal below minus this).
 pub const UNDERBODY_NORMAL_Z: f64 = 0.5;
@@ -456,12 +472,6 @@ fn finish(
         .sum();
     let regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
     let mut warnings = Vec::new();
-    for r in regions.iter().filter(|r| r.panels == 0) {
-        warnings.push(format!(
-            "region \"{}\" holds no panels: check its ranges (metres, after geometry.units) and facing",
-            r.name
-        ));
-    }
     if layer.unresolved > 0 {
         warnings.push(format!(
             "{} of {} panels were reached by no surface streamline; their boundary layer is unresolved",
@@ -469,6 +479,7 @@ fn finish(
             mesh.len()
         ));
     }
+    warnings.extend(far_ground_warning(mesh));
     if !reference_given.axles {
         warnings.push(
             "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \
@@ -679,6 +690,23 @@ fn drag_band(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A ground a body length or more below a 1 m sphere is warned about
+    /// (a height in millimetres, most likely); one just below it is not.
+    #[test]
+    fn a_far_ground_is_warned_about() {
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        let sphere = |ground: f64| {
+            let mirrors = Mirrors {
+                ground: Some(ground),
+                symmetry: false,
+            };
+            PanelMesh::new(generate::icosphere(0.5, 2), mirrors).unwrap()
+        };
+        let w = far_ground_warning(&sphere(-100.0)).unwrap();
+        assert!(w.contains("z = -100 m") && w.contains("free air"), "{w}");
+        assert!(far_ground_warning(&sphere(-0.6)).is_none());
+    }
 
     /// The underbody's lift of a half model (its mirror half added, as for
     /// the total lift) equals the whole body's, for any pressure symmetric

@@ -115,6 +115,48 @@ fn inside(r: &RegionSection, c: &Point, n: &Vector) -> bool {
     within(r.x, c.x) && within(r.y, c.y) && within(r.z, c.z) && faces
 }
 
+/// A panel's centroid and normal, and its mirror image's on a half model
+/// (a region means the same on a half and on a whole body).
+fn copies(mesh: &PanelMesh, p: &tuft_mesh::Panel) -> Vec<(Point, Vector)> {
+    let (c, n) = (p.centroid, p.normal.into_inner());
+    let mut out = vec![(c, n)];
+    if mesh.mirrors.symmetry {
+        out.push((Point::new(c.x, -c.y, c.z), Vector::new(n.x, -n.y, n.z)));
+    }
+    out
+}
+
+/// Refuse a region that holds no panel of `mesh` (ranges in millimetres,
+/// or a facing no panel in the ranges has): its verdict would read
+/// "attached" for nothing.
+///
+/// # Errors
+/// One sentence naming the region and the body's extent.
+pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> {
+    for r in regions {
+        let empty = !mesh
+            .panels
+            .iter()
+            .any(|p| copies(mesh, p).iter().any(|(c, n)| inside(r, c, n)));
+        if empty {
+            let (lo, hi) = mesh.bounds();
+            let lo_y = if mesh.mirrors.symmetry { -hi.y } else { lo.y };
+            bail!(
+                "region \"{}\" holds no panel of the body (which spans x {:.3} to {:.3}, y {:.3} to {:.3}, \
+                 z {:.3} to {:.3} m): check its ranges (metres) and facing",
+                r.name,
+                lo.x,
+                hi.x,
+                lo_y,
+                hi.y,
+                lo.z,
+                hi.z
+            );
+        }
+    }
+    Ok(())
+}
+
 /// Each region's separated share and mean risk on `mesh` with `layer`.
 pub fn evaluate(
     regions: &[RegionSection],
@@ -126,13 +168,7 @@ pub fn evaluate(
         .map(|r| {
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
             for (p, l) in mesh.panels.iter().zip(&layer.panels) {
-                let n = p.normal.into_inner();
-                let mut copies = vec![(p.centroid, n)];
-                if mesh.mirrors.symmetry {
-                    let c = p.centroid;
-                    copies.push((Point::new(c.x, -c.y, c.z), Vector::new(n.x, -n.y, n.z)));
-                }
-                for (c, n) in copies {
+                for (c, n) in copies(mesh, p) {
                     if inside(r, &c, &n) {
                         panels += 1;
                         area += p.area;

@@ -125,6 +125,41 @@ fn bad_units_are_refused() {
     );
 }
 
+/// The shipped coupe STL is in millimetres (4.5 m long): read as metres it
+/// would be a 4.5 km body and the run would report millions of kg of lift.
+#[test]
+fn a_misread_unit_is_refused() {
+    refused(
+        "mm-as-m",
+        "[geometry]\nstl = \"coupe.stl\"\nunits = \"m\"\n",
+        true,
+        &["geometry.units", "metres", "4500 m"],
+    );
+}
+
+/// Axle positions in millimetres lie outside a 4.5 m body.
+#[test]
+fn an_axle_outside_the_body_is_refused() {
+    refused(
+        "axles-in-mm",
+        "[geometry]\nstl = \"coupe.stl\"\n[reference]\nfront_axle_x = 950\nrear_axle_x = 3650\n",
+        true,
+        &["reference.front_axle_x", "outside the body"],
+    );
+}
+
+/// A region given in millimetres holds no panel: refused before the solve
+/// rather than reported "attached" for nothing.
+#[test]
+fn a_region_off_the_body_is_refused() {
+    refused(
+        "region-in-mm",
+        &format!("{SPHERE}[[region]]\nname = \"rear\"\nx = [150, 500]\n"),
+        false,
+        &["region \"rear\"", "holds no panel"],
+    );
+}
+
 #[test]
 fn forced_transition_without_its_position_is_refused() {
     refused(
