@@ -333,6 +333,7 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
     {
         bail!("geometry.panels must be between 100 and 200000 (got {n})");
     }
+    check_shape_keys(g)?;
     match (&g.stl, &g.shape) {
         (Some(_), Some(_)) => bail!("geometry: give either stl or shape, not both"),
         (None, None) => bail!("geometry: give stl (a file) or shape (coupe, ahmed, sphere)"),
@@ -357,6 +358,59 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
             Ok(GeometrySource::Shape { name: name.clone() })
         }
     }
+}
+
+/// The built-in shapes and the `[geometry]` keys each one reads.
+const SHAPE_KEYS: [(&str, &[&str]); 3] = [
+    (
+        "coupe",
+        &[
+            "rear_window_deg",
+            "boot_deck_length",
+            "diffuser_deg",
+            "ride_height",
+        ],
+    ),
+    ("ahmed", &["slant_deg", "ride_height"]),
+    ("sphere", &["radius", "centre_z"]),
+];
+
+/// Refuse a built-in shape's parameter the case's geometry does not read
+/// (e.g. `rear_window_deg` beside an STL, which would run the STL
+/// unchanged and make a sweep over it a row of identical results).
+fn check_shape_keys(g: &GeometrySection) -> Result<()> {
+    let given = [
+        ("rear_window_deg", g.rear_window_deg.is_some()),
+        ("boot_deck_length", g.boot_deck_length.is_some()),
+        ("diffuser_deg", g.diffuser_deg.is_some()),
+        ("ride_height", g.ride_height.is_some()),
+        ("slant_deg", g.slant_deg.is_some()),
+        ("radius", g.radius.is_some()),
+        ("centre_z", g.centre_z.is_some()),
+    ];
+    let reads = |key: &str| {
+        SHAPE_KEYS
+            .iter()
+            .find(|(shape, _)| g.shape.as_deref() == Some(*shape))
+            .is_some_and(|(_, keys)| keys.contains(&key))
+    };
+    let Some((key, _)) = given.iter().find(|(key, set)| *set && !reads(key)) else {
+        return Ok(());
+    };
+    let owners: Vec<&str> = SHAPE_KEYS
+        .iter()
+        .filter(|(_, keys)| keys.contains(key))
+        .map(|(shape, _)| *shape)
+        .collect();
+    let this = match (&g.stl, &g.shape) {
+        (Some(_), _) => "this case reads an STL".to_owned(),
+        (None, Some(shape)) => format!("this case's shape is {shape}"),
+        (None, None) => "this case gives no shape".to_owned(),
+    };
+    bail!(
+        "geometry.{key} applies only to the built-in shape {} ({this}); remove it, or change the STL itself",
+        owners.join(" and ")
+    )
 }
 
 fn resolve_transition(b: &BoundaryLayerSection) -> Result<TransitionMode> {

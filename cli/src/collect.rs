@@ -94,12 +94,10 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     write_outputs(&args.dir, &c)?;
     if !args.quiet {
         println!(
-            "{}: {} variants collected; best drag: {}",
+            "{}: {} variants collected; {}",
             c.sweep,
             c.variants.len(),
-            c.variants
-                .first()
-                .map_or("-".into(), |r| format!("{} (C_D {:.3})", r.name, r.cd))
+            best_drag(&c)
         );
         for m in &c.missing {
             println!("  missing or failed: {m}");
@@ -111,6 +109,33 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     } else {
         ExitCode::from(EXIT_WARNINGS)
     })
+}
+
+/// The lowest drag, named the best only when it beats the next by more
+/// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
+/// separated share stays put across the variants (as `tuft compare`
+/// names a winner).
+fn best_drag(c: &Collected) -> String {
+    let [first, rest @ ..] = c.variants.as_slice() else {
+        return "no drag to rank".into();
+    };
+    let lowest = format!("{} (C_D {:.3})", first.name, first.cd);
+    let Some(second) = rest.first() else {
+        return format!("drag: {lowest}");
+    };
+    let gap = 1000.0 * (second.cd - first.cd);
+    if gap < crate::compare::NOISE_COUNTS {
+        format!(
+            "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
+            second.name
+        )
+    } else if separation_spread(c).is_some() {
+        format!(
+            "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the report)"
+        )
+    } else {
+        format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
+    }
 }
 
 #[derive(Deserialize)]
@@ -522,6 +547,31 @@ mod tests {
             missing: Vec::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    /// The best drag is named only beyond the noise floor and with the
+    /// separated share steady (the rule `tuft compare` follows).
+    #[test]
+    fn names_the_best_drag_only_beyond_the_noise() {
+        let mut c = sweep(&[10.0, 10.0]);
+        c.variants[1].cd = 0.302;
+        assert!(
+            best_drag(&c).contains("no clear winner"),
+            "{}",
+            best_drag(&c)
+        );
+        c.variants[1].cd = 0.31;
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        c.variants[1].separated_percent = 14.0;
+        assert!(
+            best_drag(&c).contains("no winner is named"),
+            "{}",
+            best_drag(&c)
+        );
     }
 
     /// The separated area the stream sees moving by more than 2 % of the

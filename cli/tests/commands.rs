@@ -272,3 +272,49 @@ fn the_readme_case_file_runs() {
     .unwrap();
     assert_eq!(summary["reference"]["front_axle_x_m"].as_f64(), Some(0.95));
 }
+
+/// The README's sweep example varies the rear window of the built-in coupe
+/// (here at 600 panels to keep the test short): every variant runs and
+/// the rear-window slope changes the drag.
+#[test]
+fn the_readme_sweep_example_varies_the_shape() {
+    let readme = std::fs::read_to_string(cases_dir().join("../README.md")).unwrap();
+    let start = readme
+        .find("# rear-window.toml\n")
+        .expect("the sweep example");
+    let text = &readme[start..start + readme[start..].find("```").unwrap()];
+    let text = text.replace("shape = \"coupe\"", "shape = \"coupe\"\npanels = 600");
+    let text = text.replace("values = [0.0, 5.0]", "values = [0.0]");
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("rear-window.toml"), text).unwrap();
+    let o = tuft(dir.path(), &["sweep", "rear-window.toml", "--quiet"]);
+    assert!(o.code == 0, "{}", o.stderr);
+    let o = tuft(dir.path(), &["collect", "rear-window", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let c: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("rear-window/sweep.json")).unwrap(),
+    )
+    .unwrap();
+    let cds: Vec<f64> = c["variants"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v["cd"].as_f64().unwrap())
+        .collect();
+    assert_eq!(cds.len(), 3, "{c}");
+    assert!(
+        cds.windows(2).all(|w| (w[0] - w[1]).abs() > 1e-6),
+        "the slope changes the drag: {cds:?}"
+    );
+}
+
+/// A shape key beside an STL is refused: the run would otherwise ignore it.
+#[test]
+fn a_shape_key_beside_an_stl_is_refused() {
+    refused(
+        "slope-on-stl",
+        "[geometry]\nstl = \"coupe.stl\"\nrear_window_deg = 30.0\n",
+        true,
+        &["geometry.rear_window_deg", "built-in shape coupe", "STL"],
+    );
+}
