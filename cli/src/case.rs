@@ -238,8 +238,7 @@ impl Case {
     pub fn load(path: &Path) -> Result<Self> {
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the case file", path.display()))?;
-        let file: CaseFile = toml::from_str(&text)
-            .map_err(|e| anyhow::anyhow!("{}: {}", path.display(), one_line(&e.to_string())))?;
+        let file: CaseFile = toml::from_str(&text).map_err(|e| toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
     }
 
@@ -275,8 +274,39 @@ impl Case {
     }
 }
 
-fn one_line(s: &str) -> String {
-    s.split_whitespace().collect::<Vec<_>>().join(" ")
+/// A TOML file's parse or type error in one sentence: the file, the line
+/// and column, the line as written, and the complaint without Rust's type
+/// names ("expected f64" reads "expected a number").
+pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> anyhow::Error {
+    let mut what = e.message().trim().to_owned();
+    for (rust, plain) in [
+        ("invalid type: ", ""),
+        (", expected f64", " where a number is expected"),
+        (", expected f32", " where a number is expected"),
+        (", expected usize", " where a whole number is expected"),
+        (", expected u64", " where a whole number is expected"),
+        (", expected u32", " where a whole number is expected"),
+        (", expected a boolean", " where true or false is expected"),
+        ("unknown field", "unknown key"),
+        (", expected one of", "; the keys here are"),
+        ("floating point ", "the number "),
+        ("integer ", "the whole number "),
+        ("string ", "the text "),
+    ] {
+        what = what.replace(rust, plain);
+    }
+    let what = what.split_whitespace().collect::<Vec<_>>().join(" ");
+    let Some(span) = e.span() else {
+        return anyhow::anyhow!("{}: {what}", path.display());
+    };
+    let before = &text[..span.start.min(text.len())];
+    let line = before.matches('\n').count() + 1;
+    let column = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
+    let written = text.lines().nth(line - 1).unwrap_or("").trim();
+    anyhow::anyhow!(
+        "{}: line {line}, column {column} (`{written}`): {what}",
+        path.display()
+    )
 }
 
 fn positive(key: &str, v: f64) -> Result<()> {
@@ -452,6 +482,19 @@ mod tests {
 
     fn err(text: &str) -> String {
         format!("{:#}", parse(text).unwrap_err())
+    }
+
+    /// A type slip reads as the line, where it is and what was expected,
+    /// without Rust's type names.
+    #[test]
+    fn type_errors_read_plainly() {
+        let text = "[geometry]\nshape = \"sphere\"\n[flow]\nspeed = \"40\"\n";
+        let e = toml::from_str::<CaseFile>(text).unwrap_err();
+        let said = toml_error(Path::new("c.toml"), text, &e).to_string();
+        assert_eq!(
+            said,
+            "c.toml: line 4, column 9 (`speed = \"40\"`): the text \"40\" where a number is expected"
+        );
     }
 
     #[test]

@@ -64,6 +64,22 @@ enum Command {
     Collect(collect::CollectArgs),
 }
 
+/// clap's complaint on one line: its first paragraph (which may name the
+/// missing argument on a line of its own) and the usage it gives.
+fn argument_error(text: &str) -> String {
+    let first = text.split("\n\n").next().unwrap_or("bad arguments");
+    let first = first
+        .trim_start_matches("error: ")
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ");
+    let usage = text
+        .lines()
+        .find_map(|l| l.strip_prefix("Usage: "))
+        .map_or("see tuft --help".to_owned(), |u| format!("usage: {u}"));
+    format!("{first} ({usage})")
+}
+
 fn main() -> ExitCode {
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
@@ -73,13 +89,7 @@ fn main() -> ExitCode {
             return ExitCode::SUCCESS;
         }
         Err(e) => {
-            let text = e.to_string();
-            let first = text
-                .lines()
-                .next()
-                .unwrap_or("bad arguments")
-                .trim_start_matches("error: ");
-            eprintln!("tuft: {first} (see tuft --help)");
+            eprintln!("tuft: {}", argument_error(&e.to_string()));
             return ExitCode::from(EXIT_FAILURE);
         }
     };

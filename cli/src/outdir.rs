@@ -51,8 +51,14 @@ impl Staging {
         if tmp.exists() {
             std::fs::remove_dir_all(&tmp).ok();
         }
-        std::fs::create_dir_all(&tmp)
-            .with_context(|| format!("{}: cannot create the folder", tmp.display()))?;
+        // Named after the folder the user asked for, not the hidden one.
+        std::fs::create_dir_all(&tmp).with_context(|| {
+            format!(
+                "{}: cannot write the result folder in {}",
+                dest.display(),
+                parent.display()
+            )
+        })?;
         Ok(Self {
             tmp,
             dest: dest.to_path_buf(),

@@ -126,14 +126,14 @@ fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
 fn print_summary(out: &Path, s: &Summary) {
     let k = &s.coefficients;
     println!(
-        "{}: drag estimate C_D {:.3} (band {:.3}-{:.3}), lift C_L {:.3}",
+        "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}), lift C_L {:.3}",
         s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
     );
     println!(
-        "  lift {:.0} kg (front {:.0}, rear {:.0}), separated {:.1} % of the surface",
-        s.lift_kg.total,
-        s.lift_kg.front_axle,
-        s.lift_kg.rear_axle,
+        "  lift {} kg (front {}, rear {}), separated {:.1} % of the surface",
+        crate::output::whole(s.lift_kg.total),
+        crate::output::whole(s.lift_kg.front_axle),
+        crate::output::whole(s.lift_kg.rear_axle),
         100.0 * s.separation.fraction
     );
     if let Some(w) = &s.separated_wakes {

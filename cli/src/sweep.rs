@@ -115,11 +115,11 @@ fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunO
         done += 1;
         let line = match outcome {
             Outcome::Done(s, matrix) => format!(
-                "C_D {:.3} (band {:.3}-{:.3}), lift {:.0} kg, separated {:.1} % ({secs:.1} s, {})",
+                "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {})",
                 s.coefficients.drag,
                 s.drag_estimate.cd_low,
                 s.drag_estimate.cd_high,
-                s.lift_kg.total,
+                crate::output::whole(s.lift_kg.total),
                 100.0 * s.separation.fraction,
                 if matrix.reused {
                     "matrix reused".to_string()

@@ -526,15 +526,15 @@ fn report(
         NumberRow::text("Panels", &s.mesh.panels.to_string(), "-"),
     ]);
     let summary = format!(
-        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {:.0} kg at {} m/s ({:.0} front, {:.0} rear); \
+        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear); \
          {:.1} % of the surface separated.",
         k.drag,
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
-        s.lift_kg.total,
+        output::whole(s.lift_kg.total),
         output::short_number(v),
-        s.lift_kg.front_axle,
-        s.lift_kg.rear_axle,
+        output::whole(s.lift_kg.front_axle),
+        output::whole(s.lift_kg.rear_axle),
         100.0 * s.separation.fraction
     );
     let method = TextSection {

@@ -71,16 +71,19 @@ pub enum MeshError {
         room: u64,
     },
     /// A facet could not be read or parsed (truncated file, malformed number).
-    #[error("cannot read facet {facet}")]
+    #[error("facet {} (counting from 1) cannot be read: {}", .facet + 1, crate::import::plain_read_error(.reader))]
     BadFacet {
         /// Index of the facet (0-based) being read.
         facet: usize,
-        /// The reader's complaint.
-        #[source]
-        source: std::io::Error,
+        /// The reader's complaint (put in plain words by the message).
+        reader: std::io::Error,
     },
     /// A facet corner has a NaN or infinite coordinate.
-    #[error("facet {facet}, corner {corner} has a coordinate that is not a finite number")]
+    #[error(
+        "facet {} (counting from 1), corner {} has a coordinate that is not a finite number (NaN or infinity)",
+        .facet + 1,
+        .corner + 1
+    )]
     NonFiniteCorner {
         /// Index of the facet.
         facet: usize,

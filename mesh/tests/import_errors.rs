@@ -106,6 +106,31 @@ fn ascii_with_malformed_number() {
     let bad = good.replacen("vertex ", "vertex 1.2.3e", 1);
     let e = err_of(bad.as_bytes());
     assert!(matches!(e, MeshError::BadFacet { facet: 0, .. }), "{e}");
+    // The message counts from 1, as a text editor does, in plain words.
+    assert!(
+        e.to_string()
+            .starts_with("facet 1 (counting from 1) cannot be read: a number in it is malformed"),
+        "{e}"
+    );
+}
+
+#[test]
+fn ascii_with_a_nan_or_a_cut_line() {
+    let good = common::ascii_stl(&generate::icosphere(1.0, 0));
+    // The second facet's first corner gets a NaN coordinate.
+    let at = good.match_indices("vertex ").nth(3).unwrap().0;
+    let bad = format!("{}vertex nan{}", &good[..at], &good[at + 6..]);
+    let e = err_of(bad.as_bytes()).to_string();
+    assert!(e.contains("facet 2 (counting from 1)"), "{e}");
+    assert!(e.contains("not a finite number (NaN or infinity)"), "{e}");
+    // The file stops inside a vertex line.
+    let cut = &good[..good.match_indices("vertex ").nth(4).unwrap().0 + 10];
+    let e = err_of(cut.as_bytes()).to_string();
+    assert!(
+        e.contains("facet 2 (counting from 1) cannot be read"),
+        "{e}"
+    );
+    assert!(!e.contains("f32"), "no reader's jargon: {e}");
 }
 
 #[test]

@@ -276,6 +276,13 @@ pub fn short_number(v: f64) -> String {
     }
 }
 
+/// `v` rounded to a whole number, with no "-0" for a small negative value
+/// (lift in kg on a body that has next to none).
+pub fn whole(v: f64) -> String {
+    // -0.0 + 0.0 is +0.0 (IEEE 754).
+    format!("{:.0}", v.round() + 0.0)
+}
+
 /// Why an output could not be written.
 #[derive(Debug, thiserror::Error)]
 pub enum OutputError {
@@ -353,4 +360,16 @@ where
         other => other,
     }?;
     w.flush().map_err(io)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn whole_numbers_have_no_negative_zero() {
+        assert_eq!(whole(-0.3), "0");
+        assert_eq!(whole(-94.53), "-95");
+        assert_eq!(whole(12.5), "13");
+    }
 }

@@ -133,16 +133,8 @@ impl Plan {
     pub fn load(path: &Path) -> Result<Self> {
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the sweep file", path.display()))?;
-        let file: SweepFile = toml::from_str(&text).map_err(|e| {
-            anyhow::anyhow!(
-                "{}: {}",
-                path.display(),
-                e.to_string()
-                    .split_whitespace()
-                    .collect::<Vec<_>>()
-                    .join(" ")
-            )
-        })?;
+        let file: SweepFile =
+            toml::from_str(&text).map_err(|e| crate::case::toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
     }
 
@@ -192,7 +184,7 @@ fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
             let text = std::fs::read_to_string(&file)
                 .with_context(|| format!("base = {}: cannot read the case file", file.display()))?;
             let v: toml::Value =
-                toml::from_str(&text).map_err(|e| anyhow::anyhow!("{}: {}", file.display(), e))?;
+                toml::from_str(&text).map_err(|e| crate::case::toml_error(&file, &text, &e))?;
             (v, file.parent().unwrap_or(Path::new(".")).to_path_buf())
         }
         BaseCase::Inline(v) => ((**v).clone(), dir.to_path_buf()),

@@ -5,6 +5,6 @@ mod stl;
 mod transform;
 mod units;
 
-pub use stl::{StlFormat, StlReport, read_stl, read_stl_from};
+pub use stl::{StlFormat, StlReport, plain_read_error, read_stl, read_stl_from};
 pub use transform::RigidTransform;
 pub use units::{LengthUnit, UnknownUnit};

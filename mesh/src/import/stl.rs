@@ -161,20 +161,48 @@ fn first_line_length<R: Read + Seek>(reader: &mut R) -> std::io::Result<u64> {
     Ok(line.len() as u64)
 }
 
+/// The STL reader's complaint about a facet in a practitioner's words:
+/// a number that is not finite, a file cut short, or a line that does not
+/// read as ASCII STL; anything else is quoted.
+pub fn plain_read_error(e: &std::io::Error) -> String {
+    let said = e.to_string();
+    let lower = said.to_lowercase();
+    if lower.contains("nan") || lower.contains("inf") {
+        "a coordinate is not a finite number (NaN or infinity)".into()
+    } else if lower.contains("float") || lower.contains("number") {
+        "a number in it is malformed".into()
+    } else if e.kind() == std::io::ErrorKind::UnexpectedEof {
+        "the file ends in the middle of it (cut short)".into()
+    } else if ["vertex", "facet", "outer", "endloop", "endfacet", "normal"]
+        .iter()
+        .any(|w| lower.starts_with(w) || lower.contains(&format!("expected {w}")))
+    {
+        "a line of it does not read as ASCII STL (a number missing or malformed, or the file cut short)"
+            .into()
+    } else {
+        format!("the STL reader reports \"{said}\"")
+    }
+}
+
 /// Stream facets, weld bit-identical corners, check every coordinate.
 fn stream_facets<R: Read + Seek>(
     mut source: Patched<R>,
     declared: Option<u64>,
 ) -> Result<TriMesh, MeshError> {
-    let facets = stl_io::create_stl_reader(&mut source)
-        .map_err(|source| MeshError::BadFacet { facet: 0, source })?;
+    let facets = stl_io::create_stl_reader(&mut source).map_err(|source| MeshError::BadFacet {
+        facet: 0,
+        reader: source,
+    })?;
     let capacity = declared.map_or(1024, |n| n as usize);
     let mut vertices: Vec<Point> = Vec::with_capacity(capacity / 2 + 3);
     let mut triangles: Vec<[u32; 3]> = Vec::with_capacity(capacity);
     let mut index: FastMap<[u32; 3], u32> = FastMap::default();
     index.reserve(capacity / 2 + 3);
     for (facet, item) in facets.enumerate() {
-        let tri = item.map_err(|source| MeshError::BadFacet { facet, source })?;
+        let tri = item.map_err(|source| MeshError::BadFacet {
+            facet,
+            reader: source,
+        })?;
         let mut ids = [0u32; 3];
         for (corner, v) in tri.vertices.iter().enumerate() {
             if !v.0.iter().all(|c| c.is_finite()) {
