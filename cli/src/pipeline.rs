@@ -1,7 +1,7 @@
 //! The physics of one run, in order: potential flow, boundary layer, loads,
 //! the drag band, flow slices. No file is written here.
 
-use anyhow::{Context, Result};
+use anyhow::{Context, Result, bail};
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
 use tuft_solver::boundary_layer::{
@@ -281,6 +281,38 @@ pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> 
     })
 }
 
+/// Largest negative drag estimate (counts) put down to discretisation; a
+/// lower one comes from a broken solution, not from the flow.
+pub const NEGATIVE_DRAG_COUNTS: f64 = 20.0;
+
+/// Refuse numbers no flow gives: skin friction pulling the body upstream
+/// (the surface flow runs downstream wherever it is attached) or a drag
+/// estimate more than [`NEGATIVE_DRAG_COUNTS`] below zero. A folded or
+/// self-crossing panel mesh is the usual cause; the message says where to
+/// look rather than report the numbers.
+///
+/// # Errors
+/// One sentence with the friction, the drag and the fastest surface speed.
+pub fn check_physical(
+    estimate: &loads::Loads,
+    velocity: &[Vector3<f64>],
+    speed: f64,
+) -> Result<()> {
+    let friction = estimate.friction.coefficients.drag;
+    let drag = estimate.total.coefficients.drag;
+    if friction >= 0.0 && drag >= -NEGATIVE_DRAG_COUNTS / 1000.0 {
+        return Ok(());
+    }
+    let fastest = velocity.iter().map(|v| v.norm()).fold(0.0, f64::max) / speed;
+    bail!(
+        "the flow solution is not physical (friction drag {:.0} counts, drag {:.0} counts, fastest surface flow \
+         {fastest:.1} times the free stream): the panel mesh is probably folded or crosses itself; tuft check \
+         reports its quality, and another geometry.panels or a repaired STL may give a sound one",
+        1000.0 * friction,
+        1000.0 * drag
+    )
+}
+
 /// A ground plane further below the body than the body is long leaves the
 /// run close to free air, which is more often a ground height given in
 /// millimetres than a wish (leaving `[ground]` out gives free air).
@@ -419,6 +451,7 @@ fn finish(
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
     let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water_run);
     let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
+    check_physical(&estimate, &potential.velocity, flow.speed)?;
     // The loop's summary needs its attached pass; done here so that pass
     // (with its streamlines) is freed before the sensitivity passes.
     let wakes = match wake_loop {
@@ -690,6 +723,37 @@ fn drag_band(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Friction pulling upstream or a drag far below zero is refused; a
+    /// small negative drag (discretisation) and a sound run pass.
+    #[test]
+    fn unphysical_loads_are_refused() {
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        use tuft_solver::loads::{FlowState, Reference};
+        let mesh = PanelMesh::new(generate::icosphere(1.0, 1), Mirrors::none()).unwrap();
+        let air = FlowState {
+            density: 1.2,
+            speed: 10.0,
+            yaw: 0.0,
+        };
+        let reference = Reference::from_mesh(&mesh, -0.5, 0.5);
+        let loads_with = |cp: f64, fx: f64| {
+            let cps: Vec<f64> = mesh
+                .panels
+                .iter()
+                .map(|p| cp * p.normal.x.signum())
+                .collect();
+            let friction = vec![Vector3::new(fx, 0.0, 0.0); mesh.len()];
+            loads::integrate_loads(&mesh, &cps, Some(&friction), &reference, &air).unwrap()
+        };
+        let v = vec![Vector3::new(10.0, 0.0, 0.0); mesh.len()];
+        assert!(check_physical(&loads_with(0.0, 1e-3), &v, 10.0).is_ok());
+        let e = check_physical(&loads_with(0.0, -1e-3), &v, 10.0).unwrap_err();
+        assert!(e.to_string().contains("not physical"), "{e}");
+        // Cp +0.5 on the rear half, -0.5 on the front: a thrust.
+        assert!(check_physical(&loads_with(0.5, 0.0), &v, 10.0).is_err());
+        assert!(check_physical(&loads_with(0.001, 0.0), &v, 10.0).is_ok());
+    }
 
     /// A ground a body length or more below a 1 m sphere is warned about
     /// (a height in millimetres, most likely); one just below it is not.
