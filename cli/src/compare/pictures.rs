@@ -9,7 +9,7 @@ use tuft_mesh::PanelMesh;
 use super::mapping::Mapping;
 use super::{Comparison, ResultFolder, mapped_fields};
 use crate::outdir::Staging;
-use crate::output::colorbar::{ColourScale, Swatch, nice_ticks};
+use crate::output::colorbar::{ColourScale, Swatch};
 use crate::output::html::{self, NumberRow, Picture, Report, TextSection};
 use crate::output::render::PanelPaint;
 use crate::output::sheet::{FieldStyle, NO_VALUE, field_sheet};
@@ -58,33 +58,6 @@ impl Owned {
     }
 }
 
-/// A diverging scale centred on zero, `±m` with `m` the 98th percentile of
-/// `|values|` rounded up to a round number (at least `floor`).
-fn diverging(label: &str, values: &[f64], floor: f64) -> ColourScale {
-    let mut mags: Vec<f64> = values
-        .iter()
-        .filter(|v| v.is_finite())
-        .map(|v| v.abs())
-        .collect();
-    mags.sort_by(f64::total_cmp);
-    let q = mags
-        .get(((mags.len() as f64 - 1.0) * 0.98).round().max(0.0) as usize)
-        .copied()
-        .unwrap_or(0.0)
-        .max(floor);
-    let m = nice_ticks(0.0, q, 2)
-        .into_iter()
-        .find(|&t| t >= q)
-        .unwrap_or(q);
-    // The Cp scale is the diverging red-blue map centred on zero; only its
-    // range and label change here.
-    let mut scale = ColourScale::cp(&[]);
-    scale.label = label.into();
-    scale.min = -m;
-    scale.max = m;
-    scale
-}
-
 /// Write the sheets and `compare.html` into the staging folder.
 pub fn write(
     out: &Staging,
@@ -103,7 +76,7 @@ pub fn write(
         yaw_deg: super::yaw_of(&b.summary),
     };
     let cp_style = FieldStyle {
-        scale: diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
+        scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
         legend: vec![],
         what: "Cp difference".into(),
         note: "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B.".into(),
@@ -112,7 +85,7 @@ pub fn write(
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
     })?;
     let sep_style = FieldStyle {
-        scale: diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
+        scale: ColourScale::diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
         legend: vec![
             ("separates in B only".into(), Swatch::Hatched(APPEARS.0, APPEARS.1)),
             ("separates in A only".into(), Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1)),
