@@ -172,7 +172,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::number("Lift coefficient difference", d.lift_coefficient, "-"),
         NumberRow::number("Separated area difference", d.separated_area_m2, "m²"),
         NumberRow::number(
-            "Separated fraction difference",
+            "Separated share of the surface, B's minus A's",
             d.separated_percent_points,
             "% points",
         ),
@@ -209,7 +209,10 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
              same way), so the pictures are drawn on B's body.\n\n\
              A drag difference is called one only when it exceeds {} counts (differences of a few counts \
              are within the noise of any simulation, common practice) and keeps its sign at both ends of \
-             the two runs' sensitivity bands. Verdict: {}.",
+             the two runs' sensitivity bands. The differences at the band ends compare each run's low \
+             end with the other's low end and high with high; they are not a range of the difference, and \
+             the central difference need not lie between them, since each band sits unevenly about its \
+             estimate. Verdict: {}.",
             c.a.case_name,
             c.a.folder,
             c.b.case_name,
