@@ -211,15 +211,19 @@ fn pictures(
     Ok(out)
 }
 
-/// Velocity and Cp on the centre plane (y = 0) and on a horizontal plane
-/// through the middle of the body, from the panel solution.
+/// Velocity and Cp on the centre plane (the symmetry plane of a half
+/// model, otherwise the middle of the body's width) and on a horizontal
+/// plane through the middle of the body, from the panel solution the
+/// surface pressures come from (the separated-flow loop's last pass, its
+/// dead water's sources included, when the loop ran).
 pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
     let p = &c.potential;
     let field = FlowField::new(mesh, &p.sigma, &p.mu, p.freestream.velocity(), None)?;
     let u2 = p.freestream.velocity().norm_squared();
     let (lo, hi) = mesh.bounds();
     let (len, height) = (hi.x - lo.x, hi.z - lo.z);
-    let half_width = hi.y.max(-lo.y);
+    let yc = plot::centre_y(mesh);
+    let half_width = (hi.y - yc).max(yc - lo.y);
     let x0 = lo.x - 0.3 * len;
     let x1 = hi.x + 0.6 * len;
     let z0 = mesh
@@ -227,25 +231,55 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         .ground
         .map_or(lo.z - 0.6 * height, |g| g + 1e-3 * height);
     let z1 = hi.z + 0.8 * height;
-    let centre = grid(
-        &field,
-        u2,
+    let note = slice_note(c);
+    let sample = |name: &str, origin: Point3<f64>, up: Vector3<f64>, size: (f64, f64)| {
+        let mut s = grid(&field, u2, name, origin, up, size);
+        let points: Vec<Point3<f64>> = (0..s.dims.1)
+            .flat_map(|j| (0..s.dims.0).map(move |i| (i, j)))
+            .map(|(i, j)| s.point(i, j))
+            .collect();
+        s.near_surface = slice::near_surface(mesh, &points);
+        s.note.clone_from(&note);
+        s
+    };
+    let centre = sample(
         "centre-plane",
-        Point3::new(x0, 0.0, z0),
+        Point3::new(x0, yc, z0),
         Vector3::z(),
         (x1 - x0, z1 - z0),
     );
     let zm = 0.5 * (lo.z + hi.z);
-    let y0 = -2.0 * half_width;
-    let horizontal = grid(
-        &field,
-        u2,
+    let horizontal = sample(
         "horizontal-plane",
-        Point3::new(x0, y0, zm),
+        Point3::new(x0, yc - 2.0 * half_width, zm),
         Vector3::y(),
-        (x1 - x0, -2.0 * y0),
+        (x1 - x0, 4.0 * half_width),
     );
     Ok(vec![centre, horizontal])
+}
+
+/// What flow the slices show, in one line. After the separated-flow loop
+/// the solution is its last pass, in which the dead water's panels let the
+/// free stream through (transpiration sources): behind a separated region
+/// the slice shows that stream, not the dead water's pressure, which the
+/// surface pictures hold at the base pressure instead.
+fn slice_note(c: &Computed) -> String {
+    match &c.wakes {
+        Some(w) if w.passes > 1 => format!(
+            "Flow of the separated-flow loop's last pass, its dead water's sources included: behind a \
+             separated region this shows the stream the model lets through it, not the dead water's \
+             pressure{}.",
+            w.base_cp_loop
+                .map(|v| format!(" (Cp {} on the surface pictures)", output::short_number(v)))
+                .unwrap_or_default()
+                .replace('-', "\u{2212}")
+        ),
+        Some(_) => "Attached potential flow (nothing separated).".into(),
+        None => {
+            "Attached potential flow; the separated regions' dead water and wakes are not shown."
+                .into()
+        }
+    }
 }
 
 fn grid(
@@ -282,6 +316,8 @@ fn grid(
         dims,
         velocity,
         cp,
+        near_surface: vec![],
+        note: String::new(),
     }
 }
 

@@ -9,7 +9,7 @@ use tuft_mesh::PanelMesh;
 use super::mapping::Mapping;
 use super::{Comparison, ResultFolder, mapped_fields};
 use crate::outdir::Staging;
-use crate::output::colorbar::{ColourScale, Swatch, nice_ticks};
+use crate::output::colorbar::{ColourScale, Swatch};
 use crate::output::html::{self, NumberRow, Picture, Report, TextSection};
 use crate::output::render::PanelPaint;
 use crate::output::sheet::{FieldStyle, NO_VALUE, field_sheet};
@@ -58,33 +58,6 @@ impl Owned {
     }
 }
 
-/// A diverging scale centred on zero, `±m` with `m` the 98th percentile of
-/// `|values|` rounded up to a round number (at least `floor`).
-fn diverging(label: &str, values: &[f64], floor: f64) -> ColourScale {
-    let mut mags: Vec<f64> = values
-        .iter()
-        .filter(|v| v.is_finite())
-        .map(|v| v.abs())
-        .collect();
-    mags.sort_by(f64::total_cmp);
-    let q = mags
-        .get(((mags.len() as f64 - 1.0) * 0.98).round().max(0.0) as usize)
-        .copied()
-        .unwrap_or(0.0)
-        .max(floor);
-    let m = nice_ticks(0.0, q, 2)
-        .into_iter()
-        .find(|&t| t >= q)
-        .unwrap_or(q);
-    // The Cp scale is the diverging red-blue map centred on zero; only its
-    // range and label change here.
-    let mut scale = ColourScale::cp(&[]);
-    scale.label = label.into();
-    scale.min = -m;
-    scale.max = m;
-    scale
-}
-
 /// Write the sheets and `compare.html` into the staging folder.
 pub fn write(
     out: &Staging,
@@ -103,7 +76,7 @@ pub fn write(
         yaw_deg: super::yaw_of(&b.summary),
     };
     let cp_style = FieldStyle {
-        scale: diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
+        scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
         legend: vec![],
         what: "Cp difference".into(),
         note: "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B.".into(),
@@ -112,7 +85,7 @@ pub fn write(
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
     })?;
     let sep_style = FieldStyle {
-        scale: diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
+        scale: ColourScale::diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
         legend: vec![
             ("separates in B only".into(), Swatch::Hatched(APPEARS.0, APPEARS.1)),
             ("separates in A only".into(), Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1)),
@@ -199,7 +172,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::number("Lift coefficient difference", d.lift_coefficient, "-"),
         NumberRow::number("Separated area difference", d.separated_area_m2, "m²"),
         NumberRow::number(
-            "Separated fraction difference",
+            "Separated share of the surface, B's minus A's",
             d.separated_percent_points,
             "% points",
         ),
@@ -236,7 +209,10 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
              same way), so the pictures are drawn on B's body.\n\n\
              A drag difference is called one only when it exceeds {} counts (differences of a few counts \
              are within the noise of any simulation, common practice) and keeps its sign at both ends of \
-             the two runs' sensitivity bands. Verdict: {}.",
+             the two runs' sensitivity bands. The differences at the band ends compare each run's low \
+             end with the other's low end and high with high; they are not a range of the difference, and \
+             the central difference need not lie between them, since each band sits unevenly about its \
+             estimate. Verdict: {}.",
             c.a.case_name,
             c.a.folder,
             c.b.case_name,

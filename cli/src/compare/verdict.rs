@@ -61,18 +61,21 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         )
     } else if banded {
         format!(
-            "drag difference {delta:+.1} counts ({low:+.1} to {high:+.1} across the sensitivity bands), but \
-             the separated regions differ, where the model's drag ranking is not reliable: no winner"
+            "drag difference {delta:+.1} counts between the central estimates ({}), but the separated \
+             regions differ, where the model's drag ranking is not reliable: no winner",
+            band_ends(low, high)
         )
     } else if !resolved {
         format!(
-            "drag difference {delta:+.1} counts, but {low:+.1} and {high:+.1} counts at the ends of the \
-             sensitivity bands: within the model uncertainty, no winner"
+            "drag difference {delta:+.1} counts between the central estimates, but {}: within the model \
+             uncertainty, no winner",
+            band_ends(low, high)
         )
     } else {
         format!(
-            "B has {direction} drag by {:.1} counts ({low:+.1} to {high:+.1} across the sensitivity bands)",
-            delta.abs()
+            "B has {direction} drag by {:.1} counts between the central estimates ({})",
+            delta.abs(),
+            band_ends(low, high)
         )
     };
     DragVerdict {
@@ -83,6 +86,14 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         direction: direction.into(),
         text,
     }
+}
+
+/// The differences at the band ends in words. Each is one run's band end
+/// minus the other's (low with low, high with high), not an end of a band
+/// of the difference: the bands sit unevenly about their estimates, so the
+/// central difference need not lie between the two.
+fn band_ends(low: f64, high: f64) -> String {
+    format!("{low:+.1} between the sensitivity bands' low ends, {high:+.1} between their high ends")
 }
 
 #[cfg(test)]
@@ -116,5 +127,25 @@ mod tests {
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), true);
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
         assert!(v.text.contains("separated regions differ"), "{}", v.text);
+    }
+
+    #[test]
+    fn band_end_differences_are_not_worded_as_a_range() {
+        // The demo's coupes: +39.3 counts at the centre, +42.6 and +45.7
+        // between the low and between the high ends. The text must not
+        // read "+42.6 to +45.7" (a range that leaves out its own headline).
+        let a = summary(0.148, 0.142, 0.364);
+        let b = summary(0.1873, 0.1846, 0.4097);
+        let v = drag_verdict(&a, &b, true);
+        assert!(!v.text.contains(" to "), "{}", v.text);
+        assert!(
+            v.text
+                .contains("+39.3 counts between the central estimates")
+                && v.text
+                    .contains("+42.6 between the sensitivity bands' low ends")
+                && v.text.contains("+45.7 between their high ends"),
+            "{}",
+            v.text
+        );
     }
 }

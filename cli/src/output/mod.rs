@@ -200,6 +200,13 @@ pub struct Slice {
     pub velocity: Vec<Option<Vector3<f64>>>,
     /// Pressure coefficient; `None` inside the body.
     pub cp: Vec<Option<f64>>,
+    /// Samples so close to the surface (within a panel size) that the
+    /// panel method's near field is unreliable there: drawn, but left out
+    /// of the colour range. Empty, or one per sample.
+    pub near_surface: Vec<bool>,
+    /// Which flow the slice shows and what it leaves out, for the
+    /// picture's subtitle (empty for none).
+    pub note: String,
 }
 
 impl Slice {
@@ -233,7 +240,14 @@ impl Slice {
             ("slice velocity", self.velocity.len()),
             ("slice cp", self.cp.len()),
         ];
-        check_lengths(&lengths, self.len())
+        check_lengths(&lengths, self.len())?;
+        if self.near_surface.is_empty() {
+            return Ok(());
+        }
+        check_lengths(
+            &[("slice near_surface", self.near_surface.len())],
+            self.len(),
+        )
     }
 }
 

@@ -274,20 +274,32 @@ fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
 /// Settings of the centre-line extraction.
 #[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct CentrelineParams {
-    /// Half-width of the band about y = 0 whose panel centroids count,
-    /// metres; `None` for 0.6 times the median panel size (which takes
-    /// the panels the plane y = 0 cuts).
+    /// Half-width of the band about the centre plane whose panel centroids
+    /// count, metres; `None` for 0.6 times the median panel size (which
+    /// takes the panels the centre plane cuts).
     pub band: Option<f64>,
 }
 
+/// The `y` of a body's centre plane: the symmetry plane `y = 0` of a half
+/// model, otherwise the middle of the body's extent in `y` (a body need
+/// not be placed on `y = 0`; a plane beside it would cut nothing).
+pub fn centre_y(mesh: &tuft_mesh::PanelMesh) -> f64 {
+    if mesh.mirrors.symmetry || mesh.is_empty() {
+        return 0.0;
+    }
+    let (lo, hi) = mesh.bounds();
+    0.5 * (lo.y + hi.y)
+}
+
 /// Cp along the centre line: `(x, Cp)` of panels with centroid within the
-/// band about y = 0, split by the sign of the normal's z component into
-/// upper and lower surface, each sorted by x.
+/// band about the centre plane ([`centre_y`]), split by the sign of the
+/// normal's z component into upper and lower surface, each sorted by x.
 pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centreline {
     let band = params.band.unwrap_or_else(|| 0.6 * median_size(s.mesh));
+    let y = centre_y(s.mesh);
     let (mut upper, mut lower) = (Vec::new(), Vec::new());
     for (p, &cp) in s.mesh.panels.iter().zip(s.cp) {
-        if p.centroid.y.abs() <= band {
+        if (p.centroid.y - y).abs() <= band {
             let side = if p.normal.z >= 0.0 {
                 &mut upper
             } else {
@@ -298,12 +310,14 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
     }
     upper.sort_by(|a, b| a.0.total_cmp(&b.0));
     lower.sort_by(|a, b| a.0.total_cmp(&b.0));
-    Centreline { upper, lower }
+    Centreline { y, upper, lower }
 }
 
 /// Cp along the centre line, `(x [m], Cp)` pairs sorted by x.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Centreline {
+    /// The centre plane's `y`, metres.
+    pub y: f64,
     /// Panels whose normal points up (or sideways).
     pub upper: Vec<(f64, f64)>,
     /// Panels whose normal points down.
@@ -344,16 +358,39 @@ pub fn centreline_cp_plot_with_params(
     plot_params: &PlotParams,
 ) -> Result<(Canvas, PlotFrame), OutputError> {
     s.validate()?;
-    let Centreline { upper, lower } = centreline_cp(s, params);
+    let Centreline { y, upper, lower } = centreline_cp(s, params);
+    let plane = if s.mesh.mirrors.symmetry {
+        "the symmetry plane y = 0".to_owned()
+    } else {
+        format!(
+            "the plane y = {} m (middle of the body's width)",
+            super::short_number(y)
+        )
+    };
+    let none = if upper.is_empty() && lower.is_empty() {
+        " No panel lies on this plane."
+    } else {
+        ""
+    };
     let plot = LinePlot {
         title: caption.title("Centre-line pressure"),
-        subtitle: "Panels on the plane y = 0; upper surface: normal pointing up. Cp axis inverted: suction up.".to_owned(),
+        subtitle: format!(
+            "Panels on {plane}; upper surface: normal pointing up. Cp axis inverted: suction up.{none}"
+        ),
         x_label: "x [m] (downstream)".to_owned(),
         y_label: "Cp [-]".to_owned(),
         invert_y: true,
         series: vec![
-            Series { name: "upper surface".to_owned(), points: upper, colour: SERIES_COLOURS[0] },
-            Series { name: "lower surface".to_owned(), points: lower, colour: SERIES_COLOURS[1] },
+            Series {
+                name: "upper surface".to_owned(),
+                points: upper,
+                colour: SERIES_COLOURS[0],
+            },
+            Series {
+                name: "lower surface".to_owned(),
+                points: lower,
+                colour: SERIES_COLOURS[1],
+            },
         ],
     };
     draw_line_plot(&plot, plot_params)
@@ -372,7 +409,8 @@ mod tests {
         // Cp = 1 - 9/4 (1 - x^2) with x the centroid direction's x. The
         // extraction must return those panels, both surfaces, nose to tail.
         let f = Fixture::sphere(3);
-        let Centreline { upper, lower } = centreline_cp(&f.surface(), &CentrelineParams::default());
+        let Centreline { upper, lower, .. } =
+            centreline_cp(&f.surface(), &CentrelineParams::default());
         assert!(
             upper.len() >= 16 && lower.len() >= 16,
             "{} {}",
@@ -411,5 +449,34 @@ mod tests {
         // The lower surface, drawn wider underneath, shows beside it.
         let lower = (-8..=8).any(|dy| img.pixel(px as i64, py as i64 + dy) == SERIES_COLOURS[1]);
         assert!(lower);
+    }
+
+    #[test]
+    fn centre_line_of_a_body_off_y_zero_cuts_its_middle() {
+        // The same sphere moved 3 m along +y: the centre line is cut through
+        // the middle of its width and finds the same panels with Lamb's Cp
+        // (Hydrodynamics, §92) as the sphere on y = 0; the picture says
+        // which plane.
+        let on_axis = Fixture::sphere(3);
+        let mut moved = Fixture::sphere(3);
+        let mut tri = tuft_mesh::generate::icosphere(1.0, 3);
+        tri.vertices.iter_mut().for_each(|v| v.y += 3.0);
+        moved.mesh = tuft_mesh::PanelMesh::new(tri, tuft_mesh::Mirrors::none()).unwrap();
+        let params = CentrelineParams::default();
+        let here = centreline_cp(&on_axis.surface(), &params);
+        let there = centreline_cp(&moved.surface(), &params);
+        // Vertices of a sphere symmetric about y = 0: the middle is 3.
+        assert!((there.y - 3.0).abs() < 1e-9, "{}", there.y);
+        assert_eq!(here.y, 0.0);
+        assert_eq!(
+            (there.upper.len(), there.lower.len()),
+            (here.upper.len(), here.lower.len())
+        );
+        assert!(!there.upper.is_empty());
+        for &(x, cp) in there.upper.iter().chain(&there.lower) {
+            // As in centre_line_follows_lambs_sphere.
+            let exact = 1.0 - 2.25 * (1.0 - x * x);
+            assert!((cp - exact).abs() < 0.12, "x {x}: {cp} vs {exact}");
+        }
     }
 }

@@ -1,8 +1,19 @@
 //! Pictures of flow slices: speed ratio |V|/U and Cp on a sampled plane,
 //! one above the other at the same scale, the body cross-section in grey,
 //! each with its colour bar, axes in metres and a title.
+//!
+//! The colour ranges leave out the samples next to the surface
+//! ([`Slice::near_surface`]): a constant-strength panel's velocity is
+//! singular along its edges (Katz & Plotkin 2001, sec. 10.4), so a sample
+//! within about a panel size of the surface can read several times the
+//! free stream where the flow does no such thing, and one such sample set
+//! the whole speed scale. The ranges are also clipped at a high quantile
+//! ([`ColourScale::speed_ratio`], [`ColourScale::cp`]); the bars point
+//! their clipped ends and give the extreme beyond them.
 
-use nalgebra::Vector3;
+use std::collections::HashMap;
+
+use nalgebra::{Point3, Vector3};
 
 use super::canvas::{Canvas, INK, MUTED, Rgb};
 use super::colorbar::{self, ColourScale, nice_ticks, tick_label};
@@ -11,6 +22,59 @@ use super::{Caption, OutputError, Slice, short_number};
 
 /// Colour of the body cross-section.
 pub const BODY: Rgb = [140, 142, 150];
+
+/// Samples closer than this many panel sizes (longest edge) to a panel's
+/// centroid are near the surface: the velocity of a constant-strength
+/// panel is singular along its edges (Katz & Plotkin 2001, sec. 10.4),
+/// and the error is large within about a panel size of the surface
+/// (common practice).
+pub const NEAR_SURFACE_SIZES: f64 = 1.0;
+
+/// Which of `points` lie within [`NEAR_SURFACE_SIZES`] panel sizes of a
+/// panel centroid of `mesh` (or of its mirror image in the symmetry plane
+/// of a half model): the samples [`Slice::near_surface`] marks.
+pub fn near_surface(mesh: &tuft_mesh::PanelMesh, points: &[Point3<f64>]) -> Vec<bool> {
+    let reach = mesh
+        .panels
+        .iter()
+        .fold(0.0f64, |m, p| m.max(NEAR_SURFACE_SIZES * p.size));
+    if !(reach > 0.0) {
+        return vec![false; points.len()];
+    }
+    let cell = |p: &Point3<f64>| {
+        let c = p.coords / reach;
+        (c.x.floor() as i64, c.y.floor() as i64, c.z.floor() as i64)
+    };
+    let mut cells: HashMap<Cell, Vec<(Point3<f64>, f64)>> = HashMap::new();
+    for p in &mesh.panels {
+        let mut at = vec![p.centroid];
+        if mesh.mirrors.symmetry {
+            at.push(Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z));
+        }
+        for c in at {
+            let r = NEAR_SURFACE_SIZES * p.size;
+            cells.entry(cell(&c)).or_default().push((c, r));
+        }
+    }
+    points
+        .iter()
+        .map(|q| {
+            let (i, j, k) = cell(q);
+            (-1..=1).any(|di| {
+                (-1..=1).any(|dj| {
+                    (-1..=1).any(|dk| {
+                        cells
+                            .get(&(i + di, j + dj, k + dk))
+                            .is_some_and(|v| v.iter().any(|(c, r)| (q - c).norm() < *r))
+                    })
+                })
+            })
+        })
+        .collect()
+}
+
+/// A cube of the grid [`near_surface`] sorts centroids into.
+type Cell = (i64, i64, i64);
 
 /// Picture size of a slice picture.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -86,10 +150,9 @@ pub fn slice_picture_with_params(
         .iter()
         .map(|v| v.map(|v| v.norm() / u))
         .collect();
-    let finite = |v: &[Option<f64>]| v.iter().flatten().copied().collect::<Vec<f64>>();
     let scales = [
-        ColourScale::speed_ratio(&finite(&speed)),
-        ColourScale::cp(&finite(&slice.cp)),
+        ColourScale::speed_ratio(&away_from_surface(slice, &speed)).mark_clipped(&finite(&speed)),
+        ColourScale::cp(&away_from_surface(slice, &slice.cp)).mark_clipped(&finite(&slice.cp)),
     ];
     let names = ["Speed |V|/U", "Pressure coefficient Cp"];
     let fields = [&speed, &slice.cp];
@@ -118,14 +181,39 @@ pub fn slice_picture_with_params(
         44.0,
         &TextStyle::new(28.0).bold(),
     );
-    text::draw(
-        &mut c,
-        &describe_plane(slice),
-        30.0,
-        74.0,
-        &TextStyle::new(16.0).colour(MUTED),
-    );
+    for (k, line) in [describe_plane(slice), slice.note.clone()]
+        .iter()
+        .filter(|l| !l.is_empty())
+        .enumerate()
+    {
+        text::draw(
+            &mut c,
+            line,
+            30.0,
+            74.0 + 22.0 * k as f32,
+            &TextStyle::new(16.0).colour(MUTED),
+        );
+    }
     Ok((c, frames))
+}
+
+/// The values of a field outside the body.
+fn finite(field: &[Option<f64>]) -> Vec<f64> {
+    field.iter().flatten().copied().collect()
+}
+
+/// The values of a field outside the body and away from its surface (all
+/// of them when the slice marks no sample as near the surface).
+fn away_from_surface(slice: &Slice, field: &[Option<f64>]) -> Vec<f64> {
+    if slice.near_surface.is_empty() {
+        return finite(field);
+    }
+    field
+        .iter()
+        .zip(&slice.near_surface)
+        .filter(|&(_, &near)| !near)
+        .filter_map(|(v, _)| *v)
+        .collect()
 }
 
 /// Two stacked frames at one scale that keeps the grid's aspect ratio.
@@ -313,7 +401,6 @@ fn axis_unit(name: &str) -> Vector3<f64> {
 #[cfg(test)]
 mod tests {
     #![allow(clippy::unwrap_used, clippy::expect_used)]
-    use nalgebra::Point3;
 
     use super::*;
     use crate::output::canvas::testing::{decode, keep};
@@ -341,6 +428,8 @@ mod tests {
             dims,
             velocity: vec![],
             cp: vec![],
+            near_surface: vec![],
+            note: "Potential flow past a sphere (Lamb).".to_owned(),
         };
         for j in 0..dims.1 {
             for i in 0..dims.0 {
@@ -397,5 +486,65 @@ mod tests {
         let (px, py) = frames[1].pixel_at(gi, gj);
         let red = img.pixel(px as i64, py as i64);
         assert!(red[0] > 100 && red[0] > red[2] + 60, "{red:?}");
+    }
+
+    #[test]
+    fn a_singular_sample_next_to_the_surface_does_not_set_the_scale() {
+        // The samples within 0.1 of the sphere (about 3 % of them) read 4.2
+        // times the free stream, as a panel method's do next to panel
+        // edges. Marked as near the surface they are left out of the
+        // range: the speed scale ends at 1.5 (Lamb's |V|/U at r = 1.1 is
+        // 1 + 1/(2 1.1^3) = 1.38, Hydrodynamics, §92), not at 4.5.
+        let mut slice = centre_plane();
+        slice.near_surface = vec![false; slice.len()];
+        let mut marked = 0;
+        for j in 0..slice.dims.1 {
+            for i in 0..slice.dims.0 {
+                let k = i + j * slice.dims.0;
+                let r = slice.point(i, j).coords.norm();
+                if r > 1.0 && r < 1.1 {
+                    slice.velocity[k] = Some(Vector3::new(4.2 * SPEED, 0.0, 0.0));
+                    slice.near_surface[k] = true;
+                    marked += 1;
+                }
+            }
+        }
+        assert!(marked as f64 > 0.01 * slice.len() as f64, "{marked}");
+        let (canvas, frames) = slice_picture(&slice, &caption()).unwrap();
+        let png = canvas.to_png().unwrap();
+        keep("slice-clipped.png", &png);
+        let img = decode(&png);
+        // Far upstream (x = -2.9) on Lamb's 0.959: the colour of a scale
+        // to 1.5, within 6 levels, as in the test above.
+        let want = ColourScale::speed_ratio(&[1.5])
+            .colour(1.0 - 1.0 / 2.9f64.powi(3))
+            .unwrap();
+        let (px, py) = frames[0].pixel_at(0.1 / 0.05, 1.5 / 0.05);
+        let got = img.pixel(px as i64, py as i64);
+        for ch in 0..3 {
+            assert!(
+                (i32::from(got[ch]) - i32::from(want[ch])).abs() <= 6,
+                "{got:?} vs {want:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn samples_within_a_panel_size_of_the_surface_are_marked() {
+        // A unit icosphere: a point on the sphere is near, one at radius 2
+        // is not (panel sizes here are about 0.15 m).
+        let mesh = tuft_mesh::PanelMesh::new(
+            tuft_mesh::generate::icosphere(1.0, 3),
+            tuft_mesh::Mirrors::none(),
+        )
+        .unwrap();
+        let size = mesh.panels.iter().fold(0.0f64, |m, p| m.max(p.size));
+        assert!(size < 0.3, "{size}");
+        let points = [
+            Point3::new(0.0, 0.0, 1.0 + 0.2 * size),
+            Point3::new(0.0, 0.0, 2.0),
+            Point3::new(-1.0 - 0.2 * size, 0.0, 0.0),
+        ];
+        assert_eq!(near_surface(&mesh, &points), vec![true, false, true]);
     }
 }

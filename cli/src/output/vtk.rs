@@ -487,6 +487,8 @@ for c in range(g.GetNumberOfCells()):
                 .map(|k| Some(Vector3::new(k as f64, 0.0, -1.0)))
                 .collect(),
             cp: (0..n).map(|k| Some(0.1 * k as f64)).collect(),
+            near_surface: vec![],
+            note: String::new(),
         };
         slice.velocity[5] = None;
         slice.cp[5] = None;
