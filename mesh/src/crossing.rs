@@ -17,6 +17,7 @@
 //! their bounding boxes, so the cost grows about linearly with the facet
 //! count for a surface whose facets are of similar size.
 
+use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::distance::SurfaceGrid;
@@ -36,7 +37,8 @@ pub struct Crossing {
     pub same_surface: bool,
 }
 
-/// Every pair of crossing facets, in a deterministic order.
+/// Every pair of crossing facets, sorted by facet index (the cells are
+/// searched in parallel; the result does not depend on the thread count).
 pub fn crossings(mesh: &TriMesh) -> Vec<Crossing> {
     let Some((lo, hi)) = mesh.bounds() else {
         return Vec::new();
@@ -49,25 +51,30 @@ pub fn crossings(mesh: &TriMesh) -> Vec<Crossing> {
         })
         .collect();
     let surface = surfaces(mesh);
-    let mut out = Vec::new();
-    for (cell, ids) in grid.cells() {
-        for (k, &i) in ids.iter().enumerate() {
-            for &j in &ids[k + 1..] {
-                let (i, j) = (i as usize, j as usize);
-                if !first_meeting(mesh, &grid, &boxes, cell, i, j) {
-                    continue;
-                }
-                if let Some(p) = facets_cross(&mesh.corners(i), &mesh.corners(j)) {
-                    out.push(Crossing {
-                        facet: i.min(j),
-                        other: i.max(j),
-                        point: [p.x, p.y, p.z],
-                        same_surface: surface[i] == surface[j],
-                    });
+    let cells: Vec<(usize, &[u32])> = grid.cells().filter(|(_, ids)| ids.len() > 1).collect();
+    let mut out: Vec<Crossing> = cells
+        .par_iter()
+        .flat_map_iter(|&(cell, ids)| {
+            let mut found = Vec::new();
+            for (k, &i) in ids.iter().enumerate() {
+                for &j in &ids[k + 1..] {
+                    let (i, j) = (i as usize, j as usize);
+                    if !first_meeting(mesh, &grid, &boxes, cell, i, j) {
+                        continue;
+                    }
+                    if let Some(p) = facets_cross(&mesh.corners(i), &mesh.corners(j)) {
+                        found.push(Crossing {
+                            facet: i.min(j),
+                            other: i.max(j),
+                            point: [p.x, p.y, p.z],
+                            same_surface: surface[i] == surface[j],
+                        });
+                    }
                 }
             }
-        }
-    }
+            found
+        })
+        .collect();
     out.sort_by_key(|c| (c.facet, c.other));
     out
 }

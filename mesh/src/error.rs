@@ -135,7 +135,7 @@ pub enum MeshError {
     /// The surface passes through itself: a facet crosses another facet of
     /// the same connected surface.
     #[error(
-        "facet {facet} crosses facet {other} of the same surface at ({x:.4}, {y:.4}, {z:.4}) m \
+        "panel {facet} crosses panel {other} of the same surface at ({x:.4}, {y:.4}, {z:.4}) m \
          ({pairs} crossing pairs in all): a surface that passes through itself has no single \
          inside, and the panel method holds the potential inside the body at zero, so its \
          results would be meaningless; look for facets that run through the body, such as a fan \
@@ -145,7 +145,7 @@ pub enum MeshError {
         z = .point[2]
     )]
     SelfCrossing {
-        /// One of the two facets (of the panel mesh the run would use).
+        /// One of the two facets (numbered as the panels the run would use).
         facet: usize,
         /// The other facet.
         other: usize,
