@@ -261,6 +261,24 @@ mod tests {
     use crate::{Point, generate};
 
     #[test]
+    fn a_try_that_passes_through_itself_is_refused_unless_the_input_did() {
+        // A lat-long sphere with its two pole vertices exchanged: closed and
+        // oriented, but both pole fans run through the inside and cross.
+        let good = generate::latlong_sphere(1.0, 12, 16);
+        let mut crossed = good.clone();
+        let last = crossed.vertices.len() - 1;
+        crossed.vertices.swap(0, last);
+        let free = vec![false; good.vertices.len()];
+        assert!(check_closed(&crossed, &free).is_ok());
+        let mut input_crosses = None;
+        assert!(check_no_new_crossing(&good, &crossed, &mut input_crosses).is_err());
+        assert_eq!(input_crosses, Some(false));
+        let mut input_crosses = None;
+        assert!(check_no_new_crossing(&crossed, &crossed, &mut input_crosses).is_ok());
+        assert!(check_no_new_crossing(&good, &good, &mut None).is_ok());
+    }
+
+    #[test]
     fn edge_matching_refuses_non_manifold_and_open_results() {
         let sphere = generate::icosphere(1.0, 1);
         let free = vec![false; sphere.vertices.len()];
