@@ -5,8 +5,11 @@
 //! Vertices on a declared mirror plane and on any open border are locked,
 //! so cuts stay on their planes. The result is checked by edge matching:
 //! every edge must be used by exactly two facets running it in opposite
-//! directions, except border edges between locked vertices, and no facet
-//! may be degenerate. If a try fails, the target is doubled (up to three
+//! directions, except border edges between locked vertices, no facet may be
+//! degenerate, and no facet may cross another facet of its own surface
+//! (edge collapses that fold a facet over are refused by the simplifier,
+//! but only against a 75 degree turn per collapse, so folds can build up
+//! over several passes; see [`crate::crossing`]). If a try fails, the target is doubled (up to three
 //! tries) and then the input is kept; the report says so. The deviation is
 //! measured, not estimated: the distance from input vertices (a regular
 //! sample of them) to the coarse surface.
@@ -14,6 +17,7 @@
 use meshopt::SimplifyOptions;
 use serde::Serialize;
 
+use crate::crossing::crossings;
 use crate::distance::SurfaceGrid;
 use crate::repair::edges::{edge_groups, sorted_edge_uses};
 use crate::repair::remove_unused_vertices;
@@ -102,12 +106,15 @@ pub fn coarsen_with_params(
     }
     let mut notes = Vec::new();
     let mut result = None;
+    let mut input_crosses = None;
     for (target, regularize) in attempts(p) {
         if target >= mesh.len() {
             break;
         }
         let mut coarse = simplify(mesh, &locks, target, regularize);
-        match check_closed(&coarse, &locks) {
+        let checked = check_closed(&coarse, &locks)
+            .and_then(|()| check_no_new_crossing(mesh, &coarse, &mut input_crosses));
+        match checked {
             Ok(()) => {
                 remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
@@ -208,6 +215,28 @@ fn check_closed(coarse: &TriMesh, locks: &[bool]) -> Result<(), String> {
     Ok(())
 }
 
+/// A try whose surface passes through itself is refused, unless the input
+/// already did (then coarsening is not to blame; the input is reported
+/// where the panels are built). The input is searched only when needed.
+fn check_no_new_crossing(
+    fine: &TriMesh,
+    coarse: &TriMesh,
+    fine_crosses: &mut Option<bool>,
+) -> Result<(), String> {
+    let Some(c) = crossings(coarse).into_iter().find(|c| c.same_surface) else {
+        return Ok(());
+    };
+    let fine_crosses =
+        *fine_crosses.get_or_insert_with(|| crossings(fine).iter().any(|c| c.same_surface));
+    if fine_crosses {
+        return Ok(());
+    }
+    Err(format!(
+        "facets {} and {} cross: the coarse surface passes through itself",
+        c.facet, c.other
+    ))
+}
+
 fn measure_deviation(fine: &TriMesh, coarse: &TriMesh, samples: usize, report: &mut CoarsenReport) {
     let Some((lo, hi)) = fine.bounds() else {
         return;
@@ -230,6 +259,24 @@ fn measure_deviation(fine: &TriMesh, coarse: &TriMesh, samples: usize, report: &
 mod tests {
     use super::*;
     use crate::{Point, generate};
+
+    #[test]
+    fn a_try_that_passes_through_itself_is_refused_unless_the_input_did() {
+        // A lat-long sphere with its two pole vertices exchanged: closed and
+        // oriented, but both pole fans run through the inside and cross.
+        let good = generate::latlong_sphere(1.0, 12, 16);
+        let mut crossed = good.clone();
+        let last = crossed.vertices.len() - 1;
+        crossed.vertices.swap(0, last);
+        let free = vec![false; good.vertices.len()];
+        assert!(check_closed(&crossed, &free).is_ok());
+        let mut input_crosses = None;
+        assert!(check_no_new_crossing(&good, &crossed, &mut input_crosses).is_err());
+        assert_eq!(input_crosses, Some(false));
+        let mut input_crosses = None;
+        assert!(check_no_new_crossing(&crossed, &crossed, &mut input_crosses).is_ok());
+        assert!(check_no_new_crossing(&good, &good, &mut None).is_ok());
+    }
 
     #[test]
     fn edge_matching_refuses_non_manifold_and_open_results() {

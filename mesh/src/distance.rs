@@ -108,6 +108,19 @@ impl<'a> SurfaceGrid<'a> {
         self.items = items;
     }
 
+    /// The triangle ids binned in each cell, cell by cell.
+    pub(crate) fn cells(&self) -> impl Iterator<Item = (usize, &[u32])> + '_ {
+        self.start
+            .windows(2)
+            .enumerate()
+            .map(|(f, w)| (f, &self.items[w[0] as usize..w[1] as usize]))
+    }
+
+    /// The (flat) cell holding `p` (clamped to the grid).
+    pub(crate) fn cell_of(&self, p: &Point) -> usize {
+        self.flat(self.cell_index(p))
+    }
+
     /// Distance from `p` to the nearest triangle.
     pub fn distance(&self, p: &Point) -> f64 {
         let centre = self.cell_index(p);

@@ -135,6 +135,28 @@ pub enum MeshError {
         /// What is wrong with it.
         reason: &'static str,
     },
+    /// The surface passes through itself: a facet crosses another facet of
+    /// the same connected surface.
+    #[error(
+        "panel {facet} crosses panel {other} of the same surface at ({x:.4}, {y:.4}, {z:.4}) m \
+         ({pairs} crossing pairs in all): a surface that passes through itself has no single \
+         inside, and the panel method holds the potential inside the body at zero, so its \
+         results would be meaningless; look for facets that run through the body, such as a fan \
+         of facets whose apex sits at the wrong end",
+        x = .point[0],
+        y = .point[1],
+        z = .point[2]
+    )]
+    SelfCrossing {
+        /// One of the two facets (numbered as the panels the run would use).
+        facet: usize,
+        /// The other facet.
+        other: usize,
+        /// Where they cross, metres.
+        point: [f64; 3],
+        /// Pairs of facets of one surface that cross.
+        pairs: usize,
+    },
     /// The mirror planes asked for are not consistent with the body.
     #[error("mirror plane problem: {0}")]
     Mirror(String),

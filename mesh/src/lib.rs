@@ -28,6 +28,7 @@
 #![deny(missing_docs)]
 
 pub mod coarsen;
+pub mod crossing;
 pub mod distance;
 pub mod error;
 mod fasthash;

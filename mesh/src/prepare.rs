@@ -1,5 +1,6 @@
 //! One call from an STL file to panels: read, scale to metres, move, check
-//! the mirror planes, repair, coarsen, build panels and measure them.
+//! the mirror planes, repair, coarsen, refuse a surface that passes through
+//! itself, build panels and measure them.
 //!
 //! ```
 //! # fn main() -> Result<(), tuft_mesh::MeshError> {
@@ -15,6 +16,7 @@ use std::path::Path;
 use serde::Serialize;
 
 use crate::coarsen::{CoarsenParams, CoarsenReport, coarsen_with_params};
+use crate::crossing::crossings;
 use crate::import::{LengthUnit, RigidTransform, StlReport, read_stl};
 use crate::quality::{QualityReport, quality, suggested_panels};
 use crate::repair::{RepairParams, RepairReport, repair_with_params};
@@ -90,8 +92,10 @@ pub struct PrepareReport {
 /// Read `path` and prepare it.
 ///
 /// # Errors
-/// Every reading error of [`read_stl`], every repair error, and
-/// [`MeshError::Mirror`] when the body crosses a declared mirror plane.
+/// Every reading error of [`read_stl`], every repair error,
+/// [`MeshError::Mirror`] when the body crosses a declared mirror plane, and
+/// [`MeshError::SelfCrossing`] when the panels pass through their own
+/// surface.
 pub fn prepare(
     path: &Path,
     params: &PrepareParams,
@@ -128,6 +132,7 @@ pub fn prepare_mesh(
     } else {
         (mesh, None)
     };
+    refuse_self_crossing(&mesh)?;
     let panels = PanelMesh::new(mesh, params.mirrors)?;
     let (lo, hi) = panels.bounds();
     let report = PrepareReport {
@@ -147,6 +152,22 @@ pub fn prepare_mesh(
         bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
     };
     Ok((panels, report))
+}
+
+/// The panels must not pass through their own surface (two overlapping
+/// bodies are left alone: each still has an inside).
+fn refuse_self_crossing(mesh: &TriMesh) -> Result<(), MeshError> {
+    let found = crossings(mesh);
+    let mut same = found.iter().filter(|c| c.same_surface);
+    match same.next() {
+        Some(c) => Err(MeshError::SelfCrossing {
+            facet: c.facet,
+            other: c.other,
+            point: c.point,
+            pairs: 1 + same.count(),
+        }),
+        None => Ok(()),
+    }
 }
 
 /// Suggested count for the whole body: a half model counts double area.
