@@ -132,7 +132,7 @@ pub fn prepare_mesh(
     } else {
         (mesh, None)
     };
-    refuse_self_crossing(&mesh)?;
+    let local_crossing = refuse_self_crossing(&mesh)?;
     let panels = PanelMesh::new(mesh, params.mirrors)?;
     let (lo, hi) = panels.bounds();
     let report = PrepareReport {
@@ -146,7 +146,11 @@ pub fn prepare_mesh(
         repair,
         suggested_panels: suggested,
         coarsen,
-        quality: quality(&panels),
+        quality: {
+            let mut q = quality(&panels);
+            q.warnings.extend(local_crossing);
+            q
+        },
         panels: panels.len(),
         area: panels.area(),
         bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
@@ -154,20 +158,50 @@ pub fn prepare_mesh(
     Ok((panels, report))
 }
 
-/// The panels must not pass through their own surface (two overlapping
-/// bodies are left alone: each still has an inside).
-fn refuse_self_crossing(mesh: &TriMesh) -> Result<(), MeshError> {
-    let found = crossings(mesh);
-    let mut same = found.iter().filter(|c| c.same_surface);
-    match same.next() {
-        Some(c) => Err(MeshError::SelfCrossing {
+/// A crossing panel longer than this many typical panel edges (the
+/// root-mean area's side) means the surface passes through itself at the
+/// body's scale (a fan of facets through the body), not in a local fold.
+pub const CROSSING_SPAN: f64 = 4.0;
+
+/// The panels must not pass through their own surface at the body's
+/// scale: refused, since the body then has no single inside and the whole
+/// solution is meaningless. Crossings between panels of ordinary size (a
+/// scan's local fold where two surfaces nearly touch) spoil only the
+/// pressure near them: returned as a warning naming where. Two overlapping
+/// bodies are left alone: each still has an inside.
+fn refuse_self_crossing(mesh: &TriMesh) -> Result<Option<String>, MeshError> {
+    let found: Vec<_> = crossings(mesh)
+        .into_iter()
+        .filter(|c| c.same_surface)
+        .collect();
+    let Some(first) = found.first() else {
+        return Ok(None);
+    };
+    let typical = (2.0 * mesh.area() / mesh.len().max(1) as f64).sqrt();
+    let longest = |t: usize| {
+        let tri = mesh.corners(t);
+        (0..3)
+            .map(|k| (tri[(k + 1) % 3] - tri[k]).norm())
+            .fold(0.0, f64::max)
+    };
+    let spans = |c: &&crate::crossing::Crossing| {
+        longest(c.facet).max(longest(c.other)) > CROSSING_SPAN * typical
+    };
+    if let Some(c) = found.iter().find(spans) {
+        return Err(MeshError::SelfCrossing {
             facet: c.facet,
             other: c.other,
             point: c.point,
-            pairs: 1 + same.count(),
-        }),
-        None => Ok(()),
+            pairs: found.len(),
+        });
     }
+    let [x, y, z] = first.point;
+    Ok(Some(format!(
+        "{} pairs of panels cross each other (the first near x {x:.3}, y {y:.3}, z {z:.3} m): the surface \
+         folds through itself there, as where two parts of a scan nearly touch; pressures and separation \
+         near that point are unreliable",
+        found.len()
+    )))
 }
 
 /// Suggested count for the whole body: a half model counts double area.

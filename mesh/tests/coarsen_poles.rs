@@ -211,3 +211,31 @@ fn a_body_whose_pole_fans_run_through_it_is_refused() {
         other => panic!("expected a self-crossing refusal, got {other:?}"),
     }
 }
+
+/// A local fold (a thin body whose top pole is pushed down through its
+/// bottom, so the crossing panels are of ordinary size) spoils only the
+/// pressure near it: the mesh is prepared with a warning naming where,
+/// not refused.
+#[test]
+fn a_local_fold_is_warned_about_not_refused() {
+    let mut m = tuft_mesh::generate::icosphere(1.0, 3);
+    m.map_vertices(|p| Point::new(p.x, p.y, 0.02 * p.z));
+    let top = (0..m.vertices.len())
+        .max_by(|&i, &j| m.vertices[i].z.total_cmp(&m.vertices[j].z))
+        .unwrap();
+    m.vertices[top].z = -0.04;
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: Mirrors::none(),
+        target_panels: Some(m.len()),
+        ..PrepareParams::default()
+    };
+    let (_, report) = prepare_mesh(m, None, &params).unwrap();
+    let w = report
+        .quality
+        .warnings
+        .iter()
+        .find(|w| w.contains("pairs of panels cross"))
+        .expect("a crossing warning");
+    assert!(w.contains("near x 0.0") || w.contains("near x -0.0"), "{w}");
+}
