@@ -176,7 +176,7 @@ pub fn slice_picture_with_params(
     }
     text::draw(
         &mut c,
-        &caption.title(&format!("Flow slice {}", slice.name)),
+        &caption.title(&format!("Flow slice: {}", slice.name.replace('-', " "))),
         30.0,
         44.0,
         &TextStyle::new(28.0).bold(),
