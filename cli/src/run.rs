@@ -176,6 +176,19 @@ pub fn demo_case(slope: f64) -> Result<Case> {
             rear_axle_x: Some(3.65),
             ..Default::default()
         },
+        // The generator's rear window runs from the roof's end to the
+        // deck whatever its slope (the slope sets the deck's height), so
+        // the same ranges name it on both variants (as in cases/coupe.toml).
+        regions: [("rear window", [3.15, 3.7]), ("boot deck", [3.7, 4.2])]
+            .into_iter()
+            .map(|(name, x)| crate::region::RegionSection {
+                name: name.into(),
+                x: Some(x),
+                y: None,
+                z: None,
+                facing: Some("up".into()),
+            })
+            .collect(),
         ..CaseFile::default()
     };
     Case::from_file(Path::new(&format!("coupe-{slope:.0}deg.toml")), file)

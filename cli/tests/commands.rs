@@ -252,6 +252,28 @@ fn demo_writes_two_reports() {
                 .is_finite()
         );
     }
+    // The demo names the rear window; the steeper one separates more
+    // (rear windows steeper than about 30 degrees lose the flow: Ahmed,
+    // Ramm & Faltin 1984 for slants; common practice for cars).
+    let window = |run: &str| {
+        let s: serde_json::Value = serde_json::from_str(
+            &std::fs::read_to_string(demo.join(run).join("summary.json")).unwrap(),
+        )
+        .unwrap();
+        let r = s["regions"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|r| r["name"] == "rear window")
+            .cloned()
+            .expect("the demo names its rear window");
+        r["separated_fraction"].as_f64().unwrap()
+    };
+    let (gentle, steep) = (window("coupe-22deg"), window("coupe-38deg"));
+    assert!(
+        steep > gentle + 0.1,
+        "22 degrees {gentle}, 38 degrees {steep}"
+    );
 }
 
 #[test]
