@@ -1,7 +1,7 @@
 //! A symmetric body run as a half model (symmetry plane y = 0, by images)
 //! gives the same loads as the full model: the image method is an exact
 //! identity of the panel method (Katz & Plotkin, *Low-Speed Aerodynamics*,
-//! 2nd ed., 2001, sec. 12.x on images; the reflected panels carry the same
+//! 2nd ed., 2001, on images (from memory); the reflected panels carry the same
 //! singularity strengths), so the only differences are round-off.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 

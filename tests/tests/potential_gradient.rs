@@ -52,7 +52,8 @@ fn order(name: &str, meshes: [TriMesh; 3]) -> f64 {
 /// sphere the observed order over three meshes is at least 1.8. On the
 /// icosphere the valence-5 vertices and the subdivision pattern keep it
 /// near 1.6 (observed; at least 1.4 asserted): the error there is set by
-/// mesh irregularity, as the reference notes of the method warn.
+/// mesh irregularity (common practice: least-squares gradients lose order
+/// on irregular stencils).
 #[test]
 fn gradient_is_about_second_order() {
     let ll = order(

@@ -186,26 +186,21 @@ fn cz_ground(h: f64) -> (f64, f64, f64) {
     (c[0], c[1], c[1] + (c[1] - c[0]) / 3.0)
 }
 
-/// Sphere near the ground: suction toward the ground, within 1 % of the
-/// converged values -0.0794 (h/a = 1.5) and -0.00466 (h/a = 3) of an
-/// independent panel code with Richardson extrapolation (reference notes of
-/// the project, computed, not published); at h/a = 3 and 6 within 5 % of
-/// the derived far-field estimate C_z = -(3/8)(a/h)^4 (the dipole-image
-/// pull, valid for h/a >= 3), so the h^-4 trend holds.
+/// Sphere near the ground: suction toward the ground at every height, and
+/// at h/a = 3 and 6 within 5 % of the far-field attraction of a sphere
+/// moving parallel to a wall, F = 3 pi rho U^2 a^6 / (16 h^4), i.e.
+/// C_z = -(3/8)(a/h)^4 (the dipole's image; Milne-Thomson, *Theoretical
+/// Hydrodynamics*, from memory; derived again from the image doublet).
+/// 5 %: the higher images add terms of relative order (a/2h)^3 (0.5 % at
+/// h/a = 3) and the extrapolated panel result carries about 1 % (the
+/// 1,280- and 5,120-panel values differ by 1-3 %). The value at h/a = 1.5,
+/// where the far-field estimate does not hold, is printed only.
 #[test]
 fn sphere_is_pulled_toward_the_ground() {
-    for (h, reference) in [(1.5, Some(-0.0794)), (3.0, Some(-0.00466)), (6.0, None)] {
+    for h in [1.5, 3.0, 6.0] {
         let (c1, c2, extrap) = cz_ground(h);
-        println!(
-            "h/a {h}: C_z {c1:.5} (1,280), {c2:.5} (5,120), extrapolated {extrap:.5}, reference {reference:?}"
-        );
+        println!("h/a {h}: C_z {c1:.5} (1,280), {c2:.5} (5,120), extrapolated {extrap:.5}");
         assert!(extrap < 0.0, "force must point to the ground");
-        if let Some(r) = reference {
-            assert!(
-                (extrap - r).abs() < 0.01 * r.abs(),
-                "h/a {h}: {extrap:.5} vs {r}"
-            );
-        }
         if h >= 3.0 {
             let estimate = -(3.0 / 8.0) * h.powi(-4);
             println!("h/a {h}: far-field estimate {estimate:.3e}");

@@ -191,8 +191,8 @@ fn explicit_trailing_edge_list_gives_the_detected_solution() {
 fn lift_rises_as_the_wing_nears_the_ground() {
     // Ground effect on a finite wing at positive incidence: the image
     // trailing vortices cancel part of the downwash, so the lift rises as
-    // the height falls (Wieselsberger 1922; Katz & Plotkin 2001, sec. 12.x
-    // (from memory)). Heights of the quarter-chord line: free air, 2 and
+    // the height falls (Wieselsberger 1922; Katz & Plotkin 2001 (from
+    // memory)). Heights of the quarter-chord line: free air, 2 and
     // 1 chord. Closer than about one chord this thick wing's lift falls
     // again in the method (0.350 at h/c 1, 0.348 at 0.5, 0.322 at 0.25
     // seen at 4 degrees), where the image of the bound vortex slows the
