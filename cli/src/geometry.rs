@@ -106,15 +106,25 @@ fn shape(name: &str, case: &Case) -> Result<TriMesh> {
     let mesh = match name {
         "coupe" => {
             let d = CoupeParams::default();
-            generate::coupe_with_params(&CoupeParams {
+            // The generator's height is the roof's above the ground, so its
+            // own ride height would change the body's depth; a ride-height
+            // study wants the same body raised or lowered: build it at the
+            // default clearance and move it.
+            let ride = g.ride_height.unwrap_or(d.ride_height);
+            if !(ride.is_finite() && ride > 0.0) {
+                bail!("geometry.ride_height must be a positive number of metres (got {ride})");
+            }
+            let mut body = generate::coupe_with_params(&CoupeParams {
                 rear_window_deg: g.rear_window_deg.unwrap_or(d.rear_window_deg),
                 boot_deck_length: g.boot_deck_length.unwrap_or(d.boot_deck_length),
                 diffuser_deg: g.diffuser_deg.unwrap_or(d.diffuser_deg),
-                ride_height: g.ride_height.unwrap_or(d.ride_height),
                 panels,
                 half: g.half_model,
                 ..d
-            })?
+            })?;
+            let lift = ride - d.ride_height;
+            body.map_vertices(|p| nalgebra::Point3::new(p.x, p.y, p.z + lift));
+            body
         }
         "ahmed" => {
             let d = AhmedParams::default();
@@ -228,4 +238,34 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::case::CaseFile;
+
+    fn coupe(ride: f64) -> PanelMesh {
+        let text = format!(
+            "[geometry]\nshape = \"coupe\"\npanels = 600\nride_height = {ride}\n[ground]\nz = 0.0\n"
+        );
+        let file: CaseFile = toml::from_str(&text).unwrap();
+        let case = Case::from_file(std::path::Path::new("c.toml"), file).unwrap();
+        load(&case).unwrap().mesh
+    }
+
+    /// A ride-height change moves the built-in coupe as a whole: floor and
+    /// roof rise by the same amount, the plan view stays.
+    #[test]
+    fn ride_height_moves_the_whole_coupe() {
+        let ((lo1, hi1), (lo2, hi2)) = (coupe(0.08).bounds(), coupe(0.16).bounds());
+        assert!((lo1.z - 0.08).abs() < 1e-9 && (lo2.z - 0.16).abs() < 1e-9);
+        assert!(
+            (hi2.z - hi1.z - 0.08).abs() < 1e-9,
+            "roof {} and {}",
+            hi1.z,
+            hi2.z
+        );
+        assert!((hi2.x - hi1.x).abs() < 1e-12 && (hi2.y - hi1.y).abs() < 1e-12);
+    }
 }
