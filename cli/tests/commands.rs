@@ -340,3 +340,27 @@ fn a_shape_key_beside_an_stl_is_refused() {
         &["geometry.rear_window_deg", "built-in shape coupe", "STL"],
     );
 }
+
+/// A yawed run says what it cannot give (the side force of a car's lee-side
+/// separation) and warns when its panels are fewer than suggested.
+#[test]
+fn a_yawed_run_says_what_it_cannot_give() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = "[geometry]\nshape = \"coupe\"\npanels = 600\n[flow]\nyaw = 5.0\n[ground]\nz = 0.0\n\
+                [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n";
+    std::fs::write(dir.path().join("yawed.toml"), case).unwrap();
+    let o = tuft(dir.path(), &["run", "yawed.toml", "--quiet"]);
+    assert_eq!(o.code, 1, "warnings to read: {}", o.stderr);
+    let report = std::fs::read_to_string(dir.path().join("yawed/report.html")).unwrap();
+    assert!(report.contains("Cross wind") && report.contains("not the side force"));
+    let summary: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("yawed/summary.json")).unwrap(),
+    )
+    .unwrap();
+    let warned = summary["warnings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .any(|w| w.as_str().unwrap().starts_with("a yawed run on"));
+    assert!(warned, "{}", summary["warnings"]);
+}
