@@ -412,12 +412,15 @@ fn notes(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Vec<Str
             "the runs are at different yaw angles ({ya} and {yb} degrees)"
         ));
     }
-    let (na, nb) = (sa.mesh.panels as f64, sb.mesh.panels as f64);
+    // A half model's panels stand for twice as many on the whole body.
+    let whole = |s: &crate::summary::Summary| {
+        s.mesh.panels as f64 * if s.mesh.symmetry_plane { 2.0 } else { 1.0 }
+    };
+    let (na, nb) = (whole(sa), whole(sb));
     if (na - nb).abs() > 0.05 * na.max(nb) {
         notes.push(format!(
-            "the panel counts differ ({} and {}): part of every difference is discretisation error; \
-             compare variants at about the same panel count",
-            sa.mesh.panels, sb.mesh.panels
+            "the panel counts differ ({na:.0} and {nb:.0} on the whole body): part of every difference is \
+             discretisation error; compare variants at about the same panel count"
         ));
     }
     if let Some(n) = reference_note(sa, sb) {

@@ -638,6 +638,18 @@ fn report(
             body: lift_text(&s.lift_kg, &at),
         });
     }
+    if !s.regions.is_empty() {
+        let [attached, separated] = crate::region::VERDICT_LINES.map(|v| 100.0 * v);
+        sections.push(TextSection {
+            title: "Named regions".into(),
+            body: format!(
+                "Each region's verdict reads its separated share: attached under {attached:.0} %, separated \
+                 from {separated:.0} %, partly separated between (our lines; on the slant-back research body \
+                 they give the published regimes at 25 and 35 degrees). Mean risk is the area mean of how \
+                 close the boundary layer came to separating, 0 far from it and 1 at the criterion."
+            ),
+        });
+    }
     if case.file.flow.yaw != 0.0 {
         sections.push(TextSection {
             title: "Cross wind".into(),

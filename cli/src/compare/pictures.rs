@@ -138,7 +138,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let d = &c.deltas;
     let s = &c.surface;
     let at = format!("kg at {} m/s", output::short_number(c.b.speed));
-    let signed = |v: f64| format!("{v:+.1}").replace('-', "\u{2212}");
+    let signed = |v: f64| signed_places(v, 1);
     let mut numbers = vec![
         NumberRow::text(
             "Drag C_D, A and B",
@@ -169,11 +169,19 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text("Lift difference, whole body", &signed(d.lift_kg), &at),
         NumberRow::text("Lift difference, front axle", &signed(d.front_axle_kg), &at),
         NumberRow::text("Lift difference, rear axle", &signed(d.rear_axle_kg), &at),
-        NumberRow::number("Lift coefficient difference", d.lift_coefficient, "-"),
-        NumberRow::number("Separated area difference", d.separated_area_m2, "m²"),
-        NumberRow::number(
+        NumberRow::text(
+            "Lift coefficient difference",
+            &signed_places(d.lift_coefficient, 3),
+            "-",
+        ),
+        NumberRow::text(
+            "Separated area difference",
+            &signed_places(d.separated_area_m2, 3),
+            "m²",
+        ),
+        NumberRow::text(
             "Separated share of the surface, B's minus A's",
-            d.separated_percent_points,
+            &signed_places(d.separated_percent_points, 2),
             "% points",
         ),
         NumberRow::number("Separation appears in B", s.separation_appears_m2, "m²"),
@@ -238,4 +246,9 @@ fn upper_first(s: &str) -> String {
     cs.next().map_or_else(String::new, |f| {
         f.to_uppercase().collect::<String>() + cs.as_str()
     })
+}
+
+/// A difference with its sign always written, to `places` decimals.
+fn signed_places(v: f64, places: usize) -> String {
+    format!("{v:+.places$}").replace('-', "\u{2212}")
 }
