@@ -258,7 +258,10 @@ fn two_diffuser_angles_warn_about_the_lift() {
         moved,
         "the diffusers separate alike: the check above tests nothing"
     );
-    // The steeper diffuser adds downforce (common practice at moderate
-    // angles; the model keeps adding it past the stall, see above).
-    assert!(num(&c, "/deltas/lift_kg") < 0.0);
+    // A moderate diffuser adds downforce against a flat floor (common
+    // practice; tunnels see the gain up to about 10-15 degrees, then the
+    // stall, which the model misses, so the 20-degree one is not judged).
+    let m = run_case(dir.path(), "d10", &case(10.0));
+    let c10 = compare(&a, &m, &dir.path().join("moderate"));
+    assert!(num(&c10, "/deltas/lift_kg") < 0.0, "{}", c10["deltas"]);
 }
