@@ -201,8 +201,9 @@ fn rms_lamb_error(body: tuft_mesh::TriMesh, name: &str) -> f64 {
 fn sphere_cp_converges_to_lamb_up_to_40000_panels() {
     // Each step quarters the panel area (halves the panel size h). The
     // method is at least first order in h (constant-strength panels,
-    // Katz & Plotkin 2001, sec. 12.2 (common practice)), so the rms error
-    // must fall by a factor of 0.7 or better per step. Seen: icosphere
+    // Katz & Plotkin 2001 (from memory)), so the rms error must at least
+    // halve per step: 0.55 allows a tenth for the pre-asymptotic range.
+    // Seen: icosphere
     // 5.0e-3, 1.7e-3, 6.2e-4 (1,280 to 20,480 panels); latitude-longitude
     // 1.5e-3, 7.7e-4 (10,000 and 40,000). The 81,920- and 90,000-panel
     // points are in the `sphere_convergence` benchmark (2.3e-4, 5.3e-4).
@@ -210,7 +211,7 @@ fn sphere_cp_converges_to_lamb_up_to_40000_panels() {
     for level in [3, 4, 5] {
         let rms = rms_lamb_error(generate::icosphere(1.0, level), "icosphere");
         assert!(
-            rms < 0.7 * last,
+            rms < 0.55 * last,
             "Cp error did not fall: {rms:.2e} after {last:.2e}"
         );
         last = rms;
@@ -221,7 +222,7 @@ fn sphere_cp_converges_to_lamb_up_to_40000_panels() {
         "latitude-longitude",
     );
     assert!(
-        fine < 0.7 * coarse,
+        fine < 0.55 * coarse,
         "Cp error did not fall: {fine:.2e} after {coarse:.2e}"
     );
 }

@@ -72,6 +72,7 @@ fn half_model_gives_the_full_model_loads() {
         cf.pitch
     );
     assert!(rel(half.axles.front, full.axles.front) < 1e-6);
+    assert!(rel(half.axles.rear, full.axles.rear) < 1e-6);
     // By symmetry the half model has no side force at all.
     assert!(ch.side.abs() < 1e-12);
 }
