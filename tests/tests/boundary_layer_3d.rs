@@ -651,15 +651,20 @@ fn ahmed_slant_regimes_through_the_panel_solution() {
     // separation bubble sits on it; above 30 the flow leaves the slant edge.
     // The screening is attached-flow only (no wake loop), so it is checked
     // for the regimes' order, not their full extent: no separation at 10
-    // degrees, some at 25, at least 40 % of the slant at 35, growing with
-    // the angle. The vertical base separates at its edges whatever the
-    // slant (flow does not turn a sharp corner, common practice).
+    // degrees, at 25 at least the 20 % that the regime lines call partly
+    // separated (the lines of tests/separated_wakes.rs and the region
+    // verdicts, our choice), at least 40 % of the slant at 35, growing
+    // with the angle. The vertical base separates at its edges whatever
+    // the slant (flow does not turn a sharp corner, common practice).
     let (f10, b10) = ahmed_slant_separation(10.0);
     let (f25, b25) = ahmed_slant_separation(25.0);
     let (f35, b35) = ahmed_slant_separation(35.0);
+    println!(
+        "attached screening, slant separated: 10 deg {f10:.2}, 25 deg {f25:.2}, 35 deg {f35:.2}"
+    );
     assert_eq!(f10, 0.0, "10 degrees: attached");
     assert!(
-        f25 > 0.0 && f25 < f35,
+        f25 >= 0.2 && f25 < f35,
         "25 degrees: {f25}, 35 degrees: {f35}"
     );
     assert!(f35 >= 0.4, "35 degrees: {f35}");
