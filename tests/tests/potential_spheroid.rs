@@ -50,7 +50,10 @@ fn check_spheroid(ratio: f64, n_lon: usize) {
         mesh.len(),
         1.0 + k
     );
-    // Task targets: V_max within 0.2 % of 1 + k, rms Cp error <= 5e-3.
+    // Bars: V_max within 0.2 % of Lamb's 1 + k and rms Cp error at most
+    // 5e-3, the sphere's accuracy loosened for the spheroid's flatter
+    // panels along its length (a wrong k, e.g. the sphere's, misses by
+    // several percent).
     assert!(
         (vmax - (1.0 + k)).abs() < 0.002 * (1.0 + k),
         "L/D {ratio}: V_max {vmax} vs {}",
