@@ -62,7 +62,9 @@ pub struct Row {
     /// Separated fraction of the underbody (ground-facing panels), %.
     #[serde(default)]
     pub underbody_separated_percent: f64,
-    /// Separated area as the stream sees it, % of the reference area.
+    /// Separated surface projected along the stream (front- and
+    /// rear-facing parts counted separately), % of the reference area;
+    /// it can exceed 100 %.
     #[serde(default)]
     pub separated_frontal_percent: f64,
     /// Panels.
@@ -406,7 +408,8 @@ fn separation_spread(c: &Collected) -> Option<String> {
     let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
         "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants, and \
-         the separated area the stream sees from {flo:.1} % to {fhi:.1} % of the reference area: {}.",
+         the separated surface projected along the stream (front- and rear-facing parts counted separately) \
+         covers {flo:.1} % to {fhi:.1} % of the reference area: {}.",
         crate::compare::SEPARATION_CAUTION
     ))
 }
@@ -574,17 +577,17 @@ mod tests {
         );
     }
 
-    /// The separated area the stream sees moving by more than 2 % of the
-    /// reference area warns too, even when the share of the surface stays
+    /// The separated surface projected along the stream moving by more
+    /// than 2 % of the reference area warns too, even when the share of the surface stays
     /// within a point (the slant-back body from 25 to 35 degrees).
     #[test]
-    fn warns_when_the_separated_area_seen_by_the_stream_moves() {
+    fn warns_when_the_separated_area_projected_along_the_stream_moves() {
         let mut c = sweep(&[10.0, 10.5]);
         assert!(separation_spread(&c).is_none());
         c.variants[1].separated_frontal_percent = 12.7;
         let text = separation_spread(&c).unwrap_or_default();
         assert!(
-            text.contains("from 0.0 % to 12.7 % of the reference area"),
+            text.contains("counted separately) covers 0.0 % to 12.7 % of the reference area"),
             "{text}"
         );
     }
