@@ -1,10 +1,12 @@
 //! `tuft collect DIR`: merge the finished variants of a sweep into
-//! `sweep.csv`, `sweep.json` and a self-contained `sweep.html` (a ranking
-//! by drag and plots of drag, lift and separated area against each swept
-//! value).
+//! `sweep.csv`, `sweep.json` and a self-contained `sweep.html` (the
+//! variants' warnings, a ranking by drag within each wind condition, the
+//! named regions' verdicts and plots of drag, lift and separated area
+//! against each swept value).
 //!
-//! Exit codes: 0 every planned variant was found, 1 some are missing or
-//! failed (listed), 2 nothing to collect.
+//! Exit codes: 0 every planned variant was found and none carries a
+//! warning, 1 some are missing or failed or carry warnings (listed; a
+//! coarse-mesh warning also withholds the winner), 2 nothing to collect.
 
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -18,6 +20,7 @@ use serde::{Deserialize, Serialize};
 use crate::compare::read_summary;
 use crate::output::html::escape;
 use crate::output::plot::{LinePlot, PlotParams, SERIES_COLOURS, Series, draw_line_plot};
+use crate::region::RegionResult;
 use crate::sweep::group::{VARIANT_FILE, VariantRecord};
 use crate::sweep::{PLAN_FILE, PlanEntry};
 use crate::{EXIT_WARNINGS, summary::CAUTION};
@@ -35,7 +38,8 @@ pub struct CollectArgs {
 /// One finished variant.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct Row {
-    /// Rank by drag estimate (1 = lowest).
+    /// Rank by drag estimate within the variant's wind condition (speed
+    /// and yaw; 1 = lowest).
     pub rank: usize,
     /// Variant name.
     pub name: String,
@@ -62,7 +66,9 @@ pub struct Row {
     /// Separated fraction of the underbody (ground-facing panels), %.
     #[serde(default)]
     pub underbody_separated_percent: f64,
-    /// Separated area as the stream sees it, % of the reference area.
+    /// Separated surface projected along the stream (front- and
+    /// rear-facing parts counted separately), % of the reference area;
+    /// it can exceed 100 %.
     #[serde(default)]
     pub separated_frontal_percent: f64,
     /// Panels.
@@ -71,6 +77,18 @@ pub struct Row {
     pub warnings: usize,
     /// The variant's potential flow used a matrix factorised for another.
     pub matrix_reused: bool,
+    /// Free-stream speed, m/s (from the variant's case).
+    #[serde(default)]
+    pub speed: f64,
+    /// Yaw, degrees (from the variant's case).
+    #[serde(default)]
+    pub yaw_deg: f64,
+    /// The warning sentences of the variant's summary.
+    #[serde(default)]
+    pub warning_texts: Vec<String>,
+    /// The variant's named regions and their verdicts.
+    #[serde(default)]
+    pub regions: Vec<RegionResult>,
 }
 
 /// `sweep.json`.
@@ -80,8 +98,17 @@ pub struct Collected {
     pub sweep: String,
     /// Swept keys, in order.
     pub keys: Vec<String>,
-    /// Finished variants, ranked by drag.
+    /// Finished variants, grouped by wind condition (speed, yaw) and
+    /// ranked by drag within each.
     pub variants: Vec<Row>,
+    /// Names of the regions any variant reports, in order of first
+    /// appearance.
+    #[serde(default)]
+    pub regions: Vec<String>,
+    /// The printed best-drag line: per wind condition, and no winner when
+    /// a variant's mesh is too coarse for converged numbers.
+    #[serde(default)]
+    pub drag_ranking: String,
     /// Planned variants with no finished folder.
     pub missing: Vec<String>,
     /// The caution that goes with every number.
@@ -92,31 +119,131 @@ pub struct Collected {
 pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let c = collect(&args.dir)?;
     write_outputs(&args.dir, &c)?;
+    let warnings = distinct_warnings(&c);
     if !args.quiet {
         println!(
             "{}: {} variants collected; {}",
             c.sweep,
             c.variants.len(),
-            best_drag(&c)
+            c.drag_ranking
         );
+        for (text, names) in &warnings {
+            println!("  warning ({}): {text}", names.join(", "));
+        }
         for m in &c.missing {
             println!("  missing or failed: {m}");
         }
         println!("  report: {}", args.dir.join("sweep.html").display());
     }
-    Ok(if c.missing.is_empty() {
+    Ok(if c.missing.is_empty() && warnings.is_empty() {
         ExitCode::SUCCESS
     } else {
         ExitCode::from(EXIT_WARNINGS)
     })
 }
 
+/// Whether a warning is the coarse-mesh one
+/// ([`crate::pipeline::coarse_warning`]): the variant's separation verdict
+/// and drag are not converged at its panel count.
+fn is_coarse_mesh(warning: &str) -> bool {
+    warning.contains("not converged") && warning.contains("geometry.panels")
+}
+
+/// Variants carrying the coarse-mesh warning.
+fn not_converged(c: &Collected) -> Vec<&str> {
+    c.variants
+        .iter()
+        .filter(|r| r.warning_texts.iter().any(|w| is_coarse_mesh(w)))
+        .map(|r| r.name.as_str())
+        .collect()
+}
+
+/// Each distinct warning text once, with the variants that carry it, in
+/// rank order of first appearance.
+fn distinct_warnings(c: &Collected) -> Vec<(&str, Vec<&str>)> {
+    let mut out: Vec<(&str, Vec<&str>)> = Vec::new();
+    for r in &c.variants {
+        for w in &r.warning_texts {
+            match out.iter_mut().find(|(t, _)| t == w) {
+                Some((_, names)) => names.push(&r.name),
+                None => out.push((w, vec![&r.name])),
+            }
+        }
+    }
+    out
+}
+
+/// Two variants in the same wind condition (speed and yaw).
+fn same_wind(a: &Row, b: &Row) -> bool {
+    a.speed.total_cmp(&b.speed).is_eq() && a.yaw_deg.total_cmp(&b.yaw_deg).is_eq()
+}
+
+/// The ranked variants cut into runs of one wind condition each, with a
+/// label ("yaw 5°", "30 m/s", "30 m/s, yaw 5°") naming what differs
+/// across the sweep; one unlabelled group when nothing does.
+fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
+    let Some(first) = c.variants.first() else {
+        return Vec::new();
+    };
+    let speeds = c
+        .variants
+        .iter()
+        .any(|r| r.speed.total_cmp(&first.speed).is_ne());
+    let yaws = c
+        .variants
+        .iter()
+        .any(|r| r.yaw_deg.total_cmp(&first.yaw_deg).is_ne());
+    c.variants
+        .chunk_by(same_wind)
+        .map(|rows| {
+            let r = &rows[0];
+            let label = match (speeds, yaws) {
+                (true, true) => format!("{} m/s, yaw {}°", r.speed, r.yaw_deg),
+                (true, false) => format!("{} m/s", r.speed),
+                (false, true) => format!("yaw {}°", r.yaw_deg),
+                (false, false) => String::new(),
+            };
+            (label, rows)
+        })
+        .collect()
+}
+
+/// The printed best-drag line: no winner at all when a variant's mesh is
+/// too coarse ([`is_coarse_mesh`]), otherwise [`best_drag_in`] within each
+/// wind condition, since drag at another speed or yaw is another test.
+fn best_drag(c: &Collected) -> String {
+    let coarse = not_converged(c);
+    if !coarse.is_empty() {
+        return format!(
+            "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: raise \
+             geometry.panels, see the warnings), so no winner is named",
+            coarse.len(),
+            c.variants.len()
+        );
+    }
+    let groups = wind_groups(c);
+    match groups.as_slice() {
+        [] => "no drag to rank".into(),
+        [(_, rows)] => best_drag_in(rows),
+        _ => {
+            let parts: Vec<String> = groups
+                .iter()
+                .map(|(label, rows)| format!("{label}: {}", best_drag_in(rows)))
+                .collect();
+            format!(
+                "drag ranked within each wind condition, not across them; {}",
+                parts.join("; ")
+            )
+        }
+    }
+}
+
 /// The lowest drag, named the best only when it beats the next by more
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
 /// separated share stays put across the variants (as `tuft compare`
 /// names a winner).
-fn best_drag(c: &Collected) -> String {
-    let [first, rest @ ..] = c.variants.as_slice() else {
+fn best_drag_in(rows: &[Row]) -> String {
+    let [first, rest @ ..] = rows else {
         return "no drag to rank".into();
     };
     let lowest = format!("{} (C_D {:.3})", first.name, first.cd);
@@ -129,7 +256,7 @@ fn best_drag(c: &Collected) -> String {
             "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
             second.name
         )
-    } else if separation_spread(c).is_some() {
+    } else if separation_spread(rows).is_some() {
         format!(
             "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the report)"
         )
@@ -176,15 +303,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     if rows.is_empty() {
         bail!("{}: no finished sweep variants here", dir.display());
     }
-    rows.sort_by(|a, b| a.1.cd.total_cmp(&b.1.cd).then(a.0.cmp(&b.0)));
-    let variants: Vec<Row> = rows
-        .into_iter()
-        .enumerate()
-        .map(|(k, (_, mut r))| {
-            r.rank = k + 1;
-            r
-        })
-        .collect();
+    let variants = rank(rows);
     let missing = plan.map_or_else(Vec::new, |p| {
         p.variants
             .into_iter()
@@ -192,13 +311,54 @@ pub fn collect(dir: &Path) -> Result<Collected> {
             .map(|e| e.name)
             .collect()
     });
-    Ok(Collected {
+    let mut c = Collected {
         sweep: name.unwrap_or_else(|| "sweep".into()),
         keys,
+        regions: region_names(&variants),
         variants,
         missing,
+        drag_ranking: String::new(),
         caution: CAUTION.into(),
-    })
+    };
+    c.drag_ranking = best_drag(&c);
+    Ok(c)
+}
+
+/// Order (plan index, row) pairs by wind condition, then drag, then plan
+/// index, and number them from 1 within each wind condition.
+fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
+    rows.sort_by(|(i, a), (j, b)| {
+        a.speed
+            .total_cmp(&b.speed)
+            .then(a.yaw_deg.total_cmp(&b.yaw_deg))
+            .then(a.cd.total_cmp(&b.cd))
+            .then(i.cmp(j))
+    });
+    let mut out: Vec<Row> = Vec::with_capacity(rows.len());
+    for (_, mut r) in rows {
+        r.rank = match out.last() {
+            Some(prev) if same_wind(prev, &r) => prev.rank + 1,
+            _ => 1,
+        };
+        out.push(r);
+    }
+    out
+}
+
+/// Region names over the variants, in order of first appearance.
+fn region_names(rows: &[Row]) -> Vec<String> {
+    let mut names: Vec<String> = Vec::new();
+    for g in rows.iter().flat_map(|r| &r.regions) {
+        if !names.contains(&g.name) {
+            names.push(g.name.clone());
+        }
+    }
+    names
+}
+
+/// A variant's region by name.
+fn region<'a>(r: &'a Row, name: &str) -> Option<&'a RegionResult> {
+    r.regions.iter().find(|g| g.name == name)
 }
 
 fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
@@ -208,6 +368,20 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
     let record: VariantRecord = serde_json::from_str(&text)
         .with_context(|| format!("{}: not a sweep variant record", file.display()))?;
     let s = read_summary(path)?;
+    let flow = |key: &str, default: f64| {
+        s.case
+            .pointer(&format!("/flow/{key}"))
+            .or_else(|| {
+                record
+                    .settings
+                    .iter()
+                    .find(|x| x.key == format!("flow.{key}"))
+                    .map(|x| &x.value)
+            })
+            .and_then(serde_json::Value::as_f64)
+            .unwrap_or(default)
+    };
+    let still = crate::case::FlowSection::default();
     let row = Row {
         rank: 0,
         name: record.name.clone(),
@@ -231,6 +405,10 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         panels: s.mesh.panels,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
+        speed: flow("speed", still.speed),
+        yaw_deg: flow("yaw", still.yaw),
+        warning_texts: s.warnings.clone(),
+        regions: s.regions.clone(),
     };
     Ok((row, record))
 }
@@ -266,13 +444,18 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings\n");
+    s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings");
+    for g in &c.regions {
+        let g = g.replace([',', '\n'], " ");
+        let _ = write!(s, ",region:{g}:separated_percent,region:{g}:verdict");
+    }
+    s.push('\n');
     for r in &c.variants {
         let _ = write!(s, "{},{}", r.rank, r.name);
         for k in &c.keys {
             let _ = write!(s, ",{}", r.settings.get(k).map(cell).unwrap_or_default());
         }
-        let _ = writeln!(
+        let _ = write!(
             s,
             ",{},{},{},{},{},{},{},{},{},{},{}",
             r.cd,
@@ -287,6 +470,15 @@ pub fn csv(c: &Collected) -> String {
             r.panels,
             r.warnings
         );
+        for g in &c.regions {
+            match region(r, g) {
+                Some(g) => {
+                    let _ = write!(s, ",{},{}", 100.0 * g.separated_fraction, g.verdict);
+                }
+                None => s.push_str(",,"),
+            }
+        }
+        s.push('\n');
     }
     s
 }
@@ -392,7 +584,7 @@ figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 /// A warning when the separated share of the surface varies across the
 /// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
 /// ranking then rests on the separated-flow model.
-fn separation_spread(c: &Collected) -> Option<String> {
+fn separation_spread(c: &[Row]) -> Option<String> {
     let by_area = spread(c, |r| r.separated_percent, crate::compare::SEPARATION_SHIFT);
     let by_stream = spread(
         c,
@@ -406,13 +598,14 @@ fn separation_spread(c: &Collected) -> Option<String> {
     let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
         "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants, and \
-         the separated area the stream sees from {flo:.1} % to {fhi:.1} % of the reference area: {}.",
+         the separated surface projected along the stream (front- and rear-facing parts counted separately) \
+         covers {flo:.1} % to {fhi:.1} % of the reference area: {}.",
         crate::compare::SEPARATION_CAUTION
     ))
 }
 
 /// The same for the underbody's separated share and the lift ranking.
-fn underbody_spread(c: &Collected) -> Option<String> {
+fn underbody_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = spread(
         c,
         |r| r.underbody_separated_percent,
@@ -425,14 +618,14 @@ fn underbody_spread(c: &Collected) -> Option<String> {
 }
 
 /// Lowest and highest of a percentage over the variants.
-fn range(c: &Collected, f: fn(&Row) -> f64) -> (f64, f64) {
-    let lo = c.variants.iter().map(f).fold(f64::INFINITY, f64::min);
-    let hi = c.variants.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
+fn range(c: &[Row], f: fn(&Row) -> f64) -> (f64, f64) {
+    let lo = c.iter().map(f).fold(f64::INFINITY, f64::min);
+    let hi = c.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
     (lo, hi)
 }
 
 /// [`range`] when the two lie more than `shift` (a fraction) apart.
-fn spread(c: &Collected, f: fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> {
+fn spread(c: &[Row], f: fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> {
     let (lo, hi) = range(c, f);
     (hi - lo > 100.0 * shift).then_some((lo, hi))
 }
@@ -445,51 +638,48 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         escape(&c.sweep),
         escape(&c.caution)
     );
+    let groups = wind_groups(c);
+    let within = if groups.len() > 1 {
+        " within each wind condition (speed and yaw): drag at another speed or yaw is another test, so \
+         the ranking restarts at 1 in each"
+    } else {
+        ""
+    };
     let _ = writeln!(
         s,
-        "<p>{} variants ranked by the drag estimate. Differences of a few drag counts are within the noise \
+        "<p>{} variants ranked by the drag estimate{within}. Differences of a few drag counts are within the noise \
          of any simulation (common practice); use <code>tuft compare</code> on two variants for a verdict.</p>",
         c.variants.len()
     );
-    for text in [separation_spread(c), underbody_spread(c)]
-        .into_iter()
-        .flatten()
-    {
-        let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(&text));
-    }
-    s.push_str("<h2>Ranking</h2>\n<table>\n<tr><th>#</th><th>variant</th>");
-    for k in &c.keys {
-        let _ = write!(s, "<th>{}</th>", escape(k));
-    }
-    s.push_str("<th>C_D</th><th>band</th><th>lift [kg]</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th><th>warnings</th></tr>\n");
-    for r in &c.variants {
-        let _ = write!(
-            s,
-            "<tr><td>{}</td><td class=\"name\">{}</td>",
-            r.rank,
-            escape(&r.name)
-        );
-        for k in &c.keys {
-            let _ = write!(
+    let class = if not_converged(c).is_empty() {
+        "verdict"
+    } else {
+        "caution"
+    };
+    let _ = writeln!(
+        s,
+        "<p class=\"{class}\"><strong>{}</strong></p>",
+        escape(&sentence(&best_drag(c)))
+    );
+    for (label, rows) in &groups {
+        let prefix = if label.is_empty() {
+            String::new()
+        } else {
+            format!("{label}: ")
+        };
+        for text in [separation_spread(rows), underbody_spread(rows)]
+            .into_iter()
+            .flatten()
+        {
+            let _ = writeln!(
                 s,
-                "<td>{}</td>",
-                escape(&r.settings.get(k).map(cell).unwrap_or_default())
+                "<p class=\"caution\">{}</p>",
+                escape(&format!("{prefix}{text}"))
             );
         }
-        let _ = writeln!(
-            s,
-            "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{:.0}</td><td>{:.0}</td><td>{:.0}</td><td>{:.3}</td><td>{}</td></tr>",
-            r.cd,
-            r.cd_low,
-            r.cd_high,
-            r.lift_kg,
-            r.front_axle_kg,
-            r.rear_axle_kg,
-            r.separated_area_m2,
-            r.warnings
-        );
     }
-    s.push_str("</table>\n");
+    warnings_section(&mut s, c);
+    ranking_table(&mut s, c, groups.len() > 1);
     if !c.missing.is_empty() {
         s.push_str("<h2>Missing or failed</h2>\n<ul>\n");
         for m in &c.missing {
@@ -516,6 +706,95 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     s
 }
 
+/// `text` with its first letter capitalised.
+fn sentence(text: &str) -> String {
+    let mut chars = text.chars();
+    chars
+        .next()
+        .map(|f| f.to_uppercase().chain(chars).collect())
+        .unwrap_or_default()
+}
+
+/// The "Warnings" section: each distinct warning once, with the variants
+/// it applies to.
+fn warnings_section(s: &mut String, c: &Collected) {
+    let warnings = distinct_warnings(c);
+    if warnings.is_empty() {
+        return;
+    }
+    s.push_str("<h2>Warnings</h2>\n<ul>\n");
+    for (text, names) in warnings {
+        let _ = writeln!(
+            s,
+            "<li>{} <em>({}: {})</em></li>",
+            escape(text),
+            if names.len() == 1 {
+                "variant"
+            } else {
+                "variants"
+            },
+            escape(&names.join(", "))
+        );
+    }
+    s.push_str("</ul>\n");
+}
+
+/// The ranking table, with a wind column when the ranking restarts per
+/// wind condition and a column per named region.
+fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
+    s.push_str("<h2>Ranking</h2>\n<table>\n<tr>");
+    if by_wind {
+        s.push_str("<th>wind</th>");
+    }
+    s.push_str("<th>#</th><th>variant</th>");
+    for k in &c.keys {
+        let _ = write!(s, "<th>{}</th>", escape(k));
+    }
+    s.push_str("<th>C_D</th><th>band</th><th>lift [kg]</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
+    for g in &c.regions {
+        let _ = write!(s, "<th>{} separated</th>", escape(g));
+    }
+    s.push_str("<th>warnings</th></tr>\n");
+    for r in &c.variants {
+        s.push_str("<tr>");
+        if by_wind {
+            let _ = write!(s, "<td>{} m/s, yaw {}°</td>", r.speed, r.yaw_deg);
+        }
+        let _ = write!(
+            s,
+            "<td>{}</td><td class=\"name\">{}</td>",
+            r.rank,
+            escape(&r.name)
+        );
+        for k in &c.keys {
+            let _ = write!(
+                s,
+                "<td>{}</td>",
+                escape(&r.settings.get(k).map(cell).unwrap_or_default())
+            );
+        }
+        let _ = write!(
+            s,
+            "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{:.0}</td><td>{:.0}</td><td>{:.0}</td><td>{:.3}</td>",
+            r.cd,
+            r.cd_low,
+            r.cd_high,
+            r.lift_kg,
+            r.front_axle_kg,
+            r.rear_axle_kg,
+            r.separated_area_m2,
+        );
+        for g in &c.regions {
+            let text = region(r, g).map_or_else(String::new, |g| {
+                format!("{:.0} % {}", 100.0 * g.separated_fraction, g.verdict)
+            });
+            let _ = write!(s, "<td>{}</td>", escape(&text));
+        }
+        let _ = writeln!(s, "<td>{}</td></tr>", r.warnings);
+    }
+    s.push_str("</table>\n");
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -539,14 +818,192 @@ mod tests {
             panels: 1000,
             warnings: 0,
             matrix_reused: false,
+            speed: 40.0,
+            yaw_deg: 0.0,
+            warning_texts: Vec::new(),
+            regions: Vec::new(),
         };
         Collected {
             sweep: "s".into(),
             keys: Vec::new(),
             variants: shares.iter().enumerate().map(row).collect(),
+            regions: Vec::new(),
             missing: Vec::new(),
+            drag_ranking: String::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    fn warn(r: &mut Row, text: &str) {
+        r.warning_texts.push(text.into());
+        r.warnings = r.warning_texts.len();
+    }
+
+    /// Each distinct warning is listed once above the ranking with the
+    /// variants it applies to, HTML-escaped, and sweep.json carries the
+    /// texts per variant.
+    #[test]
+    fn lists_each_warning_once_with_its_variants() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        let axles = "axle positions not given: axles assumed at 20 % & 80 % <of> the length";
+        warn(&mut c.variants[0], axles);
+        warn(&mut c.variants[2], axles);
+        warn(
+            &mut c.variants[2],
+            "12 of 900 panels were reached by no surface streamline",
+        );
+        let listed = distinct_warnings(&c);
+        assert_eq!(listed.len(), 2);
+        assert_eq!(listed[0], (axles, vec!["v0", "v2"]));
+        let html = page(&c, &[]);
+        let escaped = "20 % &amp; 80 % &lt;of&gt; the length";
+        assert_eq!(html.matches(escaped).count(), 1, "{html}");
+        assert!(!html.contains("<of>"));
+        assert!(html.contains("(variants: v0, v2)"), "{html}");
+        assert!(html.contains("(variant: v2)"), "{html}");
+        let (w, r) = (
+            html.find("<h2>Warnings</h2>"),
+            html.find("<h2>Ranking</h2>"),
+        );
+        assert!(w.is_some() && w < r, "warnings above the ranking");
+        let json = serde_json::to_string(&c).unwrap_or_default();
+        let back: Collected = serde_json::from_str(&json).unwrap_or_else(|_| sweep(&[]));
+        assert_eq!(back.variants[2].warning_texts.len(), 2);
+        assert_eq!(back.variants[0].warning_texts[0], axles);
+        // No warnings, no section.
+        assert!(!page(&sweep(&[10.0]), &[]).contains("<h2>Warnings</h2>"));
+    }
+
+    /// A variant carrying the coarse-mesh warning (the pipeline's own
+    /// sentence) withholds the winner however wide the drag gap.
+    #[test]
+    fn a_coarse_mesh_withholds_the_winner() {
+        let mut c = sweep(&[10.0, 10.0]);
+        c.variants[1].cd = 0.4;
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        let coarse = crate::pipeline::coarse_warning(1000, 6500, true).unwrap_or_default();
+        assert!(is_coarse_mesh(&coarse), "{coarse}");
+        // Another warning leaves the verdict alone.
+        warn(&mut c.variants[0], "axle positions not given");
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        warn(&mut c.variants[1], &coarse);
+        let line = best_drag(&c);
+        assert!(line.contains("not converged"), "{line}");
+        assert!(line.contains("1 of 2 variants"), "{line}");
+        assert!(
+            !line.contains("v0") && !line.contains("best drag"),
+            "{line}"
+        );
+        assert!(page(&c, &[]).contains("<strong>The drag ranking is not converged"));
+    }
+
+    /// Region columns in sweep.csv and sweep.html, with empty cells for a
+    /// region a variant does not have.
+    #[test]
+    fn region_verdicts_get_a_column_each() {
+        let mut c = sweep(&[10.0, 10.0]);
+        let region = |name: &str, fraction: f64, verdict: &str| RegionResult {
+            name: name.into(),
+            panels: 40,
+            area_m2: 0.4,
+            separated_fraction: fraction,
+            mean_risk: 0.2,
+            verdict: verdict.into(),
+        };
+        c.variants[0].regions = vec![
+            region("rear window", 0.03, "attached"),
+            region("boot deck", 0.71, "separated"),
+        ];
+        c.variants[1].regions = vec![region("rear window", 0.29, "partly separated")];
+        c.regions = region_names(&c.variants);
+        assert_eq!(c.regions, ["rear window", "boot deck"]);
+        let text = csv(&c);
+        let lines: Vec<&str> = text.lines().collect();
+        assert!(
+            lines[0].ends_with(
+                ",warnings,region:rear window:separated_percent,region:rear window:verdict,\
+                 region:boot deck:separated_percent,region:boot deck:verdict"
+            ),
+            "{}",
+            lines[0]
+        );
+        assert!(
+            lines[1].ends_with(",0,3,attached,71,separated"),
+            "{}",
+            lines[1]
+        );
+        assert!(
+            lines[2].ends_with(",0,28.999999999999996,partly separated,,"),
+            "{}",
+            lines[2]
+        );
+        let cols = |l: &str| l.split(',').count();
+        assert!(lines.iter().all(|l| cols(l) == cols(lines[0])), "{text}");
+        let html = page(&c, &[]);
+        assert!(html.contains("<th>rear window separated</th>"), "{html}");
+        assert!(
+            html.contains("<td>3 % attached</td><td>71 % separated</td>"),
+            "{html}"
+        );
+        assert!(
+            html.contains("<td>29 % partly separated</td><td></td>"),
+            "{html}"
+        );
+    }
+
+    /// With yaw swept, the ranking restarts in each wind condition and the
+    /// best drag and the separated-share caution are judged per condition.
+    #[test]
+    fn ranks_within_each_wind_condition() {
+        let mut c = sweep(&[10.0, 10.0, 10.0, 10.0]);
+        // Plan order: yaw 5 low drag, yaw 0 high, yaw 5 high, yaw 0 low.
+        for (r, (yaw, cd)) in
+            c.variants
+                .iter_mut()
+                .zip([(5.0, 0.25), (0.0, 0.32), (5.0, 0.35), (0.0, 0.30)])
+        {
+            r.yaw_deg = yaw;
+            r.cd = cd;
+        }
+        c.variants[2].separated_percent = 14.0;
+        c.variants = rank(c.variants.drain(..).enumerate().collect());
+        let order: Vec<(&str, usize)> = c
+            .variants
+            .iter()
+            .map(|r| (r.name.as_str(), r.rank))
+            .collect();
+        assert_eq!(order, [("v3", 1), ("v1", 2), ("v0", 1), ("v2", 2)]);
+        let line = best_drag(&c);
+        assert!(line.contains("within each wind condition"), "{line}");
+        assert!(
+            line.contains("yaw 0°: best drag: v3 (C_D 0.300), 20.0 counts below v1"),
+            "{line}"
+        );
+        assert!(
+            line.contains("yaw 5°: lowest drag: v0 (C_D 0.250); the separated area moves"),
+            "{line}"
+        );
+        let html = page(&c, &[]);
+        assert!(html.contains("restarts at 1 in each"), "{html}");
+        assert!(
+            html.contains(
+                "yaw 5°: The separated share of the surface ranges from 10.0 % to 14.0 %"
+            ),
+            "{html}"
+        );
+        assert!(!html.contains("yaw 0°: The separated share"), "{html}");
+        // One condition: one ranking, no labels.
+        let one = sweep(&[10.0, 10.0]);
+        assert!(!best_drag(&one).contains("wind condition"));
+        assert!(!page(&one, &[]).contains("restarts at 1"));
     }
 
     /// The best drag is named only beyond the noise floor and with the
@@ -574,17 +1031,17 @@ mod tests {
         );
     }
 
-    /// The separated area the stream sees moving by more than 2 % of the
-    /// reference area warns too, even when the share of the surface stays
+    /// The separated surface projected along the stream moving by more
+    /// than 2 % of the reference area warns too, even when the share of the surface stays
     /// within a point (the slant-back body from 25 to 35 degrees).
     #[test]
-    fn warns_when_the_separated_area_seen_by_the_stream_moves() {
+    fn warns_when_the_separated_area_projected_along_the_stream_moves() {
         let mut c = sweep(&[10.0, 10.5]);
-        assert!(separation_spread(&c).is_none());
+        assert!(separation_spread(&c.variants).is_none());
         c.variants[1].separated_frontal_percent = 12.7;
-        let text = separation_spread(&c).unwrap_or_default();
+        let text = separation_spread(&c.variants).unwrap_or_default();
         assert!(
-            text.contains("from 0.0 % to 12.7 % of the reference area"),
+            text.contains("counted separately) covers 0.0 % to 12.7 % of the reference area"),
             "{text}"
         );
     }
@@ -599,14 +1056,18 @@ mod tests {
             (vec![5.0], false),
         ] {
             let c = sweep(&shares);
-            assert_eq!(separation_spread(&c).is_some(), warned, "{shares:?}");
+            assert_eq!(
+                separation_spread(&c.variants).is_some(),
+                warned,
+                "{shares:?}"
+            );
             // The underbody's shares here are twice the surface's, so they
             // spread by more than a point whenever those spread by more
             // than half a point.
             let under = shares.iter().fold(f64::NEG_INFINITY, |m, &v| m.max(v))
                 - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v))
                 > 0.5;
-            assert_eq!(underbody_spread(&c).is_some(), under, "{shares:?}");
+            assert_eq!(underbody_spread(&c.variants).is_some(), under, "{shares:?}");
             let html = page(&c, &[]);
             assert_eq!(
                 html.contains("drag ranking of rear slants"),
