@@ -135,7 +135,17 @@ fn a_sweep_through_slurm_equals_a_local_sweep() {
             "--quiet",
         ],
     );
-    run(TUFT, &["collect", local.to_str().unwrap(), "--quiet"]);
+    // collect exits 1 when its variants carry warnings (this coarse
+    // sphere's not-converged one); the result is written either way.
+    let out = Command::new(TUFT)
+        .args(["collect", local.to_str().unwrap(), "--quiet"])
+        .output()
+        .unwrap();
+    assert!(
+        matches!(out.status.code(), Some(0 | 1)),
+        "collect: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let (a, b) = (
         json(&cluster.join("sweep.json")),
         json(&local.join("sweep.json")),
