@@ -103,10 +103,11 @@ pub enum MeshError {
     /// The fields describe the largest; `holes` lists every one, largest
     /// first, and the message names them all (up to ten).
     #[error(
-        "{refused} open hole(s) that no declared mirror plane closes, largest first: {}: the \
+        "{} that no declared mirror plane closes, largest first: {}: the \
          panel method needs a closed surface, because it holds the potential inside the body at \
          zero and an open surface has no inside; close the holes in the model, or declare the \
          ground or symmetry plane they lie on",
+        if *.refused == 1 { "1 open hole".to_string() } else { format!("{} open holes", .refused) },
         crate::repair::describe_refused(.holes)
     )]
     OpenHole {

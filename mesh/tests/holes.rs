@@ -235,3 +235,40 @@ fn every_refused_hole_is_listed() {
     // Largest first.
     assert!(holes.windows(2).all(|w| w[0].perimeter >= w[1].perimeter));
 }
+
+#[test]
+fn open_end_of_a_sliver_sided_cylinder_is_refused() {
+    // A cylinder 4 m long, radius 0.5 m, 24 sides each split into two long
+    // slivers (perimeter about 8.1 m), one end capped by a fan, the other
+    // open. The open end (perimeter 3.13 m, 24 edges) is smaller than four
+    // side facets but 24 rim edges across: the rim-edge bound on the local
+    // facet perimeter (3 x 0.131 m) refuses it.
+    let k = 24u32;
+    let ring = |x: f64| {
+        (0..k).map(move |i| {
+            let t = 2.0 * std::f64::consts::PI * f64::from(i) / f64::from(k);
+            Point::new(x, 0.5 * t.cos(), 0.5 * t.sin())
+        })
+    };
+    let mut vertices: Vec<Point> = ring(0.0).chain(ring(4.0)).collect();
+    vertices.push(Point::new(0.0, 0.0, 0.0));
+    let mut triangles = Vec::new();
+    for i in 0..k {
+        let j = (i + 1) % k;
+        triangles.push([i, i + k, j + k]);
+        triangles.push([i, j + k, j]);
+        triangles.push([2 * k, i, j]);
+    }
+    let mut capped = TriMesh::new(vertices, triangles).unwrap();
+    if capped.signed_volume() < 0.0 {
+        capped.flip();
+    }
+    let e = repair(capped, &Mirrors::none()).unwrap_err();
+    let MeshError::OpenHole { holes, .. } = &e else {
+        panic!("{e}")
+    };
+    assert_eq!(holes.len(), 1, "{e}");
+    // 2 pi r = 3.14 m for the circle; the 24-gon is 0.3 % shorter.
+    assert!((holes[0].perimeter - 3.133).abs() < 1e-3, "{e}");
+    assert!((holes[0].centre[0] - 4.0).abs() < 1e-9, "{e}");
+}

@@ -98,3 +98,57 @@ fn is_ear(pts: &[[f64; 2]], live: &[usize], k: usize, eps: f64) -> bool {
             || cross(c, a, p) < -eps
     })
 }
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    fn ring(points: &[(f64, f64)]) -> (Vec<Point>, Vec<u32>) {
+        let v = points.iter().map(|&(x, y)| Point::new(x, y, 0.0)).collect();
+        (v, (0..points.len() as u32).collect())
+    }
+
+    #[test]
+    fn crescent_is_covered_exactly() {
+        // A crescent (two concentric half-circle arcs, r = 2 outside and 1
+        // inside); its area by the shoelace formula (Gauss's area formula).
+        let mut p: Vec<(f64, f64)> = (0..=8)
+            .map(|k| f64::from(k) * std::f64::consts::PI / 8.0)
+            .map(|t| (2.0 * t.cos(), 2.0 * t.sin()))
+            .collect();
+        p.extend((0..=8).rev().map(|k| {
+            let t = f64::from(k) * std::f64::consts::PI / 8.0;
+            (t.cos(), 0.5 + 0.5 * t.sin())
+        }));
+        p.reverse();
+        let shoelace: f64 = 0.5
+            * (0..p.len())
+                .map(|k| {
+                    let (a, b) = (p[k], p[(k + 1) % p.len()]);
+                    a.0 * b.1 - b.0 * a.1
+                })
+                .sum::<f64>();
+        let (v, r) = ring(&p);
+        // Clockwise as listed; seen from -z it is counter-clockwise.
+        assert!(shoelace < 0.0);
+        let t = ear_clip(&v, &r, &-Vector::z()).unwrap();
+        assert_eq!(t.len(), p.len() - 2);
+        let mut area = 0.0;
+        for tri in &t {
+            let [a, b, c] = tri.map(|i| v[i as usize]);
+            let n = (b - a).cross(&(c - a)) * 0.5;
+            assert!(n.z < 0.0, "{tri:?} faces the wrong way");
+            area += n.norm();
+        }
+        assert!((area + shoelace).abs() < 1e-12, "{area} vs {shoelace}");
+    }
+
+    #[test]
+    fn bow_tie_has_no_flat_fill() {
+        // A figure eight overlaps itself: no triangulation without folding.
+        let (v, r) = ring(&[(0.0, 0.0), (2.0, 2.0), (2.0, 0.0), (0.0, 2.0)]);
+        assert!(ear_clip(&v, &r, &Vector::z()).is_none());
+        assert!(ear_clip(&v, &r, &-Vector::z()).is_none());
+    }
+}
