@@ -189,14 +189,7 @@ pub(crate) fn close_holes_with_uses(
         } else {
             let part = part_area[component[half[edges[0]].facet as usize] as usize];
             let limit = fill_limit(mesh, &half, edges, &info, part, s);
-            let outcome = if !*closed {
-                Err(Refusal::NotClosed)
-            } else if info.perimeter > limit {
-                Err(Refusal::TooLarge)
-            } else {
-                fill(mesh, component, &half, edges, &info).ok_or(Refusal::Folds)
-            };
-            match outcome {
+            match fill_if_small(mesh, component, &half, (edges, *closed), &info, limit) {
                 Ok((added, ears)) => {
                     report.facets_added += added;
                     report.ear_clipped += usize::from(ears);
@@ -215,6 +208,25 @@ pub(crate) fn close_holes_with_uses(
     }
     refuse(refused)?;
     Ok(report)
+}
+
+/// Fill a closed loop within `limit`: facets added and whether ear clipping
+/// was used, or why not.
+fn fill_if_small(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    half: &[HalfEdge],
+    (edges, closed): (&[usize], bool),
+    info: &LoopInfo,
+    limit: f64,
+) -> Result<(usize, bool), Refusal> {
+    if !closed {
+        Err(Refusal::NotClosed)
+    } else if info.perimeter > limit {
+        Err(Refusal::TooLarge)
+    } else {
+        fill(mesh, component, half, edges, info).ok_or(Refusal::Folds)
+    }
 }
 
 fn refuse(mut refused: Vec<RefusedHole>) -> Result<(), MeshError> {
