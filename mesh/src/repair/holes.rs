@@ -463,7 +463,10 @@ fn fill(
 
 /// Fill triangles, each running the loop's edges the other way: one
 /// triangle for three edges, a fan from the centre when no fan triangle
-/// folds against the fill's vector area, else ear clipping.
+/// folds against the fill's vector area, else ear clipping. Every surface
+/// spanning a loop has the same vector area (Stokes' theorem), so the
+/// missing facets had it too: a fill triangle facing with it faces the way
+/// the neighbours of the hole do.
 fn fill_triangles(
     mesh: &mut TriMesh,
     half: &[HalfEdge],
