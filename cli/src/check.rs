@@ -165,11 +165,12 @@ fn repair_lines(r: &PrepareReport) -> String {
 fn hole_lines(r: &PrepareReport) -> String {
     let h = &r.repair.holes;
     let mut s = format!(
-        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (limit {:.3} m perimeter), {} zero-width slits; {} non-manifold edges\n",
+        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (perimeter up to {:.3} m, or {} times that of the facets around it), {} zero-width slits; {} non-manifold edges\n",
         h.loops,
         h.mirror_closed.len(),
         h.filled.len(),
         h.fill_limit,
+        h.local_factor,
         h.slits,
         h.non_manifold_edges
     );

@@ -106,6 +106,7 @@ fn passes(path: &std::path::Path) {
         mirrors: tuft_mesh::Mirrors::none(),
         plane_tolerance: 1e-4,
         fill_limit: 0.07,
+        local_factor: 4.0,
         slit_ratio: 1e-4,
     };
     close_holes(&mut m, &mut comp, &s).unwrap();

@@ -99,31 +99,32 @@ pub enum MeshError {
         /// Number of facets read.
         facets: usize,
     },
-    /// A boundary loop too large to fill and on no declared mirror plane.
+    /// Boundary loops that could be neither filled nor closed by a mirror.
+    /// The fields describe the largest; `holes` lists every one, largest
+    /// first, and the message names them all (up to ten).
     #[error(
-        "open hole (boundary loop {loop_index}, {edges} edges) centred at \
-         ({cx:.4}, {cy:.4}, {cz:.4}) m with perimeter {perimeter:.4} m, above the fill limit of \
-         {limit:.4} m, and no declared mirror plane closes it ({refused} such holes in all): the \
+        "{} that no declared mirror plane closes, largest first: {}: the \
          panel method needs a closed surface, because it holds the potential inside the body at \
-         zero and an open surface has no inside; close the hole in the model, or declare the \
-         ground or symmetry plane it lies on",
-        cx = .centre[0],
-        cy = .centre[1],
-        cz = .centre[2]
+         zero and an open surface has no inside; close the holes in the model, or declare the \
+         ground or symmetry plane they lie on",
+        if *.refused == 1 { "1 open hole".to_string() } else { format!("{} open holes", .refused) },
+        crate::repair::describe_refused(.holes)
     )]
     OpenHole {
-        /// Index of the loop among the boundary loops found.
+        /// Index of the largest refused loop among the boundary loops found.
         loop_index: usize,
-        /// Number of edges around the loop.
+        /// Number of edges around the largest refused loop.
         edges: usize,
-        /// Length-weighted centre of the loop, metres.
+        /// Length-weighted centre of the largest refused loop, metres.
         centre: [f64; 3],
-        /// Perimeter, metres.
+        /// Perimeter of the largest refused loop, metres.
         perimeter: f64,
-        /// Largest perimeter that would have been filled, metres.
+        /// Largest perimeter that would have been filled there, metres.
         limit: f64,
-        /// Number of holes refused (this one is the largest).
+        /// Number of holes refused.
         refused: usize,
+        /// Every refused hole, largest first.
+        holes: Vec<crate::repair::RefusedHole>,
     },
     /// A shape generator was given a parameter it cannot build.
     #[error("generator parameter {name} = {value}: {reason}")]

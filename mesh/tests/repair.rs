@@ -75,7 +75,7 @@ fn open_hole_names_centre_and_perimeter() {
     let e = repair(holed, &Mirrors::none()).unwrap_err();
     let text = e.to_string();
     assert!(
-        text.contains("centred at") && text.contains("perimeter"),
+        text.contains("centre (") && text.contains("perimeter"),
         "{text}"
     );
     let MeshError::OpenHole {

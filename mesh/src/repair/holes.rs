@@ -7,16 +7,22 @@
 //! 2. a slit: it encloses (numerically) no area, `|A| < ratio * P^2`, as
 //!    after a T-junction or a removed cap sliver; zero width leaks nothing,
 //!    so it is left open and reported;
-//! 3. a small hole, perimeter at most the fill limit: filled with a fan of
-//!    triangles from its length-weighted centre (a single triangle for a
-//!    three-edge loop), oriented against the loop so that the fill agrees
-//!    with its neighbours;
-//! 4. otherwise refused with [`MeshError::OpenHole`].
+//! 3. a small hole, perimeter at most the larger of the absolute fill limit
+//!    and the local one (a few times the perimeter of the facets around it,
+//!    see [`HoleSettings::local_factor`]): filled, oriented against the loop
+//!    so that the fill agrees with its neighbours. A three-edge loop gets a
+//!    single triangle; a longer one a fan of triangles from its
+//!    length-weighted centre when every fan triangle faces the way of the
+//!    fill's vector area, else (a non-star-shaped rim, whose fan would fold)
+//!    ear clipping in the plane normal to that vector area;
+//! 4. otherwise refused with [`MeshError::OpenHole`], which lists every
+//!    refused hole.
 //!
 //! Edges used by three or more facets are counted as non-manifold and left.
 
 use serde::Serialize;
 
+use super::ear_clip::ear_clip;
 use super::edges::{EdgeUse, edge_groups, sorted_edge_uses};
 use crate::fasthash::FastMap;
 use crate::{MeshError, Mirrors, Point, TriMesh, Vector};
@@ -46,12 +52,69 @@ pub struct HoleReport {
     pub slits: usize,
     /// Small holes filled.
     pub filled: Vec<LoopInfo>,
+    /// Of those, holes filled by ear clipping because a fan would fold.
+    pub ear_clipped: usize,
     /// Facets added by filling.
     pub facets_added: usize,
     /// Edges shared by three or more facets.
     pub non_manifold_edges: usize,
-    /// The fill limit on perimeter, metres.
+    /// The absolute fill limit on perimeter, metres.
     pub fill_limit: f64,
+    /// The local fill limit as a multiple of the bordering facets' perimeter.
+    pub local_factor: f64,
+}
+
+/// Why a boundary loop was refused.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub enum Refusal {
+    /// Perimeter above the fill limit there.
+    TooLarge,
+    /// The rim does not chain back to its start (a non-manifold vertex).
+    NotClosed,
+    /// Neither a fan nor ear clipping fills it without folding: the rim
+    /// overlaps itself seen along the hole's mean normal.
+    Folds,
+}
+
+/// A boundary loop that could be neither filled nor closed by a mirror.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RefusedHole {
+    /// Index of the loop among the boundary loops found.
+    pub loop_index: usize,
+    /// Length-weighted centre, metres.
+    pub centre: [f64; 3],
+    /// Perimeter, metres.
+    pub perimeter: f64,
+    /// Edges around the loop.
+    pub edges: usize,
+    /// Largest perimeter that would have been filled there, metres.
+    pub limit: f64,
+    /// Why it was refused.
+    pub reason: Refusal,
+}
+
+/// The refused holes as one line: centre, perimeter and reason of each, up
+/// to ten, then how many more.
+pub fn describe_refused(holes: &[RefusedHole]) -> String {
+    const SHOWN: usize = 10;
+    let mut parts: Vec<String> = holes.iter().take(SHOWN).map(describe_one).collect();
+    if holes.len() > SHOWN {
+        parts.push(format!("and {} more", holes.len() - SHOWN));
+    }
+    parts.join("; ")
+}
+
+fn describe_one(h: &RefusedHole) -> String {
+    let why = match h.reason {
+        Refusal::TooLarge => format!("above its fill limit of {:.3} m", h.limit),
+        Refusal::NotClosed => "its rim does not close on itself".to_string(),
+        Refusal::Folds => "its rim overlaps itself seen along its normal".to_string(),
+    };
+    let [x, y, z] = h.centre;
+    format!(
+        "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m, {why}",
+        h.perimeter
+    )
 }
 
 /// Settings of the boundary pass (lengths in metres).
@@ -61,8 +124,17 @@ pub struct HoleSettings {
     pub mirrors: Mirrors,
     /// How far from a plane a vertex may lie and still count as on it.
     pub plane_tolerance: f64,
-    /// Largest perimeter filled.
+    /// Largest perimeter filled anywhere.
     pub fill_limit: f64,
+    /// Also fill a hole whose perimeter is at most this many times the local
+    /// facet perimeter: the median perimeter of the facets bordering the
+    /// loop, but no more than three times the median rim edge (so long
+    /// slivers along the rim, as on the side of a lofted body or in a CAD
+    /// tessellation, do not pass a wide opening as small). Not applied to a
+    /// loop enclosing half the area of its part or more: that part is an
+    /// open sheet (a lone facet, a patch), and filling it would make a
+    /// two-sided sheet with no inside, not a body.
+    pub local_factor: f64,
     /// A loop with `|A| < slit_ratio * P^2` is a slit.
     pub slit_ratio: f64,
 }
@@ -78,8 +150,8 @@ struct HalfEdge {
 /// Find loops, fill the small ones; `component` gets an entry per added facet.
 ///
 /// # Errors
-/// [`MeshError::OpenHole`] naming the largest loop that can be neither
-/// filled nor closed by a mirror.
+/// [`MeshError::OpenHole`] listing every loop that can be neither filled
+/// nor closed by a mirror, largest first.
 pub fn close_holes(
     mesh: &mut TriMesh,
     component: &mut Vec<u32>,
@@ -102,9 +174,11 @@ pub(crate) fn close_holes_with_uses(
         loops: loops.len(),
         non_manifold_edges: non_manifold,
         fill_limit: s.fill_limit,
+        local_factor: s.local_factor,
         ..HoleReport::default()
     };
-    let mut refused: Vec<(usize, LoopInfo)> = Vec::new();
+    let part_area = part_areas(mesh, component);
+    let mut refused = Vec::new();
     for (index, (edges, closed)) in loops.iter().enumerate() {
         let mut info = describe(&mesh.vertices, &half, edges);
         info.plane = on_plane(&mesh.vertices, &half, edges, s);
@@ -112,30 +186,121 @@ pub(crate) fn close_holes_with_uses(
             report.mirror_closed.push(info);
         } else if *closed && is_slit(&mesh.vertices, &half, edges, &info, s.slit_ratio) {
             report.slits += 1;
-        } else if *closed && info.perimeter <= s.fill_limit {
-            report.facets_added += fill(mesh, component, &half, edges, &info);
-            report.filled.push(info);
         } else {
-            refused.push((index, info));
+            let part = part_area[component[half[edges[0]].facet as usize] as usize];
+            let limit = fill_limit(mesh, &half, edges, &info, part, s);
+            match fill_if_small(mesh, component, &half, (edges, *closed), &info, limit) {
+                Ok((added, ears)) => {
+                    report.facets_added += added;
+                    report.ear_clipped += usize::from(ears);
+                    report.filled.push(info);
+                }
+                Err(reason) => refused.push(RefusedHole {
+                    loop_index: index,
+                    centre: info.centre,
+                    perimeter: info.perimeter,
+                    edges: info.edges,
+                    limit,
+                    reason,
+                }),
+            }
         }
     }
-    refuse(refused, s.fill_limit)?;
+    refuse(refused)?;
     Ok(report)
 }
 
-fn refuse(mut refused: Vec<(usize, LoopInfo)>, limit: f64) -> Result<(), MeshError> {
-    refused.sort_by(|a, b| b.1.perimeter.total_cmp(&a.1.perimeter));
+/// Fill a closed loop within `limit`: facets added and whether ear clipping
+/// was used, or why not.
+fn fill_if_small(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    half: &[HalfEdge],
+    (edges, closed): (&[usize], bool),
+    info: &LoopInfo,
+    limit: f64,
+) -> Result<(usize, bool), Refusal> {
+    if !closed {
+        Err(Refusal::NotClosed)
+    } else if info.perimeter > limit {
+        Err(Refusal::TooLarge)
+    } else {
+        fill(mesh, component, half, edges, info).ok_or(Refusal::Folds)
+    }
+}
+
+fn refuse(mut refused: Vec<RefusedHole>) -> Result<(), MeshError> {
+    refused.sort_by(|a, b| b.perimeter.total_cmp(&a.perimeter));
     match refused.first() {
         None => Ok(()),
-        Some((loop_index, info)) => Err(MeshError::OpenHole {
-            loop_index: *loop_index,
-            edges: info.edges,
-            centre: info.centre,
-            perimeter: info.perimeter,
-            limit,
+        Some(h) => Err(MeshError::OpenHole {
+            loop_index: h.loop_index,
+            edges: h.edges,
+            centre: h.centre,
+            perimeter: h.perimeter,
+            limit: h.limit,
             refused: refused.len(),
+            holes: refused,
         }),
     }
+}
+
+/// Area of each connected part (indexed by `component`).
+fn part_areas(mesh: &TriMesh, component: &[u32]) -> Vec<f64> {
+    let parts = component.iter().max().map_or(0, |&c| c as usize + 1);
+    let mut area = vec![0.0; parts];
+    for (t, &c) in component.iter().enumerate().take(mesh.len()) {
+        area[c as usize] += mesh.area_vector(t).norm();
+    }
+    area
+}
+
+/// The larger of the absolute and the local limit; the local one only when
+/// the loop encloses less than half the area `part` of its part.
+fn fill_limit(
+    mesh: &TriMesh,
+    half: &[HalfEdge],
+    edges: &[usize],
+    info: &LoopInfo,
+    part: f64,
+    s: &HoleSettings,
+) -> f64 {
+    let hole = loop_area(&mesh.vertices, half, edges, &Point::from(info.centre));
+    if hole.norm() < 0.5 * part {
+        s.fill_limit
+            .max(local_limit(mesh, half, edges, s.local_factor))
+    } else {
+        s.fill_limit
+    }
+}
+
+/// The local fill limit of a loop: `factor` times the local facet
+/// perimeter (see [`HoleSettings::local_factor`]).
+fn local_limit(mesh: &TriMesh, half: &[HalfEdge], edges: &[usize], factor: f64) -> f64 {
+    let mut facets: Vec<f64> = edges
+        .iter()
+        .map(|&e| {
+            let [a, b, c] = mesh.corners(half[e].facet as usize);
+            (b - a).norm() + (c - b).norm() + (a - c).norm()
+        })
+        .collect();
+    let mut rim: Vec<f64> = edges
+        .iter()
+        .map(|&e| {
+            let (a, b) = ends(&mesh.vertices, &half[e]);
+            (b - a).norm()
+        })
+        .collect();
+    factor * median(&mut facets).min(3.0 * median(&mut rim))
+}
+
+/// The lower median (0 for an empty list).
+fn median(values: &mut [f64]) -> f64 {
+    values.sort_by(f64::total_cmp);
+    values
+        .get(values.len().saturating_sub(1) / 2)
+        .copied()
+        .unwrap_or(0.0)
 }
 
 /// Boundary half-edges and the number of non-manifold edges.
@@ -255,7 +420,19 @@ fn on_plane(
     }
 }
 
-/// Vector area `1/2 sum (a - c) x (b - c)` against the perimeter squared.
+/// Vector area `1/2 sum (a - c) x (b - c)` of the loop as its facets run
+/// it, about any point `c` (the sum does not depend on `c`: Stokes).
+fn loop_area(vertices: &[Point], half: &[HalfEdge], edges: &[usize], c: &Point) -> Vector {
+    edges
+        .iter()
+        .map(|&e| {
+            let (a, b) = ends(vertices, &half[e]);
+            (a - c).cross(&(b - c)) * 0.5
+        })
+        .sum()
+}
+
+/// Vector area against the perimeter squared.
 fn is_slit(
     vertices: &[Point],
     half: &[HalfEdge],
@@ -263,38 +440,58 @@ fn is_slit(
     info: &LoopInfo,
     ratio: f64,
 ) -> bool {
-    let c = Point::from(info.centre);
-    let area: Vector = edges
-        .iter()
-        .map(|&e| {
-            let (a, b) = ends(vertices, &half[e]);
-            (a - c).cross(&(b - c)) * 0.5
-        })
-        .sum();
+    let area = loop_area(vertices, half, edges, &Point::from(info.centre));
     area.norm() < ratio * info.perimeter * info.perimeter
 }
 
-/// Fill one closed loop; returns the number of facets added.
+/// Fill one closed loop; the number of facets added and whether ear
+/// clipping was used, or `None` when no fill avoids folding.
 fn fill(
     mesh: &mut TriMesh,
     component: &mut Vec<u32>,
     half: &[HalfEdge],
     edges: &[usize],
     info: &LoopInfo,
-) -> usize {
+) -> Option<(usize, bool)> {
     let part = component[half[edges[0]].facet as usize];
-    let before = mesh.triangles.len();
+    let (triangles, ears) = fill_triangles(mesh, half, edges, info)?;
+    let added = triangles.len();
+    mesh.triangles.extend(triangles);
+    component.extend(std::iter::repeat_n(part, added));
+    Some((added, ears))
+}
+
+/// Fill triangles, each running the loop's edges the other way: one
+/// triangle for three edges, a fan from the centre when no fan triangle
+/// folds against the fill's vector area, else ear clipping. Every surface
+/// spanning a loop has the same vector area (Stokes' theorem), so the
+/// missing facets had it too: a fill triangle facing with it faces the way
+/// the neighbours of the hole do.
+fn fill_triangles(
+    mesh: &mut TriMesh,
+    half: &[HalfEdge],
+    edges: &[usize],
+    info: &LoopInfo,
+) -> Option<(Vec<[u32; 3]>, bool)> {
     if let [e0, e1, _] = edges {
         let (a, b, c) = (half[*e0].from, half[*e0].to, half[*e1].to);
-        mesh.triangles.push([a, c, b]);
-    } else {
-        let centre = mesh.vertices.len() as u32;
-        mesh.vertices.push(Point::from(info.centre));
-        for &e in edges {
-            mesh.triangles.push([half[e].to, half[e].from, centre]);
-        }
+        return Some((vec![[a, c, b]], false));
     }
-    let added = mesh.triangles.len() - before;
-    component.extend(std::iter::repeat_n(part, added));
-    added
+    let c = Point::from(info.centre);
+    let normal = -loop_area(&mesh.vertices, half, edges, &c);
+    let fan_faces_out = edges.iter().all(|&e| {
+        let (a, b) = ends(&mesh.vertices, &half[e]);
+        (a - b).cross(&(c - b)).dot(&normal) > 0.0
+    });
+    if fan_faces_out {
+        let centre = mesh.vertices.len() as u32;
+        mesh.vertices.push(c);
+        let fan = edges
+            .iter()
+            .map(|&e| [half[e].to, half[e].from, centre])
+            .collect();
+        return Some((fan, false));
+    }
+    let ring: Vec<u32> = edges.iter().rev().map(|&e| half[e].from).collect();
+    ear_clip(&mesh.vertices, &ring, &normal).map(|t| (t, true))
 }

@@ -20,6 +20,7 @@
 mod compact;
 mod degenerate;
 mod duplicates;
+mod ear_clip;
 pub(crate) mod edges;
 mod holes;
 mod orient;
@@ -31,7 +32,9 @@ use serde::Serialize;
 pub use compact::remove_unused_vertices;
 pub use degenerate::{DegenerateReport, drop_degenerate};
 pub use duplicates::drop_duplicates;
-pub use holes::{HoleReport, HoleSettings, LoopInfo, close_holes};
+pub use holes::{
+    HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, close_holes, describe_refused,
+};
 pub use orient::{OrientReport, orient_consistently};
 pub use outward::{OutwardReport, orient_outward};
 pub use weld::weld;
@@ -51,6 +54,18 @@ pub struct RepairParams {
     pub sliver_ratio: f64,
     /// Holes with perimeter up to `hole_fill * D` are filled (default 2 %).
     pub hole_fill: f64,
+    /// Holes with perimeter up to `hole_fill_local` times the perimeter of
+    /// the facets around them are filled too, whatever `D` (default 4).
+    /// Such a hole is a few missing facets, a defect of the file, not a
+    /// missing part of the body: with facets of edge `a` (perimeter `3a`),
+    /// one lost facet leaves a hole of perimeter `3a`, the six around a
+    /// vertex `6a`, a row of `n` facets `(n + 2) a`; `12a` takes a row of
+    /// ten. A wheel arch or an open underbody spans many facets across, so
+    /// its perimeter is many facet perimeters (a round opening `k` facets
+    /// wide has about `3k` rim edges) and is still refused. The absolute
+    /// limit alone fails coarse files, whose single facets are larger than
+    /// 2 % of the diagonal.
+    pub hole_fill_local: f64,
     /// A vertex within `plane_tolerance * D` of a mirror plane is on it.
     pub plane_tolerance: f64,
     /// A loop enclosing less than `slit_ratio * P^2` is a slit.
@@ -64,6 +79,7 @@ impl Default for RepairParams {
             sliver_angle_deg: 179.0,
             sliver_ratio: 1e-3,
             hole_fill: 0.02,
+            hole_fill_local: 4.0,
             plane_tolerance: 1e-4,
             slit_ratio: 1e-4,
         }
@@ -160,6 +176,7 @@ pub fn repair_with_params(
         mirrors: *mirrors,
         plane_tolerance: p.plane_tolerance * diagonal,
         fill_limit: p.hole_fill * diagonal,
+        local_factor: p.hole_fill_local,
         slit_ratio: p.slit_ratio,
     };
     r.holes = holes::close_holes_with_uses(&mut mesh, &mut component, &settings, &uses)?;
