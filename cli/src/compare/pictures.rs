@@ -213,8 +213,9 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         title: "How to read this".into(),
         body: format!(
             "A is {} ({}), B is {} ({}); every difference is B minus A. A's surface values are carried \
-             onto B's panels by the nearest point of A's surface (panel-constant values, panels facing the \
-             same way), so the pictures are drawn on B's body.\n\n\
+             onto B's panels from the nearest point of A's surface among panels facing the same way, \
+             corrected to first order by the gradient over the neighbouring panels (never beyond their \
+             values), so the pictures are drawn on B's body.\n\n\
              A drag difference is called one only when it exceeds {} counts (differences of a few counts \
              are within the noise of any simulation, common practice) and keeps its sign at both ends of \
              the two runs' sensitivity bands. The differences at the band ends compare each run's low \
