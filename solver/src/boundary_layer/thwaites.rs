@@ -41,7 +41,9 @@ pub fn closure(lambda: f64) -> (f64, f64) {
     } else {
         (
             2.088 + 0.0731 / (lam + 0.14),
-            0.22 + 1.402 * lam + 0.018 * lam / (lam + 0.107),
+            // The fit dips just below zero for lambda under -0.0898 (to
+            // -0.0015 at -0.09): no wall shear there, not a reversed one.
+            (0.22 + 1.402 * lam + 0.018 * lam / (lam + 0.107)).max(0.0),
         )
     }
 }
@@ -93,6 +95,15 @@ mod tests {
         let (h_plus, l_plus) = closure(0.0);
         assert!((h_minus - h_plus).abs() < 1e-3 && (h_plus - 2.61).abs() < 1e-12);
         assert!((l_minus - l_plus).abs() < 1e-9 && (l_plus - 0.22).abs() < 1e-12);
+    }
+
+    #[test]
+    fn shear_never_reverses_before_separation() {
+        // At Thwaites' separation (lambda = -0.09) the wall shear vanishes
+        // (l = 0, Thwaites 1949); the fit's dip below zero is cut off.
+        let (_, l) = closure(-0.09);
+        assert!(l.abs() < 1e-12, "l {l}");
+        assert!((0..=100).all(|k| closure(-0.001 * f64::from(k)).1 >= 0.0));
     }
 
     #[test]
