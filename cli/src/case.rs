@@ -171,8 +171,8 @@ pub enum GeometrySource {
     Stl {
         /// Path to the STL.
         path: PathBuf,
-        /// Metres per STL unit.
-        scale: f64,
+        /// The unit the STL is written in.
+        unit: tuft_mesh::LengthUnit,
     },
     /// A built-in shape by name, with the section's parameters.
     Shape {
@@ -220,17 +220,6 @@ pub enum WakesMode {
     Separated,
     /// Attached flow only.
     Attached,
-}
-
-/// Metres per unit for the unit names a case accepts.
-pub fn unit_scale(units: &str) -> Option<f64> {
-    match units {
-        "m" => Some(1.0),
-        "cm" => Some(0.01),
-        "mm" => Some(0.001),
-        "in" => Some(0.0254),
-        _ => None,
-    }
 }
 
 impl Case {
@@ -369,13 +358,18 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
         (None, None) => bail!("geometry: give stl (a file) or shape (coupe, ahmed, sphere)"),
         (Some(stl), None) => {
             let units = g.units.as_deref().unwrap_or("mm");
-            let scale = unit_scale(units).ok_or_else(|| {
-                anyhow::anyhow!("geometry.units must be one of m, cm, mm, in (got \"{units}\")")
-            })?;
+            // Exactly a unit's symbol (the parser would also trim spaces).
+            let unit = units
+                .parse::<tuft_mesh::LengthUnit>()
+                .ok()
+                .filter(|u| u.symbol() == units)
+                .ok_or_else(|| {
+                    anyhow::anyhow!("geometry.units must be one of m, cm, mm, in (got \"{units}\")")
+                })?;
             let base = case_path.parent().unwrap_or(Path::new("."));
             Ok(GeometrySource::Stl {
                 path: base.join(stl),
-                scale,
+                unit,
             })
         }
         (None, Some(name)) => {
@@ -530,7 +524,7 @@ mod tests {
             c.source,
             GeometrySource::Stl {
                 path: PathBuf::from("cases/body.stl"),
-                scale: 0.001
+                unit: tuft_mesh::LengthUnit::Mm
             }
         );
     }

@@ -142,9 +142,10 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     })
 }
 
-/// Whether a warning is the coarse-mesh one
-/// ([`crate::pipeline::coarse_warning`]): the variant's separation verdict
-/// and drag are not converged at its panel count.
+/// Whether a warning says the variant's separation verdict and drag are
+/// not converged at its panel count: the coarse-mesh one
+/// ([`crate::pipeline::coarse_warning`]) and the yawed-run one
+/// ([`crate::pipeline::yaw_coarse_warning`]) both do.
 fn is_coarse_mesh(warning: &str) -> bool {
     warning.contains("not converged") && warning.contains("geometry.panels")
 }
@@ -887,6 +888,8 @@ mod tests {
         );
         let coarse = crate::pipeline::coarse_warning(1000, 6500, true).unwrap_or_default();
         assert!(is_coarse_mesh(&coarse), "{coarse}");
+        let yawed = crate::pipeline::yaw_coarse_warning(3956, 6500, true, 5.0).unwrap_or_default();
+        assert!(is_coarse_mesh(&yawed), "{yawed}");
         // Another warning leaves the verdict alone.
         warn(&mut c.variants[0], "axle positions not given");
         assert!(

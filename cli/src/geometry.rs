@@ -33,9 +33,9 @@ pub fn load(case: &Case) -> Result<Geometry> {
     let mirrors = mirrors(case);
     let g = &case.file.geometry;
     let (mesh, report, input_facets) = match &case.source {
-        GeometrySource::Stl { path, scale } => {
+        GeometrySource::Stl { path, unit } => {
             let params = PrepareParams {
-                units: unit_of(*scale),
+                units: *unit,
                 mirrors,
                 target_panels: g.panels,
                 ..PrepareParams::default()
@@ -85,18 +85,6 @@ fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
         keys.push("geometry.half_model = true".to_string());
     }
     anyhow::Error::new(err).context(keys.join(", "))
-}
-
-fn unit_of(scale: f64) -> LengthUnit {
-    [
-        LengthUnit::M,
-        LengthUnit::Cm,
-        LengthUnit::Mm,
-        LengthUnit::In,
-    ]
-    .into_iter()
-    .find(|u| (u.to_metres() - scale).abs() < 1e-12)
-    .unwrap_or(LengthUnit::M)
 }
 
 /// A built-in shape with the case's parameters.
@@ -192,10 +180,10 @@ fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {
         return Ok(());
     }
     let unit = match &case.source {
-        GeometrySource::Stl { scale, .. } => {
+        GeometrySource::Stl { unit, .. } => {
             format!(
                 "; is geometry.units right (the STL was read as {})?",
-                unit_name(*scale)
+                unit.name()
             )
         }
         GeometrySource::Shape { .. } => String::new(),
@@ -206,15 +194,6 @@ fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {
         BODY_SIZE_LIMITS[0],
         BODY_SIZE_LIMITS[1]
     )
-}
-
-fn unit_name(scale: f64) -> &'static str {
-    match unit_of(scale) {
-        LengthUnit::M => "metres",
-        LengthUnit::Cm => "centimetres",
-        LengthUnit::Mm => "millimetres",
-        LengthUnit::In => "inches",
-    }
 }
 
 /// Refuse axle positions outside the body's length (given in millimetres,

@@ -31,6 +31,16 @@ impl LengthUnit {
         }
     }
 
+    /// The unit's name in words, plural ("millimetres").
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::M => "metres",
+            Self::Cm => "centimetres",
+            Self::Mm => "millimetres",
+            Self::In => "inches",
+        }
+    }
+
     /// The unit's symbol.
     pub fn symbol(self) -> &'static str {
         match self {
