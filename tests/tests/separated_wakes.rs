@@ -131,8 +131,17 @@ fn published(slant: f64) -> &'static str {
 /// at every angle. The drag columns are printed for
 /// the benchmark table (Ahmed's drag coefficients, from memory: 0.25 at 0,
 /// 0.23 at 12.5, 0.285 at 25, 0.378 at 30, 0.26 at 35 degrees).
+///
+/// The drag's shape is asserted where the published curve and the loop
+/// agree (Ahmed et al. 1984; values above from memory): a short slant
+/// lowers the drag of the square back, the least drag of the sweep falls
+/// at 10 or 12.5 degrees (published minimum at 12.5), and 12.5 degrees
+/// has less drag than 25 and than 35. The third pair of the published
+/// ranking, 25 above 35, is not met: see
+/// [`drag_peaks_before_the_switch_to_full_separation`].
 #[test]
 fn ahmed_slant_regimes_with_separated_wakes() {
+    let mut cds = Vec::new();
     println!(
         "slant  passes conv  attached-pass  loop  predicted / published  Cd plateau  Cd loop  CL plateau  CL loop"
     );
@@ -165,7 +174,52 @@ fn ahmed_slant_regimes_with_separated_wakes() {
             r.converged && !r.diverged,
             "{slant} degrees: loop did not settle"
         );
+        cds.push((slant, cd));
     }
+    assert_drag_shape(&cds);
+}
+
+/// The published drag curve's shape the loop reproduces (see
+/// [`ahmed_slant_regimes_with_separated_wakes`]). The margins seen are
+/// 0.03 (0 against 12.5 degrees), 0.009 (12.5 against 25) and 0.04 (12.5
+/// against 35), against a drag that moved by at most 0.002 when the panels
+/// doubled (BENCHMARKS.md).
+fn assert_drag_shape(cds: &[(f64, f64)]) {
+    let at = |slant: f64| cds.iter().find(|c| c.0 == slant).unwrap().1;
+    let least = cds.iter().min_by(|a, b| a.1.total_cmp(&b.1)).unwrap();
+    assert!(
+        at(12.5) < at(0.0),
+        "12.5 {} vs square back {}",
+        at(12.5),
+        at(0.0)
+    );
+    assert!(
+        least.0 == 10.0 || least.0 == 12.5,
+        "least drag at {} degrees ({cds:?})",
+        least.0
+    );
+    assert!(at(12.5) < at(25.0), "12.5 {} vs 25 {}", at(12.5), at(25.0));
+    assert!(at(12.5) < at(35.0), "12.5 {} vs 35 {}", at(12.5), at(35.0));
+}
+
+/// The drag falls when the slant switches to full separation: 25 degrees
+/// has more drag than 35 (Ahmed et al. 1984: 0.285 against 0.26, from
+/// memory; the peak, 0.378 at 30, is carried by the vortices off the
+/// slant's side edges). Known failure: the loop gives 0.158 at 25 and
+/// 0.192 at 35, because it models no side-edge vortices and charges the
+/// 35-degree slant the dead water's pressure over its larger separated
+/// area (DEVELOPERS.md, "Where it misleads"). Run with `-- --ignored`.
+#[test]
+#[ignore = "known failure: the loop ranks 35 degrees above 25 in drag"]
+fn drag_peaks_before_the_switch_to_full_separation() {
+    let cd = |slant: f64| {
+        let mesh = ahmed(slant);
+        let r = run(&mesh, along_x());
+        drag(&mesh, &loop_cp(&mesh, &r), &r.last).0
+    };
+    let (cd25, cd35) = (cd(25.0), cd(35.0));
+    println!("loop drag: 25 degrees {cd25:.3}, 35 degrees {cd35:.3}");
+    assert!(cd25 > cd35, "25 degrees {cd25:.3} vs 35 degrees {cd35:.3}");
 }
 
 /// Square-back base pressure. Range for square-back bluff bodies near the
