@@ -15,7 +15,7 @@ use crate::output::html::{NumberRow, Picture, Report, TextSection};
 use crate::output::sheet::SurfaceField;
 use crate::output::{
     self, Caption, PanelState, PointScalars, Slice, Streamlines, SurfaceResult, WakeSheets, csv,
-    html, plot, sheet, slice, vtk,
+    html, plot, sheet, slice, tufts, vtk,
 };
 use crate::pipeline::Computed;
 use crate::progress::Progress;
@@ -193,6 +193,12 @@ fn pictures(
         "separation-risk.png",
         "Separation risk, separated areas hatched",
         risk.to_png()?,
+    );
+    let flow = tufts::tuft_sheet(s, caption)?;
+    add(
+        "surface-flow.png",
+        "Surface flow shown as tufts, separated areas crossed",
+        flow.to_png()?,
     );
     let (line, _) = plot::centreline_cp_plot(s, caption)?;
     add(

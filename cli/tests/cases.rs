@@ -20,7 +20,7 @@ use serde_json::Value;
 const CASES: [&str; 4] = ["coupe", "ahmed-25", "ahmed-35", "sphere"];
 
 /// Every file a run writes, sorted.
-const OUTPUTS: [&str; 13] = [
+const OUTPUTS: [&str; 14] = [
     "centreline-cp.png",
     "mesh.json",
     "panels.csv",
@@ -33,15 +33,17 @@ const OUTPUTS: [&str; 13] = [
     "slice-horizontal-plane.vti",
     "streamlines.vtp",
     "summary.json",
+    "surface-flow.png",
     "surface.vtu",
 ];
 
 /// Pictures with their sizes in pixels (the writers' defaults) and the
 /// least fraction of pixels drawn on: the surface sheets and slices fill
 /// much of the frame, the line plot only its curves, axes and labels.
-const PICTURES: [(&str, u32, u32, f64); 5] = [
+const PICTURES: [(&str, u32, u32, f64); 6] = [
     ("pressure.png", 1600, 1000, 0.10),
     ("separation-risk.png", 1600, 1000, 0.10),
+    ("surface-flow.png", 1600, 1000, 0.10),
     ("centreline-cp.png", 1400, 800, 0.02),
     ("slice-centre-plane.png", 1600, 1000, 0.10),
     ("slice-horizontal-plane.png", 1600, 1000, 0.10),

@@ -363,7 +363,7 @@ fn two_digits(v: f64) -> String {
 }
 
 /// Legend entries as swatches with labels, one per row.
-fn draw_legend(canvas: &mut Canvas, x: f32, y: f32, legend: &[(String, Swatch)]) {
+pub fn draw_legend(canvas: &mut Canvas, x: f32, y: f32, legend: &[(String, Swatch)]) {
     for (k, (label, swatch)) in legend.iter().enumerate() {
         let top = y + 30.0 * k as f32;
         draw_swatch(canvas, x as i64, top as i64, swatch);

@@ -27,6 +27,7 @@ pub mod render;
 pub mod sheet;
 pub mod slice;
 pub mod text;
+pub mod tufts;
 pub mod vtk;
 
 #[cfg(test)]

@@ -313,6 +313,30 @@ fn sample_colour(
     base.map(|v| (f64::from(v) * s).round().clamp(0.0, 255.0) as u8)
 }
 
+/// Which display triangle is seen at each pixel of a view (one sample per
+/// pixel), for marks drawn on the visible surface.
+pub struct Visible {
+    raster: Raster,
+    origin: (i64, i64),
+}
+
+impl Visible {
+    /// Index into the display triangles of the one seen at canvas pixel
+    /// `(x, y)`; `None` off the body or outside the view.
+    pub fn at(&self, x: i64, y: i64) -> Option<usize> {
+        let k = self.raster.at(x - self.origin.0, y - self.origin.1);
+        (k != EMPTY).then_some(k as usize)
+    }
+}
+
+/// The triangles of `view` as seen through `frame`.
+pub fn visible(tris: &[DisplayTri], view: View, frame: &Frame) -> Visible {
+    Visible {
+        raster: rasterize(tris, view, frame, 1),
+        origin: (frame.rect.0, frame.rect.1),
+    }
+}
+
 /// Extent of the triangles in a view: (min right, max right, min up, max up).
 pub fn extent(tris: &[DisplayTri], view: View) -> (f64, f64, f64, f64) {
     let (right, up, _) = view.basis();

@@ -60,10 +60,10 @@ impl Layout {
 }
 
 /// Heights of the title band and of a view label, pixels.
-const TITLE_BAND: f64 = 96.0;
+pub(crate) const TITLE_BAND: f64 = 96.0;
 const LABEL_BAND: f64 = 34.0;
 /// Width of the colour-bar column, pixels.
-const BAR_COLUMN: f64 = 230.0;
+pub(crate) const BAR_COLUMN: f64 = 230.0;
 
 /// Frames for the four views at one common scale (largest that fits all).
 pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
@@ -245,7 +245,7 @@ fn panel_paint(
 }
 
 /// One view with its label.
-fn draw_cell(
+pub(crate) fn draw_cell(
     canvas: &mut Canvas,
     tris: &[DisplayTri],
     view: View,
@@ -270,7 +270,7 @@ fn draw_cell(
 }
 
 /// Ground line, flow arrow and scale bar where they apply.
-fn decorate(
+pub(crate) fn decorate(
     canvas: &mut Canvas,
     s: &SurfaceResult<'_>,
     view: View,
@@ -344,7 +344,7 @@ fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
 }
 
 /// Title and explanatory note at the top.
-fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
+pub(crate) fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
     text::draw(canvas, title, 30.0, 44.0, &TextStyle::new(28.0).bold());
     text::draw(
         canvas,
