@@ -11,7 +11,7 @@
 //! - `wing`: `naca` (e.g. 2412), `span`, `chord`, `alpha`, `height`,
 //!   `chord_panels`, `span_panels`, `rounded_tips` (true/false)
 //! - `ahmed`: `slant`, `clearance`, `panels`, `half` (true/false)
-//! - `coupe`: `rear_window`, `windscreen`, `length`, `width`, `height`,
+//! - `coupe`: `rear_window`, `windscreen`, `cowl_blend`, `length`, `width`, `height`,
 //!   `ride_height`, `bonnet`, `roof`, `deck`, `panels`, `half`
 //!
 //! Example: `write_stl ahmed ahmed25.stl slant=25 panels=6000 half=true`.
@@ -122,6 +122,7 @@ fn coupe(o: &mut Options) -> Result<TriMesh, Box<dyn Error>> {
     let p = CoupeParams {
         rear_window_deg: take(o, "rear_window", d.rear_window_deg)?,
         windscreen_deg: take(o, "windscreen", d.windscreen_deg)?,
+        cowl_blend: take(o, "cowl_blend", d.cowl_blend)?,
         length: take(o, "length", d.length)?,
         width: take(o, "width", d.width)?,
         height: take(o, "height", d.height)?,

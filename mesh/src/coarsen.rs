@@ -2,10 +2,18 @@
 //! edge-collapse simplifier (quadric error metric: Garland & Heckbert 1997,
 //! "Surface simplification using quadric error metrics", SIGGRAPH).
 //!
-//! Vertices on a declared mirror plane and on any open border are locked,
-//! so cuts stay on their planes. The result is checked by edge matching:
+//! Vertices on an open border off the mirror planes are locked. A cut along
+//! a declared mirror plane is a border too, but its vertices are left free:
+//! the simplifier collapses a border vertex only into its neighbour along
+//! the border and never moves a vertex (it keeps one end of each collapsed
+//! edge), so the cut keeps to its plane while its edges grow with the rest
+//! of the panels. (Locked, a half model's cut kept every scan vertex, and
+//! the panels along the centre line became slivers a scan step wide and a
+//! panel long, whose noisy velocity showed as a separated strip along the
+//! centre line.) The result is checked by edge matching:
 //! every edge must be used by exactly two facets running it in opposite
-//! directions, except border edges between locked vertices, no facet may be
+//! directions, except border edges on a mirror plane or between locked
+//! vertices, no facet may be
 //! degenerate, and no facet may cross another facet of its own surface
 //! (edge collapses that fold a facet over are refused by the simplifier,
 //! but only against a 75 degree turn per collapse, so folds can build up
@@ -58,7 +66,7 @@ pub struct CoarsenReport {
     pub target_panels: usize,
     /// Panels out.
     pub achieved_panels: usize,
-    /// Vertices locked (on mirror planes or open borders).
+    /// Vertices locked (on open borders off the mirror planes).
     pub locked_vertices: usize,
     /// Largest distance from a sampled input vertex to the coarse surface, metres.
     pub max_deviation: f64,
@@ -90,7 +98,14 @@ pub fn coarsen_with_params(
     p: &CoarsenParams,
 ) -> (TriMesh, CoarsenReport) {
     let diagonal = mesh.bounds().map_or(0.0, |(lo, hi)| (hi - lo).norm());
-    let locks = locked_vertices(mesh, mirrors, p.plane_tolerance * diagonal);
+    let tol = p.plane_tolerance * diagonal;
+    let on_plane: Vec<bool> = mesh
+        .vertices
+        .iter()
+        .map(|v| mirrors.on_plane(v, tol))
+        .collect();
+    let locks = locked_vertices(mesh, &on_plane);
+    let border_ok: Vec<bool> = locks.iter().zip(&on_plane).map(|(&l, &p)| l || p).collect();
     let mut report = CoarsenReport {
         input_panels: mesh.len(),
         target_panels: p.target_panels,
@@ -112,7 +127,7 @@ pub fn coarsen_with_params(
             break;
         }
         let mut coarse = simplify(mesh, &locks, target, regularize);
-        let checked = check_closed(&coarse, &locks)
+        let checked = check_closed(&coarse, &border_ok)
             .and_then(|()| check_no_new_crossing(mesh, &coarse, &mut input_crosses));
         match checked {
             Ok(()) => {
@@ -141,19 +156,18 @@ fn attempts(p: &CoarsenParams) -> Vec<(usize, bool)> {
     vec![(t, r), (t, !r), (2 * t, r), (2 * t, !r), (4 * t, r)]
 }
 
-/// Lock vertices on a mirror plane or on an open border.
-fn locked_vertices(mesh: &TriMesh, mirrors: &Mirrors, tol: f64) -> Vec<bool> {
-    let mut locks: Vec<bool> = mesh
-        .vertices
-        .iter()
-        .map(|v| mirrors.on_plane(v, tol))
-        .collect();
+/// Lock the vertices of open borders, except those on a mirror plane.
+fn locked_vertices(mesh: &TriMesh, on_plane: &[bool]) -> Vec<bool> {
+    let mut locks = vec![false; mesh.vertices.len()];
     let uses = sorted_edge_uses(&mesh.triangles);
     for group in edge_groups(&uses) {
         if group.len() != 2 {
             let (a, b) = group[0].ends();
-            locks[a as usize] = true;
-            locks[b as usize] = true;
+            let cut = on_plane[a as usize] && on_plane[b as usize];
+            if !cut {
+                locks[a as usize] = true;
+                locks[b as usize] = true;
+            }
         }
     }
     locks
@@ -166,7 +180,7 @@ fn simplify(mesh: &TriMesh, locks: &[bool], target: usize, regularize: bool) -> 
         .map(|v| [v.x as f32, v.y as f32, v.z as f32])
         .collect();
     let indices: Vec<u32> = mesh.triangles.iter().flatten().copied().collect();
-    let mut options = SimplifyOptions::LockBorder;
+    let mut options = SimplifyOptions::None;
     if regularize {
         options |= SimplifyOptions::Regularize;
     }
@@ -186,9 +200,9 @@ fn simplify(mesh: &TriMesh, locks: &[bool], target: usize, regularize: bool) -> 
 }
 
 /// Edge matching and non-degeneracy, in the input's vertex numbering: a
-/// border edge is allowed only between two locked vertices (a mirror cut or
-/// a border the input already had).
-fn check_closed(coarse: &TriMesh, locks: &[bool]) -> Result<(), String> {
+/// border edge is allowed only between two vertices of `border_ok` (on a
+/// mirror cut or locked on a border the input already had).
+fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
     if coarse.is_empty() {
         return Err("nothing left".to_string());
     }
@@ -201,7 +215,7 @@ fn check_closed(coarse: &TriMesh, locks: &[bool]) -> Result<(), String> {
             [a, b] if a.forward != b.forward => {}
             [u] if {
                 let (a, b) = u.ends();
-                locks[a as usize] && locks[b as usize]
+                border_ok[a as usize] && border_ok[b as usize]
             } => {}
             _ => {
                 let (a, b) = group[0].ends();

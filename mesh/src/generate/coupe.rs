@@ -25,6 +25,9 @@ pub struct CoupeParams {
     pub bonnet_length: f64,
     /// Windscreen angle from the horizontal.
     pub windscreen_deg: f64,
+    /// Half-length of the rounding between bonnet and windscreen (the
+    /// cowl), m; small values give the sharp junction of a wiper cowl.
+    pub cowl_blend: f64,
     /// Length of the flat part of the roof (between the blends' corners).
     pub roof_length: f64,
     /// Rear-window slope from the horizontal. The window pivots about the
@@ -56,6 +59,7 @@ impl Default for CoupeParams {
             ride_height: 0.12,
             bonnet_length: 1.30,
             windscreen_deg: 27.0,
+            cowl_blend: BLENDS[0],
             roof_length: 1.10,
             rear_window_deg: 25.0,
             boot_deck_length: 0.45,
@@ -85,8 +89,9 @@ const EXPONENTS: [f64; 3] = [4.0, 2.0, 4.0];
 /// above the shoulder), round over the cabin for the tumblehome (the
 /// second value, from the second fraction up), blended in between.
 const UPPER: [f64; 4] = [4.0, 2.2, 0.25, 0.6];
-/// Half-lengths of the parabolic blends at the cowl, the top of the
-/// windscreen, the rear of the roof and the foot of the rear window.
+/// Half-lengths of the parabolic blends at the cowl (the default of
+/// [`CoupeParams::cowl_blend`]), the top of the windscreen, the rear of the
+/// roof and the foot of the rear window.
 const BLENDS: [f64; 4] = [0.15, 0.25, 0.15, 0.10];
 /// Underbody: rise at the nose and the default rise at the tail, and the
 /// lengths over which they rise.
@@ -208,6 +213,7 @@ impl Body {
             ("roof_length", p.roof_length),
             ("nose_length", p.nose_length),
             ("tail_length", p.tail_length),
+            ("cowl_blend", p.cowl_blend),
         ] {
             positive(name, v)?;
         }
@@ -264,7 +270,7 @@ impl Body {
         };
         let room = UNDERBODY[2] + UNDERBODY[3] + 0.6 < l;
         require("length", l, room, "too short for the underbody")?;
-        let nose = p.nose_length < p.bonnet_length - BLENDS[0];
+        let nose = p.nose_length < p.bonnet_length - p.cowl_blend;
         let why = "the nose rounding reaches the windscreen";
         require("nose_length", p.nose_length, nose, why)?;
         Ok(Self {
@@ -291,9 +297,10 @@ fn top_profile(p: &CoupeParams, tail_shoulder: f64) -> Result<Profile, MeshError
     let x_deck = p.length - p.tail_length - p.boot_deck_length;
     let deck = h - (x_deck - x_roof_end) * p.rear_window_deg.to_radians().tan();
     let xs = [0.0, x_cowl, x_screen_top, x_roof_end, x_deck, p.length];
+    let blends = [p.cowl_blend, BLENDS[1], BLENDS[2], BLENDS[3]];
     for k in 1..5 {
-        let left = if k == 1 { 0.0 } else { BLENDS[k - 2] };
-        let needed = left + BLENDS[k - 1];
+        let left = if k == 1 { 0.0 } else { blends[k - 2] };
+        let needed = left + blends[k - 1];
         let fits = xs[k] - xs[k - 1] > needed;
         require(
             "length",
@@ -324,7 +331,7 @@ fn top_profile(p: &CoupeParams, tail_shoulder: f64) -> Result<Profile, MeshError
             (x_deck, deck),
             (p.length, deck),
         ],
-        blends: BLENDS.to_vec(),
+        blends: blends.to_vec(),
     })
 }
 
