@@ -7,7 +7,7 @@
 //! revolution (spreading `r'/r`, Mangler) and a 3D surface streamline
 //! (spreading = surface divergence of the unit flow direction).
 
-use super::{BoundaryLayerParams, FlowState, Transition, head, michel, thwaites};
+use super::{BoundaryLayerParams, FlowState, REATTACHMENT_H, Transition, head, michel, thwaites};
 
 /// The edge flow at one station of the line.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -25,6 +25,12 @@ pub struct LineSample {
     /// True when the flow leaves the surface at this station regardless of
     /// the boundary layer (a bluff base edge).
     pub forced_separation: bool,
+    /// Concave turning of the surface into the stream along the line up to
+    /// this station, radians (the sum of the angles of the concave edges
+    /// crossed onto surfaces facing upstream; zero on a 2D section). A
+    /// turbulent separation bubble closes only over such a turn (see
+    /// [`march_line`]).
+    pub concave_turn: f64,
 }
 
 /// How the line starts.
@@ -77,10 +83,28 @@ pub struct LineMarch {
 
 /// The march as it goes.
 enum Phase {
-    Laminar { accumulated: f64 },
+    Laminar {
+        accumulated: f64,
+    },
     Turbulent(head::HeadState),
+    /// Inside a turbulent separation bubble that reattaches at station
+    /// `until`, holding the state at its separation point.
+    Bubble {
+        until: usize,
+        held: LineState,
+    },
     Separated(LineState),
 }
+
+/// Least concave turning of the surface (radians; 10 degrees, our choice)
+/// between a turbulent separation and the station where the edge speed has
+/// recovered for the separation to count as a bubble in a concave corner.
+pub const BUBBLE_CONCAVE_TURN: f64 = 10.0 * std::f64::consts::PI / 180.0;
+
+/// Share by which the edge speed must exceed its value at a turbulent
+/// separation for the bubble to close (so that ripples of the interpolated
+/// speed do not count; our choice).
+const REATTACH_SPEED_MARGIN: f64 = 0.01;
 
 /// March the boundary layer along `samples` (Thwaites 1949, Michel 1951,
 /// Head 1958, Ludwieg & Tillmann 1949; spreading by Rott & Crabtree 1952).
@@ -89,8 +113,19 @@ enum Phase {
 /// separation ahead of transition is taken as transition through a short
 /// bubble (common practice); at transition `theta` is continuous and `H`
 /// restarts at `params.turbulent_start_h` (common practice). Turbulent
-/// separation when `H >= params.separation_h`. Once separated, every later
-/// station is separated and holds the thicknesses of the separation point.
+/// separation when `H >= params.separation_h`, unless the edge speed
+/// regains its value at separation (plus 1 %) within
+/// `params.reattach_thicknesses` boundary-layer thicknesses `theta (H1 +
+/// H)` (Head's `H1`), the surface turns concave into the stream by at
+/// least [`BUBBLE_CONCAVE_TURN`] within the first half of that distance and
+/// no bluff edge lies between: that is a short bubble in a concave corner
+/// (the foot of a windscreen, whose flow speeds up again along the
+/// screen), whose stations keep the separation
+/// point's thicknesses with no skin friction and risk 1, still counted
+/// attached, and at whose end the layer goes on from `H` =
+/// [`REATTACHMENT_H`] with `theta` held (our rule; see the setting). Once
+/// separated for good, every later station is separated and holds the
+/// thicknesses of the separation point.
 pub fn march_line(
     samples: &[LineSample],
     start: &LineStart,
@@ -143,6 +178,19 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
     if let Phase::Separated(held) = phase {
         return *held;
     }
+    if let Phase::Bubble { until, held } = *phase
+        && !sample.forced_separation
+    {
+        if ctx.i < until {
+            return held;
+        }
+        let theta = held
+            .theta
+            .max(head::MIN_RE_THETA * ctx.params.nu / sample.speed.max(1e-12));
+        let hs = head::HeadState::new(theta, REATTACHMENT_H);
+        *phase = Phase::Turbulent(hs);
+        return turbulent_state(&hs, sample.speed, ctx.params);
+    }
     if sample.forced_separation {
         let prev = out.states.last().copied();
         return separate(phase, out, ctx.i, prev, theta0, ctx.params);
@@ -169,9 +217,22 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
             }
             turbulent_state(hs, sample.speed, ctx.params)
         }
-        Phase::Separated(held) => *held,
+        Phase::Bubble { held, .. } | Phase::Separated(held) => *held,
     };
     let finite = state.theta.is_finite() && state.h.is_finite();
+    if state.state == FlowState::Turbulent
+        && finite
+        && state.h >= ctx.params.separation_h
+        && let Some(until) = bubble_end(ctx, &state)
+    {
+        let held = LineState {
+            cf: 0.0,
+            risk: 1.0,
+            ..state
+        };
+        *phase = Phase::Bubble { until, held };
+        return held;
+    }
     if state.state == FlowState::Turbulent && (!finite || state.h >= ctx.params.separation_h) {
         // A march that ran out of range (edge speed near zero) counts as
         // separated, holding the last finite state.
@@ -183,6 +244,38 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
         return separate(phase, out, ctx.i, last, theta0, ctx.params);
     }
     state
+}
+
+/// The station where a turbulent separation at `ctx.i` (layer `state`)
+/// reattaches: the first at which the edge speed exceeds the separation
+/// point's by [`REATTACH_SPEED_MARGIN`], if that comes within
+/// `params.reattach_thicknesses` thicknesses `theta (H1 + H)` and before
+/// any bluff edge, with the surface turning concave by at least
+/// [`BUBBLE_CONCAVE_TURN`] within the first half of that distance.
+fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
+    let here = ctx.samples[ctx.i];
+    let thickness = state.theta * (head::h1_of_h(state.h) + state.h);
+    let reach = ctx.params.reattach_thicknesses * thickness;
+    let target = here.speed * (1.0 + REATTACH_SPEED_MARGIN);
+    let mut corner = false;
+    for (j, sample) in ctx.samples.iter().enumerate().skip(ctx.i + 1) {
+        let run = sample.s - here.s;
+        if run > reach || sample.forced_separation {
+            return None;
+        }
+        if sample.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN {
+            corner = true;
+        } else if run > 0.5 * reach {
+            // The corner must come within the first half of the reach: a
+            // layer that left a long slope well ahead of its foot did not
+            // separate because of the corner.
+            return None;
+        }
+        if sample.speed > target {
+            return corner.then_some(j);
+        }
+    }
+    None
 }
 
 /// What a laminar station leads to.

@@ -85,6 +85,15 @@ pub struct BoundaryLayerParams {
     /// remnant of the edge's mesh-dependent suction peak reaches the march
     /// (DEVELOPERS.md).
     pub edge_window_thicknesses: f64,
+    /// Longest turbulent separation bubble, in boundary-layer thicknesses
+    /// at its separation point: a turbulent separation after which the
+    /// edge speed regains its value at separation within this distance (the
+    /// flow into a concave corner such as the foot of a windscreen, which
+    /// speeds up again along the screen) reattaches there, and the layer
+    /// marches on from `H` = [`REATTACHMENT_H`] with `theta` held through
+    /// the bubble. Default 10 (our choice); 0 makes every turbulent
+    /// separation final.
+    pub reattach_thicknesses: f64,
     /// Streamline seeds round each attachment point; 0 chooses
     /// `2 sqrt(panels)`, clamped to 32..=1024.
     pub seeds_per_attachment: usize,
@@ -116,6 +125,7 @@ impl Default for BoundaryLayerParams {
             base_edge_turn_deg: 50.0,
             sharp_edge_deg: 20.0,
             edge_window_thicknesses: 2.0,
+            reattach_thicknesses: 10.0,
             seeds_per_attachment: 0,
             attachment_speed_fraction: 0.3,
             stop_speed_fraction: 0.02,
@@ -162,12 +172,21 @@ impl BoundaryLayerParams {
         if !(w.is_finite() && w >= 0.0) {
             return bad("edge_window_thicknesses", w);
         }
+        let r = self.reattach_thicknesses;
+        if !(r.is_finite() && r >= 0.0) {
+            return bad("reattach_thicknesses", r);
+        }
         if !(self.attachment_speed_fraction > 0.0 && self.stop_speed_fraction >= 0.0) {
             return bad("attachment_speed_fraction", self.attachment_speed_fraction);
         }
         Ok(())
     }
 }
+
+/// Shape factor of a turbulent layer just behind the reattachment of a
+/// separation bubble: about 2, relaxing towards flat-plate values over tens
+/// of thicknesses (Bradshaw & Wong, J. Fluid Mech. 52, 1972; from memory).
+pub const REATTACHMENT_H: f64 = 2.0;
 
 /// The state of the boundary layer on a panel.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -7,7 +7,9 @@
 //!
 //! - **Bluff edges.** Where a streamline crosses a sharp convex edge and the
 //!   flow direction turns down round it by more than
-//!   `params.base_edge_turn_deg` (a bluff base edge), the flow is taken to
+//!   `params.base_edge_turn_deg` (a bluff base edge; not from a surface
+//!   facing upstream, the rim of a flat nose, round which the flow
+//!   reattaches), the flow is taken to
 //!   leave the surface at the edge: the line separates at the crossing
 //!   whatever the boundary layer says, is traced on, and every panel
 //!   downstream along it is separated; its plateau pressure is that of the
@@ -39,6 +41,10 @@
 //!   couple of thicknesses (a factor 2, the default, is our choice; 0
 //!   keeps the window of panels, see the setting's doc). Edges the flow runs
 //!   along are left alone.
+//! - **Short bubbles.** A turbulent separation in a concave corner facing
+//!   the stream (the foot of a windscreen) closes again when the edge speed
+//!   recovers within a few thicknesses; see [`march::march_line`] and
+//!   `params.reattach_thicknesses`.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -422,6 +428,7 @@ impl<'a> LineContext<'a> {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
+        let concave = self.concave_turns(trace);
         let mut out = Vec::with_capacity(n + 1);
         let mut segments = Vec::with_capacity(n + 1);
         let mut seg = 0;
@@ -446,6 +453,7 @@ impl<'a> LineContext<'a> {
                 spreading: self.field.spreading[panel as usize],
                 body_fraction: self.body_fraction(&p),
                 forced_separation: forced_here,
+                concave_turn: concave[seg],
             });
             segments.push(seg);
         }
@@ -457,8 +465,40 @@ impl<'a> LineContext<'a> {
         ((p.coords.dot(&self.flow_dir) - lo) / (hi - lo).max(1e-300)).clamp(0.0, 1.0)
     }
 
+    /// Concave turning of the surface into the stream (radians) from the
+    /// start of the line to each segment: the angle between the panels'
+    /// normals at every crossing onto a panel whose centroid lies above the
+    /// previous panel's plane and which faces upstream by at least
+    /// [`march::BUBBLE_CONCAVE_TURN`] (the foot of a windscreen, the face
+    /// of a step: the stream is pushed back onto the surface there; at the
+    /// foot of a rear window the boot deck faces up, not into the stream).
+    fn concave_turns(&self, trace: &Trace) -> Vec<f64> {
+        let facing = -march::BUBBLE_CONCAVE_TURN.sin();
+        let mut acc = 0.0;
+        let mut out = Vec::with_capacity(trace.panels.len());
+        for (j, &b) in trace.panels.iter().enumerate() {
+            if let Some(&a) = j.checked_sub(1).and_then(|i| trace.panels.get(i))
+                && a != b
+            {
+                let (pa, pb) = (&self.mesh.panels[a as usize], &self.mesh.panels[b as usize]);
+                if pa.normal.dot(&(pb.centroid - pa.centroid)) > 0.0
+                    && pb.normal.dot(&self.flow_dir) <= facing
+                {
+                    acc += pa.normal.dot(&pb.normal).clamp(-1.0, 1.0).acos();
+                }
+            }
+            out.push(acc);
+        }
+        out
+    }
+
     /// Segment indices `j` (the crossing into segment `j`) where the flow
-    /// turns down round a convex edge by more than the bluff-edge limit.
+    /// turns down round a convex edge by more than the bluff-edge limit,
+    /// except from a surface that faces upstream (its normal within 60
+    /// degrees of the oncoming flow): round such a front edge (the rim of
+    /// a flat nose) the flow reattaches behind a small bubble (common
+    /// practice), so the layer goes on, the edge's suction peak
+    /// interpolated out.
     fn bluff_crossings(&self, trace: &Trace) -> Vec<usize> {
         let limit = self.params.base_edge_turn_deg.to_radians();
         (1..trace.panels.len())
@@ -467,7 +507,9 @@ impl<'a> LineContext<'a> {
                 let (da, db) = (self.field.direction[a], self.field.direction[b]);
                 let na = self.mesh.panels[a].normal.into_inner();
                 let turn = (-db.dot(&na)).atan2(db.dot(&da));
-                a != b && turn > limit
+                let front =
+                    self.mesh.panels[a].normal.dot(&self.flow_dir) <= -coverage::LEEWARD_COS;
+                a != b && turn > limit && !front
             })
             .collect()
     }
