@@ -286,8 +286,10 @@ pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> 
 pub const NEGATIVE_DRAG_COUNTS: f64 = 20.0;
 
 /// Refuse numbers no flow gives: skin friction pulling the body upstream
-/// (the surface flow runs downstream wherever it is attached) or a drag
-/// estimate more than [`NEGATIVE_DRAG_COUNTS`] below zero. A folded or
+/// (the surface flow runs downstream wherever it is attached), or a drag
+/// estimate or an attached-flow drag (`attached`, pressure only; zero by
+/// d'Alembert's paradox but for discretisation) more than
+/// [`NEGATIVE_DRAG_COUNTS`] below zero. A folded or
 /// self-crossing panel mesh is the usual cause; the message says where to
 /// look rather than report the numbers.
 ///
@@ -295,21 +297,26 @@ pub const NEGATIVE_DRAG_COUNTS: f64 = 20.0;
 /// One sentence with the friction, the drag and the fastest surface speed.
 pub fn check_physical(
     estimate: &loads::Loads,
+    attached: &loads::Loads,
     velocity: &[Vector3<f64>],
     speed: f64,
 ) -> Result<()> {
     let friction = estimate.friction.coefficients.drag;
     let drag = estimate.total.coefficients.drag;
-    if friction >= 0.0 && drag >= -NEGATIVE_DRAG_COUNTS / 1000.0 {
+    let attached_drag = attached.total.coefficients.drag;
+    let floor = -NEGATIVE_DRAG_COUNTS / 1000.0;
+    if friction >= 0.0 && drag >= floor && attached_drag >= floor {
         return Ok(());
     }
     let fastest = velocity.iter().map(|v| v.norm()).fold(0.0, f64::max) / speed;
     bail!(
-        "the flow solution is not physical (friction drag {:.0} counts, drag {:.0} counts, fastest surface flow \
-         {fastest:.1} times the free stream): the panel mesh is probably folded or crosses itself; tuft check \
-         reports its quality, and another geometry.panels or a repaired STL may give a sound one",
+        "the flow solution is not physical (friction drag {:.0} counts, drag {:.0} counts, attached-flow drag \
+         {:.0} counts, fastest surface flow {fastest:.1} times the free stream): the panel mesh is probably \
+         folded or crosses itself; tuft check reports its quality, and another geometry.panels or a repaired \
+         STL may give a sound one",
         1000.0 * friction,
-        1000.0 * drag
+        1000.0 * drag,
+        1000.0 * attached_drag
     )
 }
 
@@ -473,7 +480,7 @@ fn finish(
     let friction = friction_vectors(&potential.velocity, &layer, flow.speed);
     let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water_run);
     let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
-    check_physical(&estimate, &potential.velocity, flow.speed)?;
+    check_physical(&estimate, &attached, &potential.velocity, flow.speed)?;
     // The loop's summary needs its attached pass; done here so that pass
     // (with its streamlines) is freed before the sensitivity passes.
     let wakes = match wake_loop {
@@ -771,12 +778,17 @@ mod tests {
             loads::integrate_loads(&mesh, &cps, Some(&friction), &reference, &air).unwrap()
         };
         let v = vec![Vector3::new(10.0, 0.0, 0.0); mesh.len()];
-        assert!(check_physical(&loads_with(0.0, 1e-3), &v, 10.0).is_ok());
-        let e = check_physical(&loads_with(0.0, -1e-3), &v, 10.0).unwrap_err();
+        let calm = loads_with(0.0, 0.0);
+        assert!(check_physical(&loads_with(0.0, 1e-3), &calm, &v, 10.0).is_ok());
+        let e = check_physical(&loads_with(0.0, -1e-3), &calm, &v, 10.0).unwrap_err();
         assert!(e.to_string().contains("not physical"), "{e}");
         // Cp +0.5 on the rear half, -0.5 on the front: a thrust.
-        assert!(check_physical(&loads_with(0.5, 0.0), &v, 10.0).is_err());
-        assert!(check_physical(&loads_with(0.001, 0.0), &v, 10.0).is_ok());
+        assert!(check_physical(&loads_with(0.5, 0.0), &calm, &v, 10.0).is_err());
+        assert!(check_physical(&loads_with(0.001, 0.0), &calm, &v, 10.0).is_ok());
+        // A sound estimate over an attached flow that pushes the body
+        // upstream (d'Alembert: attached potential flow has no drag).
+        let e = check_physical(&loads_with(0.001, 1e-3), &loads_with(0.5, 0.0), &v, 10.0);
+        assert!(e.unwrap_err().to_string().contains("attached-flow drag"));
     }
 
     /// A ground a body length or more below a 1 m sphere is warned about
