@@ -1,4 +1,5 @@
-//! `tuft check FILE.stl`: read, repair and report on a surface mesh.
+//! `tuft check FILE.stl` (or a case file): read, repair and report on a
+//! surface mesh.
 //!
 //! Prints what was read, what each repair pass changed, the boundary loops,
 //! the coarsening, the panel quality and a suggested panel count. Exit 0
@@ -16,7 +17,9 @@ use tuft_mesh::{LengthUnit, Mirrors};
 /// Arguments of `tuft check`.
 #[derive(clap::Args)]
 pub struct CheckArgs {
-    /// The STL file (binary or ASCII).
+    /// The STL file (binary or ASCII), or a case file (`.toml`): its STL
+    /// with its units, half model, ground and panel count, as a run would
+    /// read them (the flags below are then not used).
     pub file: PathBuf,
     /// Length unit of the file: m, cm, mm or in.
     #[arg(long, default_value = "mm")]
@@ -37,15 +40,49 @@ pub struct CheckArgs {
 
 /// Run `tuft check`.
 pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
-    let params = settings(args)?;
-    let (_, report) =
-        prepare(&args.file, &params).with_context(|| args.file.display().to_string())?;
+    let is_case = args
+        .file
+        .extension()
+        .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
+    let (file, params) = if is_case {
+        from_case(&args.file)?
+    } else {
+        (args.file.clone(), settings(args)?)
+    };
+    let (_, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
     if args.json {
         println!("{}", serde_json::to_string_pretty(&report)?);
     } else {
-        print!("{}", summary(&args.file.display().to_string(), &report));
+        if is_case {
+            println!(
+                "case       {}: its STL as the run reads it",
+                args.file.display()
+            );
+        }
+        print!("{}", summary(&file.display().to_string(), &report));
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// The STL and settings a case file gives a run.
+fn from_case(path: &std::path::Path) -> anyhow::Result<(PathBuf, PrepareParams)> {
+    let case = crate::case::Case::load(path)?;
+    let crate::case::GeometrySource::Stl { path: stl, unit } = &case.source else {
+        anyhow::bail!(
+            "{}: the case uses a built-in shape, not an STL; tuft check reads STL files",
+            path.display()
+        );
+    };
+    let params = PrepareParams {
+        units: *unit,
+        mirrors: Mirrors {
+            ground: case.file.ground.as_ref().map(|g| g.z),
+            symmetry: case.file.geometry.half_model,
+        },
+        target_panels: case.file.geometry.panels,
+        ..PrepareParams::default()
+    };
+    Ok((stl.clone(), params))
 }
 
 /// Checked settings from the raw flags.
@@ -209,7 +246,7 @@ fn panel_lines(r: &PrepareReport) -> String {
                 c.samples
             );
             if let Some(f) = &c.fallback {
-                s += &format!("           fallback: {f}\n");
+                s += &format!("           {f}\n");
             }
             s
         }

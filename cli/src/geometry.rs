@@ -169,8 +169,9 @@ fn check_ground(mesh: &PanelMesh, case: &Case) -> Result<()> {
 /// Smallest and largest body (its largest extent, m) a run accepts: below
 /// and above them the STL's unit was almost surely misread (a car in metres
 /// read as millimetres is 4.5 mm long; in millimetres read as metres,
-/// 4.5 km).
-pub const BODY_SIZE_LIMITS: [f64; 2] = [0.05, 100.0];
+/// 4.5 km; as centimetres, 45 m). The longest road vehicles are about 25 m
+/// (common practice), models for a tunnel a few centimetres.
+pub const BODY_SIZE_LIMITS: [f64; 2] = [0.05, 30.0];
 
 /// Refuse a body whose size says the length unit was misread.
 fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {

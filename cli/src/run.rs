@@ -103,12 +103,25 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
     let mut progress = Progress::new(options.quiet, &case.name);
     let phase = progress.begin("geometry", "reading and preparing the geometry");
     let geo = geometry::load(case)?;
-    progress.end(phase, &format!("{} panels", geo.mesh.len()));
+    progress.end(phase, &panels_note(&geo));
     let computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
     let summary = write::write_all(case, &geo, &computed, &staging, &mut progress)
         .with_context(|| format!("writing results for {}", out.display()))?;
     staging.commit()?;
     Ok(summary)
+}
+
+/// The geometry phase's closing words: the panel count, and why it is not
+/// the one asked for when coarsening had to settle for more.
+fn panels_note(geo: &geometry::Geometry) -> String {
+    let panels = geo.mesh.len();
+    let coarsen = geo.report.coarsen.as_ref();
+    match coarsen.and_then(|c| c.fallback.as_ref().map(|f| (c.target_panels, f))) {
+        Some((target, why)) if panels > target + target / 5 => {
+            format!("{panels} panels instead of {target} ({why})")
+        }
+        _ => format!("{panels} panels"),
+    }
 }
 
 fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {

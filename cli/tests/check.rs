@@ -137,3 +137,25 @@ fn check_half_model_needs_the_symmetry_flag() {
     );
     assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
 }
+
+/// A case file is checked as the run reads its STL: the committed coupe
+/// case gives its unit and ground; a case of a built-in shape is refused
+/// in one sentence naming the file.
+#[test]
+fn check_reads_a_case_files_stl_as_the_run_does() {
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let out = check(&[cases.join("coupe.toml").to_str().unwrap()]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    assert!(stdout.starts_with("case       "), "{stdout}");
+    assert!(stdout.contains("unit mm"), "{stdout}");
+    assert!(stdout.contains("ground plane: z = 0 m"), "{stdout}");
+    let out = check(&[cases.join("ahmed-25.toml").to_str().unwrap()]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("ahmed-25.toml") && stderr.contains("built-in shape"),
+        "{stderr}"
+    );
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+}

@@ -135,11 +135,14 @@ pub fn coarsen_with_params(
                 result = Some(coarse);
                 break;
             }
-            Err(why) => notes.push(format!("{target} panels (regularize {regularize}): {why}")),
+            Err(why) => {
+                let how = if regularize { ", even triangles" } else { "" };
+                notes.push(format!("a try at {target} panels{how} was refused: {why}"));
+            }
         }
     }
     let out = result.unwrap_or_else(|| {
-        notes.push("kept the repaired mesh".to_string());
+        notes.push("the repaired mesh was kept uncoarsened".to_string());
         mesh.clone()
     });
     report.fallback = (!notes.is_empty()).then(|| notes.join("; "));
@@ -207,7 +210,7 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
         return Err("nothing left".to_string());
     }
     if let Some(t) = (0..coarse.len()).find(|&t| Panel::new(coarse.corners(t)).is_none()) {
-        return Err(format!("facet {t} is degenerate"));
+        return Err(format!("its facet {t} collapsed to a line"));
     }
     let uses = sorted_edge_uses(&coarse.triangles);
     for group in edge_groups(&uses) {
@@ -218,11 +221,11 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
                 border_ok[a as usize] && border_ok[b as usize]
             } => {}
             _ => {
-                let (a, b) = group[0].ends();
-                return Err(format!(
-                    "edge {a}-{b} is used by {} facets or misoriented",
-                    group.len()
-                ));
+                return Err(if group.len() == 2 {
+                    "two neighbouring facets face opposite ways".to_string()
+                } else {
+                    format!("an edge is shared by {} facets", group.len())
+                });
             }
         }
     }
@@ -246,7 +249,7 @@ fn check_no_new_crossing(
         return Ok(());
     }
     Err(format!(
-        "facets {} and {} cross: the coarse surface passes through itself",
+        "its facets {} and {} cross (the coarse surface passes through itself)",
         c.facet, c.other
     ))
 }
