@@ -347,6 +347,24 @@ pub fn centreline_cp_plot(
     )
 }
 
+/// Lowest Cp the centre-line plot's axis shows: a single panel at a sharp
+/// edge or a sliver can read -40 in attached flow and would squash the
+/// rest of the curve onto one line (our choice; suction peaks on smooth car
+/// shapes stay above about -3, common practice).
+pub const CP_AXIS_FLOOR: f64 = -4.0;
+
+/// Clamp the points below [`CP_AXIS_FLOOR`] to it; how many there were and
+/// the lowest value, if any.
+fn clip_suction(points: &mut [(f64, f64)]) -> Option<(usize, f64)> {
+    let mut out: Option<(usize, f64)> = None;
+    for p in points.iter_mut().filter(|p| p.1 < CP_AXIS_FLOOR) {
+        let (n, lowest) = out.unwrap_or((0, f64::INFINITY));
+        out = Some((n + 1, lowest.min(p.1)));
+        p.1 = CP_AXIS_FLOOR;
+    }
+    out
+}
+
 /// [`centreline_cp_plot`] with explicit band and size.
 ///
 /// # Errors
@@ -358,7 +376,15 @@ pub fn centreline_cp_plot_with_params(
     plot_params: &PlotParams,
 ) -> Result<(Canvas, PlotFrame), OutputError> {
     s.validate()?;
-    let Centreline { y, upper, lower } = centreline_cp(s, params);
+    let Centreline {
+        y,
+        mut upper,
+        mut lower,
+    } = centreline_cp(s, params);
+    let clipped = match (clip_suction(&mut upper), clip_suction(&mut lower)) {
+        (Some(a), Some(b)) => Some((a.0 + b.0, a.1.min(b.1))),
+        (a, b) => a.or(b),
+    };
     let plane = if s.mesh.mirrors.symmetry {
         "the symmetry plane y = 0".to_owned()
     } else {
@@ -367,11 +393,17 @@ pub fn centreline_cp_plot_with_params(
             super::short_number(y)
         )
     };
-    let none = if upper.is_empty() && lower.is_empty() {
-        " No panel lies on this plane."
+    let mut none = if upper.is_empty() && lower.is_empty() {
+        " No panel lies on this plane.".to_owned()
     } else {
-        ""
+        String::new()
     };
+    if let Some((n, lowest)) = clipped {
+        none += &format!(
+            " {n} panels below Cp {CP_AXIS_FLOOR} (down to {}) drawn at {CP_AXIS_FLOOR}: a sharp edge or a poor panel.",
+            super::short_number((lowest * 10.0).round() / 10.0)
+        );
+    }
     let plot = LinePlot {
         title: caption.title("Centre-line pressure"),
         subtitle: format!(
@@ -449,6 +481,33 @@ mod tests {
         // The lower surface, drawn wider underneath, shows beside it.
         let lower = (-8..=8).any(|dy| img.pixel(px as i64, py as i64 + dy) == SERIES_COLOURS[1]);
         assert!(lower);
+    }
+
+    /// One panel at Cp -41 (a sliver at a sharp edge) no longer sets the
+    /// axis: Lamb's curve keeps its height and the note says what was cut.
+    #[test]
+    fn a_single_suction_spike_does_not_squash_the_curve() {
+        let mut f = Fixture::sphere(3);
+        let (_, calm) = centreline_cp_plot(&f.surface(), &caption()).unwrap();
+        let spike = (0..f.mesh.len())
+            .find(|&t| {
+                let c = f.mesh.panels[t].centroid;
+                c.y.abs() < 0.05 && c.z > 0.5
+            })
+            .unwrap();
+        f.cp[spike] = -41.0;
+        let (_, frame) = centreline_cp_plot(&f.surface(), &caption()).unwrap();
+        let lowest_shown = |f: &PlotFrame| f.y_range.0.min(f.y_range.1);
+        assert!(lowest_shown(&frame) >= CP_AXIS_FLOOR - 1.0, "{:?}", frame.y_range);
+        assert!(lowest_shown(&frame) < lowest_shown(&calm));
+        let c = centreline_cp(&f.surface(), &CentrelineParams::default());
+        let (n, lowest) = {
+            let (mut u, mut l) = (c.upper, c.lower);
+            let a = clip_suction(&mut u).unwrap_or((0, 0.0));
+            let b = clip_suction(&mut l).unwrap_or((0, 0.0));
+            (a.0 + b.0, a.1.min(b.1))
+        };
+        assert_eq!((n, lowest), (1, -41.0));
     }
 
     #[test]
