@@ -205,7 +205,12 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     if !args.quiet {
         print_comparison(&cmp, &out);
     }
-    Ok(ExitCode::SUCCESS)
+    // Notes say what makes the two hard to compare: warnings to read.
+    Ok(if cmp.notes.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(1)
+    })
 }
 
 fn default_out(a: &ResultFolder, b: &ResultFolder) -> PathBuf {

@@ -587,7 +587,15 @@ fn report(
             s.reynolds_number,
             "-",
         ),
-        NumberRow::text("Panels", &s.mesh.panels.to_string(), "-"),
+        NumberRow::text(
+            "Panels",
+            &if s.mesh.symmetry_plane {
+                format!("{} (half model, mirrored in y = 0)", s.mesh.panels)
+            } else {
+                s.mesh.panels.to_string()
+            },
+            "-",
+        ),
     ]);
     let summary = format!(
         "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear); \
@@ -612,10 +620,15 @@ fn report(
              variants are more trustworthy. Differences of a few drag counts are within the noise of any \
              simulation (common practice).",
             s.mesh.panels,
-            if s.mesh.ground_z.is_some() {
-                " with the ground plane as a mirror image"
-            } else {
-                " in free air"
+            match (s.mesh.ground_z.is_some(), s.mesh.symmetry_plane) {
+                (true, true) =>
+                    " of a half model, mirrored in the symmetry plane y = 0 and with the ground \
+                                 plane as a mirror image (forces, areas and kg are for the whole body)",
+                (false, true) =>
+                    " of a half model, mirrored in the symmetry plane y = 0, in free air \
+                                  (forces, areas and kg are for the whole body)",
+                (true, false) => " with the ground plane as a mirror image",
+                (false, false) => " in free air",
             },
             match case.transition {
                 crate::case::TransitionMode::Free => "Michel's free".to_string(),

@@ -32,12 +32,20 @@ fn run_case(dir: &Path, name: &str, body: &str) -> String {
     out.to_string_lossy().into_owned()
 }
 
+/// Compare `a` and `b` into `out`; exit 1 exactly when the comparison
+/// has notes (warnings to read, as the README's exit codes say).
 fn compare(a: &str, b: &str, out: &Path) -> Value {
-    tuft(&["compare", a, b, "--out", out.to_str().unwrap(), "--quiet"]);
+    let code = tuft(&["compare", a, b, "--out", out.to_str().unwrap(), "--quiet"])
+        .status
+        .code();
     for f in ["compare.html", "delta-cp.png", "separation-change.png"] {
         assert!(out.join(f).is_file(), "{f}");
     }
-    serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap()
+    let v: Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap();
+    let noted = v["notes"].as_array().is_some_and(|n| !n.is_empty());
+    assert_eq!(code, Some(if noted { 1 } else { 0 }), "{}", v["notes"]);
+    v
 }
 
 fn num(v: &Value, path: &str) -> f64 {

@@ -498,7 +498,11 @@ mod tests {
         f.cp[spike] = -41.0;
         let (_, frame) = centreline_cp_plot(&f.surface(), &caption()).unwrap();
         let lowest_shown = |f: &PlotFrame| f.y_range.0.min(f.y_range.1);
-        assert!(lowest_shown(&frame) >= CP_AXIS_FLOOR - 1.0, "{:?}", frame.y_range);
+        assert!(
+            lowest_shown(&frame) >= CP_AXIS_FLOOR - 1.0,
+            "{:?}",
+            frame.y_range
+        );
         assert!(lowest_shown(&frame) < lowest_shown(&calm));
         let c = centreline_cp(&f.surface(), &CentrelineParams::default());
         let (n, lowest) = {
