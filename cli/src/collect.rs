@@ -599,8 +599,8 @@ fn separation_spread(c: &[Row]) -> Option<String> {
     let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
         "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants, and \
-         the separated surface projected along the stream (front- and rear-facing parts counted separately) \
-         covers {flo:.1} % to {fhi:.1} % of the reference area: {}.",
+         the separated surface projected along the stream adds up to {flo:.1} % to {fhi:.1} % of the \
+         reference area (front- and rear-facing parts added, so it can pass 100 %): {}.",
         crate::compare::SEPARATION_CAUTION
     ))
 }
@@ -1044,7 +1044,7 @@ mod tests {
         c.variants[1].separated_frontal_percent = 12.7;
         let text = separation_spread(&c.variants).unwrap_or_default();
         assert!(
-            text.contains("counted separately) covers 0.0 % to 12.7 % of the reference area"),
+            text.contains("adds up to 0.0 % to 12.7 % of the reference area"),
             "{text}"
         );
     }
