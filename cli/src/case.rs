@@ -92,9 +92,10 @@ pub struct GeometrySection {
     pub centre_z: Option<f64>,
 }
 
-/// `[flow]`.
+/// `[flow]`. The speed may be given in m/s (`speed`) or in km/h
+/// (`speed_kmh`), not both.
 #[derive(Debug, Clone, Deserialize, Serialize)]
-#[serde(default, deny_unknown_fields)]
+#[serde(default, try_from = "RawFlowSection")]
 pub struct FlowSection {
     /// Free-stream speed, m/s.
     pub speed: f64,
@@ -104,6 +105,41 @@ pub struct FlowSection {
     pub density: f64,
     /// Kinematic viscosity, m^2/s.
     pub viscosity: f64,
+}
+
+/// `[flow]` as written.
+#[derive(Debug, Clone, Default, Deserialize)]
+#[serde(default, deny_unknown_fields)]
+struct RawFlowSection {
+    speed: Option<f64>,
+    speed_kmh: Option<f64>,
+    yaw: Option<f64>,
+    density: Option<f64>,
+    viscosity: Option<f64>,
+}
+
+impl TryFrom<RawFlowSection> for FlowSection {
+    type Error = String;
+
+    fn try_from(raw: RawFlowSection) -> Result<Self, String> {
+        let d = FlowSection::default();
+        let speed = match (raw.speed, raw.speed_kmh) {
+            (Some(_), Some(_)) => {
+                return Err(
+                    "give the speed once: flow.speed (m/s) or flow.speed_kmh, not both".into(),
+                );
+            }
+            (Some(v), None) => v,
+            (None, Some(kmh)) => kmh / 3.6,
+            (None, None) => d.speed,
+        };
+        Ok(Self {
+            speed,
+            yaw: raw.yaw.unwrap_or(d.yaw),
+            density: raw.density.unwrap_or(d.density),
+            viscosity: raw.viscosity.unwrap_or(d.viscosity),
+        })
+    }
 }
 
 impl Default for FlowSection {
@@ -476,6 +512,19 @@ mod tests {
 
     fn err(text: &str) -> String {
         format!("{:#}", parse(text).unwrap_err())
+    }
+
+    /// The speed may be given in km/h instead; both at once is refused.
+    #[test]
+    fn speed_in_kmh() {
+        let geo = "[geometry]\nshape = \"sphere\"\n";
+        let c = parse(&format!("{geo}[flow]\nspeed_kmh = 144.0\n")).unwrap();
+        assert!((c.file.flow.speed - 40.0).abs() < 1e-12);
+        assert!(
+            err(&format!("{geo}[flow]\nspeed_kmh = 144.0\nspeed = 40.0\n")).contains("not both")
+        );
+        let c = parse(&format!("{geo}[flow]\nyaw = 2.0\n")).unwrap();
+        assert_eq!((c.file.flow.speed, c.file.flow.yaw), (40.0, 2.0));
     }
 
     /// A type slip reads as the line, where it is and what was expected,

@@ -200,8 +200,8 @@ fn head(r: &Report) -> String {
          <p class=\"conditions\">{}</p>\n{summary}</header>\n",
         escape(&r.caption.case),
         escape(&format!(
-            "Free stream {} m/s, yaw {}°",
-            super::short_number(r.caption.speed_ms),
+            "Free stream {}, yaw {}°",
+            super::speed_words(r.caption.speed_ms),
             super::short_number(r.caption.yaw_deg)
         )),
     )

@@ -264,20 +264,29 @@ pub struct Caption {
 }
 
 impl Caption {
-    /// `"coupe-25, 40 m/s, yaw 0°"`.
+    /// `"coupe-25, 40 m/s (144 km/h), yaw 0°"`.
     pub fn conditions(&self) -> String {
         format!(
-            "{}, {} m/s, yaw {}°",
+            "{}, {}, yaw {}°",
             self.case,
-            short_number(self.speed_ms),
+            speed_words(self.speed_ms),
             short_number(self.yaw_deg)
         )
     }
 
-    /// A picture title: `"Surface pressure, coupe-25, 40 m/s, yaw 0°"`.
+    /// A picture title: `"Surface pressure, coupe-25, 40 m/s (144 km/h), yaw 0°"`.
     pub fn title(&self, what: &str) -> String {
         format!("{what}, {}", self.conditions())
     }
+}
+
+/// A speed in m/s with its km/h beside it: `"40 m/s (144 km/h)"`.
+pub fn speed_words(speed_ms: f64) -> String {
+    format!(
+        "{} m/s ({:.0} km/h)",
+        short_number(speed_ms),
+        3.6 * speed_ms
+    )
 }
 
 /// A number with at most three decimals and no trailing zeros.
