@@ -510,6 +510,18 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
     )
 }
 
+/// The drag force with the band's ends: `"95 (92 to 245)"`, N (the force
+/// scales with the coefficient at one speed and reference area).
+fn drag_force_words(d: &crate::summary::DragEstimate) -> String {
+    let per_cd = if d.cd.abs() > 1e-12 { d.force_n / d.cd } else { 0.0 };
+    format!(
+        "{:.0} ({:.0} to {:.0})",
+        d.force_n,
+        per_cd * d.cd_low,
+        per_cd * d.cd_high
+    )
+}
+
 fn report(
     case: &Case,
     s: &Summary,
@@ -540,6 +552,17 @@ fn report(
             k.drag_pressure,
         ),
         NumberRow::counts("Drag, friction part", k.drag_friction),
+        NumberRow::text(
+            "Drag force (estimate, band)",
+            &drag_force_words(&s.drag_estimate),
+            &format!("N at {} m/s", output::short_number(v)),
+        ),
+        NumberRow::fixed(
+            "Power the drag absorbs (estimate)",
+            s.drag_estimate.force_n * v / 1000.0,
+            1,
+            &format!("kW at {} m/s", output::short_number(v)),
+        ),
         NumberRow::fixed("Lift coefficient C_L", k.lift, 3, "-"),
         NumberRow::fixed("Lift, whole body", s.lift_kg.total, 0, &at),
         NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
@@ -597,8 +620,18 @@ fn report(
             "-",
         ),
     ]);
+    // A net downforce that the smooth underbody's suction supplies is the
+    // least certain number on the page: say so where it is first read.
+    let floor = if s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
+        format!(
+            ", of which the smooth underbody {} kg, the least certain part",
+            output::whole(s.lift_kg.underbody)
+        )
+    } else {
+        String::new()
+    };
     let summary = format!(
-        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear); \
+        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear{floor}); \
          {:.1} % of the surface separated.",
         k.drag,
         s.drag_estimate.cd_low,
@@ -690,5 +723,22 @@ fn report(
         sections,
         cautions: vec![],
         generator: s.tool.clone(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    /// The force band scales the central force by the band's coefficients
+    /// (same speed, same reference area): F = C_D q A.
+    #[test]
+    fn drag_force_band_scales_with_the_coefficients() {
+        let d = crate::summary::DragEstimate {
+            cd: 0.2,
+            cd_low: 0.1,
+            cd_high: 0.4,
+            band: String::new(),
+            force_n: 300.0,
+        };
+        assert_eq!(super::drag_force_words(&d), "300 (150 to 600)");
     }
 }
