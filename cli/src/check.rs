@@ -168,7 +168,21 @@ fn read_lines(r: &PrepareReport) -> String {
             "no"
         }
     );
+    if r.mirrors.cut_vertices_moved > 0 {
+        s += &format!(
+            "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {:.2} mm)\n",
+            r.mirrors.cut_vertices_moved,
+            1000.0 * tuft_mesh::prepare::CUT_TOLERANCE * diagonal(r),
+            1000.0 * r.mirrors.cut_largest_move
+        );
+    }
     s
+}
+
+/// The bounding-box diagonal of the prepared body, metres.
+fn diagonal(r: &PrepareReport) -> f64 {
+    let [lo, hi] = r.bounds;
+    (0..3).map(|k| (hi[k] - lo[k]).powi(2)).sum::<f64>().sqrt()
 }
 
 fn repair_lines(r: &PrepareReport) -> String {

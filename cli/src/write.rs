@@ -513,7 +513,11 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
 /// The drag force with the band's ends: `"95 (92 to 245)"`, N (the force
 /// scales with the coefficient at one speed and reference area).
 fn drag_force_words(d: &crate::summary::DragEstimate) -> String {
-    let per_cd = if d.cd.abs() > 1e-12 { d.force_n / d.cd } else { 0.0 };
+    let per_cd = if d.cd.abs() > 1e-12 {
+        d.force_n / d.cd
+    } else {
+        0.0
+    };
     format!(
         "{:.0} ({:.0} to {:.0})",
         d.force_n,

@@ -60,7 +60,19 @@ pub struct MirrorReport {
     pub ground: Option<f64>,
     /// Half model mirrored in `y = 0`.
     pub symmetry: bool,
+    /// Vertices of a half model moved onto its cut (see [`CUT_TOLERANCE`]).
+    pub cut_vertices_moved: usize,
+    /// The largest of those moves, metres.
+    pub cut_largest_move: f64,
 }
+
+/// A half model's vertices within this fraction of the body's diagonal of
+/// the symmetry plane, on its open border or on the wrong side of it, are
+/// moved onto it (about 5 mm on a car): a scan cut by hand or in the
+/// scanner's software is off the plane by a millimetre or two, and
+/// without the move its cut would not be taken for the mirror's and a
+/// vertex a hair below y = 0 would refuse the whole body (our choice).
+pub const CUT_TOLERANCE: f64 = 1e-3;
 
 /// What `prepare` did, step by step (serializable).
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -118,6 +130,7 @@ pub fn prepare_mesh(
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
+    let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
     check_mirror_sides(&mesh, &params.mirrors, params.repair.plane_tolerance)?;
     let (mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
     let suggested = suggest(&mesh);
@@ -142,6 +155,8 @@ pub fn prepare_mesh(
         mirrors: MirrorReport {
             ground: params.mirrors.ground,
             symmetry: params.mirrors.symmetry,
+            cut_vertices_moved,
+            cut_largest_move,
         },
         repair,
         suggested_panels: suggested,
@@ -156,6 +171,35 @@ pub fn prepare_mesh(
         bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
     };
     Ok((panels, report))
+}
+
+/// Move a half model's vertices within [`CUT_TOLERANCE`] of `y = 0` onto
+/// it when they lie on an open border or below the plane; how many moved
+/// and the largest move (metres).
+fn snap_to_cut(mesh: &mut TriMesh, mirrors: &Mirrors) -> (usize, f64) {
+    let Some((lo, hi)) = mesh.bounds().filter(|_| mirrors.symmetry) else {
+        return (0, 0.0);
+    };
+    let tol = CUT_TOLERANCE * (hi - lo).norm();
+    let mut border = vec![false; mesh.vertices.len()];
+    let uses = crate::repair::edges::sorted_edge_uses(&mesh.triangles);
+    for group in crate::repair::edges::edge_groups(&uses) {
+        if group.len() == 1 {
+            let (a, b) = group[0].ends();
+            border[a as usize] = true;
+            border[b as usize] = true;
+        }
+    }
+    let (mut moved, mut largest) = (0, 0.0f64);
+    for (v, on_border) in mesh.vertices.iter_mut().zip(border) {
+        let close = v.y.abs() <= tol && v.y != 0.0;
+        if close && (on_border || v.y < 0.0) {
+            largest = largest.max(v.y.abs());
+            moved += 1;
+            v.y = 0.0;
+        }
+    }
+    (moved, largest)
 }
 
 /// A crossing panel longer than this many typical panel edges (the
@@ -221,8 +265,11 @@ fn check_mirror_sides(mesh: &TriMesh, mirrors: &Mirrors, rel_tol: f64) -> Result
     let tol = rel_tol * (hi - lo).norm();
     if mirrors.symmetry && lo.y < -tol {
         return Err(MeshError::Mirror(format!(
-            "a half model must lie in y >= 0 (its mirror image supplies y < 0), but the body reaches y = {:.4} m",
-            lo.y
+            "a half model must lie in y >= 0 (its mirror image supplies y < 0), but the body reaches y = {:.4} m \
+             ({:.1} mm; up to {:.1} mm is moved onto the cut)",
+            lo.y,
+            1000.0 * lo.y,
+            1000.0 * CUT_TOLERANCE * (hi - lo).norm()
         )));
     }
     if let Some(h) = mirrors.ground

@@ -70,3 +70,43 @@ fn body_across_the_symmetry_plane_is_refused() {
         "{e}"
     );
 }
+
+/// A half scan whose cut wanders a millimetre either side of y = 0 (a cut
+/// made by hand) is taken as cut on the plane: its border vertices move
+/// onto it, the cut is closed by the mirror, and the report says how far
+/// they moved. A body reaching 5 cm across the plane is still refused,
+/// in millimetres.
+#[test]
+fn a_cut_within_a_millimetre_or_two_of_the_plane_is_moved_onto_it() {
+    let mut half = cut(&generate::latlong_sphere(1000.0, 40, 80), |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let mut rng = common::Lcg(7);
+    for v in &mut half.vertices {
+        if v.y.abs() < 1e-9 {
+            v.y = 2.0 * rng.next_f64() - 1.0; // -1 to 1 mm
+        }
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let params = PrepareParams {
+        units: LengthUnit::Mm,
+        mirrors: Mirrors {
+            ground: None,
+            symmetry: true,
+        },
+        target_panels: Some(1500),
+        ..PrepareParams::default()
+    };
+    let path = common::write(dir.path(), "half.stl", &common::binary_stl(&half));
+    let (_, report) = prepare(&path, &params).unwrap();
+    assert_eq!(report.repair.holes.mirror_closed.len(), 1);
+    assert!(
+        report.mirrors.cut_vertices_moved > 70,
+        "{:?}",
+        report.mirrors
+    );
+    assert!(report.mirrors.cut_largest_move <= 1e-3 + 1e-9);
+    half.vertices[0].y = -50.0;
+    let path = common::write(dir.path(), "across.stl", &common::binary_stl(&half));
+    let e = prepare(&path, &params).unwrap_err().to_string();
+    assert!(e.contains("-50.0 mm"), "{e}");
+}
