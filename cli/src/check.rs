@@ -3,8 +3,9 @@
 //!
 //! Prints what was read, what each repair pass changed, the boundary loops,
 //! the coarsening, the panel quality and a suggested panel count. Exit 0
-//! when the mesh is usable; a problem is returned as an error and printed
-//! as one line `tuft: FILE: problem` (exit 2).
+//! when the mesh is usable (its verdict line says whether with warnings);
+//! a problem is returned as an error and printed as one line `tuft: FILE:
+//! problem` (exit 2).
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -50,6 +51,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         (args.file.clone(), settings(args)?)
     };
     let (_, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
+
     if args.json {
         println!("{}", serde_json::to_string_pretty(&report)?);
     } else {
@@ -122,8 +124,25 @@ fn summary(file: &str, r: &PrepareReport) -> String {
          1,000-12,000 (4,000-12,000 is usual for a full car; common practice)\n",
         r.suggested_panels
     );
-    out += "verdict    usable\n";
+    out += &verdict(r);
     out
+}
+
+/// The closing line: usable; with quality warnings, usable with a word on
+/// what they do; with a fold (panels crossing each other), a word that the
+/// run may find the flow unphysical there and stop.
+fn verdict(r: &PrepareReport) -> String {
+    let warnings = &r.quality.warnings;
+    match (warnings.len(), r.folded) {
+        (0, _) => "verdict    usable\n".to_string(),
+        (_, true) => "verdict    usable, but the surface folds through itself (above): the flow there can \
+                      come out unphysical and stop the run; repair the STL there or try another panel count\n"
+            .to_string(),
+        (n, false) => format!(
+            "verdict    usable; read the {n} quality warning{} above (pressures near those panels are less sure)\n",
+            if n == 1 { "" } else { "s" }
+        ),
+    }
 }
 
 fn read_lines(r: &PrepareReport) -> String {

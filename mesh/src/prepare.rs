@@ -87,6 +87,8 @@ pub struct PrepareReport {
     pub mirrors: MirrorReport,
     /// Every repair pass.
     pub repair: RepairReport,
+    /// Panels cross each other in local folds (warned about in `quality`).
+    pub folded: bool,
     /// Suggested panel count for this body and how it was found.
     pub suggested_panels: usize,
     /// Coarsening (absent when the mesh was already small enough).
@@ -161,6 +163,7 @@ pub fn prepare_mesh(
         repair,
         suggested_panels: suggested,
         coarsen,
+        folded: local_crossing.is_some(),
         quality: {
             let mut q = quality(&panels);
             q.warnings.extend(local_crossing);
