@@ -165,6 +165,14 @@ fn print_summary(out: &Path, s: &Summary) {
             cpb(w.base_cp_plateau)
         );
     }
+    for r in &s.regions {
+        println!(
+            "  {}: {} ({:.0} % separated)",
+            r.name,
+            r.verdict,
+            100.0 * r.separated_fraction
+        );
+    }
     for w in &s.warnings {
         println!("  warning: {w}");
     }
