@@ -438,6 +438,17 @@ fn cell(v: &serde_json::Value) -> String {
     }
 }
 
+/// A cell as the page shows it: an STL by its file name (the CSV keeps
+/// the whole path).
+fn shown_cell(key: &str, v: &serde_json::Value) -> String {
+    match v {
+        serde_json::Value::String(s) if key == "geometry.stl" => Path::new(s)
+            .file_name()
+            .map_or_else(|| cell(v), |f| f.to_string_lossy().into_owned()),
+        _ => cell(v),
+    }
+}
+
 /// `sweep.csv`: one row per variant in rank order, numbers in shortest
 /// round-trip form.
 pub fn csv(c: &Collected) -> String {
@@ -497,11 +508,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     ];
     let mut out = Vec::new();
     for key in &c.keys {
-        let numeric = c
-            .variants
-            .iter()
-            .all(|r| r.settings.get(key).and_then(|v| v.as_f64()).is_some());
-        if !numeric {
+        if !numeric_key(c, key) {
             continue;
         }
         for (what, unit, f) in &metrics {
@@ -519,6 +526,13 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
     }
     Ok(out)
+}
+
+/// True when every variant's value of `key` is a number.
+fn numeric_key(c: &Collected, key: &str) -> bool {
+    c.variants
+        .iter()
+        .all(|r| r.settings.get(key).and_then(|v| v.as_f64()).is_some())
 }
 
 /// A swept key with its unit.
@@ -691,6 +705,20 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     if !plots.is_empty() {
         s.push_str("<h2>Plots</h2>\n");
     }
+    let words: Vec<&String> = c.keys.iter().filter(|k| !numeric_key(c, k)).collect();
+    if !words.is_empty() {
+        let _ = writeln!(
+            s,
+            "<p>No plot against {}: its values are not numbers (files or names); the table ranks them.</p>",
+            escape(
+                &words
+                    .iter()
+                    .map(|k| k.as_str())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            )
+        );
+    }
     for (title, png) in plots {
         let data = base64::engine::general_purpose::STANDARD.encode(png);
         let _ = writeln!(
@@ -771,7 +799,12 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
             let _ = write!(
                 s,
                 "<td>{}</td>",
-                escape(&r.settings.get(k).map(cell).unwrap_or_default())
+                escape(
+                    &r.settings
+                        .get(k)
+                        .map(|v| shown_cell(k, v))
+                        .unwrap_or_default()
+                )
             );
         }
         let _ = write!(
@@ -833,6 +866,31 @@ mod tests {
             drag_ranking: String::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    /// Variants that differ by their STL: the page names each by its file,
+    /// draws no plot against the file names and says why.
+    #[test]
+    fn stl_variants_show_their_file_names_and_no_plot() {
+        let mut c = sweep(&[10.0, 12.0]);
+        c.keys = vec!["geometry.stl".into()];
+        for (r, f) in c
+            .variants
+            .iter_mut()
+            .zip(["/scans/deck0.stl", "/scans/deck30.stl"])
+        {
+            r.settings
+                .insert("geometry.stl".into(), serde_json::Value::from(f));
+        }
+        let plots = plots(&c).unwrap();
+        assert!(plots.is_empty());
+        let html = page(&c, &plots);
+        assert!(
+            html.contains("<td>deck30.stl</td>") && !html.contains("/scans/"),
+            "{html}"
+        );
+        assert!(html.contains("No plot against geometry.stl"));
+        assert!(csv(&c).contains("/scans/deck0.stl"));
     }
 
     fn warn(r: &mut Row, text: &str) {
