@@ -106,7 +106,29 @@ pub struct SurfaceDeltas {
     /// component along B's free stream), m^2 (whole body).
     #[serde(default)]
     pub separation_change_frontal_m2: f64,
+    /// Share of B's area within [`UNCHANGED_FRACTION`] of the body length
+    /// of A's surface: where the shape did not change.
+    #[serde(default)]
+    pub unchanged_share: f64,
+    /// 95th percentile (by area) of |Cp(B) - Cp(A)| on the unchanged
+    /// surface: the panels' own noise.
+    #[serde(default)]
+    pub unchanged_delta_cp_p95: f64,
+    /// The part of the drag difference that arises on the unchanged
+    /// surface, counts: the flow's answer there to the change (the
+    /// pressure field answers a change anywhere) plus panel noise.
+    #[serde(default)]
+    pub unchanged_drag_counts: f64,
+    /// The same for the lift, kg at B's speed.
+    #[serde(default)]
+    pub unchanged_lift_kg: f64,
 }
+
+/// B's panels within this fraction of the body length of A's surface
+/// (4.5 mm on a 4.5 m car) count as unchanged: above the sag of a panel's
+/// chord on a curved surface (about 1-3 mm for 10 cm panels on car-like
+/// curvature), below a design change worth comparing (our choice).
+pub const UNCHANGED_FRACTION: f64 = 1e-3;
 
 /// One side of the comparison.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
@@ -398,7 +420,51 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     } else {
         0.0
     };
+    unchanged_noise(b, mapping, &f.delta_cp, &stream, &mut out);
     out
+}
+
+/// The differences on the surface that did not change (see
+/// [`UNCHANGED_FRACTION`]): the flow's answer there to the change plus the
+/// two panellings' noise (the two cannot be told apart from two runs).
+/// Forces from
+/// `-Cp n dA` (outward normals), on B's reference area and dynamic
+/// pressure, whole body.
+fn unchanged_noise(
+    b: &ResultFolder,
+    mapping: &Mapping,
+    delta_cp: &[f64],
+    stream: &nalgebra::Vector3<f64>,
+    out: &mut SurfaceDeltas,
+) {
+    let s = &b.summary;
+    let near = UNCHANGED_FRACTION * s.reference.length_m;
+    let halves = b.halves();
+    let (mut area, mut total, mut drag, mut lift) = (0.0, 0.0, 0.0, 0.0);
+    let mut spread = Vec::new();
+    for (i, pb) in b.panels.iter().enumerate() {
+        total += pb.area;
+        if mapping.distance.get(i).is_none_or(|&d| d > near) || !delta_cp[i].is_finite() {
+            continue;
+        }
+        area += pb.area;
+        drag -= halves * delta_cp[i] * pb.normal.dot(stream) * pb.area;
+        lift -= halves * delta_cp[i] * pb.normal.z * pb.area;
+        spread.push((delta_cp[i].abs(), pb.area));
+    }
+    let reference = s.reference.area_m2.max(f64::MIN_POSITIVE);
+    out.unchanged_share = if total > 0.0 { area / total } else { 0.0 };
+    out.unchanged_drag_counts = 1000.0 * drag / reference;
+    out.unchanged_lift_kg = lift * s.dynamic_pressure_pa / tuft_solver::loads::STANDARD_GRAVITY;
+    spread.sort_by(|x, y| x.0.total_cmp(&y.0));
+    let mut seen = 0.0;
+    out.unchanged_delta_cp_p95 = spread
+        .iter()
+        .find(|(_, a)| {
+            seen += a;
+            seen >= 0.95 * area
+        })
+        .map_or(0.0, |(d, _)| *d);
 }
 
 /// Warnings about what makes the two runs hard to compare.
@@ -567,6 +633,18 @@ fn print_comparison(c: &Comparison, out: &Path) {
     );
     for r in &c.regions {
         println!("  {}: {}", r.name, region_text(r));
+    }
+    let s = &c.surface;
+    if s.unchanged_share > 0.0 {
+        println!(
+            "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.2} on 95 % of it, giving \
+             {:+.1} drag counts and {:+.0} kg of lift: the flow's answer there to the change, plus panel noise \
+             (largest at sharp edges and corners)",
+            100.0 * s.unchanged_share,
+            s.unchanged_delta_cp_p95,
+            s.unchanged_drag_counts,
+            s.unchanged_lift_kg
+        );
     }
     for n in &c.notes {
         println!("  note: {n}");

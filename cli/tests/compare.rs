@@ -81,6 +81,15 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
     ] {
         assert_eq!(num(&same, &format!("/surface/{k}")), 0.0, "{k}");
     }
+    // All of it is unchanged surface, carrying none of the difference.
+    assert_eq!(num(&same, "/surface/unchanged_share"), 1.0);
+    for k in [
+        "unchanged_delta_cp_p95",
+        "unchanged_drag_counts",
+        "unchanged_lift_kg",
+    ] {
+        assert_eq!(num(&same, &format!("/surface/{k}")), 0.0, "{k}");
+    }
     assert_eq!(same["drag"]["resolved"], Value::Bool(false));
     assert_eq!(same["drag"]["direction"], "undecided");
     assert!(same["notes"].as_array().unwrap().is_empty());

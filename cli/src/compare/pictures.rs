@@ -75,11 +75,21 @@ pub fn write(
         speed_ms: cmp.b.speed,
         yaw_deg: super::yaw_of(&b.summary),
     };
+    let mut note =
+        "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B."
+            .to_owned();
+    let u = &cmp.surface;
+    if u.unchanged_share >= 0.2 {
+        note += &format!(
+            " Where the shape did not change, 95 % stays under {:.2}; spots at sharp edges are panel noise.",
+            u.unchanged_delta_cp_p95
+        );
+    }
     let cp_style = FieldStyle {
         scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
         legend: vec![],
         what: "Cp difference".into(),
-        note: "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B.".into(),
+        note,
     };
     let dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
@@ -191,6 +201,26 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             "m²",
         ),
         NumberRow::number("RMS Cp difference (area-weighted)", s.delta_cp_rms, "-"),
+        NumberRow::text(
+            "Unchanged surface (B's panels within 0.1 % of the length of A's surface)",
+            &format!("{:.0}", 100.0 * s.unchanged_share),
+            "% of B",
+        ),
+        NumberRow::number(
+            "Unchanged surface: |Cp difference| that 95 % of it stays under",
+            s.unchanged_delta_cp_p95,
+            "-",
+        ),
+        NumberRow::text(
+            "Unchanged surface: the part of the drag difference arising there",
+            &signed_places(s.unchanged_drag_counts, 1),
+            "counts",
+        ),
+        NumberRow::text(
+            "Unchanged surface: the part of the lift difference arising there",
+            &signed_places(s.unchanged_lift_kg, 0),
+            &format!("kg at {} m/s", crate::output::short_number(c.b.speed)),
+        ),
         NumberRow::number(
             "Largest distance from B's panels to A's surface",
             s.max_distance_m,
@@ -221,7 +251,11 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
              the two runs' sensitivity bands. The differences at the band ends compare each run's low \
              end with the other's low end and high with high; they are not a range of the difference, and \
              the central difference need not lie between them, since each band sits unevenly about its \
-             estimate. Verdict: {}.",
+             estimate. Verdict: {}.\n\n\
+             A change anywhere moves the pressure everywhere (the flow round the whole body answers it, \
+             the underbody's most), so the surface that did not change also shows differences and carries \
+             part of the drag and lift differences (the table gives how much); panels that differ from \
+             their neighbours at sharp edges and corners far from the change are panel noise, not design.",
             c.a.case_name,
             c.a.folder,
             c.b.case_name,
