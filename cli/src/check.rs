@@ -37,6 +37,11 @@ pub struct CheckArgs {
     /// Print the full report as JSON instead of text.
     #[arg(long)]
     pub json: bool,
+    /// Also write the panels a run would solve on (the modelled half only,
+    /// no mirror images) to this binary STL, in the input's unit, to look
+    /// at over the scan in any viewer.
+    #[arg(long, value_name = "FILE.stl")]
+    pub save_panels: Option<PathBuf>,
 }
 
 /// Run `tuft check`.
@@ -50,7 +55,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     } else {
         (args.file.clone(), settings(args)?)
     };
-    let (_, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
+    let (panels, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
+    if let Some(out) = &args.save_panels {
+        save_panels(out, &panels, params.units)?;
+    }
 
     if args.json {
         println!("{}", serde_json::to_string_pretty(&report)?);
@@ -64,6 +72,29 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         print!("{}", summary(&file.display().to_string(), &report));
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// Write the panels to `out` whole or not at all (a temporary file beside
+/// it, renamed when complete).
+fn save_panels(
+    out: &std::path::Path,
+    panels: &tuft_mesh::PanelMesh,
+    unit: LengthUnit,
+) -> anyhow::Result<()> {
+    let name = out
+        .file_name()
+        .map_or("panels.stl".into(), |n| n.to_string_lossy().into_owned());
+    let tmp = out.with_file_name(format!(".{name}.partial-{}", std::process::id()));
+    let write = || -> std::io::Result<()> {
+        let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp)?);
+        tuft_mesh::export::write_panels_stl(&mut file, panels, unit)?;
+        std::io::Write::flush(&mut file)?;
+        std::fs::rename(&tmp, out)
+    };
+    write().map_err(|e| {
+        let _ = std::fs::remove_file(&tmp);
+        anyhow::anyhow!("{}: cannot write the panels: {e}", out.display())
+    })
 }
 
 /// The STL and settings a case file gives a run.

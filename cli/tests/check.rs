@@ -159,3 +159,27 @@ fn check_reads_a_case_files_stl_as_the_run_does() {
     );
     assert_eq!(stderr.lines().count(), 1, "{stderr}");
 }
+
+/// `--save-panels` writes the panels a run would use, in the input's unit:
+/// read back, it holds the reported panel count and the body's size.
+#[test]
+fn saved_panels_read_back_as_the_reported_mesh() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 4), 1000.0);
+    let saved = dir.path().join("panels.stl");
+    let out = check(&[
+        path.to_str().unwrap(),
+        "--panels",
+        "1000",
+        "--save-panels",
+        saved.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let (mesh, _) = tuft_mesh::import::read_stl(&saved).unwrap();
+    assert!(stdout.contains(&format!("coarsened to {}", mesh.len())), "{stdout}");
+    let (lo, hi) = mesh.bounds().unwrap();
+    // Millimetres, as written: a 1 m sphere spans about 2000 (inscribed).
+    assert!((hi.x - lo.x - 2000.0).abs() < 40.0, "{lo:?} {hi:?}");
+}

@@ -50,7 +50,8 @@ fn run() -> Result<(), Box<dyn Error>> {
         return Err(format!("option {k:?} is not known for {body}").into());
     }
     let mut file = std::fs::File::create(out)?;
-    stl_io::write_stl(&mut file, facets(&mesh).iter())?;
+    let facets = tuft_mesh::export::stl_facets(&mesh, tuft_mesh::LengthUnit::M);
+    stl_io::write_stl(&mut file, facets.iter())?;
     println!(
         "{out}: {} triangles, {} vertices",
         mesh.len(),
@@ -135,20 +136,4 @@ fn coupe(o: &mut Options) -> Result<TriMesh, Box<dyn Error>> {
         ..d
     };
     Ok(generate::coupe_with_params(&p)?)
-}
-
-/// The mesh as STL facets (single precision, unit normals).
-fn facets(mesh: &TriMesh) -> Vec<stl_io::Triangle> {
-    (0..mesh.len())
-        .map(|t| {
-            let n = mesh.area_vector(t).normalize();
-            let v = mesh
-                .corners(t)
-                .map(|p| stl_io::Vertex::new([p.x as f32, p.y as f32, p.z as f32]));
-            stl_io::Triangle {
-                normal: stl_io::Normal::new([n.x as f32, n.y as f32, n.z as f32]),
-                vertices: v,
-            }
-        })
-        .collect()
 }

@@ -90,6 +90,13 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
     let ratio: Vec<f64> = (0..mesh.len())
         .map(|i| neighbour_area_ratio(mesh, i))
         .collect();
+    let worst = |v: &[f64], sign: f64| {
+        let i = (0..v.len())
+            .max_by(|&a, &b| (sign * v[a]).total_cmp(&(sign * v[b])))
+            .unwrap_or(0);
+        mesh.panels.get(i).map(|p| p.centroid)
+    };
+    let at = [worst(&aspect, 1.0), worst(&angle, -1.0), worst(&ratio, 1.0)];
     let mut r = QualityReport {
         panels: mesh.len(),
         high_aspect: aspect.iter().filter(|&&a| a > q.max_aspect_ratio).count(),
@@ -104,17 +111,25 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
         thresholds: *q,
         warnings: Vec::new(),
     };
-    r.warnings = warnings(&r, q);
+    r.warnings = warnings(&r, q, at);
     r
 }
 
-fn warnings(r: &QualityReport, q: &QualityParams) -> Vec<String> {
+/// The warnings, each naming where its worst panel is (`at`: the worst
+/// aspect ratio, smallest angle and area jump).
+fn warnings(r: &QualityReport, q: &QualityParams, at: [Option<crate::Point>; 3]) -> Vec<String> {
     let n = r.panels.max(1) as f64;
     let mut out = Vec::new();
-    let mut warn = |count: usize, what: String, harm: &str| {
+    let mut warn = |count: usize, what: String, harm: &str, at: Option<crate::Point>| {
         if count as f64 > q.warn_fraction * n {
+            let place = at.map_or(String::new(), |p| {
+                format!(
+                    " (the worst near x {:.3}, y {:.3}, z {:.3} m)",
+                    p.x, p.y, p.z
+                )
+            });
             out.push(format!(
-                "{count} panels ({:.1} %) {what}: {harm}",
+                "{count} panels ({:.1} %) {what}{place}: {harm}",
                 100.0 * count as f64 / n
             ));
         }
@@ -123,11 +138,13 @@ fn warnings(r: &QualityReport, q: &QualityParams) -> Vec<String> {
         r.high_aspect,
         format!("have an aspect ratio above {}", q.max_aspect_ratio),
         "long thin panels put the collocation point far from parts of the panel and spoil the velocity from doublet differences",
+        at[0],
     );
     warn(
         r.small_angle,
         format!("have an angle below {} degrees", q.min_angle_deg),
         "needle-like panels make the velocity gradient noisy",
+        at[1],
     );
     warn(
         r.size_jump,
@@ -136,6 +153,7 @@ fn warnings(r: &QualityReport, q: &QualityParams) -> Vec<String> {
             q.max_neighbour_area_ratio
         ),
         "abrupt size changes cause local errors in pressure",
+        at[2],
     );
     out
 }

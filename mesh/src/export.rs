@@ -1,0 +1,45 @@
+//! Writing a mesh back out as a binary STL (for looking at the panels a
+//! run uses in any viewer, over the scan they came from).
+
+use std::io::Write;
+
+use crate::{LengthUnit, PanelMesh, TriMesh};
+
+/// The facets of `mesh` (metres) as STL triangles in `unit`, with unit
+/// normals from the vertex order.
+pub fn stl_facets(mesh: &TriMesh, unit: LengthUnit) -> Vec<stl_io::Triangle> {
+    let scale = 1.0 / unit.to_metres();
+    (0..mesh.len())
+        .map(|t| {
+            let n = mesh.area_vector(t).try_normalize(0.0).unwrap_or_default();
+            let vertices = mesh.corners(t).map(|p| {
+                stl_io::Vertex::new([
+                    (p.x * scale) as f32,
+                    (p.y * scale) as f32,
+                    (p.z * scale) as f32,
+                ])
+            });
+            stl_io::Triangle {
+                normal: stl_io::Normal::new([n.x as f32, n.y as f32, n.z as f32]),
+                vertices,
+            }
+        })
+        .collect()
+}
+
+/// Write the real panels of `mesh` (no mirror images) to `out` as a binary
+/// STL in `unit`.
+///
+/// # Errors
+/// The writer's I/O errors.
+pub fn write_panels_stl(
+    out: &mut impl Write,
+    mesh: &PanelMesh,
+    unit: LengthUnit,
+) -> std::io::Result<()> {
+    let tri = TriMesh {
+        vertices: mesh.vertices.clone(),
+        triangles: mesh.triangles.clone(),
+    };
+    stl_io::write_stl(out, stl_facets(&tri, unit).iter())
+}
