@@ -320,6 +320,28 @@ pub fn check_physical(
     )
 }
 
+/// Axle positions unlike a car's: an overhang under 5 % of the length or
+/// a wheelbase under 40 % of it (cars have overhangs of about 15-25 % and
+/// wheelbases of 55-65 % of their length; common practice). The split of
+/// the lift between the axles follows their positions, so a slip there
+/// (an axle at the nose tip, x = 0) moves every axle load.
+pub fn axle_warning(mesh: &PanelMesh, front: f64, rear: f64) -> Option<String> {
+    let (lo, hi) = mesh.bounds();
+    let length = hi.x - lo.x;
+    let (ahead, behind, base) = (front - lo.x, hi.x - rear, rear - front);
+    let odd = ahead < 0.05 * length || behind < 0.05 * length || base < 0.4 * length;
+    odd.then(|| {
+        format!(
+            "the axles (x = {front} and {rear} m) leave overhangs of {:.0} % and {:.0} % and a wheelbase of \
+             {:.0} % of the {length:.2} m body, unlike a car's (about 15-25 % and 55-65 %): check \
+             reference.front_axle_x and reference.rear_axle_x, which split the lift between the axles",
+            100.0 * ahead / length,
+            100.0 * behind / length,
+            100.0 * base / length
+        )
+    })
+}
+
 /// A ground plane further below the body than the body is long leaves the
 /// run close to free air, which is more often a ground height given in
 /// millimetres than a wish (leaving `[ground]` out gives free air).
@@ -542,6 +564,7 @@ fn finish(
         ));
     }
     warnings.extend(far_ground_warning(mesh));
+    warnings.extend(axle_warning(mesh, reference.front_axle_x, reference.rear_axle_x));
     if !reference_given.axles {
         warnings.push(
             "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \
@@ -789,6 +812,18 @@ mod tests {
         // upstream (d'Alembert: attached potential flow has no drag).
         let e = check_physical(&loads_with(0.001, 1e-3), &loads_with(0.5, 0.0), &v, 10.0);
         assert!(e.unwrap_err().to_string().contains("attached-flow drag"));
+    }
+
+    /// An axle at the nose tip or a short wheelbase is warned about; the
+    /// demo coupe's axles (0.95 and 3.65 m on 4.5 m) are not.
+    #[test]
+    fn axles_unlike_a_cars_are_warned_about() {
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        let coupe = PanelMesh::new(generate::coupe(22.0, 800).unwrap(), Mirrors::none()).unwrap();
+        assert!(axle_warning(&coupe, 0.95, 3.65).is_none());
+        let w = axle_warning(&coupe, 0.0, 3.65).unwrap();
+        assert!(w.contains("overhangs of 0 %"), "{w}");
+        assert!(axle_warning(&coupe, 1.5, 2.8).is_some());
     }
 
     /// A ground a body length or more below a 1 m sphere is warned about
