@@ -564,7 +564,11 @@ fn finish(
         ));
     }
     warnings.extend(far_ground_warning(mesh));
-    warnings.extend(axle_warning(mesh, reference.front_axle_x, reference.rear_axle_x));
+    warnings.extend(axle_warning(
+        mesh,
+        reference.front_axle_x,
+        reference.rear_axle_x,
+    ));
     if !reference_given.axles {
         warnings.push(
             "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \

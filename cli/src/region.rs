@@ -157,6 +157,31 @@ pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> 
     Ok(())
 }
 
+/// Each region's panels as the pictures draw them: the real panels, then
+/// on a half model their mirror images (the order of
+/// [`crate::output::render::display_triangles`]).
+pub fn marks(
+    regions: &[RegionSection],
+    mesh: &PanelMesh,
+) -> Vec<crate::output::outline::RegionMark> {
+    regions
+        .iter()
+        .map(|r| {
+            let copies: Vec<Vec<(Point, Vector)>> =
+                mesh.panels.iter().map(|p| copies(mesh, p)).collect();
+            let layers = if mesh.mirrors.symmetry { 2 } else { 1 };
+            let member = (0..layers)
+                .flat_map(|k| copies.iter().map(move |c| c[k]))
+                .map(|(c, n)| inside(r, &c, &n))
+                .collect();
+            crate::output::outline::RegionMark {
+                name: r.name.clone(),
+                member,
+            }
+        })
+        .collect()
+}
+
 /// Each region's separated share and mean risk on `mesh` with `layer`.
 pub fn evaluate(
     regions: &[RegionSection],

@@ -147,7 +147,8 @@ pub fn write_all(
             vtk::write_slice(w, s)
         })?;
     }
-    let pictures = pictures(&surface, &slices, &caption)?;
+    let marks = crate::region::marks(&case.file.regions, &geo.mesh);
+    let pictures = pictures(&surface, &slices, &marks, &caption)?;
     for p in &pictures {
         std::fs::write(out.file(&p.0), &p.1.png).with_context(|| p.0.clone())?;
     }
@@ -170,6 +171,7 @@ pub fn write_all(
 fn pictures(
     s: &SurfaceResult<'_>,
     slices: &[Slice],
+    marks: &[output::outline::RegionMark],
     caption: &Caption,
 ) -> Result<Vec<(String, Picture)>> {
     let mut out = Vec::new();
@@ -188,13 +190,15 @@ fn pictures(
         "Surface pressure coefficient: side, top, underneath and rear",
         cp.to_png()?,
     );
-    let risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;
+    let mut risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;
+    output::outline::draw_regions(&mut risk, s.mesh, marks);
     add(
         "separation-risk.png",
         "Separation risk, separated areas hatched",
         risk.to_png()?,
     );
-    let flow = tufts::tuft_sheet(s, caption)?;
+    let mut flow = tufts::tuft_sheet(s, caption)?;
+    output::outline::draw_regions(&mut flow, s.mesh, marks);
     add(
         "surface-flow.png",
         "Surface flow shown as tufts, separated areas crossed",

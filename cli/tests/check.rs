@@ -178,7 +178,10 @@ fn saved_panels_read_back_as_the_reported_mesh() {
     assert_eq!(out.status.code(), Some(0));
     let stdout = String::from_utf8_lossy(&out.stdout);
     let (mesh, _) = tuft_mesh::import::read_stl(&saved).unwrap();
-    assert!(stdout.contains(&format!("coarsened to {}", mesh.len())), "{stdout}");
+    assert!(
+        stdout.contains(&format!("coarsened to {}", mesh.len())),
+        "{stdout}"
+    );
     let (lo, hi) = mesh.bounds().unwrap();
     // Millimetres, as written: a 1 m sphere spans about 2000 (inscribed).
     assert!((hi.x - lo.x - 2000.0).abs() < 40.0, "{lo:?} {hi:?}");

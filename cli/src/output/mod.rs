@@ -22,6 +22,7 @@ pub mod canvas;
 pub mod colorbar;
 pub mod csv;
 pub mod html;
+pub mod outline;
 pub mod plot;
 pub mod render;
 pub mod sheet;

@@ -1,0 +1,171 @@
+//! Named regions drawn on a four-view sheet: the outline of each region's
+//! panels where it meets panels outside it (only where that edge is seen),
+//! and the region's name at the middle of what is seen of it, so a
+//! verdict such as "rear window: partly separated" can be checked against
+//! the picture by eye.
+
+use super::canvas::{Canvas, Rgb, WHITE};
+use super::render::{self, DisplayTri, View, display_triangles};
+use super::sheet::{self, SheetParams};
+use super::text::{self, Align, TextStyle};
+
+/// Outline and label colour: a strong blue that stands out of both the
+/// pressure and the risk colour maps.
+const OUTLINE: Rgb = [20, 80, 200];
+
+/// One named region: membership of each display triangle (the real panels
+/// first, then, on a half model, their mirror images in the same order).
+#[derive(Debug, Clone, PartialEq)]
+pub struct RegionMark {
+    /// Its name.
+    pub name: String,
+    /// True for the display triangles in it.
+    pub member: Vec<bool>,
+}
+
+/// Draw every region's outline and name on a sheet drawn with the default
+/// [`SheetParams`] for `mesh`.
+pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[RegionMark]) {
+    if marks.is_empty() {
+        return;
+    }
+    let tris = display_triangles(mesh);
+    let lay = sheet::layout(&tris, &SheetParams::default());
+    let real = mesh.len();
+    let neighbours = |k: usize| -> Vec<usize> {
+        let offset = if k >= real { real } else { 0 };
+        mesh.edge_neighbours[k - offset]
+            .iter()
+            .flatten()
+            .map(|&j| j as usize + offset)
+            .collect()
+    };
+    for (view, frame) in &lay.views {
+        let seen = render::visible(&tris, *view, frame);
+        let mut placed: Vec<[f32; 4]> = Vec::new();
+        for mark in marks {
+            let mut label = (0.0, 0.0, 0.0);
+            for (k, t) in tris.iter().enumerate() {
+                if !mark.member.get(k).copied().unwrap_or(false) {
+                    continue;
+                }
+                for e in 0..3 {
+                    let (a, b) = (t.corners[e], t.corners[(e + 1) % 3]);
+                    let outside = neighbours(k)
+                        .into_iter()
+                        .find(|&j| shares_edge(&tris[j], &a, &b))
+                        .filter(|&j| !mark.member.get(j).copied().unwrap_or(false));
+                    if let Some(j) = outside {
+                        draw_seen_edge(
+                            canvas,
+                            &seen,
+                            (k, j),
+                            [frame.project(*view, &a), frame.project(*view, &b)],
+                        );
+                    }
+                }
+                let (x, y) = frame.project(*view, &centroid(t));
+                if seen.at(x as i64, y as i64) == Some(k) {
+                    label = (label.0 + x, label.1 + y, label.2 + 1.0);
+                }
+            }
+            if label.2 > 0.0 && *view != View::Rear {
+                let at = (label.0 / label.2, label.1 / label.2);
+                placed.push(draw_label(canvas, &mark.name, at, &placed));
+            }
+        }
+    }
+}
+
+fn centroid(t: &DisplayTri) -> tuft_mesh::Point {
+    let [a, b, c] = t.corners;
+    tuft_mesh::Point::from((a.coords + b.coords + c.coords) / 3.0)
+}
+
+/// True when triangle `t` has both `a` and `b` among its corners.
+fn shares_edge(t: &DisplayTri, a: &tuft_mesh::Point, b: &tuft_mesh::Point) -> bool {
+    t.corners.contains(a) && t.corners.contains(b)
+}
+
+/// The projected edge `ends`, drawn only where one of the two triangles it
+/// separates is the one seen (so edges behind the body stay hidden).
+fn draw_seen_edge(
+    canvas: &mut Canvas,
+    seen: &render::Visible,
+    (k, j): (usize, usize),
+    ends: [(f64, f64); 2],
+) {
+    let [(x0, y0), (x1, y1)] = ends;
+    let steps = (x1 - x0).hypot(y1 - y0).ceil().max(1.0) as usize;
+    for s in 0..=steps {
+        let f = s as f64 / steps as f64;
+        let (x, y) = (x0 + f * (x1 - x0), y0 + f * (y1 - y0));
+        let near = [(0, 0), (1, 0), (-1, 0), (0, 1), (0, -1)]
+            .iter()
+            .any(|&(dx, dy)| matches!(seen.at(x as i64 + dx, y as i64 + dy), Some(m) if m == k || m == j));
+        if near {
+            canvas.fill_circle(x as f32, y as f32, 1.3, OUTLINE);
+        }
+    }
+}
+
+/// The region's name on a white plate at `at`, moved down below any plate
+/// already `placed` that it would cover; returns its plate (x, y, w, h).
+fn draw_label(canvas: &mut Canvas, name: &str, at: (f64, f64), placed: &[[f32; 4]]) -> [f32; 4] {
+    let style = TextStyle::new(14.0)
+        .bold()
+        .colour(OUTLINE)
+        .align(Align::Centre);
+    let w = text::width(name, &style) + 8.0;
+    let (x, mut y) = (at.0 as f32, at.1 as f32);
+    let overlaps = |p: &[f32; 4], y: f32| {
+        let (l, t) = (x - 0.5 * w, y - 13.0);
+        l < p[0] + p[2] && p[0] < l + w && t < p[1] + p[3] && p[1] < t + 18.0
+    };
+    while let Some(p) = placed.iter().find(|p| overlaps(p, y)) {
+        y = p[1] + p[3] + 15.0;
+    }
+    let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
+    canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);
+    text::draw(canvas, name, x, y, &style);
+    plate
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use super::*;
+    use crate::output::canvas::testing::{decode, keep};
+    use crate::output::fixture::{Fixture, caption};
+    use crate::output::sheet::{SurfaceField, surface_sheet};
+
+    fn outline_pixels(marks: &[RegionMark]) -> usize {
+        let f = Fixture::sphere(3);
+        let mut canvas = surface_sheet(&f.surface(), SurfaceField::Pressure, &caption()).unwrap();
+        draw_regions(&mut canvas, &f.mesh, marks);
+        let png = canvas.to_png().unwrap();
+        keep("regions-sphere.png", &png);
+        let d = decode(&png);
+        let mut n = 0;
+        for y in 0..1000 {
+            for x in 0..1600 {
+                n += usize::from(d.pixel(x, y) == OUTLINE);
+            }
+        }
+        n
+    }
+
+    /// A region (the sphere's rear cap) is outlined and named; with no
+    /// region the sheet has no outline colour at all.
+    #[test]
+    fn a_region_is_outlined_where_it_is_seen() {
+        let f = Fixture::sphere(3);
+        let member = f.mesh.panels.iter().map(|p| p.centroid.x > 0.3).collect();
+        let marks = [RegionMark {
+            name: "rear cap".into(),
+            member,
+        }];
+        assert_eq!(outline_pixels(&[]), 0);
+        assert!(outline_pixels(&marks) > 300);
+    }
+}
