@@ -9,14 +9,9 @@ use common::cut;
 use tuft_mesh::prepare::{PrepareParams, prepare};
 use tuft_mesh::{LengthUnit, MeshError, Mirrors, generate};
 
-#[test]
-fn half_sphere_in_millimetres_with_symmetry() {
-    // A 1 m radius half sphere written in millimetres.
-    let mut half = cut(&generate::latlong_sphere(1000.0, 40, 80), |c| c.y > 0.0);
-    tuft_mesh::repair::remove_unused_vertices(&mut half);
-    let dir = tempfile::tempdir().unwrap();
-    let path = common::write(dir.path(), "half.stl", &common::binary_stl(&half));
-    let params = PrepareParams {
+/// A half model in millimetres coarsened to about 1,500 panels.
+fn half_in_mm() -> PrepareParams {
+    PrepareParams {
         units: LengthUnit::Mm,
         mirrors: Mirrors {
             ground: None,
@@ -24,7 +19,17 @@ fn half_sphere_in_millimetres_with_symmetry() {
         },
         target_panels: Some(1500),
         ..PrepareParams::default()
-    };
+    }
+}
+
+#[test]
+fn half_sphere_in_millimetres_with_symmetry() {
+    // A 1 m radius half sphere written in millimetres.
+    let mut half = cut(&generate::latlong_sphere(1000.0, 40, 80), |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let dir = tempfile::tempdir().unwrap();
+    let path = common::write(dir.path(), "half.stl", &common::binary_stl(&half));
+    let params = half_in_mm();
     let (panels, report) = prepare(&path, &params).unwrap();
     assert_eq!(report.read.as_ref().unwrap().facets, half.len());
     assert!(panels.len() <= 1500 + 200);
@@ -87,15 +92,7 @@ fn a_cut_within_a_millimetre_or_two_of_the_plane_is_moved_onto_it() {
         }
     }
     let dir = tempfile::tempdir().unwrap();
-    let params = PrepareParams {
-        units: LengthUnit::Mm,
-        mirrors: Mirrors {
-            ground: None,
-            symmetry: true,
-        },
-        target_panels: Some(1500),
-        ..PrepareParams::default()
-    };
+    let params = half_in_mm();
     let path = common::write(dir.path(), "half.stl", &common::binary_stl(&half));
     let (_, report) = prepare(&path, &params).unwrap();
     assert_eq!(report.repair.holes.mirror_closed.len(), 1);

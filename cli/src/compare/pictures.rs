@@ -219,7 +219,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text(
             "Unchanged surface: the part of the lift difference arising there",
             &signed_places(s.unchanged_lift_kg, 0),
-            &format!("kg at {} m/s", crate::output::short_number(c.b.speed)),
+            &at,
         ),
         NumberRow::number(
             "Largest distance from B's panels to A's surface",
