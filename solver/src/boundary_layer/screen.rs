@@ -302,6 +302,8 @@ struct LineContext<'a> {
     /// Free-stream speed, m/s.
     speed: f64,
     params: &'a BoundaryLayerParams,
+    /// Panels whose velocity no march should trust ([`crumpled_panels`]).
+    crumpled: Vec<bool>,
 }
 
 impl<'a> LineContext<'a> {
@@ -327,6 +329,7 @@ impl<'a> LineContext<'a> {
             step: 0.5 * median_size,
             speed,
             params,
+            crumpled: crumpled_panels(mesh),
         }
     }
 
@@ -373,10 +376,11 @@ impl<'a> LineContext<'a> {
     }
 
     /// Segments on the panels either side of each crossing of a sharp convex
-    /// edge (the runs of segments in the panel before and after it).
+    /// edge (the runs of segments in the panel before and after it), and
+    /// segments on crumpled panels ([`crumpled_panels`]).
     fn peak_segments(&self, trace: &Trace) -> Vec<bool> {
         let p = &trace.panels;
-        let mut peak = vec![false; p.len()];
+        let mut peak: Vec<bool> = p.iter().map(|&t| self.crumpled(t as usize)).collect();
         for j in 1..p.len() {
             let (a, b) = (p[j - 1] as usize, p[j] as usize);
             if a == b || !sharp_convex(self.mesh, a, b, self.params.sharp_edge_deg) {
@@ -492,13 +496,20 @@ impl<'a> LineContext<'a> {
         out
     }
 
+    /// See [`crumpled_panels`].
+    fn crumpled(&self, t: usize) -> bool {
+        self.crumpled[t]
+    }
+
     /// Segment indices `j` (the crossing into segment `j`) where the flow
     /// turns down round a convex edge by more than the bluff-edge limit,
-    /// except from a surface that faces upstream (its normal within 60
-    /// degrees of the oncoming flow): round such a front edge (the rim of
+    /// except from a surface that faces upstream ([`FRONT_FACING_COS`]):
+    /// round such a front edge (the rim of
     /// a flat nose) the flow reattaches behind a small bubble (common
     /// practice), so the layer goes on, the edge's suction peak
-    /// interpolated out.
+    /// interpolated out. Nor next to a crumpled panel
+    /// ([`crumpled_panels`]), whose normal flips with no edge of the shape
+    /// there.
     fn bluff_crossings(&self, trace: &Trace) -> Vec<usize> {
         let limit = self.params.base_edge_turn_deg.to_radians();
         (1..trace.panels.len())
@@ -507,9 +518,9 @@ impl<'a> LineContext<'a> {
                 let (da, db) = (self.field.direction[a], self.field.direction[b]);
                 let na = self.mesh.panels[a].normal.into_inner();
                 let turn = (-db.dot(&na)).atan2(db.dot(&da));
-                let front =
-                    self.mesh.panels[a].normal.dot(&self.flow_dir) <= -coverage::LEEWARD_COS;
-                a != b && turn > limit && !front
+                let front = self.mesh.panels[a].normal.dot(&self.flow_dir) <= -FRONT_FACING_COS;
+                let crumpled = self.crumpled(a) || self.crumpled(b);
+                a != b && turn > limit && !front && !crumpled
             })
             .collect()
     }
@@ -569,6 +580,45 @@ impl<'a> LineContext<'a> {
             None => Some((s, clean_panel_before(trace, arc, peak, s))),
         }
     }
+}
+
+/// A surface whose normal points against the flow by more than this
+/// cosine (inclined about 15 degrees or more into the stream) faces
+/// upstream: the flow round a sharp edge at its rear reattaches behind it
+/// (the rim of a flat nose, where the panels of a coarsened scan slope
+/// part-way between the face and the sides; our choice).
+const FRONT_FACING_COS: f64 = 0.25;
+
+/// Panels smaller than this share of the median panel size count as
+/// crumpled (our choice; see [`crumpled_panels`]).
+const CRUMPLED_SIZE: f64 = 0.25;
+
+/// Panels a coarsened scan crumpled (at the apex of a fan of facets, say):
+/// smaller than [`CRUMPLED_SIZE`] of the median size (as `sqrt(2 area)`, so
+/// a sliver counts as small), or folded over, their
+/// normal turned more than 90 degrees from the mean normal of their edge
+/// neighbours. Their velocities jump from panel to panel with no feature
+/// of the shape behind them, so they take no part in a bluff edge and the
+/// speed on them is interpolated like an edge's suction peak (our choice).
+fn crumpled_panels(mesh: &PanelMesh) -> Vec<bool> {
+    // Sizes from the areas, which a sliver's long edge does not hide.
+    let side = |t: usize| (2.0 * mesh.panels[t].area).sqrt();
+    let mut sides: Vec<f64> = (0..mesh.len()).map(side).collect();
+    sides.sort_by(f64::total_cmp);
+    let median = sides.get(sides.len() / 2).copied().unwrap_or(0.0);
+    (0..mesh.len())
+        .map(|t| {
+            let p = &mesh.panels[t];
+            let around: Vector3<f64> = mesh.edge_neighbours[t]
+                .iter()
+                .flatten()
+                .map(|&j| {
+                    mesh.panels[j as usize].normal.into_inner() * mesh.panels[j as usize].area
+                })
+                .sum();
+            side(t) < CRUMPLED_SIZE * median || p.normal.dot(&around) < 0.0
+        })
+        .collect()
 }
 
 /// What each segment of a marched line gives its panel: the state of the
