@@ -101,13 +101,22 @@ fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunO
     let mut todo: Vec<Member<'_>> = Vec::new();
     for index in range {
         let variant = &plan.variants[index];
-        if !opt.force && root.join(&variant.name).join("summary.json").exists() {
-            done += 1;
-            say(
-                opt.quiet,
-                &format!("[{done}/{total}] {}: already finished, kept", variant.name),
-            );
-            continue;
+        let summary = root.join(&variant.name).join("summary.json");
+        if !opt.force && summary.exists() {
+            match stale(&summary, variant, dir) {
+                None => {
+                    done += 1;
+                    say(
+                        opt.quiet,
+                        &format!("[{done}/{total}] {}: already finished, kept", variant.name),
+                    );
+                    continue;
+                }
+                Some(why) => say(
+                    opt.quiet,
+                    &format!("{}: {why}, so it runs again", variant.name),
+                ),
+            }
         }
         todo.push(Member { index, variant });
     }
@@ -159,6 +168,29 @@ fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunO
         start = end;
     }
     failed
+}
+
+/// Why a finished variant's result no longer answers its inputs, if it
+/// does not: its case differs from the one the result was computed for
+/// (the base case or the sweep changed), or its STL was written after the
+/// result (a scan re-exported under the same name). `None` keeps it.
+fn stale(summary: &Path, variant: &plan::Variant, dir: &Path) -> Option<String> {
+    let Ok(file) = &variant.file else {
+        return None;
+    };
+    let kept = crate::compare::read_summary(summary.parent()?).ok()?;
+    let now = serde_json::to_value(file).ok()?;
+    if kept.case != now {
+        return Some("its case changed since it was run".into());
+    }
+    let stl = file.geometry.stl.as_ref().map(|p| dir.join(p))?;
+    let modified = |p: &Path| std::fs::metadata(p).and_then(|m| m.modified()).ok();
+    match (modified(&stl), modified(summary)) {
+        (Some(input), Some(result)) if input > result => {
+            Some(format!("{} is newer than its result", stl.display()))
+        }
+        _ => None,
+    }
 }
 
 fn say(quiet: bool, line: &str) {

@@ -261,4 +261,15 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     ]);
     assert_eq!(code, 2);
     assert_eq!(err.matches("already finished").count(), 4, "{err}");
+    // A changed base case runs the finished variants again instead of
+    // keeping results computed for other inputs.
+    std::fs::write(&file, SPHERE_SWEEP.replace("panels = 320", "panels = 330")).unwrap();
+    let (_, err) = tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(err.matches("already finished").count(), 0, "{err}");
+    assert_eq!(err.matches("its case changed").count(), 4, "{err}");
 }
