@@ -261,6 +261,16 @@ pub enum WakesMode {
 impl Case {
     /// Read and check a case file.
     pub fn load(path: &Path) -> Result<Self> {
+        if path
+            .extension()
+            .is_some_and(|e| e.eq_ignore_ascii_case("stl"))
+        {
+            bail!(
+                "{}: this is an STL; tuft run takes a case file (.toml) that names it (see the README), \
+                 and tuft check reads an STL directly",
+                path.display()
+            );
+        }
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the case file", path.display()))?;
         let file: CaseFile = toml::from_str(&text).map_err(|e| toml_error(path, &text, &e))?;
@@ -357,7 +367,8 @@ fn check_flow(file: &CaseFile) -> Result<()> {
     }
     if f.speed > 100.0 {
         bail!(
-            "flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s)",
+            "flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s; a speed in \
+             km/h goes in flow.speed_kmh)",
             f.speed
         );
     }

@@ -56,6 +56,12 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         (args.file.clone(), settings(args)?)
     };
     let (panels, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
+    let [lo, hi] = report.bounds;
+    let size = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
+    let key = if is_case { "geometry.units" } else { "--units" };
+    if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
+        anyhow::bail!("{}: {why}", file.display());
+    }
     if let Some(out) = &args.save_panels {
         save_panels(out, &panels, params.units)?;
     }

@@ -176,25 +176,32 @@ pub const BODY_SIZE_LIMITS: [f64; 2] = [0.05, 30.0];
 /// Refuse a body whose size says the length unit was misread.
 fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {
     let (lo, hi) = mesh.bounds();
-    let size = (hi - lo).max();
-    if (BODY_SIZE_LIMITS[0]..=BODY_SIZE_LIMITS[1]).contains(&size) {
-        return Ok(());
-    }
     let unit = match &case.source {
-        GeometrySource::Stl { unit, .. } => {
-            format!(
-                "; is geometry.units right (the STL was read as {})?",
-                unit.name()
-            )
-        }
-        GeometrySource::Shape { .. } => String::new(),
+        GeometrySource::Stl { unit, .. } => Some(*unit),
+        GeometrySource::Shape { .. } => None,
     };
-    bail!(
-        "the body is {} m across at its largest, outside the {} to {} m tuft screens{unit}",
+    match size_problem((hi - lo).max(), unit, "geometry.units") {
+        Some(why) => bail!("{why}"),
+        None => Ok(()),
+    }
+}
+
+/// The sentence refusing a body `size` metres across at its largest, when
+/// it lies outside [`BODY_SIZE_LIMITS`]; `unit` is the STL's (named with
+/// `key`, the setting that gives it), `None` for a built-in shape.
+pub fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -> Option<String> {
+    if (BODY_SIZE_LIMITS[0]..=BODY_SIZE_LIMITS[1]).contains(&size) {
+        return None;
+    }
+    let hint = unit.map_or(String::new(), |u| {
+        format!("; is {key} right (the STL was read as {})?", u.name())
+    });
+    Some(format!(
+        "the body is {} m across at its largest, outside the {} to {} m tuft screens{hint}",
         crate::output::html::significant(size, 2),
         BODY_SIZE_LIMITS[0],
         BODY_SIZE_LIMITS[1]
-    )
+    ))
 }
 
 /// Refuse axle positions outside the body's length (given in millimetres,

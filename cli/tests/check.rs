@@ -186,3 +186,26 @@ fn saved_panels_read_back_as_the_reported_mesh() {
     // Millimetres, as written: a 1 m sphere spans about 2000 (inscribed).
     assert!((hi.x - lo.x - 2000.0).abs() < 40.0, "{lo:?} {hi:?}");
 }
+
+/// A unit slip is refused by check as by run: the committed coupe (in mm)
+/// read as metres is 4.5 km long. An STL given to run is refused with a
+/// pointer to the case file.
+#[test]
+fn a_unit_slip_is_refused_and_run_wants_a_case_file() {
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let stl = cases.join("coupe.stl");
+    let out = check(&[stl.to_str().unwrap(), "--units", "m"]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("--units") && stderr.contains("4500 m"),
+        "{stderr}"
+    );
+    let out = Command::new(tuft())
+        .args(["run", stl.to_str().unwrap()])
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("case file (.toml)"), "{stderr}");
+}
