@@ -632,6 +632,19 @@ fn underbody_spread(c: &[Row]) -> Option<String> {
     ))
 }
 
+/// A note when the variants were solved on panel counts more than 5 % apart
+/// (as `tuft compare` notes for two runs): part of every difference is
+/// then the discretisation's.
+fn panel_spread(c: &[Row]) -> Option<String> {
+    let (lo, hi) = range(c, |r| r.panels as f64);
+    (hi - lo > 0.05 * hi).then(|| {
+        format!(
+            "The variants were solved on {lo:.0} to {hi:.0} panels: part of every difference between them is \
+             discretisation error; rank variants at about the same panel count."
+        )
+    })
+}
+
 /// Lowest and highest of a percentage over the variants.
 fn range(c: &[Row], f: fn(&Row) -> f64) -> (f64, f64) {
     let lo = c.iter().map(f).fold(f64::INFINITY, f64::min);
@@ -682,9 +695,13 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         } else {
             format!("{label}: ")
         };
-        for text in [separation_spread(rows), underbody_spread(rows)]
-            .into_iter()
-            .flatten()
+        for text in [
+            panel_spread(rows),
+            separation_spread(rows),
+            underbody_spread(rows),
+        ]
+        .into_iter()
+        .flatten()
         {
             let _ = writeln!(
                 s,
@@ -891,6 +908,17 @@ mod tests {
         );
         assert!(html.contains("No plot against geometry.stl"));
         assert!(csv(&c).contains("/scans/deck0.stl"));
+    }
+
+    /// Variants on panel counts more than 5 % apart get the page's note.
+    #[test]
+    fn differing_panel_counts_are_noted() {
+        let mut c = sweep(&[10.0, 10.0]);
+        assert!(panel_spread(&c.variants).is_none());
+        c.variants[1].panels = 1200;
+        let note = panel_spread(&c.variants).unwrap();
+        assert!(note.contains("1000 to 1200 panels"), "{note}");
+        assert!(page(&c, &[]).contains("discretisation error"));
     }
 
     fn warn(r: &mut Row, text: &str) {
