@@ -5,7 +5,9 @@
 //! (common practice in tunnel testing).
 //!
 //! Tufts stand on a square grid of the picture, [`TUFT_SPACING`] pixels
-//! apart, each on whichever panel is seen at its grid point, and lie along
+//! apart and through the picture of the origin (so a body symmetric about
+//! y = 0 gets symmetric tufts), each on whichever panel is seen at its grid
+//! point, and lie along
 //! that panel's surface velocity as projected into the view: a tuft on a
 //! surface seen at a slant is foreshortened, as in a photograph, and one
 //! on a surface seen nearly edge on (its normal more than about 72 degrees
@@ -77,15 +79,20 @@ pub fn tufts(s: &SurfaceResult<'_>, tris: &[DisplayTri], view: View, frame: &Fra
     let seen = render::visible(tris, view, frame);
     let (right, up, toward) = view.basis();
     let (l, t, w, h) = frame.rect;
-    let half = 0.5 * TUFT_SPACING;
-    let columns = ((w as f64 - half) / TUFT_SPACING).floor().max(0.0) as i64 + 1;
-    let rows = ((h as f64 - half) / TUFT_SPACING).floor().max(0.0) as i64 + 1;
+    // The grid passes through the picture of the origin, so a body
+    // symmetric about y = 0 gets symmetric tufts in the views across it.
+    let (ox, oy) = frame.project(view, &tuft_mesh::Point::origin());
+    let first =
+        |origin: f64, edge: f64| origin - ((origin - edge) / TUFT_SPACING).floor() * TUFT_SPACING;
+    let (x0, y0) = (first(ox, l as f64), first(oy, t as f64));
+    let columns = ((l + w) as f64 - x0).div_euclid(TUFT_SPACING).max(0.0) as i64 + 1;
+    let rows = ((t + h) as f64 - y0).div_euclid(TUFT_SPACING).max(0.0) as i64 + 1;
     let mut out = Vec::new();
     for row in 0..rows {
         for column in 0..columns {
             let root = (
-                l as f64 + half + column as f64 * TUFT_SPACING,
-                t as f64 + half + row as f64 * TUFT_SPACING,
+                x0 + column as f64 * TUFT_SPACING,
+                y0 + row as f64 * TUFT_SPACING,
             );
             let Some(k) = seen.at(root.0 as i64, root.1 as i64) else {
                 continue;
@@ -319,6 +326,21 @@ mod tests {
             .filter(|t| t.kind != TuftKind::Separated && (t.root.1 - cy).abs() > 20.0)
             .collect();
         assert!(attached.len() > 100);
+        // The grid runs through the centre line: every tuft has its mirror.
+        let roots: Vec<(f64, f64)> = tufts.iter().map(|t| t.root).collect();
+        let mirrored = roots
+            .iter()
+            .filter(|r| {
+                roots
+                    .iter()
+                    .any(|m| (m.0 - r.0).abs() < 1e-6 && (m.1 - (2.0 * cy - r.1)).abs() < 1e-6)
+            })
+            .count();
+        assert!(
+            mirrored * 100 >= roots.len() * 95,
+            "{mirrored} of {}",
+            roots.len()
+        );
         for t in attached {
             let (dx, dy) = (t.tip.0 - t.root.0, t.tip.1 - t.root.1);
             assert!(dx >= -1e-9);
