@@ -142,8 +142,9 @@ fn print_summary(out: &Path, s: &Summary) {
         "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}), lift C_L {:.3}",
         s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
     );
+    let floor = crate::write::underbody_words(s, "; ");
     println!(
-        "  lift {} kg (front {}, rear {}), separated {:.1} % of the surface",
+        "  lift {} kg (front {}, rear {}{floor}), separated {:.1} % of the surface",
         crate::output::whole(s.lift_kg.total),
         crate::output::whole(s.lift_kg.front_axle),
         crate::output::whole(s.lift_kg.rear_axle),

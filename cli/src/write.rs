@@ -514,6 +514,20 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
     )
 }
 
+/// A net downforce that the smooth underbody's suction supplies is the
+/// least certain number of a run: the words that say so where the lift is
+/// first read (after `lead`), or nothing.
+pub fn underbody_words(s: &Summary, lead: &str) -> String {
+    if s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
+        format!(
+            "{lead}of which the smooth underbody {} kg, the least certain part",
+            output::whole(s.lift_kg.underbody)
+        )
+    } else {
+        String::new()
+    }
+}
+
 /// The drag force with the band's ends: `"95 (92 to 245)"`, N (the force
 /// scales with the coefficient at one speed and reference area).
 fn drag_force_words(d: &crate::summary::DragEstimate) -> String {
@@ -628,16 +642,7 @@ fn report(
             "-",
         ),
     ]);
-    // A net downforce that the smooth underbody's suction supplies is the
-    // least certain number on the page: say so where it is first read.
-    let floor = if s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
-        format!(
-            ", of which the smooth underbody {} kg, the least certain part",
-            output::whole(s.lift_kg.underbody)
-        )
-    } else {
-        String::new()
-    };
+    let floor = underbody_words(s, ", ");
     let summary = format!(
         "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear{floor}); \
          {:.1} % of the surface separated.",
