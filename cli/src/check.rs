@@ -296,6 +296,12 @@ fn hole_lines(r: &PrepareReport) -> String {
     for l in h.filled.iter().take(5) {
         s += &describe("filled:", l);
     }
+    if h.filled.len() > 5 {
+        s += &format!(
+            "           and {} more filled (all of them in --json)\n",
+            h.filled.len() - 5
+        );
+    }
     if h.non_manifold_edges > 0 {
         s += "           warning: edges shared by three or more facets make the surface ambiguous there\n";
     }
