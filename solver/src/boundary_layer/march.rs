@@ -31,6 +31,10 @@ pub struct LineSample {
     /// turbulent separation bubble closes only over such a turn (see
     /// [`march_line`]).
     pub concave_turn: f64,
+    /// The surface here faces into the stream (inclined by at least
+    /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
+    /// section.
+    pub faces_stream: bool,
 }
 
 /// How the line starts.
@@ -100,6 +104,12 @@ enum Phase {
 /// between a turbulent separation and the station where the edge speed has
 /// recovered for the separation to count as a bubble in a concave corner.
 pub const BUBBLE_CONCAVE_TURN: f64 = 10.0 * std::f64::consts::PI / 180.0;
+
+/// Fewest stations a bubble that starts on a face into the stream may take
+/// to close, whatever its thickness: six (three panels at the screening's
+/// spacing of half a median panel), the width over which panels resolve a
+/// concave corner's dip in the speed (our choice).
+pub const BUBBLE_MIN_STATIONS: f64 = 6.0;
 
 /// Share by which the edge speed must exceed its value at a turbulent
 /// separation for the bubble to close (so that ripples of the interpolated
@@ -255,7 +265,27 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
 fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     let here = ctx.samples[ctx.i];
     let thickness = state.theta * (head::h1_of_h(state.h) + state.h);
-    let reach = ctx.params.reattach_thicknesses * thickness;
+    let spacing = match ctx.samples {
+        [a, b, ..] => b.s - a.s,
+        _ => 0.0,
+    };
+    // On a face into the stream (the layer left the windscreen just past
+    // the cowl's crease) the crease behind counts too, and the bubble gets
+    // at least the few stations over which the panels resolve the corner's
+    // dip, however thin the layer.
+    let (behind, reach) = if here.faces_stream {
+        let reach =
+            (ctx.params.reattach_thicknesses * thickness).max(BUBBLE_MIN_STATIONS * spacing);
+        let behind = ctx.samples[..ctx.i]
+            .iter()
+            .rev()
+            .take_while(|b| here.s - b.s <= 0.5 * reach)
+            .last()
+            .unwrap_or(&here);
+        (behind, reach)
+    } else {
+        (&here, ctx.params.reattach_thicknesses * thickness)
+    };
     let target = here.speed * (1.0 + REATTACH_SPEED_MARGIN);
     let mut corner = false;
     for (j, sample) in ctx.samples.iter().enumerate().skip(ctx.i + 1) {
@@ -263,7 +293,7 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
         if run > reach || sample.forced_separation {
             return None;
         }
-        if sample.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN {
+        if sample.concave_turn - behind.concave_turn >= BUBBLE_CONCAVE_TURN {
             corner = true;
         } else if run > 0.5 * reach {
             // The corner must come within the first half of the reach: a

@@ -458,6 +458,8 @@ impl<'a> LineContext<'a> {
                 body_fraction: self.body_fraction(&p),
                 forced_separation: forced_here,
                 concave_turn: concave[seg],
+                faces_stream: self.mesh.panels[panel as usize].normal.dot(&self.flow_dir)
+                    <= -march::BUBBLE_CONCAVE_TURN.sin(),
             });
             segments.push(seg);
         }
