@@ -80,27 +80,16 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// Write the panels to `out` whole or not at all (a temporary file beside
-/// it, renamed when complete).
+/// Write the panels to `out` whole or not at all
+/// ([`crate::outdir::write_whole`]).
 fn save_panels(
     out: &std::path::Path,
     panels: &tuft_mesh::PanelMesh,
     unit: LengthUnit,
 ) -> anyhow::Result<()> {
-    let name = out
-        .file_name()
-        .map_or("panels.stl".into(), |n| n.to_string_lossy().into_owned());
-    let tmp = out.with_file_name(format!(".{name}.partial-{}", std::process::id()));
-    let write = || -> std::io::Result<()> {
-        let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp)?);
-        tuft_mesh::export::write_panels_stl(&mut file, panels, unit)?;
-        std::io::Write::flush(&mut file)?;
-        std::fs::rename(&tmp, out)
-    };
-    write().map_err(|e| {
-        let _ = std::fs::remove_file(&tmp);
-        anyhow::anyhow!("{}: cannot write the panels: {e}", out.display())
-    })
+    let mut bytes = Vec::new();
+    tuft_mesh::export::write_panels_stl(&mut bytes, panels, unit)?;
+    crate::outdir::write_whole(out, &bytes)
 }
 
 /// The STL and settings a case file gives a run.

@@ -414,14 +414,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
     Ok((row, record))
 }
 
-/// Write a file whole: a temporary file renamed into place.
-fn write_whole(path: &Path, bytes: &[u8]) -> Result<()> {
-    let tmp = path.with_extension(format!("partial-{}", std::process::id()));
-    std::fs::write(&tmp, bytes).with_context(|| format!("{}: cannot write", tmp.display()))?;
-    std::fs::rename(&tmp, path).with_context(|| format!("{}: cannot write", path.display()))
-}
-
 fn write_outputs(dir: &Path, c: &Collected) -> Result<()> {
+    use crate::outdir::write_whole;
     write_whole(&dir.join("sweep.csv"), csv(c).as_bytes())?;
     write_whole(
         &dir.join("sweep.json"),

@@ -159,6 +159,20 @@ impl Drop for Staging {
     }
 }
 
+/// Write a file whole: a temporary file beside it renamed into place, so a
+/// reader never sees half of it (the temporary file is removed on failure).
+///
+/// # Errors
+/// One sentence naming the file that could not be written.
+pub fn write_whole(path: &Path, bytes: &[u8]) -> Result<()> {
+    let tmp = path.with_extension(format!("partial-{}", std::process::id()));
+    let written = std::fs::write(&tmp, bytes).and_then(|()| std::fs::rename(&tmp, path));
+    written.with_context(|| {
+        let _ = std::fs::remove_file(&tmp);
+        format!("{}: cannot write", path.display())
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

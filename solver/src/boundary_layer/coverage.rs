@@ -128,7 +128,7 @@ pub struct StartLimits {
 /// Cosine of the largest angle between a surface's outward normal and the
 /// free stream for which it counts as facing downstream (60 degrees): a
 /// base, where flow that left a bluff edge does not come back.
-pub(crate) const LEEWARD_COS: f64 = 0.5;
+const LEEWARD_COS: f64 = 0.5;
 
 /// Cut an upstream trace where it first comes within the seed ring of an
 /// attachment point (1.5 panel sizes, as the ring seeds), where it first

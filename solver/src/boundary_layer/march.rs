@@ -128,7 +128,9 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// `params.reattach_thicknesses` boundary-layer thicknesses `theta (H1 +
 /// H)` (Head's `H1`), the surface turns concave into the stream by at
 /// least [`BUBBLE_CONCAVE_TURN`] within the first half of that distance and
-/// no bluff edge lies between: that is a short bubble in a concave corner
+/// no bluff edge lies between (on a face into the stream, a windscreen, the
+/// turn may also lie up to half that distance behind, and the distance is
+/// at least [`BUBBLE_MIN_STATIONS`] stations): that is a short bubble in a concave corner
 /// (the foot of a windscreen, whose flow speeds up again along the
 /// screen), whose stations keep the separation
 /// point's thicknesses with no skin friction and risk 1, still counted
@@ -261,8 +263,14 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
 /// point's by [`REATTACH_SPEED_MARGIN`], if that comes within
 /// `params.reattach_thicknesses` thicknesses `theta (H1 + H)` and before
 /// any bluff edge, with the surface turning concave by at least
-/// [`BUBBLE_CONCAVE_TURN`] within the first half of that distance.
+/// [`BUBBLE_CONCAVE_TURN`] within the first half of that distance. On a
+/// face into the stream the turn is counted from half that distance
+/// upstream and the distance is at least [`BUBBLE_MIN_STATIONS`] stations.
+/// `None` always when `params.reattach_thicknesses` is 0.
 fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
+    if ctx.params.reattach_thicknesses <= 0.0 {
+        return None;
+    }
     let here = ctx.samples[ctx.i];
     let thickness = state.theta * (head::h1_of_h(state.h) + state.h);
     let spacing = match ctx.samples {

@@ -458,8 +458,7 @@ impl<'a> LineContext<'a> {
                 body_fraction: self.body_fraction(&p),
                 forced_separation: forced_here,
                 concave_turn: concave[seg],
-                faces_stream: self.mesh.panels[panel as usize].normal.dot(&self.flow_dir)
-                    <= -march::BUBBLE_CONCAVE_TURN.sin(),
+                faces_stream: self.faces_stream(panel as usize),
             });
             segments.push(seg);
         }
@@ -479,7 +478,6 @@ impl<'a> LineContext<'a> {
     /// of a step: the stream is pushed back onto the surface there; at the
     /// foot of a rear window the boot deck faces up, not into the stream).
     fn concave_turns(&self, trace: &Trace) -> Vec<f64> {
-        let facing = -march::BUBBLE_CONCAVE_TURN.sin();
         let mut acc = 0.0;
         let mut out = Vec::with_capacity(trace.panels.len());
         for (j, &b) in trace.panels.iter().enumerate() {
@@ -488,7 +486,7 @@ impl<'a> LineContext<'a> {
             {
                 let (pa, pb) = (&self.mesh.panels[a as usize], &self.mesh.panels[b as usize]);
                 if pa.normal.dot(&(pb.centroid - pa.centroid)) > 0.0
-                    && pb.normal.dot(&self.flow_dir) <= facing
+                    && self.faces_stream(b as usize)
                 {
                     acc += pa.normal.dot(&pb.normal).clamp(-1.0, 1.0).acos();
                 }
@@ -496,6 +494,13 @@ impl<'a> LineContext<'a> {
             out.push(acc);
         }
         out
+    }
+
+    /// True when panel `t` faces into the stream, inclined by at least
+    /// [`march::BUBBLE_CONCAVE_TURN`] against it (a windscreen, the face of
+    /// a step).
+    fn faces_stream(&self, t: usize) -> bool {
+        self.mesh.panels[t].normal.dot(&self.flow_dir) <= -march::BUBBLE_CONCAVE_TURN.sin()
     }
 
     /// See [`crumpled_panels`].
