@@ -121,30 +121,19 @@ pub fn surface_sheet_with_params(
     caption: &Caption,
     params: &SheetParams,
 ) -> Result<Canvas, OutputError> {
-    s.validate()?;
-    let mut canvas = Canvas::new(params.width, params.height)?;
-    let tris = display_triangles(s.mesh);
-    let lay = layout(&tris, params);
     let (scale, legend, what, note) = field_style(s, field);
-    let paint = |i: usize| panel_paint(s, field, &scale, i);
-    for (view, frame) in &lay.views {
-        draw_cell(&mut canvas, &tris, *view, frame, params, &paint);
-        decorate(&mut canvas, s, *view, frame, caption);
-    }
     let note = match (field, &s.separation_note) {
         (SurfaceField::SeparationRisk, Some(extra)) => format!("{note} {extra}"),
         _ => note.to_owned(),
     };
-    draw_titles(&mut canvas, &caption.title(what), &note);
-    let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
-    let bar_h = (f64::from(params.height) * 0.5).min(520.0);
-    colorbar::draw_bar(
-        &mut canvas,
-        &scale,
-        (bar_x as f32, (TITLE_BAND + 50.0) as f32, 30.0, bar_h as f32),
-        &legend,
-    );
-    Ok(canvas)
+    let style = FieldStyle {
+        scale,
+        legend,
+        what: what.to_owned(),
+        note,
+    };
+    let paint = |i: usize| panel_paint(s, field, &style.scale, i);
+    field_sheet_with_params(s, &style, caption, params, &paint)
 }
 
 /// What a sheet of any per-panel field shows: the colour scale, legend
@@ -174,15 +163,18 @@ pub fn field_sheet(
     caption: &Caption,
     paint: &dyn Fn(usize) -> PanelPaint,
 ) -> Result<Canvas, OutputError> {
-    s.validate()?;
-    let params = SheetParams::default();
-    let mut canvas = Canvas::new(params.width, params.height)?;
-    let tris = display_triangles(s.mesh);
-    let lay = layout(&tris, &params);
-    for (view, frame) in &lay.views {
-        draw_cell(&mut canvas, &tris, *view, frame, &params, paint);
-        decorate(&mut canvas, s, *view, frame, caption);
-    }
+    field_sheet_with_params(s, style, caption, &SheetParams::default(), paint)
+}
+
+/// [`field_sheet`] with explicit size and renderer settings.
+fn field_sheet_with_params(
+    s: &SurfaceResult<'_>,
+    style: &FieldStyle,
+    caption: &Caption,
+    params: &SheetParams,
+    paint: &dyn Fn(usize) -> PanelPaint,
+) -> Result<Canvas, OutputError> {
+    let mut canvas = views_sheet(s, caption, params, paint, &mut |_, _, _, _| {})?;
     draw_titles(&mut canvas, &caption.title(&style.what), &style.note);
     let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
     let bar_h = (f64::from(params.height) * 0.5).min(520.0);
@@ -192,6 +184,34 @@ pub fn field_sheet(
         (bar_x as f32, (TITLE_BAND + 50.0) as f32, 30.0, bar_h as f32),
         &style.legend,
     );
+    Ok(canvas)
+}
+
+/// Something drawn over the body in each view (the tufts).
+pub(crate) type Overlay<'a> = dyn FnMut(&mut Canvas, &[DisplayTri], View, &Frame) + 'a;
+
+/// A blank sheet with the four views of `s.mesh` painted by `paint`, each
+/// labelled, with `overlay` drawn over the body and then the ground line,
+/// flow arrow and scale bar; the caller adds the titles and the key.
+///
+/// # Errors
+/// As [`surface_sheet`].
+pub(crate) fn views_sheet(
+    s: &SurfaceResult<'_>,
+    caption: &Caption,
+    params: &SheetParams,
+    paint: &dyn Fn(usize) -> PanelPaint,
+    overlay: &mut Overlay<'_>,
+) -> Result<Canvas, OutputError> {
+    s.validate()?;
+    let mut canvas = Canvas::new(params.width, params.height)?;
+    let tris = display_triangles(s.mesh);
+    let lay = layout(&tris, params);
+    for (view, frame) in &lay.views {
+        draw_cell(&mut canvas, &tris, *view, frame, params, paint);
+        overlay(&mut canvas, &tris, *view, frame);
+        decorate(&mut canvas, s, *view, frame, caption);
+    }
     Ok(canvas)
 }
 
@@ -245,7 +265,7 @@ fn panel_paint(
 }
 
 /// One view with its label.
-pub(crate) fn draw_cell(
+fn draw_cell(
     canvas: &mut Canvas,
     tris: &[DisplayTri],
     view: View,
@@ -270,7 +290,7 @@ pub(crate) fn draw_cell(
 }
 
 /// Ground line, flow arrow and scale bar where they apply.
-pub(crate) fn decorate(
+fn decorate(
     canvas: &mut Canvas,
     s: &SurfaceResult<'_>,
     view: View,

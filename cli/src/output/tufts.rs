@@ -19,10 +19,8 @@ use nalgebra::Vector3;
 
 use super::canvas::{Canvas, INK, Rgb};
 use super::colorbar::{Swatch, draw_legend};
-use super::render::{self, DisplayTri, Frame, PanelPaint, View, display_triangles};
-use super::sheet::{
-    self, BAR_COLUMN, NO_VALUE, SheetParams, TITLE_BAND, decorate, draw_cell, draw_titles,
-};
+use super::render::{self, DisplayTri, Frame, PanelPaint, View};
+use super::sheet::{self, BAR_COLUMN, NO_VALUE, SheetParams, TITLE_BAND, draw_titles};
 use super::text::{self, TextStyle};
 use super::{Caption, OutputError, PanelState, SurfaceResult};
 
@@ -146,23 +144,18 @@ fn kind(state: PanelState, risk: f64) -> Option<TuftKind> {
 /// # Errors
 /// As [`sheet::surface_sheet`].
 pub fn tuft_sheet(s: &SurfaceResult<'_>, caption: &Caption) -> Result<Canvas, OutputError> {
-    s.validate()?;
     let params = SheetParams::default();
-    let mut canvas = Canvas::new(params.width, params.height)?;
-    let tris = display_triangles(s.mesh);
-    let lay = sheet::layout(&tris, &params);
     let paint = |i: usize| match s.state[i] {
         PanelState::Separated => PanelPaint::Hatched(BODY_SEPARATED.0, BODY_SEPARATED.1),
         PanelState::Unresolved => PanelPaint::Solid(NO_VALUE),
         _ => PanelPaint::Solid(BODY),
     };
-    for (view, frame) in &lay.views {
-        draw_cell(&mut canvas, &tris, *view, frame, &params, &paint);
-        for tuft in tufts(s, &tris, *view, frame) {
-            draw_tuft(&mut canvas, &tuft);
+    let mut draw = |canvas: &mut Canvas, tris: &[DisplayTri], view: View, frame: &Frame| {
+        for tuft in tufts(s, tris, view, frame) {
+            draw_tuft(canvas, &tuft);
         }
-        decorate(&mut canvas, s, *view, frame, caption);
-    }
+    };
+    let mut canvas = sheet::views_sheet(s, caption, &params, &paint, &mut draw)?;
     let mut note =
         "Tufts lie along the flow next to the surface, as wool tufts on a tunnel model; \
                     a surface seen at a slant shows them shorter. Red crosses: separated."
@@ -236,7 +229,7 @@ mod tests {
 
     fn view_tufts(f: &Fixture, view: View) -> (Vec<Tuft>, Frame) {
         let s = f.surface();
-        let tris = display_triangles(s.mesh);
+        let tris = render::display_triangles(s.mesh);
         let lay = sheet::layout(&tris, &SheetParams::default());
         let frame = *lay.frame(view).unwrap();
         (tufts(&s, &tris, view, &frame), frame)
