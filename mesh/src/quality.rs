@@ -7,7 +7,10 @@
 //!   triangle; Shewchuk 2002, "What is a good linear finite element?",
 //!   table of quality measures, from memory);
 //! - smallest interior angle, degrees;
-//! - neighbour area ratio: the largest `A_i / A_j` across an edge.
+//! - neighbour area ratio: the largest `A_i / A_j` across an edge;
+//! - turned panels: a panel whose normal is turned more than
+//!   [`TURNED_DEG`] from each of its edge neighbours' while they agree with
+//!   one another ([`turned_panels`]).
 //!
 //! Thresholds (common practice for constant-strength panel methods, where
 //! the collocation point sits at the centroid and the surface velocity
@@ -72,6 +75,8 @@ pub struct QualityReport {
     pub small_angle: usize,
     /// Panels above the neighbour-ratio threshold.
     pub size_jump: usize,
+    /// Panels turned against all their neighbours ([`turned_panels`]).
+    pub turned: usize,
     /// Thresholds used.
     pub thresholds: QualityParams,
     /// Plain-language warnings (empty when all is well).
@@ -96,7 +101,25 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .unwrap_or(0);
         mesh.panels.get(i).map(|p| p.centroid)
     };
-    let at = [worst(&aspect, 1.0), worst(&angle, -1.0), worst(&ratio, 1.0)];
+    let turned = turned_panels(mesh);
+    // The worst turned panel: the one least aligned with its best neighbour.
+    let best_neighbour = |i: usize| {
+        mesh.edge_neighbours[i]
+            .iter()
+            .flatten()
+            .map(|&j| mesh.panels[i].normal.dot(&mesh.panels[j as usize].normal))
+            .fold(-1.0, f64::max)
+    };
+    let worst_turned = (0..mesh.len())
+        .filter(|&i| turned[i])
+        .min_by(|&a, &b| best_neighbour(a).total_cmp(&best_neighbour(b)))
+        .map(|i| mesh.panels[i].centroid);
+    let at = [
+        worst(&aspect, 1.0),
+        worst(&angle, -1.0),
+        worst(&ratio, 1.0),
+        worst_turned,
+    ];
     let mut r = QualityReport {
         panels: mesh.len(),
         high_aspect: aspect.iter().filter(|&&a| a > q.max_aspect_ratio).count(),
@@ -105,6 +128,7 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .iter()
             .filter(|&&a| a > q.max_neighbour_area_ratio)
             .count(),
+        turned: turned.iter().filter(|&&t| t).count(),
         aspect_ratio: spread(aspect),
         min_angle_deg: spread(angle),
         neighbour_area_ratio: spread(ratio),
@@ -116,38 +140,45 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
 }
 
 /// The warnings, each naming where its worst panel is (`at`: the worst
-/// aspect ratio, smallest angle and area jump).
-fn warnings(r: &QualityReport, q: &QualityParams, at: [Option<crate::Point>; 3]) -> Vec<String> {
+/// aspect ratio, smallest angle, area jump and turned panel).
+fn warnings(r: &QualityReport, q: &QualityParams, at: [Option<crate::Point>; 4]) -> Vec<String> {
     let n = r.panels.max(1) as f64;
     let mut out = Vec::new();
-    let mut warn = |count: usize, what: String, harm: &str, at: Option<crate::Point>| {
-        if count as f64 > q.warn_fraction * n {
-            let place = at.map_or(String::new(), |p| {
-                format!(
-                    " (the worst near x {:.3}, y {:.3}, z {:.3} m)",
-                    p.x, p.y, p.z
-                )
-            });
-            out.push(format!(
-                "{count} panels ({:.1} %) {what}{place}: {harm}",
-                100.0 * count as f64 / n
-            ));
-        }
-    };
+    let many = q.warn_fraction * n;
+    let mut warn =
+        |count: usize, limit: f64, what: String, harm: &str, at: Option<crate::Point>| {
+            if count as f64 > limit {
+                let place = at.map_or(String::new(), |p| {
+                    format!(
+                        " (the worst near x {:.3}, y {:.3}, z {:.3} m)",
+                        p.x, p.y, p.z
+                    )
+                });
+                out.push(format!(
+                    "{count} {} ({:.1} %) {}{place}: {harm}",
+                    if count == 1 { "panel" } else { "panels" },
+                    100.0 * count as f64 / n,
+                    if count == 1 { singular(&what) } else { what }
+                ));
+            }
+        };
     warn(
         r.high_aspect,
+        many,
         format!("have an aspect ratio above {}", q.max_aspect_ratio),
         "long thin panels put the collocation point far from parts of the panel and spoil the velocity from doublet differences",
         at[0],
     );
     warn(
         r.small_angle,
+        many,
         format!("have an angle below {} degrees", q.min_angle_deg),
         "needle-like panels make the velocity gradient noisy",
         at[1],
     );
     warn(
         r.size_jump,
+        many,
         format!(
             "differ in area by more than {}x from a neighbour",
             q.max_neighbour_area_ratio
@@ -155,7 +186,59 @@ fn warnings(r: &QualityReport, q: &QualityParams, at: [Option<crate::Point>; 3])
         "abrupt size changes cause local errors in pressure",
         at[2],
     );
+    // A turned panel is a fold, worth a warning however few there are.
+    warn(
+        r.turned,
+        0.0,
+        format!("are turned more than {TURNED_DEG:.0} degrees from every neighbour"),
+        "folds that the coarsening or the scan made, with no edge of the shape there; their speed is interpolated from the flow around them and they start no separation, but look at them (tuft check --save-panels) and try another panel count",
+        at[3],
+    );
     out
+}
+
+/// `what` of a warning for one panel: its leading plural verb made singular.
+fn singular(what: &str) -> String {
+    for (plural, one) in [("have ", "has "), ("are ", "is "), ("differ ", "differs ")] {
+        if let Some(rest) = what.strip_prefix(plural) {
+            return format!("{one}{rest}");
+        }
+    }
+    what.to_owned()
+}
+
+/// A panel turned more than this from each of its edge neighbours, while
+/// those agree with one another within the same angle, is a fold (our
+/// choice): on a smooth body neighbouring panels differ by a few degrees;
+/// along a sharp edge of the shape a panel has a neighbour on its own
+/// face, and in a corner its neighbours lie on different faces and
+/// disagree.
+pub const TURNED_DEG: f64 = 45.0;
+
+/// Panels turned against all their edge neighbours ([`TURNED_DEG`]): at
+/// least two neighbours, every one of them more than `TURNED_DEG` from the
+/// panel and all within `TURNED_DEG` of one another. A coarsened scan
+/// makes them where a sliver bridges two regions or a vertex lands off the
+/// surface; their collocation velocity has nothing to do with the shape.
+pub fn turned_panels(mesh: &PanelMesh) -> Vec<bool> {
+    let cos = TURNED_DEG.to_radians().cos();
+    (0..mesh.len())
+        .map(|t| {
+            let normal = |j: u32| mesh.panels[j as usize].normal;
+            let around: Vec<_> = mesh.edge_neighbours[t]
+                .iter()
+                .flatten()
+                .map(|&j| normal(j))
+                .collect();
+            let n = mesh.panels[t].normal;
+            around.len() >= 2
+                && around.iter().all(|m| n.dot(m) < cos)
+                && around
+                    .iter()
+                    .enumerate()
+                    .all(|(k, a)| around[k + 1..].iter().all(|b| a.dot(b) >= cos))
+        })
+        .collect()
 }
 
 /// `L_max * P / (4 sqrt(3) A)`: 1 for an equilateral triangle.
@@ -216,4 +299,48 @@ pub fn suggested_panels(area: f64, length: f64) -> usize {
     let h = length / 50.0;
     let n = area / (3f64.sqrt() / 4.0 * h * h);
     ((n / 500.0).round() * 500.0).clamp(1000.0, 12_000.0) as usize
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+    use crate::{Mirrors, Point, TriMesh, generate};
+
+    /// A unit plate in z = 0 whose edge y = 0 is bridged by a sliver to a
+    /// vertex 1 cm inside the plate and 3 cm above it: the sliver faces
+    /// mostly -y (about 72 degrees from its neighbours' +z), the three
+    /// large triangles tilt by under 4 degrees.
+    #[test]
+    fn a_sliver_folded_out_of_a_plate_is_turned_and_nothing_else_is() {
+        let v = vec![
+            Point::new(0.0, 0.0, 0.0),
+            Point::new(1.0, 0.0, 0.0),
+            Point::new(1.0, 1.0, 0.0),
+            Point::new(0.0, 1.0, 0.0),
+            Point::new(0.5, 0.01, 0.03),
+        ];
+        let t = vec![[1, 4, 0], [0, 4, 3], [4, 2, 3], [4, 1, 2]];
+        let mesh = PanelMesh::new(TriMesh::new(v, t).unwrap(), Mirrors::default()).unwrap();
+        assert_eq!(turned_panels(&mesh), [true, false, false, false]);
+        let q = quality(&mesh);
+        assert_eq!(q.turned, 1);
+        assert!(
+            q.warnings
+                .iter()
+                .any(|w| w.contains("1 panel (25.0 %) is turned")),
+            "{:?}",
+            q.warnings
+        );
+    }
+
+    /// Sharp edges and corners of the shape are not folds: the slant-back
+    /// body's box edges (90 degrees) and the slant's edges (25 degrees)
+    /// give no turned panel.
+    #[test]
+    fn the_edges_and_corners_of_a_box_are_not_turned() {
+        let body = generate::ahmed(25.0, 3000).unwrap();
+        let mesh = PanelMesh::new(body, Mirrors::default()).unwrap();
+        assert_eq!(quality(&mesh).turned, 0);
+    }
 }

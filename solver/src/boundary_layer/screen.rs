@@ -604,7 +604,9 @@ const CRUMPLED_SIZE: f64 = 0.25;
 /// smaller than [`CRUMPLED_SIZE`] of the median size (as `sqrt(2 area)`, so
 /// a sliver counts as small), or folded over, their
 /// normal turned more than 90 degrees from the mean normal of their edge
-/// neighbours. Their velocities jump from panel to panel with no feature
+/// neighbours, or turned against all their neighbours
+/// ([`tuft_mesh::quality::turned_panels`]: a sliver bridging two regions
+/// of a coarsened scan). Their velocities jump from panel to panel with no feature
 /// of the shape behind them, so they take no part in a bluff edge and the
 /// speed on them is interpolated like an edge's suction peak (our choice).
 fn crumpled_panels(mesh: &PanelMesh) -> Vec<bool> {
@@ -613,6 +615,7 @@ fn crumpled_panels(mesh: &PanelMesh) -> Vec<bool> {
     let mut sides: Vec<f64> = (0..mesh.len()).map(side).collect();
     sides.sort_by(f64::total_cmp);
     let median = sides.get(sides.len() / 2).copied().unwrap_or(0.0);
+    let turned = tuft_mesh::quality::turned_panels(mesh);
     (0..mesh.len())
         .map(|t| {
             let p = &mesh.panels[t];
@@ -623,7 +626,7 @@ fn crumpled_panels(mesh: &PanelMesh) -> Vec<bool> {
                     mesh.panels[j as usize].normal.into_inner() * mesh.panels[j as usize].area
                 })
                 .sum();
-            side(t) < CRUMPLED_SIZE * median || p.normal.dot(&around) < 0.0
+            side(t) < CRUMPLED_SIZE * median || p.normal.dot(&around) < 0.0 || turned[t]
         })
         .collect()
 }
