@@ -89,6 +89,12 @@ pub struct Row {
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
+    /// For the lowest drag of a wind condition: `tuft compare`'s verdict
+    /// on it (as B) against the runner-up (as A), panels mapped, so that
+    /// the two commands name a winner, a lead or none alike; `None` for
+    /// other variants or when either folder cannot be compared.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub against_next: Option<crate::compare::DragVerdict>,
 }
 
 /// `sweep.json`.
@@ -239,10 +245,11 @@ fn best_drag(c: &Collected) -> String {
     }
 }
 
-/// The lowest drag, named the best only when it beats the next by more
+/// The lowest drag, judged by `tuft compare`'s verdict against the
+/// runner-up when [`judge_leaders`] could give one (a winner, a lead, or
+/// none); otherwise named the best only when it beats the next by more
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
-/// separated share stays put across the variants (as `tuft compare`
-/// names a winner).
+/// separated share stays put across the variants.
 fn best_drag_in(rows: &[Row]) -> String {
     let [first, rest @ ..] = rows else {
         return "no drag to rank".into();
@@ -252,6 +259,32 @@ fn best_drag_in(rows: &[Row]) -> String {
         return format!("drag: {lowest}");
     };
     let gap = 1000.0 * (second.cd - first.cd);
+    if let Some(v) = &first.against_next {
+        return if v.resolved {
+            format!(
+                "best drag: {lowest}, {gap:.1} counts below {} (at both ends of the sensitivity bands too, and \
+                 the separated regions agree)",
+                second.name
+            )
+        } else if !v.leaning.is_empty() {
+            format!(
+                "lowest drag in this model: {lowest}, {gap:.1} counts below {}; the separated regions differ, \
+                 where the model's drag ranking is not reliable: a lead, not a winner (see the report)",
+                second.name
+            )
+        } else if gap < crate::compare::NOISE_COUNTS {
+            format!(
+                "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
+                second.name
+            )
+        } else {
+            format!(
+                "lowest drag: {lowest}, {gap:.1} counts below {}, but not at both ends of the sensitivity \
+                 bands: within the model uncertainty, no clear winner",
+                second.name
+            )
+        };
+    }
     if gap < crate::compare::NOISE_COUNTS {
         format!(
             "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
@@ -304,7 +337,8 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     if rows.is_empty() {
         bail!("{}: no finished sweep variants here", dir.display());
     }
-    let variants = rank(rows);
+    let mut variants = rank(rows);
+    judge_leaders(dir, &mut variants);
     let missing = plan.map_or_else(Vec::new, |p| {
         p.variants
             .into_iter()
@@ -323,6 +357,31 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     };
     c.drag_ranking = best_drag(&c);
     Ok(c)
+}
+
+/// Fill [`Row::against_next`] for the lowest drag of each wind condition
+/// (rows ranked and grouped by [`rank`]), reading the two variants'
+/// folders in `dir` as `tuft compare` does.
+fn judge_leaders(dir: &Path, rows: &mut [Row]) {
+    let mut start = 0;
+    while start < rows.len() {
+        let len = rows[start..]
+            .iter()
+            .take_while(|r| same_wind(r, &rows[start]))
+            .count();
+        if len >= 2 {
+            let verdict = (|| -> Result<crate::compare::DragVerdict> {
+                use crate::compare::ResultFolder;
+                let b = ResultFolder::read(&dir.join(&rows[start].name))?;
+                let a = ResultFolder::read(&dir.join(&rows[start + 1].name))?;
+                let mesh_b = b.mesh()?;
+                let mapping = crate::compare::map_a_onto_b(&a, &b);
+                Ok(crate::compare::comparison(&a, &b, &mesh_b, &mapping).drag)
+            })();
+            rows[start].against_next = verdict.ok();
+        }
+        start += len;
+    }
 }
 
 /// Order (plan index, row) pairs by wind condition, then drag, then plan
@@ -410,6 +469,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         yaw_deg: flow("yaw", still.yaw),
         warning_texts: s.warnings.clone(),
         regions: s.regions.clone(),
+        against_next: None,
     };
     Ok((row, record))
 }
@@ -867,6 +927,7 @@ mod tests {
             yaw_deg: 0.0,
             warning_texts: Vec::new(),
             regions: Vec::new(),
+            against_next: None,
         };
         Collected {
             sweep: "s".into(),
@@ -1109,6 +1170,39 @@ mod tests {
         c.variants[1].separated_percent = 14.0;
         assert!(
             best_drag(&c).contains("no winner is named"),
+            "{}",
+            best_drag(&c)
+        );
+    }
+
+    /// With the folders at hand, the leader is judged by `tuft compare`'s
+    /// verdict against the runner-up: a winner, a lead (the difference
+    /// holds across the bands but the separated regions differ) or none.
+    #[test]
+    fn the_leader_is_named_as_compare_would() {
+        let mut c = sweep(&[10.0, 14.0]);
+        c.variants[1].cd = 0.31;
+        let verdict = |resolved: bool, leaning: &str| crate::compare::DragVerdict {
+            resolved,
+            leaning: leaning.into(),
+            ..crate::compare::DragVerdict::default()
+        };
+        c.variants[0].against_next = Some(verdict(false, "lower"));
+        let line = best_drag(&c);
+        assert!(
+            line.starts_with("lowest drag in this model: v0 (C_D 0.300), 10.0 counts below v1")
+                && line.contains("a lead, not a winner"),
+            "{line}"
+        );
+        c.variants[0].against_next = Some(verdict(true, ""));
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        c.variants[0].against_next = Some(verdict(false, ""));
+        assert!(
+            best_drag(&c).contains("within the model uncertainty, no clear winner"),
             "{}",
             best_drag(&c)
         );

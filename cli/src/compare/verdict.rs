@@ -3,7 +3,8 @@
 //! Two tests, both needed before a difference is called one (and none is
 //! called when the separated regions of the two runs differ enough for the
 //! difference to rest on the separated-flow model, see
-//! `compare::separation_note`):
+//! `compare::separation_note`; a difference that passes both tests then is
+//! given as a lead, its direction in [`DragVerdict::leaning`]):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (differences of a
 //!    few counts are within the noise of any simulation, common practice);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
@@ -34,6 +35,12 @@ pub struct DragVerdict {
     pub noise_counts: f64,
     /// "lower", "higher" or "undecided": B's drag against A's.
     pub direction: String,
+    /// "lower" or "higher" when the difference passes the noise and band
+    /// tests but the separated regions differ, so that it rests on the
+    /// separated-flow model: a lead, not a winner; otherwise
+    /// empty.
+    #[serde(default)]
+    pub leaning: String,
     /// One sentence for people.
     pub text: String,
 }
@@ -50,10 +57,12 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
     let above_noise = delta.abs() >= NOISE_COUNTS;
     let banded = above_noise && same_way(low) && same_way(high);
     let resolved = banded && !separation_differs;
-    let direction = match (resolved, delta < 0.0) {
-        (false, _) => "undecided",
-        (true, true) => "lower",
-        (true, false) => "higher",
+    let way = if delta < 0.0 { "lower" } else { "higher" };
+    let direction = if resolved { way } else { "undecided" };
+    let leaning = if banded && separation_differs {
+        way
+    } else {
+        ""
     };
     let text = if !above_noise {
         format!(
@@ -61,8 +70,10 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         )
     } else if banded {
         format!(
-            "drag difference {delta:+.1} counts between the central estimates ({}), but the separated \
-             regions differ, where the model's drag ranking is not reliable: no winner",
+            "B has {way} drag by {:.1} counts in this model ({}), but the separated regions differ, \
+             where the model's drag ranking is not reliable: a lead, not a winner (confirm it with \
+             validated CFD or a tunnel)",
+            delta.abs(),
             band_ends(low, high)
         )
     } else if !resolved {
@@ -84,6 +95,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         band_deltas_counts: [low, high],
         noise_counts: NOISE_COUNTS,
         direction: direction.into(),
+        leaning: leaning.into(),
         text,
     }
 }
@@ -122,11 +134,23 @@ mod tests {
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), false);
         assert!(v.resolved && v.direction == "lower", "{v:?}");
         assert!((v.delta_counts + 10.0).abs() < 1e-9);
-        // The same, but the separated regions differ: no winner, and the
-        // text says why.
+        assert!(v.leaning.is_empty(), "{v:?}");
+        // The same, but the separated regions differ: no winner, a lead,
+        // and the text says why.
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), true);
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
-        assert!(v.text.contains("separated regions differ"), "{}", v.text);
+        assert_eq!(v.leaning, "lower");
+        assert!(
+            v.text
+                .contains("B has lower drag by 10.0 counts in this model")
+                && v.text.contains("separated regions differ")
+                && v.text.contains("a lead, not a winner"),
+            "{}",
+            v.text
+        );
+        // Within the band, a separated region that moves gives no lead.
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), true);
+        assert!(v.leaning.is_empty(), "{v:?}");
     }
 
     #[test]
@@ -139,8 +163,7 @@ mod tests {
         let v = drag_verdict(&a, &b, true);
         assert!(!v.text.contains(" to "), "{}", v.text);
         assert!(
-            v.text
-                .contains("+39.3 counts between the central estimates")
+            v.text.contains("higher drag by 39.3 counts in this model")
                 && v.text
                     .contains("+42.6 between the sensitivity bands' low ends")
                 && v.text.contains("+45.7 between their high ends"),
