@@ -552,7 +552,7 @@ fn report(
     caption: Caption,
 ) -> Report {
     let v = case.file.flow.speed;
-    let at = format!("kg at {} m/s", output::short_number(v));
+    let at = format!("kg at {} m/s", output::speed_number(v));
     let k = &s.coefficients;
     let mut numbers = vec![
         NumberRow::fixed("Drag coefficient C_D (estimate)", k.drag, 3, "-"),
@@ -577,13 +577,13 @@ fn report(
         NumberRow::text(
             "Drag force (estimate, band)",
             &drag_force_words(&s.drag_estimate),
-            &format!("N at {} m/s", output::short_number(v)),
+            &format!("N at {} m/s", output::speed_number(v)),
         ),
         NumberRow::fixed(
             "Power the drag absorbs (estimate)",
             s.drag_estimate.force_n * v / 1000.0,
             1,
-            &format!("kW at {} m/s", output::short_number(v)),
+            &format!("kW at {} m/s", output::speed_number(v)),
         ),
         NumberRow::fixed("Lift coefficient C_L", k.lift, 3, "-"),
         NumberRow::fixed("Lift, whole body", s.lift_kg.total, 0, &at),
@@ -650,7 +650,7 @@ fn report(
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
         output::whole(s.lift_kg.total),
-        output::short_number(v),
+        output::speed_number(v),
         output::whole(s.lift_kg.front_axle),
         output::whole(s.lift_kg.rear_axle),
         100.0 * s.separation.fraction

@@ -147,7 +147,7 @@ pub fn write(
 fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let d = &c.deltas;
     let s = &c.surface;
-    let at = format!("kg at {} m/s", output::short_number(c.b.speed));
+    let at = format!("kg at {} m/s", output::speed_number(c.b.speed));
     let signed = |v: f64| signed_places(v, 1);
     let mut numbers = vec![
         NumberRow::text(

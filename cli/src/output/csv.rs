@@ -47,9 +47,10 @@ fn row(s: &SurfaceResult<'_>, i: usize) -> String {
         s.shape_factor[i],
         s.cf[i],
     ];
-    let mut out: Vec<String> = numbers.iter().map(f64::to_string).collect();
+    // Adding +0 turns a negative zero (a risk clamped from below) into 0.
+    let mut out: Vec<String> = numbers.iter().map(|v| (v + 0.0).to_string()).collect();
     out.push(s.state[i].as_str().to_owned());
-    out.push(s.risk[i].to_string());
+    out.push((s.risk[i] + 0.0).to_string());
     out.join(",")
 }
 

@@ -285,9 +285,21 @@ impl Caption {
 pub fn speed_words(speed_ms: f64) -> String {
     format!(
         "{} m/s ({:.0} km/h)",
-        short_number(speed_ms),
+        speed_number(speed_ms),
         3.6 * speed_ms
     )
+}
+
+/// A speed in m/s as people read it: as given when it has at most three
+/// decimals, otherwise one (a speed given in km/h comes in as a long
+/// fraction: 140 km/h = 38.888... m/s, shown 38.9).
+pub fn speed_number(speed_ms: f64) -> String {
+    let exact = ((speed_ms * 1000.0).round() - speed_ms * 1000.0).abs() < 1e-6;
+    if exact {
+        short_number(speed_ms)
+    } else {
+        format!("{speed_ms:.1}")
+    }
 }
 
 /// A number with at most three decimals and no trailing zeros.
@@ -390,6 +402,14 @@ where
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn speeds_read_as_given() {
+        assert_eq!(speed_words(40.0), "40 m/s (144 km/h)");
+        assert_eq!(speed_words(27.75), "27.75 m/s (100 km/h)");
+        // 140 km/h in m/s: one decimal, not 38.889.
+        assert_eq!(speed_words(140.0 / 3.6), "38.9 m/s (140 km/h)");
+    }
 
     #[test]
     fn whole_numbers_have_no_negative_zero() {
