@@ -75,6 +75,11 @@ pub struct GeometrySection {
     /// The STL is the y >= 0 half, cut at y = 0.
     #[serde(default)]
     pub half_model: bool,
+    /// Where the STL's nose points: "-x" (tuft's axes, the default) or
+    /// "+x" (ISO 8855 vehicle axes, x forward).
+    pub nose: Option<String>,
+    /// The STL's up axis: "z" (the default) or "y" (many exports).
+    pub up: Option<String>,
     /// Built-in coupe: rear-window slope from horizontal, degrees.
     pub rear_window_deg: Option<f64>,
     /// Built-in coupe: boot-deck length, metres.
@@ -209,6 +214,8 @@ pub enum GeometrySource {
         path: PathBuf,
         /// The unit the STL is written in.
         unit: tuft_mesh::LengthUnit,
+        /// How the STL's axes lie against tuft's.
+        axes: tuft_mesh::FileAxes,
     },
     /// A built-in shape by name, with the section's parameters.
     Shape {
@@ -417,6 +424,7 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
             Ok(GeometrySource::Stl {
                 path: base.join(stl),
                 unit,
+                axes: file_axes(g.nose.as_deref(), g.up.as_deref(), "geometry.")?,
             })
         }
         (None, Some(name)) => {
@@ -426,9 +434,33 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
             if g.units.is_some() {
                 bail!("geometry.units applies to an STL only; built-in shapes are in metres");
             }
+            if g.nose.is_some() || g.up.is_some() {
+                bail!(
+                    "geometry.nose and geometry.up apply to an STL only; built-in shapes are in tuft's axes"
+                );
+            }
             Ok(GeometrySource::Shape { name: name.clone() })
         }
     }
+}
+
+/// The STL's axes from the `nose` and `up` settings (`key` prefixes their
+/// names in errors: "geometry." in a case file, "--" on the command line).
+pub fn file_axes(nose: Option<&str>, up: Option<&str>, key: &str) -> Result<tuft_mesh::FileAxes> {
+    let nose_plus_x = match nose.unwrap_or("-x") {
+        "-x" => false,
+        "+x" => true,
+        other => bail!(
+            "{key}nose must be \"-x\" (the nose at the smallest x, tuft's axes) or \"+x\" (x pointing \
+             forward, as in ISO 8855 vehicle axes) (got \"{other}\")"
+        ),
+    };
+    let y_up = match up.unwrap_or("z") {
+        "z" => false,
+        "y" => true,
+        other => bail!("{key}up must be \"z\" (the default) or \"y\" (got \"{other}\")"),
+    };
+    Ok(tuft_mesh::FileAxes { nose_plus_x, y_up })
 }
 
 /// The built-in shapes and the `[geometry]` keys each one reads.
@@ -525,6 +557,33 @@ mod tests {
         format!("{:#}", parse(text).unwrap_err())
     }
 
+    /// An STL in other axes: the nose at +x (ISO 8855 vehicle axes) or y
+    /// up; other words are refused by name, and built-in shapes take
+    /// neither.
+    #[test]
+    fn the_stl_axes_are_read_and_checked() {
+        let stl = "[geometry]\nstl = \"a.stl\"\n";
+        let c = parse(&format!("{stl}nose = \"+x\"\nup = \"y\"\n")).unwrap();
+        let GeometrySource::Stl { axes, .. } = c.source else {
+            panic!("an STL case")
+        };
+        assert_eq!(
+            axes,
+            tuft_mesh::FileAxes {
+                nose_plus_x: true,
+                y_up: true
+            }
+        );
+        let e = err(&format!("{stl}nose = \"forward\"\n"));
+        assert!(
+            e.contains("geometry.nose must be") && e.contains("ISO 8855"),
+            "{e}"
+        );
+        assert!(err(&format!("{stl}up = \"+z\"\n")).contains("geometry.up must be"));
+        let e = err("[geometry]\nshape = \"coupe\"\nnose = \"+x\"\n");
+        assert!(e.contains("apply to an STL only"), "{e}");
+    }
+
     /// The speed may be given in km/h instead; both at once is refused.
     #[test]
     fn speed_in_kmh() {
@@ -584,7 +643,8 @@ mod tests {
             c.source,
             GeometrySource::Stl {
                 path: PathBuf::from("cases/body.stl"),
-                unit: tuft_mesh::LengthUnit::Mm
+                unit: tuft_mesh::LengthUnit::Mm,
+                axes: tuft_mesh::FileAxes::default(),
             }
         );
     }

@@ -34,6 +34,13 @@ pub struct CheckArgs {
     /// Coarsen to about N panels (default: the suggested count).
     #[arg(long, value_name = "N")]
     pub panels: Option<usize>,
+    /// Where the file's nose points: -x (tuft's axes) or +x (ISO 8855
+    /// vehicle axes, x forward).
+    #[arg(long, value_name = "-x|+x", allow_hyphen_values = true)]
+    pub nose: Option<String>,
+    /// The file's up axis: z or y.
+    #[arg(long, value_name = "z|y")]
+    pub up: Option<String>,
     /// Print the full report as JSON instead of text.
     #[arg(long)]
     pub json: bool,
@@ -95,7 +102,12 @@ fn save_panels(
 /// The STL and settings a case file gives a run.
 fn from_case(path: &std::path::Path) -> anyhow::Result<(PathBuf, PrepareParams)> {
     let case = crate::case::Case::load(path)?;
-    let crate::case::GeometrySource::Stl { path: stl, unit } = &case.source else {
+    let crate::case::GeometrySource::Stl {
+        path: stl,
+        unit,
+        axes,
+    } = &case.source
+    else {
         anyhow::bail!(
             "{}: the case uses a built-in shape, not an STL; tuft check reads STL files",
             path.display()
@@ -103,6 +115,7 @@ fn from_case(path: &std::path::Path) -> anyhow::Result<(PathBuf, PrepareParams)>
     };
     let params = PrepareParams {
         units: *unit,
+        axes: *axes,
         mirrors: Mirrors {
             ground: case.file.ground.as_ref().map(|g| g.z),
             symmetry: case.file.geometry.half_model,
@@ -123,6 +136,7 @@ fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
     }
     Ok(PrepareParams {
         units: args.units,
+        axes: crate::case::file_axes(args.nose.as_deref(), args.up.as_deref(), "--")?,
         mirrors: Mirrors {
             ground: args.ground,
             symmetry: args.half,
@@ -190,6 +204,20 @@ fn read_lines(r: &PrepareReport) -> String {
                 read.trailing_bytes
             );
         }
+    }
+    if !r.axes.is_identity() {
+        let mut what = Vec::new();
+        if r.axes.nose_plus_x {
+            what.push("its nose at +x");
+        }
+        if r.axes.y_up {
+            what.push("y up");
+        }
+        s += &format!(
+            "axes       the file has {}: turned to tuft's axes (x downstream from the nose, z up); \
+             everything below is in those\n",
+            what.join(" and ")
+        );
     }
     let [lo, hi] = r.bounds;
     s += &format!(

@@ -33,9 +33,10 @@ pub fn load(case: &Case) -> Result<Geometry> {
     let mirrors = mirrors(case);
     let g = &case.file.geometry;
     let (mesh, report, input_facets) = match &case.source {
-        GeometrySource::Stl { path, unit } => {
+        GeometrySource::Stl { path, unit, axes } => {
             let params = PrepareParams {
                 units: *unit,
+                axes: *axes,
                 mirrors,
                 target_panels: g.panels,
                 ..PrepareParams::default()
@@ -84,7 +85,16 @@ fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     if case.file.geometry.half_model {
         keys.push("geometry.half_model = true".to_string());
     }
-    anyhow::Error::new(err).context(keys.join(", "))
+    // A body below the ground is often an export with y up.
+    let below = err.to_string().contains("below the ground");
+    if below && case.file.geometry.up.is_none() {
+        anyhow::anyhow!(
+            "{}: {err}: is ground.z right, or has the STL y up, as many exports do (then set geometry.up = \"y\")?",
+            keys.join(", ")
+        )
+    } else {
+        anyhow::Error::new(err).context(keys.join(", "))
+    }
 }
 
 /// A built-in shape with the case's parameters.

@@ -312,8 +312,9 @@ pub fn check_physical(
     bail!(
         "the flow solution is not physical (friction drag {:.0} counts, drag {:.0} counts, attached-flow drag \
          {:.0} counts, fastest surface flow {fastest:.1} times the free stream): the panel mesh is probably \
-         folded or crosses itself; tuft check reports its quality, and another geometry.panels or a repaired \
-         STL may give a sound one",
+         folded or crosses itself (tuft check reports its quality, and another geometry.panels or a repaired \
+         STL may give a sound one), or the body faces the wind back to front (an STL in ISO 8855 vehicle \
+         axes has its nose at +x: set geometry.nose = \"+x\")",
         1000.0 * friction,
         1000.0 * drag,
         1000.0 * attached_drag

@@ -43,7 +43,7 @@ pub mod repair;
 pub mod trimesh;
 
 pub use error::MeshError;
-pub use import::{LengthUnit, RigidTransform};
+pub use import::{FileAxes, LengthUnit, RigidTransform};
 pub use mirror::{Mirrors, Reflection};
 pub use panels::{Panel, PanelMesh};
 pub use trimesh::TriMesh;

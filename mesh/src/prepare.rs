@@ -17,7 +17,7 @@ use serde::Serialize;
 
 use crate::coarsen::{CoarsenParams, CoarsenReport, coarsen_with_params};
 use crate::crossing::crossings;
-use crate::import::{LengthUnit, RigidTransform, StlReport, read_stl};
+use crate::import::{FileAxes, LengthUnit, RigidTransform, StlReport, read_stl};
 use crate::quality::{QualityReport, quality, suggested_panels};
 use crate::repair::{RepairParams, RepairReport, repair_with_params};
 use crate::{MeshError, Mirrors, PanelMesh, TriMesh};
@@ -27,7 +27,11 @@ use crate::{MeshError, Mirrors, PanelMesh, TriMesh};
 pub struct PrepareParams {
     /// Length unit of the file.
     pub units: LengthUnit,
-    /// Rigid motion applied after scaling (to put x downstream, z up).
+    /// How the file's axes lie (nose towards +x, y up), undone after
+    /// scaling.
+    pub axes: FileAxes,
+    /// Rigid motion applied after scaling and the axes (to put x
+    /// downstream, z up).
     pub transform: Option<RigidTransform>,
     /// Mirror planes (ground height in metres, after the transform).
     pub mirrors: Mirrors,
@@ -44,6 +48,7 @@ impl Default for PrepareParams {
     fn default() -> Self {
         Self {
             units: LengthUnit::Mm,
+            axes: FileAxes::default(),
             transform: None,
             mirrors: Mirrors::none(),
             target_panels: None,
@@ -81,8 +86,10 @@ pub struct PrepareReport {
     pub read: Option<StlReport>,
     /// Length unit assumed.
     pub units: LengthUnit,
-    /// Whether a rigid motion was applied.
+    /// Whether a rigid motion or a change of axes was applied.
     pub transformed: bool,
+    /// The file's axes, turned into tuft's.
+    pub axes: FileAxes,
     /// Mirror planes.
     pub mirrors: MirrorReport,
     /// Every repair pass.
@@ -129,6 +136,7 @@ pub fn prepare_mesh(
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
     let scale = params.units.to_metres();
     mesh.map_vertices(|p| p * scale);
+    params.axes.apply(&mut mesh, params.mirrors.symmetry);
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
@@ -153,7 +161,8 @@ pub fn prepare_mesh(
     let report = PrepareReport {
         read,
         units: params.units,
-        transformed: params.transform.is_some(),
+        transformed: params.transform.is_some() || !params.axes.is_identity(),
+        axes: params.axes,
         mirrors: MirrorReport {
             ground: params.mirrors.ground,
             symmetry: params.mirrors.symmetry,

@@ -1,0 +1,114 @@
+//! The file's axes against tuft's: x downstream from the nose, z up. CAD
+//! and scanner exports often differ: vehicle axes after ISO 8855 point x
+//! forward (the nose at +x), and many exports put y up.
+
+use crate::{Point, TriMesh};
+
+/// How the file's axes lie against tuft's.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+pub struct FileAxes {
+    /// The nose points towards +x in the file (ISO 8855 vehicle axes),
+    /// not towards -x.
+    pub nose_plus_x: bool,
+    /// y is up in the file, not z.
+    pub y_up: bool,
+}
+
+impl FileAxes {
+    /// True when the file's axes are tuft's already.
+    pub fn is_identity(&self) -> bool {
+        !self.nose_plus_x && !self.y_up
+    }
+
+    /// Turn `mesh` into tuft's axes. Length and height are fixed by the
+    /// settings; the side-to-side axis takes the sign that makes the
+    /// change a rotation, except for a half model (`half`), whose half
+    /// must land on y >= 0: there the sign follows the side the body lies
+    /// on and, where that makes the change a mirror image, the facets are
+    /// turned round so that their normals still point out.
+    pub fn apply(&self, mesh: &mut TriMesh, half: bool) {
+        if self.is_identity() {
+            return;
+        }
+        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
+        // (x, up, side) of a file point.
+        let parts = |p: &Point| {
+            if self.y_up {
+                (p.x, p.y, p.z)
+            } else {
+                (p.x, p.z, p.y)
+            }
+        };
+        // The sign of the side axis that makes the map a rotation: the
+        // determinant of x' = along x, y' = s side, z' = up.
+        let swapped = if self.y_up { -1.0 } else { 1.0 };
+        let rotation_sign = along * swapped;
+        let side_sign = if half {
+            let (lo, hi) = mesh.vertices.iter().fold((0.0f64, 0.0f64), |(lo, hi), p| {
+                let s = parts(p).2;
+                (lo.min(s), hi.max(s))
+            });
+            if hi >= -lo { 1.0 } else { -1.0 }
+        } else {
+            rotation_sign
+        };
+        mesh.map_vertices(|p| {
+            let (x, up, side) = parts(&p);
+            Point::new(along * x, side_sign * side, up)
+        });
+        if side_sign != rotation_sign {
+            for t in &mut mesh.triangles {
+                t.swap(1, 2);
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+
+    /// A right-angled corner tetrahedron off the origin, closed and outward.
+    fn tetra(offset: Point) -> TriMesh {
+        let v = [
+            Point::new(0.0, 0.0, 0.0),
+            Point::new(1.0, 0.0, 0.0),
+            Point::new(0.0, 1.0, 0.0),
+            Point::new(0.0, 0.0, 1.0),
+        ]
+        .map(|p| p + offset.coords)
+        .to_vec();
+        TriMesh::new(v, vec![[0, 2, 1], [0, 1, 3], [0, 3, 2], [1, 2, 3]]).unwrap()
+    }
+
+    #[test]
+    fn each_setting_is_a_rotation_that_keeps_the_volume_outward() {
+        let body = tetra(Point::new(2.0, 3.0, 4.0));
+        let volume = body.signed_volume();
+        assert!(volume > 0.0);
+        for (nose_plus_x, y_up) in [(true, false), (false, true), (true, true)] {
+            let mut m = body.clone();
+            FileAxes { nose_plus_x, y_up }.apply(&mut m, false);
+            approx::assert_relative_eq!(m.signed_volume(), volume, epsilon = 1e-12);
+            let p = m.vertices[0];
+            // The length axis flips with the nose; the up axis is the file's.
+            assert_eq!(p.x, if nose_plus_x { -2.0 } else { 2.0 });
+            assert_eq!(p.z, if y_up { 3.0 } else { 4.0 });
+        }
+    }
+
+    #[test]
+    fn a_half_model_stays_on_the_positive_side_and_outward() {
+        // The y >= 0 half in ISO 8855 axes (nose at +x, y to the left).
+        let body = tetra(Point::new(2.0, 0.0, 4.0));
+        let mut m = body.clone();
+        FileAxes {
+            nose_plus_x: true,
+            y_up: false,
+        }
+        .apply(&mut m, true);
+        assert!(m.vertices.iter().all(|p| p.y >= 0.0));
+        approx::assert_relative_eq!(m.signed_volume(), body.signed_volume(), epsilon = 1e-12);
+    }
+}
