@@ -539,7 +539,55 @@ fn notes(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Vec<Str
     if let Some(n) = underbody_note(sa, sb) {
         notes.push(n);
     }
+    // First: it says how far to trust the notes after it.
+    if let Some(n) = offset_note(a, b, surface) {
+        notes.insert(0, n);
+    }
     notes
+}
+
+/// A note when B's body is A's size but lies elsewhere, so that little of
+/// it meets A's surface: the two STLs were exported in different axes
+/// (one from the nose, one from the front axle, say). The mapping is by
+/// position, so every difference would then compare unrelated panels.
+/// Same size: the panel centroids' extents agree within 5 % on every axis;
+/// elsewhere: their centres lie more than 2 % of the length apart; little:
+/// under half of B's surface unchanged (our choices).
+fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Option<String> {
+    let bounds = |r: &ResultFolder| {
+        r.panels.iter().fold(
+            ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+            |(mut lo, mut hi), p| {
+                for k in 0..3 {
+                    lo[k] = lo[k].min(p.centroid[k]);
+                    hi[k] = hi[k].max(p.centroid[k]);
+                }
+                (lo, hi)
+            },
+        )
+    };
+    let ((la, ha), (lb, hb)) = (bounds(a), bounds(b));
+    let size = |k: usize, lo: &[f64; 3], hi: &[f64; 3]| hi[k] - lo[k];
+    let same_size = (0..3).all(|k| {
+        let (sa, sb) = (size(k, &la, &ha), size(k, &lb, &hb));
+        (sa - sb).abs() <= 0.05 * sa.max(sb)
+    });
+    let shift: Vec<f64> = (0..3)
+        .map(|k| 0.5 * (lb[k] + hb[k]) - 0.5 * (la[k] + ha[k]))
+        .collect();
+    let apart = shift.iter().map(|d| d * d).sum::<f64>().sqrt() > 0.02 * size(0, &la, &ha);
+    (same_size && apart && surface.unchanged_share < 0.5).then(|| {
+        format!(
+            "B's body is the size of A's but lies ({:+.3}, {:+.3}, {:+.3}) m from it, and only {:.0} % of \
+             B's surface meets A's: compare maps A onto B by position, so its pictures and the separation \
+             notes compare unrelated panels (the coefficients do not depend on where a body lies); export \
+             both STLs in the same axes (the same origin) and run them again",
+            shift[0],
+            shift[1],
+            shift[2],
+            100.0 * surface.unchanged_share
+        )
+    })
 }
 
 /// Reference areas differing by more than this fraction of the larger
@@ -761,6 +809,41 @@ mod tests {
         let mut speckle = b.clone();
         speckle[0] = !speckle[0];
         assert!(on_boundary(&mesh, &speckle, 0));
+    }
+
+    /// The review's car compared with the same car exported from its nose
+    /// (0.881 m along x): noted, first; a variant in place is not.
+    #[test]
+    fn a_body_in_other_axes_is_noted() {
+        let folder = |dx: f64| ResultFolder {
+            path: PathBuf::from("r"),
+            summary: with_area(1.9),
+            panels: [[0.0, -0.9, 0.2], [4.6, 0.9, 1.35], [2.0, 0.0, 0.8]]
+                .iter()
+                .map(|c| folder::PanelRow {
+                    centroid: nalgebra::Point3::new(c[0] + dx, c[1], c[2]),
+                    normal: nalgebra::Vector3::z(),
+                    area: 1.0,
+                    cp: 0.0,
+                    state: PanelState::Turbulent,
+                    risk: 0.0,
+                })
+                .collect(),
+        };
+        let (a, b) = (folder(0.0), folder(0.881));
+        let mut surface = SurfaceDeltas {
+            unchanged_share: 0.2,
+            ..SurfaceDeltas::default()
+        };
+        let notes = notes(&a, &b, &surface);
+        assert!(
+            notes[0].starts_with("B's body is the size of A's but lies (+0.881, +0.000, +0.000) m"),
+            "{notes:?}"
+        );
+        surface.unchanged_share = 0.85;
+        assert_eq!(offset_note(&a, &b, &surface), None);
+        surface.unchanged_share = 0.2;
+        assert_eq!(offset_note(&a, &folder(0.0), &surface), None);
     }
 
     #[test]
