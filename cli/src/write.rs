@@ -530,17 +530,19 @@ pub fn underbody_words(s: &Summary, lead: &str) -> String {
 
 /// The drag force with the band's ends: `"95 (92 to 245)"`, N (the force
 /// scales with the coefficient at one speed and reference area).
-fn drag_force_words(d: &crate::summary::DragEstimate) -> String {
+/// The drag force with its band, each times `scale` (1 for N, the speed
+/// over 1000 for kW), with `decimals`.
+fn drag_force_words(d: &crate::summary::DragEstimate, scale: f64, decimals: usize) -> String {
     let per_cd = if d.cd.abs() > 1e-12 {
         d.force_n / d.cd
     } else {
         0.0
     };
     format!(
-        "{:.0} ({:.0} to {:.0})",
-        d.force_n,
-        per_cd * d.cd_low,
-        per_cd * d.cd_high
+        "{:.decimals$} ({:.decimals$} to {:.decimals$})",
+        scale * d.force_n,
+        scale * per_cd * d.cd_low,
+        scale * per_cd * d.cd_high
     )
 }
 
@@ -555,7 +557,12 @@ fn report(
     let at = format!("kg at {} m/s", output::speed_number(v));
     let k = &s.coefficients;
     let mut numbers = vec![
-        NumberRow::fixed("Drag coefficient C_D (estimate)", k.drag, 3, "-"),
+        NumberRow::fixed(
+            "Drag coefficient C_D (estimate, of the surface as given: no cooling flow, no wheel rotation)",
+            k.drag,
+            3,
+            "-",
+        ),
         NumberRow::text(
             "Drag estimate band",
             &format!(
@@ -576,17 +583,21 @@ fn report(
         NumberRow::counts("Drag, friction part", k.drag_friction),
         NumberRow::text(
             "Drag force (estimate, band)",
-            &drag_force_words(&s.drag_estimate),
+            &drag_force_words(&s.drag_estimate, 1.0, 0),
             &format!("N at {} m/s", output::speed_number(v)),
         ),
-        NumberRow::fixed(
-            "Power the drag absorbs (estimate)",
-            s.drag_estimate.force_n * v / 1000.0,
-            1,
+        NumberRow::text(
+            "Power the drag absorbs (estimate, band)",
+            &drag_force_words(&s.drag_estimate, v / 1000.0, 1),
             &format!("kW at {} m/s", output::speed_number(v)),
         ),
-        NumberRow::fixed("Lift coefficient C_L", k.lift, 3, "-"),
-        NumberRow::fixed("Lift, whole body", s.lift_kg.total, 0, &at),
+        NumberRow::fixed("Lift coefficient C_L (negative: downforce)", k.lift, 3, "-"),
+        NumberRow::fixed(
+            "Lift, whole body (negative: downforce)",
+            s.lift_kg.total,
+            0,
+            &at,
+        ),
         NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
         NumberRow::fixed("Lift, rear axle", s.lift_kg.rear_axle, 0, &at),
         NumberRow::fixed(
@@ -752,6 +763,8 @@ mod tests {
             band: String::new(),
             force_n: 300.0,
         };
-        assert_eq!(super::drag_force_words(&d), "300 (150 to 600)");
+        assert_eq!(super::drag_force_words(&d, 1.0, 0), "300 (150 to 600)");
+        // Power P = F V: at 40 m/s, 12 kW (6 to 24).
+        assert_eq!(super::drag_force_words(&d, 0.04, 1), "12.0 (6.0 to 24.0)");
     }
 }

@@ -242,7 +242,8 @@ fn field_style(
                 ("not resolved".to_owned(), Swatch::Solid(NO_VALUE)),
             ],
             "Separation risk",
-            "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated.",
+            "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated. \
+             A laminar layer at 1 turns turbulent there (a short bubble) and goes on.",
         ),
     }
 }
@@ -366,13 +367,47 @@ fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
 /// Title and explanatory note at the top.
 pub(crate) fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
     text::draw(canvas, title, 30.0, 44.0, &TextStyle::new(28.0).bold());
-    text::draw(
-        canvas,
-        note,
-        30.0,
-        74.0,
-        &TextStyle::new(16.0).colour(MUTED),
-    );
+    // The note wraps onto up to three lines, smaller as it grows, within
+    // the title band.
+    let room = canvas.width() as f32 - 60.0;
+    let layouts: [(f32, &[f32]); 3] = [
+        (16.0, &[74.0]),
+        (15.0, &[68.0, 87.0]),
+        (13.0, &[63.0, 79.0, 95.0]),
+    ];
+    for (k, (size, rows)) in layouts.iter().enumerate() {
+        let style = TextStyle::new(*size).colour(MUTED);
+        let lines = wrap(note, room, &style);
+        if lines.len() <= rows.len() || k == layouts.len() - 1 {
+            for (line, &y) in lines.iter().zip(rows.iter()) {
+                text::draw(canvas, line, 30.0, y, &style);
+            }
+            return;
+        }
+    }
+}
+
+/// `text` broken at spaces into lines no wider than `room` pixels (a
+/// single word wider than that keeps a line to itself).
+fn wrap(text: &str, room: f32, style: &TextStyle) -> Vec<String> {
+    let mut lines: Vec<String> = Vec::new();
+    let mut line = String::new();
+    for word in text.split(' ') {
+        let wider = if line.is_empty() {
+            word.to_owned()
+        } else {
+            format!("{line} {word}")
+        };
+        if text::width(&wider, style) > room && !line.is_empty() {
+            lines.push(std::mem::replace(&mut line, word.to_owned()));
+        } else {
+            line = wider;
+        }
+    }
+    if !line.is_empty() {
+        lines.push(line);
+    }
+    lines
 }
 
 #[cfg(test)]
@@ -384,6 +419,17 @@ mod tests {
     use crate::output::canvas::testing::{decode, keep};
     use crate::output::fixture::{Fixture, caption};
     use crate::output::render::shade;
+
+    #[test]
+    fn long_notes_wrap_at_spaces_within_the_room() {
+        let style = TextStyle::new(15.0);
+        let note = "word ".repeat(200);
+        let lines = wrap(note.trim_end(), 500.0, &style);
+        assert!(lines.len() > 1);
+        assert!(lines.iter().all(|l| text::width(l, &style) <= 500.0));
+        assert_eq!(lines.join(" "), note.trim_end());
+        assert_eq!(wrap("short", 500.0, &style), ["short"]);
+    }
 
     fn sheet(
         f: &Fixture,
