@@ -135,6 +135,12 @@ impl TryFrom<RawFlowSection> for FlowSection {
                 );
             }
             (Some(v), None) => v,
+            (None, Some(kmh)) if kmh > 360.0 => {
+                return Err(format!(
+                    "flow.speed_kmh {kmh} km/h is beyond the incompressible range tuft models (at most \
+                     360 km/h, 100 m/s)"
+                ));
+            }
             (None, Some(kmh)) => kmh / 3.6,
             (None, None) => d.speed,
         };
@@ -593,6 +599,8 @@ mod tests {
         assert!(
             err(&format!("{geo}[flow]\nspeed_kmh = 144.0\nspeed = 40.0\n")).contains("not both")
         );
+        let e = err(&format!("{geo}[flow]\nspeed_kmh = 400.0\n"));
+        assert!(e.contains("flow.speed_kmh 400 km/h is beyond"), "{e}");
         let c = parse(&format!("{geo}[flow]\nyaw = 2.0\n")).unwrap();
         assert_eq!((c.file.flow.speed, c.file.flow.yaw), (40.0, 2.0));
     }
