@@ -3,9 +3,10 @@
 //!
 //! Prints what was read, what each repair pass changed, the boundary loops,
 //! the coarsening, the panel quality and a suggested panel count. Exit 0
-//! when the mesh is usable (its verdict line says whether with warnings);
-//! a problem is returned as an error and printed as one line `tuft: FILE:
-//! problem` (exit 2).
+//! when the mesh is usable (its verdict line says whether with warnings),
+//! 1 when its panels cross each other (a fold through itself, which often
+//! stops a run as unphysical); a problem is returned as an error and
+//! printed as one line `tuft: FILE: problem` (exit 2).
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -84,7 +85,11 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         }
         print!("{}", summary(&file.display().to_string(), &report));
     }
-    Ok(ExitCode::SUCCESS)
+    Ok(if report.folded {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
 }
 
 /// Write the panels to `out` whole or not at all
@@ -175,8 +180,9 @@ fn verdict(r: &PrepareReport) -> String {
     let warnings = &r.quality.warnings;
     match (warnings.len(), r.folded) {
         (0, _) => "verdict    usable\n".to_string(),
-        (_, true) => "verdict    usable, but the surface folds through itself (above): the flow there can \
-                      come out unphysical and stop the run; repair the STL there or try another panel count\n"
+        (_, true) => "verdict    doubtful: the surface folds through itself (above), and the flow there \
+                      often comes out unphysical and stops the run; repair the STL there (another panel count \
+                      may or may not avoid it)\n"
             .to_string(),
         (n, false) => format!(
             "verdict    usable; read the {n} quality warning{} above (pressures near those panels are less sure)\n",

@@ -209,3 +209,29 @@ fn a_unit_slip_is_refused_and_run_wants_a_case_file() {
     assert_eq!(out.status.code(), Some(2), "{stderr}");
     assert!(stderr.contains("case file (.toml)"), "{stderr}");
 }
+
+/// A vertex of a sphere moved along it past its ring of neighbours folds
+/// its fan of facets over theirs, crossing them (a scan's noisy apex does
+/// this). The check finds the crossing pairs, calls the mesh doubtful and
+/// exits 1: a review's run on such a scan failed as unphysical at every
+/// panel count while the check had said "usable".
+#[test]
+fn a_surface_folded_through_itself_is_doubtful_and_exits_1() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("folded.stl");
+    let mut sphere = generate::icosphere(1.0, 3);
+    let v = 0;
+    let p = sphere.vertices[v];
+    // Neighbours' spacing on a level-3 icosphere: about 0.15 m. Moved
+    // 0.3 m along the sphere and 5 mm above it, the far side of its fan
+    // sags below the sphere and rises through the facets beyond the ring.
+    let tangent = p.coords.cross(&nalgebra::Vector3::z()).normalize();
+    let moved = (p.coords + tangent * 0.3).normalize() * 1.005;
+    sphere.vertices[v] = nalgebra::Point3::from(moved);
+    write_binary_stl(&path, &sphere, 1.0);
+    let out = check(&[path.to_str().unwrap(), "--units", "m", "--panels", "5000"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("cross each other"), "{stdout}");
+    assert!(stdout.contains("verdict    doubtful"), "{stdout}");
+    assert_eq!(out.status.code(), Some(1), "{stdout}");
+}
