@@ -477,9 +477,14 @@ fn finish(
     let flow = &case.file.flow;
     let fs = potential.freestream;
     let params = layer_params(case, fs.velocity().normalize());
+    let from_loop = layer.is_some();
     let phase = progress.begin(
         "boundary layer",
-        "marching boundary layers along surface streamlines",
+        if from_loop {
+            "taking the boundary layers of the separated-flow loop's last pass"
+        } else {
+            "marching boundary layers along surface streamlines"
+        },
     );
     let layer = match layer {
         Some(layer) => layer,
@@ -489,9 +494,14 @@ fn finish(
     progress.end(
         phase,
         &format!(
-            "{} streamlines, {} panels unresolved",
+            "{} streamlines, {} panels unresolved{}",
             layer.streamlines.len(),
-            layer.unresolved
+            layer.unresolved,
+            if from_loop {
+                " (marched in the loop, whose time the potential flow's includes)"
+            } else {
+                ""
+            }
         ),
     );
 

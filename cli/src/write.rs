@@ -688,7 +688,11 @@ fn report(
                 (false, false) => " in free air",
             },
             match case.transition {
-                crate::case::TransitionMode::Free => "Michel's free".to_string(),
+                crate::case::TransitionMode::Free => "Michel's free (for a smooth surface in calm air: on a \
+                     road, or on a clay model with its tool marks, the layer turns turbulent sooner, which \
+                     boundary_layer.transition = \"turbulent\" shows and the drag band's fully turbulent \
+                     re-run covers)"
+                    .to_string(),
                 crate::case::TransitionMode::Laminar => "no (all laminar)".to_string(),
                 crate::case::TransitionMode::Turbulent => "immediate (all turbulent)".to_string(),
                 crate::case::TransitionMode::Forced(f) =>
