@@ -374,9 +374,8 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
                 use crate::compare::ResultFolder;
                 let b = ResultFolder::read(&dir.join(&rows[start].name))?;
                 let a = ResultFolder::read(&dir.join(&rows[start + 1].name))?;
-                let mesh_b = b.mesh()?;
                 let mapping = crate::compare::map_a_onto_b(&a, &b);
-                Ok(crate::compare::comparison(&a, &b, &mesh_b, &mapping).drag)
+                Ok(crate::compare::comparison(&a, &b, &mapping).drag)
             })();
             rows[start].against_next = verdict.ok();
         }

@@ -68,7 +68,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         format!(
             "drag difference {delta:+.1} counts is within the noise floor of {NOISE_COUNTS} counts: no winner"
         )
-    } else if banded {
+    } else if banded && separation_differs {
         format!(
             "B has {way} drag by {:.1} counts in this model ({}), but the separated regions differ, \
              where the model's drag ranking is not reliable: a lead, not a winner (confirm it with \
@@ -76,7 +76,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
             delta.abs(),
             band_ends(low, high)
         )
-    } else if !resolved {
+    } else if !banded {
         format!(
             "drag difference {delta:+.1} counts between the central estimates, but {}: within the model \
              uncertainty, no winner",
@@ -133,6 +133,12 @@ mod tests {
         // 10 counts lower everywhere.
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), false);
         assert!(v.resolved && v.direction == "lower", "{v:?}");
+        assert!(
+            v.text
+                .starts_with("B has lower drag by 10.0 counts between the central estimates"),
+            "{}",
+            v.text
+        );
         assert!((v.delta_counts + 10.0).abs() < 1e-9);
         assert!(v.leaning.is_empty(), "{v:?}");
         // The same, but the separated regions differ: no winner, a lead,
