@@ -296,7 +296,7 @@ impl Case {
             .file_stem()
             .map_or("case".into(), |s| s.to_string_lossy().into_owned());
         check_flow(&file)?;
-        check_reference(&file.reference)?;
+        check_reference(&file.reference).map_err(|e| with_axes_hint(e, &file.geometry))?;
         crate::region::check(&file.regions)?;
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
@@ -467,6 +467,20 @@ pub fn file_axes(nose: Option<&str>, up: Option<&str>, key: &str) -> Result<tuft
         other => bail!("{key}up must be \"z\" (the default) or \"y\" (got \"{other}\")"),
     };
     Ok(tuft_mesh::FileAxes { nose_plus_x, y_up })
+}
+
+/// `err` (about lengths in the case file) with a word, when the STL is
+/// turned into tuft's axes, that those lengths are in tuft's axes, not
+/// the file's.
+pub fn with_axes_hint(err: anyhow::Error, g: &GeometrySection) -> anyhow::Error {
+    match (g.nose.as_deref(), g.up.as_deref()) {
+        (Some("+x"), _) | (_, Some("y")) => anyhow::anyhow!(
+            "{err:#} (lengths in the case file, for axles, regions and the ground, are in tuft's axes, into \
+             which geometry.nose and geometry.up turn the STL: x grows from front to rear, so with nose = \
+             \"+x\" it is minus the STL's x, and z is up; tuft check prints the body's extent in them)"
+        ),
+        _ => err,
+    }
 }
 
 /// The built-in shapes and the `[geometry]` keys each one reads.

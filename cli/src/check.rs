@@ -58,10 +58,11 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         .file
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
-    let (file, params) = if is_case {
-        from_case(&args.file)?
+    let (file, params, case) = if is_case {
+        let (file, params, case) = from_case(&args.file)?;
+        (file, params, Some(case))
     } else {
-        (args.file.clone(), settings(args)?)
+        (args.file.clone(), settings(args)?, None)
     };
     let (panels, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
     let [lo, hi] = report.bounds;
@@ -69,6 +70,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let key = if is_case { "geometry.units" } else { "--units" };
     if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
         anyhow::bail!("{}: {why}", file.display());
+    }
+    if let Some(case) = &case {
+        crate::geometry::check_placement(&panels, case)
+            .with_context(|| args.file.display().to_string())?;
     }
     if let Some(out) = &args.save_panels {
         save_panels(out, &panels, params.units)?;
@@ -84,6 +89,9 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             );
         }
         print!("{}", summary(&file.display().to_string(), &report));
+        if let Some(case) = &case {
+            print!("{}", placement_lines(&panels, case));
+        }
     }
     Ok(if report.folded {
         ExitCode::from(1)
@@ -104,8 +112,29 @@ fn save_panels(
     crate::outdir::write_whole(out, &bytes)
 }
 
+/// Where the case puts the axles and its named regions on the body, in
+/// tuft's axes (checked to lie on it before this is printed).
+fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> String {
+    let r = &case.file.reference;
+    let mut s = match (r.front_axle_x, r.rear_axle_x) {
+        (Some(f), Some(b)) => format!("axles      front x {f:.3} m, rear x {b:.3} m\n"),
+        _ => "axles      not given: a run splits the lift at 20 % and 80 % of the length, with a warning\n"
+            .to_owned(),
+    };
+    for region in &case.file.regions {
+        let (n, area) = crate::region::extent(region, panels);
+        s += &format!(
+            "region     \"{}\": {n} panels, {area:.3} m^2 (whole body)\n",
+            region.name
+        );
+    }
+    s
+}
+
 /// The STL and settings a case file gives a run.
-fn from_case(path: &std::path::Path) -> anyhow::Result<(PathBuf, PrepareParams)> {
+fn from_case(
+    path: &std::path::Path,
+) -> anyhow::Result<(PathBuf, PrepareParams, crate::case::Case)> {
     let case = crate::case::Case::load(path)?;
     let crate::case::GeometrySource::Stl {
         path: stl,
@@ -128,7 +157,7 @@ fn from_case(path: &std::path::Path) -> anyhow::Result<(PathBuf, PrepareParams)>
         target_panels: case.file.geometry.panels,
         ..PrepareParams::default()
     };
-    Ok((stl.clone(), params))
+    Ok((stl.clone(), params, case))
 }
 
 /// Checked settings from the raw flags.
@@ -220,8 +249,9 @@ fn read_lines(r: &PrepareReport) -> String {
             what.push("y up");
         }
         s += &format!(
-            "axes       the file has {}: turned to tuft's axes (x downstream from the nose, z up); \
-             everything below is in those\n",
+            "axes       the file has {}: turned to tuft's axes (x growing from front to rear, z up, y to \
+             the right seen from the driver's seat, the origin kept); everything below, and every length \
+             in a case file, is in those\n",
             what.join(" and ")
         );
     }

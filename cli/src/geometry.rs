@@ -64,8 +64,7 @@ pub fn load(case: &Case) -> Result<Geometry> {
     };
     check_ground(&mesh, case)?;
     check_size(&mesh, case)?;
-    check_axles(&mesh, case)?;
-    crate::region::check_on_body(&case.file.regions, &mesh)?;
+    check_placement(&mesh, case)?;
     Ok(Geometry {
         mesh,
         input_facets,
@@ -216,6 +215,14 @@ pub fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -
 
 /// Refuse axle positions outside the body's length (given in millimetres,
 /// or for another body).
+/// The axles and the named regions lie on the body (in tuft's axes; the
+/// error says so when the STL was turned into them).
+pub fn check_placement(mesh: &PanelMesh, case: &Case) -> Result<()> {
+    check_axles(mesh, case)
+        .and_then(|()| crate::region::check_on_body(&case.file.regions, mesh))
+        .map_err(|e| crate::case::with_axes_hint(e, &case.file.geometry))
+}
+
 fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
     let r = &case.file.reference;
     let (lo, hi) = mesh.bounds();

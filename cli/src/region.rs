@@ -126,6 +126,16 @@ fn copies(mesh: &PanelMesh, p: &tuft_mesh::Panel) -> Vec<(Point, Vector)> {
     out
 }
 
+/// How many panels (counting a half model's mirror images, as
+/// [`evaluate`] does) and how much area a region holds on `mesh`.
+pub fn extent(r: &RegionSection, mesh: &PanelMesh) -> (usize, f64) {
+    mesh.panels
+        .iter()
+        .flat_map(|p| copies(mesh, p).into_iter().map(move |cn| (p.area, cn)))
+        .filter(|(_, (c, n))| inside(r, c, n))
+        .fold((0, 0.0), |(k, a), (area, _)| (k + 1, a + area))
+}
+
 /// Refuse a region that holds no panel of `mesh` (ranges in millimetres,
 /// or a facing no panel in the ranges has): its verdict would read
 /// "attached" for nothing.

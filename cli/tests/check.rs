@@ -150,6 +150,12 @@ fn check_reads_a_case_files_stl_as_the_run_does() {
     assert!(stdout.starts_with("case       "), "{stdout}");
     assert!(stdout.contains("unit mm"), "{stdout}");
     assert!(stdout.contains("ground plane: z = 0 m"), "{stdout}");
+    // Where the case puts the axles and its regions, as the run will.
+    assert!(
+        stdout.contains("axles      front x 0.950 m, rear x 3.650 m"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("region     \"rear window\": "), "{stdout}");
     let out = check(&[cases.join("ahmed-25.toml").to_str().unwrap()]);
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(2), "{stderr}");
