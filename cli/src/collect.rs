@@ -205,8 +205,12 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
         .map(|rows| {
             let r = &rows[0];
             let label = match (speeds, yaws) {
-                (true, true) => format!("{} m/s, yaw {}°", r.speed, r.yaw_deg),
-                (true, false) => format!("{} m/s", r.speed),
+                (true, true) => format!(
+                    "{}, yaw {}°",
+                    crate::output::speed_words(r.speed),
+                    r.yaw_deg
+                ),
+                (true, false) => crate::output::speed_words(r.speed),
                 (false, true) => format!("yaw {}°", r.yaw_deg),
                 (false, false) => String::new(),
             };
@@ -592,6 +596,7 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
 fn axis_label(key: &str) -> String {
     let unit = match key {
         "flow.speed" => "m/s",
+        "flow.speed_kmh" => "km/h",
         "flow.yaw"
         | "geometry.rear_window_deg"
         | "geometry.diffuser_deg"
@@ -720,11 +725,16 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         escape(&c.caution)
     );
     let groups = wind_groups(c);
-    let within = if groups.len() > 1 {
-        " within each wind condition (speed and yaw): drag at another speed or yaw is another test, so \
-         the ranking restarts at 1 in each"
-    } else {
-        ""
+    let within = match (groups.len(), c.variants.first()) {
+        (1, Some(r)) => format!(
+            ", all at {}, yaw {}° (lift in kg is at that speed)",
+            crate::output::speed_words(r.speed),
+            r.yaw_deg
+        ),
+        (1, None) => String::new(),
+        _ => " within each wind condition (speed and yaw): drag at another speed or yaw is another test, so \
+              the ranking restarts at 1 in each"
+            .to_owned(),
     };
     let _ = writeln!(
         s,
@@ -857,7 +867,12 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     for r in &c.variants {
         s.push_str("<tr>");
         if by_wind {
-            let _ = write!(s, "<td>{} m/s, yaw {}°</td>", r.speed, r.yaw_deg);
+            let _ = write!(
+                s,
+                "<td>{}, yaw {}°</td>",
+                crate::output::speed_words(r.speed),
+                r.yaw_deg
+            );
         }
         let _ = write!(
             s,
@@ -1147,6 +1162,12 @@ mod tests {
         let one = sweep(&[10.0, 10.0]);
         assert!(!best_drag(&one).contains("wind condition"));
         assert!(!page(&one, &[]).contains("restarts at 1"));
+        // One condition: the page says which (lift in kg depends on it).
+        assert!(
+            page(&one, &[]).contains("all at 40 m/s (144 km/h), yaw 0°"),
+            "{}",
+            page(&one, &[])
+        );
     }
 
     /// The best drag is named only beyond the noise floor and with the

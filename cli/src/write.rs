@@ -411,8 +411,9 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
             frontal_m2: sym * c.separated_frontal,
+            // An empty float sum is -0.0; adding +0.0 keeps "-0.0 %" out.
             underbody_fraction: match c.underbody_separation {
-                (s, a) if a > 0.0 => s / a,
+                (s, a) if a > 0.0 => s / a + 0.0,
                 _ => 0.0,
             },
         },
@@ -607,7 +608,13 @@ fn report(
             &at,
         ),
         NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
-        NumberRow::fixed("Pitching-moment coefficient", k.pitch, 3, "-"),
+        NumberRow::fixed(
+            "Pitching-moment coefficient (about the wheelbase's middle on the ground, on the reference \
+             length; positive nose up)",
+            k.pitch,
+            3,
+            "-",
+        ),
         NumberRow::fixed("Separated area", s.separation.area_m2, 2, "m²"),
         NumberRow::fixed(
             "Separated fraction of the wetted area",
@@ -638,6 +645,20 @@ fn report(
         ),
         NumberRow::number("Reference area", s.reference.area_m2, "m²"),
         NumberRow::number("Reference length", s.reference.length_m, "m"),
+        NumberRow::text(
+            "Axles (front, rear), for the lift split",
+            &format!(
+                "x {:.3} and {:.3}{}",
+                s.reference.front_axle_x_m,
+                s.reference.rear_axle_x_m,
+                if s.reference.given.get("axles").copied().unwrap_or(false) {
+                    ""
+                } else {
+                    " (not given: 20 % and 80 % of the length)"
+                }
+            ),
+            "m",
+        ),
         NumberRow::number(
             "Reynolds number on the reference length",
             s.reynolds_number,
