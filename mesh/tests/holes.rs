@@ -207,6 +207,25 @@ fn missing_end_of_a_body_is_refused_with_its_centre() {
     );
     assert!(text.contains(&format!("centre ({x:.3}, ")), "{text}");
     assert!(text.contains(&format!("perimeter {:.3} m", hole.perimeter)));
+    assert!(!hole.on_undeclared_symmetry_plane, "{text}");
+}
+
+#[test]
+fn a_half_model_read_as_whole_is_asked_whether_it_is_one() {
+    // The generated half coupe repaired without its symmetry plane: the
+    // cut is refused, and the refusal asks whether it is a half model's.
+    let half = generate::coupe_with_params(&generate::CoupeParams {
+        half: true,
+        ..generate::CoupeParams::default()
+    })
+    .unwrap();
+    let e = repair(half, &Mirrors::none()).unwrap_err();
+    let text = e.to_string();
+    let MeshError::OpenHole { holes, .. } = &e else {
+        panic!("{e}")
+    };
+    assert!(holes[0].on_undeclared_symmetry_plane, "{text}");
+    assert!(text.contains("is this the cut of a half model?"), "{text}");
 }
 
 #[test]

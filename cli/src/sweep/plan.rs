@@ -306,7 +306,9 @@ fn geometry_key(v: &toml::Value) -> String {
 }
 
 /// Set a dotted key, creating tables on the way; setting `geometry.stl`
-/// drops `geometry.shape` and the other way round.
+/// drops `geometry.shape` and the other way round, and `flow.speed` drops
+/// `flow.speed_kmh` and the other way round (the swept speed replaces the
+/// base case's, in whichever unit that was given).
 fn set_key(root: &mut toml::Value, key: &str, value: toml::Value) -> Result<(), String> {
     let parts: Vec<&str> = key.split('.').collect();
     let (last, path) = parts.split_last().ok_or_else(|| "empty key".to_string())?;
@@ -325,6 +327,8 @@ fn set_key(root: &mut toml::Value, key: &str, value: toml::Value) -> Result<(), 
     match key {
         "geometry.stl" => drop(table.remove("shape")),
         "geometry.shape" => drop(table.remove("stl")),
+        "flow.speed" => drop(table.remove("speed_kmh")),
+        "flow.speed_kmh" => drop(table.remove("speed")),
         _ => {}
     }
     table.insert(last.to_string(), value);
@@ -416,6 +420,26 @@ mod tests {
         assert_eq!(full_key("rear_window_deg"), "geometry.rear_window_deg");
         assert_eq!(full_key("yaw"), "flow.yaw");
         assert_eq!(full_key("flow.speed"), "flow.speed");
+    }
+
+    /// A swept speed replaces the base case's, in whichever unit each is
+    /// given (a review's base case in km/h swept in m/s failed every
+    /// variant with "give the speed once").
+    #[test]
+    fn a_swept_speed_replaces_the_base_speed_in_either_unit() {
+        let base = format!("{BASE}[base.flow]\nspeed_kmh = 140.0\n");
+        let p = plan(&format!(
+            "{base}[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
+        ))
+        .unwrap();
+        assert_eq!(p.variants[0].file.as_ref().unwrap().flow.speed, 30.0);
+        let base = format!("{BASE}[base.flow]\nspeed = 40.0\n");
+        let p = plan(&format!(
+            "{base}[[vary]]\nkey = \"flow.speed_kmh\"\nvalues = [108.0]\n"
+        ))
+        .unwrap();
+        let v = p.variants[0].file.as_ref().unwrap().flow.speed;
+        assert!((v - 30.0).abs() < 1e-12, "{v}");
     }
 
     #[test]

@@ -91,6 +91,10 @@ pub struct RefusedHole {
     pub limit: f64,
     /// Why it was refused.
     pub reason: Refusal,
+    /// Its whole rim lies on y = 0 while no symmetry plane was declared:
+    /// most likely the cut of a half model.
+    #[serde(default)]
+    pub on_undeclared_symmetry_plane: bool,
 }
 
 /// The refused holes as one line: centre, perimeter and reason of each, up
@@ -111,8 +115,13 @@ fn describe_one(h: &RefusedHole) -> String {
         Refusal::Folds => "its rim overlaps itself seen along its normal".to_string(),
     };
     let [x, y, z] = h.centre;
+    let cut = if h.on_undeclared_symmetry_plane {
+        " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)"
+    } else {
+        ""
+    };
     format!(
-        "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m, {why}",
+        "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m, {why}{cut}",
         h.perimeter
     )
 }
@@ -202,6 +211,20 @@ pub(crate) fn close_holes_with_uses(
                     edges: info.edges,
                     limit,
                     reason,
+                    on_undeclared_symmetry_plane: !s.mirrors.symmetry
+                        && on_plane(
+                            &mesh.vertices,
+                            &half,
+                            edges,
+                            &HoleSettings {
+                                mirrors: Mirrors {
+                                    ground: None,
+                                    symmetry: true,
+                                },
+                                ..*s
+                            },
+                        )
+                        .is_some(),
                 }),
             }
         }
