@@ -403,5 +403,8 @@ fn quality_lines(r: &PrepareReport) -> String {
     for w in &q.warnings {
         s += &format!("           warning: {w}\n");
     }
+    for n in &q.notes {
+        s += &format!("           note: {n}\n");
+    }
     s
 }

@@ -163,6 +163,10 @@ pub struct Summary {
     pub timings_s: BTreeMap<String, f64>,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
+    /// Remarks that call for no action (the grading of a mesh tuft
+    /// coarsened).
+    #[serde(default)]
+    pub notes: Vec<String>,
     /// The caution that goes with every number here.
     pub caution: String,
 }

@@ -437,6 +437,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         regions: c.regions.clone(),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
+        notes: geo.report.quality.notes.clone(),
         caution: CAUTION.into(),
     }
 }
@@ -733,6 +734,12 @@ fn report(
         ),
     };
     let mut sections = vec![method];
+    if !s.notes.is_empty() {
+        sections.push(TextSection {
+            title: "Notes on the panels".into(),
+            body: s.notes.join("\n\n"),
+        });
+    }
     if s.mesh.ground_z.is_some() {
         sections.push(TextSection {
             title: "Lift near the ground".into(),

@@ -18,7 +18,7 @@ use serde::Serialize;
 use crate::coarsen::{CoarsenParams, CoarsenReport, coarsen_with_params};
 use crate::crossing::crossings;
 use crate::import::{FileAxes, LengthUnit, RigidTransform, StlReport, read_stl};
-use crate::quality::{QualityReport, quality, suggested_panels};
+use crate::quality::{GRADING_NOTE_SHARE, QualityReport, quality, suggested_panels};
 use crate::repair::{RepairParams, RepairReport, repair_with_params};
 use crate::{MeshError, Mirrors, PanelMesh, TriMesh};
 
@@ -158,6 +158,7 @@ pub fn prepare_mesh(
     let local_crossing = refuse_self_crossing(&mesh)?;
     let panels = PanelMesh::new(mesh, params.mirrors)?;
     let (lo, hi) = panels.bounds();
+    let coarsened = coarsen.is_some();
     let report = PrepareReport {
         read,
         units: params.units,
@@ -175,7 +176,12 @@ pub fn prepare_mesh(
         folded: local_crossing.is_some(),
         quality: {
             let mut q = quality(&panels);
-            q.warnings.extend(local_crossing);
+            if coarsened {
+                q.grading_as_notes(GRADING_NOTE_SHARE);
+            }
+            if let Some(w) = local_crossing {
+                q.add_warning(w);
+            }
             q
         },
         panels: panels.len(),
