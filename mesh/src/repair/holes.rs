@@ -111,7 +111,11 @@ pub fn describe_refused(holes: &[RefusedHole]) -> String {
 fn describe_one(h: &RefusedHole) -> String {
     let why = match h.reason {
         Refusal::TooLarge => format!("above its fill limit of {:.3} m", h.limit),
-        Refusal::NotClosed => "its rim does not close on itself".to_string(),
+        Refusal::NotClosed => {
+            "its rim does not close on itself (facets there fold over one another or \
+                                share an edge three ways: look at the STL near that point)"
+                .to_string()
+        }
         Refusal::Folds => "its rim overlaps itself seen along its normal".to_string(),
     };
     let [x, y, z] = h.centre;
