@@ -54,8 +54,9 @@ pub struct Computed {
     /// magnitude of its normal's component along the stream; real panels),
     /// m^2.
     pub separated_frontal: f64,
-    /// Lift of the ground-facing panels' pressure, kg.
-    pub underbody_lift_kg: f64,
+    /// Lift of the ground-facing panels' pressure, kg: whole, front axle,
+    /// rear axle.
+    pub underbody_lift_kg: [f64; 3],
     /// The case's named regions.
     pub regions: Vec<crate::region::RegionResult>,
     /// Warnings the user must read.
@@ -400,16 +401,17 @@ pub const UNDERBODY_NORMAL_Z: f64 = 0.5;
 /// speeds up under a smooth floor and sucks the body down; a real
 /// underbody (wheels, roughness, cooling flow) recovers much less of that
 /// suction, so this part of the lift is the least certain and the report
-/// names it.
+/// names it. With its split between the front and the rear axle by the
+/// same moment balance as the whole body's: `[total, front, rear]`.
 ///
 /// # Errors
 /// Those of [`loads::integrate_loads`].
-pub fn underbody_lift_kg(
+pub fn underbody_lift(
     mesh: &PanelMesh,
     cp: &[f64],
     reference: &Reference,
     air: &loads::FlowState,
-) -> Result<f64> {
+) -> Result<[f64; 3]> {
     let under: Vec<f64> = mesh
         .panels
         .iter()
@@ -422,7 +424,8 @@ pub fn underbody_lift_kg(
             }
         })
         .collect();
-    Ok(loads::integrate_loads(mesh, &under, None, reference, air)?.lift_kg)
+    let l = loads::integrate_loads(mesh, &under, None, reference, air)?;
+    Ok([l.lift_kg, l.axles.front_kg, l.axles.rear_kg])
 }
 
 /// How the linear system was solved, in words for the console and the
@@ -535,7 +538,7 @@ fn finish(
         )?),
         None => None,
     };
-    let underbody_lift_kg = underbody_lift_kg(mesh, &cp_separated, &reference, &air)?;
+    let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
     let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
@@ -898,7 +901,10 @@ mod tests {
                 .map(|p| -0.8 + 0.3 * p.centroid.x - 0.5 * p.centroid.z)
                 .collect();
             let reference = Reference::from_mesh(mesh, 0.95, 3.65);
-            underbody_lift_kg(mesh, &cp, &reference, &air).unwrap()
+            let [total, front, rear] = underbody_lift(mesh, &cp, &reference, &air).unwrap();
+            // The axles carry the whole of it.
+            assert!((front + rear - total).abs() <= 1e-9 * total.abs().max(1.0));
+            total
         };
         let (whole, half) = (lift(&body(false)), lift(&body(true)));
         assert!(whole < 0.0, "suction on the floor pulls down: {whole}");

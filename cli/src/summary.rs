@@ -34,9 +34,15 @@ pub struct LiftKg {
     /// On the rear axle.
     pub rear_axle: f64,
     /// Of the total, the pressure on the ground-facing panels (the
-    /// underbody; see `pipeline::underbody_lift_kg`).
+    /// underbody; see `pipeline::underbody_lift`).
     #[serde(default)]
     pub underbody: f64,
+    /// The underbody's part on the front axle.
+    #[serde(default)]
+    pub underbody_front_axle: f64,
+    /// The underbody's part on the rear axle.
+    #[serde(default)]
+    pub underbody_rear_axle: f64,
 }
 
 /// Where the boundary layer separated.

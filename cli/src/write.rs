@@ -405,7 +405,9 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             total: e.lift_kg,
             front_axle: e.axles.front_kg,
             rear_axle: e.axles.rear_kg,
-            underbody: c.underbody_lift_kg,
+            underbody: c.underbody_lift_kg[0],
+            underbody_front_axle: c.underbody_lift_kg[1],
+            underbody_rear_axle: c.underbody_lift_kg[2],
         },
         separation: Separation {
             area_m2: sym * c.separated_area,
@@ -522,8 +524,10 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
 pub fn underbody_words(s: &Summary, lead: &str) -> String {
     if s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
         format!(
-            "{lead}of which the smooth underbody {} kg, the least certain part",
-            output::whole(s.lift_kg.underbody)
+            "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part",
+            output::whole(s.lift_kg.underbody),
+            output::whole(s.lift_kg.underbody_front_axle),
+            output::whole(s.lift_kg.underbody_rear_axle)
         )
     } else {
         String::new()
@@ -602,10 +606,14 @@ fn report(
         ),
         NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
         NumberRow::fixed("Lift, rear axle", s.lift_kg.rear_axle, 0, &at),
-        NumberRow::fixed(
-            "Lift, of which the underbody (ground-facing panels)",
-            s.lift_kg.underbody,
-            0,
+        NumberRow::text(
+            "Lift, of which the underbody (ground-facing panels; front, rear axle)",
+            &format!(
+                "{} ({}, {})",
+                output::whole(s.lift_kg.underbody),
+                output::whole(s.lift_kg.underbody_front_axle),
+                output::whole(s.lift_kg.underbody_rear_axle)
+            ),
             &at,
         ),
         NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
