@@ -273,7 +273,8 @@ fn best_drag_in(rows: &[Row]) -> String {
         } else if !v.leaning.is_empty() {
             format!(
                 "lowest drag in this model: {lowest}, {gap:.1} counts below {}; the separated regions differ, \
-                 where the model's drag ranking is not reliable: a lead, not a winner (see the report)",
+                 where the model's drag ranking is not reliable: an indication, not a verdict (see the \
+                 notes above)",
                 second.name
             )
         } else if gap < crate::compare::NOISE_COUNTS {
@@ -296,7 +297,7 @@ fn best_drag_in(rows: &[Row]) -> String {
         )
     } else if separation_spread(rows).is_some() {
         format!(
-            "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the report)"
+            "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the notes above)"
         )
     } else {
         format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
@@ -739,8 +740,10 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     let _ = writeln!(
         s,
         "<p>{} variants ranked by the drag estimate{within}. Differences of a few drag counts are within the noise \
-         of any simulation (common practice); use <code>tuft compare</code> on two variants for a verdict.</p>",
-        c.variants.len()
+         of any simulation (common practice; {}); <code>tuft compare</code> on two variants shows where on the \
+         body they differ.</p>",
+        c.variants.len(),
+        crate::output::html::COUNT_WORDS.trim_end_matches('.')
     );
     let class = if not_converged(c).is_empty() {
         "verdict"
@@ -1211,7 +1214,7 @@ mod tests {
         let line = best_drag(&c);
         assert!(
             line.starts_with("lowest drag in this model: v0 (C_D 0.300), 10.0 counts below v1")
-                && line.contains("a lead, not a winner"),
+                && line.contains("an indication, not a verdict"),
             "{line}"
         );
         c.variants[0].against_next = Some(verdict(true, ""));

@@ -100,10 +100,7 @@ pub fn write_all(
     out: &Staging,
     progress: &mut Progress,
 ) -> Result<Summary> {
-    let phase = progress.begin(
-        "outputs",
-        "writing tables, VTK files, pictures and the report",
-    );
+    let phase = progress.begin("outputs", "writing tables and VTK files");
     let mesh = &geo.mesh;
     let fields = Fields::new(c);
     let surface = fields.surface(mesh, c);
@@ -522,9 +519,10 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
 /// least certain number of a run: the words that say so where the lift is
 /// first read (after `lead`), or nothing.
 pub fn underbody_words(s: &Summary, lead: &str) -> String {
-    if s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
+    if s.mesh.ground_z.is_some() && s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
         format!(
-            "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part",
+            "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part: a real \
+             underbody sucks far less",
             output::whole(s.lift_kg.underbody),
             output::whole(s.lift_kg.underbody_front_axle),
             output::whole(s.lift_kg.underbody_rear_axle)
@@ -606,7 +604,9 @@ fn report(
         ),
         NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
         NumberRow::fixed("Lift, rear axle", s.lift_kg.rear_axle, 0, &at),
-        NumberRow::text(
+    ];
+    if s.mesh.ground_z.is_some() {
+        numbers.push(NumberRow::text(
             "Lift, of which the underbody (ground-facing panels; front, rear axle)",
             &format!(
                 "{} ({}, {})",
@@ -615,7 +615,9 @@ fn report(
                 output::whole(s.lift_kg.underbody_rear_axle)
             ),
             &at,
-        ),
+        ));
+    }
+    numbers.extend([
         NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
         NumberRow::fixed(
             "Pitching-moment coefficient (about the wheelbase's middle on the ground, on the reference \
@@ -631,7 +633,7 @@ fn report(
             1,
             "%",
         ),
-    ];
+    ]);
     for r in &s.regions {
         numbers.push(NumberRow::text(
             &format!("Region \"{}\": separated share", r.name),
@@ -701,10 +703,10 @@ fn report(
         body: format!(
             "Inviscid potential flow by a source/doublet panel method on {} panels{}; integral boundary \
              layers (Thwaites laminar, {} transition, Head turbulent with Ludwieg-Tillmann skin friction) \
-             along {} surface streamlines, separation at lambda = -0.09 (laminar) or H = {} (turbulent).\n\n\
+             along {} surface streamlines, separation at lambda = -0.09 (laminar) or H = {} (turbulent).{}\n\n\
              {} and adds skin friction; its band re-runs the boundary layer with {}. It is a screening \
              estimate: absolute drag can be off by more than the band, while differences between close \
-             variants are more trustworthy. Differences of a few drag counts are within the noise of any \
+             variants are more trustworthy where their separated regions stay put. Differences of a few drag counts are within the noise of any \
              simulation (common practice).",
             s.mesh.panels,
             match (s.mesh.ground_z.is_some(), s.mesh.symmetry_plane) {
@@ -718,11 +720,7 @@ fn report(
                 (false, false) => " in free air",
             },
             match case.transition {
-                crate::case::TransitionMode::Free => "Michel's free (for a smooth surface in calm air: on a \
-                     road, or on a clay model with its tool marks, the layer turns turbulent sooner, which \
-                     boundary_layer.transition = \"turbulent\" shows and the drag band's fully turbulent \
-                     re-run covers)"
-                    .to_string(),
+                crate::case::TransitionMode::Free => "Michel's free".to_string(),
                 crate::case::TransitionMode::Laminar => "no (all laminar)".to_string(),
                 crate::case::TransitionMode::Turbulent => "immediate (all turbulent)".to_string(),
                 crate::case::TransitionMode::Forced(f) =>
@@ -730,6 +728,13 @@ fn report(
             },
             s.solver.streamlines,
             case.file.boundary_layer.separation_h.unwrap_or(2.4),
+            if case.transition == crate::case::TransitionMode::Free {
+                " Free transition is for a smooth surface in calm air: on a road, or on a clay model \
+                 with its tool marks, the layer turns turbulent sooner, which boundary_layer.transition \
+                 = \"turbulent\" shows and the drag band's fully turbulent re-run covers."
+            } else {
+                ""
+            },
             if s.separated_wakes.is_some() {
                 "The drag estimate integrates the pressure of the separated-flow loop's last pass (below), \
                  with the dead water at its pressure,"

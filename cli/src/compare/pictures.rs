@@ -100,8 +100,15 @@ pub fn write(
             ("separates in B only".into(), Swatch::Hatched(APPEARS.0, APPEARS.1)),
             ("separates in A only".into(), Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1)),
             ("separates in both".into(), Swatch::Hatched(BOTH.0, BOTH.1)),
-            ("not resolved".into(), Swatch::Solid(NO_VALUE)),
-        ],
+        ]
+        .into_iter()
+        .chain(
+            f.delta_risk
+                .iter()
+                .any(|r| r.is_nan())
+                .then(|| ("not resolved".into(), Swatch::Solid(NO_VALUE))),
+        )
+        .collect(),
         what: "Separation change".into(),
         note: "Where separation appears (red stripes) or disappears (blue stripes) in B; colour: risk of B minus risk of A.".into(),
     };

@@ -71,8 +71,8 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
     } else if banded && separation_differs {
         format!(
             "B has {way} drag by {:.1} counts in this model ({}), but the separated regions differ, \
-             where the model's drag ranking is not reliable: a lead, not a winner (confirm it with \
-             validated CFD or a tunnel)",
+             where the model's drag ranking is not reliable: an indication, not a verdict (confirm it \
+             with validated CFD or a tunnel)",
             delta.abs(),
             band_ends(low, high)
         )
@@ -150,7 +150,7 @@ mod tests {
             v.text
                 .contains("B has lower drag by 10.0 counts in this model")
                 && v.text.contains("separated regions differ")
-                && v.text.contains("a lead, not a winner"),
+                && v.text.contains("an indication, not a verdict"),
             "{}",
             v.text
         );

@@ -236,8 +236,14 @@ fn numbers(rows: &[NumberRow]) -> String {
         ));
     }
     out.push_str("</tbody>\n</table>\n");
+    if rows.iter().any(|r| r.unit.starts_with("counts")) {
+        out.push_str(&format!("<p class=\"none\">{COUNT_WORDS}</p>\n"));
+    }
     out
 }
+
+/// What a drag count is, said wherever counts are shown.
+pub const COUNT_WORDS: &str = "1 drag count = 0.001 of the drag coefficient C_D.";
 
 /// The warnings list (says so when there are none).
 fn warnings(list: &[String]) -> String {

@@ -234,18 +234,24 @@ fn field_style(
         ),
         SurfaceField::SeparationRisk => (
             ColourScale::risk(),
-            vec![
-                (
-                    "separated".to_owned(),
-                    Swatch::Hatched(SEPARATED.0, SEPARATED.1),
-                ),
-                ("not resolved".to_owned(), Swatch::Solid(NO_VALUE)),
-            ],
+            std::iter::once((
+                "separated".to_owned(),
+                Swatch::Hatched(SEPARATED.0, SEPARATED.1),
+            ))
+            .chain(unresolved_swatch(s))
+            .collect(),
             "Separation risk",
             "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated. \
              A laminar layer at 1 turns turbulent there (a short bubble) and goes on.",
         ),
     }
+}
+
+/// The legend's "not resolved" entry, only where some panel is.
+pub(crate) fn unresolved_swatch(s: &SurfaceResult<'_>) -> Option<(String, Swatch)> {
+    s.state
+        .contains(&PanelState::Unresolved)
+        .then(|| ("not resolved".to_owned(), Swatch::Solid(NO_VALUE)))
 }
 
 /// Paint of panel `i` for a field.

@@ -164,7 +164,7 @@ pub fn tuft_sheet(s: &SurfaceResult<'_>, caption: &Caption) -> Result<Canvas, Ou
         note = format!("{note} {extra}");
     }
     draw_titles(&mut canvas, &caption.title("Surface flow (tufts)"), &note);
-    draw_key(&mut canvas, &params);
+    draw_key(&mut canvas, &params, s);
     Ok(canvas)
 }
 
@@ -192,7 +192,7 @@ fn draw_tuft(canvas: &mut Canvas, tuft: &Tuft) {
 }
 
 /// The key in the colour-bar column.
-fn draw_key(canvas: &mut Canvas, params: &SheetParams) {
+fn draw_key(canvas: &mut Canvas, params: &SheetParams, s: &SurfaceResult<'_>) {
     let x = (f64::from(params.width) - BAR_COLUMN + 36.0) as f32;
     let y = (TITLE_BAND + 50.0) as f32;
     text::draw(canvas, "tufts", x, y - 14.0, &TextStyle::new(17.0).bold());
@@ -205,9 +205,11 @@ fn draw_key(canvas: &mut Canvas, params: &SheetParams) {
             "separated area",
             Swatch::Hatched(BODY_SEPARATED.0, BODY_SEPARATED.1),
         ),
-        ("not resolved", Swatch::Solid(NO_VALUE)),
     ]
-    .map(|(label, swatch)| (label.to_owned(), swatch));
+    .map(|(label, swatch)| (label.to_owned(), swatch))
+    .into_iter()
+    .chain(sheet::unresolved_swatch(s))
+    .collect::<Vec<_>>();
     draw_legend(canvas, x, y, &entries);
     text::draw(
         canvas,
