@@ -121,11 +121,38 @@ pub struct Collected {
     pub caution: String,
 }
 
+/// What makes the variants of each wind condition hard to rank (panel
+/// counts apart, separated areas or the underbody's separation moving), as
+/// `tuft compare` notes it for two runs, each labelled with its condition
+/// when there are several.
+fn notes(c: &Collected) -> Vec<String> {
+    let mut out = Vec::new();
+    for (label, rows) in &wind_groups(c) {
+        let prefix = if label.is_empty() {
+            String::new()
+        } else {
+            format!("{label}: ")
+        };
+        out.extend(
+            [
+                panel_spread(rows),
+                separation_spread(rows),
+                underbody_spread(rows),
+            ]
+            .into_iter()
+            .flatten()
+            .map(|text| format!("{prefix}{text}")),
+        );
+    }
+    out
+}
+
 /// `tuft collect`.
 pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let c = collect(&args.dir)?;
     write_outputs(&args.dir, &c)?;
     let warnings = distinct_warnings(&c);
+    let notes = notes(&c);
     if !args.quiet {
         println!(
             "{}: {} variants collected; {}",
@@ -133,6 +160,9 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             c.variants.len(),
             c.drag_ranking
         );
+        for n in &notes {
+            println!("  note: {n}");
+        }
         for (text, names) in &warnings {
             println!("  warning ({}): {text}", names.join(", "));
         }
@@ -141,11 +171,14 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
         }
         println!("  report: {}", args.dir.join("sweep.html").display());
     }
-    Ok(if c.missing.is_empty() && warnings.is_empty() {
-        ExitCode::SUCCESS
-    } else {
-        ExitCode::from(EXIT_WARNINGS)
-    })
+    // Notes, as `tuft compare`'s, are warnings to read.
+    Ok(
+        if c.missing.is_empty() && warnings.is_empty() && notes.is_empty() {
+            ExitCode::SUCCESS
+        } else {
+            ExitCode::from(EXIT_WARNINGS)
+        },
+    )
 }
 
 /// Whether a warning says the variant's separation verdict and drag are
@@ -559,7 +592,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
     let metrics: [Metric; 3] = [
         ("Drag estimate", "drag estimate [counts]", |r| 1000.0 * r.cd),
-        ("Lift", "lift [kg]", |r| r.lift_kg),
+        ("Lift", "lift [kg], negative: downforce", |r| r.lift_kg),
         ("Separated area", "separated area [m²]", |r| {
             r.separated_area_m2
         }),
@@ -755,26 +788,8 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         "<p class=\"{class}\"><strong>{}</strong></p>",
         escape(&sentence(&best_drag(c)))
     );
-    for (label, rows) in &groups {
-        let prefix = if label.is_empty() {
-            String::new()
-        } else {
-            format!("{label}: ")
-        };
-        for text in [
-            panel_spread(rows),
-            separation_spread(rows),
-            underbody_spread(rows),
-        ]
-        .into_iter()
-        .flatten()
-        {
-            let _ = writeln!(
-                s,
-                "<p class=\"caution\">{}</p>",
-                escape(&format!("{prefix}{text}"))
-            );
-        }
+    for text in notes(c) {
+        let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(&text));
     }
     warnings_section(&mut s, c);
     ranking_table(&mut s, c, groups.len() > 1);
@@ -862,7 +877,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     for k in &c.keys {
         let _ = write!(s, "<th>{}</th>", escape(k));
     }
-    s.push_str("<th>C_D</th><th>band</th><th>lift [kg]</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
+    s.push_str("<th>C_D</th><th>band</th><th>lift [kg] (− downforce)</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
     for g in &c.regions {
         let _ = write!(s, "<th>{} separated</th>", escape(g));
     }
@@ -879,7 +894,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
         }
         let _ = write!(
             s,
-            "<td>{}</td><td class=\"name\">{}</td>",
+            "<td>{}</td><td class=\"name\"><a href=\"{1}/report.html\">{1}</a></td>",
             r.rank,
             escape(&r.name)
         );

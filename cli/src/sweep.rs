@@ -83,7 +83,22 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
         .with_context(|| format!("{}: cannot create the folder", root.display()))?;
     write_plan(&root, &plan)?;
     let range = shard_range(plan.variants.len(), k, n);
-    let failed = run_range(&plan, &root, range, &args.options);
+    let failed = run_range(&plan, &root, range.clone(), &args.options);
+    if !args.options.quiet {
+        println!(
+            "{}: {} of {} variants finished in {}{}; rank them with: tuft collect {}",
+            plan.name,
+            range.len() - failed,
+            range.len(),
+            root.display(),
+            if n > 1 {
+                format!(" (shard {k} of {n})")
+            } else {
+                String::new()
+            },
+            root.display()
+        );
+    }
     Ok(if failed == 0 {
         ExitCode::SUCCESS
     } else {

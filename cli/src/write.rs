@@ -688,7 +688,7 @@ fn report(
     let floor = underbody_words(s, ", ");
     let summary = format!(
         "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear{floor}); \
-         {:.1} % of the surface separated.",
+         {:.1} % of the surface separated{}.",
         k.drag,
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
@@ -696,7 +696,16 @@ fn report(
         output::speed_number(v),
         output::whole(s.lift_kg.front_axle),
         output::whole(s.lift_kg.rear_axle),
-        100.0 * s.separation.fraction
+        100.0 * s.separation.fraction,
+        s.regions
+            .iter()
+            .map(|r| format!(
+                "; {}: {} ({:.0} % separated)",
+                r.name,
+                r.verdict,
+                100.0 * r.separated_fraction
+            ))
+            .collect::<String>()
     );
     let method = TextSection {
         title: "How these numbers were made".into(),

@@ -150,6 +150,15 @@ impl Plan {
             .into_iter()
             .map(|settings| variant(&base, &dir, settings))
             .collect();
+        // One mistake in the keys fails every variant alike: say it once,
+        // before any folder is made.
+        if let Some(Err(first)) = variants.first().map(|v| &v.file)
+            && variants
+                .iter()
+                .all(|v| v.file.as_ref().err() == Some(first))
+        {
+            bail!("every variant's case fails the same way: {first}");
+        }
         unique_names(&mut variants);
         let variants = group_by_geometry(variants);
         let name = path
@@ -215,6 +224,16 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
     let mut out: Vec<(String, Vec<toml::Value>)> = Vec::new();
     for (k, v) in vary.iter().enumerate() {
         let key = full_key(&v.key);
+        if !key.contains('.') {
+            bail!(
+                "vary #{} (key \"{}\"): not a key tuft knows; give a case-file key with its section \
+                 (e.g. geometry.rear_window_deg, flow.speed_kmh) or one of the short names speed, yaw, \
+                 density, viscosity, ground, transition, panels, stl, shape, rear_window_deg, \
+                 boot_deck_length, diffuser_deg, ride_height, slant_deg, radius, centre_z, units",
+                k + 1,
+                v.key
+            );
+        }
         if v.values.is_empty() {
             bail!("vary #{} (key \"{}\"): values is empty", k + 1, v.key);
         }
@@ -422,6 +441,26 @@ mod tests {
         assert_eq!(full_key("flow.speed"), "flow.speed");
     }
 
+    /// A misspelt key is refused before any variant runs, naming the key.
+    #[test]
+    fn a_misspelt_key_is_refused_up_front() {
+        let e = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"rear_windw_deg\"\nvalues = [20.0]\n"
+        ))
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.contains("\"rear_windw_deg\"): not a key tuft knows"),
+            "{e}"
+        );
+        let e = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"geometry.rear_windw_deg\"\nvalues = [20.0, 30.0]\n"
+        ))
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("every variant's case fails the same way"), "{e}");
+    }
+
     /// A swept speed replaces the base case's, in whichever unit each is
     /// given (a review's base case in km/h swept in m/s failed every
     /// variant with "give the speed once").
@@ -496,11 +535,20 @@ mod tests {
     fn bad_sweeps_are_refused_and_bad_values_fail_their_variant_only() {
         assert!(plan(BASE).is_err(), "no vary lists");
         assert!(plan(&format!("{BASE}[[vary]]\nkey = \"yaw\"\nvalues = []\n")).is_err());
+        // A value of the wrong type fails its own variant only.
         let p = plan(&format!(
-            "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
+            "{BASE}[[vary]]\nkey = \"yaw\"\nvalues = [0.0, \"five\"]\n"
         ))
         .unwrap();
-        assert!(p.variants[0].file.as_ref().unwrap_err().contains("speeed"));
+        assert!(p.variants[0].file.is_ok());
+        assert!(p.variants[1].file.as_ref().unwrap_err().contains("yaw"));
+        // A misspelt key fails them all: refused up front.
+        let e = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
+        ))
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("speeed"), "{e}");
     }
 
     #[test]
