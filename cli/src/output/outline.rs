@@ -1,6 +1,7 @@
 //! Named regions drawn on a four-view sheet: the outline of each region's
 //! panels where it meets panels outside it (only where that edge is seen),
-//! and the region's name at the middle of what is seen of it, so a
+//! and the region's name clear of the body with a thin line to the middle
+//! of what is seen of it (so that the name hides none of the result), so a
 //! verdict such as "rear window: partly separated" can be checked against
 //! the picture by eye.
 
@@ -43,6 +44,20 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
     for (view, frame) in &lay.views {
         let seen = render::visible(&tris, *view, frame);
         let mut placed: Vec<[f32; 4]> = Vec::new();
+        // The body's extent on the picture: names stand clear of it, above
+        // (below in the view from underneath), so that they hide nothing.
+        let (top, bottom) = tris
+            .iter()
+            .flat_map(|t| t.corners.iter().map(|c| frame.project(*view, c).1))
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), y| {
+                (lo.min(y), hi.max(y))
+            });
+        let (t0, h0) = (frame.rect.1 as f64, frame.rect.3 as f64);
+        let clear = if *view == View::Underneath {
+            (bottom + 24.0).min(t0 + h0 - 4.0)
+        } else {
+            (top - 10.0).max(t0 + 16.0)
+        };
         for mark in marks {
             let mut label = (0.0, 0.0, 0.0);
             for (k, t) in tris.iter().enumerate() {
@@ -71,7 +86,8 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
             }
             if label.2 > 0.0 && *view != View::Rear {
                 let at = (label.0 / label.2, label.1 / label.2);
-                placed.push(draw_label(canvas, &mark.name, at, &placed));
+                let away = if *view == View::Underneath { 1.0 } else { -1.0 };
+                placed.push(draw_label(canvas, &mark.name, at, (clear, away), &placed));
             }
         }
     }
@@ -109,23 +125,39 @@ fn draw_seen_edge(
     }
 }
 
-/// The region's name on a white plate at `at`, moved down below any plate
-/// already `placed` that it would cover; returns its plate (x, y, w, h).
-fn draw_label(canvas: &mut Canvas, name: &str, at: (f64, f64), placed: &[[f32; 4]]) -> [f32; 4] {
+/// The region's name on a white plate clear of the body, at the height
+/// `clear` and above the region's middle `at`, moved further away from
+/// the body (`away`: -1 up, +1 down) past any plate already `placed` that
+/// it would cover, with a thin line down (or up) to `at`; returns its
+/// plate (x, y, w, h).
+fn draw_label(
+    canvas: &mut Canvas,
+    name: &str,
+    at: (f64, f64),
+    (clear, away): (f64, f32),
+    placed: &[[f32; 4]],
+) -> [f32; 4] {
     let style = TextStyle::new(14.0)
         .bold()
         .colour(OUTLINE)
         .align(Align::Centre);
     let w = text::width(name, &style) + 8.0;
-    let (x, mut y) = (at.0 as f32, at.1 as f32);
+    let (x, mut y) = (at.0 as f32, clear as f32);
     let overlaps = |p: &[f32; 4], y: f32| {
         let (l, t) = (x - 0.5 * w, y - 13.0);
         l < p[0] + p[2] && p[0] < l + w && t < p[1] + p[3] && p[1] < t + 18.0
     };
     while let Some(p) = placed.iter().find(|p| overlaps(p, y)) {
-        y = p[1] + p[3] + 15.0;
+        y = if away < 0.0 {
+            p[1] - 7.0
+        } else {
+            p[1] + p[3] + 15.0
+        };
     }
     let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
+    let from = if away < 0.0 { y + 5.0 } else { y - 13.0 };
+    canvas.polyline(&[(x, from), (x, at.1 as f32)], OUTLINE, 1.0);
+    canvas.fill_circle(x, at.1 as f32, 2.5, OUTLINE);
     canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);
     text::draw(canvas, name, x, y, &style);
     plate
