@@ -568,7 +568,13 @@ fn report(
             "-",
         ),
         NumberRow::text(
-            "Drag estimate band",
+            if s.separated_wakes.is_some() {
+                "Drag estimate band (model sensitivity; its top adds the separated-flow model's largest \
+                 shortfall against measured drag, so the true drag is more likely above the estimate \
+                 than below)"
+            } else {
+                "Drag estimate band (model sensitivity)"
+            },
             &format!(
                 "{:.0} to {:.0}",
                 1000.0 * s.drag_estimate.cd_low,
@@ -649,7 +655,7 @@ fn report(
     }
     numbers.extend([
         NumberRow::fixed(
-            "Lift coefficient, attached flow",
+            "Lift coefficient if nothing separated (attached potential flow, for comparison)",
             s.coefficients_attached.lift,
             3,
             "-",
