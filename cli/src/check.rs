@@ -300,7 +300,7 @@ fn repair_lines(r: &PrepareReport) -> String {
     format!(
         "repair     weld within {:.3e} m: {} vertices merged\n\
          \x20          degenerate facets dropped: {} collapsed, {} zero-area, {} slivers\n\
-         \x20          duplicate facets dropped: {}\n\
+         \x20          duplicate facets dropped: {}; facets dropped from edges shared three ways: {}\n\
          \x20          orientation: {} connected parts, {} facets flipped to agree, {} edges still disagree\n\
          \x20          outward: {} parts turned outward ({} facets), {} parts enclosing no volume\n\
          \x20          unused vertices removed: {}; {} facets, {} vertices after repair\n",
@@ -310,6 +310,7 @@ fn repair_lines(r: &PrepareReport) -> String {
         d.zero_area,
         d.slivers,
         p.duplicates,
+        p.fins,
         p.orientation.components,
         p.orientation.facets_flipped,
         p.orientation.conflicting_edges,

@@ -205,6 +205,23 @@ fn inverted_half_sphere_on_ground_is_turned_outward() {
     assert!(fixed.signed_volume() > 0.0);
 }
 
+/// A facet welded onto an edge two others share (a scan's noise folded
+/// at a nose tip) is dropped and the hole it leaves filled: the body comes
+/// out closed, where the extra facet used to break the hole's rim.
+#[test]
+fn a_fin_on_an_edge_is_dropped_and_the_body_closed() {
+    let mut m = generate::icosphere(1.0, 3);
+    let [a, b, _] = m.triangles[0];
+    m.vertices
+        .push(Point::from(m.vertices[a as usize].coords * 0.97));
+    let tip = (m.vertices.len() - 1) as u32;
+    m.triangles.push([b, a, tip]);
+    let (fixed, r) = repair(m, &Mirrors::none()).unwrap();
+    assert_eq!(r.fins, 1);
+    assert_eq!(r.holes.non_manifold_edges, 0);
+    assert!(closed(&fixed));
+}
+
 #[test]
 fn non_manifold_edge_is_counted() {
     // Two closed tetrahedra joined along edge 0-1: four facets use it.

@@ -22,6 +22,7 @@ mod degenerate;
 mod duplicates;
 mod ear_clip;
 pub(crate) mod edges;
+mod fins;
 mod holes;
 mod orient;
 mod outward;
@@ -32,6 +33,7 @@ use serde::Serialize;
 pub use compact::remove_unused_vertices;
 pub use degenerate::{DegenerateReport, drop_degenerate};
 pub use duplicates::drop_duplicates;
+pub use fins::drop_fins;
 pub use holes::{
     HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, close_holes, describe_refused,
 };
@@ -103,6 +105,9 @@ pub struct RepairReport {
     pub degenerate: DegenerateReport,
     /// Duplicate facets dropped.
     pub duplicates: usize,
+    /// Facets dropped from edges shared an odd number of ways, three or
+    /// more ([`drop_fins`]).
+    pub fins: usize,
     /// Consistency pass.
     pub orientation: OrientReport,
     /// Boundary loops, non-manifold edges, holes filled.
@@ -123,6 +128,7 @@ impl RepairReport {
         self.vertices_welded
             + self.degenerate.total()
             + self.duplicates
+            + self.fins
             + self.orientation.facets_flipped
             + self.holes.facets_added
             + self.outward.facets_flipped
@@ -169,6 +175,7 @@ pub fn repair_with_params(
         });
     }
     r.duplicates = drop_duplicates(&mut mesh);
+    r.fins = drop_fins(&mut mesh);
     let uses = edges::sorted_edge_uses(&mesh.triangles);
     let (orientation, mut component) = orient::orient_with_uses(&mut mesh, &uses);
     r.orientation = orientation;
