@@ -626,8 +626,28 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
         .all(|r| r.settings.get(key).and_then(|v| v.as_f64()).is_some())
 }
 
-/// A swept key with its unit.
+/// A swept key with its unit, in words where tuft knows it.
 fn axis_label(key: &str) -> String {
+    let words = match key {
+        "flow.speed" | "flow.speed_kmh" => Some("speed"),
+        "flow.yaw" => Some("yaw"),
+        "geometry.rear_window_deg" => Some("rear-window slope"),
+        "geometry.diffuser_deg" => Some("diffuser angle"),
+        "geometry.slant_deg" => Some("slant angle"),
+        "geometry.ride_height" => Some("ride height"),
+        "geometry.boot_deck_length" => Some("boot-deck length"),
+        "ground.z" => Some("ground height"),
+        _ => None,
+    };
+    let plain = plain_axis_label(key);
+    match words {
+        Some(w) => format!("{w}, {plain}"),
+        None => plain,
+    }
+}
+
+/// A swept key with its unit.
+fn plain_axis_label(key: &str) -> String {
     let unit = match key {
         "flow.speed" => "m/s",
         "flow.speed_kmh" => "km/h",

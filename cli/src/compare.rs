@@ -694,7 +694,8 @@ fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
     println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
     println!(
-        "  drag {:+.1} counts, lift {:+.1} kg (front {:+.1}, rear {:+.1}), separated area {:+.3} m^2 \
+        "  drag {:+.1} counts, lift {:+.0} kg (front {:+.0}, rear {:+.0}; negative: more downforce in B), \
+         separated area {:+.3} m^2 \
          (separated share of the surface {:+.2} points)",
         d.drag_counts,
         d.lift_kg,

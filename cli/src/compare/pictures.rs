@@ -183,9 +183,21 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             "counts",
         ),
         NumberRow::text("Drag force difference", &signed(d.drag_force_n), "N"),
-        NumberRow::text("Lift difference, whole body", &signed(d.lift_kg), &at),
-        NumberRow::text("Lift difference, front axle", &signed(d.front_axle_kg), &at),
-        NumberRow::text("Lift difference, rear axle", &signed(d.rear_axle_kg), &at),
+        NumberRow::text(
+            "Lift difference, whole body (negative: more downforce in B)",
+            &signed_places(d.lift_kg, 0),
+            &at,
+        ),
+        NumberRow::text(
+            "Lift difference, front axle",
+            &signed_places(d.front_axle_kg, 0),
+            &at,
+        ),
+        NumberRow::text(
+            "Lift difference, rear axle",
+            &signed_places(d.rear_axle_kg, 0),
+            &at,
+        ),
         NumberRow::text(
             "Lift coefficient difference",
             &signed_places(d.lift_coefficient, 3),
@@ -201,21 +213,23 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             &signed_places(d.separated_percent_points, 2),
             "% points",
         ),
-        NumberRow::number("Separation appears in B", s.separation_appears_m2, "m²"),
-        NumberRow::number(
+        NumberRow::fixed("Separation appears in B", s.separation_appears_m2, 3, "m²"),
+        NumberRow::fixed(
             "Separation disappears in B",
             s.separation_disappears_m2,
+            3,
             "m²",
         ),
-        NumberRow::number("RMS Cp difference (area-weighted)", s.delta_cp_rms, "-"),
+        NumberRow::fixed("RMS Cp difference (area-weighted)", s.delta_cp_rms, 3, "-"),
         NumberRow::text(
             "Unchanged surface (B's panels within 0.1 % of the length of A's surface)",
             &format!("{:.0}", 100.0 * s.unchanged_share),
             "% of B",
         ),
-        NumberRow::number(
+        NumberRow::fixed(
             "Unchanged surface: |Cp difference| that 95 % of it stays under",
             s.unchanged_delta_cp_p95,
+            3,
             "-",
         ),
         NumberRow::text(
@@ -228,9 +242,10 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             &signed_places(s.unchanged_lift_kg, 0),
             &at,
         ),
-        NumberRow::number(
+        NumberRow::fixed(
             "Largest distance from B's panels to A's surface",
             s.max_distance_m,
+            3,
             "m",
         ),
         NumberRow::text(
