@@ -604,9 +604,15 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
         for (what, unit, f) in &metrics {
             let plot = LinePlot {
-                title: format!("{what} against {key}, sweep {}", c.sweep),
-                subtitle: "Screening estimates; one line per combination of the other swept values"
-                    .into(),
+                title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
+                subtitle: if c.keys.len() > 1 {
+                    format!(
+                        "Screening estimates at {}; one line per combination of the other swept values",
+                        speed_of_plot(c)
+                    )
+                } else {
+                    format!("Screening estimates at {}", speed_of_plot(c))
+                },
                 x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
@@ -626,9 +632,36 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
         .all(|r| r.settings.get(key).and_then(|v| v.as_f64()).is_some())
 }
 
+/// The wind the plots show: one speed and yaw, or "each variant's
+/// speed and yaw" when they differ.
+fn speed_of_plot(c: &Collected) -> String {
+    match c.variants.first() {
+        Some(r) if c.variants.iter().all(|v| same_wind(v, r)) => format!(
+            "{}, yaw {}°",
+            crate::output::speed_words(r.speed),
+            r.yaw_deg
+        ),
+        _ => "each variant's speed and yaw".into(),
+    }
+}
+
+/// A swept key in words where tuft knows it, else the key.
+fn key_words(key: &str) -> String {
+    key_name(key).map_or_else(|| key.to_owned(), str::to_owned)
+}
+
 /// A swept key with its unit, in words where tuft knows it.
 fn axis_label(key: &str) -> String {
-    let words = match key {
+    let plain = plain_axis_label(key);
+    match key_name(key) {
+        Some(w) => format!("{w}, {plain}"),
+        None => plain,
+    }
+}
+
+/// The words for a swept key tuft knows.
+fn key_name(key: &str) -> Option<&'static str> {
+    match key {
         "flow.speed" | "flow.speed_kmh" => Some("speed"),
         "flow.yaw" => Some("yaw"),
         "geometry.rear_window_deg" => Some("rear-window slope"),
@@ -638,11 +671,6 @@ fn axis_label(key: &str) -> String {
         "geometry.boot_deck_length" => Some("boot-deck length"),
         "ground.z" => Some("ground height"),
         _ => None,
-    };
-    let plain = plain_axis_label(key);
-    match words {
-        Some(w) => format!("{w}, {plain}"),
-        None => plain,
     }
 }
 

@@ -108,7 +108,10 @@ pub fn draw_line_plot(
     let (l, t, w, h) = frame.rect;
     c.stroke_rect(l as f32, t as f32, w as f32, h as f32, INK, 1.2);
     draw_labels(&mut c, plot, &frame);
-    draw_legend(&mut c, &plot.series, &frame);
+    // One line needs no key (and its box could hide a point).
+    if plot.series.len() > 1 {
+        draw_legend(&mut c, &plot.series, &frame);
+    }
     Ok((c, frame))
 }
 
