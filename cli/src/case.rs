@@ -123,6 +123,10 @@ struct RawFlowSection {
     viscosity: Option<f64>,
 }
 
+/// Fastest free stream, m/s: the flow is taken as incompressible, which
+/// holds to a Mach number of about 0.3 (common practice).
+const MAX_SPEED: f64 = 100.0;
+
 impl TryFrom<RawFlowSection> for FlowSection {
     type Error = String;
 
@@ -135,10 +139,11 @@ impl TryFrom<RawFlowSection> for FlowSection {
                 );
             }
             (Some(v), None) => v,
-            (None, Some(kmh)) if kmh > 360.0 => {
+            (None, Some(kmh)) if kmh > 3.6 * MAX_SPEED => {
                 return Err(format!(
                     "flow.speed_kmh {kmh} km/h is beyond the incompressible range tuft models (at most \
-                     360 km/h, 100 m/s)"
+                     {:.0} km/h, {MAX_SPEED} m/s)",
+                    3.6 * MAX_SPEED
                 ));
             }
             (None, Some(kmh)) => kmh / 3.6,
@@ -378,10 +383,10 @@ fn check_flow(file: &CaseFile) -> Result<()> {
     if file.geometry.half_model && f.yaw != 0.0 {
         bail!("flow.yaw must be 0 with geometry.half_model = true (a half model is symmetric)");
     }
-    if f.speed > 100.0 {
+    if f.speed > MAX_SPEED {
         bail!(
-            "flow.speed {} m/s is beyond the incompressible range tuft models (at most 100 m/s; a speed in \
-             km/h goes in flow.speed_kmh)",
+            "flow.speed {} m/s is beyond the incompressible range tuft models (at most {MAX_SPEED} m/s; a \
+             speed in km/h goes in flow.speed_kmh)",
             f.speed
         );
     }

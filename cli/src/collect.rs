@@ -91,7 +91,7 @@ pub struct Row {
     pub regions: Vec<RegionResult>,
     /// For the lowest drag of a wind condition: `tuft compare`'s verdict
     /// on it (as B) against the runner-up (as A), panels mapped, so that
-    /// the two commands name a winner, a lead or none alike; `None` for
+    /// the two commands name a winner, an indication or none alike; `None` for
     /// other variants or when either folder cannot be compared.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub against_next: Option<crate::compare::DragVerdict>,
@@ -213,6 +213,15 @@ fn distinct_warnings(c: &Collected) -> Vec<(&str, Vec<&str>)> {
     out
 }
 
+/// A variant's wind condition in words: "40 m/s (144 km/h), yaw 0°".
+fn wind_words(r: &Row) -> String {
+    format!(
+        "{}, yaw {}°",
+        crate::output::speed_words(r.speed),
+        r.yaw_deg
+    )
+}
+
 /// Two variants in the same wind condition (speed and yaw).
 fn same_wind(a: &Row, b: &Row) -> bool {
     a.speed.total_cmp(&b.speed).is_eq() && a.yaw_deg.total_cmp(&b.yaw_deg).is_eq()
@@ -238,11 +247,7 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
         .map(|rows| {
             let r = &rows[0];
             let label = match (speeds, yaws) {
-                (true, true) => format!(
-                    "{}, yaw {}°",
-                    crate::output::speed_words(r.speed),
-                    r.yaw_deg
-                ),
+                (true, true) => wind_words(r),
                 (true, false) => crate::output::speed_words(r.speed),
                 (false, true) => format!("yaw {}°", r.yaw_deg),
                 (false, false) => String::new(),
@@ -283,8 +288,9 @@ fn best_drag(c: &Collected) -> String {
 }
 
 /// The lowest drag, judged by `tuft compare`'s verdict against the
-/// runner-up when [`judge_leaders`] could give one (a winner, a lead, or
-/// none); otherwise named the best only when it beats the next by more
+/// runner-up when [`judge_leaders`] could give one (a winner, an
+/// indication, or none); otherwise named the best only when it beats the
+/// next by more
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
 /// separated share stays put across the variants.
 fn best_drag_in(rows: &[Row]) -> String {
@@ -296,6 +302,13 @@ fn best_drag_in(rows: &[Row]) -> String {
         return format!("drag: {lowest}");
     };
     let gap = 1000.0 * (second.cd - first.cd);
+    if gap < crate::compare::NOISE_COUNTS {
+        return format!(
+            "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
+            second.name
+        );
+    }
+    // A verdict that is resolved or leans has passed the noise floor too.
     if let Some(v) = &first.against_next {
         return if v.resolved {
             format!(
@@ -310,11 +323,6 @@ fn best_drag_in(rows: &[Row]) -> String {
                  notes above)",
                 second.name
             )
-        } else if gap < crate::compare::NOISE_COUNTS {
-            format!(
-                "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
-                second.name
-            )
         } else {
             format!(
                 "lowest drag: {lowest}, {gap:.1} counts below {}, but not at both ends of the sensitivity \
@@ -323,12 +331,7 @@ fn best_drag_in(rows: &[Row]) -> String {
             )
         };
     }
-    if gap < crate::compare::NOISE_COUNTS {
-        format!(
-            "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
-            second.name
-        )
-    } else if separation_spread(rows).is_some() {
+    if separation_spread(rows).is_some() {
         format!(
             "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the notes above)"
         )
@@ -401,23 +404,17 @@ pub fn collect(dir: &Path) -> Result<Collected> {
 /// (rows ranked and grouped by [`rank`]), reading the two variants'
 /// folders in `dir` as `tuft compare` does.
 fn judge_leaders(dir: &Path, rows: &mut [Row]) {
-    let mut start = 0;
-    while start < rows.len() {
-        let len = rows[start..]
-            .iter()
-            .take_while(|r| same_wind(r, &rows[start]))
-            .count();
-        if len >= 2 {
+    for group in rows.chunk_by_mut(same_wind) {
+        if let [first, second, ..] = group {
             let verdict = (|| -> Result<crate::compare::DragVerdict> {
                 use crate::compare::ResultFolder;
-                let b = ResultFolder::read(&dir.join(&rows[start].name))?;
-                let a = ResultFolder::read(&dir.join(&rows[start + 1].name))?;
+                let b = ResultFolder::read(&dir.join(&first.name))?;
+                let a = ResultFolder::read(&dir.join(&second.name))?;
                 let mapping = crate::compare::map_a_onto_b(&a, &b);
                 Ok(crate::compare::comparison(&a, &b, &mapping).drag)
             })();
-            rows[start].against_next = verdict.ok();
+            first.against_next = verdict.ok();
         }
-        start += len;
     }
 }
 
@@ -636,11 +633,7 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
 /// speed and yaw" when they differ.
 fn speed_of_plot(c: &Collected) -> String {
     match c.variants.first() {
-        Some(r) if c.variants.iter().all(|v| same_wind(v, r)) => format!(
-            "{}, yaw {}°",
-            crate::output::speed_words(r.speed),
-            r.yaw_deg
-        ),
+        Some(r) if c.variants.iter().all(|v| same_wind(v, r)) => wind_words(r),
         _ => "each variant's speed and yaw".into(),
     }
 }
@@ -808,11 +801,7 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     );
     let groups = wind_groups(c);
     let within = match (groups.len(), c.variants.first()) {
-        (1, Some(r)) => format!(
-            ", all at {}, yaw {}° (lift in kg is at that speed)",
-            crate::output::speed_words(r.speed),
-            r.yaw_deg
-        ),
+        (1, Some(r)) => format!(", all at {} (lift in kg is at that speed)", wind_words(r)),
         (1, None) => String::new(),
         _ => " within each wind condition (speed and yaw): drag at another speed or yaw is another test, so \
               the ranking restarts at 1 in each"
@@ -933,12 +922,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     for r in &c.variants {
         s.push_str("<tr>");
         if by_wind {
-            let _ = write!(
-                s,
-                "<td>{}, yaw {}°</td>",
-                crate::output::speed_words(r.speed),
-                r.yaw_deg
-            );
+            let _ = write!(s, "<td>{}</td>", wind_words(r));
         }
         let _ = write!(
             s,
@@ -1262,7 +1246,7 @@ mod tests {
     }
 
     /// With the folders at hand, the leader is judged by `tuft compare`'s
-    /// verdict against the runner-up: a winner, a lead (the difference
+    /// verdict against the runner-up: a winner, an indication (the difference
     /// holds across the bands but the separated regions differ) or none.
     #[test]
     fn the_leader_is_named_as_compare_would() {

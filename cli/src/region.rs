@@ -144,11 +144,7 @@ pub fn extent(r: &RegionSection, mesh: &PanelMesh) -> (usize, f64) {
 /// One sentence naming the region and the body's extent.
 pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> {
     for r in regions {
-        let empty = !mesh
-            .panels
-            .iter()
-            .any(|p| copies(mesh, p).iter().any(|(c, n)| inside(r, c, n)));
-        if empty {
+        if extent(r, mesh).0 == 0 {
             let (lo, hi) = mesh.bounds();
             let lo_y = if mesh.mirrors.symmetry { -hi.y } else { lo.y };
             bail!(

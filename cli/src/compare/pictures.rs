@@ -156,6 +156,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let s = &c.surface;
     let at = format!("kg at {} m/s", output::speed_number(c.b.speed));
     let signed = |v: f64| signed_places(v, 1);
+    let whole = |v: f64| signed_places(v, 0);
     let mut numbers = vec![
         NumberRow::text(
             "Drag C_D, A and B",
@@ -185,19 +186,11 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text("Drag force difference", &signed(d.drag_force_n), "N"),
         NumberRow::text(
             "Lift difference, whole body (negative: more downforce in B)",
-            &signed_places(d.lift_kg, 0),
+            &whole(d.lift_kg),
             &at,
         ),
-        NumberRow::text(
-            "Lift difference, front axle",
-            &signed_places(d.front_axle_kg, 0),
-            &at,
-        ),
-        NumberRow::text(
-            "Lift difference, rear axle",
-            &signed_places(d.rear_axle_kg, 0),
-            &at,
-        ),
+        NumberRow::text("Lift difference, front axle", &whole(d.front_axle_kg), &at),
+        NumberRow::text("Lift difference, rear axle", &whole(d.rear_axle_kg), &at),
         NumberRow::text(
             "Lift coefficient difference",
             &signed_places(d.lift_coefficient, 3),
@@ -239,7 +232,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         ),
         NumberRow::text(
             "Unchanged surface: the part of the lift difference arising there",
-            &signed_places(s.unchanged_lift_kg, 0),
+            &whole(s.unchanged_lift_kg),
             &at,
         ),
         NumberRow::fixed(

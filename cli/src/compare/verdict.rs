@@ -4,7 +4,7 @@
 //! called when the separated regions of the two runs differ enough for the
 //! difference to rest on the separated-flow model, see
 //! `compare::separation_note`; a difference that passes both tests then is
-//! given as a lead, its direction in [`DragVerdict::leaning`]):
+//! given as an indication, its direction in [`DragVerdict::leaning`]):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (differences of a
 //!    few counts are within the noise of any simulation, common practice);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
@@ -37,7 +37,7 @@ pub struct DragVerdict {
     pub direction: String,
     /// "lower" or "higher" when the difference passes the noise and band
     /// tests but the separated regions differ, so that it rests on the
-    /// separated-flow model: a lead, not a winner; otherwise
+    /// separated-flow model: an indication, not a verdict; otherwise
     /// empty.
     #[serde(default)]
     pub leaning: String,

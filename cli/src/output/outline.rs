@@ -86,8 +86,8 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
             }
             if label.2 > 0.0 && *view != View::Rear {
                 let at = (label.0 / label.2, label.1 / label.2);
-                let away = if *view == View::Underneath { 1.0 } else { -1.0 };
-                placed.push(draw_label(canvas, &mark.name, at, (clear, away), &placed));
+                let below = *view == View::Underneath;
+                placed.push(draw_label(canvas, &mark.name, at, (clear, below), &placed));
             }
         }
     }
@@ -127,14 +127,14 @@ fn draw_seen_edge(
 
 /// The region's name on a white plate clear of the body, at the height
 /// `clear` and above the region's middle `at`, moved further away from
-/// the body (`away`: -1 up, +1 down) past any plate already `placed` that
+/// the body (`below`: down, else up) past any plate already `placed` that
 /// it would cover, with a thin line down (or up) to `at`; returns its
 /// plate (x, y, w, h).
 fn draw_label(
     canvas: &mut Canvas,
     name: &str,
     at: (f64, f64),
-    (clear, away): (f64, f32),
+    (clear, below): (f64, bool),
     placed: &[[f32; 4]],
 ) -> [f32; 4] {
     let style = TextStyle::new(14.0)
@@ -148,14 +148,14 @@ fn draw_label(
         l < p[0] + p[2] && p[0] < l + w && t < p[1] + p[3] && p[1] < t + 18.0
     };
     while let Some(p) = placed.iter().find(|p| overlaps(p, y)) {
-        y = if away < 0.0 {
-            p[1] - 7.0
-        } else {
+        y = if below {
             p[1] + p[3] + 15.0
+        } else {
+            p[1] - 7.0
         };
     }
     let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
-    let from = if away < 0.0 { y + 5.0 } else { y - 13.0 };
+    let from = if below { y - 13.0 } else { y + 5.0 };
     canvas.polyline(&[(x, from), (x, at.1 as f32)], OUTLINE, 1.0);
     canvas.fill_circle(x, at.1 as f32, 2.5, OUTLINE);
     canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);

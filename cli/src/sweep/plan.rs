@@ -108,17 +108,33 @@ pub struct Plan {
 
 /// The dotted case key a short name stands for.
 pub fn full_key(key: &str) -> String {
-    match key {
-        "speed" | "yaw" | "density" | "viscosity" => format!("flow.{key}"),
-        "ground" => "ground.z".into(),
-        "transition" => "boundary_layer.transition".into(),
-        "panels" | "stl" | "shape" | "rear_window_deg" | "boot_deck_length" | "diffuser_deg"
-        | "ride_height" | "slant_deg" | "radius" | "centre_z" | "units" => {
-            format!("geometry.{key}")
-        }
-        other => other.into(),
-    }
+    SHORT_KEYS
+        .iter()
+        .find(|(short, _)| *short == key)
+        .map_or_else(|| key.into(), |(_, full)| (*full).into())
 }
+
+/// The short names a `[[vary]]` key may use, with the case-file key each
+/// stands for.
+const SHORT_KEYS: [(&str, &str); 17] = [
+    ("speed", "flow.speed"),
+    ("yaw", "flow.yaw"),
+    ("density", "flow.density"),
+    ("viscosity", "flow.viscosity"),
+    ("ground", "ground.z"),
+    ("transition", "boundary_layer.transition"),
+    ("panels", "geometry.panels"),
+    ("stl", "geometry.stl"),
+    ("shape", "geometry.shape"),
+    ("rear_window_deg", "geometry.rear_window_deg"),
+    ("boot_deck_length", "geometry.boot_deck_length"),
+    ("diffuser_deg", "geometry.diffuser_deg"),
+    ("ride_height", "geometry.ride_height"),
+    ("slant_deg", "geometry.slant_deg"),
+    ("radius", "geometry.radius"),
+    ("centre_z", "geometry.centre_z"),
+    ("units", "geometry.units"),
+];
 
 /// Short label of a dotted key for variant names.
 fn short_key(key: &str) -> &str {
@@ -225,13 +241,13 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
     for (k, v) in vary.iter().enumerate() {
         let key = full_key(&v.key);
         if !key.contains('.') {
+            let shorts: Vec<&str> = SHORT_KEYS.iter().map(|(short, _)| *short).collect();
             bail!(
                 "vary #{} (key \"{}\"): not a key tuft knows; give a case-file key with its section \
-                 (e.g. geometry.rear_window_deg, flow.speed_kmh) or one of the short names speed, yaw, \
-                 density, viscosity, ground, transition, panels, stl, shape, rear_window_deg, \
-                 boot_deck_length, diffuser_deg, ride_height, slant_deg, radius, centre_z, units",
+                 (e.g. geometry.rear_window_deg, flow.speed_kmh) or one of the short names {}",
                 k + 1,
-                v.key
+                v.key,
+                shorts.join(", ")
             );
         }
         if v.values.is_empty() {
@@ -433,6 +449,11 @@ mod tests {
 
     const BASE: &str = "[base.geometry]\nshape = \"coupe\"\n[base.ground]\nz = 0.0\n";
 
+    /// The sentence a refused sweep file gets.
+    fn refusal(text: &str) -> String {
+        plan(text).unwrap_err().to_string()
+    }
+
     #[test]
     fn short_keys_name_their_sections() {
         assert_eq!(full_key("diffuser_deg"), "geometry.diffuser_deg");
@@ -444,20 +465,16 @@ mod tests {
     /// A misspelt key is refused before any variant runs, naming the key.
     #[test]
     fn a_misspelt_key_is_refused_up_front() {
-        let e = plan(&format!(
+        let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"rear_windw_deg\"\nvalues = [20.0]\n"
-        ))
-        .unwrap_err()
-        .to_string();
+        ));
         assert!(
             e.contains("\"rear_windw_deg\"): not a key tuft knows"),
             "{e}"
         );
-        let e = plan(&format!(
+        let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"geometry.rear_windw_deg\"\nvalues = [20.0, 30.0]\n"
-        ))
-        .unwrap_err()
-        .to_string();
+        ));
         assert!(e.contains("every variant's case fails the same way"), "{e}");
     }
 
@@ -543,11 +560,9 @@ mod tests {
         assert!(p.variants[0].file.is_ok());
         assert!(p.variants[1].file.as_ref().unwrap_err().contains("yaw"));
         // A misspelt key fails them all: refused up front.
-        let e = plan(&format!(
+        let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
-        ))
-        .unwrap_err()
-        .to_string();
+        ));
         assert!(e.contains("speeed"), "{e}");
     }
 
