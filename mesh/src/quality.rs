@@ -83,7 +83,6 @@ pub struct QualityReport {
     pub warnings: Vec<String>,
     /// Remarks on the grading of a coarsened mesh that call for no action
     /// ([`QualityReport::grading_as_notes`]).
-    #[serde(default)]
     pub notes: Vec<String>,
     /// Per warning: the panels it counts, when it is about the grading
     /// (aspect ratio, angles, size jumps), none for a fold.
@@ -198,11 +197,12 @@ fn warnings(
     let n = r.panels.max(1) as f64;
     let mut out = Vec::new();
     let many = q.warn_fraction * n;
+    // `share`: a grading warning's threshold (a count of panels), or
+    // `None` for a fold, worth a warning however few there are.
     let mut warn =
-        |count: usize, limit: f64, what: String, harm: &str, at: Option<crate::Point>| {
-            // The fold's threshold is zero; the grading's are shares.
-            let grading = (limit > 0.0).then_some(count);
-            if count as f64 > limit {
+        |count: usize, share: Option<f64>, what: String, harm: &str, at: Option<crate::Point>| {
+            let grading = share.map(|_| count);
+            if count as f64 > share.unwrap_or(0.0) {
                 let place = at.map_or(String::new(), |p| {
                     format!(
                         " (the worst near x {:.3}, y {:.3}, z {:.3} m)",
@@ -222,21 +222,21 @@ fn warnings(
         };
     warn(
         r.high_aspect,
-        many,
+        Some(many),
         format!("have an aspect ratio above {}", q.max_aspect_ratio),
         "long thin panels put the collocation point far from parts of the panel and spoil the velocity from doublet differences",
         at[0],
     );
     warn(
         r.small_angle,
-        many,
+        Some(many),
         format!("have an angle below {} degrees", q.min_angle_deg),
         "needle-like panels make the velocity gradient noisy",
         at[1],
     );
     warn(
         r.size_jump,
-        many,
+        Some(many),
         format!(
             "differ in area by more than {}x from a neighbour",
             q.max_neighbour_area_ratio
@@ -244,10 +244,10 @@ fn warnings(
         "abrupt size changes cause local errors in pressure",
         at[2],
     );
-    // A turned panel is a fold, worth a warning however few there are.
+    // A turned panel is a fold.
     warn(
         r.turned,
-        0.0,
+        None,
         format!("are turned more than {TURNED_DEG:.0} degrees from every neighbour"),
         "folds that the coarsening or the scan made, with no edge of the shape there; their speed is interpolated from the flow around them and they start no separation, but look at them (tuft check --save-panels) and try another panel count",
         at[3],

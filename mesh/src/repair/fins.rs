@@ -7,12 +7,18 @@
 //! close. An even count (two closed bodies touching along an edge, four
 //! facets on it) is a legitimate configuration and is left alone.
 
-use super::edges::{edge_groups, sorted_edge_uses};
+use super::edges::{EdgeUse, edge_groups, sorted_edge_uses};
 use crate::TriMesh;
 
 /// Drop fins in place, pass after pass until no edge has an odd number of
 /// facets above two; returns how many facets were dropped.
 pub fn drop_fins(mesh: &mut TriMesh) -> usize {
+    drop_fins_with_uses(mesh).0
+}
+
+/// [`drop_fins`], also handing back the sorted edge uses of the mesh it
+/// leaves (its last pass sorted them), for the passes after it.
+pub(crate) fn drop_fins_with_uses(mesh: &mut TriMesh) -> (usize, Vec<EdgeUse>) {
     let mut dropped = 0;
     loop {
         let uses = sorted_edge_uses(&mesh.triangles);
@@ -37,7 +43,7 @@ pub fn drop_fins(mesh: &mut TriMesh) -> usize {
             }
         }
         if !any {
-            return dropped;
+            return (dropped, uses);
         }
         let mut i = 0;
         mesh.triangles.retain(|_| {

@@ -175,8 +175,8 @@ pub fn repair_with_params(
         });
     }
     r.duplicates = drop_duplicates(&mut mesh);
-    r.fins = drop_fins(&mut mesh);
-    let uses = edges::sorted_edge_uses(&mesh.triangles);
+    let (fins, uses) = fins::drop_fins_with_uses(&mut mesh);
+    r.fins = fins;
     let (orientation, mut component) = orient::orient_with_uses(&mut mesh, &uses);
     r.orientation = orientation;
     let settings = HoleSettings {
