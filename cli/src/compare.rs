@@ -321,21 +321,24 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
 /// Everything `compare.json` holds.
 pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comparison {
     let surface = surface_deltas(a, b, mapping);
+    // The notes that say the drag difference rests on the separation
+    // model: the separated regions, or the underbody's share, moved (a
+    // diffuser's stall moves the base pressure).
+    let model_notes: Vec<String> = [
+        separation_note(&a.summary, &b.summary, &surface),
+        underbody_note(&a.summary, &b.summary),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
     Comparison {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         a: side(a),
         b: side(b),
         deltas: deltas(&a.summary, &b.summary),
-        // The underbody's separation moving makes the drag rest on the
-        // model too (a diffuser's stall moves the base pressure).
-        drag: drag_verdict(
-            &a.summary,
-            &b.summary,
-            separation_note(&a.summary, &b.summary, &surface).is_some()
-                || underbody_note(&a.summary, &b.summary).is_some(),
-        ),
-        surface: surface.clone(),
-        notes: notes(a, b, &surface),
+        drag: drag_verdict(&a.summary, &b.summary, !model_notes.is_empty()),
+        notes: notes(a, b, &surface, model_notes),
+        surface,
         regions: region_changes(&a.summary, &b.summary),
         caution: crate::summary::CAUTION.into(),
     }
@@ -484,8 +487,14 @@ fn unchanged_noise(
         .map_or(0.0, |(d, _)| *d);
 }
 
-/// Warnings about what makes the two runs hard to compare.
-fn notes(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Vec<String> {
+/// Warnings about what makes the two runs hard to compare; `model_notes`
+/// (the separation and underbody notes) come after the run settings'.
+fn notes(
+    a: &ResultFolder,
+    b: &ResultFolder,
+    surface: &SurfaceDeltas,
+    model_notes: Vec<String>,
+) -> Vec<String> {
     let (sa, sb) = (&a.summary, &b.summary);
     let mut notes = Vec::new();
     let (va, vb) = (speed_of(sa), speed_of(sb));
@@ -514,12 +523,7 @@ fn notes(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Vec<Str
     if let Some(n) = reference_note(sa, sb) {
         notes.push(n);
     }
-    if let Some(n) = separation_note(sa, sb, surface) {
-        notes.push(n);
-    }
-    if let Some(n) = underbody_note(sa, sb) {
-        notes.push(n);
-    }
+    notes.extend(model_notes);
     // First: it says how far to trust the notes after it.
     if let Some(n) = offset_note(a, b, surface) {
         notes.insert(0, n);
@@ -770,7 +774,7 @@ mod tests {
             unchanged_share: 0.2,
             ..SurfaceDeltas::default()
         };
-        let notes = notes(&a, &b, &surface);
+        let notes = notes(&a, &b, &surface, Vec::new());
         assert!(
             notes[0].starts_with("B's body is the size of A's but lies (+0.881, +0.000, +0.000) m"),
             "{notes:?}"

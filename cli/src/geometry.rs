@@ -74,9 +74,11 @@ pub fn load(case: &Case) -> Result<Geometry> {
 
 /// A mirror-plane refusal names the case keys that declared the planes.
 fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
-    if !matches!(err, MeshError::Mirror(_)) {
-        return err.into();
-    }
+    let below = match err {
+        MeshError::BelowGround { .. } => true,
+        MeshError::AcrossSymmetryPlane { .. } => false,
+        _ => return err.into(),
+    };
     let mut keys = Vec::new();
     if let Some(g) = &case.file.ground {
         keys.push(format!("ground.z = {}", g.z));
@@ -84,9 +86,9 @@ fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     if case.file.geometry.half_model {
         keys.push("geometry.half_model = true".to_string());
     }
-    // A body below the ground is often an export with y up.
-    let below = err.to_string().contains("below the ground");
-    if below && case.file.geometry.up.is_none() {
+    // An STL below the ground is often an export with y up.
+    let stl = matches!(case.source, GeometrySource::Stl { .. });
+    if below && stl && case.file.geometry.up.is_none() {
         anyhow::anyhow!(
             "{}: {err}: is ground.z right, or has the STL y up, as many exports do (then set geometry.up = \"y\")?",
             keys.join(", ")

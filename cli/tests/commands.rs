@@ -14,7 +14,8 @@ use common::{cases_dir, entries, tuft};
 /// The run must be refused: exit 2, exactly one error line (the last line
 /// on stderr, after any progress lines of the case) naming the case file
 /// and every one of `names`, and nothing left in the folder but the inputs.
-fn refused(stem: &str, case: &str, with_stl: bool, names: &[&str]) {
+/// Returns the error line.
+fn refused(stem: &str, case: &str, with_stl: bool, names: &[&str]) -> String {
     let dir = tempfile::tempdir().unwrap();
     let file = format!("{stem}.toml");
     std::fs::write(dir.path().join(&file), case).unwrap();
@@ -39,6 +40,7 @@ fn refused(stem: &str, case: &str, with_stl: bool, names: &[&str]) {
     assert!(o.stdout.is_empty(), "nothing on stdout: {}", o.stdout);
     // No result folder and no half-written staging folder.
     assert_eq!(entries(dir.path()), before);
+    error.to_string()
 }
 
 const SPHERE: &str = "[geometry]\nshape = \"sphere\"\n";
@@ -86,12 +88,26 @@ fn wrong_type_is_refused() {
 #[test]
 fn ground_plane_above_the_body_is_refused() {
     // The built-in sphere has radius 0.5 m about z = 0: a ground at
-    // z = 0.2 m cuts through it.
-    refused(
+    // z = 0.2 m cuts through it. A built-in shape has no export axes to
+    // doubt, so the refusal does not ask about them.
+    let error = refused(
         "ground-above",
         &format!("{SPHERE}[ground]\nz = 0.2\n"),
         false,
         &["ground.z"],
+    );
+    assert!(!error.contains("geometry.up"), "{error}");
+}
+
+#[test]
+fn an_stl_below_the_ground_asks_whether_it_has_y_up() {
+    // The coupe's wheels stand on z = 0; a y-up export would put most of
+    // the body below such a ground, so the refusal names the setting.
+    refused(
+        "below-ground",
+        "[geometry]\nstl = \"coupe.stl\"\nunits = \"mm\"\n[ground]\nz = 0.3\n",
+        true,
+        &["ground.z", "below the ground", "geometry.up = \"y\""],
     );
 }
 

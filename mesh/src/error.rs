@@ -158,7 +158,28 @@ pub enum MeshError {
         /// Pairs of facets of one surface that cross.
         pairs: usize,
     },
-    /// The mirror planes asked for are not consistent with the body.
-    #[error("mirror plane problem: {0}")]
-    Mirror(String),
+    /// A half model reaches across its symmetry plane (y = 0) by more than
+    /// the cut tolerance.
+    #[error(
+        "mirror plane problem: a half model must lie in y >= 0 (its mirror image supplies y < 0), \
+         but the body reaches y = {y:.4} m ({y_mm:.1} mm; up to {moved_mm:.1} mm is moved onto the cut)",
+        y_mm = 1000.0 * y,
+        moved_mm = 1000.0 * moved
+    )]
+    AcrossSymmetryPlane {
+        /// The body's least y, metres.
+        y: f64,
+        /// How far a cut is moved onto y = 0, metres.
+        moved: f64,
+    },
+    /// A grounded body reaches below its ground plane.
+    #[error(
+        "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m"
+    )]
+    BelowGround {
+        /// The body's least z, metres.
+        z: f64,
+        /// The ground plane's height, metres.
+        ground: f64,
+    },
 }

@@ -114,7 +114,7 @@ pub struct PrepareReport {
 ///
 /// # Errors
 /// Every reading error of [`read_stl`], every repair error,
-/// [`MeshError::Mirror`] when the body crosses a declared mirror plane, and
+/// [`MeshError::AcrossSymmetryPlane`] or [`MeshError::BelowGround`] when the body crosses a declared mirror plane, and
 /// [`MeshError::SelfCrossing`] when the panels pass through their own
 /// surface.
 pub fn prepare(
@@ -282,21 +282,15 @@ fn check_mirror_sides(mesh: &TriMesh, mirrors: &Mirrors, rel_tol: f64) -> Result
     };
     let tol = rel_tol * (hi - lo).norm();
     if mirrors.symmetry && lo.y < -tol {
-        return Err(MeshError::Mirror(format!(
-            "a half model must lie in y >= 0 (its mirror image supplies y < 0), but the body reaches y = {:.4} m \
-             ({:.1} mm; up to {:.1} mm is moved onto the cut)",
-            lo.y,
-            1000.0 * lo.y,
-            1000.0 * CUT_TOLERANCE * (hi - lo).norm()
-        )));
+        return Err(MeshError::AcrossSymmetryPlane {
+            y: lo.y,
+            moved: CUT_TOLERANCE * (hi - lo).norm(),
+        });
     }
     if let Some(h) = mirrors.ground
         && lo.z < h - tol
     {
-        return Err(MeshError::Mirror(format!(
-            "the body reaches z = {:.4} m, below the ground plane z = {h:.4} m",
-            lo.z
-        )));
+        return Err(MeshError::BelowGround { z: lo.z, ground: h });
     }
     Ok(())
 }

@@ -71,7 +71,7 @@ fn body_across_the_symmetry_plane_is_refused() {
     };
     let e = prepare(&path, &params).unwrap_err();
     assert!(
-        matches!(e, MeshError::Mirror(_)) && e.to_string().contains("y >= 0"),
+        matches!(e, MeshError::AcrossSymmetryPlane { .. }) && e.to_string().contains("y >= 0"),
         "{e}"
     );
 }
