@@ -91,7 +91,7 @@ pub struct Row {
     pub regions: Vec<RegionResult>,
     /// For the lowest drag of a wind condition: `tuft compare`'s verdict
     /// on it (as B) against the runner-up (as A), panels mapped, so that
-    /// the two commands name a winner, an indication or none alike; `None` for
+    /// the two commands name a winner or none alike; `None` for
     /// other variants or when either folder cannot be compared.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub against_next: Option<crate::compare::DragVerdict>,
@@ -288,8 +288,9 @@ fn best_drag(c: &Collected) -> String {
 }
 
 /// The lowest drag, judged by `tuft compare`'s verdict against the
-/// runner-up when [`judge_leaders`] could give one (a winner, an
-/// indication, or none); otherwise named the best only when it beats the
+/// runner-up when [`judge_leaders`] could give one (a winner, or none,
+/// with the model's leader when only the separated regions stand in the
+/// way); otherwise named the best only when it beats the
 /// next by more
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
 /// separated share stays put across the variants.
@@ -318,9 +319,8 @@ fn best_drag_in(rows: &[Row]) -> String {
             )
         } else if !v.leaning.is_empty() {
             format!(
-                "lowest drag in this model: {lowest}, {gap:.1} counts below {}; the separated regions differ, \
-                 where the model's drag ranking is not reliable: an indication, not a verdict (see the \
-                 notes above)",
+                "no clear winner: the separated regions differ, where the model's drag ranking is not \
+                 reliable (see the notes above); lowest in this model: {lowest}, {gap:.1} counts below {}",
                 second.name
             )
         } else {
@@ -1246,8 +1246,9 @@ mod tests {
     }
 
     /// With the folders at hand, the leader is judged by `tuft compare`'s
-    /// verdict against the runner-up: a winner, an indication (the difference
-    /// holds across the bands but the separated regions differ) or none.
+    /// verdict against the runner-up: a winner, or none (said so first when
+    /// the difference holds across the bands but the separated regions
+    /// differ, with the model's leader after it).
     #[test]
     fn the_leader_is_named_as_compare_would() {
         let mut c = sweep(&[10.0, 14.0]);
@@ -1260,8 +1261,8 @@ mod tests {
         c.variants[0].against_next = Some(verdict(false, "lower"));
         let line = best_drag(&c);
         assert!(
-            line.starts_with("lowest drag in this model: v0 (C_D 0.300), 10.0 counts below v1")
-                && line.contains("an indication, not a verdict"),
+            line.starts_with("no clear winner: the separated regions differ")
+                && line.contains("lowest in this model: v0 (C_D 0.300), 10.0 counts below v1"),
             "{line}"
         );
         c.variants[0].against_next = Some(verdict(true, ""));

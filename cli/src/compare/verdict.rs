@@ -3,8 +3,10 @@
 //! Two tests, both needed before a difference is called one (and none is
 //! called when the separated regions of the two runs differ enough for the
 //! difference to rest on the separated-flow model, see
-//! `compare::separation_note`; a difference that passes both tests then is
-//! given as an indication, its direction in [`DragVerdict::leaning`]):
+//! `compare::separation_note`; a difference that passes both tests then
+//! keeps the model's direction in [`DragVerdict::leaning`], but the text
+//! leads with "no winner", because through a switch of the separation
+//! regime the model's direction is known to be wrong):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (differences of a
 //!    few counts are within the noise of any simulation, common practice);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
@@ -37,8 +39,9 @@ pub struct DragVerdict {
     pub direction: String,
     /// "lower" or "higher" when the difference passes the noise and band
     /// tests but the separated regions differ, so that it rests on the
-    /// separated-flow model: an indication, not a verdict; otherwise
-    /// empty.
+    /// separated-flow model: the model's direction, no verdict (the model
+    /// ranks the slant-back body's 25 and 35 degree slants the wrong way
+    /// round); otherwise empty.
     #[serde(default)]
     pub leaning: String,
     /// One sentence for people.
@@ -70,9 +73,10 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         )
     } else if banded && separation_differs {
         format!(
-            "B has {way} drag by {:.1} counts in this model ({}), but the separated regions differ, \
-             where the model's drag ranking is not reliable: an indication, not a verdict (confirm it \
-             with validated CFD or a tunnel)",
+            "no winner: the separated regions differ, where the model's drag ranking is not reliable \
+             (it ranks the slant-back research body's 25 and 35 degree slants the wrong way round); \
+             in this model B's drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD \
+             or a tunnel",
             delta.abs(),
             band_ends(low, high)
         )
@@ -141,16 +145,16 @@ mod tests {
         );
         assert!((v.delta_counts + 10.0).abs() < 1e-9);
         assert!(v.leaning.is_empty(), "{v:?}");
-        // The same, but the separated regions differ: no winner, a lead,
-        // and the text says why.
+        // The same, but the separated regions differ: no winner first,
+        // then the model's direction, and the text says why.
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), true);
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
         assert_eq!(v.leaning, "lower");
         assert!(
             v.text
-                .contains("B has lower drag by 10.0 counts in this model")
-                && v.text.contains("separated regions differ")
-                && v.text.contains("an indication, not a verdict"),
+                .starts_with("no winner: the separated regions differ")
+                && v.text
+                    .contains("in this model B's drag is 10.0 counts lower"),
             "{}",
             v.text
         );
@@ -169,7 +173,8 @@ mod tests {
         let v = drag_verdict(&a, &b, true);
         assert!(!v.text.contains(" to "), "{}", v.text);
         assert!(
-            v.text.contains("higher drag by 39.3 counts in this model")
+            v.text
+                .contains("in this model B's drag is 39.3 counts higher")
                 && v.text
                     .contains("+42.6 between the sensitivity bands' low ends")
                 && v.text.contains("+45.7 between their high ends"),
