@@ -86,6 +86,10 @@ pub struct Row {
     /// The warning sentences of the variant's summary.
     #[serde(default)]
     pub warning_texts: Vec<String>,
+    /// Its drag is the attached flow's plateau model's
+    /// ([`crate::summary::Summary::plateau_drag`]).
+    #[serde(default)]
+    pub plateau_drag: bool,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
@@ -267,6 +271,15 @@ fn best_drag(c: &Collected) -> String {
             "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: raise \
              geometry.panels, see the warnings), so no winner is named",
             coarse.len(),
+            c.variants.len()
+        );
+    }
+    let plateau = c.variants.iter().filter(|r| r.plateau_drag).count();
+    if plateau > 0 {
+        return format!(
+            "{plateau} of {} variants ran without the separated-flow loop (solver.wakes = \"attached\") \
+             and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
+             winner is named; rank drag with the loop (the default)",
             c.variants.len()
         );
     }
@@ -502,6 +515,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         speed: flow("speed", still.speed),
         yaw_deg: flow("yaw", still.yaw),
         warning_texts: s.warnings.clone(),
+        plateau_drag: s.plateau_drag(),
         regions: s.regions.clone(),
         against_next: None,
     };
@@ -990,6 +1004,7 @@ mod tests {
             speed: 40.0,
             yaw_deg: 0.0,
             warning_texts: Vec::new(),
+            plateau_drag: false,
             regions: Vec::new(),
             against_next: None,
         };
@@ -1249,6 +1264,26 @@ mod tests {
     /// verdict against the runner-up: a winner, or none (said so first when
     /// the difference holds across the bands but the separated regions
     /// differ, with the model's leader after it).
+    /// Variants run attached-only that separate carry the plateau model's
+    /// drag, which ranks slants the wrong way round: no winner.
+    #[test]
+    fn plateau_drag_names_no_winner() {
+        let mut c = sweep(&[10.0, 10.2]);
+        c.variants[1].cd = 0.35;
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        c.variants[1].plateau_drag = true;
+        let line = best_drag(&c);
+        assert!(
+            line.starts_with("1 of 2 variants ran without the separated-flow loop")
+                && line.contains("no winner is named"),
+            "{line}"
+        );
+    }
+
     #[test]
     fn the_leader_is_named_as_compare_would() {
         let mut c = sweep(&[10.0, 14.0]);

@@ -592,6 +592,9 @@ fn finish(
         reference.front_axle_x,
         reference.rear_axle_x,
     ));
+    if !dead_water_run && separated_area > 0.0 {
+        warnings.push(PLATEAU_DRAG_WARNING.into());
+    }
     if !reference_given.axles {
         warnings.push(
             "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \
@@ -623,6 +626,18 @@ fn finish(
         wakes,
     })
 }
+
+/// The warning of a run whose drag comes from the attached flow's plateau
+/// model (`wakes = "attached"` on a body that separates). Figures: the
+/// slant-back research body's plateau drag in
+/// `tests/tests/separated_wakes.rs` against Ahmed, Ramm & Faltin (1984,
+/// values from memory), and the demo coupe's STL case run both ways
+/// (0.518 against the loop's 0.148, 2026-12-02).
+pub const PLATEAU_DRAG_WARNING: &str = "the drag comes from the attached flow's plateau model \
+(solver.wakes = \"attached\"), which is no basis for ranking drag: on the slant-back research body \
+it gives 0.29 to 0.52 against 0.23 to 0.38 measured and ranks the slants the wrong way round, and on \
+the demo coupe it is 3.5 times the separated-flow loop's estimate; rank drag with the loop (the \
+default)";
 
 /// How far the separated-flow loop's drag estimate fell below the measured
 /// drag of the Ahmed-type body (slants 0, 12.5, 25, 30, 35 degrees; Ahmed,

@@ -177,6 +177,16 @@ pub struct Summary {
     pub caution: String,
 }
 
+impl Summary {
+    /// Whether the drag comes from the attached flow's plateau model: the
+    /// run had the separated-flow loop off (`wakes = "attached"`) and the
+    /// boundary layer separated somewhere. That model's drag is no basis
+    /// for a ranking (see [`crate::pipeline::PLATEAU_DRAG_WARNING`]).
+    pub fn plateau_drag(&self) -> bool {
+        self.separated_wakes.is_none() && self.separation.area_m2 > 0.0
+    }
+}
+
 /// What the separated-flow loop found.
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
 pub struct SeparatedWakes {

@@ -50,7 +50,9 @@ pub struct DragVerdict {
 
 /// Judge B's drag against A's; `separation_differs` when the separated
 /// regions differ enough that the difference rests on the separated-flow
-/// model, whose drag ranking is known to fail (no winner is named then).
+/// model, whose drag ranking is known to fail (no winner is named then,
+/// nor when either run's drag is the plateau model's,
+/// [`Summary::plateau_drag`]).
 pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragVerdict {
     let counts = |x: f64, y: f64| 1000.0 * (y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
@@ -59,15 +61,24 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
     let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= NOISE_COUNTS;
     let above_noise = delta.abs() >= NOISE_COUNTS;
     let banded = above_noise && same_way(low) && same_way(high);
-    let resolved = banded && !separation_differs;
+    // The plateau model's drag (an attached-only run that separates)
+    // ranks nothing.
+    let plateau = a.plateau_drag() || b.plateau_drag();
+    let resolved = banded && !separation_differs && !plateau;
     let way = if delta < 0.0 { "lower" } else { "higher" };
-    let direction = if resolved { way } else { "undecided" };
-    let leaning = if banded && separation_differs {
+    let leaning = if banded && separation_differs && !plateau {
         way
     } else {
         ""
     };
-    let text = if !above_noise {
+    let direction = if resolved { way } else { "undecided" };
+    let text = if plateau {
+        format!(
+            "no winner: drag from the attached flow's plateau model (solver.wakes = \"attached\"), \
+             which is no basis for ranking drag; in this model B's drag is {delta:+.1} counts against \
+             A's: run both with the separated-flow loop (the default) to rank them"
+        )
+    } else if !above_noise {
         format!(
             "drag difference {delta:+.1} counts is within the noise floor of {NOISE_COUNTS} counts: no winner"
         )
@@ -161,6 +172,18 @@ mod tests {
         // Within the band, a separated region that moves gives no lead.
         let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), true);
         assert!(v.leaning.is_empty(), "{v:?}");
+        // 10 counts lower everywhere, but B ran attached-only and separates:
+        // its drag is the plateau model's, which ranks nothing.
+        let mut b = summary(0.290, 0.280, 0.310);
+        b.separation.area_m2 = 0.4;
+        let v = drag_verdict(&a, &b, false);
+        assert!(!v.resolved && v.leaning.is_empty(), "{v:?}");
+        assert!(
+            v.text
+                .starts_with("no winner: drag from the attached flow's plateau model"),
+            "{}",
+            v.text
+        );
     }
 
     #[test]
