@@ -1,4 +1,4 @@
-//! The `tuft` command: overnight aerodynamic screening of concept car shapes.
+//! The `tuft` command: aerodynamic screening, in minutes on a laptop, of concept car shapes.
 //!
 //! Exit codes: 0 success; 1 the run finished but left warnings the user must
 //! read; 2 bad input or failure. Every error message starts with `tuft:` and

@@ -9,8 +9,8 @@ use tuft_solver::boundary_layer::{
 };
 use tuft_solver::loads::{self, Loads, Reference, friction_vectors};
 use tuft_solver::viscous_loop::{
-    LoopPass, ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp,
-    viscous_loop_with_params,
+    LoopBody, LoopPass, ViscousLoop, ViscousLoopParams, base_pressure, dead_water_cp,
+    viscous_loop_on, viscous_loop_with_params,
 };
 use tuft_solver::wake::Wake;
 use tuft_solver::{
@@ -177,16 +177,8 @@ pub fn compute(
         let (solution, layer, run) = LoopRun::split(r);
         (solution, Some(layer), Some(run))
     } else {
-        let solver = PotentialParams {
-            linear_solver: match operator {
-                estimate::Operator::Dense => LinearSolver::Auto,
-                estimate::Operator::Compressed => LinearSolver::Compressed,
-            },
-            compressed_from: usize::MAX,
-            ..PotentialParams::default()
-        };
-        let potential =
-            solve_potential_with_params(mesh, &fs, &solver).context("potential-flow solve")?;
+        let potential = solve_potential_with_params(mesh, &fs, &potential_params(operator))
+            .context("potential-flow solve")?;
         // The boundary layer is marched in its own phase, in `finish`.
         (potential, None, None)
     };
@@ -209,27 +201,90 @@ pub fn compute(
     finish(mesh, case, potential, layer, wake_loop, progress)
 }
 
-/// The physics after the potential flow (boundary layer, loads, drag band)
-/// for a potential solution solved elsewhere (e.g. a sweep that factorises
-/// one matrix for several free streams). When the case wants the
-/// separated-flow loop (see [`loop_wanted`]) the loop runs here with its
-/// own factorisation and `potential` only serves as its check, so a sweep
-/// variant gives the numbers `tuft run` gives.
+/// The physics after an attached potential flow solved elsewhere (a sweep
+/// that solves one matrix for several free streams): boundary layer,
+/// loads, drag band. Only for a case with the separated-flow loop off
+/// (see [`loop_wanted`]); a loop case runs on a [`SharedBody`] with
+/// [`compute_on_body`].
 pub fn compute_from_potential(
     mesh: &PanelMesh,
     case: &Case,
     potential: PotentialSolution,
     progress: &mut Progress,
 ) -> Result<Computed> {
-    if loop_wanted(case) {
-        let fs = potential.freestream;
-        let params = layer_params(case, fs.velocity().normalize());
-        let operator = fitting_operator(mesh, case, None, true)?;
-        let r = separated_loop(mesh, &fs, &params, operator)?;
-        let (p, l, r) = LoopRun::split(r);
-        return finish(mesh, case, p, Some(l), Some(r), progress);
-    }
     finish(mesh, case, potential, None, None, progress)
+}
+
+/// The potential-flow settings of a run on `operator` (the operator is
+/// chosen already, so the size switch is off).
+pub fn potential_params(operator: estimate::Operator) -> PotentialParams {
+    PotentialParams {
+        linear_solver: match operator {
+            estimate::Operator::Dense => LinearSolver::Auto,
+            estimate::Operator::Compressed => LinearSolver::Compressed,
+        },
+        compressed_from: usize::MAX,
+        ..PotentialParams::default()
+    }
+}
+
+/// The operator for the attached flow of a case's panels, refused when it
+/// does not fit in the memory available under `memory_limit`.
+pub fn attached_operator(
+    mesh: &PanelMesh,
+    case: &Case,
+    memory_limit: Option<f64>,
+) -> Result<estimate::Operator> {
+    fitting_operator(mesh, case, memory_limit, false)
+}
+
+/// The separated-flow loop's body system for one set of panels, shared by
+/// the variants of a sweep that differ only in the free stream (or in the
+/// boundary layer's settings): the matrix does not depend on them.
+pub struct SharedBody {
+    body: LoopBody,
+    operator: estimate::Operator,
+}
+
+impl SharedBody {
+    /// Assemble (and factor, when small) the body's system for `case`'s
+    /// panels on the operator that fits under `memory_limit`; refused, as
+    /// `tuft run` refuses, when none does.
+    pub fn build(mesh: &PanelMesh, case: &Case, memory_limit: Option<f64>) -> Result<Self> {
+        let operator = fitting_operator(mesh, case, memory_limit, true)?;
+        let params = loop_params(&BoundaryLayerParams::default(), operator);
+        let body =
+            LoopBody::build(mesh, &params).context("potential flow with separated regions")?;
+        Ok(Self { body, operator })
+    }
+}
+
+/// The physics of a loop case (see [`loop_wanted`]) on a body system
+/// built for its panels: the numbers `tuft run` gives.
+pub fn compute_on_body(
+    mesh: &PanelMesh,
+    case: &Case,
+    shared: &SharedBody,
+    progress: &mut Progress,
+) -> Result<Computed> {
+    let flow = &case.file.flow;
+    let fs = Freestream::new(flow.speed, flow.yaw);
+    let params = loop_params(
+        &layer_params(case, fs.velocity().normalize()),
+        shared.operator,
+    );
+    let phase = progress.begin(
+        "potential flow",
+        &format!(
+            "separated-flow loop on the shared matrix of {} panels",
+            mesh.len()
+        ),
+    );
+    let r = viscous_loop_on(mesh, &fs, &params, &shared.body)
+        .context("potential flow with separated regions")?;
+    let (potential, layer, run) = LoopRun::split(r);
+    progress.end(phase, &format!("{} passes", run.passes));
+    finish(mesh, case, potential, Some(layer), Some(run), progress)
 }
 
 /// The operator a run uses (forced by the case, or chosen by size and the
@@ -455,17 +510,17 @@ fn separated_loop(
     layer: &BoundaryLayerParams,
     operator: estimate::Operator,
 ) -> Result<ViscousLoop> {
-    let mut loop_params = ViscousLoopParams {
-        layer: layer.clone(),
-        ..ViscousLoopParams::default()
-    };
-    loop_params.potential.linear_solver = match operator {
-        estimate::Operator::Dense => LinearSolver::Auto,
-        estimate::Operator::Compressed => LinearSolver::Compressed,
-    };
-    loop_params.potential.compressed_from = usize::MAX;
-    viscous_loop_with_params(mesh, fs, &loop_params)
+    viscous_loop_with_params(mesh, fs, &loop_params(layer, operator))
         .context("potential flow with separated regions")
+}
+
+/// The loop's settings: the case's boundary layer on `operator`.
+fn loop_params(layer: &BoundaryLayerParams, operator: estimate::Operator) -> ViscousLoopParams {
+    ViscousLoopParams {
+        layer: layer.clone(),
+        potential: potential_params(operator),
+        ..ViscousLoopParams::default()
+    }
 }
 
 /// Boundary layer (unless already marched), loads, drag band, warnings.

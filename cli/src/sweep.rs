@@ -75,6 +75,7 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
         return crate::slurm::write_scripts(args, &plan, &root);
     }
     set_threads(args.options.threads)?;
+    let memory_limit = args.options.memory_limit_bytes()?;
     let (k, n) = match &args.shard {
         Some(s) => parse_shard(s)?,
         None => (1, 1),
@@ -83,7 +84,7 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
         .with_context(|| format!("{}: cannot create the folder", root.display()))?;
     write_plan(&root, &plan)?;
     let range = shard_range(plan.variants.len(), k, n);
-    let failed = run_range(&plan, &root, range.clone(), &args.options);
+    let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
     if !args.options.quiet {
         println!(
             "{}: {} of {} variants finished in {}{}; rank them with: tuft collect {}",
@@ -108,7 +109,12 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
 }
 
 /// Run the variants in `range`, group by group; returns how many failed.
-fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunOptions) -> usize {
+fn run_range(
+    plan: &Plan,
+    root: &Path,
+    range: std::ops::Range<usize>,
+    (opt, memory_limit): (&RunOptions, Option<f64>),
+) -> usize {
     let dir = plan.path.parent().unwrap_or(Path::new("."));
     let total = range.len();
     let mut done = 0;
@@ -149,7 +155,7 @@ fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunO
                     "matrix reused".to_string()
                 } else {
                     format!(
-                        "matrix factorised for {} variant(s)",
+                        "matrix assembled for {} variant(s)",
                         matrix.variants_sharing
                     )
                 }
@@ -177,7 +183,7 @@ fn run_range(plan: &Plan, root: &Path, range: std::ops::Range<usize>, opt: &RunO
             dir,
             root,
             &todo[start..end],
-            opt.force,
+            (opt.force, memory_limit),
             &mut report,
         );
         start = end;

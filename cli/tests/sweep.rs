@@ -273,3 +273,50 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     assert_eq!(err.matches("already finished").count(), 0, "{err}");
     assert_eq!(err.matches("its case changed").count(), 4, "{err}");
 }
+
+/// `--memory-limit` holds for a sweep as for `tuft run`: a shared matrix
+/// that would not fit is refused before it is assembled, each variant is
+/// reported failed with the reason (the refusal `tuft run` gives, with a
+/// panel count that fits), and no result folder is written; an attached
+/// sweep is held to it too.
+#[test]
+fn a_sweep_keeps_to_the_memory_limit() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    for (name, solver) in [
+        ("loop", ""),
+        ("attached", "[base.solver]\nwakes = \"attached\"\n"),
+    ] {
+        let file = d.join(format!("{name}.toml"));
+        std::fs::write(
+            &file,
+            format!(
+                "[base.geometry]\nshape = \"sphere\"\npanels = 320\n{solver}\
+                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n"
+            ),
+        )
+        .unwrap();
+        let out = d.join(name);
+        let (code, err) = tuft(&[
+            "sweep",
+            file.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--memory-limit",
+            "1M",
+        ]);
+        assert_eq!(code, 2, "{name}: {err}");
+        let failed: Vec<&str> = err.lines().filter(|l| l.contains("FAILED")).collect();
+        assert_eq!(failed.len(), 2, "{name}: {err}");
+        assert!(
+            failed
+                .iter()
+                .all(|l| l.contains("GB is available") && l.contains("geometry.panels")),
+            "{name}: {err}"
+        );
+        assert!(
+            !out.join("speed-20").exists() && !out.join("speed-30").exists(),
+            "{name}: no result folder"
+        );
+    }
+}

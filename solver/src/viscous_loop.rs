@@ -182,10 +182,66 @@ pub fn viscous_loop_with_params(
 ) -> Result<ViscousLoop, ViscousLoopError> {
     check(params)?;
     fs.check(&mesh.mirrors).map_err(WakeError::from)?;
+    let body = LoopBody::build(mesh, params)?;
+    viscous_loop_on(mesh, fs, params, &body)
+}
+
+/// The body's system for the loop: it depends on the panels and on
+/// `params.potential` and `params.model` only, not on the free stream
+/// (Katz & Plotkin 2001, sec. 12.2: the free stream enters through the
+/// right-hand side), so one serves every free stream on the same panels,
+/// as a sweep of speeds or yaw angles wants.
+pub struct LoopBody {
+    body: Body,
+    panels: usize,
+    potential: PotentialParams,
+    model: WakeModel,
+}
+
+impl LoopBody {
+    /// Assemble (and below `params.potential.krylov_from` panels, factor)
+    /// the body's system.
+    ///
+    /// # Errors
+    /// [`ViscousLoopError::BadParameter`] as [`viscous_loop_with_params`];
+    /// the solver's errors.
+    pub fn build(mesh: &PanelMesh, params: &ViscousLoopParams) -> Result<Self, ViscousLoopError> {
+        check(params)?;
+        Ok(Self {
+            body: Body::build(mesh, params)?,
+            panels: mesh.len(),
+            potential: params.potential,
+            model: params.model,
+        })
+    }
+}
+
+/// Run the loop on a body system built by [`LoopBody::build`] for the
+/// same panels, potential-flow settings and wake model.
+///
+/// # Errors
+/// [`ViscousLoopError::BadParameter`] for a body built for another panel
+/// count or other settings (named `body`), and as
+/// [`viscous_loop_with_params`].
+pub fn viscous_loop_on(
+    mesh: &PanelMesh,
+    fs: &Freestream,
+    params: &ViscousLoopParams,
+    body: &LoopBody,
+) -> Result<ViscousLoop, ViscousLoopError> {
+    check(params)?;
+    if body.panels != mesh.len() || body.potential != params.potential || body.model != params.model
+    {
+        return Err(ViscousLoopError::BadParameter {
+            name: "body",
+            value: body.panels as f64,
+        });
+    }
+    fs.check(&mesh.mirrors).map_err(WakeError::from)?;
     let u = fs.velocity().normalize();
-    let body = Body::build(mesh, &fs.velocity(), params)?;
+    let body = &body.body;
     let base = base_edges(mesh, &u, &params.lines);
-    let attached = run_pass(mesh, fs, &body, Vec::new(), &Outflow::default(), params)?;
+    let attached = run_pass(mesh, fs, body, Vec::new(), &Outflow::default(), params)?;
     // The last pass after the attached one (none yet): no copy of the
     // attached pass, whose streamlines are large on a big mesh.
     let mut later: Option<LoopPass> = None;
@@ -217,7 +273,7 @@ pub fn viscous_loop_with_params(
             converged = true;
             break;
         }
-        let mut next = run_pass(mesh, fs, &body, edges, &open, params)?;
+        let mut next = run_pass(mesh, fs, body, edges, &open, params)?;
         passes += 1;
         if blown_up(&attached.solution.mu, &next.solution.mu) {
             diverged = true;
@@ -278,18 +334,17 @@ fn check(params: &ViscousLoopParams) -> Result<(), ViscousLoopError> {
 /// [`PotentialParams::compressed_from`] (or when asked); kept assembled
 /// to add wake columns each pass for the sheets.
 enum Body {
-    Factored { lu: DenseLu, rhs: Vec<f64> },
+    Factored {
+        lu: DenseLu,
+        rhs_basis: [Vec<f64>; 3],
+    },
     Iterative(InfluenceSystem),
     Compressed(CompressedSystem),
     Assembled(InfluenceSystem),
 }
 
 impl Body {
-    fn build(
-        mesh: &PanelMesh,
-        v_inf: &Vector,
-        params: &ViscousLoopParams,
-    ) -> Result<Self, WakeError> {
+    fn build(mesh: &PanelMesh, params: &ViscousLoopParams) -> Result<Self, WakeError> {
         let p = &params.potential;
         let n = mesh.len();
         let (compressed, krylov) = match p.linear_solver {
@@ -305,7 +360,7 @@ impl Body {
         Ok(match params.model {
             WakeModel::OpenDeadWater if krylov => Self::Iterative(system),
             WakeModel::OpenDeadWater => Self::Factored {
-                rhs: system.rhs(v_inf),
+                rhs_basis: system.rhs_basis().clone(),
                 lu: DenseLu::factor(system)?,
             },
             WakeModel::Sheets => Self::Assembled(system),
@@ -339,7 +394,7 @@ fn run_pass(
     };
     let mut rhs = match (&system, body) {
         (Some(system), _) => system.rhs(&v_inf),
-        (None, Body::Factored { rhs, .. }) => rhs.clone(),
+        (None, Body::Factored { rhs_basis, .. }) => rhs_from_basis(rhs_basis, &v_inf),
         (None, Body::Compressed(c)) => c.rhs(&v_inf),
         (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
@@ -404,6 +459,16 @@ fn run_pass(
         wake: Wake { panels, strength },
         edges,
     })
+}
+
+/// `-B sigma` for `v_inf` from the basis kept when the system was factored
+/// (as [`InfluenceSystem::rhs`] forms it).
+fn rhs_from_basis([x, y, z]: &[Vec<f64>; 3], v_inf: &Vector) -> Vec<f64> {
+    x.iter()
+        .zip(y)
+        .zip(z)
+        .map(|((x, y), z)| v_inf.x * x + v_inf.y * y + v_inf.z * z)
+        .collect()
 }
 
 fn lu_stats() -> SolveStats {

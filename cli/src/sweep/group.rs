@@ -1,6 +1,7 @@
 //! Running the variants that share one geometry: the mesh is prepared, the
-//! influence matrix assembled and factorised once, and every variant's
-//! free stream is a right-hand side of that one factorisation
+//! influence matrix assembled once (and factorised, below 2,000 panels),
+//! and every variant's free stream is a right-hand side of that one matrix,
+//! in the separated-flow loop's passes as in the attached flow
 //! (Katz & Plotkin 2001, sec. 12.2: the doublet matrix depends on the
 //! panels only; the free stream enters through `sigma = n . V_inf`). Yaw
 //! changes only the right-hand side as long as no symmetry plane is used
@@ -11,14 +12,14 @@ use std::time::Instant;
 
 use anyhow::{Context, Result};
 use serde::{Deserialize, Serialize};
-use tuft_solver::potential::{PotentialParams, post_process, solve_system};
-use tuft_solver::{Freestream, assemble};
+use tuft_solver::potential::{post_process, solve_system};
+use tuft_solver::{Freestream, PotentialSolution, assemble};
 
 use super::plan::{Setting, Variant};
 use crate::case::Case;
 use crate::geometry::{self, Geometry};
 use crate::outdir::Staging;
-use crate::pipeline;
+use crate::pipeline::{self, SharedBody};
 use crate::progress::Progress;
 use crate::summary::Summary;
 use crate::write;
@@ -29,19 +30,19 @@ pub const VARIANT_FILE: &str = "variant.json";
 /// How a variant's potential flow was solved.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct MatrixUse {
-    /// Variants (of this process) that shared the assembled, factorised matrix.
+    /// Variants (of this process) that shared the assembled matrix.
     pub variants_sharing: usize,
-    /// Assemblies and factorisations made for them: 1.
+    /// Assemblies (and factorisations, below 2,000 panels) made for them: 1.
     pub factorisations: usize,
-    /// The variant that paid for the factorisation.
+    /// The variant that paid for the assembly.
     pub factorised_for: String,
-    /// True when this variant used a matrix factorised for another.
+    /// True when this variant used a matrix assembled for another.
     pub reused: bool,
-    /// True when the variant ran the separated-flow loop (the default on
-    /// the dense operator), which assembles and solves its own system: the
-    /// shared solve then gave only the free stream.
-    #[serde(default)]
-    pub own_loop: bool,
+    /// True when the variant ran the separated-flow loop (the default) on
+    /// the shared matrix; false when it ran the attached flow only, whose
+    /// solve the group shared.
+    #[serde(default, alias = "own_loop")]
+    pub separated_loop: bool,
 }
 
 /// `variant.json`: what a sweep set for this run folder.
@@ -82,7 +83,7 @@ pub fn run_group(
     dir: &Path,
     root: &Path,
     members: &[Member<'_>],
-    force: bool,
+    (force, memory_limit): (bool, Option<f64>),
     report: &mut dyn FnMut(&Member<'_>, &Outcome, f64),
 ) {
     let start = Instant::now();
@@ -114,9 +115,25 @@ pub fn run_group(
             Err(e) => report(m, &Outcome::Failed(e.to_string()), 0.0),
         }
     }
-    let shared = shared_solve(&geo, &ok.iter().map(|x| x.2).collect::<Vec<_>>());
+    let Some((_, first_case, _)) = ok.first() else {
+        return;
+    };
+    // The wakes setting is part of the geometry key, so the members agree.
+    let loop_on = pipeline::loop_wanted(first_case);
+    let shared = if loop_on {
+        SharedBody::build(&geo.mesh, first_case, memory_limit).map(|b| Shared::Loop(Box::new(b)))
+    } else {
+        shared_solve(
+            &geo,
+            first_case,
+            &ok.iter().map(|x| x.2).collect::<Vec<_>>(),
+            memory_limit,
+        )
+        .map(|s| Shared::Attached(s.into_iter().map(Some).collect()))
+    };
     let mut clock = start.elapsed().as_secs_f64();
-    match shared {
+    let mut shared = match shared {
+        Ok(s) => s,
         Err(e) => {
             for (m, _, _) in &ok {
                 report(
@@ -125,39 +142,54 @@ pub fn run_group(
                     clock,
                 );
             }
+            return;
         }
-        Ok(solutions) => {
-            let first_name = ok
-                .first()
-                .map(|x| x.0.variant.name.clone())
-                .unwrap_or_default();
-            for (k, ((m, case, _), potential)) in ok.iter().zip(solutions).enumerate() {
-                let t = Instant::now();
-                let own_loop = pipeline::loop_wanted(case);
-                let matrix = MatrixUse {
-                    variants_sharing: ok.len(),
-                    factorisations: 1,
-                    factorised_for: first_name.clone(),
-                    reused: k > 0,
-                    own_loop,
-                };
-                let record = VariantRecord {
-                    sweep: sweep.into(),
-                    name: m.variant.name.clone(),
-                    index: m.index,
-                    settings: m.variant.settings.clone(),
-                    matrix: matrix.clone(),
-                };
-                let out = root.join(&m.variant.name);
-                let outcome = match run_one(case, &geo, potential, &out, &record, force) {
-                    Ok(s) => Outcome::Done(Box::new(s), matrix),
-                    Err(e) => Outcome::Failed(format!("{e:#}")),
-                };
-                report(m, &outcome, clock + t.elapsed().as_secs_f64());
-                clock = 0.0;
-            }
-        }
+    };
+    let first_name = ok[0].0.variant.name.clone();
+    for (k, (m, case, _)) in ok.iter().enumerate() {
+        let t = Instant::now();
+        let matrix = MatrixUse {
+            variants_sharing: ok.len(),
+            factorisations: 1,
+            factorised_for: first_name.clone(),
+            reused: k > 0,
+            separated_loop: loop_on,
+        };
+        let record = VariantRecord {
+            sweep: sweep.into(),
+            name: m.variant.name.clone(),
+            index: m.index,
+            settings: m.variant.settings.clone(),
+            matrix: matrix.clone(),
+        };
+        let out = root.join(&m.variant.name);
+        let input = match &mut shared {
+            Shared::Loop(body) => Input::Loop(body),
+            Shared::Attached(solutions) => match solutions[k].take() {
+                Some(p) => Input::Potential(p),
+                None => continue,
+            },
+        };
+        let outcome = match run_one(case, &geo, input, &out, &record, force) {
+            Ok(s) => Outcome::Done(Box::new(s), matrix),
+            Err(e) => Outcome::Failed(format!("{e:#}")),
+        };
+        report(m, &outcome, clock + t.elapsed().as_secs_f64());
+        clock = 0.0;
     }
+}
+
+/// What the members of a group share: the loop's body system, or the
+/// attached flow of each (one solve of one matrix for every free stream).
+enum Shared {
+    Loop(Box<SharedBody>),
+    Attached(Vec<Option<PotentialSolution>>),
+}
+
+/// One member's share.
+enum Input<'a> {
+    Loop(&'a SharedBody),
+    Potential(PotentialSolution),
 }
 
 /// The checked case of a variant, named after it; STL paths are absolute.
@@ -166,15 +198,20 @@ fn checked_case(dir: &Path, v: &Variant) -> Result<Case, String> {
     Case::from_file(&dir.join(format!("{}.toml", v.name)), file).map_err(|e| format!("{e:#}"))
 }
 
-/// Assemble and factorise once, solve every free stream.
+/// Assemble (and factorise, when small) once, solve every free stream, on
+/// the operator `tuft run` would choose for the case (refused, as there,
+/// when it does not fit under `memory_limit`).
 fn shared_solve(
     geo: &Geometry,
+    case: &Case,
     streams: &[Freestream],
-) -> Result<Vec<tuft_solver::PotentialSolution>> {
+    memory_limit: Option<f64>,
+) -> Result<Vec<PotentialSolution>> {
     if streams.is_empty() {
         return Ok(Vec::new());
     }
-    let params = PotentialParams::default();
+    let operator = pipeline::attached_operator(&geo.mesh, case, memory_limit)?;
+    let params = pipeline::potential_params(operator);
     let system = assemble(&geo.mesh, &params)?;
     let rhs = streams
         .iter()
@@ -192,14 +229,17 @@ fn shared_solve(
 fn run_one(
     case: &Case,
     geo: &Geometry,
-    potential: tuft_solver::PotentialSolution,
+    input: Input<'_>,
     out: &Path,
     record: &VariantRecord,
     force: bool,
 ) -> Result<Summary> {
     let staging = Staging::new(out, force)?;
     let mut progress = Progress::new(true, &case.name);
-    let computed = pipeline::compute_from_potential(&geo.mesh, case, potential, &mut progress)?;
+    let computed = match input {
+        Input::Loop(body) => pipeline::compute_on_body(&geo.mesh, case, body, &mut progress)?,
+        Input::Potential(p) => pipeline::compute_from_potential(&geo.mesh, case, p, &mut progress)?,
+    };
     let summary = write::write_all(case, geo, &computed, &staging, &mut progress)
         .with_context(|| format!("writing results for {}", out.display()))?;
     let json = serde_json::to_string_pretty(record)? + "\n";

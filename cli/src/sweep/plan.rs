@@ -330,14 +330,12 @@ fn variant(base: &toml::Value, dir: &Path, settings: Vec<(String, toml::Value)>)
     }
 }
 
-/// What decides the panel mesh: the geometry section and the ground.
+/// What decides the shared matrix: the panel mesh (the geometry section
+/// and the ground) and the solver settings (the operator, and whether the
+/// separated-flow loop runs).
 fn geometry_key(v: &toml::Value) -> String {
-    let g = v
-        .get("geometry")
-        .map(ToString::to_string)
-        .unwrap_or_default();
-    let z = v.get("ground").map(ToString::to_string).unwrap_or_default();
-    format!("{g}|{z}")
+    let part = |k: &str| v.get(k).map(ToString::to_string).unwrap_or_default();
+    format!("{}|{}|{}", part("geometry"), part("ground"), part("solver"))
 }
 
 /// Set a dotted key, creating tables on the way; setting `geometry.stl`
