@@ -685,28 +685,27 @@ fn separation_note(
 /// One region's change in words, after its name.
 pub fn region_text(r: &RegionChange) -> String {
     format!(
-        "{:.0} % separated in A ({}), {:.0} % in B ({}), {:+.0} points",
+        "{:.0} % separated in A ({}), {:.0} % in B ({}), {} points",
         100.0 * r.separated_fraction[0],
         r.verdict[0],
         100.0 * r.separated_fraction[1],
         r.verdict[1],
-        r.delta_points
+        crate::output::signed(r.delta_points, 0)
     )
 }
 
 fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
     println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
+    let [lift, front, rear] =
+        crate::output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
     println!(
-        "  drag {:+.1} counts, lift {:+.0} kg (front {:+.0}, rear {:+.0}; negative: more downforce in B), \
-         separated area {:+.3} m^2 \
-         (separated share of the surface {:+.2} points)",
-        d.drag_counts,
-        d.lift_kg,
-        d.front_axle_kg,
-        d.rear_axle_kg,
-        d.separated_area_m2,
-        d.separated_percent_points
+        "  drag {} counts, lift {lift} kg (front {front}, rear {rear}; negative: more downforce in B), \
+         separated area {} m^2 \
+         (separated share of the surface {} points)",
+        crate::output::signed(d.drag_counts, 1),
+        crate::output::signed(d.separated_area_m2, 3),
+        crate::output::signed(d.separated_percent_points, 2)
     );
     for r in &c.regions {
         println!("  {}: {}", r.name, region_text(r));
@@ -714,13 +713,13 @@ fn print_comparison(c: &Comparison, out: &Path) {
     let s = &c.surface;
     if s.unchanged_share > 0.0 {
         println!(
-            "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.2} on 95 % of it, giving \
-             {:+.1} drag counts and {:+.0} kg of lift: the flow's answer there to the change, plus panel noise \
+            "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.3} on 95 % of it, giving \
+             {} drag counts and {} kg of lift: the flow's answer there to the change, plus panel noise \
              (largest at sharp edges and corners)",
             100.0 * s.unchanged_share,
             s.unchanged_delta_cp_p95,
-            s.unchanged_drag_counts,
-            s.unchanged_lift_kg
+            crate::output::signed(s.unchanged_drag_counts, 1),
+            crate::output::kg_set_signed([s.unchanged_lift_kg])[0]
         );
     }
     for n in &c.notes {

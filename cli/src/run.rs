@@ -143,11 +143,9 @@ fn print_summary(out: &Path, s: &Summary) {
         s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
     );
     let floor = crate::write::underbody_words(s, "; ");
+    let [total, front, rear] = s.lift_kg.axle_words();
     println!(
-        "  lift {} kg (front {}, rear {}{floor}), separated {:.1} % of the surface",
-        crate::output::whole(s.lift_kg.total),
-        crate::output::whole(s.lift_kg.front_axle),
-        crate::output::whole(s.lift_kg.rear_axle),
+        "  lift {total} kg (front {front}, rear {rear}{floor}), separated {:.1} % of the surface",
         100.0 * s.separation.fraction
     );
     if let Some(w) = &s.separated_wakes {

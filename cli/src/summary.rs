@@ -177,6 +177,24 @@ pub struct Summary {
     pub caution: String,
 }
 
+impl LiftKg {
+    /// Total, front and rear axle in words, to the decimals of
+    /// [`crate::output::kg_set`].
+    pub fn axle_words(&self) -> [String; 3] {
+        crate::output::kg_set([self.total, self.front_axle, self.rear_axle])
+    }
+
+    /// The underbody's part, front and rear, in words as
+    /// [`Self::axle_words`].
+    pub fn underbody_axle_words(&self) -> [String; 3] {
+        crate::output::kg_set([
+            self.underbody,
+            self.underbody_front_axle,
+            self.underbody_rear_axle,
+        ])
+    }
+}
+
 impl Summary {
     /// Whether the drag comes from the attached flow's plateau model: the
     /// run had the separated-flow loop off (`wakes = "attached"`) and the

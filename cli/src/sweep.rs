@@ -149,7 +149,7 @@ fn run_range(
                 s.coefficients.drag,
                 s.drag_estimate.cd_low,
                 s.drag_estimate.cd_high,
-                crate::output::whole(s.lift_kg.total),
+                s.lift_kg.axle_words()[0],
                 100.0 * s.separation.fraction,
                 if matrix.reused {
                     "matrix reused".to_string()

@@ -520,12 +520,11 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
 /// first read (after `lead`), or nothing.
 pub fn underbody_words(s: &Summary, lead: &str) -> String {
     if s.mesh.ground_z.is_some() && s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
+        let u = s.lift_kg.underbody_axle_words();
         format!(
             "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part: a real \
              underbody sucks far less",
-            output::whole(s.lift_kg.underbody),
-            output::whole(s.lift_kg.underbody_front_axle),
-            output::whole(s.lift_kg.underbody_rear_axle)
+            u[0], u[1], u[2]
         )
     } else {
         String::new()
@@ -601,32 +600,34 @@ fn report(
             &format!("kW at {} m/s", output::speed_number(v)),
         ),
         NumberRow::fixed("Lift coefficient C_L (negative: downforce)", k.lift, 3, "-"),
-        NumberRow::fixed(
+        NumberRow::text(
             "Lift, whole body (negative: downforce)",
-            s.lift_kg.total,
-            0,
+            &s.lift_kg.axle_words()[0],
             &at,
         ),
-        NumberRow::fixed("Lift, front axle", s.lift_kg.front_axle, 0, &at),
-        NumberRow::fixed("Lift, rear axle", s.lift_kg.rear_axle, 0, &at),
+        NumberRow::text("Lift, front axle", &s.lift_kg.axle_words()[1], &at),
+        NumberRow::text("Lift, rear axle", &s.lift_kg.axle_words()[2], &at),
     ];
     if s.mesh.ground_z.is_some() {
         numbers.push(NumberRow::text(
             "Lift, of which the underbody (ground-facing panels; front, rear axle)",
-            &format!(
-                "{} ({}, {})",
-                output::whole(s.lift_kg.underbody),
-                output::whole(s.lift_kg.underbody_front_axle),
-                output::whole(s.lift_kg.underbody_rear_axle)
-            ),
+            &{
+                let [u, f, r] = s.lift_kg.underbody_axle_words();
+                format!("{u} ({f}, {r})")
+            },
             &at,
         ));
     }
     numbers.extend([
         NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
         NumberRow::fixed(
-            "Pitching-moment coefficient (about the wheelbase's middle on the ground, on the reference \
-             length; positive nose up)",
+            if s.mesh.ground_z.is_some() {
+                "Pitching-moment coefficient (about the wheelbase's middle on the ground, on the reference \
+                 length; positive nose up)"
+            } else {
+                "Pitching-moment coefficient (about the wheelbase's middle at the body's lowest point, no \
+                 ground; on the reference length; positive nose up)"
+            },
             k.pitch,
             3,
             "-",
@@ -675,11 +676,20 @@ fn report(
             ),
             "m",
         ),
-        NumberRow::number(
+        NumberRow::text(
             "Reynolds number on the reference length",
-            s.reynolds_number,
+            &format!("{:.2} million", s.reynolds_number / 1e6),
             "-",
         ),
+        NumberRow::text(
+            "Air density (the loads in kg and N scale with it)",
+            &s.case
+                .pointer("/flow/density")
+                .and_then(serde_json::Value::as_f64)
+                .map_or_else(|| "not recorded".to_string(), |d| format!("{d}")),
+            "kg/m³",
+        ),
+        NumberRow::number("Dynamic pressure", s.dynamic_pressure_pa, "Pa"),
         NumberRow::text(
             "Panels",
             &if s.mesh.symmetry_plane {
@@ -697,10 +707,10 @@ fn report(
         k.drag,
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
-        output::whole(s.lift_kg.total),
+        s.lift_kg.axle_words()[0],
         output::speed_number(v),
-        output::whole(s.lift_kg.front_axle),
-        output::whole(s.lift_kg.rear_axle),
+        s.lift_kg.axle_words()[1],
+        s.lift_kg.axle_words()[2],
         100.0 * s.separation.fraction,
         s.regions
             .iter()

@@ -156,7 +156,8 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let s = &c.surface;
     let at = format!("kg at {} m/s", output::speed_number(c.b.speed));
     let signed = |v: f64| signed_places(v, 1);
-    let whole = |v: f64| signed_places(v, 0);
+    let [lift, front, rear] = output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg])
+        .map(|t| t.replace('-', "\u{2212}"));
     let mut numbers = vec![
         NumberRow::text(
             "Drag C_D, A and B",
@@ -186,11 +187,11 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text("Drag force difference", &signed(d.drag_force_n), "N"),
         NumberRow::text(
             "Lift difference, whole body (negative: more downforce in B)",
-            &whole(d.lift_kg),
+            &lift,
             &at,
         ),
-        NumberRow::text("Lift difference, front axle", &whole(d.front_axle_kg), &at),
-        NumberRow::text("Lift difference, rear axle", &whole(d.rear_axle_kg), &at),
+        NumberRow::text("Lift difference, front axle", &front, &at),
+        NumberRow::text("Lift difference, rear axle", &rear, &at),
         NumberRow::text(
             "Lift coefficient difference",
             &signed_places(d.lift_coefficient, 3),
@@ -232,7 +233,10 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         ),
         NumberRow::text(
             "Unchanged surface: the part of the lift difference arising there",
-            &whole(s.unchanged_lift_kg),
+            &signed_places(
+                s.unchanged_lift_kg,
+                output::kg_places(&[s.unchanged_lift_kg]),
+            ),
             &at,
         ),
         NumberRow::fixed(
@@ -298,7 +302,8 @@ fn upper_first(s: &str) -> String {
     })
 }
 
-/// A difference with its sign always written, to `places` decimals.
+/// A difference with its sign always written, to `places` decimals, a
+/// typographic minus.
 fn signed_places(v: f64, places: usize) -> String {
-    format!("{v:+.places$}").replace('-', "\u{2212}")
+    output::signed(v, places).replace('-', "\u{2212}")
 }

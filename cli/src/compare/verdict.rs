@@ -18,6 +18,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use crate::output::signed;
 use crate::summary::Summary;
 
 /// Noise floor of a drag difference, counts (common practice: "a few
@@ -75,12 +76,14 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
     let text = if plateau {
         format!(
             "no winner: drag from the attached flow's plateau model (solver.wakes = \"attached\"), \
-             which is no basis for ranking drag; in this model B's drag is {delta:+.1} counts against \
-             A's: run both with the separated-flow loop (the default) to rank them"
+             which is no basis for ranking drag; in this model B's drag is {} counts against \
+             A's: run both with the separated-flow loop (the default) to rank them",
+            signed(delta, 1)
         )
     } else if !above_noise {
         format!(
-            "drag difference {delta:+.1} counts is within the noise floor of {NOISE_COUNTS} counts: no winner"
+            "drag difference {} counts is within the noise floor of {NOISE_COUNTS} counts: no winner",
+            signed(delta, 1)
         )
     } else if banded && separation_differs {
         format!(
@@ -93,8 +96,9 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         )
     } else if !banded {
         format!(
-            "drag difference {delta:+.1} counts between the central estimates, but {}: within the model \
+            "drag difference {} counts between the central estimates, but {}: within the model \
              uncertainty, no winner",
+            signed(delta, 1),
             band_ends(low, high)
         )
     } else {
@@ -120,7 +124,11 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
 /// of the difference: the bands sit unevenly about their estimates, so the
 /// central difference need not lie between the two.
 fn band_ends(low: f64, high: f64) -> String {
-    format!("{low:+.1} between the sensitivity bands' low ends, {high:+.1} between their high ends")
+    format!(
+        "{} between the sensitivity bands' low ends, {} between their high ends",
+        signed(low, 1),
+        signed(high, 1)
+    )
 }
 
 #[cfg(test)]

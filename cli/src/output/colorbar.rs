@@ -2,8 +2,9 @@
 //! published maps) and the colour bar drawn beside every picture.
 //!
 //! - Cp: the diverging red-blue map centred on Cp = 0 (red = pressure above
-//!   free stream, blue = suction), symmetric range `±m`, `m` at least 1 so
-//!   the stagnation value Cp = 1 is always inside.
+//!   free stream, blue = suction) over `-m` to 1: steady incompressible
+//!   flow has no Cp above the stagnation value 1, so the red half ends
+//!   there in full red, and the suction half runs to `m`, at least 1.
 //! - Separation risk: the sequential yellow-orange-red map over 0..1.
 //! - Speed ratio |V|/U: the sequential viridis map from 0.
 //!
@@ -20,7 +21,9 @@ use super::text::{self, Align, TextStyle};
 /// Which map and how values reach it.
 #[derive(Debug, Clone, Copy)]
 enum Map {
-    /// `t = 0.5 - 0.5 v / max`, red at the top.
+    /// `t = 0.5 - 0.5 v / max` above 0 and `0.5 + 0.5 v / min` below
+    /// (each half of the map over its own half of the range), red at the
+    /// top.
     Diverging,
     /// `t = t0 + (t1 - t0) (v - min) / (max - min)`.
     Sequential {
@@ -46,16 +49,18 @@ pub struct ColourScale {
 }
 
 impl ColourScale {
-    /// Pressure coefficient: diverging, centred on 0, range `±m` with `m`
+    /// Pressure coefficient: diverging, centred on 0, from `-m` to the
+    /// stagnation value 1 (no steady incompressible flow exceeds it), `m`
     /// the 1 % quantile of `|Cp|` on the suction side rounded up to a
     /// tick, at least 1 (a few sharp-edge panels would otherwise wash out
-    /// the rest of the picture; the bar says so when it clips them).
+    /// the rest of the picture; the bar says so when it clips them, and
+    /// when a panel's discretisation error puts it above 1).
     pub fn cp(values: &[f64]) -> Self {
         let m = round_to_tick((-quantile(values, 0.01)).max(1.0), true);
         Self {
             label: "Cp [-]".to_owned(),
             min: -m,
-            max: m,
+            max: 1.0,
             clipped: (None, None),
             map: Map::Diverging,
         }
@@ -139,7 +144,8 @@ impl ColourScale {
         }
         let c = match self.map {
             Map::Diverging => {
-                colorous::RED_BLUE.eval_continuous((0.5 - 0.5 * v / self.max).clamp(0.0, 1.0))
+                let half = if v >= 0.0 { self.max } else { -self.min };
+                colorous::RED_BLUE.eval_continuous((0.5 - 0.5 * v / half).clamp(0.0, 1.0))
             }
             Map::Sequential { gradient, t0, t1 } => {
                 let s = ((v - self.min) / (self.max - self.min)).clamp(0.0, 1.0);
@@ -399,13 +405,19 @@ mod tests {
     #[test]
     fn cp_map_is_centred_and_red_for_pressure() {
         let s = ColourScale::cp(&[-1.25, 0.0, 1.0]);
-        assert_eq!((s.min, s.max), (-1.5, 1.5));
+        assert_eq!((s.min, s.max), (-1.5, 1.0));
         // ColorBrewer RdBu: the centre is near white, the ends red and blue.
         let mid = s.colour(0.0).unwrap();
         assert!(mid.iter().all(|&c| c > 230), "{mid:?}");
-        let hi = s.colour(1.5).unwrap();
+        let hi = s.colour(1.0).unwrap();
         let lo = s.colour(-1.5).unwrap();
         assert!(hi[0] > hi[2] && lo[2] > lo[0]);
+        // Stagnation (Cp = 1) is the map's full red end, as deep as the
+        // suction end is blue, whatever the suction range.
+        let deep = colorous::RED_BLUE.eval_continuous(0.0);
+        assert_eq!(hi, [deep.r, deep.g, deep.b]);
+        let wide = ColourScale::cp(&[-4.0, 1.0]);
+        assert_eq!(wide.colour(1.0), Some(hi));
         assert!(s.colour(f64::NAN).is_none());
     }
 

@@ -320,6 +320,40 @@ pub fn whole(v: f64) -> String {
     format!("{:.0}", v.round() + 0.0)
 }
 
+/// `v` rounded to `places` decimals, a rounded zero never written "-0".
+fn rounded(v: f64, places: usize) -> f64 {
+    let scale = 10f64.powi(i32::try_from(places).unwrap_or(0));
+    // -0.0 + 0.0 is +0.0 (IEEE 754).
+    (v * scale).round() / scale + 0.0
+}
+
+/// `v` to `places` decimals with its sign always written ("+3.0",
+/// "-0.4"), a rounded zero as "+0".
+pub fn signed(v: f64, places: usize) -> String {
+    format!("{:+.places$}", rounded(v, places))
+}
+
+/// Decimals for a set of loads in kg shown together (a total and its axle
+/// shares): whole kg, or one decimal when all are under 10 kg, where whole
+/// kg would show a total that its parts do not add up to (a 1 m model:
+/// "1 kg (0 front, 2 rear)").
+pub fn kg_places(values: &[f64]) -> usize {
+    usize::from(values.iter().all(|v| v.abs() < 9.95))
+}
+
+/// A set of loads in kg, each to [`kg_places`] of the set.
+pub fn kg_set<const N: usize>(values: [f64; N]) -> [String; N] {
+    let places = kg_places(&values);
+    values.map(|v| format!("{:.places$}", rounded(v, places)))
+}
+
+/// A set of load differences in kg, signed, each to [`kg_places`] of the
+/// set.
+pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
+    let places = kg_places(&values);
+    values.map(|v| signed(v, places))
+}
+
 /// Why an output could not be written.
 #[derive(Debug, thiserror::Error)]
 pub enum OutputError {
@@ -409,6 +443,19 @@ mod tests {
         assert_eq!(speed_words(27.75), "27.75 m/s (100 km/h)");
         // 140 km/h in m/s: one decimal, not 38.889.
         assert_eq!(speed_words(140.0 / 3.6), "38.9 m/s (140 km/h)");
+    }
+
+    /// The slant-back body's loads (ahmed-35 at 40 m/s: 1.32 kg, -0.48
+    /// front, 1.80 rear) read with a decimal so the parts add up; a car's
+    /// in whole kg; no "-0" anywhere.
+    #[test]
+    fn small_loads_keep_a_decimal_and_signs_no_negative_zero() {
+        assert_eq!(kg_set([1.32, -0.48, 1.80]), ["1.3", "-0.5", "1.8"]);
+        assert_eq!(kg_set([-95.4, -50.2, -45.2]), ["-95", "-50", "-45"]);
+        assert_eq!(kg_set_signed([0.02, -0.04, 0.06]), ["+0.0", "+0.0", "+0.1"]);
+        assert_eq!(kg_set_signed([44.0, -0.3, 44.3]), ["+44", "+0", "+44"]);
+        assert_eq!(signed(-0.04, 1), "+0.0");
+        assert_eq!(signed(-33.04, 1), "-33.0");
     }
 
     #[test]
