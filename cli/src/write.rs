@@ -120,9 +120,60 @@ pub fn write_all(
         .iter()
         .map(|s| s.points.clone())
         .collect();
+    // Each point carries the values of the panel its segment crosses (the
+    // last point its last segment's), and whether the line has separated.
+    let along = |f: &dyn Fn(usize) -> f64| -> Vec<Vec<f64>> {
+        c.layer
+            .streamlines
+            .iter()
+            .map(|l| {
+                (0..l.points.len())
+                    .map(|i| {
+                        l.panels
+                            .get(i.min(l.panels.len().saturating_sub(1)))
+                            .map_or(f64::NAN, |&t| f(t as usize))
+                    })
+                    .collect()
+            })
+            .collect()
+    };
+    let separated: Vec<Vec<f64>> = c
+        .layer
+        .streamlines
+        .iter()
+        .map(|l| {
+            let from = l.separated_at.unwrap_or(usize::MAX);
+            (0..l.points.len())
+                .map(|i| f64::from(u8::from(i >= from)))
+                .collect()
+        })
+        .collect();
+    let values = [
+        along(&|t| surface.cp[t]),
+        along(&|t| surface.shape_factor[t]),
+        along(&|t| surface.risk[t]),
+    ];
+    let scalars = [
+        PointScalars {
+            name: "cp",
+            values: &values[0],
+        },
+        PointScalars {
+            name: "shape_factor",
+            values: &values[1],
+        },
+        PointScalars {
+            name: "risk",
+            values: &values[2],
+        },
+        PointScalars {
+            name: "separated",
+            values: &separated,
+        },
+    ];
     let streamlines = Streamlines {
         lines: &lines,
-        scalars: &[] as &[PointScalars<'_>],
+        scalars: &scalars,
     };
     output::write_file(&out.file("streamlines.vtp"), |w| {
         vtk::write_streamlines(w, &streamlines)

@@ -327,8 +327,13 @@ print('surface', g.GetNumberOfCells(), g.GetNumberOfPoints(), int(tri),
       sum(area.GetValue(c) for c in range(area.GetNumberOfTuples())),
       cd.GetArray('velocity').GetNumberOfComponents(), cd.GetArray('state').GetNumberOfTuples())
 r = vtkIOXML.vtkXMLPolyDataReader(); r.SetFileName(d + '/streamlines.vtp'); r.Update()
-g = r.GetOutput()
-print('streamlines', g.GetNumberOfLines(), g.GetNumberOfPoints())
+g = r.GetOutput(); pd = g.GetPointData()
+names = sorted(pd.GetArrayName(k) for k in range(pd.GetNumberOfArrays()))
+cp = pd.GetArray('cp'); sep = pd.GetArray('separated')
+vals = [cp.GetValue(k) for k in range(cp.GetNumberOfTuples())]
+print('streamlines', g.GetNumberOfLines(), g.GetNumberOfPoints(), '+'.join(names),
+      max(v for v in vals if not math.isnan(v)), cp.GetNumberOfTuples(),
+      sum(sep.GetValue(k) for k in range(sep.GetNumberOfTuples())))
 for name in ['centre-plane', 'horizontal-plane']:
     r = vtkIOXML.vtkXMLImageDataReader(); r.SetFileName(d + '/slice-' + name + '.vti'); r.Update()
     g = r.GetOutput(); pd = g.GetPointData()
@@ -361,6 +366,18 @@ fn vtk_files_read_back(r: &Run) {
     assert!(
         f(lines, 2) >= 2.0 * f(lines, 1),
         "at least two points a line"
+    );
+    // Each point carries its panel's Cp, shape factor and risk and
+    // whether its line has separated: Cp no higher than the stagnation
+    // value 1 (a few hundredths of discretisation error allowed), one
+    // value per point.
+    assert_eq!(lines[3], "cp+risk+separated+shape_factor");
+    assert!(f(lines, 4) <= 1.05, "Cp along the lines up to {}", lines[4]);
+    assert_eq!(f(lines, 5), f(lines, 2), "one value per point");
+    assert_eq!(
+        f(lines, 6) > 0.0,
+        number(&r.summary, "separation/area_m2") > 0.0,
+        "points past a separation where the run found one"
     );
     for slice in &rows[2..4] {
         assert_eq!(slice[0], "slice");
