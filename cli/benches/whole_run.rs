@@ -120,8 +120,10 @@ fn run_case(dir: &Path, n: usize, wakes: &str) -> Run {
     let output = cmd.output().expect("tuft runs");
     let seconds = start.elapsed().as_secs_f64();
     let stderr = String::from_utf8_lossy(&output.stderr);
+    // 1 is a finished run with warnings to read (an attached-only run
+    // warns that its drag is the plateau model's).
     assert!(
-        output.status.code() == Some(0),
+        matches!(output.status.code(), Some(0 | 1)),
         "tuft run failed on {n} panels: {stderr}"
     );
     let peak_kb = stderr

@@ -156,7 +156,7 @@ fn print_summary(out: &Path, s: &Summary) {
         };
         let cpb = |v: Option<f64>| v.map_or("none".to_string(), |v| format!("{v:.2}"));
         println!(
-            "  separated-flow loop: {} passes, {state}; C_D {:.3} (the attached-flow estimate {:.3}), base C_p {} (attached-flow estimate {})",
+            "  separated-flow loop: {} passes, {state}; C_D {:.3} (plateau model on the attached flow: {:.3}), base C_p {} (plateau model: {})",
             w.passes,
             w.cd_loop,
             w.cd_plateau,

@@ -148,7 +148,11 @@ pub struct Summary {
     /// pressure after the separated-flow loop, the plateau model with
     /// attached flow only) plus friction.
     pub coefficients: CoefficientSet,
-    /// Coefficients of the attached potential flow (pressure only).
+    /// Coefficients of the attached potential flow: pressure only, no
+    /// separation model, no friction. Its drag is the panel method's
+    /// residual (zero in exact potential flow: d'Alembert), no estimate;
+    /// the attached flow's drag estimate with the plateau model is
+    /// `separated_wakes.cd_plateau`.
     pub coefficients_attached: CoefficientSet,
     /// Drag estimate with its band.
     pub drag_estimate: DragEstimate,

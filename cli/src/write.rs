@@ -544,7 +544,8 @@ fn loop_text(w: &SeparatedWakes) -> String {
         "The separated regions were opened to the free stream as dead water (the flow leaves each \
          separation line without turning round it) and the boundary layer was marched again: {} passes, \
          {state}. The separation verdicts and the pressures above come from the last pass. {pressure} \
-         The attached-flow estimate with the plateau model was C_D {:.3}. Vortices shed from the side \
+         The plateau model on the attached flow (what solver.wakes = \"attached\" reports) gave C_D \
+         {:.3}, a model this loop replaces. Vortices shed from the side \
          edges of a slant (which raise the drag of 20-30 degree slants) are not modelled.",
         w.passes, w.cd_plateau
     )

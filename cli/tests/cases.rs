@@ -337,10 +337,12 @@ print('streamlines', g.GetNumberOfLines(), g.GetNumberOfPoints(), '+'.join(names
 for name in ['centre-plane', 'horizontal-plane']:
     r = vtkIOXML.vtkXMLImageDataReader(); r.SetFileName(d + '/slice-' + name + '.vti'); r.Update()
     g = r.GetOutput(); pd = g.GetPointData()
-    cp = pd.GetArray('cp'); inside = pd.GetArray('in_body')
+    cp = pd.GetArray('cp'); inside = pd.GetArray('in_body'); near = pd.GetArray('near_surface')
     n = g.GetNumberOfPoints()
     finite = sum(1 for k in range(n) if not math.isnan(cp.GetValue(k)))
-    print('slice', *g.GetDimensions(), n, finite, sum(inside.GetValue(k) for k in range(n)))
+    print('slice', *g.GetDimensions(), n, finite, sum(inside.GetValue(k) for k in range(n)),
+          sum(near.GetValue(k) for k in range(n)),
+          sum(1 for k in range(n) if near.GetValue(k) and inside.GetValue(k)))
 ";
 
 fn vtk_files_read_back(r: &Run) {
@@ -390,6 +392,13 @@ fn vtk_files_read_back(r: &Run) {
         // are in the flow (the slices reach well beyond the body).
         assert_eq!(finite + inside, n);
         assert!(finite > 0.5 * n, "{finite} of {n} samples in the flow");
+        // The plane cuts the body, so some samples lie within a panel size
+        // of its surface and are marked; most do not.
+        let near = f(slice, 7);
+        assert!(
+            near > 0.0 && near < 0.5 * n,
+            "{near} of {n} samples near the surface"
+        );
     }
 }
 

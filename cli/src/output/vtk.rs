@@ -320,6 +320,14 @@ pub fn write_slice<W: Write>(w: &mut W, s: &Slice) -> Result<(), OutputError> {
         ),
         Array::f64s("cp", s.cp.iter().map(|c| c.unwrap_or(f64::NAN))),
         Array::u8s("in_body", s.velocity.iter().map(|v| u8::from(v.is_none()))),
+        // Samples within a panel size of the surface, where a panel's edge
+        // makes the velocity singular: the pictures leave them out of the
+        // colour range (and paint those outside it from their neighbours).
+        Array::u8s(
+            "near_surface",
+            (0..s.velocity.len())
+                .map(|k| u8::from(s.near_surface.get(k).copied().unwrap_or(false))),
+        ),
     ];
     out.push_str(&group(
         "PointData",
