@@ -1140,6 +1140,7 @@ mod tests {
             separated_fraction: fraction,
             mean_risk: 0.2,
             verdict: verdict.into(),
+            separated_band: [fraction, fraction],
         };
         c.variants[0].regions = vec![
             region("rear window", 0.03, "attached"),

@@ -594,14 +594,17 @@ fn finish(
         None => None,
     };
     let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
+    let mut regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
     let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
         (&params, dead_water),
-        &reference,
-        &air,
-        estimate.total.coefficients.drag,
-        attached.total.coefficients.drag.abs(),
+        (&reference, &air),
+        (
+            estimate.total.coefficients.drag,
+            attached.total.coefficients.drag.abs(),
+        ),
+        (&case.file.regions, &mut regions),
     )?;
     progress.end(
         phase,
@@ -632,7 +635,6 @@ fn finish(
         .filter(|(_, l)| l.state == FlowState::Separated)
         .map(|(p, _)| p.area * p.normal.dot(&stream).abs())
         .sum();
-    let regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
     let mut warnings = Vec::new();
     if layer.unresolved > 0 {
         warnings.push(format!(
@@ -679,6 +681,21 @@ fn finish(
         regions,
         warnings,
         wakes,
+    })
+}
+
+/// A warning when `geometry.panels` asked for more panels than the run
+/// has: tuft coarsens a surface but never refines it, so an STL with
+/// fewer facets than asked runs on its own facets (a review asked 10,000
+/// of a 3,956-facet STL and got 3,956 without a word). Within 10 % is the
+/// coarsening's own scatter, not a shortfall.
+pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<String> {
+    let n = requested?;
+    ((panels as f64) < 0.9 * n as f64).then(|| {
+        format!(
+            "geometry.panels asks for {n} panels but the surface has only {panels} facets after repair: tuft \
+             coarsens, it does not refine, so the run used {panels}; for more, export the STL finer"
+        )
     })
 }
 
@@ -803,14 +820,18 @@ fn wake_summary(
 /// pressure integrates to (`residual`) is discretisation error, largest at
 /// sharp edges; the band is widened by it on both sides. This is a
 /// model-sensitivity band, not a confidence interval.
+/// The drag band over the boundary layer's sensitivity runs (and, as they
+/// go, each named region's separated share over them, into `results`).
 fn drag_band(
     mesh: &PanelMesh,
     potential: &PotentialSolution,
     (base, dead_water): (&BoundaryLayerParams, Option<&BoundaryLayer>),
-    reference: &Reference,
-    air: &loads::FlowState,
-    central: f64,
-    residual: f64,
+    (reference, air): (&Reference, &loads::FlowState),
+    (central, residual): (f64, f64),
+    (regions, results): (
+        &[crate::region::RegionSection],
+        &mut [crate::region::RegionResult],
+    ),
 ) -> Result<((f64, f64), String)> {
     let variants = [
         BoundaryLayerParams {
@@ -838,6 +859,13 @@ fn drag_band(
                     layer.separation_source[t] = dead.separation_source[t];
                 }
             }
+        }
+        for (r, v) in results
+            .iter_mut()
+            .zip(crate::region::evaluate(regions, mesh, &layer))
+        {
+            let f = v.separated_fraction;
+            r.separated_band = [r.separated_band[0].min(f), r.separated_band[1].max(f)];
         }
         let friction = friction_vectors(&potential.velocity, &layer, air.speed);
         let cp = separated_cp(mesh, potential, &layer, &friction, dead_water.is_some());
@@ -993,6 +1021,9 @@ mod tests {
         assert!(yaw_coarse_warning(8048, 6500, true, 5.0).is_none());
         // 6,000 of 6,500 suggested is within the measured convergence.
         assert!(yaw_coarse_warning(6000, 6500, true, 5.0).is_none());
+        assert!(unrefined_warning(Some(10_000), 3956).is_some_and(|w| w.contains("used 3956")));
+        assert!(unrefined_warning(Some(4000), 3960).is_none());
+        assert!(unrefined_warning(None, 3956).is_none());
         assert!(coarse_warning(1200, 6500, true).is_some());
         assert!(coarse_warning(2200, 6500, true).is_none());
         assert!(coarse_warning(1200, 6500, false).is_none());

@@ -56,6 +56,42 @@ pub struct RegionResult {
     /// "attached", "partly separated" or "separated" (see
     /// [`VERDICT_LINES`]).
     pub verdict: String,
+    /// The least and the most separated share over this run and its
+    /// sensitivity runs (the boundary layer marched again with the
+    /// separation threshold at H 1.8 and 2.8 and fully turbulent, as for
+    /// the drag band).
+    #[serde(default)]
+    pub separated_band: [f64; 2],
+}
+
+impl RegionResult {
+    /// Share and verdict in words, with the sensitivity runs' range when
+    /// it reaches another verdict: "attached (0 % separated; 0 to 35 %
+    /// across the sensitivity runs, so the verdict rests on the model)".
+    pub fn words(&self) -> String {
+        let [lo, hi] = self.separated_band;
+        let shown = |x: f64| (100.0 * x).round();
+        let range = if verdict(lo) != verdict(hi) {
+            format!(
+                "; {:.0} to {:.0} % across the sensitivity runs, so the verdict rests on the model",
+                shown(lo),
+                shown(hi)
+            )
+        } else if shown(lo) != shown(hi) {
+            format!(
+                "; {:.0} to {:.0} % across the sensitivity runs",
+                shown(lo),
+                shown(hi)
+            )
+        } else {
+            String::new()
+        };
+        format!(
+            "{} ({:.0} % separated{range})",
+            self.verdict,
+            shown(self.separated_fraction)
+        )
+    }
 }
 
 fn facing_vector(word: &str) -> Option<Vector> {
@@ -219,6 +255,7 @@ pub fn evaluate(
                 separated_fraction: fraction,
                 mean_risk: share(risk),
                 verdict: verdict(fraction).into(),
+                separated_band: [fraction, fraction],
             }
         })
         .collect()
@@ -238,6 +275,35 @@ pub fn verdict(fraction: f64) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The words say the sensitivity runs' range, and that the verdict
+    /// rests on the model when the range crosses a regime line (the demo
+    /// coupe's STL at 200 km/h: its boot deck 0 % separated, 34 % with the
+    /// earlier threshold).
+    #[test]
+    fn a_verdict_the_sensitivity_runs_would_change_says_so() {
+        let result = |f: f64, band: [f64; 2]| RegionResult {
+            name: "boot deck".into(),
+            panels: 10,
+            area_m2: 0.4,
+            separated_fraction: f,
+            mean_risk: 0.3,
+            verdict: verdict(f).into(),
+            separated_band: band,
+        };
+        assert_eq!(
+            result(0.0, [0.0, 0.34]).words(),
+            "attached (0 % separated; 0 to 34 % across the sensitivity runs, so the verdict rests on the model)"
+        );
+        assert_eq!(
+            result(0.21, [0.21, 0.41]).words(),
+            "partly separated (21 % separated; 21 to 41 % across the sensitivity runs)"
+        );
+        assert_eq!(
+            result(0.8, [0.8, 0.8]).words(),
+            "separated (80 % separated)"
+        );
+    }
 
     fn region(toml_text: &str) -> Vec<RegionSection> {
         #[derive(Deserialize)]

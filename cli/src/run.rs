@@ -165,12 +165,7 @@ fn print_summary(out: &Path, s: &Summary) {
         );
     }
     for r in &s.regions {
-        println!(
-            "  {}: {} ({:.0} % separated)",
-            r.name,
-            r.verdict,
-            100.0 * r.separated_fraction
-        );
+        println!("  {}: {}", r.name, r.words());
     }
     for w in &s.warnings {
         println!("  warning: {w}");

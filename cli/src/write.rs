@@ -418,6 +418,10 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         geo.report.suggested_panels,
         c.wakes.is_some(),
     ));
+    warnings.extend(crate::pipeline::unrefined_warning(
+        case.file.geometry.panels,
+        mesh.len(),
+    ));
     Summary {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),
@@ -696,9 +700,8 @@ fn report(
         numbers.push(NumberRow::text(
             &format!("Region \"{}\": separated share", r.name),
             &format!(
-                "{:.0} % ({}; mean risk {:.2}, {:.3} m²)",
-                100.0 * r.separated_fraction,
-                r.verdict,
+                "{}; mean risk {:.2}, {:.3} m²",
+                r.words(),
                 r.mean_risk,
                 r.area_m2
             ),
@@ -766,12 +769,7 @@ fn report(
         100.0 * s.separation.fraction,
         s.regions
             .iter()
-            .map(|r| format!(
-                "; {}: {} ({:.0} % separated)",
-                r.name,
-                r.verdict,
-                100.0 * r.separated_fraction
-            ))
+            .map(|r| format!("; {}: {}", r.name, r.words()))
             .collect::<String>()
     );
     let method = TextSection {

@@ -311,6 +311,22 @@ fn regions_match_the_table(r: &Run) {
                 "{name} {key}: {got} vs {want}"
             );
         }
+        // The sensitivity runs' range holds the run's own share; after the
+        // separated-flow loop the dead water stays dead in them, so the
+        // share is the range's low end.
+        let band = &res["separated_band"];
+        let (lo, hi) = (band[0].as_f64().unwrap(), band[1].as_f64().unwrap());
+        let f = sep / area;
+        assert!(
+            lo <= f + 1e-9 && f <= hi + 1e-9,
+            "{name}: {f} outside {lo}..{hi}"
+        );
+        if r.summary["separated_wakes"].is_object() {
+            assert!(
+                (lo - f).abs() < 1e-9,
+                "{name}: loop share {f}, band low {lo}"
+            );
+        }
     }
 }
 
