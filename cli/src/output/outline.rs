@@ -44,6 +44,8 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
     for (view, frame) in &lay.views {
         let seen = render::visible(&tris, *view, frame);
         let mut placed: Vec<[f32; 4]> = Vec::new();
+        // Names step left of the flow arrow's corner.
+        let corner = sheet::flow_mark_box(frame.rect);
         // The body's extent on the picture: names stand clear of it, above
         // (below in the view from underneath), so that they hide nothing.
         let (top, bottom) = tris
@@ -87,7 +89,13 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
             if label.2 > 0.0 && *view != View::Rear {
                 let at = (label.0 / label.2, label.1 / label.2);
                 let below = *view == View::Underneath;
-                placed.push(draw_label(canvas, &mark.name, at, (clear, below), &placed));
+                placed.push(draw_label(
+                    canvas,
+                    &mark.name,
+                    at,
+                    (clear, below),
+                    (&placed, corner),
+                ));
             }
         }
     }
@@ -126,28 +134,32 @@ fn draw_seen_edge(
 }
 
 /// The region's name on a white plate clear of the body, at the height
-/// `clear` and above the region's middle `at`, moved further away from
-/// the body (`below`: down, else up) past any plate already `placed` that
-/// it would cover, with a thin line down (or up) to `at`; returns its
-/// plate (x, y, w, h).
+/// `clear` and above the region's middle `at` (left of the flow arrow's
+/// `corner` where it would cover it), moved further away from the body
+/// (`below`: down, else up) past any plate already `placed` that it would
+/// cover, with a thin line down (or up) to `at`; returns its plate (x, y,
+/// w, h).
 fn draw_label(
     canvas: &mut Canvas,
     name: &str,
     at: (f64, f64),
     (clear, below): (f64, bool),
-    placed: &[[f32; 4]],
+    (placed, corner): (&[[f32; 4]], [f32; 4]),
 ) -> [f32; 4] {
     let style = TextStyle::new(14.0)
         .bold()
         .colour(OUTLINE)
         .align(Align::Centre);
     let w = text::width(name, &style) + 8.0;
-    let (x, mut y) = (at.0 as f32, clear as f32);
-    let overlaps = |p: &[f32; 4], y: f32| {
+    let (mut x, mut y) = (at.0 as f32, clear as f32);
+    let overlaps = |p: &[f32; 4], x: f32, y: f32| {
         let (l, t) = (x - 0.5 * w, y - 13.0);
         l < p[0] + p[2] && p[0] < l + w && t < p[1] + p[3] && p[1] < t + 18.0
     };
-    while let Some(p) = placed.iter().find(|p| overlaps(p, y)) {
+    if overlaps(&corner, x, y) {
+        x = corner[0] - 0.5 * w - 4.0;
+    }
+    while let Some(p) = placed.iter().find(|p| overlaps(p, x, y)) {
         y = if below {
             p[1] + p[3] + 15.0
         } else {
@@ -156,8 +168,8 @@ fn draw_label(
     }
     let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
     let from = if below { y - 13.0 } else { y + 5.0 };
-    canvas.polyline(&[(x, from), (x, at.1 as f32)], OUTLINE, 1.0);
-    canvas.fill_circle(x, at.1 as f32, 2.5, OUTLINE);
+    canvas.polyline(&[(x, from), (at.0 as f32, at.1 as f32)], OUTLINE, 1.0);
+    canvas.fill_circle(at.0 as f32, at.1 as f32, 2.5, OUTLINE);
     canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);
     text::draw(canvas, name, x, y, &style);
     plate
@@ -189,6 +201,37 @@ mod tests {
 
     /// A region (the sphere's rear cap) is outlined and named; with no
     /// region the sheet has no outline colour at all.
+    /// A name that would sit on the flow arrow's corner steps left of it
+    /// (a review saw "boot deck" written over "flow"); elsewhere it stays
+    /// above its region.
+    #[test]
+    fn a_name_keeps_clear_of_the_flow_arrow() {
+        let mut canvas = Canvas::new(800, 400).unwrap();
+        let corner = sheet::flow_mark_box((0, 0, 800, 400));
+        let clear_of = |p: [f32; 4], q: [f32; 4]| {
+            p[0] + p[2] <= q[0] || q[0] + q[2] <= p[0] || p[1] + p[3] <= q[1] || q[1] + q[3] <= p[1]
+        };
+        let plate = draw_label(
+            &mut canvas,
+            "boot deck",
+            (760.0, 200.0),
+            (30.0, false),
+            (&[], corner),
+        );
+        assert!(clear_of(plate, corner), "{plate:?} on {corner:?}");
+        let plate = draw_label(
+            &mut canvas,
+            "bonnet",
+            (200.0, 200.0),
+            (30.0, false),
+            (&[], corner),
+        );
+        assert!(
+            (plate[0] + 0.5 * plate[2] - 200.0).abs() < 1e-3,
+            "{plate:?}"
+        );
+    }
+
     #[test]
     fn a_region_is_outlined_where_it_is_seen() {
         let f = Fixture::sphere(3);

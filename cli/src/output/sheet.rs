@@ -296,6 +296,13 @@ fn draw_cell(
     render::draw_view(canvas, tris, view, frame, &params.render, paint);
 }
 
+/// The corner of a view's `rect` (x, y, w, h) the flow arrow and its word
+/// take, as a plate (x, y, w, h) other labels keep clear of.
+pub fn flow_mark_box(rect: (i64, i64, i64, i64)) -> [f32; 4] {
+    let (l, t, w, _) = rect;
+    [(l + w - 130) as f32, t as f32, 130.0, 40.0]
+}
+
 /// Ground line, flow arrow and scale bar where they apply.
 fn decorate(
     canvas: &mut Canvas,
@@ -330,15 +337,18 @@ fn decorate(
         View::Rear => None,
     };
     if let Some((dx, dy)) = dir {
-        let (x0, y0) = ((l + w - 70) as f32, (t + 20) as f32);
+        // The word before the arrow, on one line with it, so the corner
+        // they take is short and region names keep clear of it
+        // ([`flow_mark_box`]).
+        let (x0, y0) = ((l + w - 40) as f32, (t + 20) as f32);
         let (dx, dy) = (28.0 * dx as f32, 28.0 * dy as f32);
         canvas.arrow((x0 - dx, y0 - dy), (x0 + dx, y0 + dy), MUTED, 2.0);
         text::draw(
             canvas,
             "flow",
-            x0,
-            y0 + 38.0,
-            &TextStyle::new(13.0).colour(MUTED).align(Align::Centre),
+            x0 - 36.0,
+            y0 + 5.0,
+            &TextStyle::new(13.0).colour(MUTED).align(Align::Right),
         );
     }
     if view == View::Side {
