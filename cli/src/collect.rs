@@ -378,8 +378,21 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     entries.sort();
     let mut keys: Vec<String> = Vec::new();
     let mut name = plan.as_ref().map(|p| p.sweep.clone());
+    let mut stale = Vec::new();
     for path in entries {
-        let (row, record) = read_row(&path)?;
+        let (row, record, case) = read_row(&path)?;
+        // A result computed for an older case (the base case or the sweep
+        // changed since) answers another question: not ranked.
+        let planned = plan
+            .as_ref()
+            .and_then(|p| p.variants.iter().find(|e| e.name == row.name));
+        if planned
+            .and_then(|e| e.case.as_ref())
+            .is_some_and(|c| *c != case)
+        {
+            stale.push(row.name);
+            continue;
+        }
         name.get_or_insert(record.sweep.clone());
         for s in &record.settings {
             if !keys.contains(&s.key) {
@@ -397,7 +410,16 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         p.variants
             .into_iter()
             .filter(|e| !variants.iter().any(|r| r.name == e.name))
-            .map(|e| e.name)
+            .map(|e| {
+                if stale.contains(&e.name) {
+                    format!(
+                        "{} (its result was computed for an older case: run the sweep again)",
+                        e.name
+                    )
+                } else {
+                    e.name
+                }
+            })
             .collect()
     });
     let mut c = Collected {
@@ -468,7 +490,8 @@ fn region<'a>(r: &'a Row, name: &str) -> Option<&'a RegionResult> {
     r.regions.iter().find(|g| g.name == name)
 }
 
-fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
+/// A variant's row, its record, and its summary's case.
+fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
     let file = path.join(VARIANT_FILE);
     let text = std::fs::read_to_string(&file)
         .with_context(|| format!("{}: cannot read", file.display()))?;
@@ -519,7 +542,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord)> {
         regions: s.regions.clone(),
         against_next: None,
     };
-    Ok((row, record))
+    Ok((row, record, s.case))
 }
 
 fn write_outputs(dir: &Path, c: &Collected) -> Result<()> {

@@ -123,6 +123,7 @@ fn run_range(
     for index in range {
         let variant = &plan.variants[index];
         let summary = root.join(&variant.name).join("summary.json");
+        let mut replace = false;
         if !opt.force && summary.exists() {
             match stale(&summary, variant, dir) {
                 None => {
@@ -133,13 +134,22 @@ fn run_range(
                     );
                     continue;
                 }
-                Some(why) => say(
-                    opt.quiet,
-                    &format!("{}: {why}, so it runs again", variant.name),
-                ),
+                Some(why) => {
+                    // A folder tuft wrote (it holds summary.json), replaced
+                    // as --force would.
+                    replace = true;
+                    say(
+                        opt.quiet,
+                        &format!("{}: {why}, so it runs again", variant.name),
+                    );
+                }
             }
         }
-        todo.push(Member { index, variant });
+        todo.push(Member {
+            index,
+            variant,
+            stale: replace,
+        });
     }
     let mut report = |m: &Member<'_>, outcome: &Outcome, secs: f64| {
         done += 1;
@@ -227,6 +237,10 @@ pub struct PlanEntry {
     pub name: String,
     /// What differs from the base case.
     pub settings: Vec<plan::Setting>,
+    /// The variant's case as its summary records it, so that `collect`
+    /// can tell a result computed for an older case.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub case: Option<serde_json::Value>,
 }
 
 /// `sweep-plan.json`: the sweep's name and every variant, written whole
@@ -238,6 +252,11 @@ fn write_plan(root: &Path, plan: &Plan) -> Result<()> {
         .map(|v| PlanEntry {
             name: v.name.clone(),
             settings: v.settings.clone(),
+            case: v
+                .file
+                .as_ref()
+                .ok()
+                .and_then(|f| serde_json::to_value(f).ok()),
         })
         .collect();
     let value = serde_json::json!({ "sweep": plan.name, "variants": entries });

@@ -272,6 +272,19 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     ]);
     assert_eq!(err.matches("already finished").count(), 0, "{err}");
     assert_eq!(err.matches("its case changed").count(), 4, "{err}");
+    // ... and does run them: each of the four folders now holds the new
+    // case's result.
+    assert!(!err.contains("already exists"), "{err}");
+    let rerun = plan["variants"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| out.join(v["name"].as_str().unwrap()).join("summary.json"))
+        .filter(|p| p.exists())
+        .map(|p| json(&p)["case"]["geometry"]["panels"].clone())
+        .collect::<Vec<_>>();
+    assert_eq!(rerun.len(), 4, "{err}");
+    assert!(rerun.iter().all(|p| p == 330), "{rerun:?}");
 }
 
 /// `--memory-limit` holds for a sweep as for `tuft run`: a shared matrix
@@ -319,4 +332,43 @@ fn a_sweep_keeps_to_the_memory_limit() {
             "{name}: no result folder"
         );
     }
+}
+
+/// A finished variant whose case has changed since (the base case was
+/// edited and only one shard ran again) is not ranked by `collect`: it is
+/// listed as computed for an older case.
+#[test]
+fn collect_leaves_out_results_of_an_older_case() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("s.toml");
+    let sweep = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n";
+    std::fs::write(&file, sweep).unwrap();
+    let out = d.join("s");
+    let args = [
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    let (code, err) = tuft(&args);
+    assert_eq!(code, 0, "{err}");
+    std::fs::write(&file, sweep.replace("panels = 320", "panels = 330")).unwrap();
+    let (code, err) = tuft(&[&args[..], &["--shard", "1/2"]].concat());
+    assert_eq!(code, 0, "{err}");
+    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 1);
+    let c = json(&out.join("sweep.json"));
+    let ranked: Vec<&str> = c["variants"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(ranked, ["speed-20"]);
+    let missing = c["missing"].as_array().unwrap();
+    assert_eq!(missing.len(), 1);
+    let m = missing[0].as_str().unwrap();
+    assert!(m.starts_with("speed-30") && m.contains("older case"), "{m}");
 }

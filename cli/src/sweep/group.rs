@@ -74,6 +74,8 @@ pub struct Member<'a> {
     pub index: usize,
     /// The variant.
     pub variant: &'a Variant,
+    /// Its finished folder answers an older case or STL and is replaced.
+    pub stale: bool,
 }
 
 /// Run the members of one geometry group into `root/<name>/`; calls
@@ -170,7 +172,7 @@ pub fn run_group(
                 None => continue,
             },
         };
-        let outcome = match run_one(case, &geo, input, &out, &record, force) {
+        let outcome = match run_one(case, &geo, input, &out, &record, force || m.stale) {
             Ok(s) => Outcome::Done(Box::new(s), matrix),
             Err(e) => Outcome::Failed(format!("{e:#}")),
         };
