@@ -535,8 +535,13 @@ fn check_shape_keys(g: &GeometrySection) -> Result<()> {
         (None, Some(shape)) => format!("this case's shape is {shape}"),
         (None, None) => "this case gives no shape".to_owned(),
     };
+    let remedy = if g.stl.is_some() {
+        "remove it, or change the STL itself"
+    } else {
+        "remove it"
+    };
     bail!(
-        "geometry.{key} applies only to the built-in shape {} ({this}); remove it, or change the STL itself",
+        "geometry.{key} applies only to the built-in shape {} ({this}); {remedy}",
         owners.join(" and ")
     )
 }

@@ -140,8 +140,11 @@ fn notes(c: &Collected) -> Vec<String> {
         out.extend(
             [
                 panel_spread(rows),
-                separation_spread(rows),
+                // The plateau model's variants are named by the ranking
+                // line; this note is about the separated-flow loop.
+                separation_spread(rows).filter(|_| rows.iter().any(|r| !r.plateau_drag)),
                 underbody_spread(rows),
+                slope_spread(rows),
             ]
             .into_iter()
             .flatten()
@@ -332,8 +335,13 @@ fn best_drag_in(rows: &[Row]) -> String {
             )
         } else if !v.leaning.is_empty() {
             format!(
-                "no clear winner: the separated regions differ, where the model's drag ranking is not \
-                 reliable (see the notes above); lowest in this model: {lowest}, {gap:.1} counts below {}",
+                "no clear winner: {}, where the model's drag ranking is not reliable (see the notes \
+                 above); lowest in this model: {lowest}, {gap:.1} counts below {}",
+                if v.doubt.is_empty() {
+                    "the separated regions differ"
+                } else {
+                    &v.doubt
+                },
                 second.name
             )
         } else {
@@ -584,7 +592,10 @@ pub fn csv(c: &Collected) -> String {
     s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
-        let _ = write!(s, ",region:{g}:separated_percent,region:{g}:verdict");
+        let _ = write!(
+            s,
+            ",region:{g}:separated_percent,region:{g}:verdict,region:{g}:band_low_percent,region:{g}:band_high_percent"
+        );
     }
     s.push('\n');
     for r in &c.variants {
@@ -610,9 +621,16 @@ pub fn csv(c: &Collected) -> String {
         for g in &c.regions {
             match region(r, g) {
                 Some(g) => {
-                    let _ = write!(s, ",{},{}", 100.0 * g.separated_fraction, g.verdict);
+                    let _ = write!(
+                        s,
+                        ",{},{},{},{}",
+                        100.0 * g.separated_fraction,
+                        g.verdict,
+                        100.0 * g.separated_band[0],
+                        100.0 * g.separated_band[1]
+                    );
                 }
-                None => s.push_str(",,"),
+                None => s.push_str(",,,,"),
             }
         }
         s.push('\n');
@@ -787,6 +805,31 @@ fn separation_spread(c: &[Row]) -> Option<String> {
          reference area (front- and rear-facing parts added, so it can pass 100 %): {}.",
         crate::compare::SEPARATION_CAUTION
     ))
+}
+
+/// A note when a named rear region's slope varies across the variants and
+/// its steepest reaches [`crate::compare::SLOPE_CAUTION_DEG`] (as `tuft
+/// compare`'s slope note).
+fn slope_spread(c: &[Row]) -> Option<String> {
+    let names = region_names(c);
+    names.iter().find_map(|name| {
+        let slopes: Vec<f64> = c
+            .iter()
+            .filter_map(|r| region(r, name)?.slope_deg)
+            .collect();
+        let lo = slopes.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = slopes.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        (hi - lo >= 1.0 && hi >= crate::compare::SLOPE_CAUTION_DEG).then(|| {
+            format!(
+                "The slope of \"{name}\" ranges from {lo:.0} to {hi:.0} degrees across these variants and \
+                 reaches {:.0}, where the separated-flow model's drag is known to rank rear slopes \
+                 wrongly (in the tunnel a slant-back body's drag peaks near 30 degrees and falls beyond; \
+                 the model's keeps rising): read the drag ranking of these slopes as the model's, not \
+                 the car's.",
+                crate::compare::SLOPE_CAUTION_DEG
+            )
+        })
+    })
 }
 
 /// The same for the underbody's separated share and the lift ranking.
@@ -991,9 +1034,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
             r.separated_area_m2,
         );
         for g in &c.regions {
-            let text = region(r, g).map_or_else(String::new, |g| {
-                format!("{:.0} % {}", 100.0 * g.separated_fraction, g.verdict)
-            });
+            let text = region(r, g).map_or_else(String::new, RegionResult::short_words);
             let _ = write!(s, "<td>{}</td>", escape(&text));
         }
         let _ = writeln!(s, "<td>{}</td></tr>", r.warnings);
@@ -1164,6 +1205,7 @@ mod tests {
             mean_risk: 0.2,
             verdict: verdict.into(),
             separated_band: [fraction, fraction],
+            slope_deg: None,
         };
         c.variants[0].regions = vec![
             region("rear window", 0.03, "attached"),
@@ -1177,18 +1219,22 @@ mod tests {
         assert!(
             lines[0].ends_with(
                 ",warnings,region:rear window:separated_percent,region:rear window:verdict,\
-                 region:boot deck:separated_percent,region:boot deck:verdict"
+                 region:rear window:band_low_percent,region:rear window:band_high_percent,\
+                 region:boot deck:separated_percent,region:boot deck:verdict,\
+                 region:boot deck:band_low_percent,region:boot deck:band_high_percent"
             ),
             "{}",
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,3,attached,71,separated"),
+            lines[1].ends_with(",0,3,attached,3,3,71,separated,71,71"),
             "{}",
             lines[1]
         );
         assert!(
-            lines[2].ends_with(",0,28.999999999999996,partly separated,,"),
+            lines[2].ends_with(
+                ",0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,,,,"
+            ),
             "{}",
             lines[2]
         );

@@ -86,10 +86,10 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     let range = shard_range(plan.variants.len(), k, n);
     let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
     if !args.options.quiet {
+        let finished = range.len() - failed;
         println!(
-            "{}: {} of {} variants finished in {}{}; rank them with: tuft collect {}",
+            "{}: {finished} of {} variants finished in {}{}{}",
             plan.name,
-            range.len() - failed,
             range.len(),
             root.display(),
             if n > 1 {
@@ -97,7 +97,11 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
             } else {
                 String::new()
             },
-            root.display()
+            if finished > 0 {
+                format!("; rank them with: tuft collect {}", root.display())
+            } else {
+                String::new()
+            }
         );
     }
     Ok(if failed == 0 {
@@ -155,7 +159,7 @@ fn run_range(
         done += 1;
         let line = match outcome {
             Outcome::Done(s, matrix) => format!(
-                "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {})",
+                "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {}){}",
                 s.coefficients.drag,
                 s.drag_estimate.cd_low,
                 s.drag_estimate.cd_high,
@@ -168,6 +172,11 @@ fn run_range(
                         "matrix assembled for {} variant(s)",
                         matrix.variants_sharing
                     )
+                },
+                match s.warnings.len() {
+                    0 => String::new(),
+                    1 => "; 1 warning (see its report or tuft collect)".to_string(),
+                    k => format!("; {k} warnings (see its report or tuft collect)"),
                 }
             ),
             Outcome::Failed(why) => {

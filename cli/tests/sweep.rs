@@ -372,3 +372,32 @@ fn collect_leaves_out_results_of_an_older_case() {
     let m = missing[0].as_str().unwrap();
     assert!(m.starts_with("speed-30") && m.contains("older case"), "{m}");
 }
+
+/// A mistake in a sweep's base case file is named in that file, with its
+/// line, on one line, before any variant runs.
+#[test]
+fn a_mistake_in_the_base_case_names_its_file_and_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    std::fs::write(
+        d.join("basecase.toml"),
+        "[geometry]\nshape = \"coupe\"\nrear_windo_deg = 30\n",
+    )
+    .unwrap();
+    let file = d.join("sw.toml");
+    std::fs::write(
+        &file,
+        "base = \"basecase.toml\"\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n",
+    )
+    .unwrap();
+    let (code, err) = tuft(&["sweep", file.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(lines.len(), 1, "{err}");
+    assert!(
+        lines[0].starts_with("tuft:")
+            && lines[0].contains("basecase.toml: line 3")
+            && lines[0].contains("rear_windo_deg"),
+        "{err}"
+    );
+}

@@ -45,16 +45,36 @@ pub struct DragVerdict {
     /// round); otherwise empty.
     #[serde(default)]
     pub leaning: String,
+    /// With `leaning`: why the model's direction is no verdict ("the
+    /// separated regions differ", "a rear slope differs and reaches 25
+    /// degrees").
+    #[serde(default)]
+    pub doubt: String,
     /// One sentence for people.
     pub text: String,
 }
 
-/// Judge B's drag against A's; `separation_differs` when the separated
-/// regions differ enough that the difference rests on the separated-flow
-/// model, whose drag ranking is known to fail (no winner is named then,
-/// nor when either run's drag is the plateau model's,
+/// Why a drag difference rests on the part of the separated-flow model
+/// whose drag ranking is known to fail.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ModelDoubt {
+    /// The separated regions (or the underbody's share) differ.
+    Separation,
+    /// A named rear region's slope differs and reaches
+    /// [`crate::compare::SLOPE_CAUTION_DEG`].
+    RearSlope,
+}
+
+/// Judge B's drag against A's; `doubt` when the difference rests on the
+/// separated-flow model where its drag ranking is known to fail (no winner
+/// is named then, nor when either run's drag is the plateau model's,
 /// [`Summary::plateau_drag`]).
-pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragVerdict {
+pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
+    let separation_differs = doubt.is_some();
+    let why = match doubt {
+        Some(ModelDoubt::RearSlope) => "a rear slope differs and reaches 25 degrees",
+        _ => "the separated regions differ",
+    };
     let counts = |x: f64, y: f64| 1000.0 * (y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
@@ -87,10 +107,9 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         )
     } else if banded && separation_differs {
         format!(
-            "no winner: the separated regions differ, where the model's drag ranking is not reliable \
-             (it ranks the slant-back research body's 25 and 35 degree slants the wrong way round); \
-             in this model B's drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD \
-             or a tunnel",
+            "no winner: {why}, where the model's drag ranking is not reliable (it ranks the \
+             slant-back research body's 25 and 35 degree slants the wrong way round); in this model \
+             B's drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD or a tunnel",
             delta.abs(),
             band_ends(low, high)
         )
@@ -115,6 +134,11 @@ pub fn drag_verdict(a: &Summary, b: &Summary, separation_differs: bool) -> DragV
         noise_counts: NOISE_COUNTS,
         direction: direction.into(),
         leaning: leaning.into(),
+        doubt: if leaning.is_empty() {
+            String::new()
+        } else {
+            why.into()
+        },
         text,
     }
 }
@@ -148,13 +172,13 @@ mod tests {
     fn small_or_model_dependent_differences_name_no_winner() {
         let a = summary(0.300, 0.290, 0.320);
         // 2 counts: under the noise floor of a few counts (common practice).
-        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), false);
+        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), None);
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
         // 10 counts lower at the centre but higher at the top of the band.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), false);
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), None);
         assert!(!v.resolved, "{v:?}");
         // 10 counts lower everywhere.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), false);
+        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), None);
         assert!(v.resolved && v.direction == "lower", "{v:?}");
         assert!(
             v.text
@@ -166,7 +190,11 @@ mod tests {
         assert!(v.leaning.is_empty(), "{v:?}");
         // The same, but the separated regions differ: no winner first,
         // then the model's direction, and the text says why.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.310), true);
+        let v = drag_verdict(
+            &a,
+            &summary(0.290, 0.280, 0.310),
+            Some(ModelDoubt::Separation),
+        );
         assert!(!v.resolved && v.direction == "undecided", "{v:?}");
         assert_eq!(v.leaning, "lower");
         assert!(
@@ -178,13 +206,17 @@ mod tests {
             v.text
         );
         // Within the band, a separated region that moves gives no lead.
-        let v = drag_verdict(&a, &summary(0.290, 0.280, 0.325), true);
+        let v = drag_verdict(
+            &a,
+            &summary(0.290, 0.280, 0.325),
+            Some(ModelDoubt::Separation),
+        );
         assert!(v.leaning.is_empty(), "{v:?}");
         // 10 counts lower everywhere, but B ran attached-only and separates:
         // its drag is the plateau model's, which ranks nothing.
         let mut b = summary(0.290, 0.280, 0.310);
         b.separation.area_m2 = 0.4;
-        let v = drag_verdict(&a, &b, false);
+        let v = drag_verdict(&a, &b, None);
         assert!(!v.resolved && v.leaning.is_empty(), "{v:?}");
         assert!(
             v.text
@@ -201,7 +233,7 @@ mod tests {
         // read "+42.6 to +45.7" (a range that leaves out its own headline).
         let a = summary(0.148, 0.142, 0.364);
         let b = summary(0.1873, 0.1846, 0.4097);
-        let v = drag_verdict(&a, &b, true);
+        let v = drag_verdict(&a, &b, Some(ModelDoubt::Separation));
         assert!(!v.text.contains(" to "), "{}", v.text);
         assert!(
             v.text

@@ -210,6 +210,9 @@ fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
                 .with_context(|| format!("base = {}: cannot read the case file", file.display()))?;
             let v: toml::Value =
                 toml::from_str(&text).map_err(|e| crate::case::toml_error(&file, &text, &e))?;
+            // Its mistakes named in its own file, with the line.
+            let _: CaseFile =
+                toml::from_str(&text).map_err(|e| crate::case::toml_error(&file, &text, &e))?;
             (v, file.parent().unwrap_or(Path::new(".")).to_path_buf())
         }
         BaseCase::Inline(v) => ((**v).clone(), dir.to_path_buf()),
@@ -221,10 +224,9 @@ fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
         *stl = toml::Value::String(path_string(&case_dir.join(s)));
     }
     // Check the base now so its mistakes are reported once, up front.
-    let _: CaseFile = value
-        .clone()
-        .try_into()
-        .map_err(|e: toml::de::Error| anyhow::anyhow!("base case: {}", e.to_string().trim()))?;
+    let _: CaseFile = value.clone().try_into().map_err(|e: toml::de::Error| {
+        anyhow::anyhow!("base case: {}", e.to_string().trim().replace('\n', " "))
+    })?;
     Ok(value)
 }
 
