@@ -29,7 +29,7 @@ const COUPE: &str = "[geometry]\nshape = \"coupe\"\npanels = 1000\n[ground]\nz =
                      [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n";
 
 #[test]
-fn three_yaw_angles_share_one_factorisation_and_equal_separate_runs() {
+fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
     std::fs::write(d.join("base.toml"), COUPE).unwrap();
@@ -55,14 +55,14 @@ fn three_yaw_angles_share_one_factorisation_and_equal_separate_runs() {
     for (k, yaw) in [0.0, 4.0, 8.0].into_iter().enumerate() {
         let name = format!("yaw-{yaw}");
         let v = json(&out.join(&name).join("variant.json"));
-        // The flag each variant carries: one factorisation for the three,
+        // The flag each variant carries: one assembly for the three,
         // paid for by the first, reused by the others.
         assert_eq!(v["matrix"]["variants_sharing"], 3);
-        assert_eq!(v["matrix"]["factorisations"], 1);
-        assert_eq!(v["matrix"]["factorised_for"], "yaw-0");
+        assert_eq!(v["matrix"]["assemblies"], 1);
+        assert_eq!(v["matrix"]["assembled_for"], "yaw-0");
         assert_eq!(v["matrix"]["reused"], Value::Bool(k > 0));
         // The same case run alone with `tuft run` (its own assembly and
-        // factorisation) gives the same numbers to 1e-10 relative: the
+        // assembly) gives the same numbers to 1e-10 relative: the
         // matrix does not depend on the free stream (Katz & Plotkin 2001,
         // sec. 12.2), only the right-hand side does.
         let case = d.join(format!("alone-{k}.toml"));

@@ -33,9 +33,11 @@ pub struct MatrixUse {
     /// Variants (of this process) that shared the assembled matrix.
     pub variants_sharing: usize,
     /// Assemblies (and factorisations, below 2,000 panels) made for them: 1.
-    pub factorisations: usize,
+    #[serde(alias = "factorisations")]
+    pub assemblies: usize,
     /// The variant that paid for the assembly.
-    pub factorised_for: String,
+    #[serde(alias = "factorised_for")]
+    pub assembled_for: String,
     /// True when this variant used a matrix assembled for another.
     pub reused: bool,
     /// True when the variant ran the separated-flow loop (the default) on
@@ -152,8 +154,8 @@ pub fn run_group(
         let t = Instant::now();
         let matrix = MatrixUse {
             variants_sharing: ok.len(),
-            factorisations: 1,
-            factorised_for: first_name.clone(),
+            assemblies: 1,
+            assembled_for: first_name.clone(),
             reused: k > 0,
             separated_loop: loop_on,
         };
