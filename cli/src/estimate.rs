@@ -30,15 +30,22 @@ const FIXED_BYTES: f64 = 60e6;
 /// panel: the operator plus the boundary-layer streamlines, slices and
 /// pictures). 60 KB keeps the estimate above that.
 const COMPRESSED_BYTES_PER_PANEL: f64 = 60e3;
-/// Bytes per panel the separated-flow loop adds to a run on either
-/// operator: the boundary layer is marched (and its streamlines kept for
-/// the attached and the last pass) while the operator is still held.
-/// Measured peaks of the concept coupe over the ground with the loop: 951
-/// MB at 10,048 dense panels (59 MB above the attached-run estimate), 3.43
-/// GB at 19,844 (0.13 GB above), 9.41 GB at 99,696 compressed (3.35 GB
-/// above: 34 KB per panel; the attached run peaked at 5.72 GB). 40 KB keeps
-/// the estimate above every one.
+/// Bytes per panel the separated-flow loop adds to a run on the
+/// compressed operator: the boundary layer is marched (and its
+/// streamlines kept for the attached and the last pass) while the
+/// operator is still held. The concept coupe over the ground with the
+/// loop peaked at 9.41 GB at 99,696 compressed panels (3.35 GB above the
+/// attached-run estimate: 34 KB per panel; the attached run peaked at
+/// 5.72 GB). 40 KB keeps the estimate above it.
 const LOOP_BYTES_PER_PANEL: f64 = 40e3;
+/// The same on the dense operator, where the loop's fields are small
+/// beside the matrix. Measured peaks with the loop (BENCHMARKS.md): 66 MB
+/// at 1,980 panels, 257 MB at 4,920, 935-951 MB at 10,048 (up to 59 MB
+/// above the attached-run estimate), 3,430-3,519 MB at 19,844 (up to 214
+/// MB above: 10.8 KB per panel). 16 KB keeps the estimate above every one
+/// (40 KB had put a review's 4,112-panel run at 0.47 GB against 222 MB
+/// measured, and refused it under a 300 MB limit).
+const LOOP_DENSE_BYTES_PER_PANEL: f64 = 16e3;
 /// Right-hand sides the loop solves on the dense operator (the attached
 /// pass and up to five more; the matrix is assembled once).
 const LOOP_SOLVES: f64 = 6.0;
@@ -96,22 +103,26 @@ pub struct Estimate {
 /// the separated-flow loop.
 pub fn memory_for(n: usize, op: Operator, loop_on: bool) -> f64 {
     let n = n as f64;
-    let extra = if loop_on {
-        LOOP_BYTES_PER_PANEL * n
-    } else {
-        0.0
-    };
-    extra
+    loop_bytes_per_panel(op, loop_on) * n
         + match op {
             Operator::Dense => OVERHEAD * ENTRY * n * n + FIXED_BYTES,
             Operator::Compressed => COMPRESSED_BYTES_PER_PANEL * n + FIXED_BYTES,
         }
 }
 
+/// Bytes per panel the separated-flow loop adds on `op` (none when off).
+fn loop_bytes_per_panel(op: Operator, loop_on: bool) -> f64 {
+    match (loop_on, op) {
+        (false, _) => 0.0,
+        (true, Operator::Dense) => LOOP_DENSE_BYTES_PER_PANEL,
+        (true, Operator::Compressed) => LOOP_BYTES_PER_PANEL,
+    }
+}
+
 /// The largest panel count whose run on `op` fits in `bytes`.
 pub fn panels_fitting(bytes: f64, op: Operator, loop_on: bool) -> usize {
     let room = (bytes - FIXED_BYTES).max(0.0);
-    let per = if loop_on { LOOP_BYTES_PER_PANEL } else { 0.0 };
+    let per = loop_bytes_per_panel(op, loop_on);
     match op {
         // a n^2 + per n = room
         Operator::Dense => {
@@ -250,6 +261,29 @@ mod tests {
         assert_eq!(parse_size("1.5GB").unwrap(), 1.5e9);
         assert!(parse_size("lots").is_err());
         assert!(parse_size("-1G").is_err());
+    }
+
+    /// The estimate stays above every measured peak (BENCHMARKS.md, whole
+    /// runs of the concept coupe over the ground) and within twice it, so
+    /// a refusal is safe and its suggested count not far too low.
+    #[test]
+    fn the_estimate_covers_the_measured_peaks() {
+        let measured = [
+            (1_980, Operator::Dense, true, 66e6),
+            (4_920, Operator::Dense, true, 257e6),
+            (10_048, Operator::Dense, true, 951e6),
+            (19_844, Operator::Dense, true, 3_519e6),
+            (19_844, Operator::Dense, false, 3_170e6),
+            (99_696, Operator::Compressed, true, 9_410e6),
+            (99_696, Operator::Compressed, false, 5_720e6),
+        ];
+        for (n, op, loop_on, peak) in measured {
+            let e = memory_for(n, op, loop_on);
+            assert!(
+                e >= peak && e <= 2.0 * peak,
+                "{n} {op:?} loop {loop_on}: {e} vs {peak}"
+            );
+        }
     }
 
     #[test]
