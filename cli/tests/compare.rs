@@ -1,6 +1,8 @@
 //! End-to-end tests of `tuft compare` on runs of the built binary.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
@@ -43,6 +45,21 @@ fn compare(a: &str, b: &str, out: &Path) -> Value {
     }
     let v: Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap();
+    // B's named regions are outlined on the comparison's pictures as on
+    // its own (in the outline colour), and nothing is without them.
+    let pic = common::read_png(&std::fs::read(out.join("separation-change.png")).unwrap());
+    let outline = pic
+        .pixels
+        .chunks(pic.channels)
+        .filter(|p| p[..3] == [20, 80, 200])
+        .count();
+    let b_regions: Value =
+        serde_json::from_str(&std::fs::read_to_string(Path::new(b).join("summary.json")).unwrap())
+            .unwrap();
+    let named = b_regions["regions"]
+        .as_array()
+        .is_some_and(|r| !r.is_empty());
+    assert_eq!(outline > 100, named, "{outline} outline pixels");
     let noted = v["notes"].as_array().is_some_and(|n| !n.is_empty());
     assert_eq!(code, Some(if noted { 1 } else { 0 }), "{}", v["notes"]);
     v
@@ -250,7 +267,8 @@ fn two_diffuser_angles_warn_about_the_lift() {
     let case = |deg: f64| {
         format!(
             "[geometry]\nshape = \"coupe\"\ndiffuser_deg = {deg}\npanels = 1200\n[ground]\nz = 0.0\n\
-             [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n"
+             [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n\
+             [[region]]\nname = \"diffuser\"\nx = [3.4, 4.5]\nfacing = \"down\"\n"
         )
     };
     let a = run_case(dir.path(), "d0", &case(0.0));

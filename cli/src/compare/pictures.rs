@@ -91,7 +91,7 @@ pub fn write(
         what: "Cp difference".into(),
         note,
     };
-    let dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
+    let mut dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
     })?;
     let sep_style = FieldStyle {
@@ -113,7 +113,7 @@ pub fn write(
         note: "Where separation appears (red stripes) or disappears (blue stripes) in B; colour: risk of B minus risk of A.".into(),
     };
     let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
-    let dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
+    let mut dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
         let sep_b = owned.state[i] == PanelState::Separated;
         match (sep_a(i), sep_b) {
             (false, true) => PanelPaint::Hatched(APPEARS.0, APPEARS.1),
@@ -124,6 +124,16 @@ pub fn write(
             }
         }
     })?;
+    // B's named regions, outlined as on its own pictures.
+    let regions: Vec<crate::region::RegionSection> = b
+        .summary
+        .case
+        .get("region")
+        .and_then(|r| serde_json::from_value(r.clone()).ok())
+        .unwrap_or_default();
+    let marks = crate::region::marks(&regions, mesh_b);
+    output::outline::draw_regions(&mut dcp, mesh_b, &marks);
+    output::outline::draw_regions(&mut dsep, mesh_b, &marks);
     let pictures = vec![
         (
             "delta-cp.png",
