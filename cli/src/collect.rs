@@ -800,9 +800,11 @@ fn separation_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = range(c, |r| r.separated_percent);
     let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
-        "The separated share of the surface ranges from {lo:.1} % to {hi:.1} % across these variants, and \
-         the separated surface projected along the stream adds up to {flo:.1} % to {fhi:.1} % of the \
-         reference area (front- and rear-facing parts added, so it can pass 100 %): {}.",
+        "The separated share of the surface moves by {:.1} points across these variants ({lo:.1} % to \
+         {hi:.1} %), and the separated surface seen along the stream by {:.1} % of the reference area \
+         (each variant's front- and rear-facing separated area added: {flo:.1} % to {fhi:.1} %): {}.",
+        hi - lo,
+        fhi - flo,
         crate::compare::SEPARATION_CAUTION
     ))
 }
@@ -1288,7 +1290,7 @@ mod tests {
         assert!(html.contains("restarts at 1 in each"), "{html}");
         assert!(
             html.contains(
-                "yaw 5°: The separated share of the surface ranges from 10.0 % to 14.0 %"
+                "yaw 5°: The separated share of the surface moves by 4.0 points across these variants (10.0 % to 14.0 %)"
             ),
             "{html}"
         );
@@ -1394,7 +1396,7 @@ mod tests {
         c.variants[1].separated_frontal_percent = 12.7;
         let text = separation_spread(&c.variants).unwrap_or_default();
         assert!(
-            text.contains("adds up to 0.0 % to 12.7 % of the reference area"),
+            text.contains("seen along the stream by 12.7 % of the reference area"),
             "{text}"
         );
     }
