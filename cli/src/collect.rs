@@ -325,9 +325,20 @@ fn best_drag_in(rows: &[Row]) -> String {
             second.name
         );
     }
+    // A rear slope that varies across the ranked variants and reaches the
+    // range where the model ranks slopes wrongly holds back any winner,
+    // whatever the leading pair's own slopes.
+    let slopes = slope_spread(rows).is_some();
     // A verdict that is resolved or leans has passed the noise floor too.
     if let Some(v) = &first.against_next {
-        return if v.resolved {
+        return if v.resolved && slopes {
+            format!(
+                "no clear winner: a rear slope varies across these variants and reaches 25 degrees, where \
+                 the model's drag ranking is not reliable (see the notes above); lowest in this model: \
+                 {lowest}, {gap:.1} counts below {}",
+                second.name
+            )
+        } else if v.resolved {
             format!(
                 "best drag: {lowest}, {gap:.1} counts below {} (at both ends of the sensitivity bands too, and \
                  the separated regions agree)",
@@ -352,9 +363,10 @@ fn best_drag_in(rows: &[Row]) -> String {
             )
         };
     }
-    if separation_spread(rows).is_some() {
+    if separation_spread(rows).is_some() || slopes {
         format!(
-            "lowest drag: {lowest}; the separated area moves across the variants, so no winner is named (see the notes above)"
+            "lowest drag: {lowest}; the separated area or a rear slope moves across the variants, so no \
+             winner is named (see the notes above)"
         )
     } else {
         format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
@@ -1283,7 +1295,9 @@ mod tests {
             "{line}"
         );
         assert!(
-            line.contains("yaw 5°: lowest drag: v0 (C_D 0.250); the separated area moves"),
+            line.contains(
+                "yaw 5°: lowest drag: v0 (C_D 0.250); the separated area or a rear slope moves"
+            ),
             "{line}"
         );
         let html = page(&c, &[]);
@@ -1336,6 +1350,46 @@ mod tests {
     /// verdict against the runner-up: a winner, or none (said so first when
     /// the difference holds across the bands but the separated regions
     /// differ, with the model's leader after it).
+    /// A rear slope varying across the variants into the range where the
+    /// model ranks slopes wrongly holds back a winner, even one compare
+    /// would call between the leading pair (a rear window x boot length
+    /// sweep whose two leaders share a slope).
+    #[test]
+    fn a_rear_slope_into_the_critical_range_names_no_winner() {
+        let mut c = sweep(&[10.0, 10.2, 10.1]);
+        c.variants[1].cd = 0.32;
+        c.variants[2].cd = 0.34;
+        c.variants[0].against_next = Some(crate::compare::DragVerdict {
+            resolved: true,
+            ..crate::compare::DragVerdict::default()
+        });
+        let slope = |deg: f64| RegionResult {
+            name: "rear window".into(),
+            panels: 40,
+            area_m2: 0.4,
+            separated_fraction: 0.1,
+            mean_risk: 0.2,
+            verdict: "attached".into(),
+            separated_band: [0.1, 0.1],
+            slope_deg: Some(deg),
+        };
+        for (r, deg) in c.variants.iter_mut().zip([22.0, 22.0, 22.0]) {
+            r.regions = vec![slope(deg)];
+        }
+        assert!(
+            best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        c.variants[2].regions = vec![slope(38.0)];
+        let line = best_drag(&c);
+        assert!(
+            line.starts_with("no clear winner: a rear slope varies")
+                && line.contains("lowest in this model: v0"),
+            "{line}"
+        );
+    }
+
     /// Variants run attached-only that separate carry the plateau model's
     /// drag, which ranks slants the wrong way round: no winner.
     #[test]

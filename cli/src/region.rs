@@ -296,7 +296,7 @@ pub fn evaluate(
 /// steepest tenth of that area reaches (a region drawn as a box round a
 /// rear window takes in the rounded roof and boot edges, whose mean would
 /// read a 28-degree window of the demo coupe as 18; the steepest tenth
-/// reads 27.6, 29.6 and 33.6 for windows of 28, 30 and 34 degrees, and a
+/// reads 27.6, 29.7 and 33.8 for windows of 28, 30 and 34 degrees, and a
 /// single stray panel of a scan cannot set it). `None` when those panels
 /// hold under a quarter of the region's `area` (not a rear-facing region).
 fn rear_slope(slopes: &mut [(f64, f64)], area: f64) -> Option<f64> {

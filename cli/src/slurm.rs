@@ -38,6 +38,10 @@ pub struct SlurmJob {
     pub threads: Option<usize>,
     /// Extra `#SBATCH` options.
     pub options: Vec<String>,
+    /// `--memory-limit` in bytes, if given: each task asks Slurm for it
+    /// (`--mem`) and each shard keeps to it, so a run that would not fit
+    /// is refused before it solves rather than killed by the scheduler.
+    pub memory_limit: Option<f64>,
 }
 
 /// Quote for a POSIX shell.
@@ -60,6 +64,10 @@ fn header(job: &SlurmJob, name: &str, log: &str) -> String {
     if let Some(t) = job.threads {
         let _ = writeln!(s, "#SBATCH --cpus-per-task={t}");
     }
+    if let Some(m) = job.memory_limit {
+        // Slurm's M is 2^20 bytes; ask for at least the limit.
+        let _ = writeln!(s, "#SBATCH --mem={}M", (m / 1_048_576.0).ceil());
+    }
     for o in &job.options {
         let _ = writeln!(s, "#SBATCH {o}");
     }
@@ -74,9 +82,12 @@ pub fn array_script(job: &SlurmJob) -> String {
     let threads = job
         .threads
         .map_or(String::new(), |t| format!(" --threads {t}"));
+    let memory = job
+        .memory_limit
+        .map_or(String::new(), |m| format!(" --memory-limit {m:.0}"));
     let _ = writeln!(
         s,
-        "exec {} sweep {} --out {} --shard \"$SLURM_ARRAY_TASK_ID/{}\" --quiet{threads}",
+        "exec {} sweep {} --out {} --shard \"$SLURM_ARRAY_TASK_ID/{}\" --quiet{threads}{memory}",
         q(&job.program),
         q(&job.sweep),
         q(&job.out),
@@ -139,6 +150,7 @@ pub fn write_scripts(args: &SweepArgs, plan: &Plan, root: &Path) -> Result<ExitC
         name: plan.name.clone(),
         threads: args.options.threads,
         options: args.slurm_options.clone(),
+        memory_limit: args.options.memory_limit_bytes()?,
     };
     let dir = job.out.join("slurm");
     std::fs::create_dir_all(&dir).with_context(|| format!("{}: cannot create", dir.display()))?;
@@ -184,12 +196,19 @@ mod tests {
             name: "s".into(),
             threads: Some(2),
             options: vec!["--time=01:00:00".into()],
+            memory_limit: Some(8e9),
         };
         let a = array_script(&job);
         assert!(a.contains("#SBATCH --array=1-3"));
         assert!(a.contains("--shard \"$SLURM_ARRAY_TASK_ID/3\""));
         assert!(a.contains("'/s/it'\\''s.toml'"), "{a}");
         assert!(a.contains("#SBATCH --time=01:00:00") && a.contains("--threads 2"));
+        // The memory limit reaches both Slurm and each shard: 8e9 bytes
+        // are 7630 MiB rounded up.
+        assert!(
+            a.contains("#SBATCH --mem=7630M") && a.contains("--memory-limit 8000000000"),
+            "{a}"
+        );
         assert!(collect_script(&job).contains("'/opt/tuft' collect '/r'"));
         let s = submit_script(&job);
         assert!(s.contains("--dependency=afterok:\"$array\"") && s.contains("sbatch --parsable"));

@@ -418,10 +418,14 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         geo.report.suggested_panels,
         c.wakes.is_some(),
     ));
-    warnings.extend(crate::pipeline::unrefined_warning(
-        case.file.geometry.panels,
-        mesh.len(),
-    ));
+    // A built-in shape is generated at the count asked (half of it on a
+    // half model); only an STL can hold fewer facets than asked.
+    if matches!(case.source, crate::case::GeometrySource::Stl { .. }) {
+        warnings.extend(crate::pipeline::unrefined_warning(
+            case.file.geometry.panels,
+            mesh.len(),
+        ));
+    }
     Summary {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),

@@ -401,3 +401,39 @@ fn a_mistake_in_the_base_case_names_its_file_and_line() {
         "{err}"
     );
 }
+
+/// Each variant's axles are checked as `tuft run` checks them: one that
+/// moves an axle off the body fails with the reason, the others run.
+#[test]
+fn a_variant_with_an_axle_off_the_body_fails_alone() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("axles.toml");
+    std::fs::write(
+        &file,
+        "[base.geometry]\nshape = \"sphere\"\npanels = 320\n[base.reference]\nrear_axle_x = 0.3\n\
+         [[vary]]\nkey = \"reference.front_axle_x\"\nvalues = [-0.3, -5.0]\n",
+    )
+    .unwrap();
+    let out = d.join("axles");
+    let (code, err) = tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 2, "{err}");
+    let failed: Vec<&str> = err.lines().filter(|l| l.contains("FAILED")).collect();
+    assert_eq!(failed.len(), 1, "{err}");
+    assert!(
+        failed[0].contains("-5") && failed[0].contains("front_axle_x"),
+        "{err}"
+    );
+    assert_eq!(
+        err.lines()
+            .filter(|l| l.starts_with('[') && !l.contains("FAILED"))
+            .count(),
+        1,
+        "{err}"
+    );
+}

@@ -29,5 +29,5 @@ pub mod wake;
 pub use assemble::{InfluenceSystem, assemble};
 pub use potential::{
     Freestream, LinearSolver, PotentialParams, PotentialSolution, SolveStats, solve_potential,
-    solve_potential_with_params, surface_velocity,
+    solve_potential_many, solve_potential_with_params, surface_velocity,
 };

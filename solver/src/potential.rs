@@ -208,6 +208,53 @@ pub fn solve_potential_with_params(
     Ok(post_process(mesh, mu, fs, stats))
 }
 
+/// Assemble once and solve several free streams on the same panels (the
+/// matrix depends on the panels only; Katz & Plotkin 2001, sec. 12.2), on
+/// the path [`solve_potential_with_params`] would take for one: each
+/// solution equals that function's for its free stream.
+///
+/// # Errors
+/// As [`solve_potential_with_params`], for the first free stream that
+/// fails.
+pub fn solve_potential_many(
+    mesh: &PanelMesh,
+    streams: &[Freestream],
+    params: &PotentialParams,
+) -> Result<Vec<PotentialSolution>, SolverError> {
+    for fs in streams {
+        fs.check(&mesh.mirrors)?;
+    }
+    if streams.is_empty() {
+        return Ok(Vec::new());
+    }
+    if chosen_solver(params, mesh.len()) == LinearSolver::Compressed {
+        let system = assemble_compressed(mesh, params)?;
+        return streams
+            .iter()
+            .map(|fs| {
+                let sol = solve_compressed(&system, &system.rhs(&fs.velocity()), params)?;
+                let stats = SolveStats {
+                    method: LinearSolver::Compressed,
+                    iterations: Some(sol.iterations),
+                    residual: sol.residual,
+                };
+                Ok(post_process(mesh, sol.x, fs, stats))
+            })
+            .collect();
+    }
+    let system = assemble(mesh, params)?;
+    let rhs = streams
+        .iter()
+        .map(|fs| system.rhs(&fs.velocity()))
+        .collect();
+    let (mus, stats) = solve_system(system, rhs, params)?;
+    Ok(mus
+        .into_iter()
+        .zip(streams)
+        .map(|(mu, fs)| post_process(mesh, mu, fs, stats))
+        .collect())
+}
+
 /// The [`LinearSolver::Compressed`] path: compressed assembly, GMRES,
 /// the same post-processing.
 fn solve_compressed_path(

@@ -194,6 +194,8 @@ pub fn viscous_loop_with_params(
 pub struct LoopBody {
     body: Body,
     panels: usize,
+    /// [`fingerprint`] of the panels it was built for.
+    fingerprint: f64,
     potential: PotentialParams,
     model: WakeModel,
 }
@@ -210,10 +212,21 @@ impl LoopBody {
         Ok(Self {
             body: Body::build(mesh, params)?,
             panels: mesh.len(),
+            fingerprint: fingerprint(mesh),
             potential: params.potential,
             model: params.model,
         })
     }
+}
+
+/// A number that tells two panel sets apart (their centroids and areas
+/// summed with weights), so a body system is not used on other panels
+/// that happen to be as many.
+fn fingerprint(mesh: &PanelMesh) -> f64 {
+    mesh.panels
+        .iter()
+        .map(|p| p.centroid.x + 2.0 * p.centroid.y + 3.0 * p.centroid.z + 5.0 * p.area)
+        .sum()
 }
 
 /// Run the loop on a body system built by [`LoopBody::build`] for the
@@ -230,7 +243,10 @@ pub fn viscous_loop_on(
     body: &LoopBody,
 ) -> Result<ViscousLoop, ViscousLoopError> {
     check(params)?;
-    if body.panels != mesh.len() || body.potential != params.potential || body.model != params.model
+    if body.panels != mesh.len()
+        || body.fingerprint.to_bits() != fingerprint(mesh).to_bits()
+        || body.potential != params.potential
+        || body.model != params.model
     {
         return Err(ViscousLoopError::BadParameter {
             name: "body",

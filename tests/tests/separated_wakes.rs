@@ -314,6 +314,13 @@ fn one_body_system_serves_several_free_streams() {
         p.layer.flow_direction = Some(fs.velocity().normalize());
         let shared = viscous_loop_on(&mesh, &fs, &p, &body).unwrap();
         let own = viscous_loop_with_params(&mesh, &fs, &p).unwrap();
+        // The attached pass on the shared body (its right-hand side formed
+        // from the basis kept at factoring) is the plain potential solve.
+        let plain = tuft_solver::solve_potential_with_params(&mesh, &fs, &p.potential).unwrap();
+        let top = plain.mu.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        for (a, b) in shared.attached.solution.mu.iter().zip(&plain.mu) {
+            assert!((a - b).abs() <= 1e-12 * top, "attached pass: {a} vs {b}");
+        }
         assert_eq!(shared.passes, own.passes);
         assert!(
             own.passes > 1,
@@ -342,12 +349,16 @@ fn one_body_system_serves_several_free_streams() {
         };
         assert_eq!(states(&shared), states(&own));
     }
-    let other = PanelMesh::new(generate::icosphere(1.0, 1), Mirrors::none()).unwrap();
-    let refused = viscous_loop_on(&other, &Freestream::new(20.0, 0.0), &params, &body);
-    assert!(matches!(
-        refused,
-        Err(ViscousLoopError::BadParameter { name: "body", .. })
-    ));
+    // Other panels, fewer or as many (the sphere scaled), are refused.
+    let fewer = PanelMesh::new(generate::icosphere(1.0, 1), Mirrors::none()).unwrap();
+    let larger = PanelMesh::new(generate::icosphere(1.1, 2), Mirrors::none()).unwrap();
+    for other in [fewer, larger] {
+        let refused = viscous_loop_on(&other, &Freestream::new(20.0, 0.0), &params, &body);
+        assert!(matches!(
+            refused,
+            Err(ViscousLoopError::BadParameter { name: "body", .. })
+        ));
+    }
 }
 
 /// Mean angle of the separation panels from the front stagnation point.

@@ -112,7 +112,16 @@ pub fn read_summary(dir: &Path) -> Result<Summary> {
         )
     })?;
     let bad = || format!("{}: not a tuft summary", file.display());
-    serde_json::from_str(&text).with_context(bad)
+    let mut summary: Summary = serde_json::from_str(&text).with_context(bad)?;
+    // A summary written before the regions carried the sensitivity runs'
+    // range has none: its share alone, not a range of 0 to 0.
+    for r in &mut summary.regions {
+        let [lo, hi] = r.separated_band;
+        if !(lo <= r.separated_fraction && r.separated_fraction <= hi) {
+            r.separated_band = [r.separated_fraction; 2];
+        }
+    }
+    Ok(summary)
 }
 
 /// Parse `panels.csv` by column name.

@@ -12,8 +12,7 @@ use std::time::Instant;
 
 use anyhow::{Context, Result};
 use serde::{Deserialize, Serialize};
-use tuft_solver::potential::{post_process, solve_system};
-use tuft_solver::{Freestream, PotentialSolution, assemble};
+use tuft_solver::{Freestream, PotentialSolution, solve_potential_many};
 
 use super::plan::{Setting, Variant};
 use crate::case::Case;
@@ -114,9 +113,16 @@ pub fn run_group(
     let mut ok = Vec::new();
     for (m, c) in cases {
         let fs = Freestream::new(c.file.flow.speed, c.file.flow.yaw);
-        match fs.check(&geo.mesh.mirrors) {
+        // Each member's axles and regions, as `tuft run` checks them (a
+        // sweep may move an axle off the body; the geometry was checked
+        // with the first member's).
+        let checked = fs
+            .check(&geo.mesh.mirrors)
+            .map_err(|e| e.to_string())
+            .and_then(|()| geometry::check_placement(&geo.mesh, &c).map_err(|e| format!("{e:#}")));
+        match checked {
             Ok(()) => ok.push((m, c, fs)),
-            Err(e) => report(m, &Outcome::Failed(e.to_string()), 0.0),
+            Err(e) => report(m, &Outcome::Failed(e), 0.0),
         }
     }
     let Some((_, first_case, _)) = ok.first() else {
@@ -215,18 +221,11 @@ fn shared_solve(
         return Ok(Vec::new());
     }
     let operator = pipeline::attached_operator(&geo.mesh, case, memory_limit)?;
-    let params = pipeline::potential_params(operator);
-    let system = assemble(&geo.mesh, &params)?;
-    let rhs = streams
-        .iter()
-        .map(|fs| system.rhs(&fs.velocity()))
-        .collect();
-    let (mus, stats) = solve_system(system, rhs, &params)?;
-    Ok(mus
-        .into_iter()
-        .zip(streams)
-        .map(|(mu, fs)| post_process(&geo.mesh, mu, fs, stats))
-        .collect())
+    Ok(solve_potential_many(
+        &geo.mesh,
+        streams,
+        &pipeline::potential_params(operator),
+    )?)
 }
 
 /// Boundary layer, loads and every output of one variant, into `out`.
