@@ -1211,15 +1211,10 @@ mod tests {
     #[test]
     fn region_verdicts_get_a_column_each() {
         let mut c = sweep(&[10.0, 10.0]);
-        let region = |name: &str, fraction: f64, verdict: &str| RegionResult {
-            name: name.into(),
-            panels: 40,
-            area_m2: 0.4,
-            separated_fraction: fraction,
-            mean_risk: 0.2,
-            verdict: verdict.into(),
-            separated_band: [fraction, fraction],
-            slope_deg: None,
+        let region = |name: &str, fraction: f64, verdict: &str| {
+            let r = RegionResult::example(name, fraction, None);
+            assert_eq!(r.verdict, verdict);
+            r
         };
         c.variants[0].regions = vec![
             region("rear window", 0.03, "attached"),
@@ -1363,16 +1358,7 @@ mod tests {
             resolved: true,
             ..crate::compare::DragVerdict::default()
         });
-        let slope = |deg: f64| RegionResult {
-            name: "rear window".into(),
-            panels: 40,
-            area_m2: 0.4,
-            separated_fraction: 0.1,
-            mean_risk: 0.2,
-            verdict: "attached".into(),
-            separated_band: [0.1, 0.1],
-            slope_deg: Some(deg),
-        };
+        let slope = |deg: f64| RegionResult::example("rear window", 0.1, Some(deg));
         for (r, deg) in c.variants.iter_mut().zip([22.0, 22.0, 22.0]) {
             r.regions = vec![slope(deg)];
         }

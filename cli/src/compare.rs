@@ -807,16 +807,11 @@ mod tests {
     fn a_rear_slope_reaching_the_critical_range_is_noted() {
         let with_slope = |slope: f64| {
             let mut s = Summary::default();
-            s.regions.push(crate::region::RegionResult {
-                name: "rear window".into(),
-                panels: 100,
-                area_m2: 0.5,
-                separated_fraction: 0.1,
-                mean_risk: 0.3,
-                verdict: "attached".into(),
-                separated_band: [0.1, 0.1],
-                slope_deg: Some(slope),
-            });
+            s.regions.push(crate::region::RegionResult::example(
+                "rear window",
+                0.1,
+                Some(slope),
+            ));
             s
         };
         let note = |a: f64, b: f64| slope_note(&with_slope(a), &with_slope(b));

@@ -69,6 +69,22 @@ pub struct RegionResult {
 }
 
 impl RegionResult {
+    /// A region result for tests: `fraction` separated (the band that
+    /// alone), its verdict, and `slope_deg`.
+    #[cfg(test)]
+    pub fn example(name: &str, fraction: f64, slope_deg: Option<f64>) -> Self {
+        Self {
+            name: name.into(),
+            panels: 40,
+            area_m2: 0.4,
+            separated_fraction: fraction,
+            mean_risk: 0.2,
+            verdict: verdict(fraction).into(),
+            separated_band: [fraction, fraction],
+            slope_deg,
+        }
+    }
+
     /// Share and verdict in words, with the sensitivity runs' range when
     /// it reaches another verdict: "attached (0 % separated; 0 to 35 %
     /// across the sensitivity runs, so the verdict rests on the model)".
@@ -349,14 +365,8 @@ mod tests {
     #[test]
     fn a_verdict_the_sensitivity_runs_would_change_says_so() {
         let result = |f: f64, band: [f64; 2]| RegionResult {
-            name: "boot deck".into(),
-            panels: 10,
-            area_m2: 0.4,
-            separated_fraction: f,
-            mean_risk: 0.3,
-            verdict: verdict(f).into(),
             separated_band: band,
-            slope_deg: None,
+            ..RegionResult::example("boot deck", f, None)
         };
         assert_eq!(
             result(0.0, [0.0, 0.34]).words(),
