@@ -655,7 +655,9 @@ pub fn csv(c: &Collected) -> String {
 fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
     let metrics: [Metric; 3] = [
-        ("Drag estimate", "drag estimate [counts]", |r| 1000.0 * r.cd),
+        ("Drag estimate", "drag estimate [counts: C_D x 1000]", |r| {
+            1000.0 * r.cd
+        }),
         ("Lift", "lift [kg], negative: downforce", |r| r.lift_kg),
         ("Separated area", "separated area [m²]", |r| {
             r.separated_area_m2
@@ -666,12 +668,42 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         if !numeric_key(c, key) {
             continue;
         }
-        for (what, unit, f) in &metrics {
+        for (k, (what, unit, f)) in metrics.iter().enumerate() {
+            let mut lines = series(c, key, *f);
+            // One drag line carries its sensitivity band's ends beside it,
+            // listed (and so drawn, thinner) before it.
+            let band = k == 0 && lines.len() == 1;
+            if band {
+                let mut ends = Vec::new();
+                for (name, end) in [
+                    (
+                        "band, high end",
+                        (|r: &Row| 1000.0 * r.cd_high) as fn(&Row) -> f64,
+                    ),
+                    ("band, low end", |r: &Row| 1000.0 * r.cd_low),
+                ] {
+                    ends.extend(series(c, key, end).into_iter().map(|s| Series {
+                        name: name.into(),
+                        colour: BAND_GREY,
+                        ..s
+                    }));
+                }
+                if let Some(estimate) = lines.first_mut() {
+                    estimate.name = "estimate".into();
+                }
+                ends.append(&mut lines);
+                lines = ends;
+            }
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
                 subtitle: if c.keys.len() > 1 {
                     format!(
                         "Screening estimates at {}; one line per combination of the other swept values",
+                        speed_of_plot(c)
+                    )
+                } else if band {
+                    format!(
+                        "Screening estimates at {}; grey: the ends of the drag band (model sensitivity)",
                         speed_of_plot(c)
                     )
                 } else {
@@ -680,7 +712,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
-                series: series(c, key, *f),
+                series: lines,
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
             out.push((format!("{what} against {key}"), canvas.to_png()?));
@@ -754,6 +786,9 @@ fn plain_axis_label(key: &str) -> String {
     };
     format!("{key} [{unit}]")
 }
+
+/// The colour of a drag band's ends on the sweep's drag plot.
+const BAND_GREY: crate::output::canvas::Rgb = [150, 150, 150];
 
 fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     let mut groups: BTreeMap<String, Vec<(f64, f64)>> = BTreeMap::new();

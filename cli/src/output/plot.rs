@@ -248,7 +248,9 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
     text::draw_vertical(c, &plot.y_label, 30.0, (t + 0.5 * h) as f32, &axis);
 }
 
-/// Legend box in the top-right corner of the plot area.
+/// Legend box in the corner of the plot area that covers the fewest
+/// points of the curves (top right when several tie), so it hides no
+/// data point where a corner is free.
 fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
     if series.is_empty() {
         return;
@@ -259,10 +261,7 @@ fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
         .map(|s| text::width(&s.name, &style))
         .fold(0.0, f32::max);
     let (bw, bh) = (text_w + 70.0, 12.0 + 26.0 * series.len() as f32);
-    let (x, y) = (
-        (f.rect.0 + f.rect.2) as f32 - bw - 12.0,
-        f.rect.1 as f32 + 12.0,
-    );
+    let (x, y) = legend_corner(series, f, (bw, bh));
     c.fill_rect(x, y, bw, bh, WHITE);
     c.stroke_rect(x, y, bw, bh, [180, 182, 188], 1.0);
     for (k, s) in series.iter().enumerate() {
@@ -272,6 +271,43 @@ fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
         c.fill_circle(x + 30.0, cy, 1.0 + width, s.colour);
         text::draw(c, &s.name, x + 58.0, cy + 5.0, &style);
     }
+}
+
+/// The top-left corner of a legend box of size `(bw, bh)`: the corner of
+/// the plot area whose box covers the fewest curve points, top right
+/// when several tie.
+fn legend_corner(series: &[Series], f: &PlotFrame, (bw, bh): (f32, f32)) -> (f32, f32) {
+    let (l, t, w, h) = (
+        f.rect.0 as f32,
+        f.rect.1 as f32,
+        f.rect.2 as f32,
+        f.rect.3 as f32,
+    );
+    let corners = [
+        (l + w - bw - 12.0, t + 12.0),
+        (l + 12.0, t + 12.0),
+        (l + w - bw - 12.0, t + h - bh - 12.0),
+        (l + 12.0, t + h - bh - 12.0),
+    ];
+    let covered = |&(x, y): &(f32, f32)| {
+        series
+            .iter()
+            .flat_map(|s| &s.points)
+            .filter(|p| p.0.is_finite() && p.1.is_finite())
+            .map(|&(px, py)| f.pixel_at(px, py))
+            .filter(|&(px, py)| {
+                let (px, py) = (px as f32, py as f32);
+                (x - 8.0..=x + bw + 8.0).contains(&px) && (y - 8.0..=y + bh + 8.0).contains(&py)
+            })
+            .count()
+    };
+    // min_by_key keeps the first of equals: top right.
+    let (x, y) = corners
+        .iter()
+        .copied()
+        .min_by_key(covered)
+        .unwrap_or(corners[0]);
+    (x, y)
 }
 
 /// Settings of the centre-line extraction.
@@ -481,6 +517,51 @@ mod tests {
             assert!((cp - exact).abs() < 0.12, "x {x}: {cp} vs {exact}");
         }
         assert!(upper.windows(2).all(|w| w[0].0 <= w[1].0));
+    }
+
+    /// The legend goes to the first corner (top right, top left, bottom
+    /// right, bottom left) whose box covers no curve point: a rising line
+    /// fills the top right and bottom left, so the box goes top left.
+    #[test]
+    fn the_legend_keeps_clear_of_the_points() {
+        let line = |name: &str, points: Vec<(f64, f64)>| Series {
+            name: name.into(),
+            points,
+            colour: [0, 0, 0],
+        };
+        let rising: Vec<(f64, f64)> = (0..=20).map(|k| (f64::from(k), f64::from(k))).collect();
+        let plot = LinePlot {
+            title: "t".into(),
+            subtitle: String::new(),
+            x_label: "x".into(),
+            y_label: "y".into(),
+            invert_y: false,
+            series: vec![line("a", rising.clone()), line("b", rising)],
+        };
+        let frame = plot_frame(&plot, &PlotParams::default());
+        // The line along the whole diagonal of the drawn range.
+        let ((x0, x1), (y0, y1)) = (frame.x_range, frame.y_range);
+        let diagonal: Vec<(f64, f64)> = (0..=50)
+            .map(|k| f64::from(k) / 50.0)
+            .map(|f| (x0 + f * (x1 - x0), y0 + f * (y1 - y0)))
+            .collect();
+        let (x, y) = legend_corner(&[line("a", diagonal)], &frame, (200.0, 64.0));
+        let (l, t) = (frame.rect.0 as f32, frame.rect.1 as f32);
+        assert!(
+            (x - (l + 12.0)).abs() < 1e-3 && (y - (t + 12.0)).abs() < 1e-3,
+            "{x} {y}"
+        );
+        // Nothing in the way: top right.
+        let flat = LinePlot {
+            series: vec![
+                line("a", vec![(0.0, 0.0), (20.0, 0.0)]),
+                line("b", vec![(0.0, 0.1), (20.0, 0.1)]),
+            ],
+            ..plot
+        };
+        let frame = plot_frame(&flat, &PlotParams::default());
+        let (x, _) = legend_corner(&flat.series, &frame, (200.0, 64.0));
+        assert!(x > (frame.rect.0 + 0.5 * frame.rect.2) as f32, "{x}");
     }
 
     #[test]
