@@ -10,11 +10,14 @@
 //!   `normal` and `area` (m^2). `state` is an integer code (0 laminar,
 //!   1 turbulent, 2 separated, 3 unresolved); the file repeats the key as
 //!   field data arrays `state_code_laminar = 0`, and so on.
-//! - `streamlines.vtp`: polylines with optional point scalars.
+//! - `streamlines.vtp`: polylines with point scalars (a run writes each
+//!   point's panel `cp`, `shape_factor`, `risk` and `separated`).
 //! - `wake.vtu`: the wake sheets as quads with cell data `strength` (m^2/s).
 //! - `<slice>.vti`: image data (with a `Direction` matrix, so any plane
-//!   orientation) with point data `velocity` (m/s), `cp` and `in_body`
-//!   (1 inside the body, where velocity and Cp are NaN).
+//!   orientation) with point data `velocity` (m/s), `cp`, `in_body`
+//!   (1 inside the body, where velocity and Cp are NaN) and `near_surface`
+//!   (1 within a panel size of the surface, where a panel's edge can make
+//!   the velocity singular).
 
 use std::fmt::Write as _;
 use std::io::Write;
