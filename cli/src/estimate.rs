@@ -182,11 +182,14 @@ pub fn available_memory(limit: Option<f64>) -> Option<f64> {
     })
 }
 
-/// Refuse a run that would not fit, suggesting a panel count that does.
+/// Refuse a run that would not fit, suggesting a panel count that does
+/// (and saying so when that count is under a third of the `suggested`
+/// count for the body, where the loop's drag is not converged; 0 when not
+/// known).
 pub fn check_fits(
     n: usize,
     op: Operator,
-    (half_model, loop_on): (bool, bool),
+    (half_model, loop_on, suggested): (bool, bool, usize),
     available: Option<f64>,
 ) -> Result<()> {
     let Some(avail) = available else {
@@ -211,6 +214,14 @@ pub fn check_fits(
             loop_on,
         ));
         let fit = (most / 100 * 100).max(100);
+        let coarse = if loop_on && 3 * fit < suggested {
+            format!(
+                " (under a third of the {suggested} panels suggested for this body, where the drag is not \
+                 converged)"
+            )
+        } else {
+            String::new()
+        };
         let half = if half_model {
             String::new()
         } else {
@@ -225,7 +236,7 @@ pub fn check_fits(
         };
         bail!(
             "{n} panels need about {:.2} GB but only {:.2} GB is available: set geometry.panels to \
-             {fit} or fewer{half}{attached}",
+             {fit} or fewer{coarse}{half}{attached}",
             need / 1e9,
             avail / 1e9
         );
@@ -288,7 +299,7 @@ mod tests {
 
     #[test]
     fn refusal_suggests_a_count_that_fits() {
-        let err = check_fits(20_000, Operator::Compressed, (false, true), Some(0.5e9))
+        let err = check_fits(20_000, Operator::Compressed, (false, true, 0), Some(0.5e9))
             .unwrap_err()
             .to_string();
         assert!(
@@ -303,14 +314,33 @@ mod tests {
                 assert!(
                     memory_for(fit, op, loop_on) <= 1e9 && memory_for(fit + 10, op, loop_on) > 1e9
                 );
-                assert!(check_fits(fit, op, (false, loop_on), Some(1e9)).is_ok());
+                assert!(check_fits(fit, op, (false, loop_on, 0), Some(1e9)).is_ok());
             }
         }
         // A dense run that would fit on the compressed operator says so.
-        let err = check_fits(15_000, Operator::Dense, (false, false), Some(1e9))
+        let err = check_fits(15_000, Operator::Dense, (false, false, 0), Some(1e9))
             .unwrap_err()
             .to_string();
         assert!(err.contains("compressed"), "{err}");
+        // A count that fits but is under a third of the body's suggested
+        // count says its drag would not be converged (a review's 100 MB
+        // limit gave "800 or fewer" of a suggested 6,500 without a word).
+        let coarse = |suggested: usize| {
+            check_fits(
+                4_000,
+                Operator::Dense,
+                (false, true, suggested),
+                Some(100e6),
+            )
+            .unwrap_err()
+            .to_string()
+        };
+        assert!(
+            coarse(6_500).contains("under a third of the 6500 panels suggested"),
+            "{}",
+            coarse(6_500)
+        );
+        assert!(!coarse(0).contains("under a third"), "{}", coarse(0));
     }
 
     #[test]

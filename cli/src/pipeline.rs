@@ -297,10 +297,13 @@ fn fitting_operator(
 ) -> Result<estimate::Operator> {
     let available = estimate::available_memory(memory_limit);
     let operator = estimate::operator_for(mesh.len(), case.operator, available, loop_on);
+    let (lo, hi) = mesh.bounds();
+    let area: f64 = mesh.panels.iter().map(|p| p.area).sum();
+    let suggested = tuft_mesh::quality::suggested_panels(area, (hi - lo).max());
     estimate::check_fits(
         mesh.len(),
         operator,
-        (mesh.mirrors.symmetry, loop_on),
+        (mesh.mirrors.symmetry, loop_on, suggested),
         available,
     )?;
     Ok(operator)
