@@ -94,10 +94,7 @@ impl InfluenceSystem {
     /// Right-hand side `-B sigma` for a free stream `v_inf` (parallel to
     /// every mirror plane, which the caller checks).
     pub fn rhs(&self, v_inf: &Vector3<f64>) -> Vec<f64> {
-        let [x, y, z] = &self.rhs_basis;
-        (0..self.len())
-            .map(|i| v_inf.x * x[i] + v_inf.y * y[i] + v_inf.z * z[i])
-            .collect()
+        rhs_from_basis(&self.rhs_basis, v_inf)
     }
 
     /// The transposed storage `C^T` (column-major), for the solvers.
@@ -109,6 +106,16 @@ impl InfluenceSystem {
     pub fn into_transposed(self) -> Mat<f64> {
         self.transposed
     }
+}
+
+/// The right-hand side `-B sigma` for the free stream `v_inf` from a
+/// basis `[-B n_x, -B n_y, -B n_z]` (sigma = n . V_inf is linear in it).
+pub(crate) fn rhs_from_basis([x, y, z]: &[Vec<f64>; 3], v_inf: &Vector3<f64>) -> Vec<f64> {
+    x.iter()
+        .zip(y)
+        .zip(z)
+        .map(|((x, y), z)| v_inf.x * x + v_inf.y * y + v_inf.z * z)
+        .collect()
 }
 
 /// Every panel's images, one list per reflection of `mesh.mirrors`.

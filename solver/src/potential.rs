@@ -32,7 +32,7 @@ use tuft_mesh::{Mirrors, PanelMesh};
 use crate::SolverError;
 use crate::assemble::{InfluenceSystem, assemble};
 use crate::gradient::{surface_gradient, surface_normals};
-use crate::hmatrix::{CompressedParams, assemble_compressed, solve_compressed};
+use crate::hmatrix::{CompressedParams, CompressedSystem, assemble_compressed, solve_compressed};
 use crate::linear::{DenseLu, gmres};
 
 /// Uniform free stream `speed * (cos yaw, sin yaw, 0)`, parallel to the
@@ -231,15 +231,7 @@ pub fn solve_potential_many(
         let system = assemble_compressed(mesh, params)?;
         return streams
             .iter()
-            .map(|fs| {
-                let sol = solve_compressed(&system, &system.rhs(&fs.velocity()), params)?;
-                let stats = SolveStats {
-                    method: LinearSolver::Compressed,
-                    iterations: Some(sol.iterations),
-                    residual: sol.residual,
-                };
-                Ok(post_process(mesh, sol.x, fs, stats))
-            })
+            .map(|fs| solve_on_compressed(mesh, &system, fs, params))
             .collect();
     }
     let system = assemble(mesh, params)?;
@@ -262,9 +254,18 @@ fn solve_compressed_path(
     fs: &Freestream,
     params: &PotentialParams,
 ) -> Result<PotentialSolution, SolverError> {
-    let system = assemble_compressed(mesh, params)?;
-    let rhs = system.rhs(&fs.velocity());
-    let sol = solve_compressed(&system, &rhs, params)?;
+    solve_on_compressed(mesh, &assemble_compressed(mesh, params)?, fs, params)
+}
+
+/// Solve one free stream on an assembled compressed system and
+/// post-process it.
+fn solve_on_compressed(
+    mesh: &PanelMesh,
+    system: &CompressedSystem,
+    fs: &Freestream,
+    params: &PotentialParams,
+) -> Result<PotentialSolution, SolverError> {
+    let sol = solve_compressed(system, &system.rhs(&fs.velocity()), params)?;
     let stats = SolveStats {
         method: LinearSolver::Compressed,
         iterations: Some(sol.iterations),

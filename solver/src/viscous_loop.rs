@@ -180,7 +180,7 @@ pub fn viscous_loop_with_params(
     fs: &Freestream,
     params: &ViscousLoopParams,
 ) -> Result<ViscousLoop, ViscousLoopError> {
-    check(params)?;
+    // The free stream first: the body's assembly is the costly part.
     fs.check(&mesh.mirrors).map_err(WakeError::from)?;
     let body = LoopBody::build(mesh, params)?;
     viscous_loop_on(mesh, fs, params, &body)
@@ -410,7 +410,9 @@ fn run_pass(
     };
     let mut rhs = match (&system, body) {
         (Some(system), _) => system.rhs(&v_inf),
-        (None, Body::Factored { rhs_basis, .. }) => rhs_from_basis(rhs_basis, &v_inf),
+        (None, Body::Factored { rhs_basis, .. }) => {
+            crate::assemble::rhs_from_basis(rhs_basis, &v_inf)
+        }
         (None, Body::Compressed(c)) => c.rhs(&v_inf),
         (None, Body::Iterative(b) | Body::Assembled(b)) => b.rhs(&v_inf),
     };
@@ -475,16 +477,6 @@ fn run_pass(
         wake: Wake { panels, strength },
         edges,
     })
-}
-
-/// `-B sigma` for `v_inf` from the basis kept when the system was factored
-/// (as [`InfluenceSystem::rhs`] forms it).
-fn rhs_from_basis([x, y, z]: &[Vec<f64>; 3], v_inf: &Vector) -> Vec<f64> {
-    x.iter()
-        .zip(y)
-        .zip(z)
-        .map(|((x, y), z)| v_inf.x * x + v_inf.y * y + v_inf.z * z)
-        .collect()
 }
 
 fn lu_stats() -> SolveStats {

@@ -26,10 +26,7 @@ pub struct CompressedSystem {
 impl CompressedSystem {
     /// Right-hand side `-B sigma` for the free stream `v_inf`.
     pub fn rhs(&self, v_inf: &Vector3<f64>) -> Vec<f64> {
-        let [x, y, z] = &self.rhs_basis;
-        (0..x.len())
-            .map(|i| v_inf.x * x[i] + v_inf.y * y[i] + v_inf.z * z[i])
-            .collect()
+        crate::assemble::rhs_from_basis(&self.rhs_basis, v_inf)
     }
 }
 
