@@ -306,8 +306,7 @@ fn best_drag(c: &Collected) -> String {
 /// The lowest drag, judged by `tuft compare`'s verdict against the
 /// runner-up when [`judge_leaders`] could give one (a winner, or none,
 /// with the model's leader when only the separated regions stand in the
-/// way); otherwise named the best only when it beats the
-/// next by more
+/// way); otherwise named the best only when it beats the next by more
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
 /// separated share stays put across the variants.
 fn best_drag_in(rows: &[Row]) -> String {
@@ -333,9 +332,10 @@ fn best_drag_in(rows: &[Row]) -> String {
     if let Some(v) = &first.against_next {
         return if v.resolved && slopes {
             format!(
-                "no clear winner: a rear slope varies across these variants and reaches 25 degrees, where \
-                 the model's drag ranking is not reliable (see the notes above); lowest in this model: \
-                 {lowest}, {gap:.1} counts below {}",
+                "no clear winner: a rear slope varies across these variants and reaches {:.0} degrees, \
+                 where the model's drag ranking is not reliable (see the notes above); lowest in this \
+                 model: {lowest}, {gap:.1} counts below {}",
+                crate::compare::SLOPE_CAUTION_DEG,
                 second.name
             )
         } else if v.resolved {
@@ -348,12 +348,7 @@ fn best_drag_in(rows: &[Row]) -> String {
             format!(
                 "no clear winner: {}, where the model's drag ranking is not reliable (see the notes \
                  above); lowest in this model: {lowest}, {gap:.1} counts below {}",
-                if v.doubt.is_empty() {
-                    "the separated regions differ"
-                } else {
-                    &v.doubt
-                },
-                second.name
+                v.doubt, second.name
             )
         } else {
             format!(
@@ -519,16 +514,14 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         .with_context(|| format!("{}: not a sweep variant record", file.display()))?;
     let s = read_summary(path)?;
     let flow = |key: &str, default: f64| {
-        s.case
-            .pointer(&format!("/flow/{key}"))
+        s.flow(key)
             .or_else(|| {
                 record
                     .settings
                     .iter()
                     .find(|x| x.key == format!("flow.{key}"))
-                    .map(|x| &x.value)
+                    .and_then(|x| x.value.as_f64())
             })
-            .and_then(serde_json::Value::as_f64)
             .unwrap_or(default)
     };
     let still = crate::case::FlowSection::default();
@@ -866,9 +859,7 @@ fn slope_spread(c: &[Row]) -> Option<String> {
             .iter()
             .filter_map(|r| region(r, name)?.slope_deg)
             .collect();
-        let lo = slopes.iter().copied().fold(f64::INFINITY, f64::min);
-        let hi = slopes.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        (hi - lo >= 1.0 && hi >= crate::compare::SLOPE_CAUTION_DEG).then(|| {
+        crate::compare::slopes_in_doubt(&slopes).map(|(lo, hi)| {
             format!(
                 "The slope of \"{name}\" ranges from {lo:.0} to {hi:.0} degrees across these variants and \
                  reaches {:.0}, where the separated-flow model's drag is known to rank rear slopes \
@@ -1435,9 +1426,15 @@ mod tests {
     fn the_leader_is_named_as_compare_would() {
         let mut c = sweep(&[10.0, 14.0]);
         c.variants[1].cd = 0.31;
+        // As drag_verdict gives it: a direction that leans carries its doubt.
         let verdict = |resolved: bool, leaning: &str| crate::compare::DragVerdict {
             resolved,
             leaning: leaning.into(),
+            doubt: if leaning.is_empty() {
+                String::new()
+            } else {
+                "the separated regions differ".into()
+            },
             ..crate::compare::DragVerdict::default()
         };
         c.variants[0].against_next = Some(verdict(false, "lower"));

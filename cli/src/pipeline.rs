@@ -822,9 +822,8 @@ fn wake_summary(
 /// Attached potential flow has zero drag (d'Alembert), so the drag its
 /// pressure integrates to (`residual`) is discretisation error, largest at
 /// sharp edges; the band is widened by it on both sides. This is a
-/// model-sensitivity band, not a confidence interval.
-/// The drag band over the boundary layer's sensitivity runs (and, as they
-/// go, each named region's separated share over them, into `results`).
+/// model-sensitivity band, not a confidence interval. Each named region's
+/// separated share over the same runs goes into `results`.
 fn drag_band(
     mesh: &PanelMesh,
     potential: &PotentialSolution,

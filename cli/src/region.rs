@@ -85,25 +85,26 @@ impl RegionResult {
         }
     }
 
+    /// The sensitivity runs' range in percent, low and high, and whether it
+    /// crosses a regime line; `None` when it shows as one number ([`percent`]
+    /// writes shares on either side of a line apart, so a range that
+    /// crosses one always shows).
+    fn band_words(&self) -> Option<(String, String, bool)> {
+        let [lo, hi] = self.separated_band;
+        let (l, h) = (percent(lo), percent(hi));
+        (l != h).then(|| (l, h, verdict(lo) != verdict(hi)))
+    }
+
     /// Share and verdict in words, with the sensitivity runs' range when
     /// it reaches another verdict: "attached (0 % separated; 0 to 35 %
     /// across the sensitivity runs, so the verdict rests on the model)".
     pub fn words(&self) -> String {
-        let [lo, hi] = self.separated_band;
-        let range = if verdict(lo) != verdict(hi) {
-            format!(
-                "; {} to {} % across the sensitivity runs, so the verdict rests on the model",
-                percent(lo),
-                percent(hi)
-            )
-        } else if percent(lo) != percent(hi) {
-            format!(
-                "; {} to {} % across the sensitivity runs",
-                percent(lo),
-                percent(hi)
-            )
-        } else {
-            String::new()
+        let range = match self.band_words() {
+            Some((lo, hi, true)) => format!(
+                "; {lo} to {hi} % across the sensitivity runs, so the verdict rests on the model"
+            ),
+            Some((lo, hi, false)) => format!("; {lo} to {hi} % across the sensitivity runs"),
+            None => String::new(),
         };
         format!(
             "{} ({} % separated{range})",
@@ -116,16 +117,10 @@ impl RegionResult {
     /// partly separated (21 to 41 %)", "17 % attached (17 to 28 %,
     /// verdict uncertain)" when the range would change the verdict.
     pub fn short_words(&self) -> String {
-        let [lo, hi] = self.separated_band;
-        let range = if percent(lo) == percent(hi) {
-            String::new()
-        } else {
-            let mark = if verdict(lo) == verdict(hi) {
-                ""
-            } else {
-                ", verdict uncertain"
-            };
-            format!(" ({} to {} %{mark})", percent(lo), percent(hi))
+        let range = match self.band_words() {
+            Some((lo, hi, true)) => format!(" ({lo} to {hi} %, verdict uncertain)"),
+            Some((lo, hi, false)) => format!(" ({lo} to {hi} %)"),
+            None => String::new(),
         };
         format!(
             "{} % {}{range}",

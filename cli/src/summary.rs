@@ -200,6 +200,15 @@ impl LiftKg {
 }
 
 impl Summary {
+    /// A number of the run's `[flow]` section as its case records it
+    /// (`speed`, `yaw`, `density`, ...).
+    pub fn flow(&self, key: &str) -> Option<f64> {
+        self.case
+            .get("flow")?
+            .get(key)
+            .and_then(serde_json::Value::as_f64)
+    }
+
     /// Whether the drag comes from the attached flow's plateau model: the
     /// run had the separated-flow loop off (`wakes = "attached"`) and the
     /// boundary layer separated somewhere. That model's drag is no basis

@@ -617,6 +617,7 @@ fn report(
 ) -> Report {
     let v = case.file.flow.speed;
     let at = format!("kg at {} m/s", output::speed_number(v));
+    let [lift, front, rear] = s.lift_kg.axle_words();
     let k = &s.coefficients;
     let mut numbers = vec![
         NumberRow::fixed(
@@ -660,13 +661,9 @@ fn report(
             &format!("kW at {} m/s", output::speed_number(v)),
         ),
         NumberRow::fixed("Lift coefficient C_L (negative: downforce)", k.lift, 3, "-"),
-        NumberRow::text(
-            "Lift, whole body (negative: downforce)",
-            &s.lift_kg.axle_words()[0],
-            &at,
-        ),
-        NumberRow::text("Lift, front axle", &s.lift_kg.axle_words()[1], &at),
-        NumberRow::text("Lift, rear axle", &s.lift_kg.axle_words()[2], &at),
+        NumberRow::text("Lift, whole body (negative: downforce)", &lift, &at),
+        NumberRow::text("Lift, front axle", &front, &at),
+        NumberRow::text("Lift, rear axle", &rear, &at),
     ];
     if s.mesh.ground_z.is_some() {
         numbers.push(NumberRow::text(
@@ -742,9 +739,7 @@ fn report(
         ),
         NumberRow::text(
             "Air density (the loads in kg and N scale with it)",
-            &s.case
-                .pointer("/flow/density")
-                .and_then(serde_json::Value::as_f64)
+            &s.flow("density")
                 .map_or_else(|| "not recorded".to_string(), |d| format!("{d}")),
             "kg/m³",
         ),
@@ -766,10 +761,10 @@ fn report(
         k.drag,
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
-        s.lift_kg.axle_words()[0],
+        lift,
         output::speed_number(v),
-        s.lift_kg.axle_words()[1],
-        s.lift_kg.axle_words()[2],
+        front,
+        rear,
         100.0 * s.separation.fraction,
         s.regions
             .iter()

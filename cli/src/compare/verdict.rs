@@ -72,8 +72,11 @@ pub enum ModelDoubt {
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
     let separation_differs = doubt.is_some();
     let why = match doubt {
-        Some(ModelDoubt::RearSlope) => "a rear slope differs and reaches 25 degrees",
-        _ => "the separated regions differ",
+        Some(ModelDoubt::RearSlope) => format!(
+            "a rear slope differs and reaches {:.0} degrees",
+            crate::compare::SLOPE_CAUTION_DEG
+        ),
+        _ => "the separated regions differ".to_owned(),
     };
     let counts = |x: f64, y: f64| 1000.0 * (y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
@@ -137,7 +140,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
         doubt: if leaning.is_empty() {
             String::new()
         } else {
-            why.into()
+            why
         },
         text,
     }

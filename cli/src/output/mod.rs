@@ -313,13 +313,6 @@ pub fn short_number(v: f64) -> String {
     }
 }
 
-/// `v` rounded to a whole number, with no "-0" for a small negative value
-/// (lift in kg on a body that has next to none).
-pub fn whole(v: f64) -> String {
-    // -0.0 + 0.0 is +0.0 (IEEE 754).
-    format!("{:.0}", v.round() + 0.0)
-}
-
 /// `v` rounded to `places` decimals, a rounded zero never written "-0".
 fn rounded(v: f64, places: usize) -> f64 {
     let scale = 10f64.powi(i32::try_from(places).unwrap_or(0));
@@ -458,10 +451,10 @@ mod tests {
         assert_eq!(signed(-33.04, 1), "-33.0");
     }
 
+    /// Whole kg (a set with a load of 10 kg or more) have no "-0" for a
+    /// small negative value (lift on a body that has next to none).
     #[test]
     fn whole_numbers_have_no_negative_zero() {
-        assert_eq!(whole(-0.3), "0");
-        assert_eq!(whole(-94.53), "-95");
-        assert_eq!(whole(12.5), "13");
+        assert_eq!(kg_set([-0.3, -94.53, 12.5]), ["0", "-95", "13"]);
     }
 }

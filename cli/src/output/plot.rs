@@ -302,12 +302,11 @@ fn legend_corner(series: &[Series], f: &PlotFrame, (bw, bh): (f32, f32)) -> (f32
             .count()
     };
     // min_by_key keeps the first of equals: top right.
-    let (x, y) = corners
+    corners
         .iter()
         .copied()
         .min_by_key(covered)
-        .unwrap_or(corners[0]);
-    (x, y)
+        .unwrap_or(corners[0])
 }
 
 /// Settings of the centre-line extraction.

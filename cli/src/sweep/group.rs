@@ -130,8 +130,10 @@ pub fn run_group(
     };
     // The wakes setting is part of the geometry key, so the members agree.
     let loop_on = pipeline::loop_wanted(first_case);
+    // What the members share: the loop's body system, or the attached
+    // flow of each (one solve of one matrix for every free stream).
     let shared = if loop_on {
-        SharedBody::build(&geo.mesh, first_case, memory_limit).map(|b| Shared::Loop(Box::new(b)))
+        SharedBody::build(&geo.mesh, first_case, memory_limit).map(|b| (Some(b), Vec::new()))
     } else {
         shared_solve(
             &geo,
@@ -139,10 +141,10 @@ pub fn run_group(
             &ok.iter().map(|x| x.2).collect::<Vec<_>>(),
             memory_limit,
         )
-        .map(|s| Shared::Attached(s.into_iter().map(Some).collect()))
+        .map(|s| (None, s))
     };
     let mut clock = start.elapsed().as_secs_f64();
-    let mut shared = match shared {
+    let (body, solutions) = match shared {
         Ok(s) => s,
         Err(e) => {
             for (m, _, _) in &ok {
@@ -155,8 +157,12 @@ pub fn run_group(
             return;
         }
     };
+    let inputs: Vec<Input<'_>> = match &body {
+        Some(b) => ok.iter().map(|_| Input::Loop(b)).collect(),
+        None => solutions.into_iter().map(Input::Potential).collect(),
+    };
     let first_name = ok[0].0.variant.name.clone();
-    for (k, (m, case, _)) in ok.iter().enumerate() {
+    for ((k, (m, case, _)), input) in ok.iter().enumerate().zip(inputs) {
         let t = Instant::now();
         let matrix = MatrixUse {
             variants_sharing: ok.len(),
@@ -173,13 +179,6 @@ pub fn run_group(
             matrix: matrix.clone(),
         };
         let out = root.join(&m.variant.name);
-        let input = match &mut shared {
-            Shared::Loop(body) => Input::Loop(body),
-            Shared::Attached(solutions) => match solutions[k].take() {
-                Some(p) => Input::Potential(p),
-                None => continue,
-            },
-        };
         let outcome = match run_one(case, &geo, input, &out, &record, force || m.stale) {
             Ok(s) => Outcome::Done(Box::new(s), matrix),
             Err(e) => Outcome::Failed(format!("{e:#}")),
@@ -187,13 +186,6 @@ pub fn run_group(
         report(m, &outcome, clock + t.elapsed().as_secs_f64());
         clock = 0.0;
     }
-}
-
-/// What the members of a group share: the loop's body system, or the
-/// attached flow of each (one solve of one matrix for every free stream).
-enum Shared {
-    Loop(Box<SharedBody>),
-    Attached(Vec<Option<PotentialSolution>>),
 }
 
 /// One member's share.
