@@ -186,6 +186,15 @@ fn summary(file: &str, r: &PrepareReport) -> String {
     out += &read_lines(r);
     out += &repair_lines(r);
     out += &hole_lines(r);
+    if let Some(w) = &r.wrap {
+        out += &format!("wrap       {}\n", w.describe());
+        if w.leaky_lines > 0 {
+            out += &format!(
+                "           {} grid lines passed through holes; their nodes took the other two directions' vote\n",
+                w.leaky_lines
+            );
+        }
+    }
     out += &panel_lines(r);
     out += &quality_lines(r);
     let half = if r.mirrors.symmetry {

@@ -702,6 +702,24 @@ pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<Stri
     })
 }
 
+/// The warning of a run whose body stands on the ground (tyres, usually):
+/// the wrap gives the panel method one surface to solve on, but a wheel's
+/// wake, its rotation and the flow through its arch are outside the model.
+/// The quarter is common practice (wheels and arches are often put at about
+/// a quarter of a passenger car's drag; from memory).
+pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
+    let w = report.wrap.as_ref()?;
+    w.reasons.ground_gap?;
+    Some(format!(
+        "the body stands on the ground ({:.3} m^2 of contact, wrapped there): tuft does not model a wheel's \
+         wake, its rotation or the flow through its arch, which together are commonly put at about a \
+         quarter of a car's drag (common practice), so the drag and the pressure near the wheels are \
+         rough; rank variants that share the same wheels, and for the body's own figures remove the \
+         wheels and close the arches",
+        w.contact_area
+    ))
+}
+
 /// The warning of a run whose drag comes from the attached flow's plateau
 /// model (`wakes = "attached"` on a body that separates). Figures: the
 /// slant-back research body's plateau drag in

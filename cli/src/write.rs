@@ -418,6 +418,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         geo.report.suggested_panels,
         c.wakes.is_some(),
     ));
+    warnings.extend(crate::pipeline::ground_contact_warning(&geo.report));
     // A built-in shape is generated at the count asked (half of it on a
     // half model); only an STL can hold fewer facets than asked.
     if matches!(case.source, crate::case::GeometrySource::Stl { .. }) {

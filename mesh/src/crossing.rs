@@ -142,7 +142,7 @@ fn pierce(t: &[Point; 3], s0: &Point, s1: &Point) -> Option<Point> {
 /// A label per facet: facets joined through shared vertices share a label
 /// (union-find with path halving; Tarjan 1975, "Efficiency of a good but
 /// not linear set union algorithm", J. ACM 22(2)).
-fn surfaces(mesh: &TriMesh) -> Vec<usize> {
+pub(crate) fn surfaces(mesh: &TriMesh) -> Vec<usize> {
     let mut parent: Vec<usize> = (0..mesh.vertices.len()).collect();
     let find = |parent: &mut Vec<usize>, mut v: usize| {
         while parent[v] != v {

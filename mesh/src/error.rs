@@ -172,14 +172,29 @@ pub enum MeshError {
         /// How far a cut is moved onto y = 0, metres.
         moved: f64,
     },
-    /// A grounded body reaches below its ground plane.
+    /// A grounded body reaches below its ground plane by more than tyres
+    /// pressed into the floor would.
     #[error(
-        "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m"
+        "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m \
+         (up to {allowed_mm:.0} mm below it is cut off at the ground, as tyres pressed into the floor are)",
+        allowed_mm = 1000.0 * allowed
     )]
     BelowGround {
         /// The body's least z, metres.
         z: f64,
         /// The ground plane's height, metres.
         ground: f64,
+        /// How far below the ground the body may reach, metres.
+        allowed: f64,
+    },
+    /// Wrapping overlapping parts found no inside at all.
+    #[error(
+        "wrapping the overlapping parts into one surface found no inside: every part is thinner than the \
+         wrap's cell of {cell_mm:.1} mm or open",
+        cell_mm = 1000.0 * cell
+    )]
+    NothingInside {
+        /// The wrap's cell edge, metres.
+        cell: f64,
     },
 }

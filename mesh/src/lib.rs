@@ -41,6 +41,7 @@ pub mod prepare;
 pub mod quality;
 pub mod repair;
 pub mod trimesh;
+pub mod wrap;
 
 pub use error::MeshError;
 pub use import::{FileAxes, LengthUnit, RigidTransform};

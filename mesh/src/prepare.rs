@@ -20,6 +20,7 @@ use crate::crossing::crossings;
 use crate::import::{FileAxes, LengthUnit, RigidTransform, StlReport, read_stl};
 use crate::quality::{GRADING_NOTE_SHARE, QualityReport, quality, suggested_panels};
 use crate::repair::{RepairParams, RepairReport, repair_with_params};
+use crate::wrap::{WrapParams, WrapReport};
 use crate::{MeshError, Mirrors, PanelMesh, TriMesh};
 
 /// Everything `prepare` needs besides the file.
@@ -42,6 +43,8 @@ pub struct PrepareParams {
     pub repair: RepairParams,
     /// Coarsening settings (its `target_panels` is replaced by the above).
     pub coarsen: CoarsenParams,
+    /// Wrapping settings (for parts that overlap or stand on the ground).
+    pub wrap: WrapParams,
 }
 
 impl Default for PrepareParams {
@@ -54,6 +57,7 @@ impl Default for PrepareParams {
             target_panels: None,
             repair: RepairParams::default(),
             coarsen: CoarsenParams::default(),
+            wrap: WrapParams::default(),
         }
     }
 }
@@ -94,6 +98,9 @@ pub struct PrepareReport {
     pub mirrors: MirrorReport,
     /// Every repair pass.
     pub repair: RepairReport,
+    /// Wrapping into one outer surface (absent when no part overlaps
+    /// another, lies inside another or stands on the ground).
+    pub wrap: Option<WrapReport>,
     /// Panels cross each other in local folds (warned about in `quality`).
     pub folded: bool,
     /// Suggested panel count for this body and how it was found.
@@ -114,7 +121,8 @@ pub struct PrepareReport {
 ///
 /// # Errors
 /// Every reading error of [`read_stl`], every repair error,
-/// [`MeshError::AcrossSymmetryPlane`] or [`MeshError::BelowGround`] when the body crosses a declared mirror plane, and
+/// [`MeshError::AcrossSymmetryPlane`] or [`MeshError::BelowGround`] when the body crosses a declared mirror plane,
+/// [`MeshError::NothingInside`] when a wrap finds no inside, and
 /// [`MeshError::SelfCrossing`] when the panels pass through their own
 /// surface.
 pub fn prepare(
@@ -141,8 +149,18 @@ pub fn prepare_mesh(
         t.apply(&mut mesh);
     }
     let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
-    check_mirror_sides(&mesh, &params.mirrors, params.repair.plane_tolerance)?;
+    check_mirror_sides(&mesh, params)?;
     let (mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
+    let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap);
+    let (mesh, wrap) = if reasons.any() {
+        let (m, r) = crate::wrap::wrap(&mesh, &params.mirrors, reasons, &params.wrap);
+        if m.is_empty() {
+            return Err(MeshError::NothingInside { cell: r.cell });
+        }
+        (m, Some(r))
+    } else {
+        (mesh, None)
+    };
     let suggested = suggest(&mesh);
     let target = params.target_panels.unwrap_or(suggested);
     let (mesh, coarsen) = if mesh.len() > target {
@@ -159,6 +177,20 @@ pub fn prepare_mesh(
     let panels = PanelMesh::new(mesh, params.mirrors)?;
     let (lo, hi) = panels.bounds();
     let coarsened = coarsen.is_some();
+    let folded = local_crossing.is_some();
+    let quality = {
+        let mut q = quality(&panels);
+        if coarsened {
+            q.grading_as_notes(GRADING_NOTE_SHARE);
+        }
+        if let Some(w) = local_crossing {
+            q.add_warning(w);
+        }
+        if let Some(w) = &wrap {
+            q.notes.push(w.describe());
+        }
+        q
+    };
     let report = PrepareReport {
         read,
         units: params.units,
@@ -171,19 +203,11 @@ pub fn prepare_mesh(
             cut_largest_move,
         },
         repair,
+        wrap,
         suggested_panels: suggested,
         coarsen,
-        folded: local_crossing.is_some(),
-        quality: {
-            let mut q = quality(&panels);
-            if coarsened {
-                q.grading_as_notes(GRADING_NOTE_SHARE);
-            }
-            if let Some(w) = local_crossing {
-                q.add_warning(w);
-            }
-            q
-        },
+        folded,
+        quality,
         panels: panels.len(),
         area: panels.area(),
         bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
@@ -275,22 +299,30 @@ fn suggest(mesh: &TriMesh) -> usize {
     suggested_panels(mesh.area(), length)
 }
 
-/// A half model must lie in `y >= 0`, a grounded body above the ground.
-fn check_mirror_sides(mesh: &TriMesh, mirrors: &Mirrors, rel_tol: f64) -> Result<(), MeshError> {
+/// A half model must lie in `y >= 0`, a grounded body above the ground
+/// but for [`WrapParams::max_ground_depth`] of its height (tyres pressed
+/// into the floor; the wrap cuts them there).
+fn check_mirror_sides(mesh: &TriMesh, params: &PrepareParams) -> Result<(), MeshError> {
     let Some((lo, hi)) = mesh.bounds() else {
         return Ok(());
     };
-    let tol = rel_tol * (hi - lo).norm();
+    let tol = params.repair.plane_tolerance * (hi - lo).norm();
+    let mirrors = &params.mirrors;
     if mirrors.symmetry && lo.y < -tol {
         return Err(MeshError::AcrossSymmetryPlane {
             y: lo.y,
             moved: CUT_TOLERANCE * (hi - lo).norm(),
         });
     }
+    let allowed = params.wrap.max_ground_depth * (hi.z - lo.z);
     if let Some(h) = mirrors.ground
-        && lo.z < h - tol
+        && lo.z < h - tol - allowed
     {
-        return Err(MeshError::BelowGround { z: lo.z, ground: h });
+        return Err(MeshError::BelowGround {
+            z: lo.z,
+            ground: h,
+            allowed,
+        });
     }
     Ok(())
 }
