@@ -151,7 +151,8 @@ pub fn prepare_mesh(
     let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
     check_mirror_sides(&mesh, params)?;
     let (mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
-    let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap);
+    let plane_tol = params.repair.plane_tolerance * repair.diagonal;
+    let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap, plane_tol);
     let (mesh, wrap) = if reasons.any() {
         let (m, r) = crate::wrap::wrap(&mesh, &params.mirrors, reasons, &params.wrap);
         if m.is_empty() {

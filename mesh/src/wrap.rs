@@ -201,16 +201,42 @@ pub fn cell_size(lo: &Point, hi: &Point, params: &WrapParams) -> f64 {
 }
 
 /// Why `mesh` (repaired: closed but for mirror cuts, parts outward) needs
-/// wrapping.
-pub fn reasons(mesh: &TriMesh, mirrors: &Mirrors, params: &WrapParams) -> WrapReasons {
+/// wrapping. `plane_tol` (metres) is how far a vertex may lie below the
+/// ground and still be on it.
+///
+/// Standing on the ground: a vertex below the ground, or one within
+/// [`WrapParams::contact_cells`] cells of it where the surface faces the
+/// ground (its normal within 60 degrees of straight down), so that a
+/// wedge-shaped gap to the image forms; a surface cut at the ground and
+/// meeting it steeply (a half body of revolution, a scan cut at the
+/// floor) needs nothing.
+pub fn reasons(
+    mesh: &TriMesh,
+    mirrors: &Mirrors,
+    params: &WrapParams,
+    plane_tol: f64,
+) -> WrapReasons {
     let Some((lo, hi)) = mesh.bounds() else {
         return WrapReasons::default();
     };
     let h = cell_size(&lo, &hi, params);
-    let ground_gap = mirrors
-        .ground
-        .map(|g| lo.z - g)
-        .filter(|gap| *gap < params.contact_cells * h);
+    let ground_gap = mirrors.ground.and_then(|g| {
+        let contact = params.contact_cells * h;
+        let mut normal = vec![Vector::zeros(); mesh.vertices.len()];
+        for (t, tri) in mesh.triangles.iter().enumerate() {
+            let a = mesh.area_vector(t);
+            for &v in tri {
+                normal[v as usize] += a;
+            }
+        }
+        mesh.vertices
+            .iter()
+            .zip(&normal)
+            .map(|(p, n)| (p.z - g, n))
+            .filter(|&(gap, n)| gap < -plane_tol || (gap < contact && n.z < -0.5 * n.norm()))
+            .map(|(gap, _)| gap)
+            .reduce(f64::min)
+    });
     let part = crate::crossing::surfaces(mesh);
     let parts = {
         let mut ids = part.clone();
@@ -791,7 +817,7 @@ mod tests {
         // little less, so compare with the input's own volume.
         let sphere = generate::icosphere(1.0, 5);
         let v0 = sphere.signed_volume();
-        let r = reasons(&sphere, &Mirrors::none(), &WrapParams::default());
+        let r = reasons(&sphere, &Mirrors::none(), &WrapParams::default(), 0.0);
         assert!(!r.any());
         let (w, report) = wrap(&sphere, &Mirrors::none(), r, &WrapParams::default());
         assert_eq!(report.leaky_lines, 0);

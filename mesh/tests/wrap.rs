@@ -1,0 +1,233 @@
+//! Wrapping overlapping parts, enclosed parts and ground contact into one
+//! outer surface, against closed-form volumes and areas (a sphere's cap:
+//! volume pi h^2 (3R - h) / 3 and area 2 pi R h, Archimedes).
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+mod common;
+
+use std::f64::consts::PI;
+
+use tuft_mesh::prepare::{PrepareParams, prepare_mesh};
+use tuft_mesh::wrap::{WrapParams, reasons, wrap};
+use tuft_mesh::{LengthUnit, MeshError, Mirrors, Point, TriMesh, Vector, generate};
+
+/// Both meshes as one (their parts stay apart: no vertex is shared).
+fn join(a: &TriMesh, b: &TriMesh) -> TriMesh {
+    let offset = a.vertices.len() as u32;
+    let mut out = a.clone();
+    out.vertices.extend(&b.vertices);
+    out.triangles
+        .extend(b.triangles.iter().map(|t| t.map(|v| v + offset)));
+    out
+}
+
+fn moved(mut m: TriMesh, by: Vector) -> TriMesh {
+    m.map_vertices(|p| p + by);
+    m
+}
+
+/// Every edge of the mesh that only one facet uses.
+fn border_edges(m: &TriMesh) -> Vec<[Point; 2]> {
+    let mut uses = std::collections::HashMap::new();
+    for t in &m.triangles {
+        for k in 0..3 {
+            let (a, b) = (t[k], t[(k + 1) % 3]);
+            *uses.entry((a.min(b), a.max(b))).or_insert(0) += 1;
+        }
+    }
+    uses.into_iter()
+        .filter(|&(_, n)| n == 1)
+        .map(|((a, b), _)| [m.vertices[a as usize], m.vertices[b as usize]])
+        .collect()
+}
+
+/// Cap of height `h` on a sphere of radius `r`: (volume, area).
+fn cap(r: f64, h: f64) -> (f64, f64) {
+    (PI * h * h * (3.0 * r - h) / 3.0, 2.0 * PI * r * h)
+}
+
+#[test]
+fn two_overlapping_spheres_wrap_to_their_union() {
+    // Radius 0.5, centres 0.5 apart: each loses a cap of height 0.25 to
+    // the other.
+    let (r, d) = (0.5, 0.5);
+    let a = moved(generate::icosphere(r, 5), Vector::new(-d / 2.0, 0.0, 0.0));
+    let b = moved(generate::icosphere(r, 5), Vector::new(d / 2.0, 0.0, 0.0));
+    let both = join(&a, &b);
+    // 200 cells along the length (the default's 400 gives 3 million
+    // facets here and the same volume to 1e-5).
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
+    let why = reasons(&both, &Mirrors::none(), &params, 0.0);
+    assert!(
+        why.overlapping_pairs > 0 && why.enclosed_parts == 0,
+        "{why:?}"
+    );
+    let (w, report) = wrap(&both, &Mirrors::none(), why, &params);
+    let (cap_v, cap_a) = cap(r, r - d / 2.0);
+    let sphere_v = 4.0 / 3.0 * PI * r.powi(3);
+    let volume = 2.0 * sphere_v - 2.0 * cap_v;
+    let area = 2.0 * 4.0 * PI * r * r - 2.0 * cap_a;
+    // The icosphere's own faceting takes about 0.2 % of the volume.
+    let facet_share = a.signed_volume() / sphere_v;
+    println!(
+        "union: volume {:.5} (exact {:.5}, faceted {:.5}), area {:.4} (exact {area:.4}), {} facets, cell {:.4}",
+        report.volume,
+        volume,
+        volume * facet_share,
+        report.output_area,
+        report.output_facets,
+        report.cell
+    );
+    assert!(common::closed(&w), "the wrapped union is closed");
+    assert_eq!(report.leaky_lines, 0);
+    assert!(
+        (report.volume - volume * facet_share).abs() < 3e-3 * volume,
+        "{} against {}",
+        report.volume,
+        volume * facet_share
+    );
+    assert!(
+        (report.output_area - area).abs() < 1.5e-2 * area,
+        "{}",
+        report.output_area
+    );
+}
+
+#[test]
+fn a_part_inside_another_is_dropped() {
+    let outer = generate::icosphere(1.0, 4);
+    let inner = moved(generate::icosphere(0.3, 3), Vector::new(0.2, 0.1, 0.0));
+    let both = join(&outer, &inner);
+    let why = reasons(&both, &Mirrors::none(), &WrapParams::default(), 0.0);
+    assert_eq!((why.overlapping_pairs, why.enclosed_parts), (0, 1));
+    let (w, report) = wrap(&both, &Mirrors::none(), why, &WrapParams::default());
+    assert!(common::closed(&w));
+    let (v, a) = (outer.signed_volume(), outer.area());
+    assert!(
+        (report.volume - v).abs() < 3e-3 * v,
+        "{} {v}",
+        report.volume
+    );
+    assert!(
+        (report.output_area - a).abs() < 1.5e-2 * a,
+        "{} against the outer sphere's {a} (with the inner one: {})",
+        report.output_area,
+        both.area()
+    );
+}
+
+/// A sphere of radius 1 whose lower half is pressed flat onto z = 0: a
+/// closed body with a flat contact, as a tyre model's.
+fn flat_bottomed_hemisphere() -> TriMesh {
+    let mut m = generate::icosphere(1.0, 4);
+    m.map_vertices(|p| Point::new(p.x, p.y, p.z.max(0.0)));
+    m
+}
+
+#[test]
+fn a_flat_contact_on_the_ground_is_cut_there() {
+    let body = flat_bottomed_hemisphere();
+    let mirrors = Mirrors::ground(0.0);
+    let why = reasons(&body, &mirrors, &WrapParams::default(), 1e-9);
+    assert_eq!(why.ground_gap, Some(0.0), "{why:?}");
+    let (w, report) = wrap(&body, &mirrors, why, &WrapParams::default());
+    // Half of the faceted sphere's volume, the origin being on the ground.
+    let v = body.signed_volume();
+    assert!(
+        (report.volume - v).abs() < 3e-3 * v,
+        "{} {v}",
+        report.volume
+    );
+    // The contact is the unit disc (the grid's count of nodes on it).
+    assert!(
+        (report.contact_area - PI).abs() < 2e-2 * PI,
+        "{}",
+        report.contact_area
+    );
+    // Open only on the ground, and no facet lies on it.
+    let border = border_edges(&w);
+    assert!(!border.is_empty());
+    assert!(border.iter().flatten().all(|p| p.z == 0.0));
+    assert!(
+        (0..w.len()).all(|t| w.corners(t).iter().any(|p| p.z > 0.0)),
+        "no facet on the ground"
+    );
+}
+
+#[test]
+fn a_body_meeting_the_ground_steeply_or_well_above_it_is_left_alone() {
+    // A hemisphere cut open at the ground meets it at right angles.
+    let mut open = common::cut(&generate::latlong_sphere(1.0, 40, 80), |c| c.z > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut open);
+    let why = reasons(&open, &Mirrors::ground(0.0), &WrapParams::default(), 1e-9);
+    assert!(!why.any(), "{why:?}");
+    // A sphere 5 % of its diameter above the ground.
+    let above = moved(generate::icosphere(1.0, 3), Vector::new(0.0, 0.0, 1.1));
+    let why = reasons(&above, &Mirrors::ground(0.0), &WrapParams::default(), 1e-9);
+    assert!(!why.any(), "{why:?}");
+}
+
+#[test]
+fn a_half_model_standing_on_the_ground_wraps_to_a_quarter_sphere() {
+    // The flat-bottomed hemisphere's y >= 0 half, cut along a meridian.
+    let mut quarter = generate::latlong_sphere(1.0, 40, 80);
+    quarter.map_vertices(|p| Point::new(p.x, p.y, p.z.max(0.0)));
+    let mut quarter = common::cut(&quarter, |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut quarter);
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: Mirrors {
+            ground: Some(0.0),
+            symmetry: true,
+        },
+        target_panels: Some(800),
+        ..PrepareParams::default()
+    };
+    let (panels, report) = prepare_mesh(quarter, None, &params).unwrap();
+    let w = report
+        .wrap
+        .as_ref()
+        .expect("standing on the ground: wrapped");
+    // A quarter of the unit sphere: pi / 3 (faceted: a little less).
+    assert!(
+        (w.volume - PI / 3.0).abs() < 1e-2 * PI / 3.0,
+        "{}",
+        w.volume
+    );
+    let [lo, _] = report.bounds;
+    assert!(lo[1] >= 0.0 && lo[2] >= 0.0, "{lo:?}");
+    assert!(panels.len() <= 900);
+    assert!(
+        report
+            .quality
+            .notes
+            .iter()
+            .any(|n| n.contains("wrapped into one outer surface")),
+        "{:?}",
+        report.quality.notes
+    );
+}
+
+#[test]
+fn tyres_pressed_a_little_into_the_floor_are_cut_and_deeper_is_refused() {
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: Mirrors::ground(0.0),
+        target_panels: Some(600),
+        ..PrepareParams::default()
+    };
+    // 3 % of the height below the ground: cut there.
+    let shallow = moved(generate::icosphere(1.0, 3), Vector::new(0.0, 0.0, 0.94));
+    let (_, report) = prepare_mesh(shallow, None, &params).unwrap();
+    let w = report.wrap.expect("cut at the ground");
+    assert!((w.reasons.ground_gap.unwrap() + 0.06).abs() < 1e-9);
+    assert!(report.bounds[0][2] >= 0.0);
+    // 20 % below: an export with the wrong axes, refused.
+    let deep = moved(generate::icosphere(1.0, 3), Vector::new(0.0, 0.0, 0.6));
+    let err = prepare_mesh(deep, None, &params).unwrap_err();
+    assert!(matches!(err, MeshError::BelowGround { .. }), "{err}");
+    assert!(err.to_string().contains("up to 100 mm below"), "{err}");
+}
