@@ -4,6 +4,7 @@
 //!
 //! ```text
 //! STL file --import--> TriMesh --repair--> TriMesh (closed, outward)
+//!          --wrap (overlapping parts, ground contact)--> TriMesh
 //!          --coarsen--> TriMesh --PanelMesh::new--> PanelMesh (+ Mirrors)
 //! ```
 //!
@@ -23,7 +24,8 @@
 //! ```
 //!
 //! From a file, [`prepare::prepare`] does it all: read (binary or ASCII
-//! STL), scale to metres, move, repair ([`repair`]), coarsen ([`coarsen`]),
+//! STL), scale to metres, move, repair ([`repair`]), wrap ([`wrap`]),
+//! coarsen ([`coarsen`]),
 //! build panels and measure their [`quality`], with a serializable report.
 #![deny(missing_docs)]
 
