@@ -126,6 +126,12 @@ pub struct WrapReport {
     pub contact_area: f64,
     /// Gaps to the ground under this height were filled, metres.
     pub contact_gap: f64,
+    /// Area of the input surface lost to the wrap: facets in cells the
+    /// wrap found wholly outside (parts thinner than about a cell), m^2.
+    pub lost_area: f64,
+    /// Where the most of it was lost: the area-weighted centre of the lost
+    /// facets of the part that lost the most, metres.
+    pub lost_at: Option<[f64; 3]>,
 }
 
 impl WrapReport {
@@ -172,17 +178,42 @@ impl WrapReport {
         };
         format!(
             "{}: wrapped into one outer surface on {:.1} mm cells{ground}; {} facets ({:.2} m^2) became {} \
-             ({:.2} m^2) enclosing {:.3} m^3; parts and gaps thinner than about a cell are lost",
+             ({:.2} m^2) enclosing {:.3} m^3; parts and gaps thinner than about a cell are lost{}",
             why.join(", "),
             1000.0 * self.cell,
             self.input_facets,
             self.input_area,
             self.output_facets,
             self.output_area,
-            self.volume
+            self.volume,
+            if self.lost_area > 0.0 {
+                format!(" ({:.3} m^2 of the input was)", self.lost_area)
+            } else {
+                String::new()
+            }
         )
     }
+
+    /// A warning when the wrap lost a part of the surface that matters:
+    /// more than [`LOST_AREA_WARNING`] of the input area (enclosed parts
+    /// are inside, not lost).
+    pub fn lost_warning(&self) -> Option<String> {
+        let [x, y, z] = self.lost_at?;
+        (self.lost_area > LOST_AREA_WARNING * self.input_area).then(|| {
+            format!(
+                "the wrap lost {:.3} m^2 of the surface (most of it near x {x:.3}, y {y:.3}, z {z:.3} m): parts \
+                 thinner than its {:.1} mm cell, such as a sheet-thin spoiler or mirror stalk, are not in the \
+                 panels; thicken them in the STL to keep them",
+                self.lost_area,
+                1000.0 * self.cell
+            )
+        })
+    }
 }
+
+/// Share of the input area whose loss to the wrap is warned about (our
+/// choice: a thousandth of a car's surface is a mirror stalk's area).
+pub const LOST_AREA_WARNING: f64 = 1e-3;
 
 /// The cell edge for a body with bounds `lo..hi`.
 pub fn cell_size(lo: &Point, hi: &Point, params: &WrapParams) -> f64 {
@@ -572,6 +603,46 @@ fn distances(facets: &[[Point; 3]], grid: &Grid, band: f64) -> Vec<f32> {
     dist
 }
 
+/// The input surface the wrap lost: facets whose centroid lies in a cell
+/// with every corner outside (a part thinner than about a cell has no node
+/// inside it, so no surface is cut there). Facets outside the grid (below
+/// the ground, across the symmetry plane) were cut off on purpose and do
+/// not count. Returns the lost area and the area-weighted centre of the
+/// lost facets of the part that lost the most.
+fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64; 3]>) {
+    let part = crate::crossing::surfaces(mesh);
+    let mut lost: HashMap<usize, (f64, Vector)> = HashMap::new();
+    for t in 0..mesh.len() {
+        let [a, b, c] = mesh.corners(t);
+        let centre = (a.coords + b.coords + c.coords) / 3.0;
+        let cell = [0, 1, 2].map(|k| ((centre[k] - grid.origin[k]) / grid.h).floor());
+        let inside_grid = (0..3).all(|k| cell[k] >= 0.0 && cell[k] < (grid.n[k] - 1) as f64);
+        if !inside_grid {
+            continue;
+        }
+        let cell = cell.map(|c| c as usize);
+        let outside = CORNERS
+            .iter()
+            .all(|o| field[grid.index([cell[0] + o[0], cell[1] + o[1], cell[2] + o[2]])] > 0.0);
+        if outside {
+            let area = mesh.area_vector(t).norm();
+            let entry = lost.entry(part[t]).or_insert((0.0, Vector::zeros()));
+            entry.0 += area;
+            entry.1 += centre * area;
+        }
+    }
+    let total = lost.values().fold(0.0, |sum, l| sum + l.0);
+    let worst = lost
+        .values()
+        .filter(|l| l.0 > 0.0)
+        .max_by(|x, y| x.0.total_cmp(&y.0))
+        .map(|(area, moment)| {
+            let c = moment / *area;
+            [c.x, c.y, c.z]
+        });
+    (total, worst)
+}
+
 /// Corners of a cell (x fastest) and its six tetrahedra round the diagonal
 /// from corner 0 to corner 7.
 const CORNERS: [[usize; 3]; 8] = [
@@ -665,6 +736,8 @@ pub fn wrap(
                 volume: 0.0,
                 contact_area: 0.0,
                 contact_gap: 0.0,
+                lost_area: 0.0,
+                lost_at: None,
             },
         )
     };
@@ -725,6 +798,7 @@ pub fn wrap(
         0.0
     };
     drop((inside, grounded, dist));
+    let (lost_area, lost_at) = lost_surface(mesh, &grid, &field);
     let [nx, ny, nz] = grid.n;
     let tris: Vec<[u64; 3]> = (0..nx - 1)
         .into_par_iter()
@@ -779,6 +853,8 @@ pub fn wrap(
         volume,
         contact_area,
         contact_gap: params.contact_cells.max(0.0).floor() * h,
+        lost_area,
+        lost_at,
     };
     (out, report)
 }

@@ -231,3 +231,89 @@ fn tyres_pressed_a_little_into_the_floor_are_cut_and_deeper_is_refused() {
     assert!(matches!(err, MeshError::BelowGround { .. }), "{err}");
     assert!(err.to_string().contains("up to 100 mm below"), "{err}");
 }
+
+/// A closed box, outward facets.
+fn cuboid(lo: [f64; 3], hi: [f64; 3]) -> TriMesh {
+    let vertices = (0..8)
+        .map(|i| {
+            Point::new(
+                if i & 1 == 0 { lo[0] } else { hi[0] },
+                if i & 2 == 0 { lo[1] } else { hi[1] },
+                if i & 4 == 0 { lo[2] } else { hi[2] },
+            )
+        })
+        .collect();
+    let triangles = vec![
+        [0, 2, 3],
+        [0, 3, 1],
+        [4, 5, 7],
+        [4, 7, 6],
+        [0, 1, 5],
+        [0, 5, 4],
+        [2, 6, 7],
+        [2, 7, 3],
+        [0, 4, 6],
+        [0, 6, 2],
+        [1, 3, 7],
+        [1, 7, 5],
+    ];
+    TriMesh {
+        vertices,
+        triangles,
+    }
+}
+
+/// Each facet split into four at its edges' midpoints, `times` over (the
+/// loss is counted by facet, so facets should be small).
+fn subdivided(mut m: TriMesh, times: usize) -> TriMesh {
+    for _ in 0..times {
+        let mut mid = std::collections::HashMap::new();
+        let mut triangles = Vec::new();
+        for t in m.triangles.clone() {
+            let mut at = |a: u32, b: u32| {
+                *mid.entry((a.min(b), a.max(b))).or_insert_with(|| {
+                    let p = nalgebra::center(&m.vertices[a as usize], &m.vertices[b as usize]);
+                    m.vertices.push(p);
+                    (m.vertices.len() - 1) as u32
+                })
+            };
+            let [a, b, c] = t;
+            let (ab, bc, ca) = (at(a, b), at(b, c), at(c, a));
+            triangles.extend([[a, ab, ca], [ab, b, bc], [ca, bc, c], [ab, bc, ca]]);
+        }
+        m.triangles = triangles;
+    }
+    m
+}
+
+#[test]
+fn a_part_thinner_than_a_cell_is_reported_lost() {
+    // A plate 1.2 m by 0.4 m through the top of a unit sphere: 1 mm thick
+    // (a fifth of the 5 mm cell) it is lost outside the sphere, 30 mm
+    // thick it is kept.
+    let sphere = generate::icosphere(1.0, 4);
+    let outside = 2.0 * (1.2 * 0.4 - PI * (1.0 - 0.99f64.powi(2)));
+    for (thick, lost) in [(0.001, true), (0.03, false)] {
+        let plate = subdivided(cuboid([-0.6, -0.2, 0.99], [0.6, 0.2, 0.99 + thick]), 5);
+        let both = join(&sphere, &plate);
+        let why = reasons(&both, &Mirrors::none(), &WrapParams::default(), 0.0);
+        assert!(why.overlapping_pairs > 0, "{why:?}");
+        let (_, report) = wrap(&both, &Mirrors::none(), why, &WrapParams::default());
+        println!(
+            "plate {thick} m: lost {:.3} m^2 at {:?} (outside the sphere: {outside:.3}), cell {:.4}",
+            report.lost_area, report.lost_at, report.cell
+        );
+        if lost {
+            assert!(
+                (report.lost_area - outside).abs() < 0.1 * outside,
+                "{report:?}"
+            );
+            let [x, y, z] = report.lost_at.unwrap();
+            assert!(x.abs() < 0.05 && y.abs() < 0.05 && (z - 0.99).abs() < 0.01);
+            assert!(report.lost_warning().is_some());
+        } else {
+            assert!(report.lost_area < 1e-3 * outside, "{}", report.lost_area);
+            assert!(report.lost_warning().is_none());
+        }
+    }
+}
