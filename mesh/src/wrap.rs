@@ -612,7 +612,7 @@ fn distances(facets: &[[Point; 3]], grid: &Grid, band: f64) -> Vec<f32> {
 fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64; 3]>) {
     let part = crate::crossing::surfaces(mesh);
     let mut lost: HashMap<usize, (f64, Vector)> = HashMap::new();
-    for t in 0..mesh.len() {
+    for (t, &p) in part.iter().enumerate() {
         let [a, b, c] = mesh.corners(t);
         let centre = (a.coords + b.coords + c.coords) / 3.0;
         let cell = [0, 1, 2].map(|k| ((centre[k] - grid.origin[k]) / grid.h).floor());
@@ -626,7 +626,7 @@ fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64
             .all(|o| field[grid.index([cell[0] + o[0], cell[1] + o[1], cell[2] + o[2]])] > 0.0);
         if outside {
             let area = mesh.area_vector(t).norm();
-            let entry = lost.entry(part[t]).or_insert((0.0, Vector::zeros()));
+            let entry = lost.entry(p).or_insert((0.0, Vector::zeros()));
             entry.0 += area;
             entry.1 += centre * area;
         }
