@@ -101,9 +101,13 @@ fn a_part_inside_another_is_dropped() {
     let outer = generate::icosphere(1.0, 4);
     let inner = moved(generate::icosphere(0.3, 3), Vector::new(0.2, 0.1, 0.0));
     let both = join(&outer, &inner);
-    let why = reasons(&both, &Mirrors::none(), &WrapParams::default(), 0.0);
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
+    let why = reasons(&both, &Mirrors::none(), &params, 0.0);
     assert_eq!((why.overlapping_pairs, why.enclosed_parts), (0, 1));
-    let (w, report) = wrap(&both, &Mirrors::none(), why, &WrapParams::default());
+    let (w, report) = wrap(&both, &Mirrors::none(), why, &params);
     assert!(common::closed(&w));
     let (v, a) = (outer.signed_volume(), outer.area());
     assert!(
@@ -217,6 +221,10 @@ fn tyres_pressed_a_little_into_the_floor_are_cut_and_deeper_is_refused() {
         units: LengthUnit::M,
         mirrors: Mirrors::ground(0.0),
         target_panels: Some(600),
+        wrap: WrapParams {
+            cells_along_length: 200,
+            ..WrapParams::default()
+        },
         ..PrepareParams::default()
     };
     // 3 % of the height below the ground: cut there.
@@ -289,16 +297,23 @@ fn subdivided(mut m: TriMesh, times: usize) -> TriMesh {
 #[test]
 fn a_part_thinner_than_a_cell_is_reported_lost() {
     // A plate 1.2 m by 0.4 m through the top of a unit sphere: 1 mm thick
-    // (a fifth of the 5 mm cell) it is lost outside the sphere, 30 mm
+    // (a tenth of the 10 mm cell) it is lost outside the sphere, 30 mm
     // thick it is kept.
     let sphere = generate::icosphere(1.0, 4);
-    let outside = 2.0 * (1.2 * 0.4 - PI * (1.0 - 0.99f64.powi(2)));
+    // The plate's faces lie between grid nodes (a face on a node plane is
+    // kept as a sheet a twentieth of a cell thick).
+    let z0 = 0.9937;
+    let outside = 2.0 * (1.2 * 0.4 - PI * (1.0 - z0 * z0));
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
     for (thick, lost) in [(0.001, true), (0.03, false)] {
-        let plate = subdivided(cuboid([-0.6, -0.2, 0.99], [0.6, 0.2, 0.99 + thick]), 5);
+        let plate = subdivided(cuboid([-0.6, -0.2, z0], [0.6, 0.2, z0 + thick]), 5);
         let both = join(&sphere, &plate);
-        let why = reasons(&both, &Mirrors::none(), &WrapParams::default(), 0.0);
+        let why = reasons(&both, &Mirrors::none(), &params, 0.0);
         assert!(why.overlapping_pairs > 0, "{why:?}");
-        let (_, report) = wrap(&both, &Mirrors::none(), why, &WrapParams::default());
+        let (_, report) = wrap(&both, &Mirrors::none(), why, &params);
         println!(
             "plate {thick} m: lost {:.3} m^2 at {:?} (outside the sphere: {outside:.3}), cell {:.4}",
             report.lost_area, report.lost_at, report.cell
@@ -309,7 +324,7 @@ fn a_part_thinner_than_a_cell_is_reported_lost() {
                 "{report:?}"
             );
             let [x, y, z] = report.lost_at.unwrap();
-            assert!(x.abs() < 0.05 && y.abs() < 0.05 && (z - 0.99).abs() < 0.01);
+            assert!(x.abs() < 0.05 && y.abs() < 0.05 && (z - z0).abs() < 0.01);
             assert!(report.lost_warning().is_some());
         } else {
             assert!(report.lost_area < 1e-3 * outside, "{}", report.lost_area);
