@@ -32,7 +32,8 @@ pub struct CheckArgs {
     /// Height of the ground plane z = Z, in metres (after unit conversion).
     #[arg(long, value_name = "Z", allow_hyphen_values = true)]
     pub ground: Option<f64>,
-    /// Coarsen to about N panels (default: the suggested count).
+    /// Coarsen to about N panels (default: the case file's
+    /// geometry.panels, or the suggested count).
     #[arg(long, value_name = "N")]
     pub panels: Option<usize>,
     /// Where the file's nose points: -x (tuft's axes) or +x (ISO 8855
@@ -59,7 +60,28 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
     let (file, params, case) = if is_case {
-        let (file, params, case) = from_case(&args.file)?;
+        let set: Vec<&str> = [
+            (args.half, "--half"),
+            (args.ground.is_some(), "--ground"),
+            (args.nose.is_some(), "--nose"),
+            (args.up.is_some(), "--up"),
+        ]
+        .into_iter()
+        .filter_map(|(given, flag)| given.then_some(flag))
+        .collect();
+        anyhow::ensure!(
+            set.is_empty(),
+            "{}: {} {} only to an STL given alone; with a case file its [geometry] and [ground] \
+             sections say that (only --panels overrides the case)",
+            args.file.display(),
+            set.join(", "),
+            if set.len() == 1 { "applies" } else { "apply" }
+        );
+        let (file, mut params, case) = from_case(&args.file)?;
+        if let Some(n) = args.panels {
+            anyhow::ensure!(n >= 4, "--panels must be at least 4");
+            params.target_panels = Some(n);
+        }
         (file, params, Some(case))
     } else {
         (args.file.clone(), settings(args)?, None)

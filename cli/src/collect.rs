@@ -90,6 +90,10 @@ pub struct Row {
     /// ([`crate::summary::Summary::plateau_drag`]).
     #[serde(default)]
     pub plateau_drag: bool,
+    /// It stood on the ground with wheels on
+    /// ([`crate::summary::Summary::wheels_on`]).
+    #[serde(default)]
+    pub wheels_on: bool,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
@@ -284,6 +288,14 @@ fn best_drag(c: &Collected) -> String {
              and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
              winner is named; rank drag with the loop (the default)",
             c.variants.len()
+        );
+    }
+    let wheels = c.variants.iter().filter(|r| r.wheels_on).count();
+    if wheels > 0 {
+        return format!(
+            "{wheels} of {} variants stand on the ground with wheels on: {}; no winner is named",
+            c.variants.len(),
+            crate::pipeline::WHEELS_DRAG
         );
     }
     let groups = wind_groups(c);
@@ -552,6 +564,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         yaw_deg: flow("yaw", still.yaw),
         warning_texts: s.warnings.clone(),
         plateau_drag: s.plateau_drag(),
+        wheels_on: s.wheels_on(),
         regions: s.regions.clone(),
         against_next: None,
     };
@@ -1109,6 +1122,7 @@ mod tests {
             yaw_deg: 0.0,
             warning_texts: Vec::new(),
             plateau_drag: false,
+            wheels_on: false,
             regions: Vec::new(),
             against_next: None,
         };
@@ -1417,6 +1431,21 @@ mod tests {
         let line = best_drag(&c);
         assert!(
             line.starts_with("1 of 2 variants ran without the separated-flow loop")
+                && line.contains("no winner is named"),
+            "{line}"
+        );
+    }
+
+    /// Variants standing on the ground with wheels on: drag with wheels
+    /// ranks nothing (`pipeline::WHEELS_DRAG`), no winner.
+    #[test]
+    fn wheels_on_names_no_winner() {
+        let mut c = sweep(&[10.0, 10.2]);
+        c.variants[1].cd = 0.35;
+        c.variants[0].wheels_on = true;
+        let line = best_drag(&c);
+        assert!(
+            line.starts_with("1 of 2 variants stand on the ground with wheels on")
                 && line.contains("no winner is named"),
             "{line}"
         );

@@ -74,8 +74,11 @@ pub fn load(case: &Case) -> Result<Geometry> {
 
 /// A mirror-plane refusal names the case keys that declared the planes.
 fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
+    // A tenth or more of the body below the ground (twice what tyres
+    // pressed into the floor may reach) is more likely an export with the
+    // wrong axes or a wrong ground.z.
     let below = match err {
-        MeshError::BelowGround { .. } => true,
+        MeshError::BelowGround { z, ground, top, .. } => ground - z > 0.1 * (top - z),
         MeshError::AcrossSymmetryPlane { .. } => false,
         _ => return err.into(),
     };

@@ -216,6 +216,15 @@ impl Summary {
     pub fn plateau_drag(&self) -> bool {
         self.separated_wakes.is_none() && self.separation.area_m2 > 0.0
     }
+
+    /// Whether the body stood on the ground (the wrap found contact:
+    /// tyres, usually). Drag with wheels on is no basis for a ranking (see
+    /// [`crate::pipeline::WHEELS_DRAG`]).
+    pub fn wheels_on(&self) -> bool {
+        self.mesh.preparation["wrap"]["contact_area"]
+            .as_f64()
+            .is_some_and(|a| a > 0.0)
+    }
 }
 
 /// What the separated-flow loop found.

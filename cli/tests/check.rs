@@ -340,3 +340,19 @@ fn a_coupe_with_wheels_through_its_body_standing_on_the_ground_is_wrapped_and_ru
     println!("wrapped coupe with wheels: C_D {cd:.3}");
     assert!(cd.is_finite() && cd > 0.0, "{cd}");
 }
+
+#[test]
+fn a_case_file_takes_panels_from_the_command_line_and_refuses_other_flags() {
+    let case = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../cases/coupe.toml");
+    let case = case.to_str().unwrap();
+    let out = check(&[case, "--panels", "1500"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("(target 1500)"), "{stdout}");
+    let out = check(&[case, "--ground", "0.1", "--half"]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("--half, --ground apply only to an STL given alone"),
+        "{stderr}"
+    );
+}

@@ -186,11 +186,13 @@ pub enum MeshError {
         ground: f64,
         /// How far below the ground the body may reach, metres.
         allowed: f64,
+        /// The body's greatest z, metres.
+        top: f64,
     },
-    /// Wrapping overlapping parts found no inside at all.
+    /// Wrapping found no inside at all.
     #[error(
-        "wrapping the overlapping parts into one surface found no inside: every part is thinner than the \
-         wrap's cell of {cell_mm:.1} mm or open",
+        "wrapping the surface into one outer surface found no inside: every part is thinner than the \
+         wrap's cell of {cell_mm:.1} mm",
         cell_mm = 1000.0 * cell
     )]
     NothingInside {

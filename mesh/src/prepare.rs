@@ -83,6 +83,11 @@ pub struct MirrorReport {
 /// vertex a hair below y = 0 would refuse the whole body (our choice).
 pub const CUT_TOLERANCE: f64 = 1e-3;
 
+/// A coarsening that ends above this multiple of its target (its checks
+/// refused the tries at the target) is warned about: the run costs about
+/// the square of that in memory.
+pub const COARSEN_SHORTFALL: f64 = 1.5;
+
 /// What `prepare` did, step by step (serializable).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PrepareReport {
@@ -187,8 +192,24 @@ pub fn prepare_mesh(
         if let Some(w) = local_crossing {
             q.add_warning(w);
         }
+        if let Some(c) = coarsen
+            .as_ref()
+            .filter(|c| c.achieved_panels as f64 > COARSEN_SHORTFALL * c.target_panels as f64)
+        {
+            q.add_warning(format!(
+                "the coarsening could not reach {} panels and the run uses {} ({}): it costs more time \
+                 and memory; thin parts or parts nearly touching each other usually cause this (tuft \
+                 check --save-panels writes the panels to look at)",
+                c.target_panels,
+                c.achieved_panels,
+                c.fallback.as_deref().unwrap_or("no try passed the checks")
+            ));
+        }
         if let Some(w) = &wrap {
             q.notes.push(w.describe());
+            if let Some(lost) = w.lost_warning() {
+                q.add_warning(lost);
+            }
         }
         q
     };
@@ -315,7 +336,9 @@ fn check_mirror_sides(mesh: &TriMesh, params: &PrepareParams) -> Result<(), Mesh
             moved: CUT_TOLERANCE * (hi - lo).norm(),
         });
     }
-    let allowed = params.wrap.max_ground_depth * (hi.z - lo.z);
+    let allowed = mirrors
+        .ground
+        .map_or(0.0, |g| params.wrap.max_ground_depth * (hi.z - g).max(0.0));
     if let Some(h) = mirrors.ground
         && lo.z < h - tol - allowed
     {
@@ -323,6 +346,7 @@ fn check_mirror_sides(mesh: &TriMesh, params: &PrepareParams) -> Result<(), Mesh
             z: lo.z,
             ground: h,
             allowed,
+            top: hi.z,
         });
     }
     Ok(())

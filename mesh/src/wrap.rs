@@ -59,7 +59,8 @@ pub struct WrapParams {
     /// Cells along the body's longest side (default 400).
     pub cells_along_length: usize,
     /// Most grid nodes; a larger box gets larger cells (default 30
-    /// million, about 200 MB of working memory).
+    /// million: about 5 bytes a node of working memory, 150 MB, besides
+    /// the facets of the mesh and its images and the wrapped surface).
     pub max_nodes: usize,
     /// A part whose lowest point is within this many cells of the ground
     /// stands on it (default 2).
@@ -167,7 +168,7 @@ impl WrapReport {
                 format!("the body comes within {mm:.1} mm of the ground")
             });
         }
-        let ground = if r.ground_gap.is_some() {
+        let ground = if self.contact_area > 0.0 {
             format!(
                 ", standing on the ground over {:.3} m^2 (cut at the ground, gaps under {:.0} mm to it filled)",
                 self.contact_area,
@@ -219,15 +220,16 @@ pub const LOST_AREA_WARNING: f64 = 1e-3;
 pub fn cell_size(lo: &Point, hi: &Point, params: &WrapParams) -> f64 {
     let ext = hi - lo;
     let mut h = ext.max() / params.cells_along_length.max(1) as f64;
-    if h <= 0.0 {
+    if !(h.is_finite() && h > 0.0) {
         return 0.0;
     }
+    let most = params.max_nodes.max(1000) as f64;
     loop {
-        let nodes: f64 = ext.iter().map(|e| e / h + 5.0).product();
-        if nodes <= params.max_nodes as f64 {
+        let nodes: f64 = ext.iter().map(|e| e / h + 6.0).product();
+        if nodes <= most {
             return h;
         }
-        h *= (nodes / params.max_nodes as f64).cbrt().max(1.01);
+        h *= (nodes / most).cbrt().max(1.01);
     }
 }
 
@@ -419,6 +421,10 @@ fn line_crossing(corners: &[Point; 3], d: usize, s: [f64; 2]) -> Option<(f64, i3
     }
     let o = corners[0];
     let t = o[d] - (n[u] * (s[0] - o[u]) + n[v] * (s[1] - o[v])) / n[d];
+    // A facet seen almost edge-on has a tiny n[d]; keep the crossing on it.
+    let lo = corners[0][d].min(corners[1][d]).min(corners[2][d]);
+    let hi = corners[0][d].max(corners[1][d]).max(corners[2][d]);
+    let t = t.clamp(lo, hi);
     // `a` is the facet's turning sense seen along the line, the sign of n[d].
     Some((t, -a))
 }
@@ -434,11 +440,18 @@ impl Grid {
     fn new(lo: &Point, hi: &Point, mirrors: &Mirrors, h: f64) -> Self {
         let margin = 2.0 * h;
         let mut origin = lo - Vector::repeat(margin);
+        // Nodes on each plane's lattice, starting on the plane itself when
+        // the body comes within the margin of it (a far ground adds no nodes).
+        let on_lattice = |plane: f64, low: f64| plane + ((low - plane) / h).floor().max(0.0) * h;
         if mirrors.symmetry {
-            origin.y = 0.0;
+            origin.y = on_lattice(0.0, origin.y);
+        } else {
+            // Nodes symmetric about y = 0, so that a symmetric body wraps
+            // the same on both sides (within the tetrahedra's split).
+            origin.y = (origin.y / h).floor() * h;
         }
         if let Some(g) = mirrors.ground {
-            origin.z = g;
+            origin.z = on_lattice(g, origin.z);
         }
         let n = [0, 1, 2].map(|k| ((hi[k] + margin - origin[k]) / h).ceil().max(1.0) as usize + 1);
         Self { origin, h, n }
@@ -501,9 +514,14 @@ fn winding_votes(facets: &[[Point; 3]], grid: &Grid, known: &mut [u8], inside: &
             .flat_map_iter(|corners| {
                 let mut found = Vec::new();
                 let (mn, mx) = corner_box(corners);
-                if let (Some((a0, a1)), Some((b0, b1))) =
-                    (grid.range(u, mn[u], mx[u]), grid.range(v, mn[v], mx[v]))
-                {
+                // One node wider on each side: the shifted line through a
+                // node can fall inside a facet whose box ends on it, and
+                // `line_crossing` decides exactly.
+                let (lu, lv) = (
+                    grid.range(u, mn[u] - grid.h, mx[u] + grid.h),
+                    grid.range(v, mn[v] - grid.h, mx[v] + grid.h),
+                );
+                if let (Some((a0, a1)), Some((b0, b1))) = (lu, lv) {
                     for a in a0..=a1 {
                         for b in b0..=b1 {
                             let s = [
@@ -682,18 +700,31 @@ fn edge_point(key: u64, grid: &Grid, field: &[f32]) -> Point {
 /// The triangles (as keys of the grid edges their corners lie on) of one
 /// tetrahedron, facing from inside (negative field) to outside.
 fn tetrahedron(nodes: [usize; 4], grid: &Grid, field: &[f32], out: &mut Vec<[u64; 3]>) {
-    let (ins, outs): (Vec<usize>, Vec<usize>) = nodes.into_iter().partition(|&n| field[n] < 0.0);
-    let corners: Vec<[u64; 3]> = match (ins.as_slice(), outs.as_slice()) {
-        ([a], [b, c, d]) => vec![[edge_key(*a, *b), edge_key(*a, *c), edge_key(*a, *d)]],
-        ([a, b, c], [d]) => vec![[edge_key(*a, *d), edge_key(*b, *d), edge_key(*c, *d)]],
-        ([a, b], [c, d]) => {
-            let q = [
-                edge_key(*a, *c),
-                edge_key(*a, *d),
-                edge_key(*b, *d),
-                edge_key(*b, *c),
-            ];
-            vec![[q[0], q[1], q[2]], [q[0], q[2], q[3]]]
+    let (mut ins, mut outs) = ([0usize; 4], [0usize; 4]);
+    let (mut ni, mut no) = (0, 0);
+    for n in nodes {
+        if field[n] < 0.0 {
+            ins[ni] = n;
+            ni += 1;
+        } else {
+            outs[no] = n;
+            no += 1;
+        }
+    }
+    let key = edge_key;
+    let (first, second) = match ni {
+        1 => {
+            let a = ins[0];
+            ([key(a, outs[0]), key(a, outs[1]), key(a, outs[2])], None)
+        }
+        3 => {
+            let d = outs[0];
+            ([key(ins[0], d), key(ins[1], d), key(ins[2], d)], None)
+        }
+        2 => {
+            let (a, b, c, d) = (ins[0], ins[1], outs[0], outs[1]);
+            let q = [key(a, c), key(a, d), key(b, d), key(b, c)];
+            ([q[0], q[1], q[2]], Some([q[0], q[2], q[3]]))
         }
         _ => return,
     };
@@ -703,8 +734,8 @@ fn tetrahedron(nodes: [usize; 4], grid: &Grid, field: &[f32], out: &mut Vec<[u64
             .sum::<Vector>()
             / set.len() as f64
     };
-    let outward = centre(&outs) - centre(&ins);
-    for mut tri in corners {
+    let outward = centre(&outs[..no]) - centre(&ins[..ni]);
+    for mut tri in std::iter::once(first).chain(second) {
         let [p, q, r] = tri.map(|k| edge_point(k, grid, field));
         if (q - p).cross(&(r - p)).dot(&outward) < 0.0 {
             tri.swap(1, 2);
@@ -745,59 +776,49 @@ pub fn wrap(
         return empty(0.0);
     };
     let h = cell_size(&lo, &hi, params);
-    if h <= 0.0 {
-        return empty(h);
+    if !(h.is_finite() && h > 0.0) {
+        return empty(0.0);
     }
     let grid = Grid::new(&lo, &hi, mirrors, h);
     let facets = facets_with_images(mesh, mirrors);
     let n = grid.len();
     let (mut known, mut votes) = (vec![0u8; n], vec![0u8; n]);
     let leaky_lines = winding_votes(&facets, &grid, &mut known, &mut votes);
-    let mut inside: Vec<bool> = known.iter().zip(&votes).map(|(&k, &v)| 2 * v > k).collect();
+    let inside: Vec<bool> = known.iter().zip(&votes).map(|(&k, &v)| 2 * v > k).collect();
     drop((known, votes));
-    let band = 2.0 * h;
-    let dist = distances(&facets, &grid, band);
+    // The distance, then signed in place: negative inside.
+    let mut field = distances(&facets, &grid, 2.0 * h);
     drop(facets);
-    // Parts within the contact distance stand on the ground.
-    let mut grounded = vec![false; n];
-    if mirrors.ground.is_some() {
-        let reach = params.contact_cells.max(0.0).floor() as usize;
-        for i in 0..grid.n[0] {
-            for j in 0..grid.n[1] {
-                let column = |k| grid.index([i, j, k]);
-                if let Some(k) = (0..=reach.min(grid.n[2] - 1)).find(|&k| inside[column(k)]) {
-                    for kk in 0..k {
-                        inside[column(kk)] = true;
-                        grounded[column(kk)] = true;
-                    }
-                }
-            }
-        }
-    }
     let tiny = (1e-6 * h) as f32;
-    let field: Vec<f32> = (0..n)
-        .into_par_iter()
-        .map(|i| {
-            let d = if grounded[i] {
-                0.5 * h as f32
-            } else {
-                dist[i].max(tiny)
-            };
-            if inside[i] { -d } else { d }
-        })
-        .collect();
-    let contact_area = if mirrors.ground.is_some() {
+    field
+        .par_iter_mut()
+        .zip(inside.par_iter())
+        .for_each(|(f, &ins)| {
+            let d = f.max(tiny);
+            *f = if ins { -d } else { d };
+        });
+    drop(inside);
+    // Parts within the contact distance stand on the ground: the nodes
+    // below them down to the ground are inside.
+    let on_ground = reasons.ground_gap.is_some() && mirrors.ground == Some(grid.origin.z);
+    let contact_area = if on_ground {
+        let reach = (params.contact_cells.max(0.0).floor() as usize).min(grid.n[2] - 1);
         let mut count = 0;
         for i in 0..grid.n[0] {
             for j in 0..grid.n[1] {
-                count += usize::from(inside[grid.index([i, j, 0])]);
+                let column = |k| grid.index([i, j, k]);
+                if let Some(k) = (0..=reach).find(|&k| field[column(k)] < 0.0) {
+                    for kk in 0..k {
+                        field[column(kk)] = -0.5 * h as f32;
+                    }
+                    count += 1;
+                }
             }
         }
         count as f64 * h * h
     } else {
         0.0
     };
-    drop((inside, grounded, dist));
     let (lost_area, lost_at) = lost_surface(mesh, &grid, &field);
     let [nx, ny, nz] = grid.n;
     let tris: Vec<[u64; 3]> = (0..nx - 1)

@@ -380,28 +380,85 @@ pub fn axle_split(
     })
 }
 
-/// Frontal area: the projection of the body on the y-z plane, m^2.
+/// Frontal area: the projection of the body on the y-z plane (its
+/// silhouette seen along the stream), m^2.
 ///
-/// For a closed surface every line along x that hits the body crosses it an
-/// even number of times, so the projected area is `sum |n_x| A / 2` over the
-/// panels (Cauchy's projection formula in its discrete form). A body cut by
-/// the ground plane stays closed with its image, whose cut face is parallel
-/// to x and adds nothing; a half model (symmetry plane) gives half the area,
-/// so it is doubled. Exact for convex bodies; for re-entrant shapes it
-/// over-counts the hidden parts, which is the usual screening compromise.
+/// The real panels are projected onto a raster of [`FRONTAL_PIXELS`]
+/// pixels along the larger of the body's width and height, and the pixels
+/// whose centre any projected panel covers are counted. Unlike the sum
+/// `sum |n_x| A / 2` (Cauchy's projection formula, exact when every line
+/// along x crosses the surface twice), this counts a part hidden behind
+/// another once (a wheel behind the bumper, a spoiler behind the roof) and
+/// is not raised by small-scale roughness of a scanned or wrapped surface.
+/// A body cut by the ground plane is measured above it (its image is not
+/// frontal area); a half model gives half the silhouette, so it is doubled.
+/// The raster's error is about the silhouette's perimeter times a pixel
+/// and mostly cancels along it.
 pub fn frontal_area(mesh: &PanelMesh) -> f64 {
-    let half: f64 = mesh
-        .panels
-        .iter()
-        .map(|p| p.normal.x.abs() * p.area)
-        .sum::<f64>()
-        / 2.0;
-    if mesh.mirrors.symmetry {
-        2.0 * half
+    let (mut lo, hi) = mesh.bounds();
+    // The whole body's width, so that a half model is rastered as finely as
+    // the whole, on a lattice symmetric about y = 0.
+    let width = if mesh.mirrors.symmetry {
+        2.0 * hi.y
     } else {
-        half
+        hi.y - lo.y
+    };
+    let px = width.max(hi.z - lo.z) / FRONTAL_PIXELS as f64;
+    if !(px.is_finite() && px > 0.0) {
+        return 0.0;
+    }
+    lo.y = (lo.y / px).floor() * px;
+    let ny = ((hi.y - lo.y) / px).ceil() as usize + 1;
+    let nz = ((hi.z - lo.z) / px).ceil() as usize + 1;
+    let mut covered = vec![false; ny * nz];
+    for t in &mesh.triangles {
+        let p = t.map(|v| {
+            let q = mesh.vertices[v as usize];
+            [(q.y - lo.y) / px, (q.z - lo.z) / px]
+        });
+        let cross = |a: [f64; 2], b: [f64; 2], c: [f64; 2]| {
+            (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+        };
+        let turn = cross(p[0], p[1], p[2]);
+        if turn == 0.0 {
+            continue;
+        }
+        let lo_u = p.iter().map(|q| q[0]).fold(f64::INFINITY, f64::min);
+        let hi_u = p.iter().map(|q| q[0]).fold(f64::NEG_INFINITY, f64::max);
+        let lo_v = p.iter().map(|q| q[1]).fold(f64::INFINITY, f64::min);
+        let hi_v = p.iter().map(|q| q[1]).fold(f64::NEG_INFINITY, f64::max);
+        // Pixel centres sit at (i + 1/2, j + 1/2).
+        let span = |lo: f64, hi: f64, n: usize| {
+            let a = (lo - 0.5).ceil().max(0.0);
+            let b = (hi - 0.5).floor().min((n - 1) as f64);
+            (a <= b).then_some((a as usize, b as usize))
+        };
+        let (Some((i0, i1)), Some((j0, j1))) = (span(lo_u, hi_u, ny), span(lo_v, hi_v, nz)) else {
+            continue;
+        };
+        for i in i0..=i1 {
+            for j in j0..=j1 {
+                let c = [i as f64 + 0.5, j as f64 + 0.5];
+                let inside = [(0, 1), (1, 2), (2, 0)]
+                    .iter()
+                    .all(|&(a, b)| cross(p[a], p[b], c) * turn >= 0.0);
+                if inside {
+                    covered[i * nz + j] = true;
+                }
+            }
+        }
+    }
+    let area = covered.iter().filter(|&&c| c).count() as f64 * px * px;
+    if mesh.mirrors.symmetry {
+        2.0 * area
+    } else {
+        area
     }
 }
+
+/// Pixels of the frontal-area raster along the body's larger side (about
+/// 1 mm on a car).
+pub const FRONTAL_PIXELS: usize = 2048;
 
 /// Body length: the extent of the real vertices along x, m.
 pub fn body_length(mesh: &PanelMesh) -> f64 {

@@ -206,6 +206,28 @@ fn frontal_area_of_a_sphere_is_pi_a_squared() {
 }
 
 #[test]
+fn frontal_area_counts_a_hidden_part_once() {
+    // Two spheres of radius a, one 3a behind the other along the stream:
+    // the silhouette is one disc, pi a^2 (the projection formula sum
+    // |n_x| A / 2 counts it twice); side by side, 3a apart in y, two discs.
+    let a = 0.5;
+    let pair = |offset: tuft_mesh::Vector| {
+        let mut m = generate::icosphere(a, 4);
+        let other = m.clone();
+        let n = m.vertices.len() as u32;
+        m.vertices.extend(other.vertices.iter().map(|p| p + offset));
+        m.triangles
+            .extend(other.triangles.iter().map(|t| t.map(|v| v + n)));
+        PanelMesh::new(m, Mirrors::none()).unwrap()
+    };
+    let disc = PI * a * a;
+    let behind = frontal_area(&pair(tuft_mesh::Vector::new(3.0 * a, 0.0, 0.0)));
+    assert!((behind - disc).abs() < 5e-3 * disc, "{behind}");
+    let beside = frontal_area(&pair(tuft_mesh::Vector::new(0.0, 3.0 * a, 0.0)));
+    assert!((beside - 2.0 * disc).abs() < 5e-3 * 2.0 * disc, "{beside}");
+}
+
+#[test]
 fn bad_inputs_are_typed_errors() {
     let panels = plate(0.0, 1.0, 1.0);
     let r = reference(1.0);

@@ -88,9 +88,10 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
     // The plateau model's drag (an attached-only run that separates)
     // ranks nothing.
     let plateau = a.plateau_drag() || b.plateau_drag();
-    let resolved = banded && !separation_differs && !plateau;
+    let wheels = a.wheels_on() || b.wheels_on();
+    let resolved = banded && !separation_differs && !plateau && !wheels;
     let way = if delta < 0.0 { "lower" } else { "higher" };
-    let leaning = if banded && separation_differs && !plateau {
+    let leaning = if banded && separation_differs && !plateau && !wheels {
         way
     } else {
         ""
@@ -101,6 +102,12 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
             "no winner: drag from the attached flow's plateau model (solver.wakes = \"attached\"), \
              which is no basis for ranking drag; in this model B's drag is {} counts against \
              A's: run both with the separated-flow loop (the default) to rank them",
+            signed(delta, 1)
+        )
+    } else if wheels {
+        format!(
+            "no winner: {}; in this model B's drag is {} counts against A's",
+            crate::pipeline::WHEELS_DRAG,
             signed(delta, 1)
         )
     } else if !above_noise {
@@ -224,6 +231,18 @@ mod tests {
         assert!(
             v.text
                 .starts_with("no winner: drag from the attached flow's plateau model"),
+            "{}",
+            v.text
+        );
+        // 10 counts lower everywhere, but A stood on the ground with its
+        // wheels on: drag with wheels ranks nothing.
+        let mut a_wheels = summary(0.300, 0.290, 0.320);
+        a_wheels.mesh.preparation = serde_json::json!({"wrap": {"contact_area": 0.19}});
+        let v = drag_verdict(&a_wheels, &summary(0.290, 0.280, 0.310), None);
+        assert!(!v.resolved && v.leaning.is_empty(), "{v:?}");
+        assert!(
+            v.text.starts_with("no winner: with wheels on")
+                && v.text.contains("B's drag is -10.0 counts against A's"),
             "{}",
             v.text
         );
