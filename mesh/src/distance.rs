@@ -123,19 +123,30 @@ impl<'a> SurfaceGrid<'a> {
 
     /// Distance from `p` to the nearest triangle.
     pub fn distance(&self, p: &Point) -> f64 {
+        (self.closest(p) - p).norm()
+    }
+
+    /// The nearest point of the surface to `p` (`p` itself for an empty
+    /// mesh).
+    pub fn closest(&self, p: &Point) -> Point {
         let centre = self.cell_index(p);
-        let mut best = f64::INFINITY;
+        let (mut best, mut at) = (f64::INFINITY, *p);
         let max_ring = *self.dims.iter().max().unwrap_or(&1);
         for ring in 0..=max_ring {
             self.visit_ring(centre, ring, |t| {
                 let [a, b, c] = self.mesh.corners(t as usize);
-                best = best.min((closest_point_on_triangle(p, &a, &b, &c) - p).norm());
+                let q = closest_point_on_triangle(p, &a, &b, &c);
+                let d = (q - p).norm();
+                if d < best {
+                    best = d;
+                    at = q;
+                }
             });
             if best <= self.clearance(p, centre, ring) {
                 break;
             }
         }
-        best
+        at
     }
 
     /// Distance from `p` to the outside of the block of cells within `ring`

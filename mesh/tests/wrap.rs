@@ -394,3 +394,35 @@ fn lines_through_vertices_and_edges_are_counted_once() {
         report.volume
     );
 }
+
+#[test]
+fn relaxing_coarsened_panels_keeps_sharp_edges_and_flat_faces() {
+    // A box of 2 x 1 x 0.5 m in 24,576 facets, coarsened to 1,000 panels
+    // with and without the relaxation: its vertices on edges stay put and
+    // the others slide within their faces, so the volume (1 m^3) and the
+    // area (7 m^2) are the box's own.
+    let fine = subdivided(cuboid([0.0, 0.0, 0.0], [2.0, 1.0, 0.5]), 5);
+    for passes in [0, 3] {
+        let mut params = tuft_mesh::coarsen::CoarsenParams {
+            target_panels: 1000,
+            ..Default::default()
+        };
+        params.relax_passes = passes;
+        let (coarse, report) =
+            tuft_mesh::coarsen::coarsen_with_params(&fine, &Mirrors::none(), &params);
+        println!(
+            "{passes} passes: {} panels, {} moves, max deviation {:.1e}",
+            coarse.len(),
+            report.relaxed,
+            report.max_deviation
+        );
+        assert!(
+            (coarse.signed_volume() - 1.0).abs() < 1e-9,
+            "{}",
+            coarse.signed_volume()
+        );
+        assert!((coarse.area() - 7.0).abs() < 1e-9, "{}", coarse.area());
+        assert!(report.max_deviation < 1e-9);
+        assert_eq!(report.relaxed > 0, passes > 0);
+    }
+}
