@@ -2,7 +2,7 @@
 //! surface mesh.
 //!
 //! Prints what was read, what each repair pass changed, the boundary loops,
-//! the coarsening, the panel quality and a suggested panel count. Exit 0
+//! the wrap (when parts overlap or stand on the ground), the coarsening, the panel quality and a suggested panel count. Exit 0
 //! when the mesh is usable (its verdict line says whether with warnings),
 //! 1 when its panels cross each other (a fold through itself, which often
 //! stops a run as unphysical); a problem is returned as an error and
@@ -21,7 +21,9 @@ use tuft_mesh::{LengthUnit, Mirrors};
 pub struct CheckArgs {
     /// The STL file (binary or ASCII), or a case file (`.toml`): its STL
     /// with its units, half model, ground and panel count, as a run would
-    /// read them (the flags below are then not used).
+    /// read them (then --panels overrides the count, --json and
+    /// --save-panels apply, --half, --ground, --nose and --up are refused
+    /// and --units is not used).
     pub file: PathBuf,
     /// Length unit of the file: m, cm, mm or in.
     #[arg(long, default_value = "mm")]

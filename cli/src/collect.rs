@@ -269,7 +269,8 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
 }
 
 /// The printed best-drag line: no winner at all when a variant's mesh is
-/// too coarse ([`is_coarse_mesh`]), otherwise [`best_drag_in`] within each
+/// too coarse ([`is_coarse_mesh`]), its drag is the plateau model's or it
+/// stood on the ground with wheels on, otherwise [`best_drag_in`] within each
 /// wind condition, since drag at another speed or yaw is another test.
 fn best_drag(c: &Collected) -> String {
     let coarse = not_converged(c);

@@ -153,8 +153,9 @@ pub fn coarsen_with_params(
                         .iter()
                         .map(|v| mirrors.on_plane(v, tol))
                         .collect();
-                    let fine = crossings(&relaxed).iter().all(|c| !c.same_surface)
-                        || !crossings(&coarse).iter().all(|c| !c.same_surface);
+                    let folds =
+                        |m: &TriMesh| crossings(m).iter().filter(|c| c.same_surface).count();
+                    let fine = folds(&relaxed) <= folds(&coarse);
                     if fine
                         && check_closed(&relaxed, &on_plane_or_border(&relaxed, &on_plane)).is_ok()
                     {

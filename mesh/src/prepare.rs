@@ -1,6 +1,7 @@
 //! One call from an STL file to panels: read, scale to metres, move, check
-//! the mirror planes, repair, coarsen, refuse a surface that passes through
-//! itself, build panels and measure them.
+//! the mirror planes, repair, wrap parts that overlap or stand on the
+//! ground, coarsen and relax, refuse a surface that passes through itself,
+//! build panels and measure them.
 //!
 //! ```
 //! # fn main() -> Result<(), tuft_mesh::MeshError> {

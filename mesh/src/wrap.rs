@@ -40,7 +40,7 @@
 //! contact patch instead of leaving a hair-thin gap to its image.
 //!
 //! The cell is the body length over [`WrapParams::cells_along_length`]
-//! (11 mm on a 4.5 m car, a ninth of a default panel's edge): the wrapped
+//! (11 mm on a 4.5 m car, an eighth of a default panel's edge): the wrapped
 //! surface follows a smooth input to a small fraction of a cell, rounds
 //! sharp edges over about a cell and loses parts thinner than about a
 //! cell, all below the panels' own resolution.

@@ -46,7 +46,7 @@ fn flat_bottomed_hemisphere() -> TriMesh {
 /// held against Lamb beside the same icosphere coarsened to 4,000 panels
 /// in free air, the size of panel an STL run gets. Measured 2026-12-02:
 /// rms 1.0e-2 wrapped, 7.4e-3 coarsened in free air (a generated
-/// icosphere of 5,120 panels: 1.4e-3, `potential_sphere.rs`). The bars:
+/// icosphere of 5,120 panels: 1.7e-3, `potential_sphere.rs`). The bars:
 /// within 1.75 times the free-air figure and under 1.5e-2 rms. Unwrapped,
 /// the flat face sits on its own image and the rms error is over a
 /// thousand.

@@ -68,7 +68,8 @@ pub enum ModelDoubt {
 /// Judge B's drag against A's; `doubt` when the difference rests on the
 /// separated-flow model where its drag ranking is known to fail (no winner
 /// is named then, nor when either run's drag is the plateau model's,
-/// [`Summary::plateau_drag`]).
+/// [`Summary::plateau_drag`], nor when either stood on the ground with
+/// wheels on, [`Summary::wheels_on`]).
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
     let separation_differs = doubt.is_some();
     let why = match doubt {
