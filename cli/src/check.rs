@@ -22,12 +22,12 @@ pub struct CheckArgs {
     /// The STL file (binary or ASCII), or a case file (`.toml`): its STL
     /// with its units, half model, ground and panel count, as a run would
     /// read them (then --panels overrides the count, --json and
-    /// --save-panels apply, --half, --ground, --nose and --up are refused
-    /// and --units is not used).
+    /// --save-panels apply, and --units, --half, --ground, --nose and --up
+    /// are refused).
     pub file: PathBuf,
-    /// Length unit of the file: m, cm, mm or in.
-    #[arg(long, default_value = "mm")]
-    pub units: LengthUnit,
+    /// Length unit of the file: m, cm, mm or in (default mm).
+    #[arg(long)]
+    pub units: Option<LengthUnit>,
     /// The file holds the y >= 0 half of the body, mirrored in y = 0.
     #[arg(long)]
     pub half: bool,
@@ -63,6 +63,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
     let (file, params, case) = if is_case {
         let set: Vec<&str> = [
+            (args.units.is_some(), "--units"),
             (args.half, "--half"),
             (args.ground.is_some(), "--ground"),
             (args.nose.is_some(), "--nose"),
@@ -81,7 +82,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         );
         let (file, mut params, case) = from_case(&args.file)?;
         if let Some(n) = args.panels {
-            anyhow::ensure!(n >= 4, "--panels must be at least 4");
+            anyhow::ensure!(
+                (100..=200_000).contains(&n),
+                "--panels must be 100 to 200000, as geometry.panels in a case file"
+            );
             params.target_panels = Some(n);
         }
         (file, params, Some(case))
@@ -193,7 +197,7 @@ fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
         anyhow::ensure!(n >= 4, "--panels must be at least 4");
     }
     Ok(PrepareParams {
-        units: args.units,
+        units: args.units.unwrap_or(LengthUnit::Mm),
         axes: crate::case::file_axes(args.nose.as_deref(), args.up.as_deref(), "--")?,
         mirrors: Mirrors {
             ground: args.ground,

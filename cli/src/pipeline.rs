@@ -725,7 +725,9 @@ pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Opt
     Some(format!(
         "the body stands on the ground over {:.3} m^2 (its tyres, or any underside within {:.0} mm of the \
          ground, which panels of this size cannot resolve and the wrap closed); {WHEELS_DRAG}; the \
-         pressures and separation away from the wheels are as good as without them",
+         tyres' edge suction also carries lift (16 to 22 kg on the demo coupe with wheels), so compare \
+         axle loads between variants with the same wheels only; the pressures and separation away \
+         from the wheels are as good as without them",
         w.contact_area,
         1000.0 * w.contact_gap
     ))

@@ -211,6 +211,9 @@ pub fn prepare_mesh(
             if let Some(lost) = w.lost_warning() {
                 q.add_warning(lost);
             }
+            if let Some(open) = w.open_warning() {
+                q.add_warning(open);
+            }
         }
         q
     };

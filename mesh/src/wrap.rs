@@ -133,6 +133,9 @@ pub struct WrapReport {
     /// Where the most of it was lost: the area-weighted centre of the lost
     /// facets of the part that lost the most, metres.
     pub lost_at: Option<[f64; 3]>,
+    /// Area within the contact distance of the ground left open because
+    /// it was too large for a tyre's contact (a floor), m^2.
+    pub open_area: f64,
 }
 
 impl WrapReport {
@@ -168,15 +171,23 @@ impl WrapReport {
                 format!("the body comes within {mm:.1} mm of the ground")
             });
         }
-        let ground = if self.contact_area > 0.0 {
+        let mut ground = if self.contact_area > 0.0 {
             format!(
-                ", standing on the ground over {:.3} m^2 (cut at the ground, gaps under {:.0} mm to it filled)",
+                ", standing on the ground over {:.3} m^2 (cut at the ground, gaps under {:.0} mm to it filled \
+                 where a patch is small enough to be a tyre's contact)",
                 self.contact_area,
                 1000.0 * self.contact_gap
             )
         } else {
             String::new()
         };
+        if self.open_area > 0.0 {
+            ground += &format!(
+                ", {:.3} m^2 within {:.0} mm of the ground left open (too large for a tyre's contact)",
+                self.open_area,
+                1000.0 * self.contact_gap
+            );
+        }
         format!(
             "{}: wrapped into one outer surface on {:.1} mm cells{ground}; {} facets ({:.2} m^2) became {} \
              ({:.2} m^2) enclosing {:.3} m^3; parts and gaps thinner than about a cell are lost{}",
@@ -193,6 +204,20 @@ impl WrapReport {
                 String::new()
             }
         )
+    }
+
+    /// A warning when an underside larger than a tyre's contact lies within
+    /// the contact distance of the ground and was left open.
+    pub fn open_warning(&self) -> Option<String> {
+        (self.open_area > 0.0).then(|| {
+            format!(
+                "{:.3} m^2 of the underside lies within {:.0} mm of the ground: panels of this size cannot \
+                 resolve so narrow a gap to the ground's image, so the pressure there and the lift are rough; \
+                 raise the body or give more panels",
+                self.open_area,
+                1000.0 * self.contact_gap
+            )
+        })
     }
 
     /// A warning when the wrap lost a part of the surface that matters:
@@ -621,6 +646,74 @@ fn distances(facets: &[[Point; 3]], grid: &Grid, band: f64) -> Vec<f32> {
     dist
 }
 
+/// Largest patch filled down to the ground, as a share of the body's plan
+/// area (our choice: a tyre's contact is about 0.6 % of a car's plan; a
+/// floor lowered to within the contact distance is tens of per cent and is
+/// left open, since sealing it would stop the underbody flow).
+pub const MAX_CONTACT_PATCH: f64 = 0.02;
+
+/// Stand the body on the ground: the columns of nodes whose first inside
+/// node lies within the contact distance are filled down to the ground,
+/// patch by patch (4-connected columns), where a patch is at most
+/// [`MAX_CONTACT_PATCH`] of `plan`; columns inside at the ground itself
+/// (cut there) count as contact. Returns the contact area and the area
+/// left open, m^2.
+fn ground_contact(grid: &Grid, field: &mut [f32], params: &WrapParams, plan: f64) -> (f64, f64) {
+    let h = grid.h;
+    let reach = (params.contact_cells.max(0.0).floor() as usize).min(grid.n[2] - 1);
+    let (nx, ny) = (grid.n[0], grid.n[1]);
+    // Per column: 0 outside, k > 0 the first inside node to fill below,
+    // usize::MAX inside at the ground already.
+    let mut first = vec![0usize; nx * ny];
+    let mut cut = 0;
+    for i in 0..nx {
+        for j in 0..ny {
+            if let Some(k) = (0..=reach).find(|&k| field[grid.index([i, j, k])] < 0.0) {
+                first[i * ny + j] = if k == 0 { usize::MAX } else { k };
+                cut += usize::from(k == 0);
+            }
+        }
+    }
+    let (mut filled, mut open) = (0usize, 0usize);
+    let mut seen = vec![false; nx * ny];
+    for start in 0..nx * ny {
+        if seen[start] || first[start] == 0 || first[start] == usize::MAX {
+            continue;
+        }
+        let mut patch = vec![start];
+        seen[start] = true;
+        let mut next = 0;
+        while next < patch.len() {
+            let c = patch[next];
+            next += 1;
+            let (i, j) = (c / ny, c % ny);
+            let around = [
+                (i > 0).then(|| c - ny),
+                (i + 1 < nx).then(|| c + ny),
+                (j > 0).then(|| c - 1),
+                (j + 1 < ny).then(|| c + 1),
+            ];
+            for n in around.into_iter().flatten() {
+                if !seen[n] && first[n] != 0 && first[n] != usize::MAX {
+                    seen[n] = true;
+                    patch.push(n);
+                }
+            }
+        }
+        if patch.len() as f64 * h * h <= MAX_CONTACT_PATCH * plan {
+            for &c in &patch {
+                for k in 0..first[c] {
+                    field[grid.index([c / ny, c % ny, k])] = -0.5 * h as f32;
+                }
+            }
+            filled += patch.len();
+        } else {
+            open += patch.len();
+        }
+    }
+    ((cut + filled) as f64 * h * h, open as f64 * h * h)
+}
+
 /// The input surface the wrap lost: facets whose centroid lies in a cell
 /// with every corner outside (a part thinner than about a cell has no node
 /// inside it, so no surface is cut there). Facets outside the grid (below
@@ -769,6 +862,7 @@ pub fn wrap(
                 contact_gap: 0.0,
                 lost_area: 0.0,
                 lost_at: None,
+                open_area: 0.0,
             },
         )
     };
@@ -801,23 +895,11 @@ pub fn wrap(
     // Parts within the contact distance stand on the ground: the nodes
     // below them down to the ground are inside.
     let on_ground = reasons.ground_gap.is_some() && mirrors.ground == Some(grid.origin.z);
-    let contact_area = if on_ground {
-        let reach = (params.contact_cells.max(0.0).floor() as usize).min(grid.n[2] - 1);
-        let mut count = 0;
-        for i in 0..grid.n[0] {
-            for j in 0..grid.n[1] {
-                let column = |k| grid.index([i, j, k]);
-                if let Some(k) = (0..=reach).find(|&k| field[column(k)] < 0.0) {
-                    for kk in 0..k {
-                        field[column(kk)] = -0.5 * h as f32;
-                    }
-                    count += 1;
-                }
-            }
-        }
-        count as f64 * h * h
+    let plan = (hi.x - lo.x) * (hi.y - lo.y);
+    let (contact_area, open_area) = if on_ground {
+        ground_contact(&grid, &mut field, params, plan)
     } else {
-        0.0
+        (0.0, 0.0)
     };
     let (lost_area, lost_at) = lost_surface(mesh, &grid, &field);
     let [nx, ny, nz] = grid.n;
@@ -876,6 +958,7 @@ pub fn wrap(
         contact_gap: params.contact_cells.max(0.0).floor() * h,
         lost_area,
         lost_at,
+        open_area,
     };
     (out, report)
 }

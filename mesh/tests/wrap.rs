@@ -426,3 +426,30 @@ fn relaxing_coarsened_panels_keeps_sharp_edges_and_flat_faces() {
         assert_eq!(report.relaxed > 0, passes > 0);
     }
 }
+
+#[test]
+fn a_floor_just_above_the_ground_is_left_open_not_sealed() {
+    // A box 2 m by 1 m with its floor 5 mm above the ground, inside the
+    // 20 mm contact distance of 200 cells: far larger than a tyre's contact
+    // (2 % of the plan at most), so the gap stays open and is warned about.
+    let body = subdivided(cuboid([0.0, -0.5, 0.005], [2.0, 0.5, 0.5]), 3);
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
+    let why = reasons(&body, &Mirrors::ground(0.0), &params, 1e-9);
+    assert!(why.ground_gap.is_some(), "{why:?}");
+    let (w, report) = wrap(&body, &Mirrors::ground(0.0), why, &params);
+    assert_eq!(report.contact_area, 0.0, "{report:?}");
+    assert!((report.open_area - 2.0).abs() < 0.1, "{}", report.open_area);
+    assert!(report.open_warning().is_some());
+    assert!(
+        border_edges(&w).is_empty(),
+        "closed: nothing meets the ground"
+    );
+    assert!(
+        (report.volume - 2.0 * 0.495).abs() < 0.02,
+        "{}",
+        report.volume
+    );
+}
