@@ -608,7 +608,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings");
+    s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -624,7 +624,7 @@ pub fn csv(c: &Collected) -> String {
         }
         let _ = write!(
             s,
-            ",{},{},{},{},{},{},{},{},{},{},{}",
+            ",{},{},{},{},{},{},{},{},{},{},{},{}",
             r.cd,
             r.cd_low,
             r.cd_high,
@@ -635,7 +635,8 @@ pub fn csv(c: &Collected) -> String {
             r.separated_area_m2,
             r.separated_percent,
             r.panels,
-            r.warnings
+            r.warnings,
+            u8::from(r.wheels_on)
         );
         for g in &c.regions {
             match region(r, g) {
@@ -1060,8 +1061,13 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
         }
         let _ = write!(
             s,
-            "<td>{}</td><td class=\"name\"><a href=\"{1}/report.html\">{1}</a></td>",
+            "<td>{}{}</td><td class=\"name\"><a href=\"{2}/report.html\">{2}</a></td>",
             r.rank,
+            if r.wheels_on {
+                " (wheels on: drag not ranked)"
+            } else {
+                ""
+            },
             escape(&r.name)
         );
         for k in &c.keys {
@@ -1268,7 +1274,7 @@ mod tests {
         let lines: Vec<&str> = text.lines().collect();
         assert!(
             lines[0].ends_with(
-                ",warnings,region:rear window:separated_percent,region:rear window:verdict,\
+                ",warnings,wheels_on,region:rear window:separated_percent,region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
                  region:boot deck:separated_percent,region:boot deck:verdict,\
                  region:boot deck:band_low_percent,region:boot deck:band_high_percent"
@@ -1277,13 +1283,13 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,3,attached,3,3,71,separated,71,71"),
+            lines[1].ends_with(",0,0,3,attached,3,3,71,separated,71,71"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,,,,"
+                ",0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,,,,"
             ),
             "{}",
             lines[2]
@@ -1450,6 +1456,12 @@ mod tests {
                 && line.contains("no winner is named"),
             "{line}"
         );
+        // The table marks the row: a wheels_on column in sweep.csv.
+        let text = csv(&c);
+        let rows: Vec<Vec<&str>> = text.lines().map(|l| l.split(',').collect()).collect();
+        let at = rows[0].iter().position(|h| *h == "wheels_on").unwrap();
+        let of = |name: &str| rows.iter().find(|r| r[1] == name).map(|r| r[at]);
+        assert_eq!((of("v0"), of("v1")), (Some("1"), Some("0")), "{text}");
     }
 
     #[test]
