@@ -143,26 +143,19 @@ pub fn coarsen_with_params(
             .and_then(|()| check_no_new_crossing(mesh, &coarse, &mut input_crosses));
         match checked {
             Ok(()) => {
-                remove_unused_vertices(&mut coarse);
                 if p.relax_passes > 0 {
+                    // Still in the input's numbering: kept only if it
+                    // passes the checks every try passes.
                     let mut relaxed = coarse.clone();
-                    let moves = relax(&mut relaxed, mesh, &(*mirrors, tol), p.relax_passes);
-                    // Kept only if it passes the same checks.
-                    let on_plane: Vec<bool> = relaxed
-                        .vertices
-                        .iter()
-                        .map(|v| mirrors.on_plane(v, tol))
-                        .collect();
-                    let folds =
-                        |m: &TriMesh| crossings(m).iter().filter(|c| c.same_surface).count();
-                    let fine = folds(&relaxed) <= folds(&coarse);
-                    if fine
-                        && check_closed(&relaxed, &on_plane_or_border(&relaxed, &on_plane)).is_ok()
-                    {
+                    let moves = relax(&mut relaxed, mesh, &on_plane, p.relax_passes);
+                    let passes = check_closed(&relaxed, &border_ok)
+                        .and_then(|()| check_no_new_crossing(mesh, &relaxed, &mut input_crosses));
+                    if passes.is_ok() {
                         report.relaxed = moves;
                         coarse = relaxed;
                     }
                 }
+                remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
                 break;
             }
@@ -309,10 +302,11 @@ const FEATURE_DEG: f64 = 20.0;
 
 /// Tangential relaxation: each free vertex moves half way to the
 /// area-weighted centre of its facets, within its tangent plane, and back
-/// onto the input surface; vertices on borders, mirror planes and sharp
-/// edges stay, and a move that turns one of its facets by more than 30
-/// degrees is not made. Returns the moves made.
-fn relax(coarse: &mut TriMesh, fine: &TriMesh, planes: &(Mirrors, f64), passes: usize) -> usize {
+/// onto the input surface; vertices on borders, on mirror planes
+/// (`on_plane`, per vertex) and on sharp edges stay, and a move that turns
+/// one of its facets by more than 30 degrees is not made. Returns the
+/// moves made.
+fn relax(coarse: &mut TriMesh, fine: &TriMesh, on_plane: &[bool], passes: usize) -> usize {
     let n = coarse.vertices.len();
     let mut around: Vec<Vec<u32>> = vec![Vec::new(); n];
     for (t, tri) in coarse.triangles.iter().enumerate() {
@@ -321,11 +315,7 @@ fn relax(coarse: &mut TriMesh, fine: &TriMesh, planes: &(Mirrors, f64), passes: 
         }
     }
     let cos_feature = FEATURE_DEG.to_radians().cos();
-    let mut fixed: Vec<bool> = coarse
-        .vertices
-        .iter()
-        .map(|v| planes.0.on_plane(v, planes.1))
-        .collect();
+    let mut fixed = on_plane.to_vec();
     let uses = sorted_edge_uses(&coarse.triangles);
     for group in edge_groups(&uses) {
         let (a, b) = group[0].ends();
@@ -386,21 +376,6 @@ fn relax(coarse: &mut TriMesh, fine: &TriMesh, planes: &(Mirrors, f64), passes: 
         }
     }
     moves
-}
-
-/// Vertices on a mirror plane or on an open border: where `check_closed`
-/// allows a border edge on a mesh whose numbering changed.
-fn on_plane_or_border(mesh: &TriMesh, on_plane: &[bool]) -> Vec<bool> {
-    let mut ok = on_plane.to_vec();
-    let uses = sorted_edge_uses(&mesh.triangles);
-    for group in edge_groups(&uses) {
-        if let [u] = group {
-            let (a, b) = u.ends();
-            ok[a as usize] = true;
-            ok[b as usize] = true;
-        }
-    }
-    ok
 }
 
 #[cfg(test)]
