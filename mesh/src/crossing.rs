@@ -44,12 +44,7 @@ pub fn crossings(mesh: &TriMesh) -> Vec<Crossing> {
         return Vec::new();
     };
     let grid = SurfaceGrid::new(mesh, lo, hi);
-    let boxes: Vec<(Point, Point)> = (0..mesh.len())
-        .map(|t| {
-            let [a, b, c] = mesh.corners(t);
-            (a.inf(&b).inf(&c), a.sup(&b).sup(&c))
-        })
-        .collect();
+    let boxes: Vec<(Point, Point)> = (0..mesh.len()).map(|t| mesh.facet_box(t)).collect();
     let surface = surfaces(mesh);
     let cells: Vec<(usize, &[u32])> = grid.cells().filter(|(_, ids)| ids.len() > 1).collect();
     let mut out: Vec<Crossing> = cells

@@ -85,11 +85,8 @@ impl<'a> SurfaceGrid<'a> {
         let n = self.dims.iter().product::<usize>();
         let ranges: Vec<([usize; 3], [usize; 3])> = (0..self.mesh.len())
             .map(|t| {
-                let [a, b, c] = self.mesh.corners(t);
-                (
-                    self.cell_index(&a.inf(&b).inf(&c)),
-                    self.cell_index(&a.sup(&b).sup(&c)),
-                )
+                let (lo, hi) = self.mesh.facet_box(t);
+                (self.cell_index(&lo), self.cell_index(&hi))
             })
             .collect();
         let mut count = vec![0u32; n + 1];

@@ -63,6 +63,12 @@ impl TriMesh {
         ]
     }
 
+    /// Bounding box `(min, max)` of triangle `t`.
+    #[track_caller]
+    pub fn facet_box(&self, t: usize) -> (Point, Point) {
+        corner_box(&self.corners(t))
+    }
+
     /// Area-weighted normal of triangle `t`: `(b - a) x (c - a) / 2`.
     #[track_caller]
     pub fn area_vector(&self, t: usize) -> Vector {
@@ -109,4 +115,9 @@ impl TriMesh {
             t.swap(1, 2);
         }
     }
+}
+
+/// Bounding box `(min, max)` of three corners.
+pub fn corner_box(c: &[Point; 3]) -> (Point, Point) {
+    (c[0].inf(&c[1]).inf(&c[2]), c[0].sup(&c[1]).sup(&c[2]))
 }

@@ -51,6 +51,7 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::distance::closest_point_on_triangle;
+use crate::trimesh::corner_box;
 use crate::{Mirrors, Point, TriMesh, Vector};
 
 /// Wrapping settings.
@@ -102,7 +103,7 @@ impl WrapReasons {
 }
 
 /// What wrapping did (serializable).
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, Default, PartialEq, Serialize)]
 pub struct WrapReport {
     /// Why it ran.
     pub reasons: WrapReasons,
@@ -379,8 +380,7 @@ impl RayBins {
         let at =
             |k: usize, c: f64| (((c - origin[k]) / cell[k]).floor().max(0.0) as usize).min(n - 1);
         for t in 0..mesh.len() {
-            let [a, b, c] = mesh.corners(t);
-            let (mn, mx) = (a.inf(&b).inf(&c), a.sup(&b).sup(&c));
+            let (mn, mx) = mesh.facet_box(t);
             for i in at(0, mn.y)..=at(0, mx.y) {
                 for j in at(1, mn.z)..=at(1, mx.z) {
                     bins[i * n + j].push(t as u32);
@@ -594,10 +594,6 @@ fn winding_votes(facets: &[[Point; 3]], grid: &Grid, known: &mut [u8], inside: &
         }
     }
     leaky
-}
-
-fn corner_box(c: &[Point; 3]) -> (Point, Point) {
-    (c[0].inf(&c[1]).inf(&c[2]), c[0].sup(&c[1]).sup(&c[2]))
 }
 
 /// Distance to the nearest facet at every node within `band` of one,
@@ -845,33 +841,21 @@ pub fn wrap(
     reasons: WrapReasons,
     params: &WrapParams,
 ) -> (TriMesh, WrapReport) {
-    let empty = |cell| {
-        (
-            TriMesh::default(),
-            WrapReport {
-                reasons,
-                cell,
-                nodes: [0; 3],
-                leaky_lines: 0,
-                input_facets: mesh.len(),
-                output_facets: 0,
-                input_area: mesh.area(),
-                output_area: 0.0,
-                volume: 0.0,
-                contact_area: 0.0,
-                contact_gap: 0.0,
-                lost_area: 0.0,
-                lost_at: None,
-                open_area: 0.0,
-            },
-        )
+    let empty = || {
+        let report = WrapReport {
+            reasons,
+            input_facets: mesh.len(),
+            input_area: mesh.area(),
+            ..WrapReport::default()
+        };
+        (TriMesh::default(), report)
     };
     let Some((lo, hi)) = mesh.bounds() else {
-        return empty(0.0);
+        return empty();
     };
     let h = cell_size(&lo, &hi, params);
     if !(h.is_finite() && h > 0.0) {
-        return empty(0.0);
+        return empty();
     }
     let grid = Grid::new(&lo, &hi, mirrors, h);
     let facets = facets_with_images(mesh, mirrors);
