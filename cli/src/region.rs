@@ -479,6 +479,7 @@ mod tests {
                 separation_panels: Vec::new(),
                 separation_source: vec![None; mesh.len()],
                 attachments: Vec::new(),
+                rim_zone: vec![false; mesh.len()],
             };
             evaluate(&regions, &mesh, &layer).remove(0)
         };

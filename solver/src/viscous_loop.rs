@@ -791,7 +791,10 @@ pub const HOERNER_MIN_FRICTION: f64 = 0.004;
 pub const HOERNER_BASE_DRAG: f64 = 0.029;
 
 /// Pressure with the dead water at one pressure: every separated panel
-/// holds [`hoerner_base_cp`], attached panels keep `cp`. An open wake
+/// holds [`hoerner_base_cp`], attached panels keep `cp`, but no lower than
+/// the dead water's beside a rim the flow leaves
+/// ([`BoundaryLayer::rim_zone`]: the speed there is at most the free
+/// streamline's, whose pressure is the dead water's). An open wake
 /// (the loop's dead water) is Kirchhoff's free-streamline limit, whose own
 /// base suction is known to be far too weak (Roshko 1955), so the dead
 /// water's pressure is taken from the correlation instead. Falls back to
@@ -815,14 +818,18 @@ pub fn dead_water_cp(
     let Some(cpb) = hoerner_base_cp(mesh, layer, friction, stream) else {
         return crate::boundary_layer::plateau_cp(mesh, cp, layer);
     };
-    // Attached panels keep `cp` (the plateau model changes only separated ones).
+    // Attached panels keep `cp`, but no lower than the dead water's beside
+    // a rim the flow leaves (the free streamline's bound).
     layer
         .panels
         .iter()
         .zip(cp)
-        .map(|(l, &c)| {
+        .zip(&layer.rim_zone)
+        .map(|((l, &c), &rim)| {
             if l.state == FlowState::Separated {
                 cpb
+            } else if rim {
+                c.max(cpb)
             } else {
                 c
             }

@@ -2,6 +2,7 @@
 
 use tuft_mesh::PanelMesh;
 
+use super::screen::RIM_CP;
 use super::{BoundaryLayer, FlowState, Streamline};
 
 /// How far upstream of a separation point, in median panel sizes, the
@@ -25,7 +26,9 @@ pub const PLATEAU_LOOKBACK_SIZES: f64 = 3.0;
 /// it holds the mean of their plateaus; a separated panel that no
 /// separated streamline crossed (filled from a neighbour) holds the Cp of
 /// [`BoundaryLayer::separation_source`]'s panel, or its own where there is
-/// none.
+/// none. Beside a rim the flow leaves ([`BoundaryLayer::rim_zone`]) the
+/// pressure is held no lower than [`RIM_CP`] first (the free streamline's
+/// bound; the loop's dead water uses its own pressure there instead).
 ///
 /// # Panics
 /// If `cp` or `layer` do not have one entry per panel of `mesh` (a
@@ -34,6 +37,11 @@ pub const PLATEAU_LOOKBACK_SIZES: f64 = 3.0;
 pub fn plateau_cp(mesh: &PanelMesh, cp: &[f64], layer: &BoundaryLayer) -> Vec<f64> {
     assert_eq!(cp.len(), mesh.len(), "one Cp per panel");
     assert_eq!(layer.panels.len(), mesh.len(), "one layer per panel");
+    let cp: Vec<f64> = cp
+        .iter()
+        .zip(&layer.rim_zone)
+        .map(|(&c, &rim)| if rim { c.max(RIM_CP) } else { c })
+        .collect();
     let lookback = PLATEAU_LOOKBACK_SIZES * median_size(mesh);
     let mut sum = vec![0.0; mesh.len()];
     let mut count = vec![0u32; mesh.len()];

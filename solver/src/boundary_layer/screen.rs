@@ -137,6 +137,20 @@ pub struct BoundaryLayer {
     pub separation_source: Vec<Option<u32>>,
     /// The attachment panels the lines started from.
     pub attachments: Vec<u32>,
+    /// Panels beside a sharp rim a line turns round from an
+    /// upstream-facing surface (the rim of a flat nose, a tyre's
+    /// shoulder): the flow leaves the rim and reattaches behind it, so the
+    /// speed is at most that on the free streamline leaving the rim, on the
+    /// wetted face ahead of it (Kirchhoff's free-streamline flow; Roshko
+    /// 1955) and under the separated shear layer behind it. Attached
+    /// potential flow exceeds that many times over next to the rim. The
+    /// zone is the upstream-facing panels along the line up to the rim and
+    /// the panels after it until the attached speed falls to the speed at
+    /// [`RIM_CP`]; the march's speed is capped there at that speed, and
+    /// the loads hold the zone's pressure no lower than the dead water's.
+    /// Panels no line crossed take the flag with the state the fill gives
+    /// them.
+    pub rim_zone: Vec<bool>,
 }
 
 /// Screen the boundary layer over `mesh` from one surface velocity per panel
@@ -282,6 +296,8 @@ struct Contribution {
     panel: u32,
     layer: PanelLayer,
     source: Option<u32>,
+    /// Beside a rim ([`BoundaryLayer::rim_zone`]).
+    rim: bool,
 }
 
 /// One traced and marched line.
@@ -343,6 +359,13 @@ impl<'a> LineContext<'a> {
         let arc = arc_lengths(&trace.points);
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
+        let rim = self.rim_segments(&trace);
+        let cap = self.rim_speed();
+        for (sample, &seg) in samples.iter_mut().zip(&segments) {
+            if rim[seg] {
+                sample.speed = sample.speed.min(cap);
+            }
+        }
         let windows = self.edge_windows(&trace, &arc);
         let clipped: Vec<bool> = samples
             .iter()
@@ -354,7 +377,7 @@ impl<'a> LineContext<'a> {
         clip_edge_peaks(&mut samples, |k| clipped[k]);
         let start = self.start(seed, samples.first().map_or(0.0, |s| s.speed));
         let marched = march::march_line(&samples, &start, self.params);
-        self.split(trace, arc, &peak, &samples, &marched)
+        self.split(trace, arc, &peak, rim, &samples, &marched)
     }
 
     /// Stagnation start at distance `r` from the attachment point with
@@ -518,18 +541,66 @@ impl<'a> LineContext<'a> {
     /// ([`crumpled_panels`]), whose normal flips with no edge of the shape
     /// there.
     fn bluff_crossings(&self, trace: &Trace) -> Vec<usize> {
-        let limit = self.params.base_edge_turn_deg.to_radians();
         (1..trace.panels.len())
-            .filter(|&j| {
-                let (a, b) = (trace.panels[j - 1] as usize, trace.panels[j] as usize);
-                let (da, db) = (self.field.direction[a], self.field.direction[b]);
-                let na = self.mesh.panels[a].normal.into_inner();
-                let turn = (-db.dot(&na)).atan2(db.dot(&da));
-                let front = self.mesh.panels[a].normal.dot(&self.flow_dir) <= -FRONT_FACING_COS;
-                let crumpled = self.crumpled(a) || self.crumpled(b);
-                a != b && turn > limit && !front && !crumpled
-            })
+            .filter(|&j| self.edge_crossing(trace, j) == Some(EdgeCrossing::Bluff))
             .collect()
+    }
+
+    /// What the crossing into segment `j` is: `None` unless the flow turns
+    /// down round a convex edge by more than the bluff-edge limit (and
+    /// neither panel is crumpled); then a rim when the surface before it
+    /// faces upstream, a bluff edge otherwise (see [`Self::bluff_crossings`]).
+    fn edge_crossing(&self, trace: &Trace, j: usize) -> Option<EdgeCrossing> {
+        let limit = self.params.base_edge_turn_deg.to_radians();
+        let (a, b) = (trace.panels[j - 1] as usize, trace.panels[j] as usize);
+        let (da, db) = (self.field.direction[a], self.field.direction[b]);
+        let na = self.mesh.panels[a].normal.into_inner();
+        let turn = (-db.dot(&na)).atan2(db.dot(&da));
+        if a == b || turn <= limit || self.crumpled(a) || self.crumpled(b) {
+            return None;
+        }
+        Some(if self.faces_upstream(a) {
+            EdgeCrossing::Rim
+        } else {
+            EdgeCrossing::Bluff
+        })
+    }
+
+    /// True when panel `t` faces upstream ([`FRONT_FACING_COS`]).
+    fn faces_upstream(&self, t: usize) -> bool {
+        self.mesh.panels[t].normal.dot(&self.flow_dir) <= -FRONT_FACING_COS
+    }
+
+    /// Segments beside a rim the line turns round ([`EdgeCrossing::Rim`];
+    /// see [`BoundaryLayer::rim_zone`]): from the crossing back along the
+    /// line for as long as the panels face upstream, and on from it for as
+    /// long as the attached flow is faster than [`RIM_CP`] allows.
+    fn rim_segments(&self, trace: &Trace) -> Vec<bool> {
+        let p = &trace.panels;
+        let mut out = vec![false; p.len()];
+        let cap = self.rim_speed();
+        for j in 1..p.len() {
+            if self.edge_crossing(trace, j) != Some(EdgeCrossing::Rim) {
+                continue;
+            }
+            let mut i = j;
+            while i > 0 && !out[i - 1] && self.faces_upstream(p[i - 1] as usize) {
+                i -= 1;
+                out[i] = true;
+            }
+            let mut i = j;
+            while i < p.len() && self.field.speed[p[i] as usize] > cap {
+                out[i] = true;
+                i += 1;
+            }
+        }
+        out
+    }
+
+    /// The free-streamline speed bound beside a rim: the speed at
+    /// [`RIM_CP`].
+    fn rim_speed(&self) -> f64 {
+        self.speed * (1.0 - RIM_CP).sqrt()
     }
 
     /// Split the marched line over its segments.
@@ -538,12 +609,18 @@ impl<'a> LineContext<'a> {
         mut trace: Trace,
         mut arc: Vec<f64>,
         peak: &[bool],
+        mut rim: Vec<bool>,
         samples: &[LineSample],
         marched: &LineMarch,
     ) -> LineResult {
         let mark = self.separation_mark(&trace, &arc, peak, samples, marched);
+        let before = trace.panels.len();
         let separated_at = mark.map(|(s, _)| insert_point(&mut trace, &mut arc, s));
-        let contributions = contributions(&trace, &arc, samples, marched, mark);
+        if let Some(k) = separated_at.filter(|_| trace.panels.len() > before) {
+            // The split segment's two halves lie on the same panel.
+            rim.insert(k, rim[k - 1]);
+        }
+        let contributions = contributions(&trace, &arc, samples, marched, mark, &rim);
         let panel_at = |k: Option<usize>| {
             let (k, last) = (k?, trace.panels.len().checked_sub(1)?);
             let j = arc
@@ -588,6 +665,26 @@ impl<'a> LineContext<'a> {
         }
     }
 }
+
+/// A sharp convex edge a line turns round by more than the bluff-edge
+/// limit ([`LineContext::edge_crossing`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum EdgeCrossing {
+    /// From a surface facing upstream (the rim of a flat nose): the flow
+    /// leaves the edge and reattaches behind it.
+    Rim,
+    /// From any other surface (a base edge): the flow leaves for good.
+    Bluff,
+}
+
+/// Pressure coefficient on the free streamline leaving a rim, as the
+/// march sees it beside the rim ([`BoundaryLayer::rim_zone`]): -0.46, the
+/// strongest dead-water suction the separated-flow loop allows (Hoerner's
+/// base-drag correlation at its friction floor; the loads use the dead
+/// water's own pressure). Free-streamline theory bounds the speed there
+/// by the free streamline's (Roshko 1955); the value is the bound's, not a
+/// fit.
+pub const RIM_CP: f64 = -0.46;
 
 /// A surface whose normal points against the flow by more than this
 /// cosine (inclined about 15 degrees or more into the stream) faces
@@ -640,6 +737,7 @@ fn contributions(
     samples: &[LineSample],
     marched: &LineMarch,
     mark: Option<(f64, u32)>,
+    rim: &[bool],
 ) -> Vec<Contribution> {
     let spacing = match samples {
         [a, b, ..] => b.s - a.s,
@@ -675,6 +773,7 @@ fn contributions(
                     risk: st.risk,
                 },
                 source: mark.filter(|_| separated).map(|(_, src)| src),
+                rim: rim[j],
             })
         })
         .collect()
@@ -791,8 +890,10 @@ fn combine(
     let mut transition_panels = Vec::new();
     let mut separation_panels = Vec::new();
     let mut streamlines = Vec::with_capacity(lines.len());
+    let mut rim = vec![false; mesh.len()];
     for line in lines {
         for c in line.contributions {
+            rim[c.panel as usize] |= c.rim;
             let slot = &mut best[c.panel as usize];
             if slot.is_none_or(|b| c.layer.risk > b.layer.risk) {
                 *slot = Some(c);
@@ -802,7 +903,11 @@ fn combine(
         separation_panels.extend(line.separation_panel);
         streamlines.push(line.line);
     }
+    let crossed: Vec<bool> = best.iter().map(Option::is_some).collect();
     fill(mesh, &mut best, params);
+    for (t, b) in best.iter().enumerate() {
+        rim[t] |= !crossed[t] && b.is_some_and(|c| c.rim);
+    }
     transition_panels.sort_unstable();
     transition_panels.dedup();
     separation_panels.sort_unstable();
@@ -819,6 +924,7 @@ fn combine(
         transition_panels,
         separation_panels,
         attachments,
+        rim_zone: rim,
     }
 }
 
