@@ -123,6 +123,10 @@ pub struct Collected {
     /// a variant's mesh is too coarse for converged numbers.
     #[serde(default)]
     pub drag_ranking: String,
+    /// What makes the variants hard to rank ([`notes`]), one sentence
+    /// each.
+    #[serde(default)]
+    pub notes: Vec<String>,
     /// Planned variants with no finished folder.
     pub missing: Vec<String>,
     /// The caution that goes with every number.
@@ -163,7 +167,7 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let c = collect(&args.dir)?;
     write_outputs(&args.dir, &c)?;
     let warnings = distinct_warnings(&c);
-    let notes = notes(&c);
+    let notes = &c.notes;
     if !args.quiet {
         println!(
             "{}: {} variants collected; {}",
@@ -171,7 +175,7 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             c.variants.len(),
             c.drag_ranking
         );
-        for n in &notes {
+        for n in notes {
             println!("  note: {n}");
         }
         for (text, names) in &warnings {
@@ -457,10 +461,18 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         variants,
         missing,
         drag_ranking: String::new(),
+        notes: Vec::new(),
         caution: CAUTION.into(),
     };
-    c.drag_ranking = best_drag(&c);
+    judge(&mut c);
     Ok(c)
+}
+
+/// Fill the verdicts drawn from the variants: [`Collected::drag_ranking`]
+/// and [`Collected::notes`].
+fn judge(c: &mut Collected) {
+    c.drag_ranking = best_drag(c);
+    c.notes = notes(c);
 }
 
 /// Fill [`Row::against_next`] for the lowest drag of each wind condition
@@ -958,10 +970,10 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
     let _ = writeln!(
         s,
         "<p class=\"{class}\"><strong>{}</strong></p>",
-        escape(&sentence(&best_drag(c)))
+        escape(&sentence(&c.drag_ranking))
     );
-    for text in notes(c) {
-        let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(&text));
+    for text in &c.notes {
+        let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(text));
     }
     warnings_section(&mut s, c);
     ranking_table(&mut s, c, groups.len() > 1);
@@ -1106,6 +1118,13 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
 mod tests {
     use super::*;
 
+    /// The page of `c` with its verdicts drawn, as [`collect`] leaves it.
+    fn shown(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
+        let mut c = c.clone();
+        judge(&mut c);
+        page(&c, plots)
+    }
+
     fn sweep(shares: &[f64]) -> Collected {
         let row = |(k, &p): (usize, &f64)| Row {
             rank: k + 1,
@@ -1140,6 +1159,7 @@ mod tests {
             regions: Vec::new(),
             missing: Vec::new(),
             drag_ranking: String::new(),
+            notes: Vec::new(),
             caution: CAUTION.into(),
         }
     }
@@ -1160,7 +1180,7 @@ mod tests {
         }
         let plots = plots(&c).unwrap();
         assert!(plots.is_empty());
-        let html = page(&c, &plots);
+        let html = shown(&c, &plots);
         assert!(
             html.contains("<td>deck30.stl</td>") && !html.contains("/scans/"),
             "{html}"
@@ -1177,7 +1197,7 @@ mod tests {
         c.variants[1].panels = 1200;
         let note = panel_spread(&c.variants).unwrap();
         assert!(note.contains("1000 to 1200 panels"), "{note}");
-        assert!(page(&c, &[]).contains("discretisation error"));
+        assert!(shown(&c, &[]).contains("discretisation error"));
     }
 
     fn warn(r: &mut Row, text: &str) {
@@ -1201,7 +1221,7 @@ mod tests {
         let listed = distinct_warnings(&c);
         assert_eq!(listed.len(), 2);
         assert_eq!(listed[0], (axles, vec!["v0", "v2"]));
-        let html = page(&c, &[]);
+        let html = shown(&c, &[]);
         let escaped = "20 % &amp; 80 % &lt;of&gt; the length";
         assert_eq!(html.matches(escaped).count(), 1, "{html}");
         assert!(!html.contains("<of>"));
@@ -1217,7 +1237,7 @@ mod tests {
         assert_eq!(back.variants[2].warning_texts.len(), 2);
         assert_eq!(back.variants[0].warning_texts[0], axles);
         // No warnings, no section.
-        assert!(!page(&sweep(&[10.0]), &[]).contains("<h2>Warnings</h2>"));
+        assert!(!shown(&sweep(&[10.0]), &[]).contains("<h2>Warnings</h2>"));
     }
 
     /// A variant carrying the coarse-mesh warning (the pipeline's own
@@ -1250,7 +1270,7 @@ mod tests {
             !line.contains("v0") && !line.contains("best drag"),
             "{line}"
         );
-        assert!(page(&c, &[]).contains("<strong>The drag ranking is not converged"));
+        assert!(shown(&c, &[]).contains("<strong>The drag ranking is not converged"));
     }
 
     /// Region columns in sweep.csv and sweep.html, with empty cells for a
@@ -1296,7 +1316,7 @@ mod tests {
         );
         let cols = |l: &str| l.split(',').count();
         assert!(lines.iter().all(|l| cols(l) == cols(lines[0])), "{text}");
-        let html = page(&c, &[]);
+        let html = shown(&c, &[]);
         assert!(html.contains("<th>rear window separated</th>"), "{html}");
         assert!(
             html.contains("<td>3 % attached</td><td>71 % separated</td>"),
@@ -1342,7 +1362,7 @@ mod tests {
             ),
             "{line}"
         );
-        let html = page(&c, &[]);
+        let html = shown(&c, &[]);
         assert!(html.contains("restarts at 1 in each"), "{html}");
         assert!(
             html.contains(
@@ -1354,12 +1374,12 @@ mod tests {
         // One condition: one ranking, no labels.
         let one = sweep(&[10.0, 10.0]);
         assert!(!best_drag(&one).contains("wind condition"));
-        assert!(!page(&one, &[]).contains("restarts at 1"));
+        assert!(!shown(&one, &[]).contains("restarts at 1"));
         // One condition: the page says which (lift in kg depends on it).
         assert!(
-            page(&one, &[]).contains("all at 40 m/s (144 km/h), yaw 0°"),
+            shown(&one, &[]).contains("all at 40 m/s (144 km/h), yaw 0°"),
             "{}",
-            page(&one, &[])
+            shown(&one, &[])
         );
     }
 
@@ -1537,7 +1557,7 @@ mod tests {
                 - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v))
                 > 0.5;
             assert_eq!(underbody_spread(&c.variants).is_some(), under, "{shares:?}");
-            let html = page(&c, &[]);
+            let html = shown(&c, &[]);
             assert_eq!(
                 html.contains("drag ranking of rear slants"),
                 warned,
