@@ -150,14 +150,17 @@ pub fn slice_picture_with_params(
         .iter()
         .map(|v| v.map(|v| v.norm() / u))
         .collect();
+    let away = [
+        away_from_surface(slice, &speed),
+        away_from_surface(slice, &slice.cp),
+    ];
     let painted = [
-        near_values_from_neighbours(slice, &speed),
-        near_values_from_neighbours(slice, &slice.cp),
+        near_values_from_neighbours(slice, &speed, &away[0]),
+        near_values_from_neighbours(slice, &slice.cp, &away[1]),
     ];
     let scales = [
-        ColourScale::speed_ratio(&away_from_surface(slice, &speed))
-            .mark_clipped(&finite(&painted[0])),
-        ColourScale::cp(&away_from_surface(slice, &slice.cp)).mark_clipped(&finite(&painted[1])),
+        ColourScale::speed_ratio(&away[0]).mark_clipped(&finite(&painted[0])),
+        ColourScale::cp(&away[1]).mark_clipped(&finite(&painted[1])),
     ];
     let names = ["Speed |V|/U", "Pressure coefficient Cp"];
     let fields = [&painted[0], &painted[1]];
@@ -227,9 +230,12 @@ fn away_from_surface(slice: &Slice, field: &[Option<f64>]) -> Vec<f64> {
 /// demo coupe, whose neighbours read -0.2 to -0.4) takes the mean of its
 /// neighbours within that range, so that it shows as no spot of its own;
 /// it keeps its value when none of them is. The VTK file keeps every
-/// value.
-fn near_values_from_neighbours(slice: &Slice, field: &[Option<f64>]) -> Vec<Option<f64>> {
-    let away = away_from_surface(slice, field);
+/// value. `away` is [`away_from_surface`] of the field.
+fn near_values_from_neighbours(
+    slice: &Slice,
+    field: &[Option<f64>],
+    away: &[f64],
+) -> Vec<Option<f64>> {
     if slice.near_surface.is_empty() || away.is_empty() {
         return field.to_vec();
     }
@@ -498,7 +504,7 @@ mod tests {
         s.cp[k] = Some(-17.0);
         s.near_surface[k] = true;
         s.near_surface[k + 1] = true;
-        let painted = near_values_from_neighbours(&s, &s.cp);
+        let painted = near_values_from_neighbours(&s, &s.cp, &away_from_surface(&s, &s.cp));
         let v = painted[k].unwrap();
         assert!((v - before).abs() < 0.3, "{v} against {before} before");
         assert_eq!(painted[k + 1], Some(next));
