@@ -41,6 +41,11 @@
 //!   couple of thicknesses (a factor 2, the default, is our choice; 0
 //!   keeps the window of panels, see the setting's doc). Edges the flow runs
 //!   along are left alone.
+//! - **Rims.** Where a line from a surface facing upstream turns round a
+//!   rim (a sharp edge, chamfer or rounding tighter than [`RIM_RADIUS`]
+//!   of the frontal size), the flow leaves the rim and reattaches: the
+//!   speed beside it is capped at the free streamline's
+//!   ([`BoundaryLayer::rim_zone`], [`RIM_CP`]).
 //! - **Short bubbles.** A turbulent separation in a concave corner facing
 //!   the stream (the foot of a windscreen) closes again when the edge speed
 //!   recovers within a few thicknesses; see [`march::march_line`] and
@@ -59,6 +64,7 @@
 //! the number of threads.
 
 use std::collections::VecDeque;
+use std::f64::consts::PI;
 
 use nalgebra::{Point3, Vector3};
 use rayon::prelude::*;
@@ -224,6 +230,28 @@ pub fn screen_boundary_layer(
     Ok(combine(mesh, lines, attachments, params))
 }
 
+/// `sqrt(w h)` of the body's extents across `flow_dir`: `w` horizontal
+/// (doubled for a half model), `h` vertical.
+fn frontal_size(mesh: &PanelMesh, flow_dir: &Vector3<f64>) -> f64 {
+    let side = flow_dir
+        .cross(&Vector3::z())
+        .try_normalize(1e-9)
+        .unwrap_or_else(Vector3::y);
+    let up = side.cross(flow_dir).normalize();
+    let extent = |axis: &Vector3<f64>| {
+        let (lo, hi) = mesh
+            .vertices
+            .iter()
+            .map(|p| p.coords.dot(axis))
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), x| {
+                (lo.min(x), hi.max(x))
+            });
+        (hi - lo).max(0.0)
+    };
+    let halves = if mesh.mirrors.symmetry { 2.0 } else { 1.0 };
+    (halves * extent(&side) * extent(&up)).sqrt()
+}
+
 /// Rounds of upstream seeding for panels the attachment rings missed
 /// ([`coverage`]).
 const COVERAGE_ROUNDS: usize = 3;
@@ -320,6 +348,8 @@ struct LineContext<'a> {
     params: &'a BoundaryLayerParams,
     /// Panels whose velocity no march should trust ([`crumpled_panels`]).
     crumpled: Vec<bool>,
+    /// Largest radius of a rim, m ([`RIM_RADIUS`]).
+    rim_radius: f64,
 }
 
 impl<'a> LineContext<'a> {
@@ -346,6 +376,7 @@ impl<'a> LineContext<'a> {
             speed,
             params,
             crumpled: crumpled_panels(mesh),
+            rim_radius: RIM_RADIUS * frontal_size(mesh, flow_dir),
         }
     }
 
@@ -359,7 +390,7 @@ impl<'a> LineContext<'a> {
         let arc = arc_lengths(&trace.points);
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
-        let rim = self.rim_segments(&trace);
+        let rim = self.rim_segments(&trace, &arc);
         let cap = self.rim_speed();
         for (sample, &seg) in samples.iter_mut().zip(&segments) {
             if rim[seg] {
@@ -541,29 +572,26 @@ impl<'a> LineContext<'a> {
     /// ([`crumpled_panels`]), whose normal flips with no edge of the shape
     /// there.
     fn bluff_crossings(&self, trace: &Trace) -> Vec<usize> {
+        let limit = self.params.base_edge_turn_deg.to_radians();
         (1..trace.panels.len())
-            .filter(|&j| self.edge_crossing(trace, j) == Some(EdgeCrossing::Bluff))
+            .filter(|&j| {
+                let a = trace.panels[j - 1] as usize;
+                self.edge_turn(trace, j).is_some_and(|t| t > limit) && !self.faces_upstream(a)
+            })
             .collect()
     }
 
-    /// What the crossing into segment `j` is: `None` unless the flow turns
-    /// down round a convex edge by more than the bluff-edge limit (and
-    /// neither panel is crumpled); then a rim when the surface before it
-    /// faces upstream, a bluff edge otherwise (see [`Self::bluff_crossings`]).
-    fn edge_crossing(&self, trace: &Trace, j: usize) -> Option<EdgeCrossing> {
-        let limit = self.params.base_edge_turn_deg.to_radians();
+    /// How far the flow turns down round a convex edge at the crossing
+    /// into segment `j` (radians; negative round a concave one); `None`
+    /// within a panel or next to a crumpled panel ([`crumpled_panels`]).
+    fn edge_turn(&self, trace: &Trace, j: usize) -> Option<f64> {
         let (a, b) = (trace.panels[j - 1] as usize, trace.panels[j] as usize);
-        let (da, db) = (self.field.direction[a], self.field.direction[b]);
-        let na = self.mesh.panels[a].normal.into_inner();
-        let turn = (-db.dot(&na)).atan2(db.dot(&da));
-        if a == b || turn <= limit || self.crumpled(a) || self.crumpled(b) {
+        if a == b || self.crumpled(a) || self.crumpled(b) {
             return None;
         }
-        Some(if self.faces_upstream(a) {
-            EdgeCrossing::Rim
-        } else {
-            EdgeCrossing::Bluff
-        })
+        let (da, db) = (self.field.direction[a], self.field.direction[b]);
+        let na = self.mesh.panels[a].normal.into_inner();
+        Some((-db.dot(&na)).atan2(db.dot(&da)))
     }
 
     /// True when panel `t` faces upstream ([`FRONT_FACING_COS`]).
@@ -571,28 +599,55 @@ impl<'a> LineContext<'a> {
         self.mesh.panels[t].normal.dot(&self.flow_dir) <= -FRONT_FACING_COS
     }
 
-    /// Segments beside a rim the line turns round ([`EdgeCrossing::Rim`];
-    /// see [`BoundaryLayer::rim_zone`]): from the crossing back along the
-    /// line for as long as the panels face upstream, and on from it for as
-    /// long as the attached flow is faster than [`RIM_CP`] allows.
-    fn rim_segments(&self, trace: &Trace) -> Vec<bool> {
+    /// Segments beside a rim the line turns round (see
+    /// [`BoundaryLayer::rim_zone`]). A rim: from a panel facing upstream,
+    /// the flow turns down round convex edges by more than the bluff-edge
+    /// limit, on a run no longer than the turn (radians) times
+    /// [`RIM_RADIUS`] of the body's frontal size, i.e. round a rounding
+    /// tighter than that radius (a sharp edge, a chamfer, a small radius). The zone: from the rim's first
+    /// crossing back along the line for as long as the panels face
+    /// upstream, the segments across the rim, and on from its last
+    /// crossing for as long as the attached flow is faster than [`RIM_CP`]
+    /// allows.
+    fn rim_segments(&self, trace: &Trace, arc: &[f64]) -> Vec<bool> {
         let p = &trace.panels;
         let mut out = vec![false; p.len()];
         let cap = self.rim_speed();
-        for j in 1..p.len() {
-            if self.edge_crossing(trace, j) != Some(EdgeCrossing::Rim) {
+        let limit = self.params.base_edge_turn_deg.to_radians();
+        let mut j = 1;
+        while j < p.len() {
+            let start = j;
+            j += 1;
+            if !self.faces_upstream(p[start - 1] as usize) {
                 continue;
             }
-            let mut i = j;
+            let (mut turn, mut end) = (0.0, None);
+            for k in start..p.len() {
+                let run = arc[k] - arc[start];
+                if run > PI * self.rim_radius {
+                    break;
+                }
+                turn += self.edge_turn(trace, k).unwrap_or(0.0);
+                if turn > limit && run <= turn * self.rim_radius {
+                    end = Some(k);
+                    break;
+                }
+            }
+            let Some(end) = end else {
+                continue;
+            };
+            let mut i = start;
             while i > 0 && !out[i - 1] && self.faces_upstream(p[i - 1] as usize) {
                 i -= 1;
                 out[i] = true;
             }
-            let mut i = j;
+            out[start..end].iter_mut().for_each(|o| *o = true);
+            let mut i = end;
             while i < p.len() && self.field.speed[p[i] as usize] > cap {
                 out[i] = true;
                 i += 1;
             }
+            j = end + 1;
         }
         out
     }
@@ -666,17 +721,6 @@ impl<'a> LineContext<'a> {
     }
 }
 
-/// A sharp convex edge a line turns round by more than the bluff-edge
-/// limit ([`LineContext::edge_crossing`]).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum EdgeCrossing {
-    /// From a surface facing upstream (the rim of a flat nose): the flow
-    /// leaves the edge and reattaches behind it.
-    Rim,
-    /// From any other surface (a base edge): the flow leaves for good.
-    Bluff,
-}
-
 /// Pressure coefficient on the free streamline leaving a rim, as the
 /// march sees it beside the rim ([`BoundaryLayer::rim_zone`]): -0.46, the
 /// strongest dead-water suction the separated-flow loop allows (Hoerner's
@@ -685,6 +729,17 @@ enum EdgeCrossing {
 /// by the free streamline's (Roshko 1955); the value is the bound's, not a
 /// fit.
 pub const RIM_CP: f64 = -0.46;
+
+/// Largest radius of a rim, as a share of the body's frontal size
+/// `sqrt(w h)` (its width and height across the stream): a turn of more
+/// than the bluff-edge limit (50 degrees) round a tighter rounding (a
+/// sharp edge, a chamfer, whose run over the turn is shorter than that
+/// radius times the turn) is a rim. Round a bluff vehicle's front edges
+/// the drag falls steeply as the radius grows to about 0.04 of the
+/// frontal size and little beyond it (Cooper, SAE 850288, 1985, from
+/// memory; the knee moves with the Reynolds number): a smaller rounding
+/// lets the flow separate, a larger one keeps it on.
+pub const RIM_RADIUS: f64 = 0.04;
 
 /// A surface whose normal points against the flow by more than this
 /// cosine (inclined about 15 degrees or more into the stream) faces
