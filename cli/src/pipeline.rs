@@ -54,6 +54,10 @@ pub struct Computed {
     /// magnitude of its normal's component along the stream; real panels),
     /// m^2.
     pub separated_frontal: f64,
+    /// Area of the panels beside a rim the flow leaves
+    /// (`BoundaryLayer::rim_zone`; real panels), m^2, and the largest
+    /// rounding that counts as a rim, m.
+    pub rim: (f64, f64),
     /// Lift of the ground-facing panels' pressure, kg: whole, front axle,
     /// rear axle.
     pub underbody_lift_kg: [f64; 3],
@@ -638,6 +642,15 @@ fn finish(
         .map(|(p, _)| p.area);
     let underbody_separation = (underbody_separated.sum(), underbody_area.sum());
     let stream = fs.velocity().normalize();
+    let rim = (
+        mesh.panels
+            .iter()
+            .zip(&layer.rim_zone)
+            .filter(|&(_, &z)| z)
+            .map(|(p, _)| p.area)
+            .sum(),
+        tuft_solver::boundary_layer::screen::rim_radius(mesh, &stream),
+    );
     let separated_frontal = mesh
         .panels
         .iter()
@@ -688,6 +701,7 @@ fn finish(
         separated_area,
         underbody_separation,
         separated_frontal,
+        rim,
         underbody_lift_kg,
         regions,
         warnings,
@@ -716,9 +730,9 @@ pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<Stri
 /// (`BoundaryLayer::rim_zone`), which only flat-faced cylinders and boxes
 /// check. Measured on the demo coupe's STL with four wheels standing on
 /// the ground and running into the body (`cli/tests/check.rs` builds it;
-/// 2026-12-02): C_D 0.185 to 0.209 at 3,000 and 6,000 panels with the
+/// 2026-12-02): C_D 0.176 to 0.210 at 2,000 to 8,000 panels with the
 /// wheels on the ground, raised 5 mm or pressed 15 mm in, against 0.149
-/// to 0.152 without them (before the bound, 0.07 to 0.10: the tyres'
+/// to 0.164 without them (before the bound, 0.07 to 0.10: the tyres'
 /// attached-flow suction pulled the car forward).
 pub const WHEELS_DRAG: &str = "with wheels on, tuft's drag is no basis for a figure or a ranking: a \
 wheel's wake, its rotation and the flow through its arch are outside the model, and no measurement \

@@ -164,6 +164,13 @@ fn print_summary(out: &Path, s: &Summary) {
             cpb(w.base_cp_plateau)
         );
     }
+    if s.separation.rim_m2 > 0.0 {
+        println!(
+            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them held at the free-streamline bound",
+            1000.0 * s.separation.rim_radius_m,
+            s.separation.rim_m2
+        );
+    }
     for r in &s.regions {
         println!("  {}: {}", r.name, r.words());
     }

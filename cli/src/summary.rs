@@ -60,6 +60,13 @@ pub struct Separation {
     /// the normal's component along the stream), m^2, whole body.
     #[serde(default)]
     pub frontal_m2: f64,
+    /// Area beside sharp front edges the flow leaves (rims), where the
+    /// pressure is held at the free-streamline bound, m^2, whole body.
+    #[serde(default)]
+    pub rim_m2: f64,
+    /// The largest rounding of a front edge that counts as a rim, m.
+    #[serde(default)]
+    pub rim_radius_m: f64,
 }
 
 /// The drag estimate with its sensitivity band.

@@ -470,6 +470,8 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
             frontal_m2: sym * c.separated_frontal,
+            rim_m2: sym * c.rim.0,
+            rim_radius_m: c.rim.1,
             // An empty float sum is -0.0; adding +0.0 keeps "-0.0 %" out.
             underbody_fraction: match c.underbody_separation {
                 (s, a) if a > 0.0 => s / a + 0.0,
@@ -501,15 +503,45 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     }
 }
 
+/// The report's words on the edges the flow leaves from a face into the
+/// stream (`BoundaryLayer::rim_zone`); `dead_water`: the separated-flow
+/// loop ran (else the plateau model's bound, Cp -0.46).
+pub fn rim_text(s: &Separation, dead_water: bool) -> String {
+    let bound = if dead_water {
+        "the dead water's".to_owned()
+    } else {
+        format!(
+            "taken as Cp {} (the strongest dead-water suction the separated-flow loop allows)",
+            tuft_solver::boundary_layer::screen::RIM_CP
+        )
+    };
+    format!(
+        "The flow leaves sharp front edges here (rims: an edge, chamfer or rounding tighter than {:.0} mm, \
+         0.04 of the frontal size, which the flow turns round from a face into the stream). Beside them, \
+         over {:.2} m^2, attached potential flow would give a suction many times the free stream's; the \
+         pressure there is held no lower than on the free streamline leaving the edge, {bound}. \
+         Bodies with such edges come out low: flat-faced cylinders and a cube 7-28 % below their handbook \
+         drag. Whether a rounded edge counts is decided on the panels: one whose radius is close to {:.0} \
+         mm, or spans no more than a panel or two, may read either way, so compare variants of a front \
+         edge at one panel count and read them against the step in drag it makes.",
+        1000.0 * s.rim_radius_m,
+        s.rim_m2,
+        1000.0 * s.rim_radius_m
+    )
+}
+
 /// The report's words on the lift near the ground: the underbody's part,
 /// the least certain one.
 fn lift_text(l: &LiftKg, at: &str) -> String {
-    let rest = l.total - l.underbody;
+    // Whole kilograms, with no "-0" for a small negative lift.
+    let kg = |x: f64| x.round() + 0.0;
+    let rest = kg(l.total - l.underbody);
     let mut text = format!(
-        "Of the lift of {:.0} {at}, the underbody's pressure gives {:.0} kg and the rest of the body \
-         {rest:.0} kg. The ground is modelled as a smooth plane moving with the air, and the underbody \
+        "Of the lift of {} {at}, the underbody's pressure gives {} kg and the rest of the body \
+         {rest} kg. The ground is modelled as a smooth plane moving with the air, and the underbody \
          is as smooth as the surface given, ",
-        l.total, l.underbody
+        kg(l.total),
+        kg(l.underbody)
     );
     if l.underbody < 0.0 {
         text += "so the flow under the body speeds up and sucks it down more than under a real car, \
@@ -827,6 +859,12 @@ fn report(
             body: s.notes.join("\n\n"),
         });
     }
+    if s.separation.rim_m2 > 0.0 {
+        sections.push(TextSection {
+            title: "Sharp front edges".into(),
+            body: rim_text(&s.separation, s.separated_wakes.is_some()),
+        });
+    }
     if s.mesh.ground_z.is_some() {
         sections.push(TextSection {
             title: "Lift near the ground".into(),
@@ -885,5 +923,19 @@ mod tests {
         assert_eq!(super::drag_force_words(&d, 1.0, 0), "300 (150 to 600)");
         // Power P = F V: at 40 m/s, 12 kW (6 to 24).
         assert_eq!(super::drag_force_words(&d, 0.04, 1), "12.0 (6.0 to 24.0)");
+    }
+
+    /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
+    /// report had said "the lift of -0 kg").
+    #[test]
+    fn small_lifts_read_without_a_minus_zero() {
+        let l = crate::summary::LiftKg {
+            total: -0.4,
+            underbody: -6.0,
+            ..Default::default()
+        };
+        let text = super::lift_text(&l, "kg at 40 m/s");
+        assert!(text.starts_with("Of the lift of 0 kg at 40 m/s"), "{text}");
+        assert!(text.contains("the rest of the body 6 kg"), "{text}");
     }
 }

@@ -339,6 +339,12 @@ fn a_coupe_with_wheels_through_its_body_standing_on_the_ground_is_wrapped_and_ru
     let cd = summary["drag_estimate"]["cd"].as_f64().unwrap();
     println!("wrapped coupe with wheels: C_D {cd:.3}");
     assert!(cd.is_finite() && cd > 0.0, "{cd}");
+    // The tyres' shoulders are rims the flow leaves: the summary gives
+    // the area held at the free-streamline bound, and the report says so.
+    let rim = summary["separation"]["rim_m2"].as_f64().unwrap();
+    assert!(rim > 0.05, "{rim}");
+    let report = std::fs::read_to_string(dir.path().join("wheels").join("report.html")).unwrap();
+    assert!(report.contains("Sharp front edges"));
 }
 
 #[test]

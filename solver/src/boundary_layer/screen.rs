@@ -230,6 +230,13 @@ pub fn screen_boundary_layer(
     Ok(combine(mesh, lines, attachments, params))
 }
 
+/// The largest rounding of a rim on `mesh` in a stream along `flow_dir`, m:
+/// [`RIM_RADIUS`] of the frontal size `sqrt(w h)` (the body's extents
+/// across the stream, horizontal `w` doubled for a half model).
+pub fn rim_radius(mesh: &PanelMesh, flow_dir: &Vector3<f64>) -> f64 {
+    RIM_RADIUS * frontal_size(mesh, &flow_dir.normalize())
+}
+
 /// `sqrt(w h)` of the body's extents across `flow_dir`: `w` horizontal
 /// (doubled for a half model), `h` vertical.
 fn frontal_size(mesh: &PanelMesh, flow_dir: &Vector3<f64>) -> f64 {
@@ -376,7 +383,7 @@ impl<'a> LineContext<'a> {
             speed,
             params,
             crumpled: crumpled_panels(mesh),
-            rim_radius: RIM_RADIUS * frontal_size(mesh, flow_dir),
+            rim_radius: rim_radius(mesh, flow_dir),
         }
     }
 
@@ -602,9 +609,9 @@ impl<'a> LineContext<'a> {
     /// Segments beside a rim the line turns round (see
     /// [`BoundaryLayer::rim_zone`]). A rim: from a panel facing upstream,
     /// the flow turns down round convex edges by more than the bluff-edge
-    /// limit, on a run no longer than the turn (radians) times
-    /// [`RIM_RADIUS`] of the body's frontal size, i.e. round a rounding
-    /// tighter than that radius (a sharp edge, a chamfer, a small radius). The zone: from the rim's first
+    /// limit, round a rounding tighter than [`RIM_RADIUS`] of the body's
+    /// frontal size (a sharp edge; edges close together, each turning
+    /// less, whose run over the turn between them is a radius under it). The zone: from the rim's first
     /// crossing back along the line for as long as the panels face
     /// upstream, the segments across the rim, and on from its last
     /// crossing for as long as the attached flow is faster than [`RIM_CP`]
@@ -622,13 +629,20 @@ impl<'a> LineContext<'a> {
                 continue;
             }
             let (mut turn, mut end) = (0.0, None);
+            let first = self.edge_turn(trace, start).unwrap_or(0.0);
             for k in start..p.len() {
                 let run = arc[k] - arc[start];
                 if run > PI * self.rim_radius {
                     break;
                 }
-                turn += self.edge_turn(trace, k).unwrap_or(0.0);
-                if turn > limit && run <= turn * self.rim_radius {
+                let here = self.edge_turn(trace, k).unwrap_or(0.0);
+                turn += here;
+                // The rounding's radius: the run between the first and the
+                // last edge over the turn between their midpoints (exact
+                // for a circular arc cut into equal chords; zero for one
+                // edge).
+                let between = turn - 0.5 * (first + here);
+                if turn > limit && run <= between * self.rim_radius {
                     end = Some(k);
                     break;
                 }
