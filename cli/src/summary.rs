@@ -254,6 +254,11 @@ pub struct SeparatedWakes {
     pub base_cp_plateau: Option<f64>,
     /// Base pressure coefficient of the last pass.
     pub base_cp_loop: Option<f64>,
+    /// The dead water's pressure coefficient, from Hoerner's base-drag
+    /// correlation (`None` when nothing separated faces downstream: the
+    /// plateau model then holds the separated panels).
+    #[serde(default)]
+    pub dead_water_cp: Option<f64>,
     /// Wake-sheet panels shed in the last pass (0 with the open dead
     /// water, which sheds none).
     pub wake_panels: usize,

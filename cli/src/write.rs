@@ -493,6 +493,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             cd_loop: w.loads.total.coefficients.drag,
             base_cp_plateau: w.base_cp_plateau,
             base_cp_loop: w.base_cp_loop,
+            dead_water_cp: w.dead_water_cp,
             wake_panels: w.wake.panels.len(),
         }),
         regions: c.regions.clone(),
@@ -507,6 +508,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
 /// stream (`BoundaryLayer::rim_zone`); `dead_water`: the separated-flow
 /// loop ran (else the plateau model's bound, Cp -0.46).
 pub fn rim_text(s: &Separation, dead_water: bool) -> String {
+    use tuft_solver::boundary_layer::screen::RIM_RADIUS;
     let bound = if dead_water {
         "the dead water's".to_owned()
     } else {
@@ -517,7 +519,7 @@ pub fn rim_text(s: &Separation, dead_water: bool) -> String {
     };
     format!(
         "The flow leaves sharp front edges here (rims: an edge, chamfer or rounding tighter than {:.0} mm, \
-         0.04 of the frontal size, which the flow turns round from a face into the stream). Beside them, \
+         {RIM_RADIUS} of the frontal size, which the flow turns round from a face into the stream). Beside them, \
          over {:.2} m^2, attached potential flow would give a suction many times the free stream's; the \
          pressure there is held no lower than on the free streamline leaving the edge, {bound}. \
          Bodies with such edges come out low: flat-faced cylinders and a cube 7-28 % below their handbook \
@@ -862,7 +864,14 @@ fn report(
     if s.separation.rim_m2 > 0.0 {
         sections.push(TextSection {
             title: "Sharp front edges".into(),
-            body: rim_text(&s.separation, s.separated_wakes.is_some()),
+            // The loop's dead water has a pressure of its own unless
+            // nothing faces downstream (then the plateau model's bound).
+            body: rim_text(
+                &s.separation,
+                s.separated_wakes
+                    .as_ref()
+                    .is_some_and(|w| w.dead_water_cp.is_some()),
+            ),
         });
     }
     if s.mesh.ground_z.is_some() {

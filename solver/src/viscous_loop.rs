@@ -815,6 +815,7 @@ pub fn dead_water_cp(
     assert_eq!(friction.len(), mesh.len(), "one friction vector per panel");
     assert_eq!(cp.len(), mesh.len(), "one Cp per panel");
     assert_eq!(layer.panels.len(), mesh.len(), "one layer per panel");
+    assert_eq!(layer.rim_zone.len(), mesh.len(), "one rim flag per panel");
     let Some(cpb) = hoerner_base_cp(mesh, layer, friction, stream) else {
         return crate::boundary_layer::plateau_cp(mesh, cp, layer);
     };

@@ -276,6 +276,20 @@ fn sharp_edged_boxes() {
     assert!((0.5..1.2).contains(&cd), "box: C_D {cd:.3}");
 }
 
+/// The march's free-streamline bound beside a rim is the strongest
+/// dead-water suction the loop allows: Hoerner's base-drag correlation at
+/// its friction floor (one value, written twice).
+#[test]
+fn the_rim_bound_is_the_loops_strongest_dead_water() {
+    use tuft_solver::boundary_layer::screen::RIM_CP;
+    use tuft_solver::viscous_loop::{HOERNER_BASE_DRAG, HOERNER_MIN_FRICTION};
+    let strongest = -HOERNER_BASE_DRAG / HOERNER_MIN_FRICTION.sqrt();
+    assert!(
+        (RIM_CP - strongest).abs() < 0.005,
+        "{RIM_CP} against {strongest}"
+    );
+}
+
 /// A rounded nose has no rim: on the slant-back research body (front edges
 /// rounded with 100 mm, Ahmed, Ramm & Faltin 1984) no panel lies in the
 /// rim zone, so its figures in `separated_wakes.rs` are untouched.

@@ -31,12 +31,13 @@ pub const PLATEAU_LOOKBACK_SIZES: f64 = 3.0;
 /// bound; the loop's dead water uses its own pressure there instead).
 ///
 /// # Panics
-/// If `cp` or `layer` do not have one entry per panel of `mesh` (a
-/// programmer mistake).
+/// If `cp` or `layer` (its panels and rim flags) do not have one entry per
+/// panel of `mesh` (a programmer mistake).
 #[track_caller]
 pub fn plateau_cp(mesh: &PanelMesh, cp: &[f64], layer: &BoundaryLayer) -> Vec<f64> {
     assert_eq!(cp.len(), mesh.len(), "one Cp per panel");
     assert_eq!(layer.panels.len(), mesh.len(), "one layer per panel");
+    assert_eq!(layer.rim_zone.len(), mesh.len(), "one rim flag per panel");
     let cp: Vec<f64> = cp
         .iter()
         .zip(&layer.rim_zone)

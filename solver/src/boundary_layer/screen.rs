@@ -150,10 +150,12 @@ pub struct BoundaryLayer {
     /// wetted face ahead of it (Kirchhoff's free-streamline flow; Roshko
     /// 1955) and under the separated shear layer behind it. Attached
     /// potential flow exceeds that many times over next to the rim. The
-    /// zone is the upstream-facing panels along the line up to the rim and
-    /// the panels after it until the attached speed falls to the speed at
-    /// [`RIM_CP`]; the march's speed is capped there at that speed, and
-    /// the loads hold the zone's pressure no lower than the dead water's.
+    /// zone is the upstream-facing panels along the line up to the rim, the
+    /// panels across it, and the panels after it until the attached speed
+    /// falls to the speed at [`RIM_CP`]; the march's speed is capped there
+    /// at that speed, and the loads hold the zone's pressure no lower than
+    /// the dead water's after the separated-flow loop, [`RIM_CP`] in the
+    /// plateau model.
     /// Panels no line crossed take the flag with the state the fill gives
     /// them.
     pub rim_zone: Vec<bool>,
@@ -596,9 +598,16 @@ impl<'a> LineContext<'a> {
         if a == b || self.crumpled(a) || self.crumpled(b) {
             return None;
         }
+        Some(self.turn_between(a, b))
+    }
+
+    /// How far the flow turns down from panel `a` onto panel `b` (radians,
+    /// negative when it turns up), from their flow directions and `a`'s
+    /// normal.
+    fn turn_between(&self, a: usize, b: usize) -> f64 {
         let (da, db) = (self.field.direction[a], self.field.direction[b]);
         let na = self.mesh.panels[a].normal.into_inner();
-        Some((-db.dot(&na)).atan2(db.dot(&da)))
+        (-db.dot(&na)).atan2(db.dot(&da))
     }
 
     /// True when panel `t` faces upstream ([`FRONT_FACING_COS`]).
@@ -608,10 +617,11 @@ impl<'a> LineContext<'a> {
 
     /// Segments beside a rim the line turns round (see
     /// [`BoundaryLayer::rim_zone`]). A rim: from a panel facing upstream,
-    /// the flow turns down round convex edges by more than the bluff-edge
-    /// limit, round a rounding tighter than [`RIM_RADIUS`] of the body's
-    /// frontal size (a sharp edge; edges close together, each turning
-    /// less, whose run over the turn between them is a radius under it). The zone: from the rim's first
+    /// over a convex edge, the flow's turns (down positive, up negative)
+    /// add up to more than the bluff-edge limit round a rounding tighter
+    /// than [`RIM_RADIUS`] of the body's frontal size (a sharp edge; edges
+    /// close together, each turning less, whose run over the turn between
+    /// them is a radius under it). Crumpled panels are stepped over. The zone: from the rim's first
     /// crossing back along the line for as long as the panels face
     /// upstream, the segments across the rim, and on from its last
     /// crossing for as long as the attached flow is faster than [`RIM_CP`]
@@ -621,21 +631,33 @@ impl<'a> LineContext<'a> {
         let mut out = vec![false; p.len()];
         let cap = self.rim_speed();
         let limit = self.params.base_edge_turn_deg.to_radians();
-        let mut j = 1;
-        while j < p.len() {
-            let start = j;
-            j += 1;
-            if !self.faces_upstream(p[start - 1] as usize) {
+        // Crossings between panels that are not crumpled (a sliver on an
+        // edge is stepped over, its two turns taken as one): (segment
+        // entered, segment left, turn).
+        let mut crossings: Vec<(usize, usize, f64)> = Vec::new();
+        let mut last: Option<usize> = None;
+        for (k, &t) in p.iter().enumerate() {
+            if self.crumpled(t as usize) {
+                continue;
+            }
+            if let Some(a) = last.filter(|&a| p[a] != t) {
+                crossings.push((k, a, self.turn_between(p[a] as usize, t as usize)));
+            }
+            last = Some(k);
+        }
+        let mut c = 0;
+        while c < crossings.len() {
+            let (start, before, first) = crossings[c];
+            c += 1;
+            if first <= 0.0 || !self.faces_upstream(p[before] as usize) {
                 continue;
             }
             let (mut turn, mut end) = (0.0, None);
-            let first = self.edge_turn(trace, start).unwrap_or(0.0);
-            for k in start..p.len() {
+            for (m, &(k, _, here)) in crossings.iter().enumerate().skip(c - 1) {
                 let run = arc[k] - arc[start];
                 if run > PI * self.rim_radius {
                     break;
                 }
-                let here = self.edge_turn(trace, k).unwrap_or(0.0);
                 turn += here;
                 // The rounding's radius: the run between the first and the
                 // last edge over the turn between their midpoints (exact
@@ -643,25 +665,25 @@ impl<'a> LineContext<'a> {
                 // edge).
                 let between = turn - 0.5 * (first + here);
                 if turn > limit && run <= between * self.rim_radius {
-                    end = Some(k);
+                    end = Some((m, k));
                     break;
                 }
             }
-            let Some(end) = end else {
+            let Some((m, end)) = end else {
                 continue;
             };
-            let mut i = start;
+            let mut i = before + 1;
             while i > 0 && !out[i - 1] && self.faces_upstream(p[i - 1] as usize) {
                 i -= 1;
                 out[i] = true;
             }
-            out[start..end].iter_mut().for_each(|o| *o = true);
+            out[before + 1..end].iter_mut().for_each(|o| *o = true);
             let mut i = end;
             while i < p.len() && self.field.speed[p[i] as usize] > cap {
                 out[i] = true;
                 i += 1;
             }
-            j = end + 1;
+            c = m + 1;
         }
         out
     }
@@ -973,6 +995,12 @@ fn combine(
         streamlines.push(line.line);
     }
     let crossed: Vec<bool> = best.iter().map(Option::is_some).collect();
+    // Any line's rim flag, not only the kept one's, spreads with the fill.
+    for (b, &r) in best.iter_mut().zip(&rim) {
+        if let Some(c) = b {
+            c.rim = r;
+        }
+    }
     fill(mesh, &mut best, params);
     for (t, b) in best.iter().enumerate() {
         rim[t] |= !crossed[t] && b.is_some_and(|c| c.rim);
