@@ -235,7 +235,7 @@ fn pictures(
     let cp = sheet::surface_sheet(s, SurfaceField::Pressure, caption)?;
     add(
         "pressure.png",
-        "Surface pressure coefficient: side, top, underneath and rear",
+        "Surface pressure coefficient: side, top, underneath, front and rear",
         cp.to_png()?,
     );
     let mut risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;

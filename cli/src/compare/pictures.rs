@@ -1,5 +1,5 @@
 //! The comparison's pictures and page: the Cp difference and the change in
-//! separation drawn on B's body in the run report's four views, and a
+//! separation drawn on B's body in the run report's five views, and a
 //! self-contained `compare.html`.
 
 use anyhow::{Context, Result};
@@ -138,7 +138,8 @@ pub fn write(
         (
             "delta-cp.png",
             Picture {
-                title: "Cp of B minus Cp of A, on B's body: side, top, underneath and rear".into(),
+                title: "Cp of B minus Cp of A, on B's body: side, top, underneath, front and rear"
+                    .into(),
                 png: dcp.to_png()?,
             },
         ),

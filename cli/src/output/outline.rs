@@ -1,4 +1,4 @@
-//! Named regions drawn on a four-view sheet: the outline of each region's
+//! Named regions drawn on a view sheet: the outline of each region's
 //! panels where it meets panels outside it (only where that edge is seen),
 //! and the region's name clear of the body with a thin line to the middle
 //! of what is seen of it (so that the name hides none of the result), so a
@@ -86,7 +86,7 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
                     label = (label.0 + x, label.1 + y, label.2 + 1.0);
                 }
             }
-            if label.2 > 0.0 && *view != View::Rear {
+            if label.2 > 0.0 && !matches!(*view, View::Front | View::Rear) {
                 let at = (label.0 / label.2, label.1 / label.2);
                 let below = *view == View::Underneath;
                 placed.push(draw_label(

@@ -2,8 +2,8 @@
 //! coloured per panel, with Lambert shading so the shape reads.
 //!
 //! Views (x downstream, z up): [`View::Side`] from -y (nose to the left),
-//! [`View::Top`] from +z, [`View::Underneath`] from -z and [`View::Rear`]
-//! from +x looking upstream. A half model (symmetry plane declared) is drawn
+//! [`View::Top`] from +z, [`View::Underneath`] from -z, [`View::Front`]
+//! from -x looking downstream and [`View::Rear`] from +x looking upstream. A half model (symmetry plane declared) is drawn
 //! whole: its mirror image across y = 0 carries the same values.
 //!
 //! Shading: `ambient + (1 - ambient) max(0, n . l)` (Lambert's cosine law,
@@ -20,7 +20,7 @@ use super::colorbar::hatch;
 /// Colour of the body outline.
 const OUTLINE: Rgb = [60, 62, 70];
 
-/// One of the four standard views.
+/// One of the standard views.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum View {
     /// From -y looking at +y; x to the right (nose left), z up.
@@ -29,13 +29,21 @@ pub enum View {
     Top,
     /// From -z looking up; x to the right, -y up.
     Underneath,
+    /// From -x looking downstream; -y to the right, z up.
+    Front,
     /// From +x looking upstream; y to the right, z up.
     Rear,
 }
 
 impl View {
-    /// The four views in sheet order.
-    pub const ALL: [View; 4] = [View::Side, View::Top, View::Underneath, View::Rear];
+    /// The views in sheet order.
+    pub const ALL: [View; 5] = [
+        View::Side,
+        View::Top,
+        View::Underneath,
+        View::Front,
+        View::Rear,
+    ];
 
     /// Label printed above the view.
     pub fn label(self) -> &'static str {
@@ -43,7 +51,8 @@ impl View {
             View::Side => "Side, from \u{2212}y (nose left)",
             View::Top => "Top, from +z",
             View::Underneath => "Underneath, from \u{2212}z",
-            View::Rear => "Rear, from +x looking upstream",
+            View::Front => "Front, from \u{2212}x",
+            View::Rear => "Rear, from +x",
         }
     }
 
@@ -55,6 +64,7 @@ impl View {
             View::Side => (x, z, -y),
             View::Top => (x, y, z),
             View::Underneath => (x, -y, -z),
+            View::Front => (-y, z, -x),
             View::Rear => (y, z, x),
         }
     }

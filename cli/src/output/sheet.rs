@@ -1,5 +1,5 @@
-//! The four-view sheet: one PNG per surface field with side, top,
-//! underneath and rear views at one common scale, a title naming the
+//! The view sheet: one PNG per surface field with side, top,
+//! underneath, front and rear views at one common scale, a title naming the
 //! field, case and speed, view labels, a scale bar and one colour bar.
 
 use tuft_mesh::Point;
@@ -65,15 +65,20 @@ const LABEL_BAND: f64 = 34.0;
 /// Width of the colour-bar column, pixels.
 pub(crate) const BAR_COLUMN: f64 = 230.0;
 
-/// Frames for the four views at one common scale (largest that fits all).
+/// Frames for the views at one common scale (largest that fits all): side
+/// and top above, underneath below with front and rear side by side in
+/// the last cell (a car is about half as wide as it is long).
 pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
     let cell_w = (f64::from(params.width) - BAR_COLUMN - 20.0) / 2.0;
     let cell_h = (f64::from(params.height) - TITLE_BAND - 10.0) / 2.0;
     let (pic_w, pic_h) = (cell_w - 30.0, cell_h - LABEL_BAND - 14.0);
+    // Width of each view's picture: the last cell holds two.
+    let width = |k: usize| if k < 3 { pic_w } else { 0.5 * pic_w - 10.0 };
     let extents = View::ALL.map(|v| render::extent(tris, v));
     let scale = extents
         .iter()
-        .map(|e| (0.92 * pic_w / (e.1 - e.0)).min(0.9 * pic_h / (e.3 - e.2)))
+        .enumerate()
+        .map(|(k, e)| (0.92 * width(k) / (e.1 - e.0)).min(0.9 * pic_h / (e.3 - e.2)))
         .fold(f64::INFINITY, f64::min);
     let scale = if scale.is_finite() && scale > 0.0 {
         scale
@@ -85,12 +90,16 @@ pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
         .zip(extents)
         .enumerate()
         .map(|(k, (&v, e))| {
-            let left = 20.0 + cell_w * (k % 2) as f64 + 10.0;
-            let top = TITLE_BAND + cell_h * (k / 2) as f64 + LABEL_BAND;
+            let (column, row) = if k < 3 { (k % 2, k / 2) } else { (1, 1) };
+            let mut left = 20.0 + cell_w * column as f64 + 10.0;
+            if k == 4 {
+                left += 0.5 * pic_w + 10.0;
+            }
+            let top = TITLE_BAND + cell_h * row as f64 + LABEL_BAND;
             let frame = Frame {
                 scale,
                 centre: (0.5 * (e.0 + e.1), 0.5 * (e.2 + e.3)),
-                rect: (left as i64, top as i64, pic_w as i64, pic_h as i64),
+                rect: (left as i64, top as i64, width(k) as i64, pic_h as i64),
             };
             (v, frame)
         })
@@ -98,7 +107,7 @@ pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
     Layout { views }
 }
 
-/// Draw the four-view sheet of `field`.
+/// Draw the view sheet of `field`.
 ///
 /// # Errors
 /// [`OutputError::LengthMismatch`] for fields of the wrong length,
@@ -151,7 +160,7 @@ pub struct FieldStyle {
     pub note: String,
 }
 
-/// Draw the four-view sheet of a field given by `paint` (one paint per
+/// Draw the view sheet of a field given by `paint` (one paint per
 /// panel of `s.mesh`), with the same layout, views and decorations as
 /// [`surface_sheet`].
 ///
@@ -190,7 +199,7 @@ fn field_sheet_with_params(
 /// Something drawn over the body in each view (the tufts).
 pub(crate) type Overlay<'a> = dyn FnMut(&mut Canvas, &[DisplayTri], View, &Frame) + 'a;
 
-/// A blank sheet with the four views of `s.mesh` painted by `paint`, each
+/// A blank sheet with the views of `s.mesh` painted by `paint`, each
 /// labelled, with `overlay` drawn over the body and then the ground line,
 /// flow arrow and scale bar; the caller adds the titles and the key.
 ///
@@ -312,7 +321,7 @@ fn decorate(
     caption: &Caption,
 ) {
     let (l, t, w, h) = frame.rect;
-    if let (Some(z), View::Side | View::Rear) = (s.mesh.mirrors.ground, view) {
+    if let (Some(z), View::Side | View::Front | View::Rear) = (s.mesh.mirrors.ground, view) {
         let (_, y) = frame.project(view, &Point::new(0.0, 0.0, z));
         if (t as f64..(t + h) as f64).contains(&y) {
             canvas.polyline(
@@ -334,7 +343,7 @@ fn decorate(
         View::Side => Some((1.0, 0.0)),
         View::Top => Some((yaw.cos(), -yaw.sin())),
         View::Underneath => Some((yaw.cos(), yaw.sin())),
-        View::Rear => None,
+        View::Front | View::Rear => None,
     };
     if let Some((dx, dy)) = dir {
         // The word before the arrow, on one line with it, so the corner
@@ -461,7 +470,7 @@ mod tests {
     }
 
     #[test]
-    fn pressure_sheet_shows_the_sphere_in_four_views() {
+    fn pressure_sheet_shows_the_sphere_in_every_view() {
         let f = Fixture::sphere(3);
         let img = sheet(&f, SurfaceField::Pressure, "pressure.png");
         assert_eq!((img.width, img.height), (1600, 1000));
@@ -532,5 +541,49 @@ mod tests {
         let dark = row.iter().filter(|c| c[0] < 60).count();
         let light = row.iter().filter(|c| c[0] > 90 && c[0] < 160).count();
         assert!(dark >= 2 && light >= 2, "{row:?}");
+        // The rear view shows the separated band (x = 0.8 lies in it), the
+        // front view the attached nose (x = -0.8) at the same place.
+        let lay = layout(&display_triangles(&f.mesh), &SheetParams::default());
+        let stripes = |view: View, x: f64| {
+            let frame = lay.frame(view).unwrap();
+            let (px, py) = frame.project(view, &Point::new(x, 0.6, 0.0));
+            let row: Vec<[u8; 3]> = (0..14)
+                .map(|d| img.pixel(px as i64 + d, py as i64))
+                .collect();
+            row.iter().filter(|c| c[0] < 60).count()
+        };
+        assert!(stripes(View::Rear, 0.8) >= 2);
+        assert_eq!(stripes(View::Front, -0.8), 0);
+    }
+
+    /// The five frames lie on the sheet and apart, front and rear side by
+    /// side in the last cell.
+    #[test]
+    fn the_views_lie_apart_on_the_sheet() {
+        let coupe = tuft_mesh::PanelMesh::new(
+            tuft_mesh::generate::coupe(22.0, 800).unwrap(),
+            tuft_mesh::Mirrors::ground(0.0),
+        )
+        .unwrap();
+        let params = SheetParams::default();
+        let lay = layout(&display_triangles(&coupe), &params);
+        assert_eq!(lay.views.len(), 5);
+        for (i, (_, a)) in lay.views.iter().enumerate() {
+            let (l, t, w, h) = a.rect;
+            assert!(l >= 0 && t >= 0 && w > 0 && h > 0);
+            assert!(l + w <= i64::from(params.width) - BAR_COLUMN as i64);
+            assert!(t + h <= i64::from(params.height));
+            for (_, b) in &lay.views[i + 1..] {
+                let (m, u, x, y) = b.rect;
+                let apart = l + w <= m || m + x <= l || t + h <= u || u + y <= t;
+                assert!(apart, "{:?} and {:?} overlap", a.rect, b.rect);
+            }
+        }
+        let (front, rear) = (
+            lay.frame(View::Front).unwrap(),
+            lay.frame(View::Rear).unwrap(),
+        );
+        assert_eq!(front.rect.1, rear.rect.1);
+        assert!(front.rect.0 < rear.rect.0);
     }
 }

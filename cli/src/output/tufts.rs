@@ -1,4 +1,4 @@
-//! The surface-flow sheet: tufts drawn on the four views, the way a wind
+//! The surface-flow sheet: tufts drawn on the views, the way a wind
 //! tunnel shows the flow next to a model's surface. A wool tuft taped to
 //! the body lies along the local flow where the boundary layer is
 //! attached and flails without a steady direction where it has separated
