@@ -568,11 +568,12 @@ fn finish(
             "marching boundary layers along surface streamlines"
         },
     );
-    let layer = match layer {
+    let mut layer = match layer {
         Some(layer) => layer,
         None => screen_boundary_layer(mesh, &potential.velocity, flow.speed, &params)
             .context("boundary-layer screening")?,
     };
+    shown_risk(&mut layer, &params);
     progress.end(
         phase,
         &format!(
@@ -831,6 +832,24 @@ pub fn plateau_loads_warning(estimate: &loads::Loads, attached: &loads::Loads) -
 /// not model carry the most drag. The band's top is raised by it.
 pub const LOOP_DRAG_SHORTFALL: f64 = 0.21;
 
+/// The risk a run shows: a laminar panel's reads 0 unless the layer is
+/// kept laminar throughout (`Transition::Laminar`), since in every other
+/// mode a laminar layer at Thwaites' criterion turns turbulent through a
+/// short bubble and goes on rather than separate (the demo coupe's floor
+/// ahead of transition had read 0.7-1, "close to separating"). Only what
+/// is shown changes: the march picks each panel's line by the risk it
+/// computed (changing that moves the states and the loads).
+fn shown_risk(layer: &mut BoundaryLayer, params: &BoundaryLayerParams) {
+    if params.transition == Transition::Laminar {
+        return;
+    }
+    for p in &mut layer.panels {
+        if p.state == FlowState::Laminar {
+            p.risk = 0.0;
+        }
+    }
+}
+
 /// Pressure with the separated regions' model: the plateau model after the
 /// attached flow, the dead water at Hoerner's base pressure after the loop
 /// (`tuft_solver::viscous_loop::dead_water_cp`).
@@ -1066,6 +1085,45 @@ mod tests {
         let sound = loads_with(0.001, 1e-3);
         assert!(check_physical(&sound, &attached, 1.0, &v, 10.0).is_ok());
         assert!(check_physical(&sound, &attached, 0.2, &v, 10.0).is_err());
+    }
+
+    /// A laminar panel shows no separation risk unless the layer is kept
+    /// laminar; turbulent and separated panels keep theirs.
+    #[test]
+    fn laminar_panels_show_no_risk_where_they_would_turn_turbulent() {
+        use tuft_solver::boundary_layer::PanelLayer;
+        let panel = |state, risk| PanelLayer {
+            state,
+            risk,
+            ..PanelLayer::unresolved()
+        };
+        let layer = BoundaryLayer {
+            panels: vec![
+                panel(FlowState::Laminar, 0.9),
+                panel(FlowState::Turbulent, 0.5),
+                panel(FlowState::Separated, 1.0),
+            ],
+            streamlines: Vec::new(),
+            unresolved: 0,
+            transition_panels: Vec::new(),
+            separation_panels: Vec::new(),
+            separation_source: vec![None; 3],
+            attachments: Vec::new(),
+            rim_zone: vec![false; 3],
+        };
+        let shown = |transition| {
+            let mut l = layer.clone();
+            shown_risk(
+                &mut l,
+                &BoundaryLayerParams {
+                    transition,
+                    ..BoundaryLayerParams::default()
+                },
+            );
+            l.panels.iter().map(|p| p.risk).collect::<Vec<_>>()
+        };
+        assert_eq!(shown(Transition::Free), [0.0, 0.5, 1.0]);
+        assert_eq!(shown(Transition::Laminar), [0.9, 0.5, 1.0]);
     }
 
     /// A plateau model that moves the lift or side force by more than

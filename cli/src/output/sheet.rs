@@ -251,7 +251,8 @@ fn field_style(
             .collect(),
             "Separation risk",
             "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated. \
-             A laminar layer at 1 turns turbulent there (a short bubble) and goes on.",
+             A laminar layer reads 0 (unless the case keeps it laminar throughout): where it would separate it \
+             turns turbulent (a short bubble) and goes on.",
         ),
     }
 }
