@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{closed, cut};
+use common::{closed, cut, grid_cube};
 use tuft_mesh::coarsen::coarsen;
 use tuft_mesh::distance::closest_point_on_triangle;
 use tuft_mesh::generate::{CoupeParams, coupe_with_params};
@@ -135,51 +135,6 @@ fn half_model_cut_coarsens_like_the_rest_of_the_body() {
         100.0 * h,
         100.0 * w
     );
-}
-
-/// A cube of side 1 m, each face a regular `n` x `n` grid of squares cut
-/// into two facets, outward, vertices shared.
-fn grid_cube(n: usize) -> TriMesh {
-    let mut index = std::collections::HashMap::new();
-    let mut vertices = Vec::new();
-    let mut id = |p: [usize; 3]| -> u32 {
-        *index.entry(p).or_insert_with(|| {
-            vertices.push(Point::new(
-                p[0] as f64 / n as f64,
-                p[1] as f64 / n as f64,
-                p[2] as f64 / n as f64,
-            ));
-            (vertices.len() - 1) as u32
-        })
-    };
-    let mut triangles = Vec::new();
-    for a in 0..3 {
-        let (b, c) = ((a + 1) % 3, (a + 2) % 3);
-        for side in [0, n] {
-            for i in 0..n {
-                for j in 0..n {
-                    let at = |di: usize, dj: usize| {
-                        let mut p = [0; 3];
-                        p[a] = side;
-                        p[b] = i + di;
-                        p[c] = j + dj;
-                        p
-                    };
-                    let q = [at(0, 0), at(1, 0), at(1, 1), at(0, 1)].map(&mut id);
-                    // (b, c, a) is right-handed: b x c points along +a.
-                    if side == n {
-                        triangles.extend([[q[0], q[1], q[2]], [q[0], q[2], q[3]]]);
-                    } else {
-                        triangles.extend([[q[0], q[2], q[1]], [q[0], q[3], q[2]]]);
-                    }
-                }
-            }
-        }
-    }
-    TriMesh {
-        vertices,
-        triangles,
-    }
 }
 
 #[test]

@@ -5,10 +5,9 @@
 
 mod common;
 
-use std::collections::HashMap;
 use std::path::Path;
 
-use common::closed;
+use common::{closed, grid_cube};
 use tuft_mesh::import::read_stl;
 use tuft_mesh::panels::edge_neighbours;
 use tuft_mesh::repair::{Refusal, RepairParams, repair, repair_with_params};
@@ -69,51 +68,6 @@ fn coupe_with_missing_facets_is_filled_closed() {
         h.filled.iter().map(|l| l.perimeter).collect::<Vec<_>>(),
         (v - v0) / v0
     );
-}
-
-/// Closed unit cube whose faces are `n x n` grids of squares, each split in
-/// two triangles, counter-clockwise seen from outside.
-fn grid_cube(n: u32) -> TriMesh {
-    let mut index: HashMap<[u32; 3], u32> = HashMap::new();
-    let mut vertices = Vec::new();
-    let mut triangles = Vec::new();
-    let h = 1.0 / f64::from(n);
-    let mut id = |c: [u32; 3]| {
-        *index.entry(c).or_insert_with(|| {
-            vertices.push(Point::new(
-                f64::from(c[0]) * h,
-                f64::from(c[1]) * h,
-                f64::from(c[2]) * h,
-            ));
-            (vertices.len() - 1) as u32
-        })
-    };
-    // Each face: the axis it is normal to, its side, and two in-plane axes
-    // (u, v) with u x v pointing outward.
-    for (axis, side, u, v) in [
-        (2, n, 0, 1),
-        (2, 0, 1, 0),
-        (0, n, 1, 2),
-        (0, 0, 2, 1),
-        (1, n, 2, 0),
-        (1, 0, 0, 2),
-    ] {
-        for i in 0..n {
-            for j in 0..n {
-                let at = |di: u32, dj: u32| {
-                    let mut c = [0; 3];
-                    c[axis] = side;
-                    c[u] = i + di;
-                    c[v] = j + dj;
-                    c
-                };
-                let q = [at(0, 0), at(1, 0), at(1, 1), at(0, 1)].map(&mut id);
-                triangles.push([q[0], q[1], q[2]]);
-                triangles.push([q[0], q[2], q[3]]);
-            }
-        }
-    }
-    TriMesh::new(vertices, triangles).unwrap()
 }
 
 #[test]

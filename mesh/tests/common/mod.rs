@@ -1,10 +1,12 @@
-//! Helpers shared by the mesh tests: writing STL files in a temporary folder.
+//! Helpers shared by the mesh tests: writing STL files in a temporary folder,
+//! test bodies.
 #![allow(dead_code, clippy::unwrap_used, clippy::expect_used)]
 
+use std::collections::HashMap;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use tuft_mesh::TriMesh;
+use tuft_mesh::{Point, TriMesh};
 
 /// Binary STL bytes of `mesh` (normals left zero: readers must not trust them).
 pub fn binary_stl(mesh: &TriMesh) -> Vec<u8> {
@@ -112,4 +114,49 @@ pub fn closed(mesh: &TriMesh) -> bool {
         .iter()
         .flatten()
         .all(Option::is_some)
+}
+
+/// Closed unit cube whose faces are `n x n` grids of squares, each split in
+/// two triangles, counter-clockwise seen from outside.
+pub fn grid_cube(n: u32) -> TriMesh {
+    let mut index: HashMap<[u32; 3], u32> = HashMap::new();
+    let mut vertices = Vec::new();
+    let mut triangles = Vec::new();
+    let h = 1.0 / f64::from(n);
+    let mut id = |c: [u32; 3]| {
+        *index.entry(c).or_insert_with(|| {
+            vertices.push(Point::new(
+                f64::from(c[0]) * h,
+                f64::from(c[1]) * h,
+                f64::from(c[2]) * h,
+            ));
+            (vertices.len() - 1) as u32
+        })
+    };
+    // Each face: the axis it is normal to, its side, and two in-plane axes
+    // (u, v) with u x v pointing outward.
+    for (axis, side, u, v) in [
+        (2, n, 0, 1),
+        (2, 0, 1, 0),
+        (0, n, 1, 2),
+        (0, 0, 2, 1),
+        (1, n, 2, 0),
+        (1, 0, 0, 2),
+    ] {
+        for i in 0..n {
+            for j in 0..n {
+                let at = |di: u32, dj: u32| {
+                    let mut c = [0; 3];
+                    c[axis] = side;
+                    c[u] = i + di;
+                    c[v] = j + dj;
+                    c
+                };
+                let q = [at(0, 0), at(1, 0), at(1, 1), at(0, 1)].map(&mut id);
+                triangles.push([q[0], q[1], q[2]]);
+                triangles.push([q[0], q[2], q[3]]);
+            }
+        }
+    }
+    TriMesh::new(vertices, triangles).unwrap()
 }
