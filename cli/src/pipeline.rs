@@ -760,9 +760,9 @@ pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<Stri
 /// (`BoundaryLayer::rim_zone`), which only flat-faced cylinders and boxes
 /// check. Measured on the demo coupe's STL with four wheels standing on
 /// the ground and running into the body (`cli/tests/check.rs` builds it;
-/// 2026-12-02): C_D 0.176 to 0.210 at 2,000 to 8,000 panels with the
+/// 2026-12-02): C_D 0.175 to 0.210 at 2,000 to 8,000 panels with the
 /// wheels on the ground, raised 5 mm or pressed 15 mm in, against 0.149
-/// to 0.164 without them (before the bound, 0.07 to 0.10: the tyres'
+/// to 0.161 without them (before the bound, 0.07 to 0.10: the tyres'
 /// attached-flow suction pulled the car forward).
 pub const WHEELS_DRAG: &str = "with wheels on, tuft's drag is no basis for a figure or a ranking: a \
 wheel's wake, its rotation and the flow through its arch are outside the model, and no measurement \

@@ -522,7 +522,7 @@ pub fn rim_text(s: &Separation, dead_water: bool) -> String {
          {RIM_RADIUS} of the frontal size, which the flow turns round from a face into the stream). Beside them, \
          over {:.2} m^2, attached potential flow would give a suction many times the free stream's; the \
          pressure there is held no lower than on the free streamline leaving the edge, {bound}. \
-         Bodies with such edges come out low: flat-faced cylinders and a cube 7-28 % below their handbook \
+         Bodies with such edges come out low: flat-faced cylinders and a cube 13-30 % below their handbook \
          drag. Whether a rounded edge counts is decided on the panels: one whose radius is close to {:.0} \
          mm, or spans no more than a panel or two, may read either way, so compare variants of a front \
          edge at one panel count and read them against the step in drag it makes.",

@@ -19,6 +19,7 @@ fn line(n: usize, s0: f64, s1: f64, u: impl Fn(f64) -> f64) -> Vec<LineSample> {
                 spreading: 0.0,
                 body_fraction: s / s1,
                 forced_separation: false,
+                trip: false,
                 concave_turn: 0.0,
                 faces_stream: false,
             }

@@ -25,6 +25,11 @@ pub struct LineSample {
     /// True when the flow leaves the surface at this station regardless of
     /// the boundary layer (a bluff base edge).
     pub forced_separation: bool,
+    /// True where the flow reattaches behind a rim it left (a flat nose's
+    /// edge): the separated shear layer has turned turbulent, so a laminar
+    /// layer turns turbulent here (common practice), except in
+    /// [`Transition::Laminar`].
+    pub trip: bool,
     /// Concave turning of the surface into the stream along the line up to
     /// this station, radians (the sum of the angles of the concave edges
     /// crossed onto surfaces facing upstream; zero on a 2D section). A
@@ -331,10 +336,10 @@ fn laminar_decision(lam: &LineState, ctx: &Station) -> Decision {
     let transition = match ctx.params.transition {
         Transition::Laminar => false,
         Transition::Turbulent => sample.speed > 0.0,
-        Transition::Forced { x_fraction } => sample.body_fraction >= x_fraction,
+        Transition::Forced { x_fraction } => sample.trip || sample.body_fraction >= x_fraction,
         Transition::Free => {
             let x = sample.s - ctx.samples[0].s + ctx.start.x0;
-            michel::has_transitioned(lam.re_theta, sample.speed * x / ctx.params.nu)
+            sample.trip || michel::has_transitioned(lam.re_theta, sample.speed * x / ctx.params.nu)
         }
     };
     match (separated, transition, ctx.params.transition) {
