@@ -336,12 +336,15 @@ pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comp
     .flatten()
     .collect();
     let slope = slope_note(&a.summary, &b.summary);
+    let rims = rim_note(&a.summary, &b.summary);
     let doubt = if !separation.is_empty() {
         Some(ModelDoubt::Separation)
+    } else if rims.is_some() {
+        Some(ModelDoubt::Rims)
     } else {
         slope.as_ref().map(|_| ModelDoubt::RearSlope)
     };
-    let model_notes: Vec<String> = separation.into_iter().chain(slope).collect();
+    let model_notes: Vec<String> = separation.into_iter().chain(rims).chain(slope).collect();
     Comparison {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         a: side(a),
@@ -676,6 +679,30 @@ pub fn slopes_in_doubt(slopes: &[f64]) -> Option<(f64, f64)> {
     (hi - lo >= 1.0 && hi >= SLOPE_CAUTION_DEG).then_some((lo, hi))
 }
 
+/// Share of the reference area by which the area beside sharp front edges
+/// (rims, `separation.rim_m2`) may differ between two runs before their
+/// drag difference rests on the sharp-edge model (as the separated area's
+/// 2 %; our choice).
+pub const RIM_CHANGE_SHARE: f64 = 0.02;
+
+/// A note when the area beside rims the flow leaves differs by more than
+/// [`RIM_CHANGE_SHARE`] of the reference area: the free-streamline bound
+/// there is checked only on flat-faced cylinders and a cube, and it calls
+/// an edge sharp or rounded with a step where the measured drag falls over
+/// a range of radii (a review's flat-nosed coupe had been called 22 counts
+/// worse with no word of it).
+fn rim_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (ra, rb) = (a.separation.rim_m2, b.separation.rim_m2);
+    let area = a.reference.area_m2.max(b.reference.area_m2);
+    ((rb - ra).abs() > RIM_CHANGE_SHARE * area).then(|| {
+        format!(
+            "the area beside sharp front edges the flow leaves (rims) is {ra:.2} m^2 on A and {rb:.2} \
+             m^2 on B: the drag difference rests on the sharp-edge model, which calls an edge sharp or \
+             rounded with a step where the measured drag falls over a range of radii"
+        )
+    })
+}
+
 /// A note when a named rear-facing region (a rear window, a slant) has a
 /// different slope in the two runs, and the steeper reaches
 /// [`SLOPE_CAUTION_DEG`]: the drag difference then rests on the part of
@@ -800,6 +827,40 @@ mod tests {
         // 2 % apart: noted, with the difference.
         let n = reference_note(&with_area(2.0), &with_area(1.96)).unwrap();
         assert!(n.contains("differ by 2.0 %"), "{n}");
+    }
+
+    /// The rim note: a flat nose's 0.31 m^2 beside sharp front edges
+    /// against none on a 1.86 m^2 reference area is noted (it had been a
+    /// 22-count win with no word); a few hundredths either way are not.
+    #[test]
+    fn rims_that_differ_are_noted() {
+        let with_rims = |rim: f64| {
+            let mut s = with_area(1.86);
+            s.separation.rim_m2 = rim;
+            s
+        };
+        let n = rim_note(&with_rims(0.0), &with_rims(0.31)).unwrap();
+        assert!(n.contains("0.00 m^2 on A and 0.31 m^2 on B"), "{n}");
+        assert!(rim_note(&with_rims(0.02), &with_rims(0.03)).is_none());
+        // A clear 20-count difference is then no win, and says why.
+        let drag = |s: &mut Summary, cd: f64| {
+            s.coefficients.drag = cd;
+            s.drag_estimate.cd = cd;
+            s.drag_estimate.cd_low = cd - 0.01;
+            s.drag_estimate.cd_high = cd + 0.2;
+        };
+        let (mut a, mut b) = (with_rims(0.0), with_rims(0.31));
+        drag(&mut a, 0.150);
+        drag(&mut b, 0.170);
+        let v = drag_verdict(&a, &b, Some(ModelDoubt::Rims));
+        assert!(!v.resolved && v.leaning == "higher", "{v:?}");
+        assert!(
+            v.text
+                .starts_with("no winner: the sharp front edges the flow leaves differ")
+                && v.text.contains("13-30 %"),
+            "{}",
+            v.text
+        );
     }
 
     /// The slope note: a rear window whose slope changes and reaches 25

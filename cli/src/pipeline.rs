@@ -55,9 +55,10 @@ pub struct Computed {
     /// m^2.
     pub separated_frontal: f64,
     /// Area of the panels beside a rim the flow leaves
-    /// (`BoundaryLayer::rim_zone`; real panels), m^2, and the largest
-    /// rounding that counts as a rim, m.
-    pub rim: (f64, f64),
+    /// (`BoundaryLayer::rim_zone`; real panels), m^2, the largest
+    /// rounding that counts as a rim, m, and where the zone lies: the
+    /// x and z ranges of its panels' centroids, m.
+    pub rim: (f64, f64, [[f64; 2]; 2]),
     /// Lift of the ground-facing panels' pressure, kg: whole, front axle,
     /// rear axle.
     pub underbody_lift_kg: [f64; 3],
@@ -672,14 +673,22 @@ fn finish(
         .filter(|(p, l)| underbody(p) && l.state == FlowState::Separated)
         .map(|(p, _)| p.area);
     let underbody_separation = (underbody_separated.sum(), underbody_area.sum());
-    let rim = (
+    let rim_panels = || {
         mesh.panels
             .iter()
             .zip(&layer.rim_zone)
             .filter(|&(_, &z)| z)
-            .map(|(p, _)| p.area)
-            .sum(),
+            .map(|(p, _)| p)
+    };
+    let range = |f: fn(&tuft_mesh::Panel) -> f64| {
+        rim_panels().fold([f64::INFINITY, f64::NEG_INFINITY], |[lo, hi], p| {
+            [lo.min(f(p)), hi.max(f(p))]
+        })
+    };
+    let rim = (
+        rim_panels().map(|p| p.area).sum(),
         tuft_solver::boundary_layer::screen::rim_radius(mesh, &stream),
+        [range(|p| p.centroid.x), range(|p| p.centroid.z)],
     );
     let separated_frontal = mesh
         .panels

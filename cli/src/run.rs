@@ -166,9 +166,13 @@ fn print_summary(out: &Path, s: &Summary) {
     }
     if s.separation.rim_m2 > 0.0 {
         println!(
-            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them held at the free-streamline bound",
+            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, at x {:.2} to {:.2} m and z {:.2} to {:.2} m, held at the free-streamline bound",
             1000.0 * s.separation.rim_radius_m,
-            s.separation.rim_m2
+            s.separation.rim_m2,
+            s.separation.rim_x_m[0],
+            s.separation.rim_x_m[1],
+            s.separation.rim_z_m[0],
+            s.separation.rim_z_m[1]
         );
     }
     for r in &s.regions {

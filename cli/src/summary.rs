@@ -67,6 +67,13 @@ pub struct Separation {
     /// The largest rounding of a front edge that counts as a rim, m.
     #[serde(default)]
     pub rim_radius_m: f64,
+    /// Where the area beside rims lies: the x range of its panels'
+    /// centroids, m (empty, `[inf, -inf]` in memory, when there is none).
+    #[serde(default)]
+    pub rim_x_m: [f64; 2],
+    /// The z range of the same, m.
+    #[serde(default)]
+    pub rim_z_m: [f64; 2],
 }
 
 /// The drag estimate with its sensitivity band.

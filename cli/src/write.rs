@@ -470,8 +470,11 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
             frontal_m2: sym * c.separated_frontal,
-            rim_m2: sym * c.rim.0,
+            // An empty float sum is -0.0.
+            rim_m2: sym * c.rim.0 + 0.0,
             rim_radius_m: c.rim.1,
+            rim_x_m: c.rim.2[0].map(|v| if v.is_finite() { v } else { 0.0 }),
+            rim_z_m: c.rim.2[1].map(|v| if v.is_finite() { v } else { 0.0 }),
             // An empty float sum is -0.0; adding +0.0 keeps "-0.0 %" out.
             underbody_fraction: match c.underbody_separation {
                 (s, a) if a > 0.0 => s / a + 0.0,
@@ -521,13 +524,18 @@ pub fn rim_text(s: &Separation, dead_water: bool) -> String {
         "The flow leaves sharp front edges here (rims: an edge, chamfer or rounding tighter than {:.0} mm, \
          {RIM_RADIUS} of the frontal size, which the flow turns round from a face into the stream). Beside them, \
          over {:.2} m^2, attached potential flow would give a suction many times the free stream's; the \
-         pressure there is held no lower than on the free streamline leaving the edge, {bound}. \
+         pressure there is held no lower than on the free streamline leaving the edge, {bound}; the \
+         area lies between x {:.2} and {:.2} m, z {:.2} and {:.2} m. \
          Bodies with such edges come out low: flat-faced cylinders and a cube 13-30 % below their handbook \
          drag. Whether a rounded edge counts is decided on the panels: one whose radius is close to {:.0} \
          mm, or spans no more than a panel or two, may read either way, so compare variants of a front \
          edge at one panel count and read them against the step in drag it makes.",
         1000.0 * s.rim_radius_m,
         s.rim_m2,
+        s.rim_x_m[0],
+        s.rim_x_m[1],
+        s.rim_z_m[0],
+        s.rim_z_m[1],
         1000.0 * s.rim_radius_m
     )
 }
