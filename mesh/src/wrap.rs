@@ -710,9 +710,9 @@ fn ground_contact(grid: &Grid, field: &mut [f32], params: &WrapParams, plan: f64
     ((cut + filled) as f64 * h * h, open as f64 * h * h)
 }
 
-/// The input surface the wrap lost: facets whose centroid lies in a cell
-/// with every corner outside (a part thinner than about a cell has no node
-/// inside it, so no surface is cut there). Facets outside the grid (below
+/// The input surface the wrap lost: facets whose centroid, moved a quarter
+/// cell inward, lies in a cell with every corner outside (a part thinner
+/// than about a cell has no node inside it, so no surface is cut there). Facets outside the grid (below
 /// the ground, across the symmetry plane) were cut off on purpose and do
 /// not count. Returns the lost area and the area-weighted centre of the
 /// lost facets of the part that lost the most.
@@ -722,7 +722,15 @@ fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64
     for (t, &p) in part.iter().enumerate() {
         let [a, b, c] = mesh.corners(t);
         let centre = (a.coords + b.coords + c.coords) / 3.0;
-        let cell = [0, 1, 2].map(|k| ((centre[k] - grid.origin[k]) / grid.h).floor());
+        // Looked up a quarter cell inside the facet: a face lying on a
+        // grid plane (a CAD part whose top sits on a multiple of the cell)
+        // has the cell above it all outside, however thick the part.
+        let inward = -mesh
+            .area_vector(t)
+            .try_normalize(0.0)
+            .unwrap_or_else(Vector::zeros);
+        let probe = centre + 0.25 * grid.h * inward;
+        let cell = [0, 1, 2].map(|k| ((probe[k] - grid.origin[k]) / grid.h).floor());
         let inside_grid = (0..3).all(|k| cell[k] >= 0.0 && cell[k] < (grid.n[k] - 1) as f64);
         if !inside_grid {
             continue;

@@ -352,6 +352,37 @@ fn a_part_thinner_than_a_cell_is_reported_lost() {
 }
 
 #[test]
+fn a_face_on_a_grid_plane_is_not_reported_lost() {
+    // A review's spoiler, a block standing proud of a boot whose top lay
+    // on a multiple of the cell, was reported lost though the wrap kept it:
+    // the cell above its top face has no corner inside. Here a plate 30 mm
+    // thick through the top of a unit sphere, its top face on a node plane
+    // of the grid (10 mm cells from the ground plane 2 m below the centre,
+    // so at z = 1.00).
+    let sphere = generate::icosphere(1.0, 4);
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
+    let mirrors = Mirrors::ground(-2.0);
+    let plate = subdivided(cuboid([-0.6, -0.2, 0.97], [0.6, 0.2, 1.0]), 5);
+    let both = join(&sphere, &plate);
+    let why = reasons(&both, &mirrors, &params, 0.0);
+    let (wrapped, report) = wrap(&both, &mirrors, why, &params);
+    println!(
+        "plate on a node plane: lost {:.4} m^2, cell {:.4}, top {:.4}",
+        report.lost_area,
+        report.cell,
+        wrapped.bounds().unwrap().1.z
+    );
+    assert!((report.cell - 0.01).abs() < 1e-12, "{}", report.cell);
+    assert!(report.lost_area < 1e-3 * report.input_area, "{report:?}");
+    assert!(report.lost_warning().is_none());
+    // The plate is there: the wrapped body reaches its top.
+    assert!((wrapped.bounds().unwrap().1.z - 1.0).abs() < 0.002);
+}
+
+#[test]
 fn lines_through_vertices_and_edges_are_counted_once() {
     // An octahedron with its vertices on grid nodes: with 256 cells along
     // its 2 m the cell is 2^-7 m and the node coordinates are exact, so
