@@ -618,11 +618,13 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
     )
 }
 
-/// A net downforce that the smooth underbody's suction supplies is the
-/// least certain number of a run: the words that say so where the lift is
-/// first read (after `lead`), or nothing.
+/// The smooth underbody's suction is the least certain part of the lift:
+/// the words that say so where the lift is first read (after `lead`),
+/// whenever the underbody pulls the body down by more than a kilogram
+/// (a review's chin spoiler turned the total lift positive and the words
+/// went, though the underbody still gave -108 kg), or nothing.
 pub fn underbody_words(s: &Summary, lead: &str) -> String {
-    if s.mesh.ground_z.is_some() && s.lift_kg.total < 0.0 && s.lift_kg.underbody < s.lift_kg.total {
+    if s.mesh.ground_z.is_some() && s.lift_kg.underbody < -1.0 {
         let u = s.lift_kg.underbody_axle_words();
         format!(
             "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part: a real \
@@ -940,6 +942,23 @@ mod tests {
         assert_eq!(super::drag_force_words(&d, 1.0, 0), "300 (150 to 600)");
         // Power P = F V: at 40 m/s, 12 kW (6 to 24).
         assert_eq!(super::drag_force_words(&d, 0.04, 1), "12.0 (6.0 to 24.0)");
+    }
+
+    /// The underbody's part is named whenever it pulls down, whatever the
+    /// total's sign (a chin spoiler's run: +20 kg in all, -108 kg of it
+    /// from the underbody); not in free air, nor when it is negligible.
+    #[test]
+    fn the_underbodys_part_is_named_whenever_it_pulls_down() {
+        let mut s = crate::summary::Summary::default();
+        s.mesh.ground_z = Some(0.0);
+        s.lift_kg.total = 20.0;
+        s.lift_kg.underbody = -108.0;
+        assert!(super::underbody_words(&s, "; ").contains("of which the smooth underbody -108 kg"));
+        s.lift_kg.underbody = -0.5;
+        assert!(super::underbody_words(&s, "; ").is_empty());
+        s.lift_kg.underbody = -108.0;
+        s.mesh.ground_z = None;
+        assert!(super::underbody_words(&s, "; ").is_empty());
     }
 
     /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
