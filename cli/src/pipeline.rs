@@ -711,6 +711,7 @@ fn finish(
         reference.front_axle_x,
         reference.rear_axle_x,
     ));
+    warnings.extend(underbody_separation_warning(underbody_separation));
     if !dead_water_run && separated_area > 0.0 {
         warnings.push(PLATEAU_DRAG_WARNING.into());
         warnings.extend(plateau_loads_warning(&estimate, &attached));
@@ -808,6 +809,28 @@ pub const PLATEAU_DRAG_WARNING: &str = "the drag comes from the attached flow's 
 it gives 0.29 to 0.52 against 0.23 to 0.38 measured and ranks the slants the wrong way round, and on \
 the demo coupe it is 3.5 times the separated-flow loop's estimate; rank drag with the loop (the \
 default)";
+
+/// Separated share of the underbody (ground-facing panels) from which a run
+/// warns that its lift rests on the dead water there. Measured: the demo
+/// coupes 0.06, the coupe with four wheels 0.26, a review's chin spoiler
+/// 0.83 (its front lift rose by 64 kg where an air dam lowers it in a
+/// tunnel, common practice).
+pub const UNDERBODY_SEPARATED_WARNING: f64 = 0.4;
+
+/// The warning of a run whose underbody is largely separated
+/// ([`UNDERBODY_SEPARATED_WARNING`]); `(separated, total)` areas, m^2.
+pub fn underbody_separation_warning((separated, total): (f64, f64)) -> Option<String> {
+    let share = if total > 0.0 { separated / total } else { 0.0 };
+    (share > UNDERBODY_SEPARATED_WARNING).then(|| {
+        format!(
+            "{:.0} % of the underbody is separated: the dead water there holds one pressure, so the \
+             underbody's lift and the split between the axles rest on that model (a chin spoiler that \
+             separated most of a coupe's floor raised its front lift by 64 kg, where an air dam lowers it \
+             in a tunnel); confirm the underbody's loads with validated CFD or a tunnel",
+            100.0 * share
+        )
+    })
+}
 
 /// Largest change the plateau model may make to the attached flow's lift or
 /// side-force coefficient before its loads are called unreliable. Measured
@@ -1094,6 +1117,16 @@ mod tests {
         let sound = loads_with(0.001, 1e-3);
         assert!(check_physical(&sound, &attached, 1.0, &v, 10.0).is_ok());
         assert!(check_physical(&sound, &attached, 0.2, &v, 10.0).is_err());
+    }
+
+    /// A largely separated underbody is warned about; the wheeled coupe's
+    /// 26 % is not.
+    #[test]
+    fn a_largely_separated_underbody_is_warned_about() {
+        let w = underbody_separation_warning((0.83, 1.0)).unwrap();
+        assert!(w.starts_with("83 % of the underbody is separated"), "{w}");
+        assert!(underbody_separation_warning((0.26, 1.0)).is_none());
+        assert!(underbody_separation_warning((0.0, 0.0)).is_none());
     }
 
     /// A laminar panel shows no separation risk unless the layer is kept
