@@ -537,6 +537,9 @@ fn notes(
     if let Some(n) = reference_note(sa, sb) {
         notes.push(n);
     }
+    if let Some(n) = wrap_note(sa, sb) {
+        notes.push(n);
+    }
     notes.extend(model_notes);
     // First: it says how far to trust the notes after it.
     if let Some(n) = offset_note(a, b, surface) {
@@ -679,6 +682,22 @@ pub fn slopes_in_doubt(slopes: &[f64]) -> Option<(f64, f64)> {
     (hi - lo >= 1.0 && hi >= SLOPE_CAUTION_DEG).then_some((lo, hi))
 }
 
+/// A note when one run's surface was wrapped and the other's was not: the
+/// wrap re-meshes the whole body, and that alone moves the results (a
+/// review's demo coupe, wrapped only because of a block buried inside it:
+/// boot deck 26 to 36 % separated, C_D 0.149 to 0.152).
+fn wrap_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    (a.wrapped() != b.wrapped()).then(|| {
+        let (w, n) = if b.wrapped() { ("B", "A") } else { ("A", "B") };
+        format!(
+            "{w}'s surface was wrapped into one (its parts run into each other or stand on the ground) \
+             and {n}'s was not: the wrap re-meshes the whole body, which alone moves the results (the \
+             demo coupe wrapped: boot deck 26 to 36 % separated); to compare an add-on, give {n} the \
+             same treatment (for instance a small block inside its body, which makes the wrap run)"
+        )
+    })
+}
+
 /// Share of the reference area by which the area beside sharp front edges
 /// (rims, `separation.rim_m2`) may differ between two runs before their
 /// drag difference rests on the sharp-edge model (as the separated area's
@@ -692,7 +711,7 @@ pub const RIM_CHANGE_SHARE: f64 = 0.02;
 /// a range of radii (a review's flat-nosed coupe had been called 22 counts
 /// worse with no word of it).
 fn rim_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
-    let (ra, rb) = (a.separation.rim_m2, b.separation.rim_m2);
+    let (ra, rb) = (a.separation.rim_m2 + 0.0, b.separation.rim_m2 + 0.0);
     let area = a.reference.area_m2.max(b.reference.area_m2);
     ((rb - ra).abs() > RIM_CHANGE_SHARE * area).then(|| {
         format!(
@@ -827,6 +846,23 @@ mod tests {
         // 2 % apart: noted, with the difference.
         let n = reference_note(&with_area(2.0), &with_area(1.96)).unwrap();
         assert!(n.contains("differ by 2.0 %"), "{n}");
+    }
+
+    /// The wrap note: one run wrapped and the other not is noted, naming
+    /// which; both or neither are not.
+    #[test]
+    fn one_run_wrapped_and_the_other_not_is_noted() {
+        let wrapped = |w: bool| {
+            let mut s = with_area(1.86);
+            if w {
+                s.mesh.preparation = serde_json::json!({"wrap": {"contact_area": 0.0}});
+            }
+            s
+        };
+        let n = wrap_note(&wrapped(false), &wrapped(true)).unwrap();
+        assert!(n.starts_with("B's surface was wrapped"), "{n}");
+        assert!(wrap_note(&wrapped(true), &wrapped(true)).is_none());
+        assert!(wrap_note(&wrapped(false), &wrapped(false)).is_none());
     }
 
     /// The rim note: a flat nose's 0.31 m^2 beside sharp front edges

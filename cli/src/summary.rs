@@ -231,6 +231,12 @@ impl Summary {
         self.separated_wakes.is_none() && self.separation.area_m2 > 0.0
     }
 
+    /// Whether the surface was wrapped (parts joined into one outer surface
+    /// on a grid, `tuft_mesh::wrap`), which re-meshes the whole body.
+    pub fn wrapped(&self) -> bool {
+        self.mesh.preparation["wrap"].is_object()
+    }
+
     /// Whether the body stood on the ground (the wrap found contact:
     /// tyres, usually). Drag with wheels on is no basis for a ranking (see
     /// [`crate::pipeline::WHEELS_DRAG`]).
