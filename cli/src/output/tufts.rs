@@ -211,13 +211,22 @@ fn draw_key(canvas: &mut Canvas, params: &SheetParams, s: &SurfaceResult<'_>) {
     .chain(sheet::unresolved_swatch(s))
     .collect::<Vec<_>>();
     draw_legend(canvas, x, y, &entries);
-    text::draw(
-        canvas,
-        &format!("close: risk {CLOSE_RISK} or more"),
-        x,
-        y + 30.0 * entries.len() as f32 + 14.0,
-        &TextStyle::new(14.0),
-    );
+    let below = y + 30.0 * entries.len() as f32 + 14.0;
+    for (k, line) in [
+        format!("close: risk {CLOSE_RISK} or more"),
+        "dot: where a tuft is fixed".to_owned(),
+    ]
+    .iter()
+    .enumerate()
+    {
+        text::draw(
+            canvas,
+            line,
+            x,
+            below + 20.0 * k as f32,
+            &TextStyle::new(14.0),
+        );
+    }
 }
 
 #[cfg(test)]
