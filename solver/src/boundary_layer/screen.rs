@@ -231,8 +231,13 @@ pub fn screen_boundary_layer(
         lines.extend(extra);
     }
     let mut layer = combine(mesh, lines, attachments, params);
-    let cap = speed * (1.0 - RIM_CP).sqrt();
-    spread_rim_zone(mesh, &mut layer.rim_zone, &field.speed, cap, &flow_dir);
+    spread_rim_zone(
+        mesh,
+        &mut layer.rim_zone,
+        &field.speed,
+        rim_speed(speed),
+        &flow_dir,
+    );
     Ok(layer)
 }
 
@@ -267,7 +272,7 @@ fn spread_rim_zone(
         }
         for j in mesh.edge_neighbours[t].iter().flatten() {
             let j = *j as usize;
-            let behind = mesh.panels[j].normal.dot(flow_dir) > -FRONT_FACING_COS;
+            let behind = !faces_upstream(mesh, j, flow_dir);
             if depth[j] == usize::MAX && speed[j] > cap && behind {
                 depth[j] = depth[t] + 1;
                 zone[j] = true;
@@ -445,7 +450,7 @@ impl<'a> LineContext<'a> {
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
         let (rim, trips) = self.rim_segments(&trace, &arc);
-        let cap = self.rim_speed();
+        let cap = rim_speed(self.speed);
         for (sample, &seg) in samples.iter_mut().zip(&segments) {
             if rim[seg] {
                 sample.speed = sample.speed.min(cap);
@@ -663,9 +668,9 @@ impl<'a> LineContext<'a> {
         (-db.dot(&na)).atan2(db.dot(&da))
     }
 
-    /// True when panel `t` faces upstream ([`FRONT_FACING_COS`]).
+    /// True when panel `t` faces upstream ([`faces_upstream`]).
     fn faces_upstream(&self, t: usize) -> bool {
-        self.mesh.panels[t].normal.dot(&self.flow_dir) <= -FRONT_FACING_COS
+        faces_upstream(self.mesh, t, &self.flow_dir)
     }
 
     /// Segments beside a rim the line turns round (see
@@ -684,7 +689,7 @@ impl<'a> LineContext<'a> {
         let p = &trace.panels;
         let mut out = vec![false; p.len()];
         let mut trips = Vec::new();
-        let cap = self.rim_speed();
+        let cap = rim_speed(self.speed);
         let limit = self.params.base_edge_turn_deg.to_radians();
         // Crossings between panels that are not crumpled (a sliver on an
         // edge is stepped over, its two turns taken as one): (segment
@@ -742,12 +747,6 @@ impl<'a> LineContext<'a> {
             c = m + 1;
         }
         (out, trips)
-    }
-
-    /// The free-streamline speed bound beside a rim: the speed at
-    /// [`RIM_CP`].
-    fn rim_speed(&self) -> f64 {
-        self.speed * (1.0 - RIM_CP).sqrt()
     }
 
     /// Split the marched line over its segments.
@@ -832,6 +831,17 @@ pub const RIM_CP: f64 = -0.46;
 /// memory; the knee moves with the Reynolds number): a smaller rounding
 /// lets the flow separate, a larger one keeps it on.
 pub const RIM_RADIUS: f64 = 0.04;
+
+/// The free-streamline speed bound beside a rim in a free stream of
+/// `speed`: the speed at [`RIM_CP`].
+fn rim_speed(speed: f64) -> f64 {
+    speed * (1.0 - RIM_CP).sqrt()
+}
+
+/// True when panel `t` faces upstream of `flow_dir` ([`FRONT_FACING_COS`]).
+fn faces_upstream(mesh: &PanelMesh, t: usize, flow_dir: &Vector3<f64>) -> bool {
+    mesh.panels[t].normal.dot(flow_dir) <= -FRONT_FACING_COS
+}
 
 /// A surface whose normal points against the flow by more than this
 /// cosine (inclined about 15 degrees or more into the stream) faces
@@ -1050,7 +1060,6 @@ fn combine(
         separation_panels.extend(line.separation_panel);
         streamlines.push(line.line);
     }
-    let crossed: Vec<bool> = best.iter().map(Option::is_some).collect();
     // Any line's rim flag, not only the kept one's, spreads with the fill.
     for (b, &r) in best.iter_mut().zip(&rim) {
         if let Some(c) = b {
@@ -1058,9 +1067,6 @@ fn combine(
         }
     }
     fill(mesh, &mut best, params);
-    for (t, b) in best.iter().enumerate() {
-        rim[t] |= !crossed[t] && b.is_some_and(|c| c.rim);
-    }
     transition_panels.sort_unstable();
     transition_panels.dedup();
     separation_panels.sort_unstable();
@@ -1077,7 +1083,7 @@ fn combine(
         transition_panels,
         separation_panels,
         attachments,
-        rim_zone: rim,
+        rim_zone: best.iter().map(|b| b.is_some_and(|c| c.rim)).collect(),
     }
 }
 
