@@ -607,14 +607,17 @@ fn finish(
     let cp_separated = separated_cp(mesh, &potential, &layer, &friction, dead_water_run);
     let estimate = loads::integrate_loads(mesh, &cp_separated, Some(&friction), &reference, &air)?;
     let stream = fs.velocity().normalize();
-    let rim_share = mesh
-        .panels
-        .iter()
-        .zip(&layer.rim_zone)
-        .filter(|&(_, &z)| z)
-        .map(|(p, _)| p.area * p.normal.dot(&stream).abs())
+    let rim_panels = || {
+        mesh.panels
+            .iter()
+            .zip(&layer.rim_zone)
+            .filter(|&(_, &z)| z)
+            .map(|(p, _)| p)
+    };
+    let rim_share = rim_panels()
+        .map(|p| p.area * p.normal.dot(&stream).abs())
         .sum::<f64>()
-        * if mesh.mirrors.symmetry { 2.0 } else { 1.0 }
+        * mesh.mirrors.whole_body_factor()
         / reference.area;
     check_physical(
         &estimate,
@@ -673,13 +676,6 @@ fn finish(
         .filter(|(p, l)| underbody(p) && l.state == FlowState::Separated)
         .map(|(p, _)| p.area);
     let underbody_separation = (underbody_separated.sum(), underbody_area.sum());
-    let rim_panels = || {
-        mesh.panels
-            .iter()
-            .zip(&layer.rim_zone)
-            .filter(|&(_, &z)| z)
-            .map(|(p, _)| p)
-    };
     let range = |f: fn(&tuft_mesh::Panel) -> f64| {
         rim_panels().fold([f64::INFINITY, f64::NEG_INFINITY], |[lo, hi], p| {
             [lo.min(f(p)), hi.max(f(p))]
@@ -1070,19 +1066,31 @@ fn drag_band(
 mod tests {
     use super::*;
 
-    /// Friction pulling upstream or a drag far below zero is refused; a
-    /// small negative drag (discretisation) and a sound run pass.
-    #[test]
-    fn unphysical_loads_are_refused() {
+    /// A unit icosphere (`levels` subdivisions) in free air at 10 m/s, its
+    /// reference from the mesh, for tests that integrate loads on it.
+    fn unit_sphere(
+        levels: u32,
+    ) -> (
+        tuft_mesh::PanelMesh,
+        loads::FlowState,
+        tuft_solver::loads::Reference,
+    ) {
         use tuft_mesh::{Mirrors, PanelMesh, generate};
-        use tuft_solver::loads::{FlowState, Reference};
-        let mesh = PanelMesh::new(generate::icosphere(1.0, 1), Mirrors::none()).unwrap();
-        let air = FlowState {
+        let mesh = PanelMesh::new(generate::icosphere(1.0, levels), Mirrors::none()).unwrap();
+        let air = loads::FlowState {
             density: 1.2,
             speed: 10.0,
             yaw: 0.0,
         };
         let reference = Reference::from_mesh(&mesh, -0.5, 0.5);
+        (mesh, air, reference)
+    }
+
+    /// Friction pulling upstream or a drag far below zero is refused; a
+    /// small negative drag (discretisation) and a sound run pass.
+    #[test]
+    fn unphysical_loads_are_refused() {
+        let (mesh, air, reference) = unit_sphere(1);
         let loads_with = |cp: f64, fx: f64| {
             let cps: Vec<f64> = mesh
                 .panels
@@ -1172,15 +1180,7 @@ mod tests {
     /// [`PLATEAU_LOAD_JUMP`] is warned about; a small move is not.
     #[test]
     fn plateau_loads_far_from_the_attached_flow_are_warned_about() {
-        use tuft_mesh::{Mirrors, PanelMesh, generate};
-        use tuft_solver::loads::{FlowState, Reference};
-        let mesh = PanelMesh::new(generate::icosphere(1.0, 2), Mirrors::none()).unwrap();
-        let air = FlowState {
-            density: 1.2,
-            speed: 10.0,
-            yaw: 0.0,
-        };
-        let reference = Reference::from_mesh(&mesh, -0.5, 0.5);
+        let (mesh, air, reference) = unit_sphere(2);
         // Suction `s` on the upper half: lift coefficient about 2 s.
         let lifted = |s: f64| {
             let cps: Vec<f64> = mesh

@@ -395,7 +395,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     let mesh = &geo.mesh;
     let flow = &case.file.flow;
     let e = &c.estimate;
-    let sym = if mesh.mirrors.symmetry { 2.0 } else { 1.0 };
+    let sym = mesh.mirrors.whole_body_factor();
     let wetted = sym * mesh.area();
     let r = &c.reference;
     let given: BTreeMap<String, bool> = [

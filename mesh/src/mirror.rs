@@ -44,6 +44,12 @@ impl Reflection {
 }
 
 impl Mirrors {
+    /// How many times the solved surface the whole body is: 2 for a half
+    /// model, 1 otherwise (areas and loads of the panels scale by it).
+    pub fn whole_body_factor(&self) -> f64 {
+        if self.symmetry { 2.0 } else { 1.0 }
+    }
+
     /// Free air, full model.
     pub fn none() -> Self {
         Self::default()

@@ -307,8 +307,7 @@ fn frontal_size(mesh: &PanelMesh, flow_dir: &Vector3<f64>) -> f64 {
             });
         (hi - lo).max(0.0)
     };
-    let halves = if mesh.mirrors.symmetry { 2.0 } else { 1.0 };
-    (halves * extent(&side) * extent(&up)).sqrt()
+    (mesh.mirrors.whole_body_factor() * extent(&side) * extent(&up)).sqrt()
 }
 
 /// Rounds of upstream seeding for panels the attachment rings missed
