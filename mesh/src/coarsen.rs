@@ -241,10 +241,12 @@ const FLIP_SWEEPS: usize = 8;
 fn flip_collinear(mesh: &mut TriMesh) {
     use crate::fasthash::FastMap;
     let degenerate = |m: &TriMesh, t: usize| Panel::new(m.corners(t)).is_none();
+    // The directed edges of a facet, in its winding.
+    let edges = |tri: [u32; 3]| [0, 1, 2].map(|k| (tri[k], tri[(k + 1) % 3]));
     let mut owner: FastMap<(u32, u32), usize> = FastMap::default();
-    for (t, tri) in mesh.triangles.iter().enumerate() {
-        for k in 0..3 {
-            owner.insert((tri[k], tri[(k + 1) % 3]), t);
+    for (t, &tri) in mesh.triangles.iter().enumerate() {
+        for e in edges(tri) {
+            owner.insert(e, t);
         }
     }
     for _ in 0..FLIP_SWEEPS {
@@ -272,16 +274,13 @@ fn flip_collinear(mesh: &mut TriMesh) {
             if n == t || x == w || owner.contains_key(&(w, x)) || owner.contains_key(&(x, w)) {
                 continue;
             }
-            for tri in [tri, other] {
-                for k in 0..3 {
-                    owner.remove(&(tri[k], tri[(k + 1) % 3]));
-                }
+            for e in edges(tri).into_iter().chain(edges(other)) {
+                owner.remove(&e);
             }
-            mesh.triangles[t] = [w, u, x];
-            mesh.triangles[n] = [x, v, w];
-            for (id, tri) in [(t, [w, u, x]), (n, [x, v, w])] {
-                for k in 0..3 {
-                    owner.insert((tri[k], tri[(k + 1) % 3]), id);
+            for (id, new) in [(t, [w, u, x]), (n, [x, v, w])] {
+                mesh.triangles[id] = new;
+                for e in edges(new) {
+                    owner.insert(e, id);
                 }
             }
             flipped = true;
