@@ -87,15 +87,7 @@ impl Canvas {
 
     /// An antialiased polyline.
     pub fn polyline(&mut self, pts: &[(f32, f32)], rgb: Rgb, width: f32) {
-        let mut pb = PathBuilder::new();
-        for (k, &(x, y)) in pts.iter().enumerate() {
-            if k == 0 {
-                pb.move_to(x, y)
-            } else {
-                pb.line_to(x, y)
-            }
-        }
-        if let Some(path) = pb.finish() {
+        if let Some(path) = path_through(pts, false) {
             let stroke = Stroke {
                 width,
                 ..Stroke::default()
@@ -107,16 +99,7 @@ impl Canvas {
 
     /// A filled polygon.
     pub fn fill_polygon(&mut self, pts: &[(f32, f32)], rgb: Rgb) {
-        let mut pb = PathBuilder::new();
-        for (k, &(x, y)) in pts.iter().enumerate() {
-            if k == 0 {
-                pb.move_to(x, y)
-            } else {
-                pb.line_to(x, y)
-            }
-        }
-        pb.close();
-        if let Some(path) = pb.finish() {
+        if let Some(path) = path_through(pts, true) {
             self.pixmap.fill_path(
                 &path,
                 &paint(rgb),
@@ -174,6 +157,23 @@ impl Canvas {
         writer.finish()?;
         Ok(out)
     }
+}
+
+/// The path through `pts` in order, closed back to the first point when
+/// `closed`; `None` for fewer than two points.
+fn path_through(pts: &[(f32, f32)], closed: bool) -> Option<tiny_skia::Path> {
+    let mut pb = PathBuilder::new();
+    for (k, &(x, y)) in pts.iter().enumerate() {
+        if k == 0 {
+            pb.move_to(x, y)
+        } else {
+            pb.line_to(x, y)
+        }
+    }
+    if closed {
+        pb.close();
+    }
+    pb.finish()
 }
 
 /// An antialiased solid paint.
