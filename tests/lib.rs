@@ -75,6 +75,15 @@ pub fn half_sphere(n_lat: usize, n_lon: usize, centre_z: f64) -> TriMesh {
 /// ground z = 0. `nx` sections along x, `nt` points round each half
 /// section (a few hundred thousand facets at 560 x 320, as a scan).
 pub fn scan_like_half_car(nx: usize, nt: usize) -> TriMesh {
+    scan_like_half_car_with_screen(nx, nt, (480.0_f64 / 700.0).atan().to_degrees())
+}
+
+/// [`scan_like_half_car`] with the windscreen at `screen_deg` from the
+/// horizontal (34.4 there): the screen keeps its top at the front of the
+/// roof and its height of 480 mm, and the bonnet runs on level from
+/// x = 1,300 mm to its foot.
+pub fn scan_like_half_car_with_screen(nx: usize, nt: usize, screen_deg: f64) -> TriMesh {
+    let foot = 2000.0 - 480.0 / screen_deg.to_radians().tan();
     let length = 4500.0;
     let xs: Vec<f64> = (0..nx)
         .map(|i| {
@@ -82,17 +91,22 @@ pub fn scan_like_half_car(nx: usize, nt: usize) -> TriMesh {
             length * (0.85 * u + 0.15 * (0.5 - 0.5 * (std::f64::consts::PI * u).cos()))
         })
         .collect();
-    let top_line = [
+    let mut top_line = vec![
         (0.0, 520.0),
         (150.0, 700.0),
         (500.0, 790.0),
         (1300.0, 860.0),
+    ];
+    if foot > 1301.0 {
+        top_line.push((foot, 860.0));
+    }
+    top_line.extend([
         (2000.0, 1340.0),
         (2900.0, 1330.0),
         (3750.0, 950.0),
         (3900.0, 950.0),
         (4500.0, 940.0),
-    ];
+    ]);
     let bottom_line = [
         (0.0, 330.0),
         (200.0, 200.0),

@@ -7,6 +7,8 @@
 //! revolution (spreading `r'/r`, Mangler) and a 3D surface streamline
 //! (spreading = surface divergence of the unit flow direction).
 
+use nalgebra::{Point3, Vector3};
+
 use super::{BoundaryLayerParams, FlowState, REATTACHMENT_H, Transition, head, michel, thwaites};
 
 /// The edge flow at one station of the line.
@@ -40,6 +42,11 @@ pub struct LineSample {
     /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
     /// section.
     pub faces_stream: bool,
+    /// Where the station lies, m (the origin on a 2D section).
+    pub point: Point3<f64>,
+    /// Outward unit normal of the surface at the station (zero on a 2D
+    /// section, where no face rises into the stream).
+    pub normal: Vector3<f64>,
 }
 
 /// How the line starts.
@@ -116,6 +123,14 @@ pub const BUBBLE_CONCAVE_TURN: f64 = 10.0 * std::f64::consts::PI / 180.0;
 /// concave corner's dip in the speed (our choice).
 pub const BUBBLE_MIN_STATIONS: f64 = 6.0;
 
+/// Farthest a turbulent separation may lie ahead of the foot of a face
+/// into the stream, in heights of that face, for the separated layer to
+/// count as the bubble ahead of a step: ahead of a forward-facing step the
+/// flow separates about one step height upstream and reattaches on the
+/// step (Moss & Baker 1980; Sherry, Lo Jacono & Sheridan 2010; from
+/// memory). 1.5 is our margin on that.
+pub const STEP_SEPARATION_HEIGHTS: f64 = 1.5;
+
 /// Share by which the edge speed must exceed its value at a turbulent
 /// separation for the bubble to close (so that ripples of the interpolated
 /// speed do not count; our choice).
@@ -140,9 +155,13 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// screen), whose stations keep the separation
 /// point's thicknesses with no skin friction and risk 1, still counted
 /// attached, and at whose end the layer goes on from `H` =
-/// [`REATTACHMENT_H`] with `theta` held (our rule; see the setting). Once
-/// separated for good, every later station is separated and holds the
-/// thicknesses of the separation point.
+/// [`REATTACHMENT_H`] with `theta` held (our rule; see the setting). A
+/// separation that lies ahead of a face into the stream rising above the
+/// separated surface, within [`STEP_SEPARATION_HEIGHTS`] of that face's
+/// height from its foot, is such a bubble too, closing on the face (the
+/// flow ahead of a step; `step_bubble_end`). Once separated for good,
+/// every later station is separated and holds the thicknesses of the
+/// separation point.
 pub fn march_line(
     samples: &[LineSample],
     start: &LineStart,
@@ -276,6 +295,55 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     if ctx.params.reattach_thicknesses <= 0.0 {
         return None;
     }
+    corner_bubble_end(ctx, state).or_else(|| step_bubble_end(ctx))
+}
+
+/// The reattachment of a separation at `ctx.i` that lies ahead of a face
+/// into the stream rising above the separated surface (a windscreen stood
+/// on a bonnet, the face of a step): the separated shear layer leaves along
+/// the surface and runs into the face, so the region it encloses is a
+/// closed bubble, not an open wake (the flow ahead of a forward-facing
+/// step; see [`STEP_SEPARATION_HEIGHTS`]). The face's foot is the first
+/// station after a concave turn of at least [`BUBBLE_CONCAVE_TURN`] onto it;
+/// its height is how far its stations rise above the separated surface's
+/// plane, and the separation must lie within [`STEP_SEPARATION_HEIGHTS`]
+/// such heights of the foot. The bubble closes where the edge speed regains
+/// its value at separation (as [`corner_bubble_end`]) or, at the latest,
+/// where the face ends. `None` when a bluff edge comes first or the face is
+/// too low for the distance.
+fn step_bubble_end(ctx: &Station) -> Option<usize> {
+    let here = ctx.samples[ctx.i];
+    let later = ctx.samples.get(ctx.i + 1..)?;
+    let foot = later
+        .iter()
+        .take_while(|b| !b.forced_separation)
+        .position(|b| b.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN)?;
+    let face = &later[foot..];
+    let face_len = face.iter().take_while(|b| b.faces_stream).count();
+    let height = face[..face_len]
+        .iter()
+        .map(|b| (b.point - here.point).dot(&here.normal))
+        .fold(0.0, f64::max);
+    if face[0].s - here.s > STEP_SEPARATION_HEIGHTS * height {
+        return None;
+    }
+    let target = here.speed * (1.0 + REATTACH_SPEED_MARGIN);
+    let end = ctx.i + 1 + foot + face_len.min(face.len() - 1);
+    for j in ctx.i + 1..=end {
+        let b = &ctx.samples[j];
+        if b.forced_separation {
+            return None;
+        }
+        if b.speed > target {
+            return Some(j);
+        }
+    }
+    Some(end)
+}
+
+/// The reattachment of a separation at `ctx.i` in a concave corner, within
+/// `params.reattach_thicknesses` thicknesses (see [`bubble_end`]).
+fn corner_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     let here = ctx.samples[ctx.i];
     let thickness = state.theta * (head::h1_of_h(state.h) + state.h);
     let spacing = match ctx.samples {

@@ -579,6 +579,8 @@ impl<'a> LineContext<'a> {
                 trip: false,
                 concave_turn: concave[seg],
                 faces_stream: self.faces_stream(panel as usize),
+                point: p,
+                normal: *self.mesh.panels[panel as usize].normal,
             });
             segments.push(seg);
         }
