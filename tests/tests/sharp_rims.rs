@@ -336,3 +336,34 @@ fn a_tight_chamfer_is_a_rim_and_a_wide_one_is_not() {
         "wide chamfer {wide:.3} against sharp {sharp:.3}"
     );
 }
+
+/// A bump on a rounded body is no front face: on a sphere (5,120 panels)
+/// one vertex on the rear half, where the surface faces 20 degrees
+/// downstream, is pushed out by 0.3 radii, which tips the panels ahead of
+/// it to face upstream and turns the flow down round a sharp crest behind
+/// them. A line from the front stagnation point crosses one such panel
+/// before the crest, a stretch shorter than two rim radii
+/// (`screen::RIM_FACE_RADII`), so no rim zone forms there (a review's scan
+/// had "sharp front edges" at its tail from one panel the noise had
+/// tipped forward; with the rule off, this bump makes a rim zone, seen).
+#[test]
+fn a_bump_far_down_a_rounded_body_is_no_rim() {
+    let mut sphere = tuft_mesh::generate::icosphere(1.0, 4);
+    let target = Vector3::new(20f64.to_radians().sin(), 0.0, 20f64.to_radians().cos());
+    let v = (0..sphere.vertices.len())
+        .min_by(|&a, &b| {
+            let d = |i: usize| (sphere.vertices[i].coords - target).norm();
+            d(a).total_cmp(&d(b))
+        })
+        .unwrap();
+    sphere.vertices[v] = Point::from(sphere.vertices[v].coords * 1.3);
+    let mesh = PanelMesh::new(sphere, Mirrors::none()).unwrap();
+    let sol = solve_potential(&mesh, &Freestream::new(SPEED, 0.0)).unwrap();
+    let params = BoundaryLayerParams {
+        flow_direction: Some(Vector3::x()),
+        ..BoundaryLayerParams::default()
+    };
+    let layer = screen_boundary_layer(&mesh, &sol.velocity, SPEED, &params).unwrap();
+    let rim = layer.rim_zone.iter().filter(|&&z| z).count();
+    assert_eq!(rim, 0, "{rim} panels round the bump in the rim zone");
+}

@@ -733,6 +733,20 @@ impl<'a> LineContext<'a> {
             let Some((m, end)) = end else {
                 continue;
             };
+            // The face the flow leaves: the stretch facing upstream before
+            // the rim. A dent facing upstream far down the body (a panel
+            // the scan's noise tipped forward, at a rounded tail) is no
+            // front face: the line must have started on the face, or
+            // crossed [`RIM_FACE_RADII`] rim radii of it.
+            let face = (0..=before)
+                .rev()
+                .take_while(|&i| self.faces_upstream(p[i] as usize) || self.crumpled(p[i] as usize))
+                .last()
+                .unwrap_or(before);
+            if face > 0 && arc[start] - arc[face] < RIM_FACE_RADII * self.rim_radius {
+                c = m + 1;
+                continue;
+            }
             let mut i = before + 1;
             while i > 0 && !out[i - 1] && self.faces_upstream(p[i - 1] as usize) {
                 i -= 1;
@@ -838,6 +852,12 @@ pub const RIM_RADIUS: f64 = 0.04;
 fn rim_speed(speed: f64) -> f64 {
     speed * (1.0 - RIM_CP).sqrt()
 }
+
+/// Shortest stretch of a face the flow leaves round a rim, in rim radii
+/// ([`rim_radius`]), when the line did not start on that face: shorter,
+/// it is a dent in a surface facing elsewhere (a review's scan had rims at
+/// its tail from one panel the noise tipped forward; our choice).
+const RIM_FACE_RADII: f64 = 2.0;
 
 /// True when panel `t` faces upstream of `flow_dir` ([`FRONT_FACING_COS`]).
 fn faces_upstream(mesh: &PanelMesh, t: usize, flow_dir: &Vector3<f64>) -> bool {
