@@ -27,7 +27,7 @@ use serde::{Deserialize, Serialize};
 
 pub use folder::{ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
-pub use verdict::{DragVerdict, ModelDoubt, NOISE_COUNTS, drag_verdict};
+pub use verdict::{DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict};
 
 use crate::outdir::Staging;
 use crate::output::PanelState;
@@ -53,7 +53,10 @@ pub struct CompareArgs {
 /// Differences of the headline numbers, B minus A.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct Deltas {
-    /// Drag estimate, counts (1 count = 0.001 C_D, common practice).
+    /// Drag estimate, counts (1 count = 0.001 C_D, common practice); when
+    /// the reference areas differ, B's coefficient is expressed in A's
+    /// reference area ([`common_area`]), so that this is a difference of
+    /// drag area C_D·A, as are the pressure and friction parts.
     pub drag_counts: f64,
     /// Pressure part of the drag, counts.
     pub drag_pressure_counts: f64,
@@ -308,10 +311,11 @@ fn yaw_of(s: &crate::summary::Summary) -> f64 {
 /// Headline differences, B minus A.
 pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Deltas {
     let (ka, kb) = (&a.coefficients, &b.coefficients);
+    let k = area_factor(a, b);
     Deltas {
-        drag_counts: 1000.0 * (kb.drag - ka.drag),
-        drag_pressure_counts: 1000.0 * (kb.drag_pressure - ka.drag_pressure),
-        drag_friction_counts: 1000.0 * (kb.drag_friction - ka.drag_friction),
+        drag_counts: 1000.0 * (k * kb.drag - ka.drag),
+        drag_pressure_counts: 1000.0 * (k * kb.drag_pressure - ka.drag_pressure),
+        drag_friction_counts: 1000.0 * (k * kb.drag_friction - ka.drag_friction),
         drag_force_n: b.drag_estimate.force_n - a.drag_estimate.force_n,
         lift_coefficient: kb.lift - ka.lift,
         lift_kg: b.lift_kg.total - a.lift_kg.total,
@@ -454,7 +458,10 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     } else {
         0.0
     };
-    unchanged_noise(b, mapping, &f.delta_cp, &stream, &mut out);
+    // Drag counts on the area the headline's are on (A's when the areas
+    // differ, [`common_area`]).
+    let reference = common_area(&a.summary, &b.summary).unwrap_or(b.summary.reference.area_m2);
+    unchanged_noise(b, reference, mapping, &f.delta_cp, &stream, &mut out);
     out
 }
 
@@ -462,10 +469,11 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
 /// [`UNCHANGED_FRACTION`]): the flow's answer there to the change plus the
 /// two panellings' noise (the two cannot be told apart from two runs).
 /// Forces from
-/// `-Cp n dA` (outward normals), on B's reference area and dynamic
-/// pressure, whole body.
+/// `-Cp n dA` (outward normals), on the reference area `reference` and
+/// B's dynamic pressure, whole body.
 fn unchanged_noise(
     b: &ResultFolder,
+    reference: f64,
     mapping: &Mapping,
     delta_cp: &[f64],
     stream: &nalgebra::Vector3<f64>,
@@ -486,7 +494,7 @@ fn unchanged_noise(
         lift -= halves * delta_cp[i] * pb.normal.z * pb.area;
         spread.push((delta_cp[i].abs(), pb.area));
     }
-    let reference = s.reference.area_m2.max(f64::MIN_POSITIVE);
+    let reference = reference.max(f64::MIN_POSITIVE);
     out.unchanged_share = if total > 0.0 { area / total } else { 0.0 };
     out.unchanged_drag_counts = 1000.0 * drag / reference;
     out.unchanged_lift_kg = lift * s.dynamic_pressure_pa / tuft_solver::loads::STANDARD_GRAVITY;
@@ -604,8 +612,10 @@ fn reference_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
     let larger = ra.abs().max(rb.abs());
     ((ra - rb).abs() > REFERENCE_AREA_SHIFT * larger).then(|| {
         format!(
-            "the reference areas differ by {:.1} % ({ra:.3} and {rb:.3} m^2): compare forces (N, kg) \
-             rather than coefficients",
+            "the reference areas differ by {:.1} % ({ra:.3} and {rb:.3} m^2): the drag is compared as \
+             drag area C_D·A (B's drag coefficient expressed in A's reference area, the drag counts \
+             above included); the other coefficients are each on its run's own area, so compare \
+             forces (N, kg) rather than those",
             100.0 * (rb - ra).abs() / larger
         )
     })
@@ -761,7 +771,9 @@ fn separation_note(
     let wetted = a.mesh.wetted_area_m2.max(b.mesh.wetted_area_m2);
     let shift = (b.separation.area_m2 - a.separation.area_m2).abs();
     let net = surface.separation_net_frontal_m2;
-    let reference = b.reference.area_m2;
+    // One area for both runs (A's), so that reference areas that differ
+    // do not move the share.
+    let reference = a.reference.area_m2;
     let by_area = wetted > 0.0 && shift > SEPARATION_SHIFT * wetted;
     let by_stream = reference > 0.0 && net > SEPARATION_FRONTAL_SHIFT * reference;
     let percent = |x: f64| 100.0 * x / reference.max(f64::MIN_POSITIVE);
@@ -769,7 +781,7 @@ fn separation_note(
         format!(
             "the separated area goes from {:.3} m^2 ({:.2} % of A's surface) to {:.3} m^2 ({:.2} % of \
              B's surface, {:+.2} points), and where separation appears or disappears the surface seen \
-             from the front adds up to {:.1} % of the frontal reference area ({:.1} % counting where it \
+             from the front adds up to {:.1} % of A's reference area ({:.1} % counting where it \
              appears and where it disappears alike): {}",
             a.separation.area_m2,
             100.0 * a.separation.fraction,
@@ -846,6 +858,47 @@ mod tests {
         // 2 % apart: noted, with the difference.
         let n = reference_note(&with_area(2.0), &with_area(1.96)).unwrap();
         assert!(n.contains("differ by 2.0 %"), "{n}");
+    }
+
+    /// The review's coupe with `reference.area = 2.1` against its own
+    /// frontal area of 1.862 m^2: the same drag force had been "B has lower
+    /// drag by 16.8 counts", resolved. On drag area it is no difference,
+    /// and the verdict says how it ranked.
+    #[test]
+    fn reference_areas_that_differ_compare_drag_areas() {
+        let side = |area: f64, force: f64| {
+            let mut s = with_area(area);
+            let cd = 0.15 * force / area;
+            s.coefficients.drag = cd;
+            s.coefficients.drag_pressure = 0.8 * cd;
+            s.coefficients.drag_friction = 0.2 * cd;
+            s.drag_estimate.cd = cd;
+            s.drag_estimate.cd_low = cd - 0.005;
+            s.drag_estimate.cd_high = cd + 0.03;
+            s
+        };
+        let (a, b) = (side(1.862, 1.862), side(2.1, 1.862));
+        assert!(1000.0 * (a.coefficients.drag - b.coefficients.drag) > 16.0);
+        let v = drag_verdict(&a, &b, None);
+        assert!(!v.resolved && v.delta_counts.abs() < 1e-9, "{v:?}");
+        assert_eq!(v.common_area_m2, Some(1.862));
+        assert!(
+            v.text.contains("within the noise floor")
+                && v.text.contains("drag area C_D·A")
+                && v.text.contains("A's reference area of 1.862 m^2"),
+            "{}",
+            v.text
+        );
+        let d = deltas(&a, &b);
+        assert!(d.drag_counts.abs() < 1e-9 && d.drag_pressure_counts.abs() < 1e-9, "{d:?}");
+        // 10 % less drag force on B's larger area: 15 counts lower on A's.
+        let b = side(2.1, 0.9 * 1.862);
+        let v = drag_verdict(&a, &b, None);
+        assert!(v.resolved && (v.delta_counts + 15.0).abs() < 1e-9, "{v:?}");
+        assert!(v.text.starts_with("B has lower drag by 15.0 counts"), "{}", v.text);
+        // Areas within 1 %: coefficients as they are.
+        let v = drag_verdict(&side(1.862, 1.862), &side(1.87, 1.862), None);
+        assert_eq!(v.common_area_m2, None);
     }
 
     /// The wrap note: one run wrapped and the other not is noted, naming
@@ -983,7 +1036,7 @@ mod tests {
         assert!(!n.contains("wetted area"), "{n}");
         assert!(
             n.contains(
-                "seen from the front adds up to 11.0 % of the frontal reference area (13.9 % counting"
+                "seen from the front adds up to 11.0 % of A's reference area (13.9 % counting"
             ),
             "{n}"
         );

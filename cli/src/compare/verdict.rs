@@ -52,6 +52,31 @@ pub struct DragVerdict {
     pub doubt: String,
     /// One sentence for people.
     pub text: String,
+    /// When the two runs' reference areas differ (by more than
+    /// [`crate::compare::REFERENCE_AREA_SHIFT`]): the area both drag
+    /// coefficients are put on, A's, m^2, so that the counts above compare
+    /// drag areas C_D·A (the drag forces at one dynamic pressure) rather
+    /// than coefficients on different areas.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub common_area_m2: Option<f64>,
+}
+
+/// A's reference area when the two runs' reference areas differ by more
+/// than [`crate::compare::REFERENCE_AREA_SHIFT`]: drag is then ranked on
+/// drag area C_D·A, B's coefficients expressed in A's area (a coupe with
+/// `reference.area = 2.1` against its own frontal area of 1.86 m^2 had been
+/// called 16.8 counts lower at the same drag force). `None` when they
+/// agree.
+pub fn common_area(a: &Summary, b: &Summary) -> Option<f64> {
+    let (ra, rb) = (a.reference.area_m2, b.reference.area_m2);
+    let larger = ra.abs().max(rb.abs());
+    (ra > 0.0 && (ra - rb).abs() > crate::compare::REFERENCE_AREA_SHIFT * larger).then_some(ra)
+}
+
+/// The factor that puts B's force coefficients on A's reference area
+/// ([`common_area`]); 1 when the areas agree.
+pub fn area_factor(a: &Summary, b: &Summary) -> f64 {
+    common_area(a, b).map_or(1.0, |ra| b.reference.area_m2 / ra)
 }
 
 /// Why a drag difference rests on the part of the separated-flow model
@@ -90,7 +115,11 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
         }
         _ => "it ranks the slant-back research body's 25 and 35 degree slants the wrong way round",
     };
-    let counts = |x: f64, y: f64| 1000.0 * (y - x);
+    // B's coefficients on A's reference area when the areas differ: a
+    // difference of drag areas, not of coefficients on different areas.
+    let common = common_area(a, b);
+    let k = area_factor(a, b);
+    let counts = |x: f64, y: f64| 1000.0 * (k * y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
     let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
@@ -149,6 +178,13 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
             band_ends(low, high)
         )
     };
+    let text = match common {
+        Some(ra) => format!(
+            "{text} (the reference areas differ, so drag is ranked on drag area C_D·A: B's \
+             coefficient expressed in A's reference area of {ra:.3} m^2)"
+        ),
+        None => text,
+    };
     DragVerdict {
         resolved,
         delta_counts: delta,
@@ -162,6 +198,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
             why
         },
         text,
+        common_area_m2: common,
     }
 }
 
