@@ -62,16 +62,25 @@ pub struct Deltas {
     pub drag_pressure_counts: f64,
     /// Friction part of the drag, counts.
     pub drag_friction_counts: f64,
-    /// Drag force at each run's own speed, N.
+    /// Drag force, N, at B's dynamic pressure (see
+    /// [`Deltas::a_loads_scaled_by`]).
     pub drag_force_n: f64,
     /// Lift coefficient.
     pub lift_coefficient: f64,
-    /// Lift, whole body, kg.
+    /// Lift, whole body, kg at B's dynamic pressure.
     pub lift_kg: f64,
-    /// Lift on the front axle, kg.
+    /// Lift on the front axle, kg at B's dynamic pressure.
     pub front_axle_kg: f64,
-    /// Lift on the rear axle, kg.
+    /// Lift on the rear axle, kg at B's dynamic pressure.
     pub rear_axle_kg: f64,
+    /// When the runs' dynamic pressures differ (other speeds or air
+    /// densities): the factor q_B/q_A A's forces were multiplied by before
+    /// the force and kg differences above were taken, so that they compare
+    /// like with like at B's dynamic pressure (B at 50 m/s against A at 40
+    /// had read -63 kg where like for like it is -10). Coefficient
+    /// differences need no such factor.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub a_loads_scaled_by: Option<f64>,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, percentage points.
@@ -308,19 +317,32 @@ fn yaw_of(s: &crate::summary::Summary) -> f64 {
     s.flow("yaw").unwrap_or(0.0)
 }
 
-/// Headline differences, B minus A.
+/// q_B/q_A when the two runs' dynamic pressures differ by more than a
+/// part in a million (other speeds or densities), `None` otherwise or
+/// when either is unknown.
+pub fn pressure_factor(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<f64> {
+    let (qa, qb) = (a.dynamic_pressure_pa, b.dynamic_pressure_pa);
+    (qa > 0.0 && qb > 0.0 && (qa - qb).abs() > 1e-6 * qa).then_some(qb / qa)
+}
+
+/// Headline differences, B minus A: coefficients as they are (B's drag on
+/// A's reference area when the areas differ, [`common_area`]), forces and
+/// kg with A's taken at B's dynamic pressure ([`pressure_factor`]).
 pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Deltas {
     let (ka, kb) = (&a.coefficients, &b.coefficients);
     let k = area_factor(a, b);
+    let scaled = pressure_factor(a, b);
+    let q = scaled.unwrap_or(1.0);
     Deltas {
         drag_counts: 1000.0 * (k * kb.drag - ka.drag),
         drag_pressure_counts: 1000.0 * (k * kb.drag_pressure - ka.drag_pressure),
         drag_friction_counts: 1000.0 * (k * kb.drag_friction - ka.drag_friction),
-        drag_force_n: b.drag_estimate.force_n - a.drag_estimate.force_n,
+        drag_force_n: b.drag_estimate.force_n - q * a.drag_estimate.force_n,
         lift_coefficient: kb.lift - ka.lift,
-        lift_kg: b.lift_kg.total - a.lift_kg.total,
-        front_axle_kg: b.lift_kg.front_axle - a.lift_kg.front_axle,
-        rear_axle_kg: b.lift_kg.rear_axle - a.lift_kg.rear_axle,
+        lift_kg: b.lift_kg.total - q * a.lift_kg.total,
+        front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
+        rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
+        a_loads_scaled_by: scaled,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
     }
@@ -522,7 +544,10 @@ fn notes(
     let (va, vb) = (speed_of(sa), speed_of(sb));
     if (va - vb).abs() > 1e-9 * va.abs().max(1.0) {
         notes.push(format!(
-            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the speed"
+            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the \
+             speed, so the force and kg differences take A's at B's dynamic pressure (A's times {:.3}); \
+             the coefficient differences need no such factor",
+            pressure_factor(sa, sb).unwrap_or(1.0)
         ));
     }
     let (ya, yb) = (yaw_of(sa), yaw_of(sb));
@@ -810,8 +835,13 @@ fn print_comparison(c: &Comparison, out: &Path) {
     println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
     let [lift, front, rear] =
         crate::output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
+    let at_b = if d.a_loads_scaled_by.is_some() {
+        " at B's dynamic pressure"
+    } else {
+        ""
+    };
     println!(
-        "  drag {} counts, lift {lift} kg (front {front}, rear {rear}; negative: more downforce in B), \
+        "  drag {} counts, lift {lift} kg{at_b} (front {front}, rear {rear}; negative: more downforce in B), \
          separated area {} m^2 \
          (separated share of the surface {} points)",
         crate::output::signed(d.drag_counts, 1),
@@ -858,6 +888,34 @@ mod tests {
         // 2 % apart: noted, with the difference.
         let n = reference_note(&with_area(2.0), &with_area(1.96)).unwrap();
         assert!(n.contains("differ by 2.0 %"), "{n}");
+    }
+
+    /// B at 50 m/s against A at 40: the kg and N differences take A's at
+    /// B's dynamic pressure (the review's -157.66 against -94.53 kg had
+    /// read -63 kg; like for like -9.96), the coefficients' as they are.
+    #[test]
+    fn loads_at_different_speeds_are_compared_at_b_s_dynamic_pressure() {
+        let side = |speed: f64, lift: f64, cl: f64| {
+            let mut s = with_area(1.86);
+            s.dynamic_pressure_pa = 0.5 * 1.204 * speed * speed;
+            s.lift_kg.total = lift;
+            s.lift_kg.front_axle = 0.25 * lift;
+            s.lift_kg.rear_axle = 0.75 * lift;
+            s.drag_estimate.force_n = 100.0 * speed * speed / 1600.0;
+            s.coefficients.lift = cl;
+            s
+        };
+        let (a, b) = (side(40.0, -94.53, -0.10), side(50.0, -157.66, -0.11));
+        let d = deltas(&a, &b);
+        let like = -157.66 - (-94.53) * (50.0f64 / 40.0).powi(2);
+        assert!((d.lift_kg - like).abs() < 1e-9 && (d.lift_kg + 9.96).abs() < 0.01, "{d:?}");
+        assert!((d.rear_axle_kg - 0.75 * like).abs() < 1e-9, "{d:?}");
+        assert!(d.drag_force_n.abs() < 1e-9, "{d:?}");
+        assert!((d.lift_coefficient + 0.01).abs() < 1e-12, "{d:?}");
+        assert!((d.a_loads_scaled_by.unwrap() - 1.5625).abs() < 1e-12);
+        // The same speed: nothing scaled.
+        let d = deltas(&a, &side(40.0, -100.0, -0.1));
+        assert!(d.a_loads_scaled_by.is_none() && (d.lift_kg + 5.47).abs() < 1e-9, "{d:?}");
     }
 
     /// The review's coupe with `reference.area = 2.1` against its own
