@@ -108,17 +108,17 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     }
 
     if args.json {
-        println!("{}", serde_json::to_string_pretty(&report)?);
+        say!("{}", serde_json::to_string_pretty(&report)?);
     } else {
         if is_case {
-            println!(
+            say!(
                 "case       {}: its STL as the run reads it",
                 args.file.display()
             );
         }
-        print!("{}", summary(&file.display().to_string(), &report));
+        say_part!("{}", summary(&file.display().to_string(), &report));
         if let Some(case) = &case {
-            print!("{}", placement_lines(&panels, case));
+            say_part!("{}", placement_lines(&panels, case));
         }
     }
     Ok(if report.folded {

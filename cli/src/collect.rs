@@ -175,22 +175,22 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let warnings = distinct_warnings(&c);
     let notes = &c.notes;
     if !args.quiet {
-        println!(
+        say!(
             "{}: {} variants collected; {}",
             c.sweep,
             c.variants.len(),
             c.drag_ranking
         );
         for n in notes {
-            println!("  note: {n}");
+            say!("  note: {n}");
         }
         for (text, names) in &warnings {
-            println!("  warning ({}): {text}", names.join(", "));
+            say!("  warning ({}): {text}", names.join(", "));
         }
         for m in &c.missing {
-            println!("  missing or failed: {m}");
+            say!("  missing or failed: {m}");
         }
-        println!("  report: {}", args.dir.join("sweep.html").display());
+        say!("  report: {}", args.dir.join("sweep.html").display());
     }
     // Notes, as `tuft compare`'s, are warnings to read.
     Ok(

@@ -832,7 +832,7 @@ pub fn region_text(r: &RegionChange) -> String {
 
 fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
-    println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
+    say!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
     let [lift, front, rear] =
         crate::output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
     let at_b = if d.a_loads_scaled_by.is_some() {
@@ -840,7 +840,7 @@ fn print_comparison(c: &Comparison, out: &Path) {
     } else {
         ""
     };
-    println!(
+    say!(
         "  drag {} counts, lift {lift} kg{at_b} (front {front}, rear {rear}; negative: more downforce in B), \
          separated area {} m^2 \
          (separated share of the surface {} points)",
@@ -849,11 +849,11 @@ fn print_comparison(c: &Comparison, out: &Path) {
         crate::output::signed(d.separated_percent_points, 2)
     );
     for r in &c.regions {
-        println!("  {}: {}", r.name, region_text(r));
+        say!("  {}: {}", r.name, region_text(r));
     }
     let s = &c.surface;
     if s.unchanged_share > 0.0 {
-        println!(
+        say!(
             "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.3} on 95 % of it, giving \
              {} drag counts and {} kg of lift: the flow's answer there to the change, plus panel noise \
              (largest at sharp edges and corners)",
@@ -864,9 +864,9 @@ fn print_comparison(c: &Comparison, out: &Path) {
         );
     }
     for n in &c.notes {
-        println!("  note: {n}");
+        say!("  note: {n}");
     }
-    println!("  report: {}", out.join("compare.html").display());
+    say!("  report: {}", out.join("compare.html").display());
 }
 
 #[cfg(test)]

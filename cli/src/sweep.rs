@@ -87,7 +87,7 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
     if !args.options.quiet {
         let finished = range.len() - failed;
-        println!(
+        say!(
             "{}: {finished} of {} variants finished in {}{}{}",
             plan.name,
             range.len(),

@@ -362,3 +362,30 @@ fn a_case_file_takes_panels_from_the_command_line_and_refuses_other_flags() {
         "{stderr}"
     );
 }
+
+/// A reader that stops reading (`tuft check case.toml | head -20`) closes
+/// the pipe: the command had panicked ("failed printing to stdout: Broken
+/// pipe", exit 101). It now ends quietly with its usual exit code.
+#[test]
+fn a_closed_stdout_ends_quietly() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 3), 1000.0);
+    for args in [
+        vec!["check", path.to_str().unwrap(), "--units", "mm"],
+        vec!["--help"],
+    ] {
+        let mut child = Command::new(tuft())
+            .args(&args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        // Close the reading end before the command prints anything.
+        drop(child.stdout.take());
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {stderr}");
+    }
+}
