@@ -150,7 +150,7 @@ pub fn write_all(
         .collect();
     let values = [
         along(&|t| surface.cp[t]),
-        along(&|t| surface.shape_factor[t]),
+        along(&|t| surface.shape_factor_at(t)),
         along(&|t| surface.risk[t]),
     ];
     let scalars = [
