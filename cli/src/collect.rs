@@ -386,7 +386,7 @@ fn leader_words(rows: &[Row]) -> String {
     let gap = gap_counts(first, second);
     if gap < crate::compare::NOISE_COUNTS {
         return format!(
-            "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
+            "no clear winner: the lowest drag, {lowest}, is within {gap:.1} counts of {}",
             second.name
         );
     }
@@ -418,16 +418,16 @@ fn leader_words(rows: &[Row]) -> String {
             )
         } else {
             format!(
-                "lowest drag: {lowest}, {gap:.1} counts below {}, but not at both ends of the sensitivity \
-                 bands: within the model uncertainty, no clear winner",
+                "no clear winner, within the model uncertainty: the lowest drag, {lowest}, is {gap:.1} counts \
+                 below {} between the central estimates but not at both ends of the sensitivity bands",
                 second.name
             )
         };
     }
     if separation_spread(rows).is_some() || slopes {
         format!(
-            "lowest drag: {lowest}; the separated area or a rear slope moves across the variants, so no \
-             winner is named (see the notes above)"
+            "no clear winner: the separated area or a rear slope moves across the variants (see the notes \
+             above); lowest in this model: {lowest}"
         )
     } else {
         format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
@@ -535,7 +535,8 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
                 let b = ResultFolder::read(&dir.join(&first.name))?;
                 let a = ResultFolder::read(&dir.join(&second.name))?;
                 let mapping = crate::compare::map_a_onto_b(&a, &b);
-                Ok(crate::compare::comparison(&a, &b, &mapping).drag)
+                let names = [second.name.as_str(), first.name.as_str()];
+                Ok(crate::compare::comparison_named(&a, &b, &mapping, names).drag)
             })();
             first.against_next = verdict.ok();
         }
@@ -1428,7 +1429,8 @@ mod tests {
         );
         assert!(
             line.contains(
-                "yaw 5°: lowest drag: v0 (C_D 0.250); the separated area or a rear slope moves"
+                "yaw 5°: no clear winner: the separated area or a rear slope moves across the variants (see \
+                 the notes above); lowest in this model: v0 (C_D 0.250)"
             ),
             "{line}"
         );
@@ -1459,8 +1461,9 @@ mod tests {
     fn names_the_best_drag_only_beyond_the_noise() {
         let mut c = sweep(&[10.0, 10.0]);
         c.variants[1].cd = 0.302;
+        // The verdict first, then the figures.
         assert!(
-            best_drag(&c).contains("no clear winner"),
+            best_drag(&c).starts_with("no clear winner: the lowest drag, v0 (C_D 0.300), is within 2.0"),
             "{}",
             best_drag(&c)
         );
@@ -1472,7 +1475,7 @@ mod tests {
         );
         c.variants[1].separated_percent = 14.0;
         assert!(
-            best_drag(&c).contains("no winner is named"),
+            best_drag(&c).starts_with("no clear winner: the separated area"),
             "{}",
             best_drag(&c)
         );
@@ -1584,7 +1587,7 @@ mod tests {
         );
         c.variants[0].against_next = Some(verdict(false, ""));
         assert!(
-            best_drag(&c).contains("within the model uncertainty, no clear winner"),
+            best_drag(&c).starts_with("no clear winner, within the model uncertainty"),
             "{}",
             best_drag(&c)
         );

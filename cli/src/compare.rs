@@ -27,7 +27,9 @@ use serde::{Deserialize, Serialize};
 
 pub use folder::{ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
-pub use verdict::{DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict};
+pub use verdict::{
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict, drag_verdict_named,
+};
 
 use crate::outdir::Staging;
 use crate::output::PanelState;
@@ -350,6 +352,17 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
 
 /// Everything `compare.json` holds.
 pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comparison {
+    comparison_named(a, b, mapping, ["A", "B"])
+}
+
+/// [`comparison`] with the drag verdict's text calling the two runs by
+/// `names` (A's, B's; [`drag_verdict_named`]).
+pub fn comparison_named(
+    a: &ResultFolder,
+    b: &ResultFolder,
+    mapping: &Mapping,
+    names: [&str; 2],
+) -> Comparison {
     let surface = surface_deltas(a, b, mapping);
     // The notes that say the drag difference rests on the separation
     // model: the separated regions, or the underbody's share, moved (a
@@ -376,7 +389,7 @@ pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comp
         a: side(a),
         b: side(b),
         deltas: deltas(&a.summary, &b.summary),
-        drag: drag_verdict(&a.summary, &b.summary, doubt),
+        drag: drag_verdict_named(&a.summary, &b.summary, doubt, names),
         notes: notes(a, b, &surface, model_notes),
         surface,
         regions: region_changes(&a.summary, &b.summary),
@@ -805,8 +818,8 @@ fn separation_note(
     (by_area || by_stream).then(|| {
         format!(
             "the separated area goes from {:.3} m^2 ({:.2} % of A's surface) to {:.3} m^2 ({:.2} % of \
-             B's surface, {:+.2} points), and where separation appears or disappears the surface seen \
-             from the front adds up to {:.1} % of A's reference area ({:.1} % counting where it \
+             B's surface, {:+.2} points), and where separation appears or disappears the surface \
+             projected along the stream adds up to {:.1} % of A's reference area ({:.1} % counting where it \
              appears and where it disappears alike): {}",
             a.separation.area_m2,
             100.0 * a.separation.fraction,
@@ -1070,9 +1083,9 @@ mod tests {
     }
 
     #[test]
-    fn the_separation_note_gives_one_share_and_says_what_the_front_sees() {
+    fn the_separation_note_gives_one_share_and_says_what_the_stream_sees() {
         // The demo's figures: 1.987 m^2 of 22.28 m^2 and 2.616 m^2 of
-        // 21.87 m^2; the changed surface seen from the front 0.26 m^2 of
+        // 21.87 m^2; the changed surface projected along the stream 0.26 m^2 of
         // 1.87 m^2, 0.206 m^2 net.
         let side = |area: f64, wetted: f64| {
             let mut s = with_area(1.87);
@@ -1094,7 +1107,7 @@ mod tests {
         assert!(!n.contains("wetted area"), "{n}");
         assert!(
             n.contains(
-                "seen from the front adds up to 11.0 % of A's reference area (13.9 % counting"
+                "projected along the stream adds up to 11.0 % of A's reference area (13.9 % counting"
             ),
             "{n}"
         );

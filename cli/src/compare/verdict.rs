@@ -99,6 +99,19 @@ pub enum ModelDoubt {
 /// [`Summary::plateau_drag`], nor when either stood on the ground with
 /// wheels on, [`Summary::wheels_on`]).
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
+    drag_verdict_named(a, b, doubt, ["A", "B"])
+}
+
+/// [`drag_verdict`] with the two runs called by `names` (A's, B's) in its
+/// text: `tuft collect` names the variants, where "A" and "B" mean
+/// nothing.
+pub fn drag_verdict_named(
+    a: &Summary,
+    b: &Summary,
+    doubt: Option<ModelDoubt>,
+    names: [&str; 2],
+) -> DragVerdict {
+    let [na, nb] = names;
     let separation_differs = doubt.is_some();
     let why = match doubt {
         Some(ModelDoubt::RearSlope) => format!(
@@ -141,47 +154,48 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
     let text = if plateau {
         format!(
             "no winner: drag from the attached flow's plateau model (solver.wakes = \"attached\"), \
-             which is no basis for ranking drag; in this model B's drag is {} counts against \
-             A's: run both with the separated-flow loop (the default) to rank them",
+             which is no basis for ranking drag; in this model {nb}'s drag is {} counts against \
+             {na}'s: run both with the separated-flow loop (the default) to rank them",
             signed(delta, 1)
         )
     } else if wheels {
         format!(
-            "no winner: {}; in this model B's drag is {} counts against A's",
+            "no winner: {}; in this model {nb}'s drag is {} counts against {na}'s",
             crate::pipeline::WHEELS_DRAG,
             signed(delta, 1)
         )
     } else if !above_noise {
         format!(
-            "drag difference {} counts is within the noise floor of {NOISE_COUNTS} counts: no winner",
+            "no winner: the drag difference, {} counts, is within the noise floor of {NOISE_COUNTS} \
+             counts",
             signed(delta, 1)
         )
     } else if banded && separation_differs {
         format!(
             "no winner: {why}, where the model's drag ranking is not reliable ({known}); in this \
-             model B's drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD or a \
+             model {nb}'s drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD or a \
              tunnel",
             delta.abs(),
             band_ends(low, high)
         )
     } else if !banded {
         format!(
-            "drag difference {} counts between the central estimates, but {}: within the model \
-             uncertainty, no winner",
+            "no winner, within the model uncertainty: the drag difference is {} counts between the \
+             central estimates, but {}",
             signed(delta, 1),
             band_ends(low, high)
         )
     } else {
         format!(
-            "B has {direction} drag by {:.1} counts between the central estimates ({})",
+            "{nb} has {direction} drag by {:.1} counts between the central estimates ({})",
             delta.abs(),
             band_ends(low, high)
         )
     };
     let text = match common {
         Some(ra) => format!(
-            "{text} (the reference areas differ, so drag is ranked on drag area C_D·A: B's \
-             coefficient expressed in A's reference area of {ra:.3} m^2)"
+            "{text} (the reference areas differ, so drag is ranked on drag area C_D·A: {nb}'s \
+             coefficient expressed in {na}'s reference area of {ra:.3} m^2)"
         ),
         None => text,
     };
@@ -295,6 +309,28 @@ mod tests {
             "{}",
             v.text
         );
+    }
+
+    /// `tuft collect`'s verdict on its leader names the variants: "B's
+    /// drag is ... lower" meant nothing in sweep.json, where no A or B is
+    /// defined.
+    #[test]
+    fn a_named_verdict_speaks_of_the_variants() {
+        let a = summary(0.300, 0.290, 0.320);
+        let b = summary(0.290, 0.280, 0.310);
+        let v = drag_verdict_named(&a, &b, Some(ModelDoubt::Separation), ["deck-30", "deck-0"]);
+        assert!(
+            v.text.contains("in this model deck-0's drag is 10.0 counts lower")
+                && !v.text.contains("B's")
+                && !v.text.contains("A's"),
+            "{}",
+            v.text
+        );
+        let v = drag_verdict_named(&a, &b, None, ["deck-30", "deck-0"]);
+        assert!(v.text.starts_with("deck-0 has lower drag by 10.0 counts"), "{}", v.text);
+        // Within the noise: the verdict first.
+        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), None);
+        assert!(v.text.starts_with("no winner: the drag difference, +2.0 counts"), "{}", v.text);
     }
 
     #[test]
