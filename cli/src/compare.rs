@@ -28,8 +28,10 @@ use serde::{Deserialize, Serialize};
 pub use folder::{ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
 pub use verdict::{
-    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict, drag_verdict_named,
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict_named,
 };
+#[cfg(test)]
+use verdict::drag_verdict;
 
 use crate::outdir::Staging;
 use crate::output::PanelState;

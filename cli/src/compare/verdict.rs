@@ -98,6 +98,7 @@ pub enum ModelDoubt {
 /// is named then, nor when either run's drag is the plateau model's,
 /// [`Summary::plateau_drag`], nor when either stood on the ground with
 /// wheels on, [`Summary::wheels_on`]).
+#[cfg(test)]
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
     drag_verdict_named(a, b, doubt, ["A", "B"])
 }
