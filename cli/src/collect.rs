@@ -1463,7 +1463,8 @@ mod tests {
         c.variants[1].cd = 0.302;
         // The verdict first, then the figures.
         assert!(
-            best_drag(&c).starts_with("no clear winner: the lowest drag, v0 (C_D 0.300), is within 2.0"),
+            best_drag(&c)
+                .starts_with("no clear winner: the lowest drag, v0 (C_D 0.300), is within 2.0"),
             "{}",
             best_drag(&c)
         );

@@ -27,11 +27,11 @@ use serde::{Deserialize, Serialize};
 
 pub use folder::{ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
+#[cfg(test)]
+use verdict::drag_verdict;
 pub use verdict::{
     DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict_named,
 };
-#[cfg(test)]
-use verdict::drag_verdict;
 
 use crate::outdir::Staging;
 use crate::output::PanelState;
@@ -923,14 +923,20 @@ mod tests {
         let (a, b) = (side(40.0, -94.53, -0.10), side(50.0, -157.66, -0.11));
         let d = deltas(&a, &b);
         let like = -157.66 - (-94.53) * (50.0f64 / 40.0).powi(2);
-        assert!((d.lift_kg - like).abs() < 1e-9 && (d.lift_kg + 9.96).abs() < 0.01, "{d:?}");
+        assert!(
+            (d.lift_kg - like).abs() < 1e-9 && (d.lift_kg + 9.96).abs() < 0.01,
+            "{d:?}"
+        );
         assert!((d.rear_axle_kg - 0.75 * like).abs() < 1e-9, "{d:?}");
         assert!(d.drag_force_n.abs() < 1e-9, "{d:?}");
         assert!((d.lift_coefficient + 0.01).abs() < 1e-12, "{d:?}");
         assert!((d.a_loads_scaled_by.unwrap() - 1.5625).abs() < 1e-12);
         // The same speed: nothing scaled.
         let d = deltas(&a, &side(40.0, -100.0, -0.1));
-        assert!(d.a_loads_scaled_by.is_none() && (d.lift_kg + 5.47).abs() < 1e-9, "{d:?}");
+        assert!(
+            d.a_loads_scaled_by.is_none() && (d.lift_kg + 5.47).abs() < 1e-9,
+            "{d:?}"
+        );
     }
 
     /// The review's coupe with `reference.area = 2.1` against its own
@@ -963,12 +969,19 @@ mod tests {
             v.text
         );
         let d = deltas(&a, &b);
-        assert!(d.drag_counts.abs() < 1e-9 && d.drag_pressure_counts.abs() < 1e-9, "{d:?}");
+        assert!(
+            d.drag_counts.abs() < 1e-9 && d.drag_pressure_counts.abs() < 1e-9,
+            "{d:?}"
+        );
         // 10 % less drag force on B's larger area: 15 counts lower on A's.
         let b = side(2.1, 0.9 * 1.862);
         let v = drag_verdict(&a, &b, None);
         assert!(v.resolved && (v.delta_counts + 15.0).abs() < 1e-9, "{v:?}");
-        assert!(v.text.starts_with("B has lower drag by 15.0 counts"), "{}", v.text);
+        assert!(
+            v.text.starts_with("B has lower drag by 15.0 counts"),
+            "{}",
+            v.text
+        );
         // Areas within 1 %: coefficients as they are.
         let v = drag_verdict(&side(1.862, 1.862), &side(1.87, 1.862), None);
         assert_eq!(v.common_area_m2, None);

@@ -134,9 +134,13 @@ fn main() -> ExitCode {
 pub fn write_stdout(args: std::fmt::Arguments<'_>, newline: bool) {
     use std::io::Write as _;
     let mut out = std::io::stdout().lock();
-    let _ = out
-        .write_fmt(args)
-        .and_then(|()| if newline { out.write_all(b"\n") } else { Ok(()) });
+    let _ = out.write_fmt(args).and_then(|()| {
+        if newline {
+            out.write_all(b"\n")
+        } else {
+            Ok(())
+        }
+    });
 }
 
 /// Print an error and its causes on one line, prefixed with the program name.

@@ -140,7 +140,11 @@ fn print_summary(out: &Path, s: &Summary) {
     let k = &s.coefficients;
     say!(
         "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}), lift C_L {:.3}",
-        s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
+        s.case_name,
+        k.drag,
+        s.drag_estimate.cd_low,
+        s.drag_estimate.cd_high,
+        k.lift
     );
     let floor = crate::write::underbody_words(s, "; ");
     let [total, front, rear] = s.lift_kg.axle_words();

@@ -321,17 +321,27 @@ mod tests {
         let b = summary(0.290, 0.280, 0.310);
         let v = drag_verdict_named(&a, &b, Some(ModelDoubt::Separation), ["deck-30", "deck-0"]);
         assert!(
-            v.text.contains("in this model deck-0's drag is 10.0 counts lower")
+            v.text
+                .contains("in this model deck-0's drag is 10.0 counts lower")
                 && !v.text.contains("B's")
                 && !v.text.contains("A's"),
             "{}",
             v.text
         );
         let v = drag_verdict_named(&a, &b, None, ["deck-30", "deck-0"]);
-        assert!(v.text.starts_with("deck-0 has lower drag by 10.0 counts"), "{}", v.text);
+        assert!(
+            v.text.starts_with("deck-0 has lower drag by 10.0 counts"),
+            "{}",
+            v.text
+        );
         // Within the noise: the verdict first.
         let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), None);
-        assert!(v.text.starts_with("no winner: the drag difference, +2.0 counts"), "{}", v.text);
+        assert!(
+            v.text
+                .starts_with("no winner: the drag difference, +2.0 counts"),
+            "{}",
+            v.text
+        );
     }
 
     #[test]

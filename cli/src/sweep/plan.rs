@@ -211,7 +211,11 @@ impl Plan {
         let case =
             crate::case::Case::from_file(&dir.join(format!("{}.toml", first.name)), file).ok()?;
         let n = crate::geometry::load(&case).ok()?.report.suggested_panels;
-        for f in self.variants.iter_mut().filter_map(|v| v.file.as_mut().ok()) {
+        for f in self
+            .variants
+            .iter_mut()
+            .filter_map(|v| v.file.as_mut().ok())
+        {
             f.geometry.panels = Some(n);
         }
         Some(n)
