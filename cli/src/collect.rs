@@ -910,7 +910,7 @@ figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 /// ranking then rests on the separated-flow model.
 fn separation_spread(c: &[Row]) -> Option<String> {
     let by_area = spread(c, |r| r.separated_percent, crate::compare::SEPARATION_SHIFT);
-    // The separated surface seen along the stream as a share of one area
+    // The separated surface projected along the stream as a share of one area
     // for all (the largest reference area), so that reference areas that
     // differ do not move it.
     let common = range(c, |r| r.reference_area_m2).1;
@@ -937,8 +937,8 @@ fn separation_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = range(c, |r| r.separated_percent);
     Some(format!(
         "The separated share of the surface moves by {:.1} points across these variants ({lo:.1} % to \
-         {hi:.1} %), and the separated surface seen along the stream by {:.1} % of the reference area \
-         (each variant's front- and rear-facing separated area added: {flo:.1} % to {fhi:.1} %): {}.",
+         {hi:.1} %), and the separated surface projected along the stream by {:.1} % of the largest \
+         reference area (each variant's front- and rear-facing separated area added: {flo:.1} % to {fhi:.1} %): {}.",
         hi - lo,
         fhi - flo,
         crate::compare::SEPARATION_CAUTION
@@ -1604,7 +1604,7 @@ mod tests {
         c.variants[1].separated_frontal_m2 = 0.127 * 1.86;
         let text = separation_spread(&c.variants).unwrap_or_default();
         assert!(
-            text.contains("seen along the stream by 12.7 % of the reference area"),
+            text.contains("projected along the stream by 12.7 % of the largest reference area"),
             "{text}"
         );
     }
