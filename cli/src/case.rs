@@ -478,13 +478,32 @@ pub fn file_axes(nose: Option<&str>, up: Option<&str>, key: &str) -> Result<tuft
 /// turned into tuft's axes, that those lengths are in tuft's axes, not
 /// the file's.
 pub fn with_axes_hint(err: anyhow::Error, g: &GeometrySection) -> anyhow::Error {
+    match axes_words(g) {
+        Some(words) => anyhow::anyhow!("{err:#} (lengths in the case file{words})"),
+        None => err,
+    }
+}
+
+/// `err` about an axle position with one parenthesis on the case file's
+/// lengths: metres, and in tuft's axes when the STL is turned into them
+/// (two parentheses in a row had said each half).
+pub fn with_lengths_hint(err: anyhow::Error, g: &GeometrySection) -> anyhow::Error {
+    anyhow::anyhow!(
+        "{err:#} (lengths in the case file are metres{})",
+        axes_words(g).map_or(String::new(), |w| format!(", and{w}"))
+    )
+}
+
+/// When geometry.nose or geometry.up turns the STL: the words after
+/// "lengths in the case file" saying those lengths are in tuft's axes.
+fn axes_words(g: &GeometrySection) -> Option<&'static str> {
     match (g.nose.as_deref(), g.up.as_deref()) {
-        (Some("+x"), _) | (_, Some("y")) => anyhow::anyhow!(
-            "{err:#} (lengths in the case file, for axles, regions and the ground, are in tuft's axes, into \
-             which geometry.nose and geometry.up turn the STL: x grows from front to rear, so with nose = \
-             \"+x\" it is minus the STL's x, and z is up; tuft check prints the body's extent in them)"
+        (Some("+x"), _) | (_, Some("y")) => Some(
+            ", for axles, regions and the ground, are in tuft's axes, into which geometry.nose and \
+             geometry.up turn the STL: x grows from front to rear, so with nose = \"+x\" it is minus the \
+             STL's x, and z is up; tuft check prints the body's extent in them",
         ),
-        _ => err,
+        _ => None,
     }
 }
 

@@ -92,35 +92,54 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     } else {
         (args.file.clone(), settings(args)?, None)
     };
-    let (panels, report) = prepare(&file, &params).with_context(|| file.display().to_string())?;
+    let (panels, report) = prepare(&file, &params)
+        .map_err(|e| match &case {
+            Some(case) => crate::geometry::name_mirror_keys(e, case),
+            None => {
+                let mut keys = Vec::new();
+                if let Some(z) = args.ground {
+                    keys.push(format!("--ground {z}"));
+                }
+                if args.half {
+                    keys.push("--half".to_owned());
+                }
+                let up = args.up.is_none().then_some("pass --up y");
+                crate::geometry::mirror_refusal(e, &keys, "--ground", up)
+            }
+        })
+        .with_context(|| file.display().to_string())?;
     let [lo, hi] = report.bounds;
     let size = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
     let key = if is_case { "geometry.units" } else { "--units" };
     if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
         anyhow::bail!("{}: {why}", file.display());
     }
-    if let Some(case) = &case {
+    // Axles and regions off the body are an error, given after what check
+    // knows of the STL (its extent above all, which is what the axles must
+    // be set against).
+    let placement = case.as_ref().map_or(Ok(()), |case| {
         crate::geometry::check_placement(&panels, case)
-            .with_context(|| args.file.display().to_string())?;
-    }
+            .with_context(|| args.file.display().to_string())
+    });
     if let Some(out) = &args.save_panels {
         save_panels(out, &panels, params.units)?;
     }
 
     if args.json {
-        println!("{}", serde_json::to_string_pretty(&report)?);
+        say!("{}", serde_json::to_string_pretty(&report)?);
     } else {
         if is_case {
-            println!(
+            say!(
                 "case       {}: its STL as the run reads it",
                 args.file.display()
             );
         }
-        print!("{}", summary(&file.display().to_string(), &report));
-        if let Some(case) = &case {
-            print!("{}", placement_lines(&panels, case));
+        say_part!("{}", summary(&file.display().to_string(), &report));
+        if let Some(case) = case.as_ref().filter(|_| placement.is_ok()) {
+            say_part!("{}", placement_lines(&panels, case));
         }
     }
+    placement?;
     Ok(if report.folded {
         ExitCode::from(1)
     } else {

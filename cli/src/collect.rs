@@ -71,6 +71,12 @@ pub struct Row {
     /// it can exceed 100 %.
     #[serde(default)]
     pub separated_frontal_percent: f64,
+    /// The same in m^2, whole body.
+    #[serde(default)]
+    pub separated_frontal_m2: f64,
+    /// The variant's reference area, m^2.
+    #[serde(default)]
+    pub reference_area_m2: f64,
     /// Panels.
     pub panels: usize,
     /// Warnings in the variant's summary.
@@ -169,22 +175,22 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let warnings = distinct_warnings(&c);
     let notes = &c.notes;
     if !args.quiet {
-        println!(
+        say!(
             "{}: {} variants collected; {}",
             c.sweep,
             c.variants.len(),
             c.drag_ranking
         );
         for n in notes {
-            println!("  note: {n}");
+            say!("  note: {n}");
         }
         for (text, names) in &warnings {
-            println!("  warning ({}): {text}", names.join(", "));
+            say!("  warning ({}): {text}", names.join(", "));
         }
         for m in &c.missing {
-            println!("  missing or failed: {m}");
+            say!("  missing or failed: {m}");
         }
-        println!("  report: {}", args.dir.join("sweep.html").display());
+        say!("  report: {}", args.dir.join("sweep.html").display());
     }
     // Notes, as `tuft compare`'s, are warnings to read.
     Ok(
@@ -327,6 +333,49 @@ fn best_drag(c: &Collected) -> String {
 /// than the noise floor ([`crate::compare::NOISE_COUNTS`]) and the
 /// separated share stays put across the variants.
 fn best_drag_in(rows: &[Row]) -> String {
+    let text = leader_words(rows);
+    match (areas_differ(rows), rows.get(1)) {
+        (true, Some(second)) => format!(
+            "{text} (the reference areas differ across these variants, so they are ranked by drag \
+             area C_D·A, and the counts are on {}'s reference area of {:.3} m^2)",
+            second.name, second.reference_area_m2
+        ),
+        _ => text,
+    }
+}
+
+/// A variant's drag area C_D·A, m^2 (its C_D alone where its reference
+/// area is unknown): what ranks variants whose reference areas differ.
+fn drag_area(r: &Row) -> f64 {
+    if r.reference_area_m2 > 0.0 {
+        r.cd * r.reference_area_m2
+    } else {
+        r.cd
+    }
+}
+
+/// Whether the variants' reference areas differ by more than
+/// [`crate::compare::REFERENCE_AREA_SHIFT`] (then their coefficients rank
+/// nothing by themselves: the same drag force on a larger area has a
+/// smaller C_D).
+fn areas_differ(rows: &[Row]) -> bool {
+    let (lo, hi) = range(rows, |r| r.reference_area_m2);
+    lo > 0.0 && hi - lo > crate::compare::REFERENCE_AREA_SHIFT * hi
+}
+
+/// The gap in counts from the lowest drag to the runner-up, on the
+/// runner-up's reference area (as `tuft compare` puts B, the leader, on
+/// A's, the runner-up's): a difference of drag areas.
+fn gap_counts(first: &Row, second: &Row) -> f64 {
+    if areas_differ(&[first.clone(), second.clone()]) {
+        1000.0 * (drag_area(second) - drag_area(first)) / second.reference_area_m2
+    } else {
+        1000.0 * (second.cd - first.cd)
+    }
+}
+
+/// [`best_drag_in`]'s verdict on the leader.
+fn leader_words(rows: &[Row]) -> String {
     let [first, rest @ ..] = rows else {
         return "no drag to rank".into();
     };
@@ -334,10 +383,10 @@ fn best_drag_in(rows: &[Row]) -> String {
     let Some(second) = rest.first() else {
         return format!("drag: {lowest}");
     };
-    let gap = 1000.0 * (second.cd - first.cd);
+    let gap = gap_counts(first, second);
     if gap < crate::compare::NOISE_COUNTS {
         return format!(
-            "lowest drag: {lowest}, within {gap:.1} counts of {}: no clear winner",
+            "no clear winner: the lowest drag, {lowest}, is within {gap:.1} counts of {}",
             second.name
         );
     }
@@ -369,16 +418,16 @@ fn best_drag_in(rows: &[Row]) -> String {
             )
         } else {
             format!(
-                "lowest drag: {lowest}, {gap:.1} counts below {}, but not at both ends of the sensitivity \
-                 bands: within the model uncertainty, no clear winner",
+                "no clear winner, within the model uncertainty: the lowest drag, {lowest}, is {gap:.1} counts \
+                 below {} between the central estimates but not at both ends of the sensitivity bands",
                 second.name
             )
         };
     }
     if separation_spread(rows).is_some() || slopes {
         format!(
-            "lowest drag: {lowest}; the separated area or a rear slope moves across the variants, so no \
-             winner is named (see the notes above)"
+            "no clear winner: the separated area or a rear slope moves across the variants (see the notes \
+             above); lowest in this model: {lowest}"
         )
     } else {
         format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
@@ -486,21 +535,24 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
                 let b = ResultFolder::read(&dir.join(&first.name))?;
                 let a = ResultFolder::read(&dir.join(&second.name))?;
                 let mapping = crate::compare::map_a_onto_b(&a, &b);
-                Ok(crate::compare::comparison(&a, &b, &mapping).drag)
+                let names = [second.name.as_str(), first.name.as_str()];
+                Ok(crate::compare::comparison_named(&a, &b, &mapping, names).drag)
             })();
             first.against_next = verdict.ok();
         }
     }
 }
 
-/// Order (plan index, row) pairs by wind condition, then drag, then plan
+/// Order (plan index, row) pairs by wind condition, then drag area C_D·A
+/// (the drag force at one dynamic pressure: the same order as C_D when the
+/// reference areas agree, and the right one when they do not), then plan
 /// index, and number them from 1 within each wind condition.
 fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
     rows.sort_by(|(i, a), (j, b)| {
         a.speed
             .total_cmp(&b.speed)
             .then(a.yaw_deg.total_cmp(&b.yaw_deg))
-            .then(a.cd.total_cmp(&b.cd))
+            .then(drag_area(a).total_cmp(&drag_area(b)))
             .then(i.cmp(j))
     });
     let mut out: Vec<Row> = Vec::with_capacity(rows.len());
@@ -570,6 +622,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         underbody_separated_percent: 100.0 * s.separation.underbody_fraction,
         separated_frontal_percent: 100.0 * s.separation.frontal_m2
             / s.reference.area_m2.max(f64::MIN_POSITIVE),
+        separated_frontal_m2: s.separation.frontal_m2,
+        reference_area_m2: s.reference.area_m2,
         panels: s.mesh.panels,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
@@ -856,20 +910,35 @@ figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
 /// ranking then rests on the separated-flow model.
 fn separation_spread(c: &[Row]) -> Option<String> {
     let by_area = spread(c, |r| r.separated_percent, crate::compare::SEPARATION_SHIFT);
-    let by_stream = spread(
-        c,
-        |r| r.separated_frontal_percent,
-        crate::compare::SEPARATION_FRONTAL_SHIFT,
-    );
+    // The separated surface projected along the stream as a share of one area
+    // for all (the largest reference area), so that reference areas that
+    // differ do not move it.
+    let common = range(c, |r| r.reference_area_m2).1;
+    let frontal: Vec<f64> = c
+        .iter()
+        .map(|r| {
+            if common > 0.0 {
+                100.0 * r.separated_frontal_m2 / common
+            } else {
+                r.separated_frontal_percent
+            }
+        })
+        .collect();
+    let (flo, fhi) = frontal
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &x| {
+            (lo.min(x), hi.max(x))
+        });
+    let by_stream =
+        (fhi - flo > 100.0 * crate::compare::SEPARATION_FRONTAL_SHIFT).then_some((flo, fhi));
     if by_area.is_none() && by_stream.is_none() {
         return None;
     }
     let (lo, hi) = range(c, |r| r.separated_percent);
-    let (flo, fhi) = range(c, |r| r.separated_frontal_percent);
     Some(format!(
         "The separated share of the surface moves by {:.1} points across these variants ({lo:.1} % to \
-         {hi:.1} %), and the separated surface seen along the stream by {:.1} % of the reference area \
-         (each variant's front- and rear-facing separated area added: {flo:.1} % to {fhi:.1} %): {}.",
+         {hi:.1} %), and the separated surface projected along the stream by {:.1} % of the largest \
+         reference area (each variant's front- and rear-facing separated area added: {flo:.1} % to {fhi:.1} %): {}.",
         hi - lo,
         fhi - flo,
         crate::compare::SEPARATION_CAUTION
@@ -1141,6 +1210,8 @@ mod tests {
             separated_percent: p,
             underbody_separated_percent: 2.0 * p,
             separated_frontal_percent: 0.0,
+            separated_frontal_m2: 0.0,
+            reference_area_m2: 1.86,
             panels: 1000,
             warnings: 0,
             matrix_reused: false,
@@ -1358,7 +1429,8 @@ mod tests {
         );
         assert!(
             line.contains(
-                "yaw 5°: lowest drag: v0 (C_D 0.250); the separated area or a rear slope moves"
+                "yaw 5°: no clear winner: the separated area or a rear slope moves across the variants (see \
+                 the notes above); lowest in this model: v0 (C_D 0.250)"
             ),
             "{line}"
         );
@@ -1389,8 +1461,10 @@ mod tests {
     fn names_the_best_drag_only_beyond_the_noise() {
         let mut c = sweep(&[10.0, 10.0]);
         c.variants[1].cd = 0.302;
+        // The verdict first, then the figures.
         assert!(
-            best_drag(&c).contains("no clear winner"),
+            best_drag(&c)
+                .starts_with("no clear winner: the lowest drag, v0 (C_D 0.300), is within 2.0"),
             "{}",
             best_drag(&c)
         );
@@ -1402,7 +1476,7 @@ mod tests {
         );
         c.variants[1].separated_percent = 14.0;
         assert!(
-            best_drag(&c).contains("no winner is named"),
+            best_drag(&c).starts_with("no clear winner: the separated area"),
             "{}",
             best_drag(&c)
         );
@@ -1514,7 +1588,7 @@ mod tests {
         );
         c.variants[0].against_next = Some(verdict(false, ""));
         assert!(
-            best_drag(&c).contains("within the model uncertainty, no clear winner"),
+            best_drag(&c).starts_with("no clear winner, within the model uncertainty"),
             "{}",
             best_drag(&c)
         );
@@ -1527,12 +1601,61 @@ mod tests {
     fn warns_when_the_separated_area_projected_along_the_stream_moves() {
         let mut c = sweep(&[10.0, 10.5]);
         assert!(separation_spread(&c.variants).is_none());
-        c.variants[1].separated_frontal_percent = 12.7;
+        c.variants[1].separated_frontal_m2 = 0.127 * 1.86;
         let text = separation_spread(&c.variants).unwrap_or_default();
         assert!(
-            text.contains("seen along the stream by 12.7 % of the reference area"),
+            text.contains("projected along the stream by 12.7 % of the largest reference area"),
             "{text}"
         );
+    }
+
+    /// A sweep of the reference area alone: the same drag force on 1.862
+    /// and 2.1 m^2 (C_D 0.2 and 0.1773) had been ranked on C_D, "best
+    /// drag: area-2.1 ... 17.3 counts below"; ranked on drag area C_D·A it
+    /// is a tie, said to be one, and the separated surface the stream sees
+    /// (the same 0.5 m^2) raises no note through the areas alone.
+    #[test]
+    fn reference_areas_that_differ_rank_by_drag_area() {
+        let mut c = sweep(&[10.0, 10.0]);
+        for (r, (name, area)) in c
+            .variants
+            .iter_mut()
+            .zip([("area-1.862", 1.862), ("area-2.1", 2.1)])
+        {
+            r.name = name.into();
+            r.reference_area_m2 = area;
+            r.cd = 0.2 * 1.862 / area;
+            r.cd_low = r.cd - 0.01;
+            r.cd_high = r.cd + 0.02;
+            r.separated_frontal_m2 = 0.5;
+            r.separated_frontal_percent = 100.0 * 0.5 / area;
+        }
+        let rows: Vec<(usize, Row)> = c.variants.iter().cloned().enumerate().collect();
+        c.variants = rank(rows);
+        // A tie, whichever comes first by round-off.
+        assert!(gap_counts(&c.variants[0], &c.variants[1]).abs() < 1e-9);
+        let line = best_drag(&c);
+        let second = &c.variants[1];
+        assert!(
+            !line.starts_with("best drag")
+                && line.contains("ranked by drag area C_D·A")
+                && line.contains(&format!(
+                    "{}'s reference area of {:.3} m^2",
+                    second.name, second.reference_area_m2
+                )),
+            "{line}"
+        );
+        assert!(separation_spread(&c.variants).is_none());
+        // A real difference in drag force still ranks: 10 % less on the
+        // larger area is 20 counts on the smaller one's (0.2 C_D there).
+        for r in c.variants.iter_mut().filter(|r| r.name == "area-2.1") {
+            r.cd = 0.9 * 0.2 * 1.862 / 2.1;
+        }
+        let rows: Vec<(usize, Row)> = c.variants.iter().cloned().enumerate().collect();
+        c.variants = rank(rows);
+        assert_eq!(c.variants[0].name, "area-2.1");
+        let gap = gap_counts(&c.variants[0], &c.variants[1]);
+        assert!((gap - 20.0).abs() < 1e-9, "{gap}");
     }
 
     /// The page warns when the separated share of the surface moves by

@@ -27,7 +27,11 @@ use serde::{Deserialize, Serialize};
 
 pub use folder::{ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
-pub use verdict::{DragVerdict, ModelDoubt, NOISE_COUNTS, drag_verdict};
+#[cfg(test)]
+use verdict::drag_verdict;
+pub use verdict::{
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict_named,
+};
 
 use crate::outdir::Staging;
 use crate::output::PanelState;
@@ -53,22 +57,34 @@ pub struct CompareArgs {
 /// Differences of the headline numbers, B minus A.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct Deltas {
-    /// Drag estimate, counts (1 count = 0.001 C_D, common practice).
+    /// Drag estimate, counts (1 count = 0.001 C_D, common practice); when
+    /// the reference areas differ, B's coefficient is expressed in A's
+    /// reference area ([`common_area`]), so that this is a difference of
+    /// drag area C_D·A, as are the pressure and friction parts.
     pub drag_counts: f64,
     /// Pressure part of the drag, counts.
     pub drag_pressure_counts: f64,
     /// Friction part of the drag, counts.
     pub drag_friction_counts: f64,
-    /// Drag force at each run's own speed, N.
+    /// Drag force, N, at B's dynamic pressure (see
+    /// [`Deltas::a_loads_scaled_by`]).
     pub drag_force_n: f64,
     /// Lift coefficient.
     pub lift_coefficient: f64,
-    /// Lift, whole body, kg.
+    /// Lift, whole body, kg at B's dynamic pressure.
     pub lift_kg: f64,
-    /// Lift on the front axle, kg.
+    /// Lift on the front axle, kg at B's dynamic pressure.
     pub front_axle_kg: f64,
-    /// Lift on the rear axle, kg.
+    /// Lift on the rear axle, kg at B's dynamic pressure.
     pub rear_axle_kg: f64,
+    /// When the runs' dynamic pressures differ (other speeds or air
+    /// densities): the factor q_B/q_A A's forces were multiplied by before
+    /// the force and kg differences above were taken, so that they compare
+    /// like with like at B's dynamic pressure (B at 50 m/s against A at 40
+    /// had read -63 kg where like for like it is -10). Coefficient
+    /// differences need no such factor.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub a_loads_scaled_by: Option<f64>,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, percentage points.
@@ -305,18 +321,32 @@ fn yaw_of(s: &crate::summary::Summary) -> f64 {
     s.flow("yaw").unwrap_or(0.0)
 }
 
-/// Headline differences, B minus A.
+/// q_B/q_A when the two runs' dynamic pressures differ by more than a
+/// part in a million (other speeds or densities), `None` otherwise or
+/// when either is unknown.
+pub fn pressure_factor(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<f64> {
+    let (qa, qb) = (a.dynamic_pressure_pa, b.dynamic_pressure_pa);
+    (qa > 0.0 && qb > 0.0 && (qa - qb).abs() > 1e-6 * qa).then_some(qb / qa)
+}
+
+/// Headline differences, B minus A: coefficients as they are (B's drag on
+/// A's reference area when the areas differ, [`common_area`]), forces and
+/// kg with A's taken at B's dynamic pressure ([`pressure_factor`]).
 pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Deltas {
     let (ka, kb) = (&a.coefficients, &b.coefficients);
+    let k = area_factor(a, b);
+    let scaled = pressure_factor(a, b);
+    let q = scaled.unwrap_or(1.0);
     Deltas {
-        drag_counts: 1000.0 * (kb.drag - ka.drag),
-        drag_pressure_counts: 1000.0 * (kb.drag_pressure - ka.drag_pressure),
-        drag_friction_counts: 1000.0 * (kb.drag_friction - ka.drag_friction),
-        drag_force_n: b.drag_estimate.force_n - a.drag_estimate.force_n,
+        drag_counts: 1000.0 * (k * kb.drag - ka.drag),
+        drag_pressure_counts: 1000.0 * (k * kb.drag_pressure - ka.drag_pressure),
+        drag_friction_counts: 1000.0 * (k * kb.drag_friction - ka.drag_friction),
+        drag_force_n: b.drag_estimate.force_n - q * a.drag_estimate.force_n,
         lift_coefficient: kb.lift - ka.lift,
-        lift_kg: b.lift_kg.total - a.lift_kg.total,
-        front_axle_kg: b.lift_kg.front_axle - a.lift_kg.front_axle,
-        rear_axle_kg: b.lift_kg.rear_axle - a.lift_kg.rear_axle,
+        lift_kg: b.lift_kg.total - q * a.lift_kg.total,
+        front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
+        rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
+        a_loads_scaled_by: scaled,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
     }
@@ -324,6 +354,17 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
 
 /// Everything `compare.json` holds.
 pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comparison {
+    comparison_named(a, b, mapping, ["A", "B"])
+}
+
+/// [`comparison`] with the drag verdict's text calling the two runs by
+/// `names` (A's, B's; [`drag_verdict_named`]).
+pub fn comparison_named(
+    a: &ResultFolder,
+    b: &ResultFolder,
+    mapping: &Mapping,
+    names: [&str; 2],
+) -> Comparison {
     let surface = surface_deltas(a, b, mapping);
     // The notes that say the drag difference rests on the separation
     // model: the separated regions, or the underbody's share, moved (a
@@ -350,7 +391,7 @@ pub fn comparison(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Comp
         a: side(a),
         b: side(b),
         deltas: deltas(&a.summary, &b.summary),
-        drag: drag_verdict(&a.summary, &b.summary, doubt),
+        drag: drag_verdict_named(&a.summary, &b.summary, doubt, names),
         notes: notes(a, b, &surface, model_notes),
         surface,
         regions: region_changes(&a.summary, &b.summary),
@@ -454,7 +495,10 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     } else {
         0.0
     };
-    unchanged_noise(b, mapping, &f.delta_cp, &stream, &mut out);
+    // Drag counts on the area the headline's are on (A's when the areas
+    // differ, [`common_area`]).
+    let reference = common_area(&a.summary, &b.summary).unwrap_or(b.summary.reference.area_m2);
+    unchanged_noise(b, reference, mapping, &f.delta_cp, &stream, &mut out);
     out
 }
 
@@ -462,10 +506,11 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
 /// [`UNCHANGED_FRACTION`]): the flow's answer there to the change plus the
 /// two panellings' noise (the two cannot be told apart from two runs).
 /// Forces from
-/// `-Cp n dA` (outward normals), on B's reference area and dynamic
-/// pressure, whole body.
+/// `-Cp n dA` (outward normals), on the reference area `reference` and
+/// B's dynamic pressure, whole body.
 fn unchanged_noise(
     b: &ResultFolder,
+    reference: f64,
     mapping: &Mapping,
     delta_cp: &[f64],
     stream: &nalgebra::Vector3<f64>,
@@ -486,7 +531,7 @@ fn unchanged_noise(
         lift -= halves * delta_cp[i] * pb.normal.z * pb.area;
         spread.push((delta_cp[i].abs(), pb.area));
     }
-    let reference = s.reference.area_m2.max(f64::MIN_POSITIVE);
+    let reference = reference.max(f64::MIN_POSITIVE);
     out.unchanged_share = if total > 0.0 { area / total } else { 0.0 };
     out.unchanged_drag_counts = 1000.0 * drag / reference;
     out.unchanged_lift_kg = lift * s.dynamic_pressure_pa / tuft_solver::loads::STANDARD_GRAVITY;
@@ -514,7 +559,10 @@ fn notes(
     let (va, vb) = (speed_of(sa), speed_of(sb));
     if (va - vb).abs() > 1e-9 * va.abs().max(1.0) {
         notes.push(format!(
-            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the speed"
+            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the \
+             speed, so the force and kg differences take A's at B's dynamic pressure (A's times {:.3}); \
+             the coefficient differences need no such factor",
+            pressure_factor(sa, sb).unwrap_or(1.0)
         ));
     }
     let (ya, yb) = (yaw_of(sa), yaw_of(sb));
@@ -604,8 +652,10 @@ fn reference_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
     let larger = ra.abs().max(rb.abs());
     ((ra - rb).abs() > REFERENCE_AREA_SHIFT * larger).then(|| {
         format!(
-            "the reference areas differ by {:.1} % ({ra:.3} and {rb:.3} m^2): compare forces (N, kg) \
-             rather than coefficients",
+            "the reference areas differ by {:.1} % ({ra:.3} and {rb:.3} m^2): the drag is compared as \
+             drag area C_D·A (B's drag coefficient expressed in A's reference area, the drag counts \
+             above included); the other coefficients are each on its run's own area, so compare \
+             forces (N, kg) rather than those",
             100.0 * (rb - ra).abs() / larger
         )
     })
@@ -761,15 +811,17 @@ fn separation_note(
     let wetted = a.mesh.wetted_area_m2.max(b.mesh.wetted_area_m2);
     let shift = (b.separation.area_m2 - a.separation.area_m2).abs();
     let net = surface.separation_net_frontal_m2;
-    let reference = b.reference.area_m2;
+    // One area for both runs (A's), so that reference areas that differ
+    // do not move the share.
+    let reference = a.reference.area_m2;
     let by_area = wetted > 0.0 && shift > SEPARATION_SHIFT * wetted;
     let by_stream = reference > 0.0 && net > SEPARATION_FRONTAL_SHIFT * reference;
     let percent = |x: f64| 100.0 * x / reference.max(f64::MIN_POSITIVE);
     (by_area || by_stream).then(|| {
         format!(
             "the separated area goes from {:.3} m^2 ({:.2} % of A's surface) to {:.3} m^2 ({:.2} % of \
-             B's surface, {:+.2} points), and where separation appears or disappears the surface seen \
-             from the front adds up to {:.1} % of the frontal reference area ({:.1} % counting where it \
+             B's surface, {:+.2} points), and where separation appears or disappears the surface \
+             projected along the stream adds up to {:.1} % of A's reference area ({:.1} % counting where it \
              appears and where it disappears alike): {}",
             a.separation.area_m2,
             100.0 * a.separation.fraction,
@@ -795,11 +847,16 @@ pub fn region_text(r: &RegionChange) -> String {
 
 fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
-    println!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
+    say!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
     let [lift, front, rear] =
         crate::output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
-    println!(
-        "  drag {} counts, lift {lift} kg (front {front}, rear {rear}; negative: more downforce in B), \
+    let at_b = if d.a_loads_scaled_by.is_some() {
+        " at B's dynamic pressure"
+    } else {
+        ""
+    };
+    say!(
+        "  drag {} counts, lift {lift} kg{at_b} (front {front}, rear {rear}; negative: more downforce in B), \
          separated area {} m^2 \
          (separated share of the surface {} points)",
         crate::output::signed(d.drag_counts, 1),
@@ -807,11 +864,11 @@ fn print_comparison(c: &Comparison, out: &Path) {
         crate::output::signed(d.separated_percent_points, 2)
     );
     for r in &c.regions {
-        println!("  {}: {}", r.name, region_text(r));
+        say!("  {}: {}", r.name, region_text(r));
     }
     let s = &c.surface;
     if s.unchanged_share > 0.0 {
-        println!(
+        say!(
             "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.3} on 95 % of it, giving \
              {} drag counts and {} kg of lift: the flow's answer there to the change, plus panel noise \
              (largest at sharp edges and corners)",
@@ -822,9 +879,9 @@ fn print_comparison(c: &Comparison, out: &Path) {
         );
     }
     for n in &c.notes {
-        println!("  note: {n}");
+        say!("  note: {n}");
     }
-    println!("  report: {}", out.join("compare.html").display());
+    say!("  report: {}", out.join("compare.html").display());
 }
 
 #[cfg(test)]
@@ -846,6 +903,88 @@ mod tests {
         // 2 % apart: noted, with the difference.
         let n = reference_note(&with_area(2.0), &with_area(1.96)).unwrap();
         assert!(n.contains("differ by 2.0 %"), "{n}");
+    }
+
+    /// B at 50 m/s against A at 40: the kg and N differences take A's at
+    /// B's dynamic pressure (the review's -157.66 against -94.53 kg had
+    /// read -63 kg; like for like -9.96), the coefficients' as they are.
+    #[test]
+    fn loads_at_different_speeds_are_compared_at_b_s_dynamic_pressure() {
+        let side = |speed: f64, lift: f64, cl: f64| {
+            let mut s = with_area(1.86);
+            s.dynamic_pressure_pa = 0.5 * 1.204 * speed * speed;
+            s.lift_kg.total = lift;
+            s.lift_kg.front_axle = 0.25 * lift;
+            s.lift_kg.rear_axle = 0.75 * lift;
+            s.drag_estimate.force_n = 100.0 * speed * speed / 1600.0;
+            s.coefficients.lift = cl;
+            s
+        };
+        let (a, b) = (side(40.0, -94.53, -0.10), side(50.0, -157.66, -0.11));
+        let d = deltas(&a, &b);
+        let like = -157.66 - (-94.53) * (50.0f64 / 40.0).powi(2);
+        assert!(
+            (d.lift_kg - like).abs() < 1e-9 && (d.lift_kg + 9.96).abs() < 0.01,
+            "{d:?}"
+        );
+        assert!((d.rear_axle_kg - 0.75 * like).abs() < 1e-9, "{d:?}");
+        assert!(d.drag_force_n.abs() < 1e-9, "{d:?}");
+        assert!((d.lift_coefficient + 0.01).abs() < 1e-12, "{d:?}");
+        assert!((d.a_loads_scaled_by.unwrap() - 1.5625).abs() < 1e-12);
+        // The same speed: nothing scaled.
+        let d = deltas(&a, &side(40.0, -100.0, -0.1));
+        assert!(
+            d.a_loads_scaled_by.is_none() && (d.lift_kg + 5.47).abs() < 1e-9,
+            "{d:?}"
+        );
+    }
+
+    /// The review's coupe with `reference.area = 2.1` against its own
+    /// frontal area of 1.862 m^2: the same drag force had been "B has lower
+    /// drag by 16.8 counts", resolved. On drag area it is no difference,
+    /// and the verdict says how it ranked.
+    #[test]
+    fn reference_areas_that_differ_compare_drag_areas() {
+        let side = |area: f64, force: f64| {
+            let mut s = with_area(area);
+            let cd = 0.15 * force / area;
+            s.coefficients.drag = cd;
+            s.coefficients.drag_pressure = 0.8 * cd;
+            s.coefficients.drag_friction = 0.2 * cd;
+            s.drag_estimate.cd = cd;
+            s.drag_estimate.cd_low = cd - 0.005;
+            s.drag_estimate.cd_high = cd + 0.03;
+            s
+        };
+        let (a, b) = (side(1.862, 1.862), side(2.1, 1.862));
+        assert!(1000.0 * (a.coefficients.drag - b.coefficients.drag) > 16.0);
+        let v = drag_verdict(&a, &b, None);
+        assert!(!v.resolved && v.delta_counts.abs() < 1e-9, "{v:?}");
+        assert_eq!(v.common_area_m2, Some(1.862));
+        assert!(
+            v.text.contains("within the noise floor")
+                && v.text.contains("drag area C_D·A")
+                && v.text.contains("A's reference area of 1.862 m^2"),
+            "{}",
+            v.text
+        );
+        let d = deltas(&a, &b);
+        assert!(
+            d.drag_counts.abs() < 1e-9 && d.drag_pressure_counts.abs() < 1e-9,
+            "{d:?}"
+        );
+        // 10 % less drag force on B's larger area: 15 counts lower on A's.
+        let b = side(2.1, 0.9 * 1.862);
+        let v = drag_verdict(&a, &b, None);
+        assert!(v.resolved && (v.delta_counts + 15.0).abs() < 1e-9, "{v:?}");
+        assert!(
+            v.text.starts_with("B has lower drag by 15.0 counts"),
+            "{}",
+            v.text
+        );
+        // Areas within 1 %: coefficients as they are.
+        let v = drag_verdict(&side(1.862, 1.862), &side(1.87, 1.862), None);
+        assert_eq!(v.common_area_m2, None);
     }
 
     /// The wrap note: one run wrapped and the other not is noted, naming
@@ -959,9 +1098,9 @@ mod tests {
     }
 
     #[test]
-    fn the_separation_note_gives_one_share_and_says_what_the_front_sees() {
+    fn the_separation_note_gives_one_share_and_says_what_the_stream_sees() {
         // The demo's figures: 1.987 m^2 of 22.28 m^2 and 2.616 m^2 of
-        // 21.87 m^2; the changed surface seen from the front 0.26 m^2 of
+        // 21.87 m^2; the changed surface projected along the stream 0.26 m^2 of
         // 1.87 m^2, 0.206 m^2 net.
         let side = |area: f64, wetted: f64| {
             let mut s = with_area(1.87);
@@ -983,7 +1122,7 @@ mod tests {
         assert!(!n.contains("wetted area"), "{n}");
         assert!(
             n.contains(
-                "seen from the front adds up to 11.0 % of the frontal reference area (13.9 % counting"
+                "projected along the stream adds up to 11.0 % of A's reference area (13.9 % counting"
             ),
             "{n}"
         );

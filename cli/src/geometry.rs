@@ -73,15 +73,7 @@ pub fn load(case: &Case) -> Result<Geometry> {
 }
 
 /// A mirror-plane refusal names the case keys that declared the planes.
-fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
-    // A tenth or more of the body below the ground (twice what tyres
-    // pressed into the floor may reach) is more likely an export with the
-    // wrong axes or a wrong ground.z.
-    let below = match err {
-        MeshError::BelowGround { z, ground, top, .. } => ground - z > 0.1 * (top - z),
-        MeshError::AcrossSymmetryPlane { .. } => false,
-        _ => return err.into(),
-    };
+pub fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     let mut keys = Vec::new();
     if let Some(g) = &case.file.ground {
         keys.push(format!("ground.z = {}", g.z));
@@ -89,15 +81,35 @@ fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     if case.file.geometry.half_model {
         keys.push("geometry.half_model = true".to_string());
     }
-    // An STL below the ground is often an export with y up.
     let stl = matches!(case.source, GeometrySource::Stl { .. });
-    if below && stl && case.file.geometry.up.is_none() {
-        anyhow::anyhow!(
-            "{}: {err}: is ground.z right, or has the STL y up, as many exports do (then set geometry.up = \"y\")?",
+    let up = (stl && case.file.geometry.up.is_none()).then_some("set geometry.up = \"y\"");
+    mirror_refusal(err, &keys, "ground.z", up)
+}
+
+/// A mirror-plane refusal with the settings that declared the planes
+/// (`keys`). When a tenth or more of the body lies below the ground (twice
+/// what tyres pressed into the floor may reach), an export with y up or a
+/// wrong ground height is more likely: with `up` (what sets the STL's up
+/// axis, as "set geometry.up = \"y\"", given when the STL's up axis was
+/// not), the message asks which, naming `ground` (the ground's setting).
+/// `tuft run` and `tuft check` (a case file or an STL alone) share it.
+pub fn mirror_refusal(
+    err: MeshError,
+    keys: &[String],
+    ground: &str,
+    up: Option<&str>,
+) -> anyhow::Error {
+    let below = match err {
+        MeshError::BelowGround { z, ground, top, .. } => ground - z > 0.1 * (top - z),
+        MeshError::AcrossSymmetryPlane { .. } => false,
+        _ => return err.into(),
+    };
+    match up {
+        Some(up) if below => anyhow::anyhow!(
+            "{}: {err}: is {ground} right, or has the STL y up, as many exports do (then {up})?",
             keys.join(", ")
-        )
-    } else {
-        anyhow::Error::new(err).context(keys.join(", "))
+        ),
+        _ => anyhow::Error::new(err).context(keys.join(", ")),
     }
 }
 
@@ -223,9 +235,10 @@ pub fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -
 /// The axles and the named regions lie on the body (in tuft's axes; the
 /// error says so when the STL was turned into them).
 pub fn check_placement(mesh: &PanelMesh, case: &Case) -> Result<()> {
-    check_axles(mesh, case)
-        .and_then(|()| crate::region::check_on_body(&case.file.regions, mesh))
-        .map_err(|e| crate::case::with_axes_hint(e, &case.file.geometry))
+    let g = &case.file.geometry;
+    check_axles(mesh, case).map_err(|e| crate::case::with_lengths_hint(e, g))?;
+    crate::region::check_on_body(&case.file.regions, mesh)
+        .map_err(|e| crate::case::with_axes_hint(e, g))
 }
 
 fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
@@ -239,8 +252,7 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
             && !(lo.x <= x && x <= hi.x)
         {
             bail!(
-                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m \
-                 (lengths in the case file are metres)",
+                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m",
                 lo.x,
                 hi.x
             );

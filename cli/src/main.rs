@@ -8,6 +8,22 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+/// `println!` for what a command prints on stdout, which a closed stdout
+/// does not stop: `tuft check case.toml | head -20` had panicked ("failed
+/// printing to stdout: Broken pipe", exit 101). See [`write_stdout`].
+macro_rules! say {
+    ($($arg:tt)*) => {
+        $crate::write_stdout(format_args!($($arg)*), true)
+    };
+}
+
+/// `print!` as [`say!`] is `println!`.
+macro_rules! say_part {
+    ($($arg:tt)*) => {
+        $crate::write_stdout(format_args!($($arg)*), false)
+    };
+}
+
 mod case;
 mod check;
 mod collect;
@@ -85,7 +101,7 @@ fn main() -> ExitCode {
         Ok(cli) => cli,
         Err(e) if !e.use_stderr() => {
             // --help and --version.
-            print!("{e}");
+            say_part!("{e}");
             return ExitCode::SUCCESS;
         }
         Err(e) => {
@@ -108,6 +124,23 @@ fn main() -> ExitCode {
             ExitCode::from(EXIT_FAILURE)
         }
     }
+}
+
+/// Write to stdout, dropping what a closed stdout (a reader such as
+/// `head` that has stopped reading: the write fails with a broken pipe)
+/// or a failing one cannot take: what a command prints is a summary of
+/// the files it writes, so the command goes on to its usual end and exit
+/// code instead of panicking.
+pub fn write_stdout(args: std::fmt::Arguments<'_>, newline: bool) {
+    use std::io::Write as _;
+    let mut out = std::io::stdout().lock();
+    let _ = out.write_fmt(args).and_then(|()| {
+        if newline {
+            out.write_all(b"\n")
+        } else {
+            Ok(())
+        }
+    });
 }
 
 /// Print an error and its causes on one line, prefixed with the program name.

@@ -138,13 +138,17 @@ fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
 /// A few lines on stdout: the headline numbers and where the report is.
 fn print_summary(out: &Path, s: &Summary) {
     let k = &s.coefficients;
-    println!(
+    say!(
         "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}), lift C_L {:.3}",
-        s.case_name, k.drag, s.drag_estimate.cd_low, s.drag_estimate.cd_high, k.lift
+        s.case_name,
+        k.drag,
+        s.drag_estimate.cd_low,
+        s.drag_estimate.cd_high,
+        k.lift
     );
     let floor = crate::write::underbody_words(s, "; ");
     let [total, front, rear] = s.lift_kg.axle_words();
-    println!(
+    say!(
         "  lift {total} kg (front {front}, rear {rear}{floor}), separated {:.1} % of the surface",
         100.0 * s.separation.fraction
     );
@@ -155,7 +159,7 @@ fn print_summary(out: &Path, s: &Summary) {
             (false, false) => "not converged",
         };
         let cpb = |v: Option<f64>| v.map_or("none".to_string(), |v| format!("{v:.2}"));
-        println!(
+        say!(
             "  separated-flow loop: {} passes, {state}; C_D {:.3} (plateau model on the attached flow: {:.3}), base C_p {} (plateau model: {})",
             w.passes,
             w.cd_loop,
@@ -165,7 +169,7 @@ fn print_summary(out: &Path, s: &Summary) {
         );
     }
     if s.separation.rim_m2 > 0.0 {
-        println!(
+        say!(
             "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, at x {:.2} to {:.2} m and z {:.2} to {:.2} m, held at the free-streamline bound",
             1000.0 * s.separation.rim_radius_m,
             s.separation.rim_m2,
@@ -176,12 +180,12 @@ fn print_summary(out: &Path, s: &Summary) {
         );
     }
     for r in &s.regions {
-        println!("  {}: {}", r.name, r.words());
+        say!("  {}: {}", r.name, r.words());
     }
     for w in &s.warnings {
-        println!("  warning: {w}");
+        say!("  warning: {w}");
     }
-    println!("  report: {}", out.join("report.html").display());
+    say!("  report: {}", out.join("report.html").display());
 }
 
 /// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle
@@ -238,7 +242,7 @@ pub fn demo(args: &DemoArgs) -> Result<ExitCode> {
         }
     }
     if !args.options.quiet {
-        println!(
+        say!(
             "Compare the two: tuft compare {0}/coupe-{1:.0}deg {0}/coupe-{2:.0}deg",
             root.display(),
             DEMO_SLOPES[0],

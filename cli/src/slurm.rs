@@ -162,7 +162,7 @@ pub fn write_scripts(args: &SweepArgs, plan: &Plan, root: &Path) -> Result<ExitC
         write_executable(&dir.join(file), &text)?;
     }
     if !args.options.quiet {
-        println!(
+        say!(
             "{}: {n} variants in {shards} shards; submit with: bash {}",
             plan.name,
             dir.join("submit.sh").display()

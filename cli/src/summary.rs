@@ -20,7 +20,9 @@ pub struct CoefficientSet {
     pub drag_pressure: f64,
     /// Side-force coefficient.
     pub side: f64,
-    /// Pitching-moment coefficient about the moment point (nose up +).
+    /// Pitching-moment coefficient about the body's lateral axis (y)
+    /// through the moment point (the wheelbase's middle on the ground), the
+    /// axis the axle split uses, also at yaw (nose up +).
     pub pitch: f64,
 }
 

@@ -76,6 +76,17 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     }
     set_threads(args.options.threads)?;
     let memory_limit = args.options.memory_limit_bytes()?;
+    let mut plan = plan;
+    let dir = plan.path.parent().unwrap_or(Path::new(".")).to_path_buf();
+    if let Some(n) = plan.one_panel_count(&dir) {
+        say(
+            args.options.quiet,
+            &format!(
+                "every variant at {n} panels, the first variant's default (set geometry.panels in the \
+                 base case to choose)"
+            ),
+        );
+    }
     let (k, n) = match &args.shard {
         Some(s) => parse_shard(s)?,
         None => (1, 1),
@@ -87,7 +98,7 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
     if !args.options.quiet {
         let finished = range.len() - failed;
-        println!(
+        say!(
             "{}: {finished} of {} variants finished in {}{}{}",
             plan.name,
             range.len(),

@@ -150,7 +150,7 @@ pub fn write_all(
         .collect();
     let values = [
         along(&|t| surface.cp[t]),
-        along(&|t| surface.shape_factor[t]),
+        along(&|t| surface.shape_factor_at(t)),
         along(&|t| surface.risk[t]),
     ];
     let scalars = [
@@ -379,14 +379,28 @@ fn grid(
     }
 }
 
-fn coefficient_set(l: &tuft_solver::loads::Loads) -> CoefficientSet {
+/// The summary's coefficients. The pitching moment is taken about the
+/// body's lateral axis (y) through the moment point, as the axle split
+/// takes it, not about the wind axes' side axis the solver's coefficients
+/// use: at yaw the two differ (the rolling moment about the stream leaks
+/// into the wind-axis pitch), and the summary's pitch had disagreed with
+/// its own axle split.
+fn coefficient_set(
+    l: &tuft_solver::loads::Loads,
+    r: &tuft_solver::loads::Reference,
+) -> CoefficientSet {
+    let qal = l.dynamic_pressure * r.area * r.length;
     CoefficientSet {
         lift: l.total.coefficients.lift,
         drag: l.total.coefficients.drag,
         drag_friction: l.friction.coefficients.drag,
         drag_pressure: l.pressure.coefficients.drag,
         side: l.total.coefficients.side,
-        pitch: l.total.coefficients.pitch,
+        pitch: if qal > 0.0 {
+            l.total.moment.y / qal
+        } else {
+            l.total.coefficients.pitch
+        },
     }
 }
 
@@ -449,8 +463,8 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         },
         dynamic_pressure_pa: e.dynamic_pressure,
         reynolds_number: flow.speed * r.length / flow.viscosity,
-        coefficients: coefficient_set(e),
-        coefficients_attached: coefficient_set(&c.attached),
+        coefficients: coefficient_set(e, r),
+        coefficients_attached: coefficient_set(&c.attached, r),
         drag_estimate: DragEstimate {
             cd: e.total.coefficients.drag,
             cd_low: c.drag_band.0,
@@ -724,11 +738,12 @@ fn report(
         NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
         NumberRow::fixed(
             if s.mesh.ground_z.is_some() {
-                "Pitching-moment coefficient (about the wheelbase's middle on the ground, on the reference \
-                 length; positive nose up)"
+                "Pitching-moment coefficient (about the body's lateral axis through the wheelbase's \
+                 middle on the ground, as the axle split; on the reference length; positive nose up)"
             } else {
-                "Pitching-moment coefficient (about the wheelbase's middle at the body's lowest point, no \
-                 ground; on the reference length; positive nose up)"
+                "Pitching-moment coefficient (about the body's lateral axis through the wheelbase's \
+                 middle at the body's lowest point, no ground, as the axle split; on the reference \
+                 length; positive nose up)"
             },
             k.pitch,
             3,
@@ -942,6 +957,46 @@ mod tests {
         assert_eq!(super::drag_force_words(&d, 1.0, 0), "300 (150 to 600)");
         // Power P = F V: at 40 m/s, 12 kW (6 to 24).
         assert_eq!(super::drag_force_words(&d, 0.04, 1), "12.0 (6.0 to 24.0)");
+    }
+
+    /// At yaw the summary's pitch is about the body's lateral axis, the
+    /// axis the axle split uses (it had been about the wind axes' side
+    /// axis): the moment the axle loads carry about the moment point,
+    /// `F_f (x_r - x_f) - (x_r - x_m) L`, is the pitch times `q A l`.
+    #[test]
+    fn pitch_at_yaw_is_about_the_body_axis_of_the_axle_split() {
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        use tuft_solver::loads::{FlowState, Reference, integrate_loads};
+        let mesh = PanelMesh::new(generate::icosphere(0.5, 2), Mirrors::none()).unwrap();
+        let reference = Reference::from_mesh(&mesh, -0.3, 0.3);
+        // A lopsided pressure: suction on the front right, pressure on the
+        // rear left, so the body has rolling and pitching moments.
+        let cp: Vec<f64> = mesh
+            .panels
+            .iter()
+            .map(|p| p.centroid.y - 0.7 * p.centroid.x + 0.3 * p.centroid.z)
+            .collect();
+        let air = FlowState {
+            density: 1.204,
+            speed: 40.0,
+            yaw: 15f64.to_radians(),
+        };
+        let l = integrate_loads(&mesh, &cp, None, &reference, &air).unwrap();
+        let k = super::coefficient_set(&l, &reference);
+        let qal = l.dynamic_pressure * reference.area * reference.length;
+        let (xf, xr, xm) = (
+            reference.front_axle_x,
+            reference.rear_axle_x,
+            reference.moment_point.x,
+        );
+        let axle_moment = l.axles.front * (xr - xf) - (xr - xm) * l.lift;
+        assert!(
+            (k.pitch * qal - axle_moment).abs() < 1e-9 * axle_moment.abs().max(1.0),
+            "{} against {axle_moment}",
+            k.pitch * qal
+        );
+        // The wind-axis pitch is another number at this yaw.
+        assert!((l.total.coefficients.pitch - k.pitch).abs() > 1e-3, "{k:?}");
     }
 
     /// The underbody's part is named whenever it pulls down, whatever the

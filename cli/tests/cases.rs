@@ -204,6 +204,14 @@ fn panels_csv(r: &Run) -> (Vec<[f64; 15]>, Vec<String>) {
         assert_eq!(f.len(), 16, "row {i}");
         let mut row = [0.0; 15];
         for (k, v) in f.iter().enumerate().filter(|(k, _)| *k != 14) {
+            // Theta and H are empty on separated panels, and only there.
+            if k == 11 || k == 12 {
+                assert_eq!(v.is_empty(), f[14] == "separated", "row {i} col {k}: {v}");
+                if v.is_empty() {
+                    row[k] = f64::NAN;
+                    continue;
+                }
+            }
             let x: f64 = v.parse().unwrap_or_else(|_| panic!("row {i} col {k}: {v}"));
             assert!(x.is_finite(), "row {i} col {k}: {v}");
             row[if k < 14 { k } else { 14 }] = x;

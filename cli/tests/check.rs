@@ -362,3 +362,88 @@ fn a_case_file_takes_panels_from_the_command_line_and_refuses_other_flags() {
         "{stderr}"
     );
 }
+
+/// A reader that stops reading (`tuft check case.toml | head -20`) closes
+/// the pipe: the command had panicked ("failed printing to stdout: Broken
+/// pipe", exit 101). It now ends quietly with its usual exit code.
+#[test]
+fn a_closed_stdout_ends_quietly() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 3), 1000.0);
+    for args in [
+        vec!["check", path.to_str().unwrap(), "--units", "mm"],
+        vec!["--help"],
+    ] {
+        let mut child = Command::new(tuft())
+            .args(&args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        // Close the reading end before the command prints anything.
+        drop(child.stdout.take());
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {stderr}");
+    }
+}
+
+/// A body below the ground given to `tuft check` as an STL alone gets the
+/// same hint as `tuft run` (a y-up export), in the flags' words; it had
+/// said only that the body reaches below the ground plane.
+#[test]
+fn an_stl_below_the_ground_gets_the_y_up_hint() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 3), 1000.0);
+    let out = check(&[path.to_str().unwrap(), "--ground", "0"]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("--ground 0: ")
+            && stderr.contains("below the ground plane")
+            && stderr.contains("is --ground right, or has the STL y up")
+            && stderr.contains("(then pass --up y)"),
+        "{stderr}"
+    );
+    // Told the STL's up axis, no such hint.
+    let out = check(&[path.to_str().unwrap(), "--ground", "0", "--up", "y"]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(!stderr.contains("has the STL y up"), "{stderr}");
+}
+
+/// Axles off the body: `tuft check` still prints the body's extent (what
+/// the axles must be set against) before the error, and the error has one
+/// parenthesis on the case file's lengths (it had two in a row).
+#[test]
+fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
+    let dir = tempfile::tempdir().unwrap();
+    write_binary_stl(
+        &dir.path().join("sphere.stl"),
+        &generate::icosphere(1.0, 3),
+        1000.0,
+    );
+    let case = dir.path().join("sphere.toml");
+    std::fs::write(
+        &case,
+        "[geometry]\nstl = \"sphere.stl\"\nup = \"y\"\n[reference]\nfront_axle_x = 950\nrear_axle_x = 3650\n",
+    )
+    .unwrap();
+    let out = check(&[case.to_str().unwrap()]);
+    let (stdout, stderr) = (
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr),
+    );
+    assert_eq!(out.status.code(), Some(2), "{stdout}\n{stderr}");
+    assert!(stdout.contains("size       2.0"), "{stdout}");
+    assert!(!stdout.contains("axles "), "{stdout}");
+    assert!(
+        stderr.contains("reference.front_axle_x = 950 m lies outside the body")
+            && stderr.contains("(lengths in the case file are metres, and, for axles")
+            && stderr.matches("(lengths").count() == 1
+            && !stderr.contains(") ("),
+        "{stderr}"
+    );
+}

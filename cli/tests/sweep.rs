@@ -437,3 +437,39 @@ fn a_variant_with_an_axle_off_the_body_fails_alone() {
         "{err}"
     );
 }
+
+/// `tuft sweep`, `tuft collect` and `tuft compare` with their stdout
+/// closed by a reader that stopped (`| head`): no panic on the broken pipe
+/// (exit 101 before), the usual exit code, the files written.
+#[test]
+fn a_closed_stdout_ends_sweep_collect_and_compare_quietly() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    std::fs::write(
+        d.join("s.toml"),
+        "[base.geometry]\nshape = \"sphere\"\npanels = 320\n[[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n",
+    )
+    .unwrap();
+    let closed = |args: &[&str]| {
+        let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_tuft"))
+            .current_dir(d)
+            .args(args)
+            .stdout(std::process::Stdio::piped())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        drop(child.stdout.take());
+        let out = child.wait_with_output().unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+        (out.status.code(), stderr)
+    };
+    let (code, err) = closed(&["sweep", "s.toml"]);
+    assert_eq!(code, Some(0), "{err}");
+    let (code, err) = closed(&["collect", "s"]);
+    assert!(matches!(code, Some(0 | 1)), "{err}");
+    assert!(d.join("s").join("sweep.json").is_file());
+    let (code, err) = closed(&["compare", "s/speed-20", "s/speed-30", "--out", "c"]);
+    assert!(matches!(code, Some(0 | 1)), "{err}");
+    assert!(d.join("c").join("compare.json").is_file());
+}

@@ -165,7 +165,27 @@ pub fn write(
 fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     let d = &c.deltas;
     let s = &c.surface;
-    let at = format!("kg at {} m/s", output::speed_number(c.b.speed));
+    // Across speeds the force differences take A's at B's dynamic
+    // pressure, and say so.
+    let scaled = d.a_loads_scaled_by.is_some();
+    let at = if scaled {
+        format!(
+            "kg at {} m/s (A's at B's dynamic pressure)",
+            output::speed_number(c.b.speed)
+        )
+    } else {
+        format!("kg at {} m/s", output::speed_number(c.b.speed))
+    };
+    let force_unit = if scaled {
+        "N (A's at B's dynamic pressure)"
+    } else {
+        "N"
+    };
+    let drag_label = if c.drag.common_area_m2.is_some() {
+        "Drag difference (drag area C_D·A, in A's reference area)"
+    } else {
+        "Drag difference"
+    };
     let signed = |v: f64| signed_places(v, 1);
     let [lift, front, rear] = output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg])
         .map(|t| t.replace('-', "\u{2212}"));
@@ -175,7 +195,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             &format!("{:.3} and {:.3}", c.a.cd, c.b.cd),
             "-",
         ),
-        NumberRow::text("Drag difference", &signed(d.drag_counts), "counts"),
+        NumberRow::text(drag_label, &signed(d.drag_counts), "counts"),
         NumberRow::text(
             "Drag difference at the band ends (low, high)",
             &format!(
@@ -195,7 +215,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             &signed(d.drag_friction_counts),
             "counts",
         ),
-        NumberRow::text("Drag force difference", &signed(d.drag_force_n), "N"),
+        NumberRow::text("Drag force difference", &signed(d.drag_force_n), force_unit),
         NumberRow::text(
             "Lift difference, whole body (negative: more downforce in B)",
             &lift,

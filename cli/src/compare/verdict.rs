@@ -52,6 +52,31 @@ pub struct DragVerdict {
     pub doubt: String,
     /// One sentence for people.
     pub text: String,
+    /// When the two runs' reference areas differ (by more than
+    /// [`crate::compare::REFERENCE_AREA_SHIFT`]): the area both drag
+    /// coefficients are put on, A's, m^2, so that the counts above compare
+    /// drag areas C_D·A (the drag forces at one dynamic pressure) rather
+    /// than coefficients on different areas.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub common_area_m2: Option<f64>,
+}
+
+/// A's reference area when the two runs' reference areas differ by more
+/// than [`crate::compare::REFERENCE_AREA_SHIFT`]: drag is then ranked on
+/// drag area C_D·A, B's coefficients expressed in A's area (a coupe with
+/// `reference.area = 2.1` against its own frontal area of 1.86 m^2 had been
+/// called 16.8 counts lower at the same drag force). `None` when they
+/// agree.
+pub fn common_area(a: &Summary, b: &Summary) -> Option<f64> {
+    let (ra, rb) = (a.reference.area_m2, b.reference.area_m2);
+    let larger = ra.abs().max(rb.abs());
+    (ra > 0.0 && (ra - rb).abs() > crate::compare::REFERENCE_AREA_SHIFT * larger).then_some(ra)
+}
+
+/// The factor that puts B's force coefficients on A's reference area
+/// ([`common_area`]); 1 when the areas agree.
+pub fn area_factor(a: &Summary, b: &Summary) -> f64 {
+    common_area(a, b).map_or(1.0, |ra| b.reference.area_m2 / ra)
 }
 
 /// Why a drag difference rests on the part of the separated-flow model
@@ -73,7 +98,21 @@ pub enum ModelDoubt {
 /// is named then, nor when either run's drag is the plateau model's,
 /// [`Summary::plateau_drag`], nor when either stood on the ground with
 /// wheels on, [`Summary::wheels_on`]).
+#[cfg(test)]
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
+    drag_verdict_named(a, b, doubt, ["A", "B"])
+}
+
+/// [`drag_verdict`] with the two runs called by `names` (A's, B's) in its
+/// text: `tuft collect` names the variants, where "A" and "B" mean
+/// nothing.
+pub fn drag_verdict_named(
+    a: &Summary,
+    b: &Summary,
+    doubt: Option<ModelDoubt>,
+    names: [&str; 2],
+) -> DragVerdict {
+    let [na, nb] = names;
     let separation_differs = doubt.is_some();
     let why = match doubt {
         Some(ModelDoubt::RearSlope) => format!(
@@ -90,7 +129,11 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
         }
         _ => "it ranks the slant-back research body's 25 and 35 degree slants the wrong way round",
     };
-    let counts = |x: f64, y: f64| 1000.0 * (y - x);
+    // B's coefficients on A's reference area when the areas differ: a
+    // difference of drag areas, not of coefficients on different areas.
+    let common = common_area(a, b);
+    let k = area_factor(a, b);
+    let counts = |x: f64, y: f64| 1000.0 * (k * y - x);
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
     let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
@@ -112,42 +155,50 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
     let text = if plateau {
         format!(
             "no winner: drag from the attached flow's plateau model (solver.wakes = \"attached\"), \
-             which is no basis for ranking drag; in this model B's drag is {} counts against \
-             A's: run both with the separated-flow loop (the default) to rank them",
+             which is no basis for ranking drag; in this model {nb}'s drag is {} counts against \
+             {na}'s: run both with the separated-flow loop (the default) to rank them",
             signed(delta, 1)
         )
     } else if wheels {
         format!(
-            "no winner: {}; in this model B's drag is {} counts against A's",
+            "no winner: {}; in this model {nb}'s drag is {} counts against {na}'s",
             crate::pipeline::WHEELS_DRAG,
             signed(delta, 1)
         )
     } else if !above_noise {
         format!(
-            "drag difference {} counts is within the noise floor of {NOISE_COUNTS} counts: no winner",
+            "no winner: the drag difference, {} counts, is within the noise floor of {NOISE_COUNTS} \
+             counts",
             signed(delta, 1)
         )
     } else if banded && separation_differs {
         format!(
             "no winner: {why}, where the model's drag ranking is not reliable ({known}); in this \
-             model B's drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD or a \
+             model {nb}'s drag is {:.1} counts {way} ({}): confirm any ranking with validated CFD or a \
              tunnel",
             delta.abs(),
             band_ends(low, high)
         )
     } else if !banded {
         format!(
-            "drag difference {} counts between the central estimates, but {}: within the model \
-             uncertainty, no winner",
+            "no winner, within the model uncertainty: the drag difference is {} counts between the \
+             central estimates, but {}",
             signed(delta, 1),
             band_ends(low, high)
         )
     } else {
         format!(
-            "B has {direction} drag by {:.1} counts between the central estimates ({})",
+            "{nb} has {direction} drag by {:.1} counts between the central estimates ({})",
             delta.abs(),
             band_ends(low, high)
         )
+    };
+    let text = match common {
+        Some(ra) => format!(
+            "{text} (the reference areas differ, so drag is ranked on drag area C_D·A: {nb}'s \
+             coefficient expressed in {na}'s reference area of {ra:.3} m^2)"
+        ),
+        None => text,
     };
     DragVerdict {
         resolved,
@@ -162,6 +213,7 @@ pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> Drag
             why
         },
         text,
+        common_area_m2: common,
     }
 }
 
@@ -255,6 +307,38 @@ mod tests {
         assert!(
             v.text.starts_with("no winner: with wheels on")
                 && v.text.contains("B's drag is -10.0 counts against A's"),
+            "{}",
+            v.text
+        );
+    }
+
+    /// `tuft collect`'s verdict on its leader names the variants: "B's
+    /// drag is ... lower" meant nothing in sweep.json, where no A or B is
+    /// defined.
+    #[test]
+    fn a_named_verdict_speaks_of_the_variants() {
+        let a = summary(0.300, 0.290, 0.320);
+        let b = summary(0.290, 0.280, 0.310);
+        let v = drag_verdict_named(&a, &b, Some(ModelDoubt::Separation), ["deck-30", "deck-0"]);
+        assert!(
+            v.text
+                .contains("in this model deck-0's drag is 10.0 counts lower")
+                && !v.text.contains("B's")
+                && !v.text.contains("A's"),
+            "{}",
+            v.text
+        );
+        let v = drag_verdict_named(&a, &b, None, ["deck-30", "deck-0"]);
+        assert!(
+            v.text.starts_with("deck-0 has lower drag by 10.0 counts"),
+            "{}",
+            v.text
+        );
+        // Within the noise: the verdict first.
+        let v = drag_verdict(&a, &summary(0.302, 0.292, 0.322), None);
+        assert!(
+            v.text
+                .starts_with("no winner: the drag difference, +2.0 counts"),
             "{}",
             v.text
         );

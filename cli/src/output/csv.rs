@@ -3,7 +3,7 @@
 //! Columns: centroid `x,y,z` (m), outward unit normal `nx,ny,nz`, `area`
 //! (m^2), `cp`, surface velocity `vx,vy,vz` (m/s), momentum thickness
 //! `theta` (m), `shape_factor`, `cf`, `state` (lowercase word) and `risk`
-//! (0..1). Numbers are written in Rust's shortest round-trip form, so
+//! (0..1); `theta` and `shape_factor` are empty on separated panels. Numbers are written in Rust's shortest round-trip form, so
 //! reading them back gives the same `f64` bit for bit.
 
 use std::io::Write;
@@ -43,12 +43,23 @@ fn row(s: &SurfaceResult<'_>, i: usize) -> String {
         v.x,
         v.y,
         v.z,
-        s.theta[i],
-        s.shape_factor[i],
+        s.theta_at(i),
+        s.shape_factor_at(i),
         s.cf[i],
     ];
-    // Adding +0 turns a negative zero (a risk clamped from below) into 0.
-    let mut out: Vec<String> = numbers.iter().map(|v| (v + 0.0).to_string()).collect();
+    // Adding +0 turns a negative zero (a risk clamped from below) into 0;
+    // a value not given (theta and H on a separated panel) is an empty
+    // cell.
+    let mut out: Vec<String> = numbers
+        .iter()
+        .map(|v| {
+            if v.is_nan() {
+                String::new()
+            } else {
+                (v + 0.0).to_string()
+            }
+        })
+        .collect();
     out.push(s.state[i].as_str().to_owned());
     out.push((s.risk[i] + 0.0).to_string());
     out.join(",")
@@ -58,6 +69,7 @@ fn row(s: &SurfaceResult<'_>, i: usize) -> String {
 mod tests {
     #![allow(clippy::unwrap_used, clippy::expect_used)]
     use super::*;
+    use crate::output::PanelState;
     use crate::output::fixture::{Fixture, sphere_cp};
 
     fn parse(text: &str) -> Vec<Vec<String>> {
@@ -81,7 +93,13 @@ mod tests {
             assert_eq!(num(7).to_bits(), s.cp[i].to_bits());
             assert_eq!(num(0).to_bits(), s.mesh.panels[i].centroid.x.to_bits());
             assert_eq!(num(9).to_bits(), s.velocity[i].y.to_bits());
-            assert_eq!(num(11).to_bits(), s.theta[i].to_bits());
+            // Theta and H are left empty where the panel is separated.
+            if s.state[i] == PanelState::Separated {
+                assert_eq!((r[11].as_str(), r[12].as_str()), ("", ""), "row {i}");
+            } else {
+                assert_eq!(num(11).to_bits(), s.theta[i].to_bits());
+                assert_eq!(num(12).to_bits(), s.shape_factor[i].to_bits());
+            }
             assert_eq!(r[14], s.state[i].as_str());
             assert_eq!(num(15).to_bits(), s.risk[i].to_bits());
         }

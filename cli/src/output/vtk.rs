@@ -179,8 +179,9 @@ fn surface_arrays(s: &SurfaceResult<'_>) -> Vec<Array> {
     vec![
         Array::f64s("cp", s.cp.iter().copied()),
         Array::vec3s("velocity", s.velocity.iter().map(vcoords)),
-        Array::f64s("theta", s.theta.iter().copied()),
-        Array::f64s("shape_factor", s.shape_factor.iter().copied()),
+        // NaN where separated (SurfaceResult::theta_at).
+        Array::f64s("theta", (0..s.len()).map(|i| s.theta_at(i))),
+        Array::f64s("shape_factor", (0..s.len()).map(|i| s.shape_factor_at(i))),
         Array::f64s("cf", s.cf.iter().copied()),
         Array::i32s("state", s.state.iter().map(|st| st.code())),
         Array::f64s("risk", s.risk.iter().copied()),
@@ -393,7 +394,8 @@ for c in range(g.GetNumberOfCells()):
     pts = [g.GetPoint(ids.GetId(k)) for k in range(ids.GetNumberOfIds())]
     cen = [sum(p[a] for p in pts) / 3 for a in range(3)]
     v = cd.GetArray('velocity').GetTuple3(c)
-    print(g.GetCellType(c), *cen, cd.GetArray('cp').GetValue(c), cd.GetArray('state').GetValue(c), v[1], cd.GetArray('risk').GetValue(c))
+    print(g.GetCellType(c), *cen, cd.GetArray('cp').GetValue(c), cd.GetArray('state').GetValue(c), v[1], cd.GetArray('risk').GetValue(c),
+          cd.GetArray('theta').GetValue(c), cd.GetArray('shape_factor').GetValue(c))
 ";
         let rows = vtk_read(script, &path);
         assert_eq!(
@@ -410,6 +412,13 @@ for c in range(g.GetNumberOfCells()):
             assert_eq!(r[5], f64::from(s.state[c].code()));
             assert_eq!(r[6], s.velocity[c].y);
             assert_eq!(r[7], s.risk[c]);
+            // Theta and H are NaN where the panel is separated, the
+            // march's values elsewhere.
+            if s.state[c] == PanelState::Separated {
+                assert!(r[8].is_nan() && r[9].is_nan(), "cell {c}: {r:?}");
+            } else {
+                assert_eq!((r[8], r[9]), (s.theta[c], s.shape_factor[c]), "cell {c}");
+            }
         }
     }
 

@@ -187,6 +187,40 @@ impl Plan {
         })
     }
 
+    /// Give every variant one panel count when the variants' geometries
+    /// differ, at least one reads an STL, and neither the base case nor
+    /// the sweep sets `geometry.panels`: the default count is chosen per
+    /// STL from its surface area and length, rounded to 500
+    /// (`tuft_mesh::quality::suggested_panels`), so variants of the same
+    /// size had been solved on 7,000 and 6,500 panels and `tuft collect`
+    /// then warned that they should be ranked at about the same count.
+    /// The count is the first variant's default (what a run of it alone
+    /// uses), the same in every shard; `dir` is the sweep file's folder.
+    /// Returns the count set, `None` when nothing was changed (or the first
+    /// variant's geometry cannot be prepared: it then fails on its own).
+    pub fn one_panel_count(&mut self, dir: &Path) -> Option<usize> {
+        let files = || self.variants.iter().filter_map(|v| v.file.as_ref().ok());
+        if files().any(|f| f.geometry.panels.is_some())
+            || !files().any(|f| f.geometry.stl.is_some())
+            || self.geometry_groups() < 2
+        {
+            return None;
+        }
+        let first = self.variants.iter().find(|v| v.file.is_ok())?;
+        let file = first.file.clone().ok()?;
+        let case =
+            crate::case::Case::from_file(&dir.join(format!("{}.toml", first.name)), file).ok()?;
+        let n = crate::geometry::load(&case).ok()?.report.suggested_panels;
+        for f in self
+            .variants
+            .iter_mut()
+            .filter_map(|v| v.file.as_mut().ok())
+        {
+            f.geometry.panels = Some(n);
+        }
+        Some(n)
+    }
+
     /// Number of distinct geometries.
     pub fn geometry_groups(&self) -> usize {
         let mut keys: Vec<&str> = self
@@ -452,6 +486,45 @@ mod tests {
     /// The sentence a refused sweep file gets.
     fn refusal(text: &str) -> String {
         plan(text).unwrap_err().to_string()
+    }
+
+    /// Two STL variants of one length whose surfaces ask for different
+    /// default counts (a review's tail variants: 7,000 and 6,500) are both
+    /// solved at the first's; a count set in the base case stays.
+    #[test]
+    fn stl_variants_get_one_panel_count() {
+        use tuft_mesh::{LengthUnit, Mirrors, PanelMesh, generate};
+        let dir = tempfile::tempdir().unwrap();
+        let mut wanted = Vec::new();
+        for (name, radius) in [("slim.stl", 1.0), ("wide.stl", 1.15)] {
+            let mut m = generate::icosphere(1.0, 3);
+            m.map_vertices(|p| nalgebra::Point3::new(4.0 * p.x, radius * p.y, radius * p.z + 2.0));
+            wanted.push(tuft_mesh::quality::suggested_panels(m.area(), 8.0));
+            let panels = PanelMesh::new(m, Mirrors::none()).unwrap();
+            let mut f = std::fs::File::create(dir.path().join(name)).unwrap();
+            tuft_mesh::export::write_panels_stl(&mut f, &panels, LengthUnit::M).unwrap();
+        }
+        assert_ne!(wanted[0], wanted[1], "the test needs two defaults");
+        let sweep = |base: &str| {
+            let text = format!(
+                "[base.geometry]\nstl = \"slim.stl\"\nunits = \"m\"\n{base}\n[[vary]]\nkey = \"stl\"\n\
+                 values = [\"slim.stl\", \"wide.stl\"]\n"
+            );
+            let file: SweepFile = toml::from_str(&text).unwrap();
+            Plan::from_file(&dir.path().join("s.toml"), file).unwrap()
+        };
+        let counts = |p: &Plan| -> Vec<Option<usize>> {
+            p.variants
+                .iter()
+                .map(|v| v.file.as_ref().unwrap().geometry.panels)
+                .collect()
+        };
+        let mut p = sweep("");
+        assert_eq!(p.one_panel_count(dir.path()), Some(wanted[0]));
+        assert_eq!(counts(&p), [Some(wanted[0]); 2]);
+        let mut p = sweep("panels = 1200");
+        assert_eq!(p.one_panel_count(dir.path()), None);
+        assert_eq!(counts(&p), [Some(1200); 2]);
     }
 
     #[test]
