@@ -245,6 +245,16 @@ fn demo_writes_two_reports() {
     let demo = dir.path().join("demo");
     let runs = entries(&demo);
     assert_eq!(runs.len(), 2, "{runs:?}");
+    // The loop's drag sits low in its band (README, "How far to trust the
+    // numbers"); the headline line says so where it gives the number.
+    assert_eq!(
+        o.stdout
+            .matches("a low estimate: the true drag is more likely above it")
+            .count(),
+        2,
+        "{}",
+        o.stdout
+    );
     for run in &runs {
         let report = demo.join(run).join("report.html");
         assert!(report.is_file(), "{run}");
