@@ -312,8 +312,17 @@ fn read_lines(r: &PrepareReport) -> String {
         );
     }
     let [lo, hi] = r.bounds;
+    // The wind arrives at the low-x end: a nose exported at the other end
+    // runs backwards with nothing else to tell (a review's scan gave C_D
+    // 0.37 instead of 0.15 that way), so name both ends and the switch.
+    let turn = if r.axes.nose_plus_x {
+        ""
+    } else {
+        "; a file whose nose lies at the other end needs geometry.nose = \"+x\" (--nose +x)"
+    };
     s += &format!(
-        "size       {:.3} x {:.3} x {:.3} m (x from {:.3} to {:.3}), surface {:.3} m^2\n",
+        "size       {:.3} x {:.3} x {:.3} m (x from {:.3}, the nose, where the wind arrives, to {:.3}, \
+         the tail{turn}), surface {:.3} m^2\n",
         hi[0] - lo[0],
         hi[1] - lo[1],
         hi[2] - lo[2],

@@ -58,6 +58,18 @@ fn check_reports_a_generated_sphere() {
     assert!(stdout.contains("5120 facets"), "{stdout}");
     assert!(stdout.contains("coarsened to"), "{stdout}");
     assert!(stdout.contains("verdict    usable"), "{stdout}");
+    // The wind arrives at the low-x end, and the size line says so with the
+    // switch for a nose exported at the other end (a review ran a scan
+    // backwards with no hint).
+    assert!(
+        stdout.contains(", the nose, where the wind arrives, to ")
+            && stdout.contains(", the tail; ")
+            && stdout.contains("geometry.nose = \"+x\" (--nose +x)"),
+        "{stdout}"
+    );
+    let turned = check(&[path.to_str().unwrap(), "--panels", "2000", "--nose", "+x"]);
+    let turned = String::from_utf8_lossy(&turned.stdout);
+    assert!(!turned.contains("(--nose +x)"), "{turned}");
 
     let json = check(&[path.to_str().unwrap(), "--panels", "2000", "--json"]);
     let report: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
