@@ -714,8 +714,8 @@ pub const SEPARATION_FRONTAL_SHIFT: f64 = 0.02;
 /// Rear slopes from which the separated-flow model's drag ranking is not
 /// to be trusted, degrees: the slant-back research body's drag peaks at
 /// about 30 degrees and falls by 35 in the tunnel (Ahmed, Ramm & Faltin
-/// 1984; values from memory), while the model's keeps rising (0.158 at
-/// 25, 0.174 at 30, 0.192 at 35; DEVELOPERS.md), and a review's
+/// 1984; values from memory), while the model's keeps rising (0.160 at
+/// 25, 0.170 at 30, 0.190 at 35; DEVELOPERS.md), and a review's
 /// hatchback backlights from 30 to 40 degrees rose in drag too. The
 /// model's ranking holds below the peak (12.5 below 25 and 35, tested),
 /// so the line sits at the published regime's 25 degrees, where the peak

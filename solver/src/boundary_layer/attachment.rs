@@ -45,7 +45,7 @@ pub fn find_attachments(
         .filter(|&t| {
             mesh.vertex_neighbourhood(t)
                 .iter()
-                .all(|&j| field.speed[t] <= field.speed[j as usize])
+                .all(|&j| field.speed[t] <= field.speed[j as usize] * (1.0 + TWIN_SPEED))
         })
         .map(|t| t as u32)
         .collect();
@@ -55,7 +55,9 @@ pub fn find_attachments(
         let pc = mesh.panels[c as usize].centroid;
         let near = chosen.iter().any(|&o| {
             let po = mesh.panels[o as usize].centroid;
-            (pc - po).norm() < separation_distance(mesh, o as usize)
+            let twin = (field.speed[c as usize] - field.speed[o as usize]).abs()
+                <= TWIN_SPEED * field.speed[o as usize].max(f64::MIN_POSITIVE);
+            (pc - po).norm() < separation_distance(mesh, o as usize) && !twin
         });
         if !near {
             chosen.push(c);
@@ -63,6 +65,13 @@ pub fn find_attachments(
     }
     chosen
 }
+
+/// Relative difference of speed under which two attachment panels close
+/// together are twins, each seeded: on a body symmetric about its centre
+/// plane the slowest panels at the nose come in mirror pairs, and one ring
+/// round one of them seeds the two sides unevenly (the demo coupe had 104
+/// panels whose state differed from their mirror image's).
+const TWIN_SPEED: f64 = 1e-6;
 
 /// When no panel qualifies: the slowest panel facing upstream
 /// (`n . d < -0.5`), if any.
@@ -81,13 +90,24 @@ pub fn fallback_attachment(
 /// round the attachment panel's centroid, evenly spaced in angle in the
 /// panel's frame. Seeds whose walk leaves the mesh (a mirror plane) are
 /// dropped.
-pub fn ring_seeds(tracer: &Tracer, attachment: u32, count: usize, radius_sizes: f64) -> Vec<Seed> {
+pub fn ring_seeds(
+    tracer: &Tracer,
+    attachment: u32,
+    count: usize,
+    radius_sizes: f64,
+    flow_dir: &Vector3<f64>,
+) -> Vec<Seed> {
     let panel = &tracer.mesh.panels[attachment as usize];
     let radius = radius_sizes * panel.size;
+    let n = panel.normal.into_inner();
+    let l = (flow_dir - n * n.dot(flow_dir))
+        .try_normalize(1e-9)
+        .unwrap_or_else(|| panel.l.into_inner());
+    let m = n.cross(&l);
     (0..count)
         .filter_map(|i| {
             let a = std::f64::consts::TAU * (i as f64 + 0.5) / count as f64;
-            let dir = panel.l.into_inner() * a.cos() + panel.m.into_inner() * a.sin();
+            let dir = l * a.cos() + m * a.sin();
             let (t, p) = tracer.walk(attachment, panel.centroid, dir, radius)?;
             Some(Seed {
                 panel: t,

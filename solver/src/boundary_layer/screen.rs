@@ -206,7 +206,7 @@ pub fn screen_boundary_layer(
     let count = seed_count(mesh, params);
     let seeds: Vec<Seed> = attachments
         .iter()
-        .flat_map(|&a| attachment::ring_seeds(&tracer, a, count, 1.5))
+        .flat_map(|&a| attachment::ring_seeds(&tracer, a, count, 1.5, &flow_dir))
         .collect();
     let ctx = LineContext::new(mesh, &field, &flow_dir, speed, params);
     let mut lines: Vec<LineResult> = seeds
@@ -1057,6 +1057,33 @@ fn insert_point(trace: &mut Trace, arc: &mut Vec<f64>, s: f64) -> usize {
     j + 1
 }
 
+/// Risks closer than this are a tie ([`outranks`]).
+const RISK_TIE: f64 = 1e-9;
+
+/// True when line contribution `a` should replace `b` on a panel: the
+/// higher risk, and on a tie (within [`RISK_TIE`]: mirror-image lines on a
+/// symmetric body differ by rounding only) the layer further on
+/// (separated over turbulent over laminar), then the thicker one. Taking
+/// the first line on a tie made a symmetric body's two sides differ, as
+/// the lines reach a panel and its mirror image in opposite orders (the
+/// demo coupe: 40 panels whose state differed from their mirror image's
+/// in attached flow).
+fn outranks(a: &PanelLayer, b: &PanelLayer) -> bool {
+    let rank = |l: &PanelLayer| match l.state {
+        FlowState::Unresolved => 0,
+        FlowState::Laminar => 1,
+        FlowState::Turbulent => 2,
+        FlowState::Separated => 3,
+    };
+    if (a.risk - b.risk).abs() > RISK_TIE {
+        return a.risk > b.risk;
+    }
+    match rank(a).cmp(&rank(b)) {
+        std::cmp::Ordering::Equal => a.theta > b.theta * (1.0 + RISK_TIE),
+        order => order.is_gt(),
+    }
+}
+
 /// Combine the lines: highest risk per panel, then fill and count.
 fn combine(
     mesh: &PanelMesh,
@@ -1073,7 +1100,7 @@ fn combine(
         for c in line.contributions {
             rim[c.panel as usize] |= c.rim;
             let slot = &mut best[c.panel as usize];
-            if slot.is_none_or(|b| c.layer.risk > b.layer.risk) {
+            if slot.is_none_or(|b| outranks(&c.layer, &b.layer)) {
                 *slot = Some(c);
             }
         }
@@ -1124,13 +1151,25 @@ fn fill(mesh: &PanelMesh, best: &mut [Option<Contribution>], params: &BoundaryLa
         }
         for j in mesh.edge_neighbours[t].iter().flatten() {
             let j = *j as usize;
-            if depth[j] == usize::MAX && !sharp_convex(mesh, t, j, params.sharp_edge_deg) {
+            if sharp_convex(mesh, t, j, params.sharp_edge_deg) {
+                continue;
+            }
+            let copy = best[t].map(|c| Contribution {
+                panel: j as u32,
+                ..c
+            });
+            if depth[j] == usize::MAX {
                 depth[j] = depth[t] + 1;
-                best[j] = best[t].map(|c| Contribution {
-                    panel: j as u32,
-                    ..c
-                });
+                best[j] = copy;
                 queue.push_back(j);
+            } else if depth[j] == depth[t] + 1
+                && let (Some(new), Some(old)) = (&copy, &best[j])
+                && outranks(&new.layer, &old.layer)
+            {
+                // Of the neighbours equally near, the one that outranks
+                // (not the first in panel order, which made a symmetric
+                // body's two sides differ); `j` has not spread yet.
+                best[j] = copy;
             }
         }
     }
