@@ -189,6 +189,25 @@ pub enum MeshError {
         /// The body's greatest z, metres.
         top: f64,
     },
+    /// Every coarsening try was refused and the input has far more facets
+    /// than the target: running it as it is would cost the square of that
+    /// in memory, so the run stops with the cause.
+    #[error(
+        "the coarsening could not bring its {input} facets down to {target} panels: every try (up to \
+         {largest_try} panels) was refused, the first because {why}; {advice}"
+    )]
+    CoarseningFailed {
+        /// Panels wanted.
+        target: usize,
+        /// Facets of the repaired input.
+        input: usize,
+        /// The largest panel count tried.
+        largest_try: usize,
+        /// Why the try at the target was refused, with where.
+        why: String,
+        /// What the user can do.
+        advice: String,
+    },
     /// Wrapping found no inside at all.
     #[error(
         "wrapping the surface into one outer surface found no inside: every part is thinner than the \
