@@ -105,10 +105,10 @@ pub enum MeshError {
     #[error(
         "{} that no declared mirror plane closes, largest first: {}: the \
          panel method needs a closed surface, because it holds the potential inside the body at \
-         zero and an open surface has no inside; close the holes in the model, or declare the \
-         ground or symmetry plane they lie on",
+         zero and an open surface has no inside; {}",
         if *.refused == 1 { "1 open hole".to_string() } else { format!("{} open holes", .refused) },
-        crate::repair::describe_refused(.holes)
+        crate::repair::describe_refused(.holes),
+        crate::repair::hole_advice(.holes)
     )]
     OpenHole {
         /// Index of the largest refused loop among the boundary loops found.

@@ -18,6 +18,10 @@
 //! 4. otherwise refused with [`MeshError::OpenHole`], which lists every
 //!    refused hole.
 //!
+//! A rim that visits a vertex twice (two holes meeting at a vertex, a
+//! pinched rim) is split there into its simple loops first, each taken as
+//! the hole it is.
+//!
 //! Edges used by three or more facets are counted as non-manifold and left.
 
 use serde::Serialize;
@@ -95,6 +99,10 @@ pub struct RefusedHole {
     /// most likely the cut of a half model.
     #[serde(default)]
     pub on_undeclared_symmetry_plane: bool,
+    /// Its whole rim lies flat at the body's lowest height (this, metres)
+    /// while no ground was declared: most likely a body cut at the floor.
+    #[serde(default)]
+    pub on_undeclared_floor: Option<f64>,
 }
 
 /// The refused holes as one line: centre, perimeter and reason of each, up
@@ -120,14 +128,38 @@ fn describe_one(h: &RefusedHole) -> String {
     };
     let [x, y, z] = h.centre;
     let cut = if h.on_undeclared_symmetry_plane {
-        " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)"
+        " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)".to_string()
+    } else if let Some(floor) = h.on_undeclared_floor {
+        format!(
+            " (its whole rim lies flat at z = {floor:.3} m, the body's lowest: is the body cut at the floor? then declare the ground there)"
+        )
     } else {
-        ""
+        String::new()
     };
     format!(
         "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m, {why}{cut}",
         h.perimeter
     )
+}
+
+/// What to do about refused holes: close them in the model, and declare a
+/// mirror plane only where a hole's rim lies in one (its rim on y = 0, or
+/// flat at the body's lowest height): for any other hole a plane cannot
+/// help.
+pub fn hole_advice(holes: &[RefusedHole]) -> String {
+    let mut advice =
+        "close the holes in the model (cap them in the modeller or the scan software)".to_string();
+    if holes.iter().any(|h| h.on_undeclared_symmetry_plane) {
+        advice += ", or, if the model is the half at y >= 0, declare the symmetry plane \
+                   (half_model = true, --half) so that the cut on y = 0 is closed by its mirror image";
+    }
+    if let Some(floor) = holes.iter().find_map(|h| h.on_undeclared_floor) {
+        advice += &format!(
+            ", or, if the body is cut at the floor, declare the ground at z = {floor:.3} m \
+             ([ground] z, --ground) so that the cut is closed by its mirror image"
+        );
+    }
+    advice
 }
 
 /// Settings of the boundary pass (lengths in metres).
@@ -191,6 +223,13 @@ pub(crate) fn close_holes_with_uses(
         ..HoleReport::default()
     };
     let part_area = part_areas(mesh, component);
+    // Of the vertices in use: a facet dropped earlier may have left some.
+    let lowest = mesh
+        .triangles
+        .iter()
+        .flatten()
+        .map(|&v| mesh.vertices[v as usize].z)
+        .fold(f64::INFINITY, f64::min);
     let mut refused = Vec::new();
     for (index, (edges, closed)) in loops.iter().enumerate() {
         let mut info = describe(&mesh.vertices, &half, edges);
@@ -229,6 +268,11 @@ pub(crate) fn close_holes_with_uses(
                             },
                         )
                         .is_some(),
+                    on_undeclared_floor: if s.mirrors.ground.is_none() {
+                        on_floor(&mesh.vertices, &half, edges, lowest, s.plane_tolerance)
+                    } else {
+                        None
+                    },
                 }),
             }
         }
@@ -356,8 +400,9 @@ fn boundary_half_edges(triangles: &[[u32; 3]], uses: &[EdgeUse]) -> (Vec<HalfEdg
     (half, non_manifold)
 }
 
-/// Chain half-edges head to tail; each loop with a flag saying whether it
-/// came back to its start.
+/// Chain half-edges head to tail into simple loops (see
+/// [`split_at_repeats`]); each loop with a flag saying whether it came
+/// back to its start.
 fn chain_loops(half: &[HalfEdge]) -> Vec<(Vec<usize>, bool)> {
     let mut outgoing: FastMap<u32, Vec<usize>> = FastMap::default();
     for (i, h) in half.iter().enumerate() {
@@ -372,22 +417,45 @@ fn chain_loops(half: &[HalfEdge]) -> Vec<(Vec<usize>, bool)> {
         used[start] = true;
         let mut edges = vec![start];
         let mut at = half[start].to;
-        let mut closed = true;
         while at != half[start].from {
             let next = outgoing
                 .get(&at)
                 .and_then(|l| l.iter().copied().find(|&e| !used[e]));
             let Some(e) = next else {
-                closed = false;
                 break;
             };
             used[e] = true;
             edges.push(e);
             at = half[e].to;
         }
-        loops.push((edges, closed));
+        split_at_repeats(half, edges, &mut loops);
     }
     loops
+}
+
+/// Split a chain of boundary half-edges into simple loops at every vertex
+/// it visits twice, as at a pinched rim (two holes meeting at one vertex,
+/// a common scan defect): each closed sub-loop is pushed as closed, and
+/// what does not close (a chain that ended at a non-manifold vertex) as
+/// open. A rim that visits no vertex twice is pushed as it is.
+fn split_at_repeats(half: &[HalfEdge], edges: Vec<usize>, loops: &mut Vec<(Vec<usize>, bool)>) {
+    let mut stack: Vec<usize> = Vec::with_capacity(edges.len());
+    // Position in `stack` of the edge leaving each vertex on it.
+    let mut leaving: FastMap<u32, usize> = FastMap::default();
+    for e in edges {
+        leaving.insert(half[e].from, stack.len());
+        stack.push(e);
+        if let Some(&p) = leaving.get(&half[e].to) {
+            let cycle = stack.split_off(p);
+            for &c in &cycle {
+                leaving.remove(&half[c].from);
+            }
+            loops.push((cycle, true));
+        }
+    }
+    if !stack.is_empty() {
+        loops.push((stack, false));
+    }
 }
 
 fn describe(vertices: &[Point], half: &[HalfEdge], edges: &[usize]) -> LoopInfo {
@@ -445,6 +513,21 @@ fn on_plane(
         (false, true) => Some("symmetry"),
         (false, false) => None,
     }
+}
+
+/// The height of the rim when every vertex of it lies within `tol` of the
+/// body's lowest height `lowest`: flat where a ground plane would go.
+fn on_floor(
+    vertices: &[Point],
+    half: &[HalfEdge],
+    edges: &[usize],
+    lowest: f64,
+    tol: f64,
+) -> Option<f64> {
+    edges
+        .iter()
+        .all(|&e| (vertices[half[e].from as usize].z - lowest).abs() <= tol)
+        .then_some(lowest)
 }
 
 /// Vector area `1/2 sum (a - c) x (b - c)` of the loop as its facets run
