@@ -440,6 +440,17 @@ fn panel_lines(r: &PrepareReport) -> String {
                 c.rms_deviation,
                 c.samples
             );
+            if let Some(u) = &c.untangled {
+                let [x, y, z] = u.first;
+                s += &format!(
+                    "           folds smoothed before coarsening: {} input facets crossed others or were turned over against their neighbours (the first near x {x:.3}, y {y:.3}, z {z:.3} m); {} vertices moved, at most {:.1e} m and {:.1e} m off the input surface; {} facets still folded\n",
+                    u.folded_before,
+                    u.vertices_moved,
+                    u.largest_move,
+                    u.largest_offset,
+                    u.folded_after
+                );
+            }
             if let Some(f) = &c.fallback {
                 s += &format!("           {f}\n");
             }

@@ -18,7 +18,13 @@
 //! (edge collapses that fold a facet over are refused by the simplifier,
 //! but only against a 75 degree turn per collapse, so folds can build up
 //! over several passes; see [`crate::crossing`]). If a try fails, the target is doubled (up to three
-//! tries) and then the input is kept; the report says so. The deviation is
+//! tries) and then the input is kept; the report says so, and
+//! [`crate::prepare`] refuses such a mesh when it is far above its target.
+//! The simplifier works on a copy of the input whose folds (facets
+//! crossing others or turned over against their neighbours, a scan's
+//! noise at a fan pole) are smoothed first (`untangle`): where facets are
+//! turned over already its own check against turning one over means
+//! nothing, and its collapses there made edges shared four ways. The deviation is
 //! measured, not estimated: the distance from input vertices (a regular
 //! sample of them) to the coarse surface.
 //!
@@ -87,6 +93,38 @@ pub struct CoarsenReport {
     pub fallback: Option<String>,
     /// Vertex moves made by the relaxation.
     pub relaxed: usize,
+    /// Folds of the input smoothed out before simplifying (absent when its
+    /// facets cross nowhere).
+    pub untangled: Option<UntangleReport>,
+    /// Every try was refused and the input was kept as it was.
+    pub kept_input: bool,
+    /// Why the first try was refused, with where (absent when it passed).
+    pub first_refusal: Option<String>,
+    /// The largest panel count tried.
+    pub largest_try: usize,
+}
+
+/// What smoothing the input's folds did before the simplifier ran.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct UntangleReport {
+    /// Input facets folded: crossing another facet of their surface or
+    /// turned over against two or more neighbours.
+    pub folded_before: usize,
+    /// Facets still folded after the smoothing.
+    pub folded_after: usize,
+    /// Where the first crossing of the input was (else the first folded
+    /// facet), metres.
+    pub first: [f64; 3],
+    /// Where the first facet still folded lies, metres.
+    pub still_folded_at: Option<[f64; 3]>,
+    /// Vertices moved.
+    pub vertices_moved: usize,
+    /// The largest move, metres (mostly along the surface: the smoothing
+    /// evens out the spacing too).
+    pub largest_move: f64,
+    /// The largest distance of a moved vertex from the input surface,
+    /// metres: how far the shape changed.
+    pub largest_offset: f64,
 }
 
 /// Coarsen to `target_panels` with default settings.
@@ -102,7 +140,8 @@ pub fn coarsen(
     coarsen_with_params(mesh, mirrors, &params)
 }
 
-/// Coarsen; never fails (the input is kept when no try passes the checks).
+/// Coarsen; never fails (the input is kept when no try passes the checks,
+/// and [`CoarsenReport::kept_input`] says so).
 pub fn coarsen_with_params(
     mesh: &TriMesh,
     mirrors: &Mirrors,
@@ -127,30 +166,41 @@ pub fn coarsen_with_params(
         samples: 0,
         fallback: None,
         relaxed: 0,
+        untangled: None,
+        kept_input: false,
+        first_refusal: None,
+        largest_try: 0,
     };
     if mesh.len() <= p.target_panels {
         return (mesh.clone(), report);
     }
     let mut notes = Vec::new();
     let mut result = None;
+    // The simplifier cannot work through folds (see `untangle`): it is
+    // given the input with its folds smoothed, and the deviation is still
+    // measured against the input.
+    let untangled = untangle(mesh, &border_ok);
     let mut input_crosses = None;
+    report.untangled = untangled.as_ref().map(|(_, u)| u.clone());
+    let base = untangled.as_ref().map_or(mesh, |(m, _)| m);
     for (target, regularize) in attempts(p) {
         if target >= mesh.len() {
             break;
         }
-        let mut coarse = simplify(mesh, &locks, target, regularize);
+        report.largest_try = target;
+        let mut coarse = simplify(base, &locks, target, regularize);
         flip_collinear(&mut coarse);
         let checked = check_closed(&coarse, &border_ok)
-            .and_then(|()| check_no_new_crossing(mesh, &coarse, &mut input_crosses));
+            .and_then(|()| check_no_new_crossing(base, &coarse, &mut input_crosses));
         match checked {
             Ok(()) => {
                 if p.relax_passes > 0 {
                     // Still in the input's numbering: kept only if it
                     // passes the checks every try passes.
                     let mut relaxed = coarse.clone();
-                    let moves = relax(&mut relaxed, mesh, &on_plane, p.relax_passes);
+                    let moves = relax(&mut relaxed, base, &on_plane, p.relax_passes);
                     let passes = check_closed(&relaxed, &border_ok)
-                        .and_then(|()| check_no_new_crossing(mesh, &relaxed, &mut input_crosses));
+                        .and_then(|()| check_no_new_crossing(base, &relaxed, &mut input_crosses));
                     if passes.is_ok() {
                         report.relaxed = moves;
                         coarse = relaxed;
@@ -161,6 +211,7 @@ pub fn coarsen_with_params(
                 break;
             }
             Err(why) => {
+                report.first_refusal.get_or_insert_with(|| why.clone());
                 let how = if regularize { ", even triangles" } else { "" };
                 notes.push(format!("a try at {target} panels{how} was refused: {why}"));
             }
@@ -168,12 +219,175 @@ pub fn coarsen_with_params(
     }
     let out = result.unwrap_or_else(|| {
         notes.push("the repaired mesh was kept uncoarsened".to_string());
+        report.kept_input = true;
         mesh.clone()
     });
     report.fallback = (!notes.is_empty()).then(|| notes.join("; "));
     report.achieved_panels = out.len();
     measure_deviation(mesh, &out, p.deviation_samples, &mut report);
     (out, report)
+}
+
+/// Rounds of [`untangle`]: each widens the smoothed region to the facets
+/// still crossing and their neighbours.
+const UNTANGLE_ROUNDS: usize = 6;
+
+/// Pairs of smoothing passes over the region in each round.
+const UNTANGLE_PASSES: usize = 10;
+
+/// Taubin's steps (1995, "A signal processing approach to fair surface
+/// design", SIGGRAPH): towards the neighbours' mean, then away from it.
+const TAUBIN: (f64, f64) = (0.5, -0.53);
+
+/// Smooth out the input's folds: facets that cross other facets of their
+/// own surface, and facets turned over against two or three of their
+/// neighbours (their normals point against each other), as where a scan's
+/// noise is larger than its facets: a fan pole of a few hundred thin
+/// facets with noise in every direction turns many of them over. The
+/// simplifier's check against a collapse that turns a facet over compares
+/// normals, which means nothing where facets are turned over already, so
+/// its collapses there glue facets into edges shared three or four ways;
+/// which collapses it takes first depends on rounding, so the same scan
+/// coarsened or not as it was turned (a review's scan with its nose at +x
+/// or -x). Each round moves every free vertex of a folded facet, and its
+/// neighbours, to the mean of its neighbours (umbrella smoothing; vertices
+/// in `fixed`, on a mirror plane or an open border, stay), until nothing
+/// is folded. The moves are of the size of the facets there, the noise
+/// that folded them. `None` when nothing is folded.
+fn untangle(mesh: &TriMesh, fixed: &[bool]) -> Option<(TriMesh, UntangleReport)> {
+    let uses = sorted_edge_uses(&mesh.triangles);
+    let (mut folded, first) = folded_facets(mesh, &uses);
+    let first = first.or_else(|| folded.first().map(|&t| centre(mesh, t)))?;
+    if passes_through_itself(mesh) {
+        return None;
+    }
+    let folded_before = folded.len();
+    let mut neighbours: Vec<Vec<u32>> = vec![Vec::new(); mesh.vertices.len()];
+    for u in &uses {
+        let (a, b) = u.ends();
+        neighbours[a as usize].push(b);
+        neighbours[b as usize].push(a);
+    }
+    for list in &mut neighbours {
+        list.sort_unstable();
+        list.dedup();
+    }
+    let mut out = mesh.clone();
+    let mut in_region = vec![false; mesh.vertices.len()];
+    let mut region: Vec<usize> = Vec::new();
+    for _ in 0..UNTANGLE_ROUNDS {
+        if folded.is_empty() {
+            break;
+        }
+        for &t in &folded {
+            for &v in &out.triangles[t] {
+                let ring = std::iter::once(v).chain(neighbours[v as usize].iter().copied());
+                for w in ring.map(|w| w as usize) {
+                    if !fixed[w] && !in_region[w] {
+                        in_region[w] = true;
+                        region.push(w);
+                    }
+                }
+            }
+        }
+        region.sort_unstable();
+        for pass in 0..2 * UNTANGLE_PASSES {
+            // Taubin's lambda|mu smoothing: a step towards the mean, then a
+            // slightly larger one away, damps the short waves of the noise
+            // without shrinking the body as plain averaging does.
+            let step = if pass % 2 == 0 { TAUBIN.0 } else { TAUBIN.1 };
+            for &v in &region {
+                let around = &neighbours[v];
+                if around.is_empty() {
+                    continue;
+                }
+                let sum: crate::Vector = around
+                    .iter()
+                    .map(|&w| out.vertices[w as usize].coords)
+                    .sum();
+                let p = out.vertices[v];
+                out.vertices[v] = p + (sum / around.len() as f64 - p.coords) * step;
+            }
+        }
+        folded = folded_facets(&out, &uses).0;
+    }
+    let (lo, hi) = mesh.bounds().unwrap_or_default();
+    let surface = SurfaceGrid::new(mesh, lo, hi);
+    let (mut vertices_moved, mut largest_move, mut largest_offset) = (0, 0.0f64, 0.0f64);
+    for (a, b) in mesh.vertices.iter().zip(&out.vertices) {
+        let d = (b - a).norm();
+        if d > 0.0 {
+            vertices_moved += 1;
+            largest_move = largest_move.max(d);
+            largest_offset = largest_offset.max(surface.distance(b));
+        }
+    }
+    let report = UntangleReport {
+        folded_before,
+        folded_after: folded.len(),
+        first,
+        still_folded_at: folded.first().map(|&t| centre(&out, t)),
+        vertices_moved,
+        largest_move,
+        largest_offset,
+    };
+    Some((out, report))
+}
+
+/// Folds smoothed are local: a crossing facet longer than this fraction of
+/// the bounding-box diagonal means the body passes through itself at its
+/// own scale (a fan of facets through the body), which no smoothing should
+/// hide (it is refused where the panels are built, with the place).
+const FOLD_SPAN: f64 = 0.1;
+
+/// Whether a facet crossing another of its surface is longer than
+/// [`FOLD_SPAN`] of the body.
+fn passes_through_itself(mesh: &TriMesh) -> bool {
+    let diagonal = mesh.bounds().map_or(0.0, |(lo, hi)| (hi - lo).norm());
+    let longest = |t: usize| {
+        let tri = mesh.corners(t);
+        (0..3)
+            .map(|k| (tri[(k + 1) % 3] - tri[k]).norm())
+            .fold(0.0, f64::max)
+    };
+    crossings(mesh)
+        .iter()
+        .any(|c| c.same_surface && longest(c.facet).max(longest(c.other)) > FOLD_SPAN * diagonal)
+}
+
+/// The facets that cross another facet of their own surface or point
+/// against two or more of their neighbours, sorted, and where the first
+/// crossing is.
+fn folded_facets(
+    mesh: &TriMesh,
+    uses: &[crate::repair::edges::EdgeUse],
+) -> (Vec<usize>, Option<[f64; 3]>) {
+    let normals: Vec<crate::Vector> = (0..mesh.len()).map(|t| mesh.area_vector(t)).collect();
+    let mut against = vec![0u8; mesh.len()];
+    for group in edge_groups(uses) {
+        if let [a, b] = group {
+            let (a, b) = (a.facet as usize, b.facet as usize);
+            if normals[a].dot(&normals[b]) < 0.0 {
+                against[a] += 1;
+                against[b] += 1;
+            }
+        }
+    }
+    let mut folded: Vec<usize> = (0..mesh.len()).filter(|&t| against[t] >= 2).collect();
+    let crossing: Vec<_> = crossings(mesh)
+        .into_iter()
+        .filter(|c| c.same_surface)
+        .collect();
+    folded.extend(crossing.iter().flat_map(|c| [c.facet, c.other]));
+    folded.sort_unstable();
+    folded.dedup();
+    (folded, crossing.first().map(|c| c.point))
+}
+
+fn centre(mesh: &TriMesh, t: usize) -> [f64; 3] {
+    let [a, b, c] = mesh.corners(t);
+    let m = (a.coords + b.coords + c.coords) / 3.0;
+    [m.x, m.y, m.z]
 }
 
 /// Targets and settings tried in turn: the target with and without the
@@ -291,6 +505,11 @@ fn flip_collinear(mesh: &mut TriMesh) {
     }
 }
 
+/// "at (x, y, z) m", for the reasons a try is refused.
+fn at(p: crate::Vector) -> String {
+    format!("at ({:.3}, {:.3}, {:.3}) m", p.x, p.y, p.z)
+}
+
 /// Edge matching and non-degeneracy, in the input's vertex numbering: a
 /// border edge is allowed only between two vertices of `border_ok` (on a
 /// mirror cut or locked on a border the input already had).
@@ -299,7 +518,9 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
         return Err("nothing left".to_string());
     }
     if let Some(t) = (0..coarse.len()).find(|&t| Panel::new(coarse.corners(t)).is_none()) {
-        return Err(format!("its facet {t} collapsed to a line"));
+        let [a, b, c] = coarse.corners(t);
+        let at = at((a.coords + b.coords + c.coords) / 3.0);
+        return Err(format!("a panel collapsed to a line {at}"));
     }
     let uses = sorted_edge_uses(&coarse.triangles);
     for group in edge_groups(&uses) {
@@ -310,10 +531,16 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
                 border_ok[a as usize] && border_ok[b as usize]
             } => {}
             _ => {
+                let (a, b) = group[0].ends();
+                let at = at((coarse.vertices[a as usize].coords
+                    + coarse.vertices[b as usize].coords)
+                    / 2.0);
                 return Err(if group.len() == 2 {
-                    "two neighbouring facets face opposite ways".to_string()
+                    format!("two neighbouring panels face opposite ways {at}")
+                } else if group.len() == 1 {
+                    format!("it opened an edge {at}")
                 } else {
-                    format!("an edge is shared by {} facets", group.len())
+                    format!("an edge is shared by {} panels {at}", group.len())
                 });
             }
         }
@@ -338,8 +565,8 @@ fn check_no_new_crossing(
         return Ok(());
     }
     Err(format!(
-        "its facets {} and {} cross (the coarse surface passes through itself)",
-        c.facet, c.other
+        "two of its panels cross (the coarse surface passes through itself) {}",
+        at(crate::Vector::from(c.point))
     ))
 }
 

@@ -105,10 +105,10 @@ pub enum MeshError {
     #[error(
         "{} that no declared mirror plane closes, largest first: {}: the \
          panel method needs a closed surface, because it holds the potential inside the body at \
-         zero and an open surface has no inside; close the holes in the model, or declare the \
-         ground or symmetry plane they lie on",
+         zero and an open surface has no inside; {}",
         if *.refused == 1 { "1 open hole".to_string() } else { format!("{} open holes", .refused) },
-        crate::repair::describe_refused(.holes)
+        crate::repair::describe_refused(.holes),
+        crate::repair::hole_advice(.holes)
     )]
     OpenHole {
         /// Index of the largest refused loop among the boundary loops found.
@@ -188,6 +188,25 @@ pub enum MeshError {
         allowed: f64,
         /// The body's greatest z, metres.
         top: f64,
+    },
+    /// Every coarsening try was refused and the input has far more facets
+    /// than the target: running it as it is would cost the square of that
+    /// in memory, so the run stops with the cause.
+    #[error(
+        "the coarsening could not bring its {input} facets down to {target} panels: every try (up to \
+         {largest_try} panels) was refused, the first because {why}; {advice}"
+    )]
+    CoarseningFailed {
+        /// Panels wanted.
+        target: usize,
+        /// Facets of the repaired input.
+        input: usize,
+        /// The largest panel count tried.
+        largest_try: usize,
+        /// Why the try at the target was refused, with where.
+        why: String,
+        /// What the user can do.
+        advice: String,
     },
     /// Wrapping found no inside at all.
     #[error(

@@ -176,6 +176,7 @@ pub fn prepare_mesh(
             ..params.coarsen
         };
         let (m, r) = coarsen_with_params(&mesh, &params.mirrors, &cp);
+        refuse_failed_coarsening(&r)?;
         (m, Some(r))
     } else {
         (mesh, None)
@@ -239,6 +240,45 @@ pub fn prepare_mesh(
         bounds: [[lo.x, lo.y, lo.z], [hi.x, hi.y, hi.z]],
     };
     Ok((panels, report))
+}
+
+/// A coarsening that kept its whole input, far above the target, stops
+/// the run with the cause and the place: running a scan's half million
+/// facets would ask for tens of gigabytes, and the memory advice that
+/// followed (fewer panels) could not help, since fewer had been asked for.
+fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
+    if !r.kept_input || (r.achieved_panels as f64) <= COARSEN_SHORTFALL * r.target_panels as f64 {
+        return Ok(());
+    }
+    let why = r
+        .first_refusal
+        .clone()
+        .unwrap_or_else(|| "no try passed the checks".to_string());
+    let advice = match r.untangled.as_ref().filter(|u| u.folded_after > 0) {
+        Some(u) => {
+            let [x, y, z] = u.still_folded_at.unwrap_or(u.first);
+            format!(
+                "the input's facets fold over one another there ({} facets crossed others or were \
+                 turned over against their neighbours, and {} are still folded after smoothing, the \
+                 first near x {x:.3}, y {y:.3}, z {z:.3} m), as where a scan's noise is larger than \
+                 its facets: smooth or remesh the STL around that point (a scan tool's remesh or \
+                 smoothing of that area) and check it again; another panel count (--panels, \
+                 geometry.panels) may also pass",
+                u.folded_before, u.folded_after
+            )
+        }
+        None => "look at the STL near that point (thin parts, or parts nearly touching each other, \
+                 usually cause this) and thicken, separate or remesh them there; another panel count \
+                 (--panels, geometry.panels) may also pass"
+            .to_string(),
+    };
+    Err(MeshError::CoarseningFailed {
+        target: r.target_panels,
+        input: r.input_panels,
+        largest_try: r.largest_try,
+        why,
+        advice,
+    })
 }
 
 /// Move a half model's vertices within [`CUT_TOLERANCE`] of `y = 0` onto
@@ -354,4 +394,74 @@ fn check_mirror_sides(mesh: &TriMesh, params: &PrepareParams) -> Result<(), Mesh
         });
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::coarsen::UntangleReport;
+
+    fn kept(untangled: Option<UntangleReport>) -> CoarsenReport {
+        CoarsenReport {
+            input_panels: 503_089,
+            target_panels: 7000,
+            achieved_panels: 503_089,
+            locked_vertices: 0,
+            max_deviation: 0.0,
+            rms_deviation: 0.0,
+            samples: 0,
+            fallback: Some("the repaired mesh was kept uncoarsened".to_string()),
+            relaxed: 0,
+            untangled,
+            kept_input: true,
+            first_refusal: Some("an edge is shared by 4 panels at (-4.400, 0.008, 0.402) m".into()),
+            largest_try: 28_000,
+        }
+    }
+
+    #[test]
+    fn a_coarsening_that_kept_its_whole_input_stops_the_run_naming_the_cause_and_the_place() {
+        let folds = UntangleReport {
+            folded_before: 15_275,
+            folded_after: 13,
+            first: [-4.4, 0.009, 0.4],
+            still_folded_at: Some([-4.396, -0.116, 0.389]),
+            vertices_moved: 17_373,
+            largest_move: 0.014,
+            largest_offset: 0.01,
+        };
+        let Err(e) = refuse_failed_coarsening(&kept(Some(folds))) else {
+            panic!("a kept input far above the target must stop the run");
+        };
+        let text = e.to_string();
+        for part in [
+            "503089 facets down to 7000 panels",
+            "up to 28000 panels",
+            "an edge is shared by 4 panels at (-4.400, 0.008, 0.402) m",
+            "13 are still folded",
+            "near x -4.396, y -0.116, z 0.389 m",
+            "smooth or remesh the STL",
+        ] {
+            assert!(text.contains(part), "{part:?} missing from: {text}");
+        }
+        assert!(!text.contains("GB"), "no memory advice: {text}");
+        // Without folds left, the advice points at the place, not at folds.
+        let text = refuse_failed_coarsening(&kept(None))
+            .unwrap_err()
+            .to_string();
+        assert!(text.contains("look at the STL near that point"), "{text}");
+        // A try that passed, or an input barely above the target, goes on.
+        let passed = CoarsenReport {
+            kept_input: false,
+            achieved_panels: 14_000,
+            ..kept(None)
+        };
+        assert!(refuse_failed_coarsening(&passed).is_ok());
+        let close = CoarsenReport {
+            input_panels: 7500,
+            achieved_panels: 7500,
+            ..kept(None)
+        };
+        assert!(refuse_failed_coarsening(&close).is_ok());
+    }
 }

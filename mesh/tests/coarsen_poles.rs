@@ -239,3 +239,68 @@ fn a_local_fold_is_warned_about_not_refused() {
         .expect("a crossing warning");
     assert!(w.contains("near x 0.0") || w.contains("near x -0.0"), "{w}");
 }
+
+/// The pole body with the vertices of the `rings` rings round each pole
+/// moved at random by up to `k` times their spacing along the ring, along
+/// each axis: a scan's noise larger than its facets there, which turns
+/// some of the thin pole facets over and folds others through each other.
+/// Returns the body and the largest shift along an axis.
+fn noisy_pole_body(n_rings: usize, n_around: usize, rings: usize, k: f64) -> (TriMesh, f64) {
+    let mut body = pole_body(n_rings, n_around);
+    let mut state = 1u64;
+    let mut uniform = move || {
+        state = state
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        (state >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+    };
+    let last_ring = n_rings - 1;
+    let mut largest = 0.0f64;
+    for ring in (1..=rings).chain(last_ring + 1 - rings..=last_ring) {
+        let first = 1 + (ring - 1) * n_around;
+        let p = body.vertices[first];
+        let radius = (p.y * p.y + p.z * p.z).sqrt();
+        let amplitude = k * 2.0 * PI * radius / n_around as f64;
+        largest = largest.max(amplitude);
+        for v in first..first + n_around {
+            body.vertices[v] += tuft_mesh::Vector::new(uniform(), uniform(), uniform()) * amplitude;
+        }
+    }
+    (body, largest)
+}
+
+#[test]
+fn folded_pole_fans_are_smoothed_and_coarsen_closed_whichever_way_the_body_is_turned() {
+    // 42,480 facets, 360 at each pole, the eight rings round each pole
+    // shaken by up to twice their spacing. Unsmoothed, this body coarsened
+    // to 2,000 panels with its nose at -x but not turned round (every try
+    // glued facets into an edge shared four ways at a pole), as a review's
+    // scan did with its nose at +x and not at -x.
+    let (fine, noise) = noisy_pole_body(60, 360, 8, 2.0);
+    let crossing = crossings(&fine).iter().filter(|c| c.same_surface).count();
+    assert!(crossing > 0, "the noise should fold the pole fans");
+    let target = 2000;
+    let mut turned = fine.clone();
+    turned.map_vertices(|p| Point::new(-p.x, -p.y, p.z)); // half a turn about z
+    for body in [&fine, &turned] {
+        let (coarse, report) = coarsen(body, &Mirrors::none(), target);
+        assert!(report.fallback.is_none(), "{report:?}");
+        assert!(!report.kept_input);
+        let untangled = report.untangled.as_ref().expect("folds were found");
+        assert!(untangled.folded_before > 0);
+        assert_eq!(untangled.folded_after, 0, "{untangled:?}");
+        // The smoothing moves vertices off the noisy input surface by
+        // about the noise that folded them, no more.
+        assert!(
+            untangled.largest_offset < noise,
+            "{untangled:?}, noise {noise}"
+        );
+        assert!(coarse.len() <= target && coarse.len() > target * 8 / 10);
+        assert!(closed(&coarse));
+        let (v_fine, v_coarse) = (body.signed_volume(), coarse.signed_volume());
+        assert!(
+            (v_coarse - v_fine).abs() < 0.02 * v_fine,
+            "{v_coarse} vs {v_fine}"
+        );
+    }
+}

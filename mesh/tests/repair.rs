@@ -128,6 +128,77 @@ fn small_holes_are_filled() {
 }
 
 #[test]
+fn two_holes_meeting_at_one_vertex_are_split_there_and_both_filled() {
+    // A pinched rim, a common scan defect: around a vertex of valence six
+    // of a level-4 icosphere, two neighbouring facets and the facet
+    // opposite them are missing, so a 4-edge and a 3-edge hole meet at
+    // that vertex only and their rims chain into one loop visiting it
+    // twice, which overlaps itself seen along any normal. Split at the
+    // vertex, each is the small hole it is.
+    let sphere = generate::icosphere(1.0, 4);
+    let v = sphere.triangles[4000][0];
+    let centre = sphere.vertices[v as usize];
+    let mut fan: Vec<usize> = (0..sphere.len())
+        .filter(|&t| sphere.triangles[t].contains(&v))
+        .collect();
+    assert_eq!(fan.len(), 6, "a subdivision vertex has six facets");
+    // Order the fan round the vertex by angle in its tangent plane.
+    let n = centre.coords.normalize();
+    let u = n.cross(&tuft_mesh::Vector::x()).normalize();
+    let w = n.cross(&u);
+    let angle = |t: usize| {
+        let [a, b, c] = sphere.corners(t);
+        let d = (a.coords + b.coords + c.coords) / 3.0 - centre.coords;
+        d.dot(&w).atan2(d.dot(&u))
+    };
+    fan.sort_by(|&a, &b| angle(a).total_cmp(&angle(b)));
+    let mut removed = [fan[0], fan[1], fan[3]];
+    removed.sort_unstable();
+    let mut m = sphere.clone();
+    for &t in removed.iter().rev() {
+        m.triangles.remove(t);
+    }
+    let (fixed, r) = repair(m, &Mirrors::none()).unwrap();
+    // Two loops, both filled: a quad's two triangles and one triangle.
+    assert_eq!(r.holes.loops, 2, "{:?}", r.holes);
+    assert_eq!(r.holes.filled.len(), 2, "{:?}", r.holes);
+    let mut edges: Vec<usize> = r.holes.filled.iter().map(|h| h.edges).collect();
+    edges.sort_unstable();
+    assert_eq!(edges, [3, 4]);
+    assert!(closed(&fixed));
+    // Filled flat across a few facets of a unit sphere: volume and area
+    // within 0.1 % of the intact icosphere's.
+    let (v0, a0) = (sphere.signed_volume(), sphere.area());
+    assert!((fixed.signed_volume() - v0).abs() / v0 < 1e-3);
+    assert!((fixed.area() - a0).abs() / a0 < 1e-3);
+}
+
+#[test]
+fn a_refused_hole_is_told_to_declare_a_plane_only_when_its_rim_lies_in_one() {
+    // A hole too large to fill on the side of a sphere: no plane can close
+    // it, so none is suggested.
+    let sphere = generate::icosphere(1.0, 3);
+    let mut side = sphere.clone();
+    side.triangles.retain(|t| {
+        let c = t
+            .iter()
+            .map(|&v| sphere.vertices[v as usize].coords)
+            .sum::<tuft_mesh::Vector>()
+            / 3.0;
+        c.x < 0.6
+    });
+    let text = repair(side, &Mirrors::none()).unwrap_err().to_string();
+    assert!(text.contains("close the holes in the model"), "{text}");
+    assert!(!text.contains("declare the"), "{text}");
+    // A body cut flat at its lowest level (a hemisphere's open base at
+    // z = 0), ground not declared: the ground there is suggested.
+    let base = half_sphere(|c| c.z > 0.0);
+    let text = repair(base, &Mirrors::none()).unwrap_err().to_string();
+    assert!(text.contains("declare the ground at z = 0.000 m"), "{text}");
+    assert!(!text.contains("symmetry plane (half_model"), "{text}");
+}
+
+#[test]
 fn fully_inverted_mesh_is_repaired() {
     let mut m = generate::icosphere(2.0, 3);
     m.flip();

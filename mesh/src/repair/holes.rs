@@ -18,6 +18,10 @@
 //! 4. otherwise refused with [`MeshError::OpenHole`], which lists every
 //!    refused hole.
 //!
+//! A rim that visits a vertex twice (two holes meeting at a vertex, a
+//! pinched rim) is taken whole first and, when it would be refused whole,
+//! split there into its simple loops, each taken as the hole it is.
+//!
 //! Edges used by three or more facets are counted as non-manifold and left.
 
 use serde::Serialize;
@@ -95,6 +99,10 @@ pub struct RefusedHole {
     /// most likely the cut of a half model.
     #[serde(default)]
     pub on_undeclared_symmetry_plane: bool,
+    /// Its whole rim lies flat at the body's lowest height (this, metres)
+    /// while no ground was declared: most likely a body cut at the floor.
+    #[serde(default)]
+    pub on_undeclared_floor: Option<f64>,
 }
 
 /// The refused holes as one line: centre, perimeter and reason of each, up
@@ -120,14 +128,38 @@ fn describe_one(h: &RefusedHole) -> String {
     };
     let [x, y, z] = h.centre;
     let cut = if h.on_undeclared_symmetry_plane {
-        " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)"
+        " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)".to_string()
+    } else if let Some(floor) = h.on_undeclared_floor {
+        format!(
+            " (its whole rim lies flat at z = {floor:.3} m, the body's lowest: is the body cut at the floor? then declare the ground there)"
+        )
     } else {
-        ""
+        String::new()
     };
     format!(
         "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m, {why}{cut}",
         h.perimeter
     )
+}
+
+/// What to do about refused holes: close them in the model, and declare a
+/// mirror plane only where a hole's rim lies in one (its rim on y = 0, or
+/// flat at the body's lowest height): for any other hole a plane cannot
+/// help.
+pub fn hole_advice(holes: &[RefusedHole]) -> String {
+    let mut advice =
+        "close the holes in the model (cap them in the modeller or the scan software)".to_string();
+    if holes.iter().any(|h| h.on_undeclared_symmetry_plane) {
+        advice += ", or, if the model is the half at y >= 0, declare the symmetry plane \
+                   (half_model = true, --half) so that the cut on y = 0 is closed by its mirror image";
+    }
+    if let Some(floor) = holes.iter().find_map(|h| h.on_undeclared_floor) {
+        advice += &format!(
+            ", or, if the body is cut at the floor, declare the ground at z = {floor:.3} m \
+             ([ground] z, --ground) so that the cut is closed by its mirror image"
+        );
+    }
+    advice
 }
 
 /// Settings of the boundary pass (lengths in metres).
@@ -182,59 +214,135 @@ pub(crate) fn close_holes_with_uses(
     uses: &[EdgeUse],
 ) -> Result<HoleReport, MeshError> {
     let (half, non_manifold) = boundary_half_edges(&mesh.triangles, uses);
-    let loops = chain_loops(&half);
+    let chains = chain_loops(&half);
     let mut report = HoleReport {
-        loops: loops.len(),
         non_manifold_edges: non_manifold,
         fill_limit: s.fill_limit,
         local_factor: s.local_factor,
         ..HoleReport::default()
     };
     let part_area = part_areas(mesh, component);
+    // Of the vertices in use: a facet dropped earlier may have left some.
+    let lowest = mesh
+        .triangles
+        .iter()
+        .flatten()
+        .map(|&v| mesh.vertices[v as usize].z)
+        .fold(f64::INFINITY, f64::min);
     let mut refused = Vec::new();
-    for (index, (edges, closed)) in loops.iter().enumerate() {
-        let mut info = describe(&mesh.vertices, &half, edges);
-        info.plane = on_plane(&mesh.vertices, &half, edges, s);
-        if info.plane.is_some() {
-            report.mirror_closed.push(info);
-        } else if *closed && is_slit(&mesh.vertices, &half, edges, &info, s.slit_ratio) {
-            report.slits += 1;
+    let take = |mesh: &mut TriMesh,
+                component: &mut Vec<u32>,
+                report: &mut HoleReport,
+                edges: &[usize],
+                closed: bool| {
+        take_loop(
+            mesh,
+            component,
+            report,
+            (&half, edges, closed),
+            s,
+            (&part_area, lowest),
+        )
+    };
+    for (index, (edges, closed)) in chains.into_iter().enumerate() {
+        // A rim that visits a vertex twice is taken whole first (as it
+        // always was), and split at its repeated vertices only when it
+        // would be refused whole.
+        let parts = split_at_repeats(&half, &edges);
+        let whole = if parts.len() > 1 {
+            let mut trial = HoleReport::default();
+            take(mesh, component, &mut trial, &edges, closed).map(|()| trial)
         } else {
-            let part = part_area[component[half[edges[0]].facet as usize] as usize];
-            let limit = fill_limit(mesh, &half, edges, &info, part, s);
-            match fill_if_small(mesh, component, &half, (edges, *closed), &info, limit) {
-                Ok((added, ears)) => {
-                    report.facets_added += added;
-                    report.ear_clipped += usize::from(ears);
-                    report.filled.push(info);
+            Err(None)
+        };
+        match whole {
+            Ok(trial) => {
+                report.loops += 1;
+                merge(&mut report, trial);
+            }
+            Err(_) => {
+                for (part, part_closed) in parts {
+                    report.loops += 1;
+                    if let Err(Some(mut hole)) =
+                        take(mesh, component, &mut report, &part, part_closed)
+                    {
+                        hole.loop_index = index;
+                        refused.push(hole);
+                    }
                 }
-                Err(reason) => refused.push(RefusedHole {
-                    loop_index: index,
-                    centre: info.centre,
-                    perimeter: info.perimeter,
-                    edges: info.edges,
-                    limit,
-                    reason,
-                    on_undeclared_symmetry_plane: !s.mirrors.symmetry
-                        && on_plane(
-                            &mesh.vertices,
-                            &half,
-                            edges,
-                            &HoleSettings {
-                                mirrors: Mirrors {
-                                    ground: None,
-                                    symmetry: true,
-                                },
-                                ..*s
-                            },
-                        )
-                        .is_some(),
-                }),
             }
         }
     }
     refuse(refused)?;
     Ok(report)
+}
+
+/// Take one loop: closed by a mirror, a slit, filled, or refused
+/// (`Err(Some)`; the mesh is changed only when it is filled).
+fn take_loop(
+    mesh: &mut TriMesh,
+    component: &mut Vec<u32>,
+    report: &mut HoleReport,
+    (half, edges, closed): (&[HalfEdge], &[usize], bool),
+    s: &HoleSettings,
+    (part_area, lowest): (&[f64], f64),
+) -> Result<(), Option<RefusedHole>> {
+    let mut info = describe(&mesh.vertices, half, edges);
+    info.plane = on_plane(&mesh.vertices, half, edges, s);
+    if info.plane.is_some() {
+        report.mirror_closed.push(info);
+        return Ok(());
+    }
+    if closed && is_slit(&mesh.vertices, half, edges, &info, s.slit_ratio) {
+        report.slits += 1;
+        return Ok(());
+    }
+    let part = part_area[component[half[edges[0]].facet as usize] as usize];
+    let limit = fill_limit(mesh, half, edges, &info, part, s);
+    match fill_if_small(mesh, component, half, (edges, closed), &info, limit) {
+        Ok((added, ears)) => {
+            report.facets_added += added;
+            report.ear_clipped += usize::from(ears);
+            report.filled.push(info);
+            Ok(())
+        }
+        Err(reason) => Err(Some(RefusedHole {
+            loop_index: 0,
+            centre: info.centre,
+            perimeter: info.perimeter,
+            edges: info.edges,
+            limit,
+            reason,
+            on_undeclared_symmetry_plane: !s.mirrors.symmetry
+                && on_plane(
+                    &mesh.vertices,
+                    half,
+                    edges,
+                    &HoleSettings {
+                        mirrors: Mirrors {
+                            ground: None,
+                            symmetry: true,
+                        },
+                        ..*s
+                    },
+                )
+                .is_some(),
+            on_undeclared_floor: if s.mirrors.ground.is_none() {
+                on_floor(&mesh.vertices, half, edges, lowest, s.plane_tolerance)
+            } else {
+                None
+            },
+        })),
+    }
+}
+
+/// Add what taking one loop found to the report.
+fn merge(report: &mut HoleReport, one: HoleReport) {
+    report.mirror_closed.extend(one.mirror_closed);
+    report.slits += one.slits;
+    report.filled.extend(one.filled);
+    report.ear_clipped += one.ear_clipped;
+    report.facets_added += one.facets_added;
 }
 
 /// Fill a closed loop within `limit`: facets added and whether ear clipping
@@ -356,8 +464,9 @@ fn boundary_half_edges(triangles: &[[u32; 3]], uses: &[EdgeUse]) -> (Vec<HalfEdg
     (half, non_manifold)
 }
 
-/// Chain half-edges head to tail; each loop with a flag saying whether it
-/// came back to its start.
+/// Chain half-edges head to tail; each chain with a flag saying whether it
+/// came back to its start. A chain may visit a vertex twice (see
+/// [`split_at_repeats`]).
 fn chain_loops(half: &[HalfEdge]) -> Vec<(Vec<usize>, bool)> {
     let mut outgoing: FastMap<u32, Vec<usize>> = FastMap::default();
     for (i, h) in half.iter().enumerate() {
@@ -386,6 +495,33 @@ fn chain_loops(half: &[HalfEdge]) -> Vec<(Vec<usize>, bool)> {
             at = half[e].to;
         }
         loops.push((edges, closed));
+    }
+    loops
+}
+
+/// Split a chain of boundary half-edges into simple loops at every vertex
+/// it visits twice, as at a pinched rim (two holes meeting at one vertex,
+/// a common scan defect): each closed sub-loop comes out closed, and what
+/// does not close (a chain that ended at a non-manifold vertex) open. A
+/// chain that visits no vertex twice comes out as it is.
+fn split_at_repeats(half: &[HalfEdge], edges: &[usize]) -> Vec<(Vec<usize>, bool)> {
+    let mut loops = Vec::new();
+    let mut stack: Vec<usize> = Vec::with_capacity(edges.len());
+    // Position in `stack` of the edge leaving each vertex on it.
+    let mut leaving: FastMap<u32, usize> = FastMap::default();
+    for &e in edges {
+        leaving.insert(half[e].from, stack.len());
+        stack.push(e);
+        if let Some(&p) = leaving.get(&half[e].to) {
+            let cycle = stack.split_off(p);
+            for &c in &cycle {
+                leaving.remove(&half[c].from);
+            }
+            loops.push((cycle, true));
+        }
+    }
+    if !stack.is_empty() {
+        loops.push((stack, false));
     }
     loops
 }
@@ -445,6 +581,21 @@ fn on_plane(
         (false, true) => Some("symmetry"),
         (false, false) => None,
     }
+}
+
+/// The height of the rim when every vertex of it lies within `tol` of the
+/// body's lowest height `lowest`: flat where a ground plane would go.
+fn on_floor(
+    vertices: &[Point],
+    half: &[HalfEdge],
+    edges: &[usize],
+    lowest: f64,
+    tol: f64,
+) -> Option<f64> {
+    edges
+        .iter()
+        .all(|&e| (vertices[half[e].from as usize].z - lowest).abs() <= tol)
+        .then_some(lowest)
 }
 
 /// Vector area `1/2 sum (a - c) x (b - c)` of the loop as its facets run

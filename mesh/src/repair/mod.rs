@@ -36,6 +36,7 @@ pub use duplicates::drop_duplicates;
 pub use fins::drop_fins;
 pub use holes::{
     HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, close_holes, describe_refused,
+    hole_advice,
 };
 pub use orient::{OrientReport, orient_consistently};
 pub use outward::{OutwardReport, orient_outward};
