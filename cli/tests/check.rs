@@ -2,6 +2,8 @@
 //! temporary folder, and on the committed case STL.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
+mod common;
+
 use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -387,18 +389,8 @@ fn a_closed_stdout_ends_quietly() {
         vec!["check", path.to_str().unwrap(), "--units", "mm"],
         vec!["--help"],
     ] {
-        let mut child = Command::new(tuft())
-            .args(&args)
-            .stdout(std::process::Stdio::piped())
-            .stderr(std::process::Stdio::piped())
-            .spawn()
-            .unwrap();
-        // Close the reading end before the command prints anything.
-        drop(child.stdout.take());
-        let out = child.wait_with_output().unwrap();
-        let stderr = String::from_utf8_lossy(&out.stderr);
-        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
-        assert_eq!(out.status.code(), Some(0), "{args:?}: {stderr}");
+        let (code, stderr) = common::with_closed_stdout(dir.path(), &args);
+        assert_eq!(code, Some(0), "{args:?}: {stderr}");
     }
 }
 

@@ -1,6 +1,8 @@
 //! End-to-end tests of `tuft sweep` and `tuft collect`.
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
+mod common;
+
 use std::collections::BTreeSet;
 use std::path::Path;
 use std::process::Command;
@@ -450,20 +452,7 @@ fn a_closed_stdout_ends_sweep_collect_and_compare_quietly() {
         "[base.geometry]\nshape = \"sphere\"\npanels = 320\n[[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n",
     )
     .unwrap();
-    let closed = |args: &[&str]| {
-        let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_tuft"))
-            .current_dir(d)
-            .args(args)
-            .stdout(std::process::Stdio::piped())
-            .stderr(std::process::Stdio::piped())
-            .spawn()
-            .unwrap();
-        drop(child.stdout.take());
-        let out = child.wait_with_output().unwrap();
-        let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
-        assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
-        (out.status.code(), stderr)
-    };
+    let closed = |args: &[&str]| common::with_closed_stdout(d, args);
     let (code, err) = closed(&["sweep", "s.toml"]);
     assert_eq!(code, Some(0), "{err}");
     let (code, err) = closed(&["collect", "s"]);

@@ -290,19 +290,23 @@ fn the_rim_bound_is_the_loops_strongest_dead_water() {
     );
 }
 
+/// Panels in the rim zone of `mesh`'s attached flow along x.
+fn attached_rim_panels(mesh: &PanelMesh) -> usize {
+    let sol = solve_potential(mesh, &Freestream::new(SPEED, 0.0)).unwrap();
+    let params = BoundaryLayerParams {
+        flow_direction: Some(Vector3::x()),
+        ..BoundaryLayerParams::default()
+    };
+    let layer = screen_boundary_layer(mesh, &sol.velocity, SPEED, &params).unwrap();
+    layer.rim_zone.iter().filter(|&&z| z).count()
+}
+
 /// A rounded nose has no rim: on the slant-back research body (front edges
 /// rounded with 100 mm, Ahmed, Ramm & Faltin 1984) no panel lies in the
 /// rim zone, so its figures in `separated_wakes.rs` are untouched.
 #[test]
 fn a_rounded_nose_has_no_rim() {
-    let mesh = tuft_tests::half_ahmed(25.0, 5000).unwrap();
-    let sol = solve_potential(&mesh, &Freestream::new(SPEED, 0.0)).unwrap();
-    let params = BoundaryLayerParams {
-        flow_direction: Some(Vector3::x()),
-        ..BoundaryLayerParams::default()
-    };
-    let layer = screen_boundary_layer(&mesh, &sol.velocity, SPEED, &params).unwrap();
-    let rim = layer.rim_zone.iter().filter(|&&z| z).count();
+    let rim = attached_rim_panels(&tuft_tests::half_ahmed(25.0, 5000).unwrap());
     assert_eq!(rim, 0, "{rim} panels of the rounded nose in the rim zone");
 }
 
@@ -357,13 +361,6 @@ fn a_bump_far_down_a_rounded_body_is_no_rim() {
         })
         .unwrap();
     sphere.vertices[v] = Point::from(sphere.vertices[v].coords * 1.3);
-    let mesh = PanelMesh::new(sphere, Mirrors::none()).unwrap();
-    let sol = solve_potential(&mesh, &Freestream::new(SPEED, 0.0)).unwrap();
-    let params = BoundaryLayerParams {
-        flow_direction: Some(Vector3::x()),
-        ..BoundaryLayerParams::default()
-    };
-    let layer = screen_boundary_layer(&mesh, &sol.velocity, SPEED, &params).unwrap();
-    let rim = layer.rim_zone.iter().filter(|&&z| z).count();
+    let rim = attached_rim_panels(&PanelMesh::new(sphere, Mirrors::none()).unwrap());
     assert_eq!(rim, 0, "{rim} panels round the bump in the rim zone");
 }

@@ -166,3 +166,21 @@ pub fn vtk_read(script: &str, arg: &Path) -> Vec<Vec<String>> {
         .map(|l| l.split_whitespace().map(str::to_owned).collect())
         .collect()
 }
+
+/// Run the binary in `dir` with `args` and its stdout closed before it
+/// prints (a reader that stopped, as `| head` does); asserts it did not
+/// panic, and gives its exit code and stderr.
+pub fn with_closed_stdout(dir: &Path, args: &[&str]) -> (Option<i32>, String) {
+    let mut child = Command::new(TUFT)
+        .current_dir(dir)
+        .args(args)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    drop(child.stdout.take());
+    let out = child.wait_with_output().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(!stderr.contains("panicked"), "{args:?}: {stderr}");
+    (out.status.code(), stderr)
+}
