@@ -117,30 +117,51 @@ fn main() -> ExitCode {
         Command::Sweep(args) => sweep::run(&args),
         Command::Collect(args) => collect::run(&args),
     };
-    match outcome {
+    let code = match outcome {
         Ok(code) => code,
         Err(err) => {
             report_error(&err);
             ExitCode::from(EXIT_FAILURE)
         }
+    };
+    if let Some(e) = stdout_failure() {
+        eprintln!("tuft: writing to stdout failed ({e}): what it printed is cut short");
+        return ExitCode::from(EXIT_FAILURE);
     }
+    code
 }
 
-/// Write to stdout, dropping what a closed stdout (a reader such as
-/// `head` that has stopped reading: the write fails with a broken pipe)
-/// or a failing one cannot take: what a command prints is a summary of
-/// the files it writes, so the command goes on to its usual end and exit
-/// code instead of panicking.
+/// The first error writing stdout other than a closed pipe (a full disk
+/// under `> report.json`), kept for `main` to report and fail on.
+static STDOUT_FAILED: std::sync::Mutex<Option<String>> = std::sync::Mutex::new(None);
+
+/// Write to stdout. What a closed stdout (a reader such as `head` that has
+/// stopped reading: the write fails with a broken pipe) cannot take is
+/// dropped: what a command prints is a summary of the files it writes, so
+/// the command goes on to its usual end and exit code instead of
+/// panicking. Any other failure (stdout sent to a file on a full disk) is
+/// kept, and `main` then names it and exits 2, since the output is cut.
 pub fn write_stdout(args: std::fmt::Arguments<'_>, newline: bool) {
     use std::io::Write as _;
     let mut out = std::io::stdout().lock();
-    let _ = out.write_fmt(args).and_then(|()| {
+    let written = out.write_fmt(args).and_then(|()| {
         if newline {
             out.write_all(b"\n")
         } else {
             Ok(())
         }
     });
+    if let Err(e) = written
+        && e.kind() != std::io::ErrorKind::BrokenPipe
+        && let Ok(mut failed) = STDOUT_FAILED.lock()
+    {
+        failed.get_or_insert_with(|| e.to_string());
+    }
+}
+
+/// The error kept by [`write_stdout`], if any.
+fn stdout_failure() -> Option<String> {
+    STDOUT_FAILED.lock().ok().and_then(|f| f.clone())
 }
 
 /// Print an error and its causes on one line, prefixed with the program name.

@@ -451,3 +451,26 @@ fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
         "{stderr}"
     );
 }
+
+/// Stdout that fails for another reason than a closed pipe (a file on a
+/// full disk, here Linux's `/dev/full`) cuts the output short: the command
+/// says so and exits 2 rather than end as if all had been written.
+#[cfg(target_os = "linux")]
+#[test]
+fn a_failing_stdout_is_reported() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    write_binary_stl(&path, &generate::icosphere(1.0, 3), 1000.0);
+    let full = std::fs::OpenOptions::new()
+        .write(true)
+        .open("/dev/full")
+        .unwrap();
+    let out = Command::new(tuft())
+        .args(["check", path.to_str().unwrap(), "--units", "mm"])
+        .stdout(full)
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("writing to stdout failed"), "{stderr}");
+}
