@@ -242,12 +242,21 @@ pub fn prepare_mesh(
     Ok((panels, report))
 }
 
-/// A coarsening that kept its whole input, far above the target, stops
+/// Most panels a kept input may have and still be run (with the
+/// coarsening's warning) rather than refused: a few times the usual
+/// counts, which the run's memory estimate still handles (a small file
+/// whose coarsening failed had run before the refusal came in, and should
+/// still; our choice).
+pub const KEPT_INPUT_RUNS: usize = 20_000;
+
+/// A coarsening that kept its whole input, far above the target and above
+/// [`KEPT_INPUT_RUNS`], stops
 /// the run with the cause and the place: running a scan's half million
 /// facets would ask for tens of gigabytes, and the memory advice that
 /// followed (fewer panels) could not help, since fewer had been asked for.
 fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
-    if !r.kept_input || (r.achieved_panels as f64) <= COARSEN_SHORTFALL * r.target_panels as f64 {
+    let far_above = (r.achieved_panels as f64) > COARSEN_SHORTFALL * r.target_panels as f64;
+    if !r.kept_input || !far_above || r.achieved_panels <= KEPT_INPUT_RUNS {
         return Ok(());
     }
     let why = r
@@ -463,5 +472,15 @@ mod tests {
             ..kept(None)
         };
         assert!(refuse_failed_coarsening(&close).is_ok());
+        // A small file far above its target but within what a run handles
+        // (8,000 facets for 5,000 panels) runs, with the coarsening's
+        // warning, as it did before the refusal came in.
+        let small = CoarsenReport {
+            input_panels: 8000,
+            achieved_panels: 8000,
+            target_panels: 5000,
+            ..kept(None)
+        };
+        assert!(refuse_failed_coarsening(&small).is_ok());
     }
 }
