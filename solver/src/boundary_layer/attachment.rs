@@ -7,7 +7,9 @@
 //! search is over the whole surface, so a stagnation point moved by ground
 //! effect or yaw is found where the velocities put it, and a body may have
 //! several (a nose and an underbody lip, say). Candidates closer than
-//! [`separation_distance`] to a slower one are dropped.
+//! [`separation_distance`] to a slower one are dropped, unless their
+//! speeds agree within [`TWIN_SPEED`] (mirror-image twins, both kept), and
+//! "local minimum" allows the same margin.
 
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
@@ -68,10 +70,11 @@ pub fn find_attachments(
 
 /// Relative difference of speed under which two attachment panels close
 /// together are twins, each seeded: on a body symmetric about its centre
-/// plane the slowest panels at the nose come in mirror pairs, and one ring
-/// round one of them seeds the two sides unevenly (the demo coupe had 104
-/// panels whose state differed from their mirror image's).
-const TWIN_SPEED: f64 = 1e-6;
+/// plane the slowest panels at the nose come in mirror pairs whose speeds
+/// differ by rounding, and one ring round one of them seeds the two sides
+/// unevenly (the demo coupe's attached flow had 40 panels whose state
+/// differed from their mirror image's).
+pub const TWIN_SPEED: f64 = 1e-6;
 
 /// When no panel qualifies: the slowest panel facing upstream
 /// (`n . d < -0.5`), if any.
@@ -87,8 +90,9 @@ pub fn fallback_attachment(
 }
 
 /// `count` seeds on a ring of geodesic radius `radius_sizes` panel sizes
-/// round the attachment panel's centroid, evenly spaced in angle in the
-/// panel's frame. Seeds whose walk leaves the mesh (a mirror plane) are
+/// round the attachment panel's centroid, evenly spaced in angle from the
+/// stream's direction projected on the panel (so that the rings of two
+/// mirror-image panels mirror each other). Seeds whose walk leaves the mesh (a mirror plane) are
 /// dropped.
 pub fn ring_seeds(
     tracer: &Tracer,

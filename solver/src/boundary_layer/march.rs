@@ -35,8 +35,8 @@ pub struct LineSample {
     /// Concave turning of the surface into the stream along the line up to
     /// this station, radians (the sum of the angles of the concave edges
     /// crossed onto surfaces facing upstream; zero on a 2D section). A
-    /// turbulent separation bubble closes only over such a turn (see
-    /// [`march_line`]).
+    /// turbulent separation bubble closes only over such a turn, or on the
+    /// face it leads onto (see [`march_line`]).
     pub concave_turn: f64,
     /// The surface here faces into the stream (inclined by at least
     /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
@@ -289,8 +289,11 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
 /// any bluff edge, with the surface turning concave by at least
 /// [`BUBBLE_CONCAVE_TURN`] within the first half of that distance. On a
 /// face into the stream the turn is counted from half that distance
-/// upstream and the distance is at least [`BUBBLE_MIN_STATIONS`] stations.
-/// `None` always when `params.reattach_thicknesses` is 0.
+/// upstream and the distance is at least [`BUBBLE_MIN_STATIONS`] stations
+/// (`corner_bubble_end`). Failing that, a separation ahead of a face into
+/// the stream high enough to catch its shear layer closes on that face
+/// (`step_bubble_end`). `None` always when `params.reattach_thicknesses`
+/// is 0.
 fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     if ctx.params.reattach_thicknesses <= 0.0 {
         return None;
@@ -320,6 +323,9 @@ fn step_bubble_end(ctx: &Station) -> Option<usize> {
         .position(|b| b.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN)?;
     let face = &later[foot..];
     let face_len = face.iter().take_while(|b| b.faces_stream).count();
+    if face_len == 0 {
+        return None;
+    }
     let height = face[..face_len]
         .iter()
         .map(|b| (b.point - here.point).dot(&here.normal))
@@ -328,11 +334,17 @@ fn step_bubble_end(ctx: &Station) -> Option<usize> {
         return None;
     }
     let target = here.speed * (1.0 + REATTACH_SPEED_MARGIN);
-    let end = ctx.i + 1 + foot + face_len.min(face.len() - 1);
-    for j in ctx.i + 1..=end {
+    // The bubble closes on the face: from its foot to the first station
+    // past it. A bluff edge there ends the bubble (the layer then leaves
+    // that edge, as `advance` has it); one on the face comes first.
+    let (start, end) = (
+        ctx.i + 1 + foot,
+        ctx.i + 1 + foot + face_len.min(face.len() - 1),
+    );
+    for j in start..=end {
         let b = &ctx.samples[j];
         if b.forced_separation {
-            return None;
+            return (j == end).then_some(j);
         }
         if b.speed > target {
             return Some(j);

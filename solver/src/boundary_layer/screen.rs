@@ -680,7 +680,9 @@ impl<'a> LineContext<'a> {
     /// add up to more than the bluff-edge limit round a rounding tighter
     /// than [`RIM_RADIUS`] of the body's frontal size (a sharp edge; edges
     /// close together, each turning less, whose run over the turn between
-    /// them is a radius under it). Crumpled panels are stepped over. The zone: from the rim's first
+    /// them is a radius under it), leaving a face the line started on or
+    /// crossed for [`RIM_FACE_RADII`] rim radii. Crumpled panels are
+    /// stepped over. The zone: from the rim's first
     /// crossing back along the line for as long as the panels face
     /// upstream, the segments across the rim, and on from its last
     /// crossing for as long as the attached flow is faster than [`RIM_CP`]
