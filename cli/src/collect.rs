@@ -543,18 +543,36 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
     }
 }
 
-/// Order (plan index, row) pairs by wind condition, then drag area C_D·A
-/// (the drag force at one dynamic pressure: the same order as C_D when the
-/// reference areas agree, and the right one when they do not), then plan
-/// index, and number them from 1 within each wind condition.
+/// Order (plan index, row) pairs by wind condition, then C_D, or drag area
+/// C_D·A (the drag force at one dynamic pressure) where the condition's
+/// reference areas differ by more than `compare::REFERENCE_AREA_SHIFT` (as
+/// the gap to the runner-up is then given), then plan index, and number
+/// them from 1 within each wind condition.
 fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
-    rows.sort_by(|(i, a), (j, b)| {
+    // Within a wind condition, drag areas where the reference areas differ
+    // (as the gap is then given), the coefficients otherwise.
+    let measure = |r: &Row, all: &[(usize, Row)]| {
+        let group: Vec<Row> = all
+            .iter()
+            .filter(|(_, o)| same_wind(o, r))
+            .map(|(_, o)| o.clone())
+            .collect();
+        if areas_differ(&group) {
+            drag_area(r)
+        } else {
+            r.cd
+        }
+    };
+    let keys: Vec<f64> = rows.iter().map(|(_, r)| measure(r, &rows)).collect();
+    let mut keyed: Vec<(f64, (usize, Row))> = keys.into_iter().zip(rows.drain(..)).collect();
+    keyed.sort_by(|(ka, (i, a)), (kb, (j, b))| {
         a.speed
             .total_cmp(&b.speed)
             .then(a.yaw_deg.total_cmp(&b.yaw_deg))
-            .then(drag_area(a).total_cmp(&drag_area(b)))
+            .then(ka.total_cmp(kb))
             .then(i.cmp(j))
     });
+    let rows: Vec<(usize, Row)> = keyed.into_iter().map(|(_, r)| r).collect();
     let mut out: Vec<Row> = Vec::with_capacity(rows.len());
     for (_, mut r) in rows {
         r.rank = match out.last() {
@@ -674,7 +692,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",cd,cd_low,cd_high,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
+    s.push_str(",cd,cd_low,cd_high,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -690,10 +708,12 @@ pub fn csv(c: &Collected) -> String {
         }
         let _ = write!(
             s,
-            ",{},{},{},{},{},{},{},{},{},{},{},{}",
+            ",{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
             r.cd,
             r.cd_low,
             r.cd_high,
+            r.reference_area_m2,
+            drag_area(r),
             r.cl,
             r.lift_kg,
             r.front_axle_kg,
@@ -1656,6 +1676,29 @@ mod tests {
         assert_eq!(c.variants[0].name, "area-2.1");
         let gap = gap_counts(&c.variants[0], &c.variants[1]);
         assert!((gap - 20.0).abs() < 1e-9, "{gap}");
+    }
+
+    /// Reference areas within 1 % of each other (geometry variants'
+    /// frontal areas) rank on C_D, the measure the gap is then given in:
+    /// ranked on drag area, 0.300 on 1.860 m^2 had come before 0.299 on
+    /// 1.870 m^2 and read "within -1.0 counts" of it.
+    #[test]
+    fn reference_areas_that_nearly_agree_rank_by_the_coefficient() {
+        let mut c = sweep(&[10.0, 10.0]);
+        for (r, (name, area, cd)) in c
+            .variants
+            .iter_mut()
+            .zip([("a", 1.860, 0.300), ("b", 1.870, 0.299)])
+        {
+            r.name = name.into();
+            r.reference_area_m2 = area;
+            r.cd = cd;
+        }
+        let rows: Vec<(usize, Row)> = c.variants.iter().cloned().enumerate().collect();
+        c.variants = rank(rows);
+        assert_eq!(c.variants[0].name, "b");
+        let gap = gap_counts(&c.variants[0], &c.variants[1]);
+        assert!((gap - 1.0).abs() < 1e-9, "{gap}");
     }
 
     /// The page warns when the separated share of the surface moves by
