@@ -252,7 +252,8 @@ fn field_style(
             "Separation risk",
             "How close the boundary layer came to separating: 0 far from it, 1 at the criterion. Hatched: separated. \
              A laminar layer reads 0 (unless the case keeps it laminar throughout): where it would separate it \
-             turns turbulent (a short bubble) and goes on.",
+             turns turbulent (a short bubble) and goes on. 1 without hatching: a closed bubble, where the \
+             layer leaves the surface and reattaches (as at the foot of a windscreen), counted attached.",
         ),
     }
 }
