@@ -37,7 +37,7 @@
 use meshopt::SimplifyOptions;
 use serde::Serialize;
 
-use crate::crossing::crossings;
+use crate::crossing::{Crossing, crossings};
 use crate::distance::SurfaceGrid;
 use crate::repair::edges::{edge_groups, sorted_edge_uses};
 use crate::repair::remove_unused_vertices;
@@ -179,8 +179,11 @@ pub fn coarsen_with_params(
     // The simplifier cannot work through folds (see `untangle`): it is
     // given the input with its folds smoothed, and the deviation is still
     // measured against the input.
-    let untangled = untangle(mesh, &border_ok);
-    let mut input_crosses = None;
+    // The input's own crossings, searched once: `untangle` needs them, and
+    // so does the refusal of a try that crosses where the input did not.
+    let input_crossing = same_surface_crossings(mesh);
+    let untangled = untangle(mesh, &border_ok, &input_crossing);
+    let mut input_crosses = untangled.is_none().then_some(!input_crossing.is_empty());
     report.untangled = untangled.as_ref().map(|(_, u)| u.clone());
     let base = untangled.as_ref().map_or(mesh, |(m, _)| m);
     for (target, regularize) in attempts(p) {
@@ -254,11 +257,15 @@ const TAUBIN: (f64, f64) = (0.5, -0.53);
 /// in `fixed`, on a mirror plane or an open border, stay), until nothing
 /// is folded. The moves are of the size of the facets there, the noise
 /// that folded them. `None` when nothing is folded.
-fn untangle(mesh: &TriMesh, fixed: &[bool]) -> Option<(TriMesh, UntangleReport)> {
+fn untangle(
+    mesh: &TriMesh,
+    fixed: &[bool],
+    crossing: &[Crossing],
+) -> Option<(TriMesh, UntangleReport)> {
     let uses = sorted_edge_uses(&mesh.triangles);
-    let (mut folded, first) = folded_facets(mesh, &uses);
+    let (mut folded, first) = folded_facets(mesh, &uses, crossing);
     let first = first.or_else(|| folded.first().map(|&t| centre(mesh, t)))?;
-    if passes_through_itself(mesh) {
+    if passes_through_itself(mesh, crossing) {
         return None;
     }
     let folded_before = folded.len();
@@ -309,7 +316,7 @@ fn untangle(mesh: &TriMesh, fixed: &[bool]) -> Option<(TriMesh, UntangleReport)>
                 out.vertices[v] = p + (sum / around.len() as f64 - p.coords) * step;
             }
         }
-        folded = folded_facets(&out, &uses).0;
+        folded = folded_facets(&out, &uses, &same_surface_crossings(&out)).0;
     }
     let (lo, hi) = mesh.bounds().unwrap_or_default();
     let surface = SurfaceGrid::new(mesh, lo, hi);
@@ -340,9 +347,9 @@ fn untangle(mesh: &TriMesh, fixed: &[bool]) -> Option<(TriMesh, UntangleReport)>
 /// hide (it is refused where the panels are built, with the place).
 const FOLD_SPAN: f64 = 0.1;
 
-/// Whether a facet crossing another of its surface is longer than
-/// [`FOLD_SPAN`] of the body.
-fn passes_through_itself(mesh: &TriMesh) -> bool {
+/// Whether a facet of `crossing` (`mesh`'s crossings within one surface)
+/// is longer than [`FOLD_SPAN`] of the body.
+fn passes_through_itself(mesh: &TriMesh, crossing: &[Crossing]) -> bool {
     let diagonal = mesh.bounds().map_or(0.0, |(lo, hi)| (hi - lo).norm());
     let longest = |t: usize| {
         let tri = mesh.corners(t);
@@ -350,17 +357,26 @@ fn passes_through_itself(mesh: &TriMesh) -> bool {
             .map(|k| (tri[(k + 1) % 3] - tri[k]).norm())
             .fold(0.0, f64::max)
     };
-    crossings(mesh)
+    crossing
         .iter()
-        .any(|c| c.same_surface && longest(c.facet).max(longest(c.other)) > FOLD_SPAN * diagonal)
+        .any(|c| longest(c.facet).max(longest(c.other)) > FOLD_SPAN * diagonal)
 }
 
-/// The facets that cross another facet of their own surface or point
-/// against two or more of their neighbours, sorted, and where the first
-/// crossing is.
+/// The crossings of `mesh` between facets of one connected surface.
+fn same_surface_crossings(mesh: &TriMesh) -> Vec<Crossing> {
+    crossings(mesh)
+        .into_iter()
+        .filter(|c| c.same_surface)
+        .collect()
+}
+
+/// The facets that cross another facet of their own surface (`crossing`,
+/// from [`same_surface_crossings`]) or point against two or more of their
+/// neighbours, sorted, and where the first crossing is.
 fn folded_facets(
     mesh: &TriMesh,
     uses: &[crate::repair::edges::EdgeUse],
+    crossing: &[Crossing],
 ) -> (Vec<usize>, Option<[f64; 3]>) {
     let normals: Vec<crate::Vector> = (0..mesh.len()).map(|t| mesh.area_vector(t)).collect();
     let mut against = vec![0u8; mesh.len()];
@@ -374,10 +390,6 @@ fn folded_facets(
         }
     }
     let mut folded: Vec<usize> = (0..mesh.len()).filter(|&t| against[t] >= 2).collect();
-    let crossing: Vec<_> = crossings(mesh)
-        .into_iter()
-        .filter(|c| c.same_surface)
-        .collect();
     folded.extend(crossing.iter().flat_map(|c| [c.facet, c.other]));
     folded.sort_unstable();
     folded.dedup();
@@ -506,8 +518,8 @@ fn flip_collinear(mesh: &mut TriMesh) {
 }
 
 /// "at (x, y, z) m", for the reasons a try is refused.
-fn at(p: crate::Vector) -> String {
-    format!("at ({:.3}, {:.3}, {:.3}) m", p.x, p.y, p.z)
+fn at([x, y, z]: [f64; 3]) -> String {
+    format!("at ({x:.3}, {y:.3}, {z:.3}) m")
 }
 
 /// Edge matching and non-degeneracy, in the input's vertex numbering: a
@@ -518,9 +530,10 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
         return Err("nothing left".to_string());
     }
     if let Some(t) = (0..coarse.len()).find(|&t| Panel::new(coarse.corners(t)).is_none()) {
-        let [a, b, c] = coarse.corners(t);
-        let at = at((a.coords + b.coords + c.coords) / 3.0);
-        return Err(format!("a panel collapsed to a line {at}"));
+        return Err(format!(
+            "a panel collapsed to a line {}",
+            at(centre(coarse, t))
+        ));
     }
     let uses = sorted_edge_uses(&coarse.triangles);
     for group in edge_groups(&uses) {
@@ -532,9 +545,10 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
             } => {}
             _ => {
                 let (a, b) = group[0].ends();
-                let at = at((coarse.vertices[a as usize].coords
-                    + coarse.vertices[b as usize].coords)
-                    / 2.0);
+                let m = coarse.vertices[a as usize]
+                    .coords
+                    .lerp(&coarse.vertices[b as usize].coords, 0.5);
+                let at = at([m.x, m.y, m.z]);
                 return Err(if group.len() == 2 {
                     format!("two neighbouring panels face opposite ways {at}")
                 } else if group.len() == 1 {
@@ -550,23 +564,25 @@ fn check_closed(coarse: &TriMesh, border_ok: &[bool]) -> Result<(), String> {
 
 /// A try whose surface passes through itself is refused, unless the input
 /// already did (then coarsening is not to blame; the input is reported
-/// where the panels are built). The input is searched only when needed.
+/// where the panels are built). `fine_crosses` keeps whether the input
+/// crosses: known from the start when it was not smoothed, else searched
+/// at the first crossing try.
 fn check_no_new_crossing(
     fine: &TriMesh,
     coarse: &TriMesh,
     fine_crosses: &mut Option<bool>,
 ) -> Result<(), String> {
-    let Some(c) = crossings(coarse).into_iter().find(|c| c.same_surface) else {
+    let Some(c) = same_surface_crossings(coarse).into_iter().next() else {
         return Ok(());
     };
     let fine_crosses =
-        *fine_crosses.get_or_insert_with(|| crossings(fine).iter().any(|c| c.same_surface));
+        *fine_crosses.get_or_insert_with(|| !same_surface_crossings(fine).is_empty());
     if fine_crosses {
         return Ok(());
     }
     Err(format!(
         "two of its panels cross (the coarse surface passes through itself) {}",
-        at(crate::Vector::from(c.point))
+        at(c.point)
     ))
 }
 
