@@ -247,19 +247,16 @@ pub(crate) fn close_holes_with_uses(
     for (index, (edges, closed)) in chains.into_iter().enumerate() {
         // A rim that visits a vertex twice is taken whole first (as it
         // always was), and split at its repeated vertices only when it
-        // would be refused whole.
+        // would be refused whole (a refused take leaves the report as it
+        // was).
         let parts = split_at_repeats(&half, &edges);
         let whole = if parts.len() > 1 {
-            let mut trial = HoleReport::default();
-            take(mesh, component, &mut trial, &edges, closed).map(|()| trial)
+            take(mesh, component, &mut report, &edges, closed)
         } else {
             Err(None)
         };
         match whole {
-            Ok(trial) => {
-                report.loops += 1;
-                merge(&mut report, trial);
-            }
+            Ok(()) => report.loops += 1,
             Err(_) => {
                 for (part, part_closed) in parts {
                     report.loops += 1;
@@ -278,7 +275,8 @@ pub(crate) fn close_holes_with_uses(
 }
 
 /// Take one loop: closed by a mirror, a slit, filled, or refused
-/// (`Err(Some)`; the mesh is changed only when it is filled).
+/// (`Err(Some)`; the mesh is changed only when it is filled, and the
+/// report only when it is not refused).
 fn take_loop(
     mesh: &mut TriMesh,
     component: &mut Vec<u32>,
@@ -334,15 +332,6 @@ fn take_loop(
             },
         })),
     }
-}
-
-/// Add what taking one loop found to the report.
-fn merge(report: &mut HoleReport, one: HoleReport) {
-    report.mirror_closed.extend(one.mirror_closed);
-    report.slits += one.slits;
-    report.filled.extend(one.filled);
-    report.ear_clipped += one.ear_clipped;
-    report.facets_added += one.facets_added;
 }
 
 /// Fill a closed loop within `limit`: facets added and whether ear clipping
