@@ -358,16 +358,16 @@ fn drag_area(r: &Row) -> f64 {
 /// [`crate::compare::REFERENCE_AREA_SHIFT`] (then their coefficients rank
 /// nothing by themselves: the same drag force on a larger area has a
 /// smaller C_D).
-fn areas_differ(rows: &[Row]) -> bool {
+fn areas_differ<'a>(rows: impl IntoIterator<Item = &'a Row>) -> bool {
     let (lo, hi) = range(rows, |r| r.reference_area_m2);
-    lo > 0.0 && hi - lo > crate::compare::REFERENCE_AREA_SHIFT * hi
+    lo > 0.0 && crate::compare::areas_differ(lo, hi)
 }
 
 /// The gap in counts from the lowest drag to the runner-up, on the
 /// runner-up's reference area (as `tuft compare` puts B, the leader, on
 /// A's, the runner-up's): a difference of drag areas.
 fn gap_counts(first: &Row, second: &Row) -> f64 {
-    if areas_differ(&[first.clone(), second.clone()]) {
+    if areas_differ([first, second]) {
         1000.0 * (drag_area(second) - drag_area(first)) / second.reference_area_m2
     } else {
         1000.0 * (second.cd - first.cd)
@@ -552,12 +552,8 @@ fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
     // Within a wind condition, drag areas where the reference areas differ
     // (as the gap is then given), the coefficients otherwise.
     let measure = |r: &Row, all: &[(usize, Row)]| {
-        let group: Vec<Row> = all
-            .iter()
-            .filter(|(_, o)| same_wind(o, r))
-            .map(|(_, o)| o.clone())
-            .collect();
-        if areas_differ(&group) {
+        let group = all.iter().map(|(_, o)| o).filter(|o| same_wind(o, r));
+        if areas_differ(group) {
             drag_area(r)
         } else {
             r.cd
@@ -934,24 +930,16 @@ fn separation_spread(c: &[Row]) -> Option<String> {
     // for all (the largest reference area), so that reference areas that
     // differ do not move it.
     let common = range(c, |r| r.reference_area_m2).1;
-    let frontal: Vec<f64> = c
-        .iter()
-        .map(|r| {
-            if common > 0.0 {
-                100.0 * r.separated_frontal_m2 / common
-            } else {
-                r.separated_frontal_percent
-            }
-        })
-        .collect();
-    let (flo, fhi) = frontal
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &x| {
-            (lo.min(x), hi.max(x))
-        });
-    let by_stream =
-        (fhi - flo > 100.0 * crate::compare::SEPARATION_FRONTAL_SHIFT).then_some((flo, fhi));
-    if by_area.is_none() && by_stream.is_none() {
+    let frontal = |r: &Row| {
+        if common > 0.0 {
+            100.0 * r.separated_frontal_m2 / common
+        } else {
+            r.separated_frontal_percent
+        }
+    };
+    let (flo, fhi) = range(c, frontal);
+    let by_stream = fhi - flo > 100.0 * crate::compare::SEPARATION_FRONTAL_SHIFT;
+    if by_area.is_none() && !by_stream {
         return None;
     }
     let (lo, hi) = range(c, |r| r.separated_percent);
@@ -1015,14 +1003,16 @@ fn panel_spread(c: &[Row]) -> Option<String> {
 }
 
 /// Lowest and highest of a percentage over the variants.
-fn range(c: &[Row], f: fn(&Row) -> f64) -> (f64, f64) {
-    let lo = c.iter().map(f).fold(f64::INFINITY, f64::min);
-    let hi = c.iter().map(f).fold(f64::NEG_INFINITY, f64::max);
-    (lo, hi)
+fn range<'a>(c: impl IntoIterator<Item = &'a Row>, f: impl Fn(&Row) -> f64) -> (f64, f64) {
+    c.into_iter()
+        .map(f)
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), x| {
+            (lo.min(x), hi.max(x))
+        })
 }
 
 /// [`range`] when the two lie more than `shift` (a fraction) apart.
-fn spread(c: &[Row], f: fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> {
+fn spread(c: &[Row], f: impl Fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> {
     let (lo, hi) = range(c, f);
     (hi - lo > 100.0 * shift).then_some((lo, hi))
 }

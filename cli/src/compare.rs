@@ -645,12 +645,18 @@ fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> O
 /// note's worth; below it the forces and the coefficients tell the same.
 pub const REFERENCE_AREA_SHIFT: f64 = 0.01;
 
+/// Whether reference areas `ra` and `rb` differ by more than
+/// [`REFERENCE_AREA_SHIFT`] of the larger.
+pub fn areas_differ(ra: f64, rb: f64) -> bool {
+    (ra - rb).abs() > REFERENCE_AREA_SHIFT * ra.abs().max(rb.abs())
+}
+
 /// A note when the reference areas differ by more than
 /// [`REFERENCE_AREA_SHIFT`].
 fn reference_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
     let (ra, rb) = (a.reference.area_m2, b.reference.area_m2);
     let larger = ra.abs().max(rb.abs());
-    ((ra - rb).abs() > REFERENCE_AREA_SHIFT * larger).then(|| {
+    areas_differ(ra, rb).then(|| {
         format!(
             "the reference areas differ by {:.1} % ({ra:.3} and {rb:.3} m^2): the drag is compared as \
              drag area C_D·A (B's drag coefficient expressed in A's reference area, the drag counts \

@@ -69,8 +69,7 @@ pub struct DragVerdict {
 /// agree.
 pub fn common_area(a: &Summary, b: &Summary) -> Option<f64> {
     let (ra, rb) = (a.reference.area_m2, b.reference.area_m2);
-    let larger = ra.abs().max(rb.abs());
-    (ra > 0.0 && (ra - rb).abs() > crate::compare::REFERENCE_AREA_SHIFT * larger).then_some(ra)
+    (ra > 0.0 && crate::compare::areas_differ(ra, rb)).then_some(ra)
 }
 
 /// The factor that puts B's force coefficients on A's reference area
