@@ -644,11 +644,14 @@ fn finish(
     };
     let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
     let mut regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
+    // The frontal area, when the reference area is it (else the band
+    // rasters it itself, only if it needs it).
+    let frontal = (!reference_given.area).then_some(reference.area);
     let (drag_band, band_note) = drag_band(
         mesh,
         &potential,
         (&params, dead_water),
-        (&reference, &air),
+        (&reference, &air, frontal),
         (
             estimate.total.coefficients.drag,
             attached.total.coefficients.drag.abs(),
@@ -979,13 +982,16 @@ fn wake_summary(
 /// Attached potential flow has zero drag (d'Alembert), so the drag its
 /// pressure integrates to (`residual`) is discretisation error, largest at
 /// sharp edges; the band is widened by it on both sides. This is a
-/// model-sensitivity band, not a confidence interval. Each named region's
-/// separated share over the same runs goes into `results`.
+/// model-sensitivity band, not a confidence interval. After the
+/// separated-flow loop its top is raised by the loop's shortfall, a drag
+/// area on the frontal area (`frontal`, when the reference area is it;
+/// rastered otherwise). Each named region's separated share over the same
+/// runs goes into `results`.
 fn drag_band(
     mesh: &PanelMesh,
     potential: &PotentialSolution,
     (base, dead_water): (&BoundaryLayerParams, Option<&BoundaryLayer>),
-    (reference, air): (&Reference, &loads::FlowState),
+    (reference, air, frontal): (&Reference, &loads::FlowState, Option<f64>),
     (central, residual): (f64, f64),
     (regions, results): (
         &[crate::region::RegionSection],
@@ -1043,7 +1049,8 @@ fn drag_band(
         // shortfall was measured on the frontal area: on another reference
         // area it is the same drag area, so that bands of runs on different
         // areas compare as drag areas.
-        let shortfall = LOOP_DRAG_SHORTFALL * loads::frontal_area(mesh) / reference.area;
+        let frontal = frontal.unwrap_or_else(|| loads::frontal_area(mesh));
+        let shortfall = LOOP_DRAG_SHORTFALL * frontal / reference.area;
         return Ok((
             (lo, hi + shortfall),
             format!(
