@@ -336,7 +336,9 @@ fn read_lines(r: &PrepareReport) -> String {
         .map_or("none".to_string(), |z| format!("z = {z} m"));
     s += &format!(
         "mirrors    ground plane: {ground}; symmetry plane y = 0: {}\n",
-        if r.mirrors.symmetry {
+        if r.mirrors.whole_cut.is_some() {
+            "yes (half model, cut from the whole body: see the note below)"
+        } else if r.mirrors.symmetry {
             "yes (half model)"
         } else {
             "no"

@@ -101,7 +101,7 @@ pub fn mirror_refusal(
 ) -> anyhow::Error {
     let below = match err {
         MeshError::BelowGround { z, ground, top, .. } => ground - z > 0.1 * (top - z),
-        MeshError::AcrossSymmetryPlane { .. } => false,
+        MeshError::AcrossSymmetryPlane { .. } | MeshError::NotCentred { .. } => false,
         _ => return err.into(),
     };
     match up {

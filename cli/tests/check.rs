@@ -152,6 +152,40 @@ fn check_half_model_needs_the_symmetry_flag() {
     assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
 }
 
+/// A whole body checked as a half model (`--half`, or `geometry.half_model
+/// = true`) is cut at y = 0 and its y >= 0 half kept, saying so; a whole
+/// body off that plane is refused in one line naming the file and how far
+/// off it is.
+#[test]
+fn check_cuts_a_whole_body_given_as_a_half_model() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("whole.stl");
+    write_binary_stl(&path, &generate::latlong_sphere(1.0, 24, 48), 1.0);
+    let p = path.to_str().unwrap();
+    let out = check(&[p, "--units", "m", "--half"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    assert!(stdout.contains("cut from the whole body"), "{stdout}");
+    assert!(
+        stdout.contains("cut at y = 0 and its y >= 0 half run mirrored"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("closed by the symmetry mirror"), "{stdout}");
+    let mut off = generate::latlong_sphere(1.0, 24, 48);
+    off.map_vertices(|q| tuft_mesh::Point::new(q.x, q.y + 0.1, q.z));
+    let path = dir.path().join("off.stl");
+    write_binary_stl(&path, &off, 1.0);
+    let out = check(&[path.to_str().unwrap(), "--units", "m", "--half"]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    assert!(stderr.contains(&path.display().to_string()), "{stderr}");
+    assert!(
+        stderr.contains("centred 100.0 mm off that plane"),
+        "{stderr}"
+    );
+}
+
 /// A case file is checked as the run reads its STL: the committed coupe
 /// case gives its unit and ground; a case of a built-in shape is refused
 /// in one sentence naming the file.

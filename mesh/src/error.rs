@@ -158,6 +158,20 @@ pub enum MeshError {
         /// Pairs of facets of one surface that cross.
         pairs: usize,
     },
+    /// A whole body to be run as a half model is not centred on the
+    /// symmetry plane y = 0.
+    #[error(
+        "mirror plane problem: a whole body run as a half model is cut at y = 0, but this one spans \
+         y = {y_min:.4} to {y_max:.4} m, centred {off_mm:.1} mm off that plane: move its centre plane \
+         onto y = 0 in the STL, or run it whole",
+        off_mm = 500.0 * (y_min + y_max)
+    )]
+    NotCentred {
+        /// The body's least y, metres.
+        y_min: f64,
+        /// The body's greatest y, metres.
+        y_max: f64,
+    },
     /// A half model reaches across its symmetry plane (y = 0) by more than
     /// the cut tolerance.
     #[error(

@@ -31,6 +31,7 @@
 
 pub mod coarsen;
 pub mod crossing;
+pub mod cut;
 pub mod distance;
 pub mod error;
 pub mod export;

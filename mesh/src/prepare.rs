@@ -74,6 +74,9 @@ pub struct MirrorReport {
     pub cut_vertices_moved: usize,
     /// The largest of those moves, metres.
     pub cut_largest_move: f64,
+    /// A whole body declared a half model, cut at `y = 0`
+    /// ([`crate::cut::keep_right_half`]).
+    pub whole_cut: Option<crate::cut::HalfCut>,
 }
 
 /// A half model's vertices within this fraction of the body's diagonal of
@@ -83,6 +86,11 @@ pub struct MirrorReport {
 /// without the move its cut would not be taken for the mirror's and a
 /// vertex a hair below y = 0 would refuse the whole body (our choice).
 pub const CUT_TOLERANCE: f64 = 1e-3;
+
+/// A whole body cut at `y = 0` whose halves differ by more than this
+/// share of its diagonal (about 50 mm on a car) is warned about: the run
+/// is of one side mirrored (our choice).
+pub const ASYMMETRY_WARNING: f64 = 0.01;
 
 /// A coarsening that ends above this multiple of its target (its checks
 /// refused the tries at the target) is warned about: the run costs about
@@ -128,6 +136,8 @@ pub struct PrepareReport {
 /// # Errors
 /// Every reading error of [`read_stl`], every repair error,
 /// [`MeshError::AcrossSymmetryPlane`] or [`MeshError::BelowGround`] when the body crosses a declared mirror plane,
+/// [`MeshError::NotCentred`] when a whole body declared a half model is not
+/// centred on `y = 0` (a centred one is cut there),
 /// [`MeshError::NothingInside`] when a wrap finds no inside, and
 /// [`MeshError::SelfCrossing`] when the panels pass through their own
 /// surface.
@@ -154,6 +164,17 @@ pub fn prepare_mesh(
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
+    let whole_cut = if params.mirrors.symmetry {
+        match crate::cut::keep_right_half(&mesh)? {
+            Some((half, cut)) => {
+                mesh = half;
+                Some(cut)
+            }
+            None => None,
+        }
+    } else {
+        None
+    };
     let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
     check_mirror_sides(&mesh, params)?;
     let (mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
@@ -207,6 +228,17 @@ pub fn prepare_mesh(
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
             ));
         }
+        if let Some(c) = &whole_cut {
+            q.notes.push(c.describe());
+            if c.largest_difference > ASYMMETRY_WARNING * (hi - lo).norm() {
+                q.add_warning(format!(
+                    "the whole body was cut at y = 0 and its y >= 0 half run, but the halves differ by up \
+                     to {:.0} mm: the run is of that half mirrored, not of the body as scanned (run it \
+                     whole, half_model = false, to see both sides)",
+                    1000.0 * c.largest_difference
+                ));
+            }
+        }
         if let Some(w) = &wrap {
             q.notes.push(w.describe());
             if let Some(lost) = w.lost_warning() {
@@ -228,6 +260,7 @@ pub fn prepare_mesh(
             symmetry: params.mirrors.symmetry,
             cut_vertices_moved,
             cut_largest_move,
+            whole_cut,
         },
         repair,
         wrap,

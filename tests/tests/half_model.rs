@@ -6,25 +6,33 @@
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
 use tuft_mesh::generate::{AhmedParams, ahmed_with_params};
-use tuft_mesh::{Mirrors, PanelMesh};
+use tuft_mesh::prepare::{PrepareParams, prepare_mesh};
+use tuft_mesh::{LengthUnit, Mirrors, PanelMesh};
 use tuft_solver::loads::{FlowState, Reference, integrate_loads};
 use tuft_solver::{Freestream, solve_potential};
 
-fn loads(half: bool) -> (usize, tuft_solver::loads::Loads) {
-    let body = ahmed_with_params(&AhmedParams {
+fn body(half: bool) -> tuft_mesh::TriMesh {
+    ahmed_with_params(&AhmedParams {
         slant_deg: 25.0,
         panels: 1600,
         half,
         ..Default::default()
     })
-    .unwrap();
+    .unwrap()
+}
+
+fn loads(half: bool) -> (usize, tuft_solver::loads::Loads) {
     let mirrors = Mirrors {
         ground: Some(0.0),
         symmetry: half,
     };
-    let mesh = PanelMesh::new(body, mirrors).unwrap();
-    let sol = solve_potential(&mesh, &Freestream::new(40.0, 0.0)).unwrap();
-    let reference = Reference::from_mesh(&mesh, 0.2, 0.85);
+    let mesh = PanelMesh::new(body(half), mirrors).unwrap();
+    loads_of(&mesh)
+}
+
+fn loads_of(mesh: &PanelMesh) -> (usize, tuft_solver::loads::Loads) {
+    let sol = solve_potential(mesh, &Freestream::new(40.0, 0.0)).unwrap();
+    let reference = Reference::from_mesh(mesh, 0.2, 0.85);
     let air = FlowState {
         density: 1.204,
         speed: 40.0,
@@ -32,7 +40,7 @@ fn loads(half: bool) -> (usize, tuft_solver::loads::Loads) {
     };
     (
         mesh.len(),
-        integrate_loads(&mesh, &sol.cp, None, &reference, &air).unwrap(),
+        integrate_loads(mesh, &sol.cp, None, &reference, &air).unwrap(),
     )
 }
 
@@ -75,4 +83,50 @@ fn half_model_gives_the_full_model_loads() {
     assert!(rel(half.axles.rear, full.axles.rear) < 1e-6);
     // By symmetry the half model has no side force at all.
     assert!(ch.side.abs() < 1e-12);
+}
+
+/// A whole body declared a half model (`geometry.half_model = true` on a
+/// whole STL) is cut at y = 0 and its y >= 0 half run mirrored: the same
+/// image identity, so the loads are the whole body's. The slant-back body
+/// has edges on y = 0, so the cut splits no facet and the half holds half
+/// the panels; the loads agree to round-off.
+#[test]
+fn a_whole_body_cut_at_its_symmetry_plane_gives_the_whole_bodys_loads() {
+    let whole = body(false);
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: Mirrors {
+            ground: Some(0.0),
+            symmetry: true,
+        },
+        target_panels: Some(whole.len()),
+        ..PrepareParams::default()
+    };
+    let (mesh, report) = prepare_mesh(whole.clone(), None, &params).unwrap();
+    let cut = report.mirrors.whole_cut.expect("the whole body is cut");
+    println!("{}", cut.describe());
+    assert_eq!(2 * mesh.len(), whole.len());
+    assert!(cut.largest_difference < 1e-9);
+    let (_, full) = loads(false);
+    let (_, half) = loads_of(&mesh);
+    let rel = |a: f64, b: f64| (a - b).abs() / b.abs().max(1e-12);
+    let (cf, ch) = (full.total.coefficients, half.total.coefficients);
+    println!(
+        "whole: lift {:.9} drag {:.9}; cut half: lift {:.9} drag {:.9}",
+        cf.lift, cf.drag, ch.lift, ch.drag
+    );
+    assert!(
+        rel(ch.lift, cf.lift) < 1e-6,
+        "lift {} vs {}",
+        ch.lift,
+        cf.lift
+    );
+    assert!(
+        rel(ch.drag, cf.drag) < 1e-6,
+        "drag {} vs {}",
+        ch.drag,
+        cf.drag
+    );
+    assert!(rel(half.axles.front, full.axles.front) < 1e-6);
+    assert!(rel(half.axles.rear, full.axles.rear) < 1e-6);
 }
