@@ -107,3 +107,35 @@ fn a_cut_within_a_millimetre_or_two_of_the_plane_is_moved_onto_it() {
     let e = prepare(&path, &params).unwrap_err().to_string();
     assert!(e.contains("-50.0 mm"), "{e}");
 }
+
+/// A whole body that is not symmetric about y = 0 (an ellipsoid turned by
+/// 0.1 rad about z) is still cut there when declared a half model, but
+/// the preparation warns that the halves differ and by how much.
+#[test]
+fn an_unsymmetric_whole_body_cut_at_the_plane_is_warned_about() {
+    let mut body = generate::icosphere(1.0, 3);
+    let (c, s) = (0.1f64.cos(), 0.1f64.sin());
+    body.map_vertices(|p| {
+        tuft_mesh::Point::new(2.0 * c * p.x - s * p.y, 2.0 * s * p.x + c * p.y, p.z)
+    });
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: Mirrors {
+            ground: None,
+            symmetry: true,
+        },
+        ..PrepareParams::default()
+    };
+    let (_, report) = tuft_mesh::prepare::prepare_mesh(body, None, &params).unwrap();
+    let cut = report.mirrors.whole_cut.expect("cut");
+    assert!(cut.largest_difference > 0.1, "{}", cut.largest_difference);
+    assert!(
+        report
+            .quality
+            .warnings
+            .iter()
+            .any(|w| w.contains("the halves differ by up to")),
+        "{:?}",
+        report.quality.warnings
+    );
+}
