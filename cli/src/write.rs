@@ -516,7 +516,18 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         regions: c.regions.clone(),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
-        notes: geo.report.quality.notes.clone(),
+        notes: geo
+            .report
+            .quality
+            .notes
+            .iter()
+            .cloned()
+            .chain(crate::pipeline::coarse_note(
+                mesh.len(),
+                geo.report.suggested_panels,
+                c.wakes.is_some(),
+            ))
+            .collect(),
         caution: CAUTION.into(),
     }
 }
