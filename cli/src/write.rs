@@ -631,14 +631,19 @@ fn loop_text(w: &SeparatedWakes) -> String {
 /// from the separated, vortex-laden flow on its lee side, which attached
 /// potential flow with one dead-water pressure does not hold (on the demo
 /// coupe at 8,048 panels the side-force coefficient was 0.005 at 5 degrees
-/// and 0.027 at 10, 2026-12-02).
+/// and 0.027 at 10, 2026-12-02); nor the drag it adds (a review's demo
+/// coupe at about 3,000 panels: C_D 0.140 at 10 degrees against 0.144
+/// straight ahead, 2026-12-03).
 fn cross_wind_text(yaw: f64, side: f64) -> String {
     format!(
         "At {} degrees of yaw the side-force coefficient comes to {side:.3}. Cars measure about 0.03 to 0.04 \
          per degree of yaw (common practice), most of it from the separated flow and the vortices on the lee \
          side, which attached potential flow with the dead water at one pressure does not hold: this run \
          shows where the pressure and the separation move in a cross wind, not the side force, and no \
-         yawing or rolling moment is given. Cross-wind stability needs validated CFD or a tunnel.",
+         yawing or rolling moment is given. The drag misses the same lee-side flow: cars measure more drag \
+         in a cross wind than straight ahead (common practice), where this model can give less (a review's \
+         demo coupe: C_D 0.140 at 10 degrees against 0.144 straight ahead), so compare drag between runs \
+         at one yaw only. Cross-wind stability needs validated CFD or a tunnel.",
         output::short_number(yaw)
     )
 }
