@@ -131,6 +131,13 @@ pub const BUBBLE_MIN_STATIONS: f64 = 6.0;
 /// memory). 1.5 is our margin on that.
 pub const STEP_SEPARATION_HEIGHTS: f64 = 1.5;
 
+/// Least turn between the surface a layer separated on and the surface
+/// beyond the face into the stream it then met, for the line to have gone
+/// round the face's side rather than over its top (`junction_bubble_end`):
+/// 60 degrees (our choice), most of the way from a roof above a bonnet
+/// (0 to 10 degrees on the cases seen) to a flank beside it (75 to 90).
+pub const JUNCTION_SIDE_TURN: f64 = 60.0 * std::f64::consts::PI / 180.0;
+
 /// Share by which the edge speed must exceed its value at a turbulent
 /// separation for the bubble to close (so that ripples of the interpolated
 /// speed do not count; our choice).
@@ -159,7 +166,14 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// separation that lies ahead of a face into the stream rising above the
 /// separated surface, within [`STEP_SEPARATION_HEIGHTS`] of that face's
 /// height from its foot, is such a bubble too, closing on the face (the
-/// flow ahead of a step; `step_bubble_end`). Once separated for good,
+/// flow ahead of a step; `step_bubble_end`). So is a separation ahead of
+/// such a face whose line then leaves the face by its side, onto a surface
+/// turned more than [`JUNCTION_SIDE_TURN`] from the separated one, when the
+/// face's foot and the speed's recovery both come within the
+/// concave-corner rule's distance (the junction vortex ahead of an
+/// obstacle, whose legs wrap round its sides: the bonnet's outboard
+/// corners ahead of an upright windscreen; `junction_bubble_end`). Once
+/// separated for good,
 /// every later station is separated and holds the thicknesses of the
 /// separation point.
 pub fn march_line(
@@ -292,13 +306,69 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
 /// upstream and the distance is at least [`BUBBLE_MIN_STATIONS`] stations
 /// (`corner_bubble_end`). Failing that, a separation ahead of a face into
 /// the stream high enough to catch its shear layer closes on that face
-/// (`step_bubble_end`). `None` always when `params.reattach_thicknesses`
-/// is 0.
+/// (`step_bubble_end`), and one whose line passes round the face's side
+/// closes where its speed recovers (`junction_bubble_end`). `None` always
+/// when `params.reattach_thicknesses` is 0.
 fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     if ctx.params.reattach_thicknesses <= 0.0 {
         return None;
     }
-    corner_bubble_end(ctx, state).or_else(|| step_bubble_end(ctx))
+    corner_bubble_end(ctx, state)
+        .or_else(|| step_bubble_end(ctx))
+        .or_else(|| junction_bubble_end(ctx, state))
+}
+
+/// The reattachment of a separation at `ctx.i` in the decelerating flow
+/// ahead of a face into the stream that the line then passes round by its
+/// side (the bonnet's outboard corner ahead of an upright windscreen, whose
+/// lines turn round the pillar onto the flank): the first station where the
+/// edge speed exceeds its value at separation by [`REATTACH_SPEED_MARGIN`],
+/// if that comes within `params.reattach_thicknesses` thicknesses
+/// `theta (H1 + H)` and before any bluff edge, when within the same
+/// distance the line crosses a concave turn of at least
+/// [`BUBBLE_CONCAVE_TURN`] onto a face into the stream and leaves that
+/// face, with no bluff edge between, onto a surface turned by more than
+/// [`JUNCTION_SIDE_TURN`] from the separated surface.
+///
+/// The layer ahead of an obstacle standing on a wall separates in the
+/// obstacle's pressure rise and rolls up into a junction (horseshoe)
+/// vortex whose legs wrap round the obstacle's sides; beneath and behind
+/// the vortex the flow on the wall beside the obstacle is attached (Baker
+/// 1979; Simpson 2001; from memory). On a car the layer that leaves the
+/// bonnet ahead of the screen's outboard foot feeds the pillar vortex,
+/// which lies along the side glass, and the flank below stays attached
+/// (common practice in vehicle aerodynamics). A line that leaves the face
+/// onto a surface turned well away from the one it separated on (the flank
+/// beside a bonnet) went round the face's side, beneath that vortex, so
+/// the region it left is closed, not an open wake (our reading). A line
+/// that climbs the face leaves it onto a surface like the one it left (a
+/// roof above a bonnet) and stays with [`corner_bubble_end`] and
+/// [`step_bubble_end`]. The reach and the speed margin are the
+/// concave-corner rule's (our choice). A separation with no face into the
+/// stream ahead (a rear window, the side edges of a slant, a base) is
+/// never such a bubble.
+fn junction_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
+    let here = ctx.samples[ctx.i];
+    let reach = ctx.params.reattach_thicknesses * state.theta * (head::h1_of_h(state.h) + state.h);
+    let within = &ctx.samples[ctx.i + 1..];
+    let within = &within[..within
+        .iter()
+        .position(|b| b.forced_separation || b.s - here.s > reach)
+        .unwrap_or(within.len())];
+    let foot = within
+        .iter()
+        .position(|b| b.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN)?;
+    let exit = ctx.samples[ctx.i + 1 + foot..]
+        .iter()
+        .find(|b| !b.faces_stream || b.forced_separation)?;
+    if exit.forced_separation || exit.normal.dot(&here.normal) > JUNCTION_SIDE_TURN.cos() {
+        return None;
+    }
+    let target = here.speed * (1.0 + REATTACH_SPEED_MARGIN);
+    within
+        .iter()
+        .position(|b| b.speed > target)
+        .map(|j| ctx.i + 1 + j)
 }
 
 /// The reattachment of a separation at `ctx.i` that lies ahead of a face

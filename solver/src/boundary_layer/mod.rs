@@ -89,7 +89,8 @@ pub struct BoundaryLayerParams {
     /// at its separation point: a turbulent separation after which the
     /// edge speed regains its value at separation within this distance (the
     /// flow into a concave corner such as the foot of a windscreen, which
-    /// speeds up again along the screen) reattaches there, and the layer
+    /// speeds up again along the screen, or round the side of such a face)
+    /// reattaches there, and the layer
     /// marches on from `H` = [`REATTACHMENT_H`] with `theta` held through
     /// the bubble. Default 10 (our choice); 0 makes every turbulent
     /// separation final.

@@ -48,8 +48,10 @@
 //!   ([`BoundaryLayer::rim_zone`], [`RIM_CP`]).
 //! - **Short bubbles.** A turbulent separation in a concave corner facing
 //!   the stream (the foot of a windscreen) closes again when the edge speed
-//!   recovers within a few thicknesses; see [`march::march_line`] and
-//!   `params.reattach_thicknesses`.
+//!   recovers within a few thicknesses, as does one ahead of a face into
+//!   the stream high enough to catch its shear layer, or one whose line
+//!   passes round such a face's side (a pillar); see
+//!   [`march::march_line`] and `params.reattach_thicknesses`.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
