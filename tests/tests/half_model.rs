@@ -8,7 +8,7 @@
 use tuft_mesh::generate::{AhmedParams, ahmed_with_params};
 use tuft_mesh::prepare::{PrepareParams, prepare_mesh};
 use tuft_mesh::{LengthUnit, Mirrors, PanelMesh};
-use tuft_solver::loads::{FlowState, Reference, integrate_loads};
+use tuft_solver::loads::{FlowState, Loads, Reference, integrate_loads};
 use tuft_solver::{Freestream, solve_potential};
 
 fn body(half: bool) -> tuft_mesh::TriMesh {
@@ -44,6 +44,32 @@ fn loads_of(mesh: &PanelMesh) -> (usize, tuft_solver::loads::Loads) {
     )
 }
 
+/// The two runs' loads agree within 1e-6 relative (the image identity:
+/// round-off only).
+fn same_loads(a_name: &str, a: &Loads, b_name: &str, b: &Loads) {
+    let rel = |x: f64, y: f64| (x - y).abs() / y.abs().max(1e-12);
+    let (ca, cb) = (a.total.coefficients, b.total.coefficients);
+    println!(
+        "{a_name}: lift {:.9} drag {:.9} pitch {:.9}; {b_name}: lift {:.9} drag {:.9} pitch {:.9}",
+        ca.lift, ca.drag, ca.pitch, cb.lift, cb.drag, cb.pitch
+    );
+    assert!(rel(b.lift, a.lift) < 1e-6, "lift {} vs {}", b.lift, a.lift);
+    assert!(
+        rel(cb.drag, ca.drag) < 1e-6,
+        "drag {} vs {}",
+        cb.drag,
+        ca.drag
+    );
+    assert!(
+        rel(cb.pitch, ca.pitch) < 1e-6,
+        "pitch {} vs {}",
+        cb.pitch,
+        ca.pitch
+    );
+    assert!(rel(b.axles.front, a.axles.front) < 1e-6);
+    assert!(rel(b.axles.rear, a.axles.rear) < 1e-6);
+}
+
 #[test]
 fn half_model_gives_the_full_model_loads() {
     let (n_full, full) = loads(false);
@@ -54,35 +80,9 @@ fn half_model_gives_the_full_model_loads() {
         n_full,
         "the half model holds exactly half the panels"
     );
-    let rel = |a: f64, b: f64| (a - b).abs() / b.abs().max(1e-12);
-    let (cf, ch) = (full.total.coefficients, half.total.coefficients);
-    println!(
-        "full: lift {:.9} drag {:.9} pitch {:.9}; half: lift {:.9} drag {:.9} pitch {:.9}",
-        cf.lift, cf.drag, cf.pitch, ch.lift, ch.drag, ch.pitch
-    );
-    // Same loads within 1e-6 relative (image identity, round-off only).
-    assert!(
-        rel(half.lift, full.lift) < 1e-6,
-        "lift {} vs {}",
-        half.lift,
-        full.lift
-    );
-    assert!(
-        rel(ch.drag, cf.drag) < 1e-6,
-        "drag {} vs {}",
-        ch.drag,
-        cf.drag
-    );
-    assert!(
-        rel(ch.pitch, cf.pitch) < 1e-6,
-        "pitch {} vs {}",
-        ch.pitch,
-        cf.pitch
-    );
-    assert!(rel(half.axles.front, full.axles.front) < 1e-6);
-    assert!(rel(half.axles.rear, full.axles.rear) < 1e-6);
+    same_loads("full", &full, "half", &half);
     // By symmetry the half model has no side force at all.
-    assert!(ch.side.abs() < 1e-12);
+    assert!(half.total.coefficients.side.abs() < 1e-12);
 }
 
 /// A whole body declared a half model (`geometry.half_model = true` on a
@@ -109,24 +109,5 @@ fn a_whole_body_cut_at_its_symmetry_plane_gives_the_whole_bodys_loads() {
     assert!(cut.largest_difference < 1e-9);
     let (_, full) = loads(false);
     let (_, half) = loads_of(&mesh);
-    let rel = |a: f64, b: f64| (a - b).abs() / b.abs().max(1e-12);
-    let (cf, ch) = (full.total.coefficients, half.total.coefficients);
-    println!(
-        "whole: lift {:.9} drag {:.9}; cut half: lift {:.9} drag {:.9}",
-        cf.lift, cf.drag, ch.lift, ch.drag
-    );
-    assert!(
-        rel(ch.lift, cf.lift) < 1e-6,
-        "lift {} vs {}",
-        ch.lift,
-        cf.lift
-    );
-    assert!(
-        rel(ch.drag, cf.drag) < 1e-6,
-        "drag {} vs {}",
-        ch.drag,
-        cf.drag
-    );
-    assert!(rel(half.axles.front, full.axles.front) < 1e-6);
-    assert!(rel(half.axles.rear, full.axles.rear) < 1e-6);
+    same_loads("whole", &full, "cut half", &half);
 }
