@@ -41,6 +41,9 @@ pub struct Fields {
     pub risk: Vec<f64>,
     /// How the separated regions were found (the loop's passes).
     pub separation_note: Option<String>,
+    /// The dead water's pressure coefficient, which the separated panels
+    /// hold after the separated-flow loop.
+    pub dead_water_cp: Option<f64>,
 }
 
 impl Fields {
@@ -53,6 +56,7 @@ impl Fields {
             cf: l.iter().map(|p| p.cf).collect(),
             state: l.iter().map(|p| panel_state(p.state)).collect(),
             risk: l.iter().map(|p| p.risk).collect(),
+            dead_water_cp: c.wakes.as_ref().and_then(|w| w.dead_water_cp),
             separation_note: c.wakes.as_ref().filter(|w| w.passes > 1).map(|w| {
                 format!(
                     "Separated regions from the separated-flow loop ({} passes, {}).",
@@ -79,6 +83,7 @@ impl Fields {
             state: &self.state,
             risk: &self.risk,
             separation_note: self.separation_note.as_deref(),
+            dead_water_cp: self.dead_water_cp,
         }
     }
 }

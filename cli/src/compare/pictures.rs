@@ -61,6 +61,7 @@ impl Owned {
             state: &self.state,
             risk: &self.risk,
             separation_note: None,
+            dead_water_cp: None,
         }
     }
 }

@@ -107,6 +107,10 @@ pub struct SurfaceResult<'a> {
     /// How the separated regions were found, for the risk picture (e.g.
     /// the separated-flow loop's passes); `None` says nothing.
     pub separation_note: Option<&'a str>,
+    /// The one pressure coefficient the separated panels' `cp` holds (the
+    /// separated-flow loop's dead water), which the pressure pictures mark
+    /// as assumed; `None` where their `cp` is the attached flow's.
+    pub dead_water_cp: Option<f64>,
 }
 
 impl SurfaceResult<'_> {
