@@ -408,6 +408,6 @@ mod tests {
                 assert!(far(SEPARATION_OUTLINE.colour, c), "{c:?}");
             }
         }
-        assert!(SEPARATION_OUTLINE.halo);
+        const { assert!(SEPARATION_OUTLINE.halo) };
     }
 }

@@ -782,7 +782,8 @@ pub fn centreline_cp_plot_with_params(
 /// The separated stretches of the centre line, each surface's shaded in a
 /// light tint of its curve's colour, with the note saying where and what
 /// their Cp is: the dead water's one assumed pressure, or (`None`) the
-/// model's stand-in where no pressure of the separated flow is computed.
+/// attached flow's or the plateau model's, no pressure of the separated
+/// flow.
 fn separated_shading(
     dead_water_cp: Option<f64>,
     upper: &[(f64, f64)],
@@ -802,7 +803,8 @@ fn separated_shading(
         ),
         None => (
             "no computed Cp",
-            "the model's stand-in, not a computed pressure of the separated flow".to_owned(),
+            "the attached flow's or the plateau model's, not a computed pressure of the separated flow"
+                .to_owned(),
         ),
     };
     let mut shading = Vec::new();

@@ -282,8 +282,8 @@ fn pressure_note(s: &SurfaceResult<'_>) -> String {
 
 /// The legend entry and the note's words for separated panels on the
 /// pressure sheet: their Cp is the dead water's one assumed pressure, or
-/// (no dead water) the model's stand-in; neither is a computed pressure of
-/// the separated flow.
+/// (no dead water) the attached flow's or the plateau model's; neither is
+/// a computed pressure of the separated flow.
 fn assumed_words(s: &SurfaceResult<'_>) -> (&'static str, &'static str) {
     if s.dead_water_cp.is_some() {
         (
@@ -293,8 +293,8 @@ fn assumed_words(s: &SurfaceResult<'_>) -> (&'static str, &'static str) {
     } else {
         (
             "separated: no\ncomputed pressure",
-            "Grey stripes: separated, where the colour is the model's stand-in, not a computed pressure of \
-             the separated flow.",
+            "Grey stripes: separated, where the colour is the attached flow's or the plateau model's \
+             pressure, not a computed pressure of the separated flow.",
         )
     }
 }
