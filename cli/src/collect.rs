@@ -19,7 +19,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::compare::read_summary;
 use crate::output::html::escape;
-use crate::output::plot::{LinePlot, PlotParams, SERIES_COLOURS, Series, draw_line_plot};
+use crate::output::plot::{LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, draw_line_plot};
 use crate::region::RegionResult;
 use crate::sweep::group::{VARIANT_FILE, VariantRecord};
 use crate::sweep::{PLAN_FILE, PlanEntry};
@@ -399,7 +399,7 @@ fn leader_words(rows: &[Row]) -> String {
         return if v.resolved && slopes {
             format!(
                 "no clear winner: a rear slope varies across these variants and reaches {:.0} degrees, \
-                 where the model's drag ranking is not reliable (see the notes above); lowest in this \
+                 where the model's drag ranking is not reliable (see the notes below); lowest in this \
                  model: {lowest}, {gap:.1} counts below {}",
                 crate::compare::SLOPE_CAUTION_DEG,
                 second.name
@@ -413,7 +413,7 @@ fn leader_words(rows: &[Row]) -> String {
         } else if !v.leaning.is_empty() {
             format!(
                 "no clear winner: {}, where the model's drag ranking is not reliable (see the notes \
-                 above); lowest in this model: {lowest}, {gap:.1} counts below {}",
+                 below); lowest in this model: {lowest}, {gap:.1} counts below {}",
                 v.doubt, second.name
             )
         } else {
@@ -427,7 +427,7 @@ fn leader_words(rows: &[Row]) -> String {
     if separation_spread(rows).is_some() || slopes {
         format!(
             "no clear winner: the separated area or a rear slope moves across the variants (see the notes \
-             above); lowest in this model: {lowest}"
+             below); lowest in this model: {lowest}"
         )
     } else {
         format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
@@ -760,24 +760,30 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
         for (k, (what, unit, f)) in metrics.iter().enumerate() {
             let mut lines = series(c, key, *f);
-            // One drag line carries its sensitivity band's ends beside it,
-            // listed (and so drawn, thinner) before it.
+            // One drag line carries its sensitivity band's ends beside it:
+            // the low end listed (and so drawn, thinner) before it, the
+            // high end off the scale the two set (after the loop it
+            // carries a fixed shortfall, some 230 counts above the
+            // estimates, which had filled 6 % of the height).
             let band = k == 0 && lines.len() == 1;
+            let mut off_scale = None;
             if band {
-                let mut ends = Vec::new();
-                for (name, end) in [
-                    (
-                        "band, high end",
-                        (|r: &Row| 1000.0 * r.cd_high) as fn(&Row) -> f64,
-                    ),
-                    ("band, low end", |r: &Row| 1000.0 * r.cd_low),
-                ] {
-                    ends.extend(series(c, key, end).into_iter().map(|s| Series {
+                let end = |name: &'static str, f: fn(&Row) -> f64| {
+                    series(c, key, f).into_iter().map(move |s| Series {
                         name: name.into(),
                         colour: BAND_GREY,
                         ..s
-                    }));
-                }
+                    })
+                };
+                let mut ends: Vec<Series> =
+                    end("band, low end", |r: &Row| 1000.0 * r.cd_low).collect();
+                off_scale = end("band, high end", |r: &Row| 1000.0 * r.cd_high)
+                    .next()
+                    .map(|series| OffScale {
+                        series,
+                        note: band_top_note(c),
+                        decimals: 0,
+                    });
                 if let Some(estimate) = lines.first_mut() {
                     estimate.name = "estimate".into();
                 }
@@ -803,12 +809,29 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 y_label: (*unit).into(),
                 invert_y: false,
                 series: lines,
+                off_scale,
+                ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
             out.push((format!("{what} against {key}"), canvas.to_png()?));
         }
     }
     Ok(out)
+}
+
+/// What the drag plot's arrows are: the band's high end, above the axis
+/// the estimates set; after the separated-flow loop it carries the
+/// model's largest shortfall against measured drag.
+fn band_top_note(c: &Collected) -> String {
+    if c.variants.iter().any(|r| !r.plateau_drag) {
+        format!(
+            "Arrows: the band's high end, off the scale, in counts: the highest sensitivity run plus the \
+             separated-flow model's largest shortfall against measured drag ({:.0} counts on the frontal area).",
+            1000.0 * crate::pipeline::LOOP_DRAG_SHORTFALL
+        )
+    } else {
+        "Arrows: the band's high end, off the scale, in counts.".into()
+    }
 }
 
 /// True when every variant's value of `key` is a number.
@@ -1173,16 +1196,13 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
                 )
             );
         }
+        // The axles add up to the lift as shown.
+        let [lift, front, rear] =
+            crate::output::kg_set([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
         let _ = write!(
             s,
-            "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{:.0}</td><td>{:.0}</td><td>{:.0}</td><td>{:.3}</td>",
-            r.cd,
-            r.cd_low,
-            r.cd_high,
-            r.lift_kg,
-            r.front_axle_kg,
-            r.rear_axle_kg,
-            r.separated_area_m2,
+            "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:.3}</td>",
+            r.cd, r.cd_low, r.cd_high, r.separated_area_m2,
         );
         for g in &c.regions {
             let text = region(r, g).map_or_else(String::new, RegionResult::short_words);
@@ -1243,6 +1263,20 @@ mod tests {
             notes: Vec::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    /// The ranking table's axle loads add up to the lift as shown (a
+    /// review's row had read -85 with -41 and -43).
+    #[test]
+    fn the_tables_axle_loads_add_up() {
+        let mut c = sweep(&[10.0]);
+        let r = &mut c.variants[0];
+        (r.lift_kg, r.front_axle_kg, r.rear_axle_kg) = (-84.605, -41.224, -43.381);
+        let html = shown(&c, &[]);
+        assert!(
+            html.contains("<td>-85</td><td>-41</td><td>-44</td>"),
+            "{html}"
+        );
     }
 
     /// Variants that differ by their STL: the page names each by its file,
@@ -1440,12 +1474,20 @@ mod tests {
         assert!(
             line.contains(
                 "yaw 5°: no clear winner: the separated area or a rear slope moves across the variants (see \
-                 the notes above); lowest in this model: v0 (C_D 0.250)"
+                 the notes below); lowest in this model: v0 (C_D 0.250)"
             ),
             "{line}"
         );
         let html = shown(&c, &[]);
         assert!(html.contains("restarts at 1 in each"), "{html}");
+        // The notes the verdict points to come after it (a review found
+        // "see the notes above" over notes printed below).
+        let (verdict, note) = (
+            html.find("see the notes below").unwrap(),
+            html.find("The separated share of the surface moves")
+                .unwrap(),
+        );
+        assert!(verdict < note, "{html}");
         assert!(
             html.contains(
                 "yaw 5°: The separated share of the surface moves by 4.0 points across these variants (10.0 % to 14.0 %)"

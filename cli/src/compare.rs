@@ -841,6 +841,31 @@ fn separation_note(
     })
 }
 
+/// A's separated area as carried onto B's panels, m^2 (whole body): where
+/// both separate and where separation disappears in B.
+pub fn a_separated_on_b(s: &SurfaceDeltas) -> f64 {
+    s.separated_in_both_m2 + s.separation_disappears_m2
+}
+
+/// Where separation appears and disappears, and why their difference is
+/// not the separated area difference (a review read "0.858 - 0.056 =
+/// 0.802" beside +0.657): the first counts A's states carried onto B's
+/// panels, the second each run's own panels.
+pub fn separation_change_words(c: &Comparison) -> String {
+    let s = &c.surface;
+    format!(
+        "separation appears on {:.3} m^2 and disappears on {:.3} m^2 of B's surface (net {}): A's states \
+         carried onto B's panels, where A's separated area reads {:.3} m^2 against {:.3} on its own \
+         panels, so the net differs from the separated area difference ({} m^2, each run on its own panels)",
+        s.separation_appears_m2,
+        s.separation_disappears_m2,
+        crate::output::signed(s.separation_appears_m2 - s.separation_disappears_m2, 3),
+        a_separated_on_b(s),
+        c.a.separated_area_m2,
+        crate::output::signed(c.deltas.separated_area_m2, 3),
+    )
+}
+
 /// One region's change in words, after its name.
 pub fn region_text(r: &RegionChange) -> String {
     format!(
@@ -869,6 +894,9 @@ fn print_comparison(c: &Comparison, out: &Path) {
         crate::output::signed(d.separated_area_m2, 3),
         crate::output::signed(d.separated_percent_points, 2)
     );
+    if c.surface.separation_appears_m2 + c.surface.separation_disappears_m2 > 0.0 {
+        say!("  {}", separation_change_words(c));
+    }
     for r in &c.regions {
         say!("  {}: {}", r.name, region_text(r));
     }
@@ -1133,5 +1161,39 @@ mod tests {
             "{n}"
         );
         assert!(n.contains("least reliable where separation moves"), "{n}");
+    }
+
+    /// Where separation appears and disappears, and the separated area
+    /// difference, reconcile in words (the demo's comparison: 0.858 -
+    /// 0.056 = 0.802 beside +0.657, since A's 1.954 m^2 read 1.809 on B's
+    /// panels).
+    #[test]
+    fn appearing_and_disappearing_separation_reconcile_with_the_area_difference() {
+        let mut c = Comparison::default();
+        c.a.separated_area_m2 = 1.954;
+        c.b.separated_area_m2 = 2.611;
+        c.deltas.separated_area_m2 = 2.611 - 1.954;
+        c.surface.separation_appears_m2 = 0.858;
+        c.surface.separation_disappears_m2 = 0.056;
+        // B's own separated area is where both separate and where it appears.
+        c.surface.separated_in_both_m2 = 2.611 - 0.858;
+        let w = separation_change_words(&c);
+        assert!(
+            w.starts_with(
+                "separation appears on 0.858 m^2 and disappears on 0.056 m^2 of B's surface (net +0.802)"
+            ),
+            "{w}"
+        );
+        assert!(
+            w.contains("A's separated area reads 1.809 m^2 against 1.954 on its own"),
+            "{w}"
+        );
+        assert!(
+            w.contains("(+0.657 m^2, each run on its own panels)"),
+            "{w}"
+        );
+        // B's separated area less A's carried onto B's panels is the net.
+        let net = c.b.separated_area_m2 - a_separated_on_b(&c.surface);
+        assert!((net - 0.802).abs() < 1e-9, "{net}");
     }
 }

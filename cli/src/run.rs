@@ -154,26 +154,32 @@ fn print_summary(out: &Path, s: &Summary) {
         s.drag_estimate.cd_high,
         k.lift
     );
-    let floor = crate::write::underbody_words(s, "; ");
+    // The speed the kg are at, and the underbody beside the rest of the
+    // body (not "of which": it is larger than the whole).
+    let speed = s.flow("speed").map_or_else(String::new, |v| {
+        format!(" at {}", crate::output::speed_words(v))
+    });
     let [total, front, rear] = s.lift_kg.axle_words();
+    let floor = crate::write::underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
+    say!("  lift{speed}: {total} kg (front {front}, rear {rear}){floor}");
     say!(
-        "  lift {total} kg (front {front}, rear {rear}{floor}), separated {:.1} % of the surface",
+        "  separated {:.1} % of the surface",
         100.0 * s.separation.fraction
     );
+    // The attached first pass's plateau figures are in the report and
+    // summary.json, not here, where they were quoted as a second estimate.
     if let Some(w) = &s.separated_wakes {
         let state = match (w.diverged, w.converged) {
             (true, _) => "diverged, last good pass kept",
             (false, true) => "converged",
             (false, false) => "not converged",
         };
-        let cpb = |v: Option<f64>| v.map_or("none".to_string(), |v| format!("{v:.2}"));
+        let base = w
+            .base_cp_loop
+            .map_or_else(String::new, |v| format!(", dead water at base C_p {v:.2}"));
         say!(
-            "  separated-flow loop: {} passes, {state}; C_D {:.3} (plateau model on the attached flow: {:.3}), base C_p {} (plateau model: {})",
+            "  separated-flow loop: {} passes, {state}{base} (the drag estimate above is its last pass)",
             w.passes,
-            w.cd_loop,
-            w.cd_plateau,
-            cpb(w.base_cp_loop),
-            cpb(w.base_cp_plateau)
         );
     }
     if s.separation.rim_m2 > 0.0 {

@@ -199,7 +199,7 @@ pub struct Summary {
 
 impl LiftKg {
     /// Total, front and rear axle in words, to the decimals of
-    /// [`crate::output::kg_set`].
+    /// [`crate::output::kg_set`], the axles adding up to the total.
     pub fn axle_words(&self) -> [String; 3] {
         crate::output::kg_set([self.total, self.front_axle, self.rear_axle])
     }
@@ -212,6 +212,20 @@ impl LiftKg {
             self.underbody_front_axle,
             self.underbody_rear_axle,
         ])
+    }
+
+    /// The rest of the body's lift (the total less the underbody's),
+    /// signed, so that it adds up with [`Self::axle_words`]' total and
+    /// [`Self::underbody_axle_words`]' as shown.
+    pub fn rest_words(&self) -> String {
+        crate::output::kg_rest_signed(
+            [self.total, self.front_axle, self.rear_axle],
+            [
+                self.underbody,
+                self.underbody_front_axle,
+                self.underbody_rear_axle,
+            ],
+        )
     }
 }
 

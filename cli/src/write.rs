@@ -41,6 +41,9 @@ pub struct Fields {
     pub risk: Vec<f64>,
     /// How the separated regions were found (the loop's passes).
     pub separation_note: Option<String>,
+    /// The dead water's pressure coefficient, which the separated panels
+    /// hold after the separated-flow loop.
+    pub dead_water_cp: Option<f64>,
 }
 
 impl Fields {
@@ -53,6 +56,7 @@ impl Fields {
             cf: l.iter().map(|p| p.cf).collect(),
             state: l.iter().map(|p| panel_state(p.state)).collect(),
             risk: l.iter().map(|p| p.risk).collect(),
+            dead_water_cp: c.wakes.as_ref().and_then(|w| w.dead_water_cp),
             separation_note: c.wakes.as_ref().filter(|w| w.passes > 1).map(|w| {
                 format!(
                     "Separated regions from the separated-flow loop ({} passes, {}).",
@@ -79,6 +83,7 @@ impl Fields {
             state: &self.state,
             risk: &self.risk,
             separation_note: self.separation_note.as_deref(),
+            dead_water_cp: self.dead_water_cp,
         }
     }
 }
@@ -568,15 +573,14 @@ pub fn rim_text(s: &Separation, dead_water: bool) -> String {
 /// The report's words on the lift near the ground: the underbody's part,
 /// the least certain one.
 fn lift_text(l: &LiftKg, at: &str) -> String {
-    // Whole kilograms, with no "-0" for a small negative lift.
-    let kg = |x: f64| x.round() + 0.0;
-    let rest = kg(l.total - l.underbody);
+    // As the table shows them ([`LiftKg::axle_words`]), so the three add up.
+    let total = &l.axle_words()[0];
+    let under = &l.underbody_axle_words()[0];
+    let rest = l.rest_words();
     let mut text = format!(
-        "Of the lift of {} {at}, the underbody's pressure gives {} kg and the rest of the body \
+        "The lift of {total} {at} is the underbody's pressure, {under} kg, plus the rest of the body, \
          {rest} kg. The ground is modelled as a smooth plane moving with the air, and the underbody \
-         is as smooth as the surface given, ",
-        kg(l.total),
-        kg(l.underbody)
+         is as smooth as the surface given, "
     );
     if l.underbody < 0.0 {
         text += "so the flow under the body speeds up and sucks it down more than under a real car, \
@@ -620,8 +624,8 @@ fn loop_text(w: &SeparatedWakes) -> String {
         "The separated regions were opened to the free stream as dead water (the flow leaves each \
          separation line without turning round it) and the boundary layer was marched again: {} passes, \
          {state}. The separation verdicts and the pressures above come from the last pass. {pressure} \
-         The plateau model on the attached flow (what solver.wakes = \"attached\" reports) gave C_D \
-         {:.3}, a model this loop replaces. Vortices shed from the side \
+         The attached first pass with the plateau model (what solver.wakes = \"attached\" reports) had \
+         given C_D {:.3}: a first-pass figure that this loop replaces, not a drag estimate to quote. Vortices shed from the side \
          edges of a slant (which raise the drag of 20-30 degree slants) are not modelled.",
         w.passes, w.cd_plateau
     )
@@ -649,21 +653,24 @@ fn cross_wind_text(yaw: f64, side: f64) -> String {
 }
 
 /// The smooth underbody's suction is the least certain part of the lift:
-/// the words that say so where the lift is first read (after `lead`),
-/// whenever the underbody pulls the body down by more than a kilogram
-/// (a review's chin spoiler turned the total lift positive and the words
-/// went, though the underbody still gave -108 kg), or nothing.
-pub fn underbody_words(s: &Summary, lead: &str) -> String {
-    if s.mesh.ground_z.is_some() && s.lift_kg.underbody < -1.0 {
+/// the underbody's part with its axle split and the rest of the body's,
+/// which add up to the lift as shown, and the words that say so where the
+/// lift is first read, whenever the underbody pulls the body down by more
+/// than a kilogram (a review's chin spoiler turned the total lift positive
+/// and the words went, though the underbody still gave -108 kg); `None`
+/// otherwise. Not "of which": the part is larger than the whole.
+pub fn underbody_words(s: &Summary) -> Option<String> {
+    (s.mesh.ground_z.is_some() && s.lift_kg.underbody < -1.0).then(|| {
         let u = s.lift_kg.underbody_axle_words();
         format!(
-            "{lead}of which the smooth underbody {} kg (front {}, rear {}), the least certain part: a real \
-             underbody sucks far less",
-            u[0], u[1], u[2]
+            "underbody {} kg (front {}, rear {}), rest of the body {} kg; the smooth underbody is the \
+             least certain part: a real one sucks far less",
+            u[0],
+            u[1],
+            u[2],
+            s.lift_kg.rest_words()
         )
-    } else {
-        String::new()
-    }
+    })
 }
 
 /// The drag force with the band's ends, each times `scale` (1 for N:
@@ -694,12 +701,15 @@ fn report(
     let at = format!("kg at {} m/s", output::speed_number(v));
     let [lift, front, rear] = s.lift_kg.axle_words();
     let k = &s.coefficients;
+    let drag_counts =
+        output::total_and_parts([k.drag, k.drag_pressure, k.drag_friction].map(|c| 1000.0 * c));
     let mut numbers = vec![
-        NumberRow::fixed(
-            "Drag coefficient C_D (estimate, of the surface as given: no cooling flow, no wheel rotation)",
-            k.drag,
-            3,
-            "-",
+        // The drag rows in one unit, counts, with C_D beside the estimate
+        // and its band; the parts add up to the estimate as shown.
+        NumberRow::text(
+            "Drag estimate (of the surface as given: no cooling flow, no wheel rotation)",
+            &format!("{} (C_D {:.3})", drag_counts[0], k.drag),
+            "counts",
         ),
         NumberRow::text(
             if s.separated_wakes.is_some() {
@@ -710,21 +720,24 @@ fn report(
                 "Drag estimate band (model sensitivity)"
             },
             &format!(
-                "{:.0} to {:.0}",
+                "{:.0} to {:.0} (C_D {:.3} to {:.3})",
                 1000.0 * s.drag_estimate.cd_low,
-                1000.0 * s.drag_estimate.cd_high
+                1000.0 * s.drag_estimate.cd_high,
+                s.drag_estimate.cd_low,
+                s.drag_estimate.cd_high
             ),
             "counts",
         ),
-        NumberRow::counts(
+        NumberRow::text(
             if s.separated_wakes.is_some() {
                 "Drag, pressure part (dead water at its pressure)"
             } else {
                 "Drag, pressure part (plateau model)"
             },
-            k.drag_pressure,
+            &drag_counts[1].to_string(),
+            "counts",
         ),
-        NumberRow::counts("Drag, friction part", k.drag_friction),
+        NumberRow::text("Drag, friction part", &drag_counts[2].to_string(), "counts"),
         NumberRow::text(
             "Drag force (estimate, band)",
             &drag_force_words(&s.drag_estimate, 1.0, 0),
@@ -742,11 +755,16 @@ fn report(
     ];
     if s.mesh.ground_z.is_some() {
         numbers.push(NumberRow::text(
-            "Lift, of which the underbody (ground-facing panels; front, rear axle)",
+            "Lift, underbody (ground-facing panels; front, rear axle)",
             &{
                 let [u, f, r] = s.lift_kg.underbody_axle_words();
                 format!("{u} ({f}, {r})")
             },
+            &at,
+        ));
+        numbers.push(NumberRow::text(
+            "Lift, rest of the body (whole body less underbody)",
+            &s.lift_kg.rest_words(),
             &at,
         ));
     }
@@ -830,9 +848,9 @@ fn report(
             "-",
         ),
     ]);
-    let floor = underbody_words(s, ", ");
+    let floor = underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
     let summary = format!(
-        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s ({} front, {} rear{floor}); \
+        "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s (front {}, rear {}){floor}; \
          {:.1} % of the surface separated{}.",
         k.drag,
         s.drag_estimate.cd_low,
@@ -1024,12 +1042,21 @@ mod tests {
         s.mesh.ground_z = Some(0.0);
         s.lift_kg.total = 20.0;
         s.lift_kg.underbody = -108.0;
-        assert!(super::underbody_words(&s, "; ").contains("of which the smooth underbody -108 kg"));
+        s.lift_kg.underbody_front_axle = -60.0;
+        s.lift_kg.underbody_rear_axle = -48.0;
+        let words = super::underbody_words(&s).unwrap();
+        assert!(
+            words.starts_with(
+                "underbody -108 kg (front -60, rear -48), rest of the body +128 kg; the smooth \
+                 underbody is the least certain part"
+            ),
+            "{words}"
+        );
         s.lift_kg.underbody = -0.5;
-        assert!(super::underbody_words(&s, "; ").is_empty());
+        assert!(super::underbody_words(&s).is_none());
         s.lift_kg.underbody = -108.0;
         s.mesh.ground_z = None;
-        assert!(super::underbody_words(&s, "; ").is_empty());
+        assert!(super::underbody_words(&s).is_none());
     }
 
     /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
@@ -1042,7 +1069,14 @@ mod tests {
             ..Default::default()
         };
         let text = super::lift_text(&l, "kg at 40 m/s");
-        assert!(text.starts_with("Of the lift of 0 kg at 40 m/s"), "{text}");
-        assert!(text.contains("the rest of the body 6 kg"), "{text}");
+        assert!(text.starts_with("The lift of -0.4 kg at 40 m/s"), "{text}");
+        assert!(text.contains("the rest of the body, +5.6 kg"), "{text}");
+        let l = crate::summary::LiftKg {
+            total: -0.04,
+            underbody: -0.3,
+            ..Default::default()
+        };
+        let text = super::lift_text(&l, "kg at 40 m/s");
+        assert!(text.starts_with("The lift of 0.0 kg at 40 m/s"), "{text}");
     }
 }

@@ -255,9 +255,43 @@ fn demo_writes_two_reports() {
         "{}",
         o.stdout
     );
+    // The lift line says at what speed its kg are, gives the underbody
+    // beside the rest of the body (not "of which": it is larger than the
+    // whole), and the parts add up to what is printed; the attached first
+    // pass's plateau drag is left to the report.
+    let lines: Vec<&str> = o
+        .stdout
+        .lines()
+        .filter(|l| l.starts_with("  lift at 40 m/s (144 km/h): "))
+        .collect();
+    assert_eq!(lines.len(), 2, "{}", o.stdout);
+    for line in lines {
+        let numbers: Vec<f64> = line
+            .split(|c: char| !(c.is_ascii_digit() || c == '-' || c == '+' || c == '.'))
+            .filter_map(|w| w.parse().ok())
+            .collect();
+        // 40, 144, then total, front, rear, underbody, its front, rear, rest.
+        let [total, front, rear, under, uf, ur, rest] = numbers[2..9] else {
+            panic!("{line}")
+        };
+        assert_eq!(total, front + rear, "{line}");
+        assert_eq!(under, uf + ur, "{line}");
+        assert_eq!(total, under + rest, "{line}");
+        assert!(line.contains("rest of the body +"), "{line}");
+        assert!(!line.contains("of which"), "{line}");
+    }
+    assert!(!o.stdout.contains("plateau model"), "{}", o.stdout);
     for run in &runs {
         let report = demo.join(run).join("report.html");
         assert!(report.is_file(), "{run}");
+        // The drag rows are in one unit, counts, C_D beside the estimate
+        // and its band.
+        let html = std::fs::read_to_string(&report).unwrap();
+        assert!(
+            html.contains("(C_D 0.") && html.contains(" to 0."),
+            "{run}: drag rows"
+        );
+        assert!(html.contains("not a drag estimate to quote"), "{run}");
         assert!(
             o.stdout.contains(
                 &report

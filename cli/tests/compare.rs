@@ -46,13 +46,17 @@ fn compare(a: &str, b: &str, out: &Path) -> Value {
     let v: Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("compare.json")).unwrap()).unwrap();
     // B's named regions are outlined on the comparison's pictures as on
-    // its own (in the outline colour), and nothing is without them.
+    // its own, on the separation change in dark purple (its legend's blue
+    // is "separates in A only"), and nothing is without them.
     let pic = common::read_png(&std::fs::read(out.join("separation-change.png")).unwrap());
-    let outline = pic
-        .pixels
-        .chunks(pic.channels)
-        .filter(|p| p[..3] == [20, 80, 200])
-        .count();
+    let count = |colour: [u8; 3]| {
+        pic.pixels
+            .chunks(pic.channels)
+            .filter(|p| p[..3] == colour)
+            .count()
+    };
+    let outline = count([95, 20, 110]);
+    assert!(count([20, 80, 200]) < 20, "the run report's blue outline");
     let b_regions: Value =
         serde_json::from_str(&std::fs::read_to_string(Path::new(b).join("summary.json")).unwrap())
             .unwrap();

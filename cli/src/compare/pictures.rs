@@ -22,6 +22,13 @@ const DISAPPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([20, 60, 150], [
 /// Stripes where both runs separate.
 const BOTH: (output::canvas::Rgb, output::canvas::Rgb) = ([40, 40, 46], [150, 150, 158]);
 
+/// Named regions' outlines on the separation-change sheet: in a colour
+/// none of its stripes use, over a white halo.
+const SEPARATION_OUTLINE: output::outline::OutlineStyle = output::outline::OutlineStyle {
+    colour: output::outline::OUTLINE_ON_STRIPES,
+    halo: true,
+};
+
 /// B's panel values in the writers' shape.
 struct Owned {
     cp: Vec<f64>,
@@ -54,6 +61,7 @@ impl Owned {
             state: &self.state,
             risk: &self.risk,
             separation_note: None,
+            dead_water_cp: None,
         }
     }
 }
@@ -75,21 +83,11 @@ pub fn write(
         speed_ms: cmp.b.speed,
         yaw_deg: super::yaw_of(&b.summary),
     };
-    let mut note =
-        "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B."
-            .to_owned();
-    let u = &cmp.surface;
-    if u.unchanged_share >= 0.2 {
-        note += &format!(
-            " Where the shape did not change, 95 % stays under {:.2}; spots at sharp edges are panel noise.",
-            u.unchanged_delta_cp_p95
-        );
-    }
     let cp_style = FieldStyle {
         scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
         legend: vec![],
         what: "Cp difference".into(),
-        note,
+        note: delta_cp_note(&cmp.surface),
     };
     let mut dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
@@ -133,7 +131,9 @@ pub fn write(
         .unwrap_or_default();
     let marks = crate::region::marks(&regions, mesh_b);
     output::outline::draw_regions(&mut dcp, mesh_b, &marks);
-    output::outline::draw_regions(&mut dsep, mesh_b, &marks);
+    // Not in the legend's blue: along the base edge the outline ran into
+    // the "separates in A only" stripes.
+    output::outline::draw_regions_styled(&mut dsep, mesh_b, &marks, SEPARATION_OUTLINE);
     let pictures = vec![
         (
             "delta-cp.png",
@@ -159,6 +159,22 @@ pub fn write(
         html::write_report(w, &report)
     })?;
     Ok(())
+}
+
+/// The Cp difference sheet's note: what the colours mean and, where much
+/// of the shape did not change, how far Cp moved there, to the table's
+/// three decimals (a review read 0.08 here beside the table's 0.085).
+fn delta_cp_note(u: &super::SurfaceDeltas) -> String {
+    let mut note =
+        "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B."
+            .to_owned();
+    if u.unchanged_share >= 0.2 {
+        note += &format!(
+            " Where the shape did not change, 95 % stays under {:.3}; spots at sharp edges are panel noise.",
+            u.unchanged_delta_cp_p95
+        );
+    }
+    note
 }
 
 /// The comparison page.
@@ -243,6 +259,17 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             "Separation disappears in B",
             s.separation_disappears_m2,
             3,
+            "m²",
+        ),
+        NumberRow::text(
+            "A's separated area as carried onto B's panels (appears minus disappears is B's separated \
+             area less this, not the separated area difference above, which takes each run on its own \
+             panels; A's on its own in brackets)",
+            &format!(
+                "{:.3} ({:.3})",
+                super::a_separated_on_b(s),
+                c.a.separated_area_m2
+            ),
             "m²",
         ),
         NumberRow::fixed("RMS Cp difference (area-weighted)", s.delta_cp_rms, 3, "-"),
@@ -337,4 +364,50 @@ fn upper_first(s: &str) -> String {
 /// typographic minus.
 fn signed_places(v: f64, places: usize) -> String {
     output::signed(v, places).replace('-', "\u{2212}")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The sheet's note gives the unchanged surface's 95 % figure as the
+    /// table does, to three decimals (a review read 0.08 on the sheet,
+    /// 0.085 in the table and 0.0848 in compare.json).
+    #[test]
+    fn the_cp_note_rounds_as_the_table() {
+        let u = crate::compare::SurfaceDeltas {
+            unchanged_share: 0.86,
+            unchanged_delta_cp_p95: 0.0848,
+            ..Default::default()
+        };
+        let note = delta_cp_note(&u);
+        assert!(note.contains("95 % stays under 0.085;"), "{note}");
+        let row = NumberRow::fixed("", u.unchanged_delta_cp_p95, 3, "-");
+        assert!(note.contains(&format!("under {};", row.value)), "{note}");
+        // Little unchanged: no such figure.
+        let u = crate::compare::SurfaceDeltas {
+            unchanged_share: 0.1,
+            ..u
+        };
+        assert!(!delta_cp_note(&u).contains("stays under"));
+    }
+
+    /// The separation-change sheet outlines regions in a colour far from
+    /// each of its legend's stripes (a review could not tell the blue
+    /// outline from the "separates in A only" stripes along the base).
+    #[test]
+    fn region_outlines_differ_from_the_separation_stripes() {
+        let far = |a: output::canvas::Rgb, b: output::canvas::Rgb| {
+            let d: i32 = (0..3)
+                .map(|k| (i32::from(a[k]) - i32::from(b[k])).pow(2))
+                .sum();
+            f64::from(d).sqrt() > 80.0
+        };
+        for stripes in [APPEARS, DISAPPEARS, BOTH] {
+            for c in [stripes.0, stripes.1] {
+                assert!(far(SEPARATION_OUTLINE.colour, c), "{c:?}");
+            }
+        }
+        const { assert!(SEPARATION_OUTLINE.halo) };
+    }
 }

@@ -264,12 +264,26 @@ pub enum Swatch {
     Solid(Rgb),
     /// Diagonal stripes of two colours.
     Hatched(Rgb, Rgb),
+    /// A colour with thin stripes of another across it the other way
+    /// ([`thin_stripes`]).
+    Striped(Rgb, Rgb),
 }
 
 /// Stripe colour of hatching at pixel `(x, y)`: stripes 45° across, 3 px
 /// of `a` then 4 px of `b`.
 pub fn hatch(x: i64, y: i64, a: Rgb, b: Rgb) -> Rgb {
     if (x + y).rem_euclid(7) < 3 { a } else { b }
+}
+
+/// Colour at pixel `(x, y)` of `base` with thin stripes of `stripe`
+/// across it: 2 px in 8, at 45° the other way from [`hatch`] (so the
+/// colour under them still reads).
+pub fn thin_stripes(x: i64, y: i64, base: Rgb, stripe: Rgb) -> Rgb {
+    if (x - y).rem_euclid(8) < 2 {
+        stripe
+    } else {
+        base
+    }
 }
 
 /// Draw a vertical colour bar at `(x, y)` of size `w` x `h` (maximum at the
@@ -368,19 +382,24 @@ fn two_digits(v: f64) -> String {
     format!("{v:.digits$}").replace('-', "\u{2212}")
 }
 
-/// Legend entries as swatches with labels, one per row.
+/// Legend entries as swatches with labels, one per row (a label's
+/// further lines, after a `\n`, under its first).
 pub fn draw_legend(canvas: &mut Canvas, x: f32, y: f32, legend: &[(String, Swatch)]) {
-    for (k, (label, swatch)) in legend.iter().enumerate() {
-        let top = y + 30.0 * k as f32;
+    let mut top = y;
+    for (label, swatch) in legend {
         draw_swatch(canvas, x as i64, top as i64, swatch);
         canvas.stroke_rect(x, top, 22.0, 22.0, INK, 1.0);
-        text::draw(
-            canvas,
-            label,
-            x + 30.0,
-            top + 16.0,
-            &TextStyle::new(15.0).align(Align::Left),
-        );
+        let lines: Vec<&str> = label.split('\n').collect();
+        for (k, line) in lines.iter().enumerate() {
+            text::draw(
+                canvas,
+                line,
+                x + 30.0,
+                top + 16.0 + 18.0 * k as f32,
+                &TextStyle::new(15.0).align(Align::Left),
+            );
+        }
+        top += 30.0 + 18.0 * (lines.len() - 1) as f32;
     }
 }
 
@@ -391,6 +410,7 @@ fn draw_swatch(canvas: &mut Canvas, x: i64, y: i64, swatch: &Swatch) {
             let c = match *swatch {
                 Swatch::Solid(c) => c,
                 Swatch::Hatched(a, b) => hatch(x + dx, y + dy, a, b),
+                Swatch::Striped(a, b) => thin_stripes(x + dx, y + dy, a, b),
             };
             canvas.blend(x + dx, y + dy, c, 1.0);
         }

@@ -71,6 +71,7 @@ impl Fixture {
             state: &self.state,
             risk: &self.risk,
             separation_note: None,
+            dead_water_cp: None,
         }
     }
 }

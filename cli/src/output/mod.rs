@@ -107,6 +107,10 @@ pub struct SurfaceResult<'a> {
     /// How the separated regions were found, for the risk picture (e.g.
     /// the separated-flow loop's passes); `None` says nothing.
     pub separation_note: Option<&'a str>,
+    /// The one pressure coefficient the separated panels' `cp` holds (the
+    /// separated-flow loop's dead water), which the pressure pictures mark
+    /// as assumed; `None` where their `cp` is the attached flow's.
+    pub dead_water_cp: Option<f64>,
 }
 
 impl SurfaceResult<'_> {
@@ -356,17 +360,83 @@ pub fn kg_places(values: &[f64]) -> usize {
     usize::from(values.iter().all(|v| v.abs() < 9.95))
 }
 
-/// A set of loads in kg, each to [`kg_places`] of the set.
-pub fn kg_set<const N: usize>(values: [f64; N]) -> [String; N] {
-    let places = kg_places(&values);
-    values.map(|v| format!("{:.places$}", rounded(v, places)))
+/// A total and its parts (the first value the total), each in whole
+/// units: the total rounded, the parts rounded by largest remainder so that
+/// they add up to the rounded total (rounded each on its own, 44.58 =
+/// 12.15 + 32.43 read "45 = 12 + 32"). Parts that do not add up to the
+/// total (within a hundredth of a unit) are each rounded on their own.
+pub fn total_and_parts<const N: usize>(values: [f64; N]) -> [i64; N] {
+    let mut units = values.map(|v| v.round() as i64);
+    let Some((&total, parts)) = values.split_first() else {
+        return units;
+    };
+    let sum: f64 = parts.iter().sum();
+    if parts.is_empty() || !sum.is_finite() || (sum - total).abs() > 0.01 {
+        return units;
+    }
+    let floors: Vec<i64> = parts.iter().map(|p| p.floor() as i64).collect();
+    let short = units[0] - floors.iter().sum::<i64>();
+    if !(0..=i64::try_from(parts.len()).unwrap_or(0)).contains(&short) {
+        return units;
+    }
+    // The parts with the largest remainders go up by one unit, the first
+    // of equals first (a stable sort).
+    let mut order: Vec<usize> = (0..parts.len()).collect();
+    order.sort_by(|&a, &b| {
+        let rem = |k: usize| parts[k] - floors[k] as f64;
+        rem(b).total_cmp(&rem(a))
+    });
+    for (k, floor) in floors.iter().enumerate() {
+        units[k + 1] = *floor;
+    }
+    for &k in order.iter().take(usize::try_from(short).unwrap_or(0)) {
+        units[k + 1] += 1;
+    }
+    units
 }
 
-/// A set of load differences in kg, signed, each to [`kg_places`] of the
-/// set.
-pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
+/// A total load in kg and its parts (front and rear axle) in the units of
+/// [`kg_places`] of the set (whole kg, or tenths), by [`total_and_parts`];
+/// and those places.
+fn kg_units<const N: usize>(values: [f64; N]) -> ([i64; N], usize) {
     let places = kg_places(&values);
-    values.map(|v| signed(v, places))
+    let scale = 10f64.powi(i32::try_from(places).unwrap_or(0));
+    (total_and_parts(values.map(|v| v * scale)), places)
+}
+
+/// `units` of `places` decimals as a number, never "-0".
+fn from_units(units: i64, places: usize) -> f64 {
+    // -0.0 + 0.0 is +0.0 (IEEE 754).
+    units as f64 / 10f64.powi(i32::try_from(places).unwrap_or(0)) + 0.0
+}
+
+/// A total load in kg and its parts (the first value the total, the rest
+/// its axle shares), each to [`kg_places`] of the set, the parts adding
+/// up to the total as shown ([`kg_units`]).
+pub fn kg_set<const N: usize>(values: [f64; N]) -> [String; N] {
+    let (units, places) = kg_units(values);
+    units.map(|u| format!("{:.places$}", from_units(u, places)))
+}
+
+/// A difference of loads in kg and its parts as [`kg_set`], signed.
+pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
+    let (units, places) = kg_units(values);
+    units.map(|u| format!("{:+.places$}", from_units(u, places)))
+}
+
+/// What is left of a total once a part is taken (the body's lift less its
+/// underbody's), from the two sets as [`kg_set`] shows them (each total
+/// first), signed, so that the three shown numbers add up: `"+145"` for
+/// -94.7 less -239.5, shown -95 and -240.
+pub fn kg_rest_signed(total: [f64; 3], part: [f64; 3]) -> String {
+    let (t, tp) = kg_units(total);
+    let (p, pp) = kg_units(part);
+    let places = tp.max(pp);
+    let widen = |u: i64, from: usize| u * 10i64.pow(u32::try_from(places - from).unwrap_or(0));
+    format!(
+        "{:+.places$}",
+        from_units(widen(t[0], tp) - widen(p[0], pp), places)
+    )
 }
 
 /// Why an output could not be written.
@@ -467,10 +537,53 @@ mod tests {
     fn small_loads_keep_a_decimal_and_signs_no_negative_zero() {
         assert_eq!(kg_set([1.32, -0.48, 1.80]), ["1.3", "-0.5", "1.8"]);
         assert_eq!(kg_set([-95.4, -50.2, -45.2]), ["-95", "-50", "-45"]);
-        assert_eq!(kg_set_signed([0.02, -0.04, 0.06]), ["+0.0", "+0.0", "+0.1"]);
+        assert_eq!(kg_set_signed([0.02, -0.04, 0.06]), ["+0.0", "+0.0", "+0.0"]);
         assert_eq!(kg_set_signed([44.0, -0.3, 44.3]), ["+44", "+0", "+44"]);
         assert_eq!(signed(-0.04, 1), "+0.0");
         assert_eq!(signed(-33.04, 1), "-33.0");
+    }
+
+    /// The parts add up to the total as shown (largest remainder): the
+    /// review's cases, a demo comparison (+44.58 = +12.15 + +32.43), a
+    /// sweep's row (-84.61 = -41.22 + -43.38) and an underbody (-242.31 =
+    /// -136.77 + -105.54), each of which rounded part by part had been one
+    /// kg off; and tenths on a small body.
+    #[test]
+    fn parts_add_up_to_the_total_as_shown() {
+        assert_eq!(kg_set_signed([44.58, 12.15, 32.43]), ["+45", "+12", "+33"]);
+        assert_eq!(kg_set([-84.605, -41.224, -43.381]), ["-85", "-41", "-44"]);
+        assert_eq!(
+            kg_set([-242.31, -136.77, -105.54]),
+            ["-242", "-137", "-105"]
+        );
+        assert_eq!(kg_set([1.26, 0.63, 0.63]), ["1.3", "0.7", "0.6"]);
+        // Already adding up: as rounded one by one.
+        assert_eq!(kg_set([-94.68, -48.09, -46.58]), ["-95", "-48", "-47"]);
+        // Exact halves of both parts: the first goes up.
+        assert_eq!(kg_set([21.0, 10.5, 10.5]), ["21", "11", "10"]);
+        let parse = |t: &str| t.parse::<f64>().unwrap();
+        // Any split of any total adds up, to the unit of the set.
+        for k in 0..2000 {
+            let total = -300.0 + 0.3137 * f64::from(k);
+            let front = total * (0.5 + 0.4 * (f64::from(k) * 0.7).sin());
+            let shown = kg_set([total, front, total - front]);
+            let [t, f, r] = shown.clone().map(|x| parse(&x));
+            assert!((t - (f + r)).abs() < 1e-9, "{total} {front}: {shown:?}");
+            assert!((t - total).abs() <= 0.5 + 1e-9);
+            assert!(
+                (f - front).abs() < 1.0 && (r - (total - front)).abs() < 1.0,
+                "{shown:?}"
+            );
+        }
+        // The rest of the body beside its underbody, in the same units.
+        assert_eq!(
+            kg_rest_signed([-94.68, -48.09, -46.58], [-239.54, -133.65, -105.89]),
+            "+145"
+        );
+        assert_eq!(
+            kg_rest_signed([1.32, -0.48, 1.80], [-12.4, -7.0, -5.4]),
+            "+13.3"
+        );
     }
 
     /// Whole kg (a set with a load of 10 kg or more) have no "-0" for a

@@ -24,9 +24,44 @@ pub struct RegionMark {
     pub member: Vec<bool>,
 }
 
+/// Outline and label colour on a sheet whose legend takes blue (the
+/// separation change's "separates in A only" stripes): a dark purple,
+/// over a white halo so it stands apart from any stripe it crosses.
+pub const OUTLINE_ON_STRIPES: Rgb = [95, 20, 110];
+
+/// How region outlines are drawn: the line's colour, and whether a white
+/// halo goes under it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct OutlineStyle {
+    /// Line and name colour.
+    pub colour: Rgb,
+    /// A white rim on both sides of the line.
+    pub halo: bool,
+}
+
+impl Default for OutlineStyle {
+    fn default() -> Self {
+        Self {
+            colour: OUTLINE,
+            halo: false,
+        }
+    }
+}
+
 /// Draw every region's outline and name on a sheet drawn with the default
-/// [`SheetParams`] for `mesh`.
+/// [`SheetParams`] for `mesh`, in the default blue.
 pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[RegionMark]) {
+    draw_regions_styled(canvas, mesh, marks, OutlineStyle::default());
+}
+
+/// [`draw_regions`] in another colour, for a sheet whose legend uses the
+/// default blue.
+pub fn draw_regions_styled(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    style: OutlineStyle,
+) {
     if marks.is_empty() {
         return;
     }
@@ -62,6 +97,7 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
         };
         for mark in marks {
             let mut label = (0.0, 0.0, 0.0);
+            let mut dots: Vec<(f32, f32)> = Vec::new();
             for (k, t) in tris.iter().enumerate() {
                 if !mark.member.get(k).copied().unwrap_or(false) {
                     continue;
@@ -73,11 +109,11 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
                         .find(|&j| shares_edge(&tris[j], &a, &b))
                         .filter(|&j| !mark.member.get(j).copied().unwrap_or(false));
                     if let Some(j) = outside {
-                        draw_seen_edge(
-                            canvas,
+                        seen_edge(
                             &seen,
                             (k, j),
                             [frame.project(*view, &a), frame.project(*view, &b)],
+                            &mut dots,
                         );
                     }
                 }
@@ -85,6 +121,16 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
                 if seen.at(x as i64, y as i64) == Some(k) {
                     label = (label.0 + x, label.1 + y, label.2 + 1.0);
                 }
+            }
+            // The halo first, all of it, so that it covers no part of the
+            // line.
+            if style.halo {
+                for &(x, y) in &dots {
+                    canvas.fill_circle(x, y, 2.6, WHITE);
+                }
+            }
+            for &(x, y) in &dots {
+                canvas.fill_circle(x, y, 1.3, style.colour);
             }
             if label.2 > 0.0 && !matches!(*view, View::Front | View::Rear) {
                 let at = (label.0 / label.2, label.1 / label.2);
@@ -95,6 +141,7 @@ pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[R
                     at,
                     (clear, below),
                     (&placed, corner),
+                    style.colour,
                 ));
             }
         }
@@ -111,13 +158,14 @@ fn shares_edge(t: &DisplayTri, a: &tuft_mesh::Point, b: &tuft_mesh::Point) -> bo
     t.corners.contains(a) && t.corners.contains(b)
 }
 
-/// The projected edge `ends`, drawn only where one of the two triangles it
-/// separates is the one seen (so edges behind the body stay hidden).
-fn draw_seen_edge(
-    canvas: &mut Canvas,
+/// The dots of the projected edge `ends` (one a pixel), kept only where one
+/// of the two triangles it separates is the one seen (so edges behind the
+/// body stay hidden), added to `dots`.
+fn seen_edge(
     seen: &render::Visible,
     (k, j): (usize, usize),
     ends: [(f64, f64); 2],
+    dots: &mut Vec<(f32, f32)>,
 ) {
     let [(x0, y0), (x1, y1)] = ends;
     let steps = (x1 - x0).hypot(y1 - y0).ceil().max(1.0) as usize;
@@ -128,7 +176,7 @@ fn draw_seen_edge(
             .iter()
             .any(|&(dx, dy)| matches!(seen.at(x as i64 + dx, y as i64 + dy), Some(m) if m == k || m == j));
         if near {
-            canvas.fill_circle(x as f32, y as f32, 1.3, OUTLINE);
+            dots.push((x as f32, y as f32));
         }
     }
 }
@@ -145,10 +193,11 @@ fn draw_label(
     at: (f64, f64),
     (clear, below): (f64, bool),
     (placed, corner): (&[[f32; 4]], [f32; 4]),
+    colour: Rgb,
 ) -> [f32; 4] {
     let style = TextStyle::new(14.0)
         .bold()
-        .colour(OUTLINE)
+        .colour(colour)
         .align(Align::Centre);
     let w = text::width(name, &style) + 8.0;
     let (mut x, mut y) = (at.0 as f32, clear as f32);
@@ -168,8 +217,8 @@ fn draw_label(
     }
     let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
     let from = if below { y - 13.0 } else { y + 5.0 };
-    canvas.polyline(&[(x, from), (at.0 as f32, at.1 as f32)], OUTLINE, 1.0);
-    canvas.fill_circle(at.0 as f32, at.1 as f32, 2.5, OUTLINE);
+    canvas.polyline(&[(x, from), (at.0 as f32, at.1 as f32)], colour, 1.0);
+    canvas.fill_circle(at.0 as f32, at.1 as f32, 2.5, colour);
     canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);
     text::draw(canvas, name, x, y, &style);
     plate
@@ -184,19 +233,44 @@ mod tests {
     use crate::output::sheet::{SurfaceField, surface_sheet};
 
     fn outline_pixels(marks: &[RegionMark]) -> usize {
+        styled_pixels(marks, OutlineStyle::default())[0]
+    }
+
+    /// Pixels of the style's colour and of the default blue on a sheet
+    /// with `marks` drawn in `style`.
+    fn styled_pixels(marks: &[RegionMark], style: OutlineStyle) -> [usize; 2] {
         let f = Fixture::sphere(3);
         let mut canvas = surface_sheet(&f.surface(), SurfaceField::Pressure, &caption()).unwrap();
-        draw_regions(&mut canvas, &f.mesh, marks);
+        draw_regions_styled(&mut canvas, &f.mesh, marks, style);
         let png = canvas.to_png().unwrap();
         keep("regions-sphere.png", &png);
         let d = decode(&png);
-        let mut n = 0;
+        let mut n = [0, 0];
         for y in 0..1000 {
             for x in 0..1600 {
-                n += usize::from(d.pixel(x, y) == OUTLINE);
+                n[0] += usize::from(d.pixel(x, y) == style.colour);
+                n[1] += usize::from(d.pixel(x, y) == OUTLINE);
             }
         }
         n
+    }
+
+    /// Another colour replaces the blue, line and name alike.
+    #[test]
+    fn a_region_can_be_outlined_in_another_colour() {
+        let f = Fixture::sphere(3);
+        let member = f.mesh.panels.iter().map(|p| p.centroid.x > 0.3).collect();
+        let marks = [RegionMark {
+            name: "rear cap".into(),
+            member,
+        }];
+        let style = OutlineStyle {
+            colour: OUTLINE_ON_STRIPES,
+            halo: true,
+        };
+        let [purple, blue] = styled_pixels(&marks, style);
+        assert!(purple > 300, "{purple}");
+        assert_eq!(blue, 0);
     }
 
     /// A region (the sphere's rear cap) is outlined and named; with no
@@ -217,6 +291,7 @@ mod tests {
             (760.0, 200.0),
             (30.0, false),
             (&[], corner),
+            OUTLINE,
         );
         assert!(clear_of(plate, corner), "{plate:?} on {corner:?}");
         let plate = draw_label(
@@ -225,6 +300,7 @@ mod tests {
             (200.0, 200.0),
             (30.0, false),
             (&[], corner),
+            OUTLINE,
         );
         assert!(
             (plate[0] + 0.5 * plate[2] - 200.0).abs() < 1e-3,

@@ -5,7 +5,7 @@
 use super::canvas::{Canvas, GRID, INK, MUTED, Rgb, WHITE};
 use super::colorbar::{nice_ticks, tick_label};
 use super::text::{self, Align, TextStyle};
-use super::{Caption, OutputError, SurfaceResult};
+use super::{Caption, OutputError, PanelState, SurfaceResult};
 
 /// One named curve.
 #[derive(Debug, Clone, PartialEq)]
@@ -18,8 +18,37 @@ pub struct Series {
     pub colour: Rgb,
 }
 
-/// A plot to draw.
+/// A curve that does not set the vertical axis (a drag band's top, far
+/// above the estimates): its points within the axis are drawn as a thin
+/// line with markers, those above it as an arrow at the top edge with the
+/// value written beside it, and a note under the subtitle says what the
+/// curve is.
 #[derive(Debug, Clone, PartialEq)]
+pub struct OffScale {
+    /// The curve (its legend text, points and colour).
+    pub series: Series,
+    /// One line saying what the curve is, shown when a point lies above
+    /// the axis.
+    pub note: String,
+    /// Decimals of the values written beside the arrows.
+    pub decimals: usize,
+}
+
+/// Stretches of the horizontal axis shaded behind the curves (where the
+/// centre line is separated), with the legend's words for them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Shading {
+    /// `(from, to)` in data units.
+    pub spans: Vec<(f64, f64)>,
+    /// Legend text.
+    pub name: String,
+    /// Tint, multiplied into what lies under it (so that two shadings
+    /// that overlap both show).
+    pub colour: Rgb,
+}
+
+/// A plot to draw.
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct LinePlot {
     /// Title (what, which case, what speed).
     pub title: String,
@@ -33,6 +62,14 @@ pub struct LinePlot {
     pub invert_y: bool,
     /// The curves.
     pub series: Vec<Series>,
+    /// A curve drawn against the axis the others set, arrows where it
+    /// lies above it.
+    pub off_scale: Option<OffScale>,
+    /// Stretches of x shaded behind the curves.
+    pub shading: Vec<Shading>,
+    /// A second line under the subtitle (what the shading shows), or
+    /// empty.
+    pub note: String,
 }
 
 /// Picture size of a plot.
@@ -88,11 +125,18 @@ pub fn draw_line_plot(
 ) -> Result<(Canvas, PlotFrame), OutputError> {
     let mut c = Canvas::new(params.width, params.height)?;
     let frame = plot_frame(plot, params);
+    for sh in &plot.shading {
+        draw_shading(&mut c, sh, &frame);
+    }
     draw_grid_and_ticks(&mut c, &frame, plot.invert_y);
+    let above = plot
+        .off_scale
+        .as_ref()
+        .is_some_and(|o| draw_off_scale(&mut c, o, &frame));
     // Later series are drawn first and wider, so curves that coincide
     // (a symmetric body's upper and lower surface) both stay visible.
     for (k, s) in plot.series.iter().enumerate().rev() {
-        let width = 2.2 + 1.8 * k as f32;
+        let width = line_width(k);
         let pts: Vec<(f32, f32)> = s
             .points
             .iter()
@@ -108,11 +152,144 @@ pub fn draw_line_plot(
     let (l, t, w, h) = frame.rect;
     c.stroke_rect(l as f32, t as f32, w as f32, h as f32, INK, 1.2);
     draw_labels(&mut c, plot, &frame);
+    // What the arrows and the shading are, one line under the subtitle.
+    let notes: Vec<&str> = [
+        Some(plot.note.as_str()).filter(|n| !n.is_empty()),
+        plot.off_scale
+            .as_ref()
+            .filter(|_| above)
+            .map(|o| o.note.as_str()),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    if !notes.is_empty() {
+        text::draw(
+            &mut c,
+            &notes.join(" "),
+            30.0,
+            100.0,
+            &TextStyle::new(15.0).colour(MUTED),
+        );
+    }
     // One line needs no key (and its box could hide a point).
-    if plot.series.len() > 1 {
-        draw_legend(&mut c, &plot.series, &frame);
+    let mut keys: Vec<Key> = Vec::new();
+    if let Some(o) = &plot.off_scale {
+        let name = if above {
+            format!("{} (arrows: off the scale)", o.series.name)
+        } else {
+            o.series.name.clone()
+        };
+        keys.push(Key::Line(name, o.series.colour, 0, above));
+    }
+    keys.extend(
+        plot.series
+            .iter()
+            .enumerate()
+            .map(|(k, s)| Key::Line(s.name.clone(), s.colour, k, false)),
+    );
+    for sh in plot.shading.iter().filter(|sh| !sh.spans.is_empty()) {
+        keys.push(Key::Patch(sh.name.clone(), sh.colour));
+    }
+    if keys.len() > 1 {
+        // The arrows count as points at the top edge.
+        let arrows: Vec<(f64, f64)> = plot
+            .off_scale
+            .iter()
+            .flat_map(|o| &o.series.points)
+            .filter(|p| p.0.is_finite() && p.1.is_finite())
+            .map(|p| {
+                let (x, _) = frame.pixel_at(p.0, p.1);
+                (x, frame.rect.1 + 15.0)
+            })
+            .collect();
+        draw_legend(&mut c, &keys, &plot.series, &arrows, &frame);
     }
     Ok((c, frame))
+}
+
+/// The width of the `k`-th series' line: later ones wider, so curves that
+/// coincide both stay visible.
+fn line_width(k: usize) -> f32 {
+    2.2 + 1.8 * k as f32
+}
+
+/// The shaded stretches of x, over the plot area's height.
+fn draw_shading(c: &mut Canvas, sh: &Shading, f: &PlotFrame) {
+    let (l, t, w, h) = f.rect;
+    for &(a, b) in &sh.spans {
+        let (xa, _) = f.pixel_at(a.min(b), f.y_range.0);
+        let (xb, _) = f.pixel_at(a.max(b), f.y_range.0);
+        let (xa, xb) = (xa.clamp(l, l + w), xb.clamp(l, l + w));
+        for y in t.round() as i64..(t + h).round() as i64 {
+            for x in xa.round() as i64..xb.round() as i64 {
+                let under = c.pixel(x, y);
+                let mixed =
+                    [0, 1, 2].map(|k| (u16::from(under[k]) * u16::from(sh.colour[k]) / 255) as u8);
+                c.blend(x, y, mixed, 1.0);
+            }
+        }
+    }
+}
+
+/// The off-scale curve: its points within the vertical axis joined by a
+/// thin line, those above the axis an arrow at the top edge with the
+/// value beside it. True when some point lies above the axis.
+fn draw_off_scale(c: &mut Canvas, o: &OffScale, f: &PlotFrame) -> bool {
+    let (_, t, _, _) = f.rect;
+    let (lo, hi) = (f.y_range.0.min(f.y_range.1), f.y_range.0.max(f.y_range.1));
+    let points: Vec<(f64, f64)> = o
+        .series
+        .points
+        .iter()
+        .copied()
+        .filter(|p| p.0.is_finite() && p.1.is_finite())
+        .collect();
+    // "Above" is towards the top of the picture, whichever way the axis runs.
+    let over = |y: f64| {
+        if f.y_range.1 >= f.y_range.0 {
+            y > hi
+        } else {
+            y < lo
+        }
+    };
+    let width = line_width(0);
+    for pair in points.windows(2) {
+        if pair.iter().all(|p| !over(p.1) && p.1 >= lo && p.1 <= hi) {
+            let a = f.pixel_at(pair[0].0, pair[0].1);
+            let b = f.pixel_at(pair[1].0, pair[1].1);
+            c.polyline(
+                &[(a.0 as f32, a.1 as f32), (b.0 as f32, b.1 as f32)],
+                o.series.colour,
+                width,
+            );
+        }
+    }
+    let mut any = false;
+    let style = TextStyle::new(14.0).colour(o.series.colour);
+    for &(x, y) in &points {
+        let (px, py) = f.pixel_at(x, y);
+        if over(y) {
+            any = true;
+            let px = px as f32;
+            c.arrow(
+                (px, t as f32 + 30.0),
+                (px, t as f32 + 5.0),
+                o.series.colour,
+                2.0,
+            );
+            text::draw(
+                c,
+                &format!("{y:.prec$}", prec = o.decimals),
+                px + 7.0,
+                t as f32 + 24.0,
+                &style,
+            );
+        } else if y >= lo && y <= hi {
+            c.fill_circle(px as f32, py as f32, 1.0 + width, o.series.colour);
+        }
+    }
+    any
 }
 
 /// Axis ranges rounded out to ticks, and the plot area.
@@ -125,7 +302,33 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
             .collect()
     };
     let x_range = padded_range(&finite(|p| p.0), 0.0);
-    let y = padded_range(&finite(|p| p.1), 0.05);
+    let ys = finite(|p| p.1);
+    // An off-scale curve joins the axis when that at most doubles it;
+    // otherwise the others keep the height (a drag band's top had squeezed
+    // the estimates into 6 % of it).
+    let extra: Vec<f64> = plot
+        .off_scale
+        .iter()
+        .flat_map(|o| o.series.points.iter().map(|p| p.1))
+        .filter(|v| v.is_finite())
+        .collect();
+    let span = |v: &[f64]| {
+        let (lo, hi) = v
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &x| {
+                (l.min(x), h.max(x))
+            });
+        hi - lo
+    };
+    let all: Vec<f64> = ys.iter().chain(&extra).copied().collect();
+    let y = if extra.is_empty() || span(&all) <= 2.0 * span(&ys).max(f64::MIN_POSITIVE) {
+        padded_range(&all, 0.05)
+    } else {
+        // Room at the top for the arrows of the points above it.
+        let top = ys.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let room = top + 0.15 * span(&ys);
+        padded_range(&[ys.as_slice(), &[room]].concat(), 0.05)
+    };
     let y_range = if plot.invert_y { (y.1, y.0) } else { y };
     let rect = (
         110.0,
@@ -248,35 +451,73 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
     text::draw_vertical(c, &plot.y_label, 30.0, (t + 0.5 * h) as f32, &axis);
 }
 
+/// One legend entry: a series' line (its index sets the width; true: it
+/// has arrows above the axis too), or a shaded patch.
+enum Key {
+    Line(String, Rgb, usize, bool),
+    Patch(String, Rgb),
+}
+
+impl Key {
+    fn name(&self) -> &str {
+        match self {
+            Key::Line(name, ..) | Key::Patch(name, _) => name,
+        }
+    }
+}
+
 /// Legend box in the corner of the plot area that covers the fewest
-/// points of the curves (top right when several tie), so it hides no
-/// data point where a corner is free.
-fn draw_legend(c: &mut Canvas, series: &[Series], f: &PlotFrame) {
-    if series.is_empty() {
+/// points of the curves `series` (top right when several tie), so it
+/// hides no data point where a corner is free.
+fn draw_legend(
+    c: &mut Canvas,
+    keys: &[Key],
+    series: &[Series],
+    arrows: &[(f64, f64)],
+    f: &PlotFrame,
+) {
+    if keys.is_empty() {
         return;
     }
     let style = TextStyle::new(15.0);
-    let text_w = series
+    let text_w = keys
         .iter()
-        .map(|s| text::width(&s.name, &style))
+        .map(|k| text::width(k.name(), &style))
         .fold(0.0, f32::max);
-    let (bw, bh) = (text_w + 70.0, 12.0 + 26.0 * series.len() as f32);
-    let (x, y) = legend_corner(series, f, (bw, bh));
+    let (bw, bh) = (text_w + 70.0, 12.0 + 26.0 * keys.len() as f32);
+    let (x, y) = legend_corner(series, arrows, f, (bw, bh));
     c.fill_rect(x, y, bw, bh, WHITE);
     c.stroke_rect(x, y, bw, bh, [180, 182, 188], 1.0);
-    for (k, s) in series.iter().enumerate() {
+    for (k, key) in keys.iter().enumerate() {
         let cy = y + 19.0 + 26.0 * k as f32;
-        let width = 2.2 + 1.8 * k as f32;
-        c.polyline(&[(x + 12.0, cy), (x + 48.0, cy)], s.colour, width);
-        c.fill_circle(x + 30.0, cy, 1.0 + width, s.colour);
-        text::draw(c, &s.name, x + 58.0, cy + 5.0, &style);
+        match *key {
+            Key::Line(_, colour, index, arrow) => {
+                let width = line_width(index);
+                c.polyline(&[(x + 12.0, cy), (x + 48.0, cy)], colour, width);
+                c.fill_circle(x + 30.0, cy, 1.0 + width, colour);
+                if arrow {
+                    c.arrow((x + 44.0, cy + 4.0), (x + 44.0, cy - 10.0), colour, 1.6);
+                }
+            }
+            Key::Patch(_, colour) => {
+                c.fill_rect(x + 12.0, cy - 8.0, 36.0, 16.0, colour);
+                c.stroke_rect(x + 12.0, cy - 8.0, 36.0, 16.0, [180, 182, 188], 1.0);
+            }
+        }
+        text::draw(c, key.name(), x + 58.0, cy + 5.0, &style);
     }
 }
 
 /// The top-left corner of a legend box of size `(bw, bh)`: the corner of
-/// the plot area whose box covers the fewest curve points, top right
-/// when several tie.
-fn legend_corner(series: &[Series], f: &PlotFrame, (bw, bh): (f32, f32)) -> (f32, f32) {
+/// the plot area whose box covers the fewest curve points and `marks`
+/// (pixel positions, such as off-scale arrows), top right when several
+/// tie.
+fn legend_corner(
+    series: &[Series],
+    marks: &[(f64, f64)],
+    f: &PlotFrame,
+    (bw, bh): (f32, f32),
+) -> (f32, f32) {
     let (l, t, w, h) = (
         f.rect.0 as f32,
         f.rect.1 as f32,
@@ -295,6 +536,7 @@ fn legend_corner(series: &[Series], f: &PlotFrame, (bw, bh): (f32, f32)) -> (f32
             .flat_map(|s| &s.points)
             .filter(|p| p.0.is_finite() && p.1.is_finite())
             .map(|&(px, py)| f.pixel_at(px, py))
+            .chain(marks.iter().copied())
             .filter(|&(px, py)| {
                 let (px, py) = (px as f32, py as f32);
                 (x - 8.0..=x + bw + 8.0).contains(&px) && (y - 8.0..=y + bh + 8.0).contains(&py)
@@ -339,7 +581,7 @@ pub fn centre_y(mesh: &tuft_mesh::PanelMesh) -> f64 {
 pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centreline {
     let y = centre_y(s.mesh);
     let (mut upper, mut lower) = (Vec::new(), Vec::new());
-    for (p, &cp) in s.mesh.panels.iter().zip(s.cp) {
+    for ((p, &cp), &state) in s.mesh.panels.iter().zip(s.cp).zip(s.state) {
         let x = match params.band {
             Some(band) => ((p.centroid.y - y).abs() <= band).then_some(p.centroid.x),
             None => cut_x(&p.vertices, y),
@@ -350,15 +592,52 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
             } else {
                 &mut lower
             };
-            side.push((x, cp));
+            side.push((x, cp, state == PanelState::Separated));
         }
     }
     upper.sort_by(|a, b| a.0.total_cmp(&b.0));
     lower.sort_by(|a, b| a.0.total_cmp(&b.0));
-    Centreline { y, upper, lower }
+    let points = |v: &[(f64, f64, bool)]| v.iter().map(|p| (p.0, p.1)).collect();
+    Centreline {
+        y,
+        upper_separated: separated_spans(&upper),
+        lower_separated: separated_spans(&lower),
+        upper: points(&upper),
+        lower: points(&lower),
+    }
 }
 
-/// Cp along the centre line, `(x [m], Cp)` pairs sorted by x.
+/// The stretches of x of the runs of separated points of `(x, Cp,
+/// separated)` sorted by x, each reaching halfway to the attached points
+/// either side of it (to the last point at an end).
+fn separated_spans(points: &[(f64, f64, bool)]) -> Vec<(f64, f64)> {
+    let mut spans = Vec::new();
+    let mut k = 0;
+    while k < points.len() {
+        if !points[k].2 {
+            k += 1;
+            continue;
+        }
+        let first = k;
+        while k + 1 < points.len() && points[k + 1].2 {
+            k += 1;
+        }
+        let from = match first.checked_sub(1) {
+            Some(before) => 0.5 * (points[before].0 + points[first].0),
+            None => points[first].0,
+        };
+        let to = match points.get(k + 1) {
+            Some(after) => 0.5 * (points[k].0 + after.0),
+            None => points[k].0,
+        };
+        spans.push((from, to));
+        k += 1;
+    }
+    spans
+}
+
+/// Cp along the centre line, `(x [m], Cp)` pairs sorted by x, and where
+/// its panels are separated.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Centreline {
     /// The centre plane's `y`, metres.
@@ -367,6 +646,12 @@ pub struct Centreline {
     pub upper: Vec<(f64, f64)>,
     /// Panels whose normal points down.
     pub lower: Vec<(f64, f64)>,
+    /// Stretches of x `(from, to)` where the upper surface's panels are
+    /// separated (each run of separated points reaching halfway to its
+    /// attached neighbours).
+    pub upper_separated: Vec<(f64, f64)>,
+    /// The same for the lower surface.
+    pub lower_separated: Vec<(f64, f64)>,
 }
 
 /// The x of the middle of the segment where the plane at `y` cuts a
@@ -440,6 +725,8 @@ pub fn centreline_cp_plot_with_params(
         y,
         mut upper,
         mut lower,
+        upper_separated,
+        lower_separated,
     } = centreline_cp(s, params);
     let clipped = match (clip_suction(&mut upper), clip_suction(&mut lower)) {
         (Some(a), Some(b)) => Some((a.0 + b.0, a.1.min(b.1))),
@@ -464,6 +751,7 @@ pub fn centreline_cp_plot_with_params(
             super::short_number((lowest * 10.0).round() / 10.0)
         );
     }
+    let (shading, note) = separated_shading(s.dead_water_cp, &upper_separated, &lower_separated);
     let plot = LinePlot {
         title: caption.title("Centre-line pressure"),
         subtitle: format!(
@@ -484,8 +772,74 @@ pub fn centreline_cp_plot_with_params(
                 colour: SERIES_COLOURS[1],
             },
         ],
+        shading,
+        note,
+        ..LinePlot::default()
     };
     draw_line_plot(&plot, plot_params)
+}
+
+/// The separated stretches of the centre line, each surface's shaded in a
+/// light tint of its curve's colour, with the note saying where and what
+/// their Cp is: the dead water's one assumed pressure, or (`None`) the
+/// attached flow's or the plateau model's, no pressure of the separated
+/// flow.
+fn separated_shading(
+    dead_water_cp: Option<f64>,
+    upper: &[(f64, f64)],
+    lower: &[(f64, f64)],
+) -> (Vec<Shading>, String) {
+    let at = |spans: &[(f64, f64)]| {
+        spans
+            .iter()
+            .map(|(a, b)| format!("{a:.2}-{b:.2}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let (short, what) = match dead_water_cp {
+        Some(cp) => (
+            "assumed Cp (dead water)",
+            format!("one assumed pressure, the dead water's Cp {cp:.2}, not a computed one"),
+        ),
+        None => (
+            "no computed Cp",
+            "the attached flow's or the plateau model's, not a computed pressure of the separated flow"
+                .to_owned(),
+        ),
+    };
+    let mut shading = Vec::new();
+    let mut sides = Vec::new();
+    for (side, spans, colour) in [
+        ("upper surface", upper, SERIES_COLOURS[0]),
+        ("lower surface", lower, SERIES_COLOURS[1]),
+    ] {
+        if spans.is_empty() {
+            continue;
+        }
+        sides.push(format!("{side} at x {} m", at(spans)));
+        shading.push(Shading {
+            spans: spans.to_vec(),
+            name: format!("{side} separated: {short}"),
+            colour: tint(colour, SEPARATED_TINT),
+        });
+    }
+    let note = if sides.is_empty() {
+        String::new()
+    } else {
+        format!(
+            "Shaded: separated, {}; there the curve's Cp is {what}.",
+            sides.join(", ")
+        )
+    };
+    (shading, note)
+}
+
+/// How much of a curve's colour its separated stretches' tint takes.
+const SEPARATED_TINT: f64 = 0.16;
+
+/// `colour` mixed with white, `share` of it kept.
+fn tint(colour: Rgb, share: f64) -> Rgb {
+    colour.map(|c| (255.0 - share * (255.0 - f64::from(c))).round() as u8)
 }
 
 #[cfg(test)]
@@ -536,6 +890,7 @@ mod tests {
             y_label: "y".into(),
             invert_y: false,
             series: vec![line("a", rising.clone()), line("b", rising)],
+            ..LinePlot::default()
         };
         let frame = plot_frame(&plot, &PlotParams::default());
         // The line along the whole diagonal of the drawn range.
@@ -544,7 +899,7 @@ mod tests {
             .map(|k| f64::from(k) / 50.0)
             .map(|f| (x0 + f * (x1 - x0), y0 + f * (y1 - y0)))
             .collect();
-        let (x, y) = legend_corner(&[line("a", diagonal)], &frame, (200.0, 64.0));
+        let (x, y) = legend_corner(&[line("a", diagonal)], &[], &frame, (200.0, 64.0));
         let (l, t) = (frame.rect.0 as f32, frame.rect.1 as f32);
         assert!(
             (x - (l + 12.0)).abs() < 1e-3 && (y - (t + 12.0)).abs() < 1e-3,
@@ -559,7 +914,7 @@ mod tests {
             ..plot
         };
         let frame = plot_frame(&flat, &PlotParams::default());
-        let (x, _) = legend_corner(&flat.series, &frame, (200.0, 64.0));
+        let (x, _) = legend_corner(&flat.series, &[], &frame, (200.0, 64.0));
         assert!(x > (frame.rect.0 + 0.5 * frame.rect.2) as f32, "{x}");
     }
 
@@ -649,5 +1004,116 @@ mod tests {
             let exact = 1.0 - 2.25 * (1.0 - x * x);
             assert!((cp - exact).abs() < 0.12, "x {x}: {cp} vs {exact}");
         }
+    }
+
+    /// A curve far above the others (a drag band's top, some 230 counts
+    /// over the estimates) leaves the axis to them and is drawn as arrows
+    /// at the top edge; one close to them joins the axis.
+    #[test]
+    fn a_far_curve_is_drawn_off_the_scale() {
+        let line = |name: &str, ys: [f64; 4], colour: Rgb| Series {
+            name: name.into(),
+            points: [16.0, 22.0, 28.0, 34.0].into_iter().zip(ys).collect(),
+            colour,
+        };
+        let grey = [150, 150, 150];
+        let top = line("band, high end", [379.0, 380.0, 386.0, 403.0], grey);
+        let plot = LinePlot {
+            title: "t".into(),
+            x_label: "x".into(),
+            y_label: "y".into(),
+            series: vec![
+                line("band, low end", [155.2, 140.9, 146.0, 162.8], grey),
+                line("estimate", [160.9, 145.8, 148.9, 167.9], SERIES_COLOURS[0]),
+            ],
+            off_scale: Some(OffScale {
+                series: top.clone(),
+                note: "Arrows: the band's high end.".into(),
+                decimals: 0,
+            }),
+            ..LinePlot::default()
+        };
+        let (canvas, frame) = draw_line_plot(&plot, &PlotParams::default()).unwrap();
+        let png = canvas.to_png().unwrap();
+        keep("off-scale.png", &png);
+        let img = decode(&png);
+        // The estimates and low ends fill most of the height.
+        let (lo, hi) = frame.y_range;
+        assert!(lo >= 130.0 && hi <= 180.0, "{:?}", frame.y_range);
+        assert!((167.9 - 140.9) / (hi - lo) > 0.6, "{:?}", frame.y_range);
+        // An arrow in the band's grey at the top edge above each x.
+        let t = frame.rect.1 as i64;
+        for x in [16.0, 22.0, 28.0, 34.0] {
+            let (px, _) = frame.pixel_at(x, lo);
+            let grey_near = (t..t + 30)
+                .flat_map(|y| (-2..=2).map(move |dx| (px as i64 + dx, y)))
+                .filter(|&(x, y)| img.pixel(x, y) == grey)
+                .count();
+            assert!(grey_near > 10, "x {x}: {grey_near}");
+        }
+        // Close to the others, the same curve sets the axis with them.
+        let near = LinePlot {
+            off_scale: Some(OffScale {
+                series: line("band, high end", [170.0, 150.0, 152.0, 175.0], grey),
+                note: String::new(),
+                decimals: 0,
+            }),
+            ..plot
+        };
+        let (_, frame) = draw_line_plot(&near, &PlotParams::default()).unwrap();
+        assert!(frame.y_range.1 >= 175.0, "{:?}", frame.y_range);
+    }
+
+    /// The stretches of the centre line whose panels are separated (the
+    /// fixture's 0.5 < x < 0.93) are shaded in the curve's tint, the rest
+    /// not; the legend and the note say what their Cp is.
+    #[test]
+    fn separated_stretches_of_the_centre_line_are_shaded() {
+        let mut f = Fixture::sphere(3);
+        let c = centreline_cp(&f.surface(), &CentrelineParams::default());
+        for spans in [&c.upper_separated, &c.lower_separated] {
+            assert_eq!(spans.len(), 1, "{spans:?}");
+            let (a, b) = spans[0];
+            assert!(
+                (0.4..0.6).contains(&a) && (0.85..1.0).contains(&b),
+                "{a} {b}"
+            );
+        }
+        let dead = -0.15;
+        for (cp, state) in f.cp.iter_mut().zip(&f.state) {
+            if *state == PanelState::Separated {
+                *cp = dead;
+            }
+        }
+        let mut s = f.surface();
+        s.dead_water_cp = Some(dead);
+        let (canvas, frame) = centreline_cp_plot(&s, &caption()).unwrap();
+        let png = canvas.to_png().unwrap();
+        keep("centreline-separated.png", &png);
+        let img = decode(&png);
+        let (t, h) = (frame.rect.1, frame.rect.3);
+        // Near the bottom of the plot area, clear of curves and legend.
+        let y = (t + 0.9 * h) as i64;
+        let at = |x: f64| img.pixel(frame.pixel_at(x, 0.0).0 as i64, y);
+        let upper = tint(SERIES_COLOURS[0], SEPARATED_TINT);
+        let both: Rgb = [0, 1, 2].map(|k| {
+            (u16::from(upper[k]) * u16::from(tint(SERIES_COLOURS[1], SEPARATED_TINT)[k]) / 255)
+                as u8
+        });
+        assert_eq!(at(0.7), both);
+        assert_eq!(at(-0.55), WHITE);
+        let (shading, note) = separated_shading(Some(dead), &c.upper_separated, &c.lower_separated);
+        assert_eq!(shading.len(), 2);
+        assert_eq!(
+            shading[0].name,
+            "upper surface separated: assumed Cp (dead water)"
+        );
+        assert!(
+            note.contains("one assumed pressure, the dead water's Cp -0.15"),
+            "{note}"
+        );
+        let (_, note) = separated_shading(None, &c.upper_separated, &[]);
+        assert!(note.contains("not a computed pressure"), "{note}");
+        assert!(!note.contains("lower"), "{note}");
     }
 }

@@ -170,6 +170,10 @@ pub enum PanelPaint {
     Solid(Rgb),
     /// Diagonal stripes of two colours, shaded (e.g. separated panels).
     Hatched(Rgb, Rgb),
+    /// A colour with thin stripes of another across it, shaded
+    /// ([`super::colorbar::thin_stripes`]; separated panels on the
+    /// pressure sheet, whose colour still reads under them).
+    Striped(Rgb, Rgb),
 }
 
 /// The nearest triangle under each sample of a view.
@@ -318,6 +322,7 @@ fn sample_colour(
     let base = match paint(tri.panel as usize) {
         PanelPaint::Solid(c) => c,
         PanelPaint::Hatched(a, b) => hatch(cx, cy, a, b),
+        PanelPaint::Striped(a, b) => super::colorbar::thin_stripes(cx, cy, a, b),
     };
     let s = shades[k as usize];
     base.map(|v| (f64::from(v) * s).round().clamp(0.0, 255.0) as u8)

@@ -14,6 +14,9 @@ use super::{Caption, OutputError, PanelState, SurfaceResult};
 pub const NO_VALUE: Rgb = [200, 200, 204];
 /// Hatching of separated panels.
 pub const SEPARATED: (Rgb, Rgb) = ([40, 40, 46], [150, 150, 158]);
+/// The thin stripes over separated panels on the pressure sheet, whose Cp
+/// there is no computed pressure (the dead water's one assumed value).
+pub const ASSUMED_PRESSURE: Rgb = [120, 121, 130];
 
 /// Which surface field a sheet shows.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -133,6 +136,7 @@ pub fn surface_sheet_with_params(
     let (scale, legend, what, note) = field_style(s, field);
     let note = match (field, &s.separation_note) {
         (SurfaceField::SeparationRisk, Some(extra)) => format!("{note} {extra}"),
+        (SurfaceField::Pressure, _) => pressure_note(s),
         _ => note.to_owned(),
     };
     let style = FieldStyle {
@@ -237,9 +241,13 @@ fn field_style(
     match field {
         SurfaceField::Pressure => (
             ColourScale::cp(s.cp),
-            vec![],
+            s.state
+                .contains(&PanelState::Separated)
+                .then(|| (assumed_words(s).0.to_owned(), assumed_swatch(s)))
+                .into_iter()
+                .collect(),
             "Surface pressure",
-            "Pressure coefficient Cp = (p \u{2212} p\u{221e}) / (\u{bd}\u{3c1}U\u{b2}). Red: above free-stream pressure; blue: suction.",
+            "",
         ),
         SurfaceField::SeparationRisk => (
             ColourScale::risk(),
@@ -258,6 +266,49 @@ fn field_style(
     }
 }
 
+/// The pressure sheet's note: what Cp and its colours are, and, where
+/// some panel is separated, what its stripes say.
+fn pressure_note(s: &SurfaceResult<'_>) -> String {
+    let mut note =
+        "Pressure coefficient Cp = (p \u{2212} p\u{221e}) / (\u{bd}\u{3c1}U\u{b2}). Red: above \
+                    free-stream pressure; blue: suction."
+            .to_owned();
+    if s.state.contains(&PanelState::Separated) {
+        note += " ";
+        note += assumed_words(s).1;
+    }
+    note
+}
+
+/// The legend entry and the note's words for separated panels on the
+/// pressure sheet: their Cp is the dead water's one assumed pressure, or
+/// (no dead water) the attached flow's or the plateau model's; neither is
+/// a computed pressure of the separated flow.
+fn assumed_words(s: &SurfaceResult<'_>) -> (&'static str, &'static str) {
+    if s.dead_water_cp.is_some() {
+        (
+            "separated: one\nassumed pressure\n(dead water)",
+            "Grey stripes: separated, held at one assumed pressure (the dead water's), not a computed one.",
+        )
+    } else {
+        (
+            "separated: no\ncomputed pressure",
+            "Grey stripes: separated, where the colour is the attached flow's or the plateau model's \
+             pressure, not a computed pressure of the separated flow.",
+        )
+    }
+}
+
+/// The pressure sheet's swatch for separated panels: the dead water's
+/// colour under the stripes where it has one, else a neutral grey.
+fn assumed_swatch(s: &SurfaceResult<'_>) -> Swatch {
+    let base = s
+        .dead_water_cp
+        .and_then(|cp| ColourScale::cp(s.cp).colour(cp))
+        .unwrap_or(NO_VALUE);
+    Swatch::Striped(base, ASSUMED_PRESSURE)
+}
+
 /// The legend's "not resolved" entry, only where some panel is.
 pub(crate) fn unresolved_swatch(s: &SurfaceResult<'_>) -> Option<(String, Swatch)> {
     s.state
@@ -273,7 +324,14 @@ fn panel_paint(
     i: usize,
 ) -> PanelPaint {
     match field {
-        SurfaceField::Pressure => PanelPaint::Solid(scale.colour(s.cp[i]).unwrap_or(NO_VALUE)),
+        SurfaceField::Pressure => {
+            let colour = scale.colour(s.cp[i]).unwrap_or(NO_VALUE);
+            if s.state[i] == PanelState::Separated {
+                PanelPaint::Striped(colour, ASSUMED_PRESSURE)
+            } else {
+                PanelPaint::Solid(colour)
+            }
+        }
         SurfaceField::SeparationRisk => match s.state[i] {
             PanelState::Separated => PanelPaint::Hatched(SEPARATED.0, SEPARATED.1),
             PanelState::Unresolved => PanelPaint::Solid(NO_VALUE),
@@ -556,6 +614,37 @@ mod tests {
         };
         assert!(stripes(View::Rear, 0.8) >= 2);
         assert_eq!(stripes(View::Front, -0.8), 0);
+    }
+
+    /// Separated panels on the pressure sheet carry thin grey stripes
+    /// over their colour (the fixture separates 0.5 < x < 0.93: seen in
+    /// the rear view, not the front), and the legend names them.
+    #[test]
+    fn pressure_sheet_marks_separated_panels() {
+        let f = Fixture::sphere(3);
+        let img = sheet(&f, SurfaceField::Pressure, "pressure-separated.png");
+        let lay = layout(&display_triangles(&f.mesh), &SheetParams::default());
+        let greys = |view: View, x: f64| {
+            let frame = lay.frame(view).unwrap();
+            let (px, py) = frame.project(view, &Point::new(x, 0.6, 0.0));
+            (0..16)
+                .map(|d| img.pixel(px as i64 + d, py as i64))
+                .filter(|c| {
+                    let (lo, hi) = (c.iter().min().unwrap(), c.iter().max().unwrap());
+                    hi - lo < 16 && *hi < 140
+                })
+                .count()
+        };
+        assert!(greys(View::Rear, 0.8) >= 2);
+        assert_eq!(greys(View::Front, -0.8), 0);
+        let s = f.surface();
+        assert_eq!(assumed_words(&s).0, "separated: no\ncomputed pressure");
+        let dead = crate::output::SurfaceResult {
+            dead_water_cp: Some(-0.15),
+            ..s
+        };
+        assert!(assumed_words(&dead).0.contains("assumed pressure"));
+        assert!(pressure_note(&dead).contains("held at one assumed pressure"));
     }
 
     /// The five frames lie on the sheet and apart, front and rear side by
