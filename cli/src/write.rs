@@ -244,14 +244,14 @@ fn pictures(
         cp.to_png()?,
     );
     let mut risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;
-    output::outline::draw_regions(&mut risk, s.mesh, marks);
+    output::outline::draw_regions(&mut risk, s.mesh, marks, caption.yaw_deg);
     add(
         "separation-risk.png",
         "Separation risk, separated areas hatched",
         risk.to_png()?,
     );
     let mut flow = tufts::tuft_sheet(s, caption)?;
-    output::outline::draw_regions(&mut flow, s.mesh, marks);
+    output::outline::draw_regions(&mut flow, s.mesh, marks, caption.yaw_deg);
     add(
         "surface-flow.png",
         "Surface flow shown as tufts, separated areas crossed",

@@ -130,10 +130,16 @@ pub fn write(
         .and_then(|r| serde_json::from_value(r.clone()).ok())
         .unwrap_or_default();
     let marks = crate::region::marks(&regions, mesh_b);
-    output::outline::draw_regions(&mut dcp, mesh_b, &marks);
+    output::outline::draw_regions(&mut dcp, mesh_b, &marks, caption.yaw_deg);
     // Not in the legend's blue: along the base edge the outline ran into
     // the "separates in A only" stripes.
-    output::outline::draw_regions_styled(&mut dsep, mesh_b, &marks, SEPARATION_OUTLINE);
+    output::outline::draw_regions_styled(
+        &mut dsep,
+        mesh_b,
+        &marks,
+        SEPARATION_OUTLINE,
+        caption.yaw_deg,
+    );
     let pictures = vec![
         (
             "delta-cp.png",

@@ -49,9 +49,15 @@ impl Default for OutlineStyle {
 }
 
 /// Draw every region's outline and name on a sheet drawn with the default
-/// [`SheetParams`] for `mesh`, in the default blue.
-pub fn draw_regions(canvas: &mut Canvas, mesh: &tuft_mesh::PanelMesh, marks: &[RegionMark]) {
-    draw_regions_styled(canvas, mesh, marks, OutlineStyle::default());
+/// [`SheetParams`] for `mesh` at `yaw_deg` (which picks the side view,
+/// [`crate::output::render::View::sheet`]), in the default blue.
+pub fn draw_regions(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    yaw_deg: f64,
+) {
+    draw_regions_styled(canvas, mesh, marks, OutlineStyle::default(), yaw_deg);
 }
 
 /// [`draw_regions`] in another colour, for a sheet whose legend uses the
@@ -61,12 +67,13 @@ pub fn draw_regions_styled(
     mesh: &tuft_mesh::PanelMesh,
     marks: &[RegionMark],
     style: OutlineStyle,
+    yaw_deg: f64,
 ) {
     if marks.is_empty() {
         return;
     }
     let tris = display_triangles(mesh);
-    let lay = sheet::layout(&tris, &SheetParams::default());
+    let lay = sheet::layout_at(&tris, &SheetParams::default(), yaw_deg);
     let real = mesh.len();
     let neighbours = |k: usize| -> Vec<usize> {
         let offset = if k >= real { real } else { 0 };
@@ -241,7 +248,7 @@ mod tests {
     fn styled_pixels(marks: &[RegionMark], style: OutlineStyle) -> [usize; 2] {
         let f = Fixture::sphere(3);
         let mut canvas = surface_sheet(&f.surface(), SurfaceField::Pressure, &caption()).unwrap();
-        draw_regions_styled(&mut canvas, &f.mesh, marks, style);
+        draw_regions_styled(&mut canvas, &f.mesh, marks, style, 0.0);
         let png = canvas.to_png().unwrap();
         keep("regions-sphere.png", &png);
         let d = decode(&png);

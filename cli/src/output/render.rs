@@ -2,6 +2,8 @@
 //! coloured per panel, with Lambert shading so the shape reads.
 //!
 //! Views (x downstream, z up): [`View::Side`] from -y (nose to the left),
+//! or [`View::SideFromRight`] from +y (nose to the right) when a cross wind
+//! makes +y the lee side ([`View::sheet`]),
 //! [`View::Top`] from +z, [`View::Underneath`] from -z, [`View::Front`]
 //! from -x looking downstream and [`View::Rear`] from +x looking upstream. A half model (symmetry plane declared) is drawn
 //! whole: its mirror image across y = 0 carries the same values.
@@ -25,6 +27,9 @@ const OUTLINE: Rgb = [60, 62, 70];
 pub enum View {
     /// From -y looking at +y; x to the right (nose left), z up.
     Side,
+    /// From +y looking at -y; x to the left (nose right), z up: the lee
+    /// side when the wind comes from -y (positive yaw).
+    SideFromRight,
     /// From +z looking down; x to the right, y up.
     Top,
     /// From -z looking up; x to the right, -y up.
@@ -45,10 +50,27 @@ impl View {
         View::Rear,
     ];
 
+    /// The views of a sheet at `yaw_deg`, in sheet order: the side view
+    /// shows the lee side, where a cross wind's separation lies (from +y
+    /// for a positive yaw, whose wind blows towards +y; from -y otherwise).
+    pub fn sheet(yaw_deg: f64) -> [View; 5] {
+        let mut views = View::ALL;
+        if yaw_deg > 0.0 {
+            views[0] = View::SideFromRight;
+        }
+        views
+    }
+
+    /// True for the two side views.
+    pub fn is_side(self) -> bool {
+        matches!(self, View::Side | View::SideFromRight)
+    }
+
     /// Label printed above the view.
     pub fn label(self) -> &'static str {
         match self {
             View::Side => "Side, from \u{2212}y (nose left)",
+            View::SideFromRight => "Side, from +y (nose right)",
             View::Top => "Top, from +z",
             View::Underneath => "Underneath, from \u{2212}z",
             View::Front => "Front, from \u{2212}x",
@@ -62,6 +84,7 @@ impl View {
         let (x, y, z) = (Vector3::x(), Vector3::y(), Vector3::z());
         match self {
             View::Side => (x, z, -y),
+            View::SideFromRight => (-x, z, y),
             View::Top => (x, y, z),
             View::Underneath => (x, -y, -z),
             View::Front => (-y, z, -x),

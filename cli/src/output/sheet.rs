@@ -72,12 +72,19 @@ pub(crate) const BAR_COLUMN: f64 = 230.0;
 /// and top above, underneath below with front and rear side by side in
 /// the last cell (a car is about half as wide as it is long).
 pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
+    layout_at(tris, params, 0.0)
+}
+
+/// [`layout`] for a sheet at `yaw_deg`, whose side view shows the lee side
+/// ([`View::sheet`]).
+pub fn layout_at(tris: &[DisplayTri], params: &SheetParams, yaw_deg: f64) -> Layout {
+    let sheet_views = View::sheet(yaw_deg);
     let cell_w = (f64::from(params.width) - BAR_COLUMN - 20.0) / 2.0;
     let cell_h = (f64::from(params.height) - TITLE_BAND - 10.0) / 2.0;
     let (pic_w, pic_h) = (cell_w - 30.0, cell_h - LABEL_BAND - 14.0);
     // Width of each view's picture: the last cell holds two.
     let width = |k: usize| if k < 3 { pic_w } else { 0.5 * pic_w - 10.0 };
-    let extents = View::ALL.map(|v| render::extent(tris, v));
+    let extents = sheet_views.map(|v| render::extent(tris, v));
     let scale = extents
         .iter()
         .enumerate()
@@ -88,7 +95,7 @@ pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
     } else {
         1.0
     };
-    let views = View::ALL
+    let views = sheet_views
         .iter()
         .zip(extents)
         .enumerate()
@@ -219,9 +226,16 @@ pub(crate) fn views_sheet(
     s.validate()?;
     let mut canvas = Canvas::new(params.width, params.height)?;
     let tris = display_triangles(s.mesh);
-    let lay = layout(&tris, params);
+    let lay = layout_at(&tris, params, caption.yaw_deg);
     for (view, frame) in &lay.views {
-        draw_cell(&mut canvas, &tris, *view, frame, params, paint);
+        draw_cell(
+            &mut canvas,
+            &tris,
+            *view,
+            frame,
+            (params, caption.yaw_deg),
+            paint,
+        );
         overlay(&mut canvas, &tris, *view, frame);
         decorate(&mut canvas, s, *view, frame, caption);
     }
@@ -346,13 +360,18 @@ fn draw_cell(
     tris: &[DisplayTri],
     view: View,
     frame: &Frame,
-    params: &SheetParams,
+    (params, yaw_deg): (&SheetParams, f64),
     paint: &dyn Fn(usize) -> PanelPaint,
 ) {
     let (l, t, w, _) = frame.rect;
+    let label = if view.is_side() && yaw_deg != 0.0 {
+        format!("{}: the lee side", view.label())
+    } else {
+        view.label().to_string()
+    };
     text::draw(
         canvas,
-        view.label(),
+        &label,
         l as f32,
         (t - 12) as f32,
         &TextStyle::new(17.0).bold(),
@@ -381,7 +400,9 @@ fn decorate(
     caption: &Caption,
 ) {
     let (l, t, w, h) = frame.rect;
-    if let (Some(z), View::Side | View::Front | View::Rear) = (s.mesh.mirrors.ground, view) {
+    if let (Some(z), View::Side | View::SideFromRight | View::Front | View::Rear) =
+        (s.mesh.mirrors.ground, view)
+    {
         let (_, y) = frame.project(view, &Point::new(0.0, 0.0, z));
         if (t as f64..(t + h) as f64).contains(&y) {
             canvas.polyline(
@@ -401,6 +422,7 @@ fn decorate(
     let yaw = caption.yaw_deg.to_radians();
     let dir = match view {
         View::Side => Some((1.0, 0.0)),
+        View::SideFromRight => Some((-1.0, 0.0)),
         View::Top => Some((yaw.cos(), -yaw.sin())),
         View::Underneath => Some((yaw.cos(), yaw.sin())),
         View::Front | View::Rear => None,
@@ -420,7 +442,7 @@ fn decorate(
             &TextStyle::new(13.0).colour(MUTED).align(Align::Right),
         );
     }
-    if view == View::Side {
+    if view.is_side() {
         draw_scale_bar(canvas, frame);
     }
 }
@@ -548,6 +570,38 @@ mod tests {
             assert_eq!(body, 3600, "{view:?}");
             assert!(frame.scale > 100.0, "{view:?} scale {}", frame.scale);
         }
+    }
+
+    /// In a cross wind the side view shows the lee side: at positive yaw
+    /// (wind towards +y) it looks from +y, the nose on the right and the
+    /// flow arrow pointing left; straight ahead and at negative yaw it
+    /// looks from -y, nose left.
+    #[test]
+    fn a_yawed_sheet_shows_the_lee_side() {
+        let f = Fixture::sphere(2);
+        let tris = display_triangles(&f.mesh);
+        let params = SheetParams::default();
+        let nose_right = |yaw: f64| {
+            let lay = layout_at(&tris, &params, yaw);
+            let (view, frame) = lay.views[0];
+            let (nose, _) = frame.project(view, &Point::new(-1.0, 0.0, 0.0));
+            let (tail, _) = frame.project(view, &Point::new(1.0, 0.0, 0.0));
+            (view, nose > tail)
+        };
+        assert_eq!(nose_right(10.0), (View::SideFromRight, true));
+        assert_eq!(nose_right(0.0), (View::Side, false));
+        assert_eq!(nose_right(-10.0), (View::Side, false));
+        let mut yawed = caption();
+        yawed.yaw_deg = 10.0;
+        let png = surface_sheet(&f.surface(), SurfaceField::Pressure, &yawed)
+            .unwrap()
+            .to_png()
+            .unwrap();
+        keep("pressure-yaw10.png", &png);
+        let img = decode(&png);
+        let (view, frame) = layout_at(&tris, &params, 10.0).views[0];
+        let (cx, cy) = frame.project(view, &Point::origin());
+        assert_ne!(img.pixel(cx as i64, cy as i64), [255, 255, 255]);
     }
 
     #[test]
