@@ -295,6 +295,18 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         .map_or(lo.z - 0.6 * height, |g| g + 1e-3 * height);
     let z1 = hi.z + 0.8 * height;
     let note = slice_note(c);
+    // The dead water is hatched after the separated-flow loop, whose last
+    // pass lets the free stream through it.
+    let separated: Vec<bool> = if c.wakes.is_some() {
+        c.layer
+            .panels
+            .iter()
+            .map(|l| l.state == tuft_solver::boundary_layer::FlowState::Separated)
+            .collect()
+    } else {
+        Vec::new()
+    };
+    let stream = p.freestream.velocity();
     let sample = |name: &str, origin: Point3<f64>, up: Vector3<f64>, size: (f64, f64)| {
         let mut s = grid(&field, u2, name, origin, up, size);
         let points: Vec<Point3<f64>> = (0..s.dims.1)
@@ -302,6 +314,15 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
             .map(|(i, j)| s.point(i, j))
             .collect();
         s.near_surface = slice::near_surface(mesh, &points);
+        if !separated.is_empty() {
+            s.dead_water = slice::dead_water(
+                mesh,
+                &separated,
+                &stream,
+                slice::DEAD_WATER_HEIGHTS * height,
+                &points,
+            );
+        }
         s.note.clone_from(&note);
         s
     };
@@ -329,12 +350,11 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
 fn slice_note(c: &Computed) -> String {
     match &c.wakes {
         Some(w) if w.passes > 1 => format!(
-            "Flow of the separated-flow loop's last pass, its dead water's sources included: behind a \
-             separated region this shows the stream the model lets through it, not the dead water's \
-             pressure{}.",
+            "Hatched: dead water behind separated surface (to one body height), which the model holds \
+             at {}; the colours there show the stream it lets through instead.",
             w.base_cp_loop
-                .map(|v| format!(" (Cp {} on the surface pictures)", output::short_number(v)))
-                .unwrap_or_default()
+                .map(|v| format!("Cp {}", output::short_number(v)))
+                .unwrap_or_else(|| "one pressure".into())
                 .replace('-', "\u{2212}")
         ),
         Some(_) => "Attached potential flow (nothing separated).".into(),
@@ -380,6 +400,7 @@ fn grid(
         velocity,
         cp,
         near_surface: vec![],
+        dead_water: vec![],
         note: String::new(),
     }
 }

@@ -232,6 +232,12 @@ pub struct Slice {
     /// panel method's near field is unreliable there: drawn, but left out
     /// of the colour range. Empty, or one per sample.
     pub near_surface: Vec<bool>,
+    /// Samples in the dead water behind separated surface
+    /// ([`slice::dead_water`]): hatched on the pictures and left out of
+    /// the colour range, since the model holds that region at one
+    /// pressure and the flow drawn there is the stream it lets through.
+    /// Empty, or one per sample.
+    pub dead_water: Vec<bool>,
     /// Which flow the slice shows and what it leaves out, for the
     /// picture's subtitle (empty for none).
     pub note: String,
@@ -269,13 +275,15 @@ impl Slice {
             ("slice cp", self.cp.len()),
         ];
         check_lengths(&lengths, self.len())?;
-        if self.near_surface.is_empty() {
-            return Ok(());
+        for (name, flags) in [
+            ("slice near_surface", &self.near_surface),
+            ("slice dead_water", &self.dead_water),
+        ] {
+            if !flags.is_empty() {
+                check_lengths(&[(name, flags.len())], self.len())?;
+            }
         }
-        check_lengths(
-            &[("slice near_surface", self.near_surface.len())],
-            self.len(),
-        )
+        Ok(())
     }
 }
 

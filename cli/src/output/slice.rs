@@ -23,6 +23,11 @@ use super::{Caption, OutputError, Slice, short_number};
 /// Colour of the body cross-section.
 pub const BODY: Rgb = [140, 142, 150];
 
+/// Stripes over the dead water ([`Slice::dead_water`]): period and width,
+/// pixels, and their colour.
+const DEAD_WATER_STRIPE: (i64, i64) = (10, 3);
+const DEAD_WATER_INK: Rgb = [70, 72, 80];
+
 /// Samples closer than this many panel sizes (longest edge) to a panel's
 /// centroid are near the surface: the velocity of a constant-strength
 /// panel is singular along its edges (Katz & Plotkin 2001, sec. 10.4),
@@ -71,6 +76,89 @@ pub fn near_surface(mesh: &tuft_mesh::PanelMesh, points: &[Point3<f64>]) -> Vec<
             })
         })
         .collect()
+}
+
+/// How far behind separated surface the slices hatch the dead water, in
+/// body heights: the recirculating near wake of a bluff body closes about
+/// one to one and a half base heights behind the base (square-back bodies
+/// near the ground; from memory), and a car's base is about its height or
+/// less (our choice: one body height).
+pub const DEAD_WATER_HEIGHTS: f64 = 1.0;
+
+/// Which of `points` lie in the dead water behind `mesh`'s separated
+/// panels (`separated`, one flag per panel): looking upstream from the
+/// point (against the unit free-stream direction `stream`), the first
+/// surface met (a panel, or its mirror image for a half model) is a
+/// separated panel no farther than `reach` metres. The separated-flow
+/// loop holds that region at one pressure and lets the free stream
+/// through its panels, so the flow a slice shows there is not the dead
+/// water's.
+pub fn dead_water(
+    mesh: &tuft_mesh::PanelMesh,
+    separated: &[bool],
+    stream: &Vector3<f64>,
+    reach: f64,
+    points: &[Point3<f64>],
+) -> Vec<bool> {
+    use rayon::prelude::*;
+    if separated.len() != mesh.len() || !separated.iter().any(|&s| s) || !(reach > 0.0) {
+        return vec![false; points.len()];
+    }
+    let mut tris: Vec<([Point3<f64>; 3], bool)> = mesh
+        .panels
+        .iter()
+        .zip(separated)
+        .map(|(p, &s)| (p.vertices, s))
+        .collect();
+    if mesh.mirrors.symmetry {
+        let images: Vec<_> = tris
+            .iter()
+            .map(|(v, s)| (v.map(|p| Point3::new(p.x, -p.y, p.z)), *s))
+            .collect();
+        tris.extend(images);
+    }
+    let back = -stream.normalize();
+    points
+        .par_iter()
+        .map(|q| {
+            let mut nearest: Option<(f64, bool)> = None;
+            for (corners, sep) in &tris {
+                if let Some(t) = ray_hits(q, &back, corners)
+                    && t <= reach
+                    && nearest.is_none_or(|(d, _)| t < d)
+                {
+                    nearest = Some((t, *sep));
+                }
+            }
+            nearest.is_some_and(|(_, sep)| sep)
+        })
+        .collect()
+}
+
+/// Distance along the ray from `origin` in direction `dir` (unit) to the
+/// triangle `corners`, if it meets it ahead of the origin (Moller &
+/// Trumbore 1997).
+fn ray_hits(origin: &Point3<f64>, dir: &Vector3<f64>, corners: &[Point3<f64>; 3]) -> Option<f64> {
+    let e1 = corners[1] - corners[0];
+    let e2 = corners[2] - corners[0];
+    let p = dir.cross(&e2);
+    let det = e1.dot(&p);
+    if det.abs() < 1e-14 * e1.norm_squared().max(e2.norm_squared()) {
+        return None;
+    }
+    let inv = 1.0 / det;
+    let t0 = origin - corners[0];
+    let u = t0.dot(&p) * inv;
+    if !(0.0..=1.0).contains(&u) {
+        return None;
+    }
+    let qv = t0.cross(&e1);
+    let v = dir.dot(&qv) * inv;
+    if v < 0.0 || u + v > 1.0 {
+        return None;
+    }
+    let t = e2.dot(&qv) * inv;
+    (t > 0.0).then_some(t)
 }
 
 /// A cube of the grid [`near_surface`] sorts centroids into.
@@ -210,17 +298,15 @@ fn finite(field: &[Option<f64>]) -> Vec<f64> {
     field.iter().flatten().copied().collect()
 }
 
-/// The values of a field outside the body and away from its surface (all
-/// of them when the slice marks no sample as near the surface).
+/// The values of a field outside the body, away from its surface and out
+/// of the dead water (all of them when the slice marks no sample).
 fn away_from_surface(slice: &Slice, field: &[Option<f64>]) -> Vec<f64> {
-    if slice.near_surface.is_empty() {
-        return finite(field);
-    }
+    let flag = |flags: &[bool], k: usize| flags.get(k).copied().unwrap_or(false);
     field
         .iter()
-        .zip(&slice.near_surface)
-        .filter(|&(_, &near)| !near)
-        .filter_map(|(v, _)| *v)
+        .enumerate()
+        .filter(|&(k, _)| !flag(&slice.near_surface, k) && !flag(&slice.dead_water, k))
+        .filter_map(|(_, v)| *v)
         .collect()
 }
 
@@ -303,6 +389,12 @@ fn draw_field(
                 None => BODY,
             };
             c.blend(x, y, colour, 1.0);
+            let k = gi.round() as usize + gj.round() as usize * ni;
+            if slice.dead_water.get(k).copied().unwrap_or(false)
+                && (x + y).rem_euclid(DEAD_WATER_STRIPE.0) < DEAD_WATER_STRIPE.1
+            {
+                c.blend(x, y, DEAD_WATER_INK, 0.55);
+            }
         }
     }
 }
@@ -478,6 +570,7 @@ mod tests {
             velocity: vec![],
             cp: vec![],
             near_surface: vec![],
+            dead_water: vec![],
             note: "Potential flow past a sphere (Lamb).".to_owned(),
         };
         for j in 0..dims.1 {
@@ -597,6 +690,48 @@ mod tests {
                 "{got:?} vs {want:?}"
             );
         }
+    }
+
+    /// A sphere whose rear half is separated: a point on the axis behind
+    /// it lies in the dead water up to the reach and not beyond, a point
+    /// ahead of it or beside it (off the sphere's shadow) does not; the
+    /// half model's mirror image shadows the y < 0 side the same way.
+    #[test]
+    fn the_dead_water_is_the_separated_surfaces_shadow_downstream() {
+        let whole = tuft_mesh::PanelMesh::new(
+            tuft_mesh::generate::icosphere(1.0, 3),
+            tuft_mesh::Mirrors::none(),
+        )
+        .unwrap();
+        let rear = |m: &tuft_mesh::PanelMesh| -> Vec<bool> {
+            m.panels.iter().map(|p| p.centroid.x > 0.0).collect()
+        };
+        let points = [
+            Point3::new(1.5, 0.0, 0.0),
+            Point3::new(2.9, 0.3, -0.2),
+            Point3::new(3.5, 0.0, 0.0),
+            Point3::new(-1.5, 0.0, 0.0),
+            Point3::new(1.5, 1.2, 0.0),
+            Point3::new(1.5, -0.5, 0.3),
+        ];
+        let got = dead_water(&whole, &rear(&whole), &Vector3::x(), 2.0, &points);
+        assert_eq!(got, [true, true, false, false, false, true]);
+        // Nothing separated: no dead water.
+        let none = vec![false; whole.len()];
+        assert!(!dead_water(&whole, &none, &Vector3::x(), 2.0, &points).contains(&true));
+        let half = tuft_mesh::PanelMesh::new(
+            tuft_mesh::cut::keep_right_half(&tuft_mesh::generate::icosphere(1.0, 3))
+                .unwrap()
+                .unwrap()
+                .0,
+            tuft_mesh::Mirrors {
+                ground: None,
+                symmetry: true,
+            },
+        )
+        .unwrap();
+        let got = dead_water(&half, &rear(&half), &Vector3::x(), 2.0, &points);
+        assert_eq!(got, [true, true, false, false, false, true]);
     }
 
     #[test]

@@ -15,9 +15,10 @@
 //! - `wake.vtu`: the wake sheets as quads with cell data `strength` (m^2/s).
 //! - `<slice>.vti`: image data (with a `Direction` matrix, so any plane
 //!   orientation) with point data `velocity` (m/s), `cp`, `in_body`
-//!   (1 inside the body, where velocity and Cp are NaN) and `near_surface`
+//!   (1 inside the body, where velocity and Cp are NaN), `near_surface`
 //!   (1 within a panel size of the surface, where a panel's edge can make
-//!   the velocity singular).
+//!   the velocity singular) and `dead_water` (1 behind separated surface,
+//!   where the separated-flow loop holds one pressure).
 
 use std::fmt::Write as _;
 use std::io::Write;
@@ -332,6 +333,12 @@ pub fn write_slice<W: Write>(w: &mut W, s: &Slice) -> Result<(), OutputError> {
             (0..s.velocity.len())
                 .map(|k| u8::from(s.near_surface.get(k).copied().unwrap_or(false))),
         ),
+        // Samples in the dead water behind separated surface, where the
+        // flow is the stream the loop lets through, not the dead water's.
+        Array::u8s(
+            "dead_water",
+            (0..s.velocity.len()).map(|k| u8::from(s.dead_water.get(k).copied().unwrap_or(false))),
+        ),
     ];
     out.push_str(&group(
         "PointData",
@@ -508,6 +515,7 @@ for c in range(g.GetNumberOfCells()):
                 .collect(),
             cp: (0..n).map(|k| Some(0.1 * k as f64)).collect(),
             near_surface: vec![],
+            dead_water: vec![],
             note: String::new(),
         };
         slice.velocity[5] = None;
