@@ -348,12 +348,14 @@ pub fn slice_picture_with_params(
         ColourScale::speed_ratio(&away[0]).mark_clipped(&finite(&painted[0])),
         ColourScale::cp(&away[1]).mark_clipped(&finite(&painted[1])),
     ];
-    let names = ["Speed |V|/U", "Pressure coefficient Cp"];
+    let speed_name = format!("Speed |V|/U (1 = {} m/s)", short_number(u));
+    let names = [speed_name.as_str(), "Pressure coefficient Cp"];
     let fields = [&painted[0], &painted[1]];
     let frames = panel_frames(slice, params);
     for k in 0..2 {
         draw_field(&mut c, slice, fields[k], &scales[k], &frames[k]);
         draw_axes(&mut c, slice, &frames[k], names[k]);
+        draw_flow_arrow(&mut c, slice, &frames[k], caption.yaw_deg);
         let (x, top) = frames[k].pixel_at(slice.dims.0 as f64 - 1.0, slice.dims.1 as f64 - 1.0);
         let h = (slice.dims.1 - 1) as f64 * frames[k].pixels_per_step;
         colorbar::draw_bar(
@@ -389,6 +391,30 @@ pub fn slice_picture_with_params(
         );
     }
     Ok((c, frames))
+}
+
+/// The free stream's direction in the slice's plane, as an arrow with the
+/// word "flow" in the top right corner of a field (none when the stream
+/// crosses the plane nearly square).
+fn draw_flow_arrow(c: &mut Canvas, slice: &Slice, f: &SliceFrame, yaw_deg: f64) {
+    let yaw = yaw_deg.to_radians();
+    let d = Vector3::new(yaw.cos(), yaw.sin(), 0.0);
+    let (di, dj) = (d.dot(&slice.axes.0), d.dot(&slice.axes.1));
+    let n = di.hypot(dj);
+    if n < 0.3 {
+        return;
+    }
+    let (x1, top) = f.pixel_at(slice.dims.0 as f64 - 1.0, slice.dims.1 as f64 - 1.0);
+    let (x0, y0) = ((x1 - 40.0) as f32, (top + 20.0) as f32);
+    let (dx, dy) = ((22.0 * di / n) as f32, (-22.0 * dj / n) as f32);
+    c.arrow((x0 - dx, y0 - dy), (x0 + dx, y0 + dy), INK, 2.0);
+    text::draw(
+        c,
+        "flow",
+        x0 - 30.0,
+        y0 + 5.0,
+        &TextStyle::new(13.0).colour(INK).align(Align::Right),
+    );
 }
 
 /// The values of a field outside the body.
