@@ -202,6 +202,7 @@ fn from_case(
             symmetry: case.file.geometry.half_model,
         },
         target_panels: case.file.geometry.panels,
+        measure_symmetry: true,
         ..PrepareParams::default()
     };
     Ok((stl.clone(), params, case))
@@ -223,6 +224,7 @@ fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
             symmetry: args.half,
         },
         target_panels: args.panels,
+        measure_symmetry: true,
         ..PrepareParams::default()
     })
 }
@@ -344,6 +346,9 @@ fn read_lines(r: &PrepareReport) -> String {
             "no"
         }
     );
+    if let Some(h) = &r.mirrors.halves {
+        s += &halves_line(h, diagonal(r));
+    }
     if r.mirrors.cut_vertices_moved > 0 {
         s += &format!(
             "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {:.2} mm)\n",
@@ -353,6 +358,26 @@ fn read_lines(r: &PrepareReport) -> String {
         );
     }
     s
+}
+
+/// How symmetric a whole body is, and what follows: a body whose halves
+/// agree (within [`tuft_mesh::prepare::ASYMMETRY_WARNING`] of its
+/// diagonal, the run's own line) can run as a half model.
+fn halves_line(h: &tuft_mesh::cut::HalfCut, diagonal: f64) -> String {
+    let [x, y, z] = h.largest_difference_at;
+    let mm = 1000.0 * h.largest_difference;
+    if h.largest_difference <= tuft_mesh::prepare::ASYMMETRY_WARNING * diagonal {
+        format!(
+            "           the halves about y = 0 agree to {mm:.1} mm: at zero yaw it can run as a half model \
+             (geometry.half_model = true, --half), cut at y = 0, on half the panels in a quarter of the \
+             memory, with a mirror-symmetric flow\n"
+        )
+    } else {
+        format!(
+            "           the halves about y = 0 differ by up to {mm:.0} mm (near x {x:.3}, y {y:.3}, z {z:.3} m): \
+             run it whole\n"
+        )
+    }
 }
 
 /// The bounding-box diagonal of the prepared body, metres.

@@ -162,6 +162,15 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
     let path = dir.path().join("whole.stl");
     write_binary_stl(&path, &generate::latlong_sphere(1.0, 24, 48), 1.0);
     let p = path.to_str().unwrap();
+    // Checked whole, it is said to be symmetric enough to run as a half.
+    let out = check(&[p, "--units", "m"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains(
+            "the halves about y = 0 agree to 0.0 mm: at zero yaw it can run as a half model"
+        ),
+        "{stdout}"
+    );
     let out = check(&[p, "--units", "m", "--half"]);
     let stdout = String::from_utf8_lossy(&out.stdout);
     assert_eq!(out.status.code(), Some(0), "{stdout}");
@@ -171,6 +180,18 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
         "{stdout}"
     );
     assert!(stdout.contains("closed by the symmetry mirror"), "{stdout}");
+    // Stretched and turned about z, its halves differ: run it whole.
+    let mut turned = generate::latlong_sphere(1.0, 24, 48);
+    turned.map_vertices(|q| tuft_mesh::Point::new(2.0 * q.x - 0.2 * q.y, 0.4 * q.x + q.y, q.z));
+    let path_turned = dir.path().join("turned.stl");
+    write_binary_stl(&path_turned, &turned, 1.0);
+    let out = check(&[path_turned.to_str().unwrap(), "--units", "m"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("the halves about y = 0 differ by up to"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("run it whole"), "{stdout}");
     let mut off = generate::latlong_sphere(1.0, 24, 48);
     off.map_vertices(|q| tuft_mesh::Point::new(q.x, q.y + 0.1, q.z));
     let path = dir.path().join("off.stl");

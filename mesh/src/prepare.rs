@@ -46,6 +46,10 @@ pub struct PrepareParams {
     pub coarsen: CoarsenParams,
     /// Wrapping settings (for parts that overlap or stand on the ground).
     pub wrap: WrapParams,
+    /// Measure how far a whole body (not declared a half model) is from
+    /// symmetric about y = 0, as the cut a half model would make
+    /// ([`MirrorReport::halves`]; `tuft check` asks, a run does not).
+    pub measure_symmetry: bool,
 }
 
 impl Default for PrepareParams {
@@ -59,6 +63,7 @@ impl Default for PrepareParams {
             repair: RepairParams::default(),
             coarsen: CoarsenParams::default(),
             wrap: WrapParams::default(),
+            measure_symmetry: false,
         }
     }
 }
@@ -77,6 +82,10 @@ pub struct MirrorReport {
     /// A whole body declared a half model, cut at `y = 0`
     /// ([`crate::cut::keep_right_half`]).
     pub whole_cut: Option<crate::cut::HalfCut>,
+    /// For a whole body not declared a half model, when asked
+    /// ([`PrepareParams::measure_symmetry`]): the cut at y = 0 a half model
+    /// would make, with how far its halves differ.
+    pub halves: Option<crate::cut::HalfCut>,
 }
 
 /// A half model's vertices within this fraction of the body's diagonal of
@@ -164,6 +173,10 @@ pub fn prepare_mesh(
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
+    let halves = (params.measure_symmetry && !params.mirrors.symmetry)
+        .then(|| crate::cut::keep_right_half(&mesh).ok().flatten())
+        .flatten()
+        .map(|(_, cut)| cut);
     let whole_cut = if params.mirrors.symmetry {
         match crate::cut::keep_right_half(&mesh)? {
             Some((half, cut)) => {
@@ -261,6 +274,7 @@ pub fn prepare_mesh(
             cut_vertices_moved,
             cut_largest_move,
             whole_cut,
+            halves,
         },
         repair,
         wrap,
