@@ -47,6 +47,16 @@ pub struct LineSample {
     /// Outward unit normal of the surface at the station (zero on a 2D
     /// section, where no face rises into the stream).
     pub normal: Vector3<f64>,
+    /// The top of the face into the stream the line last climbed onto over
+    /// a concave turn: of the connected region of panels facing the stream
+    /// round the panel where the line met it, the point that rises highest
+    /// above the surface the line came from, among the points that lie
+    /// within [`STEP_FACE_REACH`] times their rise of where the line met
+    /// the face. `None` before any such face and on a 2D section. The step
+    /// rule measures the face's height to it, so a line that meets a tall
+    /// face near its foot and passes round its side sees the face's height,
+    /// not the few centimetres it climbed (`step_bubble_end`).
+    pub face_top: Option<Point3<f64>>,
 }
 
 /// How the line starts.
@@ -130,6 +140,24 @@ pub const BUBBLE_MIN_STATIONS: f64 = 6.0;
 /// step (Moss & Baker 1980; Sherry, Lo Jacono & Sheridan 2010; from
 /// memory). 1.5 is our margin on that.
 pub const STEP_SEPARATION_HEIGHTS: f64 = 1.5;
+
+/// How far from the point where a line meets a face into the stream a
+/// point of that face may lie, in multiples of its rise above the surface
+/// the line came from, to count towards the face's height
+/// ([`LineSample::face_top`]): 2, so the face must climb at 30 degrees or
+/// more on the way from the foot to the point (our choice). The faces into
+/// the stream that meet are one region (a windscreen, its pillars, a
+/// bumper, the nose below them), and a point far from the foot does not
+/// shape the bubble there: ahead of a step the separated region spans
+/// about a step height, along the wall and up the face (see
+/// [`STEP_SEPARATION_HEIGHTS`]), so what counts is how high the face rises
+/// close to where the line meets it. A screen inclined 30 degrees or more
+/// counts up to its top (which lies 1 / sin of its angle times its rise
+/// from its foot: 1.1 to 2 rises), seen from the pillar's foot too; a
+/// shallower face counts along the line only, as lines climb it anyway.
+/// The nose and the bumper lie below a bonnet and a roof, and a low lip's
+/// region rises only as high as the lip.
+pub const STEP_FACE_REACH: f64 = 2.0;
 
 /// Least turn between the surface a layer separated on and the surface
 /// beyond the face into the stream it then met, for the line to have gone
@@ -379,7 +407,10 @@ fn junction_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// step; see [`STEP_SEPARATION_HEIGHTS`]). The face's foot is the first
 /// station after a concave turn of at least [`BUBBLE_CONCAVE_TURN`] onto it;
 /// its height is how far its stations rise above the separated surface's
-/// plane, and the separation must lie within [`STEP_SEPARATION_HEIGHTS`]
+/// plane, or its top ([`LineSample::face_top`], the face's own height near
+/// where the line meets it, which counts when the line crosses only its
+/// foot and passes round its side: a bonnet's line round a windscreen's
+/// pillar) if that rises higher, and the separation must lie within [`STEP_SEPARATION_HEIGHTS`]
 /// such heights of the foot. The bubble closes where the edge speed regains
 /// its value at separation (as [`corner_bubble_end`]) or, at the latest,
 /// where the face ends. `None` when a bluff edge comes first or the face is
@@ -392,13 +423,22 @@ fn step_bubble_end(ctx: &Station) -> Option<usize> {
         .take_while(|b| !b.forced_separation)
         .position(|b| b.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN)?;
     let face = &later[foot..];
+    // The foot's station need not face the stream: the turn may reach its
+    // threshold on a sliver of the face crossed between two stations (a
+    // facet in the corner at a screen's foot, the few centimetres a line
+    // crosses before it turns round a pillar). The face's top still
+    // counts, and the bubble then closes at that station at the latest.
     let face_len = face.iter().take_while(|b| b.faces_stream).count();
-    if face_len == 0 {
+    if face_len == 0 && face[0].face_top.is_none() {
         return None;
     }
+    // The face's height: how high its stations rise above the separated
+    // surface's plane, or its top (`LineSample::face_top`) when the line
+    // meets it near its foot and passes round its side.
     let height = face[..face_len]
         .iter()
         .map(|b| (b.point - here.point).dot(&here.normal))
+        .chain(face[0].face_top.map(|p| (p - here.point).dot(&here.normal)))
         .fold(0.0, f64::max);
     if face[0].s - here.s > STEP_SEPARATION_HEIGHTS * height {
         return None;

@@ -49,7 +49,8 @@
 //! - **Short bubbles.** A turbulent separation in a concave corner facing
 //!   the stream (the foot of a windscreen) closes again when the edge speed
 //!   recovers within a few thicknesses, as does one ahead of a face into
-//!   the stream high enough to catch its shear layer, or one whose line
+//!   the stream high enough to catch its shear layer (its height taken
+//!   from the face round where the line meets it, `FaceRegions`), or one whose line
 //!   passes round such a face's side (a pillar); see
 //!   [`march::march_line`] and `params.reattach_thicknesses`.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
@@ -410,6 +411,8 @@ struct LineContext<'a> {
     crumpled: Vec<bool>,
     /// Largest radius of a rim, m ([`RIM_RADIUS`]).
     rim_radius: f64,
+    /// The regions of panels facing into the stream ([`FaceRegions`]).
+    faces: FaceRegions,
 }
 
 impl<'a> LineContext<'a> {
@@ -427,6 +430,7 @@ impl<'a> LineContext<'a> {
         let mut sizes: Vec<f64> = mesh.panels.iter().map(|p| p.size).collect();
         sizes.sort_by(f64::total_cmp);
         let median_size = sizes[sizes.len() / 2];
+        let faces = FaceRegions::new(mesh, |t| faces_stream(mesh, t, flow_dir));
         Self {
             mesh,
             field,
@@ -437,6 +441,7 @@ impl<'a> LineContext<'a> {
             params,
             crumpled: crumpled_panels(mesh),
             rim_radius: rim_radius(mesh, flow_dir),
+            faces,
         }
     }
 
@@ -553,7 +558,7 @@ impl<'a> LineContext<'a> {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
-        let concave = self.concave_turns(trace);
+        let (concave, tops) = self.concave_turns(trace);
         let mut out = Vec::with_capacity(n + 1);
         let mut segments = Vec::with_capacity(n + 1);
         let mut seg = 0;
@@ -583,6 +588,7 @@ impl<'a> LineContext<'a> {
                 faces_stream: self.faces_stream(panel as usize),
                 point: p,
                 normal: *self.mesh.panels[panel as usize].normal,
+                face_top: tops[seg],
             });
             segments.push(seg);
         }
@@ -601,30 +607,41 @@ impl<'a> LineContext<'a> {
     /// [`march::BUBBLE_CONCAVE_TURN`] (the foot of a windscreen, the face
     /// of a step: the stream is pushed back onto the surface there; at the
     /// foot of a rear window the boot deck faces up, not into the stream).
-    fn concave_turns(&self, trace: &Trace) -> Vec<f64> {
+    /// Also the top of the face the line last climbed onto by such a
+    /// crossing ([`LineSample::face_top`]), taken where it entered that
+    /// face's region, above the plane of the panel it came from.
+    fn concave_turns(&self, trace: &Trace) -> (Vec<f64>, Vec<Option<Point3<f64>>>) {
         let mut acc = 0.0;
         let mut out = Vec::with_capacity(trace.panels.len());
+        let mut tops = Vec::with_capacity(trace.panels.len());
+        // The top of the last face climbed onto, and the region the line is
+        // on while it stays on that face.
+        let (mut top, mut on) = (None, None);
         for (j, &b) in trace.panels.iter().enumerate() {
             if let Some(&a) = j.checked_sub(1).and_then(|i| trace.panels.get(i))
                 && a != b
             {
                 let (pa, pb) = (&self.mesh.panels[a as usize], &self.mesh.panels[b as usize]);
-                if pa.normal.dot(&(pb.centroid - pa.centroid)) > 0.0
-                    && self.faces_stream(b as usize)
-                {
+                let region = self.faces.label[b as usize];
+                if region.is_none() {
+                    on = None;
+                } else if pa.normal.dot(&(pb.centroid - pa.centroid)) > 0.0 {
                     acc += pa.normal.dot(&pb.normal).clamp(-1.0, 1.0).acos();
+                    if on != region {
+                        top = self.faces.top(b as usize, &trace.points[j], &pa.normal);
+                        on = region;
+                    }
                 }
             }
             out.push(acc);
+            tops.push(top);
         }
-        out
+        (out, tops)
     }
 
-    /// True when panel `t` faces into the stream, inclined by at least
-    /// [`march::BUBBLE_CONCAVE_TURN`] against it (a windscreen, the face of
-    /// a step).
+    /// True when panel `t` faces into the stream ([`faces_stream`]).
     fn faces_stream(&self, t: usize) -> bool {
-        self.mesh.panels[t].normal.dot(&self.flow_dir) <= -march::BUBBLE_CONCAVE_TURN.sin()
+        faces_stream(self.mesh, t, &self.flow_dir)
     }
 
     /// See [`crumpled_panels`].
@@ -866,6 +883,80 @@ const RIM_FACE_RADII: f64 = 2.0;
 /// True when panel `t` faces upstream of `flow_dir` ([`FRONT_FACING_COS`]).
 fn faces_upstream(mesh: &PanelMesh, t: usize, flow_dir: &Vector3<f64>) -> bool {
     mesh.panels[t].normal.dot(flow_dir) <= -FRONT_FACING_COS
+}
+
+/// True when panel `t` faces into a stream along `flow_dir`, inclined by
+/// at least [`march::BUBBLE_CONCAVE_TURN`] against it (a windscreen, the
+/// face of a step).
+fn faces_stream(mesh: &PanelMesh, t: usize, flow_dir: &Vector3<f64>) -> bool {
+    mesh.panels[t].normal.dot(flow_dir) <= -march::BUBBLE_CONCAVE_TURN.sin()
+}
+
+/// The connected regions (over shared edges) of the panels that face into
+/// the stream, for the height of the face a line meets
+/// ([`LineSample::face_top`]): a label per panel and the vertices of each
+/// region, found once per mesh.
+struct FaceRegions {
+    /// The region of each panel; `None` for a panel that does not face
+    /// into the stream.
+    label: Vec<Option<u32>>,
+    /// The vertices of each region's panels, each once.
+    points: Vec<Vec<Point3<f64>>>,
+}
+
+impl FaceRegions {
+    /// The regions of the panels for which `faces` holds.
+    fn new(mesh: &PanelMesh, faces: impl Fn(usize) -> bool) -> Self {
+        let mut label = vec![None; mesh.len()];
+        let mut points = Vec::new();
+        let mut stamp = vec![u32::MAX; mesh.vertices.len()];
+        let mut queue = VecDeque::new();
+        for seed in 0..mesh.len() {
+            if label[seed].is_some() || !faces(seed) {
+                continue;
+            }
+            let region = points.len() as u32;
+            let mut here = Vec::new();
+            label[seed] = Some(region);
+            queue.push_back(seed);
+            while let Some(t) = queue.pop_front() {
+                for &v in &mesh.triangles[t] {
+                    if stamp[v as usize] != region {
+                        stamp[v as usize] = region;
+                        here.push(mesh.vertices[v as usize]);
+                    }
+                }
+                for &j in mesh.edge_neighbours[t].iter().flatten() {
+                    let j = j as usize;
+                    if label[j].is_none() && faces(j) {
+                        label[j] = Some(region);
+                        queue.push_back(j);
+                    }
+                }
+            }
+            points.push(here);
+        }
+        Self { label, points }
+    }
+
+    /// The top of panel `t`'s region as a line that meets it at `foot`
+    /// from a surface with outward normal `up` sees it: of the region's
+    /// points that lie within [`march::STEP_FACE_REACH`] times their rise
+    /// above that surface's plane of `foot`, the one that rises highest.
+    /// `None` when `t` does not face the stream or no point rises so.
+    fn top(&self, t: usize, foot: &Point3<f64>, up: &Vector3<f64>) -> Option<Point3<f64>> {
+        let region = self.label[t]? as usize;
+        let reach = march::STEP_FACE_REACH * march::STEP_FACE_REACH;
+        self.points[region]
+            .iter()
+            .filter_map(|p| {
+                let d = p - foot;
+                let rise = d.dot(up);
+                (rise > 0.0 && d.norm_squared() <= reach * rise * rise).then_some((rise, *p))
+            })
+            .max_by(|a, b| a.0.total_cmp(&b.0))
+            .map(|(_, p)| p)
+    }
 }
 
 /// A surface whose normal points against the flow by more than this
@@ -1176,5 +1267,122 @@ fn fill(mesh: &PanelMesh, best: &mut [Option<Contribution>], params: &BoundaryLa
                 best[j] = copy;
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tuft_mesh::{Mirrors, TriMesh};
+
+    /// A surface swept across the stream (along y): `profile(y)` gives its
+    /// section in the x-z plane at each y of `ys`, each with the same number
+    /// of points, in the stream's direction (+x); the outward normals point
+    /// up on level parts and upstream on rising ones.
+    fn swept(ys: &[f64], profile: impl Fn(f64) -> Vec<(f64, f64)>) -> PanelMesh {
+        let sections: Vec<Vec<(f64, f64)>> = ys.iter().map(|&y| profile(y)).collect();
+        let n = sections[0].len();
+        let vertices = ys
+            .iter()
+            .zip(&sections)
+            .flat_map(|(&y, s)| s.iter().map(move |&(x, z)| Point3::new(x, y, z)))
+            .collect();
+        let at = |k: usize, i: usize| (k * n + i) as u32;
+        let mut triangles = Vec::new();
+        for k in 0..ys.len() - 1 {
+            for i in 0..n - 1 {
+                triangles.push([at(k, i), at(k, i + 1), at(k + 1, i + 1)]);
+                triangles.push([at(k, i), at(k + 1, i + 1), at(k + 1, i)]);
+            }
+        }
+        PanelMesh::new(TriMesh::new(vertices, triangles).unwrap(), Mirrors::none()).unwrap()
+    }
+
+    /// A level floor to x = 1, then a face rising `height` at `deg` degrees
+    /// (in four panels' rows), then a level top to x = 3.
+    fn step(height: f64, deg: f64) -> Vec<(f64, f64)> {
+        let run = height / deg.to_radians().tan();
+        let mut s = vec![(0.0, 0.0), (0.5, 0.0), (1.0, 0.0)];
+        s.extend((1..=4).map(|k| (1.0 + run * k as f64 / 4.0, height * k as f64 / 4.0)));
+        s.extend([(2.0 + run, height), (3.0 + run, height)]);
+        s
+    }
+
+    fn step_mesh(ys: &[f64], height: f64, deg: f64) -> PanelMesh {
+        swept(ys, |_| step(height, deg))
+    }
+
+    fn regions(mesh: &PanelMesh) -> FaceRegions {
+        FaceRegions::new(mesh, |t| faces_stream(mesh, t, &Vector3::x()))
+    }
+
+    /// The panel of `mesh` whose centroid lies nearest `p` among those
+    /// facing the stream.
+    fn face_panel(mesh: &PanelMesh, p: Point3<f64>) -> usize {
+        (0..mesh.len())
+            .filter(|&t| faces_stream(mesh, t, &Vector3::x()))
+            .min_by(|&a, &b| {
+                let d = |t: usize| (mesh.panels[t].centroid - p).norm();
+                d(a).total_cmp(&d(b))
+            })
+            .unwrap()
+    }
+
+    fn rise(top: Option<Point3<f64>>, foot: Point3<f64>) -> f64 {
+        top.map_or(0.0, |p| (p - foot).dot(&Vector3::z()))
+    }
+
+    /// A windscreen-like face (0.48 m at 55 degrees, 1.2 m wide) is as high
+    /// seen from its foot's middle as from its outboard end, where a line
+    /// that crosses a few centimetres of it and turns round its side meets
+    /// it.
+    #[test]
+    fn a_face_is_as_high_from_its_side_as_from_its_middle() {
+        let ys: Vec<f64> = (0..=8).map(|k| -0.6 + 0.15 * k as f64).collect();
+        let mesh = step_mesh(&ys, 0.48, 55.0);
+        let faces = regions(&mesh);
+        for y in [0.0, 0.6] {
+            let foot = Point3::new(1.0, y, 0.0);
+            let t = face_panel(&mesh, Point3::new(1.02, y, 0.02));
+            let h = rise(faces.top(t, &foot, &Vector3::z()), foot);
+            assert!((h - 0.48).abs() < 1e-9, "from y = {y}: {h}");
+        }
+    }
+
+    /// A ramp rising at 20 degrees has no point within twice its rise of
+    /// its foot (`march::STEP_FACE_REACH`): it is no step, whatever its
+    /// height.
+    #[test]
+    fn a_shallow_ramp_is_no_step() {
+        let mesh = step_mesh(&[-0.5, 0.0, 0.5], 0.5, 20.0);
+        let faces = regions(&mesh);
+        let foot = Point3::new(1.0, 0.0, 0.0);
+        let t = face_panel(&mesh, Point3::new(1.1, 0.0, 0.03));
+        assert_eq!(faces.top(t, &foot, &Vector3::z()), None);
+    }
+
+    /// A face whose height grows along its foot, from 3 cm to 1 m over
+    /// 3 m, is as high as it rises near where a line meets it: from the
+    /// low end, the high end's metre lies more than twice its rise away.
+    /// And a second face further down the stream, not joined to the first
+    /// by faces into the stream, does not count.
+    #[test]
+    fn only_the_face_near_the_foot_counts() {
+        let ys: Vec<f64> = (0..=30).map(|k| 0.1 * k as f64).collect();
+        let mesh = swept(&ys, |y| {
+            let mut s = step(0.03 + (1.0 - 0.03) * y / 3.0, 60.0);
+            s.truncate(s.len() - 1);
+            s.extend([(4.0, s[s.len() - 1].1), (4.2, 2.0), (5.0, 2.0)]);
+            s
+        });
+        let faces = regions(&mesh);
+        let foot = Point3::new(1.0, 0.0, 0.0);
+        let t = face_panel(&mesh, Point3::new(1.005, 0.01, 0.01));
+        let h = rise(faces.top(t, &foot, &Vector3::z()), foot);
+        println!("face rising from 3 cm to 1 m along its foot: {h:.3} m seen from its low end");
+        assert!(h > 0.03 && h < 0.15, "{h}");
+        let far = Point3::new(1.0, 3.0, 0.0);
+        let t = face_panel(&mesh, Point3::new(1.3, 3.0, 0.5));
+        assert!((rise(faces.top(t, &far, &Vector3::z()), far) - 1.0).abs() < 1e-9);
     }
 }
