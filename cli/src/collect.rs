@@ -1,8 +1,9 @@
 //! `tuft collect DIR`: merge the finished variants of a sweep into
 //! `sweep.csv`, `sweep.json` and a self-contained `sweep.html` (the
 //! variants' warnings, a ranking by drag within each wind condition, the
-//! named regions' verdicts and plots of drag, lift and separated area
-//! against each swept value).
+//! named regions' verdicts, each variant's separation risk at a glance
+//! from the side and from above in rank order, and plots of drag, lift and
+//! separated area against each swept value).
 //!
 //! Exit codes: 0 every planned variant was found and none carries a
 //! warning, 1 some are missing or failed or carry warnings (listed; a
@@ -660,7 +661,117 @@ fn write_outputs(dir: &Path, c: &Collected) -> Result<()> {
         (serde_json::to_string_pretty(c)? + "\n").as_bytes(),
     )?;
     let plots = plots(c)?;
-    write_whole(&dir.join("sweep.html"), page(c, &plots).as_bytes())
+    let glance = glance(dir, c);
+    write_whole(&dir.join("sweep.html"), page(c, &plots, &glance).as_bytes())
+}
+
+/// The pictures of the page's "Separation at a glance": the key, and for
+/// each ranked variant (in rank order) its label with its picture or why
+/// it has none.
+#[derive(Default)]
+struct Glance {
+    /// The section's key (colour bar, hatching, outline, scale bar).
+    key: Option<Vec<u8>>,
+    /// Each variant's name, label and picture (PNG) or what stopped it.
+    rows: Vec<GlanceRow>,
+}
+
+/// One variant's row of [`Glance`].
+struct GlanceRow {
+    name: String,
+    label: String,
+    picture: std::result::Result<Vec<u8>, String>,
+}
+
+/// Draw [`Glance`] from the variants' folders in `dir` (their `mesh.json`
+/// and `panels.csv`, read as `tuft compare` reads them), all at one scale
+/// ([`crate::output::glance::GlanceLayout`]); a variant whose files are
+/// missing or unreadable gets the reason instead of a picture.
+fn glance(dir: &Path, c: &Collected) -> Glance {
+    use crate::compare::{PanelFields, ResultFolder};
+    use crate::output::glance;
+    let prefix = format!("{}/", dir.display());
+    let folders: Vec<std::result::Result<(ResultFolder, tuft_mesh::PanelMesh), String>> = c
+        .variants
+        .iter()
+        .map(|r| {
+            let read = || -> Result<_> {
+                let folder = ResultFolder::read(&dir.join(&r.name))?;
+                let mesh = folder.mesh()?;
+                Ok((folder, mesh))
+            };
+            read().map_err(|e| format!("{e:#}").replace(&prefix, ""))
+        })
+        .collect();
+    let bodies: Vec<(&tuft_mesh::PanelMesh, f64)> = folders
+        .iter()
+        .zip(&c.variants)
+        .filter_map(|(f, r)| f.as_ref().ok().map(|(_, mesh)| (mesh, r.yaw_deg)))
+        .collect();
+    let layout = glance::GlanceLayout::new(&bodies);
+    let (mut unresolved, mut regions) = (false, false);
+    let rows = folders
+        .iter()
+        .zip(&c.variants)
+        .map(|(f, r)| {
+            let label = glance_label(c, r);
+            let picture = f.as_ref().map_err(Clone::clone).and_then(|(folder, mesh)| {
+                let fields = PanelFields::new(folder);
+                let marks = crate::region::marks(&folder.regions(), mesh);
+                unresolved |= fields
+                    .state()
+                    .contains(&crate::output::PanelState::Unresolved);
+                regions |= !marks.is_empty();
+                glance::picture(&fields.surface(mesh), r.yaw_deg, &label, &marks, &layout)
+                    .and_then(|canvas| canvas.to_png())
+                    .map_err(|e| format!("cannot draw it: {e}"))
+            });
+            GlanceRow {
+                name: r.name.clone(),
+                label,
+                picture,
+            }
+        })
+        .collect();
+    let key = (!bodies.is_empty())
+        .then(|| {
+            glance::key(&layout, unresolved, regions)
+                .and_then(|k| k.to_png())
+                .ok()
+        })
+        .flatten();
+    Glance { key, rows }
+}
+
+/// A variant's label on its picture: rank, name, swept values, C_D and
+/// separated share, e.g. "2. rear_window_deg-28: rear-window slope 28°;
+/// C_D 0.149; separated 10.0 % of the surface".
+fn glance_label(c: &Collected, r: &Row) -> String {
+    let settings: Vec<String> = c
+        .keys
+        .iter()
+        .filter_map(|k| {
+            let v = r.settings.get(k)?;
+            let unit = match unit_of(k) {
+                "-" => String::new(),
+                "degrees" => "°".into(),
+                u => format!(" {u}"),
+            };
+            // Numbers as Rust writes them: 22, not the JSON's 22.0.
+            let value = v
+                .as_f64()
+                .map_or_else(|| shown_cell(k, v), |x| x.to_string());
+            Some(format!("{} {value}{unit}", key_words(k)))
+        })
+        .collect();
+    let mut words = format!("{}. {}", r.rank, r.name);
+    if !settings.is_empty() {
+        words += &format!(": {}", settings.join(", "));
+    }
+    format!(
+        "{words}; C_D {:.3}; separated {:.1} % of the surface",
+        r.cd, r.separated_percent
+    )
 }
 
 fn cell(v: &serde_json::Value) -> String {
@@ -881,7 +992,12 @@ fn key_name(key: &str) -> Option<&'static str> {
 
 /// A swept key with its unit.
 fn plain_axis_label(key: &str) -> String {
-    let unit = match key {
+    format!("{key} [{}]", unit_of(key))
+}
+
+/// The unit of a swept key tuft knows, "-" for others.
+fn unit_of(key: &str) -> &'static str {
+    match key {
         "flow.speed" => "m/s",
         "flow.speed_kmh" => "km/h",
         "flow.yaw"
@@ -896,8 +1012,7 @@ fn plain_axis_label(key: &str) -> String {
         "flow.density" => "kg/m³",
         "flow.viscosity" => "m²/s",
         _ => "-",
-    };
-    format!("{key} [{unit}]")
+    }
 }
 
 /// The colour of a drag band's ends on the sweep's drag plot.
@@ -942,7 +1057,9 @@ main{max-width:1240px;margin:0 auto;padding:28px 32px 48px}h1{font-size:30px}h2{
 .caution{background:#fff7ea;border-left:6px solid #b5651d;padding:12px 16px;font-weight:600}\
 table{border-collapse:collapse;background:#fff}th,td{padding:6px 12px;border-bottom:1px solid #dcdfe5;text-align:right}\
 th{background:#eef1f0;font-size:13px}td.name{text-align:left;font-weight:600}figure{margin:0 0 24px;background:#fff;padding:10px}\
-figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}";
+figure img{width:100%;height:auto}figcaption{color:#62656e;font-size:14px}\
+div.glance{margin:0 0 10px}img.glance,img.glance-key{display:block;max-width:100%;height:auto;background:#fff}\
+img.glance-key{margin:0 0 10px}p.glance-none{background:#fff;padding:8px 10px;color:#8a4b12}";
 
 /// A warning when the separated share of the surface varies across the
 /// variants by more than [`crate::compare::SEPARATION_SHIFT`]: the drag
@@ -1041,7 +1158,7 @@ fn spread(c: &[Row], f: impl Fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> 
 }
 
 /// The self-contained page.
-fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
+fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     let mut s = format!(
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>{0}: sweep</title>\n\
          <style>{STYLE}</style>\n</head>\n<body>\n<main>\n<h1>Sweep {0}</h1>\n<div class=\"caution\">{1}</div>\n",
@@ -1086,6 +1203,7 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         }
         s.push_str("</ul>\n");
     }
+    glance_section(&mut s, c, glance);
     if !plots.is_empty() {
         s.push_str("<h2>Plots</h2>\n");
     }
@@ -1117,6 +1235,76 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         env!("CARGO_PKG_VERSION")
     );
     s
+}
+
+/// The "Separation at a glance" section: the key, then one picture per
+/// ranked variant in rank order (under its wind condition's label when
+/// the ranking restarts per condition), a line for one without, and a
+/// line for each planned variant that failed or has not finished.
+fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
+    if glance.rows.is_empty() {
+        return;
+    }
+    let yawed = c.variants.iter().any(|r| r.yaw_deg > 0.0);
+    let _ = writeln!(
+        s,
+        "<h2>Separation at a glance</h2>\n<p>Each variant's separation risk seen from the side and from above, in \
+         rank order, drawn as on its report's separation-risk picture and all at one scale, so that sizes and \
+         places compare from row to row: colour from 0 (far from separating) to 1 (at the criterion), \
+         hatched where the flow has separated, named regions outlined{}. Each picture opens the variant's \
+         report.</p>",
+        if yawed {
+            "; a yawed variant is seen from its lee side (from +y, nose right, at a positive yaw), where a \
+             cross wind moves the separation"
+        } else {
+            ""
+        }
+    );
+    let b64 = |png: &[u8]| base64::engine::general_purpose::STANDARD.encode(png);
+    if let Some(key) = &glance.key {
+        let _ = writeln!(
+            s,
+            "<img class=\"glance-key\" alt=\"Key: separation risk colours, hatching of separated panels, region \
+             outline and scale bar\" src=\"data:image/png;base64,{}\">",
+            b64(key)
+        );
+    }
+    let groups = wind_groups(c);
+    let mut rows = glance.rows.iter();
+    for (label, group) in &groups {
+        if groups.len() > 1 {
+            let _ = writeln!(s, "<h3>{}</h3>", escape(label));
+        }
+        for row in rows.by_ref().take(group.len()) {
+            match &row.picture {
+                Ok(png) => {
+                    let _ = writeln!(
+                        s,
+                        "<div class=\"glance\"><a href=\"{0}/report.html\"><img class=\"glance\" alt=\"{1}\" \
+                         src=\"data:image/png;base64,{2}\"></a></div>",
+                        escape(&row.name),
+                        escape(&row.label),
+                        b64(png)
+                    );
+                }
+                Err(why) => {
+                    let _ = writeln!(
+                        s,
+                        "<p class=\"glance-none\">{}: no picture ({}).</p>",
+                        escape(&row.label),
+                        escape(why)
+                    );
+                }
+            }
+        }
+    }
+    for m in &c.missing {
+        let _ = writeln!(
+            s,
+            "<p class=\"glance-none\">{}: failed or not finished, no picture.</p>",
+            escape(m)
+        );
+    }
 }
 
 /// `text` with its first letter capitalised.
@@ -1221,7 +1409,7 @@ mod tests {
     fn shown(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         let mut c = c.clone();
         judge(&mut c);
-        page(&c, plots)
+        page(&c, plots, &Glance::default())
     }
 
     fn sweep(shares: &[f64]) -> Collected {
@@ -1302,6 +1490,58 @@ mod tests {
         );
         assert!(html.contains("No plot against geometry.stl"));
         assert!(csv(&c).contains("/scans/deck0.stl"));
+    }
+
+    /// A picture's label gives the rank, name, swept values in words with
+    /// their units, C_D and the separated share; the section lists the
+    /// pictures in rank order and a line for a variant without one.
+    #[test]
+    fn glance_labels_and_rows() {
+        let mut c = sweep(&[10.0, 12.5]);
+        c.keys = vec!["geometry.rear_window_deg".into(), "flow.yaw".into()];
+        for (r, deg) in c.variants.iter_mut().zip([22.0, 28.0]) {
+            r.settings.insert(
+                "geometry.rear_window_deg".into(),
+                serde_json::Value::from(deg),
+            );
+            r.settings
+                .insert("flow.yaw".into(), serde_json::Value::from(0.0));
+        }
+        c.variants[1].cd = 0.3125;
+        assert_eq!(
+            glance_label(&c, &c.variants[1]),
+            "2. v1: rear-window slope 28°, yaw 0°; C_D 0.312; separated 12.5 % of the surface"
+        );
+        c.missing = vec!["v2".into()];
+        let glance = Glance {
+            key: Some(vec![1, 2]),
+            rows: vec![
+                GlanceRow {
+                    name: "v0".into(),
+                    label: glance_label(&c, &c.variants[0]),
+                    picture: Ok(vec![3, 4]),
+                },
+                GlanceRow {
+                    name: "v1".into(),
+                    label: glance_label(&c, &c.variants[1]),
+                    picture: Err("v1/mesh.json: missing".into()),
+                },
+            ],
+        };
+        let html = page(&c, &[], &glance);
+        let at = |what: &str| html.find(what).unwrap_or_else(|| panic!("{what}: {html}"));
+        assert!(at("<h2>Separation at a glance</h2>") < at("<img class=\"glance-key\""));
+        assert!(at("<img class=\"glance-key\"") < at("alt=\"1. v0: rear-window slope 22°"));
+        assert!(at("href=\"v0/report.html\"><img class=\"glance\"") > 0);
+        assert!(
+            at("alt=\"1. v0") < at("<p class=\"glance-none\">2. v1: rear-window slope 28°")
+                && at("no picture (v1/mesh.json: missing).")
+                    < at("v2: failed or not finished, no picture.")
+        );
+        // Not yawed: no lee side to speak of.
+        assert!(!html.contains("lee side"));
+        // No rows (nothing read): no section.
+        assert!(!shown(&c, &[]).contains("Separation at a glance"));
     }
 
     /// Variants on panel counts more than 5 % apart get the page's note.

@@ -25,7 +25,7 @@ use std::process::ExitCode;
 use anyhow::{Context, Result};
 use serde::{Deserialize, Serialize};
 
-pub use folder::{ResultFolder, read_summary};
+pub use folder::{PanelFields, ResultFolder, read_summary};
 use mapping::{Mapping, SourcePanel, map_nearest};
 #[cfg(test)]
 use verdict::drag_verdict;

@@ -155,10 +155,14 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     assert_eq!(csv.lines().count(), 4);
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
     assert_eq!(
-        html.matches("data:image/png;base64,").count(),
+        html.matches("<figure><img").count(),
         3,
         "drag, lift, separated area against yaw"
     );
+    // Each yaw angle's variant at a glance, under its wind condition.
+    assert_eq!(html.matches("<img class=\"glance\"").count(), 3);
+    assert!(html.contains("<h3>yaw 4°</h3>"), "{html}");
+    assert!(html.contains("seen from its lee side"), "{html}");
     // The separated-share caution is judged within a wind condition, and
     // each condition here has one variant: nothing to compare.
     assert!(!html.contains("drag ranking of rear slants"));
@@ -461,4 +465,129 @@ fn a_closed_stdout_ends_sweep_collect_and_compare_quietly() {
     let (code, err) = closed(&["compare", "s/speed-20", "s/speed-30", "--out", "c"]);
     assert!(matches!(code, Some(0 | 1)), "{err}");
     assert!(d.join("c").join("compare.json").is_file());
+}
+
+/// The pictures of `sweep.html`'s "Separation at a glance", in page
+/// order: (alt text, PNG).
+fn glance_pictures(html: &str) -> Vec<(String, Vec<u8>)> {
+    use base64::Engine as _;
+    html.split("<img class=\"glance\" alt=\"")
+        .skip(1)
+        .map(|rest| {
+            let (alt, rest) = rest.split_once('"').unwrap();
+            let data = rest
+                .split_once("base64,")
+                .unwrap()
+                .1
+                .split_once('"')
+                .unwrap()
+                .0;
+            let png = base64::engine::general_purpose::STANDARD
+                .decode(data)
+                .unwrap();
+            (alt.to_string(), png)
+        })
+        .collect()
+}
+
+/// `sweep.html` shows every ranked variant's separation at a glance, one
+/// picture each in rank order, labelled with its rank, name, swept value,
+/// C_D and separated share, all at one scale (spheres of radius 0.25,
+/// 0.35 and 0.5: the body's pixels grow with the radius squared); a
+/// variant that failed and one whose `mesh.json` is gone get a line
+/// saying so, and the rest of the page and files are still written.
+#[test]
+fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("s.toml");
+    std::fs::write(
+        &file,
+        "combine = \"each\"\n[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+         [[base.region]]\nname = \"rear half\"\nfacing = \"rear\"\n\
+         [[vary]]\nkey = \"radius\"\nvalues = [0.5, 0.25, 0.35]\n\
+         [[vary]]\nkey = \"yaw\"\nvalues = [45.0]\n",
+    )
+    .unwrap();
+    let out = d.join("s");
+    let (code, err) = tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    // yaw-45 fails: beyond the 30 degrees a case accepts.
+    assert_eq!(code, 2, "{err}");
+    let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 1, "{err}");
+    let c = json(&out.join("sweep.json"));
+    let ranked: Vec<(u64, String, f64)> = c["variants"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| {
+            (
+                r["rank"].as_u64().unwrap(),
+                r["name"].as_str().unwrap().to_string(),
+                r["settings"]["geometry.radius"].as_f64().unwrap(),
+            )
+        })
+        .collect();
+    assert_eq!(ranked.len(), 3);
+    let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
+    let section = html.find("<h2>Separation at a glance</h2>").unwrap();
+    assert!(html.find("<h2>Ranking</h2>").unwrap() < section);
+    assert!(section < html.find("<h2>Plots</h2>").unwrap());
+    assert!(html.contains("<img class=\"glance-key\""));
+    let pictures = glance_pictures(&html);
+    assert_eq!(pictures.len(), 3, "one picture per variant");
+    let mut body = Vec::new();
+    for ((alt, png), (rank, name, radius)) in pictures.iter().zip(&ranked) {
+        assert!(alt.starts_with(&format!("{rank}. {name}: ")), "{alt}");
+        assert!(
+            alt.contains(&format!("geometry.radius {radius} m; C_D "))
+                && alt.contains("% of the surface"),
+            "{alt}"
+        );
+        let p = common::read_png(png);
+        assert_eq!((p.width, p.height), (1140, 300));
+        // The pair of views under the label band: not white is body,
+        // outline or the region's name.
+        let drawn = p
+            .pixels
+            .chunks(p.channels)
+            .skip(60 * p.width as usize)
+            .filter(|px| px[..3] != [255, 255, 255])
+            .count();
+        body.push((*radius, drawn as f64));
+    }
+    body.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let ratio = body[2].1 / body[0].1;
+    assert!((3.4..4.4).contains(&ratio), "{body:?}: one scale for all");
+    assert!(
+        html.contains("<p class=\"glance-none\">yaw-45: failed or not finished, no picture.</p>"),
+        "{html}"
+    );
+    // Without its mesh.json the second variant gets a line, not a picture.
+    let second = &ranked[1].1;
+    std::fs::remove_file(out.join(second).join("mesh.json")).unwrap();
+    let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 1, "{err}");
+    let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
+    let pictures = glance_pictures(&html);
+    assert_eq!(pictures.len(), 2);
+    assert!(pictures[0].0.starts_with(&format!("1. {}", ranked[0].1)));
+    assert!(pictures[1].0.starts_with(&format!("3. {}", ranked[2].1)));
+    let line = html
+        .split("<p class=\"glance-none\">")
+        .nth(1)
+        .unwrap()
+        .split("</p>")
+        .next()
+        .unwrap();
+    assert!(
+        line.starts_with(&format!("2. {second}: ")) && line.contains("mesh.json: missing"),
+        "{line}"
+    );
+    assert!(html.contains("<h2>Plots</h2>"));
 }

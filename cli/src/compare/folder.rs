@@ -7,7 +7,7 @@ use anyhow::{Context, Result, bail};
 use nalgebra::{Point3, Vector3};
 use tuft_mesh::PanelMesh;
 
-use crate::output::PanelState;
+use crate::output::{PanelState, SurfaceResult};
 use crate::summary::Summary;
 
 /// One row of `panels.csv`, the columns `compare` uses.
@@ -68,7 +68,7 @@ impl ResultFolder {
         let file = self.path.join(crate::meshfile::FILE);
         if !file.exists() {
             bail!(
-                "{}: missing; the run was made by an older tuft, run it again to compare pictures",
+                "{}: missing; the run was made by an older tuft: run it again to draw pictures from it",
                 file.display()
             );
         }
@@ -93,12 +93,68 @@ impl ResultFolder {
         }
     }
 
+    /// The named regions of the run's case (none when it names none or
+    /// they cannot be read back).
+    pub fn regions(&self) -> Vec<crate::region::RegionSection> {
+        self.summary
+            .case
+            .get("region")
+            .and_then(|r| serde_json::from_value(r.clone()).ok())
+            .unwrap_or_default()
+    }
+
     /// Folder name, for captions.
     pub fn label(&self) -> String {
         self.path.file_name().map_or_else(
             || self.summary.case_name.clone(),
             |s| s.to_string_lossy().into_owned(),
         )
+    }
+}
+
+/// A result folder's panel values in the picture writers' shape: Cp,
+/// state and risk as read, no velocity nor boundary-layer values (the
+/// pictures drawn from a folder use none).
+pub struct PanelFields {
+    cp: Vec<f64>,
+    zeros: Vec<f64>,
+    velocity: Vec<Vector3<f64>>,
+    state: Vec<PanelState>,
+    risk: Vec<f64>,
+}
+
+impl PanelFields {
+    /// The values of `r`'s panels.
+    pub fn new(r: &ResultFolder) -> Self {
+        let n = r.panels.len();
+        Self {
+            cp: r.panels.iter().map(|p| p.cp).collect(),
+            zeros: vec![0.0; n],
+            velocity: vec![Vector3::zeros(); n],
+            state: r.panels.iter().map(|p| p.state).collect(),
+            risk: r.panels.iter().map(|p| p.risk).collect(),
+        }
+    }
+
+    /// Each panel's state.
+    pub fn state(&self) -> &[PanelState] {
+        &self.state
+    }
+
+    /// The values on `mesh` (the folder's, [`ResultFolder::mesh`]).
+    pub fn surface<'a>(&'a self, mesh: &'a PanelMesh) -> SurfaceResult<'a> {
+        SurfaceResult {
+            mesh,
+            cp: &self.cp,
+            velocity: &self.velocity,
+            theta: &self.zeros,
+            shape_factor: &self.zeros,
+            cf: &self.zeros,
+            state: &self.state,
+            risk: &self.risk,
+            separation_note: None,
+            dead_water_cp: None,
+        }
     }
 }
 

@@ -3,17 +3,16 @@
 //! self-contained `compare.html`.
 
 use anyhow::{Context, Result};
-use nalgebra::Vector3;
 use tuft_mesh::PanelMesh;
 
 use super::mapping::Mapping;
-use super::{Comparison, ResultFolder, mapped_fields};
+use super::{Comparison, PanelFields, ResultFolder, mapped_fields};
 use crate::outdir::Staging;
 use crate::output::colorbar::{ColourScale, Swatch};
 use crate::output::html::{self, NumberRow, Picture, Report, TextSection};
 use crate::output::render::PanelPaint;
 use crate::output::sheet::{FieldStyle, NO_VALUE, field_sheet};
-use crate::output::{self, Caption, PanelState, SurfaceResult};
+use crate::output::{self, Caption, PanelState};
 
 /// Stripes where separation appears in B (dark red on light red).
 const APPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([150, 20, 30], [240, 150, 150]);
@@ -29,43 +28,6 @@ const SEPARATION_OUTLINE: output::outline::OutlineStyle = output::outline::Outli
     halo: true,
 };
 
-/// B's panel values in the writers' shape.
-struct Owned {
-    cp: Vec<f64>,
-    zeros: Vec<f64>,
-    velocity: Vec<Vector3<f64>>,
-    state: Vec<PanelState>,
-    risk: Vec<f64>,
-}
-
-impl Owned {
-    fn new(b: &ResultFolder) -> Self {
-        let n = b.panels.len();
-        Self {
-            cp: b.panels.iter().map(|p| p.cp).collect(),
-            zeros: vec![0.0; n],
-            velocity: vec![Vector3::zeros(); n],
-            state: b.panels.iter().map(|p| p.state).collect(),
-            risk: b.panels.iter().map(|p| p.risk).collect(),
-        }
-    }
-
-    fn surface<'a>(&'a self, mesh: &'a PanelMesh) -> SurfaceResult<'a> {
-        SurfaceResult {
-            mesh,
-            cp: &self.cp,
-            velocity: &self.velocity,
-            theta: &self.zeros,
-            shape_factor: &self.zeros,
-            cf: &self.zeros,
-            state: &self.state,
-            risk: &self.risk,
-            separation_note: None,
-            dead_water_cp: None,
-        }
-    }
-}
-
 /// Write the sheets and `compare.html` into the staging folder.
 pub fn write(
     out: &Staging,
@@ -75,7 +37,7 @@ pub fn write(
     mapping: &Mapping,
     cmp: &Comparison,
 ) -> Result<()> {
-    let owned = Owned::new(b);
+    let owned = PanelFields::new(b);
     let surface = owned.surface(mesh_b);
     let f = mapped_fields(a, b, mapping);
     let caption = Caption {
@@ -112,7 +74,7 @@ pub fn write(
     };
     let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
     let mut dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
-        let sep_b = owned.state[i] == PanelState::Separated;
+        let sep_b = owned.state()[i] == PanelState::Separated;
         match (sep_a(i), sep_b) {
             (false, true) => PanelPaint::Hatched(APPEARS.0, APPEARS.1),
             (true, false) => PanelPaint::Hatched(DISAPPEARS.0, DISAPPEARS.1),
@@ -123,13 +85,7 @@ pub fn write(
         }
     })?;
     // B's named regions, outlined as on its own pictures.
-    let regions: Vec<crate::region::RegionSection> = b
-        .summary
-        .case
-        .get("region")
-        .and_then(|r| serde_json::from_value(r.clone()).ok())
-        .unwrap_or_default();
-    let marks = crate::region::marks(&regions, mesh_b);
+    let marks = crate::region::marks(&b.regions(), mesh_b);
     output::outline::draw_regions(&mut dcp, mesh_b, &marks, caption.yaw_deg);
     // Not in the legend's blue: along the base edge the outline ran into
     // the "separates in A only" stripes.

@@ -404,7 +404,7 @@ pub fn draw_legend(canvas: &mut Canvas, x: f32, y: f32, legend: &[(String, Swatc
 }
 
 /// A 22 px square swatch.
-fn draw_swatch(canvas: &mut Canvas, x: i64, y: i64, swatch: &Swatch) {
+pub(crate) fn draw_swatch(canvas: &mut Canvas, x: i64, y: i64, swatch: &Swatch) {
     for dy in 0..22 {
         for dx in 0..22 {
             let c = match *swatch {

@@ -21,6 +21,7 @@
 pub mod canvas;
 pub mod colorbar;
 pub mod csv;
+pub mod glance;
 pub mod html;
 pub mod outline;
 pub mod plot;

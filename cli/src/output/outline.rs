@@ -6,13 +6,13 @@
 //! the picture by eye.
 
 use super::canvas::{Canvas, Rgb, WHITE};
-use super::render::{self, DisplayTri, View, display_triangles};
+use super::render::{self, DisplayTri, Frame, View, display_triangles};
 use super::sheet::{self, SheetParams};
 use super::text::{self, Align, TextStyle};
 
 /// Outline and label colour: a strong blue that stands out of both the
 /// pressure and the risk colour maps.
-const OUTLINE: Rgb = [20, 80, 200];
+pub const OUTLINE: Rgb = [20, 80, 200];
 
 /// One named region: membership of each display triangle (the real panels
 /// first, then, on a half model, their mirror images in the same order).
@@ -74,6 +74,39 @@ pub fn draw_regions_styled(
     }
     let tris = display_triangles(mesh);
     let lay = sheet::layout_at(&tris, &SheetParams::default(), yaw_deg);
+    let on = RegionViews {
+        views: &lay.views,
+        named: |v| !matches!(v, View::Front | View::Rear),
+        flow_corner: true,
+    };
+    draw_regions_in(canvas, mesh, marks, style, &on);
+}
+
+/// The views a picture's region outlines go on: each view with its
+/// frame, the views that carry the names, and whether a name keeps left
+/// of the flow arrow's corner ([`sheet::flow_mark_box`]).
+pub struct RegionViews<'a> {
+    /// The views and their frames.
+    pub views: &'a [(View, Frame)],
+    /// True for the views whose regions are named.
+    pub named: fn(View) -> bool,
+    /// The flow arrow sits in each view's top right corner.
+    pub flow_corner: bool,
+}
+
+/// Draw every region's outline on the views of `on` of a picture of
+/// `mesh`, in `style`, with their names where `on` says.
+pub fn draw_regions_in(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    style: OutlineStyle,
+    on: &RegionViews<'_>,
+) {
+    if marks.is_empty() {
+        return;
+    }
+    let tris = display_triangles(mesh);
     let real = mesh.len();
     let neighbours = |k: usize| -> Vec<usize> {
         let offset = if k >= real { real } else { 0 };
@@ -83,11 +116,15 @@ pub fn draw_regions_styled(
             .map(|&j| j as usize + offset)
             .collect()
     };
-    for (view, frame) in &lay.views {
+    for (view, frame) in on.views {
         let seen = render::visible(&tris, *view, frame);
         let mut placed: Vec<[f32; 4]> = Vec::new();
         // Names step left of the flow arrow's corner.
-        let corner = sheet::flow_mark_box(frame.rect);
+        let corner = if on.flow_corner {
+            sheet::flow_mark_box(frame.rect)
+        } else {
+            [-1.0e6, -1.0e6, 0.0, 0.0]
+        };
         // The body's extent on the picture: names stand clear of it, above
         // (below in the view from underneath), so that they hide nothing.
         let (top, bottom) = tris
@@ -139,7 +176,7 @@ pub fn draw_regions_styled(
             for &(x, y) in &dots {
                 canvas.fill_circle(x, y, 1.3, style.colour);
             }
-            if label.2 > 0.0 && !matches!(*view, View::Front | View::Rear) {
+            if label.2 > 0.0 && (on.named)(*view) {
                 let at = (label.0 / label.2, label.1 / label.2);
                 let below = *view == View::Underneath;
                 placed.push(draw_label(

@@ -331,7 +331,7 @@ pub(crate) fn unresolved_swatch(s: &SurfaceResult<'_>) -> Option<(String, Swatch
 }
 
 /// Paint of panel `i` for a field.
-fn panel_paint(
+pub(crate) fn panel_paint(
     s: &SurfaceResult<'_>,
     field: SurfaceField,
     scale: &ColourScale,

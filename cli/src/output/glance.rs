@@ -1,0 +1,463 @@
+//! Separation at a glance: a compact picture of one run's separation risk
+//! seen from the side and from above (the two views a rear-window or
+//! boot-deck change reads from), drawn as on the run report's risk sheet
+//! (the same colour map, separated panels hatched, named regions
+//! outlined), for the sweep page's row per variant. Every variant's
+//! picture is drawn through one [`GlanceLayout`], one scale and one centre
+//! per view for all, so that sizes and positions compare from row to row;
+//! the section's one key ([`key`]) carries the colour bar and a scale bar.
+
+use tuft_mesh::{PanelMesh, Point};
+
+use super::canvas::{Canvas, GRID, INK, MUTED};
+use super::colorbar::{ColourScale, Swatch, draw_swatch, nice_ticks, tick_label};
+use super::outline::{self, OutlineStyle, RegionMark, RegionViews};
+use super::render::{self, Frame, RenderParams, View, display_triangles};
+use super::sheet::{self, NO_VALUE, SEPARATED, SurfaceField};
+use super::text::{self, Align, TextStyle};
+use super::{OutputError, SurfaceResult};
+
+/// Width of a variant's picture and of the key, pixels.
+pub const WIDTH: u32 = 1140;
+/// Height of a variant's picture, pixels.
+pub const HEIGHT: u32 = 300;
+/// Height of the key, pixels.
+pub const KEY_HEIGHT: u32 = 66;
+/// The band for the variant's label at the top, pixels.
+const LABEL_BAND: f64 = 30.0;
+/// The band for the views' labels under it, pixels.
+const VIEW_BAND: f64 = 22.0;
+/// Left and right margins, and the gap between the two views, pixels.
+const MARGIN: f64 = 10.0;
+const GAP: f64 = 24.0;
+/// Room in the side view under the lowest body point (the ground line)
+/// and over the highest (two region names, one above the other), pixels.
+const GROUND_ROOM: f64 = 22.0;
+const NAME_ROOM: f64 = 46.0;
+
+/// The views of a run at `yaw_deg`: the side the run report shows
+/// ([`View::sheet`]: the lee side at a positive yaw) and the top.
+pub fn views(yaw_deg: f64) -> [View; 2] {
+    [View::sheet(yaw_deg)[0], View::Top]
+}
+
+/// The rectangle (left, top, width, height) of the `k`-th view.
+fn cell(k: usize) -> (i64, i64, i64, i64) {
+    let w = (f64::from(WIDTH) - 2.0 * MARGIN - GAP) / 2.0;
+    let top = LABEL_BAND + VIEW_BAND;
+    let h = f64::from(HEIGHT) - top - 6.0;
+    (
+        (MARGIN + k as f64 * (w + GAP)) as i64,
+        top as i64,
+        w as i64,
+        h as i64,
+    )
+}
+
+/// One scale for all the variants' pictures and one centre per view.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GlanceLayout {
+    /// Pixels per metre.
+    pub scale: f64,
+    /// View coordinates (right, up), metres, of each view's centre.
+    centres: Vec<(View, (f64, f64))>,
+}
+
+impl GlanceLayout {
+    /// The largest scale at which every body of `bodies` (each mesh with
+    /// its run's yaw) fits both its views, each view centred on the
+    /// bodies' common extent in it (the side view's lowest point just
+    /// above the ground line's room, the names' room over the body).
+    pub fn new(bodies: &[(&PanelMesh, f64)]) -> Self {
+        let mut extents: Vec<(View, (f64, f64, f64, f64))> = Vec::new();
+        for (mesh, yaw) in bodies {
+            let tris = display_triangles(mesh);
+            for view in views(*yaw) {
+                let e = render::extent(&tris, view);
+                match extents.iter_mut().find(|(v, _)| *v == view) {
+                    Some((_, u)) => {
+                        *u = (u.0.min(e.0), u.1.max(e.1), u.2.min(e.2), u.3.max(e.3));
+                    }
+                    None => extents.push((view, e)),
+                }
+            }
+        }
+        let (_, _, w, h) = cell(0);
+        let (w, h) = (w as f64, h as f64);
+        let scale = extents
+            .iter()
+            .map(|(v, e)| {
+                let room = if v.is_side() {
+                    h - GROUND_ROOM - NAME_ROOM
+                } else {
+                    0.94 * h
+                };
+                (0.96 * w / (e.1 - e.0)).min(room / (e.3 - e.2))
+            })
+            .fold(f64::INFINITY, f64::min);
+        let scale = if scale.is_finite() && scale > 0.0 {
+            scale
+        } else {
+            1.0
+        };
+        let centres = extents
+            .into_iter()
+            .map(|(v, e)| {
+                let up = if v.is_side() {
+                    e.2 + (0.5 * h - GROUND_ROOM) / scale
+                } else {
+                    0.5 * (e.2 + e.3)
+                };
+                (v, (0.5 * (e.0 + e.1), up))
+            })
+            .collect();
+        Self { scale, centres }
+    }
+
+    /// The frames of the two views of a run at `yaw_deg`; a view no body
+    /// of the layout had is centred on `mesh`.
+    pub fn frames(&self, mesh: &PanelMesh, yaw_deg: f64) -> Vec<(View, Frame)> {
+        views(yaw_deg)
+            .into_iter()
+            .enumerate()
+            .map(|(k, view)| {
+                let centre = self.centres.iter().find(|(v, _)| *v == view).map_or_else(
+                    || {
+                        let e = render::extent(&display_triangles(mesh), view);
+                        (0.5 * (e.0 + e.1), 0.5 * (e.2 + e.3))
+                    },
+                    |(_, c)| *c,
+                );
+                let frame = Frame {
+                    scale: self.scale,
+                    centre,
+                    rect: cell(k),
+                };
+                (view, frame)
+            })
+            .collect()
+    }
+}
+
+/// One run's picture: `label` across the top, its separation risk from
+/// the side (`yaw_deg` picks which, [`views`]) and from above through
+/// `layout`, separated panels hatched and the regions of `marks`
+/// outlined (named in the side view).
+///
+/// # Errors
+/// [`OutputError::LengthMismatch`] for fields of the wrong length.
+pub fn picture(
+    s: &SurfaceResult<'_>,
+    yaw_deg: f64,
+    label: &str,
+    marks: &[RegionMark],
+    layout: &GlanceLayout,
+) -> Result<Canvas, OutputError> {
+    s.validate()?;
+    let mut canvas = Canvas::new(WIDTH, HEIGHT)?;
+    let tris = display_triangles(s.mesh);
+    let scale = ColourScale::risk();
+    let paint = |i: usize| sheet::panel_paint(s, SurfaceField::SeparationRisk, &scale, i);
+    let room = f64::from(WIDTH) - 2.0 * MARGIN;
+    let mut style = TextStyle::new(16.0).bold();
+    if f64::from(text::width(label, &style)) > room {
+        style = TextStyle::new(13.0).bold();
+    }
+    text::draw(&mut canvas, label, MARGIN as f32, 21.0, &style);
+    let frames = layout.frames(s.mesh, yaw_deg);
+    for (view, frame) in &frames {
+        view_label(&mut canvas, *view, frame, yaw_deg);
+        render::draw_view(
+            &mut canvas,
+            &tris,
+            *view,
+            frame,
+            &RenderParams::default(),
+            &paint,
+        );
+        if let (Some(z), true) = (s.mesh.mirrors.ground, view.is_side()) {
+            let (l, t, w, h) = frame.rect;
+            let (_, y) = frame.project(*view, &Point::new(0.0, 0.0, z));
+            if (t as f64..(t + h) as f64).contains(&y) {
+                canvas.polyline(
+                    &[(l as f32, y as f32), ((l + w) as f32, y as f32)],
+                    [150, 120, 90],
+                    1.5,
+                );
+            }
+        }
+    }
+    let on = RegionViews {
+        views: &frames,
+        named: View::is_side,
+        flow_corner: false,
+    };
+    outline::draw_regions_in(&mut canvas, s.mesh, marks, OutlineStyle::default(), &on);
+    Ok(canvas)
+}
+
+/// A view's label over it (a yawed run's side view named its lee side, as
+/// on the run report's sheets) with the flow's direction beside it.
+fn view_label(canvas: &mut Canvas, view: View, frame: &Frame, yaw_deg: f64) {
+    let (l, t, w, _) = frame.rect;
+    let words = if view.is_side() && yaw_deg != 0.0 {
+        format!("{}: the lee side", view.label())
+    } else {
+        view.label().to_owned()
+    };
+    let style = TextStyle::new(13.0).bold();
+    let y = (t - 7) as f32;
+    text::draw(canvas, &words, l as f32, y, &style);
+    canvas.polyline(
+        &[(l as f32, (t - 2) as f32), ((l + w) as f32, (t - 2) as f32)],
+        GRID,
+        1.0,
+    );
+    let yaw = yaw_deg.to_radians();
+    let (dx, dy) = match view {
+        View::SideFromRight => (-1.0, 0.0),
+        View::Top => (yaw.cos(), -yaw.sin()),
+        View::Underneath => (yaw.cos(), yaw.sin()),
+        _ => (1.0, 0.0),
+    };
+    let x0 = l as f32 + text::width(&words, &style) + 70.0;
+    let (cx, cy) = (x0, y - 4.0);
+    let (dx, dy) = (14.0 * dx as f32, 14.0 * dy as f32);
+    canvas.arrow((cx - dx, cy - dy), (cx + dx, cy + dy), MUTED, 1.5);
+    text::draw(
+        canvas,
+        "flow",
+        cx - 20.0,
+        y,
+        &TextStyle::new(12.0).colour(MUTED).align(Align::Right),
+    );
+}
+
+/// The section's key: the risk colour bar, the hatching of separated
+/// panels, the grey of unresolved ones (when some picture has them), the
+/// region outline (when some has regions) and a scale bar at `layout`'s
+/// scale, on a strip as wide as the pictures.
+///
+/// # Errors
+/// [`OutputError::PictureSize`] never in practice (a fixed size).
+pub fn key(layout: &GlanceLayout, unresolved: bool, regions: bool) -> Result<Canvas, OutputError> {
+    let mut canvas = Canvas::new(WIDTH, KEY_HEIGHT)?;
+    let scale = ColourScale::risk();
+    let (x, y, w, h) = (MARGIN as f32, 26.0_f32, 300.0_f32, 14.0_f32);
+    text::draw(
+        &mut canvas,
+        &scale.label,
+        x,
+        18.0,
+        &TextStyle::new(14.0).bold(),
+    );
+    for col in 0..w as i64 {
+        let v = scale.min + (scale.max - scale.min) * (col as f64 + 0.5) / f64::from(w);
+        let c = scale.colour(v).unwrap_or(INK);
+        canvas.fill_rect(x + col as f32, y, 1.0, h, c);
+    }
+    canvas.stroke_rect(x, y, w, h, INK, 1.0);
+    let ticks = scale.ticks();
+    for &t in &ticks {
+        let tx = x + w * ((t - scale.min) / (scale.max - scale.min)) as f32;
+        canvas.polyline(&[(tx, y + h), (tx, y + h + 5.0)], INK, 1.2);
+        text::draw(
+            &mut canvas,
+            &tick_label(t, &ticks),
+            tx,
+            y + h + 19.0,
+            &TextStyle::new(12.0).align(Align::Centre),
+        );
+    }
+    let mut at = x + w + 40.0;
+    let entry = |canvas: &mut Canvas, at: &mut f32, words: &str| {
+        let style = TextStyle::new(14.0);
+        text::draw(canvas, words, *at + 30.0, y + 13.0, &style);
+        *at += 30.0 + text::width(words, &style) + 30.0;
+    };
+    let mut swatches = vec![("separated", Swatch::Hatched(SEPARATED.0, SEPARATED.1))];
+    if unresolved {
+        swatches.push(("not resolved", Swatch::Solid(NO_VALUE)));
+    }
+    for (words, swatch) in swatches {
+        draw_swatch(&mut canvas, at as i64, (y - 4.0) as i64, &swatch);
+        canvas.stroke_rect(at, y - 4.0, 22.0, 22.0, INK, 1.0);
+        entry(&mut canvas, &mut at, words);
+    }
+    if regions {
+        for k in 0..12 {
+            canvas.fill_circle(at + 2.0 * k as f32, y + 7.0, 1.3, outline::OUTLINE);
+        }
+        entry(&mut canvas, &mut at, "named region");
+    }
+    // A round length of about a tenth of the picture's width.
+    let metres = nice_ticks(0.0, 0.1 * f64::from(WIDTH) / layout.scale, 1)
+        .get(1)
+        .copied()
+        .unwrap_or(1.0);
+    let len = (metres * layout.scale) as f32;
+    let words = format!(
+        "{} m: every picture at this one scale",
+        super::short_number(metres)
+    );
+    let style = TextStyle::new(14.0);
+    let right = WIDTH as f32 - MARGIN as f32;
+    let bar_x = right - text::width(&words, &style).max(len);
+    canvas.polyline(
+        &[
+            (bar_x, y - 2.0),
+            (bar_x, y + 4.0),
+            (bar_x + len, y + 4.0),
+            (bar_x + len, y - 2.0),
+        ],
+        INK,
+        1.5,
+    );
+    text::draw(&mut canvas, &words, bar_x, y + h + 19.0, &style);
+    Ok(canvas)
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, clippy::expect_used)]
+    use super::*;
+    use crate::output::PanelState;
+    use crate::output::canvas::testing::{decode, keep};
+    use crate::output::fixture::Fixture;
+
+    /// The stripes of the separated hatching in a row of 14 pixels from
+    /// `(x, y)`: (dark, light) pixel counts.
+    fn stripes(img: &crate::output::canvas::testing::Decoded, x: f64, y: f64) -> (usize, usize) {
+        let row: Vec<[u8; 3]> = (0..14).map(|d| img.pixel(x as i64 + d, y as i64)).collect();
+        let dark = row.iter().filter(|c| c[0] < 60 && c[2] < 70).count();
+        let light = row
+            .iter()
+            .filter(|c| (90..160).contains(&c[0]) && c[0].abs_diff(c[2]) < 20)
+            .count();
+        (dark, light)
+    }
+
+    /// A body whose panels are all separated is hatched wherever it is
+    /// seen, in both views, and nowhere else.
+    #[test]
+    fn a_separated_body_is_hatched_where_it_is() {
+        let mut f = Fixture::sphere(3);
+        f.state = vec![PanelState::Separated; f.state.len()];
+        let s = f.surface();
+        let lay = GlanceLayout::new(&[(&f.mesh, 0.0)]);
+        let png = picture(&s, 0.0, "1. all separated", &[], &lay)
+            .unwrap()
+            .to_png()
+            .unwrap();
+        keep("glance-separated.png", &png);
+        let img = decode(&png);
+        assert_eq!((img.width, img.height), (WIDTH, HEIGHT));
+        for (view, frame) in lay.frames(&f.mesh, 0.0) {
+            // Across the body: points a third and two thirds of the radius
+            // out from the centre, right and up, all hatched.
+            for (u, v) in [(0.0, 0.0), (-0.6, 0.0), (0.5, 0.3), (0.0, -0.6)] {
+                let (right, up, _) = view.basis();
+                let p = Point::from(u * right + v * up);
+                let (x, y) = frame.project(view, &p);
+                let (dark, light) = stripes(&img, x - 7.0, y);
+                assert!(dark >= 2 && light >= 2, "{view:?} at ({u}, {v})");
+            }
+            // Off the body, inside the frame: white.
+            let (l, t, w, h) = frame.rect;
+            let (x, _) = frame.project(view, &Point::origin());
+            for (px, py) in [
+                (l + 3, t + h - 3),
+                (x as i64 + (0.4 * w as f64) as i64, t + h / 2),
+            ] {
+                if px < l + w {
+                    assert_eq!(img.pixel(px, py), [255, 255, 255], "{view:?} ({px}, {py})");
+                }
+            }
+        }
+        // Attached, the same body shows no hatching.
+        let g = Fixture::sphere(3);
+        let attached: Vec<PanelState> = vec![PanelState::Turbulent; g.state.len()];
+        let s = SurfaceResult {
+            state: &attached,
+            ..g.surface()
+        };
+        let img = decode(
+            &picture(&s, 0.0, "attached", &[], &lay)
+                .unwrap()
+                .to_png()
+                .unwrap(),
+        );
+        let (view, frame) = lay.frames(&g.mesh, 0.0)[0];
+        let (x, y) = frame.project(view, &Point::origin());
+        assert_eq!(stripes(&img, x - 7.0, y).0, 0);
+    }
+
+    /// One scale for all: a sphere of half the radius drawn through the
+    /// layout of both covers about a quarter of the pixels.
+    #[test]
+    fn variants_share_one_scale() {
+        let big = Fixture::sphere(3);
+        let mut small = Fixture::sphere(3);
+        small.mesh = tuft_mesh::PanelMesh::new(
+            tuft_mesh::generate::icosphere(0.5, 3),
+            tuft_mesh::Mirrors::none(),
+        )
+        .unwrap();
+        let lay = GlanceLayout::new(&[(&big.mesh, 0.0), (&small.mesh, 0.0)]);
+        assert_eq!(lay, GlanceLayout::new(&[(&big.mesh, 0.0)]));
+        let body = |f: &Fixture| {
+            let img = decode(
+                &picture(&f.surface(), 0.0, "", &[], &lay)
+                    .unwrap()
+                    .to_png()
+                    .unwrap(),
+            );
+            let (_, frame) = lay.frames(&f.mesh, 0.0)[1];
+            let (l, t, w, h) = frame.rect;
+            (t..t + h)
+                .flat_map(|y| (l..l + w).map(move |x| (x, y)))
+                .filter(|&(x, y)| img.pixel(x, y) != [255, 255, 255])
+                .count() as f64
+        };
+        let ratio = body(&small) / body(&big);
+        assert!((ratio - 0.25).abs() < 0.03, "{ratio}");
+    }
+
+    /// A yawed run's side view is the run report's: the lee side, from +y
+    /// with the nose on the right, at a positive yaw.
+    #[test]
+    fn a_yawed_run_shows_its_lee_side() {
+        let f = Fixture::sphere(2);
+        let lay = GlanceLayout::new(&[(&f.mesh, 0.0), (&f.mesh, 8.0)]);
+        for (yaw, want) in [
+            (8.0, View::SideFromRight),
+            (0.0, View::Side),
+            (-8.0, View::Side),
+        ] {
+            let (view, frame) = lay.frames(&f.mesh, yaw)[0];
+            assert_eq!(view, View::sheet(yaw)[0]);
+            assert_eq!(view, want);
+            let (nose, _) = frame.project(view, &Point::new(-1.0, 0.0, 0.0));
+            let (tail, _) = frame.project(view, &Point::new(1.0, 0.0, 0.0));
+            assert_eq!(nose > tail, yaw > 0.0, "{yaw}");
+        }
+    }
+
+    /// The key draws the risk colours and a scale bar.
+    #[test]
+    fn the_key_shows_the_colour_bar() {
+        let f = Fixture::sphere(2);
+        let lay = GlanceLayout::new(&[(&f.mesh, 0.0)]);
+        let png = key(&lay, true, true).unwrap().to_png().unwrap();
+        keep("glance-key.png", &png);
+        let img = decode(&png);
+        assert_eq!((img.width, img.height), (WIDTH, KEY_HEIGHT));
+        // The bar runs from risk 0 at its left end to 1 at its right.
+        let near = |got: [u8; 3], v: f64| {
+            let want = ColourScale::risk().colour(v).unwrap();
+            (0..3).all(|k| got[k].abs_diff(want[k]) <= 8)
+        };
+        assert!(near(img.pixel(MARGIN as i64 + 2, 33), 0.0));
+        assert!(near(img.pixel(MARGIN as i64 + 297, 33), 1.0));
+    }
+}
