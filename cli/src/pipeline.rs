@@ -821,11 +821,11 @@ pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Opt
 /// slant-back research body's plateau drag in
 /// `tests/tests/separated_wakes.rs` against Ahmed, Ramm & Faltin (1984,
 /// values from memory), and the demo coupe's STL case run both ways
-/// (0.521 against the loop's 0.149, 2026-12-02).
+/// (0.519 against the loop's 0.151, 2026-12-03).
 pub const PLATEAU_DRAG_WARNING: &str = "the drag comes from the attached flow's plateau model \
 (solver.wakes = \"attached\"), which is no basis for ranking drag: on the slant-back research body \
 it gives 0.29 to 0.52 against 0.23 to 0.38 measured and ranks the slants the wrong way round, and on \
-the demo coupe it is 3.5 times the separated-flow loop's estimate; rank drag with the loop (the \
+the demo coupe it is 3.4 times the separated-flow loop's estimate; rank drag with the loop (the \
 default)";
 
 /// Separated share of the underbody (ground-facing panels) from which a run
