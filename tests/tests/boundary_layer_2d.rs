@@ -380,17 +380,60 @@ fn head_and_stratford_separation_compared() {
     }
 }
 
+/// The layer the face tests start from: turbulent, on a level plate
+/// (normal +z), its edge speed `plate` falling by 30 % over 1.7 m from
+/// 0.3 m (`u0` 40 m/s); `flat` its stations, `p` the settings and `s_sep`
+/// where it separates with no face ahead.
+struct FallingPlate {
+    u0: f64,
+    plate: fn(f64) -> f64,
+    flat: Vec<LineSample>,
+    p: BoundaryLayerParams,
+    s_sep: f64,
+}
+
+fn falling_plate() -> FallingPlate {
+    let plate: fn(f64) -> f64 = |s| 40.0 * (1.0 - 0.3 * ((s - 0.3).max(0.0) / 1.7));
+    let flat = line(6000, 0.0, 6.0, plate);
+    let p = params(1.5e-5, Transition::Turbulent);
+    let s_sep = separation_s(&flat, &LineStart::default(), &p);
+    FallingPlate {
+        u0: 40.0,
+        plate,
+        flat,
+        p,
+        s_sep,
+    }
+}
+
+/// A plate station placed on the plane z = 0 with normal +z.
+fn on_plate(b: &LineSample) -> LineSample {
+    LineSample {
+        point: nalgebra::Point3::new(b.s, 0.0, 0.0),
+        normal: nalgebra::Vector3::z(),
+        ..*b
+    }
+}
+
+/// The march's verdict on `samples`: whether the layer ends separated.
+fn stays_separated(samples: &[LineSample], p: &BoundaryLayerParams) -> bool {
+    let m = march_line(samples, &LineStart::default(), p);
+    m.states.last().unwrap().state == FlowState::Separated
+}
+
 /// A turbulent layer on a level plate (normal +z) in a falling edge speed,
 /// with a face into the stream (45 degrees) whose foot lies `ahead` metres
 /// past the point where the plain plate separates and which rises `height`
 /// metres; along the face the speed climbs back to 1.2 times the free
 /// stream's. The march's verdict: whether the layer stays separated.
 fn separates_ahead_of_a_face(ahead: f64, height: f64) -> bool {
-    let (u0, nu) = (40.0, 1.5e-5);
-    let plate = |s: f64| u0 * (1.0 - 0.3 * ((s - 0.3).max(0.0) / 1.7));
-    let flat = line(6000, 0.0, 6.0, plate);
-    let p = params(nu, Transition::Turbulent);
-    let s_sep = separation_s(&flat, &LineStart::default(), &p);
+    let FallingPlate {
+        u0,
+        plate,
+        flat,
+        p,
+        s_sep,
+    } = falling_plate();
     let foot = s_sep + ahead;
     let run = height / 45f64.to_radians().sin();
     let turn = 45f64.to_radians();
@@ -399,11 +442,7 @@ fn separates_ahead_of_a_face(ahead: f64, height: f64) -> bool {
         .map(|b| {
             let along = b.s - foot;
             if along < 0.0 {
-                return LineSample {
-                    point: nalgebra::Point3::new(b.s, 0.0, 0.0),
-                    normal: nalgebra::Vector3::z(),
-                    ..*b
-                };
+                return on_plate(b);
             }
             let up = along.min(run);
             let rise = (along / run).min(1.0);
@@ -421,8 +460,7 @@ fn separates_ahead_of_a_face(ahead: f64, height: f64) -> bool {
             }
         })
         .collect();
-    let m = march_line(&samples, &LineStart::default(), &p);
-    m.states.last().unwrap().state == FlowState::Separated
+    stays_separated(&samples, &p)
 }
 
 /// Ahead of a forward-facing step the flow separates about one step
@@ -453,11 +491,13 @@ fn a_separation_ahead_of_a_face_into_the_stream_closes_only_below_a_high_face() 
 /// surface with outward normal `beyond`. The march's verdict: whether the
 /// layer stays separated.
 fn separates_beside_a_face(beyond: nalgebra::Vector3<f64>) -> bool {
-    let (u0, nu) = (40.0, 1.5e-5);
-    let plate = |s: f64| u0 * (1.0 - 0.3 * ((s - 0.3).max(0.0) / 1.7));
-    let flat = line(6000, 0.0, 6.0, plate);
-    let p = params(nu, Transition::Turbulent);
-    let s_sep = separation_s(&flat, &LineStart::default(), &p);
+    let FallingPlate {
+        u0,
+        plate,
+        flat,
+        p,
+        s_sep,
+    } = falling_plate();
     let (aside, foot, run) = (s_sep + 0.05, s_sep + 0.3, 0.05);
     let turn = 45f64.to_radians();
     let samples: Vec<LineSample> = flat
@@ -469,9 +509,7 @@ fn separates_beside_a_face(beyond: nalgebra::Vector3<f64>) -> bool {
             if along < 0.0 {
                 return LineSample {
                     speed,
-                    point: nalgebra::Point3::new(b.s, 0.0, 0.0),
-                    normal: nalgebra::Vector3::z(),
-                    ..*b
+                    ..on_plate(b)
                 };
             }
             let up = along.min(run);
@@ -493,8 +531,7 @@ fn separates_beside_a_face(beyond: nalgebra::Vector3<f64>) -> bool {
             }
         })
         .collect();
-    let m = march_line(&samples, &LineStart::default(), &p);
-    m.states.last().unwrap().state == FlowState::Separated
+    stays_separated(&samples, &p)
 }
 
 /// The layer ahead of an obstacle on a wall separates in its pressure rise
@@ -531,11 +568,13 @@ fn a_separation_ahead_of_a_face_closes_when_the_line_passes_beside_it() {
 /// above the plate (`None`: no top known, the line's own stations only).
 /// The march's verdict: whether the layer stays separated.
 fn separates_round_a_tall_face(top: Option<f64>) -> bool {
-    let (u0, nu) = (40.0, 1.5e-5);
-    let plate = |s: f64| u0 * (1.0 - 0.3 * ((s - 0.3).max(0.0) / 1.7));
-    let flat = line(6000, 0.0, 6.0, plate);
-    let p = params(nu, Transition::Turbulent);
-    let s_sep = separation_s(&flat, &LineStart::default(), &p);
+    let FallingPlate {
+        u0,
+        plate,
+        flat,
+        p,
+        s_sep,
+    } = falling_plate();
     let foot = s_sep + 1.4;
     let turn = 45f64.to_radians();
     let run = 0.03 / turn.sin();
@@ -544,11 +583,7 @@ fn separates_round_a_tall_face(top: Option<f64>) -> bool {
         .map(|b| {
             let along = b.s - foot;
             if along < 0.0 {
-                return LineSample {
-                    point: nalgebra::Point3::new(b.s, 0.0, 0.0),
-                    normal: nalgebra::Vector3::z(),
-                    ..*b
-                };
+                return on_plate(b);
             }
             let up = along.min(run);
             let on_face = along <= run;
@@ -567,8 +602,7 @@ fn separates_round_a_tall_face(top: Option<f64>) -> bool {
             }
         })
         .collect();
-    let m = march_line(&samples, &LineStart::default(), &p);
-    m.states.last().unwrap().state == FlowState::Separated
+    stays_separated(&samples, &p)
 }
 
 /// Ahead of a forward-facing step the flow separates about one step height
