@@ -347,7 +347,7 @@ fn read_lines(r: &PrepareReport) -> String {
         }
     );
     if let Some(h) = &r.mirrors.halves {
-        s += &halves_line(h, diagonal(r));
+        s += &halves_line(h);
     }
     if r.mirrors.cut_vertices_moved > 0 {
         s += &format!(
@@ -361,21 +361,20 @@ fn read_lines(r: &PrepareReport) -> String {
 }
 
 /// How symmetric a whole body is, and what follows: a body whose halves
-/// agree (within [`tuft_mesh::prepare::ASYMMETRY_WARNING`] of its
-/// diagonal, the run's own line) can run as a half model.
-fn halves_line(h: &tuft_mesh::cut::HalfCut, diagonal: f64) -> String {
+/// agree (`HalfCut::differs`, the run's own test) can run as a half model.
+fn halves_line(h: &tuft_mesh::cut::HalfCut) -> String {
     let [x, y, z] = h.largest_difference_at;
     let mm = 1000.0 * h.largest_difference;
-    if h.largest_difference <= tuft_mesh::prepare::ASYMMETRY_WARNING * diagonal {
+    if h.differs() {
+        format!(
+            "           the halves about y = 0 differ by up to {mm:.0} mm (near x {x:.3}, y {y:.3}, z {z:.3} m): \
+             run it whole\n"
+        )
+    } else {
         format!(
             "           the halves about y = 0 agree to {mm:.1} mm: at zero yaw it can run as a half model \
              (geometry.half_model = true, --half), cut at y = 0, on half the panels in a quarter of the \
              memory, with a mirror-symmetric flow\n"
-        )
-    } else {
-        format!(
-            "           the halves about y = 0 differ by up to {mm:.0} mm (near x {x:.3}, y {y:.3}, z {z:.3} m): \
-             run it whole\n"
         )
     }
 }

@@ -321,7 +321,11 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
                 &stream,
                 slice::DEAD_WATER_HEIGHTS * height,
                 &points,
-            );
+            )
+            .into_iter()
+            .zip(&s.velocity)
+            .map(|(dead, v)| dead && v.is_some())
+            .collect();
         }
         s.note.clone_from(&note);
         s

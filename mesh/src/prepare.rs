@@ -96,11 +96,6 @@ pub struct MirrorReport {
 /// vertex a hair below y = 0 would refuse the whole body (our choice).
 pub const CUT_TOLERANCE: f64 = 1e-3;
 
-/// A whole body cut at `y = 0` whose halves differ by more than this
-/// share of its diagonal (about 50 mm on a car) is warned about: the run
-/// is of one side mirrored (our choice).
-pub const ASYMMETRY_WARNING: f64 = 0.01;
-
 /// A coarsening that ends above this multiple of its target (its checks
 /// refused the tries at the target) is warned about: the run costs about
 /// the square of that in memory.
@@ -243,7 +238,7 @@ pub fn prepare_mesh(
         }
         if let Some(c) = &whole_cut {
             q.notes.push(c.describe());
-            if c.largest_difference > ASYMMETRY_WARNING * (hi - lo).norm() {
+            if c.differs() {
                 q.add_warning(format!(
                     "the whole body was cut at y = 0 and its y >= 0 half run, but the halves differ by up \
                      to {:.0} mm: the run is of that half mirrored, not of the body as scanned (run it \

@@ -423,14 +423,27 @@ fn from_units(units: i64, places: usize) -> f64 {
 /// its axle shares), each to [`kg_places`] of the set, the parts adding
 /// up to the total as shown ([`kg_units`]).
 pub fn kg_set<const N: usize>(values: [f64; N]) -> [String; N] {
+    if !countable(&values) {
+        return values.map(|v| format!("{v:.0}"));
+    }
     let (units, places) = kg_units(values);
     units.map(|u| format!("{:.places$}", from_units(u, places)))
 }
 
 /// A difference of loads in kg and its parts as [`kg_set`], signed.
 pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
+    if !countable(&values) {
+        return values.map(|v| format!("{v:+.0}"));
+    }
     let (units, places) = kg_units(values);
     units.map(|u| format!("{:+.places$}", from_units(u, places)))
+}
+
+/// Values the unit rounding of [`kg_units`] can hold: finite and far
+/// inside the integer range (a broken solution's NaN prints as NaN, not
+/// as 0).
+fn countable(values: &[f64]) -> bool {
+    values.iter().all(|v| v.is_finite() && v.abs() < 1e12)
 }
 
 /// What is left of a total once a part is taken (the body's lift less its
@@ -438,6 +451,9 @@ pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
 /// first), signed, so that the three shown numbers add up: `"+145"` for
 /// -94.7 less -239.5, shown -95 and -240.
 pub fn kg_rest_signed(total: [f64; 3], part: [f64; 3]) -> String {
+    if !countable(&total) || !countable(&part) {
+        return format!("{:+.0}", total[0] - part[0]);
+    }
     let (t, tp) = kg_units(total);
     let (p, pp) = kg_units(part);
     let places = tp.max(pp);
@@ -557,6 +573,13 @@ mod tests {
     /// sweep's row (-84.61 = -41.22 + -43.38) and an underbody (-242.31 =
     /// -136.77 + -105.54), each of which rounded part by part had been one
     /// kg off; and tenths on a small body.
+    #[test]
+    fn a_load_that_is_no_number_prints_as_such() {
+        assert_eq!(kg_set([f64::NAN, 1.0, 2.0])[0], "NaN");
+        assert_eq!(kg_set_signed([f64::INFINITY, 1.0, 2.0])[0], "+inf");
+        assert_eq!(kg_rest_signed([f64::NAN, 0.0, 0.0], [1.0, 0.5, 0.5]), "NaN");
+    }
+
     #[test]
     fn parts_add_up_to_the_total_as_shown() {
         assert_eq!(kg_set_signed([44.58, 12.15, 32.43]), ["+45", "+12", "+33"]);

@@ -51,7 +51,7 @@ impl Default for SheetParams {
 /// Where each view sits on the sheet.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Layout {
-    /// The views with their frames, in [`View::ALL`] order.
+    /// The views with their frames, in [`View::sheet`] order (the side view by the yaw).
     pub views: Vec<(View, Frame)>,
 }
 

@@ -104,16 +104,28 @@ pub fn dead_water(
     if separated.len() != mesh.len() || !separated.iter().any(|&s| s) || !(reach > 0.0) {
         return vec![false; points.len()];
     }
+    // Each panel (and mirror image) with whether it is separated and
+    // faces downstream, the side a point behind it sees: a ray from inside
+    // the body meets a panel's inner side first and marks nothing.
+    let along = stream.normalize();
     let mut tris: Vec<([Point3<f64>; 3], bool)> = mesh
         .panels
         .iter()
         .zip(separated)
-        .map(|(p, &s)| (p.vertices, s))
+        .map(|(p, &s)| (p.vertices, s && p.normal.dot(&along) > 0.0))
         .collect();
     if mesh.mirrors.symmetry {
-        let images: Vec<_> = tris
+        let images: Vec<_> = mesh
+            .panels
             .iter()
-            .map(|(v, s)| (v.map(|p| Point3::new(p.x, -p.y, p.z)), *s))
+            .zip(separated)
+            .map(|(p, &s)| {
+                let n = Vector3::new(p.normal.x, -p.normal.y, p.normal.z);
+                (
+                    p.vertices.map(|q| Point3::new(q.x, -q.y, q.z)),
+                    s && n.dot(&along) > 0.0,
+                )
+            })
             .collect();
         tris.extend(images);
     }
@@ -197,7 +209,9 @@ impl RayBins {
             .fold((f64::NEG_INFINITY, f64::NEG_INFINITY), |m, b| {
                 (m.0.max(b[2]), m.1.max(b[3]))
             });
-        let count = |span: f64| ((span / cell).floor().max(0.0) as usize + 1).min(4096);
+        // At most 1,024 cells a side: a wider body takes larger cells.
+        let cell = cell.max((hi.0 - lo.0).max(hi.1 - lo.1) / 1023.0);
+        let count = |span: f64| (span / cell).floor().max(0.0) as usize + 1;
         let dims = (count(hi.0 - lo.0), count(hi.1 - lo.1));
         let mut cells = vec![Vec::new(); dims.0 * dims.1];
         let index =
@@ -840,6 +854,15 @@ mod tests {
         ];
         let got = dead_water(&whole, &rear(&whole), &Vector3::x(), 2.0, &points);
         assert_eq!(got, [true, true, false, false, false, true]);
+        // Everything separated: a point inside meets the front panels'
+        // inner side first (facing upstream) and is no dead water; a point
+        // behind still is.
+        let all = vec![true; whole.len()];
+        let inside = [Point3::new(0.5, 0.0, 0.0), Point3::new(1.5, 0.0, 0.0)];
+        assert_eq!(
+            dead_water(&whole, &all, &Vector3::x(), 2.0, &inside),
+            [false, true]
+        );
         // Nothing separated: no dead water.
         let none = vec![false; whole.len()];
         assert!(!dead_water(&whole, &none, &Vector3::x(), 2.0, &points).contains(&true));

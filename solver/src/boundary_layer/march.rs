@@ -377,6 +377,10 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// never such a bubble.
 fn junction_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     let here = ctx.samples[ctx.i];
+    // A 2D section carries no normal, so no side to pass round.
+    if here.normal.norm_squared() < 0.25 {
+        return None;
+    }
     let reach = ctx.params.reattach_thicknesses * state.theta * (head::h1_of_h(state.h) + state.h);
     let within = &ctx.samples[ctx.i + 1..];
     let within = &within[..within

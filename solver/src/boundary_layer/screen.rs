@@ -895,7 +895,7 @@ fn faces_stream(mesh: &PanelMesh, t: usize, flow_dir: &Vector3<f64>) -> bool {
 /// The connected regions (over shared edges) of the panels that face into
 /// the stream, for the height of the face a line meets
 /// ([`LineSample::face_top`]): a label per panel and the vertices of each
-/// region, found once per mesh.
+/// region, found once per screening pass.
 struct FaceRegions {
     /// The region of each panel; `None` for a panel that does not face
     /// into the stream.
