@@ -798,6 +798,54 @@ checks what it gives a tyre (on the demo coupe four wheels took C_D from 0.15 to
 the wheels and close the arches to rank drag";
 
 /// The warning of a run whose body stands on the ground (tyres, usually,
+/// Share of the wetted surface by which the two sides' separated areas may
+/// differ on a whole body centred on y = 0 at zero yaw before a run warns
+/// (our choice: 1 %; the demo coupe's sides differ by 8 panels, a review's
+/// 75-degree-screen SUV by 73 % of its roof against 1 %).
+pub const SIDE_DIFFERENCE_SHARE: f64 = 0.01;
+
+/// A warning for a whole body, centred on y = 0 (within 2 % of its width),
+/// at zero yaw, whose two sides separate differently by more than
+/// [`SIDE_DIFFERENCE_SHARE`] of its surface: the separated-flow loop's
+/// passes can drift apart on a whole model (DEVELOPERS.md), and the
+/// verdicts then depend on the side.
+pub fn side_difference_warning(
+    mesh: &PanelMesh,
+    layer: &BoundaryLayer,
+    yaw_deg: f64,
+) -> Option<String> {
+    if mesh.mirrors.symmetry || yaw_deg != 0.0 {
+        return None;
+    }
+    let (lo, hi) = mesh.bounds();
+    let width = hi.y - lo.y;
+    if !(width > 0.0) || 0.5 * (hi.y + lo.y).abs() > 0.02 * width {
+        return None;
+    }
+    let (mut left, mut right) = (0.0, 0.0);
+    for (p, l) in mesh.panels.iter().zip(&layer.panels) {
+        if l.state == FlowState::Separated {
+            // A panel across the plane counts half to each side.
+            let y = p.centroid.y;
+            let share = if y.abs() <= 1e-9 * width {
+                0.5
+            } else {
+                f64::from(u8::from(y > 0.0))
+            };
+            right += share * p.area;
+            left += (1.0 - share) * p.area;
+        }
+    }
+    ((left - right).abs() > SIDE_DIFFERENCE_SHARE * mesh.area()).then(|| {
+        format!(
+            "at zero yaw the two sides separate differently: {left:.2} m^2 on the left (y < 0) against \
+             {right:.2} m^2 on the right, on a body centred on y = 0; the separated-flow loop can drift to \
+             one side on a whole model, so read the verdicts with care, and if the body is symmetric \
+             (tuft check says) run it as a half model (geometry.half_model = true) for one answer"
+        )
+    })
+}
+
 /// or an underside within the wrap's contact distance): the wrap gives the
 /// panel method one surface to solve on, but a wheel's wake, its rotation
 /// and the flow through its arch are outside the model ([`WHEELS_DRAG`]),
@@ -1166,6 +1214,47 @@ mod tests {
         assert!(w.starts_with("83 % of the underbody is separated"), "{w}");
         assert!(underbody_separation_warning((0.26, 1.0)).is_none());
         assert!(underbody_separation_warning((0.0, 0.0)).is_none());
+    }
+
+    /// A centred whole body at zero yaw separated on one side only warns;
+    /// separated alike on both sides, yawed, or a half model, it does not.
+    #[test]
+    fn one_sided_separation_at_zero_yaw_warns() {
+        use tuft_solver::boundary_layer::PanelLayer;
+        let mesh = PanelMesh::new(
+            tuft_mesh::generate::icosphere(1.0, 2),
+            tuft_mesh::Mirrors::none(),
+        )
+        .unwrap();
+        let n = mesh.len();
+        let layer_where = |separated: &dyn Fn(f64) -> bool| BoundaryLayer {
+            panels: mesh
+                .panels
+                .iter()
+                .map(|p| PanelLayer {
+                    state: if p.centroid.x > 0.3 && separated(p.centroid.y) {
+                        FlowState::Separated
+                    } else {
+                        FlowState::Turbulent
+                    },
+                    ..PanelLayer::unresolved()
+                })
+                .collect(),
+            streamlines: Vec::new(),
+            unresolved: 0,
+            transition_panels: Vec::new(),
+            separation_panels: Vec::new(),
+            separation_source: vec![None; n],
+            attachments: Vec::new(),
+            rim_zone: vec![false; n],
+        };
+        let one_side = layer_where(&|y| y > 0.0);
+        let both = layer_where(&|_| true);
+        assert!(
+            side_difference_warning(&mesh, &one_side, 0.0).is_some_and(|w| w.contains("two sides"))
+        );
+        assert!(side_difference_warning(&mesh, &both, 0.0).is_none());
+        assert!(side_difference_warning(&mesh, &one_side, 5.0).is_none());
     }
 
     /// A laminar panel shows no separation risk unless the layer is kept

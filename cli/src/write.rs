@@ -463,6 +463,9 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         c.wakes.is_some(),
     ));
     warnings.extend(crate::pipeline::ground_contact_warning(&geo.report));
+    warnings.extend(crate::pipeline::side_difference_warning(
+        mesh, &c.layer, flow.yaw,
+    ));
     // A built-in shape is generated at the count asked (half of it on a
     // half model); only an STL can hold fewer facets than asked.
     if matches!(case.source, crate::case::GeometrySource::Stl { .. }) {
