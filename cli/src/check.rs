@@ -349,6 +349,13 @@ fn read_lines(r: &PrepareReport) -> String {
     if let Some(h) = &r.mirrors.halves {
         s += &halves_line(h);
     }
+    if let Some(y) = r.mirrors.off_centre {
+        s += &format!(
+            "           centred {:.1} mm off y = 0: to run it as a half model, move its centre plane onto y = 0 \
+             in the STL first\n",
+            1000.0 * y
+        );
+    }
     if r.mirrors.cut_vertices_moved > 0 {
         s += &format!(
             "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {:.2} mm)\n",

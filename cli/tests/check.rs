@@ -196,6 +196,12 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
     off.map_vertices(|q| tuft_mesh::Point::new(q.x, q.y + 0.1, q.z));
     let path = dir.path().join("off.stl");
     write_binary_stl(&path, &off, 1.0);
+    let out = check(&[path.to_str().unwrap(), "--units", "m"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("centred 100.0 mm off y = 0: to run it as a half model"),
+        "{stdout}"
+    );
     let out = check(&[path.to_str().unwrap(), "--units", "m", "--half"]);
     assert_eq!(out.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&out.stderr);

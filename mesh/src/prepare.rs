@@ -86,6 +86,9 @@ pub struct MirrorReport {
     /// ([`PrepareParams::measure_symmetry`]): the cut at y = 0 a half model
     /// would make, with how far its halves differ.
     pub halves: Option<crate::cut::HalfCut>,
+    /// When asked as for [`MirrorReport::halves`], a whole body too far off
+    /// y = 0 to be cut there: its centre's y, metres.
+    pub off_centre: Option<f64>,
 }
 
 /// A half model's vertices within this fraction of the body's diagonal of
@@ -168,10 +171,13 @@ pub fn prepare_mesh(
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
-    let halves = (params.measure_symmetry && !params.mirrors.symmetry)
-        .then(|| crate::cut::keep_right_half(&mesh).ok().flatten())
-        .flatten()
-        .map(|(_, cut)| cut);
+    let measured = (params.measure_symmetry && !params.mirrors.symmetry)
+        .then(|| crate::cut::keep_right_half(&mesh));
+    let off_centre = match &measured {
+        Some(Err(MeshError::NotCentred { y_min, y_max })) => Some(0.5 * (y_min + y_max)),
+        _ => None,
+    };
+    let halves = measured.and_then(Result::ok).flatten().map(|(_, cut)| cut);
     let whole_cut = if params.mirrors.symmetry {
         match crate::cut::keep_right_half(&mesh)? {
             Some((half, cut)) => {
@@ -292,6 +298,7 @@ pub fn prepare_mesh(
             cut_largest_move,
             whole_cut,
             halves,
+            off_centre,
         },
         repair,
         wrap,
