@@ -200,11 +200,7 @@ pub fn picture(
 /// on the run report's sheets) with the flow's direction beside it.
 fn view_label(canvas: &mut Canvas, view: View, frame: &Frame, yaw_deg: f64) {
     let (l, t, w, _) = frame.rect;
-    let words = if view.is_side() && yaw_deg != 0.0 {
-        format!("{}: the lee side", view.label())
-    } else {
-        view.label().to_owned()
-    };
+    let words = view.label_at(yaw_deg);
     let style = TextStyle::new(13.0).bold();
     let y = (t - 7) as f32;
     text::draw(canvas, &words, l as f32, y, &style);
@@ -213,13 +209,7 @@ fn view_label(canvas: &mut Canvas, view: View, frame: &Frame, yaw_deg: f64) {
         GRID,
         1.0,
     );
-    let yaw = yaw_deg.to_radians();
-    let (dx, dy) = match view {
-        View::SideFromRight => (-1.0, 0.0),
-        View::Top => (yaw.cos(), -yaw.sin()),
-        View::Underneath => (yaw.cos(), yaw.sin()),
-        _ => (1.0, 0.0),
-    };
+    let (dx, dy) = view.flow_direction(yaw_deg).unwrap_or((1.0, 0.0));
     let x0 = l as f32 + text::width(&words, &style) + 70.0;
     let (cx, cy) = (x0, y - 4.0);
     let (dx, dy) = (14.0 * dx as f32, 14.0 * dy as f32);

@@ -61,6 +61,29 @@ impl View {
         views
     }
 
+    /// The label printed above the view on a sheet at `yaw_deg`: a yawed
+    /// run's side view is named its lee side.
+    pub fn label_at(self, yaw_deg: f64) -> String {
+        if self.is_side() && yaw_deg != 0.0 {
+            format!("{}: the lee side", self.label())
+        } else {
+            self.label().to_owned()
+        }
+    }
+
+    /// The free stream's direction on the screen (right, down), unit, at
+    /// `yaw_deg`; `None` for the front and rear views, which it crosses.
+    pub fn flow_direction(self, yaw_deg: f64) -> Option<(f64, f64)> {
+        let yaw = yaw_deg.to_radians();
+        match self {
+            View::Side => Some((1.0, 0.0)),
+            View::SideFromRight => Some((-1.0, 0.0)),
+            View::Top => Some((yaw.cos(), -yaw.sin())),
+            View::Underneath => Some((yaw.cos(), yaw.sin())),
+            View::Front | View::Rear => None,
+        }
+    }
+
     /// True for the two side views.
     pub fn is_side(self) -> bool {
         matches!(self, View::Side | View::SideFromRight)

@@ -364,11 +364,7 @@ fn draw_cell(
     paint: &dyn Fn(usize) -> PanelPaint,
 ) {
     let (l, t, w, _) = frame.rect;
-    let label = if view.is_side() && yaw_deg != 0.0 {
-        format!("{}: the lee side", view.label())
-    } else {
-        view.label().to_string()
-    };
+    let label = view.label_at(yaw_deg);
     text::draw(
         canvas,
         &label,
@@ -419,15 +415,7 @@ fn decorate(
             );
         }
     }
-    let yaw = caption.yaw_deg.to_radians();
-    let dir = match view {
-        View::Side => Some((1.0, 0.0)),
-        View::SideFromRight => Some((-1.0, 0.0)),
-        View::Top => Some((yaw.cos(), -yaw.sin())),
-        View::Underneath => Some((yaw.cos(), yaw.sin())),
-        View::Front | View::Rear => None,
-    };
-    if let Some((dx, dy)) = dir {
+    if let Some((dx, dy)) = view.flow_direction(caption.yaw_deg) {
         // The word before the arrow, on one line with it, so the corner
         // they take is short and region names keep clear of it
         // ([`flow_mark_box`]).
