@@ -22,6 +22,15 @@ fn half_in_mm() -> PrepareParams {
     }
 }
 
+/// A half model in metres, at the suggested panel count.
+fn half_in_metres() -> PrepareParams {
+    PrepareParams {
+        units: LengthUnit::M,
+        target_panels: None,
+        ..half_in_mm()
+    }
+}
+
 #[test]
 fn half_sphere_in_millimetres_with_symmetry() {
     // A 1 m radius half sphere written in millimetres.
@@ -61,14 +70,7 @@ fn body_across_the_symmetry_plane_is_refused() {
     let mut body = generate::icosphere(1.0, 2);
     body.map_vertices(|p| tuft_mesh::Point::new(p.x, p.y + 0.8, p.z));
     let path = common::write(dir.path(), "s.stl", &common::binary_stl(&body));
-    let params = PrepareParams {
-        units: LengthUnit::M,
-        mirrors: Mirrors {
-            ground: None,
-            symmetry: true,
-        },
-        ..PrepareParams::default()
-    };
+    let params = half_in_metres();
     let e = prepare(&path, &params).unwrap_err();
     assert!(
         matches!(e, MeshError::AcrossSymmetryPlane { .. }) && e.to_string().contains("y >= 0"),
@@ -118,14 +120,7 @@ fn an_unsymmetric_whole_body_cut_at_the_plane_is_warned_about() {
     body.map_vertices(|p| {
         tuft_mesh::Point::new(2.0 * c * p.x - s * p.y, 2.0 * s * p.x + c * p.y, p.z)
     });
-    let params = PrepareParams {
-        units: LengthUnit::M,
-        mirrors: Mirrors {
-            ground: None,
-            symmetry: true,
-        },
-        ..PrepareParams::default()
-    };
+    let params = half_in_metres();
     let (_, report) = tuft_mesh::prepare::prepare_mesh(body, None, &params).unwrap();
     let cut = report.mirrors.whole_cut.expect("cut");
     assert!(cut.largest_difference > 0.1, "{}", cut.largest_difference);
