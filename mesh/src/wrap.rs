@@ -34,7 +34,12 @@
 //! half model's cut and a tyre's flat contact are closed by them), grid
 //! nodes lie on the planes and only cells on the body's side are cut, so
 //! the wrapped surface ends exactly on each plane, as a half model's cut
-//! does, and the images close it again in the solver. Nodes of the bottom
+//! does, and the images close it again in the solver. A border closed by
+//! a mirror must lie exactly on its plane: the grid lines lying in a plane
+//! are shifted symbolically off it to the body's side, so they count the
+//! mesh's facets there and not the image's, and pass through any gap
+//! between the border and its image, however thin (`prepare` moves a half
+//! model's border onto y = 0 after the repair). Nodes of the bottom
 //! row below a part within [`WrapParams::contact_cells`] cells of the
 //! ground are taken as inside: a tyre touching the ground meets it over a
 //! contact patch instead of leaving a hair-thin gap to its image.
