@@ -9,8 +9,10 @@
 //!   flow direction turns down round it by more than
 //!   `params.base_edge_turn_deg` (a bluff base edge; not from a surface
 //!   facing upstream, the rim of a flat nose, round which the flow
-//!   reattaches), the flow is taken to
-//!   leave the surface at the edge: the line separates at the crossing
+//!   reattaches; never in a concave corner, where the flow on the
+//!   facets of a stagnating corner can run down the face and seem to turn
+//!   down: the flow leaves a surface only where it falls away), the flow
+//!   is taken to leave the surface at the edge: the line separates at the crossing
 //!   whatever the boundary layer says, is traced on, and every panel
 //!   downstream along it is separated; its plateau pressure is that of the
 //!   last clean panel before the edge. Attached potential flow turns any
