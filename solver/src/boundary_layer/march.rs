@@ -409,7 +409,10 @@ fn junction_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// the surface and runs into the face, so the region it encloses is a
 /// closed bubble, not an open wake (the flow ahead of a forward-facing
 /// step; see [`STEP_SEPARATION_HEIGHTS`]). The face's foot is the first
-/// station after a concave turn of at least [`BUBBLE_CONCAVE_TURN`] onto it;
+/// station after a concave turn of at least [`BUBBLE_CONCAVE_TURN`] onto it
+/// (when that face is too low for its distance, each later concave turn
+/// onto a face into the stream before any bluff edge is a foot in turn:
+/// the shear layer passes over a low facet of the cowl to the screen);
 /// its height is how far its stations rise above the separated surface's
 /// plane, or its top ([`LineSample::face_top`], the face's own height near
 /// where the line meets it, which counts when the line crosses only its
@@ -422,11 +425,26 @@ fn junction_bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 fn step_bubble_end(ctx: &Station) -> Option<usize> {
     let here = ctx.samples[ctx.i];
     let later = ctx.samples.get(ctx.i + 1..)?;
-    let foot = later
+    let clear = later.iter().take_while(|b| !b.forced_separation).count();
+    let first = later[..clear]
         .iter()
-        .take_while(|b| !b.forced_separation)
         .position(|b| b.concave_turn - here.concave_turn >= BUBBLE_CONCAVE_TURN)?;
-    let face = &later[foot..];
+    // The shear layer runs on over a face too low to catch it (a facet of
+    // the cowl tipped into the stream, a lip) to the next face it meets: each
+    // further concave turn onto a face into the stream, before any bluff
+    // edge, is a foot too, and the first high enough for its distance
+    // closes the bubble.
+    std::iter::once(first)
+        .chain((first + 1..clear).filter(|&k| later[k].concave_turn > later[k - 1].concave_turn))
+        .find_map(|foot| bubble_on_face(ctx, foot))
+}
+
+/// The step rule's close on the face whose foot is station `ctx.i + 1 +
+/// foot` (see [`step_bubble_end`]): `None` when the face is too low for
+/// its distance from the separation or a bluff edge ends the face first.
+fn bubble_on_face(ctx: &Station, foot: usize) -> Option<usize> {
+    let here = ctx.samples[ctx.i];
+    let face = &ctx.samples[ctx.i + 1 + foot..];
     // The foot's station need not face the stream: the turn may reach its
     // threshold on a sliver of the face crossed between two stations (a
     // facet in the corner at a screen's foot, the few centimetres a line

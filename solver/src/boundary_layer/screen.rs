@@ -9,8 +9,10 @@
 //!   flow direction turns down round it by more than
 //!   `params.base_edge_turn_deg` (a bluff base edge; not from a surface
 //!   facing upstream, the rim of a flat nose, round which the flow
-//!   reattaches), the flow is taken to
-//!   leave the surface at the edge: the line separates at the crossing
+//!   reattaches; never in a concave corner, where the flow on the
+//!   facets of a stagnating corner can run down the face and seem to turn
+//!   down: the flow leaves a surface only where it falls away), the flow
+//!   is taken to leave the surface at the edge: the line separates at the crossing
 //!   whatever the boundary layer says, is traced on, and every panel
 //!   downstream along it is separated; its plateau pressure is that of the
 //!   last clean panel before the edge. Attached potential flow turns any
@@ -662,8 +664,10 @@ impl<'a> LineContext<'a> {
         let limit = self.params.base_edge_turn_deg.to_radians();
         (1..trace.panels.len())
             .filter(|&j| {
-                let a = trace.panels[j - 1] as usize;
-                self.edge_turn(trace, j).is_some_and(|t| t > limit) && !self.faces_upstream(a)
+                let (a, b) = (trace.panels[j - 1] as usize, trace.panels[j] as usize);
+                self.edge_turn(trace, j).is_some_and(|t| t > limit)
+                    && !self.faces_upstream(a)
+                    && self.falls_away(a, b)
             })
             .collect()
     }
@@ -686,6 +690,13 @@ impl<'a> LineContext<'a> {
         let (da, db) = (self.field.direction[a], self.field.direction[b]);
         let na = self.mesh.panels[a].normal.into_inner();
         (-db.dot(&na)).atan2(db.dot(&da))
+    }
+
+    /// True when the surface falls away from panel `a` onto panel `b`:
+    /// `b`'s centroid lies below `a`'s plane, so the edge between is convex.
+    fn falls_away(&self, a: usize, b: usize) -> bool {
+        let (pa, pb) = (&self.mesh.panels[a], &self.mesh.panels[b]);
+        pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0
     }
 
     /// True when panel `t` faces upstream ([`faces_upstream`]).
