@@ -340,6 +340,8 @@ fn read_lines(r: &PrepareReport) -> String {
         "mirrors    ground plane: {ground}; symmetry plane y = 0: {}\n",
         if r.mirrors.whole_cut.is_some() {
             "yes (half model, cut from the whole body: see the note below)"
+        } else if r.mirrors.mirrored_half {
+            "yes (half model, lying in y <= 0: run as its mirror image, see the note below)"
         } else if r.mirrors.symmetry {
             "yes (half model)"
         } else {

@@ -150,6 +150,36 @@ fn check_half_model_needs_the_symmetry_flag() {
         String::from_utf8_lossy(&accepted.stderr)
     );
     assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
+
+    // The other half (y <= 0, as some exports keep the driver's side) runs
+    // as its mirror image: the same panels, and said so.
+    let left_path = dir.path().join("left.stl");
+    let mut left = half.clone();
+    left.map_vertices(|p| tuft_mesh::Point::new(p.x, -p.y, p.z));
+    for t in &mut left.triangles {
+        t.swap(1, 2);
+    }
+    write_binary_stl(&left_path, &left, 1.0);
+    let mirrored = check(&[left_path.to_str().unwrap(), "--units", "m", "--half"]);
+    assert_eq!(
+        mirrored.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&mirrored.stderr)
+    );
+    let stdout = String::from_utf8_lossy(&mirrored.stdout);
+    assert!(
+        stdout.contains("lying in y <= 0: run as its mirror image"),
+        "{stdout}"
+    );
+    let panels = |out: &str| {
+        out.lines()
+            .find(|l| l.starts_with("panels "))
+            .map(str::to_owned)
+    };
+    let accepted_stdout = String::from_utf8_lossy(&accepted.stdout);
+    assert!(panels(&accepted_stdout).is_some());
+    assert_eq!(panels(&stdout), panels(&accepted_stdout));
 }
 
 /// A whole body checked as a half model (`--half`, or `geometry.half_model

@@ -90,7 +90,16 @@ pub struct MirrorReport {
     /// When asked as for [`MirrorReport::halves`], a whole body too far off
     /// y = 0 to be cut there: its centre's y, metres.
     pub off_centre: Option<f64>,
+    /// A half model that lay on the other side of the symmetry plane (in
+    /// y <= 0 in tuft's axes) and runs as its mirror image in y >= 0
+    /// ([`crate::import::FileAxes::apply`]; [`MIRRORED_HALF_NOTE`]).
+    pub mirrored_half: bool,
 }
+
+/// What the run says of a half model mirrored onto y >= 0.
+pub const MIRRORED_HALF_NOTE: &str = "the half model lies in y <= 0 (in tuft's axes: x from nose to tail, \
+     z up): it runs as its mirror image in y >= 0, the same flow and loads, so y in panels.csv and \
+     the VTK files has the other sign from the file's";
 
 /// A half model's vertices within this fraction of the body's diagonal of
 /// the symmetry plane, on its open border or on the wrong side of it, are
@@ -168,7 +177,7 @@ pub fn prepare_mesh(
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
     let scale = params.units.to_metres();
     mesh.map_vertices(|p| p * scale);
-    params.axes.apply(&mut mesh, params.mirrors.symmetry);
+    let mirrored_half = params.axes.apply(&mut mesh, params.mirrors.symmetry);
     if let Some(t) = params.transform {
         t.apply(&mut mesh);
     }
@@ -259,6 +268,9 @@ pub fn prepare_mesh(
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
             ));
         }
+        if mirrored_half {
+            q.notes.push(MIRRORED_HALF_NOTE.to_owned());
+        }
         if let Some(c) = &whole_cut {
             q.notes.push(c.describe());
             if c.differs() {
@@ -299,7 +311,7 @@ pub fn prepare_mesh(
     let report = PrepareReport {
         read,
         units: params.units,
-        transformed: params.transform.is_some() || !params.axes.is_identity(),
+        transformed: params.transform.is_some() || !params.axes.is_identity() || mirrored_half,
         axes: params.axes,
         mirrors: MirrorReport {
             ground: params.mirrors.ground,
@@ -309,6 +321,7 @@ pub fn prepare_mesh(
             whole_cut,
             halves,
             off_centre,
+            mirrored_half,
         },
         repair,
         wrap,

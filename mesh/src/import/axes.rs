@@ -25,11 +25,12 @@ impl FileAxes {
     /// change a rotation, except for a half model (`half`), whose half
     /// must land on y >= 0: there the sign follows the side the body lies
     /// on and, where that makes the change a mirror image, the facets are
-    /// turned round so that their normals still point out.
-    pub fn apply(&self, mesh: &mut TriMesh, half: bool) {
-        if self.is_identity() {
-            return;
-        }
+    /// turned round so that their normals still point out. True when the
+    /// half was mirrored so (a half on the file's other side: in tuft's own
+    /// axes, a half in y <= 0). A whole body (reaching both sides by at
+    /// least [`crate::cut::WHOLE_SIDE_SHARE`] of its width) is only
+    /// rotated, as without `half`: it is cut at y = 0 later.
+    pub fn apply(&self, mesh: &mut TriMesh, half: bool) -> bool {
         let along = if self.nose_plus_x { -1.0 } else { 1.0 };
         // (x, up, side) of a file point.
         let parts = |p: &Point| {
@@ -43,12 +44,18 @@ impl FileAxes {
         // determinant of x' = along x, y' = s side, z' = up.
         let swapped = if self.y_up { -1.0 } else { 1.0 };
         let rotation_sign = along * swapped;
-        let side_sign = if half {
-            let (lo, hi) = mesh.vertices.iter().fold((0.0f64, 0.0f64), |(lo, hi), p| {
-                let s = parts(p).2;
-                (lo.min(s), hi.max(s))
-            });
-            if hi >= -lo { 1.0 } else { -1.0 }
+        let (lo, hi) = mesh.vertices.iter().fold((0.0f64, 0.0f64), |(lo, hi), p| {
+            let s = rotation_sign * parts(p).2;
+            (lo.min(s), hi.max(s))
+        });
+        let share = crate::cut::WHOLE_SIDE_SHARE * (hi - lo);
+        let whole = -lo >= share && hi >= share;
+        let mirrored = half && !whole && hi < -lo;
+        if self.is_identity() && !mirrored {
+            return false;
+        }
+        let side_sign = if mirrored {
+            -rotation_sign
         } else {
             rotation_sign
         };
@@ -56,11 +63,12 @@ impl FileAxes {
             let (x, up, side) = parts(&p);
             Point::new(along * x, side_sign * side, up)
         });
-        if side_sign != rotation_sign {
+        if mirrored {
             for t in &mut mesh.triangles {
                 t.swap(1, 2);
             }
         }
+        mirrored
     }
 }
 
@@ -110,5 +118,35 @@ mod tests {
         .apply(&mut m, true);
         assert!(m.vertices.iter().all(|p| p.y >= 0.0));
         approx::assert_relative_eq!(m.signed_volume(), body.signed_volume(), epsilon = 1e-12);
+    }
+
+    /// A half in y <= 0 in tuft's own axes lands on y >= 0 as its mirror
+    /// image, outward; a whole body is left as it is, and a right half
+    /// too.
+    #[test]
+    fn a_left_half_is_mirrored_onto_the_positive_side() {
+        let right = tetra(Point::new(2.0, 0.0, 4.0));
+        let mut left = right.clone();
+        left.map_vertices(|p| Point::new(p.x, -p.y, p.z));
+        for t in &mut left.triangles {
+            t.swap(1, 2);
+        }
+        let mut m = left.clone();
+        assert!(FileAxes::default().apply(&mut m, true));
+        assert_eq!(m.vertices, right.vertices);
+        approx::assert_relative_eq!(m.signed_volume(), right.signed_volume(), epsilon = 1e-12);
+        let mut m = right.clone();
+        assert!(!FileAxes::default().apply(&mut m, true));
+        assert_eq!(m.vertices, right.vertices);
+        // Not declared a half: left as it is (the run refuses nothing, as
+        // without mirror).
+        let mut m = left.clone();
+        assert!(!FileAxes::default().apply(&mut m, false));
+        assert_eq!(m.vertices, left.vertices);
+        // A whole body, a little wider on -y, is not mirrored.
+        let whole = tetra(Point::new(2.0, -0.6, 4.0));
+        let mut m = whole.clone();
+        assert!(!FileAxes::default().apply(&mut m, true));
+        assert_eq!(m.vertices, whole.vertices);
     }
 }
