@@ -80,6 +80,11 @@ pub struct MirrorReport {
     pub cut_vertices_moved: usize,
     /// The largest of those moves, metres.
     pub cut_largest_move: f64,
+    /// Vertices of a border on the ground (a body cut at the floor) moved
+    /// onto it after the repair (`snap_to_ground`).
+    pub ground_vertices_moved: usize,
+    /// The largest of those moves, metres.
+    pub ground_largest_move: f64,
     /// A whole body declared a half model, cut at `y = 0`
     /// ([`crate::cut::keep_right_half`]).
     pub whole_cut: Option<crate::cut::HalfCut>,
@@ -212,6 +217,11 @@ pub fn prepare_mesh(
     let cut_vertices_moved = cut_vertices_moved + moved_after;
     let cut_largest_move = cut_largest_move.max(largest_after);
     let plane_tol = params.repair.plane_tolerance * repair.diagonal;
+    // A border the ground closes must lie exactly on it too (a floor cut
+    // a hair above it, from the STL's single precision or a transform,
+    // let the wrap's grid lines in the ground pass under the body).
+    let (ground_vertices_moved, ground_largest_move) =
+        snap_to_ground(&mut mesh, &params.mirrors, plane_tol);
     let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap, plane_tol);
     let (mesh, wrap) = if reasons.any() {
         let (m, r) = crate::wrap::wrap(&mesh, &params.mirrors, reasons, &params.wrap);
@@ -318,6 +328,8 @@ pub fn prepare_mesh(
             symmetry: params.mirrors.symmetry,
             cut_vertices_moved,
             cut_largest_move,
+            ground_vertices_moved,
+            ground_largest_move,
             whole_cut,
             halves,
             off_centre,
@@ -444,6 +456,45 @@ fn snap_to_cut(mesh: &mut TriMesh, mirrors: &Mirrors) -> (usize, f64) {
             largest = largest.max(v.y.abs());
             moved += 1;
             v.y = 0.0;
+        }
+    }
+    (moved, largest)
+}
+
+/// Move the vertices of the open edges lying on the ground (both ends
+/// within `tol` metres of it: the edges the repair took as closed by the
+/// ground's image) onto it; how many moved and the largest move (metres).
+/// Run after the repair, for the wrap: its grid lines in the ground are
+/// shifted symbolically upwards, so a border a hair above the ground (a
+/// floor cut at 1e-7 m, or at a single-precision STL's round-off off the
+/// declared height) lets them pass under the body between the border and
+/// its image, and the nodes on the ground inside the body vote outside:
+/// the wrapped body then stood a twentieth of a cell above its image,
+/// closed by a floor the size of its footprint, instead of meeting the
+/// ground. A border a hair below the ground was counted right; it is
+/// moved as well, so that the image closes the body exactly.
+fn snap_to_ground(mesh: &mut TriMesh, mirrors: &Mirrors, tol: f64) -> (usize, f64) {
+    let Some(g) = mirrors.ground else {
+        return (0, 0.0);
+    };
+    let mut on_ground = vec![false; mesh.vertices.len()];
+    let uses = crate::repair::edges::sorted_edge_uses(&mesh.triangles);
+    for group in crate::repair::edges::edge_groups(&uses) {
+        if group.len() == 1 {
+            let (a, b) = group[0].ends();
+            let near = |v: u32| (mesh.vertices[v as usize].z - g).abs() <= tol;
+            if near(a) && near(b) {
+                on_ground[a as usize] = true;
+                on_ground[b as usize] = true;
+            }
+        }
+    }
+    let (mut moved, mut largest) = (0, 0.0f64);
+    for (v, on) in mesh.vertices.iter_mut().zip(on_ground) {
+        if on && v.z != g {
+            largest = largest.max((v.z - g).abs());
+            moved += 1;
+            v.z = g;
         }
     }
     (moved, largest)

@@ -39,7 +39,8 @@
 //! are shifted symbolically off it to the body's side, so they count the
 //! mesh's facets there and not the image's, and pass through any gap
 //! between the border and its image, however thin (`prepare` moves a half
-//! model's border onto y = 0 after the repair). Nodes of the bottom
+//! model's border onto y = 0 after the repair, and a border on the ground,
+//! a body cut at the floor, onto the ground). Nodes of the bottom
 //! row below a part within [`WrapParams::contact_cells`] cells of the
 //! ground are taken as inside: a tyre touching the ground meets it over a
 //! contact patch instead of leaving a hair-thin gap to its image.
