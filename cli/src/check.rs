@@ -366,6 +366,13 @@ fn read_lines(r: &PrepareReport) -> String {
             1000.0 * r.mirrors.cut_largest_move
         );
     }
+    if r.mirrors.ground_vertices_moved > 0 {
+        s += &format!(
+            "           ground: {} vertices of the border on the ground moved onto it (largest move {:.2} mm)\n",
+            r.mirrors.ground_vertices_moved,
+            1000.0 * r.mirrors.ground_largest_move
+        );
+    }
     s
 }
 

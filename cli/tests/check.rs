@@ -565,3 +565,45 @@ fn a_failing_stdout_is_reported() {
     assert_eq!(out.status.code(), Some(2), "{stderr}");
     assert!(stderr.contains("writing to stdout failed"), "{stderr}");
 }
+
+/// A dome cut at the floor, in millimetres, its floor at -12.4 mm and the
+/// ground declared at -0.0124 m: single precision puts the cut 0.4
+/// nanometres above the ground, and the border is moved onto it (the
+/// wrap's grid lines in the ground would otherwise pass under the body),
+/// which check says.
+#[test]
+fn a_floor_cut_a_hair_off_the_ground_is_moved_onto_it_and_said() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("dome.stl");
+    let sphere = generate::latlong_sphere(1.0, 24, 48);
+    let mut dome = TriMesh {
+        triangles: sphere
+            .triangles
+            .iter()
+            .copied()
+            .filter(|t| {
+                t.iter()
+                    .map(|&v| sphere.vertices[v as usize].z)
+                    .sum::<f64>()
+                    > 0.0
+            })
+            .collect(),
+        vertices: sphere.vertices.clone(),
+    };
+    dome.map_vertices(|p| tuft_mesh::Point::new(p.x, p.y, p.z - 0.0124));
+    write_binary_stl(&path, &dome, 1000.0);
+    let out = check(&[path.to_str().unwrap(), "--ground", "-0.0124"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{stdout}{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(stdout.contains("closed by the ground mirror"), "{stdout}");
+    assert!(
+        stdout
+            .contains("vertices of the border on the ground moved onto it (largest move 0.00 mm)"),
+        "{stdout}"
+    );
+}
