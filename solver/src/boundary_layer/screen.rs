@@ -78,7 +78,7 @@ use tuft_mesh::PanelMesh;
 use super::attachment::{self, Seed};
 use super::coverage;
 use super::field::{SurfaceField, sharp_convex};
-use super::march::{self, LineMarch, LineSample, LineStart};
+use super::march::{self, LineMarch, LineSample, LineStart, WakeBack};
 use super::streamlines::{Trace, Tracer};
 use super::{BoundaryLayerError, BoundaryLayerParams, FlowState, thwaites};
 
@@ -560,6 +560,7 @@ impl<'a> LineContext<'a> {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
+        let backs = self.wake_backs(trace, arc, &forced);
         let (concave, tops) = self.concave_turns(trace);
         let mut out = Vec::with_capacity(n + 1);
         let mut segments = Vec::with_capacity(n + 1);
@@ -588,6 +589,7 @@ impl<'a> LineContext<'a> {
                 trip: false,
                 concave_turn: concave[seg],
                 faces_stream: self.faces_stream(panel as usize),
+                wake_back: backs[seg],
                 point: p,
                 normal: *self.mesh.panels[panel as usize].normal,
                 face_top: tops[seg],
@@ -644,6 +646,62 @@ impl<'a> LineContext<'a> {
     /// True when panel `t` faces into the stream ([`faces_stream`]).
     fn faces_stream(&self, t: usize) -> bool {
         faces_stream(self.mesh, t, &self.flow_dir)
+    }
+
+    /// True when panel `t` faces downstream: the flow along the stream
+    /// would turn down by more than the bluff-edge limit to follow it (the
+    /// back of a mirror, a step or a base; not a slant of up to 40
+    /// degrees). A crumpled panel ([`crumpled_panels`]) does not.
+    fn faces_downstream(&self, t: usize) -> bool {
+        let limit = self.params.base_edge_turn_deg.to_radians();
+        !self.crumpled(t) && self.mesh.panels[t].normal.dot(&self.flow_dir) >= limit.sin()
+    }
+
+    /// The backs of protuberances the line runs down ([`WakeBack`]), for
+    /// each segment the last one that starts at or before it: a run of
+    /// segments on panels facing downstream ([`Self::faces_downstream`])
+    /// entered from one that does not, then the foot, the first segment on
+    /// a panel that does not face downstream, not reached over a bluff
+    /// crossing (`forced`: a base's lower edge onto the floor); the height,
+    /// how far the line's points from the one before the run to the foot
+    /// rise above the plane of the foot's panel; and how far the surface
+    /// behind stays clear of faces turned downstream and bluff crossings.
+    /// A run the line ends on (a body's base) is no back.
+    fn wake_backs(&self, trace: &Trace, arc: &[f64], forced: &[usize]) -> Vec<Option<WakeBack>> {
+        let p = &trace.panels;
+        let down: Vec<bool> = p
+            .iter()
+            .map(|&t| self.faces_downstream(t as usize))
+            .collect();
+        let bluff = |m: usize| forced.binary_search(&m).is_ok();
+        let mut out = vec![None; p.len()];
+        let mut last = None;
+        for j in 0..p.len() {
+            if j > 0 && down[j] && !down[j - 1] {
+                last = (j..p.len()).find(|&m| !down[m]).and_then(|foot| {
+                    if bluff(foot) {
+                        return None;
+                    }
+                    let normal = self.mesh.panels[p[foot] as usize].normal;
+                    let at = trace.points[foot];
+                    let height = trace.points[j - 1..=foot]
+                        .iter()
+                        .map(|q| (q - at).dot(&normal))
+                        .fold(0.0, f64::max);
+                    let clear = (foot + 1..p.len())
+                        .find(|&m| down[m] || bluff(m))
+                        .map_or_else(|| arc.last().copied().unwrap_or(0.0), |m| arc[m]);
+                    Some(WakeBack {
+                        start: arc[j],
+                        foot: arc[foot],
+                        height,
+                        clear,
+                    })
+                });
+            }
+            out[j] = last;
+        }
+        out
     }
 
     /// See [`crumpled_panels`].
