@@ -42,11 +42,11 @@ pub struct LineSample {
     /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
     /// section.
     pub faces_stream: bool,
-    /// The last back of a protuberance the line came onto at or before this
-    /// station, a face turned downstream that it ran down onto a surface
-    /// that does not face downstream (the back of a mirror, then the
-    /// flank): where, and how high that back stood (see [`WakeBack`],
-    /// `wake_reattachment`). `None` before any and on a 2D section.
+    /// At a bluff edge ([`LineSample::forced_separation`]) whose line runs
+    /// down a face turned downstream and comes onto a surface that does not
+    /// face downstream (the back of a mirror, then the flank): where, and
+    /// how high that back stood (see [`WakeBack`], `wake_reattachment`).
+    /// `None` elsewhere and on a 2D section.
     pub wake_back: Option<WakeBack>,
     /// Where the station lies, m (the origin on a 2D section).
     pub point: Point3<f64>,
@@ -240,7 +240,10 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// face's foot and the speed's recovery both come within the
 /// concave-corner rule's distance (the junction vortex ahead of an
 /// obstacle, whose legs wrap round its sides: the bonnet's outboard
-/// corners ahead of an upright windscreen; `junction_bubble_end`). Once
+/// corners ahead of an upright windscreen; `junction_bubble_end`). A
+/// bluff edge whose line runs down the back of a protuberance onto a wall
+/// closes within [`WAKE_REATTACHMENT_HEIGHTS`] of the back's height
+/// (`wake_reattachment`; whatever `params.reattach_thicknesses`). Once
 /// separated for good,
 /// every later station is separated and holds the thicknesses of the
 /// separation point.
@@ -369,19 +372,6 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
         *phase = Phase::Bubble { until, held };
         return held;
     }
-    if state.state == FlowState::Turbulent
-        && finite
-        && state.h >= ctx.params.separation_h
-        && let Some(until) = wake_reattachment(ctx, out.states.last().unwrap_or(&state))
-    {
-        let held = LineState {
-            cf: 0.0,
-            risk: 1.0,
-            ..state
-        };
-        *phase = Phase::Bubble { until, held };
-        return held;
-    }
     if state.state == FlowState::Turbulent && (!finite || state.h >= ctx.params.separation_h) {
         // A march that ran out of range (edge speed near zero) counts as
         // separated, holding the last finite state.
@@ -417,22 +407,17 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
         .or_else(|| junction_bubble_end(ctx, state))
 }
 
-/// The reattachment of a line that separates at station `ctx.i` (layer
-/// `before` at the station ahead of it) at a bluff edge, or by Head's
-/// criterion, on the back of a protuberance or behind it, the line running
-/// down that back onto a surface that no longer faces downstream
-/// ([`LineSample::wake_back`]: a mirror's housing or stalk, then the
+/// The reattachment of a line that leaves the bluff edge at station
+/// `ctx.i` (layer `before` at the station ahead of it) onto the back of a
+/// protuberance and runs down it onto a surface that no longer faces
+/// downstream ([`LineSample::wake_back`]: a mirror's stalk, then the
 /// flank): the first station [`WAKE_REATTACHMENT_HEIGHTS`] heights past the back's
 /// foot, the height being the larger of how high the line saw the back
 /// stand above that surface and the layer's thickness `theta (H1 + H)` at
 /// the edge (the shear layer that leaves the edge is at least as thick as
 /// the layer that reached it, so a back lower than the layer, where the
 /// line passes a protuberance's root, still leaves a wake about that
-/// thick; our choice). The separation must lie on the back or behind its
-/// foot within that reach (the attached potential flow runs down a
-/// protuberance's back as down a base, and the layer that follows it
-/// separates there or just past the foot). `None` when the line does not
-/// run down such a back
+/// thick; our choice). `None` when the line does not run down such a back
 /// (a slant, onto which the flow leaves a side edge, does not face
 /// downstream; a line that ends on a body's base or on a mirror's rear face
 /// never comes off it), and when a face turned downstream or a bluff edge
@@ -446,8 +431,7 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// step; see [`WAKE_REATTACHMENT_HEIGHTS`]), and the wall beyond is
 /// attached (common practice: tufts on the side glass behind a mirror
 /// stay on). Without the rule every line that crossed a mirror's rear rim
-/// onto the flank, or separated running down the mirror's back, stayed
-/// separated to the tail, leaving a strip of dead water one panel row high
+/// onto the flank stayed separated to the tail, leaving a strip of dead water one panel row high
 /// along the flank. The stations up to the
 /// reattachment are held as a bubble's (risk 1, no friction, counted
 /// attached), and the layer goes on from `H` = [`REATTACHMENT_H`].
@@ -456,7 +440,7 @@ fn wake_reattachment(ctx: &Station, before: &LineState) -> Option<usize> {
     let back = here.wake_back?;
     let thickness = before.theta * (head::h1_of_h(before.h) + before.h);
     let close = back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness);
-    if here.s < back.start || here.s > close || close >= back.clear {
+    if here.s < back.start || close >= back.clear {
         return None;
     }
     let k = ctx.samples[ctx.i..].iter().position(|b| b.s >= close)?;
