@@ -42,6 +42,12 @@ pub struct LineSample {
     /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
     /// section.
     pub faces_stream: bool,
+    /// At a bluff edge ([`LineSample::forced_separation`]) whose line runs
+    /// down a face turned downstream and comes onto a surface that does not
+    /// face downstream (the back of a mirror, then the flank): where, and
+    /// how high that back stood (see [`WakeBack`], `wake_reattachment`).
+    /// `None` elsewhere and on a 2D section.
+    pub wake_back: Option<WakeBack>,
     /// Where the station lies, m (the origin on a 2D section).
     pub point: Point3<f64>,
     /// Outward unit normal of the surface at the station (zero on a 2D
@@ -57,6 +63,27 @@ pub struct LineSample {
     /// face near its foot and passes round its side sees the face's height,
     /// not the few centimetres it climbed (`step_bubble_end`).
     pub face_top: Option<Point3<f64>>,
+}
+
+/// The back of a protuberance as a line saw it ([`LineSample::wake_back`]):
+/// a face turned downstream (the flow along the stream would turn down by
+/// more than the bluff-edge limit to follow it), which the line ran down
+/// onto a surface that does not face downstream.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WakeBack {
+    /// Arc length where the line comes onto the back, m.
+    pub start: f64,
+    /// Arc length where the line comes onto the surface behind the back
+    /// (the back's foot), m.
+    pub foot: f64,
+    /// How far the line's points from the edge to the foot rise above the
+    /// plane of the surface at the foot, m (zero where the line passes the
+    /// back's root, where the protuberance meets the wall).
+    pub height: f64,
+    /// Arc length where the line next meets a face turned downstream or a
+    /// bluff edge, or ends, m: the surface behind the back is clear up to
+    /// there.
+    pub clear: f64,
 }
 
 /// How the line starts.
@@ -166,6 +193,19 @@ pub const STEP_FACE_REACH: f64 = 2.0;
 /// (0 to 10 degrees on the cases seen) to a flank beside it (75 to 90).
 pub const JUNCTION_SIDE_TURN: f64 = 60.0 * std::f64::consts::PI / 180.0;
 
+/// Longest separated region behind the back of a protuberance, in heights
+/// of that back as the line saw it, for a line that leaves a bluff edge,
+/// runs down a face turned downstream and comes onto a surface that no
+/// longer faces downstream (the flank behind a mirror): the shear layer
+/// off the edge reattaches on that surface. Behind a two-dimensional
+/// backward-facing step it reattaches 6 to 7 step heights from the step
+/// (Eaton & Johnston 1981; Driver & Seegmiller 1985; from memory), behind
+/// a wall-mounted cube about 1.5 to 2 heights from its rear face
+/// (Martinuzzi & Tropea 1993; from memory), so 7, the two-dimensional
+/// step's, is the longest a protuberance's wake stays on the wall (our
+/// choice of the upper end). See `wake_reattachment`.
+pub const WAKE_REATTACHMENT_HEIGHTS: f64 = 7.0;
+
 /// Share by which the edge speed must exceed its value at a turbulent
 /// separation for the bubble to close (so that ripples of the interpolated
 /// speed do not count; our choice).
@@ -200,7 +240,10 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// face's foot and the speed's recovery both come within the
 /// concave-corner rule's distance (the junction vortex ahead of an
 /// obstacle, whose legs wrap round its sides: the bonnet's outboard
-/// corners ahead of an upright windscreen; `junction_bubble_end`). Once
+/// corners ahead of an upright windscreen; `junction_bubble_end`). A
+/// bluff edge whose line runs down the back of a protuberance onto a wall
+/// closes within [`WAKE_REATTACHMENT_HEIGHTS`] of the back's height
+/// (`wake_reattachment`; whatever `params.reattach_thicknesses`). Once
 /// separated for good,
 /// every later station is separated and holds the thicknesses of the
 /// separation point.
@@ -271,6 +314,24 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
     }
     if sample.forced_separation {
         let prev = out.states.last().copied();
+        if let Some(prev) = prev
+            && let Some(until) = wake_reattachment(ctx, &prev)
+        {
+            // The separated shear layer has turned turbulent where it
+            // reattaches (common practice, as behind a rim).
+            let held = LineState {
+                cf: 0.0,
+                risk: 1.0,
+                lambda: 0.0,
+                state: FlowState::Turbulent,
+                ..prev
+            };
+            if prev.state == FlowState::Laminar && out.transition.is_none() {
+                out.transition = Some(ctx.i);
+            }
+            *phase = Phase::Bubble { until, held };
+            return held;
+        }
         return separate(phase, out, ctx.i, prev, theta0, ctx.params);
     }
     let state = match phase {
@@ -344,6 +405,46 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
     corner_bubble_end(ctx, state)
         .or_else(|| step_bubble_end(ctx))
         .or_else(|| junction_bubble_end(ctx, state))
+}
+
+/// The reattachment of a line that leaves the bluff edge at station
+/// `ctx.i` (layer `before` at the station ahead of it) onto the back of a
+/// protuberance and runs down it onto a surface that no longer faces
+/// downstream ([`LineSample::wake_back`]: a mirror's stalk, then the
+/// flank): the first station [`WAKE_REATTACHMENT_HEIGHTS`] heights past the back's
+/// foot, the height being the larger of how high the line saw the back
+/// stand above that surface and the layer's thickness `theta (H1 + H)` at
+/// the edge (the shear layer that leaves the edge is at least as thick as
+/// the layer that reached it, so a back lower than the layer, where the
+/// line passes a protuberance's root, still leaves a wake about that
+/// thick; our choice). `None` when the line does not run down such a back
+/// (a slant, onto which the flow leaves a side edge, does not face
+/// downstream; a line that ends on a body's base or on a mirror's rear face
+/// never comes off it), and when a face turned downstream or a bluff edge
+/// comes before the reattachment or the line ends first (a fence on a
+/// short deck and a roof box, whose wakes run past the body's base; a line
+/// sliding along a base edge, which comes back onto the flank only to
+/// leave it again).
+///
+/// Behind a bluff protuberance on a wall the separated region closes
+/// within a few of its heights (a wall-mounted cube, a backward-facing
+/// step; see [`WAKE_REATTACHMENT_HEIGHTS`]), and the wall beyond is
+/// attached (common practice: tufts on the side glass behind a mirror
+/// stay on). Without the rule every line that crossed a mirror's rear rim
+/// onto the flank stayed separated to the tail, leaving a strip of dead water one panel row high
+/// along the flank. The stations up to the
+/// reattachment are held as a bubble's (risk 1, no friction, counted
+/// attached), and the layer goes on from `H` = [`REATTACHMENT_H`].
+fn wake_reattachment(ctx: &Station, before: &LineState) -> Option<usize> {
+    let here = ctx.samples[ctx.i];
+    let back = here.wake_back?;
+    let thickness = before.theta * (head::h1_of_h(before.h) + before.h);
+    let close = back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness);
+    if here.s < back.start || close >= back.clear {
+        return None;
+    }
+    let k = ctx.samples[ctx.i..].iter().position(|b| b.s >= close)?;
+    Some(ctx.i + k)
 }
 
 /// The reattachment of a separation at `ctx.i` in the decelerating flow

@@ -55,6 +55,12 @@
 //!   from the face round where the line meets it, `FaceRegions`), or one whose line
 //!   passes round such a face's side (a pillar); see
 //!   [`march::march_line`] and `params.reattach_thicknesses`.
+//! - **Wakes behind protuberances.** A line that leaves a bluff edge onto a
+//!   face turned downstream and runs down it onto a surface that no longer
+//!   faces downstream (a mirror's back, then the flank) reattaches within a
+//!   few heights of that back ([`march::WAKE_REATTACHMENT_HEIGHTS`]),
+//!   unless it meets another such face or bluff edge or ends first
+//!   (`LineContext::wake_back`).
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -78,7 +84,7 @@ use tuft_mesh::PanelMesh;
 use super::attachment::{self, Seed};
 use super::coverage;
 use super::field::{SurfaceField, sharp_convex};
-use super::march::{self, LineMarch, LineSample, LineStart};
+use super::march::{self, LineMarch, LineSample, LineStart, WakeBack};
 use super::streamlines::{Trace, Tracer};
 use super::{BoundaryLayerError, BoundaryLayerParams, FlowState, thwaites};
 
@@ -560,6 +566,9 @@ impl<'a> LineContext<'a> {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
+        let backs: Vec<Option<WakeBack>> = (0..forced.len())
+            .map(|f| self.wake_back(trace, arc, &forced, f))
+            .collect();
         let (concave, tops) = self.concave_turns(trace);
         let mut out = Vec::with_capacity(n + 1);
         let mut segments = Vec::with_capacity(n + 1);
@@ -575,8 +584,10 @@ impl<'a> LineContext<'a> {
             };
             let p = point_at(trace, arc, seg, s);
             let mut forced_here = false;
+            let mut wake_back = None;
             while next_forced < forced.len() && forced[next_forced] <= seg {
                 forced_here = true;
+                wake_back = backs[next_forced];
                 next_forced += 1;
             }
             out.push(LineSample {
@@ -588,6 +599,7 @@ impl<'a> LineContext<'a> {
                 trip: false,
                 concave_turn: concave[seg],
                 faces_stream: self.faces_stream(panel as usize),
+                wake_back,
                 point: p,
                 normal: *self.mesh.panels[panel as usize].normal,
                 face_top: tops[seg],
@@ -644,6 +656,60 @@ impl<'a> LineContext<'a> {
     /// True when panel `t` faces into the stream ([`faces_stream`]).
     fn faces_stream(&self, t: usize) -> bool {
         faces_stream(self.mesh, t, &self.flow_dir)
+    }
+
+    /// True when panel `t` faces downstream: the flow along the stream
+    /// would turn down by more than the bluff-edge limit to follow it (the
+    /// back of a mirror, a step or a base; not a slant of up to 40
+    /// degrees). A crumpled panel ([`crumpled_panels`]) does not.
+    fn faces_downstream(&self, t: usize) -> bool {
+        let limit = self.params.base_edge_turn_deg.to_radians();
+        !self.crumpled(t) && self.mesh.panels[t].normal.dot(&self.flow_dir) >= limit.sin()
+    }
+
+    /// The back of a protuberance the line runs down after its `f`-th bluff
+    /// crossing (`forced[f]`, into that segment), as the line sees it
+    /// ([`WakeBack`]): the segments from the crossing on while their panels
+    /// face downstream ([`Self::faces_downstream`]), then the foot, the
+    /// first segment on a panel that does not; the height, how far the
+    /// line's points from the crossing to the foot rise above the plane of
+    /// the foot's panel; and how far the surface behind stays clear of
+    /// faces turned downstream and bluff crossings. `None` when the panel
+    /// after the crossing does not face downstream, or when the line ends
+    /// or crosses another bluff edge before it comes off the back.
+    fn wake_back(
+        &self,
+        trace: &Trace,
+        arc: &[f64],
+        forced: &[usize],
+        f: usize,
+    ) -> Option<WakeBack> {
+        let p = &trace.panels;
+        let j = forced[f];
+        let down = |m: usize| self.faces_downstream(p[m] as usize);
+        if !down(j) {
+            return None;
+        }
+        let next = forced.get(f + 1).copied().unwrap_or(usize::MAX);
+        let foot = (j..p.len()).find(|&m| !down(m))?;
+        if next <= foot {
+            return None;
+        }
+        let normal = self.mesh.panels[p[foot] as usize].normal;
+        let at = trace.points[foot];
+        let height = trace.points[j..=foot]
+            .iter()
+            .map(|q| (q - at).dot(&normal))
+            .fold(0.0, f64::max);
+        let clear = (foot + 1..p.len())
+            .find(|&m| m >= next || down(m))
+            .map_or_else(|| arc.last().copied().unwrap_or(0.0), |m| arc[m]);
+        Some(WakeBack {
+            start: arc[j],
+            foot: arc[foot],
+            height,
+            clear,
+        })
     }
 
     /// See [`crumpled_panels`].
