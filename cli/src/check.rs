@@ -341,7 +341,7 @@ fn read_lines(r: &PrepareReport) -> String {
         if r.mirrors.whole_cut.is_some() {
             "yes (half model, cut from the whole body: see the note below)"
         } else if r.mirrors.mirrored_half {
-            "yes (half model, lying in y <= 0: run as its mirror image, see the note below)"
+            "yes (half model of the left side, y <= 0 in tuft's axes: run as its mirror image, see the note below)"
         } else if r.mirrors.symmetry {
             "yes (half model)"
         } else {
@@ -360,20 +360,31 @@ fn read_lines(r: &PrepareReport) -> String {
     }
     if r.mirrors.cut_vertices_moved > 0 {
         s += &format!(
-            "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {:.2} mm)\n",
+            "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {})\n",
             r.mirrors.cut_vertices_moved,
             1000.0 * tuft_mesh::prepare::CUT_TOLERANCE * diagonal(r),
-            1000.0 * r.mirrors.cut_largest_move
+            move_text(r.mirrors.cut_largest_move)
         );
     }
     if r.mirrors.ground_vertices_moved > 0 {
         s += &format!(
-            "           ground: {} vertices of the border on the ground moved onto it (largest move {:.2} mm)\n",
+            "           ground: {} vertices of the border on the ground moved onto it (largest move {})\n",
             r.mirrors.ground_vertices_moved,
-            1000.0 * r.mirrors.ground_largest_move
+            move_text(r.mirrors.ground_largest_move)
         );
     }
     s
+}
+
+/// A vertex move for check's cut and ground lines: millimetres, or metres
+/// in powers of ten with "round-off" below a hundredth of a millimetre (a
+/// single-precision file's, which "0.00 mm" would hide).
+fn move_text(metres: f64) -> String {
+    if metres >= 1e-5 {
+        format!("{:.2} mm", 1000.0 * metres)
+    } else {
+        format!("{metres:.1e} m, round-off")
+    }
 }
 
 /// How symmetric a whole body is, and what follows: a body whose halves

@@ -81,7 +81,7 @@ pub struct MirrorReport {
     /// The largest of those moves, metres.
     pub cut_largest_move: f64,
     /// Vertices of a border on the ground (a body cut at the floor) moved
-    /// onto it after the repair (`snap_to_ground`).
+    /// onto it after the repair (`snap_border_to_plane`).
     pub ground_vertices_moved: usize,
     /// The largest of those moves, metres.
     pub ground_largest_move: f64,
@@ -95,16 +95,17 @@ pub struct MirrorReport {
     /// When asked as for [`MirrorReport::halves`], a whole body too far off
     /// y = 0 to be cut there: its centre's y, metres.
     pub off_centre: Option<f64>,
-    /// A half model that lay on the other side of the symmetry plane (in
-    /// y <= 0 in tuft's axes) and runs as its mirror image in y >= 0
+    /// A half model of the car's left side (in y <= 0 in tuft's axes, once
+    /// turned into them) that runs as its mirror image in y >= 0
     /// ([`crate::import::FileAxes::apply`]; [`MIRRORED_HALF_NOTE`]).
     pub mirrored_half: bool,
 }
 
 /// What the run says of a half model mirrored onto y >= 0.
-pub const MIRRORED_HALF_NOTE: &str = "the half model lies in y <= 0 (in tuft's axes: x from nose to tail, \
-     z up): it runs as its mirror image in y >= 0, the same flow and loads, so y in panels.csv and \
-     the VTK files has the other sign from the file's";
+pub const MIRRORED_HALF_NOTE: &str = "the half model is the car's left side (y <= 0 in tuft's axes, in \
+     which y points right seen from the driver's seat): it runs as its mirror image, the right side in \
+     y >= 0, with the same flow and loads, so panels.csv, the VTK files and the pictures show the right \
+     side";
 
 /// A half model's vertices within this fraction of the body's diagonal of
 /// the symmetry plane, on its open border or on the wrong side of it, are
@@ -207,21 +208,29 @@ pub fn prepare_mesh(
     let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
     check_mirror_sides(&mesh, params)?;
     let (mut mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
-    // Again after the repair: its weld keeps the first of the vertices it
-    // merges, so a new vertex of the cut on y = 0 merged into an older one
-    // a hair off the plane takes that one's place and the border leaves
-    // the plane again (a review's roof box, whose centre line lay 0.2
-    // micrometres off it: the wrap's grid lines in the plane passed
-    // between the border and its image and left a slot along the plane).
-    let (moved_after, largest_after) = snap_to_cut(&mut mesh, &params.mirrors);
+    let plane_tol = params.repair.plane_tolerance * repair.diagonal;
+    // Borders a mirror closes must lie exactly on its plane, for the wrap:
+    // its grid lines in a mirror plane count the facets on the body's side
+    // and pass through any gap between a border and its image, however
+    // thin. After the repair, because its weld keeps the first of the
+    // vertices it merges, so a new vertex of the cut on y = 0 merged into
+    // an older one a hair off the plane takes that one's place (a review's
+    // roof box, whose centre line lay 0.2 micrometres off it, was left a
+    // slot along the plane); and a floor cut a hair above the ground (from
+    // the STL's single precision or a transform) let the lines in the
+    // ground pass under the body, which the wrap then closed a twentieth
+    // of a cell above its image.
+    let (moved_after, largest_after) = if params.mirrors.symmetry {
+        snap_border_to_plane(&mut mesh, plane_tol, |p| &mut p.y, 0.0)
+    } else {
+        (0, 0.0)
+    };
     let cut_vertices_moved = cut_vertices_moved + moved_after;
     let cut_largest_move = cut_largest_move.max(largest_after);
-    let plane_tol = params.repair.plane_tolerance * repair.diagonal;
-    // A border the ground closes must lie exactly on it too (a floor cut
-    // a hair above it, from the STL's single precision or a transform,
-    // let the wrap's grid lines in the ground pass under the body).
-    let (ground_vertices_moved, ground_largest_move) =
-        snap_to_ground(&mut mesh, &params.mirrors, plane_tol);
+    let (ground_vertices_moved, ground_largest_move) = match params.mirrors.ground {
+        Some(g) => snap_border_to_plane(&mut mesh, plane_tol, |p| &mut p.z, g),
+        None => (0, 0.0),
+    };
     let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap, plane_tol);
     let (mesh, wrap) = if reasons.any() {
         let (m, r) = crate::wrap::wrap(&mesh, &params.mirrors, reasons, &params.wrap);
@@ -360,7 +369,7 @@ pub const SLOT_SHARE: f64 = 1e-3;
 /// had 0.26 m^2 of them 2 to 8 mm off the plane inside the box (the same
 /// half cut by hand had none): the repair's weld had moved the box's cut
 /// 0.2 micrometres off the plane, and the wrap's grid lines in the plane
-/// passed between it and its image. [`snap_to_cut`] after the repair
+/// passed between it and its image. [`snap_border_to_plane`] after the repair
 /// removed that cause; the check stays as a safety net for any other.
 fn facing_the_plane(mesh: &TriMesh, reach: f64) -> (f64, [f64; 3]) {
     let mut total = 0.0;
@@ -431,10 +440,8 @@ fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
 /// Move a half model's vertices within [`CUT_TOLERANCE`] of `y = 0` onto
 /// it when they lie on an open border or below the plane; how many moved
 /// and the largest move (metres). Run before the repair, so that its cut
-/// is taken as closed by the mirror, and after it, so that the border the
-/// mirror closes lies exactly on the plane, as the wrap needs: its grid
-/// lines in the plane count the facets of the half and not of the image,
-/// and pass through any gap between the two, however thin.
+/// is taken as closed by the mirror ([`snap_border_to_plane`] puts it
+/// back on the plane after the repair).
 fn snap_to_cut(mesh: &mut TriMesh, mirrors: &Mirrors) -> (usize, f64) {
     let Some((lo, hi)) = mesh.bounds().filter(|_| mirrors.symmetry) else {
         return (0, 0.0);
@@ -461,40 +468,44 @@ fn snap_to_cut(mesh: &mut TriMesh, mirrors: &Mirrors) -> (usize, f64) {
     (moved, largest)
 }
 
-/// Move the vertices of the open edges lying on the ground (both ends
-/// within `tol` metres of it: the edges the repair took as closed by the
-/// ground's image) onto it; how many moved and the largest move (metres).
-/// Run after the repair, for the wrap: its grid lines in the ground are
-/// shifted symbolically upwards, so a border a hair above the ground (a
-/// floor cut at 1e-7 m, or at a single-precision STL's round-off off the
-/// declared height) lets them pass under the body between the border and
-/// its image, and the nodes on the ground inside the body vote outside:
-/// the wrapped body then stood a twentieth of a cell above its image,
-/// closed by a floor the size of its footprint, instead of meeting the
-/// ground. A border a hair below the ground was counted right; it is
-/// moved as well, so that the image closes the body exactly.
-fn snap_to_ground(mesh: &mut TriMesh, mirrors: &Mirrors, tol: f64) -> (usize, f64) {
-    let Some(g) = mirrors.ground else {
-        return (0, 0.0);
-    };
-    let mut on_ground = vec![false; mesh.vertices.len()];
+/// Move the vertices of the open edges lying on a mirror plane (both ends
+/// within `tol` metres of `plane` in the coordinate `coordinate` picks:
+/// the edges the repair took as closed by the mirror's image) onto it; how
+/// many moved and the largest move (metres). Run after the repair: a
+/// border a hair off its plane let the wrap's grid lines in the plane pass
+/// between it and its image (the slot along y = 0 inside a roof box; a
+/// body cut at the floor that the wrap closed just above the ground). A
+/// border a hair below the ground was counted right; it is moved as well,
+/// so that the image closes the body exactly. Only whole border edges on
+/// the plane move, by at most `tol`.
+fn snap_border_to_plane(
+    mesh: &mut TriMesh,
+    tol: f64,
+    coordinate: fn(&mut Point) -> &mut f64,
+    plane: f64,
+) -> (usize, f64) {
+    let mut on_plane = vec![false; mesh.vertices.len()];
     let uses = crate::repair::edges::sorted_edge_uses(&mesh.triangles);
     for group in crate::repair::edges::edge_groups(&uses) {
         if group.len() == 1 {
             let (a, b) = group[0].ends();
-            let near = |v: u32| (mesh.vertices[v as usize].z - g).abs() <= tol;
+            let near = |v: u32| {
+                let mut p = mesh.vertices[v as usize];
+                (*coordinate(&mut p) - plane).abs() <= tol
+            };
             if near(a) && near(b) {
-                on_ground[a as usize] = true;
-                on_ground[b as usize] = true;
+                on_plane[a as usize] = true;
+                on_plane[b as usize] = true;
             }
         }
     }
     let (mut moved, mut largest) = (0, 0.0f64);
-    for (v, on) in mesh.vertices.iter_mut().zip(on_ground) {
-        if on && v.z != g {
-            largest = largest.max((v.z - g).abs());
+    for (v, on) in mesh.vertices.iter_mut().zip(on_plane) {
+        let c = coordinate(v);
+        if on && *c != plane {
+            largest = largest.max((*c - plane).abs());
             moved += 1;
-            v.z = g;
+            *c = plane;
         }
     }
     (moved, largest)

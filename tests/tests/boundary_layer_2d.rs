@@ -625,30 +625,53 @@ fn a_tall_face_catches_a_separation_whose_line_passes_round_its_side() {
 
 /// A turbulent layer at 40 m/s along a flank (normal +y) that leaves a
 /// bluff edge at 1 m (a mirror's rear rim) whose back, as the line saw it
-/// (`LineSample::wake_back`), stood `height` metres off the flank, with
-/// its foot 5 cm past the edge and the flank clear of faces turned
-/// downstream and bluff edges for `clear` metres past the foot. The
-/// march's verdict: whether the layer ends separated.
-fn separates_behind_a_back(height: f64, clear: f64) -> bool {
+/// (`LineSample::wake_back`, set on the edge's station as the screening
+/// sets it), stood `height` metres off the flank, with its foot 5 cm past
+/// the edge and the flank clear of faces turned downstream and bluff edges
+/// for `clear` metres past the foot. The march: where the layer is
+/// separated or held in a bubble (risk 1), as arc lengths.
+fn behind_a_back(height: f64, clear: f64) -> Vec<(f64, FlowState, f64)> {
     let p = params(1.5e-5, Transition::Turbulent);
     let (edge, foot) = (1.0, 1.05);
     let step = 0.01;
     let samples: Vec<LineSample> = line(400, 0.0, 4.0, |_| 40.0)
         .iter()
-        .map(|b| LineSample {
-            forced_separation: (b.s - edge).abs() < 0.5 * step,
-            point: nalgebra::Point3::new(b.s, 0.0, 1.0),
-            normal: nalgebra::Vector3::y(),
-            wake_back: (b.s >= edge - 0.5 * step).then_some(WakeBack {
-                start: edge,
-                foot,
-                height,
-                clear: foot + clear,
-            }),
-            ..*b
+        .map(|b| {
+            let at_edge = (b.s - edge).abs() < 0.5 * step;
+            LineSample {
+                forced_separation: at_edge,
+                point: nalgebra::Point3::new(b.s, 0.0, 1.0),
+                normal: nalgebra::Vector3::y(),
+                wake_back: at_edge.then_some(WakeBack {
+                    start: edge,
+                    foot,
+                    height,
+                    clear: foot + clear,
+                }),
+                ..*b
+            }
         })
         .collect();
-    stays_separated(&samples, &p)
+    let m = march_line(&samples, &LineStart::default(), &p);
+    samples
+        .iter()
+        .zip(&m.states)
+        .map(|(b, st)| (b.s, st.state, st.risk))
+        .collect()
+}
+
+/// Where the wake behind a back of `height` closes: the last station held
+/// at risk 1, or `None` when the layer ends separated.
+fn wake_closes(height: f64, clear: f64) -> Option<f64> {
+    let states = behind_a_back(height, clear);
+    if states.last()?.1 == FlowState::Separated {
+        return None;
+    }
+    states
+        .iter()
+        .filter(|&&(s, _, risk)| s >= 1.0 && risk >= 1.0)
+        .map(|&(s, _, _)| s)
+        .fold(None, |a: Option<f64>, s| Some(a.map_or(s, |a| a.max(s))))
 }
 
 /// Behind a bluff protuberance on a wall the separated region closes
@@ -666,8 +689,15 @@ fn separates_behind_a_back(height: f64, clear: f64) -> bool {
 /// (a base edge, a slant's side edge).
 #[test]
 fn a_wake_behind_a_protuberance_reattaches_within_a_few_heights() {
-    assert!(!separates_behind_a_back(0.1, 3.0), "mirror on a flank");
-    assert!(separates_behind_a_back(0.15, 0.1), "fence on a short deck");
+    // A 10 cm back: the bubble closes seven heights past its foot (1.05 m),
+    // at 1.75 m, to a station.
+    let close = wake_closes(0.1, 3.0).expect("mirror on a flank: reattaches");
+    assert!((close - 1.75).abs() < 0.015, "closes at {close}");
+    // A back lower than the layer (the line passing the protuberance's
+    // root): the layer's own thickness sets the wake, a few centimetres.
+    let root = wake_closes(0.0, 3.0).expect("a back's root: reattaches");
+    assert!(root > 1.05 && root < 1.4, "closes at {root}");
+    assert!(wake_closes(0.15, 0.1).is_none(), "fence on a short deck");
     let p = params(1.5e-5, Transition::Turbulent);
     let plain: Vec<LineSample> = line(400, 0.0, 4.0, |_| 40.0)
         .iter()

@@ -245,7 +245,9 @@ fn a_tall_face_closes_the_separation_of_lines_that_pass_round_it() {
 /// facet tipped into the stream and a level facet before the screen, and
 /// turn round the pillar onto the flank; the step rule had judged the
 /// facet's height only (upper flank 17 % separated, seen) and now looks
-/// on to the screen (`march::step_bubble_end`). Both stay under 2 %.
+/// on to the screen (`march::step_bubble_end`). The roof must stay under
+/// the attached regime line (20 %) and the upper flank under 2 %; both
+/// read 0.
 #[test]
 fn the_roof_stays_attached_behind_a_75_degree_screen_on_a_sharp_cowl() {
     let scan = tuft_tests::scan_like_half_car_with_screen(400, 200, 75.0);

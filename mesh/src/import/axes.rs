@@ -26,8 +26,9 @@ impl FileAxes {
     /// must land on y >= 0: there the sign follows the side the body lies
     /// on and, where that makes the change a mirror image, the facets are
     /// turned round so that their normals still point out. True when the
-    /// half was mirrored so (a half on the file's other side: in tuft's own
-    /// axes, a half in y <= 0). A whole body (reaching both sides by at
+    /// half was mirrored so: a half of the car's left side, in y <= 0 once
+    /// turned into tuft's axes (where y points right seen from the seat),
+    /// whatever side of the file's own axes it lies on. A whole body (reaching both sides by at
     /// least [`crate::cut::WHOLE_SIDE_SHARE`] of its width) is only
     /// rotated, as without `half`: it is cut at y = 0 later.
     pub fn apply(&self, mesh: &mut TriMesh, half: bool) -> bool {
@@ -111,11 +112,14 @@ mod tests {
         // The y >= 0 half in ISO 8855 axes (nose at +x, y to the left).
         let body = tetra(Point::new(2.0, 0.0, 4.0));
         let mut m = body.clone();
-        FileAxes {
+        let mirrored = FileAxes {
             nose_plus_x: true,
             y_up: false,
         }
         .apply(&mut m, true);
+        // The file's y >= 0 half is the car's left side there (ISO 8855's y
+        // points left): in tuft's axes it is mirrored onto the right.
+        assert!(mirrored);
         assert!(m.vertices.iter().all(|p| p.y >= 0.0));
         approx::assert_relative_eq!(m.signed_volume(), body.signed_volume(), epsilon = 1e-12);
     }

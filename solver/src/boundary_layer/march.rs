@@ -243,7 +243,8 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// corners ahead of an upright windscreen; `junction_bubble_end`). A
 /// bluff edge whose line runs down the back of a protuberance onto a wall
 /// closes within [`WAKE_REATTACHMENT_HEIGHTS`] of the back's height
-/// (`wake_reattachment`; whatever `params.reattach_thicknesses`). Once
+/// (`wake_reattachment`; none when `params.reattach_thicknesses` is 0,
+/// as for the other bubbles). Once
 /// separated for good,
 /// every later station is separated and holds the thicknesses of the
 /// separation point.
@@ -436,11 +437,13 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// reattachment are held as a bubble's (risk 1, no friction, counted
 /// attached), and the layer goes on from `H` = [`REATTACHMENT_H`].
 fn wake_reattachment(ctx: &Station, before: &LineState) -> Option<usize> {
-    let here = ctx.samples[ctx.i];
-    let back = here.wake_back?;
+    if ctx.params.reattach_thicknesses <= 0.0 {
+        return None;
+    }
+    let back = ctx.samples[ctx.i].wake_back?;
     let thickness = before.theta * (head::h1_of_h(before.h) + before.h);
     let close = back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness);
-    if here.s < back.start || close >= back.clear {
+    if close >= back.clear {
         return None;
     }
     let k = ctx.samples[ctx.i..].iter().position(|b| b.s >= close)?;

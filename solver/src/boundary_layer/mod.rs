@@ -93,7 +93,8 @@ pub struct BoundaryLayerParams {
     /// reattaches there, and the layer
     /// marches on from `H` = [`REATTACHMENT_H`] with `theta` held through
     /// the bubble. Default 10 (our choice); 0 makes every turbulent
-    /// separation final.
+    /// separation final, and turns off the other bubbles too (ahead of a
+    /// step, beside a face, behind a protuberance's back).
     pub reattach_thicknesses: f64,
     /// Streamline seeds round each attachment point; 0 chooses
     /// `2 sqrt(panels)`, clamped to 32..=1024.

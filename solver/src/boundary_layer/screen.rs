@@ -660,8 +660,8 @@ impl<'a> LineContext<'a> {
 
     /// True when panel `t` faces downstream: the flow along the stream
     /// would turn down by more than the bluff-edge limit to follow it (the
-    /// back of a mirror, a step or a base; not a slant of up to 40
-    /// degrees). A crumpled panel ([`crumpled_panels`]) does not.
+    /// back of a mirror, a step or a base; not a slant of up to 50
+    /// degrees, at the default limit). A crumpled panel ([`crumpled_panels`]) does not.
     fn faces_downstream(&self, t: usize) -> bool {
         let limit = self.params.base_edge_turn_deg.to_radians();
         !self.crumpled(t) && self.mesh.panels[t].normal.dot(&self.flow_dir) >= limit.sin()
