@@ -624,26 +624,35 @@ fn a_tall_face_catches_a_separation_whose_line_passes_round_its_side() {
 }
 
 /// A turbulent layer at 40 m/s along a flank (normal +y) that leaves a
-/// bluff edge at 1 m (a mirror's rear rim) whose back, as the line saw it
-/// (`LineSample::wake_back`, set on the edge's station as the screening
-/// sets it), stood `height` metres off the flank, with its foot 5 cm past
-/// the edge and the flank clear of faces turned downstream and bluff edges
-/// for `clear` metres past the foot. The march: where the layer is
-/// separated or held in a bubble (risk 1), as arc lengths.
+/// bluff edge at 1 m (a mirror's rear rim) onto the mirror's back, which it
+/// runs down to land on the flank 5 cm on; the back, as the line saw it
+/// (`LineSample::wake_back`, set on the landing's station as the
+/// screening sets it), stood `height` metres off the flank, and the flank
+/// is clear of faces turned downstream and bluff edges for `clear` metres
+/// past the landing. The march: each station's arc length, state and
+/// risk.
 fn behind_a_back(height: f64, clear: f64) -> Vec<(f64, FlowState, f64)> {
+    behind_a_back_from(height, clear, Some(1.0))
+}
+
+/// As [`behind_a_back`], with the bluff edge at `edge` (none: a rounded
+/// rim, over which the layer runs down the back attached).
+fn behind_a_back_from(height: f64, clear: f64, edge: Option<f64>) -> Vec<(f64, FlowState, f64)> {
     let p = params(1.5e-5, Transition::Turbulent);
-    let (edge, foot) = (1.0, 1.05);
+    let (start, foot) = (1.0, 1.05);
+    let edge = edge.unwrap_or(f64::NAN);
     let step = 0.01;
     let samples: Vec<LineSample> = line(400, 0.0, 4.0, |_| 40.0)
         .iter()
         .map(|b| {
             let at_edge = (b.s - edge).abs() < 0.5 * step;
+            let landing = (b.s - foot).abs() < 0.5 * step;
             LineSample {
                 forced_separation: at_edge,
                 point: nalgebra::Point3::new(b.s, 0.0, 1.0),
                 normal: nalgebra::Vector3::y(),
-                wake_back: at_edge.then_some(WakeBack {
-                    start: edge,
+                wake_back: landing.then_some(WakeBack {
+                    start,
                     foot,
                     height,
                     clear: foot + clear,
@@ -663,7 +672,12 @@ fn behind_a_back(height: f64, clear: f64) -> Vec<(f64, FlowState, f64)> {
 /// Where the wake behind a back of `height` closes: the last station held
 /// at risk 1, or `None` when the layer ends separated.
 fn wake_closes(height: f64, clear: f64) -> Option<f64> {
-    let states = behind_a_back(height, clear);
+    closes(&behind_a_back(height, clear))
+}
+
+/// The last station at risk 1 from 1 m on, or `None` when the layer ends
+/// separated.
+fn closes(states: &[(f64, FlowState, f64)]) -> Option<f64> {
     if states.last()?.1 == FlowState::Separated {
         return None;
     }
@@ -698,6 +712,16 @@ fn a_wake_behind_a_protuberance_reattaches_within_a_few_heights() {
     let root = wake_closes(0.0, 3.0).expect("a back's root: reattaches");
     assert!(root > 1.05 && root < 1.4, "closes at {root}");
     assert!(wake_closes(0.15, 0.1).is_none(), "fence on a short deck");
+    // Over a rounded rim the layer runs down the back attached, its
+    // thickness growing many times over (a van's mirror), and the wake
+    // closes on the flank all the same.
+    let rounded = closes(&behind_a_back_from(0.1, 3.0, None)).expect("rounded rim: reattaches");
+    assert!((rounded - 1.75).abs() < 0.015, "closes at {rounded}");
+    // A line separated well ahead of the back carries another wake.
+    assert!(
+        closes(&behind_a_back_from(0.1, 3.0, Some(0.5))).is_none(),
+        "separated before the back"
+    );
     let p = params(1.5e-5, Transition::Turbulent);
     let plain: Vec<LineSample> = line(400, 0.0, 4.0, |_| 40.0)
         .iter()

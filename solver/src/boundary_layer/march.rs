@@ -42,11 +42,11 @@ pub struct LineSample {
     /// [`BUBBLE_CONCAVE_TURN`] against it: a windscreen); false on a 2D
     /// section.
     pub faces_stream: bool,
-    /// At a bluff edge ([`LineSample::forced_separation`]) whose line runs
-    /// down a face turned downstream and comes onto a surface that does not
-    /// face downstream (the back of a mirror, then the flank): where, and
-    /// how high that back stood (see [`WakeBack`], `wake_reattachment`).
-    /// `None` elsewhere and on a 2D section.
+    /// Where the line lands on a wall after running down the back of a
+    /// protuberance (a mirror's back, then the flank): where the back
+    /// began, how high it stood and how far the wall is clear (see
+    /// [`WakeBack`], `wake_reattachment`). `None` elsewhere and on a 2D
+    /// section.
     pub wake_back: Option<WakeBack>,
     /// Where the station lies, m (the origin on a 2D section).
     pub point: Point3<f64>,
@@ -67,16 +67,18 @@ pub struct LineSample {
 
 /// The back of a protuberance as a line saw it ([`LineSample::wake_back`]):
 /// a face turned downstream (the flow along the stream would turn down by
-/// more than the bluff-edge limit to follow it), which the line ran down
-/// onto a surface that does not face downstream.
+/// more than the bluff-edge limit to follow it), entered from a wall, which
+/// the line ran down, over facets still turned from the stream by more
+/// than [`WAKE_FOOT_TURN`] and over bluff edges, to land on a wall turned
+/// less.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct WakeBack {
     /// Arc length where the line comes onto the back, m.
     pub start: f64,
-    /// Arc length where the line comes onto the surface behind the back
-    /// (the back's foot), m.
+    /// Arc length where the line lands on the wall behind the back (the
+    /// back's foot), m.
     pub foot: f64,
-    /// How far the line's points from the edge to the foot rise above the
+    /// How far the line's points on the back rise above the
     /// plane of the surface at the foot, m (zero where the line passes the
     /// back's root, where the protuberance meets the wall).
     pub height: f64,
@@ -206,6 +208,15 @@ pub const JUNCTION_SIDE_TURN: f64 = 60.0 * std::f64::consts::PI / 180.0;
 /// choice of the upper end). See `wake_reattachment`.
 pub const WAKE_REATTACHMENT_HEIGHTS: f64 = 7.0;
 
+/// Largest turn of a surface away from the stream for it to count as the
+/// wall behind a protuberance's back, where the back's wake reattaches
+/// (`wake_reattachment`): 20 degrees (our choice). A back is entered where
+/// the surface turns away by more than the bluff-edge limit (50 degrees)
+/// and goes on while it stays turned by more than this, so that facets of
+/// a curled housing turned 40 degrees between steeper ones stay part of
+/// it; a flank, a roof or a deck turned less is the wall.
+pub const WAKE_FOOT_TURN: f64 = 20.0 * std::f64::consts::PI / 180.0;
+
 /// Share by which the edge speed must exceed its value at a turbulent
 /// separation for the bubble to close (so that ripples of the interpolated
 /// speed do not count; our choice).
@@ -241,8 +252,8 @@ const REATTACH_SPEED_MARGIN: f64 = 0.01;
 /// concave-corner rule's distance (the junction vortex ahead of an
 /// obstacle, whose legs wrap round its sides: the bonnet's outboard
 /// corners ahead of an upright windscreen; `junction_bubble_end`). A
-/// bluff edge whose line runs down the back of a protuberance onto a wall
-/// closes within [`WAKE_REATTACHMENT_HEIGHTS`] of the back's height
+/// line that runs down the back of a protuberance onto a wall reattaches
+/// within [`WAKE_REATTACHMENT_HEIGHTS`] of the back's height
 /// (`wake_reattachment`; none when `params.reattach_thicknesses` is 0,
 /// as for the other bubbles). Once
 /// separated for good,
@@ -297,6 +308,28 @@ struct Station<'a> {
 /// Advance the phase to station `ctx.i` and return its state.
 fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -> LineState {
     let sample = ctx.samples[ctx.i];
+    // A line that came down the back of a protuberance (separating on it
+    // or not) lands on the wall behind it: the back's wake reattaches
+    // within a few of its heights (`wake_reattachment`). A bluff edge at
+    // the landing's station lies on the back (no line lands over one).
+    if !matches!(phase, Phase::Bubble { .. })
+        && let Some((until, before)) = wake_reattachment(ctx, out)
+    {
+        // The separated shear layer has turned turbulent where it
+        // reattaches (common practice, as behind a rim).
+        let held = LineState {
+            cf: 0.0,
+            risk: 1.0,
+            lambda: 0.0,
+            state: FlowState::Turbulent,
+            ..before
+        };
+        if before.state == FlowState::Laminar && out.transition.is_none() {
+            out.transition = Some(ctx.i);
+        }
+        *phase = Phase::Bubble { until, held };
+        return held;
+    }
     if let Phase::Separated(held) = phase {
         return *held;
     }
@@ -315,24 +348,6 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
     }
     if sample.forced_separation {
         let prev = out.states.last().copied();
-        if let Some(prev) = prev
-            && let Some(until) = wake_reattachment(ctx, &prev)
-        {
-            // The separated shear layer has turned turbulent where it
-            // reattaches (common practice, as behind a rim).
-            let held = LineState {
-                cf: 0.0,
-                risk: 1.0,
-                lambda: 0.0,
-                state: FlowState::Turbulent,
-                ..prev
-            };
-            if prev.state == FlowState::Laminar && out.transition.is_none() {
-                out.transition = Some(ctx.i);
-            }
-            *phase = Phase::Bubble { until, held };
-            return held;
-        }
         return separate(phase, out, ctx.i, prev, theta0, ctx.params);
     }
     let state = match phase {
@@ -408,46 +423,65 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
         .or_else(|| junction_bubble_end(ctx, state))
 }
 
-/// The reattachment of a line that leaves the bluff edge at station
-/// `ctx.i` (layer `before` at the station ahead of it) onto the back of a
-/// protuberance and runs down it onto a surface that no longer faces
-/// downstream ([`LineSample::wake_back`]: a mirror's stalk, then the
-/// flank): the first station [`WAKE_REATTACHMENT_HEIGHTS`] heights past the back's
-/// foot, the height being the larger of how high the line saw the back
-/// stand above that surface and the layer's thickness `theta (H1 + H)` at
-/// the edge (the shear layer that leaves the edge is at least as thick as
-/// the layer that reached it, so a back lower than the layer, where the
-/// line passes a protuberance's root, still leaves a wake about that
-/// thick; our choice). `None` when the line does not run down such a back
-/// (a slant, onto which the flow leaves a side edge, does not face
-/// downstream; a line that ends on a body's base or on a mirror's rear face
-/// never comes off it), and when a face turned downstream or a bluff edge
-/// comes before the reattachment or the line ends first (a fence on a
-/// short deck and a roof box, whose wakes run past the body's base; a line
-/// sliding along a base edge, which comes back onto the flank only to
-/// leave it again).
+/// The reattachment of a line that lands at station `ctx.i` on a wall
+/// after running down the back of a protuberance
+/// ([`LineSample::wake_back`]: a mirror's back, then the flank), with the
+/// layer as it reached the back: the first station
+/// [`WAKE_REATTACHMENT_HEIGHTS`] heights past the landing, the height being
+/// the larger of how high the line saw the back stand above the wall and
+/// the layer's thickness `theta (H1 + H)` as it reached the back (the
+/// shear layer that leaves the back's rim is at least as thick as the
+/// layer that reached it, so a back lower than the layer, where the line
+/// passes a protuberance's root, still leaves a wake about that thick; our
+/// choice). The flow on the back has separated whether or not the march
+/// said so: over a bluff rim the line separated there, and over a rounded
+/// one the layer marched down the back grows many times over (theta from
+/// 0.2 to 15 mm down a van's mirror, then separating on the flank), as
+/// attached potential flow runs down a base. `None` when the line
+/// separated before it reached the back (it carries another wake), when a
+/// face turned downstream or a bluff edge comes before the reattachment or
+/// the line ends first (a fence on a short deck and a roof box, whose
+/// wakes run past the body's base), and when `params.reattach_thicknesses`
+/// is 0, as for the other bubbles. A line that ends on a body's base or on
+/// a mirror's rear face never lands; a slant of up to 50 degrees is no
+/// back.
 ///
 /// Behind a bluff protuberance on a wall the separated region closes
 /// within a few of its heights (a wall-mounted cube, a backward-facing
 /// step; see [`WAKE_REATTACHMENT_HEIGHTS`]), and the wall beyond is
 /// attached (common practice: tufts on the side glass behind a mirror
-/// stay on). Without the rule every line that crossed a mirror's rear rim
-/// onto the flank stayed separated to the tail, leaving a strip of dead water one panel row high
-/// along the flank. The stations up to the
-/// reattachment are held as a bubble's (risk 1, no friction, counted
-/// attached), and the layer goes on from `H` = [`REATTACHMENT_H`].
-fn wake_reattachment(ctx: &Station, before: &LineState) -> Option<usize> {
+/// stay on). Without the rule every line that came off a mirror's back
+/// onto the flank stayed separated to the tail, leaving a strip of dead
+/// water one panel row high along the flank. The stations on the back keep
+/// the march's verdict (separated behind a bluff rim: the back is dead
+/// water); those from the landing to the reattachment are held as a
+/// bubble's (risk 1, no friction, counted attached), and the layer goes on
+/// from `H` = [`REATTACHMENT_H`] with the thickness it had reaching the
+/// back.
+fn wake_reattachment(ctx: &Station, out: &LineMarch) -> Option<(usize, LineState)> {
     if ctx.params.reattach_thicknesses <= 0.0 {
         return None;
     }
     let back = ctx.samples[ctx.i].wake_back?;
+    // The layer as it reached the back: the station before the first on it
+    // (the landing's own, when the back is a facet crossed between two
+    // stations).
+    let entry = ctx.samples[..ctx.i]
+        .iter()
+        .position(|b| b.s >= back.start)
+        .unwrap_or(ctx.i);
+    let before = *out.states.get(entry.checked_sub(1)?)?;
+    // A line separated before it reached the back carries another wake.
+    if out.separation.is_some_and(|k| k + 1 < entry) {
+        return None;
+    }
     let thickness = before.theta * (head::h1_of_h(before.h) + before.h);
     let close = back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness);
-    if close >= back.clear {
+    if !close.is_finite() || close >= back.clear {
         return None;
     }
     let k = ctx.samples[ctx.i..].iter().position(|b| b.s >= close)?;
-    Some(ctx.i + k)
+    Some((ctx.i + k, before))
 }
 
 /// The reattachment of a separation at `ctx.i` in the decelerating flow

@@ -55,12 +55,12 @@
 //!   from the face round where the line meets it, `FaceRegions`), or one whose line
 //!   passes round such a face's side (a pillar); see
 //!   [`march::march_line`] and `params.reattach_thicknesses`.
-//! - **Wakes behind protuberances.** A line that leaves a bluff edge onto a
-//!   face turned downstream and runs down it onto a surface that no longer
-//!   faces downstream (a mirror's back, then the flank) reattaches within a
-//!   few heights of that back ([`march::WAKE_REATTACHMENT_HEIGHTS`]),
-//!   unless it meets another such face or bluff edge or ends first
-//!   (`LineContext::wake_back`).
+//! - **Wakes behind protuberances.** A line that runs down a face turned
+//!   downstream, over a bluff rim or a rounded one, and lands on a wall
+//!   (a mirror's back, then the flank) reattaches within a few heights of
+//!   that back ([`march::WAKE_REATTACHMENT_HEIGHTS`]), unless it separated
+//!   before the back, or meets another such face or bluff edge or ends
+//!   first (`LineContext::wake_landings`).
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -84,7 +84,7 @@ use tuft_mesh::PanelMesh;
 use super::attachment::{self, Seed};
 use super::coverage;
 use super::field::{SurfaceField, sharp_convex};
-use super::march::{self, LineMarch, LineSample, LineStart, WakeBack};
+use super::march::{self, LineMarch, LineSample, LineStart, WAKE_FOOT_TURN, WakeBack};
 use super::streamlines::{Trace, Tracer};
 use super::{BoundaryLayerError, BoundaryLayerParams, FlowState, thwaites};
 
@@ -566,9 +566,8 @@ impl<'a> LineContext<'a> {
         let total = arc.last().copied().unwrap_or(0.0);
         let n = (total / self.step).ceil().max(1.0) as usize;
         let forced = self.bluff_crossings(trace);
-        let backs: Vec<Option<WakeBack>> = (0..forced.len())
-            .map(|f| self.wake_back(trace, arc, &forced, f))
-            .collect();
+        let landings = self.wake_landings(trace, arc, &forced);
+        let mut next_landing = 0;
         let (concave, tops) = self.concave_turns(trace);
         let mut out = Vec::with_capacity(n + 1);
         let mut segments = Vec::with_capacity(n + 1);
@@ -587,8 +586,11 @@ impl<'a> LineContext<'a> {
             let mut wake_back = None;
             while next_forced < forced.len() && forced[next_forced] <= seg {
                 forced_here = true;
-                wake_back = backs[next_forced];
                 next_forced += 1;
+            }
+            while next_landing < landings.len() && landings[next_landing].0 <= seg {
+                wake_back = Some(landings[next_landing].1);
+                next_landing += 1;
             }
             out.push(LineSample {
                 s,
@@ -667,49 +669,80 @@ impl<'a> LineContext<'a> {
         !self.crumpled(t) && self.mesh.panels[t].normal.dot(&self.flow_dir) >= limit.sin()
     }
 
-    /// The back of a protuberance the line runs down after its `f`-th bluff
-    /// crossing (`forced[f]`, into that segment), as the line sees it
-    /// ([`WakeBack`]): the segments from the crossing on while their panels
-    /// face downstream ([`Self::faces_downstream`]), then the foot, the
-    /// first segment on a panel that does not; the height, how far the
-    /// line's points from the crossing to the foot rise above the plane of
-    /// the foot's panel; and how far the surface behind stays clear of
-    /// faces turned downstream and bluff crossings. `None` when the panel
-    /// after the crossing does not face downstream, or when the line ends
-    /// or crosses another bluff edge before it comes off the back.
-    fn wake_back(
+    /// Where the line comes off the back of a protuberance onto the wall
+    /// behind it, as the line sees it ([`WakeBack`], with the segment of
+    /// the landing): a back is entered on a panel facing downstream
+    /// ([`Self::faces_downstream`]) from a wall, goes on over panels still
+    /// turned from the stream by more than [`WAKE_FOOT_TURN`] (a mirror's
+    /// housing curls under and in on its back, some facets turned only 40
+    /// degrees between steeper ones) and over the bluff edges on it, and
+    /// lands on the first panel turned less (the flank). The height is how
+    /// far the line's points on the back rise above the plane of the
+    /// landing's panel; the wall is clear up to the next panel facing
+    /// downstream or bluff crossing after the landing, or the line's end.
+    fn wake_landings(
         &self,
         trace: &Trace,
         arc: &[f64],
         forced: &[usize],
-        f: usize,
-    ) -> Option<WakeBack> {
+    ) -> Vec<(usize, WakeBack)> {
         let p = &trace.panels;
-        let j = forced[f];
         let down = |m: usize| self.faces_downstream(p[m] as usize);
-        if !down(j) {
-            return None;
+        let wall = |m: usize| {
+            self.mesh.panels[p[m] as usize].normal.dot(&self.flow_dir) < WAKE_FOOT_TURN.sin()
+        };
+        let end = arc.last().copied().unwrap_or(0.0);
+        let mut out = Vec::new();
+        let mut entry: Option<usize> = None;
+        // The line has been on a wall: a back is entered from one (a line
+        // that starts on a base is on no protuberance's back).
+        let mut from_wall = false;
+        for m in 0..p.len() {
+            if down(m) {
+                if entry.is_none() && from_wall {
+                    entry = Some(m);
+                }
+            } else if wall(m) && entry.is_none() {
+                from_wall = true;
+            } else if wall(m)
+                && let Some(j) = entry
+                && forced.binary_search(&m).is_err()
+            {
+                let normal = self.mesh.panels[p[m] as usize].normal;
+                let at = trace.points[m];
+                let height = trace.points[j..=m]
+                    .iter()
+                    .map(|q| (q - at).dot(&normal))
+                    .fold(0.0, f64::max);
+                let next_forced = forced
+                    .iter()
+                    .copied()
+                    .find(|&f| f > m)
+                    .unwrap_or(usize::MAX);
+                let clear = (m + 1..p.len())
+                    .find(|&k| k >= next_forced || down(k))
+                    .map_or(end, |k| arc[k]);
+                // A sliver of wall on the back (a facet where the housing
+                // meets its stalk) is part of the back: the line goes on
+                // down it.
+                if clear - arc[m] < self.step.max(height) {
+                    continue;
+                }
+                entry = None;
+                out.push((
+                    m,
+                    WakeBack {
+                        start: arc[j],
+                        foot: arc[m],
+                        height,
+                        clear,
+                    },
+                ));
+            } else if wall(m) {
+                entry = None;
+            }
         }
-        let next = forced.get(f + 1).copied().unwrap_or(usize::MAX);
-        let foot = (j..p.len()).find(|&m| !down(m))?;
-        if next <= foot {
-            return None;
-        }
-        let normal = self.mesh.panels[p[foot] as usize].normal;
-        let at = trace.points[foot];
-        let height = trace.points[j..=foot]
-            .iter()
-            .map(|q| (q - at).dot(&normal))
-            .fold(0.0, f64::max);
-        let clear = (foot + 1..p.len())
-            .find(|&m| m >= next || down(m))
-            .map_or_else(|| arc.last().copied().unwrap_or(0.0), |m| arc[m]);
-        Some(WakeBack {
-            start: arc[j],
-            foot: arc[foot],
-            height,
-            clear,
-        })
+        out
     }
 
     /// See [`crumpled_panels`].
