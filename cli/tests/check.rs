@@ -114,25 +114,31 @@ fn check_refuses_a_truncated_file_in_one_line() {
     assert!(stderr.starts_with(&expected), "{stderr}");
 }
 
-#[test]
-fn check_half_model_needs_the_symmetry_flag() {
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("half.stl");
+/// The facets of a unit sphere (24 by 48) whose corners' `coordinate`
+/// sums to more than zero: a half sphere, open along its cut.
+fn half_sphere(coordinate: fn(&tuft_mesh::Point) -> f64) -> TriMesh {
     let sphere = generate::latlong_sphere(1.0, 24, 48);
-    let half = TriMesh {
+    TriMesh {
         triangles: sphere
             .triangles
             .iter()
             .copied()
             .filter(|t| {
                 t.iter()
-                    .map(|&v| sphere.vertices[v as usize].y)
+                    .map(|&v| coordinate(&sphere.vertices[v as usize]))
                     .sum::<f64>()
                     > 0.0
             })
             .collect(),
         vertices: sphere.vertices.clone(),
-    };
+    }
+}
+
+#[test]
+fn check_half_model_needs_the_symmetry_flag() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("half.stl");
+    let half = half_sphere(|p| p.y);
     write_binary_stl(&path, &half, 1.0);
     let p = path.to_str().unwrap();
     let refused = check(&[p, "--units", "m"]);
@@ -577,21 +583,7 @@ fn a_failing_stdout_is_reported() {
 fn a_floor_cut_a_hair_off_the_ground_is_moved_onto_it_and_said() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("dome.stl");
-    let sphere = generate::latlong_sphere(1.0, 24, 48);
-    let mut dome = TriMesh {
-        triangles: sphere
-            .triangles
-            .iter()
-            .copied()
-            .filter(|t| {
-                t.iter()
-                    .map(|&v| sphere.vertices[v as usize].z)
-                    .sum::<f64>()
-                    > 0.0
-            })
-            .collect(),
-        vertices: sphere.vertices.clone(),
-    };
+    let mut dome = half_sphere(|p| p.z);
     dome.map_vertices(|p| tuft_mesh::Point::new(p.x, p.y, p.z - 0.0124));
     write_binary_stl(&path, &dome, 1000.0);
     let out = check(&[path.to_str().unwrap(), "--ground", "-0.0124"]);
