@@ -629,20 +629,32 @@ fn a_tall_face_catches_a_separation_whose_line_passes_round_its_side() {
 /// (`LineSample::wake_back`, set on the landing's station as the
 /// screening sets it), stood `height` metres off the flank, and the flank
 /// is clear of faces turned downstream and bluff edges for `clear` metres
-/// past the landing. The march: each station's arc length, state and
-/// risk.
-fn behind_a_back(height: f64, clear: f64) -> Vec<(f64, FlowState, f64)> {
+/// past the landing. The speed falls from 40 to 30 m/s down the back (as
+/// attached flow runs down a base) and is 40 m/s again on the flank. The
+/// march: each station's arc length, state, risk and momentum thickness.
+fn behind_a_back(height: f64, clear: f64) -> Vec<(f64, FlowState, f64, f64)> {
     behind_a_back_from(height, clear, Some(1.0))
 }
 
 /// As [`behind_a_back`], with the bluff edge at `edge` (none: a rounded
 /// rim, over which the layer runs down the back attached).
-fn behind_a_back_from(height: f64, clear: f64, edge: Option<f64>) -> Vec<(f64, FlowState, f64)> {
+fn behind_a_back_from(
+    height: f64,
+    clear: f64,
+    edge: Option<f64>,
+) -> Vec<(f64, FlowState, f64, f64)> {
     let p = params(1.5e-5, Transition::Turbulent);
     let (start, foot) = (1.0, 1.05);
     let edge = edge.unwrap_or(f64::NAN);
     let step = 0.01;
-    let samples: Vec<LineSample> = line(400, 0.0, 4.0, |_| 40.0)
+    let back = |s: f64| {
+        if (start..foot).contains(&s) {
+            40.0 - 10.0 * (s - start) / (foot - start)
+        } else {
+            40.0
+        }
+    };
+    let samples: Vec<LineSample> = line(400, 0.0, 4.0, back)
         .iter()
         .map(|b| {
             let at_edge = (b.s - edge).abs() < 0.5 * step;
@@ -665,7 +677,7 @@ fn behind_a_back_from(height: f64, clear: f64, edge: Option<f64>) -> Vec<(f64, F
     samples
         .iter()
         .zip(&m.states)
-        .map(|(b, st)| (b.s, st.state, st.risk))
+        .map(|(b, st)| (b.s, st.state, st.risk, st.theta))
         .collect()
 }
 
@@ -677,14 +689,14 @@ fn wake_closes(height: f64, clear: f64) -> Option<f64> {
 
 /// The last station at risk 1 from 1 m on, or `None` when the layer ends
 /// separated.
-fn closes(states: &[(f64, FlowState, f64)]) -> Option<f64> {
+fn closes(states: &[(f64, FlowState, f64, f64)]) -> Option<f64> {
     if states.last()?.1 == FlowState::Separated {
         return None;
     }
     states
         .iter()
-        .filter(|&&(s, _, risk)| s >= 1.0 && risk >= 1.0)
-        .map(|&(s, _, _)| s)
+        .filter(|&&(s, _, risk, _)| s >= 1.0 && risk >= 1.0)
+        .map(|&(s, _, _, _)| s)
         .fold(None, |a: Option<f64>, s| Some(a.map_or(s, |a| a.max(s))))
 }
 
@@ -707,16 +719,38 @@ fn a_wake_behind_a_protuberance_reattaches_within_a_few_heights() {
     // at 1.75 m, to a station.
     let close = wake_closes(0.1, 3.0).expect("mirror on a flank: reattaches");
     assert!((close - 1.75).abs() < 0.015, "closes at {close}");
+    // The back itself stays dead water behind the bluff rim.
+    let at = |states: &[(f64, FlowState, f64, f64)], s: f64| {
+        states
+            .iter()
+            .copied()
+            .find(|&(x, ..)| x >= s - 1e-9)
+            .unwrap()
+    };
+    let bluff = behind_a_back(0.1, 3.0);
+    assert_eq!(at(&bluff, 1.02).1, FlowState::Separated);
     // A back lower than the layer (the line passing the protuberance's
     // root): the layer's own thickness sets the wake, a few centimetres.
     let root = wake_closes(0.0, 3.0).expect("a back's root: reattaches");
     assert!(root > 1.05 && root < 1.4, "closes at {root}");
     assert!(wake_closes(0.15, 0.1).is_none(), "fence on a short deck");
-    // Over a rounded rim the layer runs down the back attached, its
-    // thickness growing many times over (a van's mirror), and the wake
-    // closes on the flank all the same.
-    let rounded = closes(&behind_a_back_from(0.1, 3.0, None)).expect("rounded rim: reattaches");
+    // Over a rounded rim the layer runs down the back attached, thickening
+    // in the falling speed (a van's mirror), and the wake closes on the
+    // flank all the same; the layer goes on from the thickness it had
+    // reaching the back, not the thickened one.
+    let rounded_states = behind_a_back_from(0.1, 3.0, None);
+    let rounded = closes(&rounded_states).expect("rounded rim: reattaches");
     assert!((rounded - 1.75).abs() < 0.015, "closes at {rounded}");
+    let (reaching, down_the_back) = (at(&rounded_states, 0.99).3, at(&rounded_states, 1.04).3);
+    assert!(
+        down_the_back > 1.5 * reaching,
+        "{reaching} -> {down_the_back}"
+    );
+    let restart = at(&rounded_states, rounded + 0.005).3;
+    assert!(
+        (restart - reaching).abs() < 1e-12,
+        "{reaching} -> {restart}"
+    );
     // A line separated well ahead of the back carries another wake.
     assert!(
         closes(&behind_a_back_from(0.1, 3.0, Some(0.5))).is_none(),

@@ -73,7 +73,8 @@ pub struct LineSample {
 /// less.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct WakeBack {
-    /// Arc length where the line comes onto the back, m.
+    /// Arc length where the back starts: where the line left the wall
+    /// before it, m.
     pub start: f64,
     /// Arc length where the line lands on the wall behind the back (the
     /// back's foot), m.
@@ -132,7 +133,9 @@ pub struct LineMarch {
     pub states: Vec<LineState>,
     /// First turbulent station, if any.
     pub transition: Option<usize>,
-    /// First separated station, if any.
+    /// The station where the line separated for good, if it did (a
+    /// separation on a protuberance's back that `wake_reattachment` closed
+    /// is cleared).
     pub separation: Option<usize>,
 }
 
@@ -196,10 +199,10 @@ pub const STEP_FACE_REACH: f64 = 2.0;
 pub const JUNCTION_SIDE_TURN: f64 = 60.0 * std::f64::consts::PI / 180.0;
 
 /// Longest separated region behind the back of a protuberance, in heights
-/// of that back as the line saw it, for a line that leaves a bluff edge,
-/// runs down a face turned downstream and comes onto a surface that no
-/// longer faces downstream (the flank behind a mirror): the shear layer
-/// off the edge reattaches on that surface. Behind a two-dimensional
+/// of that back as the line saw it, for a line that runs down a face
+/// turned downstream (over a bluff rim or a rounded one) and lands on a
+/// wall behind it (the flank behind a mirror): the shear layer off the
+/// back's rim reattaches on that wall. Behind a two-dimensional
 /// backward-facing step it reattaches 6 to 7 step heights from the step
 /// (Eaton & Johnston 1981; Driver & Seegmiller 1985; from memory), behind
 /// a wall-mounted cube about 1.5 to 2 heights from its rear face
@@ -326,6 +329,12 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
         };
         if before.state == FlowState::Laminar && out.transition.is_none() {
             out.transition = Some(ctx.i);
+        }
+        // The separation on the back is closed: the line's separation mark
+        // is for a separation for good (the back's stations keep their
+        // separated states).
+        if matches!(phase, Phase::Separated(_)) {
+            out.separation = None;
         }
         *phase = Phase::Bubble { until, held };
         return held;
@@ -459,7 +468,8 @@ fn bubble_end(ctx: &Station, state: &LineState) -> Option<usize> {
 /// from `H` = [`REATTACHMENT_H`] with the thickness it had reaching the
 /// back.
 fn wake_reattachment(ctx: &Station, out: &LineMarch) -> Option<(usize, LineState)> {
-    if ctx.params.reattach_thicknesses <= 0.0 {
+    // A layer kept laminar throughout is not restarted turbulent.
+    if ctx.params.reattach_thicknesses <= 0.0 || ctx.params.transition == Transition::Laminar {
         return None;
     }
     let back = ctx.samples[ctx.i].wake_back?;
@@ -471,8 +481,9 @@ fn wake_reattachment(ctx: &Station, out: &LineMarch) -> Option<(usize, LineState
         .position(|b| b.s >= back.start)
         .unwrap_or(ctx.i);
     let before = *out.states.get(entry.checked_sub(1)?)?;
-    // A line separated before it reached the back carries another wake.
-    if out.separation.is_some_and(|k| k + 1 < entry) {
+    // A line separated before it reached the back (earlier than the
+    // station just ahead of it) carries another wake.
+    if entry >= 2 && out.states[entry - 2].state == FlowState::Separated {
         return None;
     }
     let thickness = before.theta * (head::h1_of_h(before.h) + before.h);

@@ -671,15 +671,22 @@ impl<'a> LineContext<'a> {
 
     /// Where the line comes off the back of a protuberance onto the wall
     /// behind it, as the line sees it ([`WakeBack`], with the segment of
-    /// the landing): a back is entered on a panel facing downstream
-    /// ([`Self::faces_downstream`]) from a wall, goes on over panels still
-    /// turned from the stream by more than [`WAKE_FOOT_TURN`] (a mirror's
-    /// housing curls under and in on its back, some facets turned only 40
-    /// degrees between steeper ones) and over the bluff edges on it, and
-    /// lands on the first panel turned less (the flank). The height is how
-    /// far the line's points on the back rise above the plane of the
-    /// landing's panel; the wall is clear up to the next panel facing
-    /// downstream or bluff crossing after the landing, or the line's end.
+    /// the landing). A wall is a panel turned from the stream by less than
+    /// [`WAKE_FOOT_TURN`] either way (a flank, a roof, a bonnet), not
+    /// crumpled. A back is entered on a panel facing downstream
+    /// ([`Self::faces_downstream`]) after the line has left a wall, and
+    /// starts where it left it (so that facets turned 20 to 50 degrees at
+    /// the rim are the back's); it goes on over panels that are no wall (a
+    /// mirror's housing curls under and in on its back, some facets turned
+    /// only 40 degrees between steeper ones) and over the bluff edges on
+    /// it, and lands on the first wall panel. A sliver of wall between two
+    /// stretches of back (shorter than a station or the back's height,
+    /// ended by another panel facing downstream) is part of the back. The
+    /// height is how far the line's points on the back rise above the
+    /// plane of the landing's panel; the wall is clear up to the next panel
+    /// facing downstream or bluff crossing after the landing, or the line's
+    /// end. A line that lands over a bluff edge, or whose sliver ends at
+    /// one, does not land.
     fn wake_landings(
         &self,
         trace: &Trace,
@@ -689,58 +696,60 @@ impl<'a> LineContext<'a> {
         let p = &trace.panels;
         let down = |m: usize| self.faces_downstream(p[m] as usize);
         let wall = |m: usize| {
-            self.mesh.panels[p[m] as usize].normal.dot(&self.flow_dir) < WAKE_FOOT_TURN.sin()
+            let t = p[m] as usize;
+            !self.crumpled(t)
+                && self.mesh.panels[t].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin()
         };
         let end = arc.last().copied().unwrap_or(0.0);
         let mut out = Vec::new();
+        // The first segment after the last wall segment, while off a wall.
+        let mut left_wall: Option<usize> = None;
+        // The start of the back the line is on.
         let mut entry: Option<usize> = None;
-        // The line has been on a wall: a back is entered from one (a line
-        // that starts on a base is on no protuberance's back).
-        let mut from_wall = false;
         for m in 0..p.len() {
-            if down(m) {
-                if entry.is_none() && from_wall {
-                    entry = Some(m);
+            if !wall(m) {
+                if down(m) && entry.is_none() {
+                    entry = left_wall;
                 }
-            } else if wall(m) && entry.is_none() {
-                from_wall = true;
-            } else if wall(m)
-                && let Some(j) = entry
-                && forced.binary_search(&m).is_err()
-            {
-                let normal = self.mesh.panels[p[m] as usize].normal;
-                let at = trace.points[m];
-                let height = trace.points[j..=m]
-                    .iter()
-                    .map(|q| (q - at).dot(&normal))
-                    .fold(0.0, f64::max);
-                let next_forced = forced
-                    .iter()
-                    .copied()
-                    .find(|&f| f > m)
-                    .unwrap_or(usize::MAX);
-                let clear = (m + 1..p.len())
-                    .find(|&k| k >= next_forced || down(k))
-                    .map_or(end, |k| arc[k]);
-                // A sliver of wall on the back (a facet where the housing
-                // meets its stalk) is part of the back: the line goes on
-                // down it.
-                if clear - arc[m] < self.step.max(height) {
-                    continue;
-                }
-                entry = None;
-                out.push((
-                    m,
-                    WakeBack {
-                        start: arc[j],
-                        foot: arc[m],
-                        height,
-                        clear,
-                    },
-                ));
-            } else if wall(m) {
-                entry = None;
+                continue;
             }
+            let Some(j) = entry else {
+                left_wall = Some(m + 1);
+                continue;
+            };
+            let next_forced = forced
+                .iter()
+                .copied()
+                .find(|&f| f > m)
+                .unwrap_or(usize::MAX);
+            let ends = (m + 1..p.len()).find(|&k| k >= next_forced || down(k));
+            let clear = ends.map_or(end, |k| arc[k]);
+            let normal = self.mesh.panels[p[m] as usize].normal;
+            let at = trace.points[m];
+            let height = trace.points[j..=m]
+                .iter()
+                .map(|q| (q - at).dot(&normal))
+                .fold(0.0, f64::max);
+            let sliver = clear - arc[m] < self.step.max(height);
+            if sliver && ends.is_some_and(|k| k < next_forced) {
+                // A sliver of wall on the back (a facet where the housing
+                // meets its stalk): the line goes on down the back.
+                continue;
+            }
+            entry = None;
+            left_wall = Some(m + 1);
+            if forced.binary_search(&m).is_ok() || sliver {
+                continue;
+            }
+            out.push((
+                m,
+                WakeBack {
+                    start: arc[j],
+                    foot: arc[m],
+                    height,
+                    clear,
+                },
+            ));
         }
         out
     }
