@@ -342,3 +342,88 @@ fn a_fold_left_by_the_coarsening_starts_no_separation() {
         "with the fold {with}, without {clean}"
     );
 }
+
+/// A closed box from `lo` to `hi`, its facets facing out.
+fn block(lo: [f64; 3], hi: [f64; 3]) -> tuft_mesh::TriMesh {
+    let corner = |i: usize| {
+        tuft_mesh::Point::new(
+            if i & 1 == 0 { lo[0] } else { hi[0] },
+            if i & 2 == 0 { lo[1] } else { hi[1] },
+            if i & 4 == 0 { lo[2] } else { hi[2] },
+        )
+    };
+    let faces: [[u32; 4]; 6] = [
+        [0, 2, 3, 1],
+        [4, 5, 7, 6],
+        [0, 1, 5, 4],
+        [2, 6, 7, 3],
+        [0, 4, 6, 2],
+        [1, 3, 7, 5],
+    ];
+    let triangles = faces
+        .iter()
+        .flat_map(|&[a, b, c, d]| [[a, b, c], [a, c, d]])
+        .collect();
+    tuft_mesh::TriMesh::new((0..8).map(corner).collect(), triangles).unwrap()
+}
+
+/// The slant-back body's flank behind a block standing out of it 6.5 cm
+/// (a mirror-like protuberance with a sharp rear rim), as a half model on
+/// the ground, wrapped and coarsened as `tuft run` does; the separated
+/// share of the flank from 4 to 30 cm behind the block, at its height,
+/// with the bubble rules (`reattach_thicknesses`) on or off.
+fn flank_behind_a_block(reattach_thicknesses: f64) -> f64 {
+    let body = tuft_mesh::generate::ahmed_with_params(&tuft_mesh::generate::AhmedParams {
+        slant_deg: 25.0,
+        half: true,
+        ..tuft_mesh::generate::AhmedParams::default()
+    })
+    .unwrap();
+    let part = block([0.40, 0.17, 0.16], [0.46, 0.26, 0.22]);
+    let offset = body.vertices.len() as u32;
+    let mut vertices = body.vertices.clone();
+    vertices.extend(part.vertices.iter().copied());
+    let mut triangles = body.triangles.clone();
+    triangles.extend(part.triangles.iter().map(|t| t.map(|v| v + offset)));
+    let params = PrepareParams {
+        units: LengthUnit::M,
+        mirrors: tuft_tests::ground_and_symmetry(),
+        target_panels: Some(5000),
+        ..PrepareParams::default()
+    };
+    let mesh = prepare_mesh(
+        tuft_mesh::TriMesh::new(vertices, triangles).unwrap(),
+        None,
+        &params,
+    )
+    .unwrap()
+    .0;
+    let layer = screen(&mesh, reattach_thicknesses);
+    separated_share(&mesh, &layer, |c, n| {
+        n.y > 0.9 && (0.50..0.76).contains(&c.x) && (0.16..0.22).contains(&c.z)
+    })
+}
+
+/// Behind a bluff protuberance on a wall the separated region closes
+/// within a few of its heights (a wall-mounted cube about 1.5 to 2 heights
+/// behind its rear face, Martinuzzi & Tropea 1993; a backward-facing step
+/// 6 to 7, Eaton & Johnston 1981; all from memory), and the flank behind a
+/// side mirror is attached (common practice: tufts on the side glass stay
+/// on). Without the bubble rules (`reattach_thicknesses = 0`) the whole
+/// strip is separated (1.000). Known failure: with them 0.632 (0.620 in
+/// the attached pass already). The lines off the block's back reattach
+/// (the wake rule), but lines passing beside the block along the flank
+/// separate by Head's criterion in its lee, 2.6 cm behind its back near
+/// its top and bottom corners (the attached flow's rear stagnation), never
+/// having run down a back, and the panels behind take that separation.
+/// Run with `-- --ignored`.
+#[test]
+#[ignore = "known failure: lines beside a block separate in its lee (DEVELOPERS.md)"]
+fn the_flank_behind_a_mirror_like_block_reattaches() {
+    let (with, without) = (flank_behind_a_block(10.0), flank_behind_a_block(0.0));
+    println!(
+        "flank behind a block: separated {with:.3} with the bubble rules, {without:.3} without"
+    );
+    assert!(without > 0.1, "no wake to close: {without}");
+    assert!(with < 0.5 * without, "{with} against {without}");
+}
