@@ -7,7 +7,7 @@
 //! per view for all, so that sizes and positions compare from row to row;
 //! the section's one key ([`key`]) carries the colour bar and a scale bar.
 
-use tuft_mesh::{PanelMesh, Point};
+use tuft_mesh::PanelMesh;
 
 use super::canvas::{Canvas, GRID, INK, MUTED};
 use super::colorbar::{ColourScale, Swatch, draw_swatch, nice_ticks, tick_label};
@@ -95,11 +95,7 @@ impl GlanceLayout {
                 (0.96 * w / (e.1 - e.0)).min(room / (e.3 - e.2))
             })
             .fold(f64::INFINITY, f64::min);
-        let scale = if scale.is_finite() && scale > 0.0 {
-            scale
-        } else {
-            1.0
-        };
+        let scale = sheet::usable_scale(scale);
         let centres = extents
             .into_iter()
             .map(|(v, e)| {
@@ -176,15 +172,7 @@ pub fn picture(
             &paint,
         );
         if let (Some(z), true) = (s.mesh.mirrors.ground, view.is_side()) {
-            let (l, t, w, h) = frame.rect;
-            let (_, y) = frame.project(*view, &Point::new(0.0, 0.0, z));
-            if (t as f64..(t + h) as f64).contains(&y) {
-                canvas.polyline(
-                    &[(l as f32, y as f32), ((l + w) as f32, y as f32)],
-                    [150, 120, 90],
-                    1.5,
-                );
-            }
+            sheet::ground_line(&mut canvas, z, *view, frame);
         }
     }
     let on = RegionViews {
@@ -314,6 +302,7 @@ mod tests {
     use crate::output::PanelState;
     use crate::output::canvas::testing::{decode, keep};
     use crate::output::fixture::Fixture;
+    use tuft_mesh::Point;
 
     /// The stripes of the separated hatching in a row of 14 pixels from
     /// `(x, y)`: (dark, light) pixel counts.

@@ -90,11 +90,7 @@ pub fn layout_at(tris: &[DisplayTri], params: &SheetParams, yaw_deg: f64) -> Lay
         .enumerate()
         .map(|(k, e)| (0.92 * width(k) / (e.1 - e.0)).min(0.9 * pic_h / (e.3 - e.2)))
         .fold(f64::INFINITY, f64::min);
-    let scale = if scale.is_finite() && scale > 0.0 {
-        scale
-    } else {
-        1.0
-    };
+    let scale = usable_scale(scale);
     let views = sheet_views
         .iter()
         .zip(extents)
@@ -387,6 +383,32 @@ pub fn flow_mark_box(rect: (i64, i64, i64, i64)) -> [f32; 4] {
     [(l + w - 130) as f32, t as f32, 130.0, 40.0]
 }
 
+/// The ground plane at height `z` as a line across `frame` in `view` (one
+/// seen edge-on: side, front, rear), where it falls inside the frame; its
+/// height on the canvas, pixels.
+pub fn ground_line(canvas: &mut Canvas, z: f64, view: View, frame: &Frame) -> Option<f64> {
+    let (l, t, w, h) = frame.rect;
+    let (_, y) = frame.project(view, &Point::new(0.0, 0.0, z));
+    (t as f64..(t + h) as f64).contains(&y).then(|| {
+        canvas.polyline(
+            &[(l as f32, y as f32), ((l + w) as f32, y as f32)],
+            [150, 120, 90],
+            1.5,
+        );
+        y
+    })
+}
+
+/// The largest `scale` that fits, or 1 when none does (an empty or flat
+/// extent): pixels per metre.
+pub fn usable_scale(scale: f64) -> f64 {
+    if scale.is_finite() && scale > 0.0 {
+        scale
+    } else {
+        1.0
+    }
+}
+
 /// Ground line, flow arrow and scale bar where they apply.
 fn decorate(
     canvas: &mut Canvas,
@@ -395,25 +417,18 @@ fn decorate(
     frame: &Frame,
     caption: &Caption,
 ) {
-    let (l, t, w, h) = frame.rect;
+    let (l, t, w, _) = frame.rect;
     if let (Some(z), View::Side | View::SideFromRight | View::Front | View::Rear) =
         (s.mesh.mirrors.ground, view)
+        && let Some(y) = ground_line(canvas, z, view, frame)
     {
-        let (_, y) = frame.project(view, &Point::new(0.0, 0.0, z));
-        if (t as f64..(t + h) as f64).contains(&y) {
-            canvas.polyline(
-                &[(l as f32, y as f32), ((l + w) as f32, y as f32)],
-                [150, 120, 90],
-                1.5,
-            );
-            text::draw(
-                canvas,
-                "ground",
-                (l + w - 4) as f32,
-                (y - 5.0) as f32,
-                &TextStyle::new(13.0).colour(MUTED).align(Align::Right),
-            );
-        }
+        text::draw(
+            canvas,
+            "ground",
+            (l + w - 4) as f32,
+            (y - 5.0) as f32,
+            &TextStyle::new(13.0).colour(MUTED).align(Align::Right),
+        );
     }
     if let Some((dx, dy)) = view.flow_direction(caption.yaw_deg) {
         // The word before the arrow, on one line with it, so the corner
