@@ -19,6 +19,16 @@ fn tuft(args: &[&str]) -> (i32, String) {
     )
 }
 
+/// `tuft sweep FILE --out OUT`: its exit code and stderr.
+fn sweep_to(file: &std::path::Path, out: &std::path::Path) -> (i32, String) {
+    tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ])
+}
+
 fn json(path: &Path) -> Value {
     serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap()
 }
@@ -41,12 +51,7 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     )
     .unwrap();
     let out = d.join("yaw");
-    let (code, err) = tuft(&[
-        "sweep",
-        d.join("yaw.toml").to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
+    let (code, err) = sweep_to(&d.join("yaw.toml"), &out);
     assert_eq!(code, 0, "{err}");
     // One progress line per variant.
     assert_eq!(
@@ -259,23 +264,13 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     // each.
     assert!(html.contains("restarts at 1 in each"));
     // A second pass keeps the finished folders and runs only what failed.
-    let (code, err) = tuft(&[
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
+    let (code, err) = sweep_to(&file, &out);
     assert_eq!(code, 2);
     assert_eq!(err.matches("already finished").count(), 4, "{err}");
     // A changed base case runs the finished variants again instead of
     // keeping results computed for other inputs.
     std::fs::write(&file, SPHERE_SWEEP.replace("panels = 320", "panels = 330")).unwrap();
-    let (_, err) = tuft(&[
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
+    let (_, err) = sweep_to(&file, &out);
     assert_eq!(err.matches("already finished").count(), 0, "{err}");
     assert_eq!(err.matches("its case changed").count(), 4, "{err}");
     // ... and does run them: each of the four folders now holds the new
@@ -422,12 +417,7 @@ fn a_variant_with_an_axle_off_the_body_fails_alone() {
     )
     .unwrap();
     let out = d.join("axles");
-    let (code, err) = tuft(&[
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
+    let (code, err) = sweep_to(&file, &out);
     assert_eq!(code, 2, "{err}");
     let failed: Vec<&str> = err.lines().filter(|l| l.contains("FAILED")).collect();
     assert_eq!(failed.len(), 1, "{err}");
@@ -510,12 +500,7 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     )
     .unwrap();
     let out = d.join("s");
-    let (code, err) = tuft(&[
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ]);
+    let (code, err) = sweep_to(&file, &out);
     // yaw-45 fails: beyond the 30 degrees a case accepts.
     assert_eq!(code, 2, "{err}");
     let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
