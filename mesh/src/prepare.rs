@@ -241,13 +241,13 @@ pub fn prepare_mesh(
     } else {
         (mesh, None)
     };
-    // The wrapped surface, for the slot check below (a copy only when
-    // a half model was wrapped).
-    let wrapped_for_slot = if wrap.is_some() && params.mirrors.symmetry {
-        mesh.clone()
-    } else {
-        TriMesh::default()
-    };
+    // A wrapped half model's surface facing the symmetry plane from close
+    // by, and its whole area, measured here before the coarsening (for the
+    // slot warning below).
+    let slot = wrap
+        .as_ref()
+        .filter(|_| params.mirrors.symmetry)
+        .map(|w| (facing_the_plane(&mesh, 2.0 * w.cell), mesh.area(), w.cell));
     let suggested = suggest(&mesh);
     let target = params.target_panels.unwrap_or(suggested);
     let (mesh, coarsen) = if mesh.len() > target {
@@ -301,20 +301,19 @@ pub fn prepare_mesh(
                 ));
             }
         }
-        if let Some(w) = wrap.as_ref().filter(|_| params.mirrors.symmetry) {
-            let slot = facing_the_plane(&wrapped_for_slot, 2.0 * w.cell);
-            if slot.0 > SLOT_SHARE * wrapped_for_slot.area() {
-                q.add_warning(format!(
-                    "the wrap left {:.2} m^2 of surface facing the symmetry plane within {:.0} mm of it \
-                     (near x {:.3}, z {:.3} m): a slot along the centre plane inside parts that pass \
-                     into each other, which the body does not have; run the whole body \
-                     (half_model = false) to check the numbers there",
-                    slot.0,
-                    2000.0 * w.cell,
-                    slot.1[0],
-                    slot.1[2]
-                ));
-            }
+        if let Some((slot, area, cell)) = slot
+            && slot.0 > SLOT_SHARE * area
+        {
+            q.add_warning(format!(
+                "the wrap left {:.2} m^2 of surface facing the symmetry plane within {:.0} mm of it \
+                 (near x {:.3}, z {:.3} m): a slot along the centre plane inside parts that pass \
+                 into each other, which the body does not have; run the whole body \
+                 (half_model = false) to check the numbers there",
+                slot.0,
+                2000.0 * cell,
+                slot.1[0],
+                slot.1[2]
+            ));
         }
         if let Some(w) = &wrap {
             q.notes.push(w.describe());
