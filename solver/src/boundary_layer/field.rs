@@ -211,13 +211,21 @@ fn least_squares_divergence(mesh: &PanelMesh, direction: &[Vector3<f64>], t: usi
 /// next, by rounding.
 pub const SHARP_EDGE_TOLERANCE_DEG: f64 = 1e-3;
 
+/// How far panel `b`'s centroid lies above panel `a`'s plane, metres:
+/// negative where the surface falls away from `a` onto `b` (a convex
+/// edge), positive where it rises (a concave one).
+pub fn rise(mesh: &PanelMesh, a: usize, b: usize) -> f64 {
+    let (pa, pb) = (&mesh.panels[a], &mesh.panels[b]);
+    pa.normal.dot(&(pb.centroid - pa.centroid))
+}
+
 /// True when the edge between panels `a` and `b` is sharp and convex: the
 /// angle between the normals reaches `sharp_edge_deg` (within
 /// [`SHARP_EDGE_TOLERANCE_DEG`]) and the surface turns away (`b`'s centroid
 /// lies below `a`'s plane).
 pub fn sharp_convex(mesh: &PanelMesh, a: usize, b: usize, sharp_edge_deg: f64) -> bool {
     let (pa, pb) = (&mesh.panels[a], &mesh.panels[b]);
-    let convex = pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0;
+    let convex = rise(mesh, a, b) < 0.0;
     let limit = (sharp_edge_deg - SHARP_EDGE_TOLERANCE_DEG)
         .to_radians()
         .cos();

@@ -83,7 +83,7 @@ use tuft_mesh::PanelMesh;
 
 use super::attachment::{self, Seed};
 use super::coverage;
-use super::field::{SurfaceField, sharp_convex};
+use super::field::{SurfaceField, rise, sharp_convex};
 use super::march::{self, LineMarch, LineSample, LineStart, WAKE_FOOT_TURN, WakeBack};
 use super::streamlines::{Trace, Tracer};
 use super::{BoundaryLayerError, BoundaryLayerParams, FlowState, thwaites};
@@ -641,7 +641,7 @@ impl<'a> LineContext<'a> {
                 let region = self.faces.label[b as usize];
                 if region.is_none() {
                     on = None;
-                } else if pa.normal.dot(&(pb.centroid - pa.centroid)) > 0.0 {
+                } else if rise(self.mesh, a as usize, b as usize) > 0.0 {
                     acc += pa.normal.dot(&pb.normal).clamp(-1.0, 1.0).acos();
                     if on != region {
                         top = self.faces.top(b as usize, &trace.points[j], &pa.normal);
@@ -803,8 +803,7 @@ impl<'a> LineContext<'a> {
     /// True when the surface falls away from panel `a` onto panel `b`:
     /// `b`'s centroid lies below `a`'s plane, so the edge between is convex.
     fn falls_away(&self, a: usize, b: usize) -> bool {
-        let (pa, pb) = (&self.mesh.panels[a], &self.mesh.panels[b]);
-        pa.normal.dot(&(pb.centroid - pa.centroid)) < 0.0
+        rise(self.mesh, a, b) < 0.0
     }
 
     /// True when panel `t` faces upstream ([`faces_upstream`]).
