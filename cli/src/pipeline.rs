@@ -804,7 +804,8 @@ the wheels and close the arches to rank drag";
 /// 75-degree-screen SUV by 73 % of its roof against 1 %).
 pub const SIDE_DIFFERENCE_SHARE: f64 = 0.01;
 
-/// A warning for a whole body, centred on y = 0 (within 2 % of its width),
+/// A warning for a whole body, centred on y = 0 (as a whole body to be cut
+/// there is, [`tuft_mesh::cut::centred`]),
 /// at zero yaw, whose two sides separate differently by more than
 /// [`SIDE_DIFFERENCE_SHARE`] of its surface: the separated-flow loop's
 /// passes can drift apart on a whole model (DEVELOPERS.md), and the
@@ -819,7 +820,7 @@ pub fn side_difference_warning(
     }
     let (lo, hi) = mesh.bounds();
     let width = hi.y - lo.y;
-    if !(width > 0.0) || 0.5 * (hi.y + lo.y).abs() > 0.02 * width {
+    if !tuft_mesh::cut::centred(lo.y, hi.y) {
         return None;
     }
     let (mut left, mut right) = (0.0, 0.0);

@@ -29,6 +29,13 @@ pub const WHOLE_SIDE_SHARE: f64 = 0.25;
 /// choice: 2 %, about 36 mm on a 1.8 m wide car).
 pub const CENTRE_TOLERANCE: f64 = 0.02;
 
+/// True when a body spanning `y_min` to `y_max` has its centre within
+/// [`CENTRE_TOLERANCE`] of its width of `y = 0` (and some width).
+pub fn centred(y_min: f64, y_max: f64) -> bool {
+    let width = y_max - y_min;
+    width > 0.0 && 0.5 * (y_max + y_min).abs() <= CENTRE_TOLERANCE * width
+}
+
 /// Most vertices of the dropped half whose distance from the kept half's
 /// mirror image is measured (evenly spread); the measure is a report, so a
 /// sample keeps it to a fraction of a second on a scan of millions of
@@ -106,7 +113,7 @@ pub fn keep_right_half(mesh: &TriMesh) -> Result<Option<(TriMesh, HalfCut)>, Mes
     if width <= 0.0 || -lo.y < WHOLE_SIDE_SHARE * width || hi.y < WHOLE_SIDE_SHARE * width {
         return Ok(None);
     }
-    if 0.5 * (hi.y + lo.y).abs() > CENTRE_TOLERANCE * width {
+    if !centred(lo.y, hi.y) {
         return Err(MeshError::NotCentred {
             y_min: lo.y,
             y_max: hi.y,
