@@ -668,6 +668,7 @@ fn behind_a_back_from(
                     foot,
                     height,
                     clear: foot + clear,
+                    closes_at: None,
                 }),
                 ..*b
             }

@@ -410,15 +410,12 @@ fn flank_behind_a_block(reattach_thicknesses: f64) -> f64 {
 /// 6 to 7, Eaton & Johnston 1981; all from memory), and the flank behind a
 /// side mirror is attached (common practice: tufts on the side glass stay
 /// on). Without the bubble rules (`reattach_thicknesses = 0`) the whole
-/// strip is separated (1.000). Known failure: with them 0.632 (0.620 in
-/// the attached pass already). The lines off the block's back reattach
-/// (the wake rule), but lines passing beside the block along the flank
-/// separate by Head's criterion in its lee, 2.6 cm behind its back near
-/// its top and bottom corners (the attached flow's rear stagnation), never
-/// having run down a back, and the panels behind take that separation.
-/// Run with `-- --ignored`.
+/// strip is separated (1.000). With the wake rule alone it was 0.632: the
+/// lines off the block's back reattached, but lines passing beside the
+/// block separated by Head's criterion in its lee, 2.6 cm behind its back
+/// near its top and bottom corners, never having run down a back; the lee
+/// rule closes them with the wake (0.012).
 #[test]
-#[ignore = "known failure: lines beside a block separate in its lee (DEVELOPERS.md)"]
 fn the_flank_behind_a_mirror_like_block_reattaches() {
     let (with, without) = (flank_behind_a_block(10.0), flank_behind_a_block(0.0));
     println!(

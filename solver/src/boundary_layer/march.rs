@@ -87,6 +87,13 @@ pub struct WakeBack {
     /// bluff edge, or ends, m: the surface behind the back is clear up to
     /// there.
     pub clear: f64,
+    /// Arc length where the bubble closes when the wake of a back beside
+    /// the line sets it (a line that passes a protuberance and separates
+    /// in its lee closes where the lines off its back reattach; see the
+    /// screening's lee rule), m; `None` for a line that ran down the back
+    /// itself, whose bubble closes [`WAKE_REATTACHMENT_HEIGHTS`] heights
+    /// past the foot.
+    pub closes_at: Option<f64>,
 }
 
 /// How the line starts.
@@ -137,6 +144,10 @@ pub struct LineMarch {
     /// separation on a protuberance's back that `wake_reattachment` closed
     /// is cleared).
     pub separation: Option<usize>,
+    /// Each wake bubble `wake_reattachment` held: the station where the
+    /// line landed behind a back (or separated in a back's lee) and the
+    /// station where it reattached.
+    pub wakes: Vec<(usize, usize)>,
 }
 
 /// The march as it goes.
@@ -273,6 +284,7 @@ pub fn march_line(
         states: Vec::with_capacity(samples.len()),
         transition: None,
         separation: None,
+        wakes: Vec::new(),
     };
     let Some(first) = samples.first() else {
         return out;
@@ -336,6 +348,7 @@ fn advance(phase: &mut Phase, ctx: &Station, out: &mut LineMarch, theta0: f64) -
         if matches!(phase, Phase::Separated(_)) {
             out.separation = None;
         }
+        out.wakes.push((ctx.i, until));
         *phase = Phase::Bubble { until, held };
         return held;
     }
@@ -487,7 +500,9 @@ fn wake_reattachment(ctx: &Station, out: &LineMarch) -> Option<(usize, LineState
         return None;
     }
     let thickness = before.theta * (head::h1_of_h(before.h) + before.h);
-    let close = back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness);
+    let close = back
+        .closes_at
+        .unwrap_or(back.foot + WAKE_REATTACHMENT_HEIGHTS * back.height.max(thickness));
     if !close.is_finite() || close >= back.clear {
         return None;
     }

@@ -60,7 +60,11 @@
 //!   (a mirror's back, then the flank) reattaches within a few heights of
 //!   that back ([`march::WAKE_REATTACHMENT_HEIGHTS`]), unless it separated
 //!   before the back, or meets another such face or bluff edge or ends
-//!   first (`LineContext::wake_landings`).
+//!   first (`LineContext::wake_landings`). A line that passes beside the
+//!   protuberance and separates on the wall in the zone between where
+//!   those lines landed and where they reattached (within the back's
+//!   height across the stream) closes with them (`LineContext::lee_back`):
+//!   once every line is marched, it is marched again with that bubble.
 //! - **Several lines on a panel.** A panel crossed by several streamlines
 //!   keeps the one with the highest risk (the screening errs on the side of
 //!   separation).
@@ -241,6 +245,17 @@ pub fn screen_boundary_layer(
             .collect();
         lines.extend(extra);
     }
+    // The lee rule (`LineContext::lee_back`): lines that separated in the
+    // wake of a protuberance they passed are marched again, closing where
+    // the wake does.
+    let zones: Vec<WakeZone> = lines.iter().flat_map(|l| l.wakes.iter().copied()).collect();
+    lines.par_iter_mut().for_each(|l| {
+        if let Some(lee) = l.lee.take()
+            && let Some(back) = ctx.lee_back(&lee, &zones)
+        {
+            *l = ctx.march_trace(&lee.seed, lee.trace, Some(back));
+        }
+    });
     let mut layer = combine(mesh, lines, attachments, params);
     spread_rim_zone(
         mesh,
@@ -403,6 +418,41 @@ struct LineResult {
     contributions: Vec<Contribution>,
     transition_panel: Option<u32>,
     separation_panel: Option<u32>,
+    /// The wakes behind backs this line landed in and reattached from.
+    wakes: Vec<WakeZone>,
+    /// What the lee rule needs to march the line again, when it separated
+    /// on a wall by the boundary layer's criterion ([`LeeLine`]).
+    lee: Option<Box<LeeLine>>,
+}
+
+/// A wake bubble one line held on the wall behind a protuberance's back
+/// (`march::wake_reattachment`), from where it landed to where it
+/// reattached.
+#[derive(Debug, Clone, Copy)]
+struct WakeZone {
+    landing: Point3<f64>,
+    reattachment: Point3<f64>,
+    /// Outward normal of the wall at the landing.
+    normal: Vector3<f64>,
+    /// The back's height as the line saw it, m.
+    height: f64,
+}
+
+/// A line that separated on a wall by the boundary layer's criterion (not
+/// at a bluff edge), kept to be marched again if its separation lies in
+/// the lee of a protuberance ([`LineContext::lee_back`]).
+struct LeeLine {
+    seed: Seed,
+    trace: Trace,
+    /// The station where it separated.
+    station: usize,
+    /// Arc length and position of the separation.
+    s: f64,
+    point: Point3<f64>,
+    normal: Vector3<f64>,
+    /// Arc length up to which the wall behind the separation is clear
+    /// ([`WakeBack::clear`]).
+    clear: f64,
 }
 
 /// Shared inputs of the per-line work.
@@ -460,6 +510,12 @@ impl<'a> LineContext<'a> {
 
     /// March along an already traced line that starts at `seed`.
     fn run_trace(&self, seed: &Seed, trace: Trace) -> LineResult {
+        self.march_trace(seed, trace, None)
+    }
+
+    /// March along a traced line, with a wake bubble from the lee rule
+    /// opened at a station when `lee` says so ([`Self::lee_back`]).
+    fn march_trace(&self, seed: &Seed, trace: Trace, lee: Option<(usize, WakeBack)>) -> LineResult {
         let arc = arc_lengths(&trace.points);
         let peak = self.peak_segments(&trace);
         let (mut samples, segments) = self.samples(&trace, &arc);
@@ -486,9 +542,115 @@ impl<'a> LineContext<'a> {
             })
             .collect();
         clip_edge_peaks(&mut samples, |k| clipped[k]);
+        if let Some((k, back)) = lee
+            && let Some(sample) = samples.get_mut(k)
+        {
+            sample.wake_back = Some(back);
+        }
         let start = self.start(seed, samples.first().map_or(0.0, |s| s.speed));
         let marched = march::march_line(&samples, &start, self.params);
-        self.split(trace, arc, &peak, rim, &samples, &marched)
+        let wakes = marched
+            .wakes
+            .iter()
+            .filter_map(|&(landing, until)| {
+                let (a, b) = (samples.get(landing)?, samples.get(until)?);
+                Some(WakeZone {
+                    landing: a.point,
+                    reattachment: b.point,
+                    normal: a.normal,
+                    height: a.wake_back?.height,
+                })
+            })
+            .collect();
+        let lee = match lee {
+            None => self.lee_line(seed, &trace, &arc, &samples, &marched),
+            Some(_) => None,
+        };
+        let mut out = self.split(trace, arc, &peak, rim, &samples, &marched);
+        out.wakes = wakes;
+        out.lee = lee;
+        out
+    }
+
+    /// The line kept for the lee rule ([`LeeLine`]): it separated for good
+    /// by the boundary layer's criterion (not at a bluff edge) on a wall
+    /// (a panel turned from the stream by less than [`WAKE_FOOT_TURN`],
+    /// not crumpled), turbulent.
+    fn lee_line(
+        &self,
+        seed: &Seed,
+        trace: &Trace,
+        arc: &[f64],
+        samples: &[LineSample],
+        marched: &LineMarch,
+    ) -> Option<Box<LeeLine>> {
+        let k = marched.separation?;
+        let sample = samples.get(k)?;
+        let before = marched.states.get(k.checked_sub(1)?)?;
+        let seg = arc.partition_point(|&a| a <= sample.s).saturating_sub(1);
+        let panel = *trace.panels.get(seg)? as usize;
+        let wall = !self.crumpled(panel)
+            && self.mesh.panels[panel].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin();
+        if sample.forced_separation || !wall || before.state != FlowState::Turbulent {
+            return None;
+        }
+        let forced = self.bluff_crossings(trace);
+        let end = arc.last().copied().unwrap_or(0.0);
+        let clear = self.clear_end(trace, &forced, seg).map_or(end, |j| arc[j]);
+        Some(Box::new(LeeLine {
+            seed: *seed,
+            trace: trace.clone(),
+            station: k,
+            s: sample.s,
+            point: sample.point,
+            normal: *self.mesh.panels[panel].normal,
+            clear,
+        }))
+    }
+
+    /// The lee rule: a line that passes beside a protuberance and separates
+    /// on the wall behind it, between where the lines off its back landed
+    /// and where they reattached (`zones`), and within the back's height of
+    /// such a landing across the stream, on a wall turned like the
+    /// landing's by less than [`WAKE_FOOT_TURN`], lies in that back's wake:
+    /// its bubble closes where the wake's does, abreast of the nearest such
+    /// landing's reattachment along the stream. `None` when no wake holds
+    /// the separation or the wall is not clear up to there.
+    ///
+    /// Behind a wall-mounted obstacle the separated region is one closed
+    /// bubble across the obstacle's width and a little beyond it (a
+    /// wall-mounted cube, Martinuzzi & Tropea 1993, from memory); the lines
+    /// beside the obstacle's corners meet the attached flow's recompression
+    /// behind it and separate by Head's criterion without ever running down
+    /// its back (on a 6.5 cm block on a flank, 2.6 cm behind its back), so
+    /// alone they would leave the flank separated to the tail. One height
+    /// across the stream is our choice.
+    fn lee_back(&self, lee: &LeeLine, zones: &[WakeZone]) -> Option<(usize, WakeBack)> {
+        let d = self.flow_dir;
+        let wall_cos = WAKE_FOOT_TURN.cos();
+        let (_, remaining) = zones
+            .iter()
+            .filter(|z| z.height > 0.0 && z.normal.dot(&lee.normal) >= wall_cos)
+            .filter_map(|z| {
+                let r = lee.point - z.landing;
+                let along = r.dot(&d);
+                let length = (z.reattachment - z.landing).dot(&d);
+                let across = (r - along * d).norm();
+                (along >= 0.0 && along < length && across <= z.height)
+                    .then_some((across, length - along))
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0))?;
+        let closes_at = lee.s + remaining;
+        (closes_at < lee.clear).then_some((
+            lee.station,
+            WakeBack {
+                start: lee.s,
+                foot: lee.s,
+                height: 0.0,
+                clear: lee.clear,
+                closes_at: Some(closes_at),
+            },
+        ))
     }
 
     /// Stagnation start at distance `r` from the attachment point with
@@ -722,7 +884,7 @@ impl<'a> LineContext<'a> {
                 .copied()
                 .find(|&f| f > m)
                 .unwrap_or(usize::MAX);
-            let ends = (m + 1..p.len()).find(|&k| k >= next_forced || down(k));
+            let ends = self.clear_end(trace, forced, m);
             let clear = ends.map_or(end, |k| arc[k]);
             let normal = self.mesh.panels[p[m] as usize].normal;
             let at = trace.points[m];
@@ -748,10 +910,25 @@ impl<'a> LineContext<'a> {
                     foot: arc[m],
                     height,
                     clear,
+                    closes_at: None,
                 },
             ));
         }
         out
+    }
+
+    /// The first segment after segment `m` on a face turned downstream
+    /// ([`Self::faces_downstream`]) or after a bluff crossing (`forced`,
+    /// sorted): the surface behind `m` is clear up to there (`None`: to
+    /// the line's end).
+    fn clear_end(&self, trace: &Trace, forced: &[usize], m: usize) -> Option<usize> {
+        let next_forced = forced
+            .iter()
+            .copied()
+            .find(|&f| f > m)
+            .unwrap_or(usize::MAX);
+        (m + 1..trace.panels.len())
+            .find(|&k| k >= next_forced || self.faces_downstream(trace.panels[k] as usize))
     }
 
     /// See [`crumpled_panels`].
@@ -932,6 +1109,8 @@ impl<'a> LineContext<'a> {
             transition_panel: panel_at(marched.transition),
             separation_panel: panel_at(marched.separation),
             contributions,
+            wakes: Vec::new(),
+            lee: None,
             line: Streamline {
                 points: trace.points,
                 panels: trace.panels,
