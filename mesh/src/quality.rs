@@ -77,6 +77,9 @@ pub struct QualityReport {
     pub size_jump: usize,
     /// Panels turned against all their neighbours ([`turned_panels`]).
     pub turned: usize,
+    /// Panels almost degenerate (aspect ratio above
+    /// [`DEGENERATE_ASPECT`]).
+    pub degenerate: usize,
     /// Thresholds used.
     pub thresholds: QualityParams,
     /// Plain-language warnings (empty when all is well).
@@ -174,6 +177,7 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .filter(|&&a| a > q.max_neighbour_area_ratio)
             .count(),
         turned: turned.iter().filter(|&&t| t).count(),
+        degenerate: aspect.iter().filter(|&&a| a > DEGENERATE_ASPECT).count(),
         aspect_ratio: spread(aspect),
         min_angle_deg: spread(angle),
         neighbour_area_ratio: spread(ratio),
@@ -244,7 +248,15 @@ fn warnings(
         "abrupt size changes cause local errors in pressure",
         at[2],
     );
-    // A turned panel is a fold.
+    // An almost degenerate panel or a turned one (a fold) is worth a
+    // warning however few there are.
+    warn(
+        r.degenerate,
+        None,
+        format!("are almost degenerate, with an aspect ratio above {DEGENERATE_ASPECT:.0}"),
+        "corners almost on one line leave a panel's normal and collocation point meaningless, so the pressure there is unsure; look at them (tuft check --save-panels) and try another panel count",
+        at[0],
+    );
     warn(
         r.turned,
         None,
@@ -264,6 +276,12 @@ fn singular(what: &str) -> String {
     }
     what.to_owned()
 }
+
+/// Aspect ratio above which a panel is almost degenerate, worth a warning
+/// however few there are (our choice: twenty times the grading threshold
+/// of common practice, 5; at 100 a triangle's height is about a 170th of
+/// its longest edge).
+pub const DEGENERATE_ASPECT: f64 = 100.0;
 
 /// A panel turned more than this from each of its edge neighbours, while
 /// those agree with one another within the same angle, is a fold (our
