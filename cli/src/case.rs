@@ -411,11 +411,17 @@ fn check_reference(r: &ReferenceSection) -> Result<()> {
     }
 }
 
+/// The fewest panels a case may ask for (`geometry.panels`).
+pub const MIN_PANELS: usize = 100;
+
+/// The most panels a case may ask for (`geometry.panels`).
+pub const MAX_PANELS: usize = 200_000;
+
 fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySource> {
     if let Some(n) = g.panels
-        && !(100..=200_000).contains(&n)
+        && !(MIN_PANELS..=MAX_PANELS).contains(&n)
     {
-        bail!("geometry.panels must be between 100 and 200000 (got {n})");
+        bail!("geometry.panels must be between {MIN_PANELS} and {MAX_PANELS} (got {n})");
     }
     check_shape_keys(g)?;
     match (&g.stl, &g.shape) {

@@ -903,7 +903,13 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             }
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
-                subtitle: if c.keys.len() > 1 {
+                subtitle: if k == 0 && lines.len() > 1 {
+                    format!(
+                        "Screening estimates at {}; one line per combination of the other swept values; \
+                         each drag band (model sensitivity) is in the ranking table",
+                        speed_of_plot(c)
+                    )
+                } else if c.keys.len() > 1 {
                     format!(
                         "Screening estimates at {}; one line per combination of the other swept values",
                         speed_of_plot(c)
@@ -1018,26 +1024,48 @@ fn unit_of(key: &str) -> &'static str {
 /// The colour of a drag band's ends on the sweep's drag plot.
 const BAND_GREY: crate::output::canvas::Rgb = [150, 150, 150];
 
+/// One line per combination of the other swept keys' values, in the
+/// order of those values (numbers as numbers: 6 before 14.5 before 22).
 fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
-    let mut groups: BTreeMap<String, Vec<(f64, f64)>> = BTreeMap::new();
+    // (sort key, name, points); the sort key is each other value as a
+    // number (infinite for text) and as text.
+    type Group = (Vec<(f64, String)>, String, Vec<(f64, f64)>);
+    let mut groups: Vec<Group> = Vec::new();
     for r in &c.variants {
-        let others: Vec<String> = r
-            .settings
+        let others: Vec<(&String, &serde_json::Value)> =
+            r.settings.iter().filter(|(k, _)| *k != key).collect();
+        let name = others
             .iter()
-            .filter(|(k, _)| *k != key)
             .map(|(k, v)| format!("{k} = {}", cell(v)))
-            .collect();
+            .collect::<Vec<_>>()
+            .join(", ");
         let x = r
             .settings
             .get(key)
             .and_then(serde_json::Value::as_f64)
             .unwrap_or(f64::NAN);
-        groups.entry(others.join(", ")).or_default().push((x, f(r)));
+        match groups.iter_mut().find(|g| g.1 == name) {
+            Some(g) => g.2.push((x, f(r))),
+            None => {
+                let order = others
+                    .iter()
+                    .map(|(_, v)| (v.as_f64().unwrap_or(f64::INFINITY), cell(v)))
+                    .collect();
+                groups.push((order, name, vec![(x, f(r))]));
+            }
+        }
     }
+    groups.sort_by(|a, b| {
+        a.0.iter()
+            .zip(&b.0)
+            .map(|((x, s), (y, t))| x.total_cmp(y).then_with(|| s.cmp(t)))
+            .find(|o| o.is_ne())
+            .unwrap_or(std::cmp::Ordering::Equal)
+    });
     groups
         .into_iter()
         .enumerate()
-        .map(|(k, (name, mut points))| {
+        .map(|(k, (_, name, mut points))| {
             points.sort_by(|a, b| a.0.total_cmp(&b.0));
             Series {
                 name: if name.is_empty() {
@@ -1451,6 +1479,37 @@ mod tests {
             notes: Vec::new(),
             caution: CAUTION.into(),
         }
+    }
+
+    /// The lines of a two-key sweep's plot come in the order of the other
+    /// key's values as numbers (a review's legend read 14.5, 22.0, 6.0).
+    #[test]
+    fn plot_lines_follow_the_other_keys_values_as_numbers() {
+        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0, 5.0, 6.0]);
+        for (r, (d, w)) in c.variants.iter_mut().zip([
+            (22.0, 16.0),
+            (6.0, 16.0),
+            (14.5, 16.0),
+            (22.0, 30.0),
+            (6.0, 30.0),
+            (14.5, 30.0),
+        ]) {
+            r.settings.insert("geometry.diffuser_deg".into(), d.into());
+            r.settings
+                .insert("geometry.rear_window_deg".into(), w.into());
+        }
+        let names: Vec<String> = series(&c, "geometry.rear_window_deg", |r| r.cd)
+            .into_iter()
+            .map(|s| s.name)
+            .collect();
+        assert_eq!(
+            names,
+            [
+                "geometry.diffuser_deg = 6.0",
+                "geometry.diffuser_deg = 14.5",
+                "geometry.diffuser_deg = 22.0"
+            ]
+        );
     }
 
     /// The ranking table's axle loads add up to the lift as shown (a

@@ -559,9 +559,11 @@ fn notes(
     let (va, vb) = (speed_of(sa), speed_of(sb));
     if (va - vb).abs() > 1e-9 * va.abs().max(1.0) {
         notes.push(format!(
-            "the runs are at different speeds ({va} and {vb} m/s): loads in kg scale with the square of the \
+            "the runs are at different speeds ({} and {}): loads in kg scale with the square of the \
              speed, so the force and kg differences take A's at B's dynamic pressure (A's times {:.3}); \
              the coefficient differences need no such factor",
+            crate::output::speed_words(va),
+            crate::output::speed_words(vb),
             pressure_factor(sa, sb).unwrap_or(1.0)
         ));
     }

@@ -6,6 +6,8 @@ use std::time::Instant;
 
 use anyhow::{Result, bail};
 use tuft_mesh::PanelMesh;
+
+use crate::case::MIN_PANELS;
 use tuft_solver::influence::triangle_influence;
 
 /// Bytes per entry of the dense influence matrix (f64).
@@ -197,13 +199,27 @@ pub fn check_fits(
     };
     let need = memory_for(n, op, loop_on);
     if need > avail {
+        let smallest = memory_for(MIN_PANELS, Operator::Compressed, loop_on).min(memory_for(
+            MIN_PANELS,
+            Operator::Dense,
+            loop_on,
+        ));
+        if smallest > avail {
+            bail!(
+                "{n} panels need about {:.2} GB but only {:.2} GB is available, less than even the \
+                 smallest run takes ({MIN_PANELS} panels, about {:.2} GB): free memory or raise --memory-limit",
+                need / 1e9,
+                avail / 1e9,
+                smallest / 1e9
+            );
+        }
         if op == Operator::Dense && memory_for(n, Operator::Compressed, loop_on) <= avail {
             bail!(
                 "{n} panels need about {:.2} GB with a dense matrix but only {:.2} GB is available: \
                  set solver.linear = \"compressed\" (or \"auto\"), which fits, or set geometry.panels to {} or fewer",
                 need / 1e9,
                 avail / 1e9,
-                (panels_fitting(avail, op, loop_on) / 100 * 100).max(100)
+                (panels_fitting(avail, op, loop_on) / 100 * 100).max(MIN_PANELS)
             );
         }
         // The larger count that fits on either operator (the run picks the
@@ -213,7 +229,7 @@ pub fn check_fits(
             Operator::Compressed,
             loop_on,
         ));
-        let fit = (most / 100 * 100).max(100);
+        let fit = (most / 100 * 100).max(MIN_PANELS);
         let coarse = if loop_on && 3 * fit < suggested {
             format!(
                 " (under a third of the {suggested} panels suggested for this body, where the drag is not \

@@ -41,8 +41,7 @@ impl Staging {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
             _ => PathBuf::from("."),
         };
-        std::fs::create_dir_all(&parent)
-            .with_context(|| format!("{}: cannot create the folder", parent.display()))?;
+        create_folder(&parent)?;
         let leaf = dest
             .file_name()
             .map_or("tuft".into(), |s| s.to_string_lossy().into_owned());
@@ -171,6 +170,31 @@ pub fn write_whole(path: &Path, bytes: &[u8]) -> Result<()> {
         let _ = std::fs::remove_file(&tmp);
         format!("{}: cannot write", path.display())
     })
+}
+
+/// Create `folder` and the folders above it. A file standing where one
+/// of them should be is named as such (the system's own message only says
+/// that something exists).
+///
+/// # Errors
+/// When a file is in the way or the folder cannot be created.
+pub fn create_folder(folder: &Path) -> Result<()> {
+    if let Some(file) = folder
+        .ancestors()
+        .find(|a| !a.as_os_str().is_empty() && a.exists())
+        .filter(|a| !a.is_dir())
+    {
+        if file == folder {
+            bail!("{}: is a file, not a folder", file.display());
+        }
+        bail!(
+            "{}: is a file, not a folder, so {} cannot be created under it",
+            file.display(),
+            folder.display()
+        );
+    }
+    std::fs::create_dir_all(folder)
+        .with_context(|| format!("{}: cannot create the folder", folder.display()))
 }
 
 #[cfg(test)]

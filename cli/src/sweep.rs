@@ -91,8 +91,7 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
         Some(s) => parse_shard(s)?,
         None => (1, 1),
     };
-    std::fs::create_dir_all(&root)
-        .with_context(|| format!("{}: cannot create the folder", root.display()))?;
+    crate::outdir::create_folder(&root)?;
     write_plan(&root, &plan)?;
     let range = shard_range(plan.variants.len(), k, n);
     let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));

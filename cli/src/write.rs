@@ -821,7 +821,10 @@ fn report(
     ]);
     for r in &s.regions {
         numbers.push(NumberRow::text(
-            &format!("Region \"{}\": separated share", r.name),
+            &format!(
+                "Region \"{}\": verdict, separated share, mean risk, area",
+                r.name
+            ),
             &format!(
                 "{}; mean risk {:.2}, {:.3} m²",
                 r.words(),

@@ -237,6 +237,27 @@ fn existing_results_are_kept_without_force_and_replaced_with_it() {
     );
 }
 
+/// `--out` through a file: the line says which path is a file, not only
+/// that something exists, and nothing is written.
+#[test]
+fn a_result_folder_under_a_file_is_refused_naming_the_file() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("tiny.toml"), TINY).unwrap();
+    std::fs::write(dir.path().join("afile"), "not a folder").unwrap();
+    let o = tuft(
+        dir.path(),
+        &["run", "tiny.toml", "--out", "afile/sub", "--quiet"],
+    );
+    assert_eq!(o.code, 2, "{}", o.stderr);
+    assert_eq!(o.stderr.lines().count(), 1, "{}", o.stderr);
+    assert!(
+        o.stderr.starts_with("tuft: tiny.toml: afile: is a file, not a folder"),
+        "{}",
+        o.stderr
+    );
+    assert_eq!(entries(dir.path()), ["afile", "tiny.toml"]);
+}
+
 #[test]
 fn demo_writes_two_reports() {
     let dir = tempfile::tempdir().unwrap();

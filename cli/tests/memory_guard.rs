@@ -134,3 +134,26 @@ fn half_model_ahmed_body_matches_the_full_model() {
         println!("with boundary layer {key}: full {a:.6}, half {b:.6}");
     }
 }
+
+/// A limit below what even the smallest run a case may ask for takes
+/// (100 panels) says so, instead of suggesting a panel count the case
+/// check would refuse.
+#[test]
+fn a_limit_below_the_smallest_run_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path(), "small", "shape = \"coupe\"\npanels = 1500");
+    let out = tuft(dir.path(), &["run", &case, "--memory-limit", "10M"]);
+    assert_eq!(out.code, 2, "{}", out.stderr);
+    let lines: Vec<&str> = out
+        .stderr
+        .lines()
+        .filter(|l| l.starts_with("tuft:"))
+        .collect();
+    assert_eq!(lines.len(), 1, "one tuft: line: {}", out.stderr);
+    assert!(
+        lines[0].contains("smallest run") && !lines[0].contains("or fewer"),
+        "{}",
+        lines[0]
+    );
+    assert_eq!(entries(dir.path()), vec![case], "no result folder");
+}

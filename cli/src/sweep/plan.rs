@@ -407,6 +407,10 @@ fn set_key(root: &mut toml::Value, key: &str, value: toml::Value) -> Result<(), 
 /// A value as it appears in a folder name.
 fn value_label(key: &str, v: &toml::Value) -> String {
     let raw = match v {
+        // A negative value reads "minus" ("yaw-minus5", not "yaw--5",
+        // which looks like a command-line option).
+        toml::Value::Float(f) if *f < 0.0 => format!("minus{}", crate::output::short_number(-f)),
+        toml::Value::Integer(i) if *i < 0 => format!("minus{}", i.unsigned_abs()),
         toml::Value::Float(f) => crate::output::short_number(*f),
         toml::Value::Integer(i) => i.to_string(),
         toml::Value::String(s) if key == "geometry.stl" => Path::new(s)
@@ -594,6 +598,18 @@ mod tests {
         let f = p.variants[1].file.as_ref().unwrap();
         assert_eq!(f.flow.yaw, 5.0);
         assert_eq!(f.geometry.rear_window_deg, Some(22.0));
+    }
+
+    /// A negative value reads "minus" in the variant's name, so that no
+    /// folder name looks like a command-line option ("yaw--5").
+    #[test]
+    fn negative_values_name_variants_with_minus() {
+        let p = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"yaw\"\nvalues = [-5.0, 0.0, 2.5]\n"
+        ))
+        .unwrap();
+        let names: Vec<&str> = p.variants.iter().map(|v| v.name.as_str()).collect();
+        assert_eq!(names, ["yaw-minus5", "yaw-0", "yaw-2.5"]);
     }
 
     #[test]
