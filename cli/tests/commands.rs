@@ -251,7 +251,8 @@ fn a_result_folder_under_a_file_is_refused_naming_the_file() {
     assert_eq!(o.code, 2, "{}", o.stderr);
     assert_eq!(o.stderr.lines().count(), 1, "{}", o.stderr);
     assert!(
-        o.stderr.starts_with("tuft: tiny.toml: afile: is a file, not a folder"),
+        o.stderr
+            .starts_with("tuft: tiny.toml: afile: is a file, not a folder"),
         "{}",
         o.stderr
     );

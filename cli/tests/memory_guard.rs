@@ -20,6 +20,13 @@ fn write_case(dir: &Path, name: &str, geometry: &str) -> String {
     file
 }
 
+/// The one `tuft:` line of a refused run's `stderr`.
+fn refusal_line(stderr: &str) -> &str {
+    let lines: Vec<&str> = stderr.lines().filter(|l| l.starts_with("tuft:")).collect();
+    assert_eq!(lines.len(), 1, "one tuft: line: {stderr}");
+    lines[0]
+}
+
 /// The first whole number in `text` that is followed by " or fewer".
 fn suggested_panels(text: &str) -> usize {
     let before = text
@@ -46,13 +53,7 @@ fn a_run_that_does_not_fit_stops_before_solving() {
         "exit 2 on a run that does not fit: {}",
         out.stderr
     );
-    let lines: Vec<&str> = out
-        .stderr
-        .lines()
-        .filter(|l| l.starts_with("tuft:"))
-        .collect();
-    assert_eq!(lines.len(), 1, "one tuft: line: {}", out.stderr);
-    let line = lines[0];
+    let line = refusal_line(&out.stderr);
     assert!(
         line.contains("geometry.panels") && line.contains("half model"),
         "the line names the panel setting and the half model: {line}"
@@ -144,16 +145,10 @@ fn a_limit_below_the_smallest_run_says_so() {
     let case = write_case(dir.path(), "small", "shape = \"coupe\"\npanels = 1500");
     let out = tuft(dir.path(), &["run", &case, "--memory-limit", "10M"]);
     assert_eq!(out.code, 2, "{}", out.stderr);
-    let lines: Vec<&str> = out
-        .stderr
-        .lines()
-        .filter(|l| l.starts_with("tuft:"))
-        .collect();
-    assert_eq!(lines.len(), 1, "one tuft: line: {}", out.stderr);
+    let line = refusal_line(&out.stderr);
     assert!(
-        lines[0].contains("smallest run") && !lines[0].contains("or fewer"),
-        "{}",
-        lines[0]
+        line.contains("smallest run") && !line.contains("or fewer"),
+        "{line}"
     );
     assert_eq!(entries(dir.path()), vec![case], "no result folder");
 }
