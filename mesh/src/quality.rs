@@ -297,24 +297,28 @@ pub const TURNED_DEG: f64 = 45.0;
 /// makes them where a sliver bridges two regions or a vertex lands off the
 /// surface; their collocation velocity has nothing to do with the shape.
 pub fn turned_panels(mesh: &PanelMesh) -> Vec<bool> {
-    let cos = TURNED_DEG.to_radians().cos();
     (0..mesh.len())
         .map(|t| {
-            let normal = |j: u32| mesh.panels[j as usize].normal;
-            let around: Vec<_> = mesh.edge_neighbours[t]
+            let around: Vec<crate::Vector> = mesh.edge_neighbours[t]
                 .iter()
                 .flatten()
-                .map(|&j| normal(j))
+                .map(|&j| *mesh.panels[j as usize].normal)
                 .collect();
-            let n = mesh.panels[t].normal;
-            around.len() >= 2
-                && around.iter().all(|m| n.dot(m) < cos)
-                && around
-                    .iter()
-                    .enumerate()
-                    .all(|(k, a)| around[k + 1..].iter().all(|b| a.dot(b) >= cos))
+            turned(&mesh.panels[t].normal, &around)
         })
         .collect()
+}
+
+/// Whether a panel of unit normal `n` is turned against its edge
+/// neighbours' unit normals `around` ([`turned_panels`]).
+pub fn turned(n: &crate::Vector, around: &[crate::Vector]) -> bool {
+    let cos = TURNED_DEG.to_radians().cos();
+    around.len() >= 2
+        && around.iter().all(|m| n.dot(m) < cos)
+        && around
+            .iter()
+            .enumerate()
+            .all(|(k, a)| around[k + 1..].iter().all(|b| a.dot(b) >= cos))
 }
 
 /// `L_max * P / (4 sqrt(3) A)`: 1 for an equilateral triangle.
