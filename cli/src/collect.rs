@@ -871,6 +871,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
         for (k, (what, unit, f)) in metrics.iter().enumerate() {
             let mut lines = series(c, key, *f);
+            let several = lines.len() > 1;
             // One drag line carries its sensitivity band's ends beside it:
             // the low end listed (and so drawn, thinner) before it, the
             // high end off the scale the two set (after the loop it
@@ -903,25 +904,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             }
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
-                subtitle: if k == 0 && lines.len() > 1 {
-                    format!(
-                        "Screening estimates at {}; one line per combination of the other swept values; \
-                         each drag band (model sensitivity) is in the ranking table",
-                        speed_of_plot(c)
-                    )
-                } else if c.keys.len() > 1 {
-                    format!(
-                        "Screening estimates at {}; one line per combination of the other swept values",
-                        speed_of_plot(c)
-                    )
-                } else if band {
-                    format!(
-                        "Screening estimates at {}; grey: the ends of the drag band (model sensitivity)",
-                        speed_of_plot(c)
-                    )
-                } else {
-                    format!("Screening estimates at {}", speed_of_plot(c))
-                },
+                subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several),
                 x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
@@ -934,6 +917,25 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
     }
     Ok(out)
+}
+
+/// A sweep plot's subtitle: the speed, and what the lines are (`several`:
+/// one per combination of the other swept values); on the drag plot
+/// (`drag`) where its band's ends are (drawn grey beside a single line,
+/// `band`, or left to the ranking table).
+fn plot_subtitle(speed: &str, drag: bool, band: bool, several: bool) -> String {
+    let lines = "one line per combination of the other swept values";
+    match (band, several) {
+        (true, _) => format!(
+            "Screening estimates at {speed}; grey: the ends of the drag band (model sensitivity)"
+        ),
+        (false, true) if drag => format!(
+            "Screening estimates at {speed}; {lines}; each drag band (model sensitivity) is in the \
+             ranking table"
+        ),
+        (false, true) => format!("Screening estimates at {speed}; {lines}"),
+        (false, false) => format!("Screening estimates at {speed}"),
+    }
 }
 
 /// What the drag plot's arrows are: the band's high end, above the axis
@@ -1509,6 +1511,23 @@ mod tests {
                 "geometry.diffuser_deg = 14.5",
                 "geometry.diffuser_deg = 22.0"
             ]
+        );
+    }
+
+    /// The drag plot says where its band is: grey beside a single line,
+    /// in the table when there are several lines (a review's two-key sweep
+    /// showed no band and did not say why).
+    #[test]
+    fn the_drag_plot_says_where_its_band_is() {
+        assert!(
+            plot_subtitle("40 m/s", true, true, false).contains("grey: the ends of the drag band")
+        );
+        let several = plot_subtitle("40 m/s", true, false, true);
+        assert!(several.contains("one line per") && several.contains("in the ranking table"));
+        assert!(!plot_subtitle("40 m/s", false, false, true).contains("band"));
+        assert_eq!(
+            plot_subtitle("40 m/s", false, false, false),
+            "Screening estimates at 40 m/s"
         );
     }
 

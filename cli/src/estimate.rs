@@ -199,18 +199,28 @@ pub fn check_fits(
     };
     let need = memory_for(n, op, loop_on);
     if need > avail {
-        let smallest = memory_for(MIN_PANELS, Operator::Compressed, loop_on).min(memory_for(
-            MIN_PANELS,
-            Operator::Dense,
-            loop_on,
-        ));
-        if smallest > avail {
+        // The smallest run a case may ask for, on the operator that needs
+        // less, with the loop or without.
+        let smallest = |with_loop: bool| {
+            memory_for(MIN_PANELS, Operator::Compressed, with_loop).min(memory_for(
+                MIN_PANELS,
+                Operator::Dense,
+                with_loop,
+            ))
+        };
+        if smallest(loop_on) > avail {
+            let attached = if loop_on && smallest(false) <= avail {
+                ", or set solver.wakes = \"attached\" (no separated-flow loop, less memory)"
+            } else {
+                ""
+            };
             bail!(
                 "{n} panels need about {:.2} GB but only {:.2} GB is available, less than even the \
-                 smallest run takes ({MIN_PANELS} panels, about {:.2} GB): free memory or raise --memory-limit",
+                 smallest run takes ({MIN_PANELS} panels, about {:.2} GB): free memory or raise \
+                 --memory-limit{attached}",
                 need / 1e9,
                 avail / 1e9,
-                smallest / 1e9
+                smallest(loop_on) / 1e9
             );
         }
         if op == Operator::Dense && memory_for(n, Operator::Compressed, loop_on) <= avail {

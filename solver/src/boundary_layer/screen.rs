@@ -563,7 +563,7 @@ impl<'a> LineContext<'a> {
             })
             .collect();
         let lee = match lee {
-            None => self.lee_line(seed, &trace, &arc, &samples, &marched),
+            None => self.lee_line(seed, &trace, &arc, (&samples, &segments), &marched),
             Some(_) => None,
         };
         let mut out = self.split(trace, arc, &peak, rim, &samples, &marched);
@@ -581,13 +581,14 @@ impl<'a> LineContext<'a> {
         seed: &Seed,
         trace: &Trace,
         arc: &[f64],
-        samples: &[LineSample],
+        (samples, segments): (&[LineSample], &[usize]),
         marched: &LineMarch,
     ) -> Option<Box<LeeLine>> {
         let k = marched.separation?;
         let sample = samples.get(k)?;
         let before = marched.states.get(k.checked_sub(1)?)?;
-        let seg = arc.partition_point(|&a| a <= sample.s).saturating_sub(1);
+        // The segment the station was sampled on (`Self::samples`).
+        let seg = *segments.get(k)?;
         let panel = *trace.panels.get(seg)? as usize;
         let wall = !self.crumpled(panel)
             && self.mesh.panels[panel].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin();
