@@ -1416,7 +1416,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
         }
         // The axles add up to the lift as shown.
         let [lift, front, rear] =
-            crate::output::kg_set([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
+            crate::output::lift_set([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
         let _ = write!(
             s,
             "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:.3}</td>",

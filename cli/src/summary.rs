@@ -200,24 +200,21 @@ pub struct Summary {
 impl LiftKg {
     /// Total, front and rear axle in words, to the decimals of
     /// [`crate::output::kg_set`], the axles adding up to the total, each
-    /// signed (lift `+`, downforce `-`; a review read "15 kg (front -40,
-    /// rear 55)" beside "+161 kg" for the rest of the body), zero unsigned.
+    /// signed by [`crate::output::lift_set`] (lift `+`, downforce `-`, zero
+    /// unsigned; a review read "15 kg (front -40, rear 55)" beside
+    /// "+161 kg" for the rest of the body).
     pub fn axle_words(&self) -> [String; 3] {
-        signed_lift(crate::output::kg_set_signed([
-            self.total,
-            self.front_axle,
-            self.rear_axle,
-        ]))
+        crate::output::lift_set([self.total, self.front_axle, self.rear_axle])
     }
 
     /// The underbody's part, front and rear, in words as
     /// [`Self::axle_words`].
     pub fn underbody_axle_words(&self) -> [String; 3] {
-        signed_lift(crate::output::kg_set_signed([
+        crate::output::lift_set([
             self.underbody,
             self.underbody_front_axle,
             self.underbody_rear_axle,
-        ]))
+        ])
     }
 
     /// The rest of the body's lift (the total less the underbody's),
@@ -233,14 +230,6 @@ impl LiftKg {
             ],
         )
     }
-}
-
-/// Signed loads as words, a zero without its sign ("0", not "+0").
-fn signed_lift(words: [String; 3]) -> [String; 3] {
-    words.map(|w| match w.strip_prefix('+') {
-        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_string(),
-        _ => w,
-    })
 }
 
 impl Summary {
@@ -311,26 +300,3 @@ pub struct SeparatedWakes {
 pub const CAUTION: &str = "Screening estimate only. Lift, drag and stability at speed must be \
 confirmed by validated CFD or wind-tunnel tests and by the responsible engineer, under local \
 regulations.";
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    /// Lift words carry their signs (lift +, downforce -), a zero none, and
-    /// the axles still add up to the total as shown.
-    #[test]
-    fn lift_words_are_signed() {
-        let l = LiftKg {
-            total: 15.2,
-            front_axle: -40.4,
-            rear_axle: 55.6,
-            underbody: 0.0,
-            underbody_front_axle: 0.0,
-            underbody_rear_axle: 0.0,
-        };
-        assert_eq!(l.axle_words(), ["+15", "-40", "+55"]);
-        for w in l.underbody_axle_words() {
-            assert!(!w.starts_with('+') && w.parse::<f64>() == Ok(0.0), "{w}");
-        }
-    }
-}

@@ -439,6 +439,15 @@ pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
     units.map(|u| format!("{:+.places$}", from_units(u, places)))
 }
 
+/// A lift in kg and its axle shares as [`kg_set`], signed (lift `+`,
+/// downforce `-`), a zero without its sign ("0", not "+0").
+pub fn lift_set<const N: usize>(values: [f64; N]) -> [String; N] {
+    kg_set(values).map(|w| match w.parse::<f64>() {
+        Ok(v) if v.is_finite() && v > 0.0 => format!("+{w}"),
+        _ => w,
+    })
+}
+
 /// Values the unit rounding of [`kg_units`] can hold: finite and far
 /// inside the integer range (a broken solution's NaN prints as NaN, not
 /// as 0).
@@ -623,5 +632,8 @@ mod tests {
     #[test]
     fn whole_numbers_have_no_negative_zero() {
         assert_eq!(kg_set([-0.3, -94.53, 12.5]), ["0", "-95", "13"]);
+        // Lift words carry their signs, a zero none.
+        assert_eq!(lift_set([-0.3, -94.53, 12.5]), ["0", "-95", "+13"]);
+        assert_eq!(lift_set([15.2, -40.4, 55.6]), ["+15", "-40", "+55"]);
     }
 }
