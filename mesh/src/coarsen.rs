@@ -492,7 +492,6 @@ const CAP_FLIP_TURN_DEG: f64 = 20.0;
 /// over a 144 mm edge (aspect ratio 2.4e7), whose collocation point and
 /// velocity mean nothing.
 fn flip_collinear(mesh: &mut TriMesh) {
-    use crate::fasthash::FastMap;
     let degenerate = |m: &TriMesh, t: usize| Panel::new(m.corners(t)).is_none();
     let turn_cos = CAP_FLIP_TURN_DEG.to_radians().cos();
     let cap = |m: &TriMesh, t: usize| is_cap(m.corners(t));
@@ -504,14 +503,7 @@ fn flip_collinear(mesh: &mut TriMesh) {
             .fold(f64::NEG_INFINITY, f64::max)
     };
     let unit = |c: [Point; 3]| (c[1] - c[0]).cross(&(c[2] - c[0])).try_normalize(0.0);
-    // The directed edges of a facet, in its winding.
-    let edges = |tri: [u32; 3]| [0, 1, 2].map(|k| (tri[k], tri[(k + 1) % 3]));
-    let mut owner: FastMap<(u32, u32), usize> = FastMap::default();
-    for (t, &tri) in mesh.triangles.iter().enumerate() {
-        for e in edges(tri) {
-            owner.insert(e, t);
-        }
-    }
+    let mut owners = EdgeOwners::new(mesh);
     for _ in 0..FLIP_SWEEPS {
         let mut flipped = false;
         for t in 0..mesh.len() {
@@ -519,7 +511,6 @@ fn flip_collinear(mesh: &mut TriMesh) {
             if !exact && !cap(mesh, t) {
                 continue;
             }
-            let tri = mesh.triangles[t];
             let c = mesh.corners(t);
             let k = (0..3)
                 .max_by(|&i, &j| {
@@ -527,17 +518,10 @@ fn flip_collinear(mesh: &mut TriMesh) {
                     len(i).total_cmp(&len(j))
                 })
                 .unwrap_or(0);
-            let (u, v, w) = (tri[k], tri[(k + 1) % 3], tri[(k + 2) % 3]);
-            let Some(&n) = owner.get(&(v, u)) else {
+            let Some(q) = owners.quad(mesh, t, k) else {
                 continue;
             };
-            let other = mesh.triangles[n];
-            let Some(x) = other.iter().copied().find(|&x| x != u && x != v) else {
-                continue;
-            };
-            if n == t || x == w || owner.contains_key(&(w, x)) || owner.contains_key(&(x, w)) {
-                continue;
-            }
+            let (u, v, w, x, n) = (q.u, q.v, q.w, q.x, q.neighbour);
             if !exact {
                 let p = |i: u32| mesh.vertices[i as usize];
                 let (pu, pv, pw, px) = (p(u), p(v), p(w), p(x));
@@ -551,19 +535,93 @@ fn flip_collinear(mesh: &mut TriMesh) {
                     continue;
                 }
             }
-            for e in edges(tri).into_iter().chain(edges(other)) {
-                owner.remove(&e);
-            }
-            for (id, new) in [(t, [w, u, x]), (n, [x, v, w])] {
-                mesh.triangles[id] = new;
-                for e in edges(new) {
-                    owner.insert(e, id);
-                }
-            }
+            owners.flip(mesh, &q);
             flipped = true;
         }
         if !flipped {
             break;
+        }
+    }
+}
+
+/// The directed edges of a facet, in its winding.
+fn directed_edges(tri: [u32; 3]) -> [(u32, u32); 3] {
+    [0, 1, 2].map(|k| (tri[k], tri[(k + 1) % 3]))
+}
+
+/// The facet that holds each directed edge of a closed, consistently
+/// wound mesh, kept up to date through edge flips.
+struct EdgeOwners(crate::fasthash::FastMap<(u32, u32), usize>);
+
+/// Two facets sharing an edge: `facet` `(u, v, w)` (in its winding) and
+/// `neighbour` across `u v`, whose third corner is `x`.
+struct Quad {
+    facet: usize,
+    neighbour: usize,
+    u: u32,
+    v: u32,
+    w: u32,
+    x: u32,
+}
+
+impl Quad {
+    /// The two facets after the flip: `(w, u, x)` and `(x, v, w)`, the
+    /// outer edges in their old winding and the new diagonal `w x`.
+    fn flipped(&self) -> ([u32; 3], [u32; 3]) {
+        ([self.w, self.u, self.x], [self.x, self.v, self.w])
+    }
+}
+
+impl EdgeOwners {
+    fn new(mesh: &TriMesh) -> Self {
+        let mut owner = crate::fasthash::FastMap::default();
+        for (t, &tri) in mesh.triangles.iter().enumerate() {
+            for e in directed_edges(tri) {
+                owner.insert(e, t);
+            }
+        }
+        Self(owner)
+    }
+
+    /// The facet across directed edge `(a, b)` (the one holding `(b, a)`).
+    fn across(&self, (a, b): (u32, u32)) -> Option<usize> {
+        self.0.get(&(b, a)).copied()
+    }
+
+    /// Facet `t` and its neighbour across its edge `k` (corners `k` and
+    /// `k + 1`), when that edge can be flipped: the neighbour is another
+    /// facet and the new diagonal is no edge yet.
+    fn quad(&self, mesh: &TriMesh, t: usize, k: usize) -> Option<Quad> {
+        let tri = mesh.triangles[t];
+        let (u, v, w) = (tri[k], tri[(k + 1) % 3], tri[(k + 2) % 3]);
+        let n = self.across((u, v))?;
+        let x = mesh.triangles[n]
+            .iter()
+            .copied()
+            .find(|&x| x != u && x != v)?;
+        let taken = self.0.contains_key(&(w, x)) || self.0.contains_key(&(x, w));
+        (n != t && x != w && !taken).then_some(Quad {
+            facet: t,
+            neighbour: n,
+            u,
+            v,
+            w,
+            x,
+        })
+    }
+
+    /// Flip the quad's shared edge in `mesh` and here.
+    fn flip(&mut self, mesh: &mut TriMesh, q: &Quad) {
+        let old = [mesh.triangles[q.facet], mesh.triangles[q.neighbour]];
+        for e in old.into_iter().flat_map(directed_edges) {
+            self.0.remove(&e);
+        }
+        let (a, b) = q.flipped();
+        for (id, new) in [(q.facet, a), (q.neighbour, b)] {
+            mesh.triangles[id] = new;
+            for e in directed_edges(new) {
+                self.0.insert(e, id);
+            }
         }
     }
 }
@@ -601,19 +659,12 @@ const FOLD_SWEEPS: usize = 4;
 /// forwards). Returns the flips made.
 fn flip_folds(mesh: &mut TriMesh) -> usize {
     use crate::Vector;
-    use crate::fasthash::FastMap;
     use crate::quality::turned;
-    let edges = |tri: [u32; 3]| [0, 1, 2].map(|k| (tri[k], tri[(k + 1) % 3]));
     let unit = |m: &TriMesh, tri: [u32; 3]| {
         let c = tri.map(|i| m.vertices[i as usize]);
         (c[1] - c[0]).cross(&(c[2] - c[0])).try_normalize(0.0)
     };
-    let mut owner: FastMap<(u32, u32), usize> = FastMap::default();
-    for (t, &tri) in mesh.triangles.iter().enumerate() {
-        for e in edges(tri) {
-            owner.insert(e, t);
-        }
-    }
+    let mut owners = EdgeOwners::new(mesh);
     // `1 - cos` of the angle between two unit normals.
     let bend = |a: &Vector, b: &Vector| 1.0 - a.dot(b);
     let mut flips = 0;
@@ -624,39 +675,32 @@ fn flip_folds(mesh: &mut TriMesh) -> usize {
             let Some(n) = unit(mesh, tri) else {
                 continue;
             };
-            let around: Vec<Vector> = edges(tri)
-                .iter()
-                .filter_map(|&(a, b)| owner.get(&(b, a)))
-                .filter_map(|&j| unit(mesh, mesh.triangles[j]))
+            let around: Vec<Vector> = directed_edges(tri)
+                .into_iter()
+                .filter_map(|e| owners.across(e))
+                .filter_map(|j| unit(mesh, mesh.triangles[j]))
                 .collect();
             if !turned(&n, &around) {
                 continue;
             }
-            // (bending saved, neighbour, new facets) of the best flip.
-            let mut best: Option<(f64, usize, [u32; 3], [u32; 3])> = None;
+            // (bending saved, quad) of the best flip.
+            let mut best: Option<(f64, Quad)> = None;
             for k in 0..3 {
-                let (u, v, w) = (tri[k], tri[(k + 1) % 3], tri[(k + 2) % 3]);
-                let Some(&nb) = owner.get(&(v, u)) else {
+                let Some(quad) = owners.quad(mesh, t, k) else {
                     continue;
                 };
-                let other = mesh.triangles[nb];
-                let Some(x) = other.iter().copied().find(|&x| x != u && x != v) else {
-                    continue;
-                };
-                if nb == t || x == w || owner.contains_key(&(w, x)) || owner.contains_key(&(x, w)) {
-                    continue;
-                }
-                let Some(m) = unit(mesh, other) else {
+                let (u, v, w, x, nb) = (quad.u, quad.v, quad.w, quad.x, quad.neighbour);
+                let Some(m) = unit(mesh, mesh.triangles[nb]) else {
                     continue;
                 };
                 // The normal beyond the quad's outer edge (p, q).
                 let outer = |p: u32, q: u32| {
-                    owner
-                        .get(&(q, p))
-                        .filter(|&&j| j != t && j != nb)
-                        .and_then(|&j| unit(mesh, mesh.triangles[j]))
+                    owners
+                        .across((p, q))
+                        .filter(|&j| j != t && j != nb)
+                        .and_then(|j| unit(mesh, mesh.triangles[j]))
                 };
-                let (a, b) = ([w, u, x], [x, v, w]);
+                let (a, b) = quad.flipped();
                 let (Some(na), Some(nb_new)) = (unit(mesh, a), unit(mesh, b)) else {
                     continue;
                 };
@@ -678,23 +722,15 @@ fn flip_folds(mesh: &mut TriMesh) -> usize {
                     && !turned(&nb_new, &around_b)
                     && !is_cap(a.map(|i| mesh.vertices[i as usize]))
                     && !is_cap(b.map(|i| mesh.vertices[i as usize]))
-                    && best.is_none_or(|(s, ..)| saved > s)
+                    && best.as_ref().is_none_or(|(s, _)| saved > *s)
                 {
-                    best = Some((saved, nb, a, b));
+                    best = Some((saved, quad));
                 }
             }
-            let Some((_, nb, a, b)) = best else {
+            let Some((_, quad)) = best else {
                 continue;
             };
-            for e in edges(tri).into_iter().chain(edges(mesh.triangles[nb])) {
-                owner.remove(&e);
-            }
-            for (id, new) in [(t, a), (nb, b)] {
-                mesh.triangles[id] = new;
-                for e in edges(new) {
-                    owner.insert(e, id);
-                }
-            }
+            owners.flip(mesh, &quad);
             flips += 1;
             flipped = true;
         }
