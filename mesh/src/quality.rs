@@ -10,7 +10,7 @@
 //! - neighbour area ratio: the largest `A_i / A_j` across an edge;
 //! - turned panels: a panel whose normal is turned more than
 //!   [`TURNED_DEG`] from each of its edge neighbours' while they agree with
-//!   one another ([`turned_panels`]).
+//!   one another, or from their mean as well ([`turned_panels`]).
 //!
 //! Thresholds (common practice for constant-strength panel methods, where
 //! the collocation point sits at the centroid and the surface velocity
@@ -284,18 +284,27 @@ fn singular(what: &str) -> String {
 pub const DEGENERATE_ASPECT: f64 = 100.0;
 
 /// A panel turned more than this from each of its edge neighbours, while
-/// those agree with one another within the same angle, is a fold (our
-/// choice): on a smooth body neighbouring panels differ by a few degrees;
-/// along a sharp edge of the shape a panel has a neighbour on its own
-/// face, and in a corner its neighbours lie on different faces and
-/// disagree.
+/// those agree with one another within the same angle or the panel is
+/// turned as far from their mean, is a fold (our choice): on a smooth body
+/// neighbouring panels differ by a few degrees; along a sharp edge of the
+/// shape a panel has a neighbour on its own face, and in a corner its
+/// neighbours lie on different faces and disagree, while the panel that
+/// cuts the corner faces between them (a cube's corner cut off faces
+/// 55 degrees from each face and along their mean).
 pub const TURNED_DEG: f64 = 45.0;
 
 /// Panels turned against all their edge neighbours ([`TURNED_DEG`]): at
 /// least two neighbours, every one of them more than `TURNED_DEG` from the
-/// panel and all within `TURNED_DEG` of one another. A coarsened scan
+/// panel, and either all within `TURNED_DEG` of one another or their mean
+/// normal also more than `TURNED_DEG` from the panel. A coarsened scan
 /// makes them where a sliver bridges two regions or a vertex lands off the
 /// surface; their collocation velocity has nothing to do with the shape.
+/// The second form is a fold on a crease: on a review's SUV a panel on the
+/// crease between flank and wing top faced backwards (normal 0.76 along
+/// the stream) on one side only, 53 to 80 degrees from its neighbours on
+/// the two faces and 60 from their mean, and the boundary layer took it
+/// for the back of a bluff edge; a one-row strip of that flank read
+/// separated to the tail.
 pub fn turned_panels(mesh: &PanelMesh) -> Vec<bool> {
     (0..mesh.len())
         .map(|t| {
@@ -313,12 +322,20 @@ pub fn turned_panels(mesh: &PanelMesh) -> Vec<bool> {
 /// neighbours' unit normals `around` ([`turned_panels`]).
 pub fn turned(n: &crate::Vector, around: &[crate::Vector]) -> bool {
     let cos = TURNED_DEG.to_radians().cos();
-    around.len() >= 2
-        && around.iter().all(|m| n.dot(m) < cos)
-        && around
+    let agree = || {
+        around
             .iter()
             .enumerate()
             .all(|(k, a)| around[k + 1..].iter().all(|b| a.dot(b) >= cos))
+    };
+    let off_mean = || {
+        around
+            .iter()
+            .sum::<crate::Vector>()
+            .try_normalize(1e-12)
+            .is_some_and(|m| n.dot(&m) < cos)
+    };
+    around.len() >= 2 && around.iter().all(|m| n.dot(m) < cos) && (agree() || off_mean())
 }
 
 /// `L_max * P / (4 sqrt(3) A)`: 1 for an equilateral triangle.
@@ -386,6 +403,32 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
     use crate::{Mirrors, Point, TriMesh, generate};
+
+    /// A fold on a smooth surface and one on a crease are turned; the
+    /// panel that cuts a cube's corner or chamfers a right-angled edge is
+    /// not (it faces between its neighbours; elementary geometry).
+    #[test]
+    fn folds_are_turned_and_cut_corners_are_not() {
+        let v = |x: f64, y: f64, z: f64| crate::Vector::new(x, y, z).normalize();
+        // Neighbours that agree, the panel across them.
+        assert!(turned(
+            &v(1.0, 0.0, 0.0),
+            &[v(0.0, 0.0, 1.0), v(0.1, 0.0, 1.0)]
+        ));
+        // The review's crease: flank and wing top 60 degrees apart, the
+        // panel between them facing backwards.
+        let crease = [v(0.0, 1.0, 0.2), v(0.0, 0.3, 0.95)];
+        assert!(turned(&v(0.76, 0.65, 0.06), &crease));
+        assert!(!turned(&v(0.0, 0.7, 0.7), &crease));
+        // A cube's corner cut off: 55 degrees from each face, along their mean.
+        let faces = [v(1.0, 0.0, 0.0), v(0.0, 1.0, 0.0), v(0.0, 0.0, 1.0)];
+        assert!(!turned(&v(1.0, 1.0, 1.0), &faces));
+        // A 60-degree chamfer panel between faces 120 degrees apart.
+        assert!(!turned(
+            &v(1.0, 0.0, 0.0),
+            &[v(0.5, 0.866, 0.0), v(0.5, -0.866, 0.0)]
+        ));
+    }
 
     /// A unit plate in z = 0 whose edge y = 0 is bridged by a sliver to a
     /// vertex 1 cm inside the plate and 3 cm above it: the sliver faces
