@@ -296,7 +296,9 @@ pub const TURNED_DEG: f64 = 45.0;
 /// Panels turned against all their edge neighbours ([`TURNED_DEG`]): at
 /// least two neighbours, every one of them more than `TURNED_DEG` from the
 /// panel, and either all within `TURNED_DEG` of one another or their mean
-/// normal also more than `TURNED_DEG` from the panel. A coarsened scan
+/// normal (of length at least half, so not from faces that nearly cancel,
+/// as either side of a thin plate) also more than `TURNED_DEG` from the
+/// panel. A coarsened scan
 /// makes them where a sliver bridges two regions or a vertex lands off the
 /// surface; their collocation velocity has nothing to do with the shape.
 /// The second form is a fold on a crease: on a review's SUV a panel on the
@@ -328,12 +330,11 @@ pub fn turned(n: &crate::Vector, around: &[crate::Vector]) -> bool {
             .enumerate()
             .all(|(k, a)| around[k + 1..].iter().all(|b| a.dot(b) >= cos))
     };
+    // The neighbours' mean direction, when they do not nearly cancel (a
+    // knife edge's two faces: the panel across its end is real).
     let off_mean = || {
-        around
-            .iter()
-            .sum::<crate::Vector>()
-            .try_normalize(1e-12)
-            .is_some_and(|m| n.dot(&m) < cos)
+        let sum = around.iter().sum::<crate::Vector>();
+        sum.norm() >= 0.5 * around.len() as f64 && n.dot(&sum.normalize()) < cos
     };
     around.len() >= 2 && around.iter().all(|m| n.dot(m) < cos) && (agree() || off_mean())
 }
@@ -427,6 +428,12 @@ mod tests {
         assert!(!turned(
             &v(1.0, 0.0, 0.0),
             &[v(0.5, 0.866, 0.0), v(0.5, -0.866, 0.0)]
+        ));
+        // The end face of a thin plate between its two faces, which nearly
+        // cancel.
+        assert!(!turned(
+            &v(1.0, 0.0, 0.0),
+            &[v(0.0, 0.05, 1.0), v(0.0, 0.0, -1.0)]
         ));
     }
 
