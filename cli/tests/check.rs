@@ -43,20 +43,26 @@ fn check(args: &[&str]) -> Output {
         .unwrap()
 }
 
-#[test]
-fn check_reports_a_generated_sphere() {
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("sphere.stl");
-    // A 1 m radius icosphere written in millimetres, 5120 facets.
-    write_binary_stl(&path, &generate::icosphere(1.0, 4), 1000.0);
-    let out = check(&[path.to_str().unwrap(), "--units", "mm", "--panels", "2000"]);
-    let stdout = String::from_utf8_lossy(&out.stdout);
+/// `tuft check ARGS`, which must exit 0; its stdout.
+fn check_ok(args: &[&str]) -> String {
+    let out = check(args);
+    let stdout = String::from_utf8_lossy(&out.stdout).into_owned();
     assert_eq!(
         out.status.code(),
         Some(0),
         "{stdout}\n{}",
         String::from_utf8_lossy(&out.stderr)
     );
+    stdout
+}
+
+#[test]
+fn check_reports_a_generated_sphere() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("sphere.stl");
+    // A 1 m radius icosphere written in millimetres, 5120 facets.
+    write_binary_stl(&path, &generate::icosphere(1.0, 4), 1000.0);
+    let stdout = check_ok(&[path.to_str().unwrap(), "--units", "mm", "--panels", "2000"]);
     assert!(stdout.contains("5120 facets"), "{stdout}");
     assert!(stdout.contains("coarsened to"), "{stdout}");
     assert!(stdout.contains("verdict    usable"), "{stdout}");
@@ -88,9 +94,7 @@ fn check_reports_a_generated_sphere() {
 #[test]
 fn check_accepts_the_committed_coupe() {
     let stl = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/coupe.stl");
-    let out = check(&[stl.to_str().unwrap(), "--units", "mm"]);
-    let stdout = String::from_utf8_lossy(&out.stdout);
-    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    let stdout = check_ok(&[stl.to_str().unwrap(), "--units", "mm"]);
     assert!(stdout.contains("3956 facets"), "{stdout}");
     assert!(stdout.contains("verdict    usable"), "{stdout}");
 }
@@ -148,14 +152,8 @@ fn check_half_model_needs_the_symmetry_flag() {
         stderr.contains("open hole") && stderr.contains("perimeter"),
         "{stderr}"
     );
-    let accepted = check(&[p, "--units", "m", "--half"]);
-    assert_eq!(
-        accepted.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&accepted.stderr)
-    );
-    assert!(String::from_utf8_lossy(&accepted.stdout).contains("closed by the symmetry mirror"));
+    let accepted = check_ok(&[p, "--units", "m", "--half"]);
+    assert!(accepted.contains("closed by the symmetry mirror"));
 
     // The other half (y <= 0, as some exports keep the driver's side) runs
     // as its mirror image: the same panels, and said so.
@@ -166,14 +164,7 @@ fn check_half_model_needs_the_symmetry_flag() {
         t.swap(1, 2);
     }
     write_binary_stl(&left_path, &left, 1.0);
-    let mirrored = check(&[left_path.to_str().unwrap(), "--units", "m", "--half"]);
-    assert_eq!(
-        mirrored.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&mirrored.stderr)
-    );
-    let stdout = String::from_utf8_lossy(&mirrored.stdout);
+    let stdout = check_ok(&[left_path.to_str().unwrap(), "--units", "m", "--half"]);
     assert!(
         stdout.contains(
             "half model of the left side, y <= 0 in tuft's axes: run as its mirror image"
@@ -185,9 +176,8 @@ fn check_half_model_needs_the_symmetry_flag() {
             .find(|l| l.starts_with("panels "))
             .map(str::to_owned)
     };
-    let accepted_stdout = String::from_utf8_lossy(&accepted.stdout);
-    assert!(panels(&accepted_stdout).is_some());
-    assert_eq!(panels(&stdout), panels(&accepted_stdout));
+    assert!(panels(&accepted).is_some());
+    assert_eq!(panels(&stdout), panels(&accepted));
 }
 
 /// A whole body checked as a half model (`--half`, or `geometry.half_model
@@ -209,9 +199,7 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
         ),
         "{stdout}"
     );
-    let out = check(&[p, "--units", "m", "--half"]);
-    let stdout = String::from_utf8_lossy(&out.stdout);
-    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    let stdout = check_ok(&[p, "--units", "m", "--half"]);
     assert!(stdout.contains("cut from the whole body"), "{stdout}");
     assert!(
         stdout.contains("cut at y = 0 and its y >= 0 half run mirrored"),
@@ -257,9 +245,7 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
 #[test]
 fn check_reads_a_case_files_stl_as_the_run_does() {
     let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
-    let out = check(&[cases.join("coupe.toml").to_str().unwrap()]);
-    let stdout = String::from_utf8_lossy(&out.stdout);
-    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    let stdout = check_ok(&[cases.join("coupe.toml").to_str().unwrap()]);
     assert!(stdout.starts_with("case       "), "{stdout}");
     assert!(stdout.contains("unit mm"), "{stdout}");
     assert!(stdout.contains("ground plane: z = 0 m"), "{stdout}");
@@ -586,14 +572,7 @@ fn a_floor_cut_a_hair_off_the_ground_is_moved_onto_it_and_said() {
     let mut dome = half_sphere(|p| p.z);
     dome.map_vertices(|p| tuft_mesh::Point::new(p.x, p.y, p.z - 0.0124));
     write_binary_stl(&path, &dome, 1000.0);
-    let out = check(&[path.to_str().unwrap(), "--ground", "-0.0124"]);
-    let stdout = String::from_utf8_lossy(&out.stdout);
-    assert_eq!(
-        out.status.code(),
-        Some(0),
-        "{stdout}{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    let stdout = check_ok(&[path.to_str().unwrap(), "--ground", "-0.0124"]);
     assert!(stdout.contains("closed by the ground mirror"), "{stdout}");
     assert!(
         stdout.contains(
