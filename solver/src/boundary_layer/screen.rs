@@ -590,9 +590,7 @@ impl<'a> LineContext<'a> {
         // The segment the station was sampled on (`Self::samples`).
         let seg = *segments.get(k)?;
         let panel = *trace.panels.get(seg)? as usize;
-        let wall = !self.crumpled(panel)
-            && self.mesh.panels[panel].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin();
-        if sample.forced_separation || !wall || before.state != FlowState::Turbulent {
+        if sample.forced_separation || !self.wall(panel) || before.state != FlowState::Turbulent {
             return None;
         }
         let forced = self.bluff_crossings(trace);
@@ -858,11 +856,7 @@ impl<'a> LineContext<'a> {
     ) -> Vec<(usize, WakeBack)> {
         let p = &trace.panels;
         let down = |m: usize| self.faces_downstream(p[m] as usize);
-        let wall = |m: usize| {
-            let t = p[m] as usize;
-            !self.crumpled(t)
-                && self.mesh.panels[t].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin()
-        };
+        let wall = |m: usize| self.wall(p[m] as usize);
         let end = arc.last().copied().unwrap_or(0.0);
         let mut out = Vec::new();
         // The first segment after the last wall segment, while off a wall.
@@ -916,6 +910,14 @@ impl<'a> LineContext<'a> {
             ));
         }
         out
+    }
+
+    /// True when panel `t` is a wall a protuberance's wake lands on: turned
+    /// from the stream by less than [`WAKE_FOOT_TURN`] either way (a flank,
+    /// a roof, a bonnet), not crumpled.
+    fn wall(&self, t: usize) -> bool {
+        !self.crumpled(t)
+            && self.mesh.panels[t].normal.dot(&self.flow_dir).abs() < WAKE_FOOT_TURN.sin()
     }
 
     /// The first segment after segment `m` on a face turned downstream
