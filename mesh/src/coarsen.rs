@@ -502,7 +502,6 @@ fn flip_collinear(mesh: &mut TriMesh) {
             .flat_map(|&c| corner_cosines(c))
             .fold(f64::NEG_INFINITY, f64::max)
     };
-    let unit = |c: [Point; 3]| (c[1] - c[0]).cross(&(c[2] - c[0])).try_normalize(0.0);
     let mut owners = EdgeOwners::new(mesh);
     for _ in 0..FLIP_SWEEPS {
         let mut flipped = false;
@@ -521,16 +520,16 @@ fn flip_collinear(mesh: &mut TriMesh) {
             let Some(q) = owners.quad(mesh, t, k) else {
                 continue;
             };
-            let (u, v, w, x, n) = (q.u, q.v, q.w, q.x, q.neighbour);
             if !exact {
-                let p = |i: u32| mesh.vertices[i as usize];
-                let (pu, pv, pw, px) = (p(u), p(v), p(w), p(x));
-                let (new_a, new_b) = ([pw, pu, px], [px, pv, pw]);
+                let n = q.neighbour;
+                let (a, b) = q.flipped();
+                let (new_a, new_b) = (points(mesh, a), points(mesh, b));
                 let old_worst = worst(&[mesh.corners(t), mesh.corners(n)]);
-                let turned = |new: [Point; 3]| match (unit(new), unit(mesh.corners(n))) {
-                    (Some(a), Some(b)) => a.dot(&b) < turn_cos,
-                    _ => true,
-                };
+                let turned =
+                    |new: [Point; 3]| match (unit_normal(new), unit_normal(mesh.corners(n))) {
+                        (Some(a), Some(b)) => a.dot(&b) < turn_cos,
+                        _ => true,
+                    };
                 if worst(&[new_a, new_b]) >= old_worst || turned(new_a) || turned(new_b) {
                     continue;
                 }
@@ -626,6 +625,17 @@ impl EdgeOwners {
     }
 }
 
+/// The corners of the facet with vertices `tri`.
+fn points(mesh: &TriMesh, tri: [u32; 3]) -> [Point; 3] {
+    tri.map(|i| mesh.vertices[i as usize])
+}
+
+/// The unit normal of the facet with corners `c` (in their winding);
+/// `None` when it has no area.
+fn unit_normal(c: [Point; 3]) -> Option<crate::Vector> {
+    (c[1] - c[0]).cross(&(c[2] - c[0])).try_normalize(0.0)
+}
+
 /// The angle's cosine at each corner of the facet with corners `c` (1 at
 /// a corner with a zero-length edge).
 fn corner_cosines(c: [Point; 3]) -> [f64; 3] {
@@ -660,10 +670,7 @@ const FOLD_SWEEPS: usize = 4;
 fn flip_folds(mesh: &mut TriMesh) -> usize {
     use crate::Vector;
     use crate::quality::turned;
-    let unit = |m: &TriMesh, tri: [u32; 3]| {
-        let c = tri.map(|i| m.vertices[i as usize]);
-        (c[1] - c[0]).cross(&(c[2] - c[0])).try_normalize(0.0)
-    };
+    let unit = |m: &TriMesh, tri: [u32; 3]| unit_normal(points(m, tri));
     let mut owners = EdgeOwners::new(mesh);
     // `1 - cos` of the angle between two unit normals.
     let bend = |a: &Vector, b: &Vector| 1.0 - a.dot(b);
@@ -720,8 +727,8 @@ fn flip_folds(mesh: &mut TriMesh) -> usize {
                 if saved > 1e-9
                     && !turned(&na, &around_a)
                     && !turned(&nb_new, &around_b)
-                    && !is_cap(a.map(|i| mesh.vertices[i as usize]))
-                    && !is_cap(b.map(|i| mesh.vertices[i as usize]))
+                    && !is_cap(points(mesh, a))
+                    && !is_cap(points(mesh, b))
                     && best.as_ref().is_none_or(|(s, _)| saved > *s)
                 {
                     best = Some((saved, quad));
