@@ -442,9 +442,17 @@ pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
 /// A lift in kg and its axle shares as [`kg_set`], signed (lift `+`,
 /// downforce `-`), a zero without its sign ("0", not "+0").
 pub fn lift_set<const N: usize>(values: [f64; N]) -> [String; N] {
-    kg_set(values).map(|w| match w.parse::<f64>() {
-        Ok(v) if v.is_finite() && v > 0.0 => format!("+{w}"),
-        _ => w,
+    if !countable(&values) {
+        return kg_set(values);
+    }
+    let (units, places) = kg_units(values);
+    units.map(|u| {
+        let v = from_units(u, places);
+        if u > 0 {
+            format!("{v:+.places$}")
+        } else {
+            format!("{v:.places$}")
+        }
     })
 }
 
