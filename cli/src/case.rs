@@ -146,6 +146,11 @@ impl TryFrom<RawFlowSection> for FlowSection {
                     3.6 * MAX_SPEED
                 ));
             }
+            (None, Some(kmh)) if !(kmh.is_finite() && kmh > 0.0) => {
+                return Err(format!(
+                    "flow.speed_kmh must be a positive number (got {kmh})"
+                ));
+            }
             (None, Some(kmh)) => kmh / 3.6,
             (None, None) => d.speed,
         };
@@ -279,6 +284,12 @@ pub enum WakesMode {
 impl Case {
     /// Read and check a case file.
     pub fn load(path: &Path) -> Result<Self> {
+        if path.is_dir() {
+            bail!(
+                "{}: this is a folder; tuft run takes a case file (.toml)",
+                path.display()
+            );
+        }
         if path
             .extension()
             .is_some_and(|e| e.eq_ignore_ascii_case("stl"))
@@ -291,6 +302,7 @@ impl Case {
         }
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the case file", path.display()))?;
+        other_kind(path, &text, false)?;
         let file: CaseFile = toml::from_str(&text).map_err(|e| toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
     }
@@ -325,6 +337,30 @@ impl Case {
             operator,
         })
     }
+}
+
+/// Refuse the other kind of tuft file, which would otherwise fail on its
+/// first key: a sweep file has a top-level `base`, a case file a
+/// `[geometry]` section. `sweep`: a sweep file is wanted.
+pub fn other_kind(path: &Path, text: &str, sweep: bool) -> Result<()> {
+    let Ok(top) = toml::from_str::<toml::Table>(text) else {
+        return Ok(());
+    };
+    let (base, geometry) = (top.contains_key("base"), top.contains_key("geometry"));
+    if !sweep && base && !geometry {
+        bail!(
+            "{}: this is a sweep file (it has `base`); run it with tuft sweep",
+            path.display()
+        );
+    }
+    if sweep && geometry && !base {
+        bail!(
+            "{}: this is a case file (it has [geometry]); run it with tuft run, or name it as a sweep \
+             file's `base`",
+            path.display()
+        );
+    }
+    Ok(())
 }
 
 /// A TOML file's parse or type error in one sentence: the file, the line
@@ -647,6 +683,11 @@ mod tests {
         assert!((c.file.flow.speed - 40.0).abs() < 1e-12);
         assert!(
             err(&format!("{geo}[flow]\nspeed_kmh = 144.0\nspeed = 40.0\n")).contains("not both")
+        );
+        let e = err(&format!("{geo}[flow]\nspeed_kmh = -10.0\n"));
+        assert!(
+            e.contains("flow.speed_kmh must be a positive number (got -10)"),
+            "{e}"
         );
         let e = err(&format!("{geo}[flow]\nspeed_kmh = 400.0\n"));
         assert!(e.contains("flow.speed_kmh 400 km/h is beyond"), "{e}");

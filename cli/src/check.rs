@@ -92,6 +92,17 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     } else {
         (args.file.clone(), settings(args)?, None)
     };
+    // What an error names: the STL, or the case file and its key for it
+    // (as `tuft run` names them).
+    let label = if is_case {
+        format!(
+            "{}: geometry.stl = \"{}\"",
+            args.file.display(),
+            file.display()
+        )
+    } else {
+        file.display().to_string()
+    };
     let (panels, report) = prepare(&file, &params)
         .map_err(|e| match &case {
             Some(case) => crate::geometry::name_mirror_keys(e, case),
@@ -107,12 +118,12 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
                 crate::geometry::mirror_refusal(e, &keys, "--ground", up)
             }
         })
-        .with_context(|| file.display().to_string())?;
+        .with_context(|| label.clone())?;
     let [lo, hi] = report.bounds;
     let size = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
     let key = if is_case { "geometry.units" } else { "--units" };
     if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
-        anyhow::bail!("{}: {why}", file.display());
+        anyhow::bail!("{label}: {why}");
     }
     // Axles and regions off the body are an error, given after what check
     // knows of the STL (its extent above all, which is what the axles must
@@ -121,7 +132,13 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         crate::geometry::check_placement(&panels, case)
             .with_context(|| args.file.display().to_string())
     });
-    if let Some(out) = &args.save_panels {
+    // A case that fails writes nothing: no panels file, no JSON report (a
+    // script reading it would take it for a clean one); the text report
+    // still shows the body's extent, with a verdict that names the case.
+    if placement.is_err() && args.json {
+        return placement.map(|()| ExitCode::SUCCESS);
+    }
+    if let (Some(out), true) = (&args.save_panels, placement.is_ok()) {
         save_panels(out, &panels, params.units)?;
     }
 
@@ -134,7 +151,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
                 args.file.display()
             );
         }
-        say_part!("{}", summary(&file.display().to_string(), &report));
+        say_part!(
+            "{}",
+            summary(&file.display().to_string(), &report, placement.is_err())
+        );
         if let Some(case) = case.as_ref().filter(|_| placement.is_ok()) {
             say_part!("{}", placement_lines(&panels, case));
         }
@@ -230,7 +250,9 @@ fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
 }
 
 /// The human-readable report.
-fn summary(file: &str, r: &PrepareReport) -> String {
+/// `case_fails`: the case file's axles or regions lie off the body, so the
+/// verdict on the STL says the case cannot run as written.
+fn summary(file: &str, r: &PrepareReport, case_fails: bool) -> String {
     let mut out = format!("tuft check: {file}\n");
     out += &read_lines(r);
     out += &repair_lines(r);
@@ -256,7 +278,16 @@ fn summary(file: &str, r: &PrepareReport) -> String {
          1,000-12,000 (4,000-12,000 is usual for a full car; common practice)\n",
         r.suggested_panels
     );
-    out += &verdict(r);
+    let v = verdict(r);
+    if case_fails {
+        out += &v.replacen(
+            "verdict    ",
+            "verdict    the case cannot run as written (below); the STL alone: ",
+            1,
+        );
+    } else {
+        out += &v;
+    }
     out
 }
 

@@ -113,6 +113,19 @@ pub fn mirror_refusal(
     }
 }
 
+/// Whether a built-in shape's parameters build a body (the generator's
+/// own checks: a rear-window slope out of range, a negative ride height),
+/// without preparing it; `Ok` for an STL, which only a run reads. A sweep
+/// checks every variant so before the first one runs.
+pub fn check_shape(case: &Case) -> Result<()> {
+    match &case.source {
+        GeometrySource::Shape { name } => shape(name, case)
+            .map(drop)
+            .with_context(|| format!("geometry.shape = \"{name}\"")),
+        GeometrySource::Stl { .. } => Ok(()),
+    }
+}
+
 /// A built-in shape with the case's parameters.
 fn shape(name: &str, case: &Case) -> Result<TriMesh> {
     let g = &case.file.geometry;

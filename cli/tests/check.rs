@@ -504,8 +504,9 @@ fn an_stl_below_the_ground_gets_the_y_up_hint() {
 }
 
 /// Axles off the body: `tuft check` still prints the body's extent (what
-/// the axles must be set against) before the error, and the error has one
-/// parenthesis on the case file's lengths (it had two in a row).
+/// the axles must be set against) before the error, with a verdict that
+/// says the case cannot run (it said "usable", then failed), and the error
+/// has one parenthesis on the case file's lengths (it had two in a row).
 #[test]
 fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
     let dir = tempfile::tempdir().unwrap();
@@ -528,6 +529,27 @@ fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
     assert_eq!(out.status.code(), Some(2), "{stdout}\n{stderr}");
     assert!(stdout.contains("size       2.0"), "{stdout}");
     assert!(!stdout.contains("axles "), "{stdout}");
+    // The verdict does not call the run usable when the case cannot run.
+    assert!(
+        stdout.contains("verdict    the case cannot run as written (below); the STL alone: usable"),
+        "{stdout}"
+    );
+    // With --json (a script's reading) and --save-panels, nothing is
+    // written: no report that reads as a clean one, no panels file.
+    let panels = dir.path().join("panels.stl");
+    let out = check(&[
+        case.to_str().unwrap(),
+        "--json",
+        "--save-panels",
+        panels.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        out.stdout.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&out.stdout)
+    );
+    assert!(!panels.exists());
     assert!(
         stderr.contains("reference.front_axle_x = 950 m lies outside the body")
             && stderr.contains("(lengths in the case file are metres, and, for axles")
@@ -580,4 +602,21 @@ fn a_floor_cut_a_hair_off_the_ground_is_moved_onto_it_and_said() {
         ),
         "{stdout}"
     );
+}
+
+/// A case file whose STL is missing: `tuft check` names the case file and
+/// its key, as `tuft run` does (it named only the STL).
+#[test]
+fn a_missing_stl_is_named_with_its_case_key() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = dir.path().join("gone.toml");
+    std::fs::write(&case, "[geometry]\nstl = \"nothere.stl\"\n").unwrap();
+    let out = check(&[case.to_str().unwrap()]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("gone.toml: geometry.stl = \"") && stderr.contains("nothere.stl\": "),
+        "{stderr}"
+    );
+    assert!(out.stdout.is_empty());
 }

@@ -174,10 +174,14 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     assert_eq!(html.contains("<h2>Warnings</h2>"), warned);
 }
 
+/// Spheres over a ground 0.55 m below their centres: the 0.7 m radius
+/// reaches 0.15 m below it (a tenth of its height, twice what tyres may
+/// be pressed in), which only the run finds, once the body is prepared.
 const SPHERE_SWEEP: &str = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+    [base.ground]\nz = -0.55\n\
     [[base.region]]\nname = \"rear half\"\nfacing = \"rear\"\n\
     [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n\
-    [[vary]]\nkey = \"yaw\"\nvalues = [0.0, 45.0, 10.0]\n";
+    [[vary]]\nkey = \"radius\"\nvalues = [0.5, 0.7, 0.4]\n";
 
 #[test]
 fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported() {
@@ -186,8 +190,8 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     let file = d.join("s.toml");
     std::fs::write(&file, SPHERE_SWEEP).unwrap();
     let out = d.join("s");
-    // Six variants, two of which (yaw 45, beyond the 30 degrees a case
-    // accepts) fail; four shards of 1 or 2 variants each.
+    // Six variants, two of which (radius 0.7, through the ground) fail;
+    // four shards of 1 or 2 variants each.
     let mut ran: Vec<String> = Vec::new();
     let mut failed = 0;
     for k in 1..=4 {
@@ -241,7 +245,10 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
         .map(|m| m.as_str().unwrap())
         .collect();
     assert_eq!(missing.len(), 2);
-    assert!(missing.iter().all(|m| m.contains("yaw-45")), "{missing:?}");
+    assert!(
+        missing.iter().all(|m| m.contains("radius-0.7")),
+        "{missing:?}"
+    );
     // The region's share and verdict per variant, in sweep.csv and on the
     // page.
     let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
@@ -260,8 +267,7 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     }
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
     assert!(html.contains("<th>rear half separated</th>"));
-    // Two speeds and two yaw angles: four wind conditions, one ranking
-    // each.
+    // Two speeds: two wind conditions, one ranking each.
     assert!(html.contains("restarts at 1 in each"));
     // A second pass keeps the finished folders and runs only what failed.
     let (code, err) = sweep_to(&file, &out);
@@ -374,6 +380,59 @@ fn collect_leaves_out_results_of_an_older_case() {
     assert_eq!(missing.len(), 1);
     let m = missing[0].as_str().unwrap();
     assert!(m.starts_with("speed-30") && m.contains("older case"), "{m}");
+}
+
+/// Values a case refuses (a negative speed) or a built-in shape's
+/// generator refuses (a rear window at 89 degrees) stop the whole sweep
+/// before any variant runs, naming each bad variant, with no folder
+/// written: an overnight sweep had run its good variants and failed the
+/// bad ones in the morning. A sweep file given to `tuft run`, or a case
+/// file to `tuft sweep`, is named as such.
+#[test]
+fn bad_values_stop_the_sweep_before_any_variant_runs() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("bad.toml");
+    std::fs::write(
+        &file,
+        "combine = \"each\"\n[base.geometry]\nshape = \"coupe\"\npanels = 600\n\
+         [[vary]]\nkey = \"speed\"\nvalues = [30.0, -40.0]\n\
+         [[vary]]\nkey = \"rear_window_deg\"\nvalues = [20, 89]\n",
+    )
+    .unwrap();
+    let out = d.join("bad");
+    let (code, err) = sweep_to(&file, &out);
+    assert_eq!(code, 2, "{err}");
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(lines.len(), 1, "{err}");
+    assert!(
+        lines[0].starts_with("tuft:")
+            && lines[0].contains("bad.toml")
+            && lines[0].contains("2 of 4 variants cannot run, so none was started")
+            && lines[0].contains("speed-minus40: flow.speed must be a positive number")
+            && lines[0].contains("rear_window_deg-89: geometry.shape = \"coupe\""),
+        "{err}"
+    );
+    assert!(!out.exists(), "no folder written");
+
+    // The other kind of file.
+    let case = d.join("case.toml");
+    std::fs::write(&case, "[geometry]\nshape = \"sphere\"\n").unwrap();
+    let (code, err) = tuft(&["sweep", case.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("case.toml: this is a case file") && err.contains("tuft run"),
+        "{err}"
+    );
+    let (code, err) = tuft(&["run", file.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("bad.toml: this is a sweep file") && err.contains("tuft sweep"),
+        "{err}"
+    );
+    let (code, err) = tuft(&["run", d.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("this is a folder"), "{err}");
 }
 
 /// A mistake in a sweep's base case file is named in that file, with its
@@ -498,12 +557,12 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
         "combine = \"each\"\n[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
          [[base.region]]\nname = \"rear half\"\nfacing = \"rear\"\n\
          [[vary]]\nkey = \"radius\"\nvalues = [0.5, 0.25, 0.35]\n\
-         [[vary]]\nkey = \"yaw\"\nvalues = [45.0]\n",
+         [[vary]]\nkey = \"ground.z\"\nvalues = [0.0]\n",
     )
     .unwrap();
     let out = d.join("s");
     let (code, err) = sweep_to(&file, &out);
-    // yaw-45 fails: beyond the 30 degrees a case accepts.
+    // ground-0 fails: the ground through the sphere's centre.
     assert_eq!(code, 2, "{err}");
     let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
     assert_eq!(code, 1, "{err}");
@@ -552,7 +611,7 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     let ratio = body[2].1 / body[0].1;
     assert!((3.4..4.4).contains(&ratio), "{body:?}: one scale for all");
     assert!(
-        html.contains("<p class=\"glance-none\">yaw-45: failed or not finished, no picture.</p>"),
+        html.contains("<p class=\"glance-none\">ground-0: failed or not finished, no picture.</p>"),
         "{html}"
     );
     // Without its mesh.json the second variant gets a line, not a picture.

@@ -149,6 +149,7 @@ impl Plan {
     pub fn load(path: &Path) -> Result<Self> {
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the sweep file", path.display()))?;
+        crate::case::other_kind(path, &text, true)?;
         let file: SweepFile =
             toml::from_str(&text).map_err(|e| crate::case::toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
@@ -176,6 +177,7 @@ impl Plan {
             bail!("every variant's case fails the same way: {first}");
         }
         unique_names(&mut variants);
+        refuse_bad_variants(&dir, &variants)?;
         let variants = group_by_geometry(variants);
         let name = path
             .file_stem()
@@ -232,6 +234,46 @@ impl Plan {
         keys.dedup();
         keys.len()
     }
+}
+
+/// Refuse the sweep before anything runs when a variant's case cannot
+/// run: a key that does not take the value, a value a case refuses (a
+/// negative speed, a yaw beyond 30 degrees) or a built-in shape's
+/// parameter its generator refuses. An overnight sweep had run its good
+/// variants first and failed the bad ones in the morning. Checks that
+/// need the prepared body (the ground, axles and regions against it) stay
+/// with each variant's run. `dir`: the sweep file's folder.
+fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
+    let bad: Vec<String> = variants
+        .iter()
+        .filter_map(|v| {
+            let why = match &v.file {
+                Err(e) => e.clone(),
+                Ok(file) => {
+                    let path = dir.join(format!("{}.toml", v.name));
+                    crate::case::Case::from_file(&path, file.clone())
+                        .and_then(|case| crate::geometry::check_shape(&case))
+                        .err()
+                        .map(|e| format!("{e:#}"))?
+                }
+            };
+            Some(format!("{}: {why}", v.name))
+        })
+        .collect();
+    const NAMED: usize = 3;
+    if let Some(first) = bad.first() {
+        let more = match bad.len() {
+            1 => String::new(),
+            n if n <= NAMED => format!("; {}", bad[1..].join("; ")),
+            n => format!("; {}; and {} more", bad[1..NAMED].join("; "), n - NAMED),
+        };
+        bail!(
+            "{} of {} variants cannot run, so none was started: {first}{more}",
+            bad.len(),
+            variants.len()
+        );
+    }
+    Ok(())
 }
 
 /// The base case as a TOML value, STL paths made relative to the sweep's
