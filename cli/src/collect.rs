@@ -93,6 +93,11 @@ pub struct Row {
     /// The warning sentences of the variant's summary.
     #[serde(default)]
     pub warning_texts: Vec<String>,
+    /// It was solved on at least a third but under half of the panels
+    /// suggested for its body, so its region verdicts can still move
+    /// ([`crate::summary::Summary::coarse_note`]).
+    #[serde(default)]
+    pub coarse: bool,
     /// Its drag is the attached flow's plateau model's
     /// ([`crate::summary::Summary::plateau_drag`]).
     #[serde(default)]
@@ -160,6 +165,7 @@ fn notes(c: &Collected) -> Vec<String> {
                 separation_spread(rows).filter(|_| rows.iter().any(|r| !r.plateau_drag)),
                 underbody_spread(rows),
                 slope_spread(rows),
+                coarse_verdicts(rows),
             ]
             .into_iter()
             .flatten()
@@ -645,6 +651,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         speed: flow("speed", still.speed),
         yaw_deg: flow("yaw", still.yaw),
         warning_texts: s.warnings.clone(),
+        coarse: s.coarse_note().is_some(),
         plateau_drag: s.plateau_drag(),
         wheels_on: s.wheels_on(),
         regions: s.regions.clone(),
@@ -1172,6 +1179,30 @@ fn panel_spread(c: &[Row]) -> Option<String> {
     })
 }
 
+/// A note when variants showing region verdicts were solved on under
+/// half of their suggested panels: each run's report says that a verdict
+/// can still move there, and the page shows the verdicts side by side.
+fn coarse_verdicts(c: &[Row]) -> Option<String> {
+    let coarse: Vec<&str> = c
+        .iter()
+        .filter(|r| r.coarse && !r.regions.is_empty())
+        .map(|r| r.name.as_str())
+        .collect();
+    let which = match coarse.len() {
+        0 => return None,
+        n if n == c.len() => "Every variant was".to_owned(),
+        1 => format!("{} was", coarse[0]),
+        _ => format!("{} were", coarse.join(", ")),
+    };
+    Some(format!(
+        "{which} solved on under half of the panels suggested for its body: a region's verdict can \
+         still change with the panel count there (the demo coupe's boot deck read attached at 2,992 \
+         panels, against 22 to 36 % separated from 3,956 up), so read the verdicts and their changes \
+         as provisional, and before acting on one near its line raise geometry.panels to the \
+         suggested count (tuft check prints it)."
+    ))
+}
+
 /// Lowest and highest of a percentage over the variants.
 fn range<'a>(c: impl IntoIterator<Item = &'a Row>, f: impl Fn(&Row) -> f64) -> (f64, f64) {
     c.into_iter()
@@ -1466,6 +1497,7 @@ mod tests {
             speed: 40.0,
             yaw_deg: 0.0,
             warning_texts: Vec::new(),
+            coarse: false,
             plateau_drag: false,
             wheels_on: false,
             regions: Vec::new(),
@@ -1885,6 +1917,33 @@ mod tests {
                 && line.contains("lowest in this model: v0"),
             "{line}"
         );
+    }
+
+    /// Variants with region verdicts solved on under half of their
+    /// suggested panels are named in a note (a review's 3,000-panel coupe
+    /// sweep showed "boot deck 0 % attached" against "25 % partly
+    /// separated" with no word that its runs' reports doubt them); without
+    /// regions, or at the suggested count, there is no note.
+    #[test]
+    fn coarse_variants_with_verdicts_are_noted() {
+        let mut c = sweep(&[10.0, 10.2, 10.1]);
+        assert!(coarse_verdicts(&c.variants).is_none());
+        for r in &mut c.variants {
+            r.regions = vec![RegionResult::example("boot deck", 0.1, None)];
+        }
+        assert!(coarse_verdicts(&c.variants).is_none());
+        c.variants[1].coarse = true;
+        assert!(
+            coarse_verdicts(&c.variants)
+                .is_some_and(|n| n.starts_with("v1 was solved on under half")),
+            "{:?}",
+            coarse_verdicts(&c.variants)
+        );
+        for r in &mut c.variants {
+            r.coarse = true;
+        }
+        assert!(coarse_verdicts(&c.variants).is_some_and(|n| n.starts_with("Every variant was")));
+        assert!(notes(&c).iter().any(|n| n.starts_with("Every variant was")));
     }
 
     /// Variants run attached-only that separate carry the plateau model's

@@ -590,6 +590,9 @@ fn notes(
     if let Some(n) = wrap_note(sa, sb) {
         notes.push(n);
     }
+    if let Some(n) = coarse_note(sa, sb) {
+        notes.push(n);
+    }
     notes.extend(model_notes);
     // First: it says how far to trust the notes after it.
     if let Some(n) = offset_note(a, b, surface) {
@@ -745,6 +748,27 @@ pub fn slopes_in_doubt(slopes: &[f64]) -> Option<(f64, f64)> {
     let lo = slopes.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = slopes.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     (hi - lo >= 1.0 && hi + SLOPE_READ_LOW_DEG >= SLOPE_CAUTION_DEG).then_some((lo, hi))
+}
+
+/// A note when a run with named regions was solved on under half of its
+/// suggested panels ([`crate::summary::Summary::coarse_note`]): its
+/// report says its region verdicts can still move with the panel count,
+/// and so can their changes between the runs.
+fn coarse_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    if a.regions.is_empty() && b.regions.is_empty() {
+        return None;
+    }
+    let which = match (a.coarse_note().is_some(), b.coarse_note().is_some()) {
+        (true, true) => "both runs were",
+        (true, false) => "A was",
+        (false, true) => "B was",
+        (false, false) => return None,
+    };
+    Some(format!(
+        "{which} solved on under half of the panels suggested for the body: a region's verdict, and \
+         so its change between the runs, can still move with the panel count there (see the run's \
+         report); before acting on a change near a verdict's line, run both at the suggested count"
+    ))
 }
 
 /// A note when one run's surface was wrapped and the other's was not: the
@@ -1107,6 +1131,35 @@ mod tests {
         assert!(note(15.0, 23.9).is_none());
         assert!(note(12.0, 20.0).is_none());
         assert!(note(30.0, 30.4).is_none());
+    }
+
+    /// A run with regions on under half of its suggested panels (2,992 of
+    /// 6,500, the demo coupe's case whose boot deck read attached) is
+    /// noted, naming which; at the suggested count, or without regions,
+    /// it is not.
+    #[test]
+    fn a_coarse_run_with_regions_is_noted() {
+        let run = |panels: usize, regions: bool| {
+            let mut s = Summary::default();
+            s.mesh.panels = panels;
+            s.mesh.preparation = serde_json::json!({ "suggested_panels": 6500 });
+            s.separated_wakes = Some(crate::summary::SeparatedWakes::default());
+            if regions {
+                s.regions
+                    .push(crate::region::RegionResult::example("boot deck", 0.0, None));
+            }
+            s
+        };
+        assert!(
+            coarse_note(&run(2992, true), &run(6456, true))
+                .is_some_and(|n| n.starts_with("A was solved on under half"))
+        );
+        assert!(
+            coarse_note(&run(2992, true), &run(2992, true))
+                .is_some_and(|n| n.starts_with("both runs were"))
+        );
+        assert!(coarse_note(&run(6456, true), &run(6456, true)).is_none());
+        assert!(coarse_note(&run(2992, false), &run(2992, false)).is_none());
     }
 
     /// The review's car compared with the same car exported from its nose

@@ -198,18 +198,7 @@ fn print_summary(out: &Path, s: &Summary) {
     }
     // Region verdicts on a coarse mesh: the report's note, where the
     // verdicts are read.
-    let suggested = s
-        .mesh
-        .preparation
-        .get("suggested_panels")
-        .and_then(serde_json::Value::as_u64);
-    if let (false, Some(n)) = (s.regions.is_empty(), suggested)
-        && let Some(note) = crate::pipeline::coarse_note(
-            s.mesh.panels,
-            usize::try_from(n).unwrap_or(usize::MAX),
-            s.separated_wakes.is_some(),
-        )
-    {
+    if let (false, Some(note)) = (s.regions.is_empty(), s.coarse_note()) {
         say!("  note: {note}");
     }
     for w in &s.warnings {

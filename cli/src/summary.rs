@@ -250,6 +250,25 @@ impl Summary {
         self.separated_wakes.is_none() && self.separation.area_m2 > 0.0
     }
 
+    /// The note of a separated-flow run on at least a third but under
+    /// half of the panels suggested for its body, that a region's verdict
+    /// can still change with the panel count
+    /// ([`crate::pipeline::coarse_note`]), from what the summary records:
+    /// the run's report and stdout give it, and `tuft compare` and `tuft
+    /// collect` carry it beside the verdicts they show.
+    pub fn coarse_note(&self) -> Option<String> {
+        let suggested = self
+            .mesh
+            .preparation
+            .get("suggested_panels")
+            .and_then(serde_json::Value::as_u64)?;
+        crate::pipeline::coarse_note(
+            self.mesh.panels,
+            usize::try_from(suggested).ok()?,
+            self.separated_wakes.is_some(),
+        )
+    }
+
     /// Whether the surface was wrapped (parts joined into one outer surface
     /// on a grid, `tuft_mesh::wrap`), which re-meshes the whole body.
     pub fn wrapped(&self) -> bool {

@@ -474,7 +474,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             mesh.len(),
         ));
     }
-    Summary {
+    let mut s = Summary {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),
         case: serde_json::to_value(&case.file).unwrap_or_default(),
@@ -549,20 +549,11 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         regions: c.regions.clone(),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
-        notes: geo
-            .report
-            .quality
-            .notes
-            .iter()
-            .cloned()
-            .chain(crate::pipeline::coarse_note(
-                mesh.len(),
-                geo.report.suggested_panels,
-                c.wakes.is_some(),
-            ))
-            .collect(),
+        notes: geo.report.quality.notes.clone(),
         caution: CAUTION.into(),
-    }
+    };
+    s.notes.extend(s.coarse_note());
+    s
 }
 
 /// The report's words on the edges the flow leaves from a face into the
