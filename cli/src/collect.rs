@@ -799,14 +799,30 @@ fn shown_cell(key: &str, v: &serde_json::Value) -> String {
     }
 }
 
+/// Whether the ranking names a winner among `rows` (one wind condition):
+/// its line says "best drag" ([`best_drag_in`]), and nothing holds back
+/// every winner of the sweep ([`best_drag`]: coarse meshes, the plateau
+/// model's drag, wheels on).
+fn winner_named(c: &Collected, rows: &[Row]) -> bool {
+    not_converged(c).is_empty()
+        && !c.variants.iter().any(|r| r.plateau_drag || r.wheels_on)
+        && best_drag_in(rows).starts_with("best drag:")
+}
+
 /// `sweep.csv`: one row per variant in rank order, numbers in shortest
-/// round-trip form.
+/// round-trip form. Beside the swept keys it carries each variant's wind
+/// (`speed_ms`, `yaw_deg`: its kg depend on them), its drag above the
+/// lowest of its wind condition in counts (`counts_above_lowest`, on its
+/// own reference area; empty where the areas differ and `drag_area_m2`
+/// ranks), and, on each condition's rank 1, whether the ranking names it
+/// the best (`best_drag`: `yes`, or `no` when it is not clearly lower,
+/// see sweep.html), so that rank 1 is not read as a winner on its own.
 pub fn csv(c: &Collected) -> String {
     let mut s = String::from("rank,variant");
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",cd,cd_low,cd_high,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
+    s.push_str(",speed_ms,yaw_deg,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -815,47 +831,77 @@ pub fn csv(c: &Collected) -> String {
         );
     }
     s.push('\n');
-    for r in &c.variants {
-        let _ = write!(s, "{},{}", r.rank, r.name);
-        for k in &c.keys {
-            let _ = write!(s, ",{}", r.settings.get(k).map(cell).unwrap_or_default());
+    let wind: Vec<(&[Row], bool)> = wind_groups(c)
+        .into_iter()
+        .map(|(_, rows)| (rows, winner_named(c, rows)))
+        .collect();
+    for (rows, named) in wind {
+        let lowest = rows.iter().map(|r| r.cd).fold(f64::INFINITY, f64::min);
+        let counts = !areas_differ(rows);
+        for r in rows {
+            csv_row(
+                &mut s,
+                c,
+                r,
+                counts.then(|| 1000.0 * (r.cd - lowest)),
+                named,
+            );
         }
-        let _ = write!(
-            s,
-            ",{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
-            r.cd,
-            r.cd_low,
-            r.cd_high,
-            r.reference_area_m2,
-            drag_area(r),
-            r.cl,
-            r.lift_kg,
-            r.front_axle_kg,
-            r.rear_axle_kg,
-            r.separated_area_m2,
-            r.separated_percent,
-            r.panels,
-            r.warnings,
-            u8::from(r.wheels_on)
-        );
-        for g in &c.regions {
-            match region(r, g) {
-                Some(g) => {
-                    let _ = write!(
-                        s,
-                        ",{},{},{},{}",
-                        100.0 * g.separated_fraction,
-                        g.verdict,
-                        100.0 * g.separated_band[0],
-                        100.0 * g.separated_band[1]
-                    );
-                }
-                None => s.push_str(",,,,"),
-            }
-        }
-        s.push('\n');
     }
     s
+}
+
+/// One variant's line of `sweep.csv` ([`csv`]); `above`: its drag above
+/// the lowest of its wind condition, counts; `named`: the ranking names a
+/// winner in its condition.
+fn csv_row(s: &mut String, c: &Collected, r: &Row, above: Option<f64>, named: bool) {
+    let _ = write!(s, "{},{}", r.rank, r.name);
+    for k in &c.keys {
+        let _ = write!(s, ",{}", r.settings.get(k).map(cell).unwrap_or_default());
+    }
+    let best = match (r.rank, named) {
+        (1, true) => "yes",
+        (1, false) => "no",
+        _ => "",
+    };
+    let _ = write!(
+        s,
+        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+        r.speed,
+        r.yaw_deg,
+        r.cd,
+        r.cd_low,
+        r.cd_high,
+        above.map(|a| format!("{a:.1}")).unwrap_or_default(),
+        best,
+        r.reference_area_m2,
+        drag_area(r),
+        r.cl,
+        r.lift_kg,
+        r.front_axle_kg,
+        r.rear_axle_kg,
+        r.separated_area_m2,
+        r.separated_percent,
+        r.panels,
+        r.warnings,
+        u8::from(r.wheels_on)
+    );
+    for g in &c.regions {
+        match region(r, g) {
+            Some(g) => {
+                let _ = write!(
+                    s,
+                    ",{},{},{},{}",
+                    100.0 * g.separated_fraction,
+                    g.verdict,
+                    100.0 * g.separated_band[0],
+                    100.0 * g.separated_band[1]
+                );
+            }
+            None => s.push_str(",,,,"),
+        }
+    }
+    s.push('\n');
 }
 
 /// Plots of drag, lift and separated area against each numeric swept
@@ -1917,6 +1963,33 @@ mod tests {
                 && line.contains("lowest in this model: v0"),
             "{line}"
         );
+    }
+
+    /// sweep.csv carries each variant's wind, its drag above the lowest
+    /// in counts and, on rank 1, whether the ranking names it the best (a
+    /// review read rank 1 as a winner where the page said "no clear
+    /// winner").
+    #[test]
+    fn the_csv_says_whether_rank_one_is_a_winner() {
+        let column = |csv: &str, name: &str| -> Vec<String> {
+            let mut lines = csv.lines();
+            let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+            let at = header.iter().position(|h| *h == name).unwrap();
+            lines
+                .map(|l| l.split(',').nth(at).unwrap().to_owned())
+                .collect()
+        };
+        let mut c = sweep(&[10.0, 10.0]);
+        c.variants[1].cd = 0.35;
+        let text = csv(&c);
+        assert_eq!(column(&text, "best_drag"), ["yes", ""], "{text}");
+        assert_eq!(column(&text, "counts_above_lowest"), ["0.0", "50.0"]);
+        assert_eq!(column(&text, "speed_ms"), ["40", "40"]);
+        assert_eq!(column(&text, "yaw_deg"), ["0", "0"]);
+        c.variants[1].cd = 0.3005;
+        let text = csv(&c);
+        assert_eq!(column(&text, "best_drag"), ["no", ""], "{text}");
+        assert_eq!(column(&text, "counts_above_lowest"), ["0.0", "0.5"]);
     }
 
     /// Variants with region verdicts solved on under half of their
