@@ -111,6 +111,24 @@ fn an_stl_below_the_ground_asks_whether_it_has_y_up() {
     );
 }
 
+/// A ground height typed in millimetres (120 for 0.12 m) puts the whole
+/// body below the plane: said so, in metres, rather than as a body
+/// reaching "0 mm" below it.
+#[test]
+fn a_ground_in_millimetres_is_named_as_above_the_whole_body() {
+    let error = refused(
+        "ground-mm",
+        &format!("{SPHERE}[ground]\nz = 120\n"),
+        false,
+        &[
+            "ground.z",
+            "the whole body, from z = -0.5",
+            "lies below the ground plane z = 120",
+        ],
+    );
+    assert!(!error.contains("0 mm below"), "{error}");
+}
+
 #[test]
 fn missing_stl_is_refused() {
     refused(

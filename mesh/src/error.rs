@@ -188,11 +188,7 @@ pub enum MeshError {
     },
     /// A grounded body reaches below its ground plane by more than tyres
     /// pressed into the floor would.
-    #[error(
-        "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m \
-         (up to {allowed_mm:.0} mm below it is cut off at the ground, as tyres pressed into the floor are)",
-        allowed_mm = 1000.0 * allowed
-    )]
+    #[error("{}", below_ground_words(*z, *ground, *allowed, *top))]
     BelowGround {
         /// The body's least z, metres.
         z: f64,
@@ -232,4 +228,22 @@ pub enum MeshError {
         /// The wrap's cell edge, metres.
         cell: f64,
     },
+}
+
+/// [`MeshError::BelowGround`] in words. A body wholly below the plane
+/// (a ground height typed in millimetres, 120 for 0.12) is said so: the
+/// depth allowed for tyres, zero there, would only confuse.
+fn below_ground_words(z: f64, ground: f64, allowed: f64, top: f64) -> String {
+    if top <= ground {
+        format!(
+            "mirror plane problem: the whole body, from z = {z:.4} to {top:.4} m, lies below the ground \
+             plane z = {ground:.4} m (the ground's height is in metres, in tuft's axes, like the body's)"
+        )
+    } else {
+        format!(
+            "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m \
+             (up to {:.0} mm below it is cut off at the ground, as tyres pressed into the floor are)",
+            1000.0 * allowed
+        )
+    }
 }
