@@ -328,6 +328,13 @@ fn read_lines(r: &PrepareReport) -> String {
                 read.trailing_bytes
             );
         }
+        if read.count_missing {
+            s += &format!(
+                "           the header's facet count was 0 (its writer left it out): read the {} facets \
+                 the file's length holds\n",
+                read.facets
+            );
+        }
     }
     if !r.axes.is_identity() {
         let mut what = Vec::new();

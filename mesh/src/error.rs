@@ -71,12 +71,21 @@ pub enum MeshError {
         room: u64,
     },
     /// A facet could not be read or parsed (truncated file, malformed number).
-    #[error("facet {} (counting from 1) cannot be read: {}", .facet + 1, crate::import::plain_read_error(.reader))]
+    #[error("facet {} (counting from 1) cannot be read: {}", .facet + 1, match .line {
+        Some((n, text)) if crate::import::plain_read_error(.reader).contains("NaN") => {
+            format!("line {n} (`{text}`): {}", crate::import::plain_read_error(.reader))
+        }
+        Some((n, text)) => format!("line {n} (`{text}`) does not read as ASCII STL"),
+        None => crate::import::plain_read_error(.reader),
+    })]
     BadFacet {
         /// Index of the facet (0-based) being read.
         facet: usize,
         /// The reader's complaint (put in plain words by the message).
         reader: std::io::Error,
+        /// In an ASCII file, the first line that does not read as ASCII
+        /// STL (its number from 1 and its text), when one was found.
+        line: Option<(usize, String)>,
     },
     /// A facet corner has a NaN or infinite coordinate.
     #[error(

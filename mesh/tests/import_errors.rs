@@ -106,12 +106,52 @@ fn ascii_with_malformed_number() {
     let bad = good.replacen("vertex ", "vertex 1.2.3e", 1);
     let e = err_of(bad.as_bytes());
     assert!(matches!(e, MeshError::BadFacet { facet: 0, .. }), "{e}");
-    // The message counts from 1, as a text editor does, in plain words.
+    // The message counts from 1, as a text editor does, and names the
+    // line and what it holds.
     assert!(
         e.to_string()
-            .starts_with("facet 1 (counting from 1) cannot be read: a number in it is malformed"),
+            .starts_with("facet 1 (counting from 1) cannot be read: line 4 (`vertex 1.2.3e")
+            && e.to_string().ends_with("`) does not read as ASCII STL"),
         "{e}"
     );
+}
+
+/// A keyword typed wrong in the middle of an ASCII file: the line and its
+/// text are named (a review's `vertx` on line 501 had been "a line of it
+/// does not read as ASCII STL", with no line).
+#[test]
+fn ascii_with_a_misspelt_keyword_names_its_line() {
+    let good = common::ascii_stl(&generate::icosphere(1.0, 1));
+    let at = good.match_indices("vertex ").nth(71 * 3 + 1).unwrap().0;
+    let bad = format!("{}vertx{}", &good[..at], &good[at + 6..]);
+    let line = bad[..at].matches('\n').count() + 1;
+    let e = err_of(bad.as_bytes()).to_string();
+    assert!(
+        e.starts_with(&format!(
+            "facet 72 (counting from 1) cannot be read: line {line} (`vertx"
+        )),
+        "{e}"
+    );
+}
+
+/// Keywords in capitals, as some exporters write them, read as in lower
+/// case; a binary file whose header count was left at 0 reads the facets
+/// its length holds, and says so.
+#[test]
+fn capital_keywords_and_a_missing_binary_count_read() {
+    let sphere = generate::icosphere(1.0, 1);
+    let dir = tempfile::tempdir().unwrap();
+    let upper = common::ascii_stl(&sphere).to_uppercase();
+    let (m, r) = read_stl(&common::write(dir.path(), "u.stl", upper.as_bytes())).unwrap();
+    assert_eq!((r.format, r.facets), (StlFormat::Ascii, 80));
+    let mut bytes = common::binary_stl(&sphere);
+    bytes[80..84].copy_from_slice(&0u32.to_le_bytes());
+    let (mb, rb) = read_stl(&common::write(dir.path(), "z.stl", &bytes)).unwrap();
+    assert_eq!(
+        (rb.format, rb.facets, rb.count_missing),
+        (StlFormat::Binary, 80, true)
+    );
+    assert_eq!(m.triangles, mb.triangles);
 }
 
 #[test]

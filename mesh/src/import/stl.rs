@@ -45,6 +45,11 @@ pub struct StlReport {
     pub vertices: usize,
     /// Bytes after the last declared binary facet (ignored).
     pub trailing_bytes: u64,
+    /// The binary header's facet count was 0 though the file holds whole
+    /// facets after it (a writer that never filled the count in): the
+    /// facets the file's length holds were read.
+    #[serde(default)]
+    pub count_missing: bool,
 }
 
 /// Read an STL file in the file's own length unit (no scaling).
@@ -78,23 +83,50 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         .read_to_end(&mut head)
         .map_err(io)?;
     let kind = classify(&head, bytes)?;
-    let (patched, format, declared) = match kind {
-        Kind::Binary { declared } => (
-            Patched::new(reader, vec![0; 80], 80).map_err(io)?,
-            StlFormat::Binary,
-            Some(declared),
-        ),
+    let count_missing = matches!(kind, Kind::Binary { declared: 0 })
+        && bytes > HEADER
+        && (bytes - HEADER) % FACET == 0;
+    let (mut patched, format, declared) = match kind {
+        Kind::Binary { declared } => {
+            // A count of 0 before whole facets: read what the length holds.
+            let declared = if count_missing {
+                (bytes - HEADER) / FACET
+            } else {
+                declared
+            };
+            let mut prefix = vec![0; 80];
+            prefix.extend_from_slice(&u32::try_from(declared).unwrap_or(u32::MAX).to_le_bytes());
+            (
+                Patched::new(reader, prefix, HEADER, false).map_err(io)?,
+                StlFormat::Binary,
+                Some(declared),
+            )
+        }
         Kind::Ascii => {
             let skip = first_line_length(&mut reader).map_err(io)?;
             let prefix = b"solid tuft\n".to_vec();
             (
-                Patched::new(reader, prefix, skip).map_err(io)?,
+                Patched::new(reader, prefix, skip, true).map_err(io)?,
                 StlFormat::Ascii,
                 None,
             )
         }
     };
-    let mesh = stream_facets(patched, declared)?;
+    let mesh = match stream_facets(&mut patched, declared) {
+        Err(MeshError::BadFacet { facet, reader, .. }) if format == StlFormat::Ascii => {
+            let mut inner = patched.inner.into_inner();
+            let line = inner
+                .seek(SeekFrom::Start(0))
+                .ok()
+                .and_then(|_| first_bad_line(BufReader::new(inner)));
+            return Err(MeshError::BadFacet {
+                facet,
+                reader,
+                line,
+            });
+        }
+        other => other?,
+    };
     if mesh.is_empty() {
         return Err(MeshError::NoFacets);
     }
@@ -105,8 +137,48 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         facets: mesh.len(),
         vertices: mesh.vertices.len(),
         trailing_bytes,
+        count_missing,
     };
     Ok((mesh, report))
+}
+
+/// The first line of an ASCII STL that does not read as one: an unknown
+/// keyword, or a `facet normal` or `vertex` line without three numbers.
+/// Its number (from 1) and its text, shortened; `None` when every line
+/// reads, or when the first that does not is a `vertex` or `facet` line
+/// the file ends in (cut short: the reader's own words say so).
+fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String)> {
+    let numbers = |t: &[&str]| t.iter().all(|x| x.parse::<f32>().is_ok());
+    let mut found: Option<(usize, String, bool)> = None;
+    for (k, line) in reader.split(b'\n').enumerate() {
+        let line = String::from_utf8_lossy(&line.ok()?).trim().to_owned();
+        if found.is_some() {
+            if line.is_empty() {
+                continue;
+            }
+            return found.map(|(n, text, _)| (n, text));
+        }
+        let lower = line.to_ascii_lowercase();
+        let t: Vec<&str> = lower.split_whitespace().collect();
+        let (fine, numbered) = match t.as_slice() {
+            [] | ["solid" | "endsolid", ..] | ["outer", "loop"] | ["endloop" | "endfacet"] => {
+                (true, false)
+            }
+            ["facet", "normal", rest @ ..] | ["vertex", rest @ ..] => {
+                (rest.len() == 3 && numbers(rest), true)
+            }
+            _ => (false, false),
+        };
+        if !fine {
+            let shown: String = line.chars().take(60).collect();
+            let more = if shown.len() < line.len() { "..." } else { "" };
+            found = Some((k + 1, format!("{shown}{more}"), numbered));
+        }
+    }
+    // The bad line was the file's last.
+    found
+        .filter(|(_, _, numbered)| !numbered)
+        .map(|(n, text, _)| (n, text))
 }
 
 /// The flavour decided from the first bytes and the length.
@@ -119,7 +191,9 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     if bytes == 0 {
         return Err(MeshError::EmptyFile);
     }
-    let text_start = String::from_utf8_lossy(head);
+    // Keywords in capitals (`SOLID`, `FACET`) are read too: some exporters
+    // write them so.
+    let text_start = String::from_utf8_lossy(head).to_ascii_lowercase();
     let looks_ascii = text_start.trim_start().starts_with("solid");
     if head.len() < HEADER as usize {
         return if looks_ascii {
@@ -186,12 +260,13 @@ pub fn plain_read_error(e: &std::io::Error) -> String {
 
 /// Stream facets, weld bit-identical corners, check every coordinate.
 fn stream_facets<R: Read + Seek>(
-    mut source: Patched<R>,
+    source: &mut Patched<R>,
     declared: Option<u64>,
 ) -> Result<TriMesh, MeshError> {
-    let facets = stl_io::create_stl_reader(&mut source).map_err(|source| MeshError::BadFacet {
+    let facets = stl_io::create_stl_reader(source).map_err(|source| MeshError::BadFacet {
         facet: 0,
         reader: source,
+        line: None,
     })?;
     let capacity = declared.map_or(1024, |n| n as usize);
     let mut vertices: Vec<Point> = Vec::with_capacity(capacity / 2 + 3);
@@ -202,6 +277,7 @@ fn stream_facets<R: Read + Seek>(
         let tri = item.map_err(|source| MeshError::BadFacet {
             facet,
             reader: source,
+            line: None,
         })?;
         let mut ids = [0u32; 3];
         for (corner, v) in tri.vertices.iter().enumerate() {
@@ -226,24 +302,28 @@ fn stream_facets<R: Read + Seek>(
 }
 
 /// A reader that serves `prefix` and then the inner reader from byte `skip`:
-/// masks a binary header that happens to start with `solid`, and gives an
-/// ASCII file a first line `stl_io` accepts. Seeking supports only a rewind
-/// to the start, which is all `stl_io` asks for.
+/// masks a binary header that happens to start with `solid` (and gives it
+/// the facet count read), and gives an ASCII file a first line `stl_io`
+/// accepts, its keywords in lower case (`lower`: `stl_io` reads only
+/// those). Seeking supports only a rewind to the start, which is all
+/// `stl_io` asks for.
 struct Patched<R> {
     prefix: Vec<u8>,
     pos: usize,
     inner: BufReader<R>,
     skip: u64,
+    lower: bool,
 }
 
 impl<R: Read + Seek> Patched<R> {
-    fn new(mut inner: R, prefix: Vec<u8>, skip: u64) -> std::io::Result<Self> {
+    fn new(mut inner: R, prefix: Vec<u8>, skip: u64, lower: bool) -> std::io::Result<Self> {
         inner.seek(SeekFrom::Start(skip))?;
         Ok(Self {
             prefix,
             pos: 0,
             inner: BufReader::with_capacity(1 << 16, inner),
             skip,
+            lower,
         })
     }
 }
@@ -256,7 +336,11 @@ impl<R: Read + Seek> Read for Patched<R> {
             self.pos += n;
             return Ok(n);
         }
-        self.inner.read(buf)
+        let n = self.inner.read(buf)?;
+        if self.lower {
+            buf[..n].make_ascii_lowercase();
+        }
+        Ok(n)
     }
 }
 
