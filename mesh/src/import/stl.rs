@@ -85,7 +85,7 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
     let kind = classify(&head, bytes)?;
     let count_missing = matches!(kind, Kind::Binary { declared: 0 })
         && bytes > HEADER
-        && (bytes - HEADER) % FACET == 0;
+        && (bytes - HEADER).is_multiple_of(FACET);
     let (mut patched, format, declared) = match kind {
         Kind::Binary { declared } => {
             // A count of 0 before whole facets: read what the length holds.
