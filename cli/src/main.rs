@@ -166,6 +166,44 @@ fn stdout_failure() -> Option<String> {
 
 /// Print an error and its causes on one line, prefixed with the program name.
 fn report_error(err: &anyhow::Error) {
-    let chain: Vec<String> = err.chain().map(ToString::to_string).collect();
-    eprintln!("tuft: {}", chain.join(": "));
+    eprintln!("tuft: {}", error_line(err));
+}
+
+/// An error and its causes joined by ": ", a cause left out where the
+/// message before it already ends with it (an error that quotes its
+/// source, as a file's "path: No space left on device" does, had printed
+/// the system's words twice).
+fn error_line(err: &anyhow::Error) -> String {
+    let mut parts: Vec<String> = Vec::new();
+    for cause in err.chain() {
+        let text = cause.to_string();
+        if !parts.last().is_some_and(|p| p.ends_with(&text)) {
+            parts.push(text);
+        }
+    }
+    parts.join(": ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A file error that quotes its cause prints the system's words once;
+    /// causes that add something stay.
+    #[test]
+    fn an_error_line_does_not_repeat_its_cause() {
+        let full = std::io::Error::from_raw_os_error(28);
+        let words = full.to_string();
+        let e = anyhow::Error::new(crate::output::OutputError::Io {
+            path: "out/slice.vti".into(),
+            source: full,
+        })
+        .context("writing results");
+        assert_eq!(
+            error_line(&e),
+            format!("writing results: out/slice.vti: {words}")
+        );
+        let e = anyhow::anyhow!("the cause").context("what failed");
+        assert_eq!(error_line(&e), "what failed: the cause");
+    }
 }
