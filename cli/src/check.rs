@@ -103,7 +103,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     } else {
         file.display().to_string()
     };
-    let (panels, report) = prepare(&file, &params)
+    let (panels, mut report) = prepare(&file, &params)
         .map_err(|e| match &case {
             Some(case) => crate::geometry::name_mirror_keys(e, case),
             None => {
@@ -125,6 +125,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
         anyhow::bail!("{label}: {why}");
     }
+    report
+        .quality
+        .notes
+        .extend(crate::geometry::size_note(size, params.units, key));
     // Axles and regions off the body are an error, given after what check
     // knows of the STL (its extent above all, which is what the axles must
     // be set against).

@@ -32,7 +32,7 @@ pub fn mirrors(case: &Case) -> Mirrors {
 pub fn load(case: &Case) -> Result<Geometry> {
     let mirrors = mirrors(case);
     let g = &case.file.geometry;
-    let (mesh, report, input_facets) = match &case.source {
+    let (mesh, mut report, input_facets) = match &case.source {
         GeometrySource::Stl { path, unit, axes } => {
             let params = PrepareParams {
                 units: *unit,
@@ -65,6 +65,13 @@ pub fn load(case: &Case) -> Result<Geometry> {
     check_ground(&mesh, case)?;
     check_size(&mesh, case)?;
     check_placement(&mesh, case)?;
+    if let GeometrySource::Stl { unit, .. } = &case.source {
+        let (lo, hi) = mesh.bounds();
+        report
+            .quality
+            .notes
+            .extend(size_note((hi - lo).max(), *unit, "geometry.units"));
+    }
     Ok(Geometry {
         mesh,
         input_facets,
@@ -243,6 +250,54 @@ pub fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -
     ))
 }
 
+/// Largest body, metres across at its largest, that reads as a scale
+/// model rather than a car (cars are about 3 to 6 m long; common
+/// practice): a car in centimetres or inches read as millimetres comes to
+/// 0.45 or 0.18 m, which the size limits let through.
+pub const SCALE_MODEL_SIZE: f64 = 1.0;
+
+/// A note for an STL body under [`SCALE_MODEL_SIZE`] across: a scale
+/// model runs as it is, but a car whose STL unit was mistaken would
+/// report its numbers at a toy's size; the note names the car-sized
+/// readings the other units give (2.5 to 7 m). `unit`: the STL's, named
+/// with `key`.
+pub fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String> {
+    use tuft_mesh::LengthUnit;
+    if size >= SCALE_MODEL_SIZE {
+        return None;
+    }
+    let read = size / unit.to_metres();
+    let others: Vec<String> = [
+        LengthUnit::M,
+        LengthUnit::Cm,
+        LengthUnit::Mm,
+        LengthUnit::In,
+    ]
+    .into_iter()
+    .filter(|&u| u != unit)
+    .map(|u| (u, read * u.to_metres()))
+    .filter(|(_, m)| (2.5..=7.0).contains(m))
+    .map(|(u, m)| {
+        format!(
+            "in {} it would be {} m",
+            u.name(),
+            crate::output::html::significant(m, 2)
+        )
+    })
+    .collect();
+    let hint = if others.is_empty() {
+        String::new()
+    } else {
+        format!("; if it is a car, is {key} right ({})?", others.join(", "))
+    };
+    Some(format!(
+        "the body is {} m across at its largest, a scale model's size (the STL was read as {}): its \
+         Reynolds number, lift in kg and forces are the model's at this speed{hint}",
+        crate::output::html::significant(size, 2),
+        unit.name()
+    ))
+}
+
 /// Refuse axle positions outside the body's length (given in millimetres,
 /// or for another body).
 /// The axles and the named regions lie on the body (in tuft's axes; the
@@ -278,6 +333,24 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
 mod tests {
     use super::*;
     use crate::case::CaseFile;
+
+    /// A 4.5 m car exported in centimetres or inches and read as
+    /// millimetres (0.45 and 0.18 m) is noted with the unit that would
+    /// make it car-sized; a 1.04 m research body or a car is not.
+    #[test]
+    fn a_toy_sized_stl_body_is_noted_with_the_unit_that_fits() {
+        use tuft_mesh::LengthUnit;
+        let cm = size_note(0.45, LengthUnit::Mm, "geometry.units").unwrap();
+        assert!(
+            cm.starts_with("the body is 0.45 m across")
+                && cm.contains("is geometry.units right (in centimetres it would be 4.5 m)"),
+            "{cm}"
+        );
+        let inch = size_note(4.5 / 25.4, LengthUnit::Mm, "k").unwrap();
+        assert!(inch.contains("in inches it would be 4.5 m"), "{inch}");
+        assert!(size_note(1.044, LengthUnit::Mm, "k").is_none());
+        assert!(size_note(4.5, LengthUnit::Mm, "k").is_none());
+    }
 
     fn coupe(ride: f64) -> PanelMesh {
         let text = format!(
