@@ -788,7 +788,17 @@ fn report(
         ));
     }
     numbers.extend([
-        NumberRow::fixed("Side-force coefficient", k.side, 3, "-"),
+        NumberRow::fixed(
+            if s.flow("yaw").is_some_and(|y| y != 0.0) {
+                "Side-force coefficient (across the wind, level, positive to the +y side; the drag \
+                 above is along the wind, not the body's axis)"
+            } else {
+                "Side-force coefficient (positive to the +y side)"
+            },
+            k.side,
+            3,
+            "-",
+        ),
         NumberRow::fixed(
             if s.mesh.ground_z.is_some() {
                 "Pitching-moment coefficient (about the body's lateral axis through the wheelbase's \
