@@ -198,6 +198,30 @@ pub fn check_fits(
         return Ok(());
     };
     let need = memory_for(n, op, loop_on);
+    // What the count needs, on the operator that needs less when that is
+    // the other one (an "auto" run that would not fit dense had quoted
+    // the compressed operator's 0.87 GB where a run that fits announces
+    // the dense 0.72).
+    let name = |o: Operator| match o {
+        Operator::Dense => "dense",
+        Operator::Compressed => "compressed",
+    };
+    let other_op = match op {
+        Operator::Dense => Operator::Compressed,
+        Operator::Compressed => Operator::Dense,
+    };
+    let other = memory_for(n, other_op, loop_on);
+    let need_words = if other < need {
+        format!(
+            "about {:.2} GB on the {} matrix ({:.2} GB on the {})",
+            other / 1e9,
+            name(other_op),
+            need / 1e9,
+            name(op)
+        )
+    } else {
+        format!("about {:.2} GB", need / 1e9)
+    };
     if need > avail {
         // The smallest run a case may ask for, on the operator that needs
         // less, with the loop or without.
@@ -215,10 +239,9 @@ pub fn check_fits(
                 ""
             };
             bail!(
-                "{n} panels need about {:.2} GB but only {:.2} GB is available, less than even the \
+                "{n} panels need {need_words} but only {:.2} GB is available, less than even the \
                  smallest run takes ({MIN_PANELS} panels, about {:.2} GB): free memory or raise \
                  --memory-limit{attached}",
-                need / 1e9,
                 avail / 1e9,
                 smallest(loop_on) / 1e9
             );
@@ -261,9 +284,8 @@ pub fn check_fits(
             ""
         };
         bail!(
-            "{n} panels need about {:.2} GB but only {:.2} GB is available: set geometry.panels to \
+            "{n} panels need {need_words} but only {:.2} GB is available: set geometry.panels to \
              {fit} or fewer{coarse}{half}{attached}",
-            need / 1e9,
             avail / 1e9
         );
     }
@@ -367,6 +389,24 @@ mod tests {
             coarse(6_500)
         );
         assert!(!coarse(0).contains("under a third"), "{}", coarse(0));
+        // Where the other operator needs less, the refusal quotes that
+        // (the figure a run that fits announces) beside the one it chose.
+        let (dense, compressed) = (
+            memory_for(8_060, Operator::Dense, true),
+            memory_for(8_060, Operator::Compressed, true),
+        );
+        assert!(dense < compressed, "{dense} {compressed}");
+        let err = check_fits(8_060, Operator::Compressed, (false, true, 0), Some(0.3e9))
+            .unwrap_err()
+            .to_string();
+        assert!(
+            err.contains(&format!(
+                "need about {:.2} GB on the dense matrix ({:.2} GB on the compressed)",
+                dense / 1e9,
+                compressed / 1e9
+            )),
+            "{err}"
+        );
     }
 
     #[test]
