@@ -367,7 +367,24 @@ pub fn other_kind(path: &Path, text: &str, sweep: bool) -> Result<()> {
 /// and column, the line as written, and the complaint without Rust's type
 /// names ("expected f64" reads "expected a number").
 pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> anyhow::Error {
-    let mut what = e.message().trim().to_owned();
+    let what = plain_toml_words(e.message());
+    let Some(span) = e.span() else {
+        return anyhow::anyhow!("{}: {what}", path.display());
+    };
+    let before = &text[..span.start.min(text.len())];
+    let line = before.matches('\n').count() + 1;
+    let column = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
+    let written = text.lines().nth(line - 1).unwrap_or("").trim();
+    anyhow::anyhow!(
+        "{}: line {line}, column {column} (`{written}`): {what}",
+        path.display()
+    )
+}
+
+/// A TOML reader's complaint without Rust's type names ("expected f64"
+/// reads "where a number is expected"), on one line.
+pub fn plain_toml_words(message: &str) -> String {
+    let mut what = message.trim().to_owned();
     for (rust, plain) in [
         ("invalid type: ", ""),
         (", expected f64", " where a number is expected"),
@@ -384,18 +401,7 @@ pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> anyhow::Error
     ] {
         what = what.replace(rust, plain);
     }
-    let what = what.split_whitespace().collect::<Vec<_>>().join(" ");
-    let Some(span) = e.span() else {
-        return anyhow::anyhow!("{}: {what}", path.display());
-    };
-    let before = &text[..span.start.min(text.len())];
-    let line = before.matches('\n').count() + 1;
-    let column = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
-    let written = text.lines().nth(line - 1).unwrap_or("").trim();
-    anyhow::anyhow!(
-        "{}: line {line}, column {column} (`{written}`): {what}",
-        path.display()
-    )
+    what.split_whitespace().collect::<Vec<_>>().join(" ")
 }
 
 fn positive(key: &str, v: f64) -> Result<()> {

@@ -392,12 +392,10 @@ fn variant(base: &toml::Value, dir: &Path, settings: Vec<(String, toml::Value)>)
     }
     let file = match error {
         Some(e) => Err(e),
-        None => value.clone().try_into::<CaseFile>().map_err(|e| {
-            e.to_string()
-                .split_whitespace()
-                .collect::<Vec<_>>()
-                .join(" ")
-        }),
+        None => value
+            .clone()
+            .try_into::<CaseFile>()
+            .map_err(|e| crate::case::plain_toml_words(&e.to_string())),
     };
     let geometry_key = geometry_key(&value);
     Variant {
@@ -680,16 +678,20 @@ mod tests {
     }
 
     #[test]
-    fn bad_sweeps_are_refused_and_bad_values_fail_their_variant_only() {
+    fn bad_sweeps_and_bad_values_are_refused() {
         assert!(plan(BASE).is_err(), "no vary lists");
         assert!(plan(&format!("{BASE}[[vary]]\nkey = \"yaw\"\nvalues = []\n")).is_err());
-        // A value of the wrong type fails its own variant only.
-        let p = plan(&format!(
+        // A value of the wrong type stops the sweep before anything runs,
+        // naming its variant and the key in plain words.
+        let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"yaw\"\nvalues = [0.0, \"five\"]\n"
-        ))
-        .unwrap();
-        assert!(p.variants[0].file.is_ok());
-        assert!(p.variants[1].file.as_ref().unwrap_err().contains("yaw"));
+        ));
+        assert!(
+            e.contains("1 of 2 variants cannot run, so none was started: yaw-five:")
+                && e.contains("where a number is expected")
+                && e.contains("flow.yaw"),
+            "{e}"
+        );
         // A misspelt key fails them all: refused up front.
         let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
