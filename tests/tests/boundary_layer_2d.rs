@@ -270,6 +270,8 @@ fn laminar_separation_becomes_a_bubble_transition() {
     assert!((tr - 0.123).abs() < 0.002, "transition at {tr}");
     let sep = samples[m.separation.expect("turbulent separation")].s;
     assert!(sep > tr);
+    // The station before separation is still under Head's threshold
+    // (H = 2.4, the default of the published 1.8-2.4).
     assert!(m.states[m.separation.unwrap() - 1].h < 2.4);
     assert_eq!(m.states.last().unwrap().state, FlowState::Separated);
 }
@@ -716,10 +718,12 @@ fn closes(states: &[(f64, FlowState, f64, f64)]) -> Option<f64> {
 /// (a base edge, a slant's side edge).
 #[test]
 fn a_wake_behind_a_protuberance_reattaches_within_a_few_heights() {
-    // A 10 cm back: the bubble closes seven heights past its foot (1.05 m),
-    // at 1.75 m, to a station.
+    // A 10 cm back whose foot is at 1.05 m: the bubble closes within the
+    // published 1.5 (cube) to 7 (step) heights past the foot, to a
+    // station (0.015 m); the rule takes the step's 7, at 1.75 m.
+    let published = |close: f64| (1.05 + 0.15 - 0.015..=1.05 + 0.7 + 0.015).contains(&close);
     let close = wake_closes(0.1, 3.0).expect("mirror on a flank: reattaches");
-    assert!((close - 1.75).abs() < 0.015, "closes at {close}");
+    assert!(published(close), "closes at {close}");
     // The back itself stays dead water behind the bluff rim.
     let at = |states: &[(f64, FlowState, f64, f64)], s: f64| {
         states
@@ -741,7 +745,7 @@ fn a_wake_behind_a_protuberance_reattaches_within_a_few_heights() {
     // reaching the back, not the thickened one.
     let rounded_states = behind_a_back_from(0.1, 3.0, None);
     let rounded = closes(&rounded_states).expect("rounded rim: reattaches");
-    assert!((rounded - 1.75).abs() < 0.015, "closes at {rounded}");
+    assert!(published(rounded), "closes at {rounded}");
     let (reaching, down_the_back) = (at(&rounded_states, 0.99).3, at(&rounded_states, 1.04).3);
     assert!(
         down_the_back > 1.5 * reaching,

@@ -130,7 +130,8 @@ fn kernels_match_quadrature() {
 
 /// Gauss's theorem: a closed surface subtends 4 pi at an interior point,
 /// so with C_ii = 1/2 each row of C sums to 1 (Katz & Plotkin 2001,
-/// sec. 10.4). Exact kernels everywhere; tolerance 1e-9 (round-off).
+/// sec. 10.4, from memory; Gauss's theorem itself is exact). Exact kernels
+/// everywhere; tolerance 1e-9 (round-off).
 #[test]
 fn doublet_rows_sum_to_one_on_closed_body() {
     let mut mesh = generate::latlong_sphere(1.0, 10, 14);

@@ -215,8 +215,11 @@ fn flat_faced_cylinders_against_the_handbook() {
             "{ld:>3}  {:>6}  {cd:.3}  {measured:.2}      {nose:.3}         {rim}",
             mesh.len()
         );
+        // One-sided: the loop's estimate is low on every cylinder (above),
+        // so one that came out more than 5 % high would be a new error,
+        // not the known shortfall.
         assert!(
-            (cd - measured).abs() <= tolerance * measured,
+            cd >= (1.0 - tolerance) * measured && cd <= 1.05 * measured,
             "L/D {ld}: C_D {cd:.3} against {measured} measured (Hoerner 1965, from memory)"
         );
         // Every panel of the nose face lies beside the rim.
@@ -244,6 +247,8 @@ fn flat_faced_cylinder_drag_settles_with_the_panels() {
         })
         .collect();
     println!("L/D 2 at 32, 48, 64 round: C_D {cd:.3?}");
+    // Seen: 0.672, 0.741, 0.753, so the last step moves it 0.012 and the
+    // first 0.081; allowed about 2.5 and 1.5 times that (our choice).
     assert!((cd[1] - cd[2]).abs() < 0.03, "{cd:?}");
     assert!((cd[0] - cd[2]).abs() < 0.12, "{cd:?}");
 }
@@ -253,7 +258,10 @@ fn flat_faced_cylinder_drag_settles_with_the_panels() {
 /// standing 50 mm above the ground, which attached flow and the dead water
 /// alone had put at C_D -0.83: its drag is a bluff body's again. No
 /// measurement of that box is at hand, so it is held to the flat-faced
-/// cylinders' range only (0.7 to 1.2 measured, above).
+/// cylinders' measured range (0.85 to 1.15, above) widened by the
+/// shortfall allowed on them (35 % low, 5 % high): 0.55 to 1.2 (seen
+/// 0.684 at 3,740 panels). The cube, like the cylinders, comes out low
+/// (0.754 at 2,700 panels): allowed 30 % low, 5 % high.
 #[test]
 fn sharp_edged_boxes() {
     let cube = PanelMesh::new(sharp_box([0.3, 0.3, 0.3], 0.02, 0.0), Mirrors::none()).unwrap();
@@ -262,7 +270,10 @@ fn sharp_edged_boxes() {
         "cube, {} panels: C_D {cd:.3} (measured 1.05), nose-face Cp {nose:.3}",
         cube.len()
     );
-    assert!((cd - 1.05).abs() <= 0.3 * 1.05, "cube: C_D {cd:.3}");
+    assert!(
+        (0.7 * 1.05..=1.05 * 1.05).contains(&cd),
+        "cube: C_D {cd:.3}"
+    );
     let mesh = PanelMesh::new(
         sharp_box([1.044, 0.389, 0.288], 0.03, 0.05),
         Mirrors::ground(0.0),
@@ -273,7 +284,7 @@ fn sharp_edged_boxes() {
         "box on the ground, {} panels: C_D {cd:.3}, nose-face Cp {nose:.3}",
         mesh.len()
     );
-    assert!((0.5..1.2).contains(&cd), "box: C_D {cd:.3}");
+    assert!((0.55..1.2).contains(&cd), "box: C_D {cd:.3}");
 }
 
 /// The march's free-streamline bound beside a rim is the strongest

@@ -141,7 +141,7 @@ fn slant_risk_rises_with_angle_and_is_stable_under_refinement() {
 }
 
 #[test]
-fn without_the_edge_window_peak_h_misses_the_bar_at_20_and_40_degrees() {
+fn without_the_edge_window_peak_h_is_held_to_twice_the_bar_at_20_and_40_degrees() {
     // With the window off (the panels beside the edge only) peak H
     // moves 0.002, 0.031, 0.012 and 0.048 at 10, 20, 30 and 40 degrees
     // (measured): the remnant of the edge's suction peak the march sees
