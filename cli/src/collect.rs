@@ -843,7 +843,7 @@ pub fn csv(c: &Collected) -> String {
                 &mut s,
                 c,
                 r,
-                counts.then(|| 1000.0 * (r.cd - lowest)),
+                counts.then_some(1000.0 * (r.cd - lowest)),
                 named,
             );
         }
