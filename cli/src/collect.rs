@@ -290,8 +290,11 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
 /// stood on the ground with wheels on, otherwise [`best_drag_in`] within each
 /// wind condition, since drag at another speed or yaw is another test.
 fn best_drag(c: &Collected) -> String {
+    // With one variant per wind condition (a yaw or speed sweep) there is
+    // nothing to rank, and so nothing to withhold.
+    let ranked = wind_groups(c).iter().any(|(_, rows)| rows.len() > 1);
     let coarse = not_converged(c);
-    if !coarse.is_empty() {
+    if ranked && !coarse.is_empty() {
         return format!(
             "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: raise \
              geometry.panels, see the warnings), so no winner is named",
@@ -300,7 +303,7 @@ fn best_drag(c: &Collected) -> String {
         );
     }
     let plateau = c.variants.iter().filter(|r| r.plateau_drag).count();
-    if plateau > 0 {
+    if ranked && plateau > 0 {
         return format!(
             "{plateau} of {} variants ran without the separated-flow loop (solver.wakes = \"attached\") \
              and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
@@ -309,7 +312,7 @@ fn best_drag(c: &Collected) -> String {
         );
     }
     let wheels = c.variants.iter().filter(|r| r.wheels_on).count();
-    if wheels > 0 {
+    if ranked && wheels > 0 {
         return format!(
             "{wheels} of {} variants stand on the ground with wheels on: {}; no winner is named",
             c.variants.len(),
@@ -320,6 +323,17 @@ fn best_drag(c: &Collected) -> String {
     match groups.as_slice() {
         [] => "no drag to rank".into(),
         [(_, rows)] => best_drag_in(rows),
+        _ if !ranked => {
+            let parts: Vec<String> = groups
+                .iter()
+                .map(|(label, rows)| format!("{label}: {}", leader_words(rows)))
+                .collect();
+            format!(
+                "one variant per wind condition, so no drag ranking (drag at another speed or yaw is \
+                 another test); {}",
+                parts.join("; ")
+            )
+        }
         _ => {
             let parts: Vec<String> = groups
                 .iter()
@@ -1762,10 +1776,14 @@ mod tests {
             "{}",
             best_drag(&c)
         );
-        let coarse = crate::pipeline::coarse_warning(1000, 6500, true).unwrap_or_default();
+        let coarse = crate::pipeline::coarse_warning(1000, 6500, true, false).unwrap_or_default();
         assert!(is_coarse_mesh(&coarse), "{coarse}");
-        let yawed = crate::pipeline::yaw_coarse_warning(3956, 6500, true, 5.0).unwrap_or_default();
+        let yawed =
+            crate::pipeline::yaw_coarse_warning(3956, 6500, (true, false), 5.0).unwrap_or_default();
         assert!(is_coarse_mesh(&yawed), "{yawed}");
+        let finer =
+            crate::pipeline::yaw_coarse_warning(3956, 6500, (true, true), 5.0).unwrap_or_default();
+        assert!(is_coarse_mesh(&finer), "{finer}");
         // Another warning leaves the verdict alone.
         warn(&mut c.variants[0], "axle positions not given");
         assert!(

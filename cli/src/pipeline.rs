@@ -338,15 +338,39 @@ pub fn loop_wanted(case: &Case) -> bool {
 /// the warning starts at a third rather than flag a converged case.
 /// Attached-only runs are not warned: their numbers converge from far
 /// fewer panels (the sphere against Lamb's solution).
-pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> Option<String> {
+/// `all_facets`: the run is on every facet of its STL (nothing to
+/// coarsen), so the advice is to export it finer, not to raise
+/// `geometry.panels` ([`raise_advice`]).
+pub fn coarse_warning(
+    panels: usize,
+    suggested: usize,
+    separated_loop: bool,
+    all_facets: bool,
+) -> Option<String> {
     (separated_loop && 3 * panels < suggested).then(|| {
         format!(
             "{panels} panels is under a third of the {suggested} suggested for this body (edges about 1/50 of \
              its length): the separation verdict and the drag estimate are not converged at this count \
-             (on the demo coupe C_D was 0.07 at 1,200 panels against 0.16 from 5,000 up); raise \
-             geometry.panels before comparing numbers"
+             (on the demo coupe C_D was 0.07 at 1,200 panels against 0.16 from 5,000 up); {} before \
+             comparing numbers",
+            raise_advice(panels, all_facets)
         )
     })
+}
+
+/// What to do about too few panels: raise `geometry.panels`, or, when the
+/// run is on every facet of its STL (`all_facets`: tuft coarsens, it does
+/// not refine; a review's yawed runs of the shipped 3,956-facet coupe were
+/// told to raise a count they could not), export the STL finer.
+pub fn raise_advice(panels: usize, all_facets: bool) -> String {
+    if all_facets {
+        format!(
+            "the STL has only {panels} facets after repair and tuft does not refine, so geometry.panels \
+             cannot raise the count: export the STL finer"
+        )
+    } else {
+        "raise geometry.panels".to_owned()
+    }
 }
 
 /// A note for a separated-flow run on at least a third but under half of
@@ -357,13 +381,23 @@ pub fn coarse_warning(panels: usize, suggested: usize, separated_loop: bool) -> 
 /// panels, against 22, 26, 31 and 36 % at 3,956, 6,456, 9,112 and 11,976
 /// panels, and C_D 0.144 against 0.151 to 0.161; the shipped `ahmed-25`
 /// case (3,906 of 8,000) is converged there, so this stays a note.
-pub fn coarse_note(panels: usize, suggested: usize, separated_loop: bool) -> Option<String> {
+pub fn coarse_note(
+    panels: usize,
+    suggested: usize,
+    separated_loop: bool,
+    all_facets: bool,
+) -> Option<String> {
     (separated_loop && 3 * panels >= suggested && 2 * panels < suggested).then(|| {
+        let advice = if all_facets {
+            raise_advice(panels, true)
+        } else {
+            format!("run geometry.panels = {suggested}")
+        };
         format!(
             "{panels} panels is under half of the {suggested} suggested for this body: a region's verdict \
              can still change with the panel count here (the demo coupe's boot deck read attached, 0 % \
              separated, at 2,992 panels, against 22 to 36 % from 3,956 to 11,976 panels); before acting \
-             on a verdict near its line, run geometry.panels = {suggested}"
+             on a verdict near its line, {advice}"
         )
     })
 }
@@ -471,7 +505,7 @@ pub fn far_ground_warning(mesh: &PanelMesh) -> Option<String> {
 pub fn yaw_coarse_warning(
     panels: usize,
     suggested: usize,
-    separated_loop: bool,
+    (separated_loop, all_facets): (bool, bool),
     yaw_deg: f64,
 ) -> Option<String> {
     let few = (panels as f64) < YAW_COARSE_SHARE * suggested as f64;
@@ -480,7 +514,8 @@ pub fn yaw_coarse_warning(
             "a yawed run on {panels} panels, under three quarters of the {suggested} suggested: the separation \
              a cross wind moves is not converged there, later than straight ahead (on the demo coupe at 10 degrees, 7.2 % \
              of the surface separated at 3,956 panels against 8.7 % at 8,048; straight ahead 8.9 and 9.4 %); \
-             raise geometry.panels before reading small yawed differences"
+             {} before reading small yawed differences",
+            raise_advice(panels, all_facets)
         )
     })
 }
@@ -1394,25 +1429,36 @@ mod tests {
     /// of the suggested count.
     #[test]
     fn warns_of_a_coarse_mesh_only_with_the_loop() {
-        assert!(yaw_coarse_warning(3956, 6500, true, 5.0).is_some());
-        assert!(yaw_coarse_warning(3956, 6500, true, 0.0).is_none());
-        assert!(yaw_coarse_warning(8048, 6500, true, 5.0).is_none());
+        assert!(yaw_coarse_warning(3956, 6500, (true, false), 5.0).is_some());
+        assert!(yaw_coarse_warning(3956, 6500, (true, false), 0.0).is_none());
+        assert!(yaw_coarse_warning(8048, 6500, (true, false), 5.0).is_none());
         // 6,000 of 6,500 suggested is within the measured convergence.
-        assert!(yaw_coarse_warning(6000, 6500, true, 5.0).is_none());
+        assert!(yaw_coarse_warning(6000, 6500, (true, false), 5.0).is_none());
         assert!(unrefined_warning(Some(10_000), 3956).is_some_and(|w| w.contains("used 3956")));
         assert!(unrefined_warning(Some(4000), 3960).is_none());
         assert!(unrefined_warning(None, 3956).is_none());
-        assert!(coarse_note(2992, 6500, true).is_some_and(|n| n.contains("under half")));
-        assert!(coarse_note(1200, 6500, true).is_none());
-        assert!(coarse_note(3956, 6500, true).is_none());
-        assert!(coarse_note(2992, 6500, false).is_none());
-        assert!(coarse_warning(1200, 6500, true).is_some());
-        assert!(coarse_warning(2200, 6500, true).is_none());
-        assert!(coarse_warning(1200, 6500, false).is_none());
-        let w = coarse_warning(2100, 6500, true).unwrap_or_default();
+        assert!(coarse_note(2992, 6500, true, false).is_some_and(|n| n.contains("under half")));
+        assert!(coarse_note(1200, 6500, true, false).is_none());
+        assert!(coarse_note(3956, 6500, true, false).is_none());
+        assert!(coarse_note(2992, 6500, false, false).is_none());
+        assert!(coarse_warning(1200, 6500, true, false).is_some());
+        assert!(coarse_warning(2200, 6500, true, false).is_none());
+        assert!(coarse_warning(1200, 6500, false, false).is_none());
+        let w = coarse_warning(2100, 6500, true, false).unwrap_or_default();
         assert!(
             w.starts_with("2100 panels is under a third of the 6500 suggested"),
             "{w}"
+        );
+        // On every facet of its STL, the advice is to export it finer
+        // (and collect still reads it as the coarse-mesh warning).
+        let w = yaw_coarse_warning(3956, 6500, (true, true), 5.0).unwrap_or_default();
+        assert!(
+            w.contains("the STL has only 3956 facets after repair and tuft does not refine")
+                && !w.contains("raise geometry.panels"),
+            "{w}"
+        );
+        assert!(
+            coarse_note(2992, 6500, true, true).is_some_and(|n| n.contains("export the STL finer"))
         );
     }
 }

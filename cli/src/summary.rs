@@ -262,10 +262,14 @@ impl Summary {
             .preparation
             .get("suggested_panels")
             .and_then(serde_json::Value::as_u64)?;
+        // An STL run on every facet it has (nothing was coarsened).
+        let all_facets =
+            self.case["geometry"]["stl"].is_string() && self.mesh.preparation["coarsen"].is_null();
         crate::pipeline::coarse_note(
             self.mesh.panels,
             usize::try_from(suggested).ok()?,
             self.separated_wakes.is_some(),
+            all_facets,
         )
     }
 

@@ -451,16 +451,20 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     .collect();
     let mut warnings = c.warnings.clone();
     warnings.extend(geo.report.quality.warnings.iter().cloned());
+    // An STL run on every facet it has cannot be given more panels.
+    let all_facets = matches!(case.source, crate::case::GeometrySource::Stl { .. })
+        && geo.report.coarsen.is_none();
     warnings.extend(crate::pipeline::yaw_coarse_warning(
         mesh.len(),
         geo.report.suggested_panels,
-        c.wakes.is_some(),
+        (c.wakes.is_some(), all_facets),
         flow.yaw,
     ));
     warnings.extend(crate::pipeline::coarse_warning(
         mesh.len(),
         geo.report.suggested_panels,
         c.wakes.is_some(),
+        all_facets,
     ));
     warnings.extend(crate::pipeline::ground_contact_warning(&geo.report));
     warnings.extend(crate::pipeline::side_difference_warning(

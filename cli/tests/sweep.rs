@@ -135,27 +135,22 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
         .collect();
     assert_eq!(order, [(0.0, 1), (4.0, 1), (8.0, 1)]);
     let mut warned = false;
-    let mut coarse = false;
     for r in rows {
         let s = json(&out.join(r["name"].as_str().unwrap()).join("summary.json"));
         assert_eq!(r["warning_texts"], s["warnings"], "{}", r["name"]);
-        for w in s["warnings"].as_array().unwrap() {
-            warned = true;
-            coarse |= w.as_str().unwrap().contains("not converged");
-        }
+        warned |= !s["warnings"].as_array().unwrap().is_empty();
     }
     assert_eq!(collected.status.code(), Some(i32::from(warned)), "{stdout}");
+    // One variant per yaw: nothing to rank, so a coarse mesh withholds
+    // nothing either (a review's yaw sweep had read "the drag ranking is
+    // not converged ... no winner is named").
     let first = stdout.lines().next().unwrap_or_default();
-    if coarse {
-        assert!(
-            first.contains("the drag ranking is not converged"),
-            "{stdout}"
-        );
-        assert!(!first.contains("drag: yaw-"), "no winner named: {stdout}");
-    } else {
-        assert!(first.contains("yaw 0°: drag: yaw-0"), "{stdout}");
-        assert!(first.contains("yaw 8°: drag: yaw-8"), "{stdout}");
-    }
+    assert!(
+        first.contains("one variant per wind condition, so no drag ranking"),
+        "{stdout}"
+    );
+    assert!(first.contains("yaw 0°: drag: yaw-0"), "{stdout}");
+    assert!(first.contains("yaw 8°: drag: yaw-8"), "{stdout}");
     let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
     assert_eq!(csv.lines().count(), 4);
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();

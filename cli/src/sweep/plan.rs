@@ -197,7 +197,8 @@ impl Plan {
     /// size had been solved on 7,000 and 6,500 panels and `tuft collect`
     /// then warned that they should be ranked at about the same count.
     /// The count is the first variant's default (what a run of it alone
-    /// uses), the same in every shard; `dir` is the sweep file's folder.
+    /// uses: the suggestion, or all its facets when it has fewer), the
+    /// same in every shard; `dir` is the sweep file's folder.
     /// Returns the count set, `None` when nothing was changed (or the first
     /// variant's geometry cannot be prepared: it then fails on its own).
     pub fn one_panel_count(&mut self, dir: &Path) -> Option<usize> {
@@ -212,7 +213,15 @@ impl Plan {
         let file = first.file.clone().ok()?;
         let case =
             crate::case::Case::from_file(&dir.join(format!("{}.toml", first.name)), file).ok()?;
-        let n = crate::geometry::load(&case).ok()?.report.suggested_panels;
+        // What a lone run uses: the suggestion, or every facet of an STL
+        // that holds fewer (tuft does not refine; the suggestion had given
+        // every variant of the shipped 3,956-facet coupe a warning that
+        // its 6,500 panels were not met).
+        let geo = crate::geometry::load(&case).ok()?;
+        let n = match geo.report.coarsen {
+            Some(_) => geo.report.suggested_panels,
+            None => geo.report.suggested_panels.min(geo.mesh.len()),
+        };
         for f in self
             .variants
             .iter_mut()
@@ -534,14 +543,21 @@ mod tests {
 
     /// Two STL variants of one length whose surfaces ask for different
     /// default counts (a review's tail variants: 7,000 and 6,500) are both
-    /// solved at the first's; a count set in the base case stays.
+    /// solved at the first's; a count set in the base case stays; STLs
+    /// with fewer facets than the suggestion run on all of them, as a
+    /// lone run would (not at a count they cannot reach).
     #[test]
     fn stl_variants_get_one_panel_count() {
         use tuft_mesh::{LengthUnit, Mirrors, PanelMesh, generate};
         let dir = tempfile::tempdir().unwrap();
         let mut wanted = Vec::new();
-        for (name, radius) in [("slim.stl", 1.0), ("wide.stl", 1.15)] {
-            let mut m = generate::icosphere(1.0, 3);
+        for (name, radius, level) in [
+            ("slim.stl", 1.0, 4),
+            ("wide.stl", 1.15, 4),
+            ("few.stl", 1.0, 2),
+            ("fewwide.stl", 1.15, 2),
+        ] {
+            let mut m = generate::icosphere(1.0, level);
             m.map_vertices(|p| nalgebra::Point3::new(4.0 * p.x, radius * p.y, radius * p.z + 2.0));
             wanted.push(tuft_mesh::quality::suggested_panels(m.area(), 8.0));
             let panels = PanelMesh::new(m, Mirrors::none()).unwrap();
@@ -549,10 +565,12 @@ mod tests {
             tuft_mesh::export::write_panels_stl(&mut f, &panels, LengthUnit::M).unwrap();
         }
         assert_ne!(wanted[0], wanted[1], "the test needs two defaults");
-        let sweep = |base: &str| {
+        assert!(wanted[0] < 5120 && wanted[2] > 320, "{wanted:?}");
+        let sweep_of = |stls: [&str; 2], base: &str| {
             let text = format!(
-                "[base.geometry]\nstl = \"slim.stl\"\nunits = \"m\"\n{base}\n[[vary]]\nkey = \"stl\"\n\
-                 values = [\"slim.stl\", \"wide.stl\"]\n"
+                "[base.geometry]\nstl = \"{}\"\nunits = \"m\"\n{base}\n[[vary]]\nkey = \"stl\"\n\
+                 values = [\"{}\", \"{}\"]\n",
+                stls[0], stls[0], stls[1]
             );
             let file: SweepFile = toml::from_str(&text).unwrap();
             Plan::from_file(&dir.path().join("s.toml"), file).unwrap()
@@ -563,12 +581,15 @@ mod tests {
                 .map(|v| v.file.as_ref().unwrap().geometry.panels)
                 .collect()
         };
+        let sweep = |base: &str| sweep_of(["slim.stl", "wide.stl"], base);
         let mut p = sweep("");
         assert_eq!(p.one_panel_count(dir.path()), Some(wanted[0]));
         assert_eq!(counts(&p), [Some(wanted[0]); 2]);
         let mut p = sweep("panels = 1200");
         assert_eq!(p.one_panel_count(dir.path()), None);
         assert_eq!(counts(&p), [Some(1200); 2]);
+        let mut p = sweep_of(["few.stl", "fewwide.stl"], "");
+        assert_eq!(p.one_panel_count(dir.path()), Some(320));
     }
 
     #[test]
