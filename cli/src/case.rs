@@ -602,10 +602,15 @@ fn check_shape_keys(g: &GeometrySection) -> Result<()> {
         (None, Some(shape)) => format!("this case's shape is {shape}"),
         (None, None) => "this case gives no shape".to_owned(),
     };
-    let remedy = if g.stl.is_some() {
-        "remove it, or change the STL itself"
-    } else {
-        "remove it"
+    let remedy = match (g.stl.is_some(), *key) {
+        // An STL stands where it was drawn; moving the ground moves it
+        // against the road.
+        (true, "ride_height") => {
+            "remove it; to raise or lower an STL body, move the ground instead (ground.z 0.02 m \
+             lower raises the body 20 mm)"
+        }
+        (true, _) => "remove it, or change the STL itself",
+        (false, _) => "remove it",
     };
     bail!(
         "geometry.{key} applies only to the built-in shape {} ({this}); {remedy}",

@@ -150,7 +150,10 @@ pub struct Collected {
 /// `tuft compare` notes it for two runs, each labelled with its condition
 /// when there are several.
 fn notes(c: &Collected) -> Vec<String> {
-    let mut out = Vec::new();
+    let mut out: Vec<String> = [yaw_note(c), ride_height_note(c)]
+        .into_iter()
+        .flatten()
+        .collect();
     for (label, rows) in &wind_groups(c) {
         let prefix = if label.is_empty() {
             String::new()
@@ -1045,6 +1048,9 @@ fn key_words(key: &str) -> String {
 fn axis_label(key: &str) -> String {
     let plain = plain_axis_label(key);
     match key_name(key) {
+        // The ground rises as the body comes nearer it: the axis runs
+        // against ride height, and says so.
+        Some(w) if key == "ground.z" => format!("{w} (higher: body nearer it), {plain}"),
         Some(w) => format!("{w}, {plain}"),
         None => plain,
     }
@@ -1239,6 +1245,38 @@ fn panel_spread(c: &[Row]) -> Option<String> {
     })
 }
 
+/// A note when the variants differ in yaw: what the plots against yaw
+/// show (the cross-wind caution each yawed run's report gives).
+fn yaw_note(c: &Collected) -> Option<String> {
+    let (lo, hi) = range(&c.variants, |r| r.yaw_deg);
+    (hi > lo).then(|| {
+        "Drag and lift against yaw are this model's: it misses the lee-side flow that raises a car's \
+         drag in a cross wind (its drag can fall with yaw, and a yaw and its mirror image can differ by \
+         several counts on a symmetric body), and its lift at yaw moves mostly with the smooth \
+         underbody's suction; read where the pressure and the separation move, and each yawed \
+         report's cross-wind section."
+            .to_owned()
+    })
+}
+
+/// A note when the sweep moves the body against the ground (the ground's
+/// height or a built-in shape's ride height): the lift trend is then
+/// mostly the smooth underbody's suction, the least certain part of the
+/// lift (a review's ride heights 20 mm either side: underbody -228 to
+/// -252 kg, the rest of the body +144 to +146).
+fn ride_height_note(c: &Collected) -> Option<String> {
+    c.keys
+        .iter()
+        .any(|k| k == "ground.z" || k == "geometry.ride_height")
+        .then(|| {
+            "The lift across ride heights moves mostly with the smooth underbody's suction, the least \
+             certain part of the lift (a real underbody, with its wheels, roughness and cooling flow, \
+             sucks far less): read its trend as this model's, and confirm with validated CFD or a \
+             tunnel."
+                .to_owned()
+        })
+}
+
 /// A note when variants showing region verdicts were solved on under
 /// half of their suggested panels: each run's report says that a verdict
 /// can still move there, and the page shows the verdicts side by side.
@@ -1375,8 +1413,9 @@ fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
          hatched where the flow has separated, named regions outlined{}. Each picture opens the variant's \
          report.</p>",
         if yawed {
-            "; a yawed variant is seen from its lee side (from +y, nose right, at a positive yaw), where a \
-             cross wind moves the separation"
+            "; a yawed variant is seen from its lee side, where a cross wind moves the separation (from \
+             +y, nose right, at a positive yaw: its side view is the mirror of a straight-ahead row's, so \
+             compare the places along the body, not left and right)"
         } else {
             ""
         }

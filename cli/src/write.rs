@@ -618,7 +618,9 @@ fn lift_text(l: &LiftKg, at: &str) -> String {
         text += "which a real underbody (wheels, roughness, cooling flow) is not: its part is among \
                  the least certain numbers on this page. ";
     }
-    text + "Differences between variants that share the underbody are more trustworthy than the totals."
+    text + "Differences between variants that share the underbody and its height above the ground are \
+            more trustworthy than the totals; a ride-height change moves mostly the underbody's suction, \
+            so its lift trend is the least certain comparison of all."
 }
 
 /// The report's words on the separated-flow loop.
@@ -654,24 +656,42 @@ fn loop_text(w: &SeparatedWakes) -> String {
     )
 }
 
+/// The body's lowest point above the ground, mm, in words (a ride-height
+/// study's variants had no line saying how high each stood); "no ground"
+/// in free air.
+fn clearance_words(s: &Summary) -> String {
+    let lowest = s.mesh.preparation["bounds"][0][2].as_f64();
+    match (s.mesh.ground_z, lowest) {
+        (None, _) => "no ground (free air)".to_owned(),
+        (Some(g), Some(z)) if z - g < 5e-4 => "0 (stands on the ground)".to_owned(),
+        (Some(g), Some(z)) => format!("{:.0}", 1000.0 * (z - g)),
+        (Some(_), None) => "not recorded".to_owned(),
+    }
+}
+
 /// What a yawed run can and cannot say: a car's side force comes mostly
 /// from the separated, vortex-laden flow on its lee side, which attached
 /// potential flow with one dead-water pressure does not hold (on the demo
 /// coupe at 8,048 panels the side-force coefficient was 0.005 at 5 degrees
-/// and 0.027 at 10, 2026-12-02); nor the drag it adds (a review's demo
-/// coupe at about 3,000 panels: C_D 0.140 at 10 degrees against 0.144
-/// straight ahead, 2026-12-03).
+/// and 0.027 at 10, 2026-12-02); nor the drag it adds (the shipped coupe
+/// STL case at 3,956 panels: C_D 0.151 straight ahead, 0.137 at 10
+/// degrees and 0.143 at -10 on a body whose halves agree, underbody lift
+/// -240 kg straight ahead and -268 at 10 degrees; a review, 2026-12-03).
 fn cross_wind_text(yaw: f64, side: f64) -> String {
     format!(
-        "At {} degrees of yaw the side-force coefficient comes to {side:.3}. Cars measure about 0.03 to 0.04 \
-         per degree of yaw (common practice), most of it from the separated flow and the vortices on the lee \
-         side, which attached potential flow with the dead water at one pressure does not hold: this run \
-         shows where the pressure and the separation move in a cross wind, not the side force, and no \
-         yawing or rolling moment is given. The drag misses the same lee-side flow: cars measure more drag \
-         in a cross wind than straight ahead (common practice), where this model can give less (a review's \
-         demo coupe: C_D 0.140 at 10 degrees against 0.144 straight ahead), so compare drag between runs \
-         at one yaw only. Cross-wind stability needs validated CFD or a tunnel.",
-        output::short_number(yaw)
+        "At {} the side-force coefficient comes to {side:.3} (positive to the car's right, +y). Cars \
+         measure about 0.03 to 0.04 per degree of yaw (common practice), most of it from the separated \
+         flow and the vortices on the lee side, which attached potential flow with the dead water at one \
+         pressure does not hold: this run shows where the pressure and the separation move in a cross \
+         wind, not the side force, and no yawing or rolling moment is given. The drag misses the same \
+         lee-side flow: cars measure more drag in a cross wind than straight ahead (common practice), \
+         where this model can give less, and a yaw and its mirror image can differ by several counts on \
+         a symmetric body (the shipped coupe case, another run than this one: C_D 0.151 straight ahead, \
+         0.137 at 10 degrees, 0.143 at -10), so compare drag between runs at one yaw only. The lift moves \
+         mostly with the smooth underbody's suction (that case's underbody: -240 kg straight ahead, -268 \
+         at 10 degrees), the least certain part of it. Cross-wind stability needs validated CFD or a \
+         tunnel.",
+        output::yaw_words(yaw)
     )
 }
 
@@ -794,10 +814,11 @@ fn report(
     numbers.extend([
         NumberRow::fixed(
             if s.flow("yaw").is_some_and(|y| y != 0.0) {
-                "Side-force coefficient (across the wind, level, positive to the +y side; the drag \
-                 above is along the wind, not the body's axis)"
+                "Side-force coefficient (across the wind, level, positive to the car's right, +y; \
+                 the drag above is along the wind, not the body's axis; see the cross-wind section \
+                 on what it is worth)"
             } else {
-                "Side-force coefficient (positive to the +y side)"
+                "Side-force coefficient (positive to the car's right, +y)"
             },
             k.side,
             3,
@@ -861,6 +882,11 @@ fn report(
                 }
             ),
             "m",
+        ),
+        NumberRow::text(
+            "Ground clearance (the body's lowest point above the ground)",
+            &clearance_words(s),
+            "mm",
         ),
         NumberRow::text(
             "Reynolds number on the reference length",
@@ -1097,6 +1123,21 @@ mod tests {
 
     /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
     /// report had said "the lift of -0 kg").
+    /// The clearance row: the lowest point above the ground in mm, 0 for a
+    /// body standing on it, nothing to say in free air.
+    #[test]
+    fn the_clearance_is_the_lowest_point_above_the_ground() {
+        let mut s = crate::summary::Summary::default();
+        s.mesh.preparation = serde_json::json!({"bounds": [[0.0, -0.9, 0.12], [4.5, 0.9, 1.3]]});
+        assert_eq!(super::clearance_words(&s), "no ground (free air)");
+        s.mesh.ground_z = Some(0.0);
+        assert_eq!(super::clearance_words(&s), "120");
+        s.mesh.ground_z = Some(0.02);
+        assert_eq!(super::clearance_words(&s), "100");
+        s.mesh.ground_z = Some(0.12);
+        assert_eq!(super::clearance_words(&s), "0 (stands on the ground)");
+    }
+
     #[test]
     fn small_lifts_read_without_a_minus_zero() {
         let l = crate::summary::LiftKg {

@@ -143,9 +143,13 @@ pub fn drag_verdict_named(
     // ranks nothing.
     let plateau = a.plateau_drag() || b.plateau_drag();
     let wheels = a.wheels_on() || b.wheels_on();
-    let resolved = banded && !separation_differs && !plateau && !wheels;
+    // Two yaw angles are two tests of one design, not two designs (a
+    // review's yaw 0 against 10 had been judged as variants).
+    let yaw = |s: &Summary| s.flow("yaw").unwrap_or(0.0);
+    let yaws = (yaw(a) - yaw(b)).abs() > 1e-9;
+    let resolved = banded && !separation_differs && !plateau && !wheels && !yaws;
     let way = if delta < 0.0 { "lower" } else { "higher" };
-    let leaning = if banded && separation_differs && !plateau && !wheels {
+    let leaning = if banded && separation_differs && !plateau && !wheels && !yaws {
         way
     } else {
         ""
@@ -162,6 +166,15 @@ pub fn drag_verdict_named(
         format!(
             "no winner: {}; in this model {nb}'s drag is {} counts against {na}'s",
             crate::pipeline::WHEELS_DRAG,
+            signed(delta, 1)
+        )
+    } else if yaws {
+        format!(
+            "no winner: the runs are at different yaw angles ({} and {} degrees), two tests of a \
+             design rather than two designs (rank drag at one yaw); in this model {nb}'s drag is {} \
+             counts against {na}'s",
+            yaw(a),
+            yaw(b),
             signed(delta, 1)
         )
     } else if !above_noise {
@@ -306,6 +319,18 @@ mod tests {
         assert!(
             v.text.starts_with("no winner: with wheels on")
                 && v.text.contains("B's drag is -10.0 counts against A's"),
+            "{}",
+            v.text
+        );
+        // 10 counts lower everywhere, but B at 10 degrees yaw and A
+        // straight ahead: two tests, not two designs.
+        let mut b_yawed = summary(0.290, 0.280, 0.310);
+        b_yawed.case = serde_json::json!({"flow": {"yaw": 10.0}});
+        let v = drag_verdict(&a, &b_yawed, None);
+        assert!(!v.resolved && v.leaning.is_empty(), "{v:?}");
+        assert!(
+            v.text
+                .starts_with("no winner: the runs are at different yaw angles (0 and 10 degrees)"),
             "{}",
             v.text
         );

@@ -200,9 +200,9 @@ fn head(r: &Report) -> String {
          <p class=\"conditions\">{}</p>\n{summary}</header>\n",
         escape(&r.caption.case),
         escape(&format!(
-            "Free stream {}, yaw {}°",
+            "Free stream {}, {}",
             super::speed_words(r.caption.speed_ms),
-            super::short_number(r.caption.yaw_deg)
+            super::yaw_words(r.caption.yaw_deg)
         )),
     )
 }

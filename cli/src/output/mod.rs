@@ -300,13 +300,15 @@ pub struct Caption {
 }
 
 impl Caption {
-    /// `"coupe-25, 40 m/s (144 km/h), yaw 0°"`.
+    /// `"coupe-25, 40 m/s (144 km/h), yaw 0°"`; a yawed run says which
+    /// side the wind comes from (`"yaw 10° (wind from the car's left,
+    /// −y)"`: a positive yaw turns the wind towards +y, the car's right).
     pub fn conditions(&self) -> String {
         format!(
-            "{}, {}, yaw {}°",
+            "{}, {}, {}",
             self.case,
             speed_words(self.speed_ms),
-            short_number(self.yaw_deg)
+            yaw_words(self.yaw_deg)
         )
     }
 
@@ -314,6 +316,20 @@ impl Caption {
     pub fn title(&self, what: &str) -> String {
         format!("{what}, {}", self.conditions())
     }
+}
+
+/// A yaw angle in words: `"yaw 0°"`, or with the side the wind comes
+/// from, `"yaw 10° (wind from the car's left, −y)"` (a positive yaw turns
+/// the free stream towards +y, the car's right seen from the seat).
+pub fn yaw_words(yaw_deg: f64) -> String {
+    let side = if yaw_deg > 0.0 {
+        " (wind from the car's left, \u{2212}y)"
+    } else if yaw_deg < 0.0 {
+        " (wind from the car's right, +y)"
+    } else {
+        ""
+    };
+    format!("yaw {}°{side}", short_number(yaw_deg))
 }
 
 /// A speed in m/s with its km/h beside it: `"40 m/s (144 km/h)"`.

@@ -94,10 +94,13 @@ impl View {
         match self {
             View::Side => "Side, from \u{2212}y (nose left)",
             View::SideFromRight => "Side, from +y (nose right)",
-            View::Top => "Top, from +z",
-            View::Underneath => "Underneath, from \u{2212}z",
-            View::Front => "Front, from \u{2212}x",
-            View::Rear => "Rear, from +x",
+            // +y is the car's right (seen from the seat): where it lies on
+            // each view, so a yawed run's windward and lee sides can be
+            // told apart in every view.
+            View::Top => "Top, from +z (+y up)",
+            View::Underneath => "Underneath, from \u{2212}z (+y down)",
+            View::Front => "Front, from \u{2212}x (+y left)",
+            View::Rear => "Rear, from +x (+y right)",
         }
     }
 

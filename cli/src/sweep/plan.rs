@@ -253,7 +253,7 @@ impl Plan {
 /// need the prepared body (the ground, axles and regions against it) stay
 /// with each variant's run. `dir`: the sweep file's folder.
 fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
-    let bad: Vec<String> = variants
+    let reasons: Vec<(&str, String)> = variants
         .iter()
         .filter_map(|v| {
             let why = match &v.file {
@@ -266,8 +266,23 @@ fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
                         .map(|e| format!("{e:#}"))?
                 }
             };
-            Some(format!("{}: {why}", v.name))
+            Some((v.name.as_str(), why))
         })
+        .collect();
+    // One reason for them all (a shape key beside an STL): said once.
+    if let [(_, first), rest @ ..] = reasons.as_slice()
+        && !rest.is_empty()
+        && rest.iter().all(|(_, why)| why == first)
+    {
+        bail!(
+            "{} of {} variants cannot run, so none was started; each fails the same way: {first}",
+            reasons.len(),
+            variants.len()
+        );
+    }
+    let bad: Vec<String> = reasons
+        .iter()
+        .map(|(name, why)| format!("{name}: {why}"))
         .collect();
     const NAMED: usize = 3;
     if let Some(first) = bad.first() {
