@@ -98,6 +98,10 @@ pub struct Row {
     /// ([`crate::summary::Summary::coarse_note`]).
     #[serde(default)]
     pub coarse: bool,
+    /// It ran on every facet of its STL, so only a finer export gives it
+    /// more panels ([`crate::summary::Summary::all_facets`]).
+    #[serde(default)]
+    pub all_facets: bool,
     /// Its drag is the attached flow's plateau model's
     /// ([`crate::summary::Summary::plateau_drag`]).
     #[serde(default)]
@@ -299,10 +303,15 @@ fn best_drag(c: &Collected) -> String {
     let coarse = not_converged(c);
     if ranked && !coarse.is_empty() {
         return format!(
-            "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: raise \
-             geometry.panels, see the warnings), so no winner is named",
+            "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: {}, see \
+             the warnings), so no winner is named",
             coarse.len(),
-            c.variants.len()
+            c.variants.len(),
+            more_panels(
+                c.variants
+                    .iter()
+                    .filter(|r| coarse.contains(&r.name.as_str()))
+            )
         );
     }
     let plateau = c.variants.iter().filter(|r| r.plateau_drag).count();
@@ -669,6 +678,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         yaw_deg: flow("yaw", still.yaw),
         warning_texts: s.warnings.clone(),
         coarse: s.coarse_note().is_some(),
+        all_facets: s.all_facets(),
         plateau_drag: s.plateau_drag(),
         wheels_on: s.wheels_on(),
         regions: s.regions.clone(),
@@ -861,7 +871,7 @@ pub fn csv(c: &Collected) -> String {
                 c,
                 r,
                 counts.then_some(1000.0 * (r.cd - lowest)),
-                named,
+                (named, rows.len() == 1),
             );
         }
     }
@@ -870,15 +880,22 @@ pub fn csv(c: &Collected) -> String {
 
 /// One variant's line of `sweep.csv` ([`csv`]); `above`: its drag above
 /// the lowest of its wind condition, counts; `named`: the ranking names a
-/// winner in its condition.
-fn csv_row(s: &mut String, c: &Collected, r: &Row, above: Option<f64>, named: bool) {
+/// winner in its condition; `alone`: the only variant in it.
+fn csv_row(
+    s: &mut String,
+    c: &Collected,
+    r: &Row,
+    above: Option<f64>,
+    (named, alone): (bool, bool),
+) {
     let _ = write!(s, "{},{}", r.rank, r.name);
     for k in &c.keys {
         let _ = write!(s, ",{}", r.settings.get(k).map(cell).unwrap_or_default());
     }
+    // Empty where there is nothing to rank (one variant in its wind).
     let best = match (r.rank, named) {
         (1, true) => "yes",
-        (1, false) => "no",
+        (1, false) if !alone => "no",
         _ => "",
     };
     let _ = write!(
@@ -1296,9 +1313,21 @@ fn coarse_verdicts(c: &[Row]) -> Option<String> {
         "{which} solved on under half of the panels suggested for its body: a region's verdict can \
          still change with the panel count there (the demo coupe's boot deck read attached at 2,992 \
          panels, against 22 to 36 % separated from 3,956 up), so read the verdicts and their changes \
-         as provisional, and before acting on one near its line raise geometry.panels to the \
-         suggested count (tuft check prints it)."
+         as provisional, and before acting on one near its line {} (tuft check prints the \
+         suggested count).",
+        more_panels(c.iter().filter(|r| r.coarse && !r.regions.is_empty()))
     ))
+}
+
+/// How to give `rows` more panels: raise `geometry.panels`, or, when every
+/// one ran on all the facets of its STL, export the STLs finer (tuft
+/// coarsens, it does not refine; [`crate::pipeline::raise_advice`]).
+fn more_panels<'a>(mut rows: impl Iterator<Item = &'a Row>) -> &'static str {
+    if rows.all(|r| r.all_facets) {
+        "export the STLs finer (they run on all their facets, and tuft does not refine)"
+    } else {
+        "raise geometry.panels"
+    }
 }
 
 /// Lowest and highest of a percentage over the variants.
@@ -1597,6 +1626,7 @@ mod tests {
             yaw_deg: 0.0,
             warning_texts: Vec::new(),
             coarse: false,
+            all_facets: false,
             plateau_drag: false,
             wheels_on: false,
             regions: Vec::new(),

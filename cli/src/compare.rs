@@ -758,16 +758,24 @@ fn coarse_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Opti
     if a.regions.is_empty() && b.regions.is_empty() {
         return None;
     }
-    let which = match (a.coarse_note().is_some(), b.coarse_note().is_some()) {
+    let (ca, cb) = (a.coarse_note().is_some(), b.coarse_note().is_some());
+    let which = match (ca, cb) {
         (true, true) => "both runs were",
         (true, false) => "A was",
         (false, true) => "B was",
         (false, false) => return None,
     };
+    // Only a finer export helps runs on every facet of their STLs.
+    let finer = (!ca || a.all_facets()) && (!cb || b.all_facets());
+    let advice = if finer {
+        "export the STL finer (the runs use all its facets, and tuft does not refine) and run both again"
+    } else {
+        "run both at the suggested count"
+    };
     Some(format!(
         "{which} solved on under half of the panels suggested for the body: a region's verdict, and \
          so its change between the runs, can still move with the panel count there (see the run's \
-         report); before acting on a change near a verdict's line, run both at the suggested count"
+         report); before acting on a change near a verdict's line, {advice}"
     ))
 }
 

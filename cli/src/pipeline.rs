@@ -923,7 +923,7 @@ pub const FLOOR_CONTACT_SHARE: f64 = 0.1;
 /// The plan area (length times width, m^2) of a body of extent `bounds`
 /// when `contact` (m^2 on the ground) is more of it than
 /// [`FLOOR_CONTACT_SHARE`]: its floor, not tyres, meets the ground.
-fn floor_contact(contact: f64, bounds: [[f64; 3]; 2]) -> Option<f64> {
+pub fn floor_contact(contact: f64, bounds: [[f64; 3]; 2]) -> Option<f64> {
     let [lo, hi] = bounds;
     let plan = (hi[0] - lo[0]) * (hi[1] - lo[1]);
     (contact > FLOOR_CONTACT_SHARE * plan).then_some(plan)

@@ -262,15 +262,19 @@ impl Summary {
             .preparation
             .get("suggested_panels")
             .and_then(serde_json::Value::as_u64)?;
-        // An STL run on every facet it has (nothing was coarsened).
-        let all_facets =
-            self.case["geometry"]["stl"].is_string() && self.mesh.preparation["coarsen"].is_null();
         crate::pipeline::coarse_note(
             self.mesh.panels,
             usize::try_from(suggested).ok()?,
             self.separated_wakes.is_some(),
-            all_facets,
+            self.all_facets(),
         )
+    }
+
+    /// Whether the run was on every facet of its STL (nothing was
+    /// coarsened): `geometry.panels` cannot give it more, only a finer
+    /// export can ([`crate::pipeline::raise_advice`]).
+    pub fn all_facets(&self) -> bool {
+        self.case["geometry"]["stl"].is_string() && self.mesh.preparation["coarsen"].is_null()
     }
 
     /// Whether the surface was wrapped (parts joined into one outer surface
@@ -283,9 +287,37 @@ impl Summary {
     /// tyres, usually). Drag with wheels on is no basis for a ranking (see
     /// [`crate::pipeline::WHEELS_DRAG`]).
     pub fn wheels_on(&self) -> bool {
+        self.contact_area() > 0.0 && !self.floor_on_ground()
+    }
+
+    /// Whether the body's floor, not tyres, stood on the ground (over more
+    /// than [`crate::pipeline::FLOOR_CONTACT_SHARE`] of its plan area): the
+    /// ground is set too high for it, and the wrap cut the floor off, so
+    /// the body solved is not the one drawn.
+    pub fn floor_on_ground(&self) -> bool {
+        let b = &self.mesh.preparation["bounds"];
+        let corner = |k: usize| -> Option<[f64; 3]> {
+            let c = b.get(k)?;
+            Some([
+                c.get(0)?.as_f64()?,
+                c.get(1)?.as_f64()?,
+                c.get(2)?.as_f64()?,
+            ])
+        };
+        match (corner(0), corner(1)) {
+            (Some(lo), Some(hi)) => {
+                crate::pipeline::floor_contact(self.contact_area(), [lo, hi]).is_some()
+            }
+            _ => false,
+        }
+    }
+
+    /// Area over which the wrapped body stood on the ground, m^2 (0 when
+    /// it did not).
+    fn contact_area(&self) -> f64 {
         self.mesh.preparation["wrap"]["contact_area"]
             .as_f64()
-            .is_some_and(|a| a > 0.0)
+            .unwrap_or(0.0)
     }
 }
 

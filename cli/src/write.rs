@@ -663,7 +663,7 @@ fn clearance_words(s: &Summary) -> String {
     let lowest = s.mesh.preparation["bounds"][0][2].as_f64();
     match (s.mesh.ground_z, lowest) {
         (None, _) => "no ground (free air)".to_owned(),
-        (Some(g), Some(z)) if z - g < 5e-4 => "0 (stands on the ground)".to_owned(),
+        (Some(g), Some(z)) if z - g < 5e-4 => "stands on the ground".to_owned(),
         (Some(g), Some(z)) => format!("{:.0}", 1000.0 * (z - g)),
         (Some(_), None) => "not recorded".to_owned(),
     }
@@ -883,11 +883,20 @@ fn report(
             ),
             "m",
         ),
-        NumberRow::text(
-            "Ground clearance (the body's lowest point above the ground)",
-            &clearance_words(s),
-            "mm",
-        ),
+        {
+            let words = clearance_words(s);
+            // The unit only beside a number.
+            let unit = if words.starts_with(|c: char| c.is_ascii_digit()) {
+                "mm"
+            } else {
+                "-"
+            };
+            NumberRow::text(
+                "Ground clearance (the body's lowest point above the ground)",
+                &words,
+                unit,
+            )
+        },
         NumberRow::text(
             "Reynolds number on the reference length",
             &format!("{:.2} million", s.reynolds_number / 1e6),
@@ -1121,10 +1130,8 @@ mod tests {
         assert!(super::underbody_words(&s).is_none());
     }
 
-    /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
-    /// report had said "the lift of -0 kg").
-    /// The clearance row: the lowest point above the ground in mm, 0 for a
-    /// body standing on it, nothing to say in free air.
+    /// The clearance row: the lowest point above the ground in mm, words
+    /// for a body standing on it and for free air.
     #[test]
     fn the_clearance_is_the_lowest_point_above_the_ground() {
         let mut s = crate::summary::Summary::default();
@@ -1135,9 +1142,11 @@ mod tests {
         s.mesh.ground_z = Some(0.02);
         assert_eq!(super::clearance_words(&s), "100");
         s.mesh.ground_z = Some(0.12);
-        assert_eq!(super::clearance_words(&s), "0 (stands on the ground)");
+        assert_eq!(super::clearance_words(&s), "stands on the ground");
     }
 
+    /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
+    /// report had said "the lift of -0 kg").
     #[test]
     fn small_lifts_read_without_a_minus_zero() {
         let l = crate::summary::LiftKg {

@@ -152,6 +152,20 @@ fn capital_keywords_and_a_missing_binary_count_read() {
         (StlFormat::Binary, 80, true)
     );
     assert_eq!(m.triangles, mb.triangles);
+    // The same behind a header starting "solid" (as streaming writers
+    // put it), and one starting "SOLID" with bytes trailing the facets:
+    // the header is not text, so the file is binary.
+    bytes[..12].copy_from_slice(b"solid part  ");
+    let (_, r) = read_stl(&common::write(dir.path(), "s.stl", &bytes)).unwrap();
+    assert_eq!((r.format, r.facets), (StlFormat::Binary, 80));
+    let mut bytes = common::binary_stl(&sphere);
+    bytes[..12].copy_from_slice(b"SOLID PART  ");
+    bytes.extend_from_slice(&[0u8; 7]);
+    let (_, r) = read_stl(&common::write(dir.path(), "t.stl", &bytes)).unwrap();
+    assert_eq!(
+        (r.format, r.facets, r.trailing_bytes),
+        (StlFormat::Binary, 80, 7)
+    );
 }
 
 #[test]

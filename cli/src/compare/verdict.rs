@@ -143,13 +143,14 @@ pub fn drag_verdict_named(
     // ranks nothing.
     let plateau = a.plateau_drag() || b.plateau_drag();
     let wheels = a.wheels_on() || b.wheels_on();
+    let floor = a.floor_on_ground() || b.floor_on_ground();
     // Two yaw angles are two tests of one design, not two designs (a
     // review's yaw 0 against 10 had been judged as variants).
     let yaw = |s: &Summary| s.flow("yaw").unwrap_or(0.0);
     let yaws = (yaw(a) - yaw(b)).abs() > 1e-9;
-    let resolved = banded && !separation_differs && !plateau && !wheels && !yaws;
+    let resolved = banded && !separation_differs && !plateau && !wheels && !yaws && !floor;
     let way = if delta < 0.0 { "lower" } else { "higher" };
-    let leaning = if banded && separation_differs && !plateau && !wheels && !yaws {
+    let leaning = if banded && separation_differs && !plateau && !wheels && !yaws && !floor {
         way
     } else {
         ""
@@ -166,6 +167,13 @@ pub fn drag_verdict_named(
         format!(
             "no winner: {}; in this model {nb}'s drag is {} counts against {na}'s",
             crate::pipeline::WHEELS_DRAG,
+            signed(delta, 1)
+        )
+    } else if floor {
+        format!(
+            "no winner: a body's floor stands on the ground (its ground is set too high for it, and \
+             the floor was cut off there), so the body solved is not the one drawn; in this model \
+             {nb}'s drag is {} counts against {na}'s",
             signed(delta, 1)
         )
     } else if yaws {
@@ -319,6 +327,22 @@ mod tests {
         assert!(
             v.text.starts_with("no winner: with wheels on")
                 && v.text.contains("B's drag is -10.0 counts against A's"),
+            "{}",
+            v.text
+        );
+        // A floor, not tyres, on the ground (2.74 m^2 of a 4.5 by 1.85 m
+        // body): not wheels, and no winner either.
+        let mut a_floor = summary(0.300, 0.290, 0.320);
+        a_floor.mesh.preparation = serde_json::json!({
+            "wrap": {"contact_area": 2.74},
+            "bounds": [[0.0, -0.925, 0.0], [4.5, 0.925, 1.3]]
+        });
+        assert!(a_floor.floor_on_ground() && !a_floor.wheels_on());
+        let v = drag_verdict(&a_floor, &summary(0.290, 0.280, 0.310), None);
+        assert!(!v.resolved && v.leaning.is_empty(), "{v:?}");
+        assert!(
+            v.text
+                .starts_with("no winner: a body's floor stands on the ground"),
             "{}",
             v.text
         );

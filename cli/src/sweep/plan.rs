@@ -269,9 +269,10 @@ fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
             Some((v.name.as_str(), why))
         })
         .collect();
-    // One reason for them all (a shape key beside an STL): said once.
+    // One reason for every variant (a shape key beside an STL): said once.
     if let [(_, first), rest @ ..] = reasons.as_slice()
         && !rest.is_empty()
+        && reasons.len() == variants.len()
         && rest.iter().all(|(_, why)| why == first)
     {
         bail!(

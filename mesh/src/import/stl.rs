@@ -191,10 +191,19 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     if bytes == 0 {
         return Err(MeshError::EmptyFile);
     }
-    // Keywords in capitals (`SOLID`, `FACET`) are read too: some exporters
-    // write them so.
-    let text_start = String::from_utf8_lossy(head).to_ascii_lowercase();
-    let looks_ascii = text_start.trim_start().starts_with("solid");
+    let printable = head
+        .iter()
+        .all(|&b| b.is_ascii_graphic() || b.is_ascii_whitespace());
+    // Keywords in capitals (`SOLID`, `FACET`) are read too, as some
+    // exporters write them, but only from a head that is text: a binary
+    // header may start "SOLID" too.
+    let text_start = String::from_utf8_lossy(head);
+    let looks_ascii = text_start.trim_start().starts_with("solid")
+        || (printable
+            && text_start
+                .trim_start()
+                .to_ascii_lowercase()
+                .starts_with("solid"));
     if head.len() < HEADER as usize {
         return if looks_ascii {
             Ok(Kind::Ascii)
@@ -207,13 +216,16 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     if expected == bytes {
         return Ok(Kind::Binary { declared });
     }
+    // A count left at 0 before whole facets, behind a header that is not
+    // text (a streaming writer's, "solid" or not): binary, read to the
+    // length.
+    if declared == 0 && bytes > HEADER && (bytes - HEADER).is_multiple_of(FACET) && !printable {
+        return Ok(Kind::Binary { declared });
+    }
     if looks_ascii {
         return Ok(Kind::Ascii);
     }
-    if head
-        .iter()
-        .all(|&b| b.is_ascii_graphic() || b.is_ascii_whitespace())
-    {
+    if printable {
         return Err(MeshError::NotStl);
     }
     if expected > bytes {
