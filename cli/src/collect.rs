@@ -143,6 +143,11 @@ pub struct Collected {
     /// each.
     #[serde(default)]
     pub notes: Vec<String>,
+    /// What the plots of a kind of sweep are worth, whatever its results
+    /// (against yaw, across ride heights): shown like the notes, but, being
+    /// the same for every such sweep, not counted in the exit code.
+    #[serde(default)]
+    pub caveats: Vec<String>,
     /// Planned variants with no finished folder.
     pub missing: Vec<String>,
     /// The caution that goes with every number.
@@ -154,10 +159,7 @@ pub struct Collected {
 /// `tuft compare` notes it for two runs, each labelled with its condition
 /// when there are several.
 fn notes(c: &Collected) -> Vec<String> {
-    let mut out: Vec<String> = [yaw_note(c), ride_height_note(c)]
-        .into_iter()
-        .flatten()
-        .collect();
+    let mut out = Vec::new();
     for (label, rows) in &wind_groups(c) {
         let prefix = if label.is_empty() {
             String::new()
@@ -195,7 +197,7 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             c.variants.len(),
             c.drag_ranking
         );
-        for n in notes {
+        for n in notes.iter().chain(&c.caveats) {
             say!("  note: {n}");
         }
         for (text, names) in &warnings {
@@ -206,7 +208,8 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
         }
         say!("  report: {}", args.dir.join("sweep.html").display());
     }
-    // Notes, as `tuft compare`'s, are warnings to read.
+    // Notes, as `tuft compare`'s, are warnings to read; caveats, the same
+    // for every sweep of their kind, are not.
     Ok(
         if c.missing.is_empty() && warnings.is_empty() && notes.is_empty() {
             ExitCode::SUCCESS
@@ -544,6 +547,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         missing,
         drag_ranking: String::new(),
         notes: Vec::new(),
+        caveats: Vec::new(),
         caution: CAUTION.into(),
     };
     judge(&mut c);
@@ -551,10 +555,14 @@ pub fn collect(dir: &Path) -> Result<Collected> {
 }
 
 /// Fill the verdicts drawn from the variants: [`Collected::drag_ranking`]
-/// and [`Collected::notes`].
+/// and [`Collected::notes`] and [`Collected::caveats`].
 fn judge(c: &mut Collected) {
     c.drag_ranking = best_drag(c);
     c.notes = notes(c);
+    c.caveats = [yaw_note(c), ride_height_note(c)]
+        .into_iter()
+        .flatten()
+        .collect();
 }
 
 /// Fill [`Row::against_next`] for the lowest drag of each wind condition
@@ -1379,7 +1387,7 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
         "<p class=\"{class}\"><strong>{}</strong></p>",
         escape(&sentence(&c.drag_ranking))
     );
-    for text in &c.notes {
+    for text in c.notes.iter().chain(&c.caveats) {
         let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(text));
     }
     warnings_section(&mut s, c);
@@ -1640,6 +1648,7 @@ mod tests {
             missing: Vec::new(),
             drag_ranking: String::new(),
             notes: Vec::new(),
+            caveats: Vec::new(),
             caution: CAUTION.into(),
         }
     }

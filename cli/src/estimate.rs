@@ -190,7 +190,7 @@ pub fn available_memory(limit: Option<f64>) -> Option<f64> {
 /// known).
 pub fn check_fits(
     n: usize,
-    op: Operator,
+    (op, forced): (Operator, bool),
     (half_model, loop_on, suggested): (bool, bool, usize),
     available: Option<f64>,
 ) -> Result<()> {
@@ -199,7 +199,7 @@ pub fn check_fits(
     };
     let need = memory_for(n, op, loop_on);
     // What the count needs, on the operator that needs less when that is
-    // the other one (an "auto" run that would not fit dense had quoted
+    // the other one and `forced` is false (an "auto" run that would not fit dense had quoted
     // the compressed operator's 0.87 GB where a run that fits announces
     // the dense 0.72).
     let name = |o: Operator| match o {
@@ -211,7 +211,9 @@ pub fn check_fits(
         Operator::Compressed => Operator::Dense,
     };
     let other = memory_for(n, other_op, loop_on);
-    let need_words = if other < need {
+    // Not when the case chose the operator: the run would never use the
+    // other one.
+    let need_words = if other < need && !forced {
         format!(
             "about {:.2} GB on the {} matrix ({:.2} GB on the {})",
             other / 1e9,
@@ -347,9 +349,14 @@ mod tests {
 
     #[test]
     fn refusal_suggests_a_count_that_fits() {
-        let err = check_fits(20_000, Operator::Compressed, (false, true, 0), Some(0.5e9))
-            .unwrap_err()
-            .to_string();
+        let err = check_fits(
+            20_000,
+            (Operator::Compressed, false),
+            (false, true, 0),
+            Some(0.5e9),
+        )
+        .unwrap_err()
+        .to_string();
         assert!(
             err.contains("geometry.panels")
                 && err.contains("half model")
@@ -362,13 +369,18 @@ mod tests {
                 assert!(
                     memory_for(fit, op, loop_on) <= 1e9 && memory_for(fit + 10, op, loop_on) > 1e9
                 );
-                assert!(check_fits(fit, op, (false, loop_on, 0), Some(1e9)).is_ok());
+                assert!(check_fits(fit, (op, false), (false, loop_on, 0), Some(1e9)).is_ok());
             }
         }
         // A dense run that would fit on the compressed operator says so.
-        let err = check_fits(15_000, Operator::Dense, (false, false, 0), Some(1e9))
-            .unwrap_err()
-            .to_string();
+        let err = check_fits(
+            15_000,
+            (Operator::Dense, false),
+            (false, false, 0),
+            Some(1e9),
+        )
+        .unwrap_err()
+        .to_string();
         assert!(err.contains("compressed"), "{err}");
         // A count that fits but is under a third of the body's suggested
         // count says its drag would not be converged (a review's 100 MB
@@ -376,7 +388,7 @@ mod tests {
         let coarse = |suggested: usize| {
             check_fits(
                 4_000,
-                Operator::Dense,
+                (Operator::Dense, false),
                 (false, true, suggested),
                 Some(100e6),
             )
@@ -396,15 +408,33 @@ mod tests {
             memory_for(8_060, Operator::Compressed, true),
         );
         assert!(dense < compressed, "{dense} {compressed}");
-        let err = check_fits(8_060, Operator::Compressed, (false, true, 0), Some(0.3e9))
-            .unwrap_err()
-            .to_string();
+        let err = check_fits(
+            8_060,
+            (Operator::Compressed, false),
+            (false, true, 0),
+            Some(0.3e9),
+        )
+        .unwrap_err()
+        .to_string();
         assert!(
             err.contains(&format!(
                 "need about {:.2} GB on the dense matrix ({:.2} GB on the compressed)",
                 dense / 1e9,
                 compressed / 1e9
             )),
+            "{err}"
+        );
+        // With the operator chosen in the case, only its own figure.
+        let err = check_fits(
+            8_060,
+            (Operator::Compressed, true),
+            (false, true, 0),
+            Some(0.3e9),
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            err.contains(&format!("need about {:.2} GB but", compressed / 1e9)),
             "{err}"
         );
     }

@@ -311,7 +311,7 @@ fn fitting_operator(
     let suggested = tuft_mesh::quality::suggested_panels(area, (hi - lo).max());
     estimate::check_fits(
         mesh.len(),
-        operator,
+        (operator, case.operator.is_some()),
         (mesh.mirrors.symmetry, loop_on, suggested),
         available,
     )?;
@@ -916,8 +916,8 @@ pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Opt
 /// Share of a body's plan area (length times width) over which it may
 /// stand on the ground before [`ground_contact_warning`] says the floor,
 /// not tyres, meets it: four tyres of the demo coupe make 0.19 m^2, 2 %
-/// of its 9.6 m^2; a floor 10 mm into the ground 2.75 m^2 (our line, well
-/// between).
+/// of its 8.3 m^2 (4.5 by 1.85 m); its floor 10 mm into the ground 2.74
+/// m^2, 33 % (our line, well between).
 pub const FLOOR_CONTACT_SHARE: f64 = 0.1;
 
 /// The plan area (length times width, m^2) of a body of extent `bounds`

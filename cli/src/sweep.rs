@@ -2,8 +2,9 @@
 //!
 //! Each variant writes a normal run folder `DIR/<variant>/` (plus its
 //! `variant.json`); variants sharing a geometry share one assembled and
-//! factorised matrix ([`group`]). A variant that fails is reported and the
-//! rest go on. Finished variant folders are kept (a sweep that stopped
+//! factorised matrix ([`group`]). A variant whose case a run would refuse
+//! stops the whole sweep before anything runs ([`plan`]); one that fails in
+//! its run (on the prepared body) is reported and the rest go on. Finished variant folders are kept (a sweep that stopped
 //! overnight picks up where it was) unless `--force`. `--shard K/N` runs
 //! the K-th of N contiguous slices of the variant list; `--slurm` writes a
 //! Slurm job array for the shards instead of running.

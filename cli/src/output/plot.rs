@@ -432,7 +432,14 @@ fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool) {
 /// Title, subtitle and axis labels.
 fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
     let (l, t, w, h) = f.rect;
-    text::draw(c, &plot.title, 30.0, 44.0, &TextStyle::new(28.0).bold());
+    let room = c.width() as f32 - 60.0;
+    text::draw(
+        c,
+        &plot.title,
+        30.0,
+        44.0,
+        &super::sheet::title_style(&plot.title, room),
+    );
     text::draw(
         c,
         &plot.subtitle,

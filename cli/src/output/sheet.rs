@@ -476,10 +476,10 @@ fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
 
 /// Title and explanatory note at the top.
 pub(crate) fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
-    text::draw(canvas, title, 30.0, 44.0, &TextStyle::new(28.0).bold());
+    let room = canvas.width() as f32 - 60.0;
+    text::draw(canvas, title, 30.0, 44.0, &title_style(title, room));
     // The note wraps onto up to three lines, smaller as it grows, within
     // the title band.
-    let room = canvas.width() as f32 - 60.0;
     let layouts: [(f32, &[f32]); 3] = [
         (16.0, &[74.0]),
         (15.0, &[68.0, 87.0]),
@@ -499,6 +499,17 @@ pub(crate) fn draw_titles(canvas: &mut Canvas, title: &str, note: &str) {
 
 /// `text` broken at spaces into lines no wider than `room` pixels (a
 /// single word wider than that keeps a line to itself).
+/// The title's style: 28 px bold, smaller (down to 18 px) when a long
+/// case name and a yawed run's wind words would not fit in `room`.
+pub(crate) fn title_style(title: &str, room: f32) -> TextStyle {
+    let full = TextStyle::new(28.0).bold();
+    let width = text::width(title, &full);
+    if width <= room {
+        return full;
+    }
+    TextStyle::new((28.0 * room / width).max(18.0)).bold()
+}
+
 fn wrap(text: &str, room: f32, style: &TextStyle) -> Vec<String> {
     let mut lines: Vec<String> = Vec::new();
     let mut line = String::new();
@@ -527,6 +538,25 @@ mod tests {
 
     use super::*;
     use crate::output::canvas::testing::{decode, keep};
+
+    /// A title that fits keeps its 28 px; one that would run off the
+    /// picture (a long variant name and a yawed run's wind words) shrinks
+    /// to fit it.
+    #[test]
+    fn a_long_title_shrinks_to_fit() {
+        let short = "Surface pressure, coupe, 40 m/s (144 km/h), yaw 0°";
+        let long = "Cp along the centre line, yaw-minus10_rear_window_deg-30_boot_deck_length-0.45, \
+                    40 m/s (144 km/h), yaw -10° (wind from the car's right, +y)";
+        let room = 1400.0 - 60.0;
+        let full = TextStyle::new(28.0).bold();
+        assert!(text::width(short, &full) <= room);
+        assert_eq!(
+            text::width(short, &title_style(short, room)),
+            text::width(short, &full)
+        );
+        assert!(text::width(long, &full) > room);
+        assert!(text::width(long, &title_style(long, room)) <= room + 1.0);
+    }
     use crate::output::fixture::{Fixture, caption};
     use crate::output::render::shade;
 

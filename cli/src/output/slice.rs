@@ -384,12 +384,14 @@ pub fn slice_picture_with_params(
             &[],
         );
     }
+    let title = caption.title(&format!("Flow slice: {}", slice.name.replace('-', " ")));
+    let room = c.width() as f32 - 60.0;
     text::draw(
         &mut c,
-        &caption.title(&format!("Flow slice: {}", slice.name.replace('-', " "))),
+        &title,
         30.0,
         44.0,
-        &TextStyle::new(28.0).bold(),
+        &super::sheet::title_style(&title, room),
     );
     for (k, line) in [describe_plane(slice), slice.note.clone()]
         .iter()

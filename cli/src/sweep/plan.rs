@@ -253,6 +253,10 @@ impl Plan {
 /// need the prepared body (the ground, axles and regions against it) stay
 /// with each variant's run. `dir`: the sweep file's folder.
 fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
+    // A built-in shape is generated once per geometry (variants that differ
+    // only in the flow share one; every Slurm shard repeats this).
+    let mut shapes: std::collections::HashMap<&str, Option<String>> =
+        std::collections::HashMap::new();
     let reasons: Vec<(&str, String)> = variants
         .iter()
         .filter_map(|v| {
@@ -260,10 +264,17 @@ fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
                 Err(e) => e.clone(),
                 Ok(file) => {
                     let path = dir.join(format!("{}.toml", v.name));
-                    crate::case::Case::from_file(&path, file.clone())
-                        .and_then(|case| crate::geometry::check_shape(&case))
-                        .err()
-                        .map(|e| format!("{e:#}"))?
+                    match crate::case::Case::from_file(&path, file.clone()) {
+                        Err(e) => format!("{e:#}"),
+                        Ok(case) => shapes
+                            .entry(v.geometry_key.as_str())
+                            .or_insert_with(|| {
+                                crate::geometry::check_shape(&case)
+                                    .err()
+                                    .map(|e| format!("{e:#}"))
+                            })
+                            .clone()?,
+                    }
                 }
             };
             Some((v.name.as_str(), why))
