@@ -110,6 +110,10 @@ pub struct Row {
     /// ([`crate::summary::Summary::wheels_on`]).
     #[serde(default)]
     pub wheels_on: bool,
+    /// Its floor, not tyres, stood on the ground
+    /// ([`crate::summary::Summary::floor_on_ground`]).
+    #[serde(default)]
+    pub floor_on_ground: bool,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
@@ -323,6 +327,15 @@ fn best_drag(c: &Collected) -> String {
             "{plateau} of {} variants ran without the separated-flow loop (solver.wakes = \"attached\") \
              and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
              winner is named; rank drag with the loop (the default)",
+            c.variants.len()
+        );
+    }
+    let floor = c.variants.iter().filter(|r| r.floor_on_ground).count();
+    if ranked && floor > 0 {
+        return format!(
+            "{floor} of {} variants have their floor on the ground (the ground set too high for \
+             them, the floor cut off there), so the bodies solved are not the ones drawn: no winner \
+             is named",
             c.variants.len()
         );
     }
@@ -689,6 +702,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         all_facets: s.all_facets(),
         plateau_drag: s.plateau_drag(),
         wheels_on: s.wheels_on(),
+        floor_on_ground: s.floor_on_ground(),
         regions: s.regions.clone(),
         against_next: None,
     };
@@ -840,7 +854,10 @@ fn shown_cell(key: &str, v: &serde_json::Value) -> String {
 /// model's drag, wheels on).
 fn winner_named(c: &Collected, rows: &[Row]) -> bool {
     not_converged(c).is_empty()
-        && !c.variants.iter().any(|r| r.plateau_drag || r.wheels_on)
+        && !c
+            .variants
+            .iter()
+            .any(|r| r.plateau_drag || r.wheels_on || r.floor_on_ground)
         && best_drag_in(rows).starts_with("best drag:")
 }
 
@@ -1637,6 +1654,7 @@ mod tests {
             all_facets: false,
             plateau_drag: false,
             wheels_on: false,
+            floor_on_ground: false,
             regions: Vec::new(),
             against_next: None,
         };
@@ -2154,6 +2172,15 @@ mod tests {
         let at = rows[0].iter().position(|h| *h == "wheels_on").unwrap();
         let of = |name: &str| rows.iter().find(|r| r[1] == name).map(|r| r[at]);
         assert_eq!((of("v0"), of("v1")), (Some("1"), Some("0")), "{text}");
+        // A floor on the ground (a ground set too high): no winner either,
+        // and said as such, not as wheels.
+        c.variants[0].wheels_on = false;
+        c.variants[0].floor_on_ground = true;
+        let line = best_drag(&c);
+        assert!(
+            line.starts_with("1 of 2 variants have their floor on the ground"),
+            "{line}"
+        );
     }
 
     #[test]
