@@ -71,6 +71,24 @@ pub enum Operator {
     Compressed,
 }
 
+impl Operator {
+    /// The operator's name as the case file and the messages give it.
+    pub fn name(self) -> &'static str {
+        match self {
+            Operator::Dense => "dense",
+            Operator::Compressed => "compressed",
+        }
+    }
+
+    /// The other operator.
+    pub fn other(self) -> Self {
+        match self {
+            Operator::Dense => Operator::Compressed,
+            Operator::Compressed => Operator::Dense,
+        }
+    }
+}
+
 /// The operator a run with `n` panels uses: forced, or chosen by size as
 /// the solver's `Auto` does (compressed from
 /// `PotentialParams::compressed_from` panels on), or compressed when a
@@ -202,14 +220,7 @@ pub fn check_fits(
     // the other one and `forced` is false (an "auto" run that would not fit dense had quoted
     // the compressed operator's 0.87 GB where a run that fits announces
     // the dense 0.72).
-    let name = |o: Operator| match o {
-        Operator::Dense => "dense",
-        Operator::Compressed => "compressed",
-    };
-    let other_op = match op {
-        Operator::Dense => Operator::Compressed,
-        Operator::Compressed => Operator::Dense,
-    };
+    let other_op = op.other();
     let other = memory_for(n, other_op, loop_on);
     // Not when the case chose the operator: the run would never use the
     // other one.
@@ -217,9 +228,9 @@ pub fn check_fits(
         format!(
             "about {:.2} GB on the {} matrix ({:.2} GB on the {})",
             other / 1e9,
-            name(other_op),
+            other_op.name(),
             need / 1e9,
-            name(op)
+            op.name()
         )
     } else {
         format!("about {:.2} GB", need / 1e9)

@@ -168,10 +168,7 @@ pub fn compute(
     progress.note(&format!(
         "{} panels, {} operator: expect about {:.0} s for the solve and {:.2} GB of memory",
         mesh.len(),
-        match operator {
-            estimate::Operator::Dense => "dense",
-            estimate::Operator::Compressed => "compressed",
-        },
+        operator.name(),
         guess.seconds.max(1.0),
         guess.memory_bytes / 1e9
     ));
