@@ -295,6 +295,13 @@ impl Summary {
     /// ground is set too high for it, and the wrap cut the floor off, so
     /// the body solved is not the one drawn.
     pub fn floor_on_ground(&self) -> bool {
+        self.bounds()
+            .is_some_and(|b| crate::pipeline::floor_contact(self.contact_area(), b).is_some())
+    }
+
+    /// The solved body's extent, metres (least and greatest corner), as
+    /// the preparation report records it; `None` when it does not.
+    pub fn bounds(&self) -> Option<[[f64; 3]; 2]> {
         let b = &self.mesh.preparation["bounds"];
         let corner = |k: usize| -> Option<[f64; 3]> {
             let c = b.get(k)?;
@@ -304,12 +311,7 @@ impl Summary {
                 c.get(2)?.as_f64()?,
             ])
         };
-        match (corner(0), corner(1)) {
-            (Some(lo), Some(hi)) => {
-                crate::pipeline::floor_contact(self.contact_area(), [lo, hi]).is_some()
-            }
-            _ => false,
-        }
+        Some([corner(0)?, corner(1)?])
     }
 
     /// Area over which the wrapped body stood on the ground, m^2 (0 when

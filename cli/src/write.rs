@@ -660,7 +660,7 @@ fn loop_text(w: &SeparatedWakes) -> String {
 /// study's variants had no line saying how high each stood); "no ground"
 /// in free air.
 fn clearance_words(s: &Summary) -> String {
-    let lowest = s.mesh.preparation["bounds"][0][2].as_f64();
+    let lowest = s.bounds().map(|[lo, _]| lo[2]);
     match (s.mesh.ground_z, lowest) {
         (None, _) => "no ground (free air)".to_owned(),
         (Some(g), Some(z)) if z - g < 5e-4 => "stands on the ground".to_owned(),
