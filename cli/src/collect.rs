@@ -299,17 +299,14 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
         .collect()
 }
 
-/// The printed best-drag line: no winner at all when a variant's mesh is
-/// too coarse ([`is_coarse_mesh`]), its drag is the plateau model's or it
-/// stood on the ground with wheels on, otherwise [`best_drag_in`] within each
-/// wind condition, since drag at another speed or yaw is another test.
-fn best_drag(c: &Collected) -> String {
-    // With one variant per wind condition (a yaw or speed sweep) there is
-    // nothing to rank, and so nothing to withhold.
-    let ranked = wind_groups(c).iter().any(|(_, rows)| rows.len() > 1);
+/// Why no winner is named in any wind condition, whatever the drag
+/// differences: a variant on too coarse a mesh, one whose drag is the
+/// plateau model's, one whose floor or wheels stand on the ground; `None`
+/// when nothing holds the ranking back.
+fn withheld(c: &Collected) -> Option<String> {
     let coarse = not_converged(c);
-    if ranked && !coarse.is_empty() {
-        return format!(
+    if !coarse.is_empty() {
+        return Some(format!(
             "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: {}, see \
              the warnings), so no winner is named",
             coarse.len(),
@@ -319,35 +316,49 @@ fn best_drag(c: &Collected) -> String {
                     .iter()
                     .filter(|r| coarse.contains(&r.name.as_str()))
             )
-        );
+        ));
     }
     let plateau = c.variants.iter().filter(|r| r.plateau_drag).count();
-    if ranked && plateau > 0 {
-        return format!(
+    if plateau > 0 {
+        return Some(format!(
             "{plateau} of {} variants ran without the separated-flow loop (solver.wakes = \"attached\") \
              and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
              winner is named; rank drag with the loop (the default)",
             c.variants.len()
-        );
+        ));
     }
     let floor = c.variants.iter().filter(|r| r.floor_on_ground).count();
-    if ranked && floor > 0 {
-        return format!(
+    if floor > 0 {
+        return Some(format!(
             "{floor} of {} variants have their floor on the ground (the ground set too high for \
              them, the floor cut off there), so the bodies solved are not the ones drawn: no winner \
              is named",
             c.variants.len()
-        );
+        ));
     }
     let wheels = c.variants.iter().filter(|r| r.wheels_on).count();
-    if ranked && wheels > 0 {
-        return format!(
+    if wheels > 0 {
+        return Some(format!(
             "{wheels} of {} variants stand on the ground with wheels on: {}; no winner is named",
             c.variants.len(),
             crate::pipeline::WHEELS_DRAG
-        );
+        ));
     }
+    None
+}
+
+/// The printed best-drag line: no winner at all when a variant's mesh is
+/// too coarse ([`is_coarse_mesh`]), its drag is the plateau model's or it
+/// stood on the ground ([`withheld`]), otherwise [`best_drag_in`] within
+/// each wind condition, since drag at another speed or yaw is another test.
+fn best_drag(c: &Collected) -> String {
+    // With one variant per wind condition (a yaw or speed sweep) there is
+    // nothing to rank, and so nothing to withhold.
     let groups = wind_groups(c);
+    let ranked = groups.iter().any(|(_, rows)| rows.len() > 1);
+    if ranked && let Some(why) = withheld(c) {
+        return why;
+    }
     match groups.as_slice() {
         [] => "no drag to rank".into(),
         [(_, rows)] => best_drag_in(rows),
@@ -853,12 +864,7 @@ fn shown_cell(key: &str, v: &serde_json::Value) -> String {
 /// every winner of the sweep ([`best_drag`]: coarse meshes, the plateau
 /// model's drag, wheels on).
 fn winner_named(c: &Collected, rows: &[Row]) -> bool {
-    not_converged(c).is_empty()
-        && !c
-            .variants
-            .iter()
-            .any(|r| r.plateau_drag || r.wheels_on || r.floor_on_ground)
-        && best_drag_in(rows).starts_with("best drag:")
+    withheld(c).is_none() && best_drag_in(rows).starts_with("best drag:")
 }
 
 /// `sweep.csv`: one row per variant in rank order, numbers in shortest
@@ -1323,16 +1329,16 @@ fn ride_height_note(c: &Collected) -> Option<String> {
 /// half of their suggested panels: each run's report says that a verdict
 /// can still move there, and the page shows the verdicts side by side.
 fn coarse_verdicts(c: &[Row]) -> Option<String> {
-    let coarse: Vec<&str> = c
+    let coarse: Vec<&Row> = c
         .iter()
         .filter(|r| r.coarse && !r.regions.is_empty())
-        .map(|r| r.name.as_str())
         .collect();
-    let which = match coarse.len() {
+    let names: Vec<&str> = coarse.iter().map(|r| r.name.as_str()).collect();
+    let which = match names.len() {
         0 => return None,
         n if n == c.len() => "Every variant was".to_owned(),
-        1 => format!("{} was", coarse[0]),
-        _ => format!("{} were", coarse.join(", ")),
+        1 => format!("{} was", names[0]),
+        _ => format!("{} were", names.join(", ")),
     };
     Some(format!(
         "{which} solved on under half of the panels suggested for its body: a region's verdict can \
@@ -1340,7 +1346,7 @@ fn coarse_verdicts(c: &[Row]) -> Option<String> {
          panels, against 22 to 36 % separated from 3,956 up), so read the verdicts and their changes \
          as provisional, and before acting on one near its line {} (tuft check prints the \
          suggested count).",
-        more_panels(c.iter().filter(|r| r.coarse && !r.regions.is_empty()))
+        more_panels(coarse.into_iter())
     ))
 }
 
