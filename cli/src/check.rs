@@ -122,13 +122,9 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let [lo, hi] = report.bounds;
     let size = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
     let key = if is_case { "geometry.units" } else { "--units" };
-    if let Some(why) = crate::geometry::size_problem(size, Some(params.units), key) {
-        anyhow::bail!("{label}: {why}");
-    }
-    report
-        .quality
-        .notes
-        .extend(crate::geometry::size_note(size, params.units, key));
+    let note = crate::geometry::size_verdict(size, Some(params.units), key)
+        .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
+    report.quality.notes.extend(note);
     // Axles and regions off the body are an error, given after what check
     // knows of the STL (its extent above all, which is what the axles must
     // be set against).

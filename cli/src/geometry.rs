@@ -63,15 +63,9 @@ pub fn load(case: &Case) -> Result<Geometry> {
         }
     };
     check_ground(&mesh, case)?;
-    check_size(&mesh, case)?;
+    let note = check_size(&mesh, case)?;
     check_placement(&mesh, case)?;
-    if let GeometrySource::Stl { unit, .. } = &case.source {
-        let (lo, hi) = mesh.bounds();
-        report
-            .quality
-            .notes
-            .extend(size_note((hi - lo).max(), *unit, "geometry.units"));
-    }
+    report.quality.notes.extend(note);
     Ok(Geometry {
         mesh,
         input_facets,
@@ -219,23 +213,35 @@ fn check_ground(mesh: &PanelMesh, case: &Case) -> Result<()> {
 /// (common practice), models for a tunnel a few centimetres.
 pub const BODY_SIZE_LIMITS: [f64; 2] = [0.05, 30.0];
 
-/// Refuse a body whose size says the length unit was misread.
-fn check_size(mesh: &PanelMesh, case: &Case) -> Result<()> {
+/// Refuse a body whose size says the length unit was misread; otherwise
+/// the note for an STL body small enough to be a scale model.
+fn check_size(mesh: &PanelMesh, case: &Case) -> Result<Option<String>> {
     let (lo, hi) = mesh.bounds();
     let unit = match &case.source {
         GeometrySource::Stl { unit, .. } => Some(*unit),
         GeometrySource::Shape { .. } => None,
     };
-    match size_problem((hi - lo).max(), unit, "geometry.units") {
-        Some(why) => bail!("{why}"),
-        None => Ok(()),
+    size_verdict((hi - lo).max(), unit, "geometry.units").map_err(|why| anyhow::anyhow!(why))
+}
+
+/// What a body `size` metres across at its largest says of its unit: the
+/// refusal of [`size_problem`] as the error, or the note of [`size_note`]
+/// (an STL's only: `unit` is `None` for a built-in shape).
+pub fn size_verdict(
+    size: f64,
+    unit: Option<tuft_mesh::LengthUnit>,
+    key: &str,
+) -> std::result::Result<Option<String>, String> {
+    match size_problem(size, unit, key) {
+        Some(why) => Err(why),
+        None => Ok(unit.and_then(|u| size_note(size, u, key))),
     }
 }
 
 /// The sentence refusing a body `size` metres across at its largest, when
 /// it lies outside [`BODY_SIZE_LIMITS`]; `unit` is the STL's (named with
 /// `key`, the setting that gives it), `None` for a built-in shape.
-pub fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -> Option<String> {
+fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -> Option<String> {
     if (BODY_SIZE_LIMITS[0]..=BODY_SIZE_LIMITS[1]).contains(&size) {
         return None;
     }
@@ -261,7 +267,7 @@ pub const SCALE_MODEL_SIZE: f64 = 1.0;
 /// report its numbers at a toy's size; the note names the car-sized
 /// readings the other units give (2.5 to 7 m). `unit`: the STL's, named
 /// with `key`.
-pub fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String> {
+fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String> {
     use tuft_mesh::LengthUnit;
     if size >= SCALE_MODEL_SIZE {
         return None;

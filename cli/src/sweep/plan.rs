@@ -167,15 +167,6 @@ impl Plan {
             .into_iter()
             .map(|settings| variant(&base, &dir, settings))
             .collect();
-        // One mistake in the keys fails every variant alike: say it once,
-        // before any folder is made.
-        if let Some(Err(first)) = variants.first().map(|v| &v.file)
-            && variants
-                .iter()
-                .all(|v| v.file.as_ref().err() == Some(first))
-        {
-            bail!("every variant's case fails the same way: {first}");
-        }
         unique_names(&mut variants);
         refuse_bad_variants(&dir, &variants)?;
         let variants = group_by_geometry(variants);
@@ -280,15 +271,15 @@ fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
             Some((v.name.as_str(), why))
         })
         .collect();
-    // One reason for every variant (a shape key beside an STL): said once.
+    // One reason for every variant (a misspelt key, a shape key beside an
+    // STL): said once.
     if let [(_, first), rest @ ..] = reasons.as_slice()
         && !rest.is_empty()
         && reasons.len() == variants.len()
         && rest.iter().all(|(_, why)| why == first)
     {
         bail!(
-            "{} of {} variants cannot run, so none was started; each fails the same way: {first}",
-            reasons.len(),
+            "all {} variants fail the same way, so none was started: {first}",
             variants.len()
         );
     }
@@ -640,7 +631,12 @@ mod tests {
         let e = refusal(&format!(
             "{BASE}[[vary]]\nkey = \"geometry.rear_windw_deg\"\nvalues = [20.0, 30.0]\n"
         ));
-        assert!(e.contains("every variant's case fails the same way"), "{e}");
+        assert!(
+            e.contains(
+                "all 2 variants fail the same way, so none was started: unknown key `rear_windw_deg`"
+            ),
+            "{e}"
+        );
     }
 
     /// A swept speed replaces the base case's, in whichever unit each is
