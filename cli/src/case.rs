@@ -384,7 +384,7 @@ pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> anyhow::Error
 /// A TOML reader's complaint without Rust's type names ("expected f64"
 /// reads "where a number is expected"), on one line.
 pub fn plain_toml_words(message: &str) -> String {
-    let mut what = message.trim().to_owned();
+    let mut what = with_nearest_name(message.trim());
     for (rust, plain) in [
         ("invalid type: ", ""),
         (", expected f64", " where a number is expected"),
@@ -402,6 +402,50 @@ pub fn plain_toml_words(message: &str) -> String {
         what = what.replace(rust, plain);
     }
     what.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+/// How alike (Jaro-Winkler, 0 to 1) a misspelt key or value must be to a
+/// known one for the complaint to name it: "rear_windw_deg" and
+/// "rear_window_deg" score 0.99, "speeed" and "speed" 0.96, "wake" and
+/// "wakes" 0.96; unrelated keys such as "slant_deg" and "speed" 0.54.
+const NEAREST_NAME_SCORE: f64 = 0.85;
+
+/// The name among `known` nearest to a misspelt `given`, when one is near
+/// enough ([`NEAREST_NAME_SCORE`]).
+pub fn nearest_name<'a>(given: &str, known: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+    known
+        .into_iter()
+        .map(|name| (strsim::jaro_winkler(given, name), name))
+        .filter(|(score, _)| *score >= NEAREST_NAME_SCORE)
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .map(|(_, name)| name)
+}
+
+/// A TOML reader's "unknown field `x`, expected one of `a`, `b`" (or
+/// "expected `a` or `b`", or "unknown variant") with the known name nearest to `x` named after it,
+/// when one is near enough ([`NEAREST_NAME_SCORE`]): a misspelt key in a
+/// long list of keys had left the user to find it.
+fn with_nearest_name(message: &str) -> String {
+    let Some(rest) = ["unknown field `", "unknown variant `"]
+        .iter()
+        .find_map(|lead| message.find(lead).map(|at| &message[at + lead.len()..]))
+    else {
+        return message.to_owned();
+    };
+    let Some((given, list)) = rest.split_once('`') else {
+        return message.to_owned();
+    };
+    let Some(list) = list.split_once("expected").map(|(_, l)| l) else {
+        return message.to_owned();
+    };
+    match nearest_name(given, list.split('`').skip(1).step_by(2)) {
+        Some(name) => message.replacen(
+            &format!("`{given}`"),
+            &format!("`{given}` (did you mean `{name}`?)"),
+            1,
+        ),
+        None => message.to_owned(),
+    }
 }
 
 fn positive(key: &str, v: f64) -> Result<()> {
@@ -657,6 +701,29 @@ mod tests {
 
     fn err(text: &str) -> String {
         format!("{:#}", parse(text).unwrap_err())
+    }
+
+    /// A misspelt key or value names the known one nearest to it (scores
+    /// quoted at `NEAREST_NAME_SCORE`), and names none when nothing is
+    /// near.
+    #[test]
+    fn a_misspelt_name_names_the_nearest() {
+        let words = |text: &str| {
+            let file = toml::from_str::<CaseFile>(text).unwrap_err();
+            plain_toml_words(file.message())
+        };
+        let e = words("[geometry]\nshape = \"coupe\"\nrear_windw_deg = 30\n");
+        assert!(
+            e.starts_with("unknown key `rear_windw_deg` (did you mean `rear_window_deg`?); the keys here are `stl`"),
+            "{e}"
+        );
+        let g = "[geometry]\nshape = \"coupe\"\n";
+        let e = words(&format!("{g}[flow]\nspeeed = 40\n"));
+        assert!(e.contains("`speeed` (did you mean `speed`?)"), "{e}");
+        let e = words(&format!("{g}[solver]\nwake = \"attached\"\n"));
+        assert!(e.contains("`wake` (did you mean `wakes`?)"), "{e}");
+        let e = words(&format!("{g}[flow]\nwind = 40\n"));
+        assert!(!e.contains("did you mean"), "{e}");
     }
 
     /// An STL in other axes: the nose at +x (ISO 8855 vehicle axes) or y

@@ -328,7 +328,10 @@ fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
     }
     // Check the base now so its mistakes are reported once, up front.
     let _: CaseFile = value.clone().try_into().map_err(|e: toml::de::Error| {
-        anyhow::anyhow!("base case: {}", e.to_string().trim().replace('\n', " "))
+        anyhow::anyhow!(
+            "base case: {}",
+            crate::case::plain_toml_words(&e.to_string())
+        )
     })?;
     Ok(value)
 }
@@ -347,9 +350,11 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
         let key = full_key(&v.key);
         if !key.contains('.') {
             let shorts: Vec<&str> = SHORT_KEYS.iter().map(|(short, _)| *short).collect();
+            let nearest = crate::case::nearest_name(&v.key, shorts.iter().copied())
+                .map_or(String::new(), |name| format!(" (did you mean {name}?)"));
             bail!(
-                "vary #{} (key \"{}\"): not a key tuft knows; give a case-file key with its section \
-                 (e.g. geometry.rear_window_deg, flow.speed_kmh) or one of the short names {}",
+                "vary #{} (key \"{}\"): not a key tuft knows{nearest}; give a case-file key with its \
+                 section (e.g. geometry.rear_window_deg, flow.speed_kmh) or one of the short names {}",
                 k + 1,
                 v.key,
                 shorts.join(", ")
@@ -625,7 +630,7 @@ mod tests {
             "{BASE}[[vary]]\nkey = \"rear_windw_deg\"\nvalues = [20.0]\n"
         ));
         assert!(
-            e.contains("\"rear_windw_deg\"): not a key tuft knows"),
+            e.contains("\"rear_windw_deg\"): not a key tuft knows (did you mean rear_window_deg?)"),
             "{e}"
         );
         let e = refusal(&format!(
@@ -635,6 +640,14 @@ mod tests {
             e.contains(
                 "all 2 variants fail the same way, so none was started: unknown key `rear_windw_deg`"
             ),
+            "{e}"
+        );
+        let e = refusal(
+            "[base.geometry]\nshape = \"coupe\"\nrear_windw_deg = 20.0\n\
+             [[vary]]\nkey = \"speed\"\nvalues = [30.0]\n",
+        );
+        assert!(
+            e.contains("base case: unknown key `rear_windw_deg` (did you mean `rear_window_deg`?)"),
             "{e}"
         );
     }
