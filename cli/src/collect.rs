@@ -466,9 +466,11 @@ fn leader_words(rows: &[Row]) -> String {
             )
         } else if v.resolved {
             format!(
-                "best drag: {lowest}, {gap:.1} counts below {} (at both ends of the sensitivity bands too, and \
-                 the separated regions agree)",
-                second.name
+                "best drag: {lowest}, {gap:.1} counts below {} (by at least {} counts again with both \
+                 boundary layers marched at either end of the sensitivity settings, and the two share \
+                 their separated regions)",
+                second.name,
+                crate::compare::NOISE_COUNTS
             )
         } else if !v.leaning.is_empty() {
             format!(
@@ -479,8 +481,9 @@ fn leader_words(rows: &[Row]) -> String {
         } else {
             format!(
                 "no clear winner, within the model uncertainty: the lowest drag, {lowest}, is {gap:.1} counts \
-                 below {} between the central estimates but not at both ends of the sensitivity bands",
-                second.name
+                 below {} between the central estimates, but {}",
+                second.name,
+                crate::compare::band_shortfall(-v.delta_counts, v.band_deltas_counts.map(|d| -d))
             )
         };
     }
@@ -1317,11 +1320,10 @@ fn ride_height_note(c: &Collected) -> Option<String> {
         .iter()
         .any(|k| k == "ground.z" || k == "geometry.ride_height")
         .then(|| {
-            "The lift across ride heights moves mostly with the smooth underbody's suction, the least \
-             certain part of the lift (a real underbody, with its wheels, roughness and cooling flow, \
-             sucks far less): read its trend as this model's, and confirm with validated CFD or a \
-             tunnel."
-                .to_owned()
+            format!(
+                "The lift across ride heights {}.",
+                crate::compare::UNDERBODY_LIFT_WORDS
+            )
         })
 }
 

@@ -30,7 +30,8 @@ use mapping::{Mapping, SourcePanel, map_nearest};
 #[cfg(test)]
 use verdict::drag_verdict;
 pub use verdict::{
-    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, common_area, drag_verdict_named,
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area,
+    drag_verdict_named,
 };
 
 use crate::outdir::Staging;
@@ -132,6 +133,11 @@ pub struct SurfaceDeltas {
     /// out of it.
     #[serde(default)]
     pub separation_net_frontal_m2: f64,
+    /// How far A's panels were moved to meet B's before mapping, m: zero,
+    /// or the offset of B's body from A's in their files when that makes
+    /// them coincide (`map_a_onto_b`: a ride height, another origin).
+    #[serde(default)]
+    pub shift_m: [f64; 3],
     /// Share of B's area within [`UNCHANGED_FRACTION`] of the body length
     /// of A's surface: where the shape did not change.
     #[serde(default)]
@@ -276,24 +282,79 @@ fn default_out(a: &ResultFolder, b: &ResultFolder) -> PathBuf {
     parent.join(format!("compare-{}-vs-{}", a.label(), b.label()))
 }
 
-/// A's panels mapped onto B's centroids.
+/// A's panels mapped onto B's centroids: where they lie, or moved by the
+/// offset of B's least corner (nose end, left side, bottom) from A's when that makes the
+/// two bodies coincide better (half or less of the area-weighted median
+/// distance, our choice). A body raised by its ride height, or exported
+/// from another origin, had been compared panel by panel with the surface
+/// 20 mm below it, and the difference drawn over its nose; a change of
+/// shape that moves the lowest point (a deeper splitter) leaves the rest
+/// of the body in place, so its unshifted mapping stays the closer.
 pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
-    let src: Vec<SourcePanel> = a
-        .panels
+    let map = |shift: nalgebra::Vector3<f64>| {
+        let src: Vec<SourcePanel> = a
+            .panels
+            .iter()
+            .map(|p| SourcePanel {
+                centroid: p.centroid + shift,
+                normal: p.normal,
+                area: p.area,
+            })
+            .collect();
+        let targets: Vec<_> = b.panels.iter().map(|p| (p.centroid, p.normal)).collect();
+        // ResultFolder::read refuses a folder without panels, so A is not empty.
+        let mut m = map_nearest(&src, &targets).unwrap_or(Mapping {
+            source: Vec::new(),
+            distance: Vec::new(),
+            weights: Vec::new(),
+            shift,
+        });
+        m.shift = shift;
+        m
+    };
+    let in_place = map(nalgebra::Vector3::zeros());
+    let (la, lb) = (corner(a), corner(b));
+    let shift = lb - la;
+    if shift.norm() <= 1e-9 * b.summary.reference.length_m.max(1.0) {
+        return in_place;
+    }
+    let moved = map(shift);
+    let median = |m: &Mapping| {
+        let pairs = m
+            .distance
+            .iter()
+            .copied()
+            .zip(b.panels.iter().map(|p| p.area));
+        area_quantile(pairs.collect(), 0.5)
+    };
+    if median(&moved) <= 0.5 * median(&in_place) {
+        moved
+    } else {
+        in_place
+    }
+}
+
+/// The least corner of a run's panel centroids.
+fn corner(r: &ResultFolder) -> nalgebra::Vector3<f64> {
+    r.panels
         .iter()
-        .map(|p| SourcePanel {
-            centroid: p.centroid,
-            normal: p.normal,
-            area: p.area,
+        .fold(nalgebra::Vector3::repeat(f64::INFINITY), |lo, p| {
+            lo.inf(&p.centroid.coords)
         })
-        .collect();
-    let targets: Vec<_> = b.panels.iter().map(|p| (p.centroid, p.normal)).collect();
-    // ResultFolder::read refuses a folder without panels, so A is not empty.
-    map_nearest(&src, &targets).unwrap_or(Mapping {
-        source: Vec::new(),
-        distance: Vec::new(),
-        weights: Vec::new(),
-    })
+}
+
+/// The area-weighted `q` quantile of (value, area) pairs (0 for none).
+fn area_quantile(mut pairs: Vec<(f64, f64)>, q: f64) -> f64 {
+    pairs.sort_by(|x, y| x.0.total_cmp(&y.0));
+    let total: f64 = pairs.iter().map(|p| p.1).sum();
+    let mut seen = 0.0;
+    pairs
+        .iter()
+        .find(|(_, a)| {
+            seen += a;
+            seen >= q * total
+        })
+        .map_or(0.0, |(v, _)| *v)
 }
 
 fn side(r: &ResultFolder) -> Side {
@@ -313,7 +374,8 @@ fn side(r: &ResultFolder) -> Side {
 }
 
 /// Free-stream speed of a run, from its case.
-fn speed_of(s: &crate::summary::Summary) -> f64 {
+/// A run's speed, m/s (NaN when not recorded).
+pub fn speed_of(s: &crate::summary::Summary) -> f64 {
     s.flow("speed").unwrap_or(f64::NAN)
 }
 
@@ -451,6 +513,7 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     let mut out = SurfaceDeltas {
         panels_b: b.panels.len(),
         mapped: mapping.source.len(),
+        shift_m: mapping.shift.into(),
         ..SurfaceDeltas::default()
     };
     let mut dist = mapping.distance.clone();
@@ -535,15 +598,7 @@ fn unchanged_noise(
     out.unchanged_share = if total > 0.0 { area / total } else { 0.0 };
     out.unchanged_drag_counts = 1000.0 * drag / reference;
     out.unchanged_lift_kg = lift * s.dynamic_pressure_pa / tuft_solver::loads::STANDARD_GRAVITY;
-    spread.sort_by(|x, y| x.0.total_cmp(&y.0));
-    let mut seen = 0.0;
-    out.unchanged_delta_cp_p95 = spread
-        .iter()
-        .find(|(_, a)| {
-            seen += a;
-            seen >= 0.95 * area
-        })
-        .map_or(0.0, |(d, _)| *d);
+    out.unchanged_delta_cp_p95 = area_quantile(spread, 0.95);
 }
 
 /// Warnings about what makes the two runs hard to compare; `model_notes`
@@ -584,6 +639,9 @@ fn notes(
              discretisation error; compare variants at about the same panel count"
         ));
     }
+    if let Some(n) = clearance_note(sa, sb) {
+        notes.push(n);
+    }
     if let Some(n) = reference_note(sa, sb) {
         notes.push(n);
     }
@@ -601,14 +659,26 @@ fn notes(
     notes
 }
 
-/// A note when B's body is A's size but lies elsewhere, so that little of
-/// it meets A's surface: the two STLs were exported in different axes
-/// (one from the nose, one from the front axle, say). The mapping is by
-/// position, so every difference would then compare unrelated panels.
-/// Same size: the panel centroids' extents agree within 5 % on every axis;
-/// elsewhere: their centres lie more than 2 % of the length apart; little:
-/// under half of B's surface unchanged (our choices).
+/// A note when B's body lies elsewhere in its file than A's. When moving
+/// A onto B made them coincide (`SurfaceDeltas::shift_m`: a ride height,
+/// an STL exported from another origin), it says by how much; otherwise,
+/// when B's body is A's size but lies elsewhere and little of it meets
+/// A's surface (the two STLs were exported in different axes, one from the
+/// nose and one from the front axle, say), every difference would compare
+/// unrelated panels, and it says so. Same size: the panel centroids'
+/// extents agree within 5 % on every axis; elsewhere: their centres lie
+/// more than 2 % of the length apart; little: under half of B's surface
+/// unchanged (our choices).
 fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> Option<String> {
+    let [dx, dy, dz] = surface.shift_m;
+    if [dx, dy, dz] != [0.0; 3] {
+        return Some(format!(
+            "B's body lies ({dx:+.3}, {dy:+.3}, {dz:+.3}) m from A's in its file: compare moved A's by \
+             as much, where the two coincide ({:.0} % of B's surface then meets A's), so the pictures \
+             and the separation notes compare the same places on the body",
+            100.0 * surface.unchanged_share
+        ));
+    }
     let bounds = |r: &ResultFolder| {
         r.panels.iter().fold(
             ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
@@ -641,6 +711,28 @@ fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> O
             shift[1],
             shift[2],
             100.0 * surface.unchanged_share
+        )
+    })
+}
+
+/// What a change of ground clearance does to the lift in this model (after
+/// "the lift across ride heights"; `collect` says it of a ride-height
+/// sweep, `compare` of two clearances).
+pub const UNDERBODY_LIFT_WORDS: &str = "moves mostly with the smooth underbody's suction, the least \
+     certain part of the lift (a real underbody, with its wheels, roughness and cooling flow, sucks far \
+     less): read its trend as this model's, and confirm with validated CFD or a tunnel";
+
+/// A note when the two bodies stand at ground clearances more than half a
+/// millimetre apart: both clearances, and what the lift difference then
+/// rests on.
+fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (ca, cb) = (a.clearance_m()?, b.clearance_m()?);
+    ((ca - cb).abs() > 5e-4).then(|| {
+        format!(
+            "the ground clearances differ ({:.0} and {:.0} mm from the lowest point to the ground): the \
+             lift across ride heights {UNDERBODY_LIFT_WORDS}",
+            1000.0 * ca,
+            1000.0 * cb
         )
     })
 }
@@ -970,6 +1062,32 @@ mod tests {
         s
     }
 
+    /// Two ride heights: both clearances named, with what the lift then
+    /// rests on; one clearance, or free air, raises no note.
+    #[test]
+    fn two_clearances_are_named() {
+        let at = |lowest: f64, ground: Option<f64>| {
+            let mut s = with_area(1.9);
+            s.mesh.ground_z = ground;
+            s.mesh.preparation =
+                serde_json::json!({"bounds": [[0.0, -0.9, lowest], [4.5, 0.9, 1.3]]});
+            s
+        };
+        let n = clearance_note(&at(0.12, Some(0.0)), &at(0.14, Some(0.0))).unwrap();
+        assert!(
+            n.starts_with(
+                "the ground clearances differ (120 and 140 mm from the lowest point to the ground): the \
+                 lift across ride heights moves mostly with the smooth underbody's suction"
+            ),
+            "{n}"
+        );
+        assert_eq!(
+            clearance_note(&at(0.12, Some(0.0)), &at(0.1202, Some(0.0))),
+            None
+        );
+        assert_eq!(clearance_note(&at(0.12, None), &at(0.14, None)), None);
+    }
+
     #[test]
     fn reference_areas_a_fraction_of_a_percent_apart_raise_no_note() {
         // The demo's two coupes: 1.8745 and 1.8702 m^2, 0.2 % apart, move
@@ -1203,6 +1321,56 @@ mod tests {
         assert_eq!(offset_note(&a, &b, &surface), None);
         surface.unchanged_share = 0.2;
         assert_eq!(offset_note(&a, &folder(0.0), &surface), None);
+        // Moved onto each other, the bodies coincide, and the note says by
+        // how much they were moved instead.
+        let mapping = map_a_onto_b(&a, &b);
+        assert_eq!(mapping.shift, nalgebra::Vector3::new(0.881, 0.0, 0.0));
+        assert!(mapping.distance.iter().all(|&d| d < 1e-12));
+        let surface = surface_deltas(&a, &b, &mapping);
+        assert_eq!(
+            offset_note(&a, &b, &surface).as_deref(),
+            Some(
+                "B's body lies (+0.881, +0.000, +0.000) m from A's in its file: compare moved A's by as \
+                 much, where the two coincide (100 % of B's surface then meets A's), so the pictures and \
+                 the separation notes compare the same places on the body"
+            )
+        );
+    }
+
+    /// A body raised by 20 mm (a ride-height variant of a built-in shape)
+    /// is compared with itself where it now lies (a review's ride-height
+    /// compare had drawn a difference over the nose); a shape change that
+    /// lowers the lowest point (a splitter) keeps the rest of the body in
+    /// place.
+    #[test]
+    fn a_raised_body_is_mapped_where_it_lies() {
+        let grid: Vec<[f64; 3]> = (0..10)
+            .flat_map(|i| (0..4).map(move |j| [0.45 * i as f64, -0.9 + 0.6 * j as f64, 0.12]))
+            .collect();
+        let folder = |points: &[[f64; 3]], dz: f64| ResultFolder {
+            path: PathBuf::from("r"),
+            summary: with_area(1.9),
+            panels: points
+                .iter()
+                .map(|c| folder::PanelRow {
+                    centroid: nalgebra::Point3::new(c[0], c[1], c[2] + dz),
+                    normal: -nalgebra::Vector3::z(),
+                    area: 0.05,
+                    cp: c[0],
+                    state: PanelState::Turbulent,
+                    risk: 0.0,
+                })
+                .collect(),
+        };
+        let a = folder(&grid, 0.0);
+        let m = map_a_onto_b(&a, &folder(&grid, 0.02));
+        assert!((m.shift - nalgebra::Vector3::new(0.0, 0.0, 0.02)).norm() < 1e-12);
+        assert!(m.distance.iter().all(|&d| d < 1e-12));
+        let mut splitter = grid.clone();
+        splitter.push([0.2, 0.0, 0.07]);
+        let m = map_a_onto_b(&a, &folder(&splitter, 0.0));
+        assert_eq!(m.shift, nalgebra::Vector3::zeros());
+        assert!(m.distance[..grid.len()].iter().all(|&d| d < 1e-12));
     }
 
     #[test]

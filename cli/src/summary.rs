@@ -299,6 +299,12 @@ impl Summary {
             .is_some_and(|b| crate::pipeline::floor_contact(self.contact_area(), b).is_some())
     }
 
+    /// Height of the body's lowest point above the ground, m; `None` in
+    /// free air or when the extent is not recorded.
+    pub fn clearance_m(&self) -> Option<f64> {
+        Some(self.bounds()?[0][2] - self.mesh.ground_z?)
+    }
+
     /// The solved body's extent, metres (least and greatest corner), as
     /// the preparation report records it; `None` when it does not.
     pub fn bounds(&self) -> Option<[[f64; 3]; 2]> {

@@ -660,11 +660,10 @@ fn loop_text(w: &SeparatedWakes) -> String {
 /// study's variants had no line saying how high each stood); "no ground"
 /// in free air.
 fn clearance_words(s: &Summary) -> String {
-    let lowest = s.bounds().map(|[lo, _]| lo[2]);
-    match (s.mesh.ground_z, lowest) {
+    match (s.mesh.ground_z, s.clearance_m()) {
         (None, _) => "no ground (free air)".to_owned(),
-        (Some(g), Some(z)) if z - g < 5e-4 => "stands on the ground".to_owned(),
-        (Some(g), Some(z)) => format!("{:.0}", 1000.0 * (z - g)),
+        (Some(_), Some(c)) if c < 5e-4 => "stands on the ground".to_owned(),
+        (Some(_), Some(c)) => format!("{:.0}", 1000.0 * c),
         (Some(_), None) => "not recorded".to_owned(),
     }
 }

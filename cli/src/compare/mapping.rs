@@ -39,6 +39,10 @@ pub struct Mapping {
     pub distance: Vec<f64>,
     /// Linear weights of source values per target point (they sum to 1).
     pub weights: Vec<Vec<(usize, f64)>>,
+    /// How far the source panels were moved before mapping, m (zero unless
+    /// the source body lies elsewhere in its file, see
+    /// `compare::map_a_onto_b`).
+    pub shift: Vector3<f64>,
 }
 
 impl Mapping {
@@ -92,6 +96,7 @@ pub fn map_nearest(
         source: Vec::with_capacity(targets.len()),
         distance: Vec::with_capacity(targets.len()),
         weights: Vec::with_capacity(targets.len()),
+        shift: Vector3::zeros(),
     };
     for (p, n) in targets {
         let (j, d, stencil) = best_candidate(&tree, source, p, n);
