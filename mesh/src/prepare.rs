@@ -172,6 +172,29 @@ pub fn prepare(
     prepare_mesh(mesh, Some(read), params)
 }
 
+/// What the STL reader did beyond reading one plain file: several parts
+/// read as one body, a facet count that fell short.
+fn read_notes(r: &StlReport) -> Vec<String> {
+    let mut notes = Vec::new();
+    if r.solids > 1 {
+        let what = match r.format {
+            crate::import::StlFormat::Ascii => "solid ... endsolid blocks (one per part)",
+            crate::import::StlFormat::Binary => "binary STLs joined one after another",
+        };
+        notes.push(format!(
+            "the STL holds {} {what}: all {} facets were read as one body",
+            r.solids, r.facets
+        ));
+    }
+    if let Some(n) = r.count_short {
+        notes.push(format!(
+            "the STL's header gives {n} facets but the file holds {}: all were read",
+            r.facets
+        ));
+    }
+    notes
+}
+
 /// Prepare a mesh already in memory (in `params.units`).
 ///
 /// # Errors
@@ -289,6 +312,17 @@ pub fn prepare_mesh(
         }
         if mirrored_half {
             q.notes.push(MIRRORED_HALF_NOTE.to_owned());
+        }
+        if let Some(r) = &read {
+            q.notes.extend(read_notes(r));
+            if r.trailing_bytes >= 50 {
+                q.add_warning(format!(
+                    "{} bytes after the STL's last facet were ignored: they are neither whole facets \
+                     nor a binary STL joined after it, so a part may be missing from the body (tuft \
+                     check lists what was read); export the file again if it should hold more",
+                    r.trailing_bytes
+                ));
+            }
         }
         if let Some(c) = &whole_cut {
             q.notes.push(c.describe());

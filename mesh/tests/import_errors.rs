@@ -237,3 +237,49 @@ fn ascii_solid_without_name() {
     let (_, r) = read_stl(&common::write(dir.path(), "n.stl", text.as_bytes())).unwrap();
     assert_eq!(r.facets, 20);
 }
+
+/// Parts written as separate solids, the way many exporters write an
+/// assembly: every ASCII `solid ... endsolid` block is read (only the
+/// first had been, silently), and so is a file whose writer left out the
+/// last `endsolid`. Binary STLs joined with `cat` are read whole too, and
+/// a binary count that falls short of the facets the length holds reads
+/// them all, saying so.
+#[test]
+fn every_part_of_a_multi_part_file_is_read() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = generate::icosphere(1.0, 1);
+    let mut b = generate::icosphere(0.5, 0);
+    for v in &mut b.vertices {
+        v.x += 5.0;
+    }
+    // ASCII: two solids, and the same without its closing line.
+    let two = common::ascii_stl(&a) + &common::ascii_stl(&b).replace("solid test", "solid wheel");
+    let (m, r) = read_stl(&common::write(dir.path(), "two.stl", two.as_bytes())).unwrap();
+    assert_eq!((r.format, r.facets, r.solids), (StlFormat::Ascii, 100, 2));
+    assert!(m.vertices.iter().any(|v| v.x > 4.0));
+    let open = two
+        .trim_end()
+        .trim_end_matches("endsolid wheel")
+        .trim_end_matches("endsolid");
+    let (_, r) = read_stl(&common::write(dir.path(), "open.stl", open.as_bytes())).unwrap();
+    assert_eq!((r.facets, r.solids), (100, 2));
+    // Binary: two files joined, their meshes the same as the ASCII's.
+    let mut joined = common::binary_stl(&a);
+    joined.extend_from_slice(&common::binary_stl(&b));
+    let (mb, r) = read_stl(&common::write(dir.path(), "cat.stl", &joined)).unwrap();
+    assert_eq!(
+        (r.format, r.facets, r.solids, r.trailing_bytes),
+        (StlFormat::Binary, 100, 2, 0)
+    );
+    assert_eq!(m.triangles, mb.triangles);
+    // A count of 30 before 80 facets: all 80 read, the short count kept.
+    let mut short = common::binary_stl(&a);
+    short[80..84].copy_from_slice(&30u32.to_le_bytes());
+    let (_, r) = read_stl(&common::write(dir.path(), "short.stl", &short)).unwrap();
+    assert_eq!((r.facets, r.count_short, r.solids), (80, Some(30), 1));
+    // Padding that is no STL stays trailing bytes.
+    let mut padded = common::binary_stl(&a);
+    padded.extend_from_slice(&[0u8; 130]);
+    let (_, r) = read_stl(&common::write(dir.path(), "pad.stl", &padded)).unwrap();
+    assert_eq!((r.facets, r.trailing_bytes, r.solids), (80, 130, 1));
+}

@@ -3,7 +3,9 @@
 //! The file is classified from its first 84 bytes and its length before any
 //! facet is trusted: a binary file must be exactly `84 + 50 n` bytes long for
 //! the `n` its header declares (trailing bytes beyond that are tolerated and
-//! reported), text must start with `solid`. Facets are then streamed through
+//! reported; whole facets beyond a count that fell short are read, and so
+//! are binary STLs joined after it), text must start with `solid` (every
+//! `solid ... endsolid` block of a file that holds several parts is read). Facets are then streamed through
 //! `stl_io` one at a time; corners with bit-identical coordinates are merged
 //! on the fly with a hash map, so memory stays near the size of the indexed
 //! mesh rather than of the file.
@@ -50,6 +52,15 @@ pub struct StlReport {
     /// facets the file's length holds were read.
     #[serde(default)]
     pub count_missing: bool,
+    /// The binary header's facet count when it was below the whole facets
+    /// the file's length holds, and those were all read (a writer that
+    /// counted wrong); `None` when the count was right (or 0, see
+    /// [`Self::count_missing`]).
+    pub count_short: Option<u64>,
+    /// Solids read: `solid ... endsolid` blocks of an ASCII file (one per
+    /// part, as many exporters write them), or binary STLs joined one after
+    /// another in one file; 1 for a plain file.
+    pub solids: usize,
 }
 
 /// Read an STL file in the file's own length unit (no scaling).
@@ -83,24 +94,30 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         .read_to_end(&mut head)
         .map_err(io)?;
     let kind = classify(&head, bytes)?;
-    let count_missing = matches!(kind, Kind::Binary { declared: 0 })
-        && bytes > HEADER
-        && (bytes - HEADER).is_multiple_of(FACET);
-    let (mut patched, format, declared) = match kind {
+    let whole_facets = bytes > HEADER && (bytes - HEADER).is_multiple_of(FACET);
+    let count_missing = matches!(kind, Kind::Binary { declared: 0 }) && whole_facets;
+    let (mut patched, format, declared, count_short) = match kind {
         Kind::Binary { declared } => {
-            // A count of 0 before whole facets: read what the length holds.
-            let declared = if count_missing {
-                (bytes - HEADER) / FACET
-            } else {
-                declared
+            // Binary STLs joined one after another (`cat a.stl b.stl`): each
+            // one's header is skipped and every facet read.
+            let joined = joined_binaries(&mut reader, declared, bytes).map_err(io)?;
+            let read_all = !count_missing && joined.is_none() && whole_facets;
+            let (declared, count_short, gaps) = match joined {
+                Some((total, gaps)) => (total, None, gaps),
+                // A count of 0, or one short of the whole facets the length
+                // holds: read what the length holds.
+                None if count_missing => ((bytes - HEADER) / FACET, None, Vec::new()),
+                None if read_all && HEADER + FACET * declared < bytes => {
+                    ((bytes - HEADER) / FACET, Some(declared), Vec::new())
+                }
+                None => (declared, None, Vec::new()),
             };
             let mut prefix = vec![0; 80];
             prefix.extend_from_slice(&u32::try_from(declared).unwrap_or(u32::MAX).to_le_bytes());
-            (
-                Patched::new(reader, prefix, HEADER, false).map_err(io)?,
-                StlFormat::Binary,
-                Some(declared),
-            )
+            let mut patched = Patched::new(reader, prefix, HEADER, false).map_err(io)?;
+            patched.solids += gaps.len();
+            patched.gaps = gaps;
+            (patched, StlFormat::Binary, Some(declared), count_short)
         }
         Kind::Ascii => {
             let skip = first_line_length(&mut reader).map_err(io)?;
@@ -108,6 +125,7 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
             (
                 Patched::new(reader, prefix, skip, true).map_err(io)?,
                 StlFormat::Ascii,
+                None,
                 None,
             )
         }
@@ -130,7 +148,8 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
     if mesh.is_empty() {
         return Err(MeshError::NoFacets);
     }
-    let trailing_bytes = declared.map_or(0, |n| bytes - HEADER - FACET * n);
+    let headers = HEADER * patched.solids as u64;
+    let trailing_bytes = declared.map_or(0, |n| bytes.saturating_sub(headers + FACET * n));
     let report = StlReport {
         format,
         bytes,
@@ -138,6 +157,8 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         vertices: mesh.vertices.len(),
         trailing_bytes,
         count_missing,
+        count_short,
+        solids: patched.solids,
     };
     Ok((mesh, report))
 }
@@ -239,6 +260,37 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     Ok(Kind::Binary { declared })
 }
 
+/// Binary STLs joined in one file: the facets of all of them, and the byte
+/// ranges of the headers after the first.
+type Joined = (u64, Vec<(u64, u64)>);
+
+/// When the bytes after a binary STL's `declared` facets are whole binary
+/// STLs, one after another to the end of the file, each header giving the
+/// facets that follow it: the facets of all of them and the byte ranges of
+/// the headers after the first (to skip). `None` for anything else
+/// (padding, a short count, a file that ends inside a facet).
+fn joined_binaries<R: Read + Seek>(
+    reader: &mut R,
+    declared: u64,
+    bytes: u64,
+) -> std::io::Result<Option<Joined>> {
+    let mut at = HEADER + FACET * declared;
+    let (mut total, mut gaps) = (declared, Vec::new());
+    while at + HEADER <= bytes {
+        reader.seek(SeekFrom::Start(at + 80))?;
+        let mut count = [0u8; 4];
+        reader.read_exact(&mut count)?;
+        let n = u64::from(u32::from_le_bytes(count));
+        if n == 0 || at + HEADER + FACET * n > bytes {
+            return Ok(None);
+        }
+        gaps.push((at, at + HEADER));
+        total += n;
+        at += HEADER + FACET * n;
+    }
+    Ok((at == bytes && !gaps.is_empty()).then_some((total, gaps)))
+}
+
 /// Length of the first line including its newline (at most 64 KiB looked at).
 fn first_line_length<R: Read + Seek>(reader: &mut R) -> std::io::Result<u64> {
     reader.seek(SeekFrom::Start(0))?;
@@ -325,6 +377,19 @@ struct Patched<R> {
     inner: BufReader<R>,
     skip: u64,
     lower: bool,
+    /// Byte ranges of the inner reader to leave out (the headers of binary
+    /// STLs joined after the first), in order.
+    gaps: Vec<(u64, u64)>,
+    /// Where the inner reader stands, bytes from its start.
+    at: u64,
+    /// ASCII: the current line, as served, and how much of it is served.
+    line: Vec<u8>,
+    line_pos: usize,
+    /// ASCII: the closing `endsolid` has been served.
+    closed: bool,
+    /// Solids met: `solid` lines of an ASCII file (the first one
+    /// included), or the binary STLs joined in the file.
+    solids: usize,
 }
 
 impl<R: Read + Seek> Patched<R> {
@@ -336,7 +401,42 @@ impl<R: Read + Seek> Patched<R> {
             inner: BufReader::with_capacity(1 << 16, inner),
             skip,
             lower,
+            gaps: Vec::new(),
+            at: skip,
+            line: Vec::new(),
+            line_pos: 0,
+            closed: false,
+            solids: 1,
         })
+    }
+
+    /// ASCII: the next line to serve, in lower case, with the `solid` and
+    /// `endsolid` lines between parts left out (each part's facets then
+    /// read as one solid's) and one `endsolid` served at the end (a file
+    /// whose writer left it out reads too). `false` at the end.
+    fn next_line(&mut self) -> std::io::Result<bool> {
+        loop {
+            self.line.clear();
+            self.line_pos = 0;
+            if self.inner.read_until(b'\n', &mut self.line)? == 0 {
+                if self.closed {
+                    return Ok(false);
+                }
+                self.closed = true;
+                self.line.extend_from_slice(b"endsolid tuft\n");
+                return Ok(true);
+            }
+            self.line.make_ascii_lowercase();
+            let text = self.line.trim_ascii_start();
+            if text.starts_with(b"endsolid") {
+                continue;
+            }
+            if text.starts_with(b"solid") {
+                self.solids += 1;
+                continue;
+            }
+            return Ok(true);
+        }
     }
 }
 
@@ -348,10 +448,27 @@ impl<R: Read + Seek> Read for Patched<R> {
             self.pos += n;
             return Ok(n);
         }
-        let n = self.inner.read(buf)?;
         if self.lower {
-            buf[..n].make_ascii_lowercase();
+            if self.line_pos == self.line.len() && !self.next_line()? {
+                return Ok(0);
+            }
+            let n = buf.len().min(self.line.len() - self.line_pos);
+            buf[..n].copy_from_slice(&self.line[self.line_pos..self.line_pos + n]);
+            self.line_pos += n;
+            return Ok(n);
         }
+        let gap = self.gaps.iter().find(|g| g.1 > self.at).copied();
+        let mut limit = buf.len();
+        if let Some((start, end)) = gap {
+            if self.at >= start {
+                self.inner.seek(SeekFrom::Start(end))?;
+                self.at = end;
+                return self.read(buf);
+            }
+            limit = limit.min(usize::try_from(start - self.at).unwrap_or(usize::MAX));
+        }
+        let n = self.inner.read(&mut buf[..limit])?;
+        self.at += n as u64;
         Ok(n)
     }
 }
@@ -366,6 +483,11 @@ impl<R: Read + Seek> Seek for Patched<R> {
         }
         self.pos = 0;
         self.inner.seek(SeekFrom::Start(self.skip))?;
+        self.at = self.skip;
+        self.line.clear();
+        self.line_pos = 0;
+        self.closed = false;
+        self.solids = 1 + self.gaps.len();
         Ok(0)
     }
 }
