@@ -80,6 +80,10 @@ pub struct QualityReport {
     /// Panels almost degenerate (aspect ratio above
     /// [`DEGENERATE_ASPECT`]).
     pub degenerate: usize,
+    /// Thin panels fanned out from one corner over a flat face
+    /// ([`fan_panels`]).
+    #[serde(default)]
+    pub fanned: usize,
     /// Thresholds used.
     pub thresholds: QualityParams,
     /// Plain-language warnings (empty when all is well).
@@ -158,6 +162,11 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .map(|&j| mesh.panels[i].normal.dot(&mesh.panels[j as usize].normal))
             .fold(-1.0, f64::max)
     };
+    let fans = fan_panels(mesh, &aspect, q.max_aspect_ratio);
+    let first_fan = fans
+        .iter()
+        .position(|&f| f)
+        .map(|i| mesh.panels[i].centroid);
     let worst_turned = (0..mesh.len())
         .filter(|&i| turned[i])
         .min_by(|&a, &b| best_neighbour(a).total_cmp(&best_neighbour(b)))
@@ -167,6 +176,7 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
         worst(&angle, -1.0),
         worst(&ratio, 1.0),
         worst_turned,
+        first_fan,
     ];
     let mut r = QualityReport {
         panels: mesh.len(),
@@ -178,6 +188,7 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .count(),
         turned: turned.iter().filter(|&&t| t).count(),
         degenerate: aspect.iter().filter(|&&a| a > DEGENERATE_ASPECT).count(),
+        fanned: fans.iter().filter(|&&f| f).count(),
         aspect_ratio: spread(aspect),
         min_angle_deg: spread(angle),
         neighbour_area_ratio: spread(ratio),
@@ -191,12 +202,13 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
 }
 
 /// The warnings, each naming where its worst panel is (`at`: the worst
-/// aspect ratio, smallest angle, area jump and turned panel).
+/// aspect ratio, smallest angle, area jump and turned panel, and the
+/// first fanned panel).
 /// Each with the panels it counts when it is about the grading.
 fn warnings(
     r: &QualityReport,
     q: &QualityParams,
-    at: [Option<crate::Point>; 4],
+    at: [Option<crate::Point>; 5],
 ) -> Vec<(String, Option<usize>)> {
     let n = r.panels.max(1) as f64;
     let mut out = Vec::new();
@@ -264,7 +276,73 @@ fn warnings(
         "folds that the coarsening or the scan made, with no edge of the shape there; their speed is interpolated from the flow around them and they start no separation, but look at them (tuft check --save-panels) and try another panel count",
         at[3],
     );
+    warn(
+        r.fanned,
+        None,
+        "are thin triangles fanned out from one corner over a flat face".to_owned(),
+        "the velocity on such a face comes from its neighbours round the face's edge and can be far off (a review's flat face meeting the wind read Cp -0.16 as a fan from its centre where the same face cut in rings read +0.81, and the drag 0.20 against 0.48); export that face with an even mesh (rings or a grid), as the coarsening keeps a flat face's own triangles",
+        at[4],
+    );
     out
+}
+
+/// Corners with at least this many panels around them can be the hub of a
+/// fan ([`fan_panels`]; our choice: a flat face exported as a fan has one
+/// triangle per rim segment, a dozen or more on a face with curved edges).
+pub const FAN_HUB_PANELS: usize = 8;
+
+/// Panels of fans: the panels around a corner that has at least
+/// [`FAN_HUB_PANELS`] of them, all lying flat (normals within 2 degrees of
+/// their mean) and three quarters of them thin (`aspect` above
+/// `max_aspect`) and reaching the face's rim (the edge opposite the hub on
+/// a crease of more than 30 degrees), the way CAD exporters mesh a flat face: one triangle
+/// from a hub to each segment of its rim. Every one of them reaches the
+/// rim, so none has neighbours on its own face all round, and its centroid
+/// stands for a strip from the middle of the face to its edge.
+pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool> {
+    let cos_flat = 2f64.to_radians().cos();
+    let mut fan = vec![false; mesh.len()];
+    let cos_crease = 30f64.to_radians().cos();
+    for (hub, around) in mesh.vertex_panels.iter().enumerate() {
+        if around.len() < FAN_HUB_PANELS {
+            continue;
+        }
+        // The edge opposite the hub lies on a crease: the panel reaches the
+        // face's rim (the innermost ring of a face cut in rings does not).
+        let at_rim = |j: u32| {
+            let t = mesh.triangles[j as usize];
+            let Some(k) = t.iter().position(|&v| v as usize == hub) else {
+                return false;
+            };
+            // Edge (k+1, k+2) is the one without the hub.
+            mesh.edge_neighbours[j as usize][(k + 1) % 3].is_some_and(|o| {
+                mesh.panels[o as usize]
+                    .normal
+                    .dot(&mesh.panels[j as usize].normal)
+                    < cos_crease
+            })
+        };
+        let mean: crate::Vector = around
+            .iter()
+            .map(|&j| *mesh.panels[j as usize].normal)
+            .sum();
+        let Some(mean) = mean.try_normalize(1e-12) else {
+            continue;
+        };
+        let flat = around
+            .iter()
+            .all(|&j| mesh.panels[j as usize].normal.dot(&mean) >= cos_flat);
+        let thin = around
+            .iter()
+            .filter(|&&j| aspect[j as usize] > max_aspect && at_rim(j))
+            .count();
+        if flat && 4 * thin >= 3 * around.len() {
+            for &j in around {
+                fan[j as usize] = true;
+            }
+        }
+    }
+    fan
 }
 
 /// `what` of a warning for one panel: its leading plural verb made singular.
@@ -404,6 +482,73 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
     use crate::{Mirrors, Point, TriMesh, generate};
+
+    /// A box whose top face is a fan of 32 thin triangles from its centre
+    /// has them flagged; the same box with the top cut in rings, and the
+    /// built-in shapes, have none.
+    #[test]
+    fn a_face_fanned_from_its_centre_is_found() {
+        let boxed = |rings: usize| {
+            // Rim points of a 2 x 2 square, 24 per side, at z = 1 and 0
+            // (fan triangles of aspect ratio about 7).
+            let rim: Vec<(f64, f64)> = (0..N)
+                .map(|k| {
+                    let (side, t) = (k / 24, -1.0 + (k % 24) as f64 / 12.0);
+                    match side {
+                        0 => (t, -1.0),
+                        1 => (1.0, t),
+                        2 => (-t, 1.0),
+                        _ => (-1.0, -t),
+                    }
+                })
+                .collect();
+            let mut m = TriMesh::default();
+            // Rings of the top face from the rim in (scale 1 is the rim).
+            for r in 0..rings {
+                let f = 1.0 - r as f64 / rings as f64;
+                m.vertices
+                    .extend(rim.iter().map(|&(x, y)| Point::new(f * x, f * y, 1.0)));
+            }
+            let bottom = m.vertices.len() as u32;
+            m.vertices
+                .extend(rim.iter().map(|&(x, y)| Point::new(x, y, 0.0)));
+            m.vertices.push(Point::new(0.0, 0.0, 1.0));
+            m.vertices.push(Point::new(0.0, 0.0, 0.0));
+            let (top_hub, bottom_hub) = (bottom + N, bottom + N + 1);
+            let inner = N * (rings as u32 - 1);
+            for k in 0..N {
+                let j = (k + 1) % N;
+                m.triangles.push([top_hub, inner + k, inner + j]);
+                m.triangles.push([bottom_hub, bottom + j, bottom + k]);
+                m.triangles.push([k, bottom + k, bottom + j]);
+                m.triangles.push([k, bottom + j, j]);
+                for r in 1..rings as u32 {
+                    let (o, i) = (N * (r - 1), N * r);
+                    m.triangles.push([o + k, o + j, i + j]);
+                    m.triangles.push([o + k, i + j, i + k]);
+                }
+            }
+            PanelMesh::new(m, Mirrors::none()).unwrap()
+        };
+        const N: u32 = 96;
+        let fan = boxed(1);
+        let q = quality(&fan);
+        // The top fan; the bottom one too (the same shape upside down).
+        assert_eq!(q.fanned, 192, "{:?}", q.warnings);
+        assert!(q.warnings.iter().any(|w| w.starts_with("192 panels (")
+            && w.contains("thin triangles fanned out from one corner")));
+        let ringed = quality(&boxed(4));
+        assert_eq!(ringed.fanned, 96, "only the bottom fan");
+        for mesh in [
+            generate::ahmed(25.0, 2500).unwrap(),
+            generate::ahmed(0.0, 2500).unwrap(),
+            generate::coupe(22.0, 4000).unwrap(),
+            generate::icosphere(1.0, 3),
+        ] {
+            let q = quality(&PanelMesh::new(mesh, Mirrors::none()).unwrap());
+            assert_eq!(q.fanned, 0);
+        }
+    }
 
     /// A fold on a smooth surface and one on a crease are turned; the
     /// panel that cuts a cube's corner or chamfers a right-angled edge is
