@@ -30,7 +30,7 @@ use mapping::{Mapping, SourcePanel, map_nearest};
 #[cfg(test)]
 use verdict::drag_verdict;
 pub use verdict::{
-    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area,
+    DragVerdict, LIFT_NOISE_CL, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area,
     drag_verdict_named,
 };
 
@@ -86,6 +86,11 @@ pub struct Deltas {
     /// differences need no such factor.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub a_loads_scaled_by: Option<f64>,
+    /// The lift difference two runs of imperceptibly different shapes can
+    /// show ([`LIFT_NOISE_CL`] at B's dynamic pressure and reference area),
+    /// kg.
+    #[serde(default)]
+    pub lift_noise_kg: f64,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, percentage points.
@@ -409,6 +414,8 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
         front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
         rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
         a_loads_scaled_by: scaled,
+        lift_noise_kg: LIFT_NOISE_CL * b.dynamic_pressure_pa * b.reference.area_m2
+            / tuft_solver::loads::STANDARD_GRAVITY,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
     }
@@ -1009,6 +1016,20 @@ pub fn region_text(r: &RegionChange) -> String {
     )
 }
 
+/// Whether the lift difference stands out of the noise, in words
+/// ([`Deltas::lift_noise_kg`]).
+pub fn lift_noise_words(d: &Deltas) -> String {
+    let [noise] = crate::output::kg_set([d.lift_noise_kg]);
+    let within = [d.lift_kg, d.front_axle_kg, d.rear_axle_kg]
+        .iter()
+        .all(|x| x.abs() < d.lift_noise_kg);
+    if within {
+        format!("within the noise of about {noise} kg")
+    } else {
+        format!("differences under about {noise} kg are noise")
+    }
+}
+
 fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
     say!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
@@ -1020,10 +1041,11 @@ fn print_comparison(c: &Comparison, out: &Path) {
         ""
     };
     say!(
-        "  drag {} counts, lift {lift} kg{at_b} (front {front}, rear {rear}; negative: more downforce in B), \
+        "  drag {} counts, lift {lift} kg{at_b} (front {front}, rear {rear}; negative: more downforce in B; {}), \
          separated area {} m^2 \
          (separated share of the surface {} points)",
         crate::output::signed(d.drag_counts, 1),
+        lift_noise_words(d),
         crate::output::signed(d.separated_area_m2, 3),
         crate::output::signed(d.separated_percent_points, 2)
     );
@@ -1060,6 +1082,32 @@ mod tests {
         let mut s = Summary::default();
         s.reference.area_m2 = area;
         s
+    }
+
+    /// A lift difference is said to be within the noise only when the
+    /// whole body's and both axles' are (the noise of the demo coupe at 40
+    /// m/s, 0.018 in C_L, 3.3 kg).
+    #[test]
+    fn lift_differences_are_set_against_the_noise() {
+        let d = |lift: f64, rear: f64| Deltas {
+            lift_kg: lift,
+            front_axle_kg: lift - rear,
+            rear_axle_kg: rear,
+            lift_noise_kg: 3.3,
+            ..Deltas::default()
+        };
+        assert_eq!(
+            lift_noise_words(&d(2.0, 1.0)),
+            "within the noise of about 3.3 kg"
+        );
+        assert_eq!(
+            lift_noise_words(&d(2.0, 6.0)),
+            "differences under about 3.3 kg are noise"
+        );
+        let mut s = with_area(1.8622);
+        s.dynamic_pressure_pa = 963.2;
+        let noise = deltas(&s, &s).lift_noise_kg;
+        assert!((noise - 3.29).abs() < 0.01, "{noise}");
     }
 
     /// Two ride heights: both clearances named, with what the lift then

@@ -202,6 +202,11 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text("Lift difference, front axle", &front, &at),
         NumberRow::text("Lift difference, rear axle", &rear, &at),
         NumberRow::text(
+            "Lift noise (two runs of imperceptibly different shapes differ by up to this much)",
+            &crate::compare::lift_noise_words(d),
+            "",
+        ),
+        NumberRow::text(
             "Lift coefficient difference",
             &signed_places(d.lift_coefficient, 3),
             "-",

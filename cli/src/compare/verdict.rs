@@ -35,6 +35,14 @@ use crate::summary::Summary;
 /// forth by up to 5.4 counts. A per-run figure would need extra solves.
 pub const NOISE_COUNTS: f64 = 6.0;
 
+/// Noise of a lift difference, in lift coefficient: measured as
+/// [`NOISE_COUNTS`] on the same 21 runs (`bench/drag_noise`), the lift
+/// coefficient scatters about each family's line by 0.0064 (pooled
+/// standard deviation; the total and the rear axle by 1.1 kg at 40 m/s,
+/// the front axle by 0.2 kg), so two runs differ by up to about twice
+/// 1.41 times that, 0.018, about 3 kg on the demo coupe at 40 m/s.
+pub const LIFT_NOISE_CL: f64 = 0.018;
+
 /// The verdict on a drag difference.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct DragVerdict {
