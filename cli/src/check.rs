@@ -103,7 +103,15 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     } else {
         file.display().to_string()
     };
-    let (panels, mut report) = prepare(&file, &params)
+    let spinner = crate::progress::Progress::spinner(
+        "tuft check",
+        &format!("reading, repairing and coarsening {}", file.display()),
+    );
+    let prepared = prepare(&file, &params);
+    if let Some(s) = spinner {
+        s.clear();
+    }
+    let (panels, mut report) = prepared
         .map_err(|e| match &case {
             Some(case) => crate::geometry::name_mirror_keys(e, case),
             None => {
@@ -125,6 +133,20 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
     report.quality.notes.extend(note);
+    // As the run warns: more panels asked than the STL has facets.
+    let asked = if args.panels.is_some() || !is_case {
+        "--panels"
+    } else {
+        "geometry.panels"
+    };
+    report
+        .quality
+        .notes
+        .extend(crate::pipeline::unrefined_words(
+            params.target_panels,
+            panels.len(),
+            asked,
+        ));
     // Axles and regions off the body are an error, given after what check
     // knows of the STL (its extent above all, which is what the axles must
     // be set against).

@@ -246,7 +246,16 @@ fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -> Op
         return None;
     }
     let hint = unit.map_or(String::new(), |u| {
-        format!("; is {key} right (the STL was read as {})?", u.name())
+        let others = car_sized_readings(size, u);
+        let readings = if others.is_empty() {
+            String::new()
+        } else {
+            format!("; {}", others.join(", "))
+        };
+        format!(
+            "; is {key} right (the STL was read as {}{readings})?",
+            u.name()
+        )
     });
     Some(format!(
         "the body is {} m across at its largest, outside the {} to {} m tuft screens{hint}",
@@ -268,12 +277,30 @@ pub const SCALE_MODEL_SIZE: f64 = 1.0;
 /// readings the other units give (2.5 to 7 m). `unit`: the STL's, named
 /// with `key`.
 fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String> {
-    use tuft_mesh::LengthUnit;
     if size >= SCALE_MODEL_SIZE {
         return None;
     }
+    let others = car_sized_readings(size, unit);
+    let hint = if others.is_empty() {
+        String::new()
+    } else {
+        format!("; if it is a car, is {key} right ({})?", others.join(", "))
+    };
+    Some(format!(
+        "the body is {} m across at its largest, a scale model's size (the STL was read as {}): its \
+         Reynolds number, lift in kg and forces are the model's at this speed{hint}",
+        crate::output::html::significant(size, 2),
+        unit.name()
+    ))
+}
+
+/// The readings of a body `size` metres across (as read in `unit`) that
+/// other units would make car-sized, 2.5 to 7 m: "in metres it would be
+/// 4.4 m".
+fn car_sized_readings(size: f64, unit: tuft_mesh::LengthUnit) -> Vec<String> {
+    use tuft_mesh::LengthUnit;
     let read = size / unit.to_metres();
-    let others: Vec<String> = [
+    [
         LengthUnit::M,
         LengthUnit::Cm,
         LengthUnit::Mm,
@@ -290,18 +317,7 @@ fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String
             crate::output::html::significant(m, 2)
         )
     })
-    .collect();
-    let hint = if others.is_empty() {
-        String::new()
-    } else {
-        format!("; if it is a car, is {key} right ({})?", others.join(", "))
-    };
-    Some(format!(
-        "the body is {} m across at its largest, a scale model's size (the STL was read as {}): its \
-         Reynolds number, lift in kg and forces are the model's at this speed{hint}",
-        crate::output::html::significant(size, 2),
-        unit.name()
-    ))
+    .collect()
 }
 
 /// Refuse axle positions outside the body's length (given in millimetres,
@@ -356,6 +372,14 @@ mod tests {
         assert!(inch.contains("in inches it would be 4.5 m"), "{inch}");
         assert!(size_note(1.044, LengthUnit::Mm, "k").is_none());
         assert!(size_note(4.5, LengthUnit::Mm, "k").is_none());
+        // A car in metres read as millimetres is refused, naming the unit.
+        let m = size_problem(0.0044, Some(LengthUnit::Mm), "geometry.units").unwrap();
+        assert!(
+            m.ends_with(
+                "is geometry.units right (the STL was read as millimetres; in metres it would be 4.4 m)?"
+            ),
+            "{m}"
+        );
     }
 
     fn coupe(ride: f64) -> PanelMesh {

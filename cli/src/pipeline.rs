@@ -490,6 +490,51 @@ pub fn far_ground_warning(mesh: &PanelMesh) -> Option<String> {
     })
 }
 
+/// Length from which a body in free air is taken for a road vehicle whose
+/// ground was left out (cars are about 3 to 6 m long, common practice; a
+/// scale model or a test sphere is not).
+pub const CAR_LENGTH_M: f64 = 2.0;
+
+/// A warning for an STL body [`CAR_LENGTH_M`] long or more run without a
+/// ground plane: a review's car in free air read +87 kg of lift where
+/// over the road it read +41, and nothing but the report's methods text
+/// said "free air". `stl`: the body came from an STL (the built-in shapes'
+/// cases say what they are).
+pub fn free_air_warning(mesh: &PanelMesh, stl: bool) -> Option<String> {
+    let (lo, hi) = mesh.bounds();
+    let length = hi.x - lo.x;
+    (stl && mesh.mirrors.ground.is_none() && length >= CAR_LENGTH_M).then(|| {
+        format!(
+            "no ground plane: this {length:.1} m body runs in free air, where a car's lift and drag \
+             differ from those over the road; give the road's height as [ground] z (the body's lowest \
+             point is at z = {:.3} m in tuft's axes)",
+            lo.z
+        )
+    })
+}
+
+/// Share of the reference area that sharp front edges the flow leaves
+/// (the rim zone, seen along the stream) may show before an STL body is
+/// asked whether its nose is at the other end (our choice): a review's car
+/// driven backwards, its flat tail meeting the wind, showed 2.05 m^2 of
+/// rim zone, about its whole frontal area, against 0.09 m^2 the right way
+/// round.
+pub const BLUNT_NOSE_SHARE: f64 = 0.3;
+
+/// The question for an STL body whose rim zone shows the stream more than
+/// [`BLUNT_NOSE_SHARE`] of the reference area (`rim_share`).
+pub fn blunt_nose_warning(rim_share: f64, stl: bool) -> Option<String> {
+    (stl && rim_share > BLUNT_NOSE_SHARE).then(|| {
+        format!(
+            "the flow leaves sharp front edges round {:.0} % of the frontal area, as it does off a \
+             flat tail: tuft takes the nose at the small-x end of the file, so if this body's nose is at \
+             the other end, set geometry.nose = \"+x\" (a body with a truly blunt, sharp-edged front \
+             runs as it is)",
+            100.0 * rim_share
+        )
+    })
+}
+
 /// A warning for a yawed separated-flow run on fewer than
 /// [`YAW_COARSE_SHARE`] of the suggested panels: the separation a cross
 /// wind moves converges later than the straight-ahead one. Measured on the
@@ -749,13 +794,36 @@ fn finish(
         .sum();
     let mut warnings = Vec::new();
     if layer.unresolved > 0 {
+        let left: Vec<&tuft_mesh::Panel> = mesh
+            .panels
+            .iter()
+            .zip(&layer.panels)
+            .filter(|(_, l)| l.state == FlowState::Unresolved)
+            .map(|(p, _)| p)
+            .collect();
+        let area: f64 = left.iter().map(|p| p.area).sum();
+        let place =
+            left.iter()
+                .max_by(|a, b| a.area.total_cmp(&b.area))
+                .map_or(String::new(), |p| {
+                    let c = p.centroid;
+                    format!(
+                        ", the largest near x {:.3}, y {:.3}, z {:.3} m",
+                        c.x, c.y, c.z
+                    )
+                });
         warnings.push(format!(
-            "{} of {} panels were reached by no surface streamline; their boundary layer is unresolved",
+            "{} of {} panels ({area:.2} m^2{place}) were reached by no surface streamline; their \
+             boundary layer is unresolved (grey in the pictures, \"unresolved\" in panels.csv), and \
+             their pressure is the attached flow's, with no skin friction",
             layer.unresolved,
             mesh.len()
         ));
     }
     warnings.extend(far_ground_warning(mesh));
+    let stl = matches!(case.source, crate::case::GeometrySource::Stl { .. });
+    warnings.extend(free_air_warning(mesh, stl));
+    warnings.extend(blunt_nose_warning(rim_share, stl));
     warnings.extend(axle_warning(
         mesh,
         reference.front_axle_x,
@@ -805,11 +873,17 @@ fn finish(
 /// of a 3,956-facet STL and got 3,956 without a word). Within 10 % is the
 /// coarsening's own scatter, not a shortfall.
 pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<String> {
+    unrefined_words(requested, panels, "geometry.panels")
+}
+
+/// [`unrefined_warning`] naming the setting that asked, `key`
+/// (`geometry.panels`, or `--panels` to `tuft check`).
+pub fn unrefined_words(requested: Option<usize>, panels: usize, key: &str) -> Option<String> {
     let n = requested?;
     ((panels as f64) < 0.9 * n as f64).then(|| {
         format!(
-            "geometry.panels asks for {n} panels but the surface has only {panels} facets after repair: tuft \
-             coarsens, it does not refine, so the run used {panels}; for more, export the STL finer"
+            "{key} asks for {n} panels but the surface has only {panels} facets after repair: tuft \
+             coarsens, it does not refine, so the run uses {panels}; for more, export the STL finer"
         )
     })
 }
@@ -1407,6 +1481,44 @@ mod tests {
         assert!(far_ground_warning(&sphere(-0.6)).is_none());
     }
 
+    /// A front whose sharp edges show the stream most of the frontal
+    /// area asks whether the nose is at the other end (STL bodies only).
+    #[test]
+    fn a_blunt_sharp_front_asks_for_the_nose() {
+        let w = blunt_nose_warning(0.95, true).unwrap();
+        assert!(
+            w.starts_with("the flow leaves sharp front edges round 95 % of the frontal area")
+                && w.contains("geometry.nose = \"+x\""),
+            "{w}"
+        );
+        assert!(blunt_nose_warning(0.05, true).is_none());
+        assert!(blunt_nose_warning(0.95, false).is_none());
+    }
+
+    /// A car-length STL body without a ground is warned about; with one,
+    /// a built-in shape, or a 1 m sphere, not.
+    #[test]
+    fn a_car_in_free_air_is_warned_about() {
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        let body = |ground: Option<f64>| {
+            let mirrors = Mirrors {
+                ground,
+                symmetry: false,
+            };
+            PanelMesh::new(generate::coupe(22.0, 1500).unwrap(), mirrors).unwrap()
+        };
+        let w = free_air_warning(&body(None), true).unwrap();
+        assert!(
+            w.starts_with("no ground plane: this 4.5 m body runs in free air")
+                && w.ends_with("(the body's lowest point is at z = 0.120 m in tuft's axes)"),
+            "{w}"
+        );
+        assert!(free_air_warning(&body(Some(0.0)), true).is_none());
+        assert!(free_air_warning(&body(None), false).is_none());
+        let sphere = PanelMesh::new(generate::icosphere(0.5, 2), Mirrors::none()).unwrap();
+        assert!(free_air_warning(&sphere, true).is_none());
+    }
+
     /// The underbody's lift of a half model (its mirror half added, as for
     /// the total lift) equals the whole body's, for any pressure symmetric
     /// in y; and the ground-facing panels of the coupe carry it.
@@ -1460,7 +1572,10 @@ mod tests {
         assert!(yaw_coarse_warning(8048, 6500, (true, false), 5.0).is_none());
         // 6,000 of 6,500 suggested is within the measured convergence.
         assert!(yaw_coarse_warning(6000, 6500, (true, false), 5.0).is_none());
-        assert!(unrefined_warning(Some(10_000), 3956).is_some_and(|w| w.contains("used 3956")));
+        assert!(
+            unrefined_warning(Some(10_000), 3956)
+                .is_some_and(|w| w.contains("so the run uses 3956"))
+        );
         assert!(unrefined_warning(Some(4000), 3960).is_none());
         assert!(unrefined_warning(None, 3956).is_none());
         assert!(coarse_note(2992, 6500, true, false).is_some_and(|n| n.contains("under half")));

@@ -286,16 +286,25 @@ fn warnings(
     out
 }
 
+/// A fan whose face's normal points downstream by more than this (its x
+/// component; 45 degrees) is a base's, and is not counted in
+/// [`fan_panels`]: behind a bluff base the dead water sets the pressure,
+/// not the panels' velocity (a car's flat tail exported as a fan would
+/// have warned on every run).
+pub const REAR_FACING_X: f64 = 0.7;
+
 /// Corners with at least this many panels around them can be the hub of a
 /// fan ([`fan_panels`]; our choice: a flat face exported as a fan has one
 /// triangle per rim segment, a dozen or more on a face with curved edges).
 pub const FAN_HUB_PANELS: usize = 8;
 
-/// Panels of fans: the panels around a corner that has at least
+/// Panels of fans on faces not turned downstream ([`REAR_FACING_X`]): the
+/// panels around a corner that has at least
 /// [`FAN_HUB_PANELS`] of them, all lying flat (normals within 2 degrees of
-/// their mean) and three quarters of them thin (`aspect` above
-/// `max_aspect`) and reaching the face's rim (the edge opposite the hub on
-/// a crease of more than 30 degrees), the way CAD exporters mesh a flat face: one triangle
+/// their mean), three quarters of them reaching the face's rim (the edge
+/// opposite the hub on a crease of more than 30 degrees) and half of them
+/// thin (`aspect` above `max_aspect`; a review's fanned tail, 44
+/// triangles, had 28), the way CAD exporters mesh a flat face: one triangle
 /// from a hub to each segment of its rim. Every one of them reaches the
 /// rim, so none has neighbours on its own face all round, and its centroid
 /// stands for a strip from the middle of the face to its edge.
@@ -329,14 +338,21 @@ pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool
         let Some(mean) = mean.try_normalize(1e-12) else {
             continue;
         };
+        // A face turned downstream (x is downstream in tuft's axes) lies in
+        // the dead water behind a bluff base, whose pressure does not come
+        // from the panels' velocity.
+        if mean.x > REAR_FACING_X {
+            continue;
+        }
         let flat = around
             .iter()
             .all(|&j| mesh.panels[j as usize].normal.dot(&mean) >= cos_flat);
+        let reach = around.iter().filter(|&&j| at_rim(j)).count();
         let thin = around
             .iter()
-            .filter(|&&j| aspect[j as usize] > max_aspect && at_rim(j))
+            .filter(|&&j| aspect[j as usize] > max_aspect)
             .count();
-        if flat && 4 * thin >= 3 * around.len() {
+        if flat && 4 * reach >= 3 * around.len() && 2 * thin >= around.len() {
             for &j in around {
                 fan[j as usize] = true;
             }
@@ -483,9 +499,10 @@ mod tests {
     use super::*;
     use crate::{Mirrors, Point, TriMesh, generate};
 
-    /// A box whose top face is a fan of 32 thin triangles from its centre
+    /// A box whose top face is a fan of 96 thin triangles from its centre
     /// has them flagged; the same box with the top cut in rings, and the
-    /// built-in shapes, have none.
+    /// built-in shapes, have none; turned so that a fan faces downstream
+    /// (+x, a base in the dead water), that one is not counted.
     #[test]
     fn a_face_fanned_from_its_centre_is_found() {
         let boxed = |rings: usize| {
@@ -539,6 +556,14 @@ mod tests {
             && w.contains("thin triangles fanned out from one corner")));
         let ringed = quality(&boxed(4));
         assert_eq!(ringed.fanned, 96, "only the bottom fan");
+        // Turned a quarter about y: the top fan faces +x, the bottom -x.
+        let mut turned = TriMesh {
+            vertices: fan.vertices.clone(),
+            triangles: fan.triangles.clone(),
+        };
+        turned.map_vertices(|p| Point::new(p.z, p.y, -p.x));
+        let turned = PanelMesh::new(turned, Mirrors::none()).unwrap();
+        assert_eq!(quality(&turned).fanned, 96, "only the upstream fan");
         for mesh in [
             generate::ahmed(25.0, 2500).unwrap(),
             generate::ahmed(0.0, 2500).unwrap(),

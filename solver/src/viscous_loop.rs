@@ -591,10 +591,15 @@ impl<'a> DeadWater<'a> {
         }
     }
 
-    /// Mark every dead-water panel separated in `layer`, with its source.
+    /// Mark every dead-water panel separated in `layer`, with its source
+    /// (the panels no streamline reached among them then count as
+    /// resolved: the dead water holds them).
     fn impose(&self, layer: &mut BoundaryLayer) {
         for (t, &d) in self.dead.iter().enumerate() {
             if d {
+                if layer.panels[t].state == FlowState::Unresolved {
+                    layer.unresolved -= 1;
+                }
                 // As a separated station holds it: no wall friction.
                 layer.panels[t].state = FlowState::Separated;
                 layer.panels[t].risk = 1.0;

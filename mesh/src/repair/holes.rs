@@ -131,7 +131,7 @@ fn describe_one(h: &RefusedHole) -> String {
         " (its whole rim lies on y = 0: is this the cut of a half model? then declare the symmetry plane)".to_string()
     } else if let Some(floor) = h.on_undeclared_floor {
         format!(
-            " (its whole rim lies flat at z = {floor:.3} m, the body's lowest: is the body cut at the floor? then declare the ground there)"
+            " (its whole rim lies flat at z = {floor:.3} m, the body's lowest: is the body cut at the floor? then declare the ground there, and it stands on the road with no flow beneath it; if it is a car's surface without its underbody, close it with a floor in the modeller and put the ground below that)"
         )
     } else {
         String::new()
