@@ -522,14 +522,22 @@ pub fn free_air_warning(mesh: &PanelMesh, stl: bool) -> Option<String> {
 pub const BLUNT_NOSE_SHARE: f64 = 0.3;
 
 /// The question for an STL body whose rim zone shows the stream more than
-/// [`BLUNT_NOSE_SHARE`] of the reference area (`rim_share`).
-pub fn blunt_nose_warning(rim_share: f64, stl: bool) -> Option<String> {
-    (stl && rim_share > BLUNT_NOSE_SHARE).then(|| {
+/// [`BLUNT_NOSE_SHARE`] of the reference area (`rim_share`); `nose_plus_x`:
+/// the case already says the file's nose is at +x (`geometry.nose`), so the
+/// other end is the file's -x.
+pub fn blunt_nose_warning(rim_share: f64, stl: Option<bool>) -> Option<String> {
+    let nose_plus_x = stl?;
+    let (end, setting) = if nose_plus_x {
+        ("large-x", "geometry.nose = \"-x\" (or leave it out)")
+    } else {
+        ("small-x", "geometry.nose = \"+x\"")
+    };
+    (rim_share > BLUNT_NOSE_SHARE).then(|| {
         format!(
             "the flow leaves sharp front edges round {:.0} % of the frontal area, as it does off a \
-             flat tail: tuft takes the nose at the small-x end of the file, so if this body's nose is at \
-             the other end, set geometry.nose = \"+x\" (a body with a truly blunt, sharp-edged front \
-             runs as it is)",
+             flat tail: this case takes the nose at the {end} end of the file, so if this body's nose \
+             is at the other end, set {setting} (a body with a truly blunt, sharp-edged front runs as \
+             it is)",
             100.0 * rim_share
         )
     })
@@ -821,9 +829,12 @@ fn finish(
         ));
     }
     warnings.extend(far_ground_warning(mesh));
-    let stl = matches!(case.source, crate::case::GeometrySource::Stl { .. });
-    warnings.extend(free_air_warning(mesh, stl));
-    warnings.extend(blunt_nose_warning(rim_share, stl));
+    let nose_plus_x = match &case.source {
+        crate::case::GeometrySource::Stl { axes, .. } => Some(axes.nose_plus_x),
+        crate::case::GeometrySource::Shape { .. } => None,
+    };
+    warnings.extend(free_air_warning(mesh, nose_plus_x.is_some()));
+    warnings.extend(blunt_nose_warning(rim_share, nose_plus_x));
     warnings.extend(axle_warning(
         mesh,
         reference.front_axle_x,
@@ -1485,14 +1496,21 @@ mod tests {
     /// area asks whether the nose is at the other end (STL bodies only).
     #[test]
     fn a_blunt_sharp_front_asks_for_the_nose() {
-        let w = blunt_nose_warning(0.95, true).unwrap();
+        let w = blunt_nose_warning(0.95, Some(false)).unwrap();
         assert!(
             w.starts_with("the flow leaves sharp front edges round 95 % of the frontal area")
-                && w.contains("geometry.nose = \"+x\""),
+                && w.contains("the small-x end of the file")
+                && w.contains("set geometry.nose = \"+x\""),
             "{w}"
         );
-        assert!(blunt_nose_warning(0.05, true).is_none());
-        assert!(blunt_nose_warning(0.95, false).is_none());
+        // A case that already turned the file: the other setting.
+        let w = blunt_nose_warning(0.95, Some(true)).unwrap();
+        assert!(
+            w.contains("the large-x end") && w.contains("geometry.nose = \"-x\" (or leave it out)"),
+            "{w}"
+        );
+        assert!(blunt_nose_warning(0.05, Some(false)).is_none());
+        assert!(blunt_nose_warning(0.95, None).is_none());
     }
 
     /// A car-length STL body without a ground is warned about; with one,

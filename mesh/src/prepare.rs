@@ -317,10 +317,18 @@ pub fn prepare_mesh(
             q.notes.extend(read_notes(r));
             if r.trailing_bytes >= 50 {
                 q.add_warning(format!(
-                    "{} bytes after the STL's last facet were ignored: they are neither whole facets \
-                     nor a binary STL joined after it, so a part may be missing from the body (tuft \
-                     check lists what was read); export the file again if it should hold more",
+                    "{} bytes after the STL's last facet were ignored: they are neither facets of this \
+                     body nor a binary STL joined after it, so a part may be missing from the body (tuft \
+                     check gives the facets read); export the file again if it should hold more",
                     r.trailing_bytes
+                ));
+            }
+            if r.endsolid_missing {
+                q.add_warning(format!(
+                    "the ASCII STL ends after facet {} without its closing endsolid line: if the export \
+                     was cut short, part of the body is missing (tuft check gives the facets read); export \
+                     the file again to be sure",
+                    r.facets
                 ));
             }
         }

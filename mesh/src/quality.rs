@@ -276,30 +276,40 @@ fn warnings(
         "folds that the coarsening or the scan made, with no edge of the shape there; their speed is interpolated from the flow around them and they start no separation, but look at them (tuft check --save-panels) and try another panel count",
         at[3],
     );
-    warn(
-        r.fanned,
-        None,
-        "are thin triangles fanned out from one corner over a flat face".to_owned(),
-        "the velocity on such a face comes from its neighbours round the face's edge and can be far off (a review's flat face meeting the wind read Cp -0.16 as a fan from its centre where the same face cut in rings read +0.81, and the drag 0.20 against 0.48); export that face with an even mesh (rings or a grid), as the coarsening keeps a flat face's own triangles",
-        at[4],
-    );
+    if r.fanned > 0 {
+        let place = at[4].map_or(String::new(), |p| {
+            format!(" (one near x {:.3}, y {:.3}, z {:.3} m)", p.x, p.y, p.z)
+        });
+        out.push((
+            format!(
+                "{} panels ({:.1} %) are thin triangles fanned out from one corner over flat faces meeting \
+                 the wind{place}: the velocity on such a face comes from its neighbours round the face's \
+                 edge and can be far off (a review's flat face read Cp -0.16 as a fan from its centre \
+                 where the same face cut in rings read +0.81, and the drag 0.20 against 0.48); export \
+                 those faces with an even mesh (rings or a grid), as the coarsening keeps a flat face's \
+                 own triangles",
+                r.fanned,
+                100.0 * r.fanned as f64 / n
+            ),
+            None,
+        ));
+    }
     out
 }
 
-/// A fan whose face's normal points downstream by more than this (its x
-/// component; 45 degrees) is a base's, and is not counted in
-/// [`fan_panels`]: behind a bluff base the dead water sets the pressure,
-/// not the panels' velocity (a car's flat tail exported as a fan would
-/// have warned on every run).
-pub const REAR_FACING_X: f64 = 0.7;
+/// A fan counts in [`fan_panels`] only on a face meeting the wind, its
+/// normal's x below minus this (within 45 degrees of facing upstream): a
+/// flat tail in the dead water, a wheel's face or a floor exported as fans
+/// would have warned on every run, with no sign that they mislead.
+pub const UPSTREAM_X: f64 = 0.7;
 
 /// Corners with at least this many panels around them can be the hub of a
 /// fan ([`fan_panels`]; our choice: a flat face exported as a fan has one
 /// triangle per rim segment, a dozen or more on a face with curved edges).
 pub const FAN_HUB_PANELS: usize = 8;
 
-/// Panels of fans on faces not turned downstream ([`REAR_FACING_X`]): the
-/// panels around a corner that has at least
+/// Panels of fans on faces meeting the wind ([`UPSTREAM_X`]): the panels
+/// around a corner that has at least
 /// [`FAN_HUB_PANELS`] of them, all lying flat (normals within 2 degrees of
 /// their mean), three quarters of them reaching the face's rim (the edge
 /// opposite the hub on a crease of more than 30 degrees) and half of them
@@ -310,10 +320,33 @@ pub const FAN_HUB_PANELS: usize = 8;
 /// stands for a strip from the middle of the face to its edge.
 pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool> {
     let cos_flat = 2f64.to_radians().cos();
-    let mut fan = vec![false; mesh.len()];
     let cos_crease = 30f64.to_radians().cos();
+    let mut fan = vec![false; mesh.len()];
     for (hub, around) in mesh.vertex_panels.iter().enumerate() {
         if around.len() < FAN_HUB_PANELS {
+            continue;
+        }
+        let normal = |j: u32| *mesh.panels[j as usize].normal;
+        // The face: the panels around the hub within 2 degrees of the one
+        // most others lie flat with (a hub on the face's edge, a fan from
+        // one of its corners, also has panels of the faces beside it).
+        let flat_with = |i: u32| {
+            around
+                .iter()
+                .filter(|&&j| normal(j).dot(&normal(i)) >= cos_flat)
+                .count()
+        };
+        let Some(&key) = around.iter().max_by_key(|&&i| flat_with(i)) else {
+            continue;
+        };
+        let face: Vec<u32> = around
+            .iter()
+            .copied()
+            .filter(|&j| normal(j).dot(&normal(key)) >= cos_flat)
+            .collect();
+        // Only a face meeting the wind (x is downstream in tuft's axes):
+        // the one where a fan was seen to mislead.
+        if face.len() < FAN_HUB_PANELS || normal(key).x > -UPSTREAM_X {
             continue;
         }
         // The edge opposite the hub lies on a crease: the panel reaches the
@@ -324,36 +357,16 @@ pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool
                 return false;
             };
             // Edge (k+1, k+2) is the one without the hub.
-            mesh.edge_neighbours[j as usize][(k + 1) % 3].is_some_and(|o| {
-                mesh.panels[o as usize]
-                    .normal
-                    .dot(&mesh.panels[j as usize].normal)
-                    < cos_crease
-            })
+            mesh.edge_neighbours[j as usize][(k + 1) % 3]
+                .is_some_and(|o| normal(o).dot(&normal(j)) < cos_crease)
         };
-        let mean: crate::Vector = around
-            .iter()
-            .map(|&j| *mesh.panels[j as usize].normal)
-            .sum();
-        let Some(mean) = mean.try_normalize(1e-12) else {
-            continue;
-        };
-        // A face turned downstream (x is downstream in tuft's axes) lies in
-        // the dead water behind a bluff base, whose pressure does not come
-        // from the panels' velocity.
-        if mean.x > REAR_FACING_X {
-            continue;
-        }
-        let flat = around
-            .iter()
-            .all(|&j| mesh.panels[j as usize].normal.dot(&mean) >= cos_flat);
-        let reach = around.iter().filter(|&&j| at_rim(j)).count();
-        let thin = around
+        let reach = face.iter().filter(|&&j| at_rim(j)).count();
+        let thin = face
             .iter()
             .filter(|&&j| aspect[j as usize] > max_aspect)
             .count();
-        if flat && 4 * reach >= 3 * around.len() && 2 * thin >= around.len() {
-            for &j in around {
+        if 4 * reach >= 3 * face.len() && 2 * thin >= face.len() {
+            for &j in &face {
                 fan[j as usize] = true;
             }
         }
@@ -499,10 +512,10 @@ mod tests {
     use super::*;
     use crate::{Mirrors, Point, TriMesh, generate};
 
-    /// A box whose top face is a fan of 96 thin triangles from its centre
-    /// has them flagged; the same box with the top cut in rings, and the
-    /// built-in shapes, have none; turned so that a fan faces downstream
-    /// (+x, a base in the dead water), that one is not counted.
+    /// A box whose face meeting the wind is a fan of 96 thin triangles from
+    /// its centre has them flagged; the fan on its downstream face, fans
+    /// facing up or down, the same face cut in rings, and the built-in
+    /// shapes are not.
     #[test]
     fn a_face_fanned_from_its_centre_is_found() {
         let boxed = |rings: usize| {
@@ -548,22 +561,30 @@ mod tests {
             PanelMesh::new(m, Mirrors::none()).unwrap()
         };
         const N: u32 = 96;
-        let fan = boxed(1);
-        let q = quality(&fan);
-        // The top fan; the bottom one too (the same shape upside down).
-        assert_eq!(q.fanned, 192, "{:?}", q.warnings);
-        assert!(q.warnings.iter().any(|w| w.starts_with("192 panels (")
-            && w.contains("thin triangles fanned out from one corner")));
-        let ringed = quality(&boxed(4));
-        assert_eq!(ringed.fanned, 96, "only the bottom fan");
-        // Turned a quarter about y: the top fan faces +x, the bottom -x.
-        let mut turned = TriMesh {
-            vertices: fan.vertices.clone(),
-            triangles: fan.triangles.clone(),
+        // Turned a quarter about y, the top face meets the wind (-x) and
+        // the bottom faces downstream (+x).
+        let facing_wind = |m: PanelMesh| {
+            let mut t = TriMesh {
+                vertices: m.vertices.clone(),
+                triangles: m.triangles.clone(),
+            };
+            t.map_vertices(|p| Point::new(-p.z, p.y, p.x));
+            PanelMesh::new(t, Mirrors::none()).unwrap()
         };
-        turned.map_vertices(|p| Point::new(p.z, p.y, -p.x));
-        let turned = PanelMesh::new(turned, Mirrors::none()).unwrap();
-        assert_eq!(quality(&turned).fanned, 96, "only the upstream fan");
+        let fan = facing_wind(boxed(1));
+        let q = quality(&fan);
+        assert_eq!(
+            q.fanned, 96,
+            "only the fan meeting the wind: {:?}",
+            q.warnings
+        );
+        assert!(q.warnings.iter().any(|w| w.starts_with("96 panels (")
+            && w.contains(
+                "fanned out from one corner over flat faces meeting the wind (one near x -1.000"
+            )));
+        assert_eq!(quality(&facing_wind(boxed(4))).fanned, 0, "cut in rings");
+        // Facing up and down (a roof, a floor): not counted.
+        assert_eq!(quality(&boxed(1)).fanned, 0);
         for mesh in [
             generate::ahmed(25.0, 2500).unwrap(),
             generate::ahmed(0.0, 2500).unwrap(),

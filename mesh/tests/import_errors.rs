@@ -283,3 +283,70 @@ fn every_part_of_a_multi_part_file_is_read() {
     let (_, r) = read_stl(&common::write(dir.path(), "pad.stl", &padded)).unwrap();
     assert_eq!((r.facets, r.trailing_bytes, r.solids), (80, 130, 1));
 }
+
+/// The ends of an ASCII file: one cut after a whole facet reads, and says
+/// its `endsolid` is missing; one cut inside a facet is refused as cut
+/// short; junk after the last `endsolid` is left unread (as it always
+/// was); blank lines before `solid` count no extra part. A binary header
+/// starting "solid" (many writers put the part's name there) joins and
+/// short counts read as with any header; a short count before padding,
+/// or before facets that are not this body's, reads only the facets
+/// counted.
+#[test]
+fn file_ends_and_binary_headers_read_as_they_should() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = generate::icosphere(1.0, 1);
+    let text = common::ascii_stl(&a);
+    let body = text.trim_end().trim_end_matches("endsolid test").trim_end();
+    let (_, r) = read_stl(&common::write(dir.path(), "noend.stl", body.as_bytes())).unwrap();
+    assert_eq!((r.facets, r.endsolid_missing, r.solids), (80, true, 1));
+    let (_, r) = read_stl(&common::write(dir.path(), "end.stl", text.as_bytes())).unwrap();
+    assert_eq!((r.facets, r.endsolid_missing), (80, false));
+    // Cut inside the last facet, after a vertex line.
+    let cut = &body[..body.rfind("endloop").unwrap()];
+    let e = read_stl(&common::write(dir.path(), "cut.stl", cut.as_bytes())).unwrap_err();
+    assert!(
+        matches!(e, MeshError::BadFacet { .. }) && e.to_string().contains("cut short"),
+        "{e}"
+    );
+    let junk = format!("{text}\u{1a}exported by a tool\n");
+    let (_, r) = read_stl(&common::write(dir.path(), "junk.stl", junk.as_bytes())).unwrap();
+    assert_eq!((r.facets, r.solids), (80, 1));
+    let blank = format!("\n\n{text}");
+    let (_, r) = read_stl(&common::write(dir.path(), "blank.stl", blank.as_bytes())).unwrap();
+    assert_eq!((r.facets, r.solids), (80, 1));
+
+    let named = |mesh: &tuft_mesh::TriMesh| {
+        let mut b = common::binary_stl(mesh);
+        b[..12].copy_from_slice(b"solid part  ");
+        b
+    };
+    let mut small = generate::icosphere(0.5, 0);
+    for v in &mut small.vertices {
+        v.x += 5.0;
+    }
+    let mut joined = named(&a);
+    joined.extend_from_slice(&named(&small));
+    let (_, r) = read_stl(&common::write(dir.path(), "cat.stl", &joined)).unwrap();
+    assert_eq!((r.format, r.facets, r.solids), (StlFormat::Binary, 100, 2));
+    let mut short = named(&a);
+    short[80..84].copy_from_slice(&30u32.to_le_bytes());
+    let (_, r) = read_stl(&common::write(dir.path(), "short.stl", &short)).unwrap();
+    assert_eq!((r.facets, r.count_short), (80, Some(30)));
+    // Zero padding of whole facets, and facets far from the body.
+    let mut padded = common::binary_stl(&a);
+    padded.extend_from_slice(&[0u8; 200]);
+    let (_, r) = read_stl(&common::write(dir.path(), "pad.stl", &padded)).unwrap();
+    assert_eq!((r.facets, r.count_short, r.trailing_bytes), (80, None, 200));
+    let mut far = generate::icosphere(1.0, 0);
+    for v in &mut far.vertices {
+        v.x += 1.0e6;
+    }
+    let mut other = common::binary_stl(&a);
+    other.extend_from_slice(&common::binary_stl(&far)[84..]);
+    let (_, r) = read_stl(&common::write(dir.path(), "far.stl", &other)).unwrap();
+    assert_eq!(
+        (r.facets, r.count_short, r.trailing_bytes),
+        (80, None, 1000)
+    );
+}

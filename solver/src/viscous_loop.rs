@@ -597,9 +597,6 @@ impl<'a> DeadWater<'a> {
     fn impose(&self, layer: &mut BoundaryLayer) {
         for (t, &d) in self.dead.iter().enumerate() {
             if d {
-                if layer.panels[t].state == FlowState::Unresolved {
-                    layer.unresolved -= 1;
-                }
                 // As a separated station holds it: no wall friction.
                 layer.panels[t].state = FlowState::Separated;
                 layer.panels[t].risk = 1.0;
@@ -609,6 +606,11 @@ impl<'a> DeadWater<'a> {
                 }
             }
         }
+        layer.unresolved = layer
+            .panels
+            .iter()
+            .filter(|p| p.state == FlowState::Unresolved)
+            .count();
     }
 
     /// The weight `w` of dead panel `t` (see the type's doc).

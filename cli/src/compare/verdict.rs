@@ -35,8 +35,9 @@ use crate::summary::Summary;
 /// forth by up to 5.4 counts. A per-run figure would need extra solves.
 pub const NOISE_COUNTS: f64 = 6.0;
 
-/// Noise of a lift difference, in lift coefficient: measured as
-/// [`NOISE_COUNTS`] on the same 21 runs (`bench/drag_noise`), the lift
+/// Noise of the whole body's lift difference, in lift coefficient:
+/// measured as [`NOISE_COUNTS`] on the same 21 runs (`bench/drag_noise`
+/// prints it), the lift
 /// coefficient scatters about each family's line by 0.0064 (pooled
 /// standard deviation; the total and the rear axle by 1.1 kg at 40 m/s,
 /// the front axle by 0.2 kg), so two runs differ by up to about twice
@@ -290,9 +291,11 @@ pub fn band_shortfall(delta: f64, ends: [f64; 2]) -> String {
             holds.push(format!("{} between their {end} ends", signed(d, 1)));
         }
     }
-    match holds.first() {
-        Some(h) => format!("{} ({h})", fails.join(" and ")),
-        None => fails.join(" and "),
+    match (fails.is_empty(), holds.first()) {
+        // Nothing fails (not a call `drag_verdict` makes): both ends.
+        (true, _) => band_ends(ends[0], ends[1]),
+        (false, Some(h)) => format!("{} ({h})", fails.join(" and ")),
+        (false, None) => fails.join(" and "),
     }
 }
 

@@ -61,6 +61,10 @@ pub struct StlReport {
     /// part, as many exporters write them), or binary STLs joined one after
     /// another in one file; 1 for a plain file.
     pub solids: usize,
+    /// An ASCII file that ends after a whole facet without its closing
+    /// `endsolid` line: the facets were read, but the export may have been
+    /// cut short.
+    pub endsolid_missing: bool,
 }
 
 /// Read an STL file in the file's own length unit (no scaling).
@@ -96,41 +100,41 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
     let kind = classify(&head, bytes)?;
     let whole_facets = bytes > HEADER && (bytes - HEADER).is_multiple_of(FACET);
     let count_missing = matches!(kind, Kind::Binary { declared: 0 }) && whole_facets;
-    let (mut patched, format, declared, count_short) = match kind {
+    let (mut patched, format, declared, mut count_short) = match kind {
         Kind::Binary { declared } => {
             // Binary STLs joined one after another (`cat a.stl b.stl`): each
             // one's header is skipped and every facet read.
             let joined = joined_binaries(&mut reader, declared, bytes).map_err(io)?;
             let read_all = !count_missing && joined.is_none() && whole_facets;
-            let (declared, count_short, gaps) = match joined {
+            let (n, count_short, gaps) = match joined {
                 Some((total, gaps)) => (total, None, gaps),
                 // A count of 0, or one short of the whole facets the length
-                // holds: read what the length holds.
+                // holds: read what the length holds (a short count's extra
+                // facets are checked below).
                 None if count_missing => ((bytes - HEADER) / FACET, None, Vec::new()),
                 None if read_all && HEADER + FACET * declared < bytes => {
                     ((bytes - HEADER) / FACET, Some(declared), Vec::new())
                 }
                 None => (declared, None, Vec::new()),
             };
-            let mut prefix = vec![0; 80];
-            prefix.extend_from_slice(&u32::try_from(declared).unwrap_or(u32::MAX).to_le_bytes());
-            let mut patched = Patched::new(reader, prefix, HEADER, false).map_err(io)?;
-            patched.solids += gaps.len();
-            patched.gaps = gaps;
-            (patched, StlFormat::Binary, Some(declared), count_short)
-        }
-        Kind::Ascii => {
-            let skip = first_line_length(&mut reader).map_err(io)?;
-            let prefix = b"solid tuft\n".to_vec();
             (
-                Patched::new(reader, prefix, skip, true).map_err(io)?,
-                StlFormat::Ascii,
-                None,
-                None,
+                binary_source(reader, n, gaps).map_err(io)?,
+                StlFormat::Binary,
+                Some(n),
+                count_short,
             )
         }
+        Kind::Ascii => {
+            let (skip, solid_line) = first_line(&mut reader).map_err(io)?;
+            let prefix = b"solid tuft\n".to_vec();
+            let mut patched = Patched::new(reader, prefix, skip, true).map_err(io)?;
+            patched.solids_at_start = usize::from(solid_line);
+            patched.solids = patched.solids_at_start;
+            (patched, StlFormat::Ascii, None, None)
+        }
     };
-    let mesh = match stream_facets(&mut patched, declared) {
+    let mut declared = declared;
+    let mut mesh = match stream_facets(&mut patched, declared) {
         Err(MeshError::BadFacet { facet, reader, .. }) if format == StlFormat::Ascii => {
             let mut inner = patched.inner.into_inner();
             let line = inner
@@ -143,8 +147,22 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
                 line,
             });
         }
-        other => other?,
+        Err(e) if count_short.is_none() => return Err(e),
+        other => other,
     };
+    // The facets past a short count are taken only when they are facets of
+    // this body (finite, not degenerate, within its reach); padding or
+    // other data there stays trailing bytes, read no further.
+    if let Some(n) = count_short
+        && !mesh.as_ref().is_ok_and(|m| extra_facets_fit(m, n as usize))
+    {
+        let reader = patched.inner.into_inner();
+        patched = binary_source(reader, n, Vec::new()).map_err(io)?;
+        declared = Some(n);
+        count_short = None;
+        mesh = stream_facets(&mut patched, declared);
+    }
+    let mesh = mesh?;
     if mesh.is_empty() {
         return Err(MeshError::NoFacets);
     }
@@ -159,8 +177,54 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         count_missing,
         count_short,
         solids: patched.solids,
+        endsolid_missing: patched.endsolid_missing,
     };
     Ok((mesh, report))
+}
+
+/// A binary STL's facets as `stl_io` reads them: a header giving `n`
+/// facets, then the file's facets from byte 84 with the byte ranges
+/// `gaps` left out (the headers of STLs joined after the first).
+fn binary_source<R: Read + Seek>(
+    reader: R,
+    n: u64,
+    gaps: Vec<(u64, u64)>,
+) -> std::io::Result<Patched<R>> {
+    let mut prefix = vec![0; 80];
+    prefix.extend_from_slice(&u32::try_from(n).unwrap_or(u32::MAX).to_le_bytes());
+    let mut patched = Patched::new(reader, prefix, HEADER, false)?;
+    patched.solids_at_start = 1 + gaps.len();
+    patched.solids = patched.solids_at_start;
+    patched.gaps = gaps;
+    Ok(patched)
+}
+
+/// Whether the facets of `mesh` after the first `n` read as facets of the
+/// same body: every one has area (zero padding has none), and every corner
+/// lies within the first facets' bounding box grown by a thousand times its
+/// diagonal (the first `n` may be a small patch of the body, but bytes that
+/// are not facets read as floats of any size: nine of them land that close
+/// about once in two hundred).
+fn extra_facets_fit(mesh: &TriMesh, n: usize) -> bool {
+    let (first, extra) = mesh.triangles.split_at(n.min(mesh.triangles.len()));
+    let corners = |tris: &[[u32; 3]]| -> Vec<Point> {
+        tris.iter()
+            .flat_map(|t| t.map(|v| mesh.vertices[v as usize]))
+            .collect()
+    };
+    let seen = corners(first);
+    let Some(p0) = seen.first() else {
+        return false;
+    };
+    let (lo, hi) = seen
+        .iter()
+        .fold((*p0, *p0), |(lo, hi), p| (lo.inf(p), hi.sup(p)));
+    let reach = 1000.0 * (hi - lo).norm();
+    let inside = |p: &Point| (0..3).all(|k| p[k] >= lo[k] - reach && p[k] <= hi[k] + reach);
+    extra.iter().all(|t| {
+        let [a, b, c] = t.map(|v| mesh.vertices[v as usize]);
+        (b - a).cross(&(c - a)).norm() > 0.0 && [a, b, c].iter().all(inside)
+    })
 }
 
 /// The first line of an ASCII STL that does not read as one: an unknown
@@ -218,13 +282,17 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
     // Keywords in capitals (`SOLID`, `FACET`) are read too, as some
     // exporters write them, but only from a head that is text: a binary
     // header may start "SOLID" too.
+    // A binary header may start "solid" too (many writers put the part's
+    // name there), but its facet count holds bytes no text has.
+    let control = head.iter().any(|&b| b < 0x20 && !b.is_ascii_whitespace());
     let text_start = String::from_utf8_lossy(head);
-    let looks_ascii = text_start.trim_start().starts_with("solid")
-        || (printable
-            && text_start
-                .trim_start()
-                .to_ascii_lowercase()
-                .starts_with("solid"));
+    let looks_ascii = !control
+        && (text_start.trim_start().starts_with("solid")
+            || (printable
+                && text_start
+                    .trim_start()
+                    .to_ascii_lowercase()
+                    .starts_with("solid")));
     if head.len() < HEADER as usize {
         return if looks_ascii {
             Ok(Kind::Ascii)
@@ -291,12 +359,18 @@ fn joined_binaries<R: Read + Seek>(
     Ok((at == bytes && !gaps.is_empty()).then_some((total, gaps)))
 }
 
-/// Length of the first line including its newline (at most 64 KiB looked at).
-fn first_line_length<R: Read + Seek>(reader: &mut R) -> std::io::Result<u64> {
+/// Length of the first line including its newline (at most 64 KiB looked
+/// at), and whether it is the `solid` line (a file may open with blank
+/// lines, its `solid` line then read later).
+fn first_line<R: Read + Seek>(reader: &mut R) -> std::io::Result<(u64, bool)> {
     reader.seek(SeekFrom::Start(0))?;
     let mut line = Vec::new();
     BufReader::new(reader.by_ref().take(65_536)).read_until(b'\n', &mut line)?;
-    Ok(line.len() as u64)
+    let solid = line
+        .trim_ascii_start()
+        .to_ascii_lowercase()
+        .starts_with(b"solid");
+    Ok((line.len() as u64, solid))
 }
 
 /// The STL reader's complaint about a facet in a practitioner's words:
@@ -378,18 +452,31 @@ struct Patched<R> {
     skip: u64,
     lower: bool,
     /// Byte ranges of the inner reader to leave out (the headers of binary
-    /// STLs joined after the first), in order.
+    /// STLs joined after the first), in order, and the first not yet passed.
     gaps: Vec<(u64, u64)>,
+    next_gap: usize,
     /// Where the inner reader stands, bytes from its start.
     at: u64,
     /// ASCII: the current line, as served, and how much of it is served.
     line: Vec<u8>,
     line_pos: usize,
+    /// ASCII: an `endsolid` line was the last seen (only another `solid`
+    /// may follow; anything else ends the file, as `stl_io` ends it).
+    ended: bool,
+    /// ASCII: the reading stopped (junk after the last `endsolid`).
+    stopped: bool,
+    /// ASCII: the last line served closed a facet (`endfacet`), or none was
+    /// served: a place where the file may end.
+    between_facets: bool,
     /// ASCII: the closing `endsolid` has been served.
     closed: bool,
-    /// Solids met: `solid` lines of an ASCII file (the first one
-    /// included), or the binary STLs joined in the file.
+    /// ASCII: the file ended after a whole facet without an `endsolid`,
+    /// which was supplied.
+    endsolid_missing: bool,
+    /// Solids met: `solid` lines of an ASCII file, or the binary STLs
+    /// joined in the file; and their number before any line is read.
     solids: usize,
+    solids_at_start: usize,
 }
 
 impl<R: Read + Seek> Patched<R> {
@@ -402,39 +489,73 @@ impl<R: Read + Seek> Patched<R> {
             skip,
             lower,
             gaps: Vec::new(),
+            next_gap: 0,
             at: skip,
             line: Vec::new(),
             line_pos: 0,
+            ended: false,
+            stopped: false,
+            between_facets: true,
             closed: false,
+            endsolid_missing: false,
             solids: 1,
+            solids_at_start: 1,
         })
     }
 
     /// ASCII: the next line to serve, in lower case, with the `solid` and
     /// `endsolid` lines between parts left out (each part's facets then
-    /// read as one solid's) and one `endsolid` served at the end (a file
-    /// whose writer left it out reads too). `false` at the end.
+    /// read as one solid's) and one `endsolid` served at the end. A file
+    /// whose writer left out the last `endsolid` reads too when it ends
+    /// after a whole facet (`endsolid_missing` says so); one that ends
+    /// inside a facet ends there, for the reader to call it cut short.
+    /// `false` at the end.
     fn next_line(&mut self) -> std::io::Result<bool> {
         loop {
             self.line.clear();
             self.line_pos = 0;
-            if self.inner.read_until(b'\n', &mut self.line)? == 0 {
-                if self.closed {
+            let read = if self.stopped {
+                0
+            } else {
+                self.inner.read_until(b'\n', &mut self.line)?
+            };
+            if read == 0 {
+                if self.closed || !(self.ended || self.between_facets) {
                     return Ok(false);
                 }
                 self.closed = true;
+                self.endsolid_missing = !self.ended;
+                self.line.clear();
                 self.line.extend_from_slice(b"endsolid tuft\n");
                 return Ok(true);
             }
             self.line.make_ascii_lowercase();
-            let text = self.line.trim_ascii_start();
+            // A last line without its newline still ends before what follows.
+            if !self.line.ends_with(b"\n") {
+                self.line.push(b'\n');
+            }
+            let text = self.line.trim_ascii();
+            if text.is_empty() {
+                continue;
+            }
+            if self.ended {
+                if text.starts_with(b"solid") {
+                    self.solids += 1;
+                    self.ended = false;
+                } else {
+                    self.stopped = true;
+                }
+                continue;
+            }
             if text.starts_with(b"endsolid") {
+                self.ended = true;
                 continue;
             }
             if text.starts_with(b"solid") {
                 self.solids += 1;
                 continue;
             }
+            self.between_facets = text.starts_with(b"endfacet");
             return Ok(true);
         }
     }
@@ -457,12 +578,12 @@ impl<R: Read + Seek> Read for Patched<R> {
             self.line_pos += n;
             return Ok(n);
         }
-        let gap = self.gaps.iter().find(|g| g.1 > self.at).copied();
         let mut limit = buf.len();
-        if let Some((start, end)) = gap {
+        if let Some(&(start, end)) = self.gaps.get(self.next_gap) {
             if self.at >= start {
                 self.inner.seek(SeekFrom::Start(end))?;
                 self.at = end;
+                self.next_gap += 1;
                 return self.read(buf);
             }
             limit = limit.min(usize::try_from(start - self.at).unwrap_or(usize::MAX));
@@ -484,10 +605,15 @@ impl<R: Read + Seek> Seek for Patched<R> {
         self.pos = 0;
         self.inner.seek(SeekFrom::Start(self.skip))?;
         self.at = self.skip;
+        self.next_gap = 0;
         self.line.clear();
         self.line_pos = 0;
+        self.ended = false;
+        self.stopped = false;
+        self.between_facets = true;
         self.closed = false;
-        self.solids = 1 + self.gaps.len();
+        self.endsolid_missing = false;
+        self.solids = self.solids_at_start;
         Ok(0)
     }
 }
