@@ -161,7 +161,13 @@ fn print_summary(out: &Path, s: &Summary) {
     });
     let [total, front, rear] = s.lift_kg.axle_words();
     let floor = crate::write::underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
-    say!("  lift{speed}: {total} kg (front {front}, rear {rear}){floor}");
+    if s.axle_split_shown() {
+        say!("  lift{speed}: {total} kg (front {front}, rear {rear}){floor}");
+    } else {
+        say!(
+            "  lift{speed}: {total} kg (not split between axles: free air, no axles given){floor}"
+        );
+    }
     say!(
         "  separated {:.1} % of the surface",
         100.0 * s.separation.fraction

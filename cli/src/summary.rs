@@ -299,6 +299,15 @@ impl Summary {
             .is_some_and(|b| crate::pipeline::floor_contact(self.contact_area(), b).is_some())
     }
 
+    /// Whether the front/rear axle split of the lift means anything: a
+    /// ground is given (a road vehicle) or the case gave the axles. A test
+    /// sphere in free air had read "lift 0 kg (front +35, rear -35)", its
+    /// drag's moment about a ground point it does not have, on axles
+    /// assumed at 20 and 80 % of its length.
+    pub fn axle_split_shown(&self) -> bool {
+        self.mesh.ground_z.is_some() || self.reference.given.get("axles").copied().unwrap_or(false)
+    }
+
     /// Height of the body's lowest point above the ground, m; `None` in
     /// free air or when the extent is not recorded.
     pub fn clearance_m(&self) -> Option<f64> {
@@ -363,3 +372,21 @@ pub struct SeparatedWakes {
 pub const CAUTION: &str = "Screening estimate only. Lift, drag and stability at speed must be \
 confirmed by validated CFD or wind-tunnel tests and by the responsible engineer, under local \
 regulations.";
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The lift is split between axles over a ground or on given axles,
+    /// not for a body in free air with assumed ones.
+    #[test]
+    fn the_axle_split_needs_a_ground_or_given_axles() {
+        let mut s = Summary::default();
+        assert!(!s.axle_split_shown());
+        s.reference.given.insert("axles".into(), true);
+        assert!(s.axle_split_shown());
+        s.reference.given.insert("axles".into(), false);
+        s.mesh.ground_z = Some(0.0);
+        assert!(s.axle_split_shown());
+    }
+}

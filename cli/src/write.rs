@@ -742,6 +742,14 @@ fn report(
     let v = case.file.flow.speed;
     let at = format!("kg at {} m/s", output::speed_number(v));
     let [lift, front, rear] = s.lift_kg.axle_words();
+    // No axle split for a body in free air without axles (Summary::axle_split_shown).
+    let split = |axle: &str| {
+        if s.axle_split_shown() {
+            axle.to_owned()
+        } else {
+            "not split (free air, no axles given)".to_owned()
+        }
+    };
     let k = &s.coefficients;
     let drag_counts =
         output::total_and_parts([k.drag, k.drag_pressure, k.drag_friction].map(|c| 1000.0 * c));
@@ -792,8 +800,8 @@ fn report(
         ),
         NumberRow::fixed("Lift coefficient C_L (negative: downforce)", k.lift, 3, "-"),
         NumberRow::text("Lift, whole body (negative: downforce)", &lift, &at),
-        NumberRow::text("Lift, front axle", &front, &at),
-        NumberRow::text("Lift, rear axle", &rear, &at),
+        NumberRow::text("Lift, front axle", &split(&front), &at),
+        NumberRow::text("Lift, rear axle", &split(&rear), &at),
     ];
     if s.mesh.ground_z.is_some() {
         numbers.push(NumberRow::text(
