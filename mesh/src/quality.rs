@@ -162,7 +162,7 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .map(|&j| mesh.panels[i].normal.dot(&mesh.panels[j as usize].normal))
             .fold(-1.0, f64::max)
     };
-    let fans = fan_panels(mesh, &aspect, q.max_aspect_ratio);
+    let fans = fan_panels(mesh);
     let first_fan = fans
         .iter()
         .position(|&f| f)
@@ -282,8 +282,8 @@ fn warnings(
         });
         out.push((
             format!(
-                "{} panels ({:.1} %) are thin triangles fanned out from one corner over flat faces meeting \
-                 the wind{place}: the velocity on such a face comes from its neighbours round the face's \
+                "{} panels ({:.1} %) are triangles fanned out from one corner over flat faces meeting the \
+                 wind{place}: the velocity on such a face comes from its neighbours round the face's \
                  edge and can be far off (a review's flat face read Cp -0.16 as a fan from its centre \
                  where the same face cut in rings read +0.81, and the drag 0.20 against 0.48); export \
                  those faces with an even mesh (rings or a grid), as the coarsening keeps a flat face's \
@@ -309,19 +309,31 @@ pub const UPSTREAM_X: f64 = 0.7;
 pub const FAN_HUB_PANELS: usize = 8;
 
 /// Panels of fans on faces meeting the wind ([`UPSTREAM_X`]): the panels
-/// around a corner that has at least
-/// [`FAN_HUB_PANELS`] of them, all lying flat (normals within 2 degrees of
-/// their mean), three quarters of them reaching the face's rim (the edge
-/// opposite the hub on a crease of more than 30 degrees) and half of them
-/// thin (`aspect` above `max_aspect`; a review's fanned tail, 44
-/// triangles, had 28), the way CAD exporters mesh a flat face: one triangle
-/// from a hub to each segment of its rim. Every one of them reaches the
-/// rim, so none has neighbours on its own face all round, and its centroid
-/// stands for a strip from the middle of the face to its edge.
-pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool> {
+/// around a corner that has at least [`FAN_HUB_PANELS`] of them on one
+/// flat face (normals within 2 degrees of one another), three quarters of
+/// those reaching the face's rim (the edge opposite the hub on a crease of
+/// more than 30 degrees), the way CAD exporters mesh a flat face: one
+/// triangle from a hub to each segment of its rim. Every one of them
+/// reaches the rim, so none has neighbours on its own face all round, and
+/// its centroid stands for a strip from the middle of the face to its
+/// edge. `prepare::recut_fans` re-cuts them in rings before a run.
+pub fn fan_panels(mesh: &PanelMesh) -> Vec<bool> {
+    let mut fan = vec![false; mesh.len()];
+    for (_, face) in fans(mesh) {
+        for j in face {
+            fan[j as usize] = true;
+        }
+    }
+    fan
+}
+
+/// The fans of [`fan_panels`]: each hub vertex with its face's panels, no
+/// panel in two.
+pub fn fans(mesh: &PanelMesh) -> Vec<(u32, Vec<u32>)> {
     let cos_flat = 2f64.to_radians().cos();
     let cos_crease = 30f64.to_radians().cos();
-    let mut fan = vec![false; mesh.len()];
+    let mut taken = vec![false; mesh.len()];
+    let mut out = Vec::new();
     for (hub, around) in mesh.vertex_panels.iter().enumerate() {
         if around.len() < FAN_HUB_PANELS {
             continue;
@@ -361,17 +373,14 @@ pub fn fan_panels(mesh: &PanelMesh, aspect: &[f64], max_aspect: f64) -> Vec<bool
                 .is_some_and(|o| normal(o).dot(&normal(j)) < cos_crease)
         };
         let reach = face.iter().filter(|&&j| at_rim(j)).count();
-        let thin = face
-            .iter()
-            .filter(|&&j| aspect[j as usize] > max_aspect)
-            .count();
-        if 4 * reach >= 3 * face.len() && 2 * thin >= face.len() {
+        if 4 * reach >= 3 * face.len() && face.iter().all(|&j| !taken[j as usize]) {
             for &j in &face {
-                fan[j as usize] = true;
+                taken[j as usize] = true;
             }
+            out.push((hub as u32, face));
         }
     }
-    fan
+    out
 }
 
 /// `what` of a warning for one panel: its leading plural verb made singular.

@@ -31,9 +31,18 @@ fn flat_faced_cylinder(d: f64, l: f64, around: usize) -> TriMesh {
 /// [`flat_faced_cylinder`] with its nose rim cut by a 45-degree chamfer
 /// `c` deep (none for 0).
 fn chamfered_cylinder(d: f64, l: f64, c: f64, around: usize) -> TriMesh {
+    cylinder(d, l, c, around, None)
+}
+
+/// [`chamfered_cylinder`], its nose face cut in `nose_rings` rings when
+/// given (1: a fan of triangles from the centre to the rim, as CAD
+/// exporters cut a flat face), else in rings about as wide as the panels
+/// round the rim.
+fn cylinder(d: f64, l: f64, c: f64, around: usize, nose_rings: Option<usize>) -> TriMesh {
     let r = 0.5 * d;
     let edge = PI * d / around as f64;
     let rings = ((r / edge).round() as usize).max(2);
+    let nose_rings = nose_rings.unwrap_or(rings);
     let stations = ((l / edge).round() as usize).max(2);
     let mut v: Vec<Point> = Vec::new();
     let mut t: Vec<[u32; 3]> = Vec::new();
@@ -67,8 +76,8 @@ fn chamfered_cylinder(d: f64, l: f64, c: f64, around: usize) -> TriMesh {
     let nose = v.len() as u32;
     v.push(Point::new(0.0, 0.0, 0.0));
     let mut ids = Vec::new();
-    for i in 1..=rings {
-        ids.push(ring(&mut v, 0.0, (r - c) * i as f64 / rings as f64));
+    for i in 1..=nose_rings {
+        ids.push(ring(&mut v, 0.0, (r - c) * i as f64 / nose_rings as f64));
     }
     if c > 0.0 {
         ids.push(ring(&mut v, c, r));
@@ -285,6 +294,53 @@ fn sharp_edged_boxes() {
         mesh.len()
     );
     assert!((0.55..1.2).contains(&cd), "box: C_D {cd:.3}");
+}
+
+/// A nose face exported as a fan of thin triangles from its centre (as
+/// CAD exporters cut flat faces; every triangle reaches the sharp rim,
+/// where the surface-velocity fit leans on the panels round the edge):
+/// `prepare::recut_fans` re-cuts it in rings. Measured (48 panels round,
+/// L/D 1): the fan's drag 0.014 (its nose face at Cp -0.24, pulled by the
+/// rim's suction), re-cut 0.857 (nose face 0.520), cut in rings 0.765
+/// (0.531), against 0.90 measured (Hoerner 1965, from memory).
+#[test]
+fn a_nose_face_cut_as_a_fan_is_recut_in_rings() {
+    use tuft_mesh::prepare::recut_fans;
+    let (d, l, around) = (0.5, 0.5, 48);
+    let rings = PanelMesh::new(flat_faced_cylinder(d, l, around), Mirrors::none()).unwrap();
+    let fan = PanelMesh::new(cylinder(d, l, 0.0, around, Some(1)), Mirrors::none()).unwrap();
+    let (recut, done) = recut_fans(fan.clone()).unwrap();
+    assert_eq!(
+        done,
+        Some((1, 48 * 6)),
+        "one fan of 48, each triangle cut in seven"
+    );
+    assert!(recut.edge_neighbours.iter().flatten().all(Option::is_some));
+    let area = |m: &PanelMesh| m.panels.iter().map(|p| p.area).sum::<f64>();
+    assert!((area(&recut) - area(&fan)).abs() < 1e-9 * area(&fan));
+    assert_eq!(recut_fans(recut.clone()).unwrap().1, None, "no fan left");
+    let cd = |m: &PanelMesh| figures(m, &run(m));
+    let ((fan_cd, fan_nose), (recut_cd, recut_nose), (rings_cd, rings_nose)) =
+        (cd(&fan), cd(&recut), cd(&rings));
+    println!(
+        "L/D 1, nose face as a fan: C_D {fan_cd:.3} (nose Cp {fan_nose:.3}); re-cut {recut_cd:.3} \
+         ({recut_nose:.3}); cut in rings {rings_cd:.3} ({rings_nose:.3}); measured 0.90"
+    );
+    // Against Hoerner's 0.90 (from memory), the allowance the cylinder
+    // cut in rings is held to in the handbook test: 20 % low, 5 % high.
+    assert!(
+        (0.8 * 0.90..=1.05 * 0.90).contains(&recut_cd),
+        "re-cut: C_D {recut_cd:.3}"
+    );
+    assert!(
+        fan_cd < 0.5 * 0.90,
+        "the fan was thought far off: C_D {fan_cd:.3}"
+    );
+    // The nose face's own pressure, re-cut against cut in rings.
+    assert!(
+        (recut_nose - rings_nose).abs() < 0.05,
+        "nose-face Cp: re-cut {recut_nose:.3}, rings {rings_nose:.3}"
+    );
 }
 
 /// The march's free-streamline bound beside a rim is the strongest
