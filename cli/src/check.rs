@@ -80,7 +80,11 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             set.join(", "),
             if set.len() == 1 { "applies" } else { "apply" }
         );
-        let (file, mut params, case) = from_case(&args.file)?;
+        let case = crate::case::Case::load(&args.file)?;
+        if let crate::case::GeometrySource::Shape { name } = &case.source {
+            return check_shape(args, case.clone(), name);
+        }
+        let (file, mut params, case) = from_case(&args.file, case)?;
         if let Some(n) = args.panels {
             anyhow::ensure!(
                 (100..=200_000).contains(&n),
@@ -220,11 +224,47 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
     s
 }
 
+/// `tuft check` of a case with a built-in shape (`name`): the panels a run
+/// of it solves on, as for an STL, and with `--save-panels` those panels
+/// as an STL in metres, to take a variant of the shape into a modeller (a
+/// review had no way to get a 30-degree coupe out but to run it).
+fn check_shape(
+    args: &CheckArgs,
+    mut case: crate::case::Case,
+    name: &str,
+) -> anyhow::Result<ExitCode> {
+    if let Some(n) = args.panels {
+        anyhow::ensure!(
+            (100..=200_000).contains(&n),
+            "--panels must be 100 to 200000, as geometry.panels in a case file"
+        );
+        case.file.geometry.panels = Some(n);
+    }
+    let geo = crate::geometry::load(&case).with_context(|| args.file.display().to_string())?;
+    if let Some(out) = &args.save_panels {
+        save_panels(out, &geo.mesh, LengthUnit::M)?;
+    }
+    if args.json {
+        say!("{}", serde_json::to_string_pretty(&geo.report)?);
+    } else {
+        say!(
+            "case       {}: the built-in shape \"{name}\" as the run generates it (in metres)",
+            args.file.display()
+        );
+        say_part!(
+            "{}",
+            summary(&format!("built-in shape \"{name}\""), &geo.report, false)
+        );
+        say_part!("{}", placement_lines(&geo.mesh, &case));
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
 /// The STL and settings a case file gives a run.
 fn from_case(
     path: &std::path::Path,
+    case: crate::case::Case,
 ) -> anyhow::Result<(PathBuf, PrepareParams, crate::case::Case)> {
-    let case = crate::case::Case::load(path)?;
     let crate::case::GeometrySource::Stl {
         path: stl,
         unit,

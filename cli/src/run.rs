@@ -188,9 +188,9 @@ fn print_summary(out: &Path, s: &Summary) {
             w.passes,
         );
     }
-    if s.separation.rim_m2 > 0.0 {
+    if s.rim_shown() {
         say!(
-            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, at x {:.2} to {:.2} m and z {:.2} to {:.2} m, held at the free-streamline bound",
+            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, within x {:.2} to {:.2} m and z {:.2} to {:.2} m, held at the free-streamline bound",
             1000.0 * s.separation.rim_radius_m,
             s.separation.rim_m2,
             s.separation.rim_x_m[0],

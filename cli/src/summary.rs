@@ -299,6 +299,14 @@ impl Summary {
             .is_some_and(|b| crate::pipeline::floor_contact(self.contact_area(), b).is_some())
     }
 
+    /// Whether the rim zone (panels beside sharp front edges the flow
+    /// leaves) is worth a line: at least 0.005 m^2, a patch 7 cm across (a
+    /// review's yawed coupe printed "0.00 m^2 beside them, at x 0.01 to
+    /// 0.01 m").
+    pub fn rim_shown(&self) -> bool {
+        self.separation.rim_m2 >= 0.005
+    }
+
     /// Whether the front/rear axle split of the lift means anything: a
     /// ground is given (a road vehicle) or the case gave the axles. A test
     /// sphere in free air had read "lift 0 kg (front +35, rear -35)", its

@@ -998,7 +998,7 @@ fn report(
             body: s.notes.join("\n\n"),
         });
     }
-    if s.separation.rim_m2 > 0.0 {
+    if s.rim_shown() {
         sections.push(TextSection {
             title: "Sharp front edges".into(),
             // The loop's dead water has a pressure of its own unless

@@ -292,6 +292,38 @@ fn saved_panels_read_back_as_the_reported_mesh() {
     assert!((hi.x - lo.x - 2000.0).abs() < 40.0, "{lo:?} {hi:?}");
 }
 
+/// A case with a built-in shape is checked as the run generates it, and
+/// its panels saved in metres: a variant to take into a modeller.
+#[test]
+fn a_built_in_shape_is_checked_and_saved() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = dir.path().join("c30.toml");
+    std::fs::write(
+        &case,
+        "[geometry]\nshape = \"coupe\"\nrear_window_deg = 30\npanels = 1500\n[ground]\nz = 0.0\n",
+    )
+    .unwrap();
+    let saved = dir.path().join("c30.stl");
+    let out = check(&[
+        case.to_str().unwrap(),
+        "--save-panels",
+        saved.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("the built-in shape \"coupe\" as the run generates it"),
+        "{stdout}"
+    );
+    let (mesh, _) = tuft_mesh::import::read_stl(&saved).unwrap();
+    assert!(
+        stdout.contains(&format!("panels     {} ", mesh.len())),
+        "{stdout}"
+    );
+    let (lo, hi) = mesh.bounds().unwrap();
+    assert!((hi.x - lo.x - 4.5).abs() < 0.01, "metres: {lo:?} {hi:?}");
+}
+
 /// A unit slip is refused by check as by run: the committed coupe (in mm)
 /// read as metres is 4.5 km long. An STL given to run is refused with a
 /// pointer to the case file.
