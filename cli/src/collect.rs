@@ -1076,9 +1076,16 @@ fn band_top_note(c: &Collected) -> String {
 
 /// True when every variant's value of `key` is a number.
 fn numeric_key(c: &Collected, key: &str) -> bool {
-    c.variants
+    // A `combine = "each"` sweep sets each key on its own variants only
+    // (the others keep the base case's value): those are the ones that
+    // count (a review's rear-window and diffuser sweep had no plot, "its
+    // values are not numbers").
+    let mut set = c
+        .variants
         .iter()
-        .all(|r| r.settings.get(key).and_then(|v| v.as_f64()).is_some())
+        .filter_map(|r| r.settings.get(key))
+        .peekable();
+    set.peek().is_some() && set.all(|v| v.as_f64().is_some())
 }
 
 /// The wind the plots show: one speed and yaw, or "each variant's
@@ -1157,7 +1164,8 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     // number (infinite for text) and as text.
     type Group = (Vec<(f64, String)>, String, Vec<(f64, f64)>);
     let mut groups: Vec<Group> = Vec::new();
-    for r in &c.variants {
+    // Only the variants that set `key` (see `numeric_key`).
+    for r in c.variants.iter().filter(|r| r.settings.contains_key(key)) {
         let others: Vec<(&String, &serde_json::Value)> =
             r.settings.iter().filter(|(k, _)| *k != key).collect();
         let name = others
@@ -1708,6 +1716,40 @@ mod tests {
                 "geometry.diffuser_deg = 22.0"
             ]
         );
+    }
+
+    /// A `combine = "each"` sweep sets each key on its own variants only:
+    /// each key is plotted over those (a review's rear-window and
+    /// diffuser sweep had no plot at all).
+    #[test]
+    fn each_key_of_an_each_sweep_is_plotted_over_its_own_variants() {
+        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0, 5.0]);
+        c.keys = vec![
+            "geometry.diffuser_deg".into(),
+            "geometry.rear_window_deg".into(),
+        ];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            let (key, v) = if k < 2 {
+                ("geometry.diffuser_deg", [8.0, 20.0][k])
+            } else {
+                ("geometry.rear_window_deg", [18.0, 22.0, 26.0][k - 2])
+            };
+            r.settings.insert(key.into(), v.into());
+        }
+        assert!(numeric_key(&c, "geometry.diffuser_deg"));
+        assert!(numeric_key(&c, "geometry.rear_window_deg"));
+        let points = |key: &str| -> Vec<f64> {
+            series(&c, key, |r| r.cd)
+                .into_iter()
+                .flat_map(|s| s.points.into_iter().map(|p| p.0))
+                .collect()
+        };
+        assert_eq!(points("geometry.diffuser_deg"), [8.0, 20.0]);
+        assert_eq!(points("geometry.rear_window_deg"), [18.0, 22.0, 26.0]);
+        c.variants[0]
+            .settings
+            .insert("geometry.diffuser_deg".into(), "long".into());
+        assert!(!numeric_key(&c, "geometry.diffuser_deg"));
     }
 
     /// The drag plot says where its band is: grey beside a single line,
