@@ -649,6 +649,7 @@ fn notes(
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
     }
+    notes.extend(region_cover_notes(sa, sb));
     if let Some(n) = reference_note(sa, sb) {
         notes.push(n);
     }
@@ -721,6 +722,45 @@ fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> O
             100.0 * surface.unchanged_share
         )
     })
+}
+
+/// A region's area may differ between the runs by this share of the
+/// larger before the note that the region covers other surface (our
+/// choice: the demo's rear window, sloped 22 and 38 degrees in one box,
+/// differs by about 15 %, a change of slope of the same part).
+pub const REGION_AREA_SHIFT: f64 = 0.3;
+
+/// A note for each named region that covers other surface in B than in A:
+/// a region is a box fixed in x, y and z, and a change of shape can move
+/// another part of the body under it (a review's shorter boot deck put the
+/// foot of the rear window into the "boot deck" box, slope 18 degrees
+/// where A's deck had none, and compare reported its share as the deck's
+/// change). Its area differs by more than [`REGION_AREA_SHIFT`], or it
+/// has a slope (faces up and rearward) in one run only; a slope that
+/// changes is the design change a rear-window study makes.
+fn region_cover_notes(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Vec<String> {
+    let slope = |s: Option<f64>| s.map_or("none".to_owned(), |d| format!("{d:.0} degrees"));
+    a.regions
+        .iter()
+        .filter_map(|ra| {
+            let rb = b.regions.iter().find(|r| r.name == ra.name)?;
+            let larger = ra.area_m2.max(rb.area_m2);
+            let area = larger > 0.0 && (ra.area_m2 - rb.area_m2).abs() > REGION_AREA_SHIFT * larger;
+            let slopes = ra.slope_deg.is_some() != rb.slope_deg.is_some();
+            (area || slopes).then(|| {
+                format!(
+                    "the region \"{}\" covers other surface in B than in A (area {:.2} against {:.2} m^2, \
+                     slope {} against {}): its box stays where it is while the shape changes under it, \
+                     so its change compares different parts of the body; move the box with the part",
+                    ra.name,
+                    ra.area_m2,
+                    rb.area_m2,
+                    slope(ra.slope_deg),
+                    slope(rb.slope_deg)
+                )
+            })
+        })
+        .collect()
 }
 
 /// What a change of ground clearance does to the lift in this model (after
@@ -1108,6 +1148,37 @@ mod tests {
         s.dynamic_pressure_pa = 963.2;
         let noise = deltas(&s, &s).lift_noise_kg;
         assert!((noise - 3.29).abs() < 0.01, "{noise}");
+    }
+
+    /// A region whose box takes in other surface in B is noted; one that
+    /// keeps its surface is not.
+    #[test]
+    fn a_region_covering_other_surface_is_noted() {
+        use crate::region::RegionResult;
+        let with = |area: f64, slope: Option<f64>| {
+            let mut s = with_area(1.9);
+            let mut r = RegionResult::example("boot deck", 0.3, slope);
+            r.area_m2 = area;
+            s.regions = vec![r];
+            s
+        };
+        let n = region_cover_notes(&with(0.95, None), &with(0.70, Some(18.2)));
+        assert_eq!(n.len(), 1);
+        assert!(
+            n[0].starts_with(
+                "the region \"boot deck\" covers other surface in B than in A (area 0.95 against 0.70 m^2, \
+                 slope none against 18 degrees)"
+            ),
+            "{}",
+            n[0]
+        );
+        assert!(region_cover_notes(&with(0.95, None), &with(0.90, None)).is_empty());
+        // A slope that changes (the demo's rear windows) is the design.
+        assert!(region_cover_notes(&with(0.5, Some(22.0)), &with(0.57, Some(38.0))).is_empty());
+        assert_eq!(
+            region_cover_notes(&with(0.95, None), &with(0.6, None)).len(),
+            1
+        );
     }
 
     /// Two ride heights: both clearances named, with what the lift then
