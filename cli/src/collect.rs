@@ -1168,9 +1168,11 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     for r in c.variants.iter().filter(|r| r.settings.contains_key(key)) {
         let others: Vec<(&String, &serde_json::Value)> =
             r.settings.iter().filter(|(k, _)| *k != key).collect();
+        // An STL by its file name, as the page's table shows it (a review's
+        // legends carried whole paths).
         let name = others
             .iter()
-            .map(|(k, v)| format!("{k} = {}", cell(v)))
+            .map(|(k, v)| format!("{k} = {}", shown_cell(k, v)))
             .collect::<Vec<_>>()
             .join(", ");
         let x = r
