@@ -498,10 +498,22 @@ fn halves_line(h: &tuft_mesh::cut::HalfCut) -> String {
              run it whole\n"
         )
     } else {
+        // Halves that differ by more than a thousandth of the diagonal
+        // (some 5 mm on a car) still run as a half model, but the other
+        // side's shape is then lost (a review's body, its halves 45 mm
+        // apart, was told only that it could).
+        let lost = if h.largest_difference > 0.001 * h.diagonal {
+            format!(
+                "; the half model is the y >= 0 half mirrored, so the other side's differences (up to \
+                 {mm:.0} mm, near x {x:.3}, y {y:.3}, z {z:.3} m) are not modelled"
+            )
+        } else {
+            String::new()
+        };
         format!(
             "           the halves about y = 0 agree to {mm:.1} mm: at zero yaw it can run as a half model \
              (geometry.half_model = true, --half), cut at y = 0, on half the panels in a quarter of the \
-             memory, with a mirror-symmetric flow\n"
+             memory, with a mirror-symmetric flow{lost}\n"
         )
     }
 }
@@ -596,7 +608,7 @@ fn panel_lines(r: &PrepareReport) -> String {
             if let Some(u) = &c.untangled {
                 let [x, y, z] = u.first;
                 s += &format!(
-                    "           folds smoothed before coarsening: {} input facets crossed others or were turned over against their neighbours (the first near x {x:.3}, y {y:.3}, z {z:.3} m); {} vertices moved, at most {:.1e} m and {:.1e} m off the input surface; {} facets still folded\n",
+                    "           folds smoothed before coarsening: {} input facets crossed others or were turned over against their neighbours (the first near x {x:.3}, y {y:.3}, z {z:.3} m); {} vertices moved, by at most {:.1e} m, ending at most {:.1e} m off the input surface; {} facets still folded (the quality lines say where the panels are unsure)\n",
                     u.folded_before,
                     u.vertices_moved,
                     u.largest_move,
@@ -637,4 +649,38 @@ fn quality_lines(r: &PrepareReport) -> String {
         s += &format!("           note: {n}\n");
     }
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Halves that agree run as a half model; halves some centimetres
+    /// apart still may, but the line says what the half model loses; more
+    /// than a hundredth of the diagonal apart, run whole.
+    #[test]
+    fn the_halves_line_says_what_a_half_model_loses() {
+        let cut = |mm: f64| tuft_mesh::cut::HalfCut {
+            facets_before: 100,
+            facets_kept: 50,
+            facets_split: 0,
+            y_range: [-0.9, 0.9],
+            diagonal: 5.0,
+            largest_difference: mm / 1000.0,
+            largest_difference_at: [3.0, -0.8, 0.6],
+        };
+        let agree = halves_line(&cut(1.0));
+        assert!(
+            agree.contains("agree to 1.0 mm") && !agree.contains("not modelled"),
+            "{agree}"
+        );
+        let apart = halves_line(&cut(45.0));
+        assert!(
+            apart.contains("agree to 45.0 mm")
+                && apart.contains("the other side's differences (up to 45 mm, near x 3.000")
+                && apart.contains("are not modelled"),
+            "{apart}"
+        );
+        assert!(halves_line(&cut(60.0)).contains("differ by up to 60 mm"));
+    }
 }
