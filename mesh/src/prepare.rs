@@ -104,8 +104,8 @@ pub struct MirrorReport {
 /// What the run says of a half model mirrored onto y >= 0.
 pub const MIRRORED_HALF_NOTE: &str = "the half model is the car's left side (y <= 0 in tuft's axes, in \
      which y points right seen from the driver's seat): it runs as its mirror image, the right side in \
-     y >= 0, with the same flow and loads, so panels.csv, the VTK files and the pictures show the right \
-     side";
+     y >= 0, with the same flow and loads, so panels.csv, the VTK files, the pictures and every place \
+     named here (quality warnings, holes) show the right side: negate y to find one in the file";
 
 /// A half model's vertices within this fraction of the body's diagonal of
 /// the symmetry plane, on its open border or on the wrong side of it, are
