@@ -80,10 +80,6 @@ pub struct QualityReport {
     /// Panels almost degenerate (aspect ratio above
     /// [`DEGENERATE_ASPECT`]).
     pub degenerate: usize,
-    /// Thin panels fanned out from one corner over a flat face
-    /// ([`fan_panels`]).
-    #[serde(default)]
-    pub fanned: usize,
     /// Thresholds used.
     pub thresholds: QualityParams,
     /// Plain-language warnings (empty when all is well).
@@ -162,11 +158,6 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .map(|&j| mesh.panels[i].normal.dot(&mesh.panels[j as usize].normal))
             .fold(-1.0, f64::max)
     };
-    let fans = fan_panels(mesh);
-    let first_fan = fans
-        .iter()
-        .position(|&f| f)
-        .map(|i| mesh.panels[i].centroid);
     let worst_turned = (0..mesh.len())
         .filter(|&i| turned[i])
         .min_by(|&a, &b| best_neighbour(a).total_cmp(&best_neighbour(b)))
@@ -176,7 +167,6 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
         worst(&angle, -1.0),
         worst(&ratio, 1.0),
         worst_turned,
-        first_fan,
     ];
     let mut r = QualityReport {
         panels: mesh.len(),
@@ -188,7 +178,6 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
             .count(),
         turned: turned.iter().filter(|&&t| t).count(),
         degenerate: aspect.iter().filter(|&&a| a > DEGENERATE_ASPECT).count(),
-        fanned: fans.iter().filter(|&&f| f).count(),
         aspect_ratio: spread(aspect),
         min_angle_deg: spread(angle),
         neighbour_area_ratio: spread(ratio),
@@ -202,13 +191,12 @@ pub fn quality_with_params(mesh: &PanelMesh, q: &QualityParams) -> QualityReport
 }
 
 /// The warnings, each naming where its worst panel is (`at`: the worst
-/// aspect ratio, smallest angle, area jump and turned panel, and the
-/// first fanned panel).
+/// aspect ratio, smallest angle, area jump and turned panel).
 /// Each with the panels it counts when it is about the grading.
 fn warnings(
     r: &QualityReport,
     q: &QualityParams,
-    at: [Option<crate::Point>; 5],
+    at: [Option<crate::Point>; 4],
 ) -> Vec<(String, Option<usize>)> {
     let n = r.panels.max(1) as f64;
     let mut out = Vec::new();
@@ -276,59 +264,30 @@ fn warnings(
         "folds that the coarsening or the scan made, with no edge of the shape there; their speed is interpolated from the flow around them and they start no separation, but look at them (tuft check --save-panels) and try another panel count",
         at[3],
     );
-    if r.fanned > 0 {
-        let place = at[4].map_or(String::new(), |p| {
-            format!(" (one near x {:.3}, y {:.3}, z {:.3} m)", p.x, p.y, p.z)
-        });
-        out.push((
-            format!(
-                "{} panels ({:.1} %) are triangles fanned out from one corner over flat faces meeting the \
-                 wind{place}: the velocity on such a face comes from its neighbours round the face's \
-                 edge and can be far off (a review's flat face read Cp -0.16 as a fan from its centre \
-                 where the same face cut in rings read +0.81, and the drag 0.20 against 0.48); export \
-                 those faces with an even mesh (rings or a grid), as the coarsening keeps a flat face's \
-                 own triangles",
-                r.fanned,
-                100.0 * r.fanned as f64 / n
-            ),
-            None,
-        ));
-    }
     out
 }
 
-/// A fan counts in [`fan_panels`] only on a face meeting the wind, its
+/// A fan counts in [`fans`] only on a face meeting the wind, its
 /// normal's x below minus this (within 45 degrees of facing upstream): a
 /// flat tail in the dead water, a wheel's face or a floor exported as fans
 /// would have warned on every run, with no sign that they mislead.
 pub const UPSTREAM_X: f64 = 0.7;
 
 /// Corners with at least this many panels around them can be the hub of a
-/// fan ([`fan_panels`]; our choice: a flat face exported as a fan has one
+/// fan ([`fans`]; our choice: a flat face exported as a fan has one
 /// triangle per rim segment, a dozen or more on a face with curved edges).
 pub const FAN_HUB_PANELS: usize = 8;
 
-/// Panels of fans on faces meeting the wind ([`UPSTREAM_X`]): the panels
-/// around a corner that has at least [`FAN_HUB_PANELS`] of them on one
-/// flat face (normals within 2 degrees of one another), three quarters of
-/// those reaching the face's rim (the edge opposite the hub on a crease of
-/// more than 30 degrees), the way CAD exporters mesh a flat face: one
-/// triangle from a hub to each segment of its rim. Every one of them
-/// reaches the rim, so none has neighbours on its own face all round, and
-/// its centroid stands for a strip from the middle of the face to its
-/// edge. `prepare::recut_fans` re-cuts them in rings before a run.
-pub fn fan_panels(mesh: &PanelMesh) -> Vec<bool> {
-    let mut fan = vec![false; mesh.len()];
-    for (_, face) in fans(mesh) {
-        for j in face {
-            fan[j as usize] = true;
-        }
-    }
-    fan
-}
-
-/// The fans of [`fan_panels`]: each hub vertex with its face's panels, no
-/// panel in two.
+/// Fans on faces meeting the wind ([`UPSTREAM_X`]), each hub vertex with
+/// its face's panels, no panel in two: the panels around a corner that
+/// has at least [`FAN_HUB_PANELS`] of them on one flat face (normals within
+/// 2 degrees of one another), three quarters of those reaching the face's
+/// rim (the edge opposite the hub on a crease of more than 30 degrees), the
+/// way CAD exporters mesh a flat face: one triangle from a hub to each
+/// segment of its rim. Every one of them reaches the rim, so none has
+/// neighbours on its own face all round, and its centroid stands for a
+/// strip from the middle of the face to its edge. `prepare::recut_fans`
+/// re-cuts them in rings before a run, so none is left to warn about.
 pub fn fans(mesh: &PanelMesh) -> Vec<(u32, Vec<u32>)> {
     let cos_flat = 2f64.to_radians().cos();
     let cos_crease = 30f64.to_radians().cos();
@@ -580,28 +539,26 @@ mod tests {
             t.map_vertices(|p| Point::new(-p.z, p.y, p.x));
             PanelMesh::new(t, Mirrors::none()).unwrap()
         };
+        let fanned = |m: &PanelMesh| fans(m).iter().map(|f| f.1.len()).sum::<usize>();
         let fan = facing_wind(boxed(1));
-        let q = quality(&fan);
-        assert_eq!(
-            q.fanned, 96,
-            "only the fan meeting the wind: {:?}",
-            q.warnings
+        assert_eq!(fanned(&fan), 96, "only the fan meeting the wind");
+        // On the face meeting the wind, at x = -1.
+        assert!(
+            fans(&fan)
+                .iter()
+                .flat_map(|f| &f.1)
+                .all(|&j| (fan.panels[j as usize].centroid.x + 1.0).abs() < 1e-12)
         );
-        assert!(q.warnings.iter().any(|w| w.starts_with("96 panels (")
-            && w.contains(
-                "fanned out from one corner over flat faces meeting the wind (one near x -1.000"
-            )));
-        assert_eq!(quality(&facing_wind(boxed(4))).fanned, 0, "cut in rings");
+        assert_eq!(fanned(&facing_wind(boxed(4))), 0, "cut in rings");
         // Facing up and down (a roof, a floor): not counted.
-        assert_eq!(quality(&boxed(1)).fanned, 0);
+        assert_eq!(fanned(&boxed(1)), 0);
         for mesh in [
             generate::ahmed(25.0, 2500).unwrap(),
             generate::ahmed(0.0, 2500).unwrap(),
             generate::coupe(22.0, 4000).unwrap(),
             generate::icosphere(1.0, 3),
         ] {
-            let q = quality(&PanelMesh::new(mesh, Mirrors::none()).unwrap());
-            assert_eq!(q.fanned, 0);
+            assert_eq!(fanned(&PanelMesh::new(mesh, Mirrors::none()).unwrap()), 0);
         }
     }
 
