@@ -318,8 +318,7 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
         m
     };
     let in_place = map(nalgebra::Vector3::zeros());
-    let (la, lb) = (corner(a), corner(b));
-    let shift = lb - la;
+    let shift = centroid_bounds(b).0 - centroid_bounds(a).0;
     if shift.norm() <= 1e-9 * b.summary.reference.length_m.max(1.0) {
         return in_place;
     }
@@ -339,13 +338,15 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
     }
 }
 
-/// The least corner of a run's panel centroids.
-fn corner(r: &ResultFolder) -> nalgebra::Vector3<f64> {
-    r.panels
-        .iter()
-        .fold(nalgebra::Vector3::repeat(f64::INFINITY), |lo, p| {
-            lo.inf(&p.centroid.coords)
-        })
+/// The least and the greatest corner of a run's panel centroids.
+fn centroid_bounds(r: &ResultFolder) -> (nalgebra::Vector3<f64>, nalgebra::Vector3<f64>) {
+    r.panels.iter().fold(
+        (
+            nalgebra::Vector3::repeat(f64::INFINITY),
+            nalgebra::Vector3::repeat(f64::NEG_INFINITY),
+        ),
+        |(lo, hi), p| (lo.inf(&p.centroid.coords), hi.sup(&p.centroid.coords)),
+    )
 }
 
 /// The area-weighted `q` quantile of (value, area) pairs (0 for none).
@@ -688,20 +689,8 @@ fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> O
             100.0 * surface.unchanged_share
         ));
     }
-    let bounds = |r: &ResultFolder| {
-        r.panels.iter().fold(
-            ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
-            |(mut lo, mut hi), p| {
-                for k in 0..3 {
-                    lo[k] = lo[k].min(p.centroid[k]);
-                    hi[k] = hi[k].max(p.centroid[k]);
-                }
-                (lo, hi)
-            },
-        )
-    };
-    let ((la, ha), (lb, hb)) = (bounds(a), bounds(b));
-    let size = |k: usize, lo: &[f64; 3], hi: &[f64; 3]| hi[k] - lo[k];
+    let ((la, ha), (lb, hb)) = (centroid_bounds(a), centroid_bounds(b));
+    let size = |k: usize, lo: &nalgebra::Vector3<f64>, hi: &nalgebra::Vector3<f64>| hi[k] - lo[k];
     let same_size = (0..3).all(|k| {
         let (sa, sb) = (size(k, &la, &ha), size(k, &lb, &hb));
         (sa - sb).abs() <= 0.05 * sa.max(sb)
