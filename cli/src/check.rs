@@ -80,18 +80,20 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             set.join(", "),
             if set.len() == 1 { "applies" } else { "apply" }
         );
-        let case = crate::case::Case::load(&args.file)?;
-        if let crate::case::GeometrySource::Shape { name } = &case.source {
-            return check_shape(args, case.clone(), name);
-        }
-        let (file, mut params, case) = from_case(&args.file, case)?;
         if let Some(n) = args.panels {
             anyhow::ensure!(
                 (100..=200_000).contains(&n),
                 "--panels must be 100 to 200000, as geometry.panels in a case file"
             );
-            params.target_panels = Some(n);
         }
+        let mut case = crate::case::Case::load(&args.file)?;
+        case.file.geometry.panels = args.panels.or(case.file.geometry.panels);
+        let (file, params) = match &case.source {
+            crate::case::GeometrySource::Shape { name } => return check_shape(args, &case, name),
+            crate::case::GeometrySource::Stl { path, unit, axes } => {
+                (path.clone(), stl_params(&case, *unit, *axes))
+            }
+        };
         (file, params, Some(case))
     } else {
         (args.file.clone(), settings(args)?, None)
@@ -228,19 +230,8 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
 /// of it solves on, as for an STL, and with `--save-panels` those panels
 /// as an STL in metres, to take a variant of the shape into a modeller (a
 /// review had no way to get a 30-degree coupe out but to run it).
-fn check_shape(
-    args: &CheckArgs,
-    mut case: crate::case::Case,
-    name: &str,
-) -> anyhow::Result<ExitCode> {
-    if let Some(n) = args.panels {
-        anyhow::ensure!(
-            (100..=200_000).contains(&n),
-            "--panels must be 100 to 200000, as geometry.panels in a case file"
-        );
-        case.file.geometry.panels = Some(n);
-    }
-    let geo = crate::geometry::load(&case).with_context(|| args.file.display().to_string())?;
+fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow::Result<ExitCode> {
+    let geo = crate::geometry::load(case).with_context(|| args.file.display().to_string())?;
     if let Some(out) = &args.save_panels {
         save_panels(out, &geo.mesh, LengthUnit::M)?;
     }
@@ -255,30 +246,21 @@ fn check_shape(
             "{}",
             summary(&format!("built-in shape \"{name}\""), &geo.report, false)
         );
-        say_part!("{}", placement_lines(&geo.mesh, &case));
+        say_part!("{}", placement_lines(&geo.mesh, case));
     }
     Ok(ExitCode::SUCCESS)
 }
 
-/// The STL and settings a case file gives a run.
-fn from_case(
-    path: &std::path::Path,
-    case: crate::case::Case,
-) -> anyhow::Result<(PathBuf, PrepareParams, crate::case::Case)> {
-    let crate::case::GeometrySource::Stl {
-        path: stl,
-        unit,
+/// The settings a case file gives a run of its STL, read in `unit` with
+/// the file's `axes`.
+fn stl_params(
+    case: &crate::case::Case,
+    unit: LengthUnit,
+    axes: tuft_mesh::FileAxes,
+) -> PrepareParams {
+    PrepareParams {
+        units: unit,
         axes,
-    } = &case.source
-    else {
-        anyhow::bail!(
-            "{}: the case uses a built-in shape, not an STL; tuft check reads STL files",
-            path.display()
-        );
-    };
-    let params = PrepareParams {
-        units: *unit,
-        axes: *axes,
         mirrors: Mirrors {
             ground: case.file.ground.as_ref().map(|g| g.z),
             symmetry: case.file.geometry.half_model,
@@ -286,8 +268,7 @@ fn from_case(
         target_panels: case.file.geometry.panels,
         measure_symmetry: true,
         ..PrepareParams::default()
-    };
-    Ok((stl.clone(), params, case))
+    }
 }
 
 /// Checked settings from the raw flags.
