@@ -127,10 +127,12 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
         Kind::Ascii => {
             let (skip, solid_line) = first_line(&mut reader).map_err(io)?;
             let prefix = b"solid tuft\n".to_vec();
-            let mut patched = Patched::new(reader, prefix, skip, true).map_err(io)?;
-            patched.solids_at_start = usize::from(solid_line);
-            patched.solids = patched.solids_at_start;
-            (patched, StlFormat::Ascii, None, None)
+            (
+                Patched::new(reader, prefix, skip, true, usize::from(solid_line)).map_err(io)?,
+                StlFormat::Ascii,
+                None,
+                None,
+            )
         }
     };
     let mut declared = declared;
@@ -192,9 +194,7 @@ fn binary_source<R: Read + Seek>(
 ) -> std::io::Result<Patched<R>> {
     let mut prefix = vec![0; 80];
     prefix.extend_from_slice(&u32::try_from(n).unwrap_or(u32::MAX).to_le_bytes());
-    let mut patched = Patched::new(reader, prefix, HEADER, false)?;
-    patched.solids_at_start = 1 + gaps.len();
-    patched.solids = patched.solids_at_start;
+    let mut patched = Patched::new(reader, prefix, HEADER, false, 1 + gaps.len())?;
     patched.gaps = gaps;
     Ok(patched)
 }
@@ -280,9 +280,8 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
         .iter()
         .all(|&b| b.is_ascii_graphic() || b.is_ascii_whitespace());
     // Keywords in capitals (`SOLID`, `FACET`) are read too, as some
-    // exporters write them, but only from a head that is text: a binary
-    // header may start "SOLID" too.
-    // A binary header may start "solid" too (many writers put the part's
+    // exporters write them, but only from a head that is text. A binary
+    // header may start "solid" or "SOLID" too (many writers put the part's
     // name there), but its facet count holds bytes no text has.
     let control = head.iter().any(|&b| b < 0x20 && !b.is_ascii_whitespace());
     let text_start = String::from_utf8_lossy(head);
@@ -480,7 +479,14 @@ struct Patched<R> {
 }
 
 impl<R: Read + Seek> Patched<R> {
-    fn new(mut inner: R, prefix: Vec<u8>, skip: u64, lower: bool) -> std::io::Result<Self> {
+    /// `solids`: the solids met before any line is read (see the field).
+    fn new(
+        mut inner: R,
+        prefix: Vec<u8>,
+        skip: u64,
+        lower: bool,
+        solids: usize,
+    ) -> std::io::Result<Self> {
         inner.seek(SeekFrom::Start(skip))?;
         Ok(Self {
             prefix,
@@ -498,8 +504,8 @@ impl<R: Read + Seek> Patched<R> {
             between_facets: true,
             closed: false,
             endsolid_missing: false,
-            solids: 1,
-            solids_at_start: 1,
+            solids,
+            solids_at_start: solids,
         })
     }
 
