@@ -385,8 +385,20 @@ pub fn speed_of(s: &crate::summary::Summary) -> f64 {
     s.flow("speed").unwrap_or(f64::NAN)
 }
 
-fn yaw_of(s: &crate::summary::Summary) -> f64 {
+/// A run's yaw angle, degrees (0 when not recorded).
+pub fn yaw_of(s: &crate::summary::Summary) -> f64 {
     s.flow("yaw").unwrap_or(0.0)
+}
+
+/// Whether two runs are at different speeds (beyond rounding).
+pub fn speeds_differ(a: &crate::summary::Summary, b: &crate::summary::Summary) -> bool {
+    let (va, vb) = (speed_of(a), speed_of(b));
+    (va - vb).abs() > 1e-9 * va.abs().max(1.0)
+}
+
+/// Whether two runs are at different yaw angles (beyond rounding).
+pub fn yaws_differ(a: &crate::summary::Summary, b: &crate::summary::Summary) -> bool {
+    (yaw_of(a) - yaw_of(b)).abs() > 1e-9
 }
 
 /// q_B/q_A when the two runs' dynamic pressures differ by more than a
@@ -620,7 +632,7 @@ fn notes(
     let (sa, sb) = (&a.summary, &b.summary);
     let mut notes = Vec::new();
     let (va, vb) = (speed_of(sa), speed_of(sb));
-    if (va - vb).abs() > 1e-9 * va.abs().max(1.0) {
+    if speeds_differ(sa, sb) {
         notes.push(format!(
             "the runs are at different speeds ({} and {}): loads in kg scale with the square of the \
              speed, so the force and kg differences take A's at B's dynamic pressure (A's times {:.3}); \
@@ -631,7 +643,7 @@ fn notes(
         ));
     }
     let (ya, yb) = (yaw_of(sa), yaw_of(sb));
-    if (ya - yb).abs() > 1e-9 {
+    if yaws_differ(sa, sb) {
         notes.push(format!(
             "the runs are at different yaw angles ({ya} and {yb} degrees)"
         ));

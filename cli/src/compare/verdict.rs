@@ -165,11 +165,9 @@ pub fn drag_verdict_named(
     let floor = a.floor_on_ground() || b.floor_on_ground();
     // Two yaw angles are two tests of one design, not two designs (a
     // review's yaw 0 against 10 had been judged as variants).
-    let yaw = |s: &Summary| s.flow("yaw").unwrap_or(0.0);
-    let yaws = (yaw(a) - yaw(b)).abs() > 1e-9;
+    let yaws = crate::compare::yaws_differ(a, b);
     // Two speeds too (as `tuft collect` ranks within one wind condition).
-    let (va, vb) = (crate::compare::speed_of(a), crate::compare::speed_of(b));
-    let speeds = (va - vb).abs() > 1e-9 * va.abs().max(1.0);
+    let speeds = crate::compare::speeds_differ(a, b);
     let apart = yaws || speeds;
     let resolved = banded && !separation_differs && !plateau && !wheels && !apart && !floor;
     let way = if delta < 0.0 { "lower" } else { "higher" };
@@ -204,8 +202,8 @@ pub fn drag_verdict_named(
             "no winner: the runs are at different yaw angles ({} and {} degrees), two tests of a \
              design rather than two designs (rank drag at one yaw); in this model {nb}'s drag is {} \
              counts against {na}'s",
-            yaw(a),
-            yaw(b),
+            crate::compare::yaw_of(a),
+            crate::compare::yaw_of(b),
             signed(delta, 1)
         )
     } else if speeds {
@@ -213,8 +211,8 @@ pub fn drag_verdict_named(
             "no winner: the runs are at different speeds ({} and {}), two tests of a design rather \
              than two designs (rank drag at one speed); in this model {nb}'s drag is {} counts against \
              {na}'s",
-            crate::output::speed_words(va),
-            crate::output::speed_words(vb),
+            crate::output::speed_words(crate::compare::speed_of(a)),
+            crate::output::speed_words(crate::compare::speed_of(b)),
             signed(delta, 1)
         )
     } else if !above_noise {
