@@ -878,17 +878,12 @@ fn finish(
     })
 }
 
-/// A warning when `geometry.panels` asked for more panels than the run
-/// has: tuft coarsens a surface but never refines it, so an STL with
-/// fewer facets than asked runs on its own facets (a review asked 10,000
-/// of a 3,956-facet STL and got 3,956 without a word). Within 10 % is the
-/// coarsening's own scatter, not a shortfall.
-pub fn unrefined_warning(requested: Option<usize>, panels: usize) -> Option<String> {
-    unrefined_words(requested, panels, "geometry.panels")
-}
-
-/// [`unrefined_warning`] naming the setting that asked, `key`
-/// (`geometry.panels`, or `--panels` to `tuft check`).
+/// A warning when the setting `key` (`geometry.panels`, or `--panels` to
+/// `tuft check`) asked for more panels than the run has: tuft coarsens a
+/// surface but never refines it, so an STL with fewer facets than asked
+/// runs on its own facets (a review asked 10,000 of a 3,956-facet STL and
+/// got 3,956 without a word). Within 10 % is the coarsening's own scatter,
+/// not a shortfall.
 pub fn unrefined_words(requested: Option<usize>, panels: usize, key: &str) -> Option<String> {
     let n = requested?;
     ((panels as f64) < 0.9 * n as f64).then(|| {
@@ -1591,11 +1586,11 @@ mod tests {
         // 6,000 of 6,500 suggested is within the measured convergence.
         assert!(yaw_coarse_warning(6000, 6500, (true, false), 5.0).is_none());
         assert!(
-            unrefined_warning(Some(10_000), 3956)
+            unrefined_words(Some(10_000), 3956, "geometry.panels")
                 .is_some_and(|w| w.contains("so the run uses 3956"))
         );
-        assert!(unrefined_warning(Some(4000), 3960).is_none());
-        assert!(unrefined_warning(None, 3956).is_none());
+        assert!(unrefined_words(Some(4000), 3960, "geometry.panels").is_none());
+        assert!(unrefined_words(None, 3956, "geometry.panels").is_none());
         assert!(coarse_note(2992, 6500, true, false).is_some_and(|n| n.contains("under half")));
         assert!(coarse_note(1200, 6500, true, false).is_none());
         assert!(coarse_note(3956, 6500, true, false).is_none());

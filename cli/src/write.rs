@@ -473,9 +473,10 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     // A built-in shape is generated at the count asked (half of it on a
     // half model); only an STL can hold fewer facets than asked.
     if matches!(case.source, crate::case::GeometrySource::Stl { .. }) {
-        warnings.extend(crate::pipeline::unrefined_warning(
+        warnings.extend(crate::pipeline::unrefined_words(
             case.file.geometry.panels,
             mesh.len(),
+            "geometry.panels",
         ));
     }
     let mut s = Summary {

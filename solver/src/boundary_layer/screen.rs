@@ -874,11 +874,7 @@ impl<'a> LineContext<'a> {
                 left_wall = Some(m + 1);
                 continue;
             };
-            let next_forced = forced
-                .iter()
-                .copied()
-                .find(|&f| f > m)
-                .unwrap_or(usize::MAX);
+            let next_forced = first_after(forced, m);
             let ends = self.clear_end(trace, forced, m);
             let clear = ends.map_or(end, |k| arc[k]);
             let normal = self.mesh.panels[p[m] as usize].normal;
@@ -925,11 +921,7 @@ impl<'a> LineContext<'a> {
     /// sorted): the surface behind `m` is clear up to there (`None`: to
     /// the line's end).
     fn clear_end(&self, trace: &Trace, forced: &[usize], m: usize) -> Option<usize> {
-        let next_forced = forced
-            .iter()
-            .copied()
-            .find(|&f| f > m)
-            .unwrap_or(usize::MAX);
+        let next_forced = first_after(forced, m);
         (m + 1..trace.panels.len())
             .find(|&k| k >= next_forced || self.faces_downstream(trace.panels[k] as usize))
     }
@@ -1405,6 +1397,16 @@ fn interpolate_run(samples: &mut [LineSample], first: usize, end: usize) {
             (None, None) => sample.speed,
         };
     }
+}
+
+/// The first of the sorted segment indices `forced` after `m`
+/// (`usize::MAX` when none is).
+fn first_after(forced: &[usize], m: usize) -> usize {
+    forced
+        .iter()
+        .copied()
+        .find(|&f| f > m)
+        .unwrap_or(usize::MAX)
 }
 
 /// Cumulative arc length at each point of a polyline.
