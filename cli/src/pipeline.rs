@@ -428,7 +428,7 @@ pub fn check_physical(
     estimate: &loads::Loads,
     attached: &loads::Loads,
     rim_share: f64,
-    velocity: &[Vector3<f64>],
+    (mesh, velocity): (&PanelMesh, &[Vector3<f64>]),
     speed: f64,
 ) -> Result<()> {
     let friction = estimate.friction.coefficients.drag;
@@ -439,16 +439,24 @@ pub fn check_physical(
     if friction >= 0.0 && drag >= floor && attached_drag >= attached_floor {
         return Ok(());
     }
-    let fastest = velocity.iter().map(|v| v.norm()).fold(0.0, f64::max) / speed;
+    let (fastest, at) = velocity
+        .iter()
+        .zip(&mesh.panels)
+        .map(|(v, p)| (v.norm() / speed, p.centroid))
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .unwrap_or((0.0, Point3::origin()));
     bail!(
         "the flow solution is not physical (friction drag {:.0} counts, drag {:.0} counts, attached-flow drag \
-         {:.0} counts, fastest surface flow {fastest:.1} times the free stream): the panel mesh is probably \
-         folded or crosses itself (tuft check reports its quality, and another geometry.panels or a repaired \
-         STL may give a sound one), or the body faces the wind back to front (an STL in ISO 8855 vehicle \
-         axes has its nose at +x: set geometry.nose = \"+x\")",
+         {:.0} counts, fastest surface flow {fastest:.1} times the free stream, near x {:.3}, y {:.3}, z {:.3} \
+         m): the panel mesh is probably folded or crosses itself there (tuft check reports its quality, and \
+         another geometry.panels or a repaired STL may give a sound one), or the body faces the wind back to \
+         front (an STL in ISO 8855 vehicle axes has its nose at +x: set geometry.nose = \"+x\")",
         1000.0 * friction,
         1000.0 * drag,
-        1000.0 * attached_drag
+        1000.0 * attached_drag,
+        at.x,
+        at.y,
+        at.z
     )
 }
 
@@ -727,7 +735,7 @@ fn finish(
         &estimate,
         &attached,
         rim_share,
-        &potential.velocity,
+        (mesh, &potential.velocity),
         flow.speed,
     )?;
     // The loop's summary needs its attached pass; done here so that pass
@@ -1323,19 +1331,23 @@ mod tests {
         };
         let v = vec![Vector3::new(10.0, 0.0, 0.0); mesh.len()];
         let calm = loads_with(0.0, 0.0);
-        assert!(check_physical(&loads_with(0.0, 1e-3), &calm, 0.0, &v, 10.0).is_ok());
-        let e = check_physical(&loads_with(0.0, -1e-3), &calm, 0.0, &v, 10.0).unwrap_err();
+        assert!(check_physical(&loads_with(0.0, 1e-3), &calm, 0.0, (&mesh, &v), 10.0).is_ok());
+        let e = check_physical(&loads_with(0.0, -1e-3), &calm, 0.0, (&mesh, &v), 10.0).unwrap_err();
         assert!(e.to_string().contains("not physical"), "{e}");
+        assert!(
+            e.to_string().contains("times the free stream, near x "),
+            "{e}"
+        );
         // Cp +0.5 on the rear half, -0.5 on the front: a thrust.
-        assert!(check_physical(&loads_with(0.5, 0.0), &calm, 0.0, &v, 10.0).is_err());
-        assert!(check_physical(&loads_with(0.001, 0.0), &calm, 0.0, &v, 10.0).is_ok());
+        assert!(check_physical(&loads_with(0.5, 0.0), &calm, 0.0, (&mesh, &v), 10.0).is_err());
+        assert!(check_physical(&loads_with(0.001, 0.0), &calm, 0.0, (&mesh, &v), 10.0).is_ok());
         // A sound estimate over an attached flow that pushes the body
         // upstream (d'Alembert: attached potential flow has no drag).
         let e = check_physical(
             &loads_with(0.001, 1e-3),
             &loads_with(0.5, 0.0),
             0.0,
-            &v,
+            (&mesh, &v),
             10.0,
         );
         assert!(e.unwrap_err().to_string().contains("attached-flow drag"));
@@ -1344,8 +1356,8 @@ mod tests {
         // RIM_SUCTION times a share of 1, beyond it for a share of 0.2.
         let attached = loads_with(0.5, 0.0);
         let sound = loads_with(0.001, 1e-3);
-        assert!(check_physical(&sound, &attached, 1.0, &v, 10.0).is_ok());
-        assert!(check_physical(&sound, &attached, 0.2, &v, 10.0).is_err());
+        assert!(check_physical(&sound, &attached, 1.0, (&mesh, &v), 10.0).is_ok());
+        assert!(check_physical(&sound, &attached, 0.2, (&mesh, &v), 10.0).is_err());
     }
 
     /// A largely separated underbody is warned about; the wheeled coupe's

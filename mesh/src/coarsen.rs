@@ -17,8 +17,10 @@
 //! degenerate, and no facet may cross another facet of its own surface
 //! (edge collapses that fold a facet over are refused by the simplifier,
 //! but only against a 75 degree turn per collapse, so folds can build up
-//! over several passes; see [`crate::crossing`]). If a try fails, the target is doubled (up to three
-//! tries) and then the input is kept; the report says so, and
+//! over several passes; see [`crate::crossing`]), and so is a try that
+//! leaves a panel turned over where the input has none. If a try fails,
+//! the next of [`attempts`] is made (near the target, then doubling it)
+//! and after the last the input is kept; the report says so, and
 //! [`crate::prepare`] refuses such a mesh when it is far above its target.
 //! The simplifier works on a copy of the input whose folds (facets
 //! crossing others or turned over against their neighbours, a scan's
@@ -186,6 +188,9 @@ pub fn coarsen_with_params(
     let mut input_crosses = untangled.is_none().then_some(!input_crossing.is_empty());
     report.untangled = untangled.as_ref().map(|(_, u)| u.clone());
     let base = untangled.as_ref().map_or(mesh, |(m, _)| m);
+    // Whether the simplifier's input is free of panels turned over
+    // ([`turned_over`]), found on the first try that needs it.
+    let mut base_clean: Option<bool> = None;
     for (target, regularize) in attempts(p) {
         if target >= mesh.len() {
             break;
@@ -218,6 +223,19 @@ pub fn coarsen_with_params(
                         .is_ok()
                 {
                     coarse = unfolded;
+                }
+                // A panel turned over where the input has none is the
+                // simplifier's, and another target usually has none.
+                let over = turned_over(&coarse)
+                    .filter(|_| *base_clean.get_or_insert_with(|| turned_over(base).is_none()));
+                if let Some(at) = over {
+                    let why = format!(
+                        "a panel faces against all its neighbours near x {:.3}, y {:.3}, z {:.3} m",
+                        at[0], at[1], at[2]
+                    );
+                    report.first_refusal.get_or_insert_with(|| why.clone());
+                    notes.push(format!("a try at {target} panels was refused: {why}"));
+                    continue;
                 }
                 remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
@@ -412,12 +430,47 @@ fn centre(mesh: &TriMesh, t: usize) -> [f64; 3] {
     [m.x, m.y, m.z]
 }
 
-/// Targets and settings tried in turn: the target with and without the
-/// regularizing option, then twice and four times the target.
+/// Targets and settings tried in turn: the target, 5 % under and over it
+/// (a fold or a crossing the
+/// simplifier makes is incidental to where its collapses stop: on a
+/// review's boxy body a panel turned over on the nose's corner at 6,500
+/// panels and none at 6,000), the target without the regularizing option
+/// (whose panels are less even), then twice and four times the target.
 fn attempts(p: &CoarsenParams) -> Vec<(usize, bool)> {
     let t = p.target_panels.max(4);
     let r = p.regularize;
-    vec![(t, r), (t, !r), (2 * t, r), (2 * t, !r), (4 * t, r)]
+    let near = |f: f64| ((t as f64 * f).round() as usize).max(4);
+    vec![
+        (t, r),
+        (near(0.95), r),
+        (near(1.05), r),
+        (t, !r),
+        (2 * t, r),
+        (2 * t, !r),
+        (4 * t, r),
+    ]
+}
+
+/// Where the first facet turned over lies: its normal more than 90
+/// degrees from that of each of its edge neighbours (at least two). A
+/// surface cannot turn back on itself across all three edges of a facet,
+/// so such a facet is a fold; stricter than
+/// [`crate::quality::turned_panels`], which also flags creases. Its
+/// collocation point sits between panels facing the other way, and the
+/// panel method's velocity there and on its neighbours comes out tens of
+/// times the free stream (a review's body: 43 times, on the nose's face).
+fn turned_over(mesh: &TriMesh) -> Option<[f64; 3]> {
+    let owners = EdgeOwners::new(mesh);
+    let unit = |t: usize| unit_normal(points(mesh, mesh.triangles[t]));
+    (0..mesh.len()).find_map(|t| {
+        let n = unit(t)?;
+        let around: Vec<crate::Vector> = directed_edges(mesh.triangles[t])
+            .into_iter()
+            .filter_map(|e| owners.across(e))
+            .filter_map(&unit)
+            .collect();
+        (around.len() >= 2 && around.iter().all(|m| n.dot(m) < 0.0)).then(|| centre(mesh, t))
+    })
 }
 
 /// Lock the vertices of open borders, except those on a mirror plane.
@@ -938,6 +991,37 @@ mod tests {
         let mut input_crosses = None;
         assert!(check_no_new_crossing(&crossed, &crossed, &mut input_crosses).is_ok());
         assert!(check_no_new_crossing(&good, &good, &mut None).is_ok());
+    }
+
+    #[test]
+    fn a_facet_turned_over_against_its_neighbours_is_found() {
+        // A flat hexagon fanned round its centre, all facets facing +z; the
+        // centre pushed out past the edge v0-v1 turns facet (c, v0, v1) over
+        // (its normal -z between two +z neighbours) and no other.
+        let mut v: Vec<Point> = vec![Point::new(0.0, 0.0, 0.0)];
+        v.extend((0..6).map(|k| {
+            let a = std::f64::consts::FRAC_PI_3 * f64::from(k);
+            Point::new(a.cos(), a.sin(), 0.0)
+        }));
+        let tris: Vec<[u32; 3]> = (0..6u32).map(|k| [0, k + 1, (k + 1) % 6 + 1]).collect();
+        let flat = TriMesh::new(v.clone(), tris.clone()).unwrap();
+        assert_eq!(turned_over(&flat), None);
+        // The edge v0-v1 runs from (1, 0) to (0.5, 0.87); its outward
+        // normal points along (0.87, 0.5).
+        v[0] = Point::new(0.9, 0.52, 0.0);
+        let folded = TriMesh::new(v, tris).unwrap();
+        let at = turned_over(&folded).unwrap();
+        let c = centre(&folded, 0);
+        assert_eq!(at, c);
+        // Tries near the target come before doubling it.
+        let tries = attempts(&CoarsenParams {
+            target_panels: 6500,
+            ..CoarsenParams::default()
+        });
+        assert_eq!(
+            &tries[..4],
+            &[(6500, true), (6175, true), (6825, true), (6500, false)]
+        );
     }
 
     #[test]
