@@ -19,7 +19,7 @@
 //! but only against a 75 degree turn per collapse, so folds can build up
 //! over several passes; see [`crate::crossing`]), and so is a try that
 //! leaves a panel turned over where the input has none. If a try fails,
-//! the next of [`attempts`] is made (near the target, then doubling it)
+//! the next of `attempts` is made (near the target, then doubling it)
 //! and after the last the input is kept; the report says so, and
 //! [`crate::prepare`] refuses such a mesh when it is far above its target.
 //! The simplifier works on a copy of the input whose folds (facets
