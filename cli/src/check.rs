@@ -8,7 +8,7 @@
 //! stops a run as unphysical); a problem is returned as an error and
 //! printed as one line `tuft: FILE: problem` (exit 2).
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context;
@@ -49,8 +49,8 @@ pub struct CheckArgs {
     #[arg(long)]
     pub json: bool,
     /// Also write the panels a run would solve on (the modelled half only,
-    /// no mirror images) to this binary STL, in the input's unit, to look
-    /// at over the scan in any viewer.
+    /// no mirror images) to this binary STL, in the input's unit and axes,
+    /// to look at over the scan in any viewer (never over the input itself).
     #[arg(long, value_name = "FILE.stl")]
     pub save_panels: Option<PathBuf>,
 }
@@ -166,9 +166,20 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     if placement.is_err() && args.json {
         return placement.map(|()| ExitCode::SUCCESS);
     }
-    if let (Some(out), true) = (&args.save_panels, placement.is_ok()) {
-        save_panels(out, &panels, params.units)?;
-    }
+    let saved = match (&args.save_panels, placement.is_ok()) {
+        (Some(out), true) => {
+            let inputs = [Some(file.as_path()), is_case.then_some(args.file.as_path())];
+            let axes = (params.axes, report.mirrors.mirrored_half);
+            Some(save_panels(
+                out,
+                &panels,
+                params.units,
+                Some(axes),
+                &inputs,
+            )?)
+        }
+        _ => None,
+    };
 
     if args.json {
         say!("{}", serde_json::to_string_pretty(&report)?);
@@ -186,6 +197,9 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         if let Some(case) = case.as_ref().filter(|_| placement.is_ok()) {
             say_part!("{}", placement_lines(&panels, case));
         }
+        if let Some(line) = saved {
+            say!("{line}");
+        }
     }
     placement?;
     Ok(if report.folded {
@@ -196,15 +210,43 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
 }
 
 /// Write the panels to `out` whole or not at all
-/// ([`crate::outdir::write_whole`]).
+/// ([`crate::outdir::write_whole`]), in `unit` and in the axes of the file
+/// they came from (`axes`: how it was read and whether a left half was
+/// mirrored; `None` for a built-in shape, in tuft's), never over one of
+/// the `inputs` (the STL, the case file: a review's `--save-panels` named
+/// the scan and replaced it with its 1,000 panels). The line saying where
+/// they went.
 fn save_panels(
-    out: &std::path::Path,
+    out: &Path,
     panels: &tuft_mesh::PanelMesh,
     unit: LengthUnit,
-) -> anyhow::Result<()> {
+    axes: Option<(tuft_mesh::FileAxes, bool)>,
+    inputs: &[Option<&Path>],
+) -> anyhow::Result<String> {
+    let same = |a: &Path| match (std::fs::canonicalize(a), std::fs::canonicalize(out)) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    };
+    if let Some(input) = inputs.iter().flatten().find(|p| same(p)) {
+        anyhow::bail!(
+            "--save-panels {}: that is the file being checked ({}); name another file for the panels",
+            out.display(),
+            input.display()
+        );
+    }
     let mut bytes = Vec::new();
-    tuft_mesh::export::write_panels_stl(&mut bytes, panels, unit)?;
-    crate::outdir::write_whole(out, &bytes)
+    tuft_mesh::export::write_panels_stl(&mut bytes, panels, unit, axes)?;
+    crate::outdir::write_whole(out, &bytes)?;
+    let frame = match axes {
+        Some(_) => "in the STL's own axes, to lay over it",
+        None => "in tuft's axes",
+    };
+    Ok(format!(
+        "saved      {} panels to {} ({}, {frame}; the modelled half only on a half model)",
+        panels.len(),
+        out.display(),
+        unit.name()
+    ))
 }
 
 /// Where the case puts the axles and its named regions on the body, in
@@ -232,9 +274,16 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
 /// review had no way to get a 30-degree coupe out but to run it).
 fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow::Result<ExitCode> {
     let geo = crate::geometry::load(case).with_context(|| args.file.display().to_string())?;
-    if let Some(out) = &args.save_panels {
-        save_panels(out, &geo.mesh, LengthUnit::M)?;
-    }
+    let saved = match &args.save_panels {
+        Some(out) => Some(save_panels(
+            out,
+            &geo.mesh,
+            LengthUnit::M,
+            None,
+            &[Some(args.file.as_path())],
+        )?),
+        None => None,
+    };
     if args.json {
         say!("{}", serde_json::to_string_pretty(&geo.report)?);
     } else {
@@ -247,6 +296,9 @@ fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow
             summary(&format!("built-in shape \"{name}\""), &geo.report, false)
         );
         say_part!("{}", placement_lines(&geo.mesh, case));
+        if let Some(line) = saved {
+            say!("{line}");
+        }
     }
     Ok(ExitCode::SUCCESS)
 }

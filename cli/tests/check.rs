@@ -291,6 +291,59 @@ fn saved_panels_read_back_as_the_reported_mesh() {
     assert!((hi.x - lo.x - 2000.0).abs() < 40.0, "{lo:?} {hi:?}");
 }
 
+/// `--save-panels` writes in the file's own axes, so the panels lie over
+/// the scan (a review's nose-at-+x file came back at x -4.5..0 m), says
+/// where it wrote, and never writes over the STL or the case file it
+/// checks (a review's named the scan and replaced it).
+#[test]
+fn saved_panels_lie_over_the_file_and_never_replace_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("pointy.stl");
+    // An ellipsoid 2 m long, the nose at +x (ISO 8855) with x 0..2000 mm.
+    let mut body = generate::icosphere(1.0, 4);
+    body.map_vertices(|p| tuft_mesh::Point::new(1.0 + p.x, 0.4 * p.y, 0.5 + 0.3 * p.z));
+    write_binary_stl(&path, &body, 1000.0);
+    let saved = dir.path().join("panels.stl");
+    let out = check(&[
+        path.to_str().unwrap(),
+        "--nose",
+        "+x",
+        "--panels",
+        "1000",
+        "--save-panels",
+        saved.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("saved      ") && stdout.contains("in the STL's own axes"),
+        "{stdout}"
+    );
+    let (mesh, _) = tuft_mesh::import::read_stl(&saved).unwrap();
+    let (lo, hi) = mesh.bounds().unwrap();
+    assert!(
+        lo.x > -10.0 && (hi.x - 2000.0).abs() < 30.0,
+        "{lo:?} {hi:?}"
+    );
+    // Outward, as the file: positive volume.
+    assert!(mesh.signed_volume() > 0.0);
+    let before = std::fs::read(&path).unwrap();
+    let out = check(&[
+        path.to_str().unwrap(),
+        "--panels",
+        "500",
+        "--save-panels",
+        path.to_str().unwrap(),
+    ]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("that is the file being checked"),
+        "{stderr}"
+    );
+    assert_eq!(std::fs::read(&path).unwrap(), before);
+}
+
 /// A case with a built-in shape is checked as the run generates it, and
 /// its panels saved in metres: a variant to take into a modeller.
 #[test]

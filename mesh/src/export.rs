@@ -3,7 +3,7 @@
 
 use std::io::Write;
 
-use crate::{LengthUnit, PanelMesh, TriMesh};
+use crate::{FileAxes, LengthUnit, PanelMesh, TriMesh};
 
 /// The facets of `mesh` (metres) as STL triangles in `unit`, with unit
 /// normals from the vertex order.
@@ -28,7 +28,8 @@ pub fn stl_facets(mesh: &TriMesh, unit: LengthUnit) -> Vec<stl_io::Triangle> {
 }
 
 /// Write the real panels of `mesh` (no mirror images) to `out` as a binary
-/// STL in `unit`.
+/// STL in `unit`, in the axes of a file read with `axes` (`mirrored`: the
+/// file held a left half, [`FileAxes::apply`]); `None` keeps tuft's.
 ///
 /// # Errors
 /// The writer's I/O errors.
@@ -36,10 +37,14 @@ pub fn write_panels_stl(
     out: &mut impl Write,
     mesh: &PanelMesh,
     unit: LengthUnit,
+    axes: Option<(FileAxes, bool)>,
 ) -> std::io::Result<()> {
-    let tri = TriMesh {
+    let mut tri = TriMesh {
         vertices: mesh.vertices.clone(),
         triangles: mesh.triangles.clone(),
     };
+    if let Some((axes, mirrored)) = axes {
+        axes.restore(&mut tri, mirrored);
+    }
     stl_io::write_stl(out, stl_facets(&tri, unit).iter())
 }

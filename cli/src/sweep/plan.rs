@@ -585,7 +585,7 @@ mod tests {
             wanted.push(tuft_mesh::quality::suggested_panels(m.area(), 8.0));
             let panels = PanelMesh::new(m, Mirrors::none()).unwrap();
             let mut f = std::fs::File::create(dir.path().join(name)).unwrap();
-            tuft_mesh::export::write_panels_stl(&mut f, &panels, LengthUnit::M).unwrap();
+            tuft_mesh::export::write_panels_stl(&mut f, &panels, LengthUnit::M, None).unwrap();
         }
         assert_ne!(wanted[0], wanted[1], "the test needs two defaults");
         assert!(wanted[0] < 5120 && wanted[2] > 320, "{wanted:?}");

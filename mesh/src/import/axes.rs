@@ -71,6 +71,39 @@ impl FileAxes {
         }
         mirrored
     }
+
+    /// Undo [`FileAxes::apply`]: turn `mesh` from tuft's axes back into
+    /// the file's, `mirrored` as `apply` returned (a left half is put back
+    /// on its own side, its facets turned round again), so that panels
+    /// written out lie over the file they came from.
+    pub fn restore(&self, mesh: &mut TriMesh, mirrored: bool) {
+        if self.is_identity() && !mirrored {
+            return;
+        }
+        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
+        let swapped = if self.y_up { -1.0 } else { 1.0 };
+        let rotation_sign = along * swapped;
+        let side_sign = if mirrored {
+            -rotation_sign
+        } else {
+            rotation_sign
+        };
+        let y_up = self.y_up;
+        mesh.map_vertices(|p| {
+            // Each sign is its own inverse.
+            let (x, side, up) = (along * p.x, side_sign * p.y, p.z);
+            if y_up {
+                Point::new(x, up, side)
+            } else {
+                Point::new(x, side, up)
+            }
+        });
+        if mirrored {
+            for t in &mut mesh.triangles {
+                t.swap(1, 2);
+            }
+        }
+    }
 }
 
 #[cfg(test)]
@@ -89,6 +122,24 @@ mod tests {
         .map(|p| p + offset.coords)
         .to_vec();
         TriMesh::new(v, vec![[0, 2, 1], [0, 1, 3], [0, 3, 2], [1, 2, 3]]).unwrap()
+    }
+
+    #[test]
+    fn restore_puts_every_setting_back_on_the_file() {
+        for offset in [Point::new(2.0, 3.0, 4.0), Point::new(2.0, -3.0, -4.0)] {
+            let body = tetra(offset);
+            for (nose_plus_x, y_up) in [(false, false), (true, false), (false, true), (true, true)]
+            {
+                for half in [false, true] {
+                    let axes = FileAxes { nose_plus_x, y_up };
+                    let mut m = body.clone();
+                    let mirrored = axes.apply(&mut m, half);
+                    axes.restore(&mut m, mirrored);
+                    assert_eq!(m.vertices, body.vertices, "{axes:?} half {half}");
+                    assert_eq!(m.triangles, body.triangles, "{axes:?} half {half}");
+                }
+            }
+        }
     }
 
     #[test]
