@@ -259,6 +259,16 @@ pub fn region_changes(
 
 /// `tuft compare`.
 pub fn run(args: &CompareArgs) -> Result<ExitCode> {
+    // One folder named twice compares a run with itself: every difference
+    // zero, which reads as "no change" rather than as a slip.
+    if let (Ok(pa), Ok(pb)) = (args.a.canonicalize(), args.b.canonicalize()) {
+        anyhow::ensure!(
+            pa != pb,
+            "{} and {} are the same result folder: name two runs to compare",
+            args.a.display(),
+            args.b.display()
+        );
+    }
     let a = ResultFolder::read(&args.a)?;
     let b = ResultFolder::read(&args.b)?;
     let out = args.out.clone().unwrap_or_else(|| default_out(&a, &b));
@@ -1051,10 +1061,15 @@ pub fn separation_change_words(c: &Comparison) -> String {
 /// One region's change in words, after its name.
 pub fn region_text(r: &RegionChange) -> String {
     format!(
-        "A {}, B {}: {} points",
+        "A {}, B {}: {} {}",
         r.words[0],
         r.words[1],
-        crate::output::signed(r.delta_points, 0)
+        crate::output::signed(r.delta_points, 0),
+        if r.delta_points.abs().round() == 1.0 {
+            "point"
+        } else {
+            "points"
+        }
     )
 }
 

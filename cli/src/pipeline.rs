@@ -191,8 +191,8 @@ pub fn compute(
     let note = solver_note(&potential.stats);
     let note = match &wake_loop {
         Some(r) => format!(
-            "{note}; separated-flow loop: {} passes, {}",
-            r.passes,
+            "{note}; separated-flow loop: {}, {}",
+            crate::output::plural(r.passes, "pass", "passes"),
             if r.diverged {
                 "diverged"
             } else if r.converged {

@@ -162,15 +162,18 @@ fn print_summary(out: &Path, s: &Summary) {
     let [total, front, rear] = s.lift_kg.axle_words();
     let floor = crate::write::underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
     if s.axle_split_shown() {
-        say!("  lift{speed}: {total} kg (front {front}, rear {rear}){floor}");
+        say!(
+            "  lift{speed}: {total} kg (front {front}, rear {rear}; negative is downforce){floor}"
+        );
     } else {
         say!(
-            "  lift{speed}: {total} kg (not split between axles: free air, no axles given){floor}"
+            "  lift{speed}: {total} kg (not split between axles: free air, no axles given; negative is \
+             downforce){floor}"
         );
     }
     say!(
-        "  separated {:.1} % of the surface",
-        100.0 * s.separation.fraction
+        "  separated {} % of the surface",
+        crate::output::fixed(100.0 * s.separation.fraction, 1)
     );
     // The attached first pass's plateau figures are in the report and
     // summary.json, not here, where they were quoted as a second estimate.
@@ -184,8 +187,8 @@ fn print_summary(out: &Path, s: &Summary) {
             .base_cp_loop
             .map_or_else(String::new, |v| format!(", dead water at base C_p {v:.2}"));
         say!(
-            "  separated-flow loop: {} passes, {state}{base} (the drag estimate above is its last pass)",
-            w.passes,
+            "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",
+            crate::output::plural(w.passes, "pass", "passes"),
         );
     }
     if s.rim_shown() {

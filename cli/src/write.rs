@@ -59,8 +59,8 @@ impl Fields {
             dead_water_cp: c.wakes.as_ref().and_then(|w| w.dead_water_cp),
             separation_note: c.wakes.as_ref().filter(|w| w.passes > 1).map(|w| {
                 format!(
-                    "Separated regions from the separated-flow loop ({} passes, {}).",
-                    w.passes,
+                    "Separated regions from the separated-flow loop ({}, {}).",
+                    crate::output::plural(w.passes, "pass", "passes"),
                     if w.converged {
                         "converged"
                     } else {

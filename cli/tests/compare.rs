@@ -82,15 +82,39 @@ fn coupe(slope: f64) -> String {
     )
 }
 
+/// Copy the folder `from` to `to`, subfolders included.
+fn copy_dir(from: &Path, to: &Path) {
+    std::fs::create_dir_all(to).unwrap();
+    for entry in std::fs::read_dir(from).unwrap() {
+        let entry = entry.unwrap();
+        let target = to.join(entry.file_name());
+        if entry.file_type().unwrap().is_dir() {
+            copy_dir(&entry.path(), &target);
+        } else {
+            std::fs::copy(entry.path(), target).unwrap();
+        }
+    }
+}
+
 #[test]
 fn a_run_against_itself_and_two_rear_window_slopes() {
     let dir = tempfile::tempdir().unwrap();
     let a = run_case(dir.path(), "c22", &coupe(22.0));
     let b = run_case(dir.path(), "c38", &coupe(38.0));
 
-    // Against itself every difference is exactly zero (the mapping of a
-    // panel set onto itself is the identity) and no winner is named.
-    let same = compare(&a, &a, &dir.path().join("self"));
+    // One folder named twice is refused as a slip.
+    let twice = Command::new(TUFT)
+        .args(["compare", &a, &a, "--quiet"])
+        .output()
+        .unwrap();
+    assert_eq!(twice.status.code(), Some(2), "{twice:?}");
+    assert!(String::from_utf8_lossy(&twice.stderr).contains("are the same result folder"));
+    // Against a copy of itself every difference is exactly zero (the
+    // mapping of a panel set onto itself is the identity) and no winner is
+    // named.
+    let copy = dir.path().join("c22-copy");
+    copy_dir(Path::new(&a), &copy);
+    let same = compare(&a, copy.to_str().unwrap(), &dir.path().join("self"));
     for (k, v) in same["deltas"].as_object().unwrap() {
         // Beside the differences: the noise a lift difference is set against.
         if k != "lift_noise_kg" {

@@ -118,11 +118,15 @@ impl QualityReport {
         let (mut keep, mut notes) = (Vec::new(), Vec::new());
         for (text, grading) in self.warnings.drain(..).zip(self.grading.drain(..)) {
             match grading {
-                Some(count) if (count as f64) < share * n => notes.push(format!(
+                // The why once, on the first such note.
+                Some(count) if (count as f64) < share * n && notes.is_empty() => notes.push(format!(
                     "{text}; this comes from the coarsening's grading (finer where the surface curves), \
                      and the answers move little with it (on a review's hatchback, drag within 0.003 and \
                      lift within about 2 kg from 4,000 to 8,000 panels)"
                 )),
+                Some(count) if (count as f64) < share * n => {
+                    notes.push(format!("{text}; this too comes from the coarsening's grading"));
+                }
                 g => keep.push((text, g)),
             }
         }

@@ -371,6 +371,16 @@ fn rounded(v: f64, places: usize) -> f64 {
     (v * scale).round() / scale + 0.0
 }
 
+/// `v` to `places` decimals, a rounded zero as "0.0", never "-0.0".
+pub fn fixed(v: f64, places: usize) -> String {
+    format!("{:.places$}", rounded(v, places))
+}
+
+/// `n` and its noun: "1 pass", "4 passes".
+pub fn plural(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
 /// `v` to `places` decimals with its sign always written ("+3.0",
 /// "-0.4"), a rounded zero as "+0".
 pub fn signed(v: f64, places: usize) -> String {
