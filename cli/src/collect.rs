@@ -888,7 +888,7 @@ pub fn csv(c: &Collected) -> String {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
             s,
-            ",region:{g}:separated_percent,region:{g}:verdict,region:{g}:band_low_percent,region:{g}:band_high_percent"
+            ",region:{g}:separated_percent,region:{g}:verdict,region:{g}:band_low_percent,region:{g}:band_high_percent,region:{g}:standing"
         );
     }
     s.push('\n');
@@ -959,14 +959,15 @@ fn csv_row(
             Some(g) => {
                 let _ = write!(
                     s,
-                    ",{},{},{},{}",
+                    ",{},{},{},{},{}",
                     100.0 * g.separated_fraction,
                     g.verdict,
                     100.0 * g.separated_band[0],
-                    100.0 * g.separated_band[1]
+                    100.0 * g.separated_band[1],
+                    g.firmness()
                 );
             }
-            None => s.push_str(",,,,"),
+            None => s.push_str(",,,,,"),
         }
     }
     s.push('\n');
@@ -1973,20 +1974,21 @@ mod tests {
             lines[0].ends_with(
                 ",warnings,wheels_on,region:rear window:separated_percent,region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
-                 region:boot deck:separated_percent,region:boot deck:verdict,\
-                 region:boot deck:band_low_percent,region:boot deck:band_high_percent"
+                 region:rear window:standing,region:boot deck:separated_percent,\
+                 region:boot deck:verdict,region:boot deck:band_low_percent,\
+                 region:boot deck:band_high_percent,region:boot deck:standing"
             ),
             "{}",
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,3,attached,3,3,71,separated,71,71"),
+            lines[1].ends_with(",0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,,,,"
+                ",0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]

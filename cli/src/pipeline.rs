@@ -1248,6 +1248,7 @@ fn drag_band(
         {
             let f = v.separated_fraction;
             r.separated_band = [r.separated_band[0].min(f), r.separated_band[1].max(f)];
+            r.standing = r.firmness().into();
         }
         let friction = friction_vectors(&potential.velocity, &layer, air.speed);
         let cp = separated_cp(mesh, potential, &layer, &friction, dead_water.is_some());

@@ -76,6 +76,12 @@ pub struct RegionResult {
     /// its slope below the horizontal, degrees (see [`rear_slope`]).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub slope_deg: Option<f64>,
+    /// How firm the verdict is ([`RegionResult::firmness`]): "firm",
+    /// "provisional" (within [`VERDICT_NOISE`] of a regime line) or
+    /// "uncertain" (the sensitivity runs' range crosses a line), for a
+    /// script reading the summary.
+    #[serde(default)]
+    pub standing: String,
 }
 
 impl RegionResult {
@@ -92,6 +98,7 @@ impl RegionResult {
             verdict: verdict(fraction).into(),
             separated_band: [fraction, fraction],
             slope_deg,
+            standing: String::new(),
         }
     }
 
@@ -105,6 +112,21 @@ impl RegionResult {
         (l != h).then(|| (l, h, verdict(lo) != verdict(hi)))
     }
 
+    /// How firm the verdict is: "uncertain" when the sensitivity runs'
+    /// range reaches another verdict (the words say it rests on the
+    /// model), else "provisional" within [`VERDICT_NOISE`] of a regime
+    /// line, else "firm".
+    pub fn firmness(&self) -> &'static str {
+        let [lo, hi] = self.separated_band;
+        if verdict(lo) != verdict(hi) {
+            "uncertain"
+        } else if self.near_line().is_some() {
+            "provisional"
+        } else {
+            "firm"
+        }
+    }
+
     /// The regime line the share lies within [`VERDICT_NOISE`] of, if any.
     pub fn near_line(&self) -> Option<f64> {
         VERDICT_LINES
@@ -114,14 +136,15 @@ impl RegionResult {
 
     /// Share and verdict in words, with the sensitivity runs' range when
     /// it reaches another verdict: "attached (0 % separated; 0 to 35 %
-    /// across the sensitivity runs, so the verdict rests on the model)",
+    /// across the sensitivity runs: verdict uncertain, it rests on the
+    /// model)",
     /// or with the line it lies near ("partly separated (24 % separated,
     /// within 5 points of the 20 % line, which a panel count 10 % off can
     /// cross: a provisional verdict)").
     pub fn words(&self) -> String {
         let range = match self.band_words() {
             Some((lo, hi, true)) => format!(
-                "; {lo} to {hi} % across the sensitivity runs, so the verdict rests on the model"
+                "; {lo} to {hi} % across the sensitivity runs: verdict uncertain, it rests on the model"
             ),
             Some((lo, hi, false)) => format!("; {lo} to {hi} % across the sensitivity runs"),
             None => String::new(),
@@ -329,7 +352,12 @@ pub fn evaluate(
                 verdict: verdict(fraction).into(),
                 separated_band: [fraction, fraction],
                 slope_deg: rear_slope(&mut slopes, area),
+                standing: String::new(),
             }
+        })
+        .map(|mut r| {
+            r.standing = r.firmness().into();
+            r
         })
         .collect()
 }
@@ -397,7 +425,7 @@ mod tests {
         };
         assert_eq!(
             result(0.0, [0.0, 0.34]).words(),
-            "attached (0 % separated; 0 to 34 % across the sensitivity runs, so the verdict rests on the model)"
+            "attached (0 % separated; 0 to 34 % across the sensitivity runs: verdict uncertain, it rests on the model)"
         );
         assert_eq!(
             result(0.31, [0.31, 0.41]).words(),
@@ -407,6 +435,10 @@ mod tests {
             result(0.8, [0.8, 0.8]).words(),
             "separated (80 % separated)"
         );
+        // The same three in one word for a script (summary.json, sweep.csv).
+        assert_eq!(result(0.0, [0.0, 0.34]).firmness(), "uncertain");
+        assert_eq!(result(0.24, [0.24, 0.44]).firmness(), "provisional");
+        assert_eq!(result(0.31, [0.31, 0.41]).firmness(), "firm");
         // Within 5 points of a line: provisional (a review's boot deck read
         // 24 % at 4,000 panels and 17 % at 4,300).
         assert_eq!(
