@@ -182,6 +182,7 @@ fn notes(c: &Collected) -> Vec<String> {
             ]
             .into_iter()
             .flatten()
+            .chain(region_cover_spread(rows))
             .map(|text| format!("{prefix}{text}")),
         );
     }
@@ -1281,6 +1282,49 @@ fn slope_spread(c: &[Row]) -> Option<String> {
     })
 }
 
+/// A named region whose box covers other surface in some variants than in
+/// others, as `tuft compare` notes it for two runs
+/// ([`crate::compare::REGION_AREA_SHIFT`]: its area more than 30 % apart
+/// between the smallest and the largest, or a slope in some variants
+/// only): its share then compares different parts of the body (a review's
+/// boot-height sweep moved the foot of the rear window into the "boot
+/// deck" box, which compare noted and collect had not).
+fn region_cover_spread(c: &[Row]) -> Vec<String> {
+    region_names(c)
+        .iter()
+        .filter_map(|name| {
+            let found: Vec<(&str, &RegionResult)> = c
+                .iter()
+                .filter_map(|r| Some((r.name.as_str(), region(r, name)?)))
+                .collect();
+            let by_area = |a: &&(&str, &RegionResult), b: &&(&str, &RegionResult)| {
+                a.1.area_m2.total_cmp(&b.1.area_m2)
+            };
+            let (small, large) = (found.iter().min_by(by_area)?, found.iter().max_by(by_area)?);
+            let sloped = found.iter().filter(|(_, g)| g.slope_deg.is_some()).count();
+            let area = large.1.area_m2 > 0.0
+                && large.1.area_m2 - small.1.area_m2 > crate::compare::REGION_AREA_SHIFT * large.1.area_m2;
+            let slopes = sloped > 0 && sloped < found.len();
+            (area || slopes).then(|| {
+                format!(
+                    "The region \"{name}\" covers other surface in some variants than in others (area {:.2} \
+                     m^2 in {} against {:.2} m^2 in {}{}): its box stays where it is while the shape changes \
+                     under it, so its share compares different parts of the body; move the box with the part.",
+                    small.1.area_m2,
+                    small.0,
+                    large.1.area_m2,
+                    large.0,
+                    if slopes {
+                        format!("; a rear slope in {sloped} of {} variants", found.len())
+                    } else {
+                        String::new()
+                    }
+                )
+            })
+        })
+        .collect()
+}
+
 /// The same for the underbody's separated share and the lift ranking.
 fn underbody_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = spread(
@@ -1949,6 +1993,31 @@ mod tests {
             "{line}"
         );
         assert!(shown(&c, &[]).contains("<strong>The drag ranking is not converged"));
+    }
+
+    /// A region box that covers other surface across the variants is
+    /// noted, as compare notes it for two runs (a review's boot-height
+    /// sweep: compare said so, collect did not).
+    #[test]
+    fn a_region_box_over_other_surface_is_noted() {
+        let mut c = sweep(&[10.0, 10.0]);
+        let deck = |area: f64, slope: Option<f64>| RegionResult {
+            area_m2: area,
+            ..RegionResult::example("boot deck", 0.7, slope)
+        };
+        c.variants[0].regions = vec![deck(0.97, None)];
+        c.variants[1].regions = vec![deck(0.60, Some(18.0))];
+        let n = region_cover_spread(&c.variants);
+        assert_eq!(n.len(), 1, "{n:?}");
+        assert!(
+            n[0].starts_with("The region \"boot deck\" covers other surface")
+                && n[0].contains("0.60 m^2 in v1 against 0.97 m^2 in v0")
+                && n[0].contains("a rear slope in 1 of 2 variants"),
+            "{}",
+            n[0]
+        );
+        c.variants[1].regions = vec![deck(0.90, None)];
+        assert!(region_cover_spread(&c.variants).is_empty());
     }
 
     /// Region columns in sweep.csv and sweep.html, with empty cells for a
