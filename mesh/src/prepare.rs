@@ -468,6 +468,9 @@ pub fn prepare_mesh(
                 q.add_warning(open);
             }
         }
+        if let Some(far) = crate::quality::detached_part_warning(&panels) {
+            q.add_warning(far);
+        }
         q
     };
     let report = PrepareReport {
