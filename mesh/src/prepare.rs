@@ -287,6 +287,36 @@ fn read_notes(r: &StlReport) -> Vec<String> {
 /// Prepare a mesh already in memory (in `params.units`).
 ///
 /// # Errors
+/// Height over width beyond which a body is taller than any car or van
+/// stands (a high-roof van is about 1.35 times as tall as wide, a car
+/// 0.6 to 0.9; common practice): a file read with the wrong up axis lies
+/// on its side, 1.6 times as tall as wide for the shipped coupe.
+pub const UPRIGHT_RATIO: f64 = 1.4;
+
+/// A warning when the body, as read, is more than [`UPRIGHT_RATIO`] times
+/// as tall as it is wide (a half model's width doubled): a car exported
+/// with y up and read with z up runs lying on its side, and a review's did
+/// with no word about it.
+fn upright_warning(lo: crate::Point, hi: crate::Point, params: &PrepareParams) -> Option<String> {
+    let height = hi.z - lo.z;
+    let width = if params.mirrors.symmetry {
+        2.0 * hi.y.max(-lo.y)
+    } else {
+        hi.y - lo.y
+    };
+    (width > 0.0 && height > UPRIGHT_RATIO * width).then(|| {
+        let fix = if params.axes.y_up {
+            "it was read with y up: if the file has z up, drop geometry.up (tuft check: leave out --up)"
+        } else {
+            "if the file has y up, set geometry.up = \"y\" (tuft check: --up y)"
+        };
+        format!(
+            "the body stands {height:.2} m tall and {width:.2} m wide, taller than any car or van \
+             (more than {UPRIGHT_RATIO} times its width): {fix}"
+        )
+    })
+}
+
 /// As [`prepare`], less the reading errors.
 pub fn prepare_mesh(
     mut mesh: TriMesh,
@@ -470,6 +500,9 @@ pub fn prepare_mesh(
         }
         if let Some(far) = crate::quality::detached_part_warning(&panels) {
             q.add_warning(far);
+        }
+        if let Some(w) = upright_warning(lo, hi, params) {
+            q.add_warning(w);
         }
         q
     };
@@ -747,6 +780,43 @@ fn check_mirror_sides(mesh: &TriMesh, params: &PrepareParams) -> Result<(), Mesh
 mod tests {
     use super::*;
     use crate::coarsen::UntangleReport;
+
+    /// A car read with the wrong up axis stands taller than wide; a car, a
+    /// high-roof van and a half model (its width doubled) do not.
+    #[test]
+    fn a_body_on_its_side_is_warned_about() {
+        let body = |w: f64, h: f64| (Point::new(0.0, -w / 2.0, 0.0), Point::new(4.5, w / 2.0, h));
+        let plain = PrepareParams::default();
+        let (lo, hi) = body(1.18, 1.85);
+        let w = upright_warning(lo, hi, &plain).unwrap();
+        assert!(w.contains("set geometry.up = \"y\""), "{w}");
+        let (lo, hi) = body(1.85, 1.18);
+        assert!(upright_warning(lo, hi, &plain).is_none());
+        let (lo, hi) = body(2.0, 2.7);
+        assert!(upright_warning(lo, hi, &plain).is_none());
+        let half = PrepareParams {
+            mirrors: Mirrors {
+                symmetry: true,
+                ..Mirrors::none()
+            },
+            ..PrepareParams::default()
+        };
+        let (lo, hi) = (Point::new(0.0, 0.0, 0.0), Point::new(4.5, 0.93, 1.2));
+        assert!(upright_warning(lo, hi, &half).is_none());
+        let y_up = PrepareParams {
+            axes: crate::FileAxes {
+                nose_plus_x: false,
+                y_up: true,
+            },
+            ..PrepareParams::default()
+        };
+        let (lo, hi) = body(1.18, 1.85);
+        assert!(
+            upright_warning(lo, hi, &y_up)
+                .unwrap()
+                .contains("drop geometry.up")
+        );
+    }
 
     /// A facet a few millimetres off the symmetry plane facing it counts;
     /// one facing away, or far from the plane, does not.
