@@ -139,6 +139,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
     report.quality.notes.extend(note);
+    // As the run warns: a floor standing on the ground.
+    if let Some(w) = crate::pipeline::floor_on_ground_warning(&report) {
+        report.quality.add_warning(w);
+    }
     // As the run warns: more panels asked than the STL has facets.
     let asked = if args.panels.is_some() || !is_case {
         "--panels"

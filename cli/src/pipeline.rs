@@ -967,24 +967,32 @@ pub fn side_difference_warning(
     })
 }
 
+/// The part of [`ground_contact_warning`] that `tuft check` gives too:
+/// more contact than tyres make, the floor itself meets the ground (a
+/// review's ground raised 10 mm into the demo coupe's floor: 2.75 m^2,
+/// against 0.19 for four wheels).
+pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
+    let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
+    let plan = floor_contact(w.contact_area, report.bounds)?;
+    Some(format!(
+        "the body meets the ground over {:.2} m^2, {:.0} % of its plan area, far more than tyres \
+         make: its floor lies on or below the ground plane, which the wrap cut off there, so the \
+         body is not the one drawn; the ground is probably set too high for this body (ground.z, \
+         or a ride height too small)",
+        w.contact_area,
+        100.0 * w.contact_area / plan
+    ))
+}
+
+/// A warning for a body the wrap found standing on the ground (tyres,
 /// or an underside within the wrap's contact distance): the wrap gives the
 /// panel method one surface to solve on, but a wheel's wake, its rotation
 /// and the flow through its arch are outside the model ([`WHEELS_DRAG`]),
 /// and a gap to the ground finer than the panels is closed.
 pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
     let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
-    // More contact than tyres make: the floor itself meets the ground (a
-    // review's ground raised 10 mm into the demo coupe's floor: 2.75 m^2,
-    // against 0.19 for four wheels).
-    if let Some(plan) = floor_contact(w.contact_area, report.bounds) {
-        return Some(format!(
-            "the body meets the ground over {:.2} m^2, {:.0} % of its plan area, far more than tyres \
-             make: its floor lies on or below the ground plane, which the wrap cut off there, so the \
-             body is not the one drawn; the ground is probably set too high for this body (ground.z, \
-             or a ride height too small)",
-            w.contact_area,
-            100.0 * w.contact_area / plan
-        ));
+    if let Some(floor) = floor_on_ground_warning(report) {
+        return Some(floor);
     }
     Some(format!(
         "the body stands on the ground over {:.3} m^2 (its tyres, or any underside within {:.0} mm of the \

@@ -344,6 +344,27 @@ fn saved_panels_lie_over_the_file_and_never_replace_it() {
     assert_eq!(std::fs::read(&path).unwrap(), before);
 }
 
+/// A ground set into the floor is warned about by check as by the run (a
+/// review's ground 10 mm into the coupe's floor: check had said only
+/// "usable", the run warned).
+#[test]
+fn a_floor_on_the_ground_is_warned_about_before_running() {
+    let cases = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases");
+    let stl = cases.join("coupe.stl");
+    let out = check(&[
+        stl.to_str().unwrap(),
+        "--ground",
+        "0.13",
+        "--panels",
+        "2000",
+    ]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        stdout.contains("warning: the body meets the ground over"),
+        "{stdout}"
+    );
+}
+
 /// A case with a built-in shape is checked as the run generates it, and
 /// its panels saved in metres: a variant to take into a modeller.
 #[test]
