@@ -206,7 +206,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         }
     }
     placement?;
-    Ok(if report.folded {
+    Ok(if report.folded || report.quality.slivers_dominate() {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
@@ -397,6 +397,10 @@ fn verdict(r: &PrepareReport) -> String {
     let warnings = &r.quality.warnings;
     match (warnings.len(), r.folded) {
         (0, _) => "verdict    usable\n".to_string(),
+        (_, false) if r.quality.slivers_dominate() => "verdict    doubtful: most of the surface is cut in \
+             slivers (above), so every pressure and load is unsure; export it with even triangles or ask \
+             for fewer panels\n"
+            .to_string(),
         (_, true) => "verdict    doubtful: the surface folds through itself (above), and the flow there \
                       often comes out unphysical and stops the run; repair the STL there (another panel count \
                       may or may not avoid it)\n"
