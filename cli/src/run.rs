@@ -183,8 +183,11 @@ fn print_summary(out: &Path, s: &Summary) {
             (false, true) => "converged",
             (false, false) => "not converged",
         };
+        // One pass: nothing separated, no dead water to give a pressure of
+        // (a review's sliver ellipsoid read "dead water at base C_p 0.25").
         let base = w
             .base_cp_loop
+            .filter(|_| w.passes > 1)
             .map_or_else(String::new, |v| format!(", dead water at base C_p {v:.2}"));
         say!(
             "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",
