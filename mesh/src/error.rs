@@ -108,6 +108,21 @@ pub enum MeshError {
         /// Number of facets read.
         facets: usize,
     },
+    /// Most edges stay open even with the weld widened ([`crate::repair::WIDER_WELDS`]):
+    /// the facets do not share their corners.
+    #[error(
+        "{:.0} % of the edges between facets stay open even with corners welded within {:.2} mm: the \
+         facets do not share their corners (an export that writes each facet apart, with gaps larger \
+         than that); export the STL again with shared, welded vertices (a closed, watertight mesh)",
+        100.0 * .open_share,
+        1000.0 * .tolerance
+    )]
+    UnweldedFacets {
+        /// Share of the distinct edges used by one facet only.
+        open_share: f64,
+        /// The widest weld tried, metres.
+        tolerance: f64,
+    },
     /// Boundary loops that could be neither filled nor closed by a mirror.
     /// The fields describe the largest; `holes` lists every one, largest
     /// first, and the message names them all (up to ten).

@@ -442,6 +442,15 @@ pub fn prepare_mesh(
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
             ));
         }
+        if repair.weld_widened > 1.0 {
+            q.notes.push(format!(
+                "the STL's facets did not share their corners (each written apart, most edges open): \
+                 corners within {:.2} mm were welded, {:.0} times the usual tolerance; if the body has \
+                 real detail finer than that, export it with shared vertices",
+                1000.0 * repair.weld_tolerance,
+                repair.weld_widened
+            ));
+        }
         if mirrored_half {
             q.notes.push(MIRRORED_HALF_NOTE.to_owned());
         }
