@@ -61,6 +61,14 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         .file
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
+    // One range whether the STL comes alone or through a case file (a
+    // review's STL alone at --panels 4 came back a tetrahedron, "usable").
+    if let Some(n) = args.panels {
+        anyhow::ensure!(
+            (100..=200_000).contains(&n),
+            "--panels must be 100 to 200000, as geometry.panels in a case file"
+        );
+    }
     let (file, params, case) = if is_case {
         let set: Vec<&str> = [
             (args.units.is_some(), "--units"),
@@ -80,12 +88,6 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             set.join(", "),
             if set.len() == 1 { "applies" } else { "apply" }
         );
-        if let Some(n) = args.panels {
-            anyhow::ensure!(
-                (100..=200_000).contains(&n),
-                "--panels must be 100 to 200000, as geometry.panels in a case file"
-            );
-        }
         let mut case = crate::case::Case::load(&args.file)?;
         case.file.geometry.panels = args.panels.or(case.file.geometry.panels);
         let (file, params) = match &case.source {
@@ -331,9 +333,6 @@ fn stl_params(
 fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
     if let Some(z) = args.ground {
         anyhow::ensure!(z.is_finite(), "--ground must be a finite height in metres");
-    }
-    if let Some(n) = args.panels {
-        anyhow::ensure!(n >= 4, "--panels must be at least 4");
     }
     Ok(PrepareParams {
         units: args.units.unwrap_or(LengthUnit::Mm),
