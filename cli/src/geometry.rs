@@ -294,6 +294,11 @@ fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String
     ))
 }
 
+/// Whether `note` is [`size_note`]'s.
+pub fn is_scale_model_note(note: &str) -> bool {
+    note.starts_with("the body is ") && note.contains(", a scale model's size (")
+}
+
 /// The readings of a body `size` metres across (as read in `unit`) that
 /// other units would make car-sized, 2.5 to 7 m: "in metres it would be
 /// 4.4 m".
@@ -371,6 +376,7 @@ mod tests {
         let inch = size_note(4.5 / 25.4, LengthUnit::Mm, "k").unwrap();
         assert!(inch.contains("in inches it would be 4.5 m"), "{inch}");
         assert!(size_note(1.044, LengthUnit::Mm, "k").is_none());
+        assert!(is_scale_model_note(&cm));
         assert!(size_note(4.5, LengthUnit::Mm, "k").is_none());
         // A car in metres read as millimetres is refused, naming the unit.
         let m = size_problem(0.0044, Some(LengthUnit::Mm), "geometry.units").unwrap();

@@ -213,10 +213,22 @@ fn print_summary(out: &Path, s: &Summary) {
     if let (false, Some(note)) = (s.regions.is_empty(), s.coarse_note()) {
         say!("  note: {note}");
     }
+    // What the run assumed of the file that changes how every number reads
+    // (a review found these only in the report): a scale model's size, a
+    // left half run as its mirror image.
+    for n in s.notes.iter().filter(|n| read_as_assumed(n)) {
+        say!("  note: {n}");
+    }
     for w in &s.warnings {
         say!("  warning: {w}");
     }
     say!("  report: {}", out.join("report.html").display());
+}
+
+/// Whether a note says how the file was taken in a way that changes how
+/// the numbers read ([`print_summary`] shows those on stdout).
+fn read_as_assumed(note: &str) -> bool {
+    note == tuft_mesh::prepare::MIRRORED_HALF_NOTE || crate::geometry::is_scale_model_note(note)
 }
 
 /// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle
