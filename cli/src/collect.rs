@@ -1033,6 +1033,14 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 invert_y: false,
                 series: lines,
                 off_scale,
+                // Drag at least four noise floors tall: a review's 2-4
+                // count spread, within the noise, filled the axis and read
+                // as an optimum.
+                min_y_span: if k == 0 {
+                    DRAG_AXIS_NOISE_FLOORS * crate::compare::NOISE_COUNTS
+                } else {
+                    0.0
+                },
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1042,19 +1050,27 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     Ok(out)
 }
 
+/// The least height of a sweep's drag axis, in noise floors
+/// ([`crate::compare::NOISE_COUNTS`]; our choice).
+const DRAG_AXIS_NOISE_FLOORS: f64 = 4.0;
+
 /// A sweep plot's subtitle: the speed, and what the lines are (`several`:
 /// one per combination of the other swept values); on the drag plot
 /// (`drag`) where its band's ends are (drawn grey beside a single line,
 /// `band`, or left to the ranking table).
 fn plot_subtitle(speed: &str, drag: bool, band: bool, several: bool) -> String {
     let lines = "one line per combination of the other swept values";
+    let noise = format!(
+        "; drag differences under {} counts are noise",
+        crate::compare::NOISE_COUNTS
+    );
     match (band, several) {
         (true, _) => format!(
-            "Screening estimates at {speed}; grey: the ends of the drag band (model sensitivity)"
+            "Screening estimates at {speed}; grey: the ends of the drag band (model sensitivity){noise}"
         ),
         (false, true) if drag => format!(
             "Screening estimates at {speed}; {lines}; each drag band (model sensitivity) is in the \
-             ranking table"
+             ranking table{noise}"
         ),
         (false, true) => format!("Screening estimates at {speed}; {lines}"),
         (false, false) => format!("Screening estimates at {speed}"),

@@ -70,6 +70,9 @@ pub struct LinePlot {
     /// A second line under the subtitle (what the shading shows), or
     /// empty.
     pub note: String,
+    /// The least height the vertical axis spans, in its units (0: as the
+    /// data fall), so that differences within the noise do not fill it.
+    pub min_y_span: f64,
 }
 
 /// Picture size of a plot.
@@ -328,6 +331,12 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
         let top = ys.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         let room = top + 0.15 * span(&ys);
         padded_range(&[ys.as_slice(), &[room]].concat(), 0.05)
+    };
+    let y = if y.1 - y.0 < plot.min_y_span {
+        let mid = 0.5 * (y.0 + y.1);
+        (mid - 0.5 * plot.min_y_span, mid + 0.5 * plot.min_y_span)
+    } else {
+        y
     };
     let y_range = if plot.invert_y { (y.1, y.0) } else { y };
     let rect = (
@@ -855,6 +864,26 @@ mod tests {
     use super::*;
     use crate::output::canvas::testing::{decode, keep};
     use crate::output::fixture::{Fixture, caption};
+
+    /// A least span keeps a spread within the noise from filling the
+    /// axis (a review's sweep: drag 2-4 counts apart read as an optimum).
+    #[test]
+    fn a_least_span_holds_the_axis_open() {
+        let plot = |min_y_span: f64| LinePlot {
+            series: vec![Series {
+                name: "drag".into(),
+                points: vec![(0.0, 120.0), (1.0, 122.0), (2.0, 124.0)],
+                colour: INK,
+            }],
+            min_y_span,
+            ..LinePlot::default()
+        };
+        let params = PlotParams::default();
+        let (lo, hi) = plot_frame(&plot(24.0), &params).y_range;
+        assert!(hi - lo >= 24.0 && lo < 120.0 && hi > 124.0, "{lo} {hi}");
+        let (lo, hi) = plot_frame(&plot(0.0), &params).y_range;
+        assert!(hi - lo < 10.0, "{lo} {hi}");
+    }
 
     #[test]
     fn centre_line_follows_lambs_sphere() {
