@@ -90,6 +90,11 @@ pub struct Row {
     /// Yaw, degrees (from the variant's case).
     #[serde(default)]
     pub yaw_deg: f64,
+    /// Ground clearance, metres: the lowest point of the body above the
+    /// ground (`None` in free air), so that a ride-height sweep's rows
+    /// say the clearance, not only the ground's height.
+    #[serde(default)]
+    pub clearance_m: Option<f64>,
     /// The warning sentences of the variant's summary.
     #[serde(default)]
     pub warning_texts: Vec<String>,
@@ -712,6 +717,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
         yaw_deg: flow("yaw", still.yaw),
+        clearance_m: s.clearance_m(),
         warning_texts: s.warnings.clone(),
         coarse: s.coarse_note().is_some(),
         all_facets: s.all_facets(),
@@ -884,7 +890,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",speed_ms,yaw_deg,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
+    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -935,9 +941,10 @@ fn csv_row(
     };
     let _ = write!(
         s,
-        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
         r.speed,
         r.yaw_deg,
+        r.clearance_m.map(|c| c.to_string()).unwrap_or_default(),
         r.cd,
         r.cd_low,
         r.cd_high,
@@ -1728,6 +1735,7 @@ mod tests {
             matrix_reused: false,
             speed: 40.0,
             yaw_deg: 0.0,
+            clearance_m: None,
             warning_texts: Vec::new(),
             coarse: false,
             all_facets: false,

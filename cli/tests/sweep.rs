@@ -581,6 +581,17 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
         })
         .collect();
     assert_eq!(ranked.len(), 3);
+    // In free air there is no clearance to give (sweep.csv's column empty).
+    for r in c["variants"].as_array().unwrap() {
+        assert!(r["clearance_m"].is_null(), "{r}");
+    }
+    let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+    assert!(
+        csv.lines()
+            .next()
+            .unwrap()
+            .contains(",yaw_deg,clearance_m,cd,")
+    );
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
     let section = html.find("<h2>Separation at a glance</h2>").unwrap();
     assert!(html.find("<h2>Ranking</h2>").unwrap() < section);
