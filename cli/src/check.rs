@@ -188,7 +188,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     };
 
     if args.json {
-        say!("{}", serde_json::to_string_pretty(&report)?);
+        say!("{}", serde_json::to_string_pretty(&json_report(&report)?)?);
     } else {
         if is_case {
             say!(
@@ -208,7 +208,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         }
     }
     placement?;
-    Ok(if report.folded || report.quality.slivers_dominate() {
+    Ok(if doubtful(&report) {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
@@ -264,10 +264,18 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
         _ => "axles      not given: a run splits the lift at 20 % and 80 % of the length, with a warning\n"
             .to_owned(),
     };
+    // A half model's regions count their mirror images, as a run's do
+    // (a review read "(whole body)" on every region as "covers the whole
+    // body").
+    let sides = if panels.mirrors.symmetry {
+        " (both sides)"
+    } else {
+        ""
+    };
     for region in &case.file.regions {
         let (n, area) = crate::region::extent(region, panels);
         s += &format!(
-            "region     \"{}\": {n} panels, {area:.3} m^2 (whole body)\n",
+            "region     \"{}\": {n} panels, {area:.3} m^2{sides}\n",
             region.name
         );
     }
@@ -291,7 +299,10 @@ fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow
         None => None,
     };
     if args.json {
-        say!("{}", serde_json::to_string_pretty(&geo.report)?);
+        say!(
+            "{}",
+            serde_json::to_string_pretty(&json_report(&geo.report)?)?
+        );
     } else {
         say!(
             "case       {}: the built-in shape \"{name}\" as the run generates it (in metres)",
@@ -389,9 +400,28 @@ fn summary(file: &str, r: &PrepareReport, case_fails: bool) -> String {
     out
 }
 
-/// The closing line: usable; with quality warnings, usable with a word on
-/// what they do; with a fold (panels crossing each other), a word that the
+/// The closing line: usable; with warnings, usable with a pointer to them
+/// (they are of many kinds now: a stray part, a body on its side, a cut
+/// file, not only panel quality); with a fold (panels crossing each other), a word that the
 /// run may find the flow unphysical there and stop.
+/// `--json`'s report: the preparation report with the verdict beside it,
+/// `"verdict"`: `usable` or `doubtful`, as the text's last line says (a
+/// review's script found no verdict in the JSON).
+fn json_report(r: &PrepareReport) -> anyhow::Result<serde_json::Value> {
+    let mut v = serde_json::to_value(r)?;
+    if let Some(map) = v.as_object_mut() {
+        let word = if doubtful(r) { "doubtful" } else { "usable" };
+        map.insert("verdict".into(), word.into());
+    }
+    Ok(v)
+}
+
+/// Whether the verdict is doubtful: panels crossing each other, or most
+/// of the surface cut in slivers.
+fn doubtful(r: &PrepareReport) -> bool {
+    r.folded || r.quality.slivers_dominate()
+}
+
 fn verdict(r: &PrepareReport) -> String {
     let warnings = &r.quality.warnings;
     match (warnings.len(), r.folded) {
@@ -405,7 +435,7 @@ fn verdict(r: &PrepareReport) -> String {
                       may or may not avoid it)\n"
             .to_string(),
         (n, false) => format!(
-            "verdict    usable; read the {n} quality warning{} above (pressures near those panels are less sure)\n",
+            "verdict    usable; read the {n} warning{} above\n",
             if n == 1 { "" } else { "s" }
         ),
     }
@@ -685,7 +715,9 @@ fn quality_lines(r: &PrepareReport) -> String {
     for w in &q.warnings {
         s += &format!("           warning: {w}\n");
     }
-    for n in &q.notes {
+    // The wrap's description has its own line above.
+    let wrap = r.wrap.as_ref().map(|w| w.describe());
+    for n in q.notes.iter().filter(|n| Some(*n) != wrap.as_ref()) {
         s += &format!("           note: {n}\n");
     }
     s

@@ -89,6 +89,7 @@ fn check_reports_a_generated_sphere() {
         "{area}"
     );
     assert!(report["panels"].as_u64().unwrap() <= 2000);
+    assert_eq!(report["verdict"], "usable");
 }
 
 #[test]
