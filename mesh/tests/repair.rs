@@ -296,6 +296,29 @@ fn half_sphere_on_symmetry_plane() {
     assert!(matches!(e, MeshError::OpenHole { .. }), "{e}");
 }
 
+/// A half model cut flat a little off the declared plane is named as such
+/// (a review's cut at y = 8 mm was told only to cap a hole): the rim's
+/// plane and its offset.
+#[test]
+fn a_cut_just_off_the_declared_plane_is_named() {
+    let mut half = half_sphere(|c| c.y > 0.0);
+    // Move the whole half 10 mm along +y: the cut lies flat at y = 0.01,
+    // beyond the 0.35 mm plane tolerance (1e-4 of the 3.46 m diagonal).
+    half.map_vertices(|p| Point::new(p.x, p.y + 0.01, p.z));
+    let sym = Mirrors {
+        ground: None,
+        symmetry: true,
+    };
+    match repair(half, &sym).unwrap_err() {
+        MeshError::OpenHole { holes, .. } => {
+            let (axis, at, plane) = holes[0].off_declared_plane.unwrap();
+            assert_eq!((axis, plane), ('y', 0.0));
+            assert!((at - 0.01).abs() < 1e-9, "{at}");
+        }
+        other => panic!("unexpected {other}"),
+    }
+}
+
 #[test]
 fn inverted_half_sphere_on_ground_is_turned_outward() {
     let mut half = half_sphere(|c| c.z > 0.0);
