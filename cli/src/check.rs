@@ -141,6 +141,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
     report.quality.notes.extend(note);
+    report
+        .quality
+        .notes
+        .extend(flat_end_note(&panels, params.axes.nose_plus_x));
     // As the run warns: a floor standing on the ground.
     if let Some(w) = crate::pipeline::floor_on_ground_warning(&report) {
         report.quality.add_warning(w);
@@ -404,6 +408,55 @@ fn summary(file: &str, r: &PrepareReport, case_fails: bool) -> String {
 /// (they are of many kinds now: a stray part, a body on its side, a cut
 /// file, not only panel quality); with a fold (panels crossing each other), a word that the
 /// run may find the flow unphysical there and stop.
+/// Share of the body's box (width times height) that nearly flat faces
+/// meeting the wind must cover, and how many times the flat faces facing
+/// downstream, for [`flat_end_note`] (our choice).
+const FLAT_END: (f64, f64) = (0.1, 2.0);
+
+/// A note when the end meeting the wind is the flatter one: nearly flat
+/// faces (normals within about 25 degrees of the stream) facing upstream
+/// cover more than [`FLAT_END`]'s share of the body's box and twice those
+/// facing downstream. A car's nose is the rounder end and its tail often
+/// flat, so this is the sign of a file whose nose points the other way;
+/// the run warns of it only after solving (its rim share), and a review's
+/// reversed body passed check without a word. `nose_plus_x`: the file
+/// was read with its nose at +x. A van or a bus, flat at both ends, is
+/// not noted.
+fn flat_end_note(panels: &tuft_mesh::PanelMesh, nose_plus_x: bool) -> Option<String> {
+    let flat = 25f64.to_radians().cos();
+    let (up, down) = panels.panels.iter().fold((0.0, 0.0), |(u, d), p| {
+        if p.normal.x < -flat {
+            (u + p.area, d)
+        } else if p.normal.x > flat {
+            (u, d + p.area)
+        } else {
+            (u, d)
+        }
+    });
+    let (lo, hi) = panels.bounds();
+    let width = if panels.mirrors.symmetry {
+        2.0 * hi.y
+    } else {
+        hi.y - lo.y
+    };
+    let boxed = width * (hi.z - lo.z) / panels.mirrors.whole_body_factor();
+    let (share, times) = FLAT_END;
+    (up > share * boxed && up > times * down).then(|| {
+        let setting = if nose_plus_x {
+            "geometry.nose = \"-x\" (--nose -x)"
+        } else {
+            "geometry.nose = \"+x\" (--nose +x)"
+        };
+        format!(
+            "the end meeting the wind is the flatter one ({:.2} m^2 of nearly flat faces facing upstream \
+             against {:.2} m^2 facing downstream), as a car's tail is: if this body's nose is at the other \
+             end of the file, set {setting}",
+            up * panels.mirrors.whole_body_factor(),
+            down * panels.mirrors.whole_body_factor()
+        )
+    })
+}
+
 /// `--json`'s report: the preparation report with the verdict beside it,
 /// `"verdict"`: `usable` or `doubtful`, as the text's last line says (a
 /// review's script found no verdict in the JSON).
@@ -726,6 +779,22 @@ fn quality_lines(r: &PrepareReport) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The square-back research body (rounded nose, flat base) facing the
+    /// right way is not noted; turned round, its flat base meets the wind
+    /// and is (a review's reversed body had passed check without a word).
+    #[test]
+    fn a_flat_end_meeting_the_wind_is_noted() {
+        let body = tuft_mesh::generate::ahmed(0.0, 3000).unwrap();
+        let none = tuft_mesh::Mirrors::none();
+        let forward = tuft_mesh::PanelMesh::new(body.clone(), none).unwrap();
+        assert!(flat_end_note(&forward, false).is_none());
+        let mut turned = body;
+        turned.map_vertices(|p| tuft_mesh::Point::new(-p.x, -p.y, p.z));
+        let turned = tuft_mesh::PanelMesh::new(turned, none).unwrap();
+        let n = flat_end_note(&turned, false).unwrap();
+        assert!(n.contains("set geometry.nose = \"+x\""), "{n}");
+    }
 
     /// Halves that agree run as a half model; halves some centimetres
     /// apart still may, but the line says what the half model loses; more
