@@ -290,12 +290,12 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
              onto B's panels from the nearest point of A's surface among panels facing the same way, \
              corrected to first order by the gradient over the neighbouring panels (never beyond their \
              values), so the pictures are drawn on B's body.\n\n\
-             A drag difference is called one only when it exceeds {} counts (differences of a few counts \
+             A drag difference is called one only when it is at least {} counts (differences of a few counts \
              are within the noise of any simulation, common practice) and keeps its sign at both ends of \
              the two runs' sensitivity bands. The differences at the band ends compare each run's low \
              end with the other's low end and high with high; they are not a range of the difference, and \
              the central difference need not lie between them, since each band sits unevenly about its \
-             estimate. Verdict: {}.\n\n\
+             estimate (the verdict is at the top of this page).\n\n\
              A change anywhere moves the pressure everywhere (the flow round the whole body answers it, \
              the underbody's most), so the surface that did not change also shows differences and carries \
              part of the drag and lift differences (the table gives how much); panels that differ from \
@@ -305,7 +305,6 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             c.b.case_name,
             c.b.folder,
             super::NOISE_COUNTS,
-            c.drag.text
         ),
     };
     Report {
