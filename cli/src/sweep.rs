@@ -118,7 +118,11 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     Ok(if failed == 0 {
         ExitCode::SUCCESS
     } else {
-        eprintln!("tuft: {failed} variant(s) of {} failed", plan.name);
+        eprintln!(
+            "tuft: {} of {} failed",
+            crate::output::plural(failed, "variant", "variants"),
+            plan.name
+        );
         ExitCode::from(EXIT_FAILURE)
     })
 }
@@ -177,12 +181,14 @@ fn run_range(
                 s.lift_kg.axle_words()[0],
                 100.0 * s.separation.fraction,
                 if matrix.reused {
-                    "matrix reused".to_string()
-                } else {
+                    "flow solver set up by an earlier variant of this shape".to_string()
+                } else if matrix.variants_sharing > 1 {
                     format!(
-                        "matrix assembled for {} variant(s)",
+                        "flow solver set up here, shared by {} variants of this shape",
                         matrix.variants_sharing
                     )
+                } else {
+                    "flow solver set up for this variant".to_string()
                 },
                 match s.warnings.len() {
                     0 => String::new(),
