@@ -321,7 +321,11 @@ fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow
             say!("{line}");
         }
     }
-    Ok(ExitCode::SUCCESS)
+    Ok(if doubtful(&geo.report) {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
+    })
 }
 
 /// The settings a case file gives a run of its STL, read in `unit` with
@@ -404,10 +408,6 @@ fn summary(file: &str, r: &PrepareReport, case_fails: bool) -> String {
     out
 }
 
-/// The closing line: usable; with warnings, usable with a pointer to them
-/// (they are of many kinds now: a stray part, a body on its side, a cut
-/// file, not only panel quality); with a fold (panels crossing each other), a word that the
-/// run may find the flow unphysical there and stop.
 /// Share of the body's box (width times height) that nearly flat faces
 /// meeting the wind must cover, and how many times the flat faces facing
 /// downstream, for [`flat_end_note`] (our choice).
@@ -475,6 +475,11 @@ fn doubtful(r: &PrepareReport) -> bool {
     r.folded || r.quality.slivers_dominate()
 }
 
+/// The closing line: usable; with warnings, usable with a pointer to them
+/// (they are of many kinds: a stray part, a body on its side, a cut file,
+/// not only panel quality); doubtful with a fold (panels crossing each
+/// other: the run may find the flow unphysical there and stop) or a
+/// surface mostly cut in slivers.
 fn verdict(r: &PrepareReport) -> String {
     let warnings = &r.quality.warnings;
     match (warnings.len(), r.folded) {

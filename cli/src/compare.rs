@@ -1160,9 +1160,6 @@ mod tests {
         s
     }
 
-    /// A lift difference is set against the noise of the whole body's
-    /// lift (the demo coupe's at 40 m/s, 0.018 in C_L, 3.3 kg), whatever
-    /// the axles do.
     /// The verdict's reason names the region that moved most, from 5
     /// points up (a review's boot-height pair read only "the separated
     /// regions differ", beside a sentence about slants it did not have).
@@ -1187,6 +1184,9 @@ mod tests {
         assert_eq!(largest_region_change(&regions[..1]), None);
     }
 
+    /// A lift difference is set against the noise of the whole body's
+    /// lift (the demo coupe's at 40 m/s, 0.018 in C_L, 3.3 kg), whatever
+    /// the axles do.
     #[test]
     fn lift_differences_are_set_against_the_noise() {
         let d = |lift: f64, rear: f64| Deltas {

@@ -191,9 +191,17 @@ pub fn coarsen_with_params(
     // Whether the simplifier's input is free of panels turned over
     // ([`turned_over`]), found on the first try that needs it.
     let mut base_clean: Option<bool> = None;
-    for (target, regularize) in attempts(p) {
-        if target >= mesh.len() {
+    // The first try refused only for a panel turned over: kept, with the
+    // fold warning, rather than doubling the target or keeping the input
+    // when no try near the target passes (such a mesh ran before, and a
+    // run on it often does).
+    let mut turned_try: Option<TriMesh> = None;
+    for (k, (target, regularize)) in attempts(p).into_iter().enumerate() {
+        if k >= NEAR_TRIES && turned_try.is_some() {
             break;
+        }
+        if target >= mesh.len() {
+            continue;
         }
         report.largest_try = target;
         let mut coarse = simplify(base, &locks, target, regularize);
@@ -228,13 +236,18 @@ pub fn coarsen_with_params(
                 // simplifier's, and another target usually has none.
                 let over = turned_over(&coarse)
                     .filter(|_| *base_clean.get_or_insert_with(|| turned_over(base).is_none()));
+                let how = if regularize { ", even triangles" } else { "" };
                 if let Some(at) = over {
                     let why = format!(
                         "a panel faces against all its neighbours near x {:.3}, y {:.3}, z {:.3} m",
                         at[0], at[1], at[2]
                     );
                     report.first_refusal.get_or_insert_with(|| why.clone());
-                    notes.push(format!("a try at {target} panels was refused: {why}"));
+                    notes.push(format!("a try at {target} panels{how} was refused: {why}"));
+                    if turned_try.is_none() {
+                        remove_unused_vertices(&mut coarse);
+                        turned_try = Some(coarse);
+                    }
                     continue;
                 }
                 remove_unused_vertices(&mut coarse);
@@ -247,6 +260,16 @@ pub fn coarsen_with_params(
                 notes.push(format!("a try at {target} panels{how} was refused: {why}"));
             }
         }
+    }
+    if result.is_none()
+        && let Some(turned) = turned_try
+    {
+        notes.push(format!(
+            "no try near the target passed, so the first, {} panels with a panel turned over, is \
+             kept (see the quality warnings)",
+            turned.len()
+        ));
+        result = Some(turned);
     }
     let out = result.unwrap_or_else(|| {
         notes.push("the repaired mesh was kept uncoarsened".to_string());
@@ -436,6 +459,9 @@ fn centre(mesh: &TriMesh, t: usize) -> [f64; 3] {
 /// review's boxy body a panel turned over on the nose's corner at 6,500
 /// panels and none at 6,000), the target without the regularizing option
 /// (whose panels are less even), then twice and four times the target.
+/// How many of [`attempts`] are near the target (the rest double it).
+const NEAR_TRIES: usize = 4;
+
 fn attempts(p: &CoarsenParams) -> Vec<(usize, bool)> {
     let t = p.target_panels.max(4);
     let r = p.regularize;

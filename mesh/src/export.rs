@@ -29,7 +29,9 @@ pub fn stl_facets(mesh: &TriMesh, unit: LengthUnit) -> Vec<stl_io::Triangle> {
 
 /// Write the real panels of `mesh` (no mirror images) to `out` as a binary
 /// STL in `unit`, in the axes of a file read with `axes` (`mirrored`: the
-/// file held a left half, [`FileAxes::apply`]); `None` keeps tuft's.
+/// file held a left half, [`FileAxes::apply`]); `None` keeps tuft's. A
+/// [`crate::prepare::PrepareParams::transform`] applied after the axes is
+/// not undone (the command line sets none).
 ///
 /// # Errors
 /// The writer's I/O errors.

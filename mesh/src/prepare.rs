@@ -284,14 +284,13 @@ fn read_notes(r: &StlReport) -> Vec<String> {
     notes
 }
 
-/// Prepare a mesh already in memory (in `params.units`).
-///
-/// # Errors
 /// Height over width beyond which a body is taller than any car or van
-/// stands (a high-roof van is about 1.35 times as tall as wide, a car
+/// stands (a high-roof van is about 1.4 times as tall as wide, a car
 /// 0.6 to 0.9; common practice): a file read with the wrong up axis lies
-/// on its side, 1.6 times as tall as wide for the shipped coupe.
-pub const UPRIGHT_RATIO: f64 = 1.4;
+/// on its side, 1.6 times as tall as wide for the shipped coupe. Only a
+/// low car is caught so: a saloon or an SUV on its side is 1.1 to 1.3
+/// times as tall as wide.
+pub const UPRIGHT_RATIO: f64 = 1.5;
 
 /// A warning when the body, as read, is more than [`UPRIGHT_RATIO`] times
 /// as tall as it is wide (a half model's width doubled): a car exported
@@ -306,9 +305,11 @@ fn upright_warning(lo: crate::Point, hi: crate::Point, params: &PrepareParams) -
     };
     (width > 0.0 && height > UPRIGHT_RATIO * width).then(|| {
         let fix = if params.axes.y_up {
-            "it was read with y up: if the file has z up, drop geometry.up (tuft check: leave out --up)"
+            "it was read with y up: if the file has z up, drop geometry.up (tuft check: leave out --up); \
+             if it is a half model, declare it (geometry.half_model = true, --half)"
         } else {
-            "if the file has y up, set geometry.up = \"y\" (tuft check: --up y)"
+            "if the file has y up, set geometry.up = \"y\" (tuft check: --up y); if it is a half model, \
+             declare it (geometry.half_model = true, --half)"
         };
         format!(
             "the body stands {height:.2} m tall and {width:.2} m wide, taller than any car or van \
@@ -318,15 +319,17 @@ fn upright_warning(lo: crate::Point, hi: crate::Point, params: &PrepareParams) -
 }
 
 /// Angle about the vertical, degrees, from which a whole body's centre line
-/// reads as turned off the x axis ([`turned_warning`]): 0.5 degrees moves
-/// a 4.5 m car's ends 39 mm to either side, where a symmetric body's
-/// slices centre within a few millimetres (our choice).
-pub const TURNED_DEG: f64 = 0.5;
+/// reads as turned off the x axis (`turned_warning`): 1 degree moves a
+/// 4.5 m car's ends 39 mm to either side of its middle, where a symmetric
+/// body's slices centre within a few millimetres and a part on one side
+/// (a door mirror) moves one slice's mid-width by up to 0.1 m (our
+/// choice).
+pub const TURNED_DEG: f64 = 1.0;
 
 /// A warning when a whole body's centre line runs at an angle to the x
 /// axis, as a scan not aligned with the axes does: the centre of its width
 /// in each of ten slices along x, fitted with a line over the middle
-/// eight (nose and tail trimmed). A review's coupe turned 2 degrees about
+/// eight (nose and tail trimmed) by the median of their pairwise slopes. A review's coupe turned 2 degrees about
 /// the vertical had been told it was off-centre by 80 mm, and its run
 /// (C_D 0.142 against 0.151, a side force at zero yaw) said nothing.
 fn turned_warning(panels: &PanelMesh) -> Option<String> {
@@ -348,17 +351,27 @@ fn turned_warning(panels: &PanelMesh) -> Option<String> {
             (x, 0.5 * (width[k].0 + width[k].1))
         })
         .collect();
-    let n = points.len() as f64;
-    if n < 3.0 {
+    if points.len() < 3 {
         return None;
     }
-    let (mx, my) = points
-        .iter()
-        .fold((0.0, 0.0), |(a, b), p| (a + p.0 / n, b + p.1 / n));
-    let (sxy, sxx) = points.iter().fold((0.0, 0.0), |(a, b), p| {
-        (a + (p.0 - mx) * (p.1 - my), b + (p.0 - mx).powi(2))
-    });
-    let angle = (sxy / sxx).atan().to_degrees();
+    // Theil-Sen: the median of the slopes between every pair of slices,
+    // so that a part on one side only (a mirror, an open door, steered
+    // wheels), which moves one or two slices' mid-width, does not tilt
+    // the line as a least-squares fit would.
+    let mut slopes: Vec<f64> = Vec::new();
+    for (i, a) in points.iter().enumerate() {
+        for b in &points[i + 1..] {
+            slopes.push((b.1 - a.1) / (b.0 - a.0));
+        }
+    }
+    slopes.sort_by(f64::total_cmp);
+    let m = slopes.len();
+    let slope = if m % 2 == 1 {
+        slopes[m / 2]
+    } else {
+        0.5 * (slopes[m / 2 - 1] + slopes[m / 2])
+    };
+    let angle = slope.atan().to_degrees();
     (angle.abs() > TURNED_DEG).then(|| {
         format!(
             "the body's centre line runs about {:.1} degrees off the x axis (its width is centred at y {:.3} m \
@@ -371,6 +384,9 @@ fn turned_warning(panels: &PanelMesh) -> Option<String> {
     })
 }
 
+/// Prepare a mesh already in memory (in `params.units`).
+///
+/// # Errors
 /// As [`prepare`], less the reading errors.
 pub fn prepare_mesh(
     mut mesh: TriMesh,
@@ -863,6 +879,18 @@ mod tests {
             PanelMesh::new(m, Mirrors::none()).unwrap()
         };
         assert!(turned_warning(&body(0.0)).is_none());
+        // A part on one side only (a door mirror 0.2 m proud, over a tenth
+        // of the length) moves one slice, not the line.
+        let mut mirror = crate::generate::icosphere(1.0, 4);
+        mirror.map_vertices(|p| {
+            let bump = if p.y > 0.3 && (-0.5..-0.3).contains(&p.x) {
+                0.2
+            } else {
+                0.0
+            };
+            Point::new(2.25 * p.x, 0.9 * p.y + bump, 0.6 * p.z)
+        });
+        assert!(turned_warning(&PanelMesh::new(mirror, Mirrors::none()).unwrap()).is_none());
         // The slices' mid-widths read a rounded body's turn low (1.5 degrees
         // here; a review's boxy coupe turned 2 read 2.0).
         let w = turned_warning(&body(2.0)).unwrap();

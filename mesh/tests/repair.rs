@@ -30,7 +30,7 @@ fn assert_sphere_volume(mesh: &TriMesh, r: f64) {
 fn a_facet_soup_with_gaps_is_welded_wider_or_refused_in_one_sentence() {
     let sphere = generate::icosphere(1.0, 3);
     // Diagonal 2 sqrt(3) = 3.46 m: the usual weld 35 micrometres, the
-    // widest 0.35 mm. Corners 0.1 mm apart at most in each axis.
+    // widest (30 times) 1.04 mm. Corners up to 0.1 mm apart in each axis.
     let (m, r) = repair(soup(&sphere, 0.5e-4, &mut Lcg(7)), &Mirrors::none()).unwrap();
     assert!(r.weld_widened > 1.0, "{r:?}");
     assert_eq!(m.len(), 1280);

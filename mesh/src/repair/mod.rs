@@ -102,8 +102,8 @@ pub struct RepairReport {
     pub weld_tolerance: f64,
     /// The weld had to be widened to this many times its tolerance: most
     /// facets shared no corner within it, an export that writes each
-    /// facet's corners apart ([`WIDER_WELDS`]); 1 when not.
-    #[serde(default)]
+    /// facet's corners apart ([`WIDER_WELDS`]); 1 when not (0 in a report
+    /// made before the weld ran).
     pub weld_widened: f64,
     /// Vertices merged into a neighbour.
     pub vertices_welded: usize,
@@ -161,13 +161,21 @@ pub const UNWELDED_MIN_FACETS: usize = 100;
 /// open is welded wider.
 pub const WIDER_WELDS: [f64; 3] = [3.0, 10.0, 30.0];
 
-/// Share of the distinct edges of `mesh` used by one facet only.
-fn open_edge_share(mesh: &TriMesh) -> f64 {
+/// Share of the distinct edges of `mesh` used by one facet only, less
+/// those lying on a declared mirror plane (within `tol` of it: a half
+/// model's cut is open on purpose, and would keep the weld widening).
+fn open_edge_share(mesh: &TriMesh, mirrors: &Mirrors, tol: f64) -> f64 {
     let uses = crate::repair::edges::sorted_edge_uses(&mesh.triangles);
+    let on_plane = |v: u32| {
+        let p = mesh.vertices[v as usize];
+        (mirrors.symmetry && p.y.abs() <= tol)
+            || mirrors.ground.is_some_and(|g| (p.z - g).abs() <= tol)
+    };
     let (mut open, mut all) = (0usize, 0usize);
     for group in crate::repair::edges::edge_groups(&uses) {
         all += 1;
-        open += usize::from(group.len() == 1);
+        let (a, b) = group[0].ends();
+        open += usize::from(group.len() == 1 && !(on_plane(a) && on_plane(b)));
     }
     if all == 0 {
         0.0
@@ -214,26 +222,24 @@ pub fn repair_with_params(
     // wider, they close; a scan whose facets share their corners is never
     // touched.
     let exported = mesh.len() >= UNWELDED_MIN_FACETS;
-    if exported && open_edge_share(&mesh) > MOSTLY_OPEN {
+    let plane_tol = p.plane_tolerance * diagonal;
+    let open_share = |m: &TriMesh| open_edge_share(m, mirrors, plane_tol);
+    if exported && open_share(&mesh) > MOSTLY_OPEN {
         // Wider until every edge closes (a weld that closes most leaves
         // the corners whose copies lie furthest apart open).
         for factor in WIDER_WELDS {
             r.vertices_welded += weld(&mut mesh, factor * r.weld_tolerance);
             r.weld_widened = factor;
-            if open_edge_share(&mesh) == 0.0 {
+            if open_share(&mesh) == 0.0 {
                 break;
             }
         }
     }
     r.weld_tolerance *= r.weld_widened;
-    let open_share = if exported {
-        open_edge_share(&mesh)
-    } else {
-        0.0
-    };
-    if open_share > MOSTLY_OPEN {
+    let left_open = if exported { open_share(&mesh) } else { 0.0 };
+    if left_open > MOSTLY_OPEN {
         return Err(MeshError::UnweldedFacets {
-            open_share,
+            open_share: left_open,
             tolerance: r.weld_tolerance,
         });
     }
