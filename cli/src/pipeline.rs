@@ -973,6 +973,18 @@ pub fn side_difference_warning(
 /// against 0.19 for four wheels).
 pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
     let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
+    // A body cut at its floor, the cut closed by the ground's mirror image,
+    // stands on the road as the README offers: drawn so, not set too high
+    // (a review's box van cut at its floor had been told otherwise).
+    let cut_at_floor = report
+        .repair
+        .holes
+        .mirror_closed
+        .iter()
+        .any(|h| h.plane.is_some_and(|p| p.contains("ground")));
+    if cut_at_floor {
+        return None;
+    }
     let plan = floor_contact(w.contact_area, report.bounds)?;
     Some(format!(
         "the body meets the ground over {:.2} m^2, {:.0} % of its plan area, far more than tyres \

@@ -292,6 +292,11 @@ fn read_notes(r: &StlReport) -> Vec<String> {
 /// times as tall as wide.
 pub const UPRIGHT_RATIO: f64 = 1.5;
 
+/// Length from which a body is a bus or a lorry, not a car or a van, and
+/// [`UPRIGHT_RATIO`] does not apply (the longest vans are about 7 m;
+/// common practice).
+pub const UPRIGHT_MAX_LENGTH: f64 = 7.5;
+
 /// A warning when the body, as read, is more than [`UPRIGHT_RATIO`] times
 /// as tall as it is wide (a half model's width doubled): a car exported
 /// with y up and read with z up runs lying on its side, and a review's did
@@ -303,7 +308,10 @@ fn upright_warning(lo: crate::Point, hi: crate::Point, params: &PrepareParams) -
     } else {
         hi.y - lo.y
     };
-    (width > 0.0 && height > UPRIGHT_RATIO * width).then(|| {
+    // Buses and lorries (a double-decker is 1.6 times as tall as wide)
+    // are longer than any car or van.
+    let car_length = hi.x - lo.x < UPRIGHT_MAX_LENGTH;
+    (car_length && width > 0.0 && height > UPRIGHT_RATIO * width).then(|| {
         let fix = if params.axes.y_up {
             "it was read with y up: if the file has z up, drop geometry.up (tuft check: leave out --up); \
              if it is a half model, declare it (geometry.half_model = true, --half)"
@@ -376,7 +384,9 @@ fn turned_warning(panels: &PanelMesh) -> Option<String> {
         format!(
             "the body's centre line runs about {:.1} degrees off the x axis (its width is centred at y {:.3} m \
              near the nose and {:.3} m near the tail): a scan not aligned with the axes runs at that yaw \
-             and reads as off-centre; turn it in the modeller so that its centre line lies along x",
+             and reads as off-centre; turn it in the modeller so that its centre line lies along x (a \
+             file with y up read as z up, which has no such centre line, reads so too: then set \
+             geometry.up = \"y\", --up y)",
             angle.abs(),
             points[0].1,
             points[points.len() - 1].1
@@ -417,6 +427,7 @@ pub fn prepare_mesh(
     } else {
         None
     };
+    let caps = drop_symmetry_caps(&mut mesh, params);
     let (cut_vertices_moved, cut_largest_move) = snap_to_cut(&mut mesh, &params.mirrors);
     check_mirror_sides(&mesh, params)?;
     let (mut mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
@@ -510,6 +521,13 @@ pub fn prepare_mesh(
                 c.target_panels,
                 c.achieved_panels,
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
+            ));
+        }
+        if let Some((n, area)) = caps {
+            q.notes.push(format!(
+                "the half model was closed on its symmetry plane y = 0 by {n} facets ({area:.2} m^2): \
+                 they were removed, since the mirror image closes the cut (kept, they would be a wall \
+                 across the middle of the mirrored body)"
             ));
         }
         if repair.weld_widened > 1.0 {
@@ -705,6 +723,33 @@ fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
 /// and the largest move (metres). Run before the repair, so that its cut
 /// is taken as closed by the mirror ([`snap_border_to_plane`] puts it
 /// back on the plane after the repair).
+/// With a symmetry plane declared, drop the facets lying in it (every
+/// corner within the repair's plane tolerance of y = 0): a half model
+/// exported closed, its cut capped by a flat face, which the mirror image
+/// closes anyway; kept, the cap is a wall across the middle of the
+/// mirrored body, with flow on both its faces (a review's capped half
+/// read C_D 0.187 against 0.228 open, and 36 % separated against 11 %).
+/// The count and area dropped, when any.
+fn drop_symmetry_caps(mesh: &mut TriMesh, params: &PrepareParams) -> Option<(usize, f64)> {
+    let (lo, hi) = mesh.bounds().filter(|_| params.mirrors.symmetry)?;
+    let tol = params.repair.plane_tolerance * (hi - lo).norm();
+    let in_plane = |t: &[u32; 3]| t.iter().all(|&v| mesh.vertices[v as usize].y.abs() <= tol);
+    let caps: Vec<usize> = (0..mesh.len())
+        .filter(|&t| in_plane(&mesh.triangles[t]))
+        .collect();
+    if caps.is_empty() {
+        return None;
+    }
+    let area: f64 = caps.iter().map(|&t| mesh.area_vector(t).norm()).sum();
+    let mut k = 0;
+    mesh.triangles.retain(|_| {
+        let keep = caps.binary_search(&k).is_err();
+        k += 1;
+        keep
+    });
+    Some((caps.len(), area))
+}
+
 fn snap_to_cut(mesh: &mut TriMesh, mirrors: &Mirrors) -> (usize, f64) {
     let Some((lo, hi)) = mesh.bounds().filter(|_| mirrors.symmetry) else {
         return (0, 0.0);
@@ -916,6 +961,9 @@ mod tests {
         assert!(upright_warning(lo, hi, &plain).is_none());
         let (lo, hi) = body(2.0, 2.7);
         assert!(upright_warning(lo, hi, &plain).is_none());
+        // A double-decker bus, 11 m long: tall, not on its side.
+        let bus = (Point::new(0.0, -1.275, 0.0), Point::new(11.0, 1.275, 4.0));
+        assert!(upright_warning(bus.0, bus.1, &plain).is_none());
         let half = PrepareParams {
             mirrors: Mirrors {
                 symmetry: true,

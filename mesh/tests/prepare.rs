@@ -63,6 +63,42 @@ fn half_sphere_in_millimetres_with_symmetry() {
     assert!(matches!(refused, Err(MeshError::OpenHole { .. })));
 }
 
+/// A half model exported closed, its cut capped by a flat face on y = 0:
+/// the cap goes (the mirror image closes the cut), leaving the area of the
+/// open half, with a note (a review's capped half had kept its cap as a
+/// wall across the mirrored body: C_D 0.187 against 0.228 open).
+#[test]
+fn a_half_model_capped_on_the_plane_loses_its_cap() {
+    let mut half = cut(&generate::latlong_sphere(1.0, 24, 48), |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let open = tuft_mesh::prepare::prepare_mesh(half.clone(), None, &half_in_metres())
+        .unwrap()
+        .1;
+    // The cap: a fan over the rim on y = 0 from a new centre vertex.
+    let centre = half.vertices.len() as u32;
+    half.vertices.push(Point::new(0.0, 0.0, 0.0));
+    let uses = common::open_edges(&half);
+    for (a, b) in uses {
+        half.triangles.push([b, a, centre]);
+    }
+    let (_, capped) = tuft_mesh::prepare::prepare_mesh(half, None, &half_in_metres()).unwrap();
+    assert!(
+        (capped.area - open.area).abs() < 1e-9,
+        "{} {}",
+        capped.area,
+        open.area
+    );
+    assert!(
+        capped
+            .quality
+            .notes
+            .iter()
+            .any(|n| n.starts_with("the half model was closed on its symmetry plane")),
+        "{:?}",
+        capped.quality.notes
+    );
+}
+
 /// A body reaching across y = 0 by a tenth of its width is neither a half
 /// model nor a whole body centred there (which would be cut): refused.
 #[test]

@@ -160,3 +160,20 @@ pub fn grid_cube(n: u32) -> TriMesh {
     }
     TriMesh::new(vertices, triangles).unwrap()
 }
+
+/// The directed edges `(a, b)` of `mesh`'s facets (in their winding) that
+/// no facet runs the other way: its open rim, as the facets beside it run
+/// it.
+#[allow(dead_code)]
+pub fn open_edges(mesh: &TriMesh) -> Vec<(u32, u32)> {
+    let directed: Vec<(u32, u32)> = mesh
+        .triangles
+        .iter()
+        .flat_map(|t| [(t[0], t[1]), (t[1], t[2]), (t[2], t[0])])
+        .collect();
+    let set: std::collections::HashSet<(u32, u32)> = directed.iter().copied().collect();
+    directed
+        .into_iter()
+        .filter(|&(a, b)| !set.contains(&(b, a)))
+        .collect()
+}
