@@ -580,9 +580,13 @@ fn read_lines(r: &PrepareReport) -> String {
         s += &halves_line(h);
     }
     if let Some(y) = r.mirrors.off_centre {
+        // Its box's middle: a body turned about the vertical (warned
+        // about below) or a part on one side only moves it too, and
+        // moving the body would not make such a one a half model.
         s += &format!(
-            "           centred {:.1} mm off y = 0: to run it as a half model, move its centre plane onto y = 0 \
-             in the STL first\n",
+            "           its box is centred {:.1} mm off y = 0: if the body is symmetric and only offset, move \
+             its centre plane onto y = 0 in the STL to run it as a half model (a body turned about the \
+             vertical, or with a part on one side only, is not a half model's)\n",
             1000.0 * y
         );
     }

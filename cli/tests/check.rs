@@ -226,7 +226,9 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
     let out = check(&[path.to_str().unwrap(), "--units", "m"]);
     let stdout = String::from_utf8_lossy(&out.stdout);
     assert!(
-        stdout.contains("centred 100.0 mm off y = 0: to run it as a half model"),
+        stdout.contains(
+            "its box is centred 100.0 mm off y = 0: if the body is symmetric and only offset"
+        ),
         "{stdout}"
     );
     let out = check(&[path.to_str().unwrap(), "--units", "m", "--half"]);
