@@ -434,11 +434,7 @@ fn flat_end_note(panels: &tuft_mesh::PanelMesh, nose_plus_x: bool) -> Option<Str
         }
     });
     let (lo, hi) = panels.bounds();
-    let width = if panels.mirrors.symmetry {
-        2.0 * hi.y
-    } else {
-        hi.y - lo.y
-    };
+    let width = panels.mirrors.whole_width(&lo, &hi);
     let boxed = width * (hi.z - lo.z) / panels.mirrors.whole_body_factor();
     let (share, times) = FLAT_END;
     (up > share * boxed && up > times * down).then(|| {

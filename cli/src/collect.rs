@@ -1325,8 +1325,7 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
             };
             let (small, large) = (found.iter().min_by(by_area)?, found.iter().max_by(by_area)?);
             let sloped = found.iter().filter(|(_, g)| g.slope_deg.is_some()).count();
-            let area = large.1.area_m2 > 0.0
-                && large.1.area_m2 - small.1.area_m2 > crate::compare::REGION_AREA_SHIFT * large.1.area_m2;
+            let area = crate::compare::region_areas_differ(small.1.area_m2, large.1.area_m2);
             let slopes = sloped > 0 && sloped < found.len();
             (area || slopes).then(|| {
                 format!(

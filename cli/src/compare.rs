@@ -769,14 +769,21 @@ pub const REGION_AREA_SHIFT: f64 = 0.3;
 /// change). Its area differs by more than [`REGION_AREA_SHIFT`], or it
 /// has a slope (faces up and rearward) in one run only; a slope that
 /// changes is the design change a rear-window study makes.
+/// Whether one region's areas in two runs lie more than
+/// [`REGION_AREA_SHIFT`] of the larger apart: its box covers other
+/// surface (`compare`'s note for two runs, `collect`'s across variants).
+pub fn region_areas_differ(a: f64, b: f64) -> bool {
+    let larger = a.max(b);
+    larger > 0.0 && (a - b).abs() > REGION_AREA_SHIFT * larger
+}
+
 fn region_cover_notes(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Vec<String> {
     let slope = |s: Option<f64>| s.map_or("none".to_owned(), |d| format!("{d:.0} degrees"));
     a.regions
         .iter()
         .filter_map(|ra| {
             let rb = b.regions.iter().find(|r| r.name == ra.name)?;
-            let larger = ra.area_m2.max(rb.area_m2);
-            let area = larger > 0.0 && (ra.area_m2 - rb.area_m2).abs() > REGION_AREA_SHIFT * larger;
+            let area = region_areas_differ(ra.area_m2, rb.area_m2);
             let slopes = ra.slope_deg.is_some() != rb.slope_deg.is_some();
             (area || slopes).then(|| {
                 format!(

@@ -50,6 +50,16 @@ impl Mirrors {
         if self.symmetry { 2.0 } else { 1.0 }
     }
 
+    /// The whole body's width across y from the solved surface's extent
+    /// `lo`..`hi`: twice the half's reach from y = 0 for a half model.
+    pub fn whole_width(&self, lo: &crate::Point, hi: &crate::Point) -> f64 {
+        if self.symmetry {
+            2.0 * hi.y.max(-lo.y)
+        } else {
+            hi.y - lo.y
+        }
+    }
+
     /// Free air, full model.
     pub fn none() -> Self {
         Self::default()

@@ -303,11 +303,7 @@ pub const UPRIGHT_MAX_LENGTH: f64 = 7.5;
 /// with no word about it.
 fn upright_warning(lo: crate::Point, hi: crate::Point, params: &PrepareParams) -> Option<String> {
     let height = hi.z - lo.z;
-    let width = if params.mirrors.symmetry {
-        2.0 * hi.y.max(-lo.y)
-    } else {
-        hi.y - lo.y
-    };
+    let width = params.mirrors.whole_width(&lo, &hi);
     // Buses and lorries (a double-decker is 1.6 times as tall as wide)
     // are longer than any car or van.
     let car_length = hi.x - lo.x < UPRIGHT_MAX_LENGTH;
