@@ -264,7 +264,7 @@ fn pictures(
         line.to_png()?,
     );
     for sl in slices {
-        let (pic, _) = slice::slice_picture(sl, caption)?;
+        let (pic, _) = slice::slice_picture(sl, caption, Some(s.cp))?;
         add(
             &format!("slice-{}.png", sl.name),
             &format!("Flow slice: {}", sl.name.replace('-', " ")),
@@ -1153,8 +1153,8 @@ mod tests {
         assert_eq!(super::clearance_words(&s), "stands on the ground");
     }
 
-    /// A lift just under zero reads 0 kg, not -0 (a sharp-edged box's
-    /// report had said "the lift of -0 kg").
+    /// A lift of zero reads 0 kg, not -0 (a sharp-edged box's report had
+    /// said "the lift of -0 kg").
     #[test]
     fn small_lifts_read_without_a_minus_zero() {
         let l = crate::summary::LiftKg {
@@ -1163,14 +1163,25 @@ mod tests {
             ..Default::default()
         };
         let text = super::lift_text(&l, "kg at 40 m/s");
-        assert!(text.starts_with("The lift of -0.4 kg at 40 m/s"), "{text}");
-        assert!(text.contains("the rest of the body, +5.6 kg"), "{text}");
+        assert!(text.starts_with("The lift of -0.40 kg at 40 m/s"), "{text}");
+        assert!(text.contains("the rest of the body, +5.60 kg"), "{text}");
+        let l = crate::summary::LiftKg {
+            total: -0.0,
+            underbody: -0.0,
+            ..Default::default()
+        };
+        let text = super::lift_text(&l, "kg at 40 m/s");
+        assert!(text.starts_with("The lift of 0.0 kg at 40 m/s"), "{text}");
+        // A scale model's loads keep two digits of the largest.
         let l = crate::summary::LiftKg {
             total: -0.04,
             underbody: -0.3,
             ..Default::default()
         };
         let text = super::lift_text(&l, "kg at 40 m/s");
-        assert!(text.starts_with("The lift of 0.0 kg at 40 m/s"), "{text}");
+        assert!(
+            text.starts_with("The lift of -0.040 kg at 40 m/s"),
+            "{text}"
+        );
     }
 }

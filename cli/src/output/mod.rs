@@ -388,11 +388,24 @@ pub fn signed(v: f64, places: usize) -> String {
 }
 
 /// Decimals for a set of loads in kg shown together (a total and its axle
-/// shares): whole kg, or one decimal when all are under 10 kg, where whole
-/// kg would show a total that its parts do not add up to (a 1 m model:
-/// "1 kg (0 front, 2 rear)").
+/// shares): whole kg from 10 kg up, else enough that the largest shows two
+/// digits (one decimal under 10 kg, two under 1 kg, up to four), where
+/// whole kg would show a total that its parts do not add up to (a 1 m
+/// model: "1 kg (0 front, 2 rear)") and a scale model's lift as nothing
+/// (a review's 10 cm toy read "0.0 kg (front 0.0, rear 0.0)" for -0.04).
 pub fn kg_places(values: &[f64]) -> usize {
-    usize::from(values.iter().all(|v| v.abs() < 9.95))
+    let largest = values.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    if largest >= 9.95 {
+        0
+    } else if largest >= 0.995 || largest == 0.0 || !largest.is_finite() {
+        1
+    } else if largest >= 0.0995 {
+        2
+    } else if largest >= 0.00995 {
+        3
+    } else {
+        4
+    }
 }
 
 /// A total and its parts (the first value the total), each in whole
@@ -431,10 +444,13 @@ pub fn total_and_parts<const N: usize>(values: [f64; N]) -> [i64; N] {
 }
 
 /// A total load in kg and its parts (front and rear axle) in the units of
-/// [`kg_places`] of the set (whole kg, or tenths), by [`total_and_parts`];
-/// and those places.
+/// [`kg_places`] of the set, by [`total_and_parts`]; and those places.
 fn kg_units<const N: usize>(values: [f64; N]) -> ([i64; N], usize) {
-    let places = kg_places(&values);
+    kg_units_at(values, kg_places(&values))
+}
+
+/// As [`kg_units`] to `places` decimals.
+fn kg_units_at<const N: usize>(values: [f64; N], places: usize) -> ([i64; N], usize) {
     let scale = 10f64.powi(i32::try_from(places).unwrap_or(0));
     (total_and_parts(values.map(|v| v * scale)), places)
 }
@@ -456,12 +472,14 @@ pub fn kg_set<const N: usize>(values: [f64; N]) -> [String; N] {
     units.map(|u| format!("{:.places$}", from_units(u, places)))
 }
 
-/// A difference of loads in kg and its parts as [`kg_set`], signed.
+/// A difference of loads in kg and its parts as [`kg_set`], signed, to
+/// one decimal at most: a difference is small beside the loads whatever
+/// their size, and hundredths of a car's kg are noise.
 pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
     if !countable(&values) {
         return values.map(|v| format!("{v:+.0}"));
     }
-    let (units, places) = kg_units(values);
+    let (units, places) = kg_units_at(values, kg_places(&values).min(1));
     units.map(|u| format!("{:+.places$}", from_units(u, places)))
 }
 
@@ -609,6 +627,13 @@ mod tests {
         assert_eq!(kg_set_signed([44.0, -0.3, 44.3]), ["+44", "+0", "+44"]);
         assert_eq!(signed(-0.04, 1), "+0.0");
         assert_eq!(signed(-33.04, 1), "-33.0");
+        // A 10 cm toy at 40 m/s: two digits of the largest, not "0.0".
+        assert_eq!(
+            lift_set([-0.04, -0.012, -0.028]),
+            ["-0.040", "-0.012", "-0.028"]
+        );
+        assert_eq!(kg_set([0.52, 0.2, 0.32]), ["0.52", "0.20", "0.32"]);
+        assert_eq!(kg_set([0.0, 0.0, 0.0]), ["0.0", "0.0", "0.0"]);
     }
 
     /// The parts add up to the total as shown (largest remainder): the

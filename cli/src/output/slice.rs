@@ -9,7 +9,10 @@
 //! free stream where the flow does no such thing, and one such sample set
 //! the whole speed scale. The ranges are also clipped at a high quantile
 //! ([`ColourScale::speed_ratio`], [`ColourScale::cp`]); the bars point
-//! their clipped ends and give the extreme beyond them.
+//! their clipped ends and give the extreme beyond them. Given the surface
+//! pressures, the Cp picture takes the surface pictures' scale, so that a
+//! colour means one Cp in every picture of a run (a review read the
+//! slices' -1 to 1 beside the surface's -1.5 to 1).
 
 use std::collections::HashMap;
 
@@ -321,7 +324,8 @@ impl SliceFrame {
     }
 }
 
-/// Draw a slice picture: |V|/U above, Cp below.
+/// Draw a slice picture: |V|/U above, Cp below, Cp on the scale of
+/// `surface_cp` when given (the surface pictures'), else its own.
 ///
 /// # Errors
 /// [`OutputError::EmptySlice`] or [`OutputError::LengthMismatch`] for a
@@ -329,8 +333,9 @@ impl SliceFrame {
 pub fn slice_picture(
     slice: &Slice,
     caption: &Caption,
+    surface_cp: Option<&[f64]>,
 ) -> Result<(Canvas, [SliceFrame; 2]), OutputError> {
-    slice_picture_with_params(slice, caption, &SliceParams::default())
+    slice_picture_with_params(slice, caption, surface_cp, &SliceParams::default())
 }
 
 /// [`slice_picture`] with an explicit size.
@@ -340,6 +345,7 @@ pub fn slice_picture(
 pub fn slice_picture_with_params(
     slice: &Slice,
     caption: &Caption,
+    surface_cp: Option<&[f64]>,
     params: &SliceParams,
 ) -> Result<(Canvas, [SliceFrame; 2]), OutputError> {
     slice.validate()?;
@@ -360,7 +366,16 @@ pub fn slice_picture_with_params(
     ];
     let scales = [
         ColourScale::speed_ratio(&away[0]).mark_clipped(&finite(&painted[0])),
-        ColourScale::cp(&away[1]).mark_clipped(&finite(&painted[1])),
+        surface_cp
+            .map_or_else(
+                || ColourScale::cp(&away[1]),
+                |cp| {
+                    let mut own = ColourScale::cp(cp);
+                    own.clipped = (None, None);
+                    own
+                },
+            )
+            .mark_clipped(&finite(&painted[1])),
     ];
     let speed_name = format!("Speed |V|/U (1 = {} m/s)", short_number(u));
     let names = [speed_name.as_str(), "Pressure coefficient Cp"];
@@ -747,7 +762,7 @@ mod tests {
     #[test]
     fn sphere_slice_shows_body_stagnation_and_free_stream() {
         let slice = centre_plane();
-        let (canvas, frames) = slice_picture(&slice, &caption()).unwrap();
+        let (canvas, frames) = slice_picture(&slice, &caption(), None).unwrap();
         let png = canvas.to_png().unwrap();
         keep("slice.png", &png);
         let img = decode(&png);
@@ -813,7 +828,7 @@ mod tests {
             }
         }
         assert!(marked as f64 > 0.01 * slice.len() as f64, "{marked}");
-        let (canvas, frames) = slice_picture(&slice, &caption()).unwrap();
+        let (canvas, frames) = slice_picture(&slice, &caption(), None).unwrap();
         let png = canvas.to_png().unwrap();
         keep("slice-clipped.png", &png);
         let img = decode(&png);
@@ -830,6 +845,30 @@ mod tests {
                 "{got:?} vs {want:?}"
             );
         }
+    }
+
+    /// Given the surface pressures, the Cp picture takes their scale (a
+    /// sphere's surface reaches Lamb's -1.25 at its equator, and here a
+    /// sharper body's -2.5), so a colour means one Cp in every picture:
+    /// above the centre at r = 1.3, Lamb's Cp = 1 - (1 + 1/(2 r^3))^2 =
+    /// -0.51 (Hydrodynamics, sec. 92) is painted in the surface scale's
+    /// colour, not the slice's own.
+    #[test]
+    fn the_cp_picture_takes_the_surface_scale() {
+        let slice = centre_plane();
+        let surface = [-2.5, -1.0, 0.0, 1.0];
+        let (canvas, frames) = slice_picture(&slice, &caption(), Some(&surface)).unwrap();
+        let img = decode(&canvas.to_png().unwrap());
+        let r: f64 = 1.3;
+        let cp = 1.0 - (1.0 + 0.5 / r.powi(3)).powi(2);
+        let (px, py) = frames[1].pixel_at(3.0 / 0.05, (1.5 + r) / 0.05);
+        let got = img.pixel(px as i64, py as i64);
+        let near =
+            |want: Rgb| (0..3).all(|ch| (i32::from(got[ch]) - i32::from(want[ch])).abs() <= 6);
+        let shared = ColourScale::cp(&surface).colour(cp).unwrap();
+        let own = ColourScale::cp(&[-1.0, 1.0]).colour(cp).unwrap();
+        assert!(near(shared), "{got:?} vs {shared:?}");
+        assert!(!near(own), "{got:?} is the slice's own scale's {own:?}");
     }
 
     /// A sphere whose rear half is separated: a point on the axis behind
