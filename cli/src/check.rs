@@ -588,16 +588,16 @@ fn read_lines(r: &PrepareReport) -> String {
     }
     if r.mirrors.cut_vertices_moved > 0 {
         s += &format!(
-            "           cut: {} vertices within {:.1} mm of y = 0 moved onto it (largest move {})\n",
-            r.mirrors.cut_vertices_moved,
+            "           cut: {} within {:.1} mm of y = 0 moved onto it (largest move {})\n",
+            crate::output::plural(r.mirrors.cut_vertices_moved, "vertex", "vertices"),
             1000.0 * tuft_mesh::prepare::CUT_TOLERANCE * diagonal(r),
             move_text(r.mirrors.cut_largest_move)
         );
     }
     if r.mirrors.ground_vertices_moved > 0 {
         s += &format!(
-            "           ground: {} vertices of the border on the ground moved onto it (largest move {})\n",
-            r.mirrors.ground_vertices_moved,
+            "           ground: {} of the border on the ground moved onto it (largest move {})\n",
+            crate::output::plural(r.mirrors.ground_vertices_moved, "vertex", "vertices"),
             move_text(r.mirrors.ground_largest_move)
         );
     }

@@ -242,6 +242,26 @@ pub enum MeshError {
         /// What the user can do.
         advice: String,
     },
+    /// A half model closed by a flat face parallel to its symmetry plane,
+    /// off it by more than the cut tolerance: mirrored, a slot would run
+    /// down the middle of the body.
+    #[error(
+        "mirror plane problem: this half model is closed by a flat face of {area:.2} m^2 at y = {y:.4} m, \
+         {y_mm:.1} mm off the symmetry plane y = 0 (up to {moved_mm:.1} mm is moved onto it): mirrored, it \
+         would leave a slot {slot_mm:.1} mm wide down the middle of the body; move the cut onto y = 0 in \
+         the modeller (a face lying on y = 0 is dropped, since the mirror image closes the cut)",
+        y_mm = 1000.0 * y,
+        moved_mm = 1000.0 * moved,
+        slot_mm = 2000.0 * y
+    )]
+    CapOffSymmetryPlane {
+        /// Where the flat face lies, metres.
+        y: f64,
+        /// Its area, m^2.
+        area: f64,
+        /// How far a cut is moved onto y = 0, metres.
+        moved: f64,
+    },
     /// Wrapping found no inside at all.
     #[error(
         "wrapping the surface into one outer surface found no inside: every part is thinner than the \

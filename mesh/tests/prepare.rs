@@ -65,8 +65,10 @@ fn half_sphere_in_millimetres_with_symmetry() {
 
 /// A half model exported closed, its cut capped by a flat face on y = 0:
 /// the cap goes (the mirror image closes the cut), leaving the area of the
-/// open half, with a note (a review's capped half had kept its cap as a
-/// wall across the mirrored body: C_D 0.187 against 0.228 open).
+/// open half (Archimedes' hemisphere, the same faceted surface), with a
+/// note (a review's capped half had kept its cap as a wall across the
+/// mirrored body: C_D 0.187 against 0.228 open); run whole, it is warned
+/// about; a little off the plane it is moved onto it, further refused.
 #[test]
 fn a_half_model_capped_on_the_plane_loses_its_cap() {
     let mut half = cut(&generate::latlong_sphere(1.0, 24, 48), |c| c.y > 0.0);
@@ -81,12 +83,54 @@ fn a_half_model_capped_on_the_plane_loses_its_cap() {
     for (a, b) in uses {
         half.triangles.push([b, a, centre]);
     }
-    let (_, capped) = tuft_mesh::prepare::prepare_mesh(half, None, &half_in_metres()).unwrap();
+    let (_, capped) =
+        tuft_mesh::prepare::prepare_mesh(half.clone(), None, &half_in_metres()).unwrap();
     assert!(
         (capped.area - open.area).abs() < 1e-9,
         "{} {}",
         capped.area,
         open.area
+    );
+    // Run whole, it is warned about as a half model not declared.
+    let whole = PrepareParams {
+        mirrors: Mirrors::none(),
+        ..half_in_metres()
+    };
+    let (_, undeclared) = tuft_mesh::prepare::prepare_mesh(half.clone(), None, &whole).unwrap();
+    assert!(
+        undeclared
+            .quality
+            .warnings
+            .iter()
+            .any(|w| w.contains("half model exported with its cut capped")),
+        "{:?}",
+        undeclared.quality.warnings
+    );
+    // Moved off the plane (the body's diagonal is 3 m: 3 mm are moved
+    // onto the cut, up to 15 mm is named as off it): 2 mm off, the cap is
+    // moved onto y = 0 and dropped; 10 mm off, refused with the offset,
+    // since the mirror image would leave a slot 20 mm wide.
+    let off = |dy: f64| {
+        let mut m = half.clone();
+        m.map_vertices(|p| Point::new(p.x, p.y + dy, p.z));
+        tuft_mesh::prepare::prepare_mesh(m, None, &half_in_metres())
+    };
+    let (_, near) = off(0.002).unwrap();
+    assert!(
+        (near.area - open.area).abs() < 1e-2 * open.area,
+        "{} {}",
+        near.area,
+        open.area
+    );
+    assert!(near.mirrors.cut_largest_move > 0.0019, "{:?}", near.mirrors);
+    let err = off(0.010).unwrap_err();
+    assert!(
+        matches!(err, MeshError::CapOffSymmetryPlane { .. }),
+        "{err}"
+    );
+    assert!(
+        err.to_string().contains("10.0 mm off the symmetry plane"),
+        "{err}"
     );
     assert!(
         capped

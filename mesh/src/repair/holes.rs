@@ -115,7 +115,7 @@ pub struct RefusedHole {
 /// the diagonal by default, so 50 of them make 0.5 % of it, 24 mm on a
 /// 4.8 m car; our choice): a review's half model cut at y = 8 mm was told
 /// only to cap a hole.
-const OFF_PLANE_TOLERANCES: f64 = 50.0;
+pub(crate) const OFF_PLANE_TOLERANCES: f64 = 50.0;
 
 /// The refused holes as one line: centre, perimeter and reason of each, up
 /// to ten, then how many more.

@@ -34,6 +34,7 @@ pub use compact::remove_unused_vertices;
 pub use degenerate::{DegenerateReport, drop_degenerate};
 pub use duplicates::drop_duplicates;
 pub use fins::drop_fins;
+pub(crate) use holes::OFF_PLANE_TOLERANCES;
 pub use holes::{
     HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, close_holes, describe_refused,
     hole_advice,
