@@ -533,10 +533,19 @@ pub fn prepare_mesh(
             ));
         }
         if repair.weld_widened > 1.0 {
+            let why = if repair.open_before_widening > crate::repair::MOSTLY_OPEN {
+                "the STL's facets did not share their corners (each written apart, most edges open)"
+                    .to_string()
+            } else {
+                format!(
+                    "a few of the STL's corners only nearly met ({:.2} % of the edges were left open by \
+                     the usual weld)",
+                    100.0 * repair.open_before_widening
+                )
+            };
             q.notes.push(format!(
-                "the STL's facets did not share their corners (each written apart, most edges open): \
-                 corners within {:.2} mm were welded, {:.0} times the usual tolerance; if the body has \
-                 real detail finer than that, export it with shared vertices",
+                "{why}: corners within {:.2} mm were welded, {:.0} times the usual tolerance; if the body \
+                 has real detail finer than that, export it with shared vertices",
                 1000.0 * repair.weld_tolerance,
                 repair.weld_widened
             ));
