@@ -390,6 +390,63 @@ fn turned_warning(panels: &PanelMesh) -> Option<String> {
     })
 }
 
+/// Where the enclosed volume's centroid lies across y and up z, each as a
+/// fraction of the body's extent from its box's middle (divergence
+/// theorem on the panels, one point each: V = sum A n_k c_k and the
+/// centroid's c_k = sum A n_k c_k^2 / 2V); `None` for a body enclosing no
+/// volume.
+fn centroid_offsets(panels: &PanelMesh) -> Option<(f64, f64)> {
+    let (lo, hi) = panels.bounds();
+    let along = |k: usize| {
+        let (mut v, mut m) = (0.0, 0.0);
+        for p in &panels.panels {
+            let c = p.centroid[k] - 0.5 * (lo[k] + hi[k]);
+            v += p.area * p.normal[k] * c;
+            m += p.area * p.normal[k] * c * c / 2.0;
+        }
+        (v > 0.0 && hi[k] > lo[k]).then(|| m / v / (hi[k] - lo[k]))
+    };
+    Some((along(1)?, along(2)?))
+}
+
+/// How near, as a fraction of its height, a whole body's centroid may lie
+/// to its box's middle in z and read as symmetric top to bottom (our
+/// choice, from a review's generated vehicles and the demo coupe: whole
+/// bodies read 0.00002 or less across y, cars 0.03 to 0.14 in z, van
+/// and bus boxes 0.001 to 0.007; a y-up file read as z up swaps the two).
+pub const UP_AXIS_SYMMETRIC: f64 = 0.01;
+
+/// How far a whole body's centroid must lie off its box's middle across y,
+/// as a fraction of its width, to read as lopsided side to side (our
+/// choice: a y-up van read 0.032, a y-up saloon 0.108; a part on one side
+/// only moves the box's middle, 0.02 to 0.07 for a door mirror 25 to 150
+/// mm off, but a car with one is lopsided top to bottom as well).
+pub const UP_AXIS_LOPSIDED: f64 = 0.025;
+
+/// A warning when a whole body is lopsided across y and symmetric top to
+/// bottom, as a car is the other way round: a file with y up read as z
+/// up (a review's y-up saloon, 1.4 times as tall as wide in the wrong
+/// axes, was not caught by [`upright_warning`] and ran lying on its side).
+fn up_axis_warning(panels: &PanelMesh, params: &PrepareParams) -> Option<String> {
+    if params.mirrors.symmetry {
+        return None;
+    }
+    let (across, up) = centroid_offsets(panels)?;
+    (across.abs() > UP_AXIS_LOPSIDED && up.abs() < UP_AXIS_SYMMETRIC).then(|| {
+        let fix = if params.axes.y_up {
+            "it was read with y up: if the file has z up, drop geometry.up (tuft check: leave out --up)"
+        } else {
+            "if the file has y up, set geometry.up = \"y\" (tuft check: --up y)"
+        };
+        format!(
+            "the body is symmetric top to bottom (its volume's centre {:.1} % of its height from the middle) \
+             and lopsided side to side ({:.1} % of its width), where a car is the other way round: {fix}",
+            100.0 * up.abs(),
+            100.0 * across.abs()
+        )
+    })
+}
+
 /// Prepare a mesh already in memory (in `params.units`).
 ///
 /// # Errors
@@ -615,7 +672,14 @@ pub fn prepare_mesh(
         if let Some(w) = capped_half {
             q.add_warning(w);
         }
+        let up_axis = up_axis_warning(&panels, params);
+        let wrong_up = up_axis.is_some();
+        if let Some(w) = up_axis {
+            q.add_warning(w);
+        }
+        // A y-up body read as z up has no centre line to turn.
         if !params.mirrors.symmetry
+            && !wrong_up
             && let Some(w) = turned_warning(&panels)
         {
             q.add_warning(w);
@@ -1057,6 +1121,26 @@ mod tests {
             .parse()
             .unwrap();
         assert!((1.0..=2.5).contains(&deg), "{w}");
+    }
+
+    /// A y-up car read as z up is symmetric top to bottom and lopsided
+    /// side to side (a car's bulk sits low: the demo coupe's volume centre
+    /// lies 8.8 % of its height below its box's middle, and 0.0 % across);
+    /// the coupe itself, an ellipsoid and a box are not warned about.
+    #[test]
+    fn a_car_read_with_y_up_is_warned_about() {
+        let coupe = crate::generate::coupe(28.0, 3000).unwrap();
+        let panels = |m: &TriMesh| PanelMesh::new(m.clone(), Mirrors::none()).unwrap();
+        let plain = PrepareParams::default();
+        assert!(up_axis_warning(&panels(&coupe), &plain).is_none());
+        let mut on_side = coupe.clone();
+        on_side.map_vertices(|p| Point::new(p.x, p.z, -p.y));
+        let w = up_axis_warning(&panels(&on_side), &plain).unwrap();
+        assert!(w.contains("set geometry.up = \"y\""), "{w}");
+        let (across, up) = centroid_offsets(&panels(&coupe)).unwrap();
+        assert!(across.abs() < 1e-3 && up < -0.03, "{across} {up}");
+        let ellipsoid = crate::generate::ellipsoid(2.0, 0.9, 0.6, 2000).unwrap();
+        assert!(up_axis_warning(&panels(&ellipsoid), &plain).is_none());
     }
 
     /// A car read with the wrong up axis stands taller than wide; a car, a
