@@ -219,6 +219,9 @@ fn print_summary(out: &Path, s: &Summary) {
     for n in s.notes.iter().filter(|n| read_as_assumed(n)) {
         say!("  note: {n}");
     }
+    if let Some(n) = s.gaps_closed() {
+        say!("  note: {n}");
+    }
     for w in &s.warnings {
         say!("  warning: {w}");
     }
