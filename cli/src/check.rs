@@ -465,10 +465,13 @@ fn json_report(r: &PrepareReport) -> anyhow::Result<serde_json::Value> {
     Ok(v)
 }
 
-/// Whether the verdict is doubtful: panels crossing each other, or most
-/// of the surface cut in slivers.
+/// Whether the verdict is doubtful: panels crossing each other, most of
+/// the surface cut in slivers, or the floor standing on the ground (a
+/// review's ground set 10 mm into the floor had read usable).
 fn doubtful(r: &PrepareReport) -> bool {
-    r.folded || r.quality.slivers_dominate()
+    r.folded
+        || r.quality.slivers_dominate()
+        || crate::pipeline::floor_on_ground_warning(r).is_some()
 }
 
 /// The closing line: usable; with warnings, usable with a pointer to them
@@ -480,6 +483,12 @@ fn verdict(r: &PrepareReport) -> String {
     let warnings = &r.quality.warnings;
     match (warnings.len(), r.folded) {
         (0, _) => "verdict    usable\n".to_string(),
+        (_, false) if crate::pipeline::floor_on_ground_warning(r).is_some() => {
+            "verdict    doubtful: the body's floor stands on the ground or all but (above), as no car's \
+             does; the ground is probably set too high: set it at the road under the tyres (ground.z, \
+             --ground)\n"
+                .to_string()
+        }
         (_, false) if r.quality.slivers_dominate() => "verdict    doubtful: most of the surface is cut in \
              slivers (above), so every pressure and load is unsure; export it with even triangles or ask \
              for fewer panels\n"

@@ -972,7 +972,10 @@ pub fn side_difference_warning(
 /// review's ground raised 10 mm into the demo coupe's floor: 2.75 m^2,
 /// against 0.19 for four wheels).
 pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
-    let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
+    let w = report
+        .wrap
+        .as_ref()
+        .filter(|w| w.contact_area > 0.0 || w.open_area > 0.0)?;
     // A body cut at its floor, the cut closed by the ground's mirror image,
     // stands on the road as the README offers: drawn so, not set too high
     // (a review's box van cut at its floor had been told otherwise).
@@ -985,7 +988,20 @@ pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Op
     if cut_at_floor {
         return None;
     }
-    let plan = floor_contact(w.contact_area, report.bounds)?;
+    let Some(plan) = floor_contact(w.contact_area, report.bounds) else {
+        // A floor within the contact distance of the ground over more
+        // than tyres would, left open by the wrap: no car's floor is so
+        // low (a review's ground set at the floor's height read usable).
+        let plan = floor_contact(w.open_area, report.bounds)?;
+        return Some(format!(
+            "the body's underside lies within {:.0} mm of the ground over {:.2} m^2, {:.0} % of its plan \
+             area: its floor stands on the ground or all but, as no car's does; the ground is probably \
+             set too high for this body (ground.z, or a ride height too small)",
+            1000.0 * w.contact_gap,
+            w.open_area,
+            100.0 * w.open_area / plan
+        ));
+    };
     Some(format!(
         "the body meets the ground over {:.2} m^2, {:.0} % of its plan area, far more than tyres \
          make: its floor lies on or below the ground plane, which the wrap cut off there, so the \
@@ -1002,10 +1018,10 @@ pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Op
 /// and the flow through its arch are outside the model ([`WHEELS_DRAG`]),
 /// and a gap to the ground finer than the panels is closed.
 pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
-    let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
     if let Some(floor) = floor_on_ground_warning(report) {
         return Some(floor);
     }
+    let w = report.wrap.as_ref().filter(|w| w.contact_area > 0.0)?;
     Some(format!(
         "the body stands on the ground over {:.3} m^2 (its tyres, or any underside within {:.0} mm of the \
          ground, which panels of this size cannot resolve and the wrap closed); {WHEELS_DRAG}; the \

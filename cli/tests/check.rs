@@ -366,6 +366,30 @@ fn a_floor_on_the_ground_is_warned_about_before_running() {
         stdout.contains("warning: the body meets the ground over"),
         "{stdout}"
     );
+    // Doubtful, exit 1 (a review's had read "usable"); so is a ground at
+    // the floor's height (the coupe's floor is 0.12 m up), which the wrap
+    // leaves open; the coupe at its own ground is usable.
+    assert!(
+        stdout.contains("verdict    doubtful: the body's floor stands on the ground"),
+        "{stdout}"
+    );
+    assert_eq!(out.status.code(), Some(1));
+    let at_floor = check(&[
+        stl.to_str().unwrap(),
+        "--ground",
+        "0.12",
+        "--panels",
+        "2000",
+    ]);
+    let text = String::from_utf8_lossy(&at_floor.stdout);
+    assert!(
+        text.contains("warning: the body's underside lies within"),
+        "{text}"
+    );
+    assert_eq!(at_floor.status.code(), Some(1), "{text}");
+    let own = check(&[stl.to_str().unwrap(), "--ground", "0.0", "--panels", "2000"]);
+    let text = String::from_utf8_lossy(&own.stdout);
+    assert!(text.contains("verdict    usable"), "{text}");
 }
 
 /// A case with a built-in shape is checked as the run generates it, and
