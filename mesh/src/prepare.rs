@@ -875,21 +875,28 @@ fn undeclared_cap_warning(mesh: &TriMesh, params: &PrepareParams) -> Option<Stri
         return None;
     }
     let (lo, hi) = mesh.bounds()?;
-    let tol = params.repair.plane_tolerance * (hi - lo).norm();
-    let side = if lo.y.abs() <= tol {
+    let diagonal = (hi - lo).norm();
+    let tol = params.repair.plane_tolerance * diagonal;
+    // As far off as an open cut's rim is named as a declared plane's.
+    let near = crate::repair::OFF_PLANE_TOLERANCES * tol;
+    let side = if lo.y.abs() <= near {
         -1.0
-    } else if hi.y.abs() <= tol {
+    } else if hi.y.abs() <= near {
         1.0
     } else {
         return None;
     };
-    let (_, area, _) = flat_side(mesh, side, tol)?;
+    let (y, area, _) = flat_side(mesh, side, tol)?;
+    let moved = CUT_TOLERANCE * diagonal;
     Some(format!(
-        "the body lies wholly in y {} 0 and its side on y = 0 is one flat face of {area:.2} m^2: if it is a \
-         half model exported with its cut capped, declare the symmetry plane (geometry.half_model = true, \
-         --half; the face on y = 0 is then dropped and the mirror image closes the cut), or it runs as a \
-         body half as wide; a whole body with a flat side on y = 0 runs as it is",
-        if side < 0.0 { ">=" } else { "<=" }
+        "the body lies wholly in y {} 0 and its side nearest the plane is one flat face of {area:.2} m^2, \
+         {:.1} mm off y = 0: if it is a half model exported with its cut capped, declare the symmetry \
+         plane (geometry.half_model = true, --half: a cap within {:.1} mm of y = 0 is then dropped and \
+         the mirror image closes the cut; one further off must be moved onto y = 0 in the modeller \
+         first), or it runs as a body half as wide; a whole body with a flat side there runs as it is",
+        if side < 0.0 { ">=" } else { "<=" },
+        1000.0 * y.abs(),
+        1000.0 * moved
     ))
 }
 

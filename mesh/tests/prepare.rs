@@ -61,6 +61,24 @@ fn half_sphere_in_millimetres_with_symmetry() {
         },
     );
     assert!(matches!(refused, Err(MeshError::OpenHole { .. })));
+    // Its cut 2 mm off y = 0 (within the 3 mm, a thousandth of its
+    // diagonal, that a declared half model's cut is moved onto it): still
+    // asked whether it is a half model.
+    let mut off = half.clone();
+    off.map_vertices(|p| Point::new(p.x, p.y + 2.0, p.z));
+    let path = common::write(dir.path(), "off.stl", &common::binary_stl(&off));
+    let refused = prepare(
+        &path,
+        &PrepareParams {
+            mirrors: Mirrors::none(),
+            ..params
+        },
+    )
+    .unwrap_err();
+    assert!(
+        refused.to_string().contains("flat on or beside y = 0"),
+        "{refused}"
+    );
 }
 
 /// A half model exported closed, its cut capped by a flat face on y = 0:
@@ -103,6 +121,19 @@ fn a_half_model_capped_on_the_plane_loses_its_cap() {
             .warnings
             .iter()
             .any(|w| w.contains("half model exported with its cut capped")),
+        "{:?}",
+        undeclared.quality.warnings
+    );
+    // So is it 10 mm off the plane, as far as a cut is named as off it.
+    let mut off_plane = half.clone();
+    off_plane.map_vertices(|p| Point::new(p.x, p.y + 0.010, p.z));
+    let (_, undeclared) = tuft_mesh::prepare::prepare_mesh(off_plane, None, &whole).unwrap();
+    assert!(
+        undeclared
+            .quality
+            .warnings
+            .iter()
+            .any(|w| w.contains("10.0 mm off y = 0: if it is a half model")),
         "{:?}",
         undeclared.quality.warnings
     );
