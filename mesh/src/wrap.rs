@@ -106,12 +106,19 @@ pub struct WrapReasons {
     /// The body's lowest point above the ground (metres, negative below
     /// it) when it is within the contact distance.
     pub ground_gap: Option<f64>,
+    /// Pairs of parts, neither crossing nor enclosing another, that come
+    /// closer to each other than the gaps the wrap closes (a tyre in its
+    /// arch with no ground declared), see [`GAP_NODES`].
+    pub near_pairs: usize,
 }
 
 impl WrapReasons {
     /// True when any reason holds.
     pub fn any(&self) -> bool {
-        self.overlapping_pairs > 0 || self.enclosed_parts > 0 || self.ground_gap.is_some()
+        self.overlapping_pairs > 0
+            || self.enclosed_parts > 0
+            || self.ground_gap.is_some()
+            || self.near_pairs > 0
     }
 }
 
@@ -180,6 +187,16 @@ impl WrapReport {
                     "s lie"
                 }
             ));
+        }
+        if r.near_pairs > 0 {
+            why.push(if r.near_pairs == 1 {
+                "a pair of parts comes within about four cells of each other".to_string()
+            } else {
+                format!(
+                    "{} pairs of parts come within about four cells of each other",
+                    r.near_pairs
+                )
+            });
         }
         if let Some(gap) = r.ground_gap {
             let mm = 1000.0 * gap.abs();
@@ -368,11 +385,82 @@ pub fn reasons(
         .iter()
         .flat_map(|c| [part[c.facet], part[c.other]])
         .collect();
+    let enclosed = enclosed_parts(mesh, &part, &crossing_parts);
+    // Only worth the search when nothing else calls for the wrap.
+    let near_pairs = if overlapping.is_empty() && enclosed == 0 && ground_gap.is_none() {
+        near_pairs(mesh, &part, (GAP_NODES + 1) as f64 * h)
+    } else {
+        0
+    };
     WrapReasons {
         overlapping_pairs: overlapping.len(),
-        enclosed_parts: enclosed_parts(mesh, &part, &crossing_parts),
+        enclosed_parts: enclosed,
         ground_gap,
+        near_pairs,
     }
+}
+
+/// Most vertices of a part tested against another part in [`near_pairs`]
+/// (evenly spread): enough for a tyre's tread (our choice).
+const NEAR_SAMPLES: usize = 20_000;
+
+/// Pairs of parts (`part`: each facet's) that come within `reach` of each
+/// other: for each pair whose boxes, widened by `reach`, overlap, the
+/// smaller part's vertices (up to [`NEAR_SAMPLES`]) against the larger's
+/// facets.
+fn near_pairs(mesh: &TriMesh, part: &[usize], reach: f64) -> usize {
+    let mut facets: HashMap<usize, Vec<[u32; 3]>> = HashMap::new();
+    for (t, &p) in part.iter().enumerate() {
+        facets.entry(p).or_default().push(mesh.triangles[t]);
+    }
+    let mut parts: Vec<(usize, Vec<[u32; 3]>)> = facets.into_iter().collect();
+    parts.sort_by_key(|(p, _)| *p);
+    let boxes: Vec<(Point, Point)> = parts
+        .iter()
+        .map(|(_, tris)| {
+            let corners = tris.iter().flatten().map(|&v| mesh.vertices[v as usize]);
+            corners.fold(
+                (
+                    Point::from(Vector::repeat(f64::INFINITY)),
+                    Point::from(Vector::repeat(f64::NEG_INFINITY)),
+                ),
+                |(lo, hi), p| (lo.inf(&p), hi.sup(&p)),
+            )
+        })
+        .collect();
+    let mut count = 0;
+    for a in 0..parts.len() {
+        for b in a + 1..parts.len() {
+            let ((alo, ahi), (blo, bhi)) = (boxes[a], boxes[b]);
+            let apart = (0..3).any(|k| alo[k] > bhi[k] + reach || blo[k] > ahi[k] + reach);
+            if apart {
+                continue;
+            }
+            let (small, big) = if parts[a].1.len() <= parts[b].1.len() {
+                (&parts[a].1, &parts[b].1)
+            } else {
+                (&parts[b].1, &parts[a].1)
+            };
+            let target = TriMesh {
+                vertices: mesh.vertices.clone(),
+                triangles: big.clone(),
+            };
+            let Some((lo, hi)) = target.bounds() else {
+                continue;
+            };
+            let grid = crate::distance::SurfaceGrid::new(&target, lo, hi);
+            let mut vertices: Vec<u32> = small.iter().flatten().copied().collect();
+            vertices.sort_unstable();
+            vertices.dedup();
+            let step = vertices.len().div_ceil(NEAR_SAMPLES).max(1);
+            let near = vertices
+                .par_iter()
+                .step_by(step)
+                .any(|&v| grid.distance(&mesh.vertices[v as usize]) < reach);
+            count += usize::from(near);
+        }
+    }
+    count
 }
 
 /// Parts, other than those in `crossing`, with a vertex inside another

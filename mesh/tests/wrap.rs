@@ -819,3 +819,37 @@ fn a_gap_narrower_than_two_cells_is_closed_and_a_wider_one_kept() {
         }
     }
 }
+
+/// Parts that neither cross nor stand on the ground but come within the
+/// gaps the wrap closes (a tyre 20 mm from a wall, no ground declared: a
+/// review's tyres in their arches in free air could not be coarsened) are
+/// a reason to wrap; 100 mm apart they are not. Distances from the
+/// construction: the wall's face at y = 0, the tyre's inner face at y =
+/// gap.
+#[test]
+fn parts_nearly_touching_are_wrapped() {
+    let params = WrapParams {
+        cells_along_length: 100,
+        ..WrapParams::default()
+    };
+    let wall = subdivided(cuboid([-0.6, -0.1, -0.6], [0.6, 0.0, 0.6]), 3);
+    for (gap, near) in [(0.02, true), (0.1, false)] {
+        let tyre = ring([0.08, 0.3], [gap, gap + 0.2], [0.0, 0.0], 96);
+        let parts = join(&wall, &tyre);
+        let why = reasons(&parts, &Mirrors::none(), &params, 1e-9);
+        println!("gap {gap} m: {why:?}");
+        assert_eq!((why.overlapping_pairs, why.enclosed_parts), (0, 0));
+        assert_eq!(why.near_pairs, usize::from(near), "{why:?}");
+        if near {
+            let (w, report) = wrap(&parts, &Mirrors::none(), why, &params);
+            assert_eq!(surface_count(&w), 1);
+            assert!(
+                report
+                    .describe()
+                    .starts_with("a pair of parts comes within"),
+                "{}",
+                report.describe()
+            );
+        }
+    }
+}
