@@ -464,7 +464,7 @@ fn leader_words(rows: &[Row]) -> String {
     if let Some(v) = &first.against_next {
         return if v.resolved && slopes {
             format!(
-                "no clear winner: a rear slope varies across these variants and reaches about {:.0} degrees, \
+                "no clear winner: a rear slope varies across these variants and reaches {:.0} degrees or more, \
                  where the model's drag ranking is not reliable (see the notes below); lowest in this \
                  model: {lowest}, {gap:.1} counts below {}",
                 crate::compare::SLOPE_CAUTION_DEG,
@@ -1294,8 +1294,8 @@ fn slope_spread(c: &[Row]) -> Option<String> {
             .collect();
         crate::compare::slopes_in_doubt(&slopes).map(|(lo, hi)| {
             format!(
-                "The slope of \"{name}\" ranges from {lo:.0} to {hi:.0} degrees across these variants and \
-                 reaches about {:.0}, where the separated-flow model's drag is known to rank rear slopes \
+                "The slope of \"{name}\" ranges from {lo:.0} to {hi:.0} degrees across these variants, \
+                 {:.0} degrees or steeper at the top, where the separated-flow model's drag is known to rank rear slopes \
                  wrongly (in the tunnel a slant-back body's drag peaks near 30 degrees and falls beyond; \
                  the model's keeps rising): read the drag ranking of these slopes as the model's, not \
                  the car's.",

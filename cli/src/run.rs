@@ -185,10 +185,14 @@ fn print_summary(out: &Path, s: &Summary) {
         };
         // One pass: nothing separated, no dead water to give a pressure of
         // (a review's sliver ellipsoid read "dead water at base C_p 0.25").
+        // The dead water's one pressure, as the pictures quote it (the
+        // base's mean, beside it in the report, may include attached
+        // panels: a review read -0.16 here and -0.17 on a plot).
         let base = w
-            .base_cp_loop
+            .dead_water_cp
+            .or(w.base_cp_loop)
             .filter(|_| w.passes > 1)
-            .map_or_else(String::new, |v| format!(", dead water at base C_p {v:.2}"));
+            .map_or_else(String::new, |v| format!(", dead water at C_p {v:.2}"));
         say!(
             "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",
             crate::output::plural(w.passes, "pass", "passes"),

@@ -356,8 +356,9 @@ fn slice_note(c: &Computed) -> String {
         Some(w) if w.passes > 1 => format!(
             "Hatched: dead water behind separated surface (to one body height), which the model holds \
              at {}; the colours there show the stream it lets through instead.",
-            w.base_cp_loop
-                .map(|v| format!("Cp {}", output::short_number(v)))
+            w.dead_water_cp
+                .or(w.base_cp_loop)
+                .map(|v| format!("Cp {v:.2}"))
                 .unwrap_or_else(|| "one pressure".into())
                 .replace('-', "\u{2212}")
         ),

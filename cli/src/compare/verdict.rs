@@ -136,7 +136,7 @@ pub fn drag_verdict_named(
     let separation_differs = doubt.is_some();
     let why = match doubt {
         Some(ModelDoubt::RearSlope) => format!(
-            "a rear slope differs and reaches about {:.0} degrees",
+            "a rear slope differs and reaches {:.0} degrees or more",
             crate::compare::SLOPE_CAUTION_DEG
         ),
         Some(ModelDoubt::Rims) => "the sharp front edges the flow leaves differ".to_owned(),
