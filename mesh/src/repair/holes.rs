@@ -343,7 +343,7 @@ fn take_loop(
             limit,
             reason,
             on_undeclared_symmetry_plane: !s.mirrors.symmetry
-                && flat_y(&mesh.vertices, half, edges, s.plane_tolerance)
+                && flat_at(&mesh.vertices, half, edges, s.plane_tolerance, |p| p.y)
                     .is_some_and(|y| y.abs() <= UNDECLARED_CUT_TOLERANCES * s.plane_tolerance),
             on_undeclared_floor: if s.mirrors.ground.is_none() {
                 on_floor(&mesh.vertices, half, edges, lowest, s.plane_tolerance)
@@ -600,13 +600,20 @@ fn on_plane(
 /// without the question, and declared it ran).
 const UNDECLARED_CUT_TOLERANCES: f64 = 10.0;
 
-/// The y at which the rim lies flat (every vertex within `tol` of one y).
-fn flat_y(vertices: &[Point], half: &[HalfEdge], edges: &[usize], tol: f64) -> Option<f64> {
+/// The coordinate (`coord` of each vertex) at which the rim lies flat:
+/// every vertex within `tol` of one value.
+fn flat_at(
+    vertices: &[Point],
+    half: &[HalfEdge],
+    edges: &[usize],
+    tol: f64,
+    coord: fn(&Point) -> f64,
+) -> Option<f64> {
     let (lo, hi) = edges
         .iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &e| {
-            let y = vertices[half[e].from as usize].y;
-            (l.min(y), h.max(y))
+            let c = coord(&vertices[half[e].from as usize]);
+            (l.min(c), h.max(c))
         });
     (hi - lo <= tol).then_some(0.5 * (lo + hi))
 }
@@ -621,26 +628,18 @@ fn off_plane(
     s: &HoleSettings,
 ) -> Option<(char, f64, f64)> {
     let tol = s.plane_tolerance;
-    let flat_at = |coord: fn(&Point) -> f64| {
-        let (lo, hi) = edges
-            .iter()
-            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &e| {
-                let c = coord(&vertices[half[e].from as usize]);
-                (l.min(c), h.max(c))
-            });
-        (hi - lo <= tol).then_some(0.5 * (lo + hi))
-    };
+    let flat = |coord: fn(&Point) -> f64| flat_at(vertices, half, edges, tol, coord);
     let near = |at: f64, plane: f64| {
         (at - plane).abs() > tol && (at - plane).abs() <= OFF_PLANE_TOLERANCES * tol
     };
     if s.mirrors.symmetry
-        && let Some(y) = flat_at(|p| p.y)
+        && let Some(y) = flat(|p| p.y)
         && near(y, 0.0)
     {
         return Some(('y', y, 0.0));
     }
     let ground = s.mirrors.ground?;
-    let z = flat_at(|p| p.z)?;
+    let z = flat(|p| p.z)?;
     near(z, ground).then_some(('z', z, ground))
 }
 
