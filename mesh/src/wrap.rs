@@ -428,39 +428,57 @@ fn near_pairs(mesh: &TriMesh, part: &[usize], reach: f64) -> usize {
             )
         })
         .collect();
-    let mut count = 0;
+    // The pairs near enough to test, each as (smaller part, larger part).
+    let mut pairs = Vec::new();
     for a in 0..parts.len() {
         for b in a + 1..parts.len() {
             let ((alo, ahi), (blo, bhi)) = (boxes[a], boxes[b]);
-            let apart = (0..3).any(|k| alo[k] > bhi[k] + reach || blo[k] > ahi[k] + reach);
-            if apart {
+            if (0..3).any(|k| alo[k] > bhi[k] + reach || blo[k] > ahi[k] + reach) {
                 continue;
             }
-            let (small, big) = if parts[a].1.len() <= parts[b].1.len() {
-                (&parts[a].1, &parts[b].1)
+            pairs.push(if parts[a].1.len() <= parts[b].1.len() {
+                (a, b)
             } else {
-                (&parts[b].1, &parts[a].1)
-            };
+                (b, a)
+            });
+        }
+    }
+    // Each larger part's facets binned once, however many pairs it is in
+    // (a body with four tyres).
+    let bigs: HashSet<usize> = pairs.iter().map(|&(_, big)| big).collect();
+    let targets: HashMap<usize, TriMesh> = bigs
+        .into_iter()
+        .map(|big| {
             let target = TriMesh {
                 vertices: mesh.vertices.clone(),
-                triangles: big.clone(),
+                triangles: parts[big].1.clone(),
             };
-            let Some((lo, hi)) = target.bounds() else {
-                continue;
+            (big, target)
+        })
+        .collect();
+    let grids: HashMap<usize, crate::distance::SurfaceGrid<'_>> = targets
+        .iter()
+        .filter_map(|(&big, m)| {
+            let (lo, hi) = m.bounds()?;
+            Some((big, crate::distance::SurfaceGrid::new(m, lo, hi)))
+        })
+        .collect();
+    pairs
+        .iter()
+        .filter(|&&(small, big)| {
+            let Some(grid) = grids.get(&big) else {
+                return false;
             };
-            let grid = crate::distance::SurfaceGrid::new(&target, lo, hi);
-            let mut vertices: Vec<u32> = small.iter().flatten().copied().collect();
+            let mut vertices: Vec<u32> = parts[small].1.iter().flatten().copied().collect();
             vertices.sort_unstable();
             vertices.dedup();
             let step = vertices.len().div_ceil(NEAR_SAMPLES).max(1);
-            let near = vertices
+            vertices
                 .par_iter()
                 .step_by(step)
-                .any(|&v| grid.distance(&mesh.vertices[v as usize]) < reach);
-            count += usize::from(near);
-        }
-    }
-    count
+                .any(|&v| grid.distance(&mesh.vertices[v as usize]) < reach)
+        })
+        .count()
 }
 
 /// Parts, other than those in `crossing`, with a vertex inside another
