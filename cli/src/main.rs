@@ -37,6 +37,7 @@ mod outdir;
 mod output;
 mod pipeline;
 mod progress;
+mod rays;
 mod region;
 mod run;
 mod slurm;

@@ -4,7 +4,8 @@
 //!
 //! A region is every panel whose centroid lies in the given coordinate
 //! ranges (metres, the body as solved: after `geometry.units`) and whose
-//! outward normal faces the given way. On a half model the mirror half's
+//! outward normal faces the given way, seen from that way (nothing of the
+//! body stands in front of it there). On a half model the mirror half's
 //! panels count too (each real panel is tested as itself and as its
 //! image), so a region means the same on a half and on a whole body.
 
@@ -242,25 +243,86 @@ fn inside(r: &RegionSection, c: &Point, n: &Vector) -> bool {
     within(r.x, c.x) && within(r.y, c.y) && within(r.z, c.z) && faces
 }
 
-/// A panel's centroid and normal, and its mirror image's on a half model
-/// (a region means the same on a half and on a whole body).
-fn copies(mesh: &PanelMesh, p: &tuft_mesh::Panel) -> Vec<(Point, Vector)> {
-    let (c, n) = (p.centroid, p.normal.into_inner());
-    let mut out = vec![(c, n)];
-    if mesh.mirrors.symmetry {
-        out.push((Point::new(c.x, -c.y, c.z), Vector::new(n.x, -n.y, n.z)));
+/// Every panel's centroid and normal, then on a half model every mirror
+/// image's (a region means the same on a half and on a whole body): the
+/// order of [`crate::output::render::display_triangles`].
+fn copies(mesh: &PanelMesh) -> Vec<(Point, Vector)> {
+    let real = mesh
+        .panels
+        .iter()
+        .map(|p| (p.centroid, p.normal.into_inner()));
+    let images = mesh
+        .panels
+        .iter()
+        .filter(|_| mesh.mirrors.symmetry)
+        .map(|p| {
+            let (c, n) = (p.centroid, p.normal);
+            (Point::new(c.x, -c.y, c.z), Vector::new(n.x, -n.y, n.z))
+        });
+    real.chain(images).collect()
+}
+
+/// Which of [`copies`] belong to region `r`: centroid in its ranges,
+/// normal within 60 degrees of its facing ([`FACING_COS`]), and, when it
+/// gives a facing, seen from that side: a ray from the centroid that way
+/// meets no other panel of the body (mirror images included). A region
+/// "facing up" over a rear window is the surface seen from above, not
+/// also the tyre tops under the wheel arches' roofs (a review's
+/// hatchback) or a deck under a wing.
+fn members(r: &RegionSection, mesh: &PanelMesh) -> Vec<bool> {
+    use rayon::prelude::*;
+    let copies = copies(mesh);
+    let mut member: Vec<bool> = copies.iter().map(|(c, n)| inside(r, c, n)).collect();
+    let Some(facing) = r.facing.as_deref().and_then(facing_vector) else {
+        return member;
+    };
+    let tris: Vec<[nalgebra::Point3<f64>; 3]> = mesh
+        .panels
+        .iter()
+        .map(|p| p.vertices)
+        .chain(
+            mesh.panels
+                .iter()
+                .filter(|_| mesh.mirrors.symmetry)
+                .map(|p| p.vertices.map(|q| Point::new(q.x, -q.y, q.z))),
+        )
+        .collect();
+    // "side" looks out of either side: each panel along its own.
+    for dir in [facing, -facing] {
+        if dir != facing && r.facing.as_deref() != Some("side") {
+            continue;
+        }
+        let bins = crate::rays::RayBins::new(&tris, &dir);
+        let hidden: Vec<bool> = copies
+            .par_iter()
+            .zip(&member)
+            .enumerate()
+            .map(|(k, ((c, n), &m))| {
+                m && n.dot(&dir) > 0.0
+                    && bins.along(c).iter().any(|&t| {
+                        t as usize != k
+                            && crate::rays::ray_hits(c, &dir, &tris[t as usize]).is_some()
+                    })
+            })
+            .collect();
+        for (m, h) in member.iter_mut().zip(hidden) {
+            *m &= !h;
+        }
     }
-    out
+    member
 }
 
 /// How many panels (counting a half model's mirror images, as
 /// [`evaluate`] does) and how much area a region holds on `mesh`.
 pub fn extent(r: &RegionSection, mesh: &PanelMesh) -> (usize, f64) {
-    mesh.panels
+    let n = mesh.len();
+    members(r, mesh)
         .iter()
-        .flat_map(|p| copies(mesh, p).into_iter().map(move |cn| (p.area, cn)))
-        .filter(|(_, (c, n))| inside(r, c, n))
-        .fold((0, 0.0), |(k, a), (area, _)| (k + 1, a + area))
+        .enumerate()
+        .filter(|(_, m)| **m)
+        .fold((0, 0.0), |(k, a), (i, _)| {
+            (k + 1, a + mesh.panels[i % n].area)
+        })
 }
 
 /// Refuse a region that holds no panel of `mesh` (ranges in millimetres,
@@ -300,13 +362,7 @@ pub fn marks(
     regions
         .iter()
         .map(|r| {
-            let copies: Vec<Vec<(Point, Vector)>> =
-                mesh.panels.iter().map(|p| copies(mesh, p)).collect();
-            let layers = if mesh.mirrors.symmetry { 2 } else { 1 };
-            let member = (0..layers)
-                .flat_map(|k| copies.iter().map(move |c| c[k]))
-                .map(|(c, n)| inside(r, &c, &n))
-                .collect();
+            let member = members(r, mesh);
             crate::output::outline::RegionMark {
                 name: r.name.clone(),
                 member,
@@ -326,19 +382,22 @@ pub fn evaluate(
         .map(|r| {
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
             let mut slopes: Vec<(f64, f64)> = Vec::new();
-            for (p, l) in mesh.panels.iter().zip(&layer.panels) {
-                for (c, n) in copies(mesh, p) {
-                    if inside(r, &c, &n) {
-                        panels += 1;
-                        area += p.area;
-                        if n.x > 0.05 && n.z > 0.1 {
-                            slopes.push((n.x.atan2(n.z).to_degrees(), p.area));
-                        }
-                        risk += p.area * l.risk;
-                        if l.state == FlowState::Separated {
-                            separated += p.area;
-                        }
-                    }
+            let n_real = mesh.len();
+            for ((k, (_, n)), _) in copies(mesh)
+                .into_iter()
+                .enumerate()
+                .zip(members(r, mesh))
+                .filter(|(_, m)| *m)
+            {
+                let (p, l) = (&mesh.panels[k % n_real], &layer.panels[k % n_real]);
+                panels += 1;
+                area += p.area;
+                if n.x > 0.05 && n.z > 0.1 {
+                    slopes.push((n.x.atan2(n.z).to_degrees(), p.area));
+                }
+                risk += p.area * l.risk;
+                if l.state == FlowState::Separated {
+                    separated += p.area;
                 }
             }
             let share = |x: f64| if area > 0.0 { x / area } else { 0.0 };
@@ -514,6 +573,55 @@ mod tests {
     /// A region means the same on a half model (mirror half counted) as on
     /// the whole body: the generated coupe's rear window, with a made-up
     /// layer separated behind x = 3.4 m and a risk growing along x.
+    /// "Facing up" is the surface seen from above: a small sphere (a tyre
+    /// in its arch) under a large one (the body) adds nothing to an
+    /// upward region, whose area is then the large sphere's cap within 60
+    /// degrees of the vertical, 2 pi R^2 (1 - cos 60) = pi R^2
+    /// (Archimedes' zone area, to the facets' share). From below, the
+    /// small sphere's lower cap is seen and hides the middle of the large
+    /// one's.
+    #[test]
+    fn facing_counts_what_is_seen_from_that_side() {
+        use tuft_mesh::generate::icosphere;
+        use tuft_mesh::{Mirrors, TriMesh};
+        let (big, small) = (icosphere(1.0, 4), icosphere(0.3, 4));
+        let mut vertices: Vec<Point> = big
+            .vertices
+            .iter()
+            .map(|p| Point::new(p.x, p.y, p.z + 2.0))
+            .collect();
+        let offset = vertices.len() as u32;
+        vertices.extend(small.vertices.iter().copied());
+        let mut triangles = big.triangles.clone();
+        triangles.extend(small.triangles.iter().map(|t| t.map(|k| k + offset)));
+        let body = TriMesh::new(vertices, triangles).unwrap_or_else(|e| panic!("{e}"));
+        let mirrors = Mirrors {
+            ground: None,
+            symmetry: false,
+        };
+        let mesh = PanelMesh::new(body, mirrors).unwrap_or_else(|e| panic!("{e}"));
+        let cap = |r: f64| std::f64::consts::PI * r * r;
+        let area = |text: &str| extent(&region(text)[0], &mesh);
+        let (_, up) = area("[[region]]\nname = \"roof\"\nfacing = \"up\"\n");
+        assert!(
+            (up / cap(1.0) - 1.0).abs() < 0.03,
+            "{up} against {}",
+            cap(1.0)
+        );
+        // The small sphere's upper cap alone (9 % more) is hidden whole.
+        let tyre = area("[[region]]\nname = \"tyre\"\nz = [-1.0, 1.0]\nfacing = \"up\"\n");
+        assert_eq!(tyre, (0, 0.0));
+        // From below: the small sphere's lower cap, pi 0.3^2, and the large
+        // one's less its zone within 0.3 of the axis, 2 pi (1 - cos(asin 0.3)).
+        let (_, down) = area("[[region]]\nname = \"floor\"\nfacing = \"down\"\n");
+        let hidden = 2.0 * std::f64::consts::PI * (1.0 - 0.3_f64.asin().cos());
+        let expected = cap(1.0) - hidden + cap(0.3);
+        assert!(
+            (down / expected - 1.0).abs() < 0.03,
+            "{down} against {expected}"
+        );
+    }
+
     #[test]
     fn half_and_whole_bodies_agree() {
         use tuft_mesh::Mirrors;
