@@ -290,11 +290,11 @@ impl Summary {
     pub fn gaps_closed(&self) -> Option<String> {
         let places = self.mesh.preparation["wrap"]["gap_places"].as_array()?;
         let volume = |p: &serde_json::Value| p[0].as_f64().unwrap_or(0.0);
-        let litres = 1000.0 * places.iter().map(volume).sum::<f64>();
+        let litres = tuft_mesh::wrap::litres(places.iter().map(volume).sum::<f64>());
         let first = places.first()?;
         let at = |k: usize| first[1][k].as_f64().unwrap_or(f64::NAN);
         Some(format!(
-            "the wrap closed gaps between parts in {} ({litres:.1} litres of air; the largest near x \
+            "the wrap closed gaps between parts in {} ({litres} litres of air; the largest near x \
              {:.2}, y {:.2}, z {:.2} m), as round a tyre in its arch: the panels take the parts as joined \
              there (the report's wrap note lists the places)",
             crate::output::plural(places.len(), "place", "places"),
