@@ -286,11 +286,18 @@ impl Summary {
     /// What the wrap closed between parts (a tyre in its arch), in one
     /// line for stdout: how many places, the air filled and the largest's
     /// centre; `None` when it closed none (a review's run summary never
-    /// said its arches had been filled).
+    /// said its arches had been filled). Fills of a few cells in creases
+    /// are not gaps ([`tuft_mesh::wrap::is_gap_place`]).
     pub fn gaps_closed(&self) -> Option<String> {
-        let places = self.mesh.preparation["wrap"]["gap_places"].as_array()?;
+        let wrap = &self.mesh.preparation["wrap"];
+        let cell = wrap["cell"].as_f64()?;
         let volume = |p: &serde_json::Value| p[0].as_f64().unwrap_or(0.0);
-        let litres = tuft_mesh::wrap::litres(places.iter().map(volume).sum::<f64>());
+        let places: Vec<&serde_json::Value> = wrap["gap_places"]
+            .as_array()?
+            .iter()
+            .filter(|p| tuft_mesh::wrap::is_gap_place(volume(p), cell))
+            .collect();
+        let litres = tuft_mesh::wrap::litres(places.iter().map(|p| volume(p)).sum::<f64>());
         let first = places.first()?;
         let at = |k: usize| first[1][k].as_f64().unwrap_or(f64::NAN);
         Some(format!(
