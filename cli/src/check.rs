@@ -149,6 +149,9 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     if let Some(w) = crate::pipeline::floor_on_ground_warning(&report) {
         report.quality.add_warning(w);
     }
+    if let Some(w) = crate::pipeline::non_manifold_warning(&report) {
+        report.quality.add_warning(w);
+    }
     // As the run warns: more panels asked than the STL has facets.
     let asked = if args.panels.is_some() || !is_case {
         "--panels"
@@ -723,8 +726,10 @@ fn hole_lines(r: &PrepareReport) -> String {
             h.filled.len() - 5
         );
     }
-    if h.non_manifold_edges > 0 {
-        s += "           warning: edges shared by three or more facets make the surface ambiguous there\n";
+    // Unwrapped, they are among the warnings ([`crate::pipeline::non_manifold_warning`]).
+    if h.non_manifold_edges > 0 && r.wrap.is_some() {
+        s += "           the edges shared by three or more facets do not reach the panels: the wrap rebuilt \
+              the surface round them\n";
     }
     s
 }

@@ -80,6 +80,14 @@ pub struct Row {
     pub reference_area_m2: f64,
     /// Panels.
     pub panels: usize,
+    /// Why the variant was not solved on the panel count asked for, when
+    /// the coarsening settled on another
+    /// ([`crate::summary::Summary::panels_instead`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub panels_instead: Option<String>,
+    /// It was solved as a half model (its panel count is the half's).
+    #[serde(default)]
+    pub half_model: bool,
     /// Warnings in the variant's summary.
     pub warnings: usize,
     /// The variant's potential flow used a matrix factorised for another.
@@ -713,6 +721,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         separated_frontal_m2: s.separation.frontal_m2,
         reference_area_m2: s.reference.area_m2,
         panels: s.mesh.panels,
+        panels_instead: s.panels_instead(),
+        half_model: s.mesh.symmetry_plane,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
@@ -1365,10 +1375,26 @@ fn underbody_spread(c: &[Row]) -> Option<String> {
 /// then the discretisation's.
 fn panel_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = range(c, |r| r.panels as f64);
+    let settled: Vec<String> = c
+        .iter()
+        .filter_map(|r| {
+            let i = r.panels_instead.as_ref()?;
+            Some(format!("{} was solved on {} panels {i}", r.name, r.panels))
+        })
+        .collect();
+    let advice = if settled.is_empty() {
+        "rank variants at about the same panel count".to_owned()
+    } else {
+        format!(
+            "{}; a panel count a little above or below may pass for every variant",
+            settled.join("; ")
+        )
+    };
     (hi - lo > 0.05 * hi).then(|| {
         format!(
-            "The variants were solved on {lo:.0} to {hi:.0} panels: part of every difference between them is \
-             discretisation error; rank variants at about the same panel count."
+            "The variants were solved on {lo:.0} to {hi:.0} panels{}: part of every difference between them is \
+             discretisation error; {advice}.",
+            if c.iter().all(|r| r.half_model) { " (of the modelled half)" } else { "" }
         )
     })
 }
@@ -1730,6 +1756,8 @@ mod tests {
             separated_frontal_m2: 0.0,
             reference_area_m2: 1.86,
             panels: 1000,
+            panels_instead: None,
+            half_model: false,
             warnings: 0,
             matrix_reused: false,
             speed: 40.0,
@@ -1939,6 +1967,21 @@ mod tests {
         let note = panel_spread(&c.variants).unwrap();
         assert!(note.contains("1000 to 1200 panels"), "{note}");
         assert!(shown(&c, &[]).contains("discretisation error"));
+        // A variant the coarsening could not give the count asked for is
+        // named with why, rather than the user told to even the counts;
+        // half models say their counts are the half's.
+        c.variants[0].panels_instead =
+            Some("instead of the 1200 asked (a try at 1200 panels was refused: a fold)".into());
+        for r in &mut c.variants {
+            r.half_model = true;
+        }
+        let note = panel_spread(&c.variants).unwrap_or_default();
+        assert!(
+            note.contains("1000 to 1200 panels (of the modelled half)")
+                && note.contains("v0 was solved on 1000 panels instead of the 1200 asked (a try")
+                && !note.contains("rank variants at about"),
+            "{note}"
+        );
     }
 
     fn warn(r: &mut Row, text: &str) {

@@ -684,9 +684,33 @@ fn notes(
     };
     let (na, nb) = (whole(sa), whole(sb));
     if (na - nb).abs() > 0.05 * na.max(nb) {
+        // In the case's own terms (geometry.panels is the modelled half's)
+        // when both are half models, as `collect` gives them.
+        let counts = if sa.mesh.symmetry_plane && sb.mesh.symmetry_plane {
+            format!(
+                "{} and {} panels of the modelled half",
+                sa.mesh.panels, sb.mesh.panels
+            )
+        } else {
+            format!("{na:.0} and {nb:.0} on the whole body")
+        };
+        let settled: Vec<String> = [("A", sa), ("B", sb)]
+            .iter()
+            .filter_map(|(which, s)| {
+                Some(format!(
+                    "{which} was solved on {} {}",
+                    s.mesh.panels,
+                    s.panels_instead()?
+                ))
+            })
+            .collect();
+        let advice = if settled.is_empty() {
+            "compare variants at about the same panel count".to_owned()
+        } else {
+            settled.join("; ")
+        };
         notes.push(format!(
-            "the panel counts differ ({na:.0} and {nb:.0} on the whole body): part of every difference is \
-             discretisation error; compare variants at about the same panel count"
+            "the panel counts differ ({counts}): part of every difference is discretisation error; {advice}"
         ));
     }
     if let Some(n) = clearance_note(sa, sb) {

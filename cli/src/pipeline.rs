@@ -1012,6 +1012,39 @@ pub fn floor_on_ground_warning(report: &tuft_mesh::prepare::PrepareReport) -> Op
     ))
 }
 
+/// Words for a run solved on `panels` when `target` were asked and the
+/// coarsening settled on another count (`fallback`, why: a try at the
+/// target refused): "instead of the 4000 asked (a try at ... was
+/// refused: ...)"; `None` within 1 % of the target or without a
+/// fallback. A review's sweep at `panels = 4000` solved one variant on
+/// 3,799 with only "Panels 3799" in its report, and `collect` then told
+/// the user to rank variants at about one panel count.
+pub fn panels_instead(panels: usize, target: usize, fallback: Option<&str>) -> Option<String> {
+    let why = fallback?;
+    let off = (panels as f64 - target as f64).abs();
+    (off > 0.01 * target as f64).then(|| format!("instead of the {target} asked ({why})"))
+}
+
+/// A warning for edges shared by three or more facets that reach the
+/// panels (the repair drops the facets of such edges it can tell apart;
+/// the wrap, when it runs, rebuilds the surface round the rest): the
+/// surface is ambiguous there. `tuft check` printed it outside its
+/// warnings, so its verdict counted one warning fewer than it showed, and
+/// the run never said it (a review's scan with 28 such edges).
+pub fn non_manifold_warning(report: &tuft_mesh::prepare::PrepareReport) -> Option<String> {
+    let n = report.repair.holes.non_manifold_edges;
+    (n > 0 && report.wrap.is_none()).then(|| {
+        format!(
+            "{} of the STL {} shared by three or more facets (parts meeting along a seam, a fold or a \
+             doubled patch of the scan): the surface is ambiguous there and the panels beside {} may \
+             leak or fold; look at them (tuft check --save-panels) or repair the STL",
+            crate::output::plural(n, "edge", "edges"),
+            if n == 1 { "is" } else { "are" },
+            if n == 1 { "it" } else { "them" }
+        )
+    })
+}
+
 /// A warning for a body the wrap found standing on the ground (tyres,
 /// or an underside within the wrap's contact distance): the wrap gives the
 /// panel method one surface to solve on, but a wheel's wake, its rotation
@@ -1350,6 +1383,40 @@ mod tests {
         };
         let reference = Reference::from_mesh(&mesh, -0.5, 0.5);
         (mesh, air, reference)
+    }
+
+    /// A count the coarsening settled on is explained beside the one
+    /// asked; within 1 % of it, or without a refused try, nothing is said.
+    #[test]
+    fn a_panel_count_settled_on_says_why() {
+        assert_eq!(
+            panels_instead(3799, 4000, Some("a try at 4000 panels was refused: a fold")).as_deref(),
+            Some("instead of the 4000 asked (a try at 4000 panels was refused: a fold)")
+        );
+        assert_eq!(panels_instead(3990, 4000, Some("why")), None);
+        assert_eq!(panels_instead(3799, 4000, None), None);
+    }
+
+    /// Edges shared by three or more facets are a warning when they reach
+    /// the panels, and not when the wrap rebuilt the surface round them.
+    #[test]
+    fn non_manifold_edges_warn_unless_wrapped() {
+        use tuft_mesh::prepare::{PrepareParams, prepare_mesh};
+        let params = PrepareParams {
+            units: tuft_mesh::LengthUnit::M,
+            ..PrepareParams::default()
+        };
+        let (_, mut report) = prepare_mesh(tuft_mesh::generate::icosphere(1.0, 3), None, &params)
+            .unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(non_manifold_warning(&report), None);
+        report.repair.holes.non_manifold_edges = 28;
+        let words = non_manifold_warning(&report).unwrap_or_default();
+        assert!(
+            words.starts_with("28 edges of the STL are shared by three or more facets"),
+            "{words}"
+        );
+        report.wrap = Some(tuft_mesh::wrap::WrapReport::default());
+        assert_eq!(non_manifold_warning(&report), None);
     }
 
     /// Friction pulling upstream or a drag far below zero is refused; a

@@ -116,11 +116,11 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
 fn panels_note(geo: &geometry::Geometry) -> String {
     let panels = geo.mesh.len();
     let coarsen = geo.report.coarsen.as_ref();
-    match coarsen.and_then(|c| c.fallback.as_ref().map(|f| (c.target_panels, f))) {
-        Some((target, why)) if panels > target + target / 5 => {
-            format!("{panels} panels instead of {target} ({why})")
-        }
-        _ => format!("{panels} panels"),
+    match coarsen.and_then(|c| {
+        crate::pipeline::panels_instead(panels, c.target_panels, c.fallback.as_deref())
+    }) {
+        Some(instead) => format!("{panels} panels {instead}"),
+        None => format!("{panels} panels"),
     }
 }
 

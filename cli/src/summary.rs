@@ -283,6 +283,14 @@ impl Summary {
         self.mesh.preparation["wrap"].is_object()
     }
 
+    /// Why the run has not the panel count asked for, when the
+    /// coarsening settled on another ([`crate::pipeline::panels_instead`]).
+    pub fn panels_instead(&self) -> Option<String> {
+        let c = &self.mesh.preparation["coarsen"];
+        let target = usize::try_from(c["target_panels"].as_u64()?).ok()?;
+        crate::pipeline::panels_instead(self.mesh.panels, target, c["fallback"].as_str())
+    }
+
     /// What the wrap closed between parts (a tyre in its arch), in one
     /// line for stdout: how many places, the air filled and the largest's
     /// centre; `None` when it closed none (a review's run summary never

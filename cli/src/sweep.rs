@@ -95,13 +95,17 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     crate::outdir::create_folder(&root)?;
     write_plan(&root, &plan)?;
     let range = shard_range(plan.variants.len(), k, n);
-    let failed = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
+    let (failed, warned) = run_range(&plan, &root, range.clone(), (&args.options, memory_limit));
     if !args.options.quiet {
         let finished = range.len() - failed;
         say!(
-            "{}: {finished} of {} variants finished in {}{}{}",
+            "{}: {finished} of {} variants finished{} in {}{}{}",
             plan.name,
             range.len(),
+            match warned {
+                0 => String::new(),
+                w => format!(" ({w} with warnings to read)"),
+            },
             root.display(),
             if n > 1 {
                 format!(" (shard {k} of {n})")
@@ -115,8 +119,12 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
             }
         );
     }
-    Ok(if failed == 0 {
+    // As `tuft run` does for one: a variant's warnings are the user's to
+    // read (a review's sweep exited 0 with two warnings on every variant).
+    Ok(if failed == 0 && warned == 0 {
         ExitCode::SUCCESS
+    } else if failed == 0 {
+        ExitCode::from(crate::EXIT_WARNINGS)
     } else {
         eprintln!(
             "tuft: {} of {} failed",
@@ -127,17 +135,19 @@ pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     })
 }
 
-/// Run the variants in `range`, group by group; returns how many failed.
+/// Run the variants in `range`, group by group; returns how many failed
+/// and how many finished (here or before) with warnings.
 fn run_range(
     plan: &Plan,
     root: &Path,
     range: std::ops::Range<usize>,
     (opt, memory_limit): (&RunOptions, Option<f64>),
-) -> usize {
+) -> (usize, usize) {
     let dir = plan.path.parent().unwrap_or(Path::new("."));
     let total = range.len();
     let mut done = 0;
     let mut failed = 0;
+    let mut warned = 0;
     let mut todo: Vec<Member<'_>> = Vec::new();
     for index in range {
         let variant = &plan.variants[index];
@@ -147,9 +157,16 @@ fn run_range(
             match stale(&summary, variant, dir) {
                 None => {
                     done += 1;
+                    let kept = crate::compare::read_summary(&root.join(&variant.name))
+                        .map_or(0, |k| k.warnings.len());
+                    warned += usize::from(kept > 0);
                     say(
                         opt.quiet,
-                        &format!("[{done}/{total}] {}: already finished, kept", variant.name),
+                        &format!(
+                            "[{done}/{total}] {}: already finished, kept{}",
+                            variant.name,
+                            warning_words(kept)
+                        ),
                     );
                     continue;
                 }
@@ -172,6 +189,9 @@ fn run_range(
     }
     let mut report = |m: &Member<'_>, outcome: &Outcome, secs: f64| {
         done += 1;
+        if let Outcome::Done(s, _) = outcome {
+            warned += usize::from(!s.warnings.is_empty());
+        }
         let line = match outcome {
             Outcome::Done(s, matrix) => format!(
                 "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {}){}",
@@ -190,11 +210,7 @@ fn run_range(
                 } else {
                     "flow solver set up for this variant".to_string()
                 },
-                match s.warnings.len() {
-                    0 => String::new(),
-                    1 => "; 1 warning (see its report or tuft collect)".to_string(),
-                    k => format!("; {k} warnings (see its report or tuft collect)"),
-                }
+                warning_words(s.warnings.len())
             ),
             Outcome::Failed(why) => {
                 failed += 1;
@@ -224,7 +240,19 @@ fn run_range(
         );
         start = end;
     }
-    failed
+    (failed, warned)
+}
+
+/// A variant's warnings on its progress line: "; 2 warnings (see its
+/// report or tuft collect)", nothing for none.
+fn warning_words(n: usize) -> String {
+    match n {
+        0 => String::new(),
+        n => format!(
+            "; {} (see its report or tuft collect)",
+            crate::output::plural(n, "warning", "warnings")
+        ),
+    }
 }
 
 /// Why a finished variant's result no longer answers its inputs, if it

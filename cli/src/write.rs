@@ -468,6 +468,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         all_facets,
     ));
     warnings.extend(crate::pipeline::ground_contact_warning(&geo.report));
+    warnings.extend(crate::pipeline::non_manifold_warning(&geo.report));
     warnings.extend(crate::pipeline::side_difference_warning(
         mesh, &c.layer, flow.yaw,
     ));
@@ -920,10 +921,13 @@ fn report(
         NumberRow::number("Dynamic pressure", s.dynamic_pressure_pa, "Pa"),
         NumberRow::text(
             "Panels",
-            &if s.mesh.symmetry_plane {
-                format!("{} (half model, mirrored in y = 0)", s.mesh.panels)
-            } else {
-                s.mesh.panels.to_string()
+            &match (s.mesh.symmetry_plane, s.panels_instead()) {
+                (true, None) => format!("{} (half model, mirrored in y = 0)", s.mesh.panels),
+                (true, Some(i)) => {
+                    format!("{} (half model, mirrored in y = 0), {i}", s.mesh.panels)
+                }
+                (false, None) => s.mesh.panels.to_string(),
+                (false, Some(i)) => format!("{} {i}", s.mesh.panels),
             },
             "-",
         ),
