@@ -199,14 +199,15 @@ fn print_summary(out: &Path, s: &Summary) {
         );
     }
     if s.rim_shown() {
+        use crate::output::fixed;
         say!(
-            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, within x {:.2} to {:.2} m and z {:.2} to {:.2} m, held at the free-streamline bound",
+            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, within x {} to {} m and z {} to {} m, held at the free-streamline bound",
             1000.0 * s.separation.rim_radius_m,
             s.separation.rim_m2,
-            s.separation.rim_x_m[0],
-            s.separation.rim_x_m[1],
-            s.separation.rim_z_m[0],
-            s.separation.rim_z_m[1]
+            fixed(s.separation.rim_x_m[0], 2),
+            fixed(s.separation.rim_x_m[1], 2),
+            fixed(s.separation.rim_z_m[0], 2),
+            fixed(s.separation.rim_z_m[1], 2)
         );
     }
     for r in &s.regions {

@@ -581,17 +581,17 @@ pub fn rim_text(s: &Separation, dead_water: bool) -> String {
          {RIM_RADIUS} of the frontal size, which the flow turns round from a face into the stream). Beside them, \
          over {:.2} m^2, attached potential flow would give a suction many times the free stream's; the \
          pressure there is held no lower than on the free streamline leaving the edge, {bound}; the \
-         area lies between x {:.2} and {:.2} m, z {:.2} and {:.2} m. \
+         area lies between x {} and {} m, z {} and {} m. \
          Bodies with such edges come out low: flat-faced cylinders and a cube 13-30 % below their handbook \
          drag. Whether a rounded edge counts is decided on the panels: one whose radius is close to {:.0} \
          mm, or spans no more than a panel or two, may read either way, so compare variants of a front \
          edge at one panel count and read them against the step in drag it makes.",
         1000.0 * s.rim_radius_m,
         s.rim_m2,
-        s.rim_x_m[0],
-        s.rim_x_m[1],
-        s.rim_z_m[0],
-        s.rim_z_m[1],
+        output::fixed(s.rim_x_m[0], 2),
+        output::fixed(s.rim_x_m[1], 2),
+        output::fixed(s.rim_z_m[0], 2),
+        output::fixed(s.rim_z_m[1], 2),
         1000.0 * s.rim_radius_m
     )
 }
