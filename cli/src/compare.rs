@@ -159,6 +159,24 @@ pub struct SurfaceDeltas {
     /// The same for the lift, kg at B's speed.
     #[serde(default)]
     pub unchanged_lift_kg: f64,
+    /// B's area farther from A's surface than [`UNCHANGED_FRACTION`] of the
+    /// body length and [`CHANGED_EDGES`] of a panel edge: where the shape
+    /// changed, m^2 (whole body).
+    #[serde(default)]
+    pub changed_m2: f64,
+    /// Of it, the area separated in A (carried onto B's panels) or in B,
+    /// m^2: a change working on dead water.
+    #[serde(default)]
+    pub changed_separated_m2: f64,
+    /// Of it, the area facing the ground (normal within 60 degrees of
+    /// down) in the lowest [`UNDERBODY_HEIGHT`] of the body, m^2: a change
+    /// to the underbody.
+    #[serde(default)]
+    pub changed_underbody_m2: f64,
+    /// B's typical panel edge: that of an equilateral triangle of its
+    /// median panel area, m.
+    #[serde(default)]
+    pub panel_edge_m: f64,
 }
 
 /// B's panels within this fraction of the body length of A's surface
@@ -481,7 +499,8 @@ pub fn comparison_named(
     // diffuser's stall moves the base pressure).
     let separation: Vec<String> = [
         separation_note(&a.summary, &b.summary, &surface),
-        underbody_note(&a.summary, &b.summary),
+        underbody_note(&a.summary, &b.summary, &surface),
+        dead_water_change_note(&surface),
     ]
     .into_iter()
     .flatten()
@@ -612,7 +631,61 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     // differ, [`common_area`]).
     let reference = common_area(&a.summary, &b.summary).unwrap_or(b.summary.reference.area_m2);
     unchanged_noise(b, reference, mapping, &f.delta_cp, &stream, &mut out);
+    changed_surface(b, mapping, &f.state_a, &mut out);
     out
+}
+
+/// Distance from A's surface, in B's typical panel edges, beyond which a
+/// B panel counts as changed for [`SurfaceDeltas::changed_m2`] (when it
+/// exceeds [`UNCHANGED_FRACTION`] of the length): two panellings of one
+/// curved surface differ by their chords' sag, so at 4.3 mm a review's
+/// two wrapped scans differing only in a roof spoiler read 4 to 9 % of
+/// their surface changed, the underbody among it (our choice).
+pub const CHANGED_EDGES: f64 = 0.25;
+
+/// Share of the body's height, from its lowest panel, within which a
+/// changed panel facing down counts as a change to the underbody (a
+/// car's floor and diffuser ramp lie in the lowest third; our choice).
+pub const UNDERBODY_HEIGHT: f64 = 0.3;
+
+/// Where the shape changed ([`SurfaceDeltas::changed_m2`]): how much of it
+/// lies in dead water or faces the ground, and B's typical panel edge.
+fn changed_surface(
+    b: &ResultFolder,
+    mapping: &Mapping,
+    state_a: &[PanelState],
+    out: &mut SurfaceDeltas,
+) {
+    let mut areas: Vec<f64> = b.panels.iter().map(|p| p.area).collect();
+    areas.sort_by(f64::total_cmp);
+    let median = areas.get(areas.len() / 2).copied().unwrap_or(0.0);
+    out.panel_edge_m = (4.0 * median / 3f64.sqrt()).sqrt();
+    let near =
+        (UNCHANGED_FRACTION * b.summary.reference.length_m).max(CHANGED_EDGES * out.panel_edge_m);
+    let halves = b.halves();
+    let sep = |s: PanelState| s == PanelState::Separated;
+    // The underbody: facing down in the lowest [`UNDERBODY_HEIGHT`] of the
+    // body (a spoiler's underside faces down too).
+    let (low, high) = b
+        .panels
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), p| {
+            (l.min(p.centroid.z), h.max(p.centroid.z))
+        });
+    let floor_top = low + UNDERBODY_HEIGHT * (high - low);
+    for (i, pb) in b.panels.iter().enumerate() {
+        if mapping.distance.get(i).is_none_or(|&d| d <= near) {
+            continue;
+        }
+        let area = halves * pb.area;
+        out.changed_m2 += area;
+        if sep(pb.state) || state_a.get(i).copied().is_some_and(sep) {
+            out.changed_separated_m2 += area;
+        }
+        if pb.normal.z < -crate::region::FACING_COS && pb.centroid.z < floor_top {
+            out.changed_underbody_m2 += area;
+        }
+    }
 }
 
 /// The differences on the surface that did not change (see
@@ -713,6 +786,7 @@ fn notes(
             "the panel counts differ ({counts}): part of every difference is discretisation error; {advice}"
         ));
     }
+    notes.extend(resolution_note(surface));
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
     }
@@ -892,17 +966,81 @@ pub const UNDERBODY_CAUTION: &str = "the lift difference, and with it the drag d
 
 /// A warning when the separated share of the ground-facing panels differs
 /// by more than [`SEPARATION_SHIFT`] between two runs over the ground.
-fn underbody_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+/// The diffuser's stall is named only when the shape changed on the
+/// underbody ([`SurfaceDeltas::changed_underbody_m2`]): a review's roof
+/// spoiler study read it for an underbody whose separated share moved
+/// from 4.1 to 5.2 % in answer to the roof.
+fn underbody_note(
+    a: &crate::summary::Summary,
+    b: &crate::summary::Summary,
+    surface: &SurfaceDeltas,
+) -> Option<String> {
     let (fa, fb) = (
         a.separation.underbody_fraction,
         b.separation.underbody_fraction,
     );
     let ground = a.mesh.ground_z.is_some() && b.mesh.ground_z.is_some();
+    let caution = if surface.changed_underbody_m2 > 0.0 || surface.changed_m2 == 0.0 {
+        UNDERBODY_CAUTION
+    } else {
+        UNDERBODY_ELSEWHERE
+    };
     (ground && (fb - fa).abs() > SEPARATION_SHIFT).then(|| {
         format!(
-            "the separated share of the underbody changes from {:.1} % to {:.1} %: {UNDERBODY_CAUTION}",
+            "the separated share of the underbody changes from {:.1} % to {:.1} %: {caution}",
             100.0 * fa,
             100.0 * fb
+        )
+    })
+}
+
+/// [`UNDERBODY_CAUTION`] for a change made elsewhere than the underbody.
+pub const UNDERBODY_ELSEWHERE: &str = "the shape did not change there, so the underbody's separation \
+     moved in answer to the change elsewhere, and the lift difference, and with it the drag difference, \
+     rests partly on the separated-flow model; read the separation pictures first and confirm with \
+     validated CFD or a tunnel";
+
+/// Share of the changed surface that may lie in separated flow (in A or B)
+/// before the note that the change works on dead water (our choice: a
+/// quarter).
+pub const DEAD_WATER_CHANGE_SHARE: f64 = 0.25;
+
+/// A note when much of the surface that changed lies in separated flow:
+/// the model holds the dead water at one pressure, so a spoiler, a lip or
+/// a diffuser's end working there acts only through that pressure (a
+/// review's 120 mm roof-spoiler extension over a separated tailgate cost
+/// 4.4 kg of rear downforce in this model, where a tunnel would usually
+/// show a gain).
+fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
+    let share = surface.changed_separated_m2 / surface.changed_m2.max(f64::MIN_POSITIVE);
+    (surface.changed_m2 > 0.0 && share > DEAD_WATER_CHANGE_SHARE).then(|| {
+        format!(
+            "{:.0} % of the surface that changed ({:.3} of {:.3} m^2) lies in separated flow in A or B: \
+             there the model holds the dead water's one pressure, so it misses most of what the change \
+             does to the lift and drag (a spoiler, a lip or a diffuser's end working on separated flow); \
+             read the difference as this model's and confirm with validated CFD or a tunnel",
+            100.0 * share,
+            surface.changed_separated_m2,
+            surface.changed_m2
+        )
+    })
+}
+
+/// A note when B's surface lies within about a panel's edge of A's
+/// everywhere (and changed somewhere): the panels follow so small a change
+/// only in part (a review's 60 mm roof-spoiler extension on 80 mm panels
+/// moved the drag by 2.8 counts, where the same STL at 3,500 and 4,000
+/// panels moved it by 14).
+fn resolution_note(surface: &SurfaceDeltas) -> Option<String> {
+    let (d, e) = (surface.max_distance_m, surface.panel_edge_m);
+    (surface.changed_m2 > 0.0 && d < e).then(|| {
+        format!(
+            "B's surface lies within {:.0} mm of A's everywhere, under the panels' typical edge ({:.0} mm): \
+             the panels follow a change this small only in part, so the differences may rest as much on \
+             how each surface was cut into panels as on the change; confirm the direction with both run \
+             again at a second panel count (geometry.panels 15 % higher)",
+            1000.0 * d,
+            1000.0 * e
         )
     })
 }
@@ -1189,6 +1327,51 @@ mod tests {
         let mut s = Summary::default();
         s.reference.area_m2 = area;
         s
+    }
+
+    /// A change working mostly on dead water, or smaller than a panel, is
+    /// noted; one on attached flow, or larger than a panel, is not. The
+    /// diffuser's stall is named only for a change to the underbody.
+    #[test]
+    fn changes_on_dead_water_or_under_a_panel_are_noted() {
+        let surface = |changed: f64, separated: f64, far: f64| SurfaceDeltas {
+            changed_m2: changed,
+            changed_separated_m2: separated,
+            max_distance_m: far,
+            panel_edge_m: 0.08,
+            ..SurfaceDeltas::default()
+        };
+        let note = dead_water_change_note(&surface(0.235, 0.220, 0.1)).unwrap_or_default();
+        assert!(
+            note.starts_with("94 % of the surface that changed (0.220 of 0.235 m^2)"),
+            "{note}"
+        );
+        assert_eq!(dead_water_change_note(&surface(0.235, 0.05, 0.1)), None);
+        assert_eq!(dead_water_change_note(&surface(0.0, 0.0, 0.0)), None);
+        let note = resolution_note(&surface(0.04, 0.0, 0.03)).unwrap_or_default();
+        assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm)"), "{note}");
+        assert_eq!(resolution_note(&surface(0.04, 0.0, 0.1)), None);
+        assert_eq!(resolution_note(&surface(0.0, 0.0, 0.003)), None);
+        let mut a = Summary::default();
+        a.mesh.ground_z = Some(0.0);
+        let mut b = a.clone();
+        b.separation.underbody_fraction = 0.05;
+        let roof = surface(0.235, 0.0, 0.1);
+        let floor = SurfaceDeltas {
+            changed_underbody_m2: 0.1,
+            ..roof.clone()
+        };
+        let words = |s: &SurfaceDeltas| underbody_note(&a, &b, s).unwrap_or_default();
+        assert!(
+            words(&roof).contains(UNDERBODY_ELSEWHERE),
+            "{}",
+            words(&roof)
+        );
+        assert!(
+            words(&floor).contains(UNDERBODY_CAUTION),
+            "{}",
+            words(&floor)
+        );
     }
 
     /// The verdict's reason names the region that moved most, from 5
