@@ -101,8 +101,11 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
     let memory_limit = options.memory_limit_bytes()?;
     let staging = Staging::new(out, options.force)?;
     let mut progress = Progress::new(options.quiet, &case.name);
-    let phase = progress.begin("geometry", "reading and preparing the geometry");
+    let what = "reading and preparing the geometry";
+    let phase = progress.begin("geometry", what);
+    let stages = phase.stages(&progress, what);
     let geo = geometry::load(case)?;
+    drop(stages);
     progress.end(phase, &panels_note(&geo));
     let computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
     let summary = write::write_all(case, &geo, &computed, &staging, &mut progress)

@@ -219,6 +219,35 @@ fn file_list_and_bytes(dir: &Path) -> Vec<(String, Vec<u8>)> {
         .collect()
 }
 
+/// The geometry phase says its stages as they start (a review's
+/// 1.9-million-facet scan sat 21 s on one line), each as an indented
+/// progress line of the case, in order.
+#[test]
+fn the_geometry_phase_names_its_stages() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::copy(cases_dir().join("coupe.stl"), dir.path().join("coupe.stl")).unwrap();
+    std::fs::write(
+        dir.path().join("stages.toml"),
+        "[geometry]\nstl = \"coupe.stl\"\npanels = 600\n[ground]\nz = 0.0\n",
+    )
+    .unwrap();
+    let o = tuft(dir.path(), &["run", "stages.toml"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let at = |what: &str| {
+        o.stderr
+            .find(&format!("stages:   {what}"))
+            .unwrap_or_else(|| panic!("{what}: {}", o.stderr))
+    };
+    assert!(
+        at("reading coupe.stl ...") < at("repairing ")
+            && at("repairing ") < at("coarsening ")
+            && at("coarsening ") < at("checking ")
+            && at("checking ") < o.stderr.find("stages: geometry done in").unwrap_or(0),
+        "{}",
+        o.stderr
+    );
+}
+
 #[test]
 fn existing_results_are_kept_without_force_and_replaced_with_it() {
     let dir = tempfile::tempdir().unwrap();

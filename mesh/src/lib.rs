@@ -43,6 +43,7 @@ pub mod panels;
 pub mod prepare;
 pub mod quality;
 pub mod repair;
+pub mod stage;
 pub mod trimesh;
 pub mod wrap;
 

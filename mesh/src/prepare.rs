@@ -168,6 +168,7 @@ pub fn prepare(
     path: &Path,
     params: &PrepareParams,
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    crate::stage::starting(|| format!("reading {}", path.display()));
     let (mesh, read) = read_stl(path)?;
     prepare_mesh(mesh, Some(read), params)
 }
@@ -488,6 +489,7 @@ pub fn prepare_mesh(
         cut_largest_move.max(cap_largest),
     );
     check_mirror_sides(&mesh, params)?;
+    crate::stage::starting(|| format!("repairing {} facets", mesh.len()));
     let (mut mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
     let capped_half = undeclared_cap_warning(&mesh, params);
     let plane_tol = params.repair.plane_tolerance * repair.diagonal;
@@ -515,6 +517,7 @@ pub fn prepare_mesh(
     };
     let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap, plane_tol);
     let (mesh, wrap) = if reasons.any() {
+        crate::stage::starting(|| format!("wrapping {} facets into one outer surface", mesh.len()));
         let (m, r) = crate::wrap::wrap(&mesh, &params.mirrors, reasons, &params.wrap);
         if m.is_empty() {
             return Err(MeshError::NothingInside { cell: r.cell });
@@ -537,12 +540,14 @@ pub fn prepare_mesh(
             target_panels: target,
             ..params.coarsen
         };
+        crate::stage::starting(|| format!("coarsening {} facets to {target} panels", mesh.len()));
         let (m, r) = coarsen_with_params(&mesh, &params.mirrors, &cp);
         refuse_failed_coarsening(&r)?;
         (m, Some(r))
     } else {
         (mesh, None)
     };
+    crate::stage::starting(|| format!("checking {} panels", mesh.len()));
     let local_crossing = refuse_self_crossing(&mesh)?;
     let panels = PanelMesh::new(mesh, params.mirrors)?;
     let (panels, recut) = recut_fans(panels)?;
