@@ -118,6 +118,7 @@ pub fn draw_regions_in(
     };
     for (view, frame) in on.views {
         let seen = render::visible(&tris, *view, frame);
+        let toward = view.basis().2;
         let mut placed: Vec<[f32; 4]> = Vec::new();
         // Names step left of the flow arrow's corner.
         let corner = if on.flow_corner {
@@ -161,8 +162,12 @@ pub fn draw_regions_in(
                         );
                     }
                 }
+                // The name goes where the region shows its face: a panel
+                // seen edge-on or from behind (through an arch, from
+                // underneath) does not place it (a review's "roof" was
+                // labelled in the middle of the floor).
                 let (x, y) = frame.project(*view, &centroid(t));
-                if seen.at(x as i64, y as i64) == Some(k) {
+                if seen.at(x as i64, y as i64) == Some(k) && t.normal.dot(&toward) > 0.0 {
                     label = (label.0 + x, label.1 + y, label.2 + 1.0);
                 }
             }
