@@ -88,6 +88,10 @@ pub struct Row {
     /// It was solved as a half model (its panel count is the half's).
     #[serde(default)]
     pub half_model: bool,
+    /// The whole body's lift noise at this variant's dynamic pressure
+    /// and reference area, kg ([`crate::compare::LIFT_NOISE_CL`]).
+    #[serde(default)]
+    pub lift_noise_kg: f64,
     /// Warnings in the variant's summary.
     pub warnings: usize,
     /// The variant's potential flow used a matrix factorised for another.
@@ -156,6 +160,10 @@ pub struct Collected {
     /// a variant's mesh is too coarse for converged numbers.
     #[serde(default)]
     pub drag_ranking: String,
+    /// The rear axle's ranking in one line ([`rear_lift_ranking`]), empty
+    /// when the variants were not all run in one wind condition.
+    #[serde(default)]
+    pub rear_lift_ranking: String,
     /// What makes the variants hard to rank ([`notes`]), one sentence
     /// each.
     #[serde(default)]
@@ -215,6 +223,9 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             c.variants.len(),
             c.drag_ranking
         );
+        if !c.rear_lift_ranking.is_empty() {
+            say!("  {}", c.rear_lift_ranking);
+        }
         for n in notes.iter().chain(&c.caveats) {
             say!("  note: {n}");
         }
@@ -587,6 +598,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         variants,
         missing,
         drag_ranking: String::new(),
+        rear_lift_ranking: String::new(),
         notes: Vec::new(),
         caveats: Vec::new(),
         caution: CAUTION.into(),
@@ -595,10 +607,50 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     Ok(c)
 }
 
+/// The variants' rear-axle lift in one line, for a sweep in one wind
+/// condition: the most rear downforce (or least rear lift) in this model,
+/// its lead over the runner-up, and whether that lead passes the whole
+/// body's lift noise ([`crate::compare::LIFT_NOISE_CL`] at the leader's
+/// dynamic pressure and reference area; the rear axle scatters as the
+/// whole body does in `bench/drag_noise`). A review asked which roof
+/// spoiler was best for rear-axle lift and had to work it out from
+/// sweep.csv. Wheels on, it says to compare like with like.
+fn rear_lift_ranking(c: &Collected) -> Option<String> {
+    if wind_groups(c).len() != 1 || c.variants.len() < 2 {
+        return None;
+    }
+    let mut rows: Vec<&Row> = c.variants.iter().collect();
+    rows.sort_by(|a, b| a.rear_axle_kg.total_cmp(&b.rear_axle_kg));
+    let (best, next) = (rows[0], rows[1]);
+    let gap = next.rear_axle_kg - best.rear_axle_kg;
+    let noise = best.lift_noise_kg;
+    let kg = |v: f64| crate::output::fixed(v, 1);
+    let standing = if gap < noise {
+        format!("within the lift noise of about {} kg: no winner", kg(noise))
+    } else {
+        format!("beyond the lift noise of about {} kg", kg(noise))
+    };
+    let wheels = if c.variants.iter().any(|r| r.wheels_on) {
+        "; wheels on: compare axle loads between variants with the same wheels only"
+    } else {
+        ""
+    };
+    Some(format!(
+        "rear axle: the most downforce in this model is {} ({} kg at the rear; negative is downforce), {} kg \
+         more than {} ({} kg), {standing}{wheels}",
+        best.name,
+        kg(best.rear_axle_kg),
+        kg(gap),
+        next.name,
+        kg(next.rear_axle_kg)
+    ))
+}
+
 /// Fill the verdicts drawn from the variants: [`Collected::drag_ranking`]
 /// and [`Collected::notes`] and [`Collected::caveats`].
 fn judge(c: &mut Collected) {
     c.drag_ranking = best_drag(c);
+    c.rear_lift_ranking = rear_lift_ranking(c).unwrap_or_default();
     c.notes = notes(c);
     c.caveats = [yaw_note(c), ride_height_note(c)]
         .into_iter()
@@ -723,6 +775,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         panels: s.mesh.panels,
         panels_instead: s.panels_instead(),
         half_model: s.mesh.symmetry_plane,
+        lift_noise_kg: crate::compare::LIFT_NOISE_CL * s.dynamic_pressure_pa * s.reference.area_m2
+            / tuft_solver::loads::STANDARD_GRAVITY,
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
@@ -1515,6 +1569,9 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
         "<p class=\"{class}\"><strong>{}</strong></p>",
         escape(&sentence(&c.drag_ranking))
     );
+    if !c.rear_lift_ranking.is_empty() {
+        let _ = writeln!(s, "<p>{}</p>", escape(&sentence(&c.rear_lift_ranking)));
+    }
     for text in c.notes.iter().chain(&c.caveats) {
         let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(text));
     }
@@ -1758,6 +1815,7 @@ mod tests {
             panels: 1000,
             panels_instead: None,
             half_model: false,
+            lift_noise_kg: 3.3,
             warnings: 0,
             matrix_reused: false,
             speed: 40.0,
@@ -1779,6 +1837,7 @@ mod tests {
             regions: Vec::new(),
             missing: Vec::new(),
             drag_ranking: String::new(),
+            rear_lift_ranking: String::new(),
             notes: Vec::new(),
             caveats: Vec::new(),
             caution: CAUTION.into(),
@@ -1956,6 +2015,36 @@ mod tests {
         assert!(!html.contains("lee side"));
         // No rows (nothing read): no section.
         assert!(!shown(&c, &[]).contains("Separation at a glance"));
+    }
+
+    /// The rear axle's ranking names the most downforce, its lead, and
+    /// whether the lead passes the lift noise; wheels on, it says to
+    /// compare like with like.
+    #[test]
+    fn the_rear_axle_is_ranked_against_the_lift_noise() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        for (r, kg) in c.variants.iter_mut().zip([-20.4, -24.7, -23.7]) {
+            r.rear_axle_kg = kg;
+        }
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(
+            line.starts_with(
+                "rear axle: the most downforce in this model is v1 (-24.7 kg at the rear"
+            ) && line.contains(
+                "1.0 kg more than v2 (-23.7 kg), within the lift noise of about 3.3 kg: no winner"
+            ),
+            "{line}"
+        );
+        c.variants[2].rear_axle_kg = -12.2;
+        c.variants[0].wheels_on = true;
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(
+            line.contains("4.3 kg more than v0 (-20.4 kg), beyond the lift noise")
+                && line.ends_with("same wheels only"),
+            "{line}"
+        );
+        judge(&mut c);
+        assert!(shown(&c, &[]).contains("Rear axle: the most downforce"));
     }
 
     /// Variants on panel counts more than 5 % apart get the page's note.
