@@ -693,7 +693,7 @@ fn repair_lines(r: &PrepareReport) -> String {
 fn hole_lines(r: &PrepareReport) -> String {
     let h = &r.repair.holes;
     let mut s = format!(
-        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (perimeter up to {:.3} m, or {} times that of the facets around it), {} zero-width slits; {} non-manifold edges\n",
+        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (perimeter, or the circle across the hole's widest if shorter, up to {:.3} m, or {} times that of the facets around it), {} zero-width slits; {} non-manifold edges\n",
         h.loops,
         h.mirror_closed.len(),
         h.filled.len(),
@@ -703,8 +703,17 @@ fn hole_lines(r: &PrepareReport) -> String {
         h.non_manifold_edges
     );
     let describe = |what: &str, l: &LoopInfo| {
+        let round = if l.measure < l.perimeter {
+            format!(
+                " ({:.3} m as the circle across its widest, {:.0} mm)",
+                l.measure,
+                1000.0 * l.measure / std::f64::consts::PI
+            )
+        } else {
+            String::new()
+        };
         format!(
-            "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m, {} edges\n",
+            "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m{round}, {} edges\n",
             l.centre[0], l.centre[1], l.centre[2], l.perimeter, l.edges
         )
     };
