@@ -664,10 +664,14 @@ fn diagonal(r: &PrepareReport) -> f64 {
 fn repair_lines(r: &PrepareReport) -> String {
     let p = &r.repair;
     let d = &p.degenerate;
+    let layers = tuft_mesh::repair::describe_layers(&p.layers)
+        .map(|l| format!("           duplicated layers dropped: {l}\n"))
+        .unwrap_or_default();
     format!(
         "repair     weld within {:.3e} m: {} vertices merged\n\
          \x20          degenerate facets dropped: {} collapsed, {} zero-area, {} slivers\n\
          \x20          duplicate facets dropped: {}; facets dropped from edges shared three ways: {}\n\
+         {layers}\
          \x20          orientation: {} connected parts, {} facets flipped to agree, {} edges still disagree\n\
          \x20          outward: {} parts turned outward ({} facets), {} parts enclosing no volume\n\
          \x20          unused vertices removed: {}; {} facets, {} vertices after repair\n",
@@ -791,9 +795,15 @@ fn quality_lines(r: &PrepareReport) -> String {
     for w in &q.warnings {
         s += &format!("           warning: {w}\n");
     }
-    // The wrap's description has its own line above.
+    // The wrap's description and the duplicated layers have their own
+    // lines above.
     let wrap = r.wrap.as_ref().map(|w| w.describe());
-    for n in q.notes.iter().filter(|n| Some(*n) != wrap.as_ref()) {
+    let layers = tuft_mesh::repair::describe_layers(&r.repair.layers);
+    for n in q
+        .notes
+        .iter()
+        .filter(|n| Some(*n) != wrap.as_ref() && Some(*n) != layers.as_ref())
+    {
         s += &format!("           note: {n}\n");
     }
     s

@@ -1,7 +1,9 @@
 //! Repair as explicit passes, each reporting what it changed.
 //!
 //! In order: [`weld`] vertices within a tolerance, [`drop_degenerate`]
-//! facets, [`drop_duplicates`], [`orient_consistently`], [`close_holes`]
+//! facets, [`drop_duplicates`], duplicated layers (an open sheet lying on
+//! another part's surface, [`LAYER_DISTANCE`]), [`drop_fins`],
+//! [`orient_consistently`], [`close_holes`]
 //! (mirror-closed loops accepted, small holes filled, others refused),
 //! [`orient_outward`], [`remove_unused_vertices`]. Repair applied to its own
 //! output changes nothing ([`RepairReport::changes`] is zero): welded
@@ -24,6 +26,7 @@ mod ear_clip;
 pub(crate) mod edges;
 mod fins;
 mod holes;
+mod layers;
 mod orient;
 mod outward;
 mod weld;
@@ -39,6 +42,7 @@ pub use holes::{
     HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, SPAN_EDGES, close_holes,
     describe_refused, hole_advice, hole_measure,
 };
+pub use layers::{DroppedLayer, LAYER_AREA_SHARE, LAYER_DISTANCE, describe_layers};
 pub use orient::{OrientReport, orient_consistently};
 pub use outward::{OutwardReport, orient_outward};
 pub use weld::weld;
@@ -118,6 +122,11 @@ pub struct RepairReport {
     pub degenerate: DegenerateReport,
     /// Duplicate facets dropped.
     pub duplicates: usize,
+    /// Open parts lying on another part's surface, dropped as duplicated
+    /// layers ([`LAYER_DISTANCE`]).
+    pub layers: Vec<DroppedLayer>,
+    /// How near another part's surface a duplicated layer lies, metres.
+    pub layer_distance: f64,
     /// Facets dropped from edges shared an odd number of ways, three or
     /// more ([`drop_fins`]).
     pub fins: usize,
@@ -141,6 +150,7 @@ impl RepairReport {
         self.vertices_welded
             + self.degenerate.total()
             + self.duplicates
+            + self.layers.iter().map(|l| l.facets).sum::<usize>()
             + self.fins
             + self.orientation.facets_flipped
             + self.holes.facets_added
@@ -293,7 +303,11 @@ pub fn repair_with_params(
         });
     }
     r.duplicates = drop_duplicates(&mut mesh);
-    let (fins, uses) = fins::drop_fins_with_uses(&mut mesh);
+    let uses = edges::sorted_edge_uses(&mesh.triangles);
+    r.layer_distance = LAYER_DISTANCE * diagonal;
+    r.layers = layers::drop_layers(&mut mesh, &uses, mirrors, plane_tol, r.layer_distance);
+    let uses = r.layers.is_empty().then_some(uses);
+    let (fins, uses) = fins::drop_fins_with_uses(&mut mesh, uses);
     r.fins = fins;
     let (orientation, mut component) = orient::orient_with_uses(&mut mesh, &uses);
     r.orientation = orientation;
