@@ -670,10 +670,14 @@ fn diagonal(r: &PrepareReport) -> f64 {
 fn repair_lines(r: &PrepareReport) -> String {
     let p = &r.repair;
     let d = &p.degenerate;
+    let layers = tuft_mesh::repair::describe_layers(&p.layers)
+        .map(|l| format!("           duplicated layers dropped: {l}\n"))
+        .unwrap_or_default();
     format!(
         "repair     weld within {:.3e} m: {} vertices merged\n\
          \x20          degenerate facets dropped: {} collapsed, {} zero-area, {} slivers\n\
          \x20          duplicate facets dropped: {}; facets dropped from edges shared three ways: {}\n\
+         {layers}\
          \x20          orientation: {} connected parts, {} facets flipped to agree, {} edges still disagree\n\
          \x20          outward: {} parts turned outward ({} facets), {} parts enclosing no volume\n\
          \x20          unused vertices removed: {}; {} facets, {} vertices after repair\n",
@@ -699,7 +703,7 @@ fn repair_lines(r: &PrepareReport) -> String {
 fn hole_lines(r: &PrepareReport) -> String {
     let h = &r.repair.holes;
     let mut s = format!(
-        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (perimeter up to {:.3} m, or {} times that of the facets around it), {} zero-width slits; {} non-manifold edges\n",
+        "holes      {} boundary loops: {} closed by a mirror plane, {} filled (perimeter, or the circle across the hole's widest if shorter, up to {:.3} m, or {} times that of the facets around it), {} zero-width slits; {} non-manifold edges\n",
         h.loops,
         h.mirror_closed.len(),
         h.filled.len(),
@@ -709,8 +713,17 @@ fn hole_lines(r: &PrepareReport) -> String {
         h.non_manifold_edges
     );
     let describe = |what: &str, l: &LoopInfo| {
+        let round = if l.measure < l.perimeter {
+            format!(
+                " ({:.3} m as the circle across its widest, {:.0} mm)",
+                l.measure,
+                1000.0 * l.measure / std::f64::consts::PI
+            )
+        } else {
+            String::new()
+        };
         format!(
-            "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m, {} edges\n",
+            "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m{round}, {} edges\n",
             l.centre[0], l.centre[1], l.centre[2], l.perimeter, l.edges
         )
     };
@@ -790,9 +803,15 @@ fn quality_lines(r: &PrepareReport) -> String {
     for w in &q.warnings {
         s += &format!("           warning: {w}\n");
     }
-    // The wrap's description has its own line above.
+    // The wrap's description and the duplicated layers have their own
+    // lines above.
     let wrap = r.wrap.as_ref().map(|w| w.describe());
-    for n in q.notes.iter().filter(|n| Some(*n) != wrap.as_ref()) {
+    let layers = tuft_mesh::repair::describe_layers(&r.repair.layers);
+    for n in q
+        .notes
+        .iter()
+        .filter(|n| Some(*n) != wrap.as_ref() && Some(*n) != layers.as_ref())
+    {
         s += &format!("           note: {n}\n");
     }
     s

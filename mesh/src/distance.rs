@@ -70,6 +70,90 @@ impl<'a> SurfaceGrid<'a> {
         grid
     }
 
+    /// A grid over the facets `facets` of `mesh` only (ids into it), sized
+    /// as [`SurfaceGrid::new`] sizes one over their box; binned in two
+    /// passes, so that a grid over a few of a scan's millions of facets,
+    /// or over all of them, holds no more than its cells and ids.
+    pub fn over(mesh: &'a TriMesh, facets: &[u32]) -> Self {
+        let boxes = facets.iter().map(|&t| mesh.facet_box(t as usize));
+        let (lo, hi) = boxes.fold(
+            (
+                Point::from(crate::Vector::repeat(f64::INFINITY)),
+                Point::from(crate::Vector::repeat(f64::NEG_INFINITY)),
+            ),
+            |(lo, hi), (a, b)| (lo.inf(&a), hi.sup(&b)),
+        );
+        let (lo, hi) = if facets.is_empty() {
+            (Point::origin(), Point::origin())
+        } else {
+            (lo, hi)
+        };
+        let ext = (hi - lo).map(|e| e.max(1e-12));
+        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt()
+            / (facets.len().max(1) as f64).sqrt();
+        let cell = cell.max(ext.max() / 128.0);
+        let dims = [0, 1, 2].map(|k| ((ext[k] / cell).ceil() as usize).clamp(1, 128));
+        let mut grid = Self {
+            mesh,
+            origin: lo,
+            cell,
+            dims,
+            start: Vec::new(),
+            items: Vec::new(),
+        };
+        let n = dims.iter().product::<usize>();
+        let mut count = vec![0u32; n + 1];
+        let cells_of = |grid: &Self, t: u32| {
+            let (lo, hi) = mesh.facet_box(t as usize);
+            (grid.cell_index(&lo), grid.cell_index(&hi))
+        };
+        for &t in facets {
+            let (a, b) = cells_of(&grid, t);
+            for_block(a, b, |c| count[grid.flat(c) + 1] += 1);
+        }
+        for i in 0..n {
+            count[i + 1] += count[i];
+        }
+        let mut fill = count.clone();
+        let mut items = vec![0u32; count[n] as usize];
+        for &t in facets {
+            let (a, b) = cells_of(&grid, t);
+            for_block(a, b, |c| {
+                let f = grid.flat(c);
+                items[fill[f] as usize] = t;
+                fill[f] += 1;
+            });
+        }
+        grid.start = count;
+        grid.items = items;
+        grid
+    }
+
+    /// Distance from `p` to the nearest binned triangle for which `keep`
+    /// holds, if one lies within `reach` (only the cells the box
+    /// `p +- reach` touches are searched).
+    pub fn distance_within(
+        &self,
+        p: &Point,
+        reach: f64,
+        keep: impl Fn(u32) -> bool,
+    ) -> Option<f64> {
+        let r = crate::Vector::repeat(reach);
+        let (lo, hi) = (self.cell_index(&(p - r)), self.cell_index(&(p + r)));
+        let mut best = f64::INFINITY;
+        for_block(lo, hi, |c| {
+            let f = self.flat(c);
+            for &t in &self.items[self.start[f] as usize..self.start[f + 1] as usize] {
+                if !keep(t) {
+                    continue;
+                }
+                let [a, b, c] = self.mesh.corners(t as usize);
+                best = best.min((closest_point_on_triangle(p, &a, &b, &c) - p).norm());
+            }
+        });
+        (best <= reach).then_some(best)
+    }
+
     fn cell_index(&self, p: &Point) -> [usize; 3] {
         [0, 1, 2].map(|k| {
             (((p[k] - self.origin[k]) / self.cell).floor().max(0.0) as usize).min(self.dims[k] - 1)
@@ -188,6 +272,17 @@ impl<'a> SurfaceGrid<'a> {
     }
 }
 
+/// Every cell of the block `lo..=hi`.
+fn for_block(lo: [usize; 3], hi: [usize; 3], mut f: impl FnMut([usize; 3])) {
+    for z in lo[2]..=hi[2] {
+        for y in lo[1]..=hi[1] {
+            for x in lo[0]..=hi[0] {
+                f([x, y, z]);
+            }
+        }
+    }
+}
+
 fn for_cells(ranges: &[([usize; 3], [usize; 3])], mut f: impl FnMut(usize, [usize; 3])) {
     for (t, (lo, hi)) in ranges.iter().enumerate() {
         for z in lo[2]..=hi[2] {
@@ -197,5 +292,41 @@ fn for_cells(ranges: &[([usize; 3], [usize; 3])], mut f: impl FnMut(usize, [usiz
                 }
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used)]
+    use super::*;
+    use crate::generate;
+
+    /// A unit sphere's facets: a point 0.1 out from a vertex is within
+    /// 0.1 of the surface (the vertex lies on the sphere, the facets
+    /// inside it), found within a reach of 0.2 as the full search finds
+    /// it, and not within 0.05; a grid over the facets of one half only
+    /// finds a point beside the other half no nearer than the cut.
+    #[test]
+    fn distance_within_reach_agrees_with_the_full_search() {
+        let sphere = generate::icosphere(1.0, 3);
+        let all: Vec<u32> = (0..sphere.len() as u32).collect();
+        let (lo, hi) = sphere.bounds().unwrap();
+        let full = SurfaceGrid::new(&sphere, lo, hi);
+        let over = SurfaceGrid::over(&sphere, &all);
+        let p = Point::from(sphere.vertices[0].coords * 1.1);
+        let d = full.distance(&p);
+        assert!(d <= 0.1 + 1e-12 && d > 0.09);
+        assert_eq!(over.distance_within(&p, 0.2, |_| true), Some(d));
+        assert_eq!(over.distance_within(&p, 0.05, |_| true), None);
+        let upper: Vec<u32> = all
+            .iter()
+            .copied()
+            .filter(|&t| sphere.corners(t as usize).iter().all(|c| c.z > 0.0))
+            .collect();
+        let half = SurfaceGrid::over(&sphere, &upper);
+        let below = Point::new(0.0, 0.0, -1.0);
+        assert_eq!(half.distance_within(&below, 0.5, |_| true), None);
+        // Leaving out every facet finds nothing.
+        assert_eq!(over.distance_within(&p, 0.2, |_| false), None);
     }
 }

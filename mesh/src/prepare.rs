@@ -612,6 +612,9 @@ pub fn prepare_mesh(
                 repair.weld_widened
             ));
         }
+        if let Some(layers) = crate::repair::describe_layers(&repair.layers) {
+            q.notes.push(layers);
+        }
         if mirrored_half {
             q.notes.push(MIRRORED_HALF_NOTE.to_owned());
         }

@@ -13,15 +13,21 @@ use crate::TriMesh;
 /// Drop fins in place, pass after pass until no edge has an odd number of
 /// facets above two; returns how many facets were dropped.
 pub fn drop_fins(mesh: &mut TriMesh) -> usize {
-    drop_fins_with_uses(mesh).0
+    drop_fins_with_uses(mesh, None).0
 }
 
 /// [`drop_fins`], also handing back the sorted edge uses of the mesh it
-/// leaves (its last pass sorted them), for the passes after it.
-pub(crate) fn drop_fins_with_uses(mesh: &mut TriMesh) -> (usize, Vec<EdgeUse>) {
+/// leaves (its last pass sorted them), for the passes after it. `first`,
+/// when given, are the sorted edge uses of `mesh` as it comes.
+pub(crate) fn drop_fins_with_uses(
+    mesh: &mut TriMesh,
+    mut first: Option<Vec<EdgeUse>>,
+) -> (usize, Vec<EdgeUse>) {
     let mut dropped = 0;
     loop {
-        let uses = sorted_edge_uses(&mesh.triangles);
+        let uses = first
+            .take()
+            .unwrap_or_else(|| sorted_edge_uses(&mesh.triangles));
         let mut keep = vec![true; mesh.triangles.len()];
         let mut any = false;
         for group in edge_groups(&uses) {

@@ -177,3 +177,106 @@ pub fn open_edges(mesh: &TriMesh) -> Vec<(u32, u32)> {
         .filter(|&(a, b)| !set.contains(&(b, a)))
         .collect()
 }
+
+/// A closed sphere of radius `r` about the origin, triangulated in rings
+/// about its north pole (+z) whose edges are about `fine` metres within
+/// `fine_reach` metres of the pole (measured along the surface) and grow
+/// by a quarter of the distance beyond, up to a tenth of the radius: a
+/// fine scan's facets on one spot of a car-sized body, in few facets. Each
+/// ring is turned by a random phase and its vertices moved along and
+/// across it by up to a fifth of an edge, so that no two rings line up
+/// (a random-ish triangulation); every vertex lies on the sphere.
+/// Counter-clockwise seen from outside.
+pub fn graded_sphere(r: f64, fine: f64, fine_reach: f64, rng: &mut Lcg) -> TriMesh {
+    use std::f64::consts::PI;
+    let edge = |s: f64| (fine + 0.25 * (s - fine_reach).max(0.0)).min(0.1 * r);
+    let at = |theta: f64, phi: f64| {
+        Point::new(
+            r * theta.sin() * phi.cos(),
+            r * theta.sin() * phi.sin(),
+            r * theta.cos(),
+        )
+    };
+    let mut vertices = vec![at(0.0, 0.0)];
+    // Each ring: its vertices' indices and azimuths (increasing).
+    let mut rings: Vec<Vec<(u32, f64)>> = Vec::new();
+    let mut s = 0.0;
+    loop {
+        let h = edge(s);
+        s += h * 3f64.sqrt() / 2.0;
+        if s > PI * r - 0.5 * edge(s) {
+            break;
+        }
+        let theta = s / r;
+        let n = ((2.0 * PI * r * theta.sin() / h).round() as usize).max(3);
+        let step = 2.0 * PI / n as f64;
+        let phase = rng.next_f64() * step;
+        let ring = (0..n)
+            .map(|i| {
+                let phi = phase + step * (i as f64 + 0.4 * (rng.next_f64() - 0.5));
+                let th = theta + 0.4 * (rng.next_f64() - 0.5) * h / r;
+                vertices.push(at(th, phi));
+                ((vertices.len() - 1) as u32, phi)
+            })
+            .collect();
+        rings.push(ring);
+    }
+    vertices.push(at(PI, 0.0));
+    let south = (vertices.len() - 1) as u32;
+    let mut triangles = Vec::new();
+    let first = &rings[0];
+    for i in 0..first.len() {
+        triangles.push([0, first[i].0, first[(i + 1) % first.len()].0]);
+    }
+    for pair in rings.windows(2) {
+        let (a, b) = (&pair[0], &pair[1]);
+        let (na, nb) = (a.len(), b.len());
+        // Unwrapped azimuths: ring a from its first vertex, ring b from
+        // the vertex nearest that one.
+        let a0 = a[0].1;
+        let j0 = (0..nb)
+            .min_by(|&i, &j| {
+                let d = |k: usize| (b[k].1 - a0 + PI).rem_euclid(2.0 * PI) - PI;
+                d(i).abs().total_cmp(&d(j).abs())
+            })
+            .unwrap();
+        let ua = |i: usize| a[i % na].1 + 2.0 * PI * (i / na) as f64;
+        let b0 = a0 + (b[j0].1 - a0 + PI).rem_euclid(2.0 * PI) - PI;
+        let ub = |j: usize| {
+            let k = (j0 + j) % nb;
+            b0 + (b[k].1 - b[j0].1).rem_euclid(2.0 * PI) + 2.0 * PI * (j / nb) as f64
+        };
+        let (mut i, mut j) = (0, 0);
+        while i < na || j < nb {
+            let (va, vb) = (a[i % na].0, b[(j0 + j) % nb].0);
+            if j == nb || (i < na && ua(i + 1) < ub(j + 1)) {
+                triangles.push([va, vb, a[(i + 1) % na].0]);
+                i += 1;
+            } else {
+                triangles.push([va, vb, b[(j0 + j + 1) % nb].0]);
+                j += 1;
+            }
+        }
+    }
+    let last = rings.last().unwrap();
+    for i in 0..last.len() {
+        triangles.push([last[i].0, south, last[(i + 1) % last.len()].0]);
+    }
+    TriMesh::new(vertices, triangles).unwrap()
+}
+
+/// `mesh` less the facets whose centroids lie within `radius` of
+/// `centre`: a round hole cut along the facets' edges, as a scan's
+/// software cuts one, its rim jagged by about a facet.
+pub fn punch(mesh: &TriMesh, centre: Point, radius: f64) -> TriMesh {
+    let mut out = mesh.clone();
+    out.triangles.retain(|t| {
+        let c = t
+            .iter()
+            .map(|&v| mesh.vertices[v as usize].coords)
+            .sum::<tuft_mesh::Vector>()
+            / 3.0;
+        (Point::from(c) - centre).norm() >= radius
+    });
+    out
+}
