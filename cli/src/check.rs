@@ -713,15 +713,7 @@ fn hole_lines(r: &PrepareReport) -> String {
         h.non_manifold_edges
     );
     let describe = |what: &str, l: &LoopInfo| {
-        let round = if l.measure < l.perimeter {
-            format!(
-                " ({:.3} m as the circle across its widest, {:.0} mm)",
-                l.measure,
-                1000.0 * l.measure / std::f64::consts::PI
-            )
-        } else {
-            String::new()
-        };
+        let round = tuft_mesh::repair::circle_words(l.measure, l.perimeter);
         format!(
             "           {what} at ({:.3}, {:.3}, {:.3}) m, perimeter {:.3} m{round}, {} edges\n",
             l.centre[0], l.centre[1], l.centre[2], l.perimeter, l.edges

@@ -52,22 +52,27 @@ impl<'a> SurfaceGrid<'a> {
     /// two triangles per occupied cell (at most 128 cells a side).
     pub fn new(mesh: &'a TriMesh, lo: Point, hi: Point) -> Self {
         let (mlo, mhi) = mesh.bounds().unwrap_or((lo, hi));
-        let (lo, hi) = (lo.inf(&mlo), hi.sup(&mhi));
+        let mut grid = Self::sized(mesh, lo.inf(&mlo), hi.sup(&mhi), mesh.len());
+        grid.bin();
+        grid
+    }
+
+    /// An empty grid over the box `lo..hi` for `count` triangles: about two
+    /// per occupied cell, at most 128 cells a side.
+    fn sized(mesh: &'a TriMesh, lo: Point, hi: Point, count: usize) -> Self {
         let ext = (hi - lo).map(|e| e.max(1e-12));
-        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt()
-            / (mesh.len().max(1) as f64).sqrt();
+        let cell =
+            (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt() / (count.max(1) as f64).sqrt();
         let cell = cell.max(ext.max() / 128.0);
         let dims = [0, 1, 2].map(|k| ((ext[k] / cell).ceil() as usize).clamp(1, 128));
-        let mut grid = Self {
+        Self {
             mesh,
             origin: lo,
             cell,
             dims,
             start: Vec::new(),
             items: Vec::new(),
-        };
-        grid.bin();
-        grid
+        }
     }
 
     /// A grid over the facets `facets` of `mesh` only (ids into it), sized
@@ -88,20 +93,8 @@ impl<'a> SurfaceGrid<'a> {
         } else {
             (lo, hi)
         };
-        let ext = (hi - lo).map(|e| e.max(1e-12));
-        let cell = (ext.x * ext.y + ext.y * ext.z + ext.z * ext.x).sqrt()
-            / (facets.len().max(1) as f64).sqrt();
-        let cell = cell.max(ext.max() / 128.0);
-        let dims = [0, 1, 2].map(|k| ((ext[k] / cell).ceil() as usize).clamp(1, 128));
-        let mut grid = Self {
-            mesh,
-            origin: lo,
-            cell,
-            dims,
-            start: Vec::new(),
-            items: Vec::new(),
-        };
-        let n = dims.iter().product::<usize>();
+        let mut grid = Self::sized(mesh, lo, hi, facets.len());
+        let n = grid.dims.iter().product::<usize>();
         let mut count = vec![0u32; n + 1];
         let cells_of = |grid: &Self, t: u32| {
             let (lo, hi) = mesh.facet_box(t as usize);

@@ -182,15 +182,7 @@ fn describe_one(h: &RefusedHole) -> String {
     } else {
         String::new()
     };
-    let round = if h.measure < h.perimeter {
-        format!(
-            " ({:.3} m as the circle across its widest, {:.0} mm)",
-            h.measure,
-            1000.0 * h.measure / std::f64::consts::PI
-        )
-    } else {
-        String::new()
-    };
+    let round = circle_words(h.measure, h.perimeter);
     format!(
         "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m{round}, {why}{cut}",
         h.perimeter
@@ -806,4 +798,18 @@ fn fill_triangles(
     }
     let ring: Vec<u32> = edges.iter().rev().map(|&e| half[e].from).collect();
     ear_clip(&mesh.vertices, &ring, &normal).map(|t| (t, true))
+}
+
+/// A hole measured by the circle across its widest (`measure`, m) when
+/// that is shorter than its traced `perimeter`: " (0.079 m as the circle
+/// across its widest, 25 mm)"; nothing otherwise.
+pub fn circle_words(measure: f64, perimeter: f64) -> String {
+    if measure < perimeter {
+        format!(
+            " ({measure:.3} m as the circle across its widest, {:.0} mm)",
+            1000.0 * measure / std::f64::consts::PI
+        )
+    } else {
+        String::new()
+    }
 }
