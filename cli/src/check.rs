@@ -114,9 +114,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let what = format!("reading, repairing and coarsening {}", file.display());
     let spinner = crate::progress::Progress::spinner("tuft check", &what);
     // The stages on the spinner only: check's stderr stays as it was.
-    let stages = spinner
-        .as_ref()
-        .and_then(|s| s.stages(&crate::progress::Progress::new(true, ""), &what));
+    let stages = spinner.as_ref().and_then(|s| s.spinner_stages(&what));
     let prepared = prepare(&file, &params);
     drop(stages);
     if let Some(s) = spinner {

@@ -1433,7 +1433,7 @@ fn panel_spread(c: &[Row]) -> Option<String> {
         .iter()
         .filter_map(|r| {
             let i = r.panels_instead.as_ref()?;
-            Some(format!("{} was solved on {} panels {i}", r.name, r.panels))
+            Some(crate::pipeline::solved_on_words(&r.name, r.panels, i))
         })
         .collect();
     let advice = if settled.is_empty() {

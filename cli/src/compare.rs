@@ -770,10 +770,10 @@ fn notes(
         let settled: Vec<String> = [("A", sa), ("B", sb)]
             .iter()
             .filter_map(|(which, s)| {
-                Some(format!(
-                    "{which} was solved on {} {}",
+                Some(crate::pipeline::solved_on_words(
+                    which,
                     s.mesh.panels,
-                    s.panels_instead()?
+                    &s.panels_instead()?,
                 ))
             })
             .collect();

@@ -755,7 +755,8 @@ fn finish(
         None => None,
     };
     let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
-    let mut regions = crate::region::evaluate(&case.file.regions, mesh, &layer);
+    let member = crate::region::memberships(&case.file.regions, mesh);
+    let mut regions = crate::region::evaluate(&case.file.regions, &member, mesh, &layer);
     // The frontal area, when the reference area is it (else the band
     // rasters it itself, only if it needs it).
     let frontal = (!reference_given.area).then_some(reference.area);
@@ -768,7 +769,7 @@ fn finish(
             estimate.total.coefficients.drag,
             attached.total.coefficients.drag.abs(),
         ),
-        (&case.file.regions, &mut regions),
+        (&case.file.regions, &member, &mut regions),
     )?;
     progress.end(
         phase,
@@ -1025,6 +1026,13 @@ pub fn panels_instead(panels: usize, target: usize, fallback: Option<&str>) -> O
     (off > 0.01 * target as f64).then(|| format!("instead of the {target} asked ({why})"))
 }
 
+/// "stl-sp0 was solved on 3799 panels instead of the 4000 asked (...)":
+/// a run named `name` solved on `panels`, with [`panels_instead`]'s words,
+/// for `compare`'s and `collect`'s notes on panel counts.
+pub fn solved_on_words(name: &str, panels: usize, instead: &str) -> String {
+    format!("{name} was solved on {panels} panels {instead}")
+}
+
 /// A warning for edges shared by three or more facets that reach the
 /// panels (the repair drops the facets of such edges it can tell apart;
 /// the wrap, when it runs, rebuilds the surface round the rest): the
@@ -1279,8 +1287,9 @@ fn drag_band(
     (base, dead_water): (&BoundaryLayerParams, Option<&BoundaryLayer>),
     (reference, air, frontal): (&Reference, &loads::FlowState, Option<f64>),
     (central, residual): (f64, f64),
-    (regions, results): (
+    (regions, member, results): (
         &[crate::region::RegionSection],
+        &[Vec<bool>],
         &mut [crate::region::RegionResult],
     ),
 ) -> Result<((f64, f64), String)> {
@@ -1313,7 +1322,7 @@ fn drag_band(
         }
         for (r, v) in results
             .iter_mut()
-            .zip(crate::region::evaluate(regions, mesh, &layer))
+            .zip(crate::region::evaluate(regions, member, mesh, &layer))
         {
             let f = v.separated_fraction;
             r.separated_band = [r.separated_band[0].min(f), r.separated_band[1].max(f)];

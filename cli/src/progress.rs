@@ -84,6 +84,22 @@ impl Progress {
         self.timings.push((phase.name, secs));
     }
 
+    /// The geometry's stages within `phase` ([`Phase::spinner_stages`]
+    /// on a terminal), otherwise, unless quiet, one indented line per
+    /// stage. A review's 1.9-million-facet scan had sat 21 s on "reading
+    /// and preparing the geometry".
+    pub fn stages(&self, phase: &Phase, what: &str) -> Option<tuft_mesh::stage::StageGuard> {
+        if let Some(guard) = phase.spinner_stages(what) {
+            return Some(guard);
+        }
+        let prefix = self.prefix.clone();
+        (!self.quiet).then(|| {
+            tuft_mesh::stage::on_stages(Box::new(move |stage| {
+                eprintln!("{prefix}:   {stage} ...");
+            }))
+        })
+    }
+
     /// Print a one-off note (unless quiet).
     pub fn note(&self, msg: &str) {
         if !self.quiet {
@@ -98,25 +114,14 @@ impl Progress {
 }
 
 impl Phase {
-    /// Let the geometry's preparation say its stages within this phase
-    /// (reading, repairing, wrapping, coarsening, checking the panels),
-    /// until the guard is dropped: on a terminal as the spinner's message
-    /// after `what`, the phase's own words; otherwise, unless `progress`
-    /// is quiet, one indented line per stage. A review's 1.9-million-facet
-    /// scan had sat 21 s on "reading and preparing the geometry".
-    pub fn stages(&self, progress: &Progress, what: &str) -> Option<tuft_mesh::stage::StageGuard> {
-        if let Some(bar) = &self.bar {
-            let (bar, what) = (bar.clone(), what.to_owned());
-            return Some(tuft_mesh::stage::on_stages(Box::new(move |stage| {
-                bar.set_message(format!("{what}: {stage}"));
-            })));
-        }
-        if progress.quiet {
-            return None;
-        }
-        let prefix = progress.prefix.clone();
+    /// Let the geometry's preparation say its stages (reading, repairing,
+    /// wrapping, coarsening, checking the panels) as this phase's
+    /// spinner's message after `what`, the phase's own words, until the
+    /// guard is dropped; `None` off a terminal.
+    pub fn spinner_stages(&self, what: &str) -> Option<tuft_mesh::stage::StageGuard> {
+        let (bar, what) = (self.bar.clone()?, what.to_owned());
         Some(tuft_mesh::stage::on_stages(Box::new(move |stage| {
-            eprintln!("{prefix}:   {stage} ...");
+            bar.set_message(format!("{what}: {stage}"));
         })))
     }
 

@@ -276,22 +276,17 @@ fn members(r: &RegionSection, mesh: &PanelMesh) -> Vec<bool> {
     let Some(facing) = r.facing.as_deref().and_then(facing_vector) else {
         return member;
     };
-    let tris: Vec<[nalgebra::Point3<f64>; 3]> = mesh
-        .panels
+    let tris: Vec<[Point; 3]> = crate::output::render::display_triangles(mesh)
         .iter()
-        .map(|p| p.vertices)
-        .chain(
-            mesh.panels
-                .iter()
-                .filter(|_| mesh.mirrors.symmetry)
-                .map(|p| p.vertices.map(|q| Point::new(q.x, -q.y, q.z))),
-        )
+        .map(|t| t.corners)
         .collect();
     // "side" looks out of either side: each panel along its own.
-    for dir in [facing, -facing] {
-        if dir != facing && r.facing.as_deref() != Some("side") {
-            continue;
-        }
+    let sides = if r.facing.as_deref() == Some("side") {
+        vec![facing, -facing]
+    } else {
+        vec![facing]
+    };
+    for dir in sides {
         let bins = crate::rays::RayBins::new(&tris, &dir);
         let hidden: Vec<bool> = copies
             .par_iter()
@@ -371,23 +366,33 @@ pub fn marks(
         .collect()
 }
 
-/// Each region's separated share and mean risk on `mesh` with `layer`.
+/// Each region's panels ([`members`]), computed once for the runs of one
+/// mesh: the sight test casts rays, and the drag band's sensitivity runs
+/// evaluate the same regions again.
+pub fn memberships(regions: &[RegionSection], mesh: &PanelMesh) -> Vec<Vec<bool>> {
+    regions.iter().map(|r| members(r, mesh)).collect()
+}
+
+/// Each region's separated share and mean risk on `mesh` with `layer`,
+/// its panels `member` ([`memberships`]).
 pub fn evaluate(
     regions: &[RegionSection],
+    member: &[Vec<bool>],
     mesh: &PanelMesh,
     layer: &BoundaryLayer,
 ) -> Vec<RegionResult> {
     regions
         .iter()
-        .map(|r| {
+        .zip(member)
+        .map(|(r, member)| {
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
             let mut slopes: Vec<(f64, f64)> = Vec::new();
             let n_real = mesh.len();
             for ((k, (_, n)), _) in copies(mesh)
                 .into_iter()
                 .enumerate()
-                .zip(members(r, mesh))
-                .filter(|(_, m)| *m)
+                .zip(member)
+                .filter(|(_, m)| **m)
             {
                 let (p, l) = (&mesh.panels[k % n_real], &layer.panels[k % n_real]);
                 panels += 1;
@@ -664,7 +669,7 @@ mod tests {
                 attachments: Vec::new(),
                 rim_zone: vec![false; mesh.len()],
             };
-            evaluate(&regions, &mesh, &layer).remove(0)
+            evaluate(&regions, &memberships(&regions, &mesh), &mesh, &layer).remove(0)
         };
         let (whole, half) = (result(false), result(true));
         assert_eq!(whole.panels, half.panels);

@@ -103,7 +103,7 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
     let mut progress = Progress::new(options.quiet, &case.name);
     let what = "reading and preparing the geometry";
     let phase = progress.begin("geometry", what);
-    let stages = phase.stages(&progress, what);
+    let stages = progress.stages(&phase, what);
     let geo = geometry::load(case)?;
     drop(stages);
     progress.end(phase, &panels_note(&geo));

@@ -112,41 +112,24 @@ pub fn dead_water(
     // faces downstream, the side a point behind it sees: a ray from inside
     // the body meets a panel's inner side first and marks nothing.
     let along = stream.normalize();
-    let mut tris: Vec<([Point3<f64>; 3], bool)> = mesh
-        .panels
+    let shown = super::render::display_triangles(mesh);
+    let corners: Vec<[Point3<f64>; 3]> = shown.iter().map(|t| t.corners).collect();
+    let marks: Vec<bool> = shown
         .iter()
-        .zip(separated)
-        .map(|(p, &s)| (p.vertices, s && p.normal.dot(&along) > 0.0))
+        .map(|t| separated[t.panel as usize] && t.normal.dot(&along) > 0.0)
         .collect();
-    if mesh.mirrors.symmetry {
-        let images: Vec<_> = mesh
-            .panels
-            .iter()
-            .zip(separated)
-            .map(|(p, &s)| {
-                let n = Vector3::new(p.normal.x, -p.normal.y, p.normal.z);
-                (
-                    p.vertices.map(|q| Point3::new(q.x, -q.y, q.z)),
-                    s && n.dot(&along) > 0.0,
-                )
-            })
-            .collect();
-        tris.extend(images);
-    }
-    let back = -stream.normalize();
-    let corners: Vec<[Point3<f64>; 3]> = tris.iter().map(|(c, _)| *c).collect();
+    let back = -along;
     let bins = RayBins::new(&corners, &back);
     points
         .par_iter()
         .map(|q| {
             let mut nearest: Option<(f64, bool)> = None;
             for &k in bins.along(q) {
-                let (corners, sep) = &tris[k as usize];
-                if let Some(t) = ray_hits(q, &back, corners)
+                if let Some(t) = ray_hits(q, &back, &corners[k as usize])
                     && t <= reach
                     && nearest.is_none_or(|(d, _)| t < d)
                 {
-                    nearest = Some((t, *sep));
+                    nearest = Some((t, marks[k as usize]));
                 }
             }
             nearest.is_some_and(|(_, sep)| sep)
