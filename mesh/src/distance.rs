@@ -53,7 +53,7 @@ impl<'a> SurfaceGrid<'a> {
     pub fn new(mesh: &'a TriMesh, lo: Point, hi: Point) -> Self {
         let (mlo, mhi) = mesh.bounds().unwrap_or((lo, hi));
         let mut grid = Self::sized(mesh, lo.inf(&mlo), hi.sup(&mhi), mesh.len());
-        grid.bin();
+        grid.bin(0..mesh.len() as u32);
         grid
     }
 
@@ -94,31 +94,7 @@ impl<'a> SurfaceGrid<'a> {
             (lo, hi)
         };
         let mut grid = Self::sized(mesh, lo, hi, facets.len());
-        let n = grid.dims.iter().product::<usize>();
-        let mut count = vec![0u32; n + 1];
-        let cells_of = |grid: &Self, t: u32| {
-            let (lo, hi) = mesh.facet_box(t as usize);
-            (grid.cell_index(&lo), grid.cell_index(&hi))
-        };
-        for &t in facets {
-            let (a, b) = cells_of(&grid, t);
-            for_block(a, b, |c| count[grid.flat(c) + 1] += 1);
-        }
-        for i in 0..n {
-            count[i + 1] += count[i];
-        }
-        let mut fill = count.clone();
-        let mut items = vec![0u32; count[n] as usize];
-        for &t in facets {
-            let (a, b) = cells_of(&grid, t);
-            for_block(a, b, |c| {
-                let f = grid.flat(c);
-                items[fill[f] as usize] = t;
-                fill[f] += 1;
-            });
-        }
-        grid.start = count;
-        grid.items = items;
+        grid.bin(facets.iter().copied());
         grid
     }
 
@@ -157,27 +133,32 @@ impl<'a> SurfaceGrid<'a> {
         (c[2] * self.dims[1] + c[1]) * self.dims[0] + c[0]
     }
 
-    /// Counting sort of triangle ids into cells their boxes overlap.
-    fn bin(&mut self) {
+    /// Counting sort of the triangle ids `facets` into the cells their
+    /// boxes overlap, in two passes (no per-facet ranges kept).
+    fn bin(&mut self, facets: impl Iterator<Item = u32> + Clone) {
         let n = self.dims.iter().product::<usize>();
-        let ranges: Vec<([usize; 3], [usize; 3])> = (0..self.mesh.len())
-            .map(|t| {
-                let (lo, hi) = self.mesh.facet_box(t);
-                (self.cell_index(&lo), self.cell_index(&hi))
-            })
-            .collect();
+        let cells_of = |t: u32| {
+            let (lo, hi) = self.mesh.facet_box(t as usize);
+            (self.cell_index(&lo), self.cell_index(&hi))
+        };
         let mut count = vec![0u32; n + 1];
-        for_cells(&ranges, |_, c| count[self.flat(c) + 1] += 1);
+        for t in facets.clone() {
+            let (a, b) = cells_of(t);
+            for_block(a, b, |c| count[self.flat(c) + 1] += 1);
+        }
         for i in 0..n {
             count[i + 1] += count[i];
         }
         let mut fill = count.clone();
         let mut items = vec![0u32; count[n] as usize];
-        for_cells(&ranges, |t, c| {
-            let f = self.flat(c);
-            items[fill[f] as usize] = t as u32;
-            fill[f] += 1;
-        });
+        for t in facets {
+            let (a, b) = cells_of(t);
+            for_block(a, b, |c| {
+                let f = self.flat(c);
+                items[fill[f] as usize] = t;
+                fill[f] += 1;
+            });
+        }
         self.start = count;
         self.items = items;
     }
@@ -271,18 +252,6 @@ fn for_block(lo: [usize; 3], hi: [usize; 3], mut f: impl FnMut([usize; 3])) {
         for y in lo[1]..=hi[1] {
             for x in lo[0]..=hi[0] {
                 f([x, y, z]);
-            }
-        }
-    }
-}
-
-fn for_cells(ranges: &[([usize; 3], [usize; 3])], mut f: impl FnMut(usize, [usize; 3])) {
-    for (t, (lo, hi)) in ranges.iter().enumerate() {
-        for z in lo[2]..=hi[2] {
-            for y in lo[1]..=hi[1] {
-                for x in lo[0]..=hi[0] {
-                    f(t, [x, y, z]);
-                }
             }
         }
     }

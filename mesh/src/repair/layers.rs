@@ -117,7 +117,7 @@ pub(crate) fn drop_layers(
     plane_tol: f64,
     reach: f64,
 ) -> Vec<DroppedLayer> {
-    let (part, parts) = parts(mesh.len(), uses);
+    let (part, parts) = super::orient::manifold_parts(mesh.len(), uses);
     if parts < 2 {
         return Vec::new();
     }
@@ -228,37 +228,6 @@ fn as_layer(
         distance,
         centre: [centre.x, centre.y, centre.z],
     })
-}
-
-/// Each facet's part (joined across edges exactly two facets share) and
-/// the number of parts.
-fn parts(facets: usize, uses: &[EdgeUse]) -> (Vec<u32>, usize) {
-    let mut parent: Vec<u32> = (0..facets as u32).collect();
-    fn root(parent: &mut [u32], mut t: u32) -> u32 {
-        while parent[t as usize] != t {
-            let up = parent[parent[t as usize] as usize];
-            parent[t as usize] = up;
-            t = up;
-        }
-        t
-    }
-    for group in edge_groups(uses) {
-        if let [a, b] = group {
-            let (ra, rb) = (root(&mut parent, a.facet), root(&mut parent, b.facet));
-            if ra != rb {
-                parent[ra.max(rb) as usize] = ra.min(rb);
-            }
-        }
-    }
-    let mut id: FastMap<u32, u32> = FastMap::default();
-    let mut part = vec![0u32; facets];
-    for t in 0..facets as u32 {
-        let r = root(&mut parent, t);
-        let next = id.len() as u32;
-        part[t as usize] = *id.entry(r).or_insert(next);
-    }
-    let n = id.len();
-    (part, n)
 }
 
 /// Which parts are open: one of their facets alone uses an edge (used by

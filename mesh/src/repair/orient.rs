@@ -60,6 +60,23 @@ pub(crate) fn orient_with_uses(mesh: &mut TriMesh, uses: &[EdgeUse]) -> (OrientR
     (report, component)
 }
 
+/// Each facet's connected part (joined across edges exactly two facets
+/// share, numbered in the order of their first facet) and the number of
+/// parts: the parts this pass orients, for a pass before it.
+pub(crate) fn manifold_parts(facets: usize, uses: &[EdgeUse]) -> (Vec<u32>, usize) {
+    let neighbours = manifold_neighbours(facets, uses);
+    let mut component = vec![u32::MAX; facets];
+    let mut flip = vec![false; facets];
+    let mut parts = 0;
+    for seed in 0..facets {
+        if component[seed] == u32::MAX {
+            flood(seed, parts as u32, &neighbours, &mut component, &mut flip);
+            parts += 1;
+        }
+    }
+    (component, parts)
+}
+
 /// Neighbour across each side through a manifold edge, and whether it runs
 /// the edge in the same direction (inconsistent orientation).
 type Neighbours = Vec<[Option<(u32, bool)>; 3]>;
