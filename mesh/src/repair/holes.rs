@@ -801,15 +801,30 @@ fn fill_triangles(
 }
 
 /// A hole measured by the circle across its widest (`measure`, m) when
-/// that is shorter than its traced `perimeter`: " (0.079 m as the circle
-/// across its widest, 25 mm)"; nothing otherwise.
+/// that is shorter than its traced `perimeter` to the millimetre shown:
+/// " (0.079 m as the circle across its widest, 25 mm)"; nothing otherwise
+/// (a review's check read "perimeter 0.055 m (0.055 m as the circle ...)").
 pub fn circle_words(measure: f64, perimeter: f64) -> String {
-    if measure < perimeter {
+    if format!("{measure:.3}") != format!("{perimeter:.3}") && measure < perimeter {
         format!(
             " ({measure:.3} m as the circle across its widest, {:.0} mm)",
             1000.0 * measure / std::f64::consts::PI
         )
     } else {
         String::new()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    /// The circle is named only where it reads shorter than the perimeter.
+    #[test]
+    fn the_circle_is_named_where_it_reads_shorter() {
+        assert_eq!(
+            super::circle_words(0.079, 0.098),
+            " (0.079 m as the circle across its widest, 25 mm)"
+        );
+        assert_eq!(super::circle_words(0.05498, 0.0550), "");
+        assert_eq!(super::circle_words(0.098, 0.098), "");
     }
 }
