@@ -89,9 +89,19 @@ pub struct Row {
     #[serde(default)]
     pub half_model: bool,
     /// The whole body's lift noise at this variant's dynamic pressure
-    /// and reference area, kg ([`crate::compare::LIFT_NOISE_CL`]).
+    /// and reference area against a like run, kg: the built-in lift noise,
+    /// or the floor its own panel noise gives where larger
+    /// ([`crate::compare::lift_floor_cl`]).
     #[serde(default)]
     pub lift_noise_kg: f64,
+    /// The spread of its drag over three panel counts, counts (`tuft run
+    /// --noise`; absent without it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub drag_spread_counts: Option<f64>,
+    /// The spread of its rear-axle lift over three panel counts, kg
+    /// (`tuft run --noise`; absent without it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub rear_axle_spread_kg: Option<f64>,
     /// Warnings in the variant's summary.
     pub warnings: usize,
     /// The variant's potential flow used a matrix factorised for another.
@@ -469,9 +479,15 @@ fn leader_words(rows: &[Row]) -> String {
         return format!("drag: {lowest}");
     };
     let gap = gap_counts(first, second);
-    if gap < crate::compare::NOISE_COUNTS {
+    let noise = crate::compare::drag_floor([first.drag_spread_counts, second.drag_spread_counts]);
+    if gap < noise {
+        let raised = if noise > crate::compare::NOISE_COUNTS {
+            format!(", under {}", crate::compare::floor_words(noise))
+        } else {
+            String::new()
+        };
         return format!(
-            "no clear winner: the lowest drag, {lowest}, is within {gap:.1} counts of {}",
+            "no clear winner: the lowest drag, {lowest}, is within {gap:.1} counts of {}{raised}",
             second.name
         );
     }
@@ -495,7 +511,7 @@ fn leader_words(rows: &[Row]) -> String {
                  boundary layers marched at either end of the sensitivity settings, and the two share \
                  their separated regions)",
                 second.name,
-                crate::compare::NOISE_COUNTS
+                crate::output::fixed(v.noise_counts, 0)
             )
         } else if !v.leaning.is_empty() {
             format!(
@@ -508,7 +524,11 @@ fn leader_words(rows: &[Row]) -> String {
                 "no clear winner, within the model uncertainty: the lowest drag, {lowest}, is {gap:.1} counts \
                  below {} between the central estimates, but {}",
                 second.name,
-                crate::compare::band_shortfall(-v.delta_counts, v.band_deltas_counts.map(|d| -d))
+                crate::compare::band_shortfall(
+                    -v.delta_counts,
+                    v.band_deltas_counts.map(|d| -d),
+                    v.noise_counts
+                )
             )
         };
     }
@@ -609,10 +629,11 @@ pub fn collect(dir: &Path) -> Result<Collected> {
 
 /// The variants' rear-axle lift in one line, for a sweep in one wind
 /// condition: the most rear downforce (or least rear lift) in this model,
-/// its lead over the runner-up, and whether that lead passes the whole
-/// body's lift noise ([`crate::compare::LIFT_NOISE_CL`] at the leader's
-/// dynamic pressure and reference area; the rear axle scatters as the
-/// whole body does in `bench/drag_noise`). A review asked which roof
+/// its lead over the runner-up, and whether that lead passes the pair's
+/// lift noise: the whole body's ([`Row::lift_noise_kg`]; the rear axle
+/// scatters as the whole body does in `bench/drag_noise`), or where both
+/// measured their panel noise and the rear axles' spreads add to more,
+/// those. A review asked which roof
 /// spoiler was best for rear-axle lift and had to work it out from
 /// sweep.csv. Wheels on, it says to compare like with like.
 fn rear_lift_ranking(c: &Collected) -> Option<String> {
@@ -623,7 +644,14 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     rows.sort_by(|a, b| a.rear_axle_kg.total_cmp(&b.rear_axle_kg));
     let (best, next) = (rows[0], rows[1]);
     let gap = next.rear_axle_kg - best.rear_axle_kg;
-    let noise = best.lift_noise_kg;
+    // Each row's noise is against a like run: the pair's is their
+    // root-mean-square.
+    let whole = (0.5 * (best.lift_noise_kg.powi(2) + next.lift_noise_kg.powi(2))).sqrt();
+    let rear = match (best.rear_axle_spread_kg, next.rear_axle_spread_kg) {
+        (Some(b), Some(n)) => b.hypot(n),
+        _ => 0.0,
+    };
+    let noise = whole.max(rear);
     let kg = |v: f64| crate::output::fixed(v, 1);
     let standing = if gap < noise {
         format!("within the lift noise of about {} kg: no winner", kg(noise))
@@ -775,8 +803,12 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         panels: s.mesh.panels,
         panels_instead: s.panels_instead(),
         half_model: s.mesh.symmetry_plane,
-        lift_noise_kg: crate::compare::LIFT_NOISE_CL * s.dynamic_pressure_pa * s.reference.area_m2
+        lift_noise_kg: crate::compare::lift_floor_cl([s.lift_spread(); 2])
+            * s.dynamic_pressure_pa
+            * s.reference.area_m2
             / tuft_solver::loads::STANDARD_GRAVITY,
+        drag_spread_counts: s.drag_spread(),
+        rear_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[1]),
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
@@ -954,7 +986,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,warnings,wheels_on");
+    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -1005,7 +1037,7 @@ fn csv_row(
     };
     let _ = write!(
         s,
-        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
         r.speed,
         r.yaw_deg,
         r.clearance_m.map(|c| c.to_string()).unwrap_or_default(),
@@ -1023,6 +1055,9 @@ fn csv_row(
         r.separated_area_m2,
         r.separated_percent,
         r.panels,
+        r.drag_spread_counts
+            .map(|n| format!("{n:.1}"))
+            .unwrap_or_default(),
         r.warnings,
         u8::from(r.wheels_on)
     );
@@ -1058,6 +1093,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             r.separated_area_m2
         }),
     ];
+    let noise = sweep_floor(&c.variants);
     let mut out = Vec::new();
     for key in &c.keys {
         if !numeric_key(c, key) {
@@ -1098,7 +1134,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             }
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
-                subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several),
+                subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several, noise),
                 x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
@@ -1108,7 +1144,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 // count spread, within the noise, filled the axis and read
                 // as an optimum.
                 min_y_span: if k == 0 {
-                    DRAG_AXIS_NOISE_FLOORS * crate::compare::NOISE_COUNTS
+                    DRAG_AXIS_NOISE_FLOORS * noise
                 } else {
                     0.0
                 },
@@ -1122,18 +1158,27 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
 }
 
 /// The least height of a sweep's drag axis, in noise floors
-/// ([`crate::compare::NOISE_COUNTS`]; our choice).
+/// ([`sweep_floor`]; our choice).
 const DRAG_AXIS_NOISE_FLOORS: f64 = 4.0;
+
+/// The drag noise floor of a sweep's plots, counts: the floor of a pair
+/// of its two noisiest variants ([`crate::compare::drag_floor`]; the
+/// built-in floor when none measured its panel noise).
+fn sweep_floor(rows: &[Row]) -> f64 {
+    let mut spreads: Vec<f64> = rows.iter().filter_map(|r| r.drag_spread_counts).collect();
+    spreads.sort_by(|a, b| b.total_cmp(a));
+    crate::compare::drag_floor([spreads.first().copied(), spreads.get(1).copied()])
+}
 
 /// A sweep plot's subtitle: the speed, and what the lines are (`several`:
 /// one per combination of the other swept values); on the drag plot
 /// (`drag`) where its band's ends are (drawn grey beside a single line,
 /// `band`, or left to the ranking table).
-fn plot_subtitle(speed: &str, drag: bool, band: bool, several: bool) -> String {
+fn plot_subtitle(speed: &str, drag: bool, band: bool, several: bool, floor: f64) -> String {
     let lines = "one line per combination of the other swept values";
     let noise = format!(
         "; drag differences under {} counts are noise",
-        crate::compare::NOISE_COUNTS
+        crate::output::fixed(floor, 0)
     );
     match (band, several) {
         (true, _) => format!(
@@ -1816,6 +1861,8 @@ mod tests {
             panels_instead: None,
             half_model: false,
             lift_noise_kg: 3.3,
+            drag_spread_counts: None,
+            rear_axle_spread_kg: None,
             warnings: 0,
             matrix_reused: false,
             speed: 40.0,
@@ -1915,13 +1962,14 @@ mod tests {
     #[test]
     fn the_drag_plot_says_where_its_band_is() {
         assert!(
-            plot_subtitle("40 m/s", true, true, false).contains("grey: the ends of the drag band")
+            plot_subtitle("40 m/s", true, true, false, 6.0)
+                .contains("grey: the ends of the drag band")
         );
-        let several = plot_subtitle("40 m/s", true, false, true);
+        let several = plot_subtitle("40 m/s", true, false, true, 6.0);
         assert!(several.contains("one line per") && several.contains("in the ranking table"));
-        assert!(!plot_subtitle("40 m/s", false, false, true).contains("band"));
+        assert!(!plot_subtitle("40 m/s", false, false, true, 6.0).contains("band"));
         assert_eq!(
-            plot_subtitle("40 m/s", false, false, false),
+            plot_subtitle("40 m/s", false, false, false, 6.0),
             "Screening estimates at 40 m/s"
         );
     }
@@ -2045,6 +2093,37 @@ mod tests {
         );
         judge(&mut c);
         assert!(shown(&c, &[]).contains("Rear axle: the most downforce"));
+        // Rear axles that spread by 3 and 4 kg over their panel counts
+        // (tuft run --noise): 5 kg of noise, over the 4.3 kg lead.
+        c.variants[1].rear_axle_spread_kg = Some(3.0);
+        c.variants[0].rear_axle_spread_kg = Some(4.0);
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(
+            line.contains("4.3 kg more than v0 (-20.4 kg), within the lift noise of about 5.0 kg"),
+            "{line}"
+        );
+    }
+
+    /// The drag leader is judged against the floor its and the
+    /// runner-up's measured panel noise give, where larger.
+    #[test]
+    fn the_drag_leader_is_judged_against_measured_panel_noise() {
+        let mut c = sweep(&[10.0, 10.0]);
+        c.variants[0].cd = 0.290;
+        let plain = leader_words(&c.variants);
+        assert!(
+            !plain.starts_with("no clear winner: the lowest drag"),
+            "{plain}"
+        );
+        for r in &mut c.variants {
+            r.drag_spread_counts = Some(8.0);
+        }
+        assert_eq!(
+            leader_words(&c.variants),
+            "no clear winner: the lowest drag, v0 (C_D 0.290), is within 10.0 counts of v1, under the \
+             noise floor of 11 counts (from the runs' measured panel noise)"
+        );
+        assert!((sweep_floor(&c.variants) - 8.0 * 2.0_f64.sqrt()).abs() < 1e-12);
     }
 
     /// Variants on panel counts more than 5 % apart get the page's note.

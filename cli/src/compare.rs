@@ -30,8 +30,8 @@ use mapping::{Mapping, SourcePanel, map_nearest};
 #[cfg(test)]
 use verdict::drag_verdict;
 pub use verdict::{
-    DragVerdict, LIFT_NOISE_CL, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area,
-    drag_verdict_named,
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area, drag_floor,
+    drag_verdict_named, floor_words, lift_floor_cl,
 };
 
 use crate::outdir::Staging;
@@ -87,8 +87,8 @@ pub struct Deltas {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub a_loads_scaled_by: Option<f64>,
     /// The lift difference two runs of imperceptibly different shapes can
-    /// show ([`LIFT_NOISE_CL`] at B's dynamic pressure and reference area),
-    /// kg.
+    /// show ([`lift_floor_cl`] of the two runs at B's dynamic pressure and
+    /// reference area), kg.
     #[serde(default)]
     pub lift_noise_kg: f64,
     /// Separated area, m^2.
@@ -208,6 +208,9 @@ pub struct Side {
     pub separated_area_m2: f64,
     /// Speed, m/s.
     pub speed: f64,
+    /// The run's panel noise, when it measured one (`tuft run --noise`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub panel_noise: Option<crate::noise::PanelNoise>,
 }
 
 /// `compare.json`.
@@ -422,6 +425,7 @@ fn side(r: &ResultFolder) -> Side {
         lift_kg: s.lift_kg.total,
         separated_area_m2: s.separation.area_m2,
         speed: speed_of(s),
+        panel_noise: s.panel_noise.clone(),
     }
 }
 
@@ -473,7 +477,9 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
         front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
         rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
         a_loads_scaled_by: scaled,
-        lift_noise_kg: LIFT_NOISE_CL * b.dynamic_pressure_pa * b.reference.area_m2
+        lift_noise_kg: lift_floor_cl([a.lift_spread(), b.lift_spread()])
+            * b.dynamic_pressure_pa
+            * b.reference.area_m2
             / tuft_solver::loads::STANDARD_GRAVITY,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),

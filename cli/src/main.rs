@@ -31,6 +31,7 @@ mod compare;
 mod estimate;
 mod geometry;
 mod meshfile;
+mod noise;
 mod outdir;
 // Some writer helpers serve only the tests and later commands.
 #[allow(dead_code)]

@@ -68,6 +68,8 @@ pub struct Computed {
     pub warnings: Vec<String>,
     /// The separated-flow loop, when it ran.
     pub wakes: Option<WakeLoop>,
+    /// The case's numbers at two other panel counts (`--noise`).
+    pub panel_noise: Option<crate::noise::PanelNoise>,
 }
 
 /// What the separated-flow loop found.
@@ -884,6 +886,7 @@ fn finish(
         regions,
         warnings,
         wakes,
+        panel_noise: None,
     })
 }
 

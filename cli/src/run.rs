@@ -29,6 +29,12 @@ pub struct RunOptions {
     /// suggests a panel count that fits.
     #[arg(long, value_name = "SIZE")]
     pub memory_limit: Option<String>,
+    /// Also solve at 8 % fewer and 8 % more panels and report how far the
+    /// drag and lift move: this shape's panel noise, which compare and
+    /// collect then use where it is larger than the built-in floor. Takes
+    /// about three times as long.
+    #[arg(long)]
+    pub noise: bool,
 }
 
 impl RunOptions {
@@ -107,7 +113,10 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
     let geo = geometry::load(case)?;
     drop(stages);
     progress.end(phase, &panels_note(&geo));
-    let computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
+    let mut computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;
+    if options.noise {
+        crate::noise::add_to(&mut computed, case, &geo, memory_limit, &mut progress);
+    }
     let summary = write::write_all(case, &geo, &computed, &staging, &mut progress)
         .with_context(|| format!("writing results for {}", out.display()))?;
     staging.commit()?;
@@ -199,6 +208,12 @@ fn print_summary(out: &Path, s: &Summary) {
         say!(
             "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",
             crate::output::plural(w.passes, "pass", "passes"),
+        );
+    }
+    if let Some(n) = &s.panel_noise {
+        say!(
+            "  panel noise: {} (compare and collect judge differences against it)",
+            n.words(s.axle_split_shown())
         );
     }
     if s.rim_shown() {

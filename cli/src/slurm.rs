@@ -42,6 +42,8 @@ pub struct SlurmJob {
     /// (`--mem`) and each shard keeps to it, so a run that would not fit
     /// is refused before it solves rather than killed by the scheduler.
     pub memory_limit: Option<f64>,
+    /// `--noise`: each variant measures its panel noise.
+    pub noise: bool,
 }
 
 /// Quote for a POSIX shell.
@@ -85,9 +87,10 @@ pub fn array_script(job: &SlurmJob) -> String {
     let memory = job
         .memory_limit
         .map_or(String::new(), |m| format!(" --memory-limit {m:.0}"));
+    let noise = if job.noise { " --noise" } else { "" };
     let _ = writeln!(
         s,
-        "{} sweep {} --out {} --shard \"$SLURM_ARRAY_TASK_ID/{}\" --quiet{threads}{memory} || status=$?",
+        "{} sweep {} --out {} --shard \"$SLURM_ARRAY_TASK_ID/{}\" --quiet{threads}{memory}{noise} || status=$?",
         q(&job.program),
         q(&job.sweep),
         q(&job.out),
@@ -166,6 +169,7 @@ pub fn write_scripts(args: &SweepArgs, plan: &Plan, root: &Path) -> Result<ExitC
         threads: args.options.threads,
         options: args.slurm_options.clone(),
         memory_limit: args.options.memory_limit_bytes()?,
+        noise: args.options.noise,
     };
     let dir = job.out.join("slurm");
     std::fs::create_dir_all(&dir).with_context(|| format!("{}: cannot create", dir.display()))?;
@@ -212,9 +216,11 @@ mod tests {
             threads: Some(2),
             options: vec!["--time=01:00:00".into()],
             memory_limit: Some(8e9),
+            noise: true,
         };
         let a = array_script(&job);
         assert!(a.contains("#SBATCH --array=1-3"));
+        assert!(a.contains(" --noise "), "{a}");
         assert!(a.contains("--shard \"$SLURM_ARRAY_TASK_ID/3\""));
         assert!(a.contains("'/s/it'\\''s.toml'"), "{a}");
         assert!(a.contains("#SBATCH --time=01:00:00") && a.contains("--threads 2"));

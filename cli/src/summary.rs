@@ -185,6 +185,10 @@ pub struct Summary {
     /// The case's named regions and how much of each separated.
     #[serde(default)]
     pub regions: Vec<crate::region::RegionResult>,
+    /// The same case solved at two other panel counts (`tuft run
+    /// --noise`; absent without it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub panel_noise: Option<crate::noise::PanelNoise>,
     /// Seconds per phase.
     pub timings_s: BTreeMap<String, f64>,
     /// Warnings the user must read.
@@ -240,6 +244,18 @@ impl Summary {
             .get("flow")?
             .get(key)
             .and_then(serde_json::Value::as_f64)
+    }
+
+    /// The spread of the drag over the run's panel counts, counts (`tuft
+    /// run --noise`; `None` without it).
+    pub fn drag_spread(&self) -> Option<f64> {
+        self.panel_noise.as_ref().map(|n| n.drag_counts)
+    }
+
+    /// The spread of the lift coefficient over the run's panel counts
+    /// (`None` without `--noise`).
+    pub fn lift_spread(&self) -> Option<f64> {
+        self.panel_noise.as_ref().map(|n| n.lift_cl)
     }
 
     /// Whether the drag comes from the attached flow's plateau model: the

@@ -154,7 +154,7 @@ fn run_range(
         let summary = root.join(&variant.name).join("summary.json");
         let mut replace = false;
         if !opt.force && summary.exists() {
-            match stale(&summary, variant, dir) {
+            match stale(&summary, variant, dir, opt.noise) {
                 None => {
                     done += 1;
                     let kept = crate::compare::read_summary(&root.join(&variant.name))
@@ -193,25 +193,29 @@ fn run_range(
             warned += usize::from(!s.warnings.is_empty());
         }
         let line = match outcome {
-            Outcome::Done(s, matrix) => format!(
-                "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {}){}",
-                s.coefficients.drag,
-                s.drag_estimate.cd_low,
-                s.drag_estimate.cd_high,
-                s.lift_kg.axle_words()[0],
-                100.0 * s.separation.fraction,
-                if matrix.reused {
-                    "flow solver set up by an earlier variant of this shape".to_string()
-                } else if matrix.variants_sharing > 1 {
-                    format!(
-                        "flow solver set up here, shared by {} variants of this shape",
-                        matrix.variants_sharing
-                    )
-                } else {
-                    "flow solver set up for this variant".to_string()
-                },
-                warning_words(s.warnings.len())
-            ),
+            Outcome::Done(s, matrix) => {
+                format!(
+                    "C_D {:.3} (band {:.3} to {:.3}), lift {} kg, separated {:.1} % ({secs:.1} s, {}){}",
+                    s.coefficients.drag,
+                    s.drag_estimate.cd_low,
+                    s.drag_estimate.cd_high,
+                    s.lift_kg.axle_words()[0],
+                    100.0 * s.separation.fraction,
+                    if matrix.reused {
+                        "flow solver set up by an earlier variant of this shape".to_string()
+                    } else if matrix.variants_sharing > 1 {
+                        format!(
+                            "flow solver set up here, shared by {} variants of this shape",
+                            matrix.variants_sharing
+                        )
+                    } else {
+                        "flow solver set up for this variant".to_string()
+                    },
+                    warning_words(s.warnings.len())
+                ) + &s.panel_noise.as_ref().map_or_else(String::new, |n| {
+                    format!("; panel noise: {}", n.words(s.axle_split_shown()))
+                })
+            }
             Outcome::Failed(why) => {
                 failed += 1;
                 format!("FAILED: {why}")
@@ -235,7 +239,7 @@ fn run_range(
             dir,
             root,
             &todo[start..end],
-            (opt.force, memory_limit),
+            (opt.force, memory_limit, opt.noise),
             &mut report,
         );
         start = end;
@@ -258,8 +262,9 @@ fn warning_words(n: usize) -> String {
 /// Why a finished variant's result no longer answers its inputs, if it
 /// does not: its case differs from the one the result was computed for
 /// (the base case or the sweep changed), or its STL was written after the
-/// result (a scan re-exported under the same name). `None` keeps it.
-fn stale(summary: &Path, variant: &plan::Variant, dir: &Path) -> Option<String> {
+/// result (a scan re-exported under the same name), or `noise` asks for
+/// the panel noise it was run without. `None` keeps it.
+fn stale(summary: &Path, variant: &plan::Variant, dir: &Path, noise: bool) -> Option<String> {
     let Ok(file) = &variant.file else {
         return None;
     };
@@ -267,6 +272,9 @@ fn stale(summary: &Path, variant: &plan::Variant, dir: &Path) -> Option<String> 
     let now = serde_json::to_value(file).ok()?;
     if kept.case != now {
         return Some("its case changed since it was run".into());
+    }
+    if noise && kept.panel_noise.is_none() {
+        return Some("it was run without --noise".into());
     }
     let stl = file.geometry.stl.as_ref().map(|p| dir.join(p))?;
     let modified = |p: &Path| std::fs::metadata(p).and_then(|m| m.modified()).ok();

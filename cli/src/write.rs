@@ -554,6 +554,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             wake_panels: w.wake.panels.len(),
         }),
         regions: c.regions.clone(),
+        panel_noise: c.panel_noise.clone(),
         timings_s: progress.timings().iter().cloned().collect(),
         warnings,
         notes: geo.report.quality.notes.clone(),
@@ -932,6 +933,15 @@ fn report(
             "-",
         ),
     ]);
+    if let Some(n) = &s.panel_noise {
+        numbers.push(NumberRow::text(
+            "Panel noise (the case solved again at other panel counts: how far the numbers moved; \
+             tuft compare and tuft collect judge differences against it where it is above their \
+             built-in floor)",
+            &n.words(s.axle_split_shown()),
+            "-",
+        ));
+    }
     let floor = underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
     let summary = format!(
         "Drag estimate C_D {:.3} (band {:.3} to {:.3}); lift {} kg at {} m/s (front {}, rear {}){floor}; \

@@ -501,3 +501,67 @@ fn a_yawed_run_says_what_it_cannot_give() {
         .any(|w| w.as_str().unwrap().starts_with("a yawed run on"));
     assert!(warned, "{}", summary["warnings"]);
 }
+
+/// `tuft run --noise` solves the case again at 8 % fewer and 8 % more
+/// panels: summary.json's `panel_noise` holds the three counts (the run's
+/// own first, with its own numbers) and the spread of their numbers, the
+/// report and stdout give it, and `tuft compare` judges drag against the
+/// floor it gives.
+#[test]
+fn noise_measures_the_spread_over_three_panel_counts() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = "[geometry]\nshape = \"coupe\"\npanels = 1200\n[ground]\nz = 0.0\n\
+                [reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n";
+    std::fs::write(dir.path().join("a.toml"), case).unwrap();
+    std::fs::write(dir.path().join("b.toml"), case).unwrap();
+    let o = tuft(dir.path(), &["run", "a.toml", "--noise"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    assert!(o.stdout.contains("  panel noise: drag "), "{}", o.stdout);
+    assert!(o.stderr.contains("a: panel noise done in"), "{}", o.stderr);
+    let summary: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path().join("a/summary.json")).unwrap()).unwrap();
+    let n = &summary["panel_noise"];
+    let list = |key: &str| -> Vec<f64> {
+        n[key]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect()
+    };
+    let panels = list("panels");
+    assert_eq!(panels.len(), 3);
+    assert_eq!(panels[0], summary["mesh"]["panels"].as_f64().unwrap());
+    // Three panellings: the coupe's generator steps by whole rows, so
+    // 1,104 panels asked make the 1,156 of 1,200 asked, and the count
+    // below moves on (to 1,056 asked).
+    assert!(
+        panels[1] < panels[0] && panels[0] < panels[2] && panels[1] > 950.0 && panels[2] < 1400.0,
+        "{panels:?}"
+    );
+    let cd = list("cd");
+    assert_eq!(cd[0], summary["coefficients"]["drag"].as_f64().unwrap());
+    let spread = |v: &[f64]| {
+        v.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+            - v.iter().copied().fold(f64::INFINITY, f64::min)
+    };
+    let counts = n["drag_counts"].as_f64().unwrap();
+    assert!((counts - 1000.0 * spread(&cd)).abs() < 1e-9);
+    assert!((n["lift_cl"].as_f64().unwrap() - spread(&list("cl"))).abs() < 1e-12);
+    let report = std::fs::read_to_string(dir.path().join("a/report.html")).unwrap();
+    assert!(report.contains("Panel noise"));
+
+    // B without the measure: the pair's floor is A's spread with the
+    // built-in floor's share for B (6 / sqrt 2 counts), never under 6.
+    let o = tuft(dir.path(), &["run", "b.toml", "--quiet"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let o = tuft(dir.path(), &["compare", "a", "b", "--out", "ab", "--quiet"]);
+    assert!(o.code <= 1, "{}", o.stderr);
+    let c: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path().join("ab/compare.json")).unwrap())
+            .unwrap();
+    let floor = c["drag"]["noise_counts"].as_f64().unwrap();
+    let expected = (counts.max(18.0_f64.sqrt()).powi(2) + 18.0).sqrt();
+    assert!((floor - expected).abs() < 1e-9, "{floor} {expected}");
+    assert!(c["a"]["panel_noise"].is_object() && c["b"].get("panel_noise").is_none());
+}

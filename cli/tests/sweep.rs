@@ -397,6 +397,57 @@ fn collect_leaves_out_results_of_an_older_case() {
     assert!(m.starts_with("speed-30") && m.contains("older case"), "{m}");
 }
 
+/// `tuft sweep --noise` measures each variant's panel noise; finished
+/// variants run without it are run again rather than kept, and
+/// `collect` carries each spread into sweep.csv.
+#[test]
+fn a_sweep_with_noise_runs_again_what_was_run_without() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let file = d.join("s.toml");
+    let sweep = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n";
+    std::fs::write(&file, sweep).unwrap();
+    let out = d.join("s");
+    let args = [
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    let (code, err) = tuft(&args);
+    assert_eq!(code, sweep_code(&err), "{err}");
+    let (code, err) = tuft(&[&args[..], &["--noise"]].concat());
+    assert_eq!(code, sweep_code(&err), "{err}");
+    assert_eq!(
+        err.matches("it was run without --noise, so it runs again")
+            .count(),
+        2,
+        "{err}"
+    );
+    assert_eq!(err.matches("; panel noise: drag ").count(), 2, "{err}");
+    for v in ["speed-20", "speed-30"] {
+        let s = json(&out.join(v).join("summary.json"));
+        assert_eq!(s["panel_noise"]["panels"].as_array().unwrap().len(), 3);
+    }
+    // Run again with --noise: both kept.
+    let (_, err) = tuft(&[&args[..], &["--noise"]].concat());
+    assert_eq!(err.matches("already finished, kept").count(), 2, "{err}");
+    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert!(code <= 1);
+    let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+    let mut lines = csv.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let at = header
+        .iter()
+        .position(|h| *h == "panel_noise_counts")
+        .unwrap();
+    for line in lines {
+        let cell: f64 = line.split(',').nth(at).unwrap().parse().unwrap();
+        assert!(cell >= 0.0, "{line}");
+    }
+}
+
 /// Values a case refuses (a negative speed) or a built-in shape's
 /// generator refuses (a rear window at 89 degrees) stop the whole sweep
 /// before any variant runs, naming each bad variant, with no folder

@@ -276,6 +276,15 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             "-",
         ),
     ];
+    for (name, noise) in [("A", &c.a.panel_noise), ("B", &c.b.panel_noise)] {
+        if let Some(n) = noise {
+            numbers.push(NumberRow::text(
+                &format!("Panel noise of {name} (its numbers' spread over three panel counts)"),
+                &n.words(true),
+                "-",
+            ));
+        }
+    }
     for r in &c.regions {
         numbers.push(NumberRow::text(
             &format!("Region \"{}\"", r.name),
@@ -291,7 +300,9 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
              corrected to first order by the gradient over the neighbouring panels (never beyond their \
              values), so the pictures are drawn on B's body.\n\n\
              A drag difference is called one only when it is at least {} counts (differences of a few counts \
-             are within the noise of any simulation, common practice) and keeps its sign at both ends of \
+             are within the noise of any simulation, common practice; the floor is measured on the built-in \
+             coupe, and raised where a run measured a larger panel noise of its own with tuft run --noise) \
+             and keeps its sign at both ends of \
              the two runs' sensitivity bands. The differences at the band ends compare each run's low \
              end with the other's low end and high with high; they are not a range of the difference, and \
              the central difference need not lie between them, since each band sits unevenly about its \
@@ -304,7 +315,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
             c.a.folder,
             c.b.case_name,
             c.b.folder,
-            super::NOISE_COUNTS,
+            crate::output::fixed(c.drag.noise_counts, 0),
         ),
     };
     Report {

@@ -8,7 +8,8 @@
 //! leads with "no winner", because through a switch of the separation
 //! regime the model's direction is known to be wrong):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (what two runs of
-//!    imperceptibly different shapes can differ by, measured);
+//!    imperceptibly different shapes can differ by, measured), or the
+//!    larger floor of the two runs' own panel noise ([`drag_floor`]);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
 //!    runs' sensitivity bands (low end against low end, high end against
 //!    high end): the bands re-run the boundary layer with the separation
@@ -43,6 +44,51 @@ pub const NOISE_COUNTS: f64 = 6.0;
 /// the front axle by 0.2 kg), so two runs differ by up to about twice
 /// 1.41 times that, 0.018, about 3 kg on the demo coupe at 40 m/s.
 pub const LIFT_NOISE_CL: f64 = 0.018;
+
+/// A pair's noise floor from `floor`, the built-in one for a difference of
+/// two runs, and each run's own panel noise where it measured one (`tuft
+/// run --noise`: the spread of its numbers over three panel counts,
+/// [`crate::noise::PanelNoise`]): each run's part is its spread, but never
+/// less than the built-in floor's share of one run, `floor / sqrt(2)`, and
+/// the parts add as independent errors do. Two runs without a measure get
+/// `floor` itself. On the built-in coupe the spread over three counts 8 %
+/// apart is about 1.7 standard deviations of the scatter, where the floor
+/// gives each run 2 (`bench/drag_noise`), so a measured spread only raises
+/// the floor where a shape scatters more than the coupe.
+fn pair_floor(floor: f64, spreads: [Option<f64>; 2]) -> f64 {
+    if spreads.iter().all(Option::is_none) {
+        return floor;
+    }
+    let share = floor / std::f64::consts::SQRT_2;
+    spreads
+        .iter()
+        .map(|s| s.map_or(share, |v| v.max(share)).powi(2))
+        .sum::<f64>()
+        .sqrt()
+}
+
+/// The drag noise floor of two runs with these panel-noise spreads
+/// (counts; `None`: not measured), counts; see [`pair_floor`].
+pub fn drag_floor(spreads: [Option<f64>; 2]) -> f64 {
+    pair_floor(NOISE_COUNTS, spreads)
+}
+
+/// The lift noise of two runs with these panel-noise spreads (lift
+/// coefficient; `None`: not measured), in lift coefficient; see
+/// [`pair_floor`].
+pub fn lift_floor_cl(spreads: [Option<f64>; 2]) -> f64 {
+    pair_floor(LIFT_NOISE_CL, spreads)
+}
+
+/// "the noise floor of 6 counts", or with a floor raised by measured panel
+/// noise, "the noise floor of 11 counts (from the runs' panel noise)".
+pub fn floor_words(floor: f64) -> String {
+    if floor > NOISE_COUNTS {
+        format!("the noise floor of {floor:.0} counts (from the runs' measured panel noise)")
+    } else {
+        format!("the noise floor of {NOISE_COUNTS} counts")
+    }
+}
 
 /// The verdict on a drag difference.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
@@ -166,8 +212,9 @@ pub fn drag_verdict_named(
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
     let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
-    let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= NOISE_COUNTS;
-    let above_noise = delta.abs() >= NOISE_COUNTS;
+    let noise = drag_floor([a.drag_spread(), b.drag_spread()]);
+    let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= noise;
+    let above_noise = delta.abs() >= noise;
     let banded = above_noise && same_way(low) && same_way(high);
     // The plateau model's drag (an attached-only run that separates)
     // ranks nothing.
@@ -228,9 +275,9 @@ pub fn drag_verdict_named(
         )
     } else if !above_noise {
         format!(
-            "no winner: the drag difference, {} counts, is within the noise floor of {NOISE_COUNTS} \
-             counts",
-            signed(delta, 1)
+            "no winner: the drag difference, {} counts, is within {}",
+            signed(delta, 1),
+            floor_words(noise)
         )
     } else if banded && separation_differs {
         format!(
@@ -245,7 +292,7 @@ pub fn drag_verdict_named(
             "no winner, within the model uncertainty: the drag difference is {} counts between the \
              central estimates, but {}",
             signed(delta, 1),
-            band_shortfall(delta, [low, high])
+            band_shortfall(delta, [low, high], noise)
         )
     } else {
         format!(
@@ -265,7 +312,7 @@ pub fn drag_verdict_named(
         resolved,
         delta_counts: delta,
         band_deltas_counts: [low, high],
-        noise_counts: NOISE_COUNTS,
+        noise_counts: noise,
         direction: direction.into(),
         leaning: leaning.into(),
         doubt: if leaning.is_empty() {
@@ -281,8 +328,9 @@ pub fn drag_verdict_named(
 /// Why a difference of `delta` counts between the central estimates does
 /// not hold across the sensitivity bands, whose ends differ by `ends`
 /// (low, high; each one run's end minus the other's): each end that turns
-/// the other way or falls within the noise floor, then the other end.
-pub fn band_shortfall(delta: f64, ends: [f64; 2]) -> String {
+/// the other way or falls within the noise floor `noise` (counts), then
+/// the other end.
+pub fn band_shortfall(delta: f64, ends: [f64; 2], noise: f64) -> String {
     let mut fails = Vec::new();
     let mut holds = Vec::new();
     for (d, end) in ends.into_iter().zip(["low", "high"]) {
@@ -291,10 +339,11 @@ pub fn band_shortfall(delta: f64, ends: [f64; 2]) -> String {
                 "{} between the bands' {end} ends, the other way",
                 signed(d, 1)
             ));
-        } else if d.abs() < NOISE_COUNTS {
+        } else if d.abs() < noise {
             fails.push(format!(
-                "only {} between the bands' {end} ends, within the noise floor of {NOISE_COUNTS} counts",
-                signed(d, 1)
+                "only {} between the bands' {end} ends, within {}",
+                signed(d, 1),
+                floor_words(noise)
             ));
         } else {
             holds.push(format!("{} between their {end} ends", signed(d, 1)));
@@ -331,6 +380,40 @@ mod tests {
         s.drag_estimate.cd_low = lo;
         s.drag_estimate.cd_high = hi;
         s
+    }
+
+    /// A run's own panel noise raises the pair's floor where it is larger
+    /// than its share of the built-in one, and never lowers it.
+    #[test]
+    fn measured_panel_noise_raises_the_floor_only() {
+        assert_eq!(drag_floor([None, None]), NOISE_COUNTS);
+        // Spreads under the built-in share (6 / sqrt 2 = 4.24) keep it.
+        assert!((drag_floor([Some(1.0), Some(3.0)]) - NOISE_COUNTS).abs() < 1e-12);
+        // 14 counts on one, nothing measured on the other: sqrt(14^2 + 18).
+        assert!((drag_floor([Some(14.0), None]) - 214.0_f64.sqrt()).abs() < 1e-12);
+        assert!((drag_floor([Some(8.0), Some(6.0)]) - 10.0).abs() < 1e-12);
+        assert_eq!(lift_floor_cl([None, None]), LIFT_NOISE_CL);
+        assert!((lift_floor_cl([Some(0.03), Some(0.04)]) - 0.05).abs() < 1e-12);
+        // A difference of 10 counts passes the built-in floor and not the
+        // floor of two runs that each spread over 8 counts.
+        let a = summary(0.300, 0.290, 0.320);
+        let b = summary(0.290, 0.278, 0.308);
+        assert!(drag_verdict(&a, &b, None).resolved);
+        let noisy = |mut s: Summary| {
+            s.panel_noise = Some(crate::noise::PanelNoise {
+                drag_counts: 8.0,
+                ..Default::default()
+            });
+            s
+        };
+        let v = drag_verdict(&noisy(a), &noisy(b), None);
+        assert!(!v.resolved, "{v:?}");
+        assert!((v.noise_counts - 8.0 * 2.0_f64.sqrt()).abs() < 1e-12);
+        assert_eq!(
+            v.text,
+            "no winner: the drag difference, -10.0 counts, is within the noise floor of 11 counts \
+             (from the runs' measured panel noise)"
+        );
     }
 
     #[test]

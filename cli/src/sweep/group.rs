@@ -86,7 +86,7 @@ pub fn run_group(
     dir: &Path,
     root: &Path,
     members: &[Member<'_>],
-    (force, memory_limit): (bool, Option<f64>),
+    (force, memory_limit, noise): (bool, Option<f64>, bool),
     report: &mut dyn FnMut(&Member<'_>, &Outcome, f64),
 ) {
     let start = Instant::now();
@@ -179,7 +179,14 @@ pub fn run_group(
             matrix: matrix.clone(),
         };
         let out = root.join(&m.variant.name);
-        let outcome = match run_one(case, &geo, input, &out, &record, force || m.stale) {
+        let outcome = match run_one(
+            case,
+            &geo,
+            input,
+            (&out, force || m.stale),
+            &record,
+            noise.then_some(memory_limit),
+        ) {
             Ok(s) => Outcome::Done(Box::new(s), matrix),
             Err(e) => Outcome::Failed(format!("{e:#}")),
         };
@@ -220,21 +227,27 @@ fn shared_solve(
     )?)
 }
 
-/// Boundary layer, loads and every output of one variant, into `out`.
+/// Boundary layer, loads and every output of one variant, into `out`
+/// (replacing a folder tuft wrote when `force`); `noise`: measure its
+/// panel noise too, within this memory limit (each of its two other panel
+/// counts on a system of its own: the group's is for its own panels).
 fn run_one(
     case: &Case,
     geo: &Geometry,
     input: Input<'_>,
-    out: &Path,
+    (out, force): (&Path, bool),
     record: &VariantRecord,
-    force: bool,
+    noise: Option<Option<f64>>,
 ) -> Result<Summary> {
     let staging = Staging::new(out, force)?;
     let mut progress = Progress::new(true, &case.name);
-    let computed = match input {
+    let mut computed = match input {
         Input::Loop(body) => pipeline::compute_on_body(&geo.mesh, case, body, &mut progress)?,
         Input::Potential(p) => pipeline::compute_from_potential(&geo.mesh, case, p, &mut progress)?,
     };
+    if let Some(memory_limit) = noise {
+        crate::noise::add_to(&mut computed, case, geo, memory_limit, &mut progress);
+    }
     let summary = write::write_all(case, geo, &computed, &staging, &mut progress)
         .with_context(|| format!("writing results for {}", out.display()))?;
     let json = serde_json::to_string_pretty(record)? + "\n";

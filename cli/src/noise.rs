@@ -1,0 +1,293 @@
+//! Panel noise of one case (`tuft run --noise`): the case solved again at
+//! two other panel counts, and how far its drag and lift moved.
+//!
+//! `tuft compare` and `tuft collect` judge a difference against a noise
+//! floor measured on the built-in coupe ([`crate::compare::NOISE_COUNTS`],
+//! [`crate::compare::lift_floor_cl`]). A scan wrapped round its gaps, or
+//! one with a separated tail, can scatter more: a review's wrapped
+//! hatchback moved by 14 drag counts between 3,500 and 4,000 panels. With
+//! this measure a run carries its own figure, and the comparisons use it
+//! where it is larger.
+
+use anyhow::Result;
+use serde::{Deserialize, Serialize};
+use tuft_mesh::PanelMesh;
+
+use crate::case::{Case, GeometrySource};
+use crate::geometry::{self, Geometry};
+use crate::pipeline::{self, Computed};
+use crate::progress::Progress;
+
+/// The other panel counts are the run's own times `1 - STEP` and
+/// `1 + STEP` (or `1 - 2 STEP` when the body cannot be given more panels:
+/// an STL run on every facet it has). 8 % keeps within the span the
+/// built-in coupe's floor was measured over (3,700 to 4,300 panels about
+/// 4,000, `bench/drag_noise`), where the drag shows no trend beyond its
+/// scatter.
+pub const STEP: f64 = 0.08;
+
+/// A count that gives a panelling with as many panels as one already
+/// solved (a built-in shape's generator steps its grid by whole rows: the
+/// coupe asked for 1,104 and 1,200 panels makes the same 1,156) is moved
+/// on by half a [`STEP`] at a time, at most this many times.
+pub const MORE_TRIES: usize = 2;
+
+/// What one solve gave.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Sample {
+    /// Panels solved (real panels: the modelled half's on a half model).
+    pub panels: usize,
+    /// Drag estimate.
+    pub cd: f64,
+    /// Lift coefficient.
+    pub cl: f64,
+    /// Lift on the front and rear axle, kg.
+    pub axles_kg: [f64; 2],
+    /// Separated fraction of the wetted area.
+    pub separated: f64,
+}
+
+impl Sample {
+    /// The numbers of one computed run.
+    pub fn of(mesh: &PanelMesh, c: &Computed) -> Self {
+        let k = &c.estimate.total.coefficients;
+        Self {
+            panels: mesh.len(),
+            cd: k.drag,
+            cl: k.lift,
+            axles_kg: [c.estimate.axles.front_kg, c.estimate.axles.rear_kg],
+            separated: c.separated_area / mesh.area(),
+        }
+    }
+}
+
+/// The case's numbers at three panel counts and how far they spread
+/// (summary.json's `panel_noise`).
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct PanelNoise {
+    /// Panels solved, the run's own count first (the modelled half's on a
+    /// half model).
+    pub panels: Vec<usize>,
+    /// Drag estimate at each count.
+    pub cd: Vec<f64>,
+    /// Lift coefficient at each count.
+    pub cl: Vec<f64>,
+    /// Lift on the front axle at each count, kg.
+    pub front_axle_kg: Vec<f64>,
+    /// Lift on the rear axle at each count, kg.
+    pub rear_axle_kg: Vec<f64>,
+    /// Separated fraction of the wetted area at each count.
+    pub separated_fraction: Vec<f64>,
+    /// Largest less smallest drag, counts.
+    pub drag_counts: f64,
+    /// Largest less smallest lift coefficient.
+    pub lift_cl: f64,
+    /// Largest less smallest lift on the front and on the rear axle, kg.
+    pub axles_kg: [f64; 2],
+}
+
+/// Largest less smallest of `values` (0 for none).
+fn spread(values: impl IntoIterator<Item = f64>) -> f64 {
+    let (lo, hi) = values
+        .into_iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
+            (lo.min(v), hi.max(v))
+        });
+    if hi >= lo { hi - lo } else { 0.0 }
+}
+
+impl PanelNoise {
+    /// The spread of `samples` (the run's own first).
+    pub fn from_samples(samples: &[Sample]) -> Self {
+        let all = |f: fn(&Sample) -> f64| samples.iter().map(f).collect::<Vec<_>>();
+        let cd = all(|s| s.cd);
+        let cl = all(|s| s.cl);
+        let front = all(|s| s.axles_kg[0]);
+        let rear = all(|s| s.axles_kg[1]);
+        Self {
+            panels: samples.iter().map(|s| s.panels).collect(),
+            drag_counts: 1000.0 * spread(cd.iter().copied()),
+            lift_cl: spread(cl.iter().copied()),
+            axles_kg: [spread(front.iter().copied()), spread(rear.iter().copied())],
+            cd,
+            cl,
+            front_axle_kg: front,
+            rear_axle_kg: rear,
+            separated_fraction: all(|s| s.separated),
+        }
+    }
+
+    /// The panel counts in words: "3680, 4000 and 4320 panels".
+    pub fn counts_words(&self) -> String {
+        let mut sorted = self.panels.clone();
+        sorted.sort_unstable();
+        let words: Vec<String> = sorted.iter().map(usize::to_string).collect();
+        match words.as_slice() {
+            [] => "no panel counts".to_owned(),
+            [one] => format!("{one} panels"),
+            [rest @ .., last] => format!("{} and {last} panels", rest.join(", ")),
+        }
+    }
+
+    /// The spread in words, for the report and stdout: "drag 14 counts,
+    /// lift C_L 0.021 (front axle 2.1 kg, rear 4.0 kg) over 3680, 4000 and
+    /// 4320 panels".
+    pub fn words(&self, axles: bool) -> String {
+        let [f, r] = self.axles_kg;
+        let axles = if axles {
+            let [f, r] = crate::output::kg_set([f, r]);
+            format!(" (front axle {f} kg, rear {r} kg)")
+        } else {
+            String::new()
+        };
+        format!(
+            "drag {:.1} counts, lift C_L {:.3}{axles} over {}",
+            self.drag_counts,
+            self.lift_cl,
+            self.counts_words()
+        )
+    }
+}
+
+/// The two other panel counts to solve at: `target` (the count the run's
+/// coarsening aimed at, or the panels it ran on) times `1 - STEP` and `1 +
+/// STEP`, or `1 - STEP` and `1 - 2 STEP` when it cannot be given more.
+pub fn other_counts(target: usize, more_possible: bool) -> [usize; 2] {
+    let at = |f: f64| (f * target as f64).round() as usize;
+    if more_possible {
+        [at(1.0 - STEP), at(1.0 + STEP)]
+    } else {
+        [at(1.0 - STEP), at(1.0 - 2.0 * STEP)]
+    }
+}
+
+/// The count a case's geometry was asked for, and whether more panels can
+/// be had: a built-in shape is generated at any count; an STL is
+/// coarsened, never refined, so one run on every facet it has can only go
+/// down.
+fn target_of(case: &Case, geo: &Geometry) -> (usize, bool) {
+    match case.source {
+        GeometrySource::Shape { .. } => (
+            case.file.geometry.panels.unwrap_or(geometry::SHAPE_PANELS),
+            true,
+        ),
+        GeometrySource::Stl { .. } => match &geo.report.coarsen {
+            Some(c) => (c.target_panels, true),
+            None => (geo.mesh.len(), false),
+        },
+    }
+}
+
+/// Solve `case` again at the two other panel counts ([`other_counts`]) and
+/// measure the spread of the three runs' numbers; `own` is the run's own
+/// result on `geo`. The extra runs are quiet; one phase on `progress`
+/// covers them.
+///
+/// # Errors
+/// Whatever stops a run of the case at another count (memory above all:
+/// the larger count needs about 17 % more).
+pub fn measure(
+    case: &Case,
+    geo: &Geometry,
+    own: &Computed,
+    memory_limit: Option<f64>,
+    progress: &mut Progress,
+) -> Result<PanelNoise> {
+    let (target, more) = target_of(case, geo);
+    let counts = other_counts(target, more);
+    let phase = progress.begin(
+        "panel noise",
+        &format!(
+            "solving again at {} and {} panels to measure the panel noise",
+            counts[0], counts[1]
+        ),
+    );
+    let mut samples = vec![Sample::of(&geo.mesh, own)];
+    let others = counts.into_iter().try_for_each(|n| {
+        let step = (n as f64 - target as f64).signum() * 0.5 * STEP * target as f64;
+        let mut tries = 0;
+        let g = loop {
+            let mut other = case.clone();
+            let asked = (n as f64 + tries as f64 * step).round() as usize;
+            other.file.geometry.panels = Some(asked);
+            let g = geometry::load(&other)?;
+            let same = samples.iter().any(|s| s.panels == g.mesh.len());
+            if !same || tries == MORE_TRIES {
+                break (g, other);
+            }
+            tries += 1;
+        };
+        let (g, other) = g;
+        let mut quiet = Progress::new(true, &case.name);
+        let c = pipeline::compute(&g.mesh, &other, memory_limit, &mut quiet)?;
+        samples.push(Sample::of(&g.mesh, &c));
+        anyhow::Ok(())
+    });
+    match others {
+        Ok(()) => {
+            let noise = PanelNoise::from_samples(&samples);
+            progress.end(phase, &noise.words(true));
+            Ok(noise)
+        }
+        Err(e) => {
+            progress.end(phase, "not measured");
+            Err(e)
+        }
+    }
+}
+
+/// [`measure`] into `computed`, or, when a count does not fit (the larger
+/// needs about 17 % more memory) or fails, a warning saying so: that costs
+/// the measure, not the run.
+pub fn add_to(
+    computed: &mut Computed,
+    case: &Case,
+    geo: &Geometry,
+    memory_limit: Option<f64>,
+    progress: &mut Progress,
+) {
+    match measure(case, geo, computed, memory_limit, progress) {
+        Ok(n) => computed.panel_noise = Some(n),
+        Err(e) => computed.warnings.push(format!(
+            "the panel noise (--noise) could not be measured: {e:#}; compare and collect use the \
+             built-in noise floor for this run"
+        )),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_other_counts_bracket_the_run_or_go_down_only() {
+        assert_eq!(other_counts(4000, true), [3680, 4320]);
+        assert_eq!(other_counts(4000, false), [3680, 3360]);
+    }
+
+    #[test]
+    fn the_spread_is_largest_less_smallest() {
+        let s = |panels, cd, cl, f, r| Sample {
+            panels,
+            cd,
+            cl,
+            axles_kg: [f, r],
+            separated: 0.1,
+        };
+        let n = PanelNoise::from_samples(&[
+            s(4000, 0.300, -0.10, 5.0, -20.0),
+            s(3680, 0.314, -0.12, 4.0, -16.0),
+            s(4320, 0.306, -0.09, 6.5, -21.0),
+        ]);
+        assert!((n.drag_counts - 14.0).abs() < 1e-9, "{}", n.drag_counts);
+        assert!((n.lift_cl - 0.03).abs() < 1e-12);
+        assert!((n.axles_kg[0] - 2.5).abs() < 1e-12);
+        assert!((n.axles_kg[1] - 5.0).abs() < 1e-12);
+        assert_eq!(n.counts_words(), "3680, 4000 and 4320 panels");
+        assert_eq!(
+            n.words(true),
+            "drag 14.0 counts, lift C_L 0.030 (front axle 2.5 kg, rear 5.0 kg) over 3680, 4000 and \
+             4320 panels"
+        );
+    }
+}
