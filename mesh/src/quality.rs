@@ -137,7 +137,8 @@ impl QualityReport {
                      and the size jumps themselves move the answers little (on a review's hatchback, drag \
                      within 0.003 and lift within about 2 kg from 4,000 to 8,000 panels); the panel count \
                      itself can move a scan's more (a wrapped hatchback with a separated tailgate: drag by \
-                     0.014 and rear lift by 5 kg from 3,500 to 4,000), so compare variants at one count"
+                     0.014 and rear lift by 5 kg from 3,500 to 4,000), so compare variants at one count \
+                     (tuft run --noise measures how far this body's answers move)"
                 )),
                 Some(count) if (count as f64) < share * n => {
                     notes.push(format!("{text}; this too comes from the coarsening's grading"));
