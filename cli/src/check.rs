@@ -53,10 +53,15 @@ pub struct CheckArgs {
     /// to look at over the scan in any viewer (never over the input itself).
     #[arg(long, value_name = "FILE.stl")]
     pub save_panels: Option<PathBuf>,
+    /// Worker threads (default: all cores), as for the other commands (a
+    /// review's scripts passed it to every command, and check refused it).
+    #[arg(long)]
+    pub threads: Option<usize>,
 }
 
 /// Run `tuft check`.
 pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
+    crate::run::set_threads(args.threads)?;
     let is_case = args
         .file
         .extension()

@@ -663,14 +663,30 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     } else {
         ""
     };
+    // Lift at the rear on the leader is no downforce: then it has the
+    // least lift (a review's notchbacks, +10.9 to +13.7 kg, had been
+    // called "the most downforce").
+    let [lead, more] = if best.rear_axle_kg < 0.0 {
+        ["the most downforce", "more downforce"]
+    } else {
+        ["the least lift", "less lift"]
+    };
+    // Signed to the tenth the gap is given to: lift "+", downforce "-".
+    let signed = |v: f64| {
+        let t = kg(v);
+        if v > 0.0 && t.parse::<f64>().is_ok_and(|x| x > 0.0) {
+            format!("+{t}")
+        } else {
+            t
+        }
+    };
+    let [b, n] = [signed(best.rear_axle_kg), signed(next.rear_axle_kg)];
     Some(format!(
-        "rear axle: the most downforce in this model is {} ({} kg at the rear; negative is downforce), {} kg \
-         more than {} ({} kg), {standing}{wheels}",
+        "rear axle: {lead} in this model is {} ({b} kg at the rear; negative is downforce), {} kg \
+         {more} than {} ({n} kg), {standing}{wheels}",
         best.name,
-        kg(best.rear_axle_kg),
         kg(gap),
         next.name,
-        kg(next.rear_axle_kg)
     ))
 }
 
@@ -2079,7 +2095,7 @@ mod tests {
             line.starts_with(
                 "rear axle: the most downforce in this model is v1 (-24.7 kg at the rear"
             ) && line.contains(
-                "1.0 kg more than v2 (-23.7 kg), within the lift noise of about 3.3 kg: no winner"
+                "1.0 kg more downforce than v2 (-23.7 kg), within the lift noise of about 3.3 kg: no winner"
             ),
             "{line}"
         );
@@ -2087,19 +2103,34 @@ mod tests {
         c.variants[0].wheels_on = true;
         let line = rear_lift_ranking(&c).unwrap_or_default();
         assert!(
-            line.contains("4.3 kg more than v0 (-20.4 kg), beyond the lift noise")
+            line.contains("4.3 kg more downforce than v0 (-20.4 kg), beyond the lift noise")
                 && line.ends_with("same wheels only"),
             "{line}"
         );
         judge(&mut c);
         assert!(shown(&c, &[]).contains("Rear axle: the most downforce"));
+        // All lifting at the rear: the leader has the least lift.
+        let mut lifting = c.clone();
+        for (r, kg) in lifting.variants.iter_mut().zip([10.9, 13.7, 13.7]) {
+            r.rear_axle_kg = kg;
+        }
+        let line = rear_lift_ranking(&lifting).unwrap_or_default();
+        assert!(
+            line.starts_with(
+                "rear axle: the least lift in this model is v0 (+10.9 kg at the rear; negative is \
+                 downforce), 2.8 kg less lift than v1 (+13.7 kg)"
+            ),
+            "{line}"
+        );
         // Rear axles that spread by 3 and 4 kg over their panel counts
         // (tuft run --noise): 5 kg of noise, over the 4.3 kg lead.
         c.variants[1].rear_axle_spread_kg = Some(3.0);
         c.variants[0].rear_axle_spread_kg = Some(4.0);
         let line = rear_lift_ranking(&c).unwrap_or_default();
         assert!(
-            line.contains("4.3 kg more than v0 (-20.4 kg), within the lift noise of about 5.0 kg"),
+            line.contains(
+                "4.3 kg more downforce than v0 (-20.4 kg), within the lift noise of about 5.0 kg"
+            ),
             "{line}"
         );
     }

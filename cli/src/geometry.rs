@@ -64,7 +64,13 @@ pub fn load(case: &Case) -> Result<Geometry> {
     };
     check_ground(&mesh, case)?;
     let note = check_size(&mesh, case)?;
-    check_placement(&mesh, case)?;
+    // An axle or region off a body whose size says its unit may be wrong:
+    // the unit first (a review's car in inches read as millimetres was
+    // told only that its axles lay outside the body).
+    check_placement(&mesh, case).map_err(|e| match &note {
+        Some(n) => anyhow::anyhow!("{e:#}; but first: {n}"),
+        None => e,
+    })?;
     report.quality.notes.extend(note);
     Ok(Geometry {
         mesh,
@@ -271,16 +277,18 @@ fn size_problem(size: f64, unit: Option<tuft_mesh::LengthUnit>, key: &str) -> Op
 /// 0.45 or 0.18 m, which the size limits let through.
 pub const SCALE_MODEL_SIZE: f64 = 1.0;
 
-/// A note for an STL body under [`SCALE_MODEL_SIZE`] across: a scale
-/// model runs as it is, but a car whose STL unit was mistaken would
-/// report its numbers at a toy's size; the note names the car-sized
-/// readings the other units give (2.5 to 7 m). `unit`: the STL's, named
-/// with `key`.
+/// A note for an STL body under [`SCALE_MODEL_SIZE`] across, or under a
+/// car's 2.5 m when another unit would make it car-sized: a scale model
+/// runs as it is, but a car whose STL unit was mistaken would report its
+/// numbers at a toy's size (a review's 4.8 m car in inches read as
+/// centimetres ran silently as a 1.9 m body); the note names the
+/// car-sized readings the other units give (2.5 to 7 m). `unit`: the
+/// STL's, named with `key`.
 fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String> {
-    if size >= SCALE_MODEL_SIZE {
+    let others = car_sized_readings(size, unit);
+    if size >= SCALE_MODEL_SIZE && (size >= CAR_SIZES[0] || others.is_empty()) {
         return None;
     }
-    let others = car_sized_readings(size, unit);
     let hint = if others.is_empty() {
         String::new()
     } else {
@@ -293,6 +301,9 @@ fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String
         unit.name()
     ))
 }
+
+/// Lengths of a car, metres (common practice: a city car to a large van).
+const CAR_SIZES: [f64; 2] = [2.5, 7.0];
 
 /// Whether `note` is [`size_note`]'s.
 pub fn is_scale_model_note(note: &str) -> bool {
@@ -314,7 +325,7 @@ fn car_sized_readings(size: f64, unit: tuft_mesh::LengthUnit) -> Vec<String> {
     .into_iter()
     .filter(|&u| u != unit)
     .map(|u| (u, read * u.to_metres()))
-    .filter(|(_, m)| (2.5..=7.0).contains(m))
+    .filter(|(_, m)| (CAR_SIZES[0]..=CAR_SIZES[1]).contains(m))
     .map(|(u, m)| {
         format!(
             "in {} it would be {} m",
@@ -376,6 +387,11 @@ mod tests {
         let inch = size_note(4.5 / 25.4, LengthUnit::Mm, "k").unwrap();
         assert!(inch.contains("in inches it would be 4.5 m"), "{inch}");
         assert!(size_note(1.044, LengthUnit::Mm, "k").is_none());
+        // A 4.8 m car in inches read as centimetres: 1.9 m, no car, and in
+        // inches a car.
+        let cm = size_note(4.8 / 2.54, LengthUnit::Cm, "geometry.units").unwrap();
+        assert!(cm.contains("in inches it would be 4.8 m"), "{cm}");
+        assert!(size_note(1.9, LengthUnit::M, "k").is_none());
         assert!(is_scale_model_note(&cm));
         assert!(size_note(4.5, LengthUnit::Mm, "k").is_none());
         // A car in metres read as millimetres is refused, naming the unit.
