@@ -72,6 +72,10 @@ pub enum MeshError {
     },
     /// A facet could not be read or parsed (truncated file, malformed number).
     #[error("facet {} (counting from 1) cannot be read: {}", .facet + 1, match .line {
+        Some((n, text)) if *.last_line => format!(
+            "line {n} (`{text}`), the file's last, breaks off: the file ends in the middle of a \
+             facet, so it was cut short (an interrupted export or copy); export it again"
+        ),
         Some((n, text)) if crate::import::plain_read_error(.reader).contains("NaN") => {
             format!("line {n} (`{text}`): {}", crate::import::plain_read_error(.reader))
         }
@@ -86,6 +90,8 @@ pub enum MeshError {
         /// In an ASCII file, the first line that does not read as ASCII
         /// STL (its number from 1 and its text), when one was found.
         line: Option<(usize, String)>,
+        /// That line is the file's last.
+        last_line: bool,
     },
     /// A facet corner has a NaN or infinite coordinate.
     #[error(
@@ -149,6 +155,20 @@ pub enum MeshError {
         refused: usize,
         /// Every refused hole, largest first.
         holes: Vec<crate::repair::RefusedHole>,
+    },
+    /// An ASCII STL without its closing `endsolid` line whose repair
+    /// failed: the file was most likely cut short at a facet's end, and
+    /// what is missing left the holes (a review's file, cut at 60 % of its
+    /// facets, had been told to close a hole of 7 m in the modeller).
+    #[error(
+        "the ASCII STL ends after facet {facets} without its closing endsolid line, so it was most \
+         likely cut short (an interrupted export or copy): export it again; the repair found {source}"
+    )]
+    CutShort {
+        /// Facets read.
+        facets: usize,
+        /// What the repair found.
+        source: Box<MeshError>,
     },
     /// A shape generator was given a parameter it cannot build.
     #[error("generator parameter {name} = {value}: {reason}")]

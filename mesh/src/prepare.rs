@@ -490,7 +490,18 @@ pub fn prepare_mesh(
     );
     check_mirror_sides(&mesh, params)?;
     crate::stage::starting(|| format!("repairing {} facets", mesh.len()));
-    let (mut mesh, repair) = repair_with_params(mesh, &params.mirrors, &params.repair)?;
+    let (mut mesh, repair) =
+        repair_with_params(mesh, &params.mirrors, &params.repair).map_err(|e| {
+            match (&read, e) {
+                (Some(r), e @ MeshError::OpenHole { .. }) if r.endsolid_missing => {
+                    MeshError::CutShort {
+                        facets: r.facets,
+                        source: Box::new(e),
+                    }
+                }
+                (_, e) => e,
+            }
+        })?;
     let capped_half = undeclared_cap_warning(&mesh, params);
     let plane_tol = params.repair.plane_tolerance * repair.diagonal;
     // Borders a mirror closes must lie exactly on its plane, for the wrap:

@@ -309,6 +309,32 @@ fn file_ends_and_binary_headers_read_as_they_should() {
         matches!(e, MeshError::BadFacet { .. }) && e.to_string().contains("cut short"),
         "{e}"
     );
+    // Cut in the middle of a line: that line, the file's last, is named
+    // as where it breaks off.
+    let mid = &body[..body.rfind("vertex").unwrap() + 3];
+    let e = read_stl(&common::write(dir.path(), "mid.stl", mid.as_bytes())).unwrap_err();
+    let said = e.to_string();
+    assert!(
+        said.contains("(`ver`), the file's last, breaks off") && said.contains("cut short"),
+        "{said}"
+    );
+    // Cut at a facet's end with a third of the facets gone: the repair's
+    // hole is put down to the missing end, not to the model.
+    let lines: Vec<&str> = body.lines().collect();
+    let kept = lines[..1 + 7 * 53].join("\n");
+    let path = common::write(dir.path(), "short.stl", kept.as_bytes());
+    let e = tuft_mesh::prepare::prepare(&path, &tuft_mesh::prepare::PrepareParams::default())
+        .unwrap_err();
+    let said = e.to_string();
+    assert!(
+        matches!(e, MeshError::CutShort { facets: 53, .. })
+            && said.starts_with(
+                "the ASCII STL ends after facet 53 without its closing endsolid line, so it was \
+                 most likely cut short"
+            )
+            && said.contains("the repair found 1 open hole"),
+        "{said}"
+    );
     let junk = format!("{text}\u{1a}exported by a tool\n");
     let (_, r) = read_stl(&common::write(dir.path(), "junk.stl", junk.as_bytes())).unwrap();
     assert_eq!((r.facets, r.solids), (80, 1));

@@ -139,14 +139,16 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
     let mut mesh = match stream_facets(&mut patched, declared) {
         Err(MeshError::BadFacet { facet, reader, .. }) if format == StlFormat::Ascii => {
             let mut inner = patched.inner.into_inner();
-            let line = inner
+            let found = inner
                 .seek(SeekFrom::Start(0))
                 .ok()
                 .and_then(|_| first_bad_line(BufReader::new(inner)));
+            let last_line = found.as_ref().is_some_and(|f| f.2);
             return Err(MeshError::BadFacet {
                 facet,
                 reader,
-                line,
+                line: found.map(|(n, text, _)| (n, text)),
+                last_line,
             });
         }
         Err(e) if count_short.is_none() => return Err(e),
@@ -229,41 +231,37 @@ fn extra_facets_fit(mesh: &TriMesh, n: usize) -> bool {
 
 /// The first line of an ASCII STL that does not read as one: an unknown
 /// keyword, or a `facet normal` or `vertex` line without three numbers.
-/// Its number (from 1) and its text, shortened; `None` when every line
-/// reads, or when the first that does not is a `vertex` or `facet` line
-/// the file ends in (cut short: the reader's own words say so).
-fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String)> {
+/// Its number (from 1), its text, shortened, and whether it is the file's
+/// last (the file then breaks off there: cut short); `None` when every
+/// line reads.
+fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String, bool)> {
     let numbers = |t: &[&str]| t.iter().all(|x| x.parse::<f32>().is_ok());
-    let mut found: Option<(usize, String, bool)> = None;
+    let mut found: Option<(usize, String)> = None;
     for (k, line) in reader.split(b'\n').enumerate() {
         let line = String::from_utf8_lossy(&line.ok()?).trim().to_owned();
         if found.is_some() {
             if line.is_empty() {
                 continue;
             }
-            return found.map(|(n, text, _)| (n, text));
+            return found.map(|(n, text)| (n, text, false));
         }
         let lower = line.to_ascii_lowercase();
         let t: Vec<&str> = lower.split_whitespace().collect();
-        let (fine, numbered) = match t.as_slice() {
-            [] | ["solid" | "endsolid", ..] | ["outer", "loop"] | ["endloop" | "endfacet"] => {
-                (true, false)
-            }
+        let fine = match t.as_slice() {
+            [] | ["solid" | "endsolid", ..] | ["outer", "loop"] | ["endloop" | "endfacet"] => true,
             ["facet", "normal", rest @ ..] | ["vertex", rest @ ..] => {
-                (rest.len() == 3 && numbers(rest), true)
+                rest.len() == 3 && numbers(rest)
             }
-            _ => (false, false),
+            _ => false,
         };
         if !fine {
             let shown: String = line.chars().take(60).collect();
             let more = if shown.len() < line.len() { "..." } else { "" };
-            found = Some((k + 1, format!("{shown}{more}"), numbered));
+            found = Some((k + 1, format!("{shown}{more}")));
         }
     }
     // The bad line was the file's last.
-    found
-        .filter(|(_, _, numbered)| !numbered)
-        .map(|(n, text, _)| (n, text))
+    found.map(|(n, text)| (n, text, true))
 }
 
 /// The flavour decided from the first bytes and the length.
@@ -404,6 +402,7 @@ fn stream_facets<R: Read + Seek>(
         facet: 0,
         reader: source,
         line: None,
+        last_line: false,
     })?;
     let capacity = declared.map_or(1024, |n| n as usize);
     let mut vertices: Vec<Point> = Vec::with_capacity(capacity / 2 + 3);
@@ -415,6 +414,7 @@ fn stream_facets<R: Read + Seek>(
             facet,
             reader: source,
             line: None,
+            last_line: false,
         })?;
         let mut ids = [0u32; 3];
         for (corner, v) in tri.vertices.iter().enumerate() {
