@@ -203,6 +203,7 @@ fn notes(c: &Collected) -> Vec<String> {
         };
         out.extend(
             [
+                sides_note(rows),
                 panel_spread(rows),
                 // The plateau model's variants are named by the ranking
                 // line; this note is about the separated-flow loop.
@@ -218,6 +219,32 @@ fn notes(c: &Collected) -> Vec<String> {
         );
     }
     out
+}
+
+/// The variants whose two sides separate differently at zero yaw (their
+/// warning, [`crate::pipeline::side_difference_warning`]): what differs
+/// between variants there may be the model's drift to one side (a
+/// review's notchback sweep had a diffuser stall read into it).
+fn sides_note(rows: &[Row]) -> Option<String> {
+    let names: Vec<&str> = rows
+        .iter()
+        .filter(|r| {
+            r.warning_texts
+                .iter()
+                .any(|w| w.starts_with(crate::pipeline::SIDES_DIFFER))
+        })
+        .map(|r| r.name.as_str())
+        .collect();
+    (!names.is_empty()).then(|| {
+        format!(
+            "{} {} two sides separating differently at zero yaw (see the warnings): on a symmetric \
+             body that is the separated-flow model drifting to one side, not the shape, so separation, \
+             underbody and drag differences between the variants rest partly on it; run them as half \
+             models (geometry.half_model = true) for one answer per side",
+            names.join(", "),
+            if names.len() == 1 { "has" } else { "have" }
+        )
+    })
 }
 
 /// `tuft collect`.
@@ -2155,6 +2182,22 @@ mod tests {
              noise floor of 11 counts (from the runs' measured panel noise)"
         );
         assert!((sweep_floor(&c.variants) - 8.0 * 2.0_f64.sqrt()).abs() < 1e-12);
+    }
+
+    /// Variants whose sides separate differently at zero yaw are named.
+    #[test]
+    fn one_sided_variants_are_named() {
+        let mut c = sweep(&[10.0, 10.0]);
+        assert!(sides_note(&c.variants).is_none());
+        c.variants[1]
+            .warning_texts
+            .push(format!("{}: ...", crate::pipeline::SIDES_DIFFER));
+        let note = sides_note(&c.variants).unwrap_or_default();
+        assert!(
+            note.starts_with("v1 has two sides separating differently"),
+            "{note}"
+        );
+        assert!(notes(&c).iter().any(|n| n.starts_with("v1 has")));
     }
 
     /// Variants on panel counts more than 5 % apart get the page's note.

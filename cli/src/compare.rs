@@ -504,6 +504,7 @@ pub fn comparison_named(
     // model: the separated regions, or the underbody's share, moved (a
     // diffuser's stall moves the base pressure).
     let separation: Vec<String> = [
+        sides_note(&a.summary, &b.summary),
         separation_note(&a.summary, &b.summary, &surface),
         underbody_note(&a.summary, &b.summary, &surface),
         dead_water_change_note(&surface),
@@ -1035,6 +1036,27 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
     })
 }
 
+/// A note when either run's two sides separate differently at zero yaw
+/// ([`crate::summary::Summary::sides_differ`]): a one-sided separation on a symmetric
+/// body is the model drifting, not the shape, and the differences it
+/// makes read as the change's (a review's notchback carried a strip along
+/// one sill only, and compare had put its underbody's separated share
+/// moving from 8.0 to 2.7 % down to the change elsewhere).
+fn sides_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let which = match (a.sides_differ(), b.sides_differ()) {
+        (true, true) => "both runs",
+        (true, false) => "A",
+        (false, true) => "B",
+        (false, false) => return None,
+    };
+    Some(format!(
+        "in {which} the two sides separate differently at zero yaw (see the run's warning): on a \
+         symmetric body that is the separated-flow model drifting to one side, not the shape, so the \
+         separation and drag differences here rest partly on it; run both as half models \
+         (geometry.half_model = true) for one answer per side"
+    ))
+}
+
 /// A note when B's surface lies within about a panel's edge of A's
 /// everywhere (and changed somewhere): the panels follow so small a change
 /// only in part (a review's 60 mm roof-spoiler extension on 80 mm panels
@@ -1359,6 +1381,18 @@ mod tests {
         );
         assert_eq!(dead_water_change_note(&surface(0.235, 0.05, 0.1)), None);
         assert_eq!(dead_water_change_note(&surface(0.0, 0.0, 0.0)), None);
+        // A run whose two sides separate differently names the drift.
+        let mut one_sided = Summary::default();
+        one_sided.warnings.push(format!(
+            "{}: 0.00 m^2 on the left (y < 0) against 0.38 m^2 on the right",
+            crate::pipeline::SIDES_DIFFER
+        ));
+        assert_eq!(sides_note(&Summary::default(), &Summary::default()), None);
+        let note = sides_note(&one_sided, &Summary::default()).unwrap_or_default();
+        assert!(
+            note.starts_with("in A the two sides separate differently"),
+            "{note}"
+        );
         let note = resolution_note(&surface(0.04, 0.0, 0.03), false).unwrap_or_default();
         assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm)"), "{note}");
         assert!(note.contains("tuft run --noise"), "{note}");

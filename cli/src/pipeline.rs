@@ -921,7 +921,10 @@ wheel's wake, its rotation and the flow through its arch are outside the model, 
 checks what it gives a tyre (on the demo coupe four wheels took C_D from 0.15 to 0.18-0.21); remove \
 the wheels and close the arches to rank drag";
 
-/// The warning of a run whose body stands on the ground (tyres, usually,
+/// The start of [`side_difference_warning`]'s text, by which `compare`
+/// and `collect` know a run that carries it.
+pub const SIDES_DIFFER: &str = "at zero yaw the two sides separate differently";
+
 /// Share of the wetted surface by which the two sides' separated areas may
 /// differ on a whole body centred on y = 0 at zero yaw before a run warns
 /// (our choice: 1 %; the demo coupe's sides differ by 8 panels, a review's
@@ -963,7 +966,7 @@ pub fn side_difference_warning(
     }
     ((left - right).abs() > SIDE_DIFFERENCE_SHARE * mesh.area()).then(|| {
         format!(
-            "at zero yaw the two sides separate differently: {left:.2} m^2 on the left (y < 0) against \
+            "{SIDES_DIFFER}: {left:.2} m^2 on the left (y < 0) against \
              {right:.2} m^2 on the right, on a body centred on y = 0; the separated-flow loop can drift to \
              one side on a whole model, so read the verdicts with care, and if the body is symmetric \
              (tuft check says) run it as a half model (geometry.half_model = true) for one answer"

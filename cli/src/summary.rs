@@ -246,6 +246,14 @@ impl Summary {
             .and_then(serde_json::Value::as_f64)
     }
 
+    /// The run warned that its two sides separate differently at zero yaw
+    /// ([`crate::pipeline::side_difference_warning`]).
+    pub fn sides_differ(&self) -> bool {
+        self.warnings
+            .iter()
+            .any(|w| w.starts_with(crate::pipeline::SIDES_DIFFER))
+    }
+
     /// The spread of the drag over the run's panel counts, counts (`tuft
     /// run --noise`; `None` without it).
     pub fn drag_spread(&self) -> Option<f64> {
