@@ -759,6 +759,13 @@ fn finish(
     let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
     let member = crate::region::memberships(&case.file.regions, mesh);
     let mut regions = crate::region::evaluate(&case.file.regions, &member, mesh, &layer);
+    // In a cross wind the sides differ by right.
+    if case.file.flow.yaw != 0.0 {
+        for r in &mut regions {
+            r.sides = None;
+            r.standing = r.firmness().into();
+        }
+    }
     // The frontal area, when the reference area is it (else the band
     // rasters it itself, only if it needs it).
     let frontal = (!reference_given.area).then_some(reference.area);

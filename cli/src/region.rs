@@ -83,6 +83,14 @@ pub struct RegionResult {
     /// script reading the summary.
     #[serde(default)]
     pub standing: String,
+    /// On a whole body centred on y = 0 at zero yaw, the separated share
+    /// of the region's left (y < 0) and right half when the two give
+    /// different verdicts: on a symmetric body the separated-flow model
+    /// has drifted to one side (a review's notchback read its diffuser
+    /// "partly separated, 28 %, firm" from a strip along one sill), and
+    /// the verdict is uncertain.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sides: Option<[f64; 2]>,
 }
 
 impl RegionResult {
@@ -100,6 +108,7 @@ impl RegionResult {
             separated_band: [fraction, fraction],
             slope_deg,
             standing: String::new(),
+            sides: None,
         }
     }
 
@@ -119,7 +128,7 @@ impl RegionResult {
     /// line, else "firm".
     pub fn firmness(&self) -> &'static str {
         let [lo, hi] = self.separated_band;
-        if verdict(lo) != verdict(hi) {
+        if verdict(lo) != verdict(hi) || self.sides.is_some() {
             "uncertain"
         } else if self.near_line().is_some() {
             "provisional"
@@ -152,6 +161,7 @@ impl RegionResult {
         };
         let near = match (self.band_words(), self.near_line()) {
             (Some((_, _, true)), _) | (_, None) => String::new(),
+            _ if self.sides.is_some() => String::new(),
             (_, Some(line)) => format!(
                 "; within {:.0} points of the {:.0} % line, which a panel count 10 % off can cross: \
                  a provisional verdict",
@@ -159,8 +169,16 @@ impl RegionResult {
                 100.0 * line
             ),
         };
+        let sides = self.sides.map_or(String::new(), |[l, r]| {
+            format!(
+                "; left {} %, right {} %: the two sides differ, the model drifting to one side on a \
+                 symmetric body: verdict uncertain",
+                percent(l),
+                percent(r)
+            )
+        });
         format!(
-            "{} ({} % separated{range}{near})",
+            "{} ({} % separated{range}{near}{sides})",
             self.verdict,
             percent(self.separated_fraction)
         )
@@ -177,6 +195,14 @@ impl RegionResult {
             Some((lo, hi, false)) => format!(" ({lo} to {hi} %)"),
             None if near => " (near a line: provisional)".to_owned(),
             None => String::new(),
+        };
+        let range = match self.sides {
+            Some([l, r]) => format!(
+                " (left {} %, right {} %: the sides differ, verdict uncertain)",
+                percent(l),
+                percent(r)
+            ),
+            None => range,
         };
         format!(
             "{} % {}{range}",
@@ -386,6 +412,8 @@ pub fn evaluate(
         .zip(member)
         .map(|(r, member)| {
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
+            // Area and separated area of the left (y < 0) and right half.
+            let mut halves = [[0.0; 2]; 2];
             let mut slopes: Vec<(f64, f64)> = Vec::new();
             let n_real = mesh.len();
             for ((k, (_, n)), _) in copies(mesh)
@@ -401,8 +429,11 @@ pub fn evaluate(
                     slopes.push((n.x.atan2(n.z).to_degrees(), p.area));
                 }
                 risk += p.area * l.risk;
+                let half = &mut halves[usize::from(p.centroid.y > 0.0)];
+                half[0] += p.area;
                 if l.state == FlowState::Separated {
                     separated += p.area;
+                    half[1] += p.area;
                 }
             }
             let share = |x: f64| if area > 0.0 { x / area } else { 0.0 };
@@ -417,6 +448,7 @@ pub fn evaluate(
                 separated_band: [fraction, fraction],
                 slope_deg: rear_slope(&mut slopes, area),
                 standing: String::new(),
+                sides: one_sided(mesh, halves),
             }
         })
         .map(|mut r| {
@@ -424,6 +456,16 @@ pub fn evaluate(
             r
         })
         .collect()
+}
+
+/// The separated shares of a region's two halves ([`RegionResult::sides`])
+/// on a whole body centred on y = 0, `halves` the (area, separated area)
+/// of its left and right, when they give different verdicts.
+fn one_sided(mesh: &PanelMesh, halves: [[f64; 2]; 2]) -> Option<[f64; 2]> {
+    let (lo, hi) = mesh.bounds();
+    let whole = !mesh.mirrors.symmetry && tuft_mesh::cut::centred(lo.y, hi.y);
+    let [l, r] = halves.map(|[a, s]| if a > 0.0 { s / a } else { f64::NAN });
+    (whole && l.is_finite() && r.is_finite() && verdict(l) != verdict(r)).then_some([l, r])
 }
 
 /// A region's rear slope below the horizontal, degrees, from the `slopes`
@@ -523,6 +565,41 @@ mod tests {
             result(0.5992, [0.5992, 0.5992]).short_words(),
             "59.9 % partly separated (near a line: provisional)"
         );
+    }
+
+    /// A region whose two halves give different verdicts on a whole
+    /// symmetric body says so and is uncertain; halves with one verdict,
+    /// or a region on one side only, are not split.
+    #[test]
+    fn a_region_separated_on_one_side_only_is_uncertain() {
+        let r = RegionResult {
+            sides: Some([0.02, 0.54]),
+            ..RegionResult::example("diffuser", 0.28, None)
+        };
+        assert_eq!(r.firmness(), "uncertain");
+        assert_eq!(
+            r.words(),
+            "partly separated (28 % separated; left 2 %, right 54 %: the two sides differ, the model \
+             drifting to one side on a symmetric body: verdict uncertain)"
+        );
+        assert_eq!(
+            r.short_words(),
+            "28 % partly separated (left 2 %, right 54 %: the sides differ, verdict uncertain)"
+        );
+        let whole = PanelMesh::new(
+            tuft_mesh::generate::icosphere(1.0, 2),
+            tuft_mesh::Mirrors {
+                ground: None,
+                symmetry: false,
+            },
+        )
+        .unwrap_or_else(|e| panic!("{e}"));
+        assert_eq!(
+            one_sided(&whole, [[1.0, 0.0], [1.0, 0.6]]),
+            Some([0.0, 0.6])
+        );
+        assert_eq!(one_sided(&whole, [[1.0, 0.3], [1.0, 0.35]]), None);
+        assert_eq!(one_sided(&whole, [[0.0, 0.0], [1.0, 0.6]]), None);
     }
 
     /// A rear window's slope is read from its steepest tenth: a box drawn
