@@ -177,6 +177,10 @@ pub struct SurfaceDeltas {
     /// median panel area, m.
     #[serde(default)]
     pub panel_edge_m: f64,
+    /// How far B's surface must lie from A's to count as unchanged
+    /// (within) or changed (beyond), m: the two margins above.
+    #[serde(default)]
+    pub margins_m: [f64; 2],
 }
 
 /// B's panels within this fraction of the body length of A's surface
@@ -669,6 +673,7 @@ fn changed_surface(
     out.panel_edge_m = (4.0 * median / 3f64.sqrt()).sqrt();
     let near =
         (UNCHANGED_FRACTION * b.summary.reference.length_m).max(CHANGED_EDGES * out.panel_edge_m);
+    out.margins_m = [UNCHANGED_FRACTION * b.summary.reference.length_m, near];
     let halves = b.halves();
     let sep = |s: PanelState| s == PanelState::Separated;
     // The underbody: facing down in the lowest [`UNDERBODY_HEIGHT`] of the
@@ -1024,16 +1029,35 @@ pub const DEAD_WATER_CHANGE_SHARE: f64 = 0.25;
 fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
     let share = surface.changed_separated_m2 / surface.changed_m2.max(f64::MIN_POSITIVE);
     (surface.changed_m2 > 0.0 && share > DEAD_WATER_CHANGE_SHARE).then(|| {
+        let [unchanged, changed] = surface.margins_m;
+        let margin = if changed > unchanged {
+            "a quarter of a panel edge, clear of two panellings' chord sag"
+        } else {
+            "a thousandth of the body's length"
+        };
         format!(
-            "{:.0} % of the surface that changed ({:.3} of {:.3} m^2) lies in separated flow in A or B: \
+            "{:.0} % of the surface that moved by more than {} ({:.3} of {:.3} m^2; {margin}) lies in \
+             separated flow in A or B: \
              there the model holds the dead water's one pressure, so it misses most of what the change \
              does to the lift and drag (a spoiler, a lip or a diffuser's end working on separated flow); \
              read the difference as this model's and confirm with validated CFD or a tunnel",
             100.0 * share,
+            mm(changed),
             surface.changed_separated_m2,
             surface.changed_m2
         )
     })
+}
+
+/// A length in millimetres, to the millimetre ("28 mm"), or to a tenth
+/// under 10 mm ("4.5 mm").
+fn mm(m: f64) -> String {
+    let v = 1000.0 * m;
+    if v < 10.0 {
+        format!("{v:.1} mm")
+    } else {
+        format!("{v:.0} mm")
+    }
 }
 
 /// A note when either run's two sides separate differently at zero yaw
@@ -1336,9 +1360,10 @@ fn print_comparison(c: &Comparison, out: &Path) {
     let s = &c.surface;
     if s.unchanged_share > 0.0 {
         say!(
-            "  where the shape did not change ({:.0} % of B): |Cp difference| under {:.3} on 95 % of it, giving \
+            "  where the shape did not change (within {} of A's: {:.0} % of B): |Cp difference| under {:.3} on 95 % of it, giving \
              {} drag counts and {} kg of lift: the flow's answer there to the change, plus panel noise \
              (largest at sharp edges and corners)",
+            mm(s.margins_m[0]),
             100.0 * s.unchanged_share,
             s.unchanged_delta_cp_p95,
             crate::output::signed(s.unchanged_drag_counts, 1),
@@ -1372,11 +1397,15 @@ mod tests {
             changed_separated_m2: separated,
             max_distance_m: far,
             panel_edge_m: 0.08,
+            margins_m: [0.0045, 0.02],
             ..SurfaceDeltas::default()
         };
         let note = dead_water_change_note(&surface(0.235, 0.220, 0.1)).unwrap_or_default();
         assert!(
-            note.starts_with("94 % of the surface that changed (0.220 of 0.235 m^2)"),
+            note.starts_with(
+                "94 % of the surface that moved by more than 20 mm (0.220 of 0.235 m^2; a quarter \
+                 of a panel edge, clear of two panellings' chord sag)"
+            ),
             "{note}"
         );
         assert_eq!(dead_water_change_note(&surface(0.235, 0.05, 0.1)), None);
