@@ -531,6 +531,13 @@ pub fn free_air_warning(mesh: &PanelMesh, stl: bool) -> Option<String> {
 /// round.
 pub const BLUNT_NOSE_SHARE: f64 = 0.3;
 
+/// Whether a warning asks whether the nose is at the other end of the
+/// file ([`blunt_nose_warning`]): such a warning comes first, before the
+/// numbers it would make wrong.
+pub fn questions_the_nose(w: &str) -> bool {
+    w.contains("set geometry.nose = ")
+}
+
 /// The question for an STL body whose rim zone shows the stream more than
 /// [`BLUNT_NOSE_SHARE`] of the reference area (`rim_share`); `nose_plus_x`:
 /// the case already says the file's nose is at +x (`geometry.nose`), so the
@@ -1636,8 +1643,11 @@ mod tests {
                 && w.contains("set geometry.nose = \"+x\""),
             "{w}"
         );
+        // It is known, to come first on stdout and in the report.
+        assert!(questions_the_nose(&w) && !questions_the_nose(WHEELS_DRAG));
         // A case that already turned the file: the other setting.
         let w = blunt_nose_warning(0.95, Some(true)).unwrap();
+        assert!(questions_the_nose(&w));
         assert!(
             w.contains("the large-x end") && w.contains("geometry.nose = \"-x\" (or leave it out)"),
             "{w}"

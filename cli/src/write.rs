@@ -481,6 +481,8 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             "geometry.panels",
         ));
     }
+    // A body that may run backwards is the first thing to read.
+    warnings.sort_by_key(|w| !crate::pipeline::questions_the_nose(w));
     let mut s = Summary {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),
