@@ -183,40 +183,18 @@ fn an_axle_outside_the_body_is_refused() {
 }
 
 /// Axles beyond a body whose size says its unit may be wrong (a 4.8 m
-/// box exported in inches, read as millimetres: 0.19 m) name the unit
+/// body exported in inches, read as millimetres: 0.19 m) name the unit
 /// first, in the one line of the refusal.
 #[test]
 fn an_axle_off_a_toy_sized_body_names_the_unit() {
     let dir = tempfile::tempdir().unwrap();
-    // A closed box 189 x 73 x 56 units, 12 facets, outward.
-    let (x, y, z) = (189.0, 73.0, 56.0);
-    let v = |i: usize| {
-        [
-            if i & 1 == 0 { 0.0 } else { x },
-            if i & 2 == 0 { 0.0 } else { y },
-            if i & 4 == 0 { 0.0 } else { z },
-        ]
-    };
-    let faces = [
-        [0, 2, 3, 1],
-        [4, 5, 7, 6],
-        [0, 1, 5, 4],
-        [2, 6, 7, 3],
-        [0, 4, 6, 2],
-        [1, 3, 7, 5],
-    ];
-    let mut stl = String::from("solid box\n");
-    for f in faces {
-        for t in [[f[0], f[1], f[2]], [f[0], f[2], f[3]]] {
-            stl.push_str(" facet normal 0 0 0\n  outer loop\n");
-            for k in t {
-                let p = v(k);
-                stl.push_str(&format!("   vertex {} {} {}\n", p[0], p[1], p[2]));
-            }
-            stl.push_str("  endloop\n endfacet\n");
-        }
-    }
-    stl.push_str("endsolid box\n");
+    // An ellipsoid 189 x 73 x 56 units (millimetres as the file is read),
+    // written in metres as the unit that would make it 4.8 m long.
+    let body = tuft_mesh::generate::ellipsoid(0.0945, 0.0365, 0.028, 400).unwrap();
+    let panels = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::default()).unwrap();
+    let mut stl = Vec::new();
+    tuft_mesh::export::write_panels_stl(&mut stl, &panels, tuft_mesh::LengthUnit::Mm, None)
+        .unwrap();
     std::fs::write(dir.path().join("box.stl"), stl).unwrap();
     std::fs::write(
         dir.path().join("toy.toml"),

@@ -361,15 +361,20 @@ fn a_sweep_keeps_to_the_memory_limit() {
 /// A finished variant whose case has changed since (the base case was
 /// edited and only one shard ran again) is not ranked by `collect`: it is
 /// listed as computed for an older case.
+/// A sweep of the sphere at two speeds written into `d`: its file, its
+/// result folder and its text.
+fn speed_sweep(d: &Path) -> (std::path::PathBuf, std::path::PathBuf, &'static str) {
+    let sweep = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
+                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n";
+    let file = d.join("s.toml");
+    std::fs::write(&file, sweep).unwrap();
+    (file, d.join("s"), sweep)
+}
+
 #[test]
 fn collect_leaves_out_results_of_an_older_case() {
     let dir = tempfile::tempdir().unwrap();
-    let d = dir.path();
-    let file = d.join("s.toml");
-    let sweep = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
-                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n";
-    std::fs::write(&file, sweep).unwrap();
-    let out = d.join("s");
+    let (file, out, sweep) = speed_sweep(dir.path());
     let args = [
         "sweep",
         file.to_str().unwrap(),
@@ -403,12 +408,7 @@ fn collect_leaves_out_results_of_an_older_case() {
 #[test]
 fn a_sweep_with_noise_runs_again_what_was_run_without() {
     let dir = tempfile::tempdir().unwrap();
-    let d = dir.path();
-    let file = d.join("s.toml");
-    let sweep = "[base.geometry]\nshape = \"sphere\"\npanels = 320\n\
-                 [[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0]\n";
-    std::fs::write(&file, sweep).unwrap();
-    let out = d.join("s");
+    let (file, out, _) = speed_sweep(dir.path());
     let args = [
         "sweep",
         file.to_str().unwrap(),
