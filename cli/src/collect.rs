@@ -881,7 +881,14 @@ fn glance(dir: &Path, c: &Collected) -> Glance {
         .zip(&c.variants)
         .filter_map(|(f, r)| f.as_ref().ok().map(|(_, mesh)| (mesh, r.yaw_deg)))
         .collect();
-    let layout = glance::GlanceLayout::new(&bodies);
+    // Names of regions facing down go under the body in the side view.
+    let below = folders.iter().flatten().any(|(folder, _)| {
+        folder
+            .regions()
+            .iter()
+            .any(|r| r.facing.as_deref() == Some("down"))
+    });
+    let layout = glance::GlanceLayout::with_names(&bodies, below);
     let (mut unresolved, mut regions) = (false, false);
     let rows = folders
         .iter()
