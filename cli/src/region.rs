@@ -480,9 +480,9 @@ impl SurfaceKind {
 /// line from where the box takes in the surface to where it leaves it
 /// (a surface's vector area depends only on its edge: that of z = f(x)
 /// from x = a to b across a width w is w (f(a) - f(b), 0, b - a)),
-/// whatever the surface does between, so neither a deck's rounded tail edge nor the window's foot
-/// in its box can set it alone, and a level or slightly raised deck has a
-/// slope too (a review's notchback deck read 17.6 degrees, from the
+/// whatever the surface does between, so neither a deck's rounded tail
+/// edge nor the window's foot in its box can set it alone, and a level
+/// or slightly raised deck has a slope too (a review's notchback deck read 17.6 degrees, from the
 /// steepest tenth alone, where its mean normal falls 3.1, and no slope at
 /// all once its lid was raised 30 or 60 mm, where it falls 1.6 and 0.3).
 /// A surface sloping [`SLANT_DEG`] or more that way is a slant, read by
