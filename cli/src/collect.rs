@@ -21,7 +21,7 @@ use serde::{Deserialize, Serialize};
 use crate::compare::read_summary;
 use crate::output::html::escape;
 use crate::output::plot::{LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, draw_line_plot};
-use crate::region::RegionResult;
+use crate::region::{RegionResult, SurfaceKind};
 use crate::sweep::group::{VARIANT_FILE, VariantRecord};
 use crate::sweep::{PLAN_FILE, PlanEntry};
 use crate::{EXIT_WARNINGS, summary::CAUTION};
@@ -924,7 +924,14 @@ fn glance(dir: &Path, c: &Collected) -> Glance {
         .zip(&c.variants)
         .filter_map(|(f, r)| f.as_ref().ok().map(|(_, mesh)| (mesh, r.yaw_deg)))
         .collect();
-    let layout = glance::GlanceLayout::new(&bodies);
+    // Names of regions facing down go under the body in the side view.
+    let below = folders.iter().flatten().any(|(folder, _)| {
+        folder
+            .regions()
+            .iter()
+            .any(|r| r.facing.as_deref() == Some("down"))
+    });
+    let layout = glance::GlanceLayout::with_names(&bodies, below);
     let (mut unresolved, mut regions) = (false, false);
     let rows = folders
         .iter()
@@ -1460,8 +1467,9 @@ fn slope_spread(c: &[Row]) -> Option<String> {
 /// A named region whose box covers other surface in some variants than in
 /// others, as `tuft compare` notes it for two runs
 /// ([`crate::compare::REGION_AREA_SHIFT`]: its area more than 30 % apart
-/// between the smallest and the largest, or a slope in some variants
-/// only): its share then compares different parts of the body (a review's
+/// between the smallest and the largest, or its slope reading another
+/// kind of surface in some variants, [`crate::region::SurfaceKind`]):
+/// its share then compares different parts of the body (a review's
 /// boot-height sweep moved the foot of the rear window into the "boot
 /// deck" box, which compare noted and collect had not).
 fn region_cover_spread(c: &[Row]) -> Vec<String> {
@@ -1476,10 +1484,20 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
                 a.1.area_m2.total_cmp(&b.1.area_m2)
             };
             let (small, large) = (found.iter().min_by(by_area)?, found.iter().max_by(by_area)?);
-            let sloped = found.iter().filter(|(_, g)| g.slope_deg.is_some()).count();
+            let kinds = |k: SurfaceKind| {
+                let n = found.iter().filter(|(_, g)| SurfaceKind::of(g.slope_deg) == k).count();
+                (n > 0 && n < found.len()).then_some(n)
+            };
             let area = crate::compare::region_areas_differ(small.1.area_m2, large.1.area_m2);
-            let slopes = sloped > 0 && sloped < found.len();
-            (area || slopes).then(|| {
+            let slopes = match (kinds(SurfaceKind::NotUp), kinds(SurfaceKind::Slant)) {
+                (Some(flat), _) => Some(format!("a slope in {} of", found.len() - flat)),
+                (None, Some(slant)) => Some(format!(
+                    "a slant ({:.0} degrees or more) in {slant} of",
+                    crate::region::SLANT_DEG
+                )),
+                (None, None) => None,
+            };
+            (area || slopes.is_some()).then(|| {
                 format!(
                     "The region \"{name}\" covers other surface in some variants than in others (area {:.2} \
                      m^2 in {} against {:.2} m^2 in {}{}): its box stays where it is while the shape changes \
@@ -1488,11 +1506,7 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
                     small.0,
                     large.1.area_m2,
                     large.0,
-                    if slopes {
-                        format!("; a rear slope in {sloped} of {} variants", found.len())
-                    } else {
-                        String::new()
-                    }
+                    slopes.map_or(String::new(), |s| format!("; {s} {} variants", found.len()))
                 )
             })
         })
@@ -2320,12 +2334,23 @@ mod tests {
         assert!(
             n[0].starts_with("The region \"boot deck\" covers other surface")
                 && n[0].contains("0.60 m^2 in v1 against 0.97 m^2 in v0")
-                && n[0].contains("a rear slope in 1 of 2 variants"),
+                && n[0].contains("a slope in 1 of 2 variants"),
             "{}",
             n[0]
         );
         c.variants[1].regions = vec![deck(0.90, None)];
         assert!(region_cover_spread(&c.variants).is_empty());
+        // A review's boot-lid heights: the deck's slope changes, its kind
+        // does not (it had read 18 degrees in one variant, none in two).
+        c.variants[0].regions = vec![deck(1.55, Some(3.1))];
+        c.variants[1].regions = vec![deck(1.59, Some(1.6))];
+        assert!(region_cover_spread(&c.variants).is_empty());
+        c.variants[1].regions = vec![deck(1.59, Some(24.5))];
+        let n = region_cover_spread(&c.variants);
+        assert!(
+            n[0].contains("; a slant (8 degrees or more) in 1 of 2 variants"),
+            "{n:?}"
+        );
     }
 
     /// Region columns in sweep.csv and sweep.html, with empty cells for a

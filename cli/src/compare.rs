@@ -255,8 +255,9 @@ pub struct RegionChange {
     /// few words ([`crate::region::RegionResult::short_words`]).
     #[serde(default)]
     pub words: [String; 2],
-    /// Each run's rear slope, degrees, where the region faces up and
-    /// rearward.
+    /// Each run's slope of the region's surface, degrees below the
+    /// horizontal ([`crate::region::RegionResult::slope_deg`]), where it
+    /// faces up.
     #[serde(default)]
     pub slope_deg: [Option<f64>; 2],
 }
@@ -874,14 +875,6 @@ fn offset_note(a: &ResultFolder, b: &ResultFolder, surface: &SurfaceDeltas) -> O
 /// differs by about 15 %, a change of slope of the same part).
 pub const REGION_AREA_SHIFT: f64 = 0.3;
 
-/// A note for each named region that covers other surface in B than in A:
-/// a region is a box fixed in x, y and z, and a change of shape can move
-/// another part of the body under it (a review's shorter boot deck put the
-/// foot of the rear window into the "boot deck" box, slope 18 degrees
-/// where A's deck had none, and compare reported its share as the deck's
-/// change). Its area differs by more than [`REGION_AREA_SHIFT`], or it
-/// has a slope (faces up and rearward) in one run only; a slope that
-/// changes is the design change a rear-window study makes.
 /// Whether one region's areas in two runs lie more than
 /// [`REGION_AREA_SHIFT`] of the larger apart: its box covers other
 /// surface (`compare`'s note for two runs, `collect`'s across variants).
@@ -890,6 +883,19 @@ pub fn region_areas_differ(a: f64, b: f64) -> bool {
     larger > 0.0 && (a - b).abs() > REGION_AREA_SHIFT * larger
 }
 
+/// A note for each named region that covers other surface in B than in A:
+/// a region is a box fixed in x, y and z, and a change of shape can move
+/// another part of the body under it (a review's shorter boot deck put the
+/// foot of the rear window into the "boot deck" box, and compare reported
+/// its share as the deck's change). Its area differs by more than
+/// [`REGION_AREA_SHIFT`], or its slope reads another kind of surface
+/// ([`crate::region::SurfaceKind`]: none, a deck, a slant) in each run
+/// (the built-in coupe's "boot deck" box, with a 25-degree window and the
+/// deck 0.2 m shorter, takes in the window's foot and reads a 24.5-degree
+/// slant against 1.6; 0.1 m shorter it reads 4.1, still a deck, and is
+/// not noted); a slope that changes within its kind is the design change
+/// a rear-window or boot-lid study makes (a review's notchback deck read
+/// 3.1, 1.6 and 0.3 degrees at three lid heights).
 fn region_cover_notes(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Vec<String> {
     let slope = |s: Option<f64>| s.map_or("none".to_owned(), |d| format!("{d:.0} degrees"));
     a.regions
@@ -897,7 +903,8 @@ fn region_cover_notes(a: &crate::summary::Summary, b: &crate::summary::Summary) 
         .filter_map(|ra| {
             let rb = b.regions.iter().find(|r| r.name == ra.name)?;
             let area = region_areas_differ(ra.area_m2, rb.area_m2);
-            let slopes = ra.slope_deg.is_some() != rb.slope_deg.is_some();
+            let kind = crate::region::SurfaceKind::of;
+            let slopes = kind(ra.slope_deg) != kind(rb.slope_deg);
             (area || slopes).then(|| {
                 format!(
                     "the region \"{}\" covers other surface in B than in A (area {:.2} against {:.2} m^2, \
@@ -1523,8 +1530,13 @@ mod tests {
             n[0]
         );
         assert!(region_cover_notes(&with(0.95, None), &with(0.90, None)).is_empty());
-        // A slope that changes (the demo's rear windows) is the design.
+        // A slope that changes (the demo's rear windows, a review's boot
+        // lid raised 30 mm) is the design.
         assert!(region_cover_notes(&with(0.5, Some(22.0)), &with(0.57, Some(38.0))).is_empty());
+        assert!(region_cover_notes(&with(1.55, Some(3.1)), &with(1.59, Some(1.6))).is_empty());
+        // A deck box that the window's foot moved into reads a slant.
+        let n = region_cover_notes(&with(0.94, Some(1.6)), &with(0.92, Some(24.52)));
+        assert!(n[0].contains("slope 2 degrees against 25 degrees"), "{n:?}");
         assert_eq!(
             region_cover_notes(&with(0.95, None), &with(0.6, None)).len(),
             1

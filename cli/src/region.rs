@@ -73,8 +73,11 @@ pub struct RegionResult {
     /// the drag band).
     #[serde(default)]
     pub separated_band: [f64; 2],
-    /// For a region that faces up and rearward (a rear window, a slant):
-    /// its slope below the horizontal, degrees (see [`rear_slope`]).
+    /// For a region whose surface faces up (a rear window, a slant, a
+    /// boot deck, a roof): its slope below the horizontal, degrees,
+    /// positive where it falls toward the tail, negative where it rises
+    /// (see [`surface_slope`]); absent for one that does not face up (a
+    /// base, a floor, a flank).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub slope_deg: Option<f64>,
     /// How firm the verdict is ([`RegionResult::firmness`]): "firm",
@@ -414,7 +417,7 @@ pub fn evaluate(
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
             // Area and separated area of the left (y < 0) and right half.
             let mut halves = [[0.0; 2]; 2];
-            let mut slopes: Vec<(f64, f64)> = Vec::new();
+            let mut normals: Vec<(Vector, f64)> = Vec::new();
             let n_real = mesh.len();
             for ((k, (_, n)), _) in copies(mesh)
                 .into_iter()
@@ -425,9 +428,7 @@ pub fn evaluate(
                 let (p, l) = (&mesh.panels[k % n_real], &layer.panels[k % n_real]);
                 panels += 1;
                 area += p.area;
-                if n.x > 0.05 && n.z > 0.1 {
-                    slopes.push((n.x.atan2(n.z).to_degrees(), p.area));
-                }
+                normals.push((n, p.area));
                 risk += p.area * l.risk;
                 let half = &mut halves[usize::from(p.centroid.y > 0.0)];
                 half[0] += p.area;
@@ -446,7 +447,7 @@ pub fn evaluate(
                 mean_risk: share(risk),
                 verdict: verdict(fraction).into(),
                 separated_band: [fraction, fraction],
-                slope_deg: rear_slope(&mut slopes, area),
+                slope_deg: surface_slope(&normals),
                 standing: String::new(),
                 sides: one_sided(mesh, halves),
             }
@@ -468,15 +469,102 @@ fn one_sided(mesh: &PanelMesh, halves: [[f64; 2]; 2]) -> Option<[f64; 2]> {
     (whole && l.is_finite() && r.is_finite() && verdict(l) != verdict(r)).then_some([l, r])
 }
 
-/// A region's rear slope below the horizontal, degrees, from the `slopes`
-/// (slope, area) of its panels that face up and rearward: the slope its
-/// steepest tenth of that area reaches (a region drawn as a box round a
-/// rear window takes in the rounded roof and boot edges, whose mean would
-/// read a 28-degree window of the demo coupe as 18; the steepest tenth
-/// reads 27.6, 29.7 and 33.8 for windows of 28, 30 and 34 degrees, and a
-/// single stray panel of a scan cannot set it). `None` when those panels
-/// hold under a quarter of the region's `area` (not a rear-facing region).
-fn rear_slope(slopes: &mut [(f64, f64)], area: f64) -> Option<f64> {
+/// A panel faces up, for a region's slope, when its normal's upward
+/// part exceeds this (steeper than about 84 degrees it is a base or a
+/// flank). Our choice, as the slope's reading before it.
+const UP_NZ: f64 = 0.1;
+
+/// A region whose surface as a whole ([`surface_slope`]'s mean normal)
+/// slopes by this much or more, degrees, is a slant (a rear window, a
+/// fastback), read by its steepest tenth; a flatter one (a boot deck, a
+/// roof) by its mean. Measured on the regions' mean normals: boot decks
+/// read 0.3 to 3.7 (a review's notchback at three lid heights, 3.1, 1.6
+/// and 0.3; the demo coupe's, 1.4 and 3.7), and 4.1 on the built-in
+/// coupe with a 25-degree window and its deck 0.1 m shorter, whose box
+/// then takes in the window's foot; rear windows 13.5 to 28.4 (the demo
+/// coupe's of 22 and 38 degrees, whose boxes take in the roof's and the
+/// deck's edges and the flat shoulders beside the glass; the notchback's
+/// of 25 degrees 18.1); 8 lies between.
+pub const SLANT_DEG: f64 = 8.0;
+
+/// The kind of surface a region's slope ([`RegionResult::slope_deg`])
+/// says its box covers: a box that covers another kind in one run than in
+/// another has had another part of the body moved under it
+/// (`compare::region_cover_notes`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SurfaceKind {
+    /// No slope: under half its area faces up (a base, a floor, a flank).
+    NotUp,
+    /// Sloping under [`SLANT_DEG`] either way: a deck, a roof.
+    Deck,
+    /// Sloping [`SLANT_DEG`] or more: a rear window, a slant.
+    Slant,
+}
+
+impl SurfaceKind {
+    /// The kind a slope reads as.
+    pub fn of(slope_deg: Option<f64>) -> Self {
+        match slope_deg {
+            None => Self::NotUp,
+            Some(s) if s.abs() < SLANT_DEG => Self::Deck,
+            Some(_) => Self::Slant,
+        }
+    }
+}
+
+/// A region's slope below the horizontal, degrees, from the (normal,
+/// area) of its panels; positive falls toward the tail (+x), negative
+/// rises. `None` when under half its area faces up ([`UP_NZ`]): a base,
+/// a floor or a flank has no slope.
+///
+/// The slope is first read from the mean normal of the panels that face
+/// up (their area-weighted sum, the surface's vector area): that is the
+/// line from where the box takes in the surface to where it leaves it
+/// (a surface's vector area depends only on its edge: that of z = f(x)
+/// from x = a to b across a width w is w (f(a) - f(b), 0, b - a)),
+/// whatever the surface does between, so neither a deck's rounded tail
+/// edge nor the window's foot in its box can set it alone, and a level
+/// or slightly raised deck has a slope too (a review's notchback deck read 17.6 degrees, from the
+/// steepest tenth alone, where its mean normal falls 3.1, and no slope at
+/// all once its lid was raised 30 or 60 mm, where it falls 1.6 and 0.3).
+/// A surface sloping [`SLANT_DEG`] or more that way is a slant, read by
+/// [`steepest_tenth`] of its panels facing that way: a box drawn round a
+/// rear window takes in the roof's and the deck's edges and the flat
+/// shoulders beside the glass, whose mean reads the demo's 22 and
+/// 38-degree windows as 13.5 and 28.4, where their steepest tenth reads
+/// 21.6 and 37.7 (and the compare and collect cautions from 25 degrees
+/// need the window's own slope).
+fn surface_slope(normals: &[(Vector, f64)]) -> Option<f64> {
+    let area: f64 = normals.iter().map(|p| p.1).sum();
+    let up: Vec<&(Vector, f64)> = normals.iter().filter(|(n, _)| n.z > UP_NZ).collect();
+    let up_area: f64 = up.iter().map(|p| p.1).sum();
+    if !(up_area > 0.0 && up_area >= 0.5 * area) {
+        return None;
+    }
+    let sum = up.iter().fold(Vector::zeros(), |s, (n, a)| s + n * *a);
+    let mean = sum.x.atan2(sum.z).to_degrees();
+    if mean.abs() < SLANT_DEG {
+        return Some(mean);
+    }
+    // The slant's side: its panels facing rearward (or forward, for one
+    // that rises), with their slope that way.
+    let side = mean.signum();
+    let mut slopes: Vec<(f64, f64)> = up
+        .iter()
+        .filter(|(n, _)| side * n.x > 0.05)
+        .map(|(n, a)| ((side * n.x).atan2(n.z).to_degrees(), *a))
+        .collect();
+    Some(steepest_tenth(&mut slopes, area).map_or(mean, |s| side * s))
+}
+
+/// The slope a slant's steepest tenth of area reaches, degrees, from the
+/// `slopes` (slope, area) of its panels facing its way: a box drawn round
+/// a rear window takes in the rounded roof and deck edges, and the
+/// steepest tenth reads 27.6, 29.7 and 33.8 for the demo coupe's windows
+/// of 28, 30 and 34 degrees, where a single stray panel of a scan cannot
+/// set it. `None` when those panels hold under a quarter of the region's
+/// `area`.
+fn steepest_tenth(slopes: &mut [(f64, f64)], area: f64) -> Option<f64> {
     let facing: f64 = slopes.iter().map(|s| s.1).sum();
     if !(facing >= 0.25 * area && facing > 0.0) {
         return None;
@@ -602,19 +690,116 @@ mod tests {
         assert_eq!(one_sided(&whole, [[0.0, 0.0], [1.0, 0.6]]), None);
     }
 
-    /// A rear window's slope is read from its steepest tenth: a box drawn
-    /// round a 28-degree window that also takes in the rounded roof and
-    /// boot edges (half its area sloping 5 to 20 degrees) still reads
-    /// about 28; a region with little rear-facing area has no slope.
+    /// A slant's slope is read from its steepest tenth: a box drawn round
+    /// a 28-degree window that also takes in the rounded roof and boot
+    /// edges (half its area sloping 5 to 20 degrees) still reads about
+    /// 28; with little area facing its way it has none.
     #[test]
-    fn a_rear_region_reads_the_slope_of_its_window() {
+    fn a_slant_reads_the_slope_of_its_steepest_tenth() {
         let mut slopes: Vec<(f64, f64)> =
             (0..10).map(|k| (5.0 + 1.5 * f64::from(k), 0.05)).collect();
         slopes.extend((0..10).map(|_| (28.0, 0.05)));
-        let s = rear_slope(&mut slopes, 1.0).unwrap();
+        let s = steepest_tenth(&mut slopes, 1.0).unwrap();
         assert!((s - 28.0).abs() < 1e-9, "{s}");
         let mut few = vec![(30.0, 0.1)];
-        assert_eq!(rear_slope(&mut few, 1.0), None);
+        assert_eq!(steepest_tenth(&mut few, 1.0), None);
+    }
+
+    /// The (normal, area) of a surface z = `f`(x) from `x0` to `x1`,
+    /// 1.6 m across, panelled in `n` strips of two triangles each way
+    /// (normals and areas from the triangles' corners).
+    fn panelled(f: impl Fn(f64) -> f64, x0: f64, x1: f64, n: usize) -> Vec<(Vector, f64)> {
+        let corner = |i: usize, j: usize| {
+            let x = x0 + (x1 - x0) * i as f64 / n as f64;
+            Point::new(x, -0.8 + 1.6 * j as f64 / 8.0, f(x))
+        };
+        let mut out = Vec::new();
+        for i in 0..n {
+            for j in 0..8 {
+                let [a, b, c, d] = [
+                    corner(i, j),
+                    corner(i + 1, j),
+                    corner(i + 1, j + 1),
+                    corner(i, j + 1),
+                ];
+                for [p, q, r] in [[a, b, c], [a, c, d]] {
+                    let cross = (q - p).cross(&(r - p));
+                    out.push((cross.normalize(), 0.5 * cross.norm()));
+                }
+            }
+        }
+        out
+    }
+
+    /// The slope of a surface is what a designer reads off its side view:
+    /// a plane panelled at a known angle reads that angle, a deck (with
+    /// its rounded tail edge and the window's foot in its box, or a lid
+    /// raised at its trailing edge) reads the line from where its box
+    /// takes it in to where it leaves it, and a rear window in a box that
+    /// takes in the roof's and the deck's edges reads the glass. The
+    /// independent check is the geometry: a plane's angle, and for a deck
+    /// the line between its ends, which its mean normal must equal (the
+    /// vector area of a surface depends only on its edge).
+    #[test]
+    fn a_region_reads_the_slope_of_its_surface() {
+        let plane = |deg: f64| move |x: f64| 1.0 - x * deg.to_radians().tan();
+        for deg in [-20.0, -3.0, 0.0, 1.6, 3.0, 7.5, 12.0, 25.0, 38.0] {
+            let s = surface_slope(&panelled(plane(deg), 3.0, 3.8, 20)).unwrap();
+            assert!((s - deg).abs() < 1e-6, "{deg}: {s}");
+        }
+        let chord =
+            |f: &dyn Fn(f64) -> f64, a: f64, b: f64| ((f(a) - f(b)) / (b - a)).atan().to_degrees();
+        // A deck falling 20 mm over 0.7 m (1.6 degrees), after the foot of
+        // a 25-degree window (3.0 to 3.05) and before a tail edge rounded
+        // at 80 mm radius down to 60 degrees, where a region facing up
+        // ends: the edges' panels slope up to 60 degrees (their steepest
+        // tenth of the area reads 25), the line from end to end 4.4.
+        let deck = |x: f64| {
+            let window = 1.0 + (3.05 - x).max(0.0) * 25f64.to_radians().tan();
+            let deck = 1.0 - 0.02 * (x - 3.05) / 0.7;
+            let r = 0.08;
+            let edge = (x - 3.75).max(0.0);
+            let round = r - (r * r - edge * edge).max(0.0).sqrt();
+            window.max(deck) - round
+        };
+        let end = 3.75 + 0.08 * 60f64.to_radians().sin();
+        let panels = panelled(deck, 3.0, end, 120);
+        let s = surface_slope(&panels).unwrap();
+        let want = chord(&deck, 3.0, end);
+        assert!(
+            (s - want).abs() < 1e-6 && s < SLANT_DEG,
+            "{s} against {want}"
+        );
+        let mut slopes: Vec<(f64, f64)> = panels
+            .iter()
+            .filter(|(n, _)| n.x > 0.05)
+            .map(|(n, a)| (n.x.atan2(n.z).to_degrees(), *a))
+            .collect();
+        let tenth = steepest_tenth(&mut slopes, 0.0).unwrap();
+        assert!(tenth > 20.0, "{tenth}");
+        // The lid's trailing part raised 60 mm in a smooth step: it rises.
+        let lid = |x: f64| {
+            let u = ((x - 3.1) / 0.62).clamp(0.0, 1.0);
+            1.05 - 0.02 * (x - 3.0) + 0.06 * u * u * (3.0 - 2.0 * u)
+        };
+        let s = surface_slope(&panelled(lid, 3.0, 3.85, 60)).unwrap();
+        let want = chord(&lid, 3.0, 3.85);
+        assert!((s - want).abs() < 1e-6 && s < 0.0, "{s} against {want}");
+        // A 25-degree window between a roof and a deck, each 0.15 m of the
+        // box: their mean reads 16.2, the glass 25.
+        let window = |x: f64| 1.4 - (x - 3.15).clamp(0.0, 0.5) * 25f64.to_radians().tan();
+        let s = surface_slope(&panelled(window, 3.0, 3.8, 80)).unwrap();
+        assert!((s - 25.0).abs() < 1e-6, "{s}");
+        assert!((chord(&window, 3.0, 3.8) - 16.2).abs() < 0.1);
+        // A base and a floor have none.
+        let turn = |v: Vec<(Vector, f64)>, m: nalgebra::Matrix3<f64>| {
+            v.into_iter().map(|(n, a)| (m * n, a)).collect::<Vec<_>>()
+        };
+        let flat = panelled(|_| 1.0, 3.0, 3.8, 10);
+        let base = nalgebra::Matrix3::new(0.0, 0.0, 1.0, 0.0, 1.0, 0.0, -1.0, 0.0, 0.0);
+        let floor = nalgebra::Matrix3::new(1.0, 0.0, 0.0, 0.0, -1.0, 0.0, 0.0, 0.0, -1.0);
+        assert_eq!(surface_slope(&turn(flat.clone(), base)), None);
+        assert_eq!(surface_slope(&turn(flat, floor)), None);
     }
 
     fn region(toml_text: &str) -> Vec<RegionSection> {

@@ -34,6 +34,11 @@ const GAP: f64 = 24.0;
 /// and over the highest (two region names, one above the other), pixels.
 const GROUND_ROOM: f64 = 22.0;
 const NAME_ROOM: f64 = 46.0;
+/// Further room under the ground line for a region name, pixels, where a
+/// region faces down (its name goes under the body in the side view,
+/// [`outline::draw_regions_labelled`]): a name's plate ends 29 pixels
+/// under the ground line, which lies within [`GROUND_ROOM`] of the body.
+const NAME_BELOW_ROOM: f64 = 32.0;
 
 /// The views of a run at `yaw_deg`: the side the run report shows
 /// ([`View::sheet`]: the lee side at a positive yaw) and the top.
@@ -69,6 +74,14 @@ impl GlanceLayout {
     /// bodies' common extent in it (the side view's lowest point just
     /// above the ground line's room, the names' room over the body).
     pub fn new(bodies: &[(&PanelMesh, f64)]) -> Self {
+        Self::with_names(bodies, false)
+    }
+
+    /// [`GlanceLayout::new`], with room under the side view's ground line
+    /// for region names too when `below` (a region of the variants faces
+    /// down: a floor, a diffuser), which are otherwise left unnamed there.
+    pub fn with_names(bodies: &[(&PanelMesh, f64)], below: bool) -> Self {
+        let ground_room = GROUND_ROOM + if below { NAME_BELOW_ROOM } else { 0.0 };
         let mut extents: Vec<(View, (f64, f64, f64, f64))> = Vec::new();
         for (mesh, yaw) in bodies {
             let tris = display_triangles(mesh);
@@ -88,7 +101,7 @@ impl GlanceLayout {
             .iter()
             .map(|(v, e)| {
                 let room = if v.is_side() {
-                    h - GROUND_ROOM - NAME_ROOM
+                    h - ground_room - NAME_ROOM
                 } else {
                     0.94 * h
                 };
@@ -100,7 +113,7 @@ impl GlanceLayout {
             .into_iter()
             .map(|(v, e)| {
                 let up = if v.is_side() {
-                    e.2 + (0.5 * h - GROUND_ROOM) / scale
+                    e.2 + (0.5 * h - ground_room) / scale
                 } else {
                     0.5 * (e.2 + e.3)
                 };
@@ -179,6 +192,7 @@ pub fn picture(
         views: &frames,
         named: View::is_side,
         flow_corner: false,
+        scale_bar: false,
     };
     outline::draw_regions_in(&mut canvas, s.mesh, marks, OutlineStyle::default(), &on);
     Ok(canvas)
@@ -420,6 +434,65 @@ mod tests {
             let (tail, _) = frame.project(view, &Point::new(1.0, 0.0, 0.0));
             assert_eq!(nose > tail, yaw > 0.0, "{yaw}");
         }
+    }
+
+    /// A region facing down (the coupe's diffuser) is named under the
+    /// ground line of the side view when the layout leaves room for it,
+    /// within the picture, and left unnamed (outlined only) when it does
+    /// not, never over the body with its line down the flank.
+    #[test]
+    fn a_region_facing_down_is_named_under_the_body_or_not_at_all() {
+        use tuft_mesh::generate::{CoupeParams, coupe_with_params};
+        let body = coupe_with_params(&CoupeParams {
+            panels: 2000,
+            ..CoupeParams::default()
+        })
+        .unwrap();
+        let mesh = PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
+        let diffuser = crate::region::RegionSection {
+            name: "diffuser".into(),
+            x: Some([3.7, 4.5]),
+            y: None,
+            z: None,
+            facing: Some("down".into()),
+        };
+        let marks = crate::region::marks(&[diffuser], &mesh);
+        let named = |lay: &GlanceLayout| {
+            let frames = lay.frames(&mesh, 0.0);
+            let on = RegionViews {
+                views: &frames,
+                named: View::is_side,
+                flow_corner: false,
+                scale_bar: false,
+            };
+            let mut canvas = Canvas::new(WIDTH, HEIGHT).unwrap();
+            let labels = outline::draw_regions_labelled(
+                &mut canvas,
+                &mesh,
+                &marks,
+                OutlineStyle::default(),
+                &on,
+            );
+            let (view, frame) = frames[0];
+            let ground = frame.project(view, &Point::new(0.0, 0.0, 0.0)).1;
+            labels
+                .into_iter()
+                .map(|l| (l.plate, ground, frame.rect))
+                .collect::<Vec<_>>()
+        };
+        assert!(named(&GlanceLayout::new(&[(&mesh, 0.0)])).is_empty());
+        let labels = named(&GlanceLayout::with_names(&[(&mesh, 0.0)], true));
+        let [(plate, ground, (_, t, _, h))] = labels[..] else {
+            panic!("{labels:?}")
+        };
+        assert!(
+            f64::from(plate[1]) > ground,
+            "{plate:?} over the ground at {ground}"
+        );
+        assert!(
+            plate[1] + plate[3] <= (t + h) as f32,
+            "{plate:?} out of the picture"
+        );
     }
 
     /// The key draws the risk colours and a scale bar.

@@ -78,13 +78,15 @@ pub fn draw_regions_styled(
         views: &lay.views,
         named: |v| !matches!(v, View::Front | View::Rear),
         flow_corner: true,
+        scale_bar: true,
     };
     draw_regions_in(canvas, mesh, marks, style, &on);
 }
 
 /// The views a picture's region outlines go on: each view with its
-/// frame, the views that carry the names, and whether a name keeps left
-/// of the flow arrow's corner ([`sheet::flow_mark_box`]).
+/// frame, the views that carry the names, whether a name keeps left of
+/// the flow arrow's corner ([`sheet::flow_mark_box`]) and right of the
+/// scale bar ([`sheet::scale_bar_box`]).
 pub struct RegionViews<'a> {
     /// The views and their frames.
     pub views: &'a [(View, Frame)],
@@ -92,7 +94,38 @@ pub struct RegionViews<'a> {
     pub named: fn(View) -> bool,
     /// The flow arrow sits in each view's top right corner.
     pub flow_corner: bool,
+    /// The scale bar sits in the side view's bottom left corner.
+    pub scale_bar: bool,
 }
+
+/// A region's name as placed on one view: its plate (x, y, w, h) and the
+/// point its line runs to, pixels.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Label {
+    /// The view.
+    pub view: View,
+    /// The region's name.
+    pub name: String,
+    /// The white plate under the name.
+    pub plate: [f32; 4],
+    /// The end of its line, on the region.
+    pub anchor: (f64, f64),
+}
+
+/// How far a region's seen part must face down in a view (the mean of its
+/// seen panels' normals along the view's up, where it faces the viewer)
+/// for its name to go under the body rather than over it (or up, in the
+/// view from underneath, where names go under the body): a region facing
+/// down seen from the side has every seen normal at least 0.5 down
+/// ([`crate::region::FACING_COS`]), one facing up or a whole rear window
+/// seen from above about 0 (both flanks), so a name moves only for a
+/// region that lies along one side of the body in that view. Our choice.
+const NAME_SIDE_COS: f64 = 0.3;
+
+/// How far into a region a name's line ends in a side view, from where
+/// the region meets the body's outline nearest the name, pixels: the dot
+/// (2.5 pixels) then sits on the region at its edge.
+const ANCHOR_INSET: f64 = 5.0;
 
 /// Draw every region's outline on the views of `on` of a picture of
 /// `mesh`, in `style`, with their names where `on` says.
@@ -103,8 +136,35 @@ pub fn draw_regions_in(
     style: OutlineStyle,
     on: &RegionViews<'_>,
 ) {
+    draw_regions_labelled(canvas, mesh, marks, style, on);
+}
+
+/// [`draw_regions_in`], returning the names it placed.
+///
+/// A name stands clear of the body on the side its region lies on in
+/// that view: over the body, or under it (under the ground line where
+/// one is drawn) where the region's seen part faces down there
+/// ([`NAME_SIDE_COS`]), as a floor or a diffuser does from the side (a
+/// review's "diffuser" was named over the boot deck with its line running
+/// down the whole flank to the sill, across the deck's name). Where there
+/// is no room under the body in the view (the sweep's glance pictures
+/// leave room only when a region faces down) the region keeps its outline
+/// there unnamed. In a side view a region facing up or down is seen
+/// edge-on, as a band along the body's outline whose middle lies on the
+/// flank (a review read the "boot deck" line as ending on the flank below
+/// the deck), so the line ends where the band meets the outline nearest
+/// the name ([`ANCHOR_INSET`]); seen face-on (from above, from
+/// underneath) it ends over the middle of the region's seen panels.
+pub fn draw_regions_labelled(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    style: OutlineStyle,
+    on: &RegionViews<'_>,
+) -> Vec<Label> {
+    let mut labels = Vec::new();
     if marks.is_empty() {
-        return;
+        return labels;
     }
     let tris = display_triangles(mesh);
     let real = mesh.len();
@@ -118,13 +178,20 @@ pub fn draw_regions_in(
     };
     for (view, frame) in on.views {
         let seen = render::visible(&tris, *view, frame);
-        let toward = view.basis().2;
+        let (_, up, toward) = view.basis();
         let mut placed: Vec<[f32; 4]> = Vec::new();
-        // Names step left of the flow arrow's corner.
+        // Names step left of the flow arrow's corner and right of the
+        // scale bar.
+        let nowhere = [-1.0e6, -1.0e6, 0.0, 0.0];
         let corner = if on.flow_corner {
             sheet::flow_mark_box(frame.rect)
         } else {
-            [-1.0e6, -1.0e6, 0.0, 0.0]
+            nowhere
+        };
+        let bar = if on.scale_bar && view.is_side() {
+            sheet::scale_bar_box(frame)
+        } else {
+            nowhere
         };
         // The body's extent on the picture: names stand clear of it, above
         // (below in the view from underneath), so that they hide nothing.
@@ -135,16 +202,28 @@ pub fn draw_regions_in(
                 (lo.min(y), hi.max(y))
             });
         let (t0, h0) = (frame.rect.1 as f64, frame.rect.3 as f64);
-        let clear = if *view == View::Underneath {
-            (bottom + 24.0).min(t0 + h0 - 4.0)
+        // Under the body, past the ground line where the view draws one
+        // ([`sheet::ground_line`]).
+        let ground = mesh
+            .mirrors
+            .ground
+            .filter(|_| !matches!(view, View::Top | View::Underneath))
+            .map(|z| frame.project(*view, &tuft_mesh::Point::new(0.0, 0.0, z)).1)
+            .filter(|y| (t0..t0 + h0).contains(y));
+        let lowest = ground.map_or(bottom, |g| g.max(bottom));
+        let over = (top - 10.0).max(t0 + 16.0);
+        let under = if *view == View::Underneath {
+            Some((bottom + 24.0).min(t0 + h0 - 4.0))
         } else {
-            (top - 10.0).max(t0 + 16.0)
+            Some(lowest + 24.0).filter(|y| y + 5.0 <= t0 + h0)
         };
         for mark in marks {
+            let member = |k: usize| mark.member.get(k).copied().unwrap_or(false);
             let mut label = (0.0, 0.0, 0.0);
+            let mut facing_up = 0.0;
             let mut dots: Vec<(f32, f32)> = Vec::new();
             for (k, t) in tris.iter().enumerate() {
-                if !mark.member.get(k).copied().unwrap_or(false) {
+                if !member(k) {
                     continue;
                 }
                 for e in 0..3 {
@@ -152,7 +231,7 @@ pub fn draw_regions_in(
                     let outside = neighbours(k)
                         .into_iter()
                         .find(|&j| shares_edge(&tris[j], &a, &b))
-                        .filter(|&j| !mark.member.get(j).copied().unwrap_or(false));
+                        .filter(|&j| !member(j));
                     if let Some(j) = outside {
                         seen_edge(
                             &seen,
@@ -169,6 +248,7 @@ pub fn draw_regions_in(
                 let (x, y) = frame.project(*view, &centroid(t));
                 if seen.at(x as i64, y as i64) == Some(k) && t.normal.dot(&toward) > 0.0 {
                     label = (label.0 + x, label.1 + y, label.2 + 1.0);
+                    facing_up += t.normal.dot(&up);
                 }
             }
             // The halo first, all of it, so that it covers no part of the
@@ -182,19 +262,75 @@ pub fn draw_regions_in(
                 canvas.fill_circle(x, y, 1.3, style.colour);
             }
             if label.2 > 0.0 && (on.named)(*view) {
-                let at = (label.0 / label.2, label.1 / label.2);
-                let below = *view == View::Underneath;
-                placed.push(draw_label(
+                let facing_up = facing_up / label.2;
+                let below = if *view == View::Underneath {
+                    facing_up < NAME_SIDE_COS
+                } else {
+                    facing_up < -NAME_SIDE_COS
+                };
+                let clear = if below { under } else { Some(over) };
+                let Some(clear) = clear else {
+                    continue;
+                };
+                let mut at = (label.0 / label.2, label.1 / label.2);
+                if view.is_side() {
+                    let seen_member = |y: i64| {
+                        seen.at(at.0 as i64, y)
+                            .is_some_and(|k| member(k) && tris[k].normal.dot(&toward) > 0.0)
+                    };
+                    if let Some(y) = edge_of(seen_member, (t0 as i64, (t0 + h0) as i64), below) {
+                        at.1 = y;
+                    }
+                }
+                let frame_x = (frame.rect.0 as f32, (frame.rect.0 + frame.rect.2) as f32);
+                let plate = draw_label(
                     canvas,
                     &mark.name,
                     at,
                     (clear, below),
-                    (&placed, corner),
+                    &Room {
+                        placed: &placed,
+                        keep_clear: [corner, bar],
+                        frame_x,
+                    },
                     style.colour,
-                ));
+                );
+                placed.push(plate);
+                labels.push(Label {
+                    view: *view,
+                    name: mark.name.clone(),
+                    plate,
+                    anchor: at,
+                });
             }
         }
     }
+    labels
+}
+
+/// Where a column of pixels `rows` (top, bottom) first meets the region
+/// (`inside` a row), from the bottom when `from_below`, else from the
+/// top, moved [`ANCHOR_INSET`] into it (to the middle of a thinner run):
+/// the row a name's line ends on. `None` when the column misses it.
+fn edge_of(
+    inside: impl Fn(i64) -> bool,
+    (top, bottom): (i64, i64),
+    from_below: bool,
+) -> Option<f64> {
+    let step: i64 = if from_below { -1 } else { 1 };
+    let mut y = if from_below { bottom - 1 } else { top };
+    while (top..bottom).contains(&y) && !inside(y) {
+        y += step;
+    }
+    if !(top..bottom).contains(&y) {
+        return None;
+    }
+    let mut run = 0;
+    while run < 2 * ANCHOR_INSET as i64 && inside(y + step * (run + 1)) {
+        run += 1;
+    }
+    let inset = (ANCHOR_INSET).min(0.5 * run as f64);
+    Some(y as f64 + 0.5 + step as f64 * inset)
 }
 
 fn centroid(t: &DisplayTri) -> tuft_mesh::Point {
@@ -231,19 +367,27 @@ fn seen_edge(
 }
 
 /// The region's name on a white plate clear of the body, at the height
-/// `clear` and above the region's middle `at` (left of the flow arrow's
-/// `corner` where it would cover it), moved further away from the body
-/// (`below`: down, else up) past any plate already `placed` that it would
-/// cover, with a thin line down (or up) to `at`; returns its plate (x, y,
-/// w, h).
+/// `clear` and over the region's middle `at` (left of the flow arrow's
+/// corner and right of the scale bar, `keep_clear`, where it would cover
+/// them), with a thin line down (or, `below`, up) to `at`; returns its
+/// plate (x, y, w, h). Where it would cover a plate already `placed` it
+/// moves further from the body (`below`: down, else up) past it, or,
+/// where its line would then run through that plate (the two regions lie
+/// one over the other in the view), beside it at the same height, on the
+/// side of its own region, within the view's `frame_x` (left, right).
 fn draw_label(
     canvas: &mut Canvas,
     name: &str,
     at: (f64, f64),
     (clear, below): (f64, bool),
-    (placed, corner): (&[[f32; 4]], [f32; 4]),
+    room: &Room<'_>,
     colour: Rgb,
 ) -> [f32; 4] {
+    let Room {
+        placed,
+        keep_clear,
+        frame_x,
+    } = *room;
     let style = TextStyle::new(14.0)
         .bold()
         .colour(colour)
@@ -254,23 +398,74 @@ fn draw_label(
         let (l, t) = (x - 0.5 * w, y - 13.0);
         l < p[0] + p[2] && p[0] < l + w && t < p[1] + p[3] && p[1] < t + 18.0
     };
+    let [corner, bar] = keep_clear;
     if overlaps(&corner, x, y) {
         x = corner[0] - 0.5 * w - 4.0;
     }
-    while let Some(p) = placed.iter().find(|p| overlaps(p, x, y)) {
-        y = if below {
+    if overlaps(&bar, x, y) {
+        x = bar[0] + bar[2] + 0.5 * w + 4.0;
+    }
+    let start = |x: f32, y: f32| (x, if below { y - 13.0 } else { y + 5.0 });
+    let crosses = |x: f32, y: f32| {
+        placed
+            .iter()
+            .any(|p| line_meets(start(x, y), (at.0 as f32, at.1 as f32), p))
+    };
+    let beside = placed
+        .iter()
+        .find(|p| overlaps(p, x, y))
+        .map(|p| {
+            if at.0 as f32 >= p[0] + 0.5 * p[2] {
+                p[0] + p[2] + 0.5 * w + 4.0
+            } else {
+                p[0] - 0.5 * w - 4.0
+            }
+        })
+        .filter(|&bx| {
+            frame_x.0 <= bx - 0.5 * w
+                && bx + 0.5 * w <= frame_x.1
+                && !placed.iter().chain(&keep_clear).any(|p| overlaps(p, bx, y))
+                && !crosses(bx, y)
+        });
+    let (sx, mut sy) = (x, y);
+    while let Some(p) = placed.iter().find(|p| overlaps(p, sx, sy)) {
+        sy = if below {
             p[1] + p[3] + 15.0
         } else {
             p[1] - 7.0
         };
     }
+    (x, y) = match beside {
+        Some(bx) if crosses(sx, sy) => (bx, y),
+        _ => (sx, sy),
+    };
     let plate = [x - 0.5 * w, y - 13.0, w, 18.0];
-    let from = if below { y - 13.0 } else { y + 5.0 };
-    canvas.polyline(&[(x, from), (at.0 as f32, at.1 as f32)], colour, 1.0);
+    canvas.polyline(&[start(x, y), (at.0 as f32, at.1 as f32)], colour, 1.0);
     canvas.fill_circle(at.0 as f32, at.1 as f32, 2.5, colour);
     canvas.fill_rect(plate[0], plate[1], plate[2], plate[3], WHITE);
     text::draw(canvas, name, x, y, &style);
     plate
+}
+
+/// What a name keeps clear of on its view: the plates (x, y, w, h)
+/// already `placed`, the flow arrow's corner and the scale bar
+/// (`keep_clear`), and the view's sides (`frame_x`: left, right).
+#[derive(Clone, Copy)]
+struct Room<'a> {
+    placed: &'a [[f32; 4]],
+    keep_clear: [[f32; 4]; 2],
+    frame_x: (f32, f32),
+}
+
+/// True when the straight line from `a` to `b` passes through the plate
+/// `p` (x, y, w, h), tested a pixel at a time.
+fn line_meets(a: (f32, f32), b: (f32, f32), p: &[f32; 4]) -> bool {
+    let steps = (b.0 - a.0).hypot(b.1 - a.1).ceil().max(1.0) as usize;
+    (0..=steps).any(|s| {
+        let f = s as f32 / steps as f32;
+        let (x, y) = (a.0 + f * (b.0 - a.0), a.1 + f * (b.1 - a.1));
+        p[0] < x && x < p[0] + p[2] && p[1] < y && y < p[1] + p[3]
+    })
 }
 
 #[cfg(test)]
@@ -339,7 +534,11 @@ mod tests {
             "boot deck",
             (760.0, 200.0),
             (30.0, false),
-            (&[], corner),
+            &Room {
+                placed: &[],
+                keep_clear: [corner, [-1.0e6, -1.0e6, 0.0, 0.0]],
+                frame_x: (0.0, 800.0),
+            },
             OUTLINE,
         );
         assert!(clear_of(plate, corner), "{plate:?} on {corner:?}");
@@ -348,13 +547,221 @@ mod tests {
             "bonnet",
             (200.0, 200.0),
             (30.0, false),
-            (&[], corner),
+            &Room {
+                placed: &[],
+                keep_clear: [corner, [-1.0e6, -1.0e6, 0.0, 0.0]],
+                frame_x: (0.0, 800.0),
+            },
             OUTLINE,
         );
         assert!(
             (plate[0] + 0.5 * plate[2] - 200.0).abs() < 1e-3,
             "{plate:?}"
         );
+    }
+
+    /// The built-in coupe on the ground with a rear window and a boot
+    /// deck facing up and a diffuser facing down, as a case names them.
+    fn coupe_with_regions() -> (tuft_mesh::PanelMesh, Vec<RegionMark>) {
+        use tuft_mesh::generate::{CoupeParams, coupe_with_params};
+        let body = coupe_with_params(&CoupeParams {
+            panels: 3000,
+            ..CoupeParams::default()
+        })
+        .unwrap();
+        let mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
+        let region = |name: &str, x: [f64; 2], facing: &str| crate::region::RegionSection {
+            name: name.into(),
+            x: Some(x),
+            y: None,
+            z: None,
+            facing: Some(facing.into()),
+        };
+        let sections = [
+            region("rear window", [3.15, 3.7], "up"),
+            region("boot deck", [3.7, 4.2], "up"),
+            region("diffuser", [3.7, 4.5], "down"),
+        ];
+        let marks = crate::region::marks(&sections, &mesh);
+        (mesh, marks)
+    }
+
+    /// Canvas (x, y) box round what is seen of a region in a view: its
+    /// pixels seen facing the viewer.
+    fn seen_box(
+        mesh: &tuft_mesh::PanelMesh,
+        mark: &RegionMark,
+        view: View,
+        frame: &Frame,
+    ) -> [f64; 4] {
+        let tris = display_triangles(mesh);
+        let seen = render::visible(&tris, view, frame);
+        let toward = view.basis().2;
+        let (l, t, w, h) = frame.rect;
+        let mut b = [
+            f64::INFINITY,
+            f64::INFINITY,
+            f64::NEG_INFINITY,
+            f64::NEG_INFINITY,
+        ];
+        for y in t..t + h {
+            for x in l..l + w {
+                if let Some(k) = seen.at(x, y)
+                    && mark.member[k]
+                    && tris[k].normal.dot(&toward) > 0.0
+                {
+                    let (x, y) = (x as f64, y as f64);
+                    b = [
+                        b[0].min(x),
+                        b[1].min(y),
+                        b[2].max(x + 1.0),
+                        b[3].max(y + 1.0),
+                    ];
+                }
+            }
+        }
+        b
+    }
+
+    /// In the side view a region facing down is named under the body
+    /// (under the ground line) with its line up to where it is seen, one
+    /// facing up over it with its line down to the top of what is seen of
+    /// it (a review's "diffuser" was named over the boot deck, its line
+    /// running across the deck's name and down the whole flank, and the
+    /// deck's line ended on the flank below the deck). The independent
+    /// check is the picture itself: each line ends within the box of the
+    /// region's own seen pixels, and no name covers another or lies
+    /// across another's line.
+    #[test]
+    fn a_name_stands_beside_what_it_names() {
+        let (mesh, marks) = coupe_with_regions();
+        let mut canvas = Canvas::new(1600, 1000).unwrap();
+        let tris = display_triangles(&mesh);
+        let lay = sheet::layout(&tris, &SheetParams::default());
+        let on = RegionViews {
+            views: &lay.views,
+            named: |v| !matches!(v, View::Front | View::Rear),
+            flow_corner: true,
+            scale_bar: true,
+        };
+        let labels =
+            draw_regions_labelled(&mut canvas, &mesh, &marks, OutlineStyle::default(), &on);
+        keep("regions-coupe.png", &canvas.to_png().unwrap());
+        let frame = lay.frame(View::Side).unwrap();
+        let ground = frame
+            .project(View::Side, &tuft_mesh::Point::new(0.0, 0.0, 0.0))
+            .1;
+        let side = |name: &str| {
+            labels
+                .iter()
+                .find(|l| l.view == View::Side && l.name == name)
+                .unwrap_or_else(|| panic!("{name} is not named: {labels:?}"))
+        };
+        for mark in &marks {
+            let label = side(&mark.name);
+            let b = seen_box(&mesh, mark, View::Side, frame);
+            let (x, y) = label.anchor;
+            assert!(
+                b[0] <= x && x <= b[2] && b[1] <= y && y <= b[3],
+                "{}: line ends at {:?}, outside {b:?}",
+                mark.name,
+                label.anchor
+            );
+            let under = label.plate[1] as f64 > ground;
+            assert_eq!(under, mark.name == "diffuser", "{label:?}");
+            // Up-facing regions: the line ends on the region just under
+            // the body's outline in its column (on the deck, not on the
+            // flank under it).
+            if !under {
+                let seen = render::visible(&tris, View::Side, frame);
+                let outline = (frame.rect.1..)
+                    .find(|&r| seen.at(x as i64, r).is_some())
+                    .unwrap();
+                assert!(
+                    (y - outline as f64) <= ANCHOR_INSET + 1.0,
+                    "{label:?}: the outline at {outline}"
+                );
+            }
+        }
+        // From underneath the diffuser is named under the body as before,
+        // and from above the regions facing up over it.
+        assert!(
+            labels
+                .iter()
+                .any(|l| l.view == View::Underneath && l.name == "diffuser")
+        );
+        assert!(
+            !labels
+                .iter()
+                .any(|l| l.view == View::Top && l.name == "diffuser")
+        );
+        for (i, a) in labels.iter().enumerate() {
+            for b in labels.iter().skip(i + 1).filter(|b| b.view == a.view) {
+                let (p, q) = (a.plate, b.plate);
+                let apart = p[0] + p[2] <= q[0]
+                    || q[0] + q[2] <= p[0]
+                    || p[1] + p[3] <= q[1]
+                    || q[1] + q[3] <= p[1];
+                assert!(apart, "{a:?} covers {b:?}");
+                for (l, other) in [(a, b), (b, a)] {
+                    let from = (l.plate[0] + 0.5 * l.plate[2], l.plate[1] + 0.5 * l.plate[3]);
+                    let to = (l.anchor.0 as f32, l.anchor.1 as f32);
+                    assert!(
+                        !line_meets(from, to, &other.plate),
+                        "{l:?} runs across {other:?}"
+                    );
+                }
+            }
+        }
+    }
+
+    /// Two regions one over the other in a view: the second name goes
+    /// beside the first at its height, not over it with its line through
+    /// it; where its line would not cross the first, it stacks as before.
+    #[test]
+    fn a_name_whose_line_would_cross_another_goes_beside_it() {
+        let mut canvas = Canvas::new(800, 400).unwrap();
+        let none = [-1.0e6, -1.0e6, 0.0, 0.0];
+        let first = draw_label(
+            &mut canvas,
+            "boot deck",
+            (400.0, 200.0),
+            (60.0, false),
+            &Room {
+                placed: &[],
+                keep_clear: [none, none],
+                frame_x: (0.0, 800.0),
+            },
+            OUTLINE,
+        );
+        let second = draw_label(
+            &mut canvas,
+            "spoiler",
+            (405.0, 180.0),
+            (60.0, false),
+            &Room {
+                placed: &[first],
+                keep_clear: [none, none],
+                frame_x: (0.0, 800.0),
+            },
+            OUTLINE,
+        );
+        assert_eq!(second[1], first[1], "{second:?}");
+        assert!(second[0] >= first[0] + first[2], "{second:?} {first:?}");
+        // Far enough apart for a straight line past it: stacked over it.
+        let third = draw_label(
+            &mut canvas,
+            "rear window",
+            (330.0, 180.0),
+            (60.0, false),
+            &Room {
+                placed: &[first],
+                keep_clear: [none, none],
+                frame_x: (0.0, 800.0),
+            },
+            OUTLINE,
+        );
+        assert!(third[1] + third[3] <= first[1], "{third:?} {first:?}");
     }
 
     #[test]

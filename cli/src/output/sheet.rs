@@ -450,13 +450,28 @@ fn decorate(
     }
 }
 
-/// A round-length scale bar in the bottom-left corner of a view.
-fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
-    let (l, t, w, h) = frame.rect;
-    let metres = nice_ticks(0.0, 0.25 * w as f64 / frame.scale, 1)
+/// The scale bar's length in a view, metres: a round number up to a
+/// quarter of the view's width.
+fn scale_bar_metres(frame: &Frame) -> f64 {
+    nice_ticks(0.0, 0.25 * frame.rect.2 as f64 / frame.scale, 1)
         .get(1)
         .copied()
-        .unwrap_or(1.0);
+        .unwrap_or(1.0)
+}
+
+/// The part of a side view the scale bar and its label take
+/// ([`draw_scale_bar`]), as a plate (x, y, w, h) region names keep
+/// clear of.
+pub fn scale_bar_box(frame: &Frame) -> [f32; 4] {
+    let (l, t, _, h) = frame.rect;
+    let len = (scale_bar_metres(frame) * frame.scale) as f32;
+    [l as f32, (t + h) as f32 - 28.0, len + 8.0, 28.0]
+}
+
+/// A round-length scale bar in the bottom-left corner of a view.
+fn draw_scale_bar(canvas: &mut Canvas, frame: &Frame) {
+    let (l, t, _, h) = frame.rect;
+    let metres = scale_bar_metres(frame);
     let len = (metres * frame.scale) as f32;
     let (x, y) = (l as f32 + 4.0, (t + h) as f32 - 6.0);
     canvas.polyline(
