@@ -1313,8 +1313,12 @@ fn key_name(key: &str) -> Option<&'static str> {
     }
 }
 
-/// A swept key with its unit.
+/// A swept key with its unit; a label ([`crate::sweep::plan::is_label`])
+/// as its sweep file names it, its unit in it.
 fn plain_axis_label(key: &str) -> String {
+    if crate::sweep::plan::is_label(key) {
+        return key.to_owned();
+    }
     format!("{key} [{}]", unit_of(key))
 }
 
@@ -1690,11 +1694,24 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     if !plots.is_empty() {
         s.push_str("<h2>Plots</h2>\n");
     }
-    let words: Vec<&String> = c.keys.iter().filter(|k| !numeric_key(c, k)).collect();
+    // Keys whose variants all carry a label are plotted against it.
+    let labelled = |k: &str| {
+        c.variants
+            .iter()
+            .filter(|r| r.settings.contains_key(k))
+            .all(|r| r.settings.keys().any(|x| crate::sweep::plan::is_label(x)))
+    };
+    let words: Vec<&String> = c
+        .keys
+        .iter()
+        .filter(|k| !numeric_key(c, k) && !labelled(k))
+        .collect();
     if !words.is_empty() {
         let _ = writeln!(
             s,
-            "<p>No plot against {}: its values are not numbers (files or names); the table ranks them.</p>",
+            "<p>No plot against {}: its values are not numbers (files or names); the table ranks them \
+             (a number for each value, labels = [...] with label = \"what [unit]\" in its [[vary]], \
+             gives a plot against those).</p>",
             escape(
                 &words
                     .iter()

@@ -157,6 +157,7 @@ fn run_range(
             match stale(&summary, variant, dir, opt.noise) {
                 None => {
                     done += 1;
+                    relabel(&root.join(&variant.name), variant);
                     let kept = crate::compare::read_summary(&root.join(&variant.name))
                         .map_or(0, |k| k.warnings.len());
                     warned += usize::from(kept > 0);
@@ -245,6 +246,32 @@ fn run_range(
         start = end;
     }
     (failed, warned)
+}
+
+/// Give a kept variant's record the sweep's settings when they differ
+/// only in labels ([`plan::is_label`]): a label sets nothing in the case,
+/// so a relabelled sweep keeps its results and `collect` plots the new
+/// labels. Best effort: a record that cannot be read or written stays.
+fn relabel(folder: &Path, variant: &plan::Variant) {
+    let file = folder.join(group::VARIANT_FILE);
+    let Some(mut record) = std::fs::read_to_string(&file)
+        .ok()
+        .and_then(|t| serde_json::from_str::<group::VariantRecord>(&t).ok())
+    else {
+        return;
+    };
+    let cases = |s: &[plan::Setting]| -> Vec<plan::Setting> {
+        s.iter()
+            .filter(|x| !plan::is_label(&x.key))
+            .cloned()
+            .collect()
+    };
+    if record.settings != variant.settings && cases(&record.settings) == cases(&variant.settings) {
+        record.settings.clone_from(&variant.settings);
+        if let Ok(json) = serde_json::to_string_pretty(&record) {
+            let _ = std::fs::write(&file, json + "\n");
+        }
+    }
 }
 
 /// A variant's warnings on its progress line: "; 2 warnings (see its

@@ -714,3 +714,52 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     );
     assert!(html.contains("<h2>Plots</h2>"));
 }
+
+/// STL variants with labels: collect writes the labels to sweep.csv and
+/// plots against them; relabelling a finished sweep keeps its results
+/// and gives collect the new labels.
+#[test]
+fn labelled_stl_variants_are_plotted_against_their_labels() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    for name in ["low.stl", "high.stl"] {
+        std::fs::copy(common::cases_dir().join("coupe.stl"), d.join(name)).unwrap();
+    }
+    let sweep = |labels: &str| {
+        format!(
+            "[base.geometry]\npanels = 600\n[base.ground]\nz = 0.0\n\
+             [[vary]]\nkey = \"stl\"\nvalues = [\"low.stl\", \"high.stl\"]\n\
+             labels = {labels}\nlabel = \"boot lid raise [mm]\"\n"
+        )
+    };
+    let file = d.join("boot.toml");
+    std::fs::write(&file, sweep("[0, 30]")).unwrap();
+    let out = d.join("boot");
+    let run = || sweep_to(&file, &out);
+    let (code, err) = run();
+    assert_eq!(code, sweep_code(&err), "{err}");
+    let label_column = || {
+        let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+        assert!(code <= 1);
+        let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+        let mut lines = csv.lines();
+        let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+        let at = header
+            .iter()
+            .position(|h| *h == "boot lid raise [mm]")
+            .unwrap();
+        let mut v: Vec<f64> = lines
+            .map(|l| l.split(',').nth(at).unwrap().parse().unwrap())
+            .collect();
+        v.sort_by(f64::total_cmp);
+        v
+    };
+    assert_eq!(label_column(), [0.0, 30.0]);
+    let page = std::fs::read_to_string(out.join("sweep.html")).unwrap();
+    assert!(page.contains("against boot lid raise [mm]"), "no plot");
+    assert!(!page.contains("No plot against"), "the STLs are labelled");
+    std::fs::write(&file, sweep("[0, 40]")).unwrap();
+    let (_, err) = run();
+    assert_eq!(err.matches("already finished, kept").count(), 2, "{err}");
+    assert_eq!(label_column(), [0.0, 40.0]);
+}

@@ -60,6 +60,23 @@ enum Combine {
 struct Vary {
     key: String,
     values: Vec<toml::Value>,
+    /// A number for each value, for `tuft collect`'s plots and sweep.csv
+    /// where the values are not numbers (an STL per boot-lid height).
+    #[serde(default)]
+    labels: Option<Vec<f64>>,
+    /// What the labels measure, with their unit ("boot lid raise [mm]").
+    #[serde(default)]
+    label: Option<String>,
+}
+
+/// The settings one value of a `[[vary]]` list makes: the key and value,
+/// and its label's name and number when the list has labels.
+type Pairs = Vec<(String, toml::Value)>;
+
+/// Whether a setting's key is a label's ([`Vary::labels`]): a label names
+/// no case key, and case keys all have their section and a dot.
+pub fn is_label(key: &str) -> bool {
+    !key.contains('.')
 }
 
 /// The sweep file as written.
@@ -343,9 +360,11 @@ fn path_string(p: &Path) -> String {
         .into_owned()
 }
 
-/// Lists with their full keys; refuses empty lists and repeated keys.
-fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
-    let mut out: Vec<(String, Vec<toml::Value>)> = Vec::new();
+/// Lists with their full keys, each value as the settings it makes
+/// (its label's with it); refuses empty lists, repeated keys and labels
+/// that do not pair with the values.
+fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
+    let mut out: Vec<(String, Vec<Pairs>)> = Vec::new();
     for (k, v) in vary.iter().enumerate() {
         let key = full_key(&v.key);
         if !key.contains('.') {
@@ -366,7 +385,50 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
         if out.iter().any(|(o, _)| *o == key) {
             bail!("vary #{}: key \"{}\" is varied twice", k + 1, v.key);
         }
-        out.push((key, v.values.clone()));
+        let label = match (&v.labels, &v.label) {
+            (None, None) => None,
+            (None, Some(_)) => bail!(
+                "vary #{} (key \"{}\"): label names what the labels measure, but labels is missing \
+                 (a number for each value)",
+                k + 1,
+                v.key
+            ),
+            (Some(l), _) if l.len() != v.values.len() => bail!(
+                "vary #{} (key \"{}\"): {} labels for {} values (give one number for each value)",
+                k + 1,
+                v.key,
+                l.len(),
+                v.values.len()
+            ),
+            (Some(l), name) => {
+                // A sweep.csv header and a plot's axis: no comma, no dot
+                // (a dot would read as a case key).
+                let name = name
+                    .as_deref()
+                    .unwrap_or("label")
+                    .replace([',', '.'], " ")
+                    .split_whitespace()
+                    .collect::<Vec<_>>()
+                    .join(" ");
+                if name.is_empty() {
+                    bail!("vary #{} (key \"{}\"): label is empty", k + 1, v.key);
+                }
+                Some((name, l.clone()))
+            }
+        };
+        let values = v
+            .values
+            .iter()
+            .enumerate()
+            .map(|(i, value)| {
+                let mut pairs = vec![(key.clone(), value.clone())];
+                if let Some((name, numbers)) = &label {
+                    pairs.push((name.clone(), toml::Value::Float(numbers[i])));
+                }
+                pairs
+            })
+            .collect();
+        out.push((key, values));
     }
     if out.is_empty() {
         bail!("no [[vary]] lists: a sweep needs at least one");
@@ -375,15 +437,15 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<toml::Value>)>> {
 }
 
 /// Every combination, the first list varying slowest.
-fn grid(vary: &[(String, Vec<toml::Value>)]) -> Vec<Vec<(String, toml::Value)>> {
-    let mut combos: Vec<Vec<(String, toml::Value)>> = vec![Vec::new()];
-    for (key, values) in vary {
+fn grid(vary: &[(String, Vec<Pairs>)]) -> Vec<Pairs> {
+    let mut combos: Vec<Pairs> = vec![Vec::new()];
+    for (_, values) in vary {
         combos = combos
             .into_iter()
             .flat_map(|c| {
                 values.iter().map(move |v| {
                     let mut c = c.clone();
-                    c.push((key.clone(), v.clone()));
+                    c.extend(v.iter().cloned());
                     c
                 })
             })
@@ -393,19 +455,27 @@ fn grid(vary: &[(String, Vec<toml::Value>)]) -> Vec<Vec<(String, toml::Value)>> 
 }
 
 /// Each list on its own.
-fn each(vary: &[(String, Vec<toml::Value>)]) -> Vec<Vec<(String, toml::Value)>> {
+fn each(vary: &[(String, Vec<Pairs>)]) -> Vec<Pairs> {
     vary.iter()
-        .flat_map(|(key, values)| values.iter().map(move |v| vec![(key.clone(), v.clone())]))
+        .flat_map(|(_, values)| values.iter().cloned())
         .collect()
 }
 
 /// Build one variant from the base and its settings.
-fn variant(base: &toml::Value, dir: &Path, settings: Vec<(String, toml::Value)>) -> Variant {
+fn variant(base: &toml::Value, dir: &Path, settings: Pairs) -> Variant {
     let mut value = base.clone();
     let mut applied = Vec::new();
     let mut names = Vec::new();
     let mut error = None;
     for (key, v) in settings {
+        // A label sets nothing in the case and is not in the name.
+        if is_label(&key) {
+            applied.push(Setting {
+                key,
+                value: serde_json::to_value(&v).unwrap_or(serde_json::Value::Null),
+            });
+            continue;
+        }
         let v = if key == "geometry.stl" {
             v.as_str().map_or(v.clone(), |s| {
                 toml::Value::String(path_string(&dir.join(s)))
@@ -562,6 +632,32 @@ mod tests {
     /// The sentence a refused sweep file gets.
     fn refusal(text: &str) -> String {
         plan(text).unwrap_err().to_string()
+    }
+
+    /// Labels give each value a number that sets nothing in the case and
+    /// is not in the folder name; they must pair with the values.
+    #[test]
+    fn labels_pair_a_number_with_each_value() {
+        let p = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\n\
+             labels = [1, 2]\nlabel = \"variant, no.\"\n"
+        ))
+        .unwrap();
+        let v = &p.variants[1];
+        assert_eq!(v.name, "rear_window_deg-38");
+        assert_eq!(v.settings[1].key, "variant no");
+        assert_eq!(v.settings[1].value, serde_json::json!(2.0));
+        assert!(is_label(&v.settings[1].key) && !is_label(&v.settings[0].key));
+        let file = v.file.as_ref().unwrap();
+        assert_eq!(file.geometry.rear_window_deg, Some(38.0));
+        let short = refusal(&format!(
+            "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\nlabels = [1]\n"
+        ));
+        assert!(short.contains("1 labels for 2 values"), "{short}");
+        let bare = refusal(&format!(
+            "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0]\nlabel = \"x\"\n"
+        ));
+        assert!(bare.contains("labels is missing"), "{bare}");
     }
 
     /// Two STL variants of one length whose surfaces ask for different
