@@ -361,6 +361,20 @@ fn a_sweep_keeps_to_the_memory_limit() {
 /// A finished variant whose case has changed since (the base case was
 /// edited and only one shard ran again) is not ranked by `collect`: it is
 /// listed as computed for an older case.
+/// `tuft sweep FILE --out OUT` as arguments, run once (its exit code
+/// checked against its progress lines).
+fn sweep_args<'a>(file: &'a Path, out: &'a Path) -> [&'a str; 4] {
+    let args = [
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    let (code, err) = tuft(&args);
+    assert_eq!(code, sweep_code(&err), "{err}");
+    args
+}
+
 /// A sweep of the sphere at two speeds written into `d`: its file, its
 /// result folder and its text.
 fn speed_sweep(d: &Path) -> (std::path::PathBuf, std::path::PathBuf, &'static str) {
@@ -375,14 +389,7 @@ fn speed_sweep(d: &Path) -> (std::path::PathBuf, std::path::PathBuf, &'static st
 fn collect_leaves_out_results_of_an_older_case() {
     let dir = tempfile::tempdir().unwrap();
     let (file, out, sweep) = speed_sweep(dir.path());
-    let args = [
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ];
-    let (code, err) = tuft(&args);
-    assert_eq!(code, sweep_code(&err), "{err}");
+    let args = sweep_args(&file, &out);
     std::fs::write(&file, sweep.replace("panels = 320", "panels = 330")).unwrap();
     let (code, err) = tuft(&[&args[..], &["--shard", "1/2"]].concat());
     assert_eq!(code, sweep_code(&err), "{err}");
@@ -409,14 +416,7 @@ fn collect_leaves_out_results_of_an_older_case() {
 fn a_sweep_with_noise_runs_again_what_was_run_without() {
     let dir = tempfile::tempdir().unwrap();
     let (file, out, _) = speed_sweep(dir.path());
-    let args = [
-        "sweep",
-        file.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-    ];
-    let (code, err) = tuft(&args);
-    assert_eq!(code, sweep_code(&err), "{err}");
+    let args = sweep_args(&file, &out);
     let (code, err) = tuft(&[&args[..], &["--noise"]].concat());
     assert_eq!(code, sweep_code(&err), "{err}");
     assert_eq!(
