@@ -228,11 +228,7 @@ fn notes(c: &Collected) -> Vec<String> {
 fn sides_note(rows: &[Row]) -> Option<String> {
     let names: Vec<&str> = rows
         .iter()
-        .filter(|r| {
-            r.warning_texts
-                .iter()
-                .any(|w| w.starts_with(crate::pipeline::SIDES_DIFFER))
-        })
+        .filter(|r| crate::pipeline::sides_differ(&r.warning_texts))
         .map(|r| r.name.as_str())
         .collect();
     (!names.is_empty()).then(|| {

@@ -206,7 +206,7 @@ pub fn measure(
     let others = counts.into_iter().try_for_each(|n| {
         let step = (n as f64 - target as f64).signum() * 0.5 * STEP * target as f64;
         let mut tries = 0;
-        let g = loop {
+        let (g, other) = loop {
             let mut other = case.clone();
             let asked = (n as f64 + tries as f64 * step).round() as usize;
             other.file.geometry.panels = Some(asked);
@@ -217,7 +217,6 @@ pub fn measure(
             }
             tries += 1;
         };
-        let (g, other) = g;
         let mut quiet = Progress::new(true, &case.name);
         let c = pipeline::compute(&g.mesh, &other, memory_limit, &mut quiet)?;
         samples.push(Sample::of(&g.mesh, &c));

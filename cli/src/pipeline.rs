@@ -939,6 +939,12 @@ the wheels and close the arches to rank drag";
 /// and `collect` know a run that carries it.
 pub const SIDES_DIFFER: &str = "at zero yaw the two sides separate differently";
 
+/// Whether `warnings` hold [`side_difference_warning`]'s (a summary's, or
+/// a sweep row's texts).
+pub fn sides_differ(warnings: &[String]) -> bool {
+    warnings.iter().any(|w| w.starts_with(SIDES_DIFFER))
+}
+
 /// Share of the wetted surface by which the two sides' separated areas may
 /// differ on a whole body centred on y = 0 at zero yaw before a run warns
 /// (our choice: 1 %; the demo coupe's sides differ by 8 panels, a review's

@@ -249,9 +249,7 @@ impl Summary {
     /// The run warned that its two sides separate differently at zero yaw
     /// ([`crate::pipeline::side_difference_warning`]).
     pub fn sides_differ(&self) -> bool {
-        self.warnings
-            .iter()
-            .any(|w| w.starts_with(crate::pipeline::SIDES_DIFFER))
+        crate::pipeline::sides_differ(&self.warnings)
     }
 
     /// The spread of the drag over the run's panel counts, counts (`tuft

@@ -361,6 +361,17 @@ fn a_sweep_keeps_to_the_memory_limit() {
 /// A finished variant whose case has changed since (the base case was
 /// edited and only one shard ran again) is not ranked by `collect`: it is
 /// listed as computed for an older case.
+/// The numbers in the column `name` of `out`'s sweep.csv, in its order.
+fn number_column(out: &Path, name: &str) -> Vec<f64> {
+    let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
+    let mut lines = csv.lines();
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let at = header.iter().position(|h| *h == name).unwrap();
+    lines
+        .map(|l| l.split(',').nth(at).unwrap().parse().unwrap())
+        .collect()
+}
+
 /// `tuft sweep FILE --out OUT` as arguments, run once (its exit code
 /// checked against its progress lines).
 fn sweep_args<'a>(file: &'a Path, out: &'a Path) -> [&'a str; 4] {
@@ -435,17 +446,11 @@ fn a_sweep_with_noise_runs_again_what_was_run_without() {
     assert_eq!(err.matches("already finished, kept").count(), 2, "{err}");
     let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
     assert!(code <= 1);
-    let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
-    let mut lines = csv.lines();
-    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-    let at = header
-        .iter()
-        .position(|h| *h == "panel_noise_counts")
-        .unwrap();
-    for line in lines {
-        let cell: f64 = line.split(',').nth(at).unwrap().parse().unwrap();
-        assert!(cell >= 0.0, "{line}");
-    }
+    let spreads = number_column(&out, "panel_noise_counts");
+    assert!(
+        spreads.len() == 2 && spreads.iter().all(|&n| n >= 0.0),
+        "{spreads:?}"
+    );
 }
 
 /// Values a case refuses (a negative speed) or a built-in shape's
@@ -741,16 +746,7 @@ fn labelled_stl_variants_are_plotted_against_their_labels() {
     let label_column = || {
         let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
         assert!(code <= 1);
-        let csv = std::fs::read_to_string(out.join("sweep.csv")).unwrap();
-        let mut lines = csv.lines();
-        let header: Vec<&str> = lines.next().unwrap().split(',').collect();
-        let at = header
-            .iter()
-            .position(|h| *h == "boot lid raise [mm]")
-            .unwrap();
-        let mut v: Vec<f64> = lines
-            .map(|l| l.split(',').nth(at).unwrap().parse().unwrap())
-            .collect();
+        let mut v = number_column(&out, "boot lid raise [mm]");
         v.sort_by(f64::total_cmp);
         v
     };
