@@ -1,8 +1,10 @@
 //! From a case's geometry section to a prepared panel mesh.
 
+use std::path::Path;
+
 use anyhow::{Context, Result, bail};
 use tuft_mesh::generate::{self, AhmedParams, CoupeParams};
-use tuft_mesh::prepare::{PrepareParams, PrepareReport, prepare, prepare_mesh};
+use tuft_mesh::prepare::{PrepareParams, PrepareReport, Repaired, prepare_mesh, repair_file};
 use tuft_mesh::{LengthUnit, MeshError, Mirrors, PanelMesh, TriMesh};
 
 use crate::case::{Case, GeometrySource};
@@ -18,6 +20,9 @@ pub struct Geometry {
     pub input_facets: usize,
     /// Everything preparation did.
     pub report: PrepareReport,
+    /// An STL's body before the coarsening, kept when asked
+    /// ([`load_keeping`]) to panel it at other counts ([`at_count`]).
+    pub body: Option<Repaired>,
 }
 
 /// Mirror planes a case declares.
@@ -30,9 +35,15 @@ pub fn mirrors(case: &Case) -> Mirrors {
 
 /// Build or read the case's body and prepare it.
 pub fn load(case: &Case) -> Result<Geometry> {
+    load_keeping(case, false)
+}
+
+/// [`load`], keeping an STL's repaired body in [`Geometry::body`] when
+/// `keep` (for `--noise`, which panels it at two more counts).
+pub fn load_keeping(case: &Case, keep: bool) -> Result<Geometry> {
     let mirrors = mirrors(case);
     let g = &case.file.geometry;
-    let (mesh, mut report, input_facets) = match &case.source {
+    match &case.source {
         GeometrySource::Stl { path, unit, axes } => {
             let params = PrepareParams {
                 units: *unit,
@@ -41,11 +52,12 @@ pub fn load(case: &Case) -> Result<Geometry> {
                 target_panels: g.panels,
                 ..PrepareParams::default()
             };
-            let (mesh, report) = prepare(path, &params)
+            let body = repair_file(path, &params)
                 .map_err(|e| name_mirror_keys(e, case))
-                .with_context(|| format!("geometry.stl = \"{}\"", path.display()))?;
-            let facets = report.read.as_ref().map_or(0, |r| r.facets);
-            (mesh, report, facets)
+                .with_context(|| stl_key(path))?;
+            let mut geo = panel_stl(case, path, &body)?;
+            geo.body = keep.then_some(body);
+            Ok(geo)
         }
         GeometrySource::Shape { name } => {
             let body = shape(name, case).with_context(|| format!("geometry.shape = \"{name}\""))?;
@@ -59,9 +71,44 @@ pub fn load(case: &Case) -> Result<Geometry> {
             let (mesh, report) = prepare_mesh(body, None, &params)
                 .map_err(|e| name_mirror_keys(e, case))
                 .with_context(|| format!("geometry.shape = \"{name}\""))?;
-            (mesh, report, facets)
+            finish(case, mesh, report, facets)
         }
-    };
+    }
+}
+
+/// The case's body at the panel count it now asks for, `geo` being the same
+/// case prepared at another: an STL's body kept by [`load_keeping`] is
+/// coarsened again, without reading, repairing or wrapping it again; a
+/// built-in shape (generated at its count) or an STL not kept is prepared
+/// anew.
+pub fn at_count(case: &Case, geo: &Geometry) -> Result<Geometry> {
+    match (&case.source, &geo.body) {
+        (GeometrySource::Stl { path, .. }, Some(body)) => panel_stl(case, path, body),
+        _ => load(case),
+    }
+}
+
+fn stl_key(path: &Path) -> String {
+    format!("geometry.stl = \"{}\"", path.display())
+}
+
+/// Coarsen an STL case's repaired body to the case's count and check it.
+fn panel_stl(case: &Case, path: &Path, body: &Repaired) -> Result<Geometry> {
+    let (mesh, report) = body
+        .panels(case.file.geometry.panels)
+        .map_err(|e| name_mirror_keys(e, case))
+        .with_context(|| stl_key(path))?;
+    let facets = report.read.as_ref().map_or(0, |r| r.facets);
+    finish(case, mesh, report, facets)
+}
+
+/// The checks of a prepared body against the rest of its case.
+fn finish(
+    case: &Case,
+    mesh: PanelMesh,
+    mut report: PrepareReport,
+    input_facets: usize,
+) -> Result<Geometry> {
     check_ground(&mesh, case)?;
     let note = check_size(&mesh, case)?;
     // An axle or region off a body whose size says its unit may be wrong:
@@ -76,10 +123,10 @@ pub fn load(case: &Case) -> Result<Geometry> {
         mesh,
         input_facets,
         report,
+        body: None,
     })
 }
 
-/// A mirror-plane refusal names the case keys that declared the planes.
 pub fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     let mut keys = Vec::new();
     if let Some(g) = &case.file.ground {

@@ -210,7 +210,7 @@ pub fn measure(
             let mut other = case.clone();
             let asked = (n as f64 + tries as f64 * step).round() as usize;
             other.file.geometry.panels = Some(asked);
-            let g = geometry::load(&other)?;
+            let g = geometry::at_count(&other, geo)?;
             let same = samples.iter().any(|s| s.panels == g.mesh.len());
             if !same || tries == MORE_TRIES {
                 break (g, other);

@@ -110,7 +110,7 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
     let what = "reading and preparing the geometry";
     let phase = progress.begin("geometry", what);
     let stages = progress.stages(&phase, what);
-    let geo = geometry::load(case)?;
+    let geo = geometry::load_keeping(case, options.noise)?;
     drop(stages);
     progress.end(phase, &panels_note(&geo));
     let mut computed = pipeline::compute(&geo.mesh, case, memory_limit, &mut progress)?;

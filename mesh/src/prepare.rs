@@ -168,9 +168,18 @@ pub fn prepare(
     path: &Path,
     params: &PrepareParams,
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    repair_file(path, params)?.panels(params.target_panels)
+}
+
+/// Read `path` and do the part of [`prepare`] before the coarsening
+/// ([`repair_body`]).
+///
+/// # Errors
+/// As [`prepare`], less those of the coarsening and the panel checks.
+pub fn repair_file(path: &Path, params: &PrepareParams) -> Result<Repaired, MeshError> {
     crate::stage::starting(|| format!("reading {}", path.display()));
     let (mesh, read) = read_stl(path)?;
-    prepare_mesh(mesh, Some(read), params)
+    repair_body(mesh, Some(read), params)
 }
 
 /// Where a fanned face's rings are cut ([`recut_fans`]): fractions of the
@@ -453,10 +462,48 @@ fn up_axis_warning(panels: &PanelMesh, params: &PrepareParams) -> Option<String>
 /// # Errors
 /// As [`prepare`], less the reading errors.
 pub fn prepare_mesh(
-    mut mesh: TriMesh,
+    mesh: TriMesh,
     read: Option<StlReport>,
     params: &PrepareParams,
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    repair_body(mesh, read, params)?.panels(params.target_panels)
+}
+
+/// A body read, turned into tuft's axes, cut or mirrored, repaired and
+/// wrapped, but not yet coarsened: all of [`prepare_mesh`] that does not
+/// depend on the panel count, kept so that one body can be panelled at
+/// several counts ([`Repaired::panels`]) without repeating that work (on a
+/// 1.9-million-facet scan the read, repair and wrap are some 14 s a count).
+#[derive(Debug, Clone)]
+pub struct Repaired {
+    params: PrepareParams,
+    mesh: TriMesh,
+    read: Option<StlReport>,
+    mirrored_half: bool,
+    halves: Option<crate::cut::HalfCut>,
+    off_centre: Option<f64>,
+    whole_cut: Option<crate::cut::HalfCut>,
+    cut_vertices_moved: usize,
+    cut_largest_move: f64,
+    ground_vertices_moved: usize,
+    ground_largest_move: f64,
+    caps: Option<(usize, f64)>,
+    repair: RepairReport,
+    capped_half: Option<String>,
+    wrap: Option<WrapReport>,
+    slot: Option<((f64, [f64; 3]), f64, f64)>,
+    suggested: usize,
+}
+
+/// The part of [`prepare_mesh`] before the coarsening.
+///
+/// # Errors
+/// As [`prepare_mesh`], less those of the coarsening and the panel checks.
+pub fn repair_body(
+    mut mesh: TriMesh,
+    read: Option<StlReport>,
+    params: &PrepareParams,
+) -> Result<Repaired, MeshError> {
     let scale = params.units.to_metres();
     mesh.map_vertices(|p| p * scale);
     let mirrored_half = params.axes.apply(&mut mesh, params.mirrors.symmetry);
@@ -545,19 +592,139 @@ pub fn prepare_mesh(
         .filter(|_| params.mirrors.symmetry)
         .map(|w| (facing_the_plane(&mesh, 2.0 * w.cell), mesh.area(), w.cell));
     let suggested = suggest(&mesh);
-    let target = params.target_panels.unwrap_or(suggested);
-    let (mesh, coarsen) = if mesh.len() > target {
-        let cp = CoarsenParams {
-            target_panels: target,
-            ..params.coarsen
+    Ok(Repaired {
+        params: *params,
+        mesh,
+        read,
+        mirrored_half,
+        halves,
+        off_centre,
+        whole_cut,
+        cut_vertices_moved,
+        cut_largest_move,
+        ground_vertices_moved,
+        ground_largest_move,
+        caps,
+        repair,
+        capped_half,
+        wrap,
+        slot,
+        suggested,
+    })
+}
+
+impl Repaired {
+    /// The rest of [`prepare_mesh`]: coarsen the body to `target_panels`
+    /// (the suggested count when `None`; never refined), check the panels
+    /// and report every step, as a [`prepare_mesh`] asked for that count
+    /// would.
+    ///
+    /// # Errors
+    /// [`MeshError::SelfCrossing`] when the panels pass through their own
+    /// surface, and the coarsening's and panel building's errors.
+    pub fn panels(
+        &self,
+        target_panels: Option<usize>,
+    ) -> Result<(PanelMesh, PrepareReport), MeshError> {
+        let Self {
+            params,
+            mesh,
+            read,
+            mirrored_half,
+            halves,
+            off_centre,
+            whole_cut,
+            cut_vertices_moved,
+            cut_largest_move,
+            ground_vertices_moved,
+            ground_largest_move,
+            caps,
+            repair,
+            capped_half,
+            wrap,
+            slot,
+            suggested,
+        } = self;
+        let params = &PrepareParams {
+            target_panels,
+            ..*params
         };
-        crate::stage::starting(|| format!("coarsening {} facets to {target} panels", mesh.len()));
-        let (m, r) = coarsen_with_params(&mesh, &params.mirrors, &cp);
-        refuse_failed_coarsening(&r)?;
-        (m, Some(r))
-    } else {
-        (mesh, None)
-    };
+        let target = target_panels.unwrap_or(*suggested);
+        let (mesh, coarsen) = if mesh.len() > target {
+            let cp = CoarsenParams {
+                target_panels: target,
+                ..params.coarsen
+            };
+            crate::stage::starting(|| {
+                format!("coarsening {} facets to {target} panels", mesh.len())
+            });
+            let (m, r) = coarsen_with_params(mesh, &params.mirrors, &cp);
+            refuse_failed_coarsening(&r)?;
+            (m, Some(r))
+        } else {
+            (mesh.clone(), None)
+        };
+        panel_and_report(
+            mesh,
+            coarsen,
+            params,
+            Parts {
+                read: read.clone(),
+                mirrored_half: *mirrored_half,
+                mirrors: MirrorReport {
+                    ground: params.mirrors.ground,
+                    symmetry: params.mirrors.symmetry,
+                    cut_vertices_moved: *cut_vertices_moved,
+                    cut_largest_move: *cut_largest_move,
+                    ground_vertices_moved: *ground_vertices_moved,
+                    ground_largest_move: *ground_largest_move,
+                    whole_cut: *whole_cut,
+                    halves: *halves,
+                    off_centre: *off_centre,
+                    mirrored_half: *mirrored_half,
+                },
+                caps: *caps,
+                repair: repair.clone(),
+                capped_half: capped_half.clone(),
+                wrap: wrap.clone(),
+                slot: *slot,
+                suggested: *suggested,
+            },
+        )
+    }
+}
+
+/// What [`panel_and_report`] reports of the steps before the coarsening.
+struct Parts {
+    read: Option<StlReport>,
+    mirrored_half: bool,
+    mirrors: MirrorReport,
+    caps: Option<(usize, f64)>,
+    repair: RepairReport,
+    capped_half: Option<String>,
+    wrap: Option<WrapReport>,
+    slot: Option<((f64, [f64; 3]), f64, f64)>,
+    suggested: usize,
+}
+
+/// Check the coarsened mesh, build its panels and the whole report.
+fn panel_and_report(
+    mesh: TriMesh,
+    coarsen: Option<CoarsenReport>,
+    params: &PrepareParams,
+    parts: Parts,
+) -> Result<(PanelMesh, PrepareReport), MeshError> {
+    let Parts {
+        read,
+        mirrored_half,
+        mirrors,
+        caps,
+        repair,
+        capped_half,
+        wrap,
+        slot,
+        suggested,
+    } = parts;
     crate::stage::starting(|| format!("checking {} panels", mesh.len()));
     let local_crossing = refuse_self_crossing(&mesh)?;
     let panels = PanelMesh::new(mesh, params.mirrors)?;
@@ -648,7 +815,7 @@ pub fn prepare_mesh(
                 ));
             }
         }
-        if let Some(c) = &whole_cut {
+        if let Some(c) = &mirrors.whole_cut {
             q.notes.push(c.describe());
             if c.differs() {
                 q.add_warning(format!(
@@ -710,18 +877,7 @@ pub fn prepare_mesh(
         units: params.units,
         transformed: params.transform.is_some() || !params.axes.is_identity() || mirrored_half,
         axes: params.axes,
-        mirrors: MirrorReport {
-            ground: params.mirrors.ground,
-            symmetry: params.mirrors.symmetry,
-            cut_vertices_moved,
-            cut_largest_move,
-            ground_vertices_moved,
-            ground_largest_move,
-            whole_cut,
-            halves,
-            off_centre,
-            mirrored_half,
-        },
+        mirrors,
         repair,
         wrap,
         suggested_panels: suggested,

@@ -853,3 +853,47 @@ fn parts_nearly_touching_are_wrapped() {
         }
     }
 }
+
+/// A body read, repaired and wrapped once, then coarsened to several
+/// counts (`repair_file` and `Repaired::panels`, as `--noise` does), gives
+/// exactly the panels and report of preparing the file at each count: the
+/// work the panel-noise runs no longer repeat changes nothing.
+#[test]
+fn a_repaired_body_panels_at_each_count_as_a_whole_preparation_does() {
+    // Two spheres passing into each other (so the repair's weld and the
+    // wrap both run), in millimetres, as a file.
+    let both = join(
+        &generate::latlong_sphere(1000.0, 30, 60),
+        &moved(
+            generate::latlong_sphere(400.0, 20, 40),
+            Vector::new(1100.0, 0.0, 200.0),
+        ),
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let path = common::write(dir.path(), "both.stl", &common::binary_stl(&both));
+    let params = PrepareParams {
+        units: LengthUnit::Mm,
+        target_panels: Some(900),
+        // A coarser grid than a car's, for time: the test is of the split.
+        wrap: WrapParams {
+            cells_along_length: 100,
+            ..WrapParams::default()
+        },
+        ..PrepareParams::default()
+    };
+    let body = tuft_mesh::prepare::repair_file(&path, &params).unwrap();
+    for n in [Some(700), Some(1100), None] {
+        let whole = PrepareParams {
+            target_panels: n,
+            ..params
+        };
+        let (a, ra) = tuft_mesh::prepare::prepare(&path, &whole).unwrap();
+        let (b, rb) = body.panels(n).unwrap();
+        assert!(ra.wrap.is_some() && ra.coarsen.is_some(), "{n:?}");
+        assert_eq!(ra, rb, "{n:?}");
+        assert_eq!(a.len(), b.len(), "{n:?}");
+        for (p, q) in a.panels.iter().zip(&b.panels) {
+            assert_eq!(p.centroid, q.centroid, "{n:?}");
+        }
+    }
+}

@@ -100,7 +100,7 @@ pub fn run_group(
     let Some((_, first)) = cases.first() else {
         return;
     };
-    let geo = match geometry::load(first) {
+    let geo = match geometry::load_keeping(first, noise) {
         Ok(g) => g,
         Err(e) => {
             let why = format!("{e:#}");
