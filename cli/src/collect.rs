@@ -927,7 +927,7 @@ fn glance(dir: &Path, c: &Collected) -> Glance {
             .iter()
             .any(|r| r.facing.as_deref() == Some("down"))
     });
-    let layout = glance::GlanceLayout::with_names(&bodies, below);
+    let layout = glance::GlanceLayout::with_names(&bodies, below, below || underbody_keys(&c.keys));
     let (mut unresolved, mut regions) = (false, false);
     let rows = folders
         .iter()
@@ -960,6 +960,26 @@ fn glance(dir: &Path, c: &Collected) -> Glance {
         })
         .flatten();
     Glance { key, rows }
+}
+
+/// Words in a swept key or label that name a part seen from below.
+const UNDERBODY_WORDS: [&str; 5] = [
+    "diffuser",
+    "ride_height",
+    "ride height",
+    "underbody",
+    "floor",
+];
+
+/// Whether the swept keys (or labels) study the underbody, so that the
+/// glance pictures add the rear and the underneath (where a diffuser's
+/// separation shows; the side and the top show none of it), as they do
+/// when a named region faces down.
+fn underbody_keys(keys: &[String]) -> bool {
+    keys.iter().any(|k| {
+        let k = k.to_lowercase();
+        UNDERBODY_WORDS.iter().any(|w| k.contains(w))
+    })
 }
 
 /// A variant's label on its picture: rank, name, swept values, C_D and

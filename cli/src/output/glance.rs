@@ -1,6 +1,8 @@
 //! Separation at a glance: a compact picture of one run's separation risk
 //! seen from the side and from above (the two views a rear-window or
-//! boot-deck change reads from), drawn as on the run report's risk sheet
+//! boot-deck change reads from; with the rear and the underneath on a
+//! second row for an underbody study, [`GlanceLayout::with_names`]),
+//! drawn as on the run report's risk sheet
 //! (the same colour map, separated panels hatched, named regions
 //! outlined), for the sweep page's row per variant. Every variant's
 //! picture is drawn through one [`GlanceLayout`], one scale and one centre
@@ -19,8 +21,11 @@ use super::{OutputError, SurfaceResult};
 
 /// Width of a variant's picture and of the key, pixels.
 pub const WIDTH: u32 = 1140;
-/// Height of a variant's picture, pixels.
+/// Height of a variant's picture of one row of views, pixels (a second
+/// row adds [`ROW_HEIGHT`]).
 pub const HEIGHT: u32 = 300;
+/// Height of a row of views, pixels.
+const ROW_HEIGHT: f64 = HEIGHT as f64 - LABEL_BAND;
 /// Height of the key, pixels.
 pub const KEY_HEIGHT: u32 = 66;
 /// The band for the variant's label at the top, pixels.
@@ -41,18 +46,24 @@ const NAME_ROOM: f64 = 46.0;
 const NAME_BELOW_ROOM: f64 = 32.0;
 
 /// The views of a run at `yaw_deg`: the side the run report shows
-/// ([`View::sheet`]: the lee side at a positive yaw) and the top.
-pub fn views(yaw_deg: f64) -> [View; 2] {
-    [View::sheet(yaw_deg)[0], View::Top]
+/// ([`View::sheet`]: the lee side at a positive yaw) and the top, then,
+/// when `underbody`, the rear and the underneath.
+pub fn views(yaw_deg: f64, underbody: bool) -> Vec<View> {
+    let mut v = vec![View::sheet(yaw_deg)[0], View::Top];
+    if underbody {
+        v.extend([View::Rear, View::Underneath]);
+    }
+    v
 }
 
-/// The rectangle (left, top, width, height) of the `k`-th view.
+/// The rectangle (left, top, width, height) of the `k`-th view: two to a
+/// row.
 fn cell(k: usize) -> (i64, i64, i64, i64) {
     let w = (f64::from(WIDTH) - 2.0 * MARGIN - GAP) / 2.0;
-    let top = LABEL_BAND + VIEW_BAND;
-    let h = f64::from(HEIGHT) - top - 6.0;
+    let top = LABEL_BAND + VIEW_BAND + (k / 2) as f64 * ROW_HEIGHT;
+    let h = ROW_HEIGHT - VIEW_BAND - 6.0;
     (
-        (MARGIN + k as f64 * (w + GAP)) as i64,
+        (MARGIN + (k % 2) as f64 * (w + GAP)) as i64,
         top as i64,
         w as i64,
         h as i64,
@@ -66,6 +77,8 @@ pub struct GlanceLayout {
     pub scale: f64,
     /// View coordinates (right, up), metres, of each view's centre.
     centres: Vec<(View, (f64, f64))>,
+    /// The rear and the underneath are drawn too, on a second row.
+    underbody: bool,
 }
 
 impl GlanceLayout {
@@ -74,18 +87,21 @@ impl GlanceLayout {
     /// bodies' common extent in it (the side view's lowest point just
     /// above the ground line's room, the names' room over the body).
     pub fn new(bodies: &[(&PanelMesh, f64)]) -> Self {
-        Self::with_names(bodies, false)
+        Self::with_names(bodies, false, false)
     }
 
     /// [`GlanceLayout::new`], with room under the side view's ground line
     /// for region names too when `below` (a region of the variants faces
-    /// down: a floor, a diffuser), which are otherwise left unnamed there.
-    pub fn with_names(bodies: &[(&PanelMesh, f64)], below: bool) -> Self {
+    /// down: a floor, a diffuser), which are otherwise left unnamed there;
+    /// `underbody` adds a second row of views, the rear and the underneath
+    /// (an underbody study: a diffuser's separation is seen from below,
+    /// where the side and top views show none of it).
+    pub fn with_names(bodies: &[(&PanelMesh, f64)], below: bool, underbody: bool) -> Self {
         let ground_room = GROUND_ROOM + if below { NAME_BELOW_ROOM } else { 0.0 };
         let mut extents: Vec<(View, (f64, f64, f64, f64))> = Vec::new();
         for (mesh, yaw) in bodies {
             let tris = display_triangles(mesh);
-            for view in views(*yaw) {
+            for view in views(*yaw, underbody) {
                 let e = render::extent(&tris, view);
                 match extents.iter_mut().find(|(v, _)| *v == view) {
                     Some((_, u)) => {
@@ -120,13 +136,27 @@ impl GlanceLayout {
                 (v, (0.5 * (e.0 + e.1), up))
             })
             .collect();
-        Self { scale, centres }
+        Self {
+            scale,
+            centres,
+            underbody,
+        }
     }
 
-    /// The frames of the two views of a run at `yaw_deg`; a view no body
-    /// of the layout had is centred on `mesh`.
+    /// A variant's picture height, pixels: [`HEIGHT`] for one row of
+    /// views, [`ROW_HEIGHT`] more for the second.
+    pub fn height(&self) -> u32 {
+        if self.underbody {
+            HEIGHT + ROW_HEIGHT as u32
+        } else {
+            HEIGHT
+        }
+    }
+
+    /// The frames of the views of a run at `yaw_deg`; a view no body of
+    /// the layout had is centred on `mesh`.
     pub fn frames(&self, mesh: &PanelMesh, yaw_deg: f64) -> Vec<(View, Frame)> {
-        views(yaw_deg)
+        views(yaw_deg, self.underbody)
             .into_iter()
             .enumerate()
             .map(|(k, view)| {
@@ -163,7 +193,7 @@ pub fn picture(
     layout: &GlanceLayout,
 ) -> Result<Canvas, OutputError> {
     s.validate()?;
-    let mut canvas = Canvas::new(WIDTH, HEIGHT)?;
+    let mut canvas = Canvas::new(WIDTH, layout.height())?;
     let tris = display_triangles(s.mesh);
     let scale = ColourScale::risk();
     let paint = |i: usize| sheet::panel_paint(s, SurfaceField::SeparationRisk, &scale, i);
@@ -184,7 +214,7 @@ pub fn picture(
             &RenderParams::default(),
             &paint,
         );
-        if let (Some(z), true) = (s.mesh.mirrors.ground, view.is_side()) {
+        if let (Some(z), true) = (s.mesh.mirrors.ground, view.is_side() || *view == View::Rear) {
             sheet::ground_line(&mut canvas, z, *view, frame);
         }
     }
@@ -211,7 +241,10 @@ fn view_label(canvas: &mut Canvas, view: View, frame: &Frame, yaw_deg: f64) {
         GRID,
         1.0,
     );
-    let (dx, dy) = view.flow_direction(yaw_deg).unwrap_or((1.0, 0.0));
+    // The rear view looks into the stream: no arrow, as on the sheets.
+    let Some((dx, dy)) = view.flow_direction(yaw_deg) else {
+        return;
+    };
     let x0 = l as f32 + text::width(&words, &style) + 70.0;
     let (cx, cy) = (x0, y - 4.0);
     let (dx, dy) = (14.0 * dx as f32, 14.0 * dy as f32);
@@ -385,6 +418,49 @@ mod tests {
         assert_eq!(stripes(&img, x - 7.0, y).0, 0);
     }
 
+    /// An underbody layout adds the rear and the underneath on a second
+    /// row: a body separated only on its lower part (as a diffuser is) is
+    /// hatched there from below and on its lower half from the rear, and
+    /// nowhere from above.
+    #[test]
+    fn an_underbody_study_shows_the_rear_and_the_underneath() {
+        let mut f = Fixture::sphere(3);
+        f.state = f
+            .mesh
+            .panels
+            .iter()
+            .map(|p| {
+                if p.centroid.z < -0.3 {
+                    PanelState::Separated
+                } else {
+                    PanelState::Turbulent
+                }
+            })
+            .collect();
+        let lay = GlanceLayout::with_names(&[(&f.mesh, 0.0)], false, true);
+        let png = picture(&f.surface(), 0.0, "1. separated below", &[], &lay)
+            .unwrap()
+            .to_png()
+            .unwrap();
+        keep("glance-underbody.png", &png);
+        let img = decode(&png);
+        assert_eq!((img.width, img.height), (WIDTH, HEIGHT + ROW_HEIGHT as u32));
+        let frames = lay.frames(&f.mesh, 0.0);
+        let seen: Vec<View> = frames.iter().map(|(v, _)| *v).collect();
+        assert_eq!(seen, [View::Side, View::Top, View::Rear, View::Underneath]);
+        assert!(frames[2].1.rect.1 >= frames[0].1.rect.1 + frames[0].1.rect.3);
+        let hatched = |view: View, p: Point| {
+            let (_, frame) = frames.iter().find(|(v, _)| *v == view).unwrap();
+            let (x, y) = frame.project(view, &p);
+            let (dark, light) = stripes(&img, x - 7.0, y);
+            dark >= 2 && light >= 2
+        };
+        assert!(hatched(View::Underneath, Point::new(0.0, 0.0, -1.0)));
+        assert!(hatched(View::Rear, Point::new(1.0, 0.0, -0.7)));
+        assert!(!hatched(View::Rear, Point::new(1.0, 0.0, 0.5)));
+        assert!(!hatched(View::Top, Point::new(0.0, 0.0, 1.0)));
+    }
+
     /// One scale for all: a sphere of half the radius drawn through the
     /// layout of both covers about a quarter of the pixels.
     #[test]
@@ -481,7 +557,7 @@ mod tests {
                 .collect::<Vec<_>>()
         };
         assert!(named(&GlanceLayout::new(&[(&mesh, 0.0)])).is_empty());
-        let labels = named(&GlanceLayout::with_names(&[(&mesh, 0.0)], true));
+        let labels = named(&GlanceLayout::with_names(&[(&mesh, 0.0)], true, false));
         let [(plate, ground, (_, t, _, h))] = labels[..] else {
             panic!("{labels:?}")
         };
