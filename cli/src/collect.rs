@@ -1922,6 +1922,19 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
 mod tests {
     use super::*;
 
+    /// Keys and labels naming a part seen from below make an underbody
+    /// study; a rear-window or speed sweep is not one.
+    #[test]
+    fn underbody_studies_are_told_by_their_keys() {
+        let keys =
+            |k: &[&str]| underbody_keys(&k.iter().map(|s| (*s).to_owned()).collect::<Vec<_>>());
+        assert!(keys(&["diffuser_deg"]));
+        assert!(keys(&["rear_window_deg", "ride_height"]));
+        assert!(keys(&["Diffuser angle [deg]"]));
+        assert!(!keys(&["rear_window_deg", "speed"]));
+        assert!(!keys(&[]));
+    }
+
     /// The page of `c` with its verdicts drawn, as [`collect`] leaves it.
     fn shown(c: &Collected, plots: &[(String, Vec<u8>)]) -> String {
         let mut c = c.clone();
