@@ -686,8 +686,9 @@ fn changed_surface(
             (l.min(p.centroid.z), h.max(p.centroid.z))
         });
     let floor_top = low + UNDERBODY_HEIGHT * (high - low);
+    let changed = changed_panels(mapping, b.panels.len(), near);
     for (i, pb) in b.panels.iter().enumerate() {
-        if mapping.distance.get(i).is_none_or(|&d| d <= near) {
+        if !changed[i] {
             continue;
         }
         let area = halves * pb.area;
@@ -699,6 +700,14 @@ fn changed_surface(
             out.changed_underbody_m2 += area;
         }
     }
+}
+
+/// B's panels that lie farther than `near` from A's surface (the changed
+/// margin, [`SurfaceDeltas::margins_m`]'s second): where the shape changed.
+pub fn changed_panels(mapping: &Mapping, panels: usize, near: f64) -> Vec<bool> {
+    (0..panels)
+        .map(|i| mapping.distance.get(i).is_some_and(|&d| d > near))
+        .collect()
 }
 
 /// The differences on the surface that did not change (see
@@ -1058,7 +1067,7 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
 
 /// A length in millimetres, to the millimetre ("28 mm"), or to a tenth
 /// under 10 mm ("4.5 mm").
-fn mm(m: f64) -> String {
+pub(crate) fn mm(m: f64) -> String {
     let v = 1000.0 * m;
     if v < 10.0 {
         format!("{v:.1} mm")

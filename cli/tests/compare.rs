@@ -226,6 +226,11 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
         moved,
         "the two slopes separate alike: the check above tests nothing"
     );
+    // The changed shape is outlined on the Cp difference sheet, and its
+    // note says so; a run against itself changed nowhere and has no line.
+    let page = |d: &str| std::fs::read_to_string(dir.path().join(d).join("compare.html")).unwrap();
+    assert!(page("slopes").contains("the changed shape outlined in black"));
+    assert!(!page("self").contains("outlined in black"));
 }
 
 /// Cp of Lamb's sphere (Hydrodynamics, 1932, sec. 92): 1 - 9/4 sin^2 theta.

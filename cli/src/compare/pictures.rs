@@ -28,6 +28,42 @@ const SEPARATION_OUTLINE: output::outline::OutlineStyle = output::outline::Outli
     halo: true,
 };
 
+/// The changed shape's outline on the Cp difference sheet: near-black
+/// over a white halo, apart from the regions' blue and the colour scale's
+/// red and blue.
+const CHANGED_OUTLINE: output::outline::OutlineStyle = output::outline::OutlineStyle {
+    colour: [25, 25, 25],
+    halo: true,
+};
+
+/// Largest share of B's surface outlined as changed: beyond it the two
+/// bodies differ nearly everywhere (another car, or one moved), and an
+/// outline round most of the body says nothing (our choice).
+const CHANGED_OUTLINE_SHARE: f64 = 0.5;
+
+/// Share of B's surface outlined as changed, or `None` when none is or
+/// too much is ([`CHANGED_OUTLINE_SHARE`]).
+fn outlined_share(u: &super::SurfaceDeltas, area_m2: f64) -> Option<f64> {
+    let share = u.changed_m2 / area_m2;
+    (share > 0.0 && share <= CHANGED_OUTLINE_SHARE).then_some(share)
+}
+
+/// B's changed panels ([`super::changed_panels`], beyond `near` of A's
+/// surface) as a mark on its display triangles (the mirror images of a
+/// half model's after its own).
+fn changed_mark(mesh_b: &PanelMesh, mapping: &Mapping, near: f64) -> output::outline::RegionMark {
+    let changed = super::changed_panels(mapping, mesh_b.len(), near);
+    let images = if mesh_b.mirrors.symmetry {
+        changed.clone()
+    } else {
+        Vec::new()
+    };
+    output::outline::RegionMark {
+        name: "changed shape".into(),
+        member: changed.into_iter().chain(images).collect(),
+    }
+}
+
 /// Write the sheets and `compare.html` into the staging folder.
 pub fn write(
     out: &Staging,
@@ -45,11 +81,12 @@ pub fn write(
         speed_ms: cmp.b.speed,
         yaw_deg: super::yaw_of(&b.summary),
     };
+    let outlined = outlined_share(&cmp.surface, b.halves() * mesh_b.area()).is_some();
     let cp_style = FieldStyle {
         scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
         legend: vec![],
         what: "Cp difference".into(),
-        note: delta_cp_note(&cmp.surface),
+        note: delta_cp_note(&cmp.surface, outlined),
     };
     let mut dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
         PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
@@ -84,7 +121,17 @@ pub fn write(
             }
         }
     })?;
-    // B's named regions, outlined as on its own pictures.
+    // Where the shape changed, outlined first (unnamed: the note says
+    // what the line is), then B's named regions as on its own pictures.
+    if outlined {
+        output::outline::draw_outlines_unnamed(
+            &mut dcp,
+            mesh_b,
+            &[changed_mark(mesh_b, mapping, cmp.surface.margins_m[1])],
+            CHANGED_OUTLINE,
+            caption.yaw_deg,
+        );
+    }
     let marks = crate::region::marks(&b.regions(), mesh_b);
     output::outline::draw_regions(&mut dcp, mesh_b, &marks, caption.yaw_deg);
     // Not in the legend's blue: along the base edge the outline ran into
@@ -100,8 +147,14 @@ pub fn write(
         (
             "delta-cp.png",
             Picture {
-                title: "Cp of B minus Cp of A, on B's body: side, top, underneath, front and rear"
-                    .into(),
+                title: format!(
+                    "Cp of B minus Cp of A, on B's body{}: side, top, underneath, front and rear",
+                    if outlined {
+                        " (the changed shape outlined in black)"
+                    } else {
+                        ""
+                    }
+                ),
                 png: dcp.to_png()?,
             },
         ),
@@ -126,10 +179,16 @@ pub fn write(
 /// The Cp difference sheet's note: what the colours mean and, where much
 /// of the shape did not change, how far Cp moved there, to the table's
 /// three decimals (a review read 0.08 here beside the table's 0.085).
-fn delta_cp_note(u: &super::SurfaceDeltas) -> String {
+fn delta_cp_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
     let mut note =
         "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B."
             .to_owned();
+    if outlined {
+        note += &format!(
+            " Black outline: where B's shape lies more than {} from A's.",
+            super::mm(u.margins_m[1])
+        );
+    }
     if u.unchanged_share >= 0.2 {
         note += &format!(
             " Where the shape did not change, 95 % stays under {:.3}; spots at sharp edges are panel noise.",
@@ -350,6 +409,19 @@ mod tests {
     /// The sheet's note gives the unchanged surface's 95 % figure as the
     /// table does, to three decimals (a review read 0.08 on the sheet,
     /// 0.085 in the table and 0.0848 in compare.json).
+    /// The changed shape is outlined when some and at most half of B's
+    /// surface changed.
+    #[test]
+    fn the_changed_shape_is_outlined_only_where_it_says_something() {
+        let u = |changed_m2: f64| crate::compare::SurfaceDeltas {
+            changed_m2,
+            ..Default::default()
+        };
+        assert_eq!(outlined_share(&u(0.0), 10.0), None);
+        assert_eq!(outlined_share(&u(1.0), 10.0), Some(0.1));
+        assert_eq!(outlined_share(&u(6.0), 10.0), None);
+    }
+
     #[test]
     fn the_cp_note_rounds_as_the_table() {
         let u = crate::compare::SurfaceDeltas {
@@ -357,7 +429,7 @@ mod tests {
             unchanged_delta_cp_p95: 0.0848,
             ..Default::default()
         };
-        let note = delta_cp_note(&u);
+        let note = delta_cp_note(&u, false);
         assert!(note.contains("95 % stays under 0.085;"), "{note}");
         let row = NumberRow::fixed("", u.unchanged_delta_cp_p95, 3, "-");
         assert!(note.contains(&format!("under {};", row.value)), "{note}");
@@ -366,7 +438,7 @@ mod tests {
             unchanged_share: 0.1,
             ..u
         };
-        assert!(!delta_cp_note(&u).contains("stays under"));
+        assert!(!delta_cp_note(&u, false).contains("stays under"));
     }
 
     /// The separation-change sheet outlines regions in a colour far from

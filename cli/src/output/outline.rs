@@ -69,6 +69,31 @@ pub fn draw_regions_styled(
     style: OutlineStyle,
     yaw_deg: f64,
 ) {
+    on_sheet(canvas, mesh, marks, style, yaw_deg, |v| {
+        !matches!(v, View::Front | View::Rear)
+    });
+}
+
+/// [`draw_regions_styled`] without names in any view: for a set of panels
+/// the sheet's note names (`compare`'s changed shape).
+pub fn draw_outlines_unnamed(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    style: OutlineStyle,
+    yaw_deg: f64,
+) {
+    on_sheet(canvas, mesh, marks, style, yaw_deg, |_| false);
+}
+
+fn on_sheet(
+    canvas: &mut Canvas,
+    mesh: &tuft_mesh::PanelMesh,
+    marks: &[RegionMark],
+    style: OutlineStyle,
+    yaw_deg: f64,
+    named: fn(View) -> bool,
+) {
     if marks.is_empty() {
         return;
     }
@@ -76,7 +101,7 @@ pub fn draw_regions_styled(
     let lay = sheet::layout_at(&tris, &SheetParams::default(), yaw_deg);
     let on = RegionViews {
         views: &lay.views,
-        named: |v| !matches!(v, View::Front | View::Rear),
+        named,
         flow_corner: true,
         scale_bar: true,
     };
