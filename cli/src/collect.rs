@@ -1042,9 +1042,9 @@ fn winner_named(c: &Collected, rows: &[Row]) -> bool {
 /// `sweep.csv`: one row per variant in rank order, numbers in shortest
 /// round-trip form. Beside the swept keys it carries each variant's wind
 /// (`speed_ms`, `yaw_deg`: its kg depend on them), its drag above the
-/// lowest of its wind condition in counts (`counts_above_lowest`, on its
-/// own reference area; empty where the areas differ and `drag_area_m2`
-/// ranks), and, on each condition's rank 1, whether the ranking names it
+/// lowest of its wind condition in counts (`counts_above_lowest`: its
+/// drag area above the lowest, on the lowest's reference area, which is
+/// every variant's where the areas agree), and, on each condition's rank 1, whether the ranking names it
 /// the best (`best_drag`: `yes`, or `no` when it is not clearly lower,
 /// see sweep.html), so that rank 1 is not read as a winner on its own.
 pub fn csv(c: &Collected) -> String {
@@ -1066,16 +1066,22 @@ pub fn csv(c: &Collected) -> String {
         .map(|(_, rows)| (rows, winner_named(c, rows)))
         .collect();
     for (rows, named) in wind {
-        let lowest = rows.iter().map(|r| r.cd).fold(f64::INFINITY, f64::min);
-        let counts = !areas_differ(rows);
+        // Counts on the lowest drag area's own reference area (where the
+        // areas differ, the drag areas rank; a review's spoiler sweep had
+        // the column empty throughout).
+        let lowest = rows
+            .iter()
+            .min_by(|a, b| drag_area(a).total_cmp(&drag_area(b)));
         for r in rows {
-            csv_row(
-                &mut s,
-                c,
-                r,
-                counts.then_some(1000.0 * (r.cd - lowest)),
-                (named, rows.len() == 1),
-            );
+            let above = lowest.map(|l| {
+                let area = if l.reference_area_m2 > 0.0 {
+                    l.reference_area_m2
+                } else {
+                    1.0
+                };
+                1000.0 * (drag_area(r) - drag_area(l)) / area
+            });
+            csv_row(&mut s, c, r, above, (named, rows.len() == 1));
         }
     }
     s
@@ -2606,6 +2612,15 @@ mod tests {
         let text = csv(&c);
         assert_eq!(column(&text, "best_drag"), ["no", ""], "{text}");
         assert_eq!(column(&text, "counts_above_lowest"), ["0.0", "0.5"]);
+        // Areas that differ by more than 1 % rank by drag area; the counts
+        // are then on the lowest's area: 0.30 x 2.2 against 0.32 x 2.0
+        // m^2 is 0.02 m^2, 9.1 counts on 2.2 m^2.
+        c.variants[0].reference_area_m2 = 2.2;
+        c.variants[1].reference_area_m2 = 2.0;
+        c.variants[1].cd = 0.34;
+        let text = csv(&c);
+        let above = column(&text, "counts_above_lowest");
+        assert_eq!(above, ["0.0", "9.1"], "{text}");
     }
 
     /// Variants with region verdicts solved on under half of their
