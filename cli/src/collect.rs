@@ -1369,15 +1369,48 @@ const BAND_GREY: crate::output::canvas::Rgb = [150, 150, 150];
 
 /// One line per combination of the other swept keys' values, in the
 /// order of those values (numbers as numbers: 6 before 14.5 before 22).
+/// The other swept keys that change in step with `key`, one value of each
+/// to one of `key`'s, over the variants that set it: an STL list and the
+/// labels given to its files (`labels = [...]` on a `[[vary]]` list),
+/// which are one swept quantity, not two (a review's STL sweep plotted
+/// against its labels drew a dot per file).
+fn lockstep<'a>(c: &'a Collected, key: &str) -> Vec<&'a String> {
+    let set: Vec<&Row> = c
+        .variants
+        .iter()
+        .filter(|r| r.settings.contains_key(key))
+        .collect();
+    c.keys
+        .iter()
+        .filter(|k| *k != key)
+        .filter(|k| {
+            let mut pairs: Vec<(String, String)> = Vec::new();
+            set.iter().all(|r| {
+                let (Some(x), Some(v)) = (r.settings.get(key), r.settings.get(*k)) else {
+                    return false;
+                };
+                let (x, v) = (cell(x), cell(v));
+                let fits = pairs.iter().all(|(a, b)| (*a == x) == (*b == v));
+                pairs.push((x, v));
+                fits
+            })
+        })
+        .collect()
+}
+
 fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     // (sort key, name, points); the sort key is each other value as a
     // number (infinite for text) and as text.
     type Group = (Vec<(f64, String)>, String, Vec<(f64, f64)>);
     let mut groups: Vec<Group> = Vec::new();
+    let along = lockstep(c, key);
     // Only the variants that set `key` (see `numeric_key`).
     for r in c.variants.iter().filter(|r| r.settings.contains_key(key)) {
-        let others: Vec<(&String, &serde_json::Value)> =
-            r.settings.iter().filter(|(k, _)| *k != key).collect();
+        let others: Vec<(&String, &serde_json::Value)> = r
+            .settings
+            .iter()
+            .filter(|(k, _)| *k != key && !along.contains(k))
+            .collect();
         // An STL by its file name, as the page's table shows it (a review's
         // legends carried whole paths).
         let name = others
@@ -1927,6 +1960,45 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// An STL list and its labels are one swept quantity: plotted against
+    /// the labels, the variants make one line, not a dot per file; a
+    /// second key swept in all combinations still makes a line per value.
+    #[test]
+    fn labels_and_their_files_make_one_line() {
+        let mut c = sweep(&[1.0, 2.0, 3.0]);
+        c.keys = vec!["stl".into(), "kick-up [deg]".into()];
+        for (r, (file, deg)) in
+            c.variants
+                .iter_mut()
+                .zip([("a.stl", 0.0), ("b.stl", 8.0), ("c.stl", 16.0)])
+        {
+            r.settings.insert("stl".into(), serde_json::json!(file));
+            r.settings
+                .insert("kick-up [deg]".into(), serde_json::json!(deg));
+        }
+        let lines = series(&c, "kick-up [deg]", |r| r.separated_area_m2);
+        assert_eq!(lines.len(), 1);
+        assert_eq!(lines[0].points.len(), 3);
+        assert_eq!(lockstep(&c, "kick-up [deg]"), [&"stl".to_owned()]);
+        // Two speeds for each file: a line per speed.
+        let mut c2 = sweep(&[1.0, 2.0, 3.0, 4.0]);
+        c2.keys = vec!["stl".into(), "kick-up [deg]".into(), "speed".into()];
+        for (r, (file, deg, v)) in c2.variants.iter_mut().zip([
+            ("a.stl", 0.0, 30.0),
+            ("a.stl", 0.0, 40.0),
+            ("b.stl", 8.0, 30.0),
+            ("b.stl", 8.0, 40.0),
+        ]) {
+            r.settings.insert("stl".into(), serde_json::json!(file));
+            r.settings
+                .insert("kick-up [deg]".into(), serde_json::json!(deg));
+            r.settings.insert("speed".into(), serde_json::json!(v));
+        }
+        let lines = series(&c2, "kick-up [deg]", |r| r.separated_area_m2);
+        assert_eq!(lines.len(), 2);
+        assert!(lines.iter().all(|l| l.points.len() == 2));
+    }
 
     /// Keys and labels naming a part seen from below make an underbody
     /// study; a rear-window or speed sweep is not one.

@@ -167,12 +167,14 @@ pub fn draw_line_plot(
     .flatten()
     .collect();
     if !notes.is_empty() {
+        let notes = notes.join(" ");
+        let room = c.width() as f32 - 60.0;
         text::draw(
             &mut c,
-            &notes.join(" "),
+            &notes,
             30.0,
             100.0,
-            &TextStyle::new(15.0).colour(MUTED),
+            &fitted(&notes, 15.0, room).colour(MUTED),
         );
     }
     // One line needs no key (and its box could hide a point).
@@ -438,6 +440,19 @@ fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool) {
     }
 }
 
+/// A line's style at `size` pixels, made smaller (to 11 at least) to fit
+/// `room` pixels: a sweep's subtitle had run off the picture, cut
+/// mid-word.
+fn fitted(line: &str, size: f32, room: f32) -> TextStyle {
+    let full = TextStyle::new(size);
+    let width = text::width(line, &full);
+    if width <= room {
+        full
+    } else {
+        TextStyle::new((size * room / width).max(11.0))
+    }
+}
+
 /// Title, subtitle and axis labels.
 fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
     let (l, t, w, h) = f.rect;
@@ -454,7 +469,7 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
         &plot.subtitle,
         30.0,
         76.0,
-        &TextStyle::new(16.0).colour(MUTED),
+        &fitted(&plot.subtitle, 16.0, room).colour(MUTED),
     );
     let axis = TextStyle::new(17.0).bold().align(Align::Centre);
     text::draw(
