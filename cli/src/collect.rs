@@ -1696,6 +1696,19 @@ fn spread(c: &[Row], f: impl Fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> 
     (hi - lo > 100.0 * shift).then_some((lo, hi))
 }
 
+/// How the page's table orders the variants: ranked by their drag, or,
+/// where the ranking names no winner whatever the numbers ([`withheld`]:
+/// wheels on the ground, a floor on it), only listed in its order (a
+/// review's page said "ranked by the drag estimate" above rows each
+/// marked "drag not ranked").
+fn order_words(c: &Collected) -> &'static str {
+    if withheld(c).is_some() {
+        "listed in the order of their drag estimates, which rank nothing here (below)"
+    } else {
+        "ranked by the drag estimate"
+    }
+}
+
 /// The self-contained page.
 fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     let mut s = format!(
@@ -1714,10 +1727,11 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     };
     let _ = writeln!(
         s,
-        "<p>{} variants ranked by the drag estimate{within}. Differences of a few drag counts are within the noise \
+        "<p>{} variants {}{within}. Differences of a few drag counts are within the noise \
          of any simulation (common practice; {}); <code>tuft compare</code> on two variants shows where on the \
          body they differ.</p>",
         c.variants.len(),
+        order_words(c),
         crate::output::html::COUNT_WORDS.trim_end_matches('.')
     );
     let class = if not_converged(c).is_empty() {
@@ -2761,6 +2775,8 @@ mod tests {
         let at = rows[0].iter().position(|h| *h == "wheels_on").unwrap();
         let of = |name: &str| rows.iter().find(|r| r[1] == name).map(|r| r[at]);
         assert_eq!((of("v0"), of("v1")), (Some("1"), Some("0")), "{text}");
+        // The page says the order ranks nothing.
+        assert!(order_words(&c).starts_with("listed in the order"));
         // A floor on the ground (a ground set too high): no winner either,
         // and said as such, not as wheels.
         c.variants[0].wheels_on = false;
@@ -2770,6 +2786,8 @@ mod tests {
             line.starts_with("1 of 2 variants have their floor on the ground"),
             "{line}"
         );
+        c.variants[0].floor_on_ground = false;
+        assert_eq!(order_words(&c), "ranked by the drag estimate");
     }
 
     #[test]
