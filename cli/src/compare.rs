@@ -16,6 +16,7 @@
 
 mod folder;
 mod mapping;
+pub mod matched;
 mod pictures;
 mod verdict;
 
@@ -91,6 +92,16 @@ pub struct Deltas {
     /// reference area), kg.
     #[serde(default)]
     pub lift_noise_kg: f64,
+    /// With both runs' panel noise measured: the lift difference at their
+    /// three matched panel counts, kg at B's dynamic pressure (the runs'
+    /// own first, [`matched`]); `lift_noise_kg` is then the larger of the
+    /// built-in floor and their spread.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub matched_lift_kg: Option<Vec<f64>>,
+    /// The built-in lift floor ([`verdict::LIFT_NOISE_CL`]) at B's dynamic pressure
+    /// and reference area, kg: what each matched difference must clear.
+    #[serde(default)]
+    pub lift_floor_kg: f64,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, percentage points.
@@ -472,6 +483,10 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
     let k = area_factor(a, b);
     let scaled = pressure_factor(a, b);
     let q = scaled.unwrap_or(1.0);
+    let kg_per_cl =
+        b.dynamic_pressure_pa * b.reference.area_m2 / tuft_solver::loads::STANDARD_GRAVITY;
+    let builtin_kg = verdict::LIFT_NOISE_CL * kg_per_cl;
+    let paired = matched::matched(a, b).map(|m| m.lift_kg);
     Deltas {
         drag_counts: 1000.0 * (k * kb.drag - ka.drag),
         drag_pressure_counts: 1000.0 * (k * kb.drag_pressure - ka.drag_pressure),
@@ -482,10 +497,12 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
         front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
         rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
         a_loads_scaled_by: scaled,
-        lift_noise_kg: lift_floor_cl([a.lift_spread(), b.lift_spread()])
-            * b.dynamic_pressure_pa
-            * b.reference.area_m2
-            / tuft_solver::loads::STANDARD_GRAVITY,
+        lift_noise_kg: match &paired {
+            Some(d) => builtin_kg.max(crate::noise::spread(d.iter().copied())),
+            None => lift_floor_cl([a.lift_spread(), b.lift_spread()]) * kg_per_cl,
+        },
+        lift_floor_kg: builtin_kg,
+        matched_lift_kg: paired,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
     }
@@ -1016,12 +1033,29 @@ fn underbody_note(
     } else {
         UNDERBODY_ELSEWHERE
     };
+    // With both runs' panel noise measured, a change that does not hold
+    // at the three matched counts is the panelling's, not the shape's (a
+    // review's roof-spoiler pair: the underbody's share moved from 10 to
+    // 19 %, and the 0-degree car alone from 10 to 18 % at 8 % more panels).
+    let paired = matched::matched(a, b)
+        .map(|m| m.underbody_points)
+        .filter(|d| !d.is_empty());
     (ground && (fb - fa).abs() > SEPARATION_SHIFT).then(|| {
-        format!(
-            "the separated share of the underbody changes from {:.1} % to {:.1} %: {caution}",
+        let moved = format!(
+            "the separated share of the underbody changes from {:.1} % to {:.1} %",
             100.0 * fa,
             100.0 * fb
-        )
+        );
+        match &paired {
+            Some(d) if !matched::holds(d, 100.0 * SEPARATION_SHIFT) => format!(
+                "{moved}, but by {} points at the runs' three matched panel counts, {}: within the \
+                 panel noise, not an answer to the change; the verdicts there are uncertain at this \
+                 panel count",
+                matched::values_words(d, 1),
+                matched::failure_words(d, 100.0 * SEPARATION_SHIFT, "points", 0)
+            ),
+            _ => format!("{moved}: {caution}"),
+        }
     })
 }
 
@@ -1277,12 +1311,27 @@ fn separation_note(
     let by_area = wetted > 0.0 && shift > SEPARATION_SHIFT * wetted;
     let by_stream = reference > 0.0 && net > SEPARATION_FRONTAL_SHIFT * reference;
     let percent = |x: f64| 100.0 * x / reference.max(f64::MIN_POSITIVE);
+    // With both runs' panel noise measured: whether the change holds at
+    // the three matched counts (a review's roof-spoiler pair moved its
+    // sills' separation at one count and not at the others).
+    let noise = matched::matched(a, b)
+        .map(|m| m.separated_points)
+        .filter(|d| !d.is_empty() && !matched::holds(d, 100.0 * SEPARATION_SHIFT))
+        .map_or(String::new(), |d| {
+            format!(
+                "; at the runs' three matched panel counts the separated share changes by {} points, \
+                 {}: the change is within the panel noise, so read the separation pictures of both \
+                 runs as uncertain at this count, not as an answer to the change",
+                matched::values_words(&d, 1),
+                matched::failure_words(&d, 100.0 * SEPARATION_SHIFT, "points", 0)
+            )
+        });
     (by_area || by_stream).then(|| {
         format!(
             "the separated area goes from {:.3} m^2 ({:.2} % of A's surface) to {:.3} m^2 ({:.2} % of \
              B's surface, {:+.2} points), and where separation appears or disappears the surface \
              projected along the stream adds up to {:.1} % of A's reference area ({:.1} % counting where it \
-             appears and where it disappears alike): {}",
+             appears and where it disappears alike): {}{noise}",
             a.separation.area_m2,
             100.0 * a.separation.fraction,
             b.separation.area_m2,
@@ -1341,6 +1390,18 @@ pub fn region_text(r: &RegionChange) -> String {
 /// nothing of an axle).
 pub fn lift_noise_words(d: &Deltas) -> String {
     let [noise] = crate::output::kg_set([d.lift_noise_kg]);
+    if let Some(m) = &d.matched_lift_kg {
+        let values = matched::values_words(m, 1);
+        return if matched::holds(m, d.lift_floor_kg) {
+            format!("the whole body's holds at the runs' three matched panel counts: {values} kg")
+        } else {
+            format!(
+                "the whole body's within the panel noise: {values} kg at the runs' three matched panel \
+                 counts, {}",
+                matched::failure_words(m, d.lift_floor_kg, "kg", 1)
+            )
+        };
+    }
     if d.lift_kg.abs() < d.lift_noise_kg {
         format!("the whole body's within the noise of about {noise} kg")
     } else {
@@ -1514,6 +1575,24 @@ mod tests {
         s.dynamic_pressure_pa = 963.2;
         let noise = deltas(&s, &s).lift_noise_kg;
         assert!((noise - 3.29).abs() < 0.01, "{noise}");
+        // With the difference at three matched panel counts (a review's
+        // roof-spoiler pair), those decide.
+        let matched = |m: [f64; 3]| Deltas {
+            matched_lift_kg: Some(m.to_vec()),
+            lift_floor_kg: 5.0,
+            ..d(m[0], m[0])
+        };
+        let w = lift_noise_words(&matched([-20.1, -4.9, -8.6]));
+        assert!(
+            w.starts_with("the whole body's within the panel noise: -20.1, -4.9 and -8.6 kg")
+                && w.contains("not all of which clear the floor of 5.0 kg"),
+            "{w}"
+        );
+        let w = lift_noise_words(&matched([-20.1, -16.0, -18.6]));
+        assert!(
+            w.starts_with("the whole body's holds at the runs' three matched"),
+            "{w}"
+        );
     }
 
     /// A region whose box takes in other surface in B is noted; one that

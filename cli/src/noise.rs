@@ -45,6 +45,9 @@ pub struct Sample {
     pub axles_kg: [f64; 2],
     /// Separated fraction of the wetted area.
     pub separated: f64,
+    /// Separated fraction of the underbody (the ground-facing panels; 0
+    /// with no ground).
+    pub underbody: f64,
 }
 
 impl Sample {
@@ -57,6 +60,10 @@ impl Sample {
             cl: k.lift,
             axles_kg: [c.estimate.axles.front_kg, c.estimate.axles.rear_kg],
             separated: c.separated_area / mesh.area(),
+            underbody: match c.underbody_separation {
+                (s, a) if a > 0.0 => s / a,
+                _ => 0.0,
+            },
         }
     }
 }
@@ -78,6 +85,10 @@ pub struct PanelNoise {
     pub rear_axle_kg: Vec<f64>,
     /// Separated fraction of the wetted area at each count.
     pub separated_fraction: Vec<f64>,
+    /// Separated fraction of the underbody at each count (empty in
+    /// summaries written before it was kept).
+    #[serde(default)]
+    pub underbody_fraction: Vec<f64>,
     /// Largest less smallest drag, counts.
     pub drag_counts: f64,
     /// Largest less smallest lift coefficient.
@@ -87,7 +98,7 @@ pub struct PanelNoise {
 }
 
 /// Largest less smallest of `values` (0 for none).
-fn spread(values: impl IntoIterator<Item = f64>) -> f64 {
+pub fn spread(values: impl IntoIterator<Item = f64>) -> f64 {
     let (lo, hi) = values
         .into_iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
@@ -114,6 +125,7 @@ impl PanelNoise {
             front_axle_kg: front,
             rear_axle_kg: rear,
             separated_fraction: all(|s| s.separated),
+            underbody_fraction: all(|s| s.underbody),
         }
     }
 
@@ -272,6 +284,7 @@ mod tests {
             cl,
             axles_kg: [f, r],
             separated: 0.1,
+            underbody: 0.05,
         };
         let n = PanelNoise::from_samples(&[
             s(4000, 0.300, -0.10, 5.0, -20.0),

@@ -9,7 +9,9 @@
 //! regime the model's direction is known to be wrong):
 //! 1. it is larger than the noise floor, [`NOISE_COUNTS`] (what two runs of
 //!    imperceptibly different shapes can differ by, measured), or the
-//!    larger floor of the two runs' own panel noise ([`drag_floor`]);
+//!    larger floor of the two runs' own panel noise ([`drag_floor`]); when
+//!    both runs measured their panel noise, it holds at their three
+//!    matched panel counts instead ([`super::matched::holds`]);
 //! 2. it keeps its sign and stays above the floor at both ends of the two
 //!    runs' sensitivity bands (low end against low end, high end against
 //!    high end): the bands re-run the boundary layer with the separation
@@ -124,6 +126,11 @@ pub struct DragVerdict {
     /// than coefficients on different areas.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub common_area_m2: Option<f64>,
+    /// With both runs' panel noise measured: the difference at their three
+    /// matched panel counts, counts (the runs' own first,
+    /// [`super::matched`]), which then decides whether it stands out.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub matched_counts: Option<Vec<f64>>,
 }
 
 /// A's reference area when the two runs' reference areas differ by more
@@ -212,9 +219,21 @@ pub fn drag_verdict_named(
     let delta = counts(a.coefficients.drag, b.coefficients.drag);
     let low = counts(a.drag_estimate.cd_low, b.drag_estimate.cd_low);
     let high = counts(a.drag_estimate.cd_high, b.drag_estimate.cd_high);
-    let noise = drag_floor([a.drag_spread(), b.drag_spread()]);
+    // With both runs' panel noise measured, the difference at the three
+    // matched counts decides (`matched::holds`), its spread the floor;
+    // otherwise the floor of the two runs' spreads taken as independent.
+    let paired = super::matched::matched(a, b).map(|m| m.drag_counts);
+    let (noise, above_noise) = match &paired {
+        Some(d) => (
+            NOISE_COUNTS.max(crate::noise::spread(d.iter().copied())),
+            super::matched::holds(d, NOISE_COUNTS),
+        ),
+        None => {
+            let n = drag_floor([a.drag_spread(), b.drag_spread()]);
+            (n, delta.abs() >= n)
+        }
+    };
     let same_way = |d: f64| d.signum() == delta.signum() && d.abs() >= noise;
-    let above_noise = delta.abs() >= noise;
     let banded = above_noise && same_way(low) && same_way(high);
     // The plateau model's drag (an attached-only run that separates)
     // ranks nothing.
@@ -273,6 +292,13 @@ pub fn drag_verdict_named(
             crate::output::speed_words(crate::compare::speed_of(b)),
             signed(delta, 1)
         )
+    } else if let (false, Some(d)) = (above_noise, &paired) {
+        format!(
+            "no winner: at the runs' three matched panel counts the drag differs by {} counts, {} \
+             (within the panel noise)",
+            super::matched::values_words(d, 1),
+            super::matched::failure_words(d, NOISE_COUNTS, "counts", 0)
+        )
     } else if !above_noise {
         format!(
             "no winner: the drag difference, {} counts, is within {}",
@@ -295,8 +321,14 @@ pub fn drag_verdict_named(
             band_shortfall(delta, [low, high], noise)
         )
     } else {
+        let held = paired.as_ref().map_or(String::new(), |d| {
+            format!(
+                "; it holds at the runs' three matched panel counts: {} counts",
+                super::matched::values_words(d, 1)
+            )
+        });
         format!(
-            "{nb} has {direction} drag by {:.1} counts between the central estimates ({})",
+            "{nb} has {direction} drag by {:.1} counts between the central estimates ({}){held}",
             delta.abs(),
             band_ends(low, high)
         )
@@ -322,6 +354,7 @@ pub fn drag_verdict_named(
         },
         text,
         common_area_m2: common,
+        matched_counts: paired,
     }
 }
 
@@ -380,6 +413,51 @@ mod tests {
         s.drag_estimate.cd_low = lo;
         s.drag_estimate.cd_high = hi;
         s
+    }
+
+    /// With both runs' panel noise measured, the difference at the three
+    /// matched counts decides: one that passes the floor of the two
+    /// spreads at the runs' own count but not at the others is no winner,
+    /// and one that holds at all three is, though the spreads taken as
+    /// independent would have buried it.
+    #[test]
+    fn matched_counts_decide_when_both_runs_measured_their_noise() {
+        let with = |cd: [f64; 3]| {
+            let mut s = summary(cd[0], cd[0] - 0.01, cd[0] + 0.01);
+            s.panel_noise = Some(crate::noise::PanelNoise {
+                panels: vec![4000, 3680, 4320],
+                cd: cd.to_vec(),
+                cl: vec![0.0; 3],
+                front_axle_kg: vec![0.0; 3],
+                rear_axle_kg: vec![0.0; 3],
+                drag_counts: 1000.0 * crate::noise::spread(cd),
+                ..Default::default()
+            });
+            s
+        };
+        // +20 counts at the own count, +2 and +3 at the others.
+        let v = drag_verdict(&with([0.300; 3]), &with([0.320, 0.302, 0.303]), None);
+        assert!(v.delta_counts > drag_floor([Some(0.0), Some(18.0)]));
+        assert!(!v.resolved, "{}", v.text);
+        assert!(
+            v.text.contains("at the runs' three matched panel counts"),
+            "{}",
+            v.text
+        );
+        assert!(v.text.contains("+20.0, +2.0 and +3.0 counts"), "{}", v.text);
+        // +12, +11 and +13 with spreads of 20 and 18 counts.
+        let (a, b) = (with([0.300, 0.310, 0.290]), with([0.312, 0.321, 0.303]));
+        let v = drag_verdict(&a, &b, None);
+        assert!(v.delta_counts < drag_floor([Some(20.0), Some(18.0)]));
+        assert!(v.resolved, "{}", v.text);
+        assert_eq!(v.direction, "higher");
+        assert!(
+            v.text
+                .contains("it holds at the runs' three matched panel counts"),
+            "{}",
+            v.text
+        );
+        assert_eq!(v.matched_counts.as_ref().map(Vec::len), Some(3));
     }
 
     /// A run's own panel noise raises the pair's floor where it is larger
