@@ -4,7 +4,8 @@ use std::path::Path;
 
 use anyhow::{Context, Result, bail};
 use tuft_mesh::generate::{self, AhmedParams, CoupeParams};
-use tuft_mesh::prepare::{PrepareParams, PrepareReport, Repaired, prepare_mesh, repair_file};
+use tuft_mesh::import::read_stl;
+use tuft_mesh::prepare::{PrepareParams, PrepareReport, Repaired, prepare_mesh, repair_body};
 use tuft_mesh::{LengthUnit, MeshError, Mirrors, PanelMesh, TriMesh};
 
 use crate::case::{Case, GeometrySource};
@@ -52,7 +53,20 @@ pub fn load_keeping(case: &Case, keep: bool) -> Result<Geometry> {
                 target_panels: g.panels,
                 ..PrepareParams::default()
             };
-            let body = repair_file(path, &params)
+            tuft_mesh::stage::starting(|| format!("reading {}", path.display()));
+            let (mesh, read) = read_stl(path)
+                .map_err(|e| name_mirror_keys(e, case))
+                .with_context(|| stl_key(path))?;
+            // A size no unit makes a car of is refused before the repair
+            // and wrap (a review's file in metres read as millimetres was
+            // refused after 11 s of them).
+            if let Some((lo, hi)) = mesh.bounds() {
+                let size = (hi - lo).max() * unit.to_metres();
+                if let Some(why) = size_problem(size, Some(*unit), "geometry.units") {
+                    bail!(why);
+                }
+            }
+            let body = repair_body(mesh, Some(read), &params)
                 .map_err(|e| name_mirror_keys(e, case))
                 .with_context(|| stl_key(path))?;
             let mut geo = panel_stl(case, path, &body)?;

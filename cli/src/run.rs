@@ -268,7 +268,9 @@ fn print_summary(out: &Path, s: &Summary) {
 /// Whether a note says how the file was taken in a way that changes how
 /// the numbers read ([`print_summary`] shows those on stdout).
 fn read_as_assumed(note: &str) -> bool {
-    note == tuft_mesh::prepare::MIRRORED_HALF_NOTE || crate::geometry::is_scale_model_note(note)
+    note == tuft_mesh::prepare::MIRRORED_HALF_NOTE
+        || note.starts_with(tuft_mesh::import::PLACES_NOTE_START)
+        || crate::geometry::is_scale_model_note(note)
 }
 
 /// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle

@@ -793,8 +793,13 @@ fn panel_and_report(
         if let Some(layers) = crate::repair::describe_layers(&repair.layers) {
             q.notes.push(layers);
         }
-        if mirrored_half {
-            q.notes.push(MIRRORED_HALF_NOTE.to_owned());
+        match params
+            .axes
+            .places_note(params.mirrors.symmetry, mirrored_half)
+        {
+            Some(note) => q.notes.push(note),
+            None if mirrored_half => q.notes.push(MIRRORED_HALF_NOTE.to_owned()),
+            None => {}
         }
         if let Some(r) = &read {
             q.notes.extend(read_notes(r));

@@ -37,7 +37,7 @@ pub fn on_stages(hook: StageHook) -> StageGuard {
 
 /// Tell the hook, if any, that the stage `what()` starts (built only when
 /// someone listens).
-pub(crate) fn starting(what: impl FnOnce() -> String) {
+pub fn starting(what: impl FnOnce() -> String) {
     HOOK.with(|h| {
         if let Some(hook) = h.borrow().as_ref() {
             hook(&what());

@@ -14,6 +14,9 @@ pub struct FileAxes {
     pub y_up: bool,
 }
 
+/// How [`FileAxes::places_note`] starts, for telling it from other notes.
+pub const PLACES_NOTE_START: &str = "the file's axes (";
+
 impl FileAxes {
     /// True when the file's axes are tuft's already.
     pub fn is_identity(&self) -> bool {
@@ -72,6 +75,60 @@ impl FileAxes {
         mirrored
     }
 
+    /// What the turn into tuft's axes means for a reader of the file
+    /// (`None` for a file in tuft's axes): which half of the file a half
+    /// model (`half`; `mirrored` as [`FileAxes::apply`] returned) is, and
+    /// how a place named in tuft's axes reads in the file's (a review's
+    /// half model exported nose +x was told neither, and read "x 3.58,
+    /// y 0.32" as a place in its file's axes).
+    pub fn places_note(&self, half: bool, mirrored: bool) -> Option<String> {
+        if self.is_identity() {
+            return None;
+        }
+        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
+        let swapped = if self.y_up { -1.0 } else { 1.0 };
+        let side_sign = if mirrored {
+            -along * swapped
+        } else {
+            along * swapped
+        };
+        let (side, up) = if self.y_up { ("z", "y") } else { ("y", "z") };
+        let sign = |s: f64, axis: &str| {
+            if s < 0.0 {
+                format!("-{axis}")
+            } else {
+                axis.to_owned()
+            }
+        };
+        let nose = if self.nose_plus_x { "+x" } else { "-x" };
+        let half_words = if half {
+            // Tuft's y >= 0 is the car's right (seen from the driver's
+            // seat); the file's half is the side that lands there, or,
+            // mirrored, its image.
+            let file_side = if side_sign > 0.0 { ">=" } else { "<=" };
+            if mirrored {
+                format!(
+                    "; the half model, the file's {side} {file_side} 0 half mirrored, is the car's left side run \
+                     as its mirror image, the right side in y >= 0"
+                )
+            } else {
+                format!(
+                    "; the half model, the file's {side} {file_side} 0 half, is the car's right side, in y >= 0"
+                )
+            }
+        } else {
+            String::new()
+        };
+        Some(format!(
+            "{PLACES_NOTE_START}nose at {nose}, {up} up) were turned into tuft's (nose at -x, z up, y to the right \
+             seen from the driver's seat){half_words}: every place named here (and in panels.csv, the VTK \
+             files and the pictures) is in tuft's axes, in metres; in the file's axes x is {}, {side} is {} and \
+             {up} is z",
+            sign(along, "x"),
+            sign(side_sign, "y"),
+        ))
+    }
+
     /// Undo [`FileAxes::apply`]: turn `mesh` from tuft's axes back into
     /// the file's, `mirrored` as `apply` returned (a left half is put back
     /// on its own side, its facets turned round again), so that panels
@@ -110,6 +167,63 @@ impl FileAxes {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+
+    /// The places note gives the file's coordinates of a point in tuft's
+    /// axes, for every setting of the axes and either half; a half model
+    /// exported nose +x with its y <= 0 half is the car's right side.
+    #[test]
+    fn the_places_note_reads_tuft_axes_back_into_the_file() {
+        assert_eq!(FileAxes::default().places_note(true, false), None);
+        for nose_plus_x in [false, true] {
+            for y_up in [false, true] {
+                for side in [-1.0, 1.0] {
+                    let axes = FileAxes { nose_plus_x, y_up };
+                    // A tetrahedron on one side of the file's side axis.
+                    let off = if y_up {
+                        Point::new(1.0, 0.5, 2.0 * side)
+                    } else {
+                        Point::new(1.0, 2.0 * side, 0.5)
+                    };
+                    let mut m = tetra(off);
+                    let file = m.vertices[0];
+                    let mirrored = axes.apply(&mut m, true);
+                    let p = m.vertices[0];
+                    assert!(p.y > 0.0, "{axes:?} {side}");
+                    let Some(note) = axes.places_note(true, mirrored) else {
+                        assert!(axes.is_identity());
+                        continue;
+                    };
+                    // "in the file's axes x is -x, y is -y and z is z"
+                    let tail = note.split("in the file's axes ").nth(1).unwrap();
+                    let words: Vec<&str> =
+                        tail.split([' ', ',']).filter(|w| !w.is_empty()).collect();
+                    let value = |w: &str| match w.trim_start_matches('-') {
+                        "x" => p.x,
+                        "y" => p.y,
+                        _ => p.z,
+                    } * if w.starts_with('-') { -1.0 } else { 1.0 };
+                    let file_of = |axis: &str| match axis {
+                        "x" => file.x,
+                        "y" => file.y,
+                        _ => file.z,
+                    };
+                    for k in [0, 3, 7] {
+                        assert_eq!(words[k + 1], "is", "{note}");
+                        assert_eq!(value(words[k + 2]), file_of(words[k]), "{note}");
+                    }
+                }
+            }
+        }
+        let nose = FileAxes {
+            nose_plus_x: true,
+            y_up: false,
+        };
+        let note = nose.places_note(true, false).unwrap();
+        assert!(
+            note.contains("the file's y <= 0 half, is the car's right side"),
+            "{note}"
+        );
+    }
 
     /// A right-angled corner tetrahedron off the origin, closed and outward.
     fn tetra(offset: Point) -> TriMesh {
