@@ -1556,18 +1556,37 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
                 )),
                 (None, None) => None,
             };
-            (area || slopes.is_some()).then(|| {
-                format!(
+            let slope_words = slopes
+                .as_ref()
+                .map_or(String::new(), |s| format!("; {s} {} variants", found.len()));
+            let kind_and_area = slopes.is_some()
+                && crate::compare::areas_apart(
+                    small.1.area_m2,
+                    large.1.area_m2,
+                    crate::compare::KIND_AREA_SHIFT,
+                );
+            if area || kind_and_area {
+                Some(format!(
                     "The region \"{name}\" covers other surface in some variants than in others (area {:.2} \
-                     m^2 in {} against {:.2} m^2 in {}{}): its box stays where it is while the shape changes \
-                     under it, so its share compares different parts of the body; move the box with the part.",
+                     m^2 in {} against {:.2} m^2 in {}{slope_words}): its box stays where it is while the shape \
+                     changes under it, so its share compares different parts of the body; move the box with \
+                     the part.",
                     small.1.area_m2,
                     small.0,
                     large.1.area_m2,
                     large.0,
-                    slopes.map_or(String::new(), |s| format!("; {s} {} variants", found.len()))
-                )
-            })
+                ))
+            } else {
+                slopes.map(|_| {
+                    format!(
+                        "The region \"{name}\" reads another kind of surface in some variants than in others, \
+                         on about the same area ({:.2} to {:.2} m^2{slope_words}): {}",
+                        small.1.area_m2,
+                        large.1.area_m2,
+                        crate::compare::KIND_ONLY_WORDS
+                    )
+                })
+            }
         })
         .collect()
 }
@@ -2486,7 +2505,9 @@ mod tests {
         c.variants[1].regions = vec![deck(1.59, Some(24.5))];
         let n = region_cover_spread(&c.variants);
         assert!(
-            n[0].contains("; a slant (8 degrees or more) in 1 of 2 variants"),
+            n[0].contains("; a slant (8 degrees or more) in 1 of 2 variants")
+                && n[0].contains("reads another kind of surface")
+                && n[0].ends_with(crate::compare::KIND_ONLY_WORDS),
             "{n:?}"
         );
     }
