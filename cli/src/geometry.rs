@@ -418,8 +418,26 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
         if let Some(x) = x
             && !(lo.x <= x && x <= hi.x)
         {
+            // Within the body when negated: given in the axes of a file
+            // whose nose points to +x (a review's axles, read before its
+            // `nose = "+x"` was set, were told only that they lay outside).
+            let hint = if (lo.x..=hi.x).contains(&-x) {
+                let nose = match &case.source {
+                    GeometrySource::Stl { axes, .. } if !axes.nose_plus_x => {
+                        "if the file's nose points to +x, set geometry.nose = \"+x\"; "
+                    }
+                    _ => "",
+                };
+                format!(
+                    "; at x = {:.3} it would lie inside: {nose}positions in the case are in tuft's axes, x \
+                     from the nose backwards, which negates the x of a file whose nose points to +x",
+                    -x
+                )
+            } else {
+                String::new()
+            };
             bail!(
-                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m",
+                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m{hint}",
                 lo.x,
                 hi.x
             );
@@ -472,6 +490,44 @@ mod tests {
         let file: CaseFile = toml::from_str(&text).unwrap();
         let case = Case::from_file(std::path::Path::new("c.toml"), file).unwrap();
         load(&case).unwrap().mesh
+    }
+
+    /// An axle outside the body that would lie inside with its x negated
+    /// is told why it may be so: an STL case not told its nose points to
+    /// +x gets the setting named; an axle outside either way gets no hint.
+    #[test]
+    fn an_axle_outside_the_body_that_fits_negated_names_the_nose() {
+        let dir = tempfile::tempdir().unwrap();
+        std::fs::write(dir.path().join("b.stl"), b"").unwrap();
+        let body = |shift: f64| {
+            let mut m = tuft_mesh::generate::ellipsoid(2.0, 0.8, 0.6, 400).unwrap();
+            m.map_vertices(|p| tuft_mesh::Point::new(p.x + shift, p.y, p.z));
+            PanelMesh::new(m, tuft_mesh::Mirrors::none()).unwrap()
+        };
+        let case = |front: f64, rear: f64| {
+            let text = format!(
+                "[geometry]\nstl = \"b.stl\"\nunits = \"m\"\n[reference]\nfront_axle_x = {front}\nrear_axle_x = {rear}\n"
+            );
+            let file: CaseFile = toml::from_str(&text).unwrap();
+            Case::from_file(&dir.path().join("c.toml"), file).unwrap()
+        };
+        // From x = -2 to 2: -2.5 is outside either way.
+        let e = format!(
+            "{:#}",
+            check_axles(&body(0.0), &case(-2.5, 1.0)).unwrap_err()
+        );
+        assert!(!e.contains("geometry.nose"), "{e}");
+        // From -3.5 to 0.5: 2.5 is outside, -2.5 inside.
+        let e = format!(
+            "{:#}",
+            check_axles(&body(-1.5), &case(0.0, 2.5)).unwrap_err()
+        );
+        assert!(
+            e.contains(
+                "at x = -2.500 it would lie inside: if the file's nose points to +x, set geometry.nose"
+            ),
+            "{e}"
+        );
     }
 
     /// A ride-height change moves the built-in coupe as a whole: floor and

@@ -641,24 +641,39 @@ fn loop_text(w: &SeparatedWakes) -> String {
                 first pass."
             .into();
     }
-    let pressure = match w.base_cp_loop {
-        Some(v) => format!(
-            "The dead water's pressure (base C_p {v:.2}) is Hoerner's base-drag correlation with the \
-             skin friction computed here, since an open wake alone gives far too weak a base suction; \
-             square-back bodies near the ground measure about -0.15 to -0.35."
-        ),
-        None => "No separated panel faces downstream, so the dead water holds the plateau model's \
-                 pressure."
-            .into(),
+    // The dead water's one pressure, as stdout and the pictures give it;
+    // the base's mean beside it only where it differs (a review read
+    // "dead water at C_p -0.17" on stdout and "base C_p -0.16" here).
+    let pressure = match (w.dead_water_cp.or(w.base_cp_loop), w.base_cp_loop) {
+        (Some(v), base) => {
+            let base = base
+                .filter(|b| (b - v).abs() >= 0.005)
+                .map_or(String::new(), |b| {
+                    format!(
+                        " The mean C_p over the base (the panels facing downstream, attached ones among \
+                         them) is {b:.2}."
+                    )
+                });
+            format!(
+                "The dead water holds C_p {v:.2}: Hoerner's base-drag correlation with the skin friction \
+                 computed here, since an open wake alone gives far too weak a base suction; square-back \
+                 bodies near the ground measure about -0.15 to -0.35.{base}"
+            )
+        }
+        (None, _) => {
+            "No separated panel faces downstream, so the dead water holds the plateau model's \
+                      pressure."
+                .into()
+        }
     };
     format!(
         "The separated regions were opened to the free stream as dead water (the flow leaves each \
          separation line without turning round it) and the boundary layer was marched again: {} passes, \
          {state}. The separation verdicts and the pressures above come from the last pass. {pressure} \
-         The attached first pass with the plateau model (what solver.wakes = \"attached\" reports) had \
-         given C_D {:.3}: a first-pass figure that this loop replaces, not a drag estimate to quote. Vortices shed from the side \
-         edges of a slant (which raise the drag of 20-30 degree slants) are not modelled.",
-        w.passes, w.cd_plateau
+         This loop replaces the attached first pass with the plateau model (what solver.wakes = \
+         \"attached\" reports; its figures, no drag estimate to quote, stay in summary.json). Vortices shed \
+         from the side edges of a slant (which raise the drag of 20-30 degree slants) are not modelled.",
+        w.passes
     )
 }
 

@@ -393,7 +393,8 @@ fn demo_writes_two_reports() {
             html.contains("(C_D 0.") && html.contains(" to 0."),
             "{run}: drag rows"
         );
-        assert!(html.contains("not a drag estimate to quote"), "{run}");
+        assert!(html.contains("no drag estimate to quote"), "{run}");
+        assert!(html.contains("The dead water holds C_p -0."), "{run}");
         assert!(
             o.stdout.contains(
                 &report
