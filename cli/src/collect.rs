@@ -102,6 +102,11 @@ pub struct Row {
     /// (`tuft run --noise`; absent without it).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub rear_axle_spread_kg: Option<f64>,
+    /// The least and the most of its lift (kg) and separated area (m^2)
+    /// over its three panel counts (`tuft run --noise`; absent without
+    /// it), drawn about its line on the sweep's plots.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub noise_ranges: Option<NoiseRanges>,
     /// Warnings in the variant's summary.
     pub warnings: usize,
     /// The variant's potential flow used a matrix factorised for another.
@@ -848,6 +853,10 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
             / tuft_solver::loads::STANDARD_GRAVITY,
         drag_spread_counts: s.drag_spread(),
         rear_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[1]),
+        noise_ranges: s
+            .panel_noise
+            .as_ref()
+            .map(|n| NoiseRanges::of(n, s.mesh.wetted_area_m2)),
         warnings: s.warnings.len(),
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
@@ -1087,6 +1096,37 @@ pub fn csv(c: &Collected) -> String {
     s
 }
 
+/// A variant's least and most lift and separated area over its panel
+/// counts ([`Row::noise_ranges`]).
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct NoiseRanges {
+    /// Whole-body lift, kg (front and rear axle added, at the run's speed).
+    pub lift_kg: [f64; 2],
+    /// Separated area, m^2 (each count's share of the run's own wetted
+    /// area).
+    pub separated_m2: [f64; 2],
+}
+
+impl NoiseRanges {
+    fn of(n: &crate::noise::PanelNoise, wetted_m2: f64) -> Self {
+        let range = |v: &mut dyn Iterator<Item = f64>| {
+            v.fold([f64::INFINITY, f64::NEG_INFINITY], |[lo, hi], x| {
+                [lo.min(x), hi.max(x)]
+            })
+        };
+        Self {
+            lift_kg: range(
+                &mut n
+                    .front_axle_kg
+                    .iter()
+                    .zip(&n.rear_axle_kg)
+                    .map(|(f, r)| f + r),
+            ),
+            separated_m2: range(&mut n.separated_fraction.iter().map(|f| f * wetted_m2)),
+        }
+    }
+}
+
 /// One variant's line of `sweep.csv` ([`csv`]); `above`: its drag above
 /// the lowest of its wind condition, counts; `named`: the ranking names a
 /// winner in its condition; `alone`: the only variant in it.
@@ -1204,9 +1244,30 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 ends.append(&mut lines);
                 lines = ends;
             }
+            // Lift and separated area of one line carry the least and the
+            // most of their three panel counts where every variant
+            // measured them (a review's separated area rose with its
+            // spoiler's angle by less than one variant's own spread).
+            let noise_range = k > 0 && lines.len() == 1;
+            let noise_range = match noise_range.then(|| range_lines(c, key, k == 1)).flatten() {
+                Some(mut with) => {
+                    if let Some(line) = lines.first_mut() {
+                        line.name = "at the run's own panel count".into();
+                    }
+                    with.append(&mut lines);
+                    lines = with;
+                    true
+                }
+                None => false,
+            };
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
-                subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several, noise),
+                subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several, noise)
+                    + if noise_range {
+                        "; grey: the least and the most over three panel counts (panel noise)"
+                    } else {
+                        ""
+                    },
                 x_label: axis_label(key),
                 y_label: (*unit).into(),
                 invert_y: false,
@@ -1227,6 +1288,52 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         }
     }
     Ok(out)
+}
+
+/// The grey lines of the least and the most lift (`lift`) or separated
+/// area over three panel counts about a plot's one line against `key`,
+/// where every variant on it measured them (a review's separated area
+/// rose with its spoiler's angle by less than one variant's own spread);
+/// `None` otherwise.
+fn range_lines(c: &Collected, key: &str, lift: bool) -> Option<Vec<Series>> {
+    let all = c
+        .variants
+        .iter()
+        .filter(|r| r.settings.contains_key(key))
+        .all(|r| r.noise_ranges.is_some());
+    if !all {
+        return None;
+    }
+    let ends: [fn(&Row) -> f64; 2] = if lift {
+        [
+            |r: &Row| range_end(r, |n| n.lift_kg[0]),
+            |r: &Row| range_end(r, |n| n.lift_kg[1]),
+        ]
+    } else {
+        [
+            |r: &Row| range_end(r, |n| n.separated_m2[0]),
+            |r: &Row| range_end(r, |n| n.separated_m2[1]),
+        ]
+    };
+    Some(
+        ["panel noise, least", "panel noise, most"]
+            .into_iter()
+            .zip(ends)
+            .flat_map(|(name, f)| {
+                series(c, key, f).into_iter().map(move |s| Series {
+                    name: name.into(),
+                    colour: BAND_GREY,
+                    ..s
+                })
+            })
+            .collect(),
+    )
+}
+
+/// One end of a variant's panel-noise range ([`Row::noise_ranges`]; NaN,
+/// so not drawn, without one).
+fn range_end(r: &Row, f: fn(&NoiseRanges) -> f64) -> f64 {
+    r.noise_ranges.as_ref().map_or(f64::NAN, f)
 }
 
 /// The least height of a sweep's drag axis, in noise floors
@@ -2033,6 +2140,39 @@ mod tests {
         assert!(lines.iter().all(|l| l.points.len() == 2));
     }
 
+    /// The lift and separated-area plots get the least and the most of
+    /// three panel counts as grey lines where every variant measured
+    /// them, and none where one did not.
+    #[test]
+    fn panel_noise_ranges_are_drawn_where_every_variant_has_them() {
+        let mut c = sweep(&[1.0, 2.0]);
+        c.keys = vec!["deg".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.settings.insert("deg".into(), serde_json::json!(k as f64));
+            r.noise_ranges = Some(NoiseRanges {
+                lift_kg: [-10.0 - k as f64, 5.0],
+                separated_m2: [0.5, 0.9 + k as f64],
+            });
+        }
+        let lines = range_lines(&c, "deg", true).unwrap();
+        assert_eq!(lines.len(), 2);
+        assert_eq!(lines[0].points, [(0.0, -10.0), (1.0, -11.0)]);
+        let sep = range_lines(&c, "deg", false).unwrap();
+        assert_eq!(sep[1].points, [(0.0, 0.9), (1.0, 1.9)]);
+        c.variants[1].noise_ranges = None;
+        assert!(range_lines(&c, "deg", true).is_none());
+        // Ranges as NoiseRanges::of takes them from a summary's samples.
+        let n = crate::noise::PanelNoise {
+            front_axle_kg: vec![-28.8, -29.2, -29.8],
+            rear_axle_kg: vec![-15.6, -21.1, -26.8],
+            separated_fraction: vec![0.114, 0.133, 0.153],
+            ..Default::default()
+        };
+        let r = NoiseRanges::of(&n, 10.0);
+        assert!((r.lift_kg[0] + 56.6).abs() < 1e-9 && (r.lift_kg[1] + 44.4).abs() < 1e-9);
+        assert!((r.separated_m2[0] - 1.14).abs() < 1e-9 && (r.separated_m2[1] - 1.53).abs() < 1e-9);
+    }
+
     /// Keys and labels naming a part seen from below make an underbody
     /// study; a rear-window or speed sweep is not one.
     #[test]
@@ -2077,6 +2217,7 @@ mod tests {
             lift_noise_kg: 3.3,
             drag_spread_counts: None,
             rear_axle_spread_kg: None,
+            noise_ranges: None,
             warnings: 0,
             matrix_reused: false,
             speed: 40.0,
