@@ -478,21 +478,7 @@ pub fn prepare_mesh(
 pub struct Repaired {
     params: PrepareParams,
     mesh: TriMesh,
-    read: Option<StlReport>,
-    mirrored_half: bool,
-    halves: Option<crate::cut::HalfCut>,
-    off_centre: Option<f64>,
-    whole_cut: Option<crate::cut::HalfCut>,
-    cut_vertices_moved: usize,
-    cut_largest_move: f64,
-    ground_vertices_moved: usize,
-    ground_largest_move: f64,
-    caps: Option<(usize, f64)>,
-    repair: RepairReport,
-    capped_half: Option<String>,
-    wrap: Option<WrapReport>,
-    slot: Option<((f64, [f64; 3]), f64, f64)>,
-    suggested: usize,
+    parts: Parts,
 }
 
 /// The part of [`prepare_mesh`] before the coarsening.
@@ -592,24 +578,32 @@ pub fn repair_body(
         .filter(|_| params.mirrors.symmetry)
         .map(|w| (facing_the_plane(&mesh, 2.0 * w.cell), mesh.area(), w.cell));
     let suggested = suggest(&mesh);
-    Ok(Repaired {
-        params: *params,
-        mesh,
-        read,
-        mirrored_half,
-        halves,
-        off_centre,
-        whole_cut,
+    let mirrors = MirrorReport {
+        ground: params.mirrors.ground,
+        symmetry: params.mirrors.symmetry,
         cut_vertices_moved,
         cut_largest_move,
         ground_vertices_moved,
         ground_largest_move,
-        caps,
-        repair,
-        capped_half,
-        wrap,
-        slot,
-        suggested,
+        whole_cut,
+        halves,
+        off_centre,
+        mirrored_half,
+    };
+    Ok(Repaired {
+        params: *params,
+        mesh,
+        parts: Parts {
+            read,
+            mirrored_half,
+            mirrors,
+            caps,
+            repair,
+            capped_half,
+            wrap,
+            slot,
+            suggested,
+        },
     })
 }
 
@@ -626,75 +620,31 @@ impl Repaired {
         &self,
         target_panels: Option<usize>,
     ) -> Result<(PanelMesh, PrepareReport), MeshError> {
-        let Self {
-            params,
-            mesh,
-            read,
-            mirrored_half,
-            halves,
-            off_centre,
-            whole_cut,
-            cut_vertices_moved,
-            cut_largest_move,
-            ground_vertices_moved,
-            ground_largest_move,
-            caps,
-            repair,
-            capped_half,
-            wrap,
-            slot,
-            suggested,
-        } = self;
         let params = &PrepareParams {
             target_panels,
-            ..*params
+            ..self.params
         };
-        let target = target_panels.unwrap_or(*suggested);
-        let (mesh, coarsen) = if mesh.len() > target {
+        let target = target_panels.unwrap_or(self.parts.suggested);
+        let (mesh, coarsen) = if self.mesh.len() > target {
             let cp = CoarsenParams {
                 target_panels: target,
                 ..params.coarsen
             };
             crate::stage::starting(|| {
-                format!("coarsening {} facets to {target} panels", mesh.len())
+                format!("coarsening {} facets to {target} panels", self.mesh.len())
             });
-            let (m, r) = coarsen_with_params(mesh, &params.mirrors, &cp);
+            let (m, r) = coarsen_with_params(&self.mesh, &params.mirrors, &cp);
             refuse_failed_coarsening(&r)?;
             (m, Some(r))
         } else {
-            (mesh.clone(), None)
+            (self.mesh.clone(), None)
         };
-        panel_and_report(
-            mesh,
-            coarsen,
-            params,
-            Parts {
-                read: read.clone(),
-                mirrored_half: *mirrored_half,
-                mirrors: MirrorReport {
-                    ground: params.mirrors.ground,
-                    symmetry: params.mirrors.symmetry,
-                    cut_vertices_moved: *cut_vertices_moved,
-                    cut_largest_move: *cut_largest_move,
-                    ground_vertices_moved: *ground_vertices_moved,
-                    ground_largest_move: *ground_largest_move,
-                    whole_cut: *whole_cut,
-                    halves: *halves,
-                    off_centre: *off_centre,
-                    mirrored_half: *mirrored_half,
-                },
-                caps: *caps,
-                repair: repair.clone(),
-                capped_half: capped_half.clone(),
-                wrap: wrap.clone(),
-                slot: *slot,
-                suggested: *suggested,
-            },
-        )
+        panel_and_report(mesh, coarsen, params, self.parts.clone())
     }
 }
 
 /// What [`panel_and_report`] reports of the steps before the coarsening.
+#[derive(Debug, Clone)]
 struct Parts {
     read: Option<StlReport>,
     mirrored_half: bool,
