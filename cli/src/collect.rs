@@ -681,8 +681,22 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     };
     let noise = whole.max(rear);
     let kg = |v: f64| crate::output::fixed(v, 1);
+    // Underbodies that separate differently (by more than the point
+    // `compare` notes) make the lift rest on what the model cannot show,
+    // a diffuser's stall: no winner, as for drag (a review's diffuser
+    // sweep had named its 12-degree ramp, 24 % separated, the winner).
+    let under = [best, next].map(|r| r.underbody_separated_percent);
+    let stall = (under[0] - under[1]).abs() > 100.0 * crate::compare::SEPARATION_SHIFT;
     let standing = if gap < noise {
         format!("within the lift noise of about {} kg: no winner", kg(noise))
+    } else if stall {
+        format!(
+            "beyond the lift noise of about {} kg, but their underbodies separate differently ({:.1} % \
+             against {:.1} %), where the model does not show a diffuser's stall: no winner",
+            kg(noise),
+            under[0],
+            under[1]
+        )
     } else {
         format!("beyond the lift noise of about {} kg", kg(noise))
     };
@@ -2469,6 +2483,20 @@ mod tests {
         assert!(
             line.contains(
                 "4.3 kg more downforce than v0 (-20.4 kg), within the lift noise of about 5.0 kg"
+            ),
+            "{line}"
+        );
+        // Beyond the noise, but the two underbodies separate differently
+        // (a diffuser 24 % against 11 % separated): no winner.
+        c.variants[1].rear_axle_spread_kg = None;
+        c.variants[0].rear_axle_spread_kg = None;
+        c.variants[1].underbody_separated_percent = 24.0;
+        c.variants[0].underbody_separated_percent = 11.0;
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(
+            line.contains(
+                "beyond the lift noise of about 3.3 kg, but their underbodies separate differently (24.0 % \
+                 against 11.0 %), where the model does not show a diffuser's stall: no winner"
             ),
             "{line}"
         );
