@@ -262,6 +262,11 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         NumberRow::text("Lift difference, rear axle", &rear, &at),
         NumberRow::text(
             "Lift noise (two runs of imperceptibly different shapes differ by up to this much)",
+            &crate::output::kg_set([d.lift_noise_kg])[0],
+            &at,
+        ),
+        NumberRow::text(
+            "Lift difference against the noise",
             &crate::compare::lift_noise_words(d),
             "",
         ),

@@ -333,6 +333,16 @@ pub fn drag_verdict_named(
             band_ends(low, high)
         )
     };
+    // The matched counts' differences, where the text above has not
+    // given them (a review's pair failed the band test and the page never
+    // showed the three numbers it had passed).
+    let text = match &paired {
+        Some(d) if !text.contains("matched panel counts") => format!(
+            "{text}; at the runs' three matched panel counts the drag differs by {} counts",
+            super::matched::values_words(d, 1)
+        ),
+        _ => text,
+    };
     let text = match common {
         Some(ra) => format!(
             "{text} (the reference areas differ, so drag is ranked on drag area C_D·A: {nb}'s \
@@ -458,6 +468,20 @@ mod tests {
             v.text
         );
         assert_eq!(v.matched_counts.as_ref().map(Vec::len), Some(3));
+        // Held at every count but not at a band's end: no winner, and the
+        // three differences are still given.
+        let mut narrow = b.clone();
+        narrow.drag_estimate.cd_low = a.drag_estimate.cd_low + 0.002;
+        let v = drag_verdict(&a, &narrow, None);
+        assert!(!v.resolved, "{}", v.text);
+        assert!(
+            v.text.starts_with("no winner, within the model uncertainty")
+                && v.text.ends_with(
+                    "; at the runs' three matched panel counts the drag differs by +12.0, +11.0 and +13.0 counts"
+                ),
+            "{}",
+            v.text
+        );
     }
 
     /// A run's own panel noise raises the pair's floor where it is larger
