@@ -411,39 +411,54 @@ pub fn check_placement(mesh: &PanelMesh, case: &Case) -> Result<()> {
 fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
     let r = &case.file.reference;
     let (lo, hi) = mesh.bounds();
+    let on_body = |x: f64| (lo.x..=hi.x).contains(&x);
+    // Every axle off the body, in one sentence (a review's axles typed in
+    // millimetres were refused one at a time).
+    let mut off = Vec::new();
     for (key, x) in [
         ("front_axle_x", r.front_axle_x),
         ("rear_axle_x", r.rear_axle_x),
     ] {
-        if let Some(x) = x
-            && !(lo.x <= x && x <= hi.x)
-        {
+        let Some(x) = x.filter(|&x| !on_body(x)) else {
+            continue;
+        };
+        // Longer than any body tuft screens and on the body in
+        // millimetres: typed in the STL's unit.
+        let hint = if x.abs() > BODY_SIZE_LIMITS[1] && on_body(x / 1000.0) {
+            format!(
+                "; in millimetres it would be {:.3} m, on the body",
+                x / 1000.0
+            )
+        } else if on_body(-x) {
             // Within the body when negated: given in the axes of a file
             // whose nose points to +x (a review's axles, read before its
             // `nose = "+x"` was set, were told only that they lay outside).
-            let hint = if (lo.x..=hi.x).contains(&-x) {
-                let nose = match &case.source {
-                    GeometrySource::Stl { axes, .. } if !axes.nose_plus_x => {
-                        "if the file's nose points to +x, set geometry.nose = \"+x\"; "
-                    }
-                    _ => "",
-                };
-                format!(
-                    "; at x = {:.3} it would lie inside: {nose}positions in the case are in tuft's axes, x \
-                     from the nose backwards, which negates the x of a file whose nose points to +x",
-                    -x
-                )
-            } else {
-                String::new()
+            let nose = match &case.source {
+                GeometrySource::Stl { axes, .. } if !axes.nose_plus_x => {
+                    "if the file's nose points to +x, set geometry.nose = \"+x\"; "
+                }
+                _ => "",
             };
-            bail!(
-                "reference.{key} = {x} m lies outside the body, which runs from x = {:.3} to {:.3} m{hint}",
-                lo.x,
-                hi.x
-            );
-        }
+            format!(
+                "; at x = {:.3} it would lie inside: {nose}positions in the case are in tuft's axes, x \
+                 from the nose backwards, which negates the x of a file whose nose points to +x",
+                -x
+            )
+        } else {
+            String::new()
+        };
+        off.push(format!("reference.{key} = {x} m{hint}"));
     }
-    Ok(())
+    if off.is_empty() {
+        return Ok(());
+    }
+    let verb = if off.len() == 1 { "lies" } else { "lie" };
+    bail!(
+        "{} {verb} outside the body, which runs from x = {:.3} to {:.3} m",
+        off.join(", and "),
+        lo.x,
+        hi.x
+    )
 }
 
 #[cfg(test)]
@@ -525,6 +540,19 @@ mod tests {
         assert!(
             e.contains(
                 "at x = -2.500 it would lie inside: if the file's nose points to +x, set geometry.nose"
+            ),
+            "{e}"
+        );
+        // Both axles typed in millimetres: both named, with the unit.
+        let e = format!(
+            "{:#}",
+            check_axles(&body(2.0), &case(900.0, 3550.0)).unwrap_err()
+        );
+        assert!(
+            e.starts_with(
+                "reference.front_axle_x = 900 m; in millimetres it would be 0.900 m, on the body, and \
+                 reference.rear_axle_x = 3550 m; in millimetres it would be 3.550 m, on the body lie \
+                 outside the body"
             ),
             "{e}"
         );
