@@ -550,12 +550,33 @@ pub fn comparison_named(
     let model_notes: Vec<String> = separation.into_iter().chain(rims).chain(slope).collect();
     let regions = region_changes(&a.summary, &b.summary);
     let place = largest_region_change(&regions);
+    let mut drag = drag_verdict_named(&a.summary, &b.summary, (doubt, place.as_deref()), names);
+    // Two ride heights as well as the change: said in the verdict itself
+    // (a review's variant exported 20 mm higher read "24.2 counts lower",
+    // the clearance in the second of five notes).
+    // Not where the ride height is the whole change (B's body, moved onto
+    // A's, changed nowhere: a ride-height study).
+    if let (Some(ca), Some(cb)) = (a.summary.clearance_m(), b.summary.clearance_m())
+        && (ca - cb).abs() > 5e-4
+        && surface.changed_m2 > 0.0
+    {
+        drag.text += &format!(
+            "; {} also stands {:.0} mm {} than {} ({:.0} against {:.0} mm of ground clearance), so the \
+             difference mixes the ride height with the change",
+            names[1],
+            1000.0 * (cb - ca).abs(),
+            if cb > ca { "higher" } else { "lower" },
+            names[0],
+            1000.0 * cb,
+            1000.0 * ca
+        );
+    }
     Comparison {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         a: side(a),
         b: side(b),
         deltas: deltas(&a.summary, &b.summary),
-        drag: drag_verdict_named(&a.summary, &b.summary, (doubt, place.as_deref()), names),
+        drag,
         notes: notes(a, b, &surface, model_notes),
         surface,
         regions,

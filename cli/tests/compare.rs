@@ -365,3 +365,34 @@ fn one_body_on_two_reference_areas_has_one_drag_area_band() {
     assert!(num(&v, "/drag/delta_counts").abs() < 0.5, "{v}");
     assert_eq!(v["drag"]["resolved"], Value::Bool(false), "{v}");
 }
+
+/// A change made at a second ride height: the verdict itself says that B
+/// also stands higher, so that the difference mixes the ride height with
+/// the change (a review's diffuser variant exported 20 mm higher read
+/// "24.2 counts lower", the clearance in the second of five notes); where
+/// the ride height is the whole change, it does not.
+#[test]
+fn a_second_ride_height_is_said_in_the_verdict() {
+    let dir = tempfile::tempdir().unwrap();
+    let body = |ride: f64, slope: f64| {
+        format!(
+            "[geometry]\nshape = \"coupe\"\npanels = 600\nride_height = {ride}\nrear_window_deg = {slope}\n\
+             [ground]\nz = 0.0\n"
+        )
+    };
+    let a = run_case(dir.path(), "low", &body(0.12, 22.0));
+    let b = run_case(dir.path(), "high", &body(0.14, 38.0));
+    let c = compare(&a, &b, &dir.path().join("ab"));
+    let text = c["drag"]["text"].as_str().unwrap();
+    assert!(
+        text.contains(
+            "; B also stands 20 mm higher than A (140 against 120 mm of ground clearance), so the \
+             difference mixes the ride height with the change"
+        ),
+        "{text}"
+    );
+    let same = run_case(dir.path(), "high22", &body(0.14, 22.0));
+    let c = compare(&a, &same, &dir.path().join("ride"));
+    let text = c["drag"]["text"].as_str().unwrap();
+    assert!(!text.contains("also stands"), "{text}");
+}
