@@ -1206,11 +1206,12 @@ fn csv_row(
     s.push('\n');
 }
 
-/// Plots of drag, lift and separated area against each numeric swept
+/// Plots of drag, lift, separated area and rear-axle lift, and of the
+/// named regions' separated shares, against each numeric swept
 /// key; one line per combination of the other keys' values.
 fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
-    let metrics: [Metric; 3] = [
+    let metrics: [Metric; 4] = [
         ("Drag estimate", "drag estimate [counts: C_D x 1000]", |r| {
             1000.0 * r.cd
         }),
@@ -1218,6 +1219,13 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         ("Separated area", "separated area [m²]", |r| {
             r.separated_area_m2
         }),
+        // The rear axle, the question of a spoiler or diffuser study (a
+        // review found it only in the table).
+        (
+            "Rear-axle lift",
+            "rear-axle lift [kg], negative: downforce",
+            |r| r.rear_axle_kg,
+        ),
     ];
     let noise = sweep_floor(&c.variants);
     let mut out = Vec::new();
@@ -1262,7 +1270,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // most of their three panel counts where every variant
             // measured them (a review's separated area rose with its
             // spoiler's angle by less than one variant's own spread).
-            let noise_range = k > 0 && lines.len() == 1;
+            let noise_range = (k == 1 || k == 2) && lines.len() == 1;
             let noise_range = match noise_range.then(|| range_lines(c, key, k == 1)).flatten() {
                 Some(mut with) => {
                     if let Some(line) = lines.first_mut() {
@@ -1300,8 +1308,64 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
             out.push((format!("{what} against {key}"), canvas.to_png()?));
         }
+        if let Some(lines) = region_lines(c, key) {
+            let plot = LinePlot {
+                title: format!(
+                    "Named regions' separated share against {}, sweep {}",
+                    key_words(key),
+                    c.sweep
+                ),
+                subtitle: format!(
+                    "Screening estimates at {}; each region's share of its own panels separated \
+                     (the total separated area can fall while a region's rises)",
+                    speed_of_plot(c)
+                ),
+                x_label: axis_label(key),
+                y_label: "separated share of the region [%]".into(),
+                invert_y: false,
+                series: lines,
+                off_scale: None,
+                min_y_span: 10.0,
+                ..LinePlot::default()
+            };
+            let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
+            out.push((format!("Named regions against {key}"), canvas.to_png()?));
+        }
     }
     Ok(out)
+}
+
+/// One line per named region of its separated share (percent) against
+/// `key`, where the variants that set it make one line (no other swept
+/// key varies with them, [`series`]) and have regions: a review's
+/// diffuser sweep showed the total separated area falling as the base
+/// shrank while the diffuser's share rose from 1 to 24 %.
+fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
+    if c.regions.is_empty() || series(c, key, |r| r.cd).len() != 1 {
+        return None;
+    }
+    let lines: Vec<Series> = c
+        .regions
+        .iter()
+        .enumerate()
+        .filter_map(|(k, name)| {
+            let mut points: Vec<(f64, f64)> = c
+                .variants
+                .iter()
+                .filter_map(|r| {
+                    let x = r.settings.get(key)?.as_f64()?;
+                    Some((x, 100.0 * region(r, name)?.separated_fraction))
+                })
+                .collect();
+            points.sort_by(|a, b| a.0.total_cmp(&b.0));
+            (!points.is_empty()).then(|| Series {
+                name: name.clone(),
+                points,
+                colour: SERIES_COLOURS[k % SERIES_COLOURS.len()],
+            })
+        })
+        .collect();
+    (!lines.is_empty()).then_some(lines)
 }
 
 /// The grey lines of the least and the most lift (`lift`) or separated
@@ -2185,6 +2249,36 @@ mod tests {
         let r = NoiseRanges::of(&n, 10.0);
         assert!((r.lift_kg[0] + 56.6).abs() < 1e-9 && (r.lift_kg[1] + 44.4).abs() < 1e-9);
         assert!((r.separated_m2[0] - 1.14).abs() < 1e-9 && (r.separated_m2[1] - 1.53).abs() < 1e-9);
+    }
+
+    /// Each named region gets a line of its separated share against the
+    /// swept key; a second swept key that splits the variants leaves the
+    /// plot out.
+    #[test]
+    fn named_regions_get_a_line_each() {
+        use crate::region::RegionResult;
+        let mut c = sweep(&[1.0, 2.0, 3.0]);
+        c.keys = vec!["deg".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.settings
+                .insert("deg".into(), serde_json::json!(6.0 * k as f64));
+            r.regions = vec![
+                RegionResult::example("diffuser", 0.01 + 0.1 * k as f64, None),
+                RegionResult::example("base", 1.0, None),
+            ];
+        }
+        c.regions = region_names(&c.variants);
+        let lines = region_lines(&c, "deg").unwrap();
+        assert_eq!(lines.len(), 2);
+        assert_eq!(lines[0].name, "diffuser");
+        let shares: Vec<f64> = lines[0].points.iter().map(|p| p.1).collect();
+        assert!((shares[2] - 21.0).abs() < 1e-9, "{shares:?}");
+        c.keys.push("speed".into());
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.settings
+                .insert("speed".into(), serde_json::json!(30.0 + (k % 2) as f64));
+        }
+        assert!(region_lines(&c, "deg").is_none());
     }
 
     /// Keys and labels naming a part seen from below make an underbody
