@@ -53,6 +53,16 @@ fn outlined_share(u: &super::SurfaceDeltas, area_m2: f64) -> Option<f64> {
 /// half model's after its own).
 fn changed_mark(mesh_b: &PanelMesh, mapping: &Mapping, near: f64) -> output::outline::RegionMark {
     let changed = super::changed_panels(mapping, mesh_b.len(), near);
+    // A lone changed panel among unchanged ones is the two panellings'
+    // difference at an edge, not a change of shape (a review saw a few
+    // outlined at an unchanged roof edge): outlined are panels with a
+    // changed neighbour.
+    let neighbours = tuft_mesh::panels::edge_neighbours(&mesh_b.triangles);
+    let changed: Vec<bool> = changed
+        .iter()
+        .zip(&neighbours)
+        .map(|(&c, nb)| c && nb.iter().flatten().any(|&j| changed[j as usize]))
+        .collect();
     let images = if mesh_b.mirrors.symmetry {
         changed.clone()
     } else {
