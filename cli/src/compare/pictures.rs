@@ -57,10 +57,9 @@ fn changed_mark(mesh_b: &PanelMesh, mapping: &Mapping, near: f64) -> output::out
     // difference at an edge, not a change of shape (a review saw a few
     // outlined at an unchanged roof edge): outlined are panels with a
     // changed neighbour.
-    let neighbours = tuft_mesh::panels::edge_neighbours(&mesh_b.triangles);
     let changed: Vec<bool> = changed
         .iter()
-        .zip(&neighbours)
+        .zip(&mesh_b.edge_neighbours)
         .map(|(&c, nb)| c && nb.iter().flatten().any(|&j| changed[j as usize]))
         .collect();
     let images = if mesh_b.mirrors.symmetry {
