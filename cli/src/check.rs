@@ -347,11 +347,9 @@ fn stl_params(
     PrepareParams {
         units: unit,
         axes,
-        mirrors: Mirrors {
-            ground: case.file.ground.as_ref().map(|g| g.z),
-            symmetry: case.file.geometry.half_model,
-        },
+        mirrors: crate::geometry::mirrors(case),
         target_panels: case.file.geometry.panels,
+        whole_from_half: crate::geometry::mirrored_whole(case),
         measure_symmetry: true,
         ..PrepareParams::default()
     }

@@ -26,12 +26,20 @@ pub struct Geometry {
     pub body: Option<Repaired>,
 }
 
-/// Mirror planes a case declares.
+/// Mirror planes a case's run uses: the symmetry plane only for a half
+/// model at zero yaw (in a cross wind it runs whole, [`mirrored_whole`]).
 pub fn mirrors(case: &Case) -> Mirrors {
     Mirrors {
         ground: case.file.ground.as_ref().map(|g| g.z),
-        symmetry: case.file.geometry.half_model,
+        symmetry: case.file.geometry.half_model && case.file.flow.yaw == 0.0,
     }
+}
+
+/// Whether a half model runs whole, mirrored into both sides: in a cross
+/// wind, which a half model cannot take (the review of a half-model
+/// export had no way to a yawed run).
+pub fn mirrored_whole(case: &Case) -> bool {
+    case.file.geometry.half_model && case.file.flow.yaw != 0.0
 }
 
 /// Build or read the case's body and prepare it.
@@ -51,6 +59,7 @@ pub fn load_keeping(case: &Case, keep: bool) -> Result<Geometry> {
                 axes: *axes,
                 mirrors,
                 target_panels: g.panels,
+                whole_from_half: mirrored_whole(case),
                 ..PrepareParams::default()
             };
             tuft_mesh::stage::starting(|| format!("reading {}", path.display()));
@@ -214,7 +223,7 @@ fn shape(name: &str, case: &Case) -> Result<TriMesh> {
                 boot_deck_length: g.boot_deck_length.unwrap_or(d.boot_deck_length),
                 diffuser_deg: g.diffuser_deg.unwrap_or(d.diffuser_deg),
                 panels,
-                half: g.half_model,
+                half: mirrors(case).symmetry,
                 ..d
             })?;
             let lift = ride - d.ride_height;
@@ -227,7 +236,7 @@ fn shape(name: &str, case: &Case) -> Result<TriMesh> {
                 slant_deg: g.slant_deg.unwrap_or(d.slant_deg),
                 clearance: g.ride_height.unwrap_or(d.clearance),
                 panels,
-                half: g.half_model,
+                half: mirrors(case).symmetry,
                 ..d
             })?
         }
@@ -235,7 +244,7 @@ fn shape(name: &str, case: &Case) -> Result<TriMesh> {
             g.radius.unwrap_or(0.5),
             g.centre_z.unwrap_or(0.0),
             panels,
-            g.half_model,
+            mirrors(case).symmetry,
         )?,
         other => bail!("unknown shape {other}"),
     };

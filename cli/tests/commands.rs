@@ -599,3 +599,53 @@ fn noise_measures_the_spread_over_three_panel_counts() {
     assert!((floor - expected).abs() < 1e-9, "{floor} {expected}");
     assert!(c["a"]["panel_noise"].is_object() && c["b"].get("panel_noise").is_none());
 }
+
+/// A half model in a cross wind runs whole, mirrored into both sides
+/// (a review's half-model export had no way to a yawed run): its summary
+/// has no symmetry plane, a note says so, and the wind gives a side force;
+/// at zero yaw the same case runs as the half it is.
+#[test]
+fn a_half_model_in_a_cross_wind_runs_whole() {
+    let dir = tempfile::tempdir().unwrap();
+    let half = tuft_mesh::generate::coupe_with_params(&tuft_mesh::generate::CoupeParams {
+        panels: 1500,
+        half: true,
+        ..tuft_mesh::generate::CoupeParams::default()
+    })
+    .unwrap();
+    let panels = tuft_mesh::PanelMesh::new(half, tuft_mesh::Mirrors::default()).unwrap();
+    let mut stl = Vec::new();
+    tuft_mesh::export::write_panels_stl(&mut stl, &panels, tuft_mesh::LengthUnit::Mm, None)
+        .unwrap();
+    std::fs::write(dir.path().join("half.stl"), stl).unwrap();
+    let case = |yaw: f64| {
+        format!(
+            "[geometry]\nstl = \"half.stl\"\nhalf_model = true\npanels = 700\n[flow]\nyaw = {yaw}\n\
+             [ground]\nz = 0.0\n"
+        )
+    };
+    std::fs::write(dir.path().join("yawed.toml"), case(5.0)).unwrap();
+    std::fs::write(dir.path().join("straight.toml"), case(0.0)).unwrap();
+    let read = |name: &str| -> serde_json::Value {
+        let o = tuft(dir.path(), &["run", &format!("{name}.toml"), "--quiet"]);
+        assert!(o.code <= 1, "{}", o.stderr);
+        serde_json::from_slice(&std::fs::read(dir.path().join(name).join("summary.json")).unwrap())
+            .unwrap()
+    };
+    let yawed = read("yawed");
+    assert_eq!(
+        yawed["mesh"]["symmetry_plane"],
+        serde_json::Value::Bool(false)
+    );
+    let notes = yawed["notes"].to_string() + &yawed["mesh"].to_string();
+    assert!(notes.contains("mirrored into a whole body"), "{notes}");
+    assert!(
+        yawed["coefficients"]["side"].as_f64().unwrap().abs() > 1e-3,
+        "{yawed}"
+    );
+    let straight = read("straight");
+    assert_eq!(
+        straight["mesh"]["symmetry_plane"],
+        serde_json::Value::Bool(true)
+    );
+}

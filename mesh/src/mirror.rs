@@ -121,3 +121,43 @@ mod tests {
         assert!(!imgs[2].reverses_orientation());
     }
 }
+
+/// A half model's surface (its open border on `y = 0`) and its mirror
+/// image joined into a whole body: the image's facets turned round so that
+/// their normals point out, and each image vertex within `tol` of the
+/// plane merged into its original, set on the plane, so that the two
+/// halves share their border.
+pub fn whole_from_half(half: &crate::TriMesh, tol: f64) -> crate::TriMesh {
+    let n = half.vertices.len();
+    let on_plane: Vec<bool> = half.vertices.iter().map(|p| p.y.abs() <= tol).collect();
+    let mut vertices = half.vertices.clone();
+    for (p, &on) in vertices.iter_mut().zip(&on_plane) {
+        if on {
+            p.y = 0.0;
+        }
+    }
+    // The image's vertex for each original: itself on the plane, a new one
+    // off it.
+    let mut image = Vec::with_capacity(n);
+    for k in 0..n {
+        if on_plane[k] {
+            image.push(k as u32);
+        } else {
+            let p = vertices[k];
+            image.push(vertices.len() as u32);
+            vertices.push(Point::new(p.x, -p.y, p.z));
+        }
+    }
+    let mut triangles = half.triangles.clone();
+    triangles.extend(half.triangles.iter().map(|t| {
+        [
+            image[t[0] as usize],
+            image[t[2] as usize],
+            image[t[1] as usize],
+        ]
+    }));
+    crate::TriMesh {
+        vertices,
+        triangles,
+    }
+}

@@ -50,6 +50,12 @@ pub struct PrepareParams {
     /// symmetric about y = 0, as the cut a half model would make
     /// ([`MirrorReport::halves`]; `tuft check` asks, a run does not).
     pub measure_symmetry: bool,
+    /// A half model (or a whole body to be cut as one) is prepared as a
+    /// half model up to the wrap and then mirrored into a whole body
+    /// ([`crate::mirror::whole_from_half`]), which runs without the
+    /// symmetry plane: for a run in a cross wind, which a half model
+    /// cannot take. `mirrors.symmetry` is then false.
+    pub whole_from_half: bool,
 }
 
 impl Default for PrepareParams {
@@ -64,6 +70,7 @@ impl Default for PrepareParams {
             coarsen: CoarsenParams::default(),
             wrap: WrapParams::default(),
             measure_symmetry: false,
+            whole_from_half: false,
         }
     }
 }
@@ -100,6 +107,12 @@ pub struct MirrorReport {
     /// ([`crate::import::FileAxes::apply`]; [`MIRRORED_HALF_NOTE`]).
     pub mirrored_half: bool,
 }
+
+/// What the run says of a half model mirrored into a whole body
+/// ([`PrepareParams::whole_from_half`]).
+pub const MIRRORED_WHOLE_NOTE: &str = "the half model was mirrored into a whole body, its two sides \
+     the same shape, to run in a cross wind (a half model cannot): the panels, the pictures and the \
+     VTK files show both sides, and the differences between them are the wind's";
 
 /// What the run says of a half model mirrored onto y >= 0.
 pub const MIRRORED_HALF_NOTE: &str = "the half model is the car's left side (y <= 0 in tuft's axes, in \
@@ -490,6 +503,21 @@ pub fn repair_body(
     read: Option<StlReport>,
     params: &PrepareParams,
 ) -> Result<Repaired, MeshError> {
+    // A half to be run whole is a half model up to the wrap.
+    let whole = *params;
+    let as_half = PrepareParams {
+        mirrors: Mirrors {
+            symmetry: true,
+            ..params.mirrors
+        },
+        whole_from_half: false,
+        ..*params
+    };
+    let params = if whole.whole_from_half {
+        &as_half
+    } else {
+        params
+    };
     let scale = params.units.to_metres();
     mesh.map_vertices(|p| p * scale);
     let mirrored_half = params.axes.apply(&mut mesh, params.mirrors.symmetry);
@@ -570,6 +598,12 @@ pub fn repair_body(
     } else {
         (mesh, None)
     };
+    // Mirrored into a whole body, which then runs without the plane.
+    let (mesh, params) = if whole.whole_from_half {
+        (crate::mirror::whole_from_half(&mesh, plane_tol), &whole)
+    } else {
+        (mesh, params)
+    };
     // A wrapped half model's surface facing the symmetry plane from close
     // by, and its whole area, measured here before the coarsening (for the
     // slot warning below).
@@ -595,6 +629,7 @@ pub fn repair_body(
         mesh,
         parts: Parts {
             read,
+            mirrored_whole: whole.whole_from_half,
             mirrored_half,
             mirrors,
             caps,
@@ -647,6 +682,7 @@ impl Repaired {
 #[derive(Debug, Clone)]
 struct Parts {
     read: Option<StlReport>,
+    mirrored_whole: bool,
     mirrored_half: bool,
     mirrors: MirrorReport,
     caps: Option<(usize, f64)>,
@@ -666,6 +702,7 @@ fn panel_and_report(
 ) -> Result<(PanelMesh, PrepareReport), MeshError> {
     let Parts {
         read,
+        mirrored_whole,
         mirrored_half,
         mirrors,
         caps,
@@ -743,9 +780,12 @@ fn panel_and_report(
         if let Some(layers) = crate::repair::describe_layers(&repair.layers) {
             q.notes.push(layers);
         }
+        if mirrored_whole {
+            q.notes.push(MIRRORED_WHOLE_NOTE.to_owned());
+        }
         match params
             .axes
-            .places_note(params.mirrors.symmetry, mirrored_half)
+            .places_note(params.mirrors.symmetry || mirrored_whole, mirrored_half)
         {
             Some(note) => q.notes.push(note),
             None if mirrored_half => q.notes.push(MIRRORED_HALF_NOTE.to_owned()),

@@ -376,3 +376,45 @@ fn a_smooth_body_coarsens_without_caps_or_folds() {
         assert_eq!(q.turned, 0, "{panels}: {q:?}");
     }
 }
+
+/// A half model prepared to run whole (`whole_from_half`, a run in a cross
+/// wind) comes out as the whole body: both sides, closed, with no
+/// symmetry plane, its area twice the half's, and a note saying so.
+#[test]
+fn a_half_model_mirrored_whole_is_the_whole_body() {
+    let mut half = cut(&generate::latlong_sphere(1000.0, 40, 80), |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let whole_params = PrepareParams {
+        whole_from_half: true,
+        ..half_in_mm()
+    };
+    let whole_params = PrepareParams {
+        mirrors: Mirrors::none(),
+        ..whole_params
+    };
+    let (panels, report) =
+        tuft_mesh::prepare::prepare_mesh(half.clone(), None, &whole_params).unwrap();
+    let (h, hr) = tuft_mesh::prepare::prepare_mesh(half, None, &half_in_mm()).unwrap();
+    assert!(!panels.mirrors.symmetry && h.mirrors.symmetry);
+    let (lo, hi) = panels.bounds();
+    assert!(
+        (lo.y + 1.0).abs() < 0.01 && (hi.y - 1.0).abs() < 0.01,
+        "{lo} {hi}"
+    );
+    // The whole sphere's 4 pi r^2 (r = 1 m), within 3 %, twice the half's.
+    assert!(
+        (report.area - 4.0 * PI).abs() / (4.0 * PI) < 0.03,
+        "{}",
+        report.area
+    );
+    assert!((report.area - 2.0 * hr.area).abs() < 0.03 * report.area);
+    // Closed: every panel edge has a neighbour.
+    assert!(panels.edge_neighbours.iter().flatten().all(Option::is_some));
+    assert!(
+        report
+            .quality
+            .notes
+            .iter()
+            .any(|n| n == tuft_mesh::prepare::MIRRORED_WHOLE_NOTE)
+    );
+}

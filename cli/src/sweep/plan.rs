@@ -509,11 +509,28 @@ fn variant(base: &toml::Value, dir: &Path, settings: Pairs) -> Variant {
 }
 
 /// What decides the shared matrix: the panel mesh (the geometry section
-/// and the ground) and the solver settings (the operator, and whether the
-/// separated-flow loop runs).
+/// and the ground, and whether a half model runs whole in a cross wind)
+/// and the solver settings (the operator, and whether the separated-flow
+/// loop runs).
 fn geometry_key(v: &toml::Value) -> String {
     let part = |k: &str| v.get(k).map(ToString::to_string).unwrap_or_default();
-    format!("{}|{}|{}", part("geometry"), part("ground"), part("solver"))
+    let half = v
+        .get("geometry")
+        .and_then(|g| g.get("half_model"))
+        .and_then(toml::Value::as_bool)
+        == Some(true);
+    let yawed = v
+        .get("flow")
+        .and_then(|f| f.get("yaw"))
+        .and_then(|y| y.as_float().or_else(|| y.as_integer().map(|i| i as f64)))
+        .is_some_and(|y| y != 0.0);
+    let whole = if half && yawed { "|whole" } else { "" };
+    format!(
+        "{}|{}|{}{whole}",
+        part("geometry"),
+        part("ground"),
+        part("solver")
+    )
 }
 
 /// Set a dotted key, creating tables on the way; setting `geometry.stl`
