@@ -101,27 +101,6 @@ impl Mirrors {
     }
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn both_planes_make_three_images() {
-        let m = Mirrors {
-            ground: Some(-0.5),
-            symmetry: true,
-        };
-        let imgs = m.images();
-        assert_eq!(imgs.len(), 3);
-        let p = Point::new(1.0, 2.0, 3.0);
-        assert_eq!(imgs[0].point(&p), Point::new(1.0, 2.0, -4.0));
-        assert_eq!(imgs[1].point(&p), Point::new(1.0, -2.0, 3.0));
-        assert_eq!(imgs[2].point(&p), Point::new(1.0, -2.0, -4.0));
-        assert!(imgs[0].reverses_orientation());
-        assert!(!imgs[2].reverses_orientation());
-    }
-}
-
 /// A half model's surface (its open border on `y = 0`) and its mirror
 /// image joined into a whole body: the image's facets turned round so that
 /// their normals point out, and each image vertex within `tol` of the
@@ -159,5 +138,26 @@ pub fn whole_from_half(half: &crate::TriMesh, tol: f64) -> crate::TriMesh {
     crate::TriMesh {
         vertices,
         triangles,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn both_planes_make_three_images() {
+        let m = Mirrors {
+            ground: Some(-0.5),
+            symmetry: true,
+        };
+        let imgs = m.images();
+        assert_eq!(imgs.len(), 3);
+        let p = Point::new(1.0, 2.0, 3.0);
+        assert_eq!(imgs[0].point(&p), Point::new(1.0, 2.0, -4.0));
+        assert_eq!(imgs[1].point(&p), Point::new(1.0, -2.0, 3.0));
+        assert_eq!(imgs[2].point(&p), Point::new(1.0, -2.0, -4.0));
+        assert!(imgs[0].reverses_orientation());
+        assert!(!imgs[2].reverses_orientation());
     }
 }
