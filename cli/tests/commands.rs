@@ -56,16 +56,6 @@ fn negative_speed_is_refused() {
 }
 
 #[test]
-fn yaw_with_a_half_model_is_refused() {
-    refused(
-        "yawed-half",
-        "[geometry]\nstl = \"coupe.stl\"\nhalf_model = true\n[flow]\nyaw = 5.0\n",
-        true,
-        &["flow.yaw", "half_model"],
-    );
-}
-
-#[test]
 fn unknown_key_is_refused() {
     refused(
         "unknown-key",
