@@ -343,8 +343,30 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         Vector3::y(),
         (x1 - x0, 4.0 * half_width),
     );
-    Ok(vec![centre, horizontal])
+    let mut slices = vec![centre, horizontal];
+    // Over the ground, a plane halfway between the ground and the body's
+    // lowest point: the underbody's flow seen from above (a review's
+    // diffuser study had no picture of the flow under the car; the centre
+    // plane takes two samples across a 180 mm gap).
+    if let Some(g) = mesh
+        .mirrors
+        .ground
+        .filter(|&g| lo.z - g > UNDERBODY_SLICE_GAP * height)
+    {
+        slices.push(sample(
+            "underbody-plane",
+            Point3::new(x0, yc - 2.0 * half_width, 0.5 * (g + lo.z)),
+            Vector3::y(),
+            (x1 - x0, 4.0 * half_width),
+        ));
+    }
+    Ok(slices)
 }
+
+/// Least gap between the ground and the body's lowest point, as a share of
+/// the body's height, for the underbody plane (our choice: a body on its
+/// wheels or on the ground has no gap to slice).
+pub const UNDERBODY_SLICE_GAP: f64 = 0.02;
 
 /// What flow the slices show, in one line. After the separated-flow loop
 /// the solution is its last pass, in which the dead water's panels let the

@@ -49,6 +49,25 @@ const PICTURES: [(&str, u32, u32, f64); 6] = [
     ("slice-horizontal-plane.png", 1600, 1000, 0.10),
 ];
 
+/// The underbody plane's files, written over the ground.
+const UNDERBODY_SLICE: [&str; 2] = ["slice-underbody-plane.png", "slice-underbody-plane.vti"];
+
+/// Whether a run stands over the ground, so that it slices the underbody
+/// (every shipped case over the ground stands clear of it).
+fn underbody(r: &Run) -> bool {
+    !r.summary["mesh"]["ground_z"].is_null()
+}
+
+/// The pictures of a run: [`PICTURES`], and the underbody plane's over
+/// the ground.
+fn pictures(r: &Run) -> Vec<(&'static str, u32, u32, f64)> {
+    let mut all = PICTURES.to_vec();
+    if underbody(r) {
+        all.push((UNDERBODY_SLICE[0], 1600, 1000, 0.10));
+    }
+    all
+}
+
 /// A finished run of one case.
 struct Run {
     /// Folder holding the case, its STL and the result folder.
@@ -133,8 +152,11 @@ fn exits_with_progress_and_summary(r: &Run) {
     let mut expected: Vec<&str> = OUTPUTS.to_vec();
     if sheds {
         expected.push("wake.vtu");
-        expected.sort_unstable();
     }
+    if underbody(r) {
+        expected.extend(UNDERBODY_SLICE);
+    }
+    expected.sort_unstable();
     assert_eq!(entries(&r.out), expected, "exactly the documented files");
     // The staging folder is gone once the results are in place.
     assert!(
@@ -341,6 +363,7 @@ fn regions_match_the_table(r: &Run) {
 /// Reads every VTK file of a result folder with VTK's XML readers and
 /// prints counts and sums to compare with our own tables.
 const VTK_SCRIPT: &str = r"
+import os
 d = sys.argv[1]
 r = vtkIOXML.vtkXMLUnstructuredGridReader(); r.SetFileName(d + '/surface.vtu'); r.Update()
 g = r.GetOutput(); cd = g.GetCellData()
@@ -358,7 +381,9 @@ vals = [cp.GetValue(k) for k in range(cp.GetNumberOfTuples())]
 print('streamlines', g.GetNumberOfLines(), g.GetNumberOfPoints(), '+'.join(names),
       max(v for v in vals if not math.isnan(v)), cp.GetNumberOfTuples(),
       sum(sep.GetValue(k) for k in range(sep.GetNumberOfTuples())))
-for name in ['centre-plane', 'horizontal-plane']:
+for name in ['centre-plane', 'horizontal-plane', 'underbody-plane']:
+    if not os.path.exists(d + '/slice-' + name + '.vti'):
+        continue
     r = vtkIOXML.vtkXMLImageDataReader(); r.SetFileName(d + '/slice-' + name + '.vti'); r.Update()
     g = r.GetOutput(); pd = g.GetPointData()
     cp = pd.GetArray('cp'); inside = pd.GetArray('in_body'); near = pd.GetArray('near_surface')
@@ -405,7 +430,8 @@ fn vtk_files_read_back(r: &Run) {
         number(&r.summary, "separation/area_m2") > 0.0,
         "points past a separation where the run found one"
     );
-    for slice in &rows[2..4] {
+    assert_eq!(rows.len(), if underbody(r) { 5 } else { 4 });
+    for slice in &rows[2..] {
         assert_eq!(slice[0], "slice");
         let (nx, ny, nz) = (f(slice, 1), f(slice, 2), f(slice, 3));
         let (n, finite, inside) = (f(slice, 4), f(slice, 5), f(slice, 6));
@@ -427,7 +453,7 @@ fn vtk_files_read_back(r: &Run) {
 }
 
 fn pictures_have_size_and_content(r: &Run) {
-    for (file, w, h, least) in PICTURES {
+    for (file, w, h, least) in pictures(r) {
         let pic = read_png(&std::fs::read(r.out.join(file)).unwrap());
         assert_eq!((pic.width, pic.height), (w, h), "{file}");
         // Not blank: colour scales and anti-aliased text give many colours,
@@ -464,8 +490,8 @@ fn report_is_self_contained(r: &Run) {
                 .unwrap()
         })
         .collect();
-    assert_eq!(inlined.len(), PICTURES.len());
-    for (file, _, _, _) in PICTURES {
+    assert_eq!(inlined.len(), pictures(r).len());
+    for (file, _, _, _) in pictures(r) {
         let bytes = std::fs::read(r.out.join(file)).unwrap();
         assert!(inlined.contains(&bytes), "{file} inlined");
     }
