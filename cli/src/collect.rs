@@ -1123,20 +1123,15 @@ pub struct NoiseRanges {
 
 impl NoiseRanges {
     fn of(n: &crate::noise::PanelNoise, wetted_m2: f64) -> Self {
-        let range = |v: &mut dyn Iterator<Item = f64>| {
-            v.fold([f64::INFINITY, f64::NEG_INFINITY], |[lo, hi], x| {
-                [lo.min(x), hi.max(x)]
-            })
-        };
+        use crate::noise::range;
         Self {
             lift_kg: range(
-                &mut n
-                    .front_axle_kg
+                n.front_axle_kg
                     .iter()
                     .zip(&n.rear_axle_kg)
                     .map(|(f, r)| f + r),
             ),
-            separated_m2: range(&mut n.separated_fraction.iter().map(|f| f * wetted_m2)),
+            separated_m2: range(n.separated_fraction.iter().map(|f| f * wetted_m2)),
         }
     }
 }

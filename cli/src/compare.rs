@@ -556,8 +556,7 @@ pub fn comparison_named(
     // the clearance in the second of five notes).
     // Not where the ride height is the whole change (B's body, moved onto
     // A's, changed nowhere: a ride-height study).
-    if let (Some(ca), Some(cb)) = (a.summary.clearance_m(), b.summary.clearance_m())
-        && (ca - cb).abs() > 5e-4
+    if let Some((ca, cb)) = clearances_apart(&a.summary, &b.summary)
         && surface.changed_m2 > 0.0
     {
         drag.text += &format!(
@@ -1023,8 +1022,7 @@ pub const UNDERBODY_LIFT_WORDS: &str = "moves mostly with the smooth underbody's
 /// millimetre apart: both clearances, and what the lift difference then
 /// rests on.
 fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
-    let (ca, cb) = (a.clearance_m()?, b.clearance_m()?);
-    ((ca - cb).abs() > 5e-4).then(|| {
+    clearances_apart(a, b).map(|(ca, cb)| {
         format!(
             "the ground clearances differ ({:.0} and {:.0} mm from the lowest point to the ground): the \
              lift across ride heights {UNDERBODY_LIFT_WORDS}",
@@ -1032,6 +1030,16 @@ fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
             1000.0 * cb
         )
     })
+}
+
+/// The two runs' ground clearances, m, when both stand over the ground
+/// and they lie more than half a millimetre apart.
+fn clearances_apart(
+    a: &crate::summary::Summary,
+    b: &crate::summary::Summary,
+) -> Option<(f64, f64)> {
+    let (ca, cb) = (a.clearance_m()?, b.clearance_m()?);
+    ((ca - cb).abs() > 5e-4).then_some((ca, cb))
 }
 
 /// Reference areas differing by more than this fraction of the larger
@@ -1336,18 +1344,18 @@ fn rim_note(
         a.separation.rim_x_m
     };
     let reach = 0.1 * b.reference.length_m;
-    let unchanged = match surface.changed_x_m {
-        Some([lo, hi]) if zone[0] <= zone[1] => zone[1] < lo - reach || zone[0] > hi + reach,
-        _ => false,
-    };
     ((rb - ra).abs() > RIM_CHANGE_SHARE * area).then(|| {
         let why = match surface.changed_x_m {
-            Some([lo, hi]) if unchanged => format!(
+            Some([lo, hi])
+                if zone[0] <= zone[1] && (zone[1] < lo - reach || zone[0] > hi + reach) =>
+            {
+                format!(
                 "; the shape did not change there (x {:.2} to {:.2} m; it changed from x {lo:.2} to \
                  {hi:.2} m), so the call flipped with the panelling: the edge's rounding lies near the \
                  model's rim radius (runs with --noise show the call at three counts)",
-                zone[0], zone[1]
-            ),
+                    zone[0], zone[1]
+                )
+            }
             _ => String::new(),
         };
         format!(

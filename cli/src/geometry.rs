@@ -150,6 +150,7 @@ fn finish(
     })
 }
 
+/// A mirror-plane refusal names the case keys that declared the planes.
 pub fn name_mirror_keys(err: MeshError, case: &Case) -> anyhow::Error {
     let mut keys = Vec::new();
     if let Some(g) = &case.file.ground {

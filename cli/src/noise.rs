@@ -63,11 +63,8 @@ impl Sample {
             cl: k.lift,
             axles_kg: [c.estimate.axles.front_kg, c.estimate.axles.rear_kg],
             separated: c.separated_area / mesh.area(),
-            underbody: match c.underbody_separation {
-                (s, a) if a > 0.0 => s / a,
-                _ => 0.0,
-            },
-            rim_m2: mesh.mirrors.whole_body_factor() * c.rim.0 + 0.0,
+            underbody: c.underbody_fraction(),
+            rim_m2: c.rim_m2(mesh),
         }
     }
 }
@@ -105,13 +102,19 @@ pub struct PanelNoise {
     pub axles_kg: [f64; 2],
 }
 
+/// Smallest and largest of `values` (infinite, and the wrong way round,
+/// for none).
+pub fn range(values: impl IntoIterator<Item = f64>) -> [f64; 2] {
+    values
+        .into_iter()
+        .fold([f64::INFINITY, f64::NEG_INFINITY], |[lo, hi], v| {
+            [lo.min(v), hi.max(v)]
+        })
+}
+
 /// Largest less smallest of `values` (0 for none).
 pub fn spread(values: impl IntoIterator<Item = f64>) -> f64 {
-    let (lo, hi) = values
-        .into_iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
-            (lo.min(v), hi.max(v))
-        });
+    let [lo, hi] = range(values);
     if hi >= lo { hi - lo } else { 0.0 }
 }
 

@@ -72,6 +72,23 @@ pub struct Computed {
     pub panel_noise: Option<crate::noise::PanelNoise>,
 }
 
+impl Computed {
+    /// Separated share of the ground-facing panels (0 without them). An
+    /// empty float sum is -0.0; adding +0.0 keeps "-0.0 %" out.
+    pub fn underbody_fraction(&self) -> f64 {
+        match self.underbody_separation {
+            (s, a) if a > 0.0 => s / a + 0.0,
+            _ => 0.0,
+        }
+    }
+
+    /// Area beside sharp front edges the flow leaves (the rim zone), m^2,
+    /// whole body (`mesh` the run's). An empty float sum is -0.0.
+    pub fn rim_m2(&self, mesh: &PanelMesh) -> f64 {
+        mesh.mirrors.whole_body_factor() * self.rim.0 + 0.0
+    }
+}
+
 /// What the separated-flow loop found.
 pub struct WakeLoop {
     /// Passes run, the attached pass included.

@@ -211,9 +211,7 @@ fn print_summary(out: &Path, s: &Summary) {
         // base's mean, beside it in the report, may include attached
         // panels: a review read -0.16 here and -0.17 on a plot).
         let base = w
-            .dead_water_cp
-            .or(w.base_cp_loop)
-            .filter(|_| w.passes > 1)
+            .dead_water_pressure()
             .map_or_else(String::new, |v| format!(", dead water at C_p {v:.2}"));
         say!(
             "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",

@@ -434,6 +434,17 @@ pub struct SeparatedWakes {
     pub wake_panels: usize,
 }
 
+impl SeparatedWakes {
+    /// The dead water's one pressure as stdout, the report and the pictures
+    /// quote it: Hoerner's, or where nothing separated faces downstream the
+    /// base's mean; `None` after one pass, when nothing separated.
+    pub fn dead_water_pressure(&self) -> Option<f64> {
+        self.dead_water_cp
+            .or(self.base_cp_loop)
+            .filter(|_| self.passes > 1)
+    }
+}
+
 /// The caution printed with every result.
 pub const CAUTION: &str = "Screening estimate only. Lift, drag and stability at speed must be \
 confirmed by validated CFD or wind-tunnel tests and by the responsible engineer, under local \

@@ -548,16 +548,11 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             area_m2: sym * c.separated_area,
             fraction: sym * c.separated_area / wetted,
             frontal_m2: sym * c.separated_frontal,
-            // An empty float sum is -0.0.
-            rim_m2: sym * c.rim.0 + 0.0,
+            rim_m2: c.rim_m2(mesh),
             rim_radius_m: c.rim.1,
             rim_x_m: c.rim.2[0].map(|v| if v.is_finite() { v } else { 0.0 }),
             rim_z_m: c.rim.2[1].map(|v| if v.is_finite() { v } else { 0.0 }),
-            // An empty float sum is -0.0; adding +0.0 keeps "-0.0 %" out.
-            underbody_fraction: match c.underbody_separation {
-                (s, a) if a > 0.0 => s / a + 0.0,
-                _ => 0.0,
-            },
+            underbody_fraction: c.underbody_fraction(),
         },
         solver: SolverFacts {
             method: format!("{:?}", c.potential.stats.method),
@@ -666,7 +661,7 @@ fn loop_text(w: &SeparatedWakes) -> String {
     // The dead water's one pressure, as stdout and the pictures give it;
     // the base's mean beside it only where it differs (a review read
     // "dead water at C_p -0.17" on stdout and "base C_p -0.16" here).
-    let pressure = match (w.dead_water_cp.or(w.base_cp_loop), w.base_cp_loop) {
+    let pressure = match (w.dead_water_pressure(), w.base_cp_loop) {
         (Some(v), base) => {
             let base = base
                 .filter(|b| (b - v).abs() >= 0.005)

@@ -747,45 +747,27 @@ mod tests {
     fn a_name_whose_line_would_cross_another_goes_beside_it() {
         let mut canvas = Canvas::new(800, 400).unwrap();
         let none = [-1.0e6, -1.0e6, 0.0, 0.0];
-        let first = draw_label(
-            &mut canvas,
-            "boot deck",
-            (400.0, 200.0),
-            (60.0, false),
-            &Room {
-                placed: &[],
-                keep_clear: [none, none],
-                frame_x: (0.0, 800.0),
-            },
-            OUTLINE,
-        );
-        let second = draw_label(
-            &mut canvas,
-            "spoiler",
-            (405.0, 180.0),
-            (60.0, false),
-            &Room {
-                placed: &[first],
-                keep_clear: [none, none],
-                frame_x: (0.0, 800.0),
-            },
-            OUTLINE,
-        );
+        // A name placed at `at`, 60 pixels clear, beside those `placed`.
+        let mut label = |name: &str, at: (f64, f64), placed: &[[f32; 4]]| {
+            draw_label(
+                &mut canvas,
+                name,
+                at,
+                (60.0, false),
+                &Room {
+                    placed,
+                    keep_clear: [none, none],
+                    frame_x: (0.0, 800.0),
+                },
+                OUTLINE,
+            )
+        };
+        let first = label("boot deck", (400.0, 200.0), &[]);
+        let second = label("spoiler", (405.0, 180.0), &[first]);
         assert_eq!(second[1], first[1], "{second:?}");
         assert!(second[0] >= first[0] + first[2], "{second:?} {first:?}");
         // Far enough apart for a straight line past it: stacked over it.
-        let third = draw_label(
-            &mut canvas,
-            "rear window",
-            (330.0, 180.0),
-            (60.0, false),
-            &Room {
-                placed: &[first],
-                keep_clear: [none, none],
-                frame_x: (0.0, 800.0),
-            },
-            OUTLINE,
-        );
+        let third = label("rear window", (330.0, 180.0), &[first]);
         assert!(third[1] + third[3] <= first[1], "{third:?} {first:?}");
     }
 

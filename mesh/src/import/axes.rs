@@ -18,6 +18,24 @@ pub struct FileAxes {
 pub const PLACES_NOTE_START: &str = "the file's axes (";
 
 impl FileAxes {
+    /// The signs of the turn into tuft's axes: tuft's x is `along` times
+    /// the file's, tuft's y `side` times the file's side axis (y, or z when
+    /// y is up): the sign that makes the turn a rotation, or, for a half
+    /// mirrored onto y >= 0 (`mirrored`), the other.
+    fn signs(&self, mirrored: bool) -> (f64, f64) {
+        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
+        let swapped = if self.y_up { -1.0 } else { 1.0 };
+        let rotation_sign = along * swapped;
+        (
+            along,
+            if mirrored {
+                -rotation_sign
+            } else {
+                rotation_sign
+            },
+        )
+    }
+
     /// True when the file's axes are tuft's already.
     pub fn is_identity(&self) -> bool {
         !self.nose_plus_x && !self.y_up
@@ -35,7 +53,9 @@ impl FileAxes {
     /// least [`crate::cut::WHOLE_SIDE_SHARE`] of its width) is only
     /// rotated, as without `half`: it is cut at y = 0 later.
     pub fn apply(&self, mesh: &mut TriMesh, half: bool) -> bool {
-        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
+        // The sign of the side axis that makes the map a rotation: the
+        // determinant of x' = along x, y' = s side, z' = up.
+        let (along, rotation_sign) = self.signs(false);
         // (x, up, side) of a file point.
         let parts = |p: &Point| {
             if self.y_up {
@@ -44,10 +64,6 @@ impl FileAxes {
                 (p.x, p.z, p.y)
             }
         };
-        // The sign of the side axis that makes the map a rotation: the
-        // determinant of x' = along x, y' = s side, z' = up.
-        let swapped = if self.y_up { -1.0 } else { 1.0 };
-        let rotation_sign = along * swapped;
         let (lo, hi) = mesh.vertices.iter().fold((0.0f64, 0.0f64), |(lo, hi), p| {
             let s = rotation_sign * parts(p).2;
             (lo.min(s), hi.max(s))
@@ -58,11 +74,7 @@ impl FileAxes {
         if self.is_identity() && !mirrored {
             return false;
         }
-        let side_sign = if mirrored {
-            -rotation_sign
-        } else {
-            rotation_sign
-        };
+        let (_, side_sign) = self.signs(mirrored);
         mesh.map_vertices(|p| {
             let (x, up, side) = parts(&p);
             Point::new(along * x, side_sign * side, up)
@@ -85,13 +97,7 @@ impl FileAxes {
         if self.is_identity() {
             return None;
         }
-        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
-        let swapped = if self.y_up { -1.0 } else { 1.0 };
-        let side_sign = if mirrored {
-            -along * swapped
-        } else {
-            along * swapped
-        };
+        let (along, side_sign) = self.signs(mirrored);
         let (side, up) = if self.y_up { ("z", "y") } else { ("y", "z") };
         let sign = |s: f64, axis: &str| {
             if s < 0.0 {
@@ -137,14 +143,7 @@ impl FileAxes {
         if self.is_identity() && !mirrored {
             return;
         }
-        let along = if self.nose_plus_x { -1.0 } else { 1.0 };
-        let swapped = if self.y_up { -1.0 } else { 1.0 };
-        let rotation_sign = along * swapped;
-        let side_sign = if mirrored {
-            -rotation_sign
-        } else {
-            rotation_sign
-        };
+        let (along, side_sign) = self.signs(mirrored);
         let y_up = self.y_up;
         mesh.map_vertices(|p| {
             // Each sign is its own inverse.
