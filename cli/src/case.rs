@@ -34,6 +34,10 @@ pub struct CaseFile {
     /// (`[[region]]`).
     #[serde(default, rename = "region", skip_serializing_if = "Vec::is_empty")]
     pub regions: Vec<crate::region::RegionSection>,
+    /// Flow slices on planes of the case's choosing, besides the built-in
+    /// ones (`[[slice]]`).
+    #[serde(default, rename = "slice", skip_serializing_if = "Vec::is_empty")]
+    pub slices: Vec<crate::planes::SliceSection>,
 }
 
 /// `[solver]`.
@@ -315,6 +319,7 @@ impl Case {
         check_flow(&file)?;
         check_reference(&file.reference).map_err(|e| with_axes_hint(e, &file.geometry))?;
         crate::region::check(&file.regions)?;
+        crate::planes::check(&file.slices)?;
         let source = resolve_geometry(path, &file.geometry)?;
         let transition = resolve_transition(&file.boundary_layer)?;
         let wakes = match file.solver.wakes.as_str() {

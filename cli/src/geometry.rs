@@ -409,12 +409,14 @@ fn car_sized_readings(size: f64, unit: tuft_mesh::LengthUnit) -> Vec<String> {
 
 /// Refuse axle positions outside the body's length (given in millimetres,
 /// or for another body).
-/// The axles and the named regions lie on the body (in tuft's axes; the
-/// error says so when the STL was turned into them).
+/// The axles and the named regions lie on the body, and the case's flow
+/// slices in the box round it (in tuft's axes; the error says so when the
+/// STL was turned into them).
 pub fn check_placement(mesh: &PanelMesh, case: &Case) -> Result<()> {
     let g = &case.file.geometry;
     check_axles(mesh, case).map_err(|e| crate::case::with_lengths_hint(e, g))?;
     crate::region::check_on_body(&case.file.regions, mesh)
+        .and_then(|()| crate::planes::placed(&case.file.slices, mesh).map(|_| ()))
         .map_err(|e| crate::case::with_axes_hint(e, g))
 }
 

@@ -37,6 +37,7 @@ mod outdir;
 #[allow(dead_code)]
 mod output;
 mod pipeline;
+mod planes;
 mod progress;
 mod rays;
 mod region;

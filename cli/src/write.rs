@@ -3,7 +3,7 @@
 use std::collections::BTreeMap;
 
 use anyhow::{Context, Result};
-use nalgebra::{Point3, Vector3};
+use nalgebra::Point3;
 use tuft_mesh::PanelMesh;
 use tuft_solver::boundary_layer::FlowState;
 use tuft_solver::offbody::FlowField;
@@ -18,6 +18,7 @@ use crate::output::{
     html, plot, sheet, slice, tufts, vtk,
 };
 use crate::pipeline::Computed;
+use crate::planes::{Plane, Window};
 use crate::progress::Progress;
 use crate::summary::{
     CAUTION, CoefficientSet, DragEstimate, LiftKg, MeshFacts, ReferenceValues, SeparatedWakes,
@@ -192,7 +193,8 @@ pub fn write_all(
     }
     progress.end(phase, "");
     let phase = progress.begin("flow slices", "computing flow slices off the body");
-    let slices = flow_slices(mesh, c)?;
+    let planes = crate::planes::placed(&case.file.slices, mesh)?;
+    let slices = flow_slices(mesh, c, &planes)?;
     progress.end(phase, "");
     let phase = progress.begin("pictures", "drawing pictures and the report");
     for s in &slices {
@@ -267,7 +269,7 @@ fn pictures(
         let (pic, _) = slice::slice_picture(sl, caption, Some(s.cp))?;
         add(
             &format!("slice-{}.png", sl.name),
-            &format!("Flow slice: {}", sl.name.replace('-', " ")),
+            &format!("Flow slice: {}", sl.title),
             pic.to_png()?,
         );
     }
@@ -275,25 +277,19 @@ fn pictures(
 }
 
 /// Velocity and Cp on the centre plane (the symmetry plane of a half
-/// model, otherwise the middle of the body's width) and on a horizontal
-/// plane through the middle of the body, from the panel solution the
+/// model, otherwise the middle of the body's width), on a horizontal
+/// plane through the middle of the body, over the ground on a plane under
+/// it, and on the case's own planes (`extra`), from the panel solution the
 /// surface pressures come from (the separated-flow loop's last pass, its
 /// dead water's sources included, when the loop ran).
-pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
+pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Vec<Slice>> {
     let p = &c.potential;
     let field = FlowField::new(mesh, &p.sigma, &p.mu, p.freestream.velocity(), None)?;
     let u2 = p.freestream.velocity().norm_squared();
     let (lo, hi) = mesh.bounds();
-    let (len, height) = (hi.x - lo.x, hi.z - lo.z);
+    let height = hi.z - lo.z;
+    let w = Window::of(mesh);
     let yc = plot::centre_y(mesh);
-    let half_width = (hi.y - yc).max(yc - lo.y);
-    let x0 = lo.x - 0.3 * len;
-    let x1 = hi.x + 0.6 * len;
-    let z0 = mesh
-        .mirrors
-        .ground
-        .map_or(lo.z - 0.6 * height, |g| g + 1e-3 * height);
-    let z1 = hi.z + 0.8 * height;
     let note = slice_note(c);
     // The dead water is hatched after the separated-flow loop, whose last
     // pass lets the free stream through it.
@@ -307,8 +303,8 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         Vec::new()
     };
     let stream = p.freestream.velocity();
-    let sample = |name: &str, origin: Point3<f64>, up: Vector3<f64>, size: (f64, f64)| {
-        let mut s = grid(&field, u2, name, origin, up, size);
+    let sample = |plane: &Plane| {
+        let mut s = grid(&field, u2, plane);
         let points: Vec<Point3<f64>> = (0..s.dims.1)
             .flat_map(|j| (0..s.dims.0).map(move |i| (i, j)))
             .map(|(i, j)| s.point(i, j))
@@ -330,20 +326,13 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         s.note.clone_from(&note);
         s
     };
-    let centre = sample(
-        "centre-plane",
-        Point3::new(x0, yc, z0),
-        Vector3::z(),
-        (x1 - x0, z1 - z0),
-    );
-    let zm = 0.5 * (lo.z + hi.z);
-    let horizontal = sample(
-        "horizontal-plane",
-        Point3::new(x0, yc - 2.0 * half_width, zm),
-        Vector3::y(),
-        (x1 - x0, 4.0 * half_width),
-    );
-    let mut slices = vec![centre, horizontal];
+    let built_in = |k: usize, at: f64, stem: &str| {
+        Plane::square_to(k, at, &w, stem.into(), stem.replace('-', " "))
+    };
+    let mut planes = vec![
+        built_in(1, yc, "centre-plane"),
+        built_in(2, 0.5 * (lo.z + hi.z), "horizontal-plane"),
+    ];
     // Over the ground, a plane halfway between the ground and the body's
     // lowest point: the underbody's flow seen from above (a review's
     // diffuser study had no picture of the flow under the car; the centre
@@ -353,14 +342,10 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed) -> Result<Vec<Slice>> {
         .ground
         .filter(|&g| lo.z - g > UNDERBODY_SLICE_GAP * height)
     {
-        slices.push(sample(
-            "underbody-plane",
-            Point3::new(x0, yc - 2.0 * half_width, 0.5 * (g + lo.z)),
-            Vector3::y(),
-            (x1 - x0, 4.0 * half_width),
-        ));
+        planes.push(built_in(2, 0.5 * (g + lo.z), "underbody-plane"));
     }
-    Ok(slices)
+    planes.extend(extra.iter().cloned());
+    Ok(planes.iter().map(sample).collect())
 }
 
 /// Least gap between the ground and the body's lowest point, as a share of
@@ -392,14 +377,10 @@ fn slice_note(c: &Computed) -> String {
     }
 }
 
-fn grid(
-    field: &FlowField,
-    field_speed2: f64,
-    name: &str,
-    origin: Point3<f64>,
-    up: Vector3<f64>,
-    size: (f64, f64),
-) -> Slice {
+fn grid(field: &FlowField, field_speed2: f64, plane: &Plane) -> Slice {
+    let size = plane.size;
+    let (a, b) = plane.axes;
+    let origin = plane.origin;
     let spacing = size.0.max(size.1) / SLICE_SAMPLES as f64;
     let dims = (
         (size.0 / spacing).round() as usize + 1,
@@ -407,9 +388,7 @@ fn grid(
     );
     let points: Vec<Point3<f64>> = (0..dims.1)
         .flat_map(|j| {
-            (0..dims.0).map(move |i| {
-                origin + Vector3::x() * (i as f64 * spacing) + up * (j as f64 * spacing)
-            })
+            (0..dims.0).map(move |i| origin + a * (i as f64 * spacing) + b * (j as f64 * spacing))
         })
         .collect();
     let velocity = field.velocities(&points);
@@ -419,9 +398,10 @@ fn grid(
         .map(|v| v.map(|v| 1.0 - v.norm_squared() / u2))
         .collect();
     Slice {
-        name: name.into(),
+        name: plane.stem.clone(),
+        title: plane.title.clone(),
         origin,
-        axes: (Vector3::x(), up),
+        axes: plane.axes,
         spacing,
         dims,
         velocity,

@@ -446,6 +446,10 @@ fn the_readme_case_file_runs() {
     )
     .unwrap();
     assert_eq!(summary["reference"]["front_axle_x_m"].as_f64(), Some(0.95));
+    // Its [[slice]] adds a plane across the diffuser's exit.
+    for f in ["slice-diffuser-exit.png", "slice-diffuser-exit.vti"] {
+        assert!(dir.path().join("my-car").join(f).exists(), "{f}");
+    }
 }
 
 /// The README's sweep example varies the rear window of the built-in coupe

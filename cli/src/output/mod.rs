@@ -215,8 +215,10 @@ pub struct WakeSheets<'a> {
 /// stored at index `i + j dims.0` (i fastest, as VTK image data).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Slice {
-    /// Short name, used in file names and titles (e.g. `centre-plane`).
+    /// Short name, used in file names (e.g. `centre-plane`).
     pub name: String,
+    /// What the picture's title calls it (e.g. `centre plane`).
+    pub title: String,
     /// Position of sample `(0, 0)`, metres.
     pub origin: Point3<f64>,
     /// Unit vectors along `i` and along `j`.

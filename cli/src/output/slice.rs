@@ -260,7 +260,7 @@ pub fn slice_picture_with_params(
             &[],
         );
     }
-    let title = caption.title(&format!("Flow slice: {}", slice.name.replace('-', " ")));
+    let title = caption.title(&format!("Flow slice: {}", slice.title));
     let room = c.width() as f32 - 60.0;
     text::draw(
         &mut c,
@@ -367,19 +367,36 @@ fn near_values_from_neighbours(
         .collect()
 }
 
-/// Two stacked frames at one scale that keeps the grid's aspect ratio.
+/// Two frames at one scale that keeps the grid's aspect ratio: stacked,
+/// or side by side when that draws them larger (a plane across the
+/// stream is about as tall as it is wide, and stacked it came out a third
+/// of the picture's width).
 fn panel_frames(slice: &Slice, params: &SliceParams) -> [SliceFrame; 2] {
     let (ni, nj) = ((slice.dims.0 - 1) as f64, (slice.dims.1 - 1) as f64);
-    let (left, top) = (110.0, 130.0);
-    let avail_w = f64::from(params.width) - left - 230.0;
-    let avail_h = (f64::from(params.height) - top - 40.0) / 2.0 - 90.0;
-    let pps = (avail_w / ni).min(avail_h / nj).max(1e-3);
-    let width = ni * pps;
-    let x0 = left + 0.5 * (avail_w - width);
-    [0.0, 1.0].map(|k| SliceFrame {
-        origin: (x0, top + k * (avail_h + 90.0) + nj * pps),
-        pixels_per_step: pps,
-    })
+    let (width, height) = (f64::from(params.width), f64::from(params.height));
+    // Room for the tick labels and axis name on the left, the colour bar
+    // on the right, and the ticks and field name between two frames.
+    let (left, top, right, gap) = (110.0, 130.0, 230.0, 90.0);
+    let stacked = (width - left - right, (height - top - 40.0) / 2.0 - gap);
+    let beside = (width / 2.0 - left - right, height - top - 40.0 - gap);
+    let scale = |(w, h): (f64, f64)| (w / ni).min(h / nj).max(1e-3);
+    if scale(stacked) >= scale(beside) {
+        let pps = scale(stacked);
+        let x0 = left + 0.5 * (stacked.0 - ni * pps);
+        [0.0, 1.0].map(|k| SliceFrame {
+            origin: (x0, top + k * (stacked.1 + gap) + nj * pps),
+            pixels_per_step: pps,
+        })
+    } else {
+        let pps = scale(beside);
+        [0.0, 1.0].map(|k| SliceFrame {
+            origin: (
+                k * width / 2.0 + left + 0.5 * (beside.0 - ni * pps),
+                top + nj * pps,
+            ),
+            pixels_per_step: pps,
+        })
+    }
 }
 
 /// Colour every pixel of one field: bilinear between four samples outside
@@ -463,7 +480,13 @@ fn draw_axes(c: &mut Canvas, slice: &Slice, f: &SliceFrame, label: &str) {
     let style = TextStyle::new(14.0);
     let (a, b) = slice.axes;
     let (oa, ob) = (slice.origin.coords.dot(&a), slice.origin.coords.dot(&b));
-    let ta = nice_ticks(oa, oa + ni * slice.spacing, 8);
+    // About one tick per 110 pixels, so that labels such as "-0.75" do
+    // not run into each other on a narrow frame.
+    let ta = nice_ticks(
+        oa,
+        oa + ni * slice.spacing,
+        ((x1 - x0) / 110.0).clamp(3.0, 8.0) as usize,
+    );
     for &t in &ta {
         let (px, _) = f.pixel_at((t - oa) / slice.spacing, 0.0);
         c.polyline(
@@ -538,8 +561,14 @@ fn describe_plane(s: &Slice) -> String {
             short_number(pos * n.dot(&axis_unit(name)).signum())
         ),
     };
+    // Across the stream: seen from behind, looking upstream with z up,
+    // +y lies to the right.
+    let view = match axis_name(&n) {
+        "x" => ", seen from behind",
+        _ => "",
+    };
     format!(
-        "{plane}; {} x {} samples {} m apart. Grey: inside the body.",
+        "{plane}{view}; {} x {} samples {} m apart. Grey: inside the body.",
         s.dims.0,
         s.dims.1,
         short_number(s.spacing)
@@ -579,6 +608,7 @@ mod tests {
         let origin = Point3::new(-3.0, 0.0, -1.5);
         let mut s = Slice {
             name: "centre-plane".to_owned(),
+            title: "centre plane".to_owned(),
             origin,
             axes: (Vector3::x(), Vector3::z()),
             spacing,

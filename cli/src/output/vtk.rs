@@ -506,6 +506,7 @@ for c in range(g.GetNumberOfCells()):
         let n = dims.0 * dims.1;
         let mut slice = Slice {
             name: "centre-plane".to_owned(),
+            title: "centre plane".to_owned(),
             origin: Point3::new(-1.0, 0.0, 0.25),
             axes: (Vector3::x(), Vector3::z()),
             spacing: 0.5,
