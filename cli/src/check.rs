@@ -268,8 +268,9 @@ fn save_panels(
     ))
 }
 
-/// Where the case puts the axles and its named regions on the body, in
-/// tuft's axes (checked to lie on it before this is printed).
+/// Where the case puts the axles and its named regions on the body, and
+/// its own flow slices, in tuft's axes (checked to lie on it, or in the
+/// slices' box, before this is printed).
 fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> String {
     let r = &case.file.reference;
     let mut s = match (r.front_axle_x, r.rear_axle_x) {
@@ -290,6 +291,15 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
         s += &format!(
             "region     \"{}\": {n} panels, {area:.3} m^2{sides}\n",
             region.name
+        );
+    }
+    // The case's own flow slices (placed in the box before this prints).
+    for plane in crate::planes::placed(&case.file.slices, panels).unwrap_or_default() {
+        s += &format!(
+            "slice      \"{}\": {}, slice-{}.png\n",
+            plane.title,
+            plane.words(),
+            plane.stem
         );
     }
     s

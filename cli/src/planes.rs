@@ -113,6 +113,23 @@ impl Plane {
     }
 }
 
+impl Plane {
+    /// Where the plane lies and how the picture sees it, in words:
+    /// "plane x = 4.3 m, seen from behind".
+    pub fn words(&self) -> String {
+        let n = self.axes.0.cross(&self.axes.1);
+        let k = (0..3)
+            .max_by(|&a, &b| n[a].abs().total_cmp(&n[b].abs()))
+            .unwrap_or(0);
+        let view = ["seen from behind", "seen from the side", "seen from above"][k];
+        format!(
+            "plane {} = {} m, {view}",
+            AXES[k],
+            short_number(self.origin[k])
+        )
+    }
+}
+
 const AXES: [&str; 3] = ["x", "y", "z"];
 
 impl SliceSection {
@@ -285,9 +302,11 @@ mod tests {
         // Seen from behind (looking along -x, z up), +y is to the right.
         let right = (-Vector3::x()).cross(&Vector3::z());
         assert_eq!(right, p.axes.0);
+        assert_eq!(p.words(), "plane x = 4.2 m, seen from behind");
         let p = Plane::square_to(2, 0.1, &w, "z".into(), "z".into());
         assert_eq!(p.origin, Point3::new(-1.0, -2.0, 0.1));
         assert_eq!(p.axes, (Vector3::x(), Vector3::y()));
         assert_eq!(p.size, (7.0, 4.0));
+        assert_eq!(p.words(), "plane z = 0.1 m, seen from above");
     }
 }

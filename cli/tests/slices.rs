@@ -45,6 +45,14 @@ fn lamb_speed_ratio(r: f64, radius: f64) -> f64 {
 #[test]
 fn a_plane_across_the_stream_through_a_sphere_follows_lamb() {
     let (root, file) = sphere_with("equator", "[[slice]]\nname = \"Equator\"\nx = 0.0\n");
+    // tuft check says where the plane lies and which file it writes.
+    let o = tuft(&root, &["check", &file]);
+    assert!(
+        o.stdout
+            .contains("slice      \"Equator\": plane x = 0 m, seen from behind, slice-equator.png"),
+        "{}",
+        o.stdout
+    );
     let o = tuft(&root, &["run", &file, "--out", "result", "--threads", "1"]);
     assert!(o.code <= 1, "exit {}: {}", o.code, o.stderr);
     let out = root.join("result");
