@@ -18,7 +18,7 @@ mod folder;
 mod mapping;
 pub mod matched;
 mod pictures;
-mod verdict;
+pub mod verdict;
 
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
