@@ -53,8 +53,7 @@ pub struct CheckArgs {
     /// to look at over the scan in any viewer (never over the input itself).
     #[arg(long, value_name = "FILE.stl")]
     pub save_panels: Option<PathBuf>,
-    /// Worker threads (default: all cores), as for the other commands (a
-    /// review's scripts passed it to every command, and check refused it).
+    /// Worker threads (default: all cores), as for the other commands.
     #[arg(long)]
     pub threads: Option<usize>,
 }

@@ -34,6 +34,9 @@ pub struct CollectArgs {
     /// Print nothing on success.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Worker threads (default: all cores), as for the other commands.
+    #[arg(long)]
+    pub threads: Option<usize>,
 }
 
 /// One finished variant.
@@ -250,6 +253,7 @@ fn sides_note(rows: &[Row]) -> Option<String> {
 
 /// `tuft collect`.
 pub fn run(args: &CollectArgs) -> Result<ExitCode> {
+    crate::run::set_threads(args.threads)?;
     let c = collect(&args.dir)?;
     write_outputs(&args.dir, &c)?;
     let warnings = distinct_warnings(&c);

@@ -54,6 +54,9 @@ pub struct CompareArgs {
     /// Print nothing on success.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Worker threads (default: all cores), as for the other commands.
+    #[arg(long)]
+    pub threads: Option<usize>,
 }
 
 /// Differences of the headline numbers, B minus A.
@@ -318,6 +321,7 @@ fn largest_region_change(regions: &[RegionChange]) -> Option<String> {
 
 /// `tuft compare`.
 pub fn run(args: &CompareArgs) -> Result<ExitCode> {
+    crate::run::set_threads(args.threads)?;
     // One folder named twice compares a run with itself: every difference
     // zero, which reads as "no change" rather than as a slip.
     if let (Ok(pa), Ok(pb)) = (args.a.canonicalize(), args.b.canonicalize()) {

@@ -336,16 +336,41 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Ve
     // Over the ground, a plane halfway between the ground and the body's
     // lowest point: the underbody's flow seen from above (a review's
     // diffuser study had no picture of the flow under the car; the centre
-    // plane takes two samples across a 180 mm gap).
-    if let Some(g) = mesh
-        .mirrors
-        .ground
-        .filter(|&g| lo.z - g > UNDERBODY_SLICE_GAP * height)
-    {
-        planes.push(built_in(2, 0.5 * (g + lo.z), "underbody-plane"));
+    // plane takes two samples across a 180 mm gap). A body standing on
+    // the ground (its tyres) is sliced halfway up to its floor instead
+    // (`floor_z`; a review's sports car on its wheels had no such slice).
+    if let Some(g) = mesh.mirrors.ground {
+        let clear = |z: f64| z - g > UNDERBODY_SLICE_GAP * height;
+        let under = Some(lo.z)
+            .filter(|&z| clear(z))
+            .or_else(|| floor_z(mesh).filter(|&z| clear(z)));
+        if let Some(z) = under {
+            planes.push(built_in(2, 0.5 * (g + z), "underbody-plane"));
+        }
     }
     planes.extend(extra.iter().cloned());
     Ok(planes.iter().map(sample).collect())
+}
+
+/// The floor's height: the median height, by area, of the surface facing
+/// down (normal within about 45 degrees of straight down), which a floor
+/// holds most of where a tyre's contact patch holds little (a review's
+/// sports car: 0.25 m^2 of tyres on the ground under about 7 m^2 of floor);
+/// `None` for a body with no such surface.
+fn floor_z(mesh: &PanelMesh) -> Option<f64> {
+    let mut down: Vec<(f64, f64)> = mesh
+        .panels
+        .iter()
+        .filter(|p| p.normal.z < -0.7)
+        .map(|p| (p.centroid.z, p.area))
+        .collect();
+    down.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let half = 0.5 * down.iter().map(|d| d.1).sum::<f64>();
+    let mut sum = 0.0;
+    down.into_iter().find_map(|(z, a)| {
+        sum += a;
+        (sum >= half).then_some(z)
+    })
 }
 
 /// Least gap between the ground and the body's lowest point, as a share of
@@ -1085,6 +1110,56 @@ fn report(
 
 #[cfg(test)]
 mod tests {
+    use super::*;
+
+    /// The floor's height is the flat underside's on the slant-back body
+    /// (0.05 m above the ground, its generator's clearance), and stays
+    /// there with a block standing on the ground under the nose, as a tyre
+    /// does.
+    #[test]
+    fn the_floor_lies_where_most_of_the_downward_surface_is() {
+        use tuft_mesh::{Mirrors, TriMesh, generate};
+        let body = generate::ahmed(25.0, 3000).unwrap();
+        let mesh = PanelMesh::new(body.clone(), Mirrors::none()).unwrap();
+        let z = floor_z(&mesh).unwrap();
+        assert!((z - 0.05).abs() < 1e-6, "floor at {z}");
+        // A 0.1 x 0.1 m block from the ground up into the floor.
+        let corners: Vec<Point3<f64>> = (0..8)
+            .map(|k| {
+                Point3::new(
+                    0.2 + 0.1 * f64::from(k & 1),
+                    -0.05 + 0.1 * f64::from((k >> 1) & 1),
+                    0.06 * f64::from((k >> 2) & 1),
+                )
+            })
+            .collect();
+        let n = body.vertices.len() as u32;
+        let mut vertices = body.vertices.clone();
+        vertices.extend(corners);
+        let mut triangles = body.triangles.clone();
+        for t in [
+            [0, 2, 1],
+            [1, 2, 3],
+            [4, 5, 6],
+            [5, 7, 6],
+            [0, 1, 4],
+            [1, 5, 4],
+            [2, 6, 3],
+            [3, 6, 7],
+            [0, 4, 2],
+            [2, 4, 6],
+            [1, 3, 5],
+            [3, 7, 5],
+        ] {
+            triangles.push(t.map(|v: u32| v + n));
+        }
+        let both =
+            PanelMesh::new(TriMesh::new(vertices, triangles).unwrap(), Mirrors::none()).unwrap();
+        assert_eq!(both.bounds().0.z, 0.0);
+        let z = floor_z(&both).unwrap();
+        assert!((z - 0.05).abs() < 1e-6, "floor at {z} with the block");
+    }
+
     /// The force band scales the central force by the band's coefficients
     /// (same speed, same reference area): F = C_D q A.
     #[test]

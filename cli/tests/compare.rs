@@ -37,9 +37,20 @@ fn run_case(dir: &Path, name: &str, body: &str) -> String {
 /// Compare `a` and `b` into `out`; exit 1 exactly when the comparison
 /// has notes (warnings to read, as the README's exit codes say).
 fn compare(a: &str, b: &str, out: &Path) -> Value {
-    let code = tuft(&["compare", a, b, "--out", out.to_str().unwrap(), "--quiet"])
-        .status
-        .code();
+    // --threads as every command takes it (a review's scripts passed it
+    // to every command).
+    let code = tuft(&[
+        "compare",
+        a,
+        b,
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+        "--threads",
+        "1",
+    ])
+    .status
+    .code();
     for f in ["compare.html", "delta-cp.png", "separation-change.png"] {
         assert!(out.join(f).is_file(), "{f}");
     }

@@ -248,8 +248,15 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
         planned,
         "every variant ran once"
     );
-    // Collect finds the four that finished and names the two that failed.
-    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    // Collect finds the four that finished and names the two that failed
+    // (with --threads, as every command takes it).
+    let (code, _) = tuft(&[
+        "collect",
+        out.to_str().unwrap(),
+        "--quiet",
+        "--threads",
+        "1",
+    ]);
     assert_eq!(code, 1);
     let c = json(&out.join("sweep.json"));
     assert_eq!(c["variants"].as_array().unwrap().len(), 4);
