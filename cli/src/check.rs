@@ -571,12 +571,25 @@ fn read_lines(r: &PrepareReport) -> String {
     } else {
         "; a file whose nose lies at the other end needs geometry.nose = \"+x\" (--nose +x)"
     };
+    // Length, width and height in words, so that a half model's width
+    // (the modelled half's) and a height taken from the underside, not
+    // the ground, read as what they are (a review took a half pickup's
+    // 0.950 for the whole width).
+    let width = if r.mirrors.symmetry {
+        format!(
+            "{:.3} wide (the modelled half; the whole body {:.3})",
+            hi[1] - lo[1],
+            2.0 * hi[1].abs().max(lo[1].abs())
+        )
+    } else {
+        format!("{:.3} wide", hi[1] - lo[1])
+    };
     s += &format!(
-        "size       {:.3} x {:.3} x {:.3} m (x from {:.3}, the nose, where the wind arrives, to {:.3}, \
-         the tail{turn}), surface {:.3} m^2\n",
+        "size       {:.3} long, {width}, {:.3} high from its lowest point at z {:.3} m (x from {:.3}, \
+         the nose, where the wind arrives, to {:.3}, the tail{turn}), surface {:.3} m^2\n",
         hi[0] - lo[0],
-        hi[1] - lo[1],
         hi[2] - lo[2],
+        lo[2],
         lo[0],
         hi[0],
         r.area

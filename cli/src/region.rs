@@ -360,9 +360,19 @@ pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> 
         if extent(r, mesh).0 == 0 {
             let (lo, hi) = mesh.bounds();
             let lo_y = if mesh.mirrors.symmetry { -hi.y } else { lo.y };
+            // A face inside a pocket (a tailgate's inside, behind the cab)
+            // is hidden from its side: a review's box round one, facing
+            // front, held nothing and the message did not say why.
+            let hidden = r.facing.as_ref().map_or(String::new(), |f| {
+                format!(
+                    "; facing \"{f}\" takes only the panels seen from that side, which a ray from \
+                     the panel that way leaves without meeting the body, so a face inside a pocket is \
+                     hidden: leave facing out to take every panel in the box"
+                )
+            });
             bail!(
                 "region \"{}\" holds no panel of the body (which spans x {:.3} to {:.3}, y {:.3} to {:.3}, \
-                 z {:.3} to {:.3} m): check its ranges (metres) and facing",
+                 z {:.3} to {:.3} m): check its ranges (metres) and facing{hidden}",
                 r.name,
                 lo.x,
                 hi.x,

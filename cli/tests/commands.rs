@@ -217,6 +217,24 @@ fn a_region_off_the_body_is_refused() {
     );
 }
 
+/// A region whose facing takes nothing in its box says what facing means
+/// (the panels seen from that side), so that a face hidden in a pocket
+/// is not a puzzle.
+#[test]
+fn a_region_whose_facing_takes_nothing_says_what_facing_means() {
+    refused(
+        "region-facing",
+        &format!("{SPHERE}[[region]]\nname = \"back\"\nx = [0.3, 0.6]\nfacing = \"front\"\n"),
+        false,
+        &[
+            "region \"back\"",
+            "holds no panel",
+            "facing \"front\" takes only the panels seen from that side",
+            "leave facing out",
+        ],
+    );
+}
+
 #[test]
 fn forced_transition_without_its_position_is_refused() {
     refused(
