@@ -1429,11 +1429,15 @@ fn sweep_floor(rows: &[Row]) -> f64 {
 /// A sweep plot's subtitle: the speed, and what the lines are (`several`:
 /// one per combination of the other swept values); on the drag plot
 /// (`drag`) where its band's ends are (drawn grey beside a single line,
-/// `band`, or left to the ranking table).
+/// `band`, or left to the ranking table), and the noise floor of its two
+/// noisiest variants, named as theirs (a review read it beside the
+/// leader's line's floor of the first two, 32 against 26 counts, as two
+/// values of one thing).
 fn plot_subtitle(speed: &str, drag: bool, band: bool, several: bool, floor: f64) -> String {
     let lines = "one line per combination of the other swept values";
     let noise = format!(
-        "; drag differences under {} counts are noise",
+        "; drag differences under {} counts can be noise (the floor of the two noisiest \
+         variants; the leader's line gives its own pair's)",
         crate::output::fixed(floor, 0)
     );
     match (band, several) {

@@ -1855,33 +1855,18 @@ mod tests {
     /// separated alike on both sides, yawed, or a half model, it does not.
     #[test]
     fn one_sided_separation_at_zero_yaw_warns() {
-        use tuft_solver::boundary_layer::PanelLayer;
         let mesh = PanelMesh::new(
             tuft_mesh::generate::icosphere(1.0, 2),
             tuft_mesh::Mirrors::none(),
         )
         .unwrap();
-        let n = mesh.len();
-        let layer_where = |separated: &dyn Fn(f64) -> bool| BoundaryLayer {
-            panels: mesh
+        let layer_where = |separated: &dyn Fn(f64) -> bool| {
+            let flags: Vec<bool> = mesh
                 .panels
                 .iter()
-                .map(|p| PanelLayer {
-                    state: if p.centroid.x > 0.3 && separated(p.centroid.y) {
-                        FlowState::Separated
-                    } else {
-                        FlowState::Turbulent
-                    },
-                    ..PanelLayer::unresolved()
-                })
-                .collect(),
-            streamlines: Vec::new(),
-            unresolved: 0,
-            transition_panels: Vec::new(),
-            separation_panels: Vec::new(),
-            separation_source: vec![None; n],
-            attachments: Vec::new(),
-            rim_zone: vec![false; n],
+                .map(|p| p.centroid.x > 0.3 && separated(p.centroid.y))
+                .collect();
+            layer_with(&mesh, &flags)
         };
         let one_side = layer_where(&|y| y > 0.0);
         let both = layer_where(&|_| true);
