@@ -125,6 +125,11 @@ pub struct Row {
     /// say the clearance, not only the ground's height.
     #[serde(default)]
     pub clearance_m: Option<f64>,
+    /// The floor's height above the ground at the front and the rear axle,
+    /// metres (`None` in free air), so that a rake sweep's rows say where
+    /// each end stands.
+    #[serde(default)]
+    pub floor_heights_m: Option<[f64; 2]>,
     /// The warning sentences of the variant's summary.
     #[serde(default)]
     pub warning_texts: Vec<String>,
@@ -880,6 +885,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         speed: flow("speed", still.speed),
         yaw_deg: flow("yaw", still.yaw),
         clearance_m: s.clearance_m(),
+        floor_heights_m: s.reference.floor_heights_m,
         warning_texts: s.warnings.clone(),
         coarse: s.coarse_note().is_some(),
         all_facets: s.all_facets(),
@@ -1079,7 +1085,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on");
+    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -1186,6 +1192,12 @@ fn csv_row(
         r.warnings,
         u8::from(r.wheels_on)
     );
+    let floor = |k: usize| {
+        r.floor_heights_m
+            .map(|f| f[k].to_string())
+            .unwrap_or_default()
+    };
+    let _ = write!(s, ",{},{}", floor(0), floor(1));
     for g in &c.regions {
         match region(r, g) {
             Some(g) => {
@@ -2334,6 +2346,7 @@ mod tests {
             speed: 40.0,
             yaw_deg: 0.0,
             clearance_m: None,
+            floor_heights_m: None,
             warning_texts: Vec::new(),
             coarse: false,
             all_facets: false,

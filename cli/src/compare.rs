@@ -560,7 +560,14 @@ pub fn comparison_named(
     // the clearance in the second of five notes).
     // Not where the ride height is the whole change (B's body, moved onto
     // A's, changed nowhere: a ride-height study).
-    if let Some((ca, cb)) = clearances_apart(&a.summary, &b.summary)
+    if let Some(words) =
+        floors_apart_words(&a.summary, &b.summary).filter(|_| surface.changed_m2 > 0.0)
+    {
+        drag.text += &format!(
+            "; {}, so the difference mixes the ride height with the change",
+            words.replacen("B's", &format!("{}'s", names[1]), 1)
+        );
+    } else if let Some((ca, cb)) = clearances_apart(&a.summary, &b.summary)
         && surface.changed_m2 > 0.0
     {
         drag.text += &format!(
@@ -1026,6 +1033,12 @@ pub const UNDERBODY_LIFT_WORDS: &str = "moves mostly with the smooth underbody's
 /// millimetre apart: both clearances, and what the lift difference then
 /// rests on.
 fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    if let Some(words) = floors_apart_words(a, b) {
+        return Some(format!(
+            "the floors stand at other heights ({words}): the lift across ride heights and rake \
+             {UNDERBODY_LIFT_WORDS}"
+        ));
+    }
     clearances_apart(a, b).map(|(ca, cb)| {
         format!(
             "the ground clearances differ ({:.0} and {:.0} mm from the lowest point to the ground): the \
@@ -1034,6 +1047,46 @@ fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
             1000.0 * cb
         )
     })
+}
+
+/// Where B's floor stands against A's at the axles, when both runs give
+/// floor heights and one axle's differ by more than half a millimetre:
+/// "B's floor 21 mm lower (80 against 101 mm) at the front axle and 22 mm
+/// higher (124 against 102 mm) at the rear, pitched 1.0 degrees more nose
+/// down" (a review's rake pair had read "26 mm lower" from the lowest
+/// points, where the rear had risen).
+fn floors_apart_words(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (fa, fb) = (a.reference.floor_heights_m?, b.reference.floor_heights_m?);
+    if fa.iter().zip(&fb).all(|(x, y)| (x - y).abs() <= 5e-4) {
+        return None;
+    }
+    let way = |x: f64, y: f64| {
+        let d = 1000.0 * (y - x);
+        if d.abs() < 0.5 {
+            format!("unchanged ({:.0} mm)", 1000.0 * y)
+        } else {
+            format!(
+                "{:.0} mm {} ({:.0} against {:.0} mm)",
+                d.abs(),
+                if d > 0.0 { "higher" } else { "lower" },
+                1000.0 * y,
+                1000.0 * x
+            )
+        }
+    };
+    let pitch = match (a.reference.rake_deg(), b.reference.rake_deg()) {
+        (Some(ra), Some(rb)) if (rb - ra).abs() >= 0.05 => format!(
+            ", pitched {:.1} degrees more nose {}",
+            (rb - ra).abs(),
+            if rb > ra { "down" } else { "up" }
+        ),
+        _ => String::new(),
+    };
+    Some(format!(
+        "B's floor {} at the front axle and {} at the rear{pitch}",
+        way(fa[0], fb[0]),
+        way(fa[1], fb[1])
+    ))
 }
 
 /// The two runs' ground clearances, m, when both stand over the ground
@@ -1765,6 +1818,36 @@ mod tests {
             None
         );
         assert_eq!(clearance_note(&at(0.12, None), &at(0.14, None)), None);
+    }
+
+    /// A rake pair is told by the floor at each axle, not by the lowest
+    /// point (a review's 1-degree rake read "26 mm lower" where the rear
+    /// had risen 22 mm).
+    #[test]
+    fn floors_at_the_axles_tell_a_rake() {
+        let at = |front: f64, rear: f64| {
+            let mut s = with_area(1.9);
+            s.mesh.ground_z = Some(0.0);
+            s.reference.front_axle_x_m = 0.85;
+            s.reference.rear_axle_x_m = 3.35;
+            s.reference.floor_heights_m = Some([front, rear]);
+            s
+        };
+        let (level, raked) = (at(0.101, 0.102), at(0.080, 0.124));
+        assert_eq!(
+            raked.reference.floor_words().unwrap(),
+            "front axle 80 mm, rear 124 mm (1.01 degrees nose down)"
+        );
+        let n = clearance_note(&level, &raked).unwrap();
+        assert!(
+            n.starts_with(
+                "the floors stand at other heights (B's floor 21 mm lower (80 against 101 mm) at the \
+                 front axle and 22 mm higher (124 against 102 mm) at the rear, pitched 1.0 degrees \
+                 more nose down)"
+            ),
+            "{n}"
+        );
+        assert_eq!(clearance_note(&level, &at(0.1012, 0.102)), None);
     }
 
     #[test]

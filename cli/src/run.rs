@@ -193,6 +193,11 @@ fn print_summary(out: &Path, s: &Summary) {
              downforce){floor}"
         );
     }
+    // Where the floor stands at the axles, for a rake or ride-height
+    // study (a review had only the lowest point, 0 with tyres down).
+    if let Some(words) = s.reference.floor_words() {
+        say!("  floor above the ground: {words}");
+    }
     say!(
         "  separated {} % of the surface",
         crate::output::fixed(100.0 * s.separation.fraction, 1)

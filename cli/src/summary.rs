@@ -125,6 +125,40 @@ pub struct ReferenceValues {
     pub rear_axle_x_m: f64,
     /// Which of these the case gave (the rest were computed or assumed).
     pub given: BTreeMap<String, bool>,
+    /// The floor's height above the ground at the front and the rear axle,
+    /// m (`write::floor_z` within a fortieth of the length of each axle);
+    /// absent in free air or with no surface facing down there.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub floor_heights_m: Option<[f64; 2]>,
+}
+
+impl ReferenceValues {
+    /// The pitch the floor heights give, degrees, positive nose down
+    /// (the rear floor higher than the front).
+    pub fn rake_deg(&self) -> Option<f64> {
+        let [f, r] = self.floor_heights_m?;
+        let wheelbase = self.rear_axle_x_m - self.front_axle_x_m;
+        (wheelbase > 0.0).then(|| (r - f).atan2(wheelbase).to_degrees())
+    }
+
+    /// The floor heights in words: "front axle 100 mm, rear 122 mm (0.50
+    /// degrees nose down)"; `None` without them.
+    pub fn floor_words(&self) -> Option<String> {
+        let [f, r] = self.floor_heights_m?;
+        let rake = self.rake_deg().map_or(String::new(), |d| {
+            let way = if d > 0.0 { "nose down" } else { "nose up" };
+            if d.abs() < 0.005 {
+                " (level)".to_owned()
+            } else {
+                format!(" ({:.2} degrees {way})", d.abs())
+            }
+        });
+        Some(format!(
+            "front axle {:.0} mm, rear {:.0} mm{rake}",
+            1000.0 * f,
+            1000.0 * r
+        ))
+    }
 }
 
 /// Solver facts.

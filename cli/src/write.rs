@@ -358,10 +358,15 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Ve
 /// sports car: 0.25 m^2 of tyres on the ground under about 7 m^2 of floor);
 /// `None` for a body with no such surface.
 fn floor_z(mesh: &PanelMesh) -> Option<f64> {
+    floor_z_within(mesh, f64::NEG_INFINITY..=f64::INFINITY)
+}
+
+/// [`floor_z`] of the panels whose centroid's x lies in `x`.
+fn floor_z_within(mesh: &PanelMesh, x: std::ops::RangeInclusive<f64>) -> Option<f64> {
     let mut down: Vec<(f64, f64)> = mesh
         .panels
         .iter()
-        .filter(|p| p.normal.z < -0.7)
+        .filter(|p| p.normal.z < -0.7 && x.contains(&p.centroid.x))
         .map(|p| (p.centroid.z, p.area))
         .collect();
     down.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -371,6 +376,20 @@ fn floor_z(mesh: &PanelMesh) -> Option<f64> {
         sum += a;
         (sum >= half).then_some(z)
     })
+}
+
+/// The floor's height above the ground at each of two axles, m: its
+/// [`floor_z`] within a fortieth of the body's length of the axle (a rake
+/// study's variants had only their lowest points to tell them apart, a
+/// review's 1-degree rake reading "26 mm lower" where the front had
+/// dropped 26 mm and the rear risen 22); `None` in free air or with no
+/// surface facing down near either axle.
+fn floor_heights(mesh: &PanelMesh, axles: [f64; 2]) -> Option<[f64; 2]> {
+    let g = mesh.mirrors.ground?;
+    let (lo, hi) = mesh.bounds();
+    let reach = 0.025 * (hi.x - lo.x);
+    let at = |x: f64| floor_z_within(mesh, x - reach..=x + reach).map(|z| z - g);
+    Some([at(axles[0])?, at(axles[1])?])
 }
 
 /// Least gap between the ground and the body's lowest point, as a share of
@@ -529,6 +548,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             front_axle_x_m: r.front_axle_x,
             rear_axle_x_m: r.rear_axle_x,
             given,
+            floor_heights_m: floor_heights(mesh, [r.front_axle_x, r.rear_axle_x]),
         },
         dynamic_pressure_pa: e.dynamic_pressure,
         reynolds_number: flow.speed * r.length / flow.viscosity,
@@ -947,6 +967,13 @@ fn report(
                 unit,
             )
         },
+        NumberRow::text(
+            "Floor above the ground at the axles",
+            &s.reference
+                .floor_words()
+                .unwrap_or_else(|| "no ground, or no floor at the axles".into()),
+            "-",
+        ),
         NumberRow::text(
             "Reynolds number on the reference length",
             &format!("{:.2} million", s.reynolds_number / 1e6),
