@@ -2812,7 +2812,8 @@ mod tests {
         let lines: Vec<&str> = text.lines().collect();
         assert!(
             lines[0].ends_with(
-                ",warnings,wheels_on,region:rear window:separated_percent,region:rear window:verdict,\
+                ",warnings,wheels_on,floor_front_m,floor_rear_m,region:rear window:separated_percent,\
+                 region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
                  region:rear window:standing,region:boot deck:separated_percent,\
                  region:boot deck:verdict,region:boot deck:band_low_percent,\
@@ -2822,13 +2823,13 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
+            lines[1].ends_with(",0,0,,,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]
