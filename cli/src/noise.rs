@@ -33,7 +33,7 @@ pub const STEP: f64 = 0.08;
 pub const MORE_TRIES: usize = 2;
 
 /// What one solve gave.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Sample {
     /// Panels solved (real panels: the modelled half's on a half model).
     pub panels: usize,
@@ -51,6 +51,8 @@ pub struct Sample {
     /// Area beside sharp front edges the flow leaves (the rim zone), m^2,
     /// whole body.
     pub rim_m2: f64,
+    /// Each named region's separated share, in the case's order.
+    pub regions: Vec<f64>,
 }
 
 impl Sample {
@@ -65,6 +67,7 @@ impl Sample {
             separated: c.separated_area / mesh.area(),
             underbody: c.underbody_fraction(),
             rim_m2: c.rim_m2(mesh),
+            regions: c.regions.iter().map(|r| r.separated_fraction).collect(),
         }
     }
 }
@@ -94,6 +97,10 @@ pub struct PanelNoise {
     /// summaries written before it was kept).
     #[serde(default)]
     pub rim_m2: Vec<f64>,
+    /// Each named region's separated share at each count, in the case's
+    /// order (empty in summaries written before it was kept).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub region_fractions: Vec<Vec<f64>>,
     /// Largest less smallest drag, counts.
     pub drag_counts: f64,
     /// Largest less smallest lift coefficient.
@@ -138,6 +145,14 @@ impl PanelNoise {
             separated_fraction: all(|s| s.separated),
             underbody_fraction: all(|s| s.underbody),
             rim_m2: all(|s| s.rim_m2),
+            region_fractions: (0..samples.first().map_or(0, |s| s.regions.len()))
+                .map(|k| {
+                    samples
+                        .iter()
+                        .filter_map(|s| s.regions.get(k).copied())
+                        .collect()
+                })
+                .collect(),
         }
     }
 
@@ -305,6 +320,15 @@ pub fn add_to(
             computed
                 .warnings
                 .extend(rim_flip_warning(&n, computed.reference.area));
+            // Each region's share at the three counts: a verdict that
+            // changes between them is uncertain (a review's pickup bed
+            // read 36 % "firm" at its own count and 73 and 67 % at others).
+            for (r, shares) in computed.regions.iter_mut().zip(&n.region_fractions) {
+                if shares.len() == n.panels.len() {
+                    r.at_counts = Some(shares.clone());
+                    r.standing = r.firmness().into();
+                }
+            }
             computed.panel_noise = Some(n);
         }
         Err(e) => computed.warnings.push(format!(
@@ -359,6 +383,7 @@ mod tests {
             separated: 0.1,
             underbody: 0.05,
             rim_m2: 0.0,
+            regions: vec![f, 0.5],
         };
         let n = PanelNoise::from_samples(&[
             s(4000, 0.300, -0.10, 5.0, -20.0),

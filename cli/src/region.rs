@@ -94,6 +94,11 @@ pub struct RegionResult {
     /// the verdict is uncertain.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub sides: Option<[f64; 2]>,
+    /// With `--noise`, the separated share at the run's own panel count
+    /// and at the two others (`noise::PanelNoise::region_fractions`); the
+    /// verdict is uncertain when they give two verdicts.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub at_counts: Option<Vec<f64>>,
 }
 
 impl RegionResult {
@@ -112,6 +117,7 @@ impl RegionResult {
             slope_deg,
             standing: String::new(),
             sides: None,
+            at_counts: None,
         }
     }
 
@@ -131,13 +137,22 @@ impl RegionResult {
     /// line, else "firm".
     pub fn firmness(&self) -> &'static str {
         let [lo, hi] = self.separated_band;
-        if verdict(lo) != verdict(hi) || self.sides.is_some() {
+        if verdict(lo) != verdict(hi) || self.sides.is_some() || self.counts_differ() {
             "uncertain"
         } else if self.near_line().is_some() {
             "provisional"
         } else {
             "firm"
         }
+    }
+
+    /// Whether the shares at the panel-noise counts give two verdicts.
+    pub fn counts_differ(&self) -> bool {
+        self.at_counts.as_ref().is_some_and(|shares| {
+            shares
+                .iter()
+                .any(|&f| verdict(f) != verdict(self.separated_fraction))
+        })
     }
 
     /// The regime line the share lies within [`VERDICT_NOISE`] of, if any.
@@ -180,8 +195,18 @@ impl RegionResult {
                 percent(r)
             )
         });
+        let counts = match &self.at_counts {
+            Some(shares) if self.counts_differ() => {
+                let each: Vec<String> = shares.iter().map(|&f| percent(f)).collect();
+                format!(
+                    "; {} % at the three panel counts: verdict uncertain, it moves with the panelling",
+                    each.join(", ")
+                )
+            }
+            _ => String::new(),
+        };
         format!(
-            "{} ({} % separated{range}{near}{sides})",
+            "{} ({} % separated{range}{near}{sides}{counts})",
             self.verdict,
             percent(self.separated_fraction)
         )
@@ -206,6 +231,17 @@ impl RegionResult {
                 percent(r)
             ),
             None => range,
+        };
+        let range = match &self.at_counts {
+            Some(shares) if self.counts_differ() && self.sides.is_none() => {
+                let [lo, hi] = crate::noise::range(shares.iter().copied());
+                format!(
+                    " ({} to {} % over the panel counts, verdict uncertain)",
+                    percent(lo),
+                    percent(hi)
+                )
+            }
+            _ => range,
         };
         format!(
             "{} % {}{range}",
@@ -460,6 +496,7 @@ pub fn evaluate(
                 slope_deg: surface_slope(&normals),
                 standing: String::new(),
                 sides: one_sided(mesh, halves),
+                at_counts: None,
             }
         })
         .map(|mut r| {
@@ -621,6 +658,30 @@ mod tests {
     /// rests on the model when the range crosses a regime line (the demo
     /// coupe's STL at 200 km/h: its boot deck 0 % separated, 34 % with the
     /// earlier threshold).
+    /// With --noise, a share that gives two verdicts over the three panel
+    /// counts makes the verdict uncertain and says so (a review's pickup
+    /// bed: 36 % at its own count, 73 and 67 % at the others, had read
+    /// "firm"); three shares with one verdict change nothing.
+    #[test]
+    fn a_verdict_that_moves_with_the_panel_count_is_uncertain() {
+        let mut r = RegionResult::example("bed floor", 0.36, None);
+        assert_eq!(r.firmness(), "firm");
+        r.at_counts = Some(vec![0.36, 0.73, 0.67]);
+        assert_eq!(r.firmness(), "uncertain");
+        assert_eq!(
+            r.words(),
+            "partly separated (36 % separated; 36, 73, 67 % at the three panel counts: verdict \
+             uncertain, it moves with the panelling)"
+        );
+        assert_eq!(
+            r.short_words(),
+            "36 % partly separated (36 to 73 % over the panel counts, verdict uncertain)"
+        );
+        r.at_counts = Some(vec![0.36, 0.41, 0.32]);
+        assert_eq!(r.firmness(), "firm");
+        assert!(!r.words().contains("panel counts"));
+    }
+
     #[test]
     fn a_verdict_the_sensitivity_runs_would_change_says_so() {
         let result = |f: f64, band: [f64; 2]| RegionResult {
