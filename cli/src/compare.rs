@@ -1050,9 +1050,10 @@ fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
 }
 
 /// The least change of pitch, degrees, that `compare` names as a rake
-/// change, with the floor at each axle (our choice: the floor heights of
-/// a 600-panel coupe raised 20 mm read 20 and 16 mm higher, 0.1 degrees,
-/// from the panels alone; 0.2 degrees is 9 mm over a 2.5 m wheelbase).
+/// change, with the floor at each axle (our choice: a 600-panel coupe
+/// raised 20 mm without pitching read 0.1 degrees from its panels alone,
+/// by an earlier median reading of the floor; 0.2 degrees is 9 mm over a
+/// 2.5 m wheelbase).
 pub const RAKE_CHANGE_DEG: f64 = 0.2;
 
 /// Where B's floor stands against A's at the axles, when both runs give

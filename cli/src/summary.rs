@@ -126,7 +126,8 @@ pub struct ReferenceValues {
     /// Which of these the case gave (the rest were computed or assumed).
     pub given: BTreeMap<String, bool>,
     /// The floor's height above the ground at the front and the rear axle,
-    /// m (`write::floor_z` within a fortieth of the length of each axle);
+    /// m (the lowest surface facing down on the centre line within a
+    /// fortieth of the length of each axle, `write::floor_heights`);
     /// absent in free air or with no surface facing down there.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub floor_heights_m: Option<[f64; 2]>,

@@ -358,15 +358,10 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Ve
 /// sports car: 0.25 m^2 of tyres on the ground under about 7 m^2 of floor);
 /// `None` for a body with no such surface.
 fn floor_z(mesh: &PanelMesh) -> Option<f64> {
-    floor_z_within(mesh, f64::NEG_INFINITY..=f64::INFINITY)
-}
-
-/// [`floor_z`] of the panels whose centroid's x lies in `x`.
-fn floor_z_within(mesh: &PanelMesh, x: std::ops::RangeInclusive<f64>) -> Option<f64> {
     let mut down: Vec<(f64, f64)> = mesh
         .panels
         .iter()
-        .filter(|p| p.normal.z < -0.7 && x.contains(&p.centroid.x))
+        .filter(|p| p.normal.z < -0.7)
         .map(|p| (p.centroid.z, p.area))
         .collect();
     down.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -378,17 +373,32 @@ fn floor_z_within(mesh: &PanelMesh, x: std::ops::RangeInclusive<f64>) -> Option<
     })
 }
 
-/// The floor's height above the ground at each of two axles, m: its
-/// [`floor_z`] within a fortieth of the body's length of the axle (a rake
-/// study's variants had only their lowest points to tell them apart, a
-/// review's 1-degree rake reading "26 mm lower" where the front had
-/// dropped 26 mm and the rear risen 22); `None` in free air or with no
-/// surface facing down near either axle.
+/// The floor's height above the ground at each of two axles, m: the
+/// lowest surface facing down on the centre line, within a fortieth of the
+/// body's length of the axle and of the centre (the median there read a
+/// diffuser's ramp starting ahead of the demo coupe's rear axle as 20 mm
+/// of rake; a rake study's variants had only their
+/// lowest points to tell them apart, a review's 1-degree rake reading "26
+/// mm lower" where the front had dropped 26 mm and the rear risen 22; over
+/// the whole width the demo coupe's underside, rounded up to its sills,
+/// read 10 mm above its 120 mm floor, and the tyres stand off the centre
+/// line); `None` in free air or with no surface facing down there.
 fn floor_heights(mesh: &PanelMesh, axles: [f64; 2]) -> Option<[f64; 2]> {
     let g = mesh.mirrors.ground?;
     let (lo, hi) = mesh.bounds();
     let reach = 0.025 * (hi.x - lo.x);
-    let at = |x: f64| floor_z_within(mesh, x - reach..=x + reach).map(|z| z - g);
+    let yc = plot::centre_y(mesh);
+    let at = |x: f64| {
+        mesh.panels
+            .iter()
+            .filter(|p| {
+                p.normal.z < -0.7
+                    && (p.centroid.x - x).abs() <= reach
+                    && (p.centroid.y - yc).abs() <= reach
+            })
+            .map(|p| p.centroid.z - g)
+            .reduce(f64::min)
+    };
     Some([at(axles[0])?, at(axles[1])?])
 }
 
