@@ -276,8 +276,16 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
         for n in notes.iter().chain(&c.caveats) {
             say!("  note: {n}");
         }
-        for (text, names) in &warnings {
-            say!("  warning ({}): {text}", names.join(", "));
+        for (text, names, varied) in warning_kinds(&warnings) {
+            if varied {
+                say!(
+                    "  warning ({}; figures from {}, the others' in sweep.html): {text}",
+                    names.join(", "),
+                    names[0]
+                );
+            } else {
+                say!("  warning ({}): {text}", names.join(", "));
+            }
         }
         for m in &c.missing {
             say!("  missing or failed: {m}");
@@ -325,6 +333,52 @@ fn distinct_warnings(c: &Collected) -> Vec<(&str, Vec<&str>)> {
         }
     }
     out
+}
+
+/// A warning's wording with every number in it (its sign included) one
+/// `#`, so that the same warning about other figures reads alike.
+fn warning_shape(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut in_number = false;
+    for ch in text.chars() {
+        let continues = in_number && (ch == '.' || ch == ',');
+        if ch.is_ascii_digit() || continues {
+            if !in_number {
+                // A sign is part of the number.
+                if out.ends_with('-') {
+                    out.pop();
+                }
+                out.push('#');
+            }
+            in_number = true;
+        } else {
+            in_number = false;
+            out.push(ch);
+        }
+    }
+    out
+}
+
+/// The distinct warnings for the terminal: those alike but for their
+/// figures ([`warning_shape`]) as one line, with the first's text, all
+/// their variants and whether the figures differ between them (a review's
+/// six-variant sweep printed 28 warning lines, five kinds, each repeated
+/// with its own figures; sweep.html keeps every text).
+fn warning_kinds<'a>(warnings: &[(&'a str, Vec<&'a str>)]) -> Vec<(&'a str, Vec<&'a str>, bool)> {
+    let mut out: Vec<(String, &str, Vec<&str>, bool)> = Vec::new();
+    for (text, names) in warnings {
+        let shape = warning_shape(text);
+        match out.iter_mut().find(|(s, ..)| *s == shape) {
+            Some((_, _, all, varied)) => {
+                all.extend(names.iter().copied());
+                *varied = true;
+            }
+            None => out.push((shape, text, names.clone(), false)),
+        }
+    }
+    out.into_iter()
+        .map(|(_, text, names, varied)| (text, names, varied))
+        .collect()
 }
 
 /// A variant's wind condition in words: "40 m/s (144 km/h), yaw 0°".
@@ -2684,6 +2738,33 @@ mod tests {
     /// Each distinct warning is listed once above the ranking with the
     /// variants it applies to, HTML-escaped, and sweep.json carries the
     /// texts per variant.
+    /// On the terminal, warnings alike but for their figures are one line
+    /// naming every variant; a warning of another kind stays apart.
+    #[test]
+    fn warnings_alike_but_for_their_figures_are_one_line() {
+        let a = "53 % of the underbody is separated: the dead water holds C_p -0.23";
+        let b = "46 % of the underbody is separated: the dead water holds C_p -0.19";
+        let other = "6 panels (0.2 %) are turned more than 45 degrees";
+        assert_eq!(warning_shape(a), warning_shape(b));
+        assert_eq!(
+            warning_shape("near y -0.787 m"),
+            warning_shape("near y 0.789 m")
+        );
+        assert_ne!(warning_shape(a), warning_shape(other));
+        let kinds = warning_kinds(&[
+            (a, vec!["v0"]),
+            (other, vec!["v0", "v1"]),
+            (b, vec!["v1", "v2"]),
+        ]);
+        assert_eq!(
+            kinds,
+            vec![
+                (a, vec!["v0", "v1", "v2"], true),
+                (other, vec!["v0", "v1"], false)
+            ]
+        );
+    }
+
     #[test]
     fn lists_each_warning_once_with_its_variants() {
         let mut c = sweep(&[10.0, 10.0, 10.0]);
