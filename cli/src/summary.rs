@@ -133,6 +133,11 @@ pub struct ReferenceValues {
     pub floor_heights_m: Option<[f64; 2]>,
 }
 
+/// A pitch under this many degrees reads "level" (a millimetre over a
+/// wheelbase is 0.02 degrees, and the floor heights are read from panels
+/// a few millimetres apart; our choice).
+pub const LEVEL_DEG: f64 = 0.05;
+
 impl ReferenceValues {
     /// The pitch the floor heights give, degrees, positive nose down
     /// (the rear floor higher than the front).
@@ -148,7 +153,7 @@ impl ReferenceValues {
         let [f, r] = self.floor_heights_m?;
         let rake = self.rake_deg().map_or(String::new(), |d| {
             let way = if d > 0.0 { "nose down" } else { "nose up" };
-            if d.abs() < 0.005 {
+            if d.abs() < LEVEL_DEG {
                 " (level)".to_owned()
             } else {
                 format!(" ({:.2} degrees {way})", d.abs())
