@@ -872,6 +872,7 @@ fn notes(
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
     }
+    notes.extend(edge_hold_note(sa, sb));
     notes.extend(region_cover_notes(sa, sb));
     if let Some(n) = reference_note(sa, sb) {
         notes.push(n);
@@ -1055,6 +1056,25 @@ fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
 /// by an earlier median reading of the floor; 0.2 degrees is 9 mm over a
 /// 2.5 m wheelbase).
 pub const RAKE_CHANGE_DEG: f64 = 0.2;
+
+/// A note when holding the suction beside sharp edges no surface
+/// streamline crossed (`pipeline::hold_edge_spikes`) moved the two runs'
+/// drag by amounts that differ by the noise floor or more: the difference
+/// then rests on that rule (a review's roof box: nine panels on the bar
+/// under it, held from Cp -88, moved its drag by 94 counts, more than the
+/// box's whole 78-count increment, and compare had not said so).
+fn edge_hold_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let counts = |s: &crate::summary::Summary| s.edge_hold.as_ref().map_or(0.0, |h| h.drag_counts);
+    let (da, db) = (counts(a), counts(b));
+    ((db - da).abs() >= verdict::NOISE_COUNTS).then(|| {
+        format!(
+            "holding the suction beside sharp edges that no surface streamline crossed moved A's drag \
+             by {da:+.0} counts and B's by {db:+.0} (each run's warning says where): {:+.0} counts of \
+             the difference rest on that rule, not on a computed pressure",
+            db - da
+        )
+    })
+}
 
 /// Where B's floor stands against A's at the axles, when both runs give
 /// floor heights and their pitch differs by [`RAKE_CHANGE_DEG`] or more:
@@ -1823,6 +1843,28 @@ mod tests {
             None
         );
         assert_eq!(clearance_note(&at(0.12, None), &at(0.14, None)), None);
+    }
+
+    /// Edge holds that move the two runs' drag alike say nothing; apart
+    /// by the noise floor or more, a note gives both.
+    #[test]
+    fn a_difference_resting_on_the_edge_hold_is_noted() {
+        let held = |counts: f64| {
+            let mut s = with_area(2.3);
+            s.edge_hold = Some(crate::summary::EdgeHold {
+                panels: 9,
+                drag_counts: counts,
+                ..Default::default()
+            });
+            s
+        };
+        assert_eq!(edge_hold_note(&held(20.0), &held(23.0)), None);
+        assert_eq!(
+            edge_hold_note(&with_area(2.3), &held(94.0)).unwrap(),
+            "holding the suction beside sharp edges that no surface streamline crossed moved A's \
+             drag by +0 counts and B's by +94 (each run's warning says where): +94 counts of the \
+             difference rest on that rule, not on a computed pressure"
+        );
     }
 
     /// A rake pair is told by the floor at each axle, not by the lowest

@@ -70,6 +70,9 @@ pub struct Computed {
     pub wakes: Option<WakeLoop>,
     /// The case's numbers at two other panel counts (`--noise`).
     pub panel_noise: Option<crate::noise::PanelNoise>,
+    /// The suction held beside sharp edges no line crossed, and what it
+    /// moved.
+    pub edge_hold: Option<crate::summary::EdgeHold>,
 }
 
 impl Computed {
@@ -908,12 +911,13 @@ fn finish(
         reference.rear_axle_x,
     ));
     warnings.extend(underbody_separation_warning(underbody_separation));
-    warnings.extend(edge_spike_warning(
+    let edge_hold = edge_hold(
         mesh,
         &spikes,
         (&potential.cp, &cp_separated),
         (&unheld, &estimate),
-    ));
+    );
+    warnings.extend(edge_hold.as_ref().and_then(edge_spike_warning));
     if !dead_water_run && separated_area > 0.0 {
         warnings.push(PLATEAU_DRAG_WARNING.into());
         warnings.extend(plateau_loads_warning(&estimate, &attached));
@@ -949,6 +953,7 @@ fn finish(
         warnings,
         wakes,
         panel_noise: None,
+        edge_hold,
     })
 }
 
@@ -1374,43 +1379,54 @@ fn hold_edge_spikes(
     held
 }
 
-/// A warning when the panels [`hold_edge_spikes`] held move the drag by
-/// more than the noise floor of a difference (6 counts) or the lift by
-/// more than its floor (C_L 0.018): the loads then rest on the rule that
-/// bounds an edge's suction, not on a computed pressure. `cps`: the
-/// attached and the held Cp; `loads`: the loads before and after.
-fn edge_spike_warning(
+/// What the panels [`hold_edge_spikes`] held moved: `cps`, the attached
+/// and the held Cp; `loads`, the loads before and after; `None` when none
+/// was held.
+fn edge_hold(
     mesh: &PanelMesh,
     held: &[usize],
     (attached_cp, cp): (&[f64], &[f64]),
     (unheld, estimate): (&Loads, &Loads),
-) -> Option<String> {
+) -> Option<crate::summary::EdgeHold> {
     let worst = *held
         .iter()
         .min_by(|&&a, &&b| attached_cp[a].total_cmp(&attached_cp[b]))?;
     let (before, after) = (&unheld.total.coefficients, &estimate.total.coefficients);
-    let drag_counts = 1e3 * (after.drag - before.drag);
-    if drag_counts.abs() < crate::compare::verdict::NOISE_COUNTS
-        && (after.lift - before.lift).abs() < crate::compare::verdict::LIFT_NOISE_CL
-    {
-        return None;
-    }
-    let lift_kg = estimate.lift_kg - unheld.lift_kg;
     let c = mesh.panels[worst].centroid;
-    Some(format!(
-        "{} panels beside sharp edges that no surface streamline crossed carry the attached \
-         flow's singular suction (Cp down to {:.1}, near x {:.3}, y {:.3}, z {:.3} m), which \
-         grows as the panels shrink; held at Cp {:.2}, as beside a sharp front edge, they move \
-         the drag by {drag_counts:+.0} counts and the lift by {lift_kg:+.0} kg, so those edges' \
-         loads rest on that rule, not on a computed pressure (a lip, a splitter's edge or a \
-         wheel arch's rim: round such an edge in the model to see what it does)",
-        held.len(),
-        attached_cp[worst],
-        c.x,
-        c.y,
-        c.z,
-        cp[worst],
-    ))
+    Some(crate::summary::EdgeHold {
+        panels: held.len(),
+        worst_cp: attached_cp[worst],
+        worst_at_m: [c.x, c.y, c.z],
+        held_cp: cp[worst],
+        drag_counts: 1e3 * (after.drag - before.drag),
+        lift_kg: estimate.lift_kg - unheld.lift_kg,
+        lift_cl: after.lift - before.lift,
+    })
+}
+
+/// Whether holding the edge suction moved the drag by the noise floor of a
+/// difference (6 counts) or more, or the lift by its floor (C_L 0.018).
+pub fn edge_hold_matters(h: &crate::summary::EdgeHold) -> bool {
+    h.drag_counts.abs() >= crate::compare::verdict::NOISE_COUNTS
+        || h.lift_cl.abs() >= crate::compare::verdict::LIFT_NOISE_CL
+}
+
+/// A warning when holding the edge suction matters ([`edge_hold_matters`]):
+/// the loads then rest on the rule that bounds an edge's suction, not on a
+/// computed pressure.
+fn edge_spike_warning(h: &crate::summary::EdgeHold) -> Option<String> {
+    let [x, y, z] = h.worst_at_m;
+    edge_hold_matters(h).then(|| {
+        format!(
+            "{} panels beside sharp edges that no surface streamline crossed carry the attached \
+             flow's singular suction (Cp down to {:.1}, near x {x:.3}, y {y:.3}, z {z:.3} m), which \
+             grows as the panels shrink; held at Cp {:.2}, as beside a sharp front edge, they move \
+             the drag by {:+.0} counts and the lift by {:+.0} kg, so those edges' loads rest on that \
+             rule, not on a computed pressure (a lip, a splitter's edge, a wheel arch's rim or a \
+             roof bar: round such an edge in the model to see what it does)",
+            h.panels, h.worst_cp, h.held_cp, h.drag_counts, h.lift_kg
+        )
+    })
 }
 
 /// Pressure with the separated regions' model: the plateau model after the

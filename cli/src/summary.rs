@@ -167,6 +167,26 @@ impl ReferenceValues {
     }
 }
 
+/// The panels beside sharp edges whose attached suction was held at the
+/// dead water's pressure, and what that moved.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
+pub struct EdgeHold {
+    /// Panels held.
+    pub panels: usize,
+    /// The strongest attached suction held, Cp.
+    pub worst_cp: f64,
+    /// Where it lies, m.
+    pub worst_at_m: [f64; 3],
+    /// The pressure they were held at, Cp.
+    pub held_cp: f64,
+    /// Drag moved by holding them, counts (held less unheld).
+    pub drag_counts: f64,
+    /// Lift moved by holding them, kg.
+    pub lift_kg: f64,
+    /// Lift coefficient moved by holding them.
+    pub lift_cl: f64,
+}
+
 /// Solver facts.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct SolverFacts {
@@ -225,6 +245,11 @@ pub struct Summary {
     /// The case's named regions and how much of each separated.
     #[serde(default)]
     pub regions: Vec<crate::region::RegionResult>,
+    /// What holding the suction beside sharp edges no surface streamline
+    /// crossed did to the loads (`pipeline::hold_edge_spikes`; absent when
+    /// no panel was held).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub edge_hold: Option<EdgeHold>,
     /// The same case solved at two other panel counts (`tuft run
     /// --noise`; absent without it).
     #[serde(default, skip_serializing_if = "Option::is_none")]

@@ -540,6 +540,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     // A body that may run backwards is the first thing to read.
     warnings.sort_by_key(|w| !crate::pipeline::questions_the_nose(w));
     let mut s = Summary {
+        edge_hold: c.edge_hold.clone(),
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         case_name: case.name.clone(),
         case: serde_json::to_value(&case.file).unwrap_or_default(),
