@@ -1639,7 +1639,7 @@ fn drag_band(
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
 
     /// A unit icosphere (`levels` subdivisions) in free air at 10 m/s, its
@@ -1664,7 +1664,7 @@ mod tests {
 
     /// A boundary layer with every panel attached (turbulent) and
     /// `separated` ones separated.
-    fn layer_with(mesh: &tuft_mesh::PanelMesh, separated: &[bool]) -> BoundaryLayer {
+    pub(crate) fn layer_with(mesh: &tuft_mesh::PanelMesh, separated: &[bool]) -> BoundaryLayer {
         use tuft_solver::boundary_layer::PanelLayer;
         BoundaryLayer {
             panels: separated

@@ -964,7 +964,6 @@ mod tests {
     fn half_and_whole_bodies_agree() {
         use tuft_mesh::Mirrors;
         use tuft_mesh::generate::{CoupeParams, coupe_with_params};
-        use tuft_solver::boundary_layer::PanelLayer;
         let regions =
             region("[[region]]\nname = \"rear window\"\nx = [3.15, 3.7]\nfacing = \"up\"\n");
         let result = |half: bool| {
@@ -979,29 +978,11 @@ mod tests {
                 symmetry: half,
             };
             let mesh = PanelMesh::new(body, mirrors).unwrap_or_else(|e| panic!("{e}"));
-            let panels = mesh
-                .panels
-                .iter()
-                .map(|p| PanelLayer {
-                    state: if p.centroid.x > 3.4 {
-                        FlowState::Separated
-                    } else {
-                        FlowState::Turbulent
-                    },
-                    risk: (p.centroid.x / 4.5).clamp(0.0, 1.0),
-                    ..PanelLayer::unresolved()
-                })
-                .collect();
-            let layer = BoundaryLayer {
-                panels,
-                streamlines: Vec::new(),
-                unresolved: 0,
-                transition_panels: Vec::new(),
-                separation_panels: Vec::new(),
-                separation_source: vec![None; mesh.len()],
-                attachments: Vec::new(),
-                rim_zone: vec![false; mesh.len()],
-            };
+            let behind: Vec<bool> = mesh.panels.iter().map(|p| p.centroid.x > 3.4).collect();
+            let mut layer = crate::pipeline::tests::layer_with(&mesh, &behind);
+            for (l, p) in layer.panels.iter_mut().zip(&mesh.panels) {
+                l.risk = (p.centroid.x / 4.5).clamp(0.0, 1.0);
+            }
             evaluate(&regions, &memberships(&regions, &mesh), &mesh, &layer).remove(0)
         };
         let (whole, half) = (result(false), result(true));
