@@ -561,12 +561,9 @@ pub fn comparison_named(
     // Not where the ride height is the whole change (B's body, moved onto
     // A's, changed nowhere: a ride-height study).
     if let Some(words) =
-        floors_apart_words(&a.summary, &b.summary).filter(|_| surface.changed_m2 > 0.0)
+        floors_apart_words(&a.summary, &b.summary, names[1]).filter(|_| surface.changed_m2 > 0.0)
     {
-        drag.text += &format!(
-            "; {}, so the difference mixes the ride height with the change",
-            words.replacen("B's", &format!("{}'s", names[1]), 1)
-        );
+        drag.text += &format!("; {words}, so the difference mixes the ride height with the change");
     } else if let Some((ca, cb)) = clearances_apart(&a.summary, &b.summary)
         && surface.changed_m2 > 0.0
     {
@@ -1034,7 +1031,7 @@ pub const UNDERBODY_LIFT_WORDS: &str = "moves mostly with the smooth underbody's
 /// millimetre apart: both clearances, and what the lift difference then
 /// rests on.
 fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
-    if let Some(words) = floors_apart_words(a, b) {
+    if let Some(words) = floors_apart_words(a, b, "B") {
         return Some(format!(
             "the floors stand at other heights ({words}): the lift across ride heights and rake \
              {UNDERBODY_LIFT_WORDS}"
@@ -1082,7 +1079,11 @@ fn edge_hold_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> O
 /// higher (124 against 102 mm) at the rear, pitched 1.0 degrees more nose
 /// down" (a review's rake pair had read "26 mm lower" from the lowest
 /// points, where the rear had risen).
-fn floors_apart_words(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+fn floors_apart_words(
+    a: &crate::summary::Summary,
+    b: &crate::summary::Summary,
+    b_name: &str,
+) -> Option<String> {
     let (fa, fb) = (a.reference.floor_heights_m?, b.reference.floor_heights_m?);
     let (ra, rb) = (a.reference.rake_deg()?, b.reference.rake_deg()?);
     if (rb - ra).abs() < RAKE_CHANGE_DEG {
@@ -1108,7 +1109,7 @@ fn floors_apart_words(a: &crate::summary::Summary, b: &crate::summary::Summary) 
         if rb > ra { "down" } else { "up" }
     );
     Some(format!(
-        "B's floor {} at the front axle and {} at the rear{pitch}",
+        "{b_name}'s floor {} at the front axle and {} at the rear{pitch}",
         way(fa[0], fb[0]),
         way(fa[1], fb[1])
     ))
@@ -1603,8 +1604,8 @@ fn drag_share_words(c: &Comparison) -> String {
         return String::new();
     }
     format!(
-        " ({}% of A's, {} N, {} kW at {})",
-        crate::output::signed(100.0 * d.drag_counts / a_counts, 0) + " ",
+        " ({} % of A's, {} N, {} kW at {})",
+        crate::output::signed(100.0 * d.drag_counts / a_counts, 0),
         crate::output::signed(d.drag_force_n, 0),
         crate::output::signed(d.drag_force_n * c.b.speed / 1000.0, 1),
         crate::output::speed_words(c.b.speed)

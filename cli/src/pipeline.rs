@@ -1574,11 +1574,8 @@ fn drag_band(
                 }
             }
         }
-        shade_faces_in_dead_water(
-            mesh,
-            &mut layer,
-            &potential.freestream.velocity().normalize(),
-        );
+        let stream = potential.freestream.velocity().normalize();
+        shade_faces_in_dead_water(mesh, &mut layer, &stream);
         for (r, v) in results
             .iter_mut()
             .zip(crate::region::evaluate(regions, member, mesh, &layer))
@@ -1587,8 +1584,6 @@ fn drag_band(
             r.separated_band = [r.separated_band[0].min(f), r.separated_band[1].max(f)];
             r.standing = r.firmness().into();
         }
-        let stream = potential.freestream.velocity().normalize();
-        shade_faces_in_dead_water(mesh, &mut layer, &stream);
         let friction = friction_vectors(&potential.velocity, &layer, air.speed);
         let mut cp = separated_cp(mesh, potential, &layer, &friction, dead_water.is_some());
         hold_edge_spikes(

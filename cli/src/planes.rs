@@ -111,9 +111,7 @@ impl Plane {
             size: (ra[1] - ra[0], rb[1] - rb[0]),
         }
     }
-}
 
-impl Plane {
     /// Where the plane lies and how the picture sees it, in words:
     /// "plane x = 4.3 m, seen from behind".
     pub fn words(&self) -> String {

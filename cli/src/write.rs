@@ -375,14 +375,14 @@ fn floor_z(mesh: &PanelMesh) -> Option<f64> {
 
 /// The floor's height above the ground at each of two axles, m: the
 /// lowest surface facing down on the centre line, within a fortieth of the
-/// body's length of the axle and of the centre (the median there read a
-/// diffuser's ramp starting ahead of the demo coupe's rear axle as 20 mm
-/// of rake; a rake study's variants had only their
-/// lowest points to tell them apart, a review's 1-degree rake reading "26
-/// mm lower" where the front had dropped 26 mm and the rear risen 22; over
-/// the whole width the demo coupe's underside, rounded up to its sills,
-/// read 10 mm above its 120 mm floor, and the tyres stand off the centre
-/// line); `None` in free air or with no surface facing down there.
+/// body's length of the axle and of the centre; `None` in free air or with
+/// no surface facing down there. A rake study's variants had only their
+/// lowest points to tell them apart (a review's 1-degree rake read "26 mm
+/// lower" where the front had dropped 26 mm and the rear risen 22). The
+/// centre line keeps the tyres out and the sills' rounding too (across the
+/// whole width the demo coupe's underside read 10 mm above its 120 mm
+/// floor), and the lowest rather than the median keeps a diffuser's ramp
+/// starting ahead of the axle from reading as rake.
 fn floor_heights(mesh: &PanelMesh, axles: [f64; 2]) -> Option<[f64; 2]> {
     let g = mesh.mirrors.ground?;
     let (lo, hi) = mesh.bounds();
