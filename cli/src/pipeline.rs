@@ -331,7 +331,12 @@ fn fitting_operator(
     estimate::check_fits(
         mesh.len(),
         (operator, case.operator.is_some()),
-        (mesh.mirrors.symmetry, loop_on, suggested),
+        (
+            mesh.mirrors.symmetry,
+            loop_on,
+            suggested,
+            case.file.geometry.panels.unwrap_or(0),
+        ),
         available,
     )?;
     Ok(operator)
