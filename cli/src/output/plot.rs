@@ -608,26 +608,73 @@ pub fn centre_y(mesh: &tuft_mesh::PanelMesh) -> f64 {
 /// ([`centre_y`]) cuts, at the middle of the cut (or, with a band, of the
 /// panels whose centroid lies within it, at the centroid), split by the
 /// sign of the normal's z component into upper and lower surface, each
-/// sorted by x.
+/// sorted by x. A panel facing up with other surface above it on the
+/// plane (the roof under a roof box or a rear wing), or facing down with
+/// surface below it (the box's underside), is in neither but in `under`
+/// or `over` a part: a review's estate with bars and a box had its upper curve
+/// zig-zag between roof, bar tops and box top, and the lower one through
+/// the box's underside and the car's floor.
 pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centreline {
     let y = centre_y(s.mesh);
-    let (mut upper, mut lower) = (Vec::new(), Vec::new());
+    // Each cut panel: where it is cut (x, z at the middle), the cut's two
+    // ends, Cp, whether separated and whether it faces up.
+    let mut cuts = Vec::new();
     for ((p, &cp), &state) in s.mesh.panels.iter().zip(s.cp).zip(s.state) {
-        let x = match params.band {
-            Some(band) => ((p.centroid.y - y).abs() <= band).then_some(p.centroid.x),
-            None => cut_x(&p.vertices, y),
+        let ends = match params.band {
+            Some(band) => ((p.centroid.y - y).abs() <= band).then(|| {
+                let (lo, hi) = p
+                    .vertices
+                    .iter()
+                    .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
+                        (l.min(v.x), h.max(v.x))
+                    });
+                [(lo, p.centroid.z), (hi, p.centroid.z)]
+            }),
+            None => cut_ends(&p.vertices, y),
         };
-        if let Some(x) = x {
-            let side = if p.normal.z >= 0.0 {
-                &mut upper
-            } else {
-                &mut lower
+        if let Some(ends) = ends {
+            let mid = match params.band {
+                Some(_) => (p.centroid.x, p.centroid.z),
+                None => (0.5 * (ends[0].0 + ends[1].0), 0.5 * (ends[0].1 + ends[1].1)),
             };
-            side.push((x, cp, state == PanelState::Separated));
+            cuts.push((
+                mid,
+                ends,
+                cp,
+                state == PanelState::Separated,
+                p.normal.z >= 0.0,
+            ));
         }
     }
-    upper.sort_by(|a, b| a.0.total_cmp(&b.0));
-    lower.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let (lo, hi) = s.mesh.bounds();
+    let tol_z = 1e-3 * (hi.z - lo.z);
+    // The height of a cut (ends sorted by x, apart) at `x`, when `x` lies
+    // within it.
+    let height_at = |ends: &[(f64, f64); 2], x: f64| {
+        let [(x0, z0), (x1, z1)] = *ends;
+        (x0..=x1)
+            .contains(&x)
+            .then(|| z0 + (z1 - z0) * (x - x0) / (x1 - x0))
+    };
+    let (mut upper, mut lower) = (Vec::new(), Vec::new());
+    let (mut under, mut over) = (Vec::new(), Vec::new());
+    for (k, &((x, z), _, cp, separated, up)) in cuts.iter().enumerate() {
+        let covered = cuts.iter().enumerate().any(|(j, c)| {
+            j != k
+                && height_at(&c.1, x)
+                    .is_some_and(|h| if up { h > z + tol_z } else { h < z - tol_z })
+        });
+        let side = match (covered, up) {
+            (true, true) => &mut under,
+            (true, false) => &mut over,
+            (false, true) => &mut upper,
+            (false, false) => &mut lower,
+        };
+        side.push((x, cp, separated));
+    }
+    for side in [&mut upper, &mut lower, &mut under, &mut over] {
+        side.sort_by(|a, b| a.0.total_cmp(&b.0));
+    }
     let points = |v: &[(f64, f64, bool)]| v.iter().map(|p| (p.0, p.1)).collect();
     Centreline {
         y,
@@ -635,6 +682,8 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
         lower_separated: separated_spans(&lower),
         upper: points(&upper),
         lower: points(&lower),
+        under: points(&under),
+        over: points(&over),
     }
 }
 
@@ -683,28 +732,32 @@ pub struct Centreline {
     pub upper_separated: Vec<(f64, f64)>,
     /// The same for the lower surface.
     pub lower_separated: Vec<(f64, f64)>,
+    /// Panels facing up with surface above them on the plane: under a
+    /// part (the roof under a roof box).
+    pub under: Vec<(f64, f64)>,
+    /// Panels facing down with surface below them: over a part (the roof
+    /// box's underside).
+    pub over: Vec<(f64, f64)>,
 }
 
-/// The x of the middle of the segment where the plane at `y` cuts a
+/// The two ends `(x, z)` of the segment where the plane at `y` cuts a
 /// triangle (edges that cross it, and corners on it); `None` when it does
 /// not reach the plane or touches it at one corner only.
-fn cut_x(v: &[tuft_mesh::Point; 3], y: f64) -> Option<f64> {
-    let mut xs = Vec::with_capacity(3);
+fn cut_ends(v: &[tuft_mesh::Point; 3], y: f64) -> Option<[(f64, f64); 2]> {
+    let mut at = Vec::with_capacity(3);
     for k in 0..3 {
         let (a, b) = (v[k], v[(k + 1) % 3]);
         let (da, db) = (a.y - y, b.y - y);
         if da == 0.0 {
-            xs.push(a.x);
+            at.push((a.x, a.z));
         } else if da * db < 0.0 {
-            xs.push(a.x + (b.x - a.x) * da / (da - db));
+            let t = da / (da - db);
+            at.push((a.x + (b.x - a.x) * t, a.z + (b.z - a.z) * t));
         }
     }
-    let (lo, hi) = xs
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &x| {
-            (l.min(x), h.max(x))
-        });
-    (hi > lo).then_some(0.5 * (lo + hi))
+    let lo = at.iter().copied().min_by(|p, q| p.0.total_cmp(&q.0))?;
+    let hi = at.iter().copied().max_by(|p, q| p.0.total_cmp(&q.0))?;
+    (hi.0 > lo.0).then_some([lo, hi])
 }
 
 /// The centre-line Cp plot.
@@ -758,11 +811,13 @@ pub fn centreline_cp_plot_with_params(
         mut lower,
         upper_separated,
         lower_separated,
+        mut under,
+        mut over,
     } = centreline_cp(s, params);
-    let clipped = match (clip_suction(&mut upper), clip_suction(&mut lower)) {
-        (Some(a), Some(b)) => Some((a.0 + b.0, a.1.min(b.1))),
-        (a, b) => a.or(b),
-    };
+    let clipped = [&mut upper, &mut lower, &mut under, &mut over]
+        .into_iter()
+        .filter_map(|side| clip_suction(side))
+        .reduce(|a, b| (a.0 + b.0, a.1.min(b.1)));
     let plane = if s.mesh.mirrors.symmetry {
         "the symmetry plane y = 0".to_owned()
     } else {
@@ -783,26 +838,46 @@ pub fn centreline_cp_plot_with_params(
         );
     }
     let (shading, note) = separated_shading(s.dead_water_cp, &upper_separated, &lower_separated);
+    let between_words = if under.is_empty() && over.is_empty() {
+        ""
+    } else {
+        " Under a part: facing up with more of the body above it (a roof under a box); over a part: \
+         facing down with more of the body below it."
+    };
+    let mut series = vec![
+        Series {
+            name: "upper surface".to_owned(),
+            points: upper,
+            colour: SERIES_COLOURS[0],
+        },
+        Series {
+            name: "lower surface".to_owned(),
+            points: lower,
+            colour: SERIES_COLOURS[1],
+        },
+    ];
+    for (name, points, colour) in [
+        ("under a part", under, SERIES_COLOURS[2]),
+        ("over a part", over, SERIES_COLOURS[3]),
+    ] {
+        if !points.is_empty() {
+            series.push(Series {
+                name: name.to_owned(),
+                points,
+                colour,
+            });
+        }
+    }
     let plot = LinePlot {
         title: caption.title("Centre-line pressure"),
         subtitle: format!(
-            "Panels on {plane}; upper surface: normal pointing up. Cp axis inverted: suction up.{none}"
+            "Panels on {plane}; upper surface: normal pointing up, nothing above it.{between_words} \
+             Cp axis inverted: suction up.{none}"
         ),
         x_label: "x [m] (downstream)".to_owned(),
         y_label: "Cp [-]".to_owned(),
         invert_y: true,
-        series: vec![
-            Series {
-                name: "upper surface".to_owned(),
-                points: upper,
-                colour: SERIES_COLOURS[0],
-            },
-            Series {
-                name: "lower surface".to_owned(),
-                points: lower,
-                colour: SERIES_COLOURS[1],
-            },
-        ],
+        series,
         shading,
         note,
         ..LinePlot::default()
@@ -921,6 +996,55 @@ mod tests {
             assert!((cp - exact).abs() < 0.12, "x {x}: {cp} vs {exact}");
         }
         assert!(upper.windows(2).all(|w| w[0].0 <= w[1].0));
+        assert!(upper.windows(2).all(|w| w[0].0 <= w[1].0));
+        // One body: nothing is under or over another part.
+        let c = centreline_cp(&f.surface(), &CentrelineParams::default());
+        assert!(c.under.is_empty() && c.over.is_empty(), "{c:?}");
+    }
+
+    /// A small sphere above a large one, as a roof box over a roof: the
+    /// large sphere's top under the small one is "under a part", the small
+    /// one's underside "over a part", and the upper and lower curves keep
+    /// only the outer surfaces (a review's estate with a roof box had its
+    /// upper curve zig-zag between roof and box top).
+    #[test]
+    fn a_part_above_the_body_splits_off_the_surfaces_between() {
+        let body = tuft_mesh::generate::icosphere(1.0, 3);
+        let mut both = body.clone();
+        let offset = body.vertices.len() as u32;
+        let top = tuft_mesh::generate::icosphere(0.3, 3);
+        both.vertices.extend(
+            top.vertices
+                .iter()
+                .map(|p| p + nalgebra::Vector3::new(0.0, 0.0, 1.5)),
+        );
+        both.triangles
+            .extend(top.triangles.iter().map(|t| t.map(|v| v + offset)));
+        let mut f = Fixture::sphere(3);
+        f.mesh = tuft_mesh::PanelMesh::new(both, tuft_mesh::Mirrors::none()).unwrap();
+        let n = f.mesh.len();
+        f.cp = vec![0.0; n];
+        f.velocity = vec![nalgebra::Vector3::x(); n];
+        for field in [&mut f.theta, &mut f.shape_factor, &mut f.cf, &mut f.risk] {
+            *field = vec![0.0; n];
+        }
+        f.state = vec![PanelState::Turbulent; n];
+        let c = centreline_cp(&f.surface(), &CentrelineParams::default());
+        // The large sphere's top within the small one's shadow (|x| under
+        // 0.3, less a panel) is under it; the small one's underside over it.
+        assert!(c.under.len() >= 4 && c.over.len() >= 4, "{c:?}");
+        assert!(
+            c.under.iter().chain(&c.over).all(|p| p.0.abs() < 0.3),
+            "{c:?}"
+        );
+        // The upper curve: the large sphere's top outside the shadow and
+        // the small one's top; the lower: the large sphere's underside.
+        assert!(c.upper.iter().any(|p| p.0.abs() < 0.1), "{c:?}");
+        assert!(c.upper.iter().any(|p| p.0.abs() > 0.5), "{c:?}");
+        assert!(c.lower.iter().all(|p| p.0.abs() <= 1.0), "{c:?}");
+        let plain = centreline_cp(&Fixture::sphere(3).surface(), &CentrelineParams::default());
+        let xs = |v: &[(f64, f64)]| v.iter().map(|p| p.0).collect::<Vec<_>>();
+        assert_eq!(xs(&c.lower), xs(&plain.lower));
     }
 
     /// The legend goes to the first corner (top right, top left, bottom
