@@ -287,6 +287,15 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
     };
     for region in &case.file.regions {
         let (n, area) = crate::region::extent(region, panels);
+        if n == 0 {
+            // Only an optional region gets here empty (placement refuses
+            // the others first).
+            s += &format!(
+                "region     \"{}\": no panel of this body (optional: left out of its results)\n",
+                region.name
+            );
+            continue;
+        }
         s += &format!(
             "region     \"{}\": {n} panels, {area:.3} m^2{sides}\n",
             region.name

@@ -51,8 +51,9 @@ pub struct Sample {
     /// Area beside sharp front edges the flow leaves (the rim zone), m^2,
     /// whole body.
     pub rim_m2: f64,
-    /// Each named region's separated share, in the case's order.
-    pub regions: Vec<f64>,
+    /// Each named region's name and separated share, in the case's order
+    /// (an optional region holding no panel at this count is absent).
+    pub regions: Vec<(String, f64)>,
 }
 
 impl Sample {
@@ -67,7 +68,11 @@ impl Sample {
             separated: c.separated_area / mesh.area(),
             underbody: c.underbody_fraction(),
             rim_m2: c.rim_m2(mesh),
-            regions: c.regions.iter().map(|r| r.separated_fraction).collect(),
+            regions: c
+                .regions
+                .iter()
+                .map(|r| (r.name.clone(), r.separated_fraction))
+                .collect(),
         }
     }
 }
@@ -145,14 +150,17 @@ impl PanelNoise {
             separated_fraction: all(|s| s.separated),
             underbody_fraction: all(|s| s.underbody),
             rim_m2: all(|s| s.rim_m2),
-            region_fractions: (0..samples.first().map_or(0, |s| s.regions.len()))
-                .map(|k| {
-                    samples
-                        .iter()
-                        .filter_map(|s| s.regions.get(k).copied())
-                        .collect()
-                })
-                .collect(),
+            region_fractions: samples.first().map_or(Vec::new(), |own| {
+                own.regions
+                    .iter()
+                    .map(|(name, _)| {
+                        samples
+                            .iter()
+                            .filter_map(|s| s.regions.iter().find(|g| &g.0 == name).map(|g| g.1))
+                            .collect()
+                    })
+                    .collect()
+            }),
         }
     }
 
@@ -389,7 +397,7 @@ mod tests {
             separated: 0.1,
             underbody: 0.05,
             rim_m2: 0.0,
-            regions: vec![f, 0.5],
+            regions: vec![("deck".into(), f), ("window".into(), 0.5)],
         };
         let n = PanelNoise::from_samples(&[
             s(4000, 0.300, -0.10, 5.0, -20.0),

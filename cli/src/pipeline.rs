@@ -62,8 +62,10 @@ pub struct Computed {
     /// Lift of the ground-facing panels' pressure, kg: whole, front axle,
     /// rear axle.
     pub underbody_lift_kg: [f64; 3],
-    /// The case's named regions.
+    /// The case's named regions (but optional ones holding no panel).
     pub regions: Vec<crate::region::RegionResult>,
+    /// A note for each optional region holding no panel, left out.
+    pub region_notes: Vec<String>,
     /// Warnings the user must read.
     pub warnings: Vec<String>,
     /// The separated-flow loop, when it ran.
@@ -814,8 +816,9 @@ fn finish(
         None => None,
     };
     let underbody_lift_kg = underbody_lift(mesh, &cp_separated, &reference, &air)?;
-    let member = crate::region::memberships(&case.file.regions, mesh);
-    let mut regions = crate::region::evaluate(&case.file.regions, &member, mesh, &layer);
+    let (named, region_notes) = crate::region::on_body(&case.file.regions, mesh);
+    let member = crate::region::memberships(&named, mesh);
+    let mut regions = crate::region::evaluate(&named, &member, mesh, &layer);
     // In a cross wind the sides differ by right.
     if case.file.flow.yaw != 0.0 {
         for r in &mut regions {
@@ -835,7 +838,7 @@ fn finish(
             estimate.total.coefficients.drag,
             attached.total.coefficients.drag.abs(),
         ),
-        (&case.file.regions, &member, &mut regions),
+        (&named, &member, &mut regions),
     )?;
     progress.end(
         phase,
@@ -955,6 +958,7 @@ fn finish(
         rim,
         underbody_lift_kg,
         regions,
+        region_notes,
         warnings,
         wakes,
         panel_noise: None,

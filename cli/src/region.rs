@@ -29,6 +29,11 @@ pub struct RegionSection {
     /// Which way the panels face: `up`, `down`, `front`, `rear` or `side`
     /// (absent: any).
     pub facing: Option<String>,
+    /// The region may hold no panel (a part only some variants of a sweep
+    /// have, as a roof box): such a body leaves it out of its results,
+    /// with a note, instead of refusing the case.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub optional: bool,
 }
 
 /// A panel faces a direction when its outward normal's component along
@@ -392,7 +397,7 @@ pub fn extent(r: &RegionSection, mesh: &PanelMesh) -> (usize, f64) {
 /// # Errors
 /// One sentence naming the region and the body's extent.
 pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> {
-    for r in regions {
+    for r in regions.iter().filter(|r| !r.optional) {
         if extent(r, mesh).0 == 0 {
             let (lo, hi) = mesh.bounds();
             let lo_y = if mesh.mirrors.symmetry { -hi.y } else { lo.y };
@@ -408,7 +413,8 @@ pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> 
             });
             bail!(
                 "region \"{}\" holds no panel of the body (which spans x {:.3} to {:.3}, y {:.3} to {:.3}, \
-                 z {:.3} to {:.3} m): check its ranges (metres) and facing{hidden}",
+                 z {:.3} to {:.3} m): check its ranges (metres) and facing{hidden}; a part only \
+                 some variants of a sweep have takes optional = true",
                 r.name,
                 lo.x,
                 hi.x,
@@ -420,6 +426,27 @@ pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> 
         }
     }
     Ok(())
+}
+
+/// How the note on an optional region left out begins.
+pub const LEFT_OUT: &str = "the optional region";
+
+/// The regions that hold panels of `mesh`: every one but an optional
+/// region holding none ([`RegionSection::optional`]), and a note for each
+/// of those.
+pub fn on_body(regions: &[RegionSection], mesh: &PanelMesh) -> (Vec<RegionSection>, Vec<String>) {
+    let (mut kept, mut notes) = (Vec::new(), Vec::new());
+    for r in regions {
+        if r.optional && extent(r, mesh).0 == 0 {
+            notes.push(format!(
+                "{LEFT_OUT} \"{}\" holds no panel of this body and is left out of its results",
+                r.name
+            ));
+        } else {
+            kept.push(r.clone());
+        }
+    }
+    (kept, notes)
 }
 
 /// Each region's panels as the pictures draw them: the real panels, then

@@ -244,6 +244,13 @@ fn print_summary(out: &Path, s: &Summary) {
     for r in &s.regions {
         say!("  {}: {}", r.name, r.words());
     }
+    for n in s
+        .notes
+        .iter()
+        .filter(|n| n.starts_with(crate::region::LEFT_OUT))
+    {
+        say!("  note: {n}");
+    }
     // Region verdicts on a coarse mesh: the report's note, where the
     // verdicts are read.
     if let (false, Some(note)) = (s.regions.is_empty(), s.coarse_note()) {
@@ -305,6 +312,7 @@ pub fn demo_case(slope: f64) -> Result<Case> {
                 y: None,
                 z: None,
                 facing: Some("up".into()),
+                optional: false,
             })
             .collect(),
         ..CaseFile::default()

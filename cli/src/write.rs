@@ -202,7 +202,10 @@ pub fn write_all(
             vtk::write_slice(w, s)
         })?;
     }
-    let marks = crate::region::marks(&case.file.regions, &geo.mesh);
+    let marks = crate::region::marks(
+        &crate::region::on_body(&case.file.regions, &geo.mesh).0,
+        &geo.mesh,
+    );
     let pictures = pictures(&surface, &slices, &marks, &caption)?;
     for p in &pictures {
         std::fs::write(out.file(&p.0), &p.1.png).with_context(|| p.0.clone())?;
@@ -616,6 +619,7 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         caution: CAUTION.into(),
     };
     s.notes.extend(s.coarse_note());
+    s.notes.extend(c.region_notes.iter().cloned());
     s
 }
 

@@ -213,7 +213,56 @@ fn a_region_off_the_body_is_refused() {
         "region-in-mm",
         &format!("{SPHERE}[[region]]\nname = \"rear\"\nx = [150, 500]\n"),
         false,
-        &["region \"rear\"", "holds no panel"],
+        &["region \"rear\"", "holds no panel", "optional = true"],
+    );
+}
+
+/// The same region marked optional (a part only some variants of a sweep
+/// have, as a roof box) leaves the run going: the region is left out of
+/// the results with a note, on stdout and in summary.json, and `check`
+/// says so (a review's sweep over an estate with and without a box
+/// failed on every variant without it).
+#[test]
+fn an_optional_region_off_the_body_is_left_out_with_a_note() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = format!(
+        "{TINY}[[region]]\nname = \"rear\"\nx = [0.2, 1.5]\n\
+         [[region]]\nname = \"box\"\nx = [150, 500]\noptional = true\n"
+    );
+    std::fs::write(dir.path().join("opt.toml"), case).unwrap();
+    let o = tuft(dir.path(), &["check", "opt.toml"]);
+    assert!(
+        o.stdout
+            .contains("region     \"box\": no panel of this body (optional"),
+        "{}",
+        o.stdout
+    );
+    let o = tuft(dir.path(), &["run", "opt.toml"]);
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    assert!(
+        o.stdout
+            .contains("note: the optional region \"box\" holds no panel of this body"),
+        "{}",
+        o.stdout
+    );
+    let summary: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path().join("opt/summary.json")).unwrap())
+            .unwrap();
+    let names: Vec<&str> = summary["regions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["rear"]);
+    assert!(
+        summary["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|n| n.as_str().unwrap().contains("\"box\" holds no panel")),
+        "{}",
+        summary["notes"]
     );
 }
 

@@ -531,6 +531,7 @@ mod tests {
             y: None,
             z: None,
             facing: Some("down".into()),
+            optional: false,
         };
         let marks = crate::region::marks(&[diffuser], &mesh);
         let named = |lay: &GlanceLayout| {

@@ -601,6 +601,7 @@ mod tests {
             y: None,
             z: None,
             facing: Some(facing.into()),
+            optional: false,
         };
         let sections = [
             region("rear window", [3.15, 3.7], "up"),
