@@ -777,7 +777,9 @@ mod tests {
         // A spacing that does not divide the window: every sample within.
         let p = place(&narrowed(None, Some([1.4, 2.1]), Some(0.03)), &BOX, 0.01).unwrap();
         assert_eq!(p.dims, (134, 24));
-        assert!(23.0 * 0.03 <= 0.7 && 133.0 * 0.03 <= 4.0);
+        let last = |n: usize| (n - 1) as f64 * p.spacing;
+        assert!(last(p.dims.0) <= p.size.0 && last(p.dims.1) <= p.size.1);
+        assert!(last(p.dims.0 + 1) > p.size.0 && last(p.dims.1 + 1) > p.size.1);
         assert_eq!(p.finer_than_panels, None);
         assert_eq!(p.resolution_words(), None);
         // Across the whole box at the built-in rule, sampled as the
