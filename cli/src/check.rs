@@ -268,8 +268,8 @@ fn save_panels(
 }
 
 /// Where the case puts the axles and its named regions on the body, and
-/// its own flow slices, in tuft's axes (checked to lie on it, or in the
-/// slices' box, before this is printed).
+/// its own flow slices with their windows and spacings, in tuft's axes
+/// (checked to lie on it, or in the slices' box, before this is printed).
 fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> String {
     let r = &case.file.reference;
     let mut s = match (r.front_axle_x, r.rear_axle_x) {
@@ -302,13 +302,19 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
         );
     }
     // The case's own flow slices (placed in the box before this prints).
+    // Its window and samples too, since a range or a spacing can be cut
+    // or refused only against the body.
     for plane in crate::planes::placed(&case.file.slices, panels).unwrap_or_default() {
         s += &format!(
-            "slice      \"{}\": {}, slice-{}.png\n",
+            "slice      \"{}\": {}, {}, slice-{}.png\n",
             plane.title,
             plane.words(),
+            plane.grid_words(),
             plane.stem
         );
+        if let Some(words) = plane.resolution_words() {
+            s += &format!("           {words}\n");
+        }
     }
     s
 }

@@ -25,9 +25,6 @@ use crate::summary::{
     Separation, SolverFacts, Summary,
 };
 
-/// Samples along the longer side of a flow slice.
-const SLICE_SAMPLES: usize = 110;
-
 /// Per-panel fields in the shapes the writers take.
 pub struct Fields {
     /// Momentum thickness.
@@ -435,14 +432,8 @@ fn slice_note(c: &Computed) -> String {
 }
 
 fn grid(field: &FlowField, field_speed2: f64, plane: &Plane) -> Slice {
-    let size = plane.size;
     let (a, b) = plane.axes;
-    let origin = plane.origin;
-    let spacing = size.0.max(size.1) / SLICE_SAMPLES as f64;
-    let dims = (
-        (size.0 / spacing).round() as usize + 1,
-        (size.1 / spacing).round() as usize + 1,
-    );
+    let (origin, spacing, dims) = (plane.origin, plane.spacing, plane.dims);
     let points: Vec<Point3<f64>> = (0..dims.1)
         .flat_map(|j| {
             (0..dims.0).map(move |i| origin + a * (i as f64 * spacing) + b * (j as f64 * spacing))
@@ -466,6 +457,7 @@ fn grid(field: &FlowField, field_speed2: f64, plane: &Plane) -> Slice {
         near_surface: vec![],
         dead_water: vec![],
         note: String::new(),
+        resolution: plane.resolution_words().unwrap_or_default(),
     }
 }
 

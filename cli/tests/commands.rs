@@ -513,10 +513,22 @@ fn the_readme_case_file_runs() {
     )
     .unwrap();
     assert_eq!(summary["reference"]["front_axle_x_m"].as_f64(), Some(0.95));
-    // Its [[slice]] adds a plane across the diffuser's exit.
+    // Its [[slice]] adds a plane across the diffuser's exit, over the
+    // window it gives (its z range cut at the box's floor, 1.3 mm over
+    // the ground) at 10 mm.
     for f in ["slice-diffuser-exit.png", "slice-diffuser-exit.vti"] {
         assert!(dir.path().join("my-car").join(f).exists(), "{f}");
     }
+    let grid = common::vtk_read(
+        "r = vtkIOXML.vtkXMLImageDataReader(); r.SetFileName(sys.argv[1]); r.Update()\n\
+         g = r.GetOutput(); print(*g.GetDimensions(), *g.GetOrigin(), *g.GetSpacing())\n",
+        &dir.path().join("my-car/slice-diffuser-exit.vti"),
+    );
+    let v: Vec<f64> = grid[0].iter().map(|w| w.parse().unwrap()).collect();
+    assert_eq!(v[..3], [201.0, 60.0, 1.0]);
+    assert_eq!(v[3..5], [4.3, -1.0]);
+    assert!(v[5] > 0.0 && v[5] < 0.002, "z from {}", v[5]);
+    assert!((v[6] - 0.01).abs() < 1e-12 && (v[7] - 0.01).abs() < 1e-12);
 }
 
 /// The README's sweep example varies the rear window of the built-in coupe

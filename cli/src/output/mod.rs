@@ -244,6 +244,9 @@ pub struct Slice {
     /// Which flow the slice shows and what it leaves out, for the
     /// picture's subtitle (empty for none).
     pub note: String,
+    /// What the samples cannot show for lying closer together than the
+    /// panels resolve, a line of the picture's subtitle (empty for none).
+    pub resolution: String,
 }
 
 impl Slice {
@@ -364,6 +367,17 @@ pub fn short_number(v: f64) -> String {
     } else {
         s.to_owned()
     }
+}
+
+/// `v` with three significant digits below 0.1 (a spacing of 2.5 mm
+/// reads 0.0025, not 0.003), else as [`short_number`].
+pub fn fine_number(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() || v.abs() >= 0.1 {
+        return short_number(v);
+    }
+    let decimals = (2 - v.abs().log10().floor() as i32).max(0) as usize;
+    let s = format!("{v:.decimals$}");
+    s.trim_end_matches('0').trim_end_matches('.').to_owned()
 }
 
 /// `v` rounded to `places` decimals, a rounded zero never written "-0".

@@ -269,18 +269,25 @@ pub fn slice_picture_with_params(
         44.0,
         &super::sheet::title_style(&title, room),
     );
-    for (k, line) in [describe_plane(slice), slice.note.clone()]
-        .iter()
-        .filter(|l| !l.is_empty())
-        .enumerate()
+    for (k, line) in [
+        describe_plane(slice),
+        slice.resolution.clone(),
+        slice.note.clone(),
+    ]
+    .iter()
+    .filter(|l| !l.is_empty())
+    .enumerate()
     {
-        text::draw(
-            &mut c,
-            line,
-            30.0,
-            74.0 + 22.0 * k as f32,
-            &TextStyle::new(16.0).colour(MUTED),
-        );
+        // 16 px, smaller (down to 12) for a line that would run off the
+        // picture.
+        let full = TextStyle::new(16.0).colour(MUTED);
+        let width = text::width(line, &full);
+        let style = if width > room {
+            TextStyle::new((16.0 * room / width).max(12.0)).colour(MUTED)
+        } else {
+            full
+        };
+        text::draw(&mut c, line, 30.0, 74.0 + 22.0 * k as f32, &style);
     }
     Ok((c, frames))
 }
@@ -376,7 +383,14 @@ fn panel_frames(slice: &Slice, params: &SliceParams) -> [SliceFrame; 2] {
     let (width, height) = (f64::from(params.width), f64::from(params.height));
     // Room for the tick labels and axis name on the left, the colour bar
     // on the right, and the ticks and field name between two frames.
-    let (left, top, right, gap) = (110.0, 130.0, 230.0, 90.0);
+    // A third line under the title (the samples' resolution) moves the
+    // frames down by its height.
+    let under_title = if slice.resolution.is_empty() {
+        0.0
+    } else {
+        22.0
+    };
+    let (left, top, right, gap) = (110.0, 130.0 + under_title, 230.0, 90.0);
     let stacked = (width - left - right, (height - top - 40.0) / 2.0 - gap);
     let beside = (width / 2.0 - left - right, height - top - 40.0 - gap);
     let scale = |(w, h): (f64, f64)| (w / ni).min(h / nj).max(1e-3);
@@ -571,7 +585,7 @@ fn describe_plane(s: &Slice) -> String {
         "{plane}{view}; {} x {} samples {} m apart. Grey: inside the body.",
         s.dims.0,
         s.dims.1,
-        short_number(s.spacing)
+        super::fine_number(s.spacing)
     )
 }
 
@@ -618,6 +632,7 @@ mod tests {
             near_surface: vec![],
             dead_water: vec![],
             note: "Potential flow past a sphere (Lamb).".to_owned(),
+            resolution: String::new(),
         };
         for j in 0..dims.1 {
             for i in 0..dims.0 {

@@ -518,6 +518,7 @@ for c in range(g.GetNumberOfCells()):
             near_surface: vec![],
             dead_water: vec![],
             note: String::new(),
+            resolution: String::new(),
         };
         slice.velocity[5] = None;
         slice.cp[5] = None;
