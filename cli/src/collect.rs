@@ -1183,6 +1183,8 @@ pub struct NoiseRanges {
     /// Separated area, m^2 (each count's share of the run's own wetted
     /// area).
     pub separated_m2: [f64; 2],
+    /// Rear-axle lift, kg.
+    pub rear_axle_kg: [f64; 2],
 }
 
 impl NoiseRanges {
@@ -1196,6 +1198,7 @@ impl NoiseRanges {
                     .map(|(f, r)| f + r),
             ),
             separated_m2: range(n.separated_fraction.iter().map(|f| f * wetted_m2)),
+            rear_axle_kg: range(n.rear_axle_kg.iter().copied()),
         }
     }
 }
@@ -1295,9 +1298,14 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     let noise = sweep_floor(&c.variants);
     let mut out = Vec::new();
     for key in &c.keys {
-        if !numeric_key(c, key) {
-            continue;
-        }
+        let categories = if numeric_key(c, key) {
+            Vec::new()
+        } else {
+            match categories(c, key) {
+                Some(names) => names,
+                None => continue,
+            }
+        };
         for (k, (what, unit, f)) in metrics.iter().enumerate() {
             let mut lines = series(c, key, *f);
             let several = lines.len() > 1;
@@ -1331,12 +1339,20 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 ends.append(&mut lines);
                 lines = ends;
             }
-            // Lift and separated area of one line carry the least and the
-            // most of their three panel counts where every variant
-            // measured them (a review's separated area rose with its
-            // spoiler's angle by less than one variant's own spread).
-            let noise_range = (k == 1 || k == 2) && lines.len() == 1;
-            let noise_range = match noise_range.then(|| range_lines(c, key, k == 1)).flatten() {
+            // Lift, separated area and rear-axle lift of one line carry
+            // the least and the most of their three panel counts where
+            // every variant measured them (a review's separated area rose
+            // with its spoiler's angle by less than one variant's own
+            // spread; another's rear axle spanned 6 to 22 kg over the
+            // counts and its plot showed a clean step).
+            let ranged = [
+                None,
+                Some(Ranged::Lift),
+                Some(Ranged::Separated),
+                Some(Ranged::RearAxle),
+            ];
+            let noise_range = ranged[k].filter(|_| lines.len() == 1);
+            let noise_range = match noise_range.and_then(|m| range_lines(c, key, m)) {
                 Some(mut with) => {
                     if let Some(line) = lines.first_mut() {
                         line.name = "at the run's own panel count".into();
@@ -1368,6 +1384,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 } else {
                     0.0
                 },
+                x_categories: categories.clone(),
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1391,6 +1408,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 series: lines,
                 off_scale: None,
                 min_y_span: 10.0,
+                x_categories: categories.clone(),
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1418,7 +1436,7 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
                 .variants
                 .iter()
                 .filter_map(|r| {
-                    let x = r.settings.get(key)?.as_f64()?;
+                    let x = x_of(c, key, r.settings.get(key)?)?;
                     Some((x, 100.0 * region(r, name)?.separated_fraction))
                 })
                 .collect();
@@ -1433,12 +1451,20 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
     (!lines.is_empty()).then_some(lines)
 }
 
-/// The grey lines of the least and the most lift (`lift`) or separated
-/// area over three panel counts about a plot's one line against `key`,
-/// where every variant on it measured them (a review's separated area
-/// rose with its spoiler's angle by less than one variant's own spread);
-/// `None` otherwise.
-fn range_lines(c: &Collected, key: &str, lift: bool) -> Option<Vec<Series>> {
+/// Which of a variant's [`NoiseRanges`] a plot carries.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Ranged {
+    Lift,
+    Separated,
+    RearAxle,
+}
+
+/// The grey lines of the least and the most lift, separated area or
+/// rear-axle lift over three panel counts about a plot's one line against
+/// `key`, where every variant on it measured them (a review's separated
+/// area rose with its spoiler's angle by less than one variant's own
+/// spread); `None` otherwise.
+fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
     let all = c
         .variants
         .iter()
@@ -1447,16 +1473,19 @@ fn range_lines(c: &Collected, key: &str, lift: bool) -> Option<Vec<Series>> {
     if !all {
         return None;
     }
-    let ends: [fn(&Row) -> f64; 2] = if lift {
-        [
+    let ends: [fn(&Row) -> f64; 2] = match which {
+        Ranged::Lift => [
             |r: &Row| range_end(r, |n| n.lift_kg[0]),
             |r: &Row| range_end(r, |n| n.lift_kg[1]),
-        ]
-    } else {
-        [
+        ],
+        Ranged::Separated => [
             |r: &Row| range_end(r, |n| n.separated_m2[0]),
             |r: &Row| range_end(r, |n| n.separated_m2[1]),
-        ]
+        ],
+        Ranged::RearAxle => [
+            |r: &Row| range_end(r, |n| n.rear_axle_kg[0]),
+            |r: &Row| range_end(r, |n| n.rear_axle_kg[1]),
+        ],
     };
     Some(
         ["panel noise, least", "panel noise, most"]
@@ -1546,6 +1575,49 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
         .filter_map(|r| r.settings.get(key))
         .peekable();
     set.peek().is_some() && set.all(|v| v.as_f64().is_some())
+}
+
+/// The names of a swept key whose values are text (an STL per variant,
+/// or names given as its labels), in the sweep's order, for a plot's
+/// axis of categories; `None` for a key whose values are not all text,
+/// and for an STL list whose labels change in step with it (the labels
+/// are plotted instead: one swept quantity, not two).
+fn categories(c: &Collected, key: &str) -> Option<Vec<String>> {
+    let set: Vec<&serde_json::Value> = c
+        .variants
+        .iter()
+        .filter_map(|r| r.settings.get(key))
+        .collect();
+    if set.is_empty() || !set.iter().all(|v| v.is_string()) {
+        return None;
+    }
+    if !crate::sweep::plan::is_label(key)
+        && lockstep(c, key)
+            .iter()
+            .any(|k| crate::sweep::plan::is_label(k))
+    {
+        return None;
+    }
+    let mut names: Vec<String> = Vec::new();
+    for v in set {
+        let name = shown_cell(key, v);
+        if !names.contains(&name) {
+            names.push(name);
+        }
+    }
+    Some(names)
+}
+
+/// Where a swept value lies on a plot's axis: a number as itself, a text
+/// value at its place among [`categories`].
+fn x_of(c: &Collected, key: &str, v: &serde_json::Value) -> Option<f64> {
+    v.as_f64().or_else(|| {
+        let name = shown_cell(key, v);
+        categories(c, key)?
+            .iter()
+            .position(|n| *n == name)
+            .map(|k| k as f64)
+    })
 }
 
 /// The wind the plots show: one speed and yaw, or "each variant's
@@ -1675,7 +1747,7 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
         let x = r
             .settings
             .get(key)
-            .and_then(serde_json::Value::as_f64)
+            .and_then(|v| x_of(c, key, v))
             .unwrap_or(f64::NAN);
         match groups.iter_mut().find(|g| g.1 == name) {
             Some(g) => g.2.push((x, f(r))),
@@ -2046,14 +2118,14 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     let words: Vec<&String> = c
         .keys
         .iter()
-        .filter(|k| !numeric_key(c, k) && !labelled(k))
+        .filter(|k| !numeric_key(c, k) && categories(c, k).is_none() && !labelled(k))
         .collect();
     if !words.is_empty() {
         let _ = writeln!(
             s,
-            "<p>No plot against {}: its values are not numbers (files or names); the table ranks them \
-             (a number for each value, labels = [...] with label = \"what [unit]\" in its [[vary]], \
-             gives a plot against those).</p>",
+            "<p>No plot against {}: its values are neither all numbers nor all names; the table ranks \
+             them (a number or a name for each value, labels = [...] with label = \"what [unit]\" in \
+             its [[vary]], gives a plot against those).</p>",
             escape(
                 &words
                     .iter()
@@ -2287,9 +2359,9 @@ mod tests {
         assert!(lines.iter().all(|l| l.points.len() == 2));
     }
 
-    /// The lift and separated-area plots get the least and the most of
-    /// three panel counts as grey lines where every variant measured
-    /// them, and none where one did not.
+    /// The lift, separated-area and rear-axle plots get the least and the
+    /// most of three panel counts as grey lines where every variant
+    /// measured them, and none where one did not.
     #[test]
     fn panel_noise_ranges_are_drawn_where_every_variant_has_them() {
         let mut c = sweep(&[1.0, 2.0]);
@@ -2299,15 +2371,18 @@ mod tests {
             r.noise_ranges = Some(NoiseRanges {
                 lift_kg: [-10.0 - k as f64, 5.0],
                 separated_m2: [0.5, 0.9 + k as f64],
+                rear_axle_kg: [6.0, 22.0 + k as f64],
             });
         }
-        let lines = range_lines(&c, "deg", true).unwrap();
+        let lines = range_lines(&c, "deg", Ranged::Lift).unwrap();
         assert_eq!(lines.len(), 2);
         assert_eq!(lines[0].points, [(0.0, -10.0), (1.0, -11.0)]);
-        let sep = range_lines(&c, "deg", false).unwrap();
+        let sep = range_lines(&c, "deg", Ranged::Separated).unwrap();
         assert_eq!(sep[1].points, [(0.0, 0.9), (1.0, 1.9)]);
+        let rear = range_lines(&c, "deg", Ranged::RearAxle).unwrap();
+        assert_eq!(rear[1].points, [(0.0, 22.0), (1.0, 23.0)]);
         c.variants[1].noise_ranges = None;
-        assert!(range_lines(&c, "deg", true).is_none());
+        assert!(range_lines(&c, "deg", Ranged::Lift).is_none());
         // Ranges as NoiseRanges::of takes them from a summary's samples.
         let n = crate::noise::PanelNoise {
             front_axle_kg: vec![-28.8, -29.2, -29.8],
@@ -2318,6 +2393,7 @@ mod tests {
         let r = NoiseRanges::of(&n, 10.0);
         assert!((r.lift_kg[0] + 56.6).abs() < 1e-9 && (r.lift_kg[1] + 44.4).abs() < 1e-9);
         assert!((r.separated_m2[0] - 1.14).abs() < 1e-9 && (r.separated_m2[1] - 1.53).abs() < 1e-9);
+        assert!((r.rear_axle_kg[0] + 26.8).abs() < 1e-9 && (r.rear_axle_kg[1] + 15.6).abs() < 1e-9);
     }
 
     /// Each named region gets a line of its separated share against the
@@ -2522,9 +2598,11 @@ mod tests {
     }
 
     /// Variants that differ by their STL: the page names each by its file,
-    /// draws no plot against the file names and says why.
+    /// and the plots put the file names on an axis of categories (a
+    /// review's accessory sweep had to number its files, and saw lines
+    /// drawn between "bars" and "box").
     #[test]
-    fn stl_variants_show_their_file_names_and_no_plot() {
+    fn stl_variants_show_their_file_names_and_plot_them_as_categories() {
         let mut c = sweep(&[10.0, 12.0]);
         c.keys = vec!["geometry.stl".into()];
         for (r, f) in c
@@ -2535,14 +2613,29 @@ mod tests {
             r.settings
                 .insert("geometry.stl".into(), serde_json::Value::from(f));
         }
+        assert_eq!(
+            categories(&c, "geometry.stl"),
+            Some(vec!["deck0.stl".to_owned(), "deck30.stl".to_owned()])
+        );
+        let xs: Vec<f64> = series(&c, "geometry.stl", |r| r.cd)
+            .iter()
+            .flat_map(|s| s.points.iter().map(|p| p.0))
+            .collect();
+        assert_eq!(xs, [0.0, 1.0]);
         let plots = plots(&c).unwrap();
-        assert!(plots.is_empty());
+        assert!(
+            plots
+                .iter()
+                .any(|p| p.0 == "Drag estimate against geometry.stl"),
+            "{:?}",
+            plots.iter().map(|p| &p.0).collect::<Vec<_>>()
+        );
         let html = shown(&c, &plots);
         assert!(
             html.contains("<td>deck30.stl</td>") && !html.contains("/scans/"),
             "{html}"
         );
-        assert!(html.contains("No plot against geometry.stl"));
+        assert!(!html.contains("No plot against"));
         assert!(csv(&c).contains("/scans/deck0.stl"));
     }
 

@@ -73,6 +73,11 @@ pub struct LinePlot {
     /// The least height the vertical axis spans, in its units (0: as the
     /// data fall), so that differences within the noise do not fill it.
     pub min_y_span: f64,
+    /// Names of the horizontal axis's whole-number positions 0, 1, 2 ...
+    /// when what it shows is not a number (an STL per variant): the ticks
+    /// carry the names and the points are not joined, as no value lies
+    /// between two of them (empty: a numeric axis).
+    pub x_categories: Vec<String>,
 }
 
 /// Picture size of a plot.
@@ -131,7 +136,7 @@ pub fn draw_line_plot(
     for sh in &plot.shading {
         draw_shading(&mut c, sh, &frame);
     }
-    draw_grid_and_ticks(&mut c, &frame, plot.invert_y);
+    draw_grid_and_ticks(&mut c, &frame, plot.invert_y, &plot.x_categories);
     let above = plot
         .off_scale
         .as_ref()
@@ -147,9 +152,15 @@ pub fn draw_line_plot(
             .map(|&(x, y)| frame.pixel_at(x, y))
             .map(|(x, y)| (x as f32, y as f32))
             .collect();
-        c.polyline(&pts, s.colour, width);
+        // Categories: dots, larger, and no line between them.
+        let dot = if plot.x_categories.is_empty() {
+            c.polyline(&pts, s.colour, width);
+            1.0 + width
+        } else {
+            3.0 + width
+        };
         for &(x, y) in &pts {
-            c.fill_circle(x, y, 1.0 + width, s.colour);
+            c.fill_circle(x, y, dot, s.colour);
         }
     }
     let (l, t, w, h) = frame.rect;
@@ -306,7 +317,11 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
             .filter(|v| v.is_finite())
             .collect()
     };
-    let x_range = padded_range(&finite(|p| p.0), 0.0);
+    let x_range = if plot.x_categories.is_empty() {
+        padded_range(&finite(|p| p.0), 0.0)
+    } else {
+        (-0.5, plot.x_categories.len() as f64 - 0.5)
+    };
     let ys = finite(|p| p.1);
     // An off-scale curve joins the axis when that at most doubles it;
     // otherwise the others keep the height (a drag band's top had squeezed
@@ -380,11 +395,25 @@ fn padded_range(v: &[f64], pad: f64) -> (f64, f64) {
 }
 
 /// Grid lines and tick labels on both axes.
-fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool) {
+fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool, categories: &[String]) {
     let (l, t, w, h) = f.rect;
     let style = TextStyle::new(15.0);
-    let xt = nice_ticks(f.x_range.0, f.x_range.1, 8);
-    for &x in &xt {
+    let xt = if categories.is_empty() {
+        nice_ticks(f.x_range.0, f.x_range.1, 8)
+    } else {
+        (0..categories.len()).map(|k| k as f64).collect()
+    };
+    // A category's name no wider than its share of the axis (about 8.5
+    // pixels a character at this size).
+    let room = (w / categories.len().max(1) as f64 / 8.5).floor().max(4.0) as usize;
+    for (k, &x) in xt.iter().enumerate() {
+        let name = match categories.get(k) {
+            Some(n) if n.chars().count() > room => {
+                format!("{}…", n.chars().take(room - 1).collect::<String>())
+            }
+            Some(n) => n.clone(),
+            None => tick_label(x, &xt),
+        };
         let (px, _) = f.pixel_at(x, f.y_range.0);
         c.polyline(
             &[(px as f32, t as f32), (px as f32, (t + h) as f32)],
@@ -401,7 +430,7 @@ fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool) {
         );
         text::draw(
             c,
-            &tick_label(x, &xt),
+            &name,
             px as f32,
             (t + h + 24.0) as f32,
             &style.align(Align::Centre),

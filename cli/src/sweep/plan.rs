@@ -61,9 +61,11 @@ struct Vary {
     key: String,
     values: Vec<toml::Value>,
     /// A number for each value, for `tuft collect`'s plots and sweep.csv
-    /// where the values are not numbers (an STL per boot-lid height).
+    /// where the values are not numbers (an STL per boot-lid height), or
+    /// a short name for each (an STL per accessory: "bare", "roof box"),
+    /// which the plots show as categories.
     #[serde(default)]
-    labels: Option<Vec<f64>>,
+    labels: Option<Vec<toml::Value>>,
     /// What the labels measure, with their unit ("boot lid raise [mm]").
     #[serde(default)]
     label: Option<String>,
@@ -413,7 +415,12 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 if name.is_empty() {
                     bail!("vary #{} (key \"{}\"): label is empty", k + 1, v.key);
                 }
-                Some((name, l.clone()))
+                Some((
+                    name,
+                    label_values(l).map_err(|why| {
+                        anyhow::anyhow!("vary #{} (key \"{}\"): {why}", k + 1, v.key)
+                    })?,
+                ))
             }
         };
         let values = v
@@ -422,8 +429,8 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
             .enumerate()
             .map(|(i, value)| {
                 let mut pairs = vec![(key.clone(), value.clone())];
-                if let Some((name, numbers)) = &label {
-                    pairs.push((name.clone(), toml::Value::Float(numbers[i])));
+                if let Some((name, labels)) = &label {
+                    pairs.push((name.clone(), labels[i].clone()));
                 }
                 pairs
             })
@@ -434,6 +441,43 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
         bail!("no [[vary]] lists: a sweep needs at least one");
     }
     Ok(out)
+}
+
+/// A `[[vary]]` list's labels as settings: all numbers (as floats) or all
+/// names (trimmed, none empty, none twice).
+fn label_values(labels: &[toml::Value]) -> Result<Vec<toml::Value>, String> {
+    let numbers: Option<Vec<toml::Value>> = labels
+        .iter()
+        .map(|v| match v {
+            toml::Value::Integer(i) => Some(toml::Value::Float(*i as f64)),
+            toml::Value::Float(f) => Some(toml::Value::Float(*f)),
+            _ => None,
+        })
+        .collect();
+    if let Some(numbers) = numbers {
+        return Ok(numbers);
+    }
+    let names: Option<Vec<String>> = labels
+        .iter()
+        .map(|v| v.as_str().map(|s| s.trim().to_owned()))
+        .collect();
+    let Some(names) = names else {
+        return Err(
+            "labels must be all numbers (a value each: 0, 30, 60) or all names (\"bare\", \"roof box\")"
+                .into(),
+        );
+    };
+    if names.iter().any(String::is_empty) {
+        return Err("a label is empty".into());
+    }
+    if let Some(twice) = names
+        .iter()
+        .enumerate()
+        .find(|(k, n)| names[..*k].contains(n))
+    {
+        return Err(format!("the label \"{}\" is given twice", twice.1));
+    }
+    Ok(names.into_iter().map(toml::Value::String).collect())
 }
 
 /// Every combination, the first list varying slowest.
@@ -675,6 +719,30 @@ mod tests {
             "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0]\nlabel = \"x\"\n"
         ));
         assert!(bare.contains("labels is missing"), "{bare}");
+    }
+
+    /// Labels may be names instead (an STL per accessory), each a setting
+    /// of its variant; numbers and names mixed, an empty name or one
+    /// given twice are refused.
+    #[test]
+    fn labels_may_be_names() {
+        let p = plan(&format!(
+            "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\n\
+             labels = [\"low\", \" steep \"]\nlabel = \"window\"\n"
+        ))
+        .unwrap();
+        assert_eq!(p.variants[1].settings[1].key, "window");
+        assert_eq!(p.variants[1].settings[1].value, serde_json::json!("steep"));
+        for (labels, words) in [
+            ("[1, \"two\"]", "all numbers"),
+            ("[\"a\", \"\"]", "a label is empty"),
+            ("[\"a\", \"a\"]", "\"a\" is given twice"),
+        ] {
+            let why = refusal(&format!(
+                "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\nlabels = {labels}\n"
+            ));
+            assert!(why.contains(words), "{why}");
+        }
     }
 
     /// Two STL variants of one length whose surfaces ask for different
