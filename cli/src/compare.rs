@@ -1291,19 +1291,22 @@ fn sides_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Optio
 /// everywhere (and changed somewhere): the panels follow so small a change
 /// only in part (a review's 60 mm roof-spoiler extension on 80 mm panels
 /// moved the drag by 2.8 counts, where the same STL at 3,500 and 4,000
-/// panels moved it by 14). Not when both runs measured their panel noise
+/// panels moved it by 14). It gives the area that moved, so that a large
+/// part changed within that distance (a roof box turned round, 1.23 m^2
+/// within 99 mm on 100 mm panels) does not read as a small change. Not when both runs measured their panel noise
 /// (`measured`): the verdict's floor then holds what the note asks for.
 fn resolution_note(surface: &SurfaceDeltas, measured: bool) -> Option<String> {
     let (d, e) = (surface.max_distance_m, surface.panel_edge_m);
     (surface.changed_m2 > 0.0 && d < e && !measured).then(|| {
         format!(
-            "B's surface lies within {:.0} mm of A's everywhere, under the panels' typical edge ({:.0} mm): \
-             the panels follow a change this small only in part, so the differences may rest as much on \
-             how each surface was cut into panels as on the change; run both again with tuft run --noise, \
-             which solves each at two other panel counts, and compare then judges the difference against \
-             the spread it measures",
+            "B's surface lies within {:.0} mm of A's everywhere, under the panels' typical edge ({:.0} mm), \
+             over {:.2} m^2 that moved: however large the part, the panels follow moves under their own \
+             size only in part, so the differences may rest as much on how each surface was cut into \
+             panels as on the change; run both again with tuft run --noise, which solves each at two \
+             other panel counts, and compare then judges the difference against the spread it measures",
             1000.0 * d,
-            1000.0 * e
+            1000.0 * e,
+            surface.changed_m2
         )
     })
 }
@@ -1704,7 +1707,7 @@ mod tests {
             "{note}"
         );
         let note = resolution_note(&surface(0.04, 0.0, 0.03), false).unwrap_or_default();
-        assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm)"), "{note}");
+        assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm), over 0.04 m^2 that moved"), "{note}");
         assert!(note.contains("tuft run --noise"), "{note}");
         assert_eq!(resolution_note(&surface(0.04, 0.0, 0.03), true), None);
         assert_eq!(resolution_note(&surface(0.04, 0.0, 0.1), false), None);
