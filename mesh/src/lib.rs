@@ -44,6 +44,7 @@ pub mod prepare;
 pub mod quality;
 pub mod repair;
 pub mod stage;
+pub mod thin;
 pub mod trimesh;
 pub mod wrap;
 

@@ -284,6 +284,40 @@ pub fn recut_fans(panels: PanelMesh) -> Result<(PanelMesh, Option<(usize, usize)
     Ok((recut, Some((fans.len(), added))))
 }
 
+/// Parts thinner than this many of the panels' typical edges are not
+/// resolved ([`thin_part_warning`]): a section needs panels on both faces
+/// and round it (our choice).
+pub const THIN_EDGES: f64 = 2.0;
+
+/// A warning when parts of the input are thinner than [`THIN_EDGES`] of
+/// the panels' typical edge (that of an equilateral triangle of the median
+/// panel area): the panels do not resolve their section, so their own
+/// pressures and drag are not in the results.
+fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Option<String> {
+    let mut areas: Vec<f64> = panels.panels.iter().map(|p| p.area).collect();
+    areas.sort_by(f64::total_cmp);
+    let median = areas.get(areas.len() / 2).copied()?;
+    let edge = (4.0 * median / 3f64.sqrt()).sqrt();
+    let under: Vec<&crate::thin::PartSize> = thin
+        .iter()
+        .filter(|p| p.thickness < THIN_EDGES * edge)
+        .collect();
+    let first = under.first()?;
+    let [x, y, z] = first.centre;
+    let (count, verb) = match under.len() {
+        1 => ("1 part".to_owned(), "is"),
+        n => (format!("{n} parts"), "are"),
+    };
+    Some(format!(
+        "{count} of the STL {verb} thinner than two of the panels' edges ({:.0} mm; the thinnest {:.0} mm, \
+         near x {x:.2}, y {y:.2}, z {z:.2} m): the panels do not resolve their section, so their own \
+         pressures and drag are not in the results (a roof bar, a lip or a blade; the body's flow \
+         round them is); judge such parts' own drag elsewhere",
+        THIN_EDGES * edge * 1000.0,
+        first.thickness * 1000.0
+    ))
+}
+
 /// What the STL reader did beyond reading one plain file: several parts
 /// read as one body, a facet count that fell short.
 fn read_notes(r: &StlReport) -> Vec<String> {
@@ -587,6 +621,7 @@ pub fn repair_body(
         Some(g) => snap_border_to_plane(&mut mesh, plane_tol, |p| &mut p.z, g),
         None => (0, 0.0),
     };
+    let thin = crate::thin::thin_parts(&mesh);
     let reasons = crate::wrap::reasons(&mesh, &params.mirrors, &params.wrap, plane_tol);
     let (mesh, wrap) = if reasons.any() {
         crate::stage::starting(|| format!("wrapping {} facets into one outer surface", mesh.len()));
@@ -638,6 +673,7 @@ pub fn repair_body(
             wrap,
             slot,
             suggested,
+            thin,
         },
     })
 }
@@ -691,6 +727,7 @@ struct Parts {
     wrap: Option<WrapReport>,
     slot: Option<((f64, [f64; 3]), f64, f64)>,
     suggested: usize,
+    thin: Vec<crate::thin::PartSize>,
 }
 
 /// Check the coarsened mesh, build its panels and the whole report.
@@ -711,6 +748,7 @@ fn panel_and_report(
         wrap,
         slot,
         suggested,
+        thin,
     } = parts;
     crate::stage::starting(|| format!("checking {} panels", mesh.len()));
     let local_crossing = refuse_self_crossing(&mesh)?;
@@ -751,6 +789,9 @@ fn panel_and_report(
                 c.achieved_panels,
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
             ));
+        }
+        if let Some(w) = thin_part_warning(&thin, &panels) {
+            q.add_warning(w);
         }
         if let Some((n, area)) = caps {
             q.notes.push(format!(
@@ -1304,6 +1345,27 @@ mod tests {
     /// side to side (a car's bulk sits low: the demo coupe's volume centre
     /// lies 8.8 % of its height below its box's middle, and 0.0 % across);
     /// the coupe itself, an ellipsoid and a box are not warned about.
+    /// Parts thinner than two panel edges are warned about, thinnest
+    /// named; thicker ones are not.
+    #[test]
+    fn parts_thinner_than_two_panels_are_warned_about() {
+        use crate::thin::PartSize;
+        // A unit icosphere at level 3: 1,280 panels, edges about 0.1 m.
+        let panels = PanelMesh::new(crate::generate::icosphere(1.0, 3), Mirrors::none()).unwrap();
+        let part = |thickness: f64| PartSize {
+            thickness,
+            centre: [0.5, 0.0, 1.2],
+        };
+        let w = thin_part_warning(&[part(0.03), part(0.05), part(0.5)], &panels).unwrap();
+        assert!(
+            w.starts_with("2 parts of the STL are thinner than two of the panels' edges (")
+                && w.contains("the thinnest 30 mm, near x 0.50, y 0.00, z 1.20 m"),
+            "{w}"
+        );
+        assert_eq!(thin_part_warning(&[part(0.5)], &panels), None);
+        assert_eq!(thin_part_warning(&[], &panels), None);
+    }
+
     #[test]
     fn a_car_read_with_y_up_is_warned_about() {
         let coupe = crate::generate::coupe(28.0, 3000).unwrap();

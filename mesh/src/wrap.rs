@@ -604,7 +604,7 @@ fn edge_side(p: [f64; 2], q: [f64; 2], s: [f64; 2]) -> i32 {
 /// along the next two axes, cyclically) crosses the facet, and the change
 /// of winding number there: +1 where the line enters (the facet's normal
 /// faces against the line), -1 where it leaves.
-fn line_crossing(corners: &[Point; 3], d: usize, s: [f64; 2]) -> Option<(f64, i32)> {
+pub(crate) fn line_crossing(corners: &[Point; 3], d: usize, s: [f64; 2]) -> Option<(f64, i32)> {
     let (u, v) = ((d + 1) % 3, (d + 2) % 3);
     let p = corners.map(|c| [c[u], c[v]]);
     let a = edge_side(p[0], p[1], s);
