@@ -79,6 +79,10 @@ pub struct GeometrySection {
     /// The STL is the y >= 0 half, cut at y = 0.
     #[serde(default)]
     pub half_model: bool,
+    /// Wrap the STL into one outer surface even when nothing calls for
+    /// it: the baseline of an add-on study whose add-on runs are wrapped.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub wrap: bool,
     /// Where the STL's nose points: "-x" (tuft's axes, the default) or
     /// "+x" (ISO 8855 vehicle axes, x forward).
     pub nose: Option<String>,
@@ -544,6 +548,11 @@ fn resolve_geometry(case_path: &Path, g: &GeometrySection) -> Result<GeometrySou
                     "geometry.nose and geometry.up apply to an STL only; built-in shapes are in tuft's axes"
                 );
             }
+            if g.wrap {
+                bail!(
+                    "geometry.wrap applies to an STL only; built-in shapes are one closed surface"
+                );
+            }
             Ok(GeometrySource::Shape { name: name.clone() })
         }
     }
@@ -753,6 +762,8 @@ mod tests {
         assert!(err(&format!("{stl}up = \"+z\"\n")).contains("geometry.up must be"));
         let e = err("[geometry]\nshape = \"coupe\"\nnose = \"+x\"\n");
         assert!(e.contains("apply to an STL only"), "{e}");
+        let e = err("[geometry]\nshape = \"coupe\"\nwrap = true\n");
+        assert!(e.contains("geometry.wrap applies to an STL only"), "{e}");
     }
 
     /// The speed may be given in km/h instead; both at once is refused.

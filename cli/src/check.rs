@@ -374,6 +374,7 @@ fn stl_params(
         mirrors: crate::geometry::mirrors(case),
         target_panels: case.file.geometry.panels,
         whole_from_half: crate::geometry::mirrored_whole(case),
+        wrap: crate::geometry::wrap_params(case),
         measure_symmetry: true,
         ..PrepareParams::default()
     }

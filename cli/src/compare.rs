@@ -1396,7 +1396,7 @@ fn wrap_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option
             "{w}'s surface was wrapped into one (its parts run into each other or stand on the ground) \
              and {n}'s was not: the wrap re-meshes the whole body, which alone moves the results (the \
              demo coupe wrapped: boot deck 26 to 36 % separated); to compare an add-on, give {n} the \
-             same treatment (for instance a small block inside its body, which makes the wrap run)"
+             same treatment: geometry.wrap = true in its case wraps it too"
         )
     })
 }

@@ -60,6 +60,7 @@ pub fn load_keeping(case: &Case, keep: bool) -> Result<Geometry> {
                 mirrors,
                 target_panels: g.panels,
                 whole_from_half: mirrored_whole(case),
+                wrap: wrap_params(case),
                 ..PrepareParams::default()
             };
             tuft_mesh::stage::starting(|| format!("reading {}", path.display()));
@@ -96,6 +97,15 @@ pub fn load_keeping(case: &Case, keep: bool) -> Result<Geometry> {
                 .with_context(|| format!("geometry.shape = \"{name}\""))?;
             finish(case, mesh, report, facets)
         }
+    }
+}
+
+/// The wrap's settings for a case: the defaults, wrapping always when the
+/// case asks (`geometry.wrap`).
+pub fn wrap_params(case: &Case) -> tuft_mesh::wrap::WrapParams {
+    tuft_mesh::wrap::WrapParams {
+        always: case.file.geometry.wrap,
+        ..tuft_mesh::wrap::WrapParams::default()
     }
 }
 

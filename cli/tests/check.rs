@@ -752,3 +752,30 @@ fn a_missing_stl_is_named_with_its_case_key() {
     );
     assert!(out.stdout.is_empty());
 }
+
+/// `geometry.wrap = true` wraps a closed one-part sphere that nothing
+/// else would wrap, and check says the case asked for it (the baseline
+/// of an add-on study, whose add-on runs are wrapped).
+#[test]
+fn a_case_may_ask_for_the_wrap() {
+    let dir = tempfile::tempdir().unwrap();
+    write_binary_stl(
+        &dir.path().join("sphere.stl"),
+        &generate::icosphere(1.0, 4),
+        1000.0,
+    );
+    for (wrap, wrapped) in [("", false), ("wrap = true\n", true)] {
+        let case = dir.path().join("case.toml");
+        std::fs::write(
+            &case,
+            format!("[geometry]\nstl = \"sphere.stl\"\nunits = \"mm\"\npanels = 1500\n{wrap}"),
+        )
+        .unwrap();
+        let stdout = check_ok(&[case.to_str().unwrap()]);
+        assert_eq!(
+            stdout.contains("wrap       the case asks for it (geometry.wrap = true)"),
+            wrapped,
+            "{stdout}"
+        );
+    }
+}

@@ -83,6 +83,11 @@ pub struct WrapParams {
     /// height, and be cut there as a tyre's contact is (default 5 %, 65 mm
     /// on a car); deeper, it is refused as an export with the wrong axes.
     pub max_ground_depth: f64,
+    /// Wrap even when nothing calls for it: a baseline for an add-on whose
+    /// own run is wrapped gets the same treatment (the wrap rounds sharp
+    /// edges over about a cell and re-cuts the whole surface; a review's
+    /// unchanged estate read 9 drag counts apart wrapped and not).
+    pub always: bool,
 }
 
 impl Default for WrapParams {
@@ -92,6 +97,7 @@ impl Default for WrapParams {
             max_nodes: 30_000_000,
             contact_cells: 2.0,
             max_ground_depth: 0.05,
+            always: false,
         }
     }
 }
@@ -110,12 +116,15 @@ pub struct WrapReasons {
     /// closer to each other than the gaps the wrap closes (a tyre in its
     /// arch with no ground declared), see [`GAP_NODES`].
     pub near_pairs: usize,
+    /// The case asked for the wrap ([`WrapParams::always`]).
+    pub asked: bool,
 }
 
 impl WrapReasons {
     /// True when any reason holds.
     pub fn any(&self) -> bool {
-        self.overlapping_pairs > 0
+        self.asked
+            || self.overlapping_pairs > 0
             || self.enclosed_parts > 0
             || self.ground_gap.is_some()
             || self.near_pairs > 0
@@ -171,6 +180,9 @@ impl WrapReport {
     pub fn describe(&self) -> String {
         let r = &self.reasons;
         let mut why = Vec::new();
+        if r.asked {
+            why.push("the case asks for it (geometry.wrap = true)".to_string());
+        }
         if r.overlapping_pairs > 0 {
             why.push(format!(
                 "parts of the surface pass into each other ({} pairs of crossing facets)",
@@ -362,6 +374,7 @@ pub fn reasons(
     let Some((lo, hi)) = mesh.bounds() else {
         return WrapReasons::default();
     };
+    let asked = params.always;
     let h = cell_size(&lo, &hi, params);
     let ground_gap = mirrors.ground.and_then(|g| {
         let contact = params.contact_cells * h;
@@ -390,6 +403,7 @@ pub fn reasons(
     if parts < 2 {
         return WrapReasons {
             ground_gap,
+            asked,
             ..WrapReasons::default()
         };
     }
@@ -413,6 +427,7 @@ pub fn reasons(
         enclosed_parts: enclosed,
         ground_gap,
         near_pairs,
+        asked,
     }
 }
 
