@@ -181,6 +181,23 @@ fn print_summary(out: &Path, s: &Summary) {
     let speed = s.flow("speed").map_or_else(String::new, |v| {
         format!(" at {}", crate::output::speed_words(v))
     });
+    // The force and power beside the coefficient, and the area it is on:
+    // an add-on's runs each take their own frontal area (a review read a
+    // roof box's +30 % in C_D where the drag area rose by 50 %).
+    if let Some(v) = s.flow("speed") {
+        let area = if s.reference.given.get("area").copied().unwrap_or(false) {
+            "the case's reference area"
+        } else {
+            "the frontal area"
+        };
+        say!(
+            "  drag{speed}: {} N, {} kW (band in brackets), on {area} {:.3} m^2 (C_D A {:.3} m^2)",
+            crate::write::drag_force_words(&s.drag_estimate, 1.0, 0),
+            crate::write::drag_force_words(&s.drag_estimate, v / 1000.0, 1),
+            s.reference.area_m2,
+            k.drag * s.reference.area_m2
+        );
+    }
     let [total, front, rear] = s.lift_kg.axle_words();
     let floor = crate::write::underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
     if s.axle_split_shown() {

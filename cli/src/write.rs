@@ -788,7 +788,7 @@ pub fn underbody_words(s: &Summary) -> Option<String> {
 /// The drag force with the band's ends, each times `scale` (1 for N:
 /// `"95 (92 to 245)"`; the speed over 1000 for kW), with `decimals` (the
 /// force scales with the coefficient at one speed and reference area).
-fn drag_force_words(d: &crate::summary::DragEstimate, scale: f64, decimals: usize) -> String {
+pub fn drag_force_words(d: &crate::summary::DragEstimate, scale: f64, decimals: usize) -> String {
     let per_cd = if d.cd.abs() > 1e-12 {
         d.force_n / d.cd
     } else {

@@ -414,6 +414,32 @@ fn demo_writes_two_reports() {
         "{}",
         o.stdout
     );
+    // The drag line gives the force and power beside the coefficient,
+    // and the area it is on; its force is C_D q A (q at 40 m/s in the
+    // demo's air, 1.204 kg/m^3).
+    for line in o
+        .stdout
+        .lines()
+        .filter(|l| l.starts_with("  drag at 40 m/s (144 km/h): "))
+    {
+        let numbers: Vec<f64> = line
+            .split(|c: char| !(c.is_ascii_digit() || c == '.'))
+            .filter_map(|w| w.parse().ok())
+            .collect();
+        // 40, 144, force, its band (2), power, its band (2), area, C_D A.
+        let [force, area, cda] = [numbers[2], numbers[9], numbers[10]] else {
+            panic!("{line}")
+        };
+        let q = 0.5 * 1.204 * 40.0 * 40.0;
+        assert!((force - q * cda).abs() <= 0.5 + 0.0005 * q, "{line}");
+        assert!(area > 1.0 && line.contains("on the frontal area"), "{line}");
+    }
+    assert_eq!(
+        o.stdout.matches("  drag at 40 m/s").count(),
+        2,
+        "{}",
+        o.stdout
+    );
     // The lift line says at what speed its kg are, gives the underbody
     // beside the rest of the body (not "of which": it is larger than the
     // whole), and the parts add up to what is printed; the attached first
