@@ -2266,7 +2266,15 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     for k in &c.keys {
         let _ = write!(s, "<th>{}</th>", escape(k));
     }
-    s.push_str("<th>C_D</th><th>band</th><th>lift [kg] (− downforce)</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
+    // The drag area beside C_D where the variants' areas differ: the
+    // ranking is by it (a review's accessory sweep read only C_D, on
+    // areas of 2.33 to 2.68 m^2).
+    let by_area = areas_differ(&c.variants);
+    s.push_str("<th>C_D</th><th>band</th>");
+    if by_area {
+        s.push_str("<th>C_D·A [m²]</th>");
+    }
+    s.push_str("<th>lift [kg] (− downforce)</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
     for g in &c.regions {
         let _ = write!(s, "<th>{} separated</th>", escape(g));
     }
@@ -2304,8 +2312,16 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
             crate::output::lift_set([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
         let _ = write!(
             s,
-            "<td>{:.3}</td><td>{:.3}–{:.3}</td><td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:.3}</td>",
-            r.cd, r.cd_low, r.cd_high, r.separated_area_m2,
+            "<td>{:.3}</td><td>{:.3}–{:.3}</td>",
+            r.cd, r.cd_low, r.cd_high
+        );
+        if by_area {
+            let _ = write!(s, "<td>{:.3}</td>", drag_area(r));
+        }
+        let _ = write!(
+            s,
+            "<td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:.3}</td>",
+            r.separated_area_m2,
         );
         for g in &c.regions {
             let text = region(r, g).map_or_else(String::new, RegionResult::short_words);
@@ -3182,6 +3198,14 @@ mod tests {
         let text = csv(&c);
         let above = column(&text, "counts_above_lowest");
         assert_eq!(above, ["0.0", "9.1"], "{text}");
+        // The page's ranking then shows the drag area beside C_D.
+        let html = shown(&c, &[]);
+        assert!(
+            html.contains("<th>C_D·A [m²]</th>") && html.contains("<td>0.660</td>"),
+            "{html}"
+        );
+        c.variants[1].reference_area_m2 = 2.2;
+        assert!(!shown(&c, &[]).contains("C_D·A"));
     }
 
     /// Variants with region verdicts solved on under half of their
