@@ -162,15 +162,6 @@ mod tests {
     use super::*;
     use crate::generate;
 
-    fn join(a: &TriMesh, b: &TriMesh) -> TriMesh {
-        let offset = a.vertices.len() as u32;
-        let mut out = a.clone();
-        out.vertices.extend(&b.vertices);
-        out.triangles
-            .extend(b.triangles.iter().map(|t| t.map(|v| v + offset)));
-        out
-    }
-
     fn moved(mut m: TriMesh, by: Vector) -> TriMesh {
         m.map_vertices(|p| p + by);
         m
@@ -188,13 +179,10 @@ mod tests {
             moved(m, c)
         };
         let ball = moved(generate::icosphere(0.2, 2), Vector::new(0.0, 1.5, 0.0));
-        let parts = join(
-            &join(
-                &join(&body, &bar(Vector::new(0.0, 0.0, 1.2))),
-                &bar(Vector::zeros()),
-            ),
-            &ball,
-        );
+        let parts = body
+            .joined(&bar(Vector::new(0.0, 0.0, 1.2)))
+            .joined(&bar(Vector::zeros()))
+            .joined(&ball);
         let thin = thin_parts(&parts);
         assert_eq!(thin.len(), 1, "{thin:?}");
         assert!((thin[0].thickness - 0.02).abs() < 0.002, "{thin:?}");

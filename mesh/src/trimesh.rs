@@ -49,6 +49,18 @@ impl TriMesh {
         self.triangles.is_empty()
     }
 
+    /// This mesh and `other` as one, `other`'s vertices numbered after
+    /// these (the two share no vertex, so their parts stay apart: an STL
+    /// of several solids).
+    pub fn joined(&self, other: &TriMesh) -> TriMesh {
+        let offset = self.vertices.len() as u32;
+        let mut out = self.clone();
+        out.vertices.extend(&other.vertices);
+        out.triangles
+            .extend(other.triangles.iter().map(|t| t.map(|v| v + offset)));
+        out
+    }
+
     /// The three corner positions of triangle `t`.
     ///
     /// # Panics

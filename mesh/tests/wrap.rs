@@ -14,12 +14,7 @@ use tuft_mesh::{LengthUnit, MeshError, Mirrors, Point, TriMesh, Vector, generate
 
 /// Both meshes as one (their parts stay apart: no vertex is shared).
 fn join(a: &TriMesh, b: &TriMesh) -> TriMesh {
-    let offset = a.vertices.len() as u32;
-    let mut out = a.clone();
-    out.vertices.extend(&b.vertices);
-    out.triangles
-        .extend(b.triangles.iter().map(|t| t.map(|v| v + offset)));
-    out
+    a.joined(b)
 }
 
 fn moved(mut m: TriMesh, by: Vector) -> TriMesh {

@@ -1038,17 +1038,9 @@ mod tests {
     /// upper curve zig-zag between roof and box top).
     #[test]
     fn a_part_above_the_body_splits_off_the_surfaces_between() {
-        let body = tuft_mesh::generate::icosphere(1.0, 3);
-        let mut both = body.clone();
-        let offset = body.vertices.len() as u32;
-        let top = tuft_mesh::generate::icosphere(0.3, 3);
-        both.vertices.extend(
-            top.vertices
-                .iter()
-                .map(|p| p + nalgebra::Vector3::new(0.0, 0.0, 1.5)),
-        );
-        both.triangles
-            .extend(top.triangles.iter().map(|t| t.map(|v| v + offset)));
+        let mut top = tuft_mesh::generate::icosphere(0.3, 3);
+        top.map_vertices(|p| p + nalgebra::Vector3::new(0.0, 0.0, 1.5));
+        let both = tuft_mesh::generate::icosphere(1.0, 3).joined(&top);
         let mut f = Fixture::sphere(3);
         f.mesh = tuft_mesh::PanelMesh::new(both, tuft_mesh::Mirrors::none()).unwrap();
         let n = f.mesh.len();
