@@ -426,9 +426,10 @@ fn demo_writes_two_reports() {
             .split(|c: char| !(c.is_ascii_digit() || c == '.'))
             .filter_map(|w| w.parse().ok())
             .collect();
-        // 40, 144, force, its band (2), power, its band (2), area, C_D A.
-        assert_eq!(numbers.len(), 11, "{line}");
-        let (force, area, cda) = (numbers[2], numbers[9], numbers[10]);
+        // 40, 144, force, its band (2), power, its band (2), area, the 2
+        // of m^2, C_D A, its 2.
+        assert_eq!(numbers.len(), 12, "{line}");
+        let (force, area, cda) = (numbers[2], numbers[8], numbers[10]);
         let q = 0.5 * 1.204 * 40.0 * 40.0;
         assert!((force - q * cda).abs() <= 0.5 + 0.0005 * q, "{line}");
         assert!(area > 1.0 && line.contains("on the frontal area"), "{line}");
