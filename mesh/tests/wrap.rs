@@ -957,3 +957,25 @@ fn parts_thinner_than_the_panels_coarsen_to_the_target() {
         assert_eq!(uses.get(&(b, a)), Some(&1), "edge {a}-{b} not matched");
     }
 }
+
+/// A body standing clear of the ground wraps to the same surface wherever
+/// the ground lies (a ride-height sweep moves the ground): the grid is the
+/// body's own, not the ground's lattice.
+#[test]
+fn a_body_clear_of_the_ground_wraps_the_same_at_any_ground_height() {
+    let a = moved(generate::icosphere(0.5, 4), Vector::new(-0.25, 0.0, 1.0));
+    let b = moved(generate::icosphere(0.5, 4), Vector::new(0.25, 0.0, 1.0));
+    let both = join(&a, &b);
+    let params = WrapParams {
+        cells_along_length: 100,
+        ..WrapParams::default()
+    };
+    let wrapped = |ground: f64| {
+        let mirrors = Mirrors::ground(ground);
+        let why = reasons(&both, &mirrors, &params, 0.0);
+        wrap(&both, &mirrors, why, &params).0
+    };
+    let (low, high) = (wrapped(0.2), wrapped(0.2137));
+    assert_eq!(low.triangles, high.triangles);
+    assert_eq!(low.vertices, high.vertices);
+}
