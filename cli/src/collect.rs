@@ -154,6 +154,9 @@ pub struct Row {
     /// ([`crate::summary::Summary::floor_on_ground`]).
     #[serde(default)]
     pub floor_on_ground: bool,
+    /// Its surface was wrapped into one ([`crate::summary::Summary::wrapped`]).
+    #[serde(default)]
+    pub wrapped: bool,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
@@ -217,6 +220,7 @@ fn notes(c: &Collected) -> Vec<String> {
         out.extend(
             [
                 sides_note(rows),
+                wrap_spread(rows),
                 panel_spread(rows),
                 // The plateau model's variants are named by the ranking
                 // line; this note is about the separated-flow loop.
@@ -252,6 +256,32 @@ fn sides_note(rows: &[Row]) -> Option<String> {
              models (geometry.half_model = true) for one answer per side",
             names.join(", "),
             if names.len() == 1 { "has" } else { "have" }
+        )
+    })
+}
+
+/// A note when some variants' surfaces were wrapped into one and others'
+/// were not (as `tuft compare`'s for two runs): the wrap re-meshes the
+/// whole body, which alone moves the results (a review's mirror sweep had
+/// a bare body unwrapped beside wrapped ones, 4.8 counts apart for the
+/// wrap alone, with no word on the page).
+fn wrap_spread(rows: &[Row]) -> Option<String> {
+    let names = |wrapped: bool| {
+        rows.iter()
+            .filter(|r| r.wrapped == wrapped)
+            .map(|r| r.name.as_str())
+            .collect::<Vec<_>>()
+    };
+    let (wrapped, plain) = (names(true), names(false));
+    (!wrapped.is_empty() && !plain.is_empty()).then(|| {
+        format!(
+            "{} {} wrapped into one surface (parts running into each other, standing on the ground, or \
+             asked) and {} not: the wrap re-meshes the whole body, which alone moves the results (an \
+             unchanged estate by 9 counts), so differences between the two groups mix the change with \
+             it; give the unwrapped variants geometry.wrap = true to compare like with like",
+            wrapped.join(", "),
+            if wrapped.len() == 1 { "was" } else { "were" },
+            plain.join(", ")
         )
     })
 }
@@ -946,6 +976,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         plateau_drag: s.plateau_drag(),
         wheels_on: s.wheels_on(),
         floor_on_ground: s.floor_on_ground(),
+        wrapped: s.wrapped(),
         regions: s.regions.clone(),
         against_next: None,
     };
@@ -2499,6 +2530,7 @@ mod tests {
             plateau_drag: false,
             wheels_on: false,
             floor_on_ground: false,
+            wrapped: false,
             regions: Vec::new(),
             against_next: None,
         };
@@ -2811,6 +2843,25 @@ mod tests {
             "{note}"
         );
         assert!(notes(&c).iter().any(|n| n.starts_with("v1 has")));
+    }
+
+    /// Variants wrapped beside variants not wrapped are named, each group;
+    /// all wrapped or none, no note.
+    #[test]
+    fn wrapped_beside_unwrapped_variants_are_noted() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        assert!(wrap_spread(&c.variants).is_none());
+        c.variants[1].wrapped = true;
+        c.variants[2].wrapped = true;
+        let note = wrap_spread(&c.variants).unwrap_or_default();
+        assert!(
+            note.starts_with("v1, v2 were wrapped into one surface")
+                && note.contains("and v0 not")
+                && note.contains("geometry.wrap = true"),
+            "{note}"
+        );
+        c.variants[0].wrapped = true;
+        assert!(wrap_spread(&c.variants).is_none());
     }
 
     /// Variants on panel counts more than 5 % apart get the page's note.
