@@ -166,6 +166,37 @@ pub struct Row {
     /// other variants or when either folder cannot be compared.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub against_next: Option<crate::compare::DragVerdict>,
+    /// Its reference area over the sweep's common one (the lowest drag
+    /// area's) where the variants' areas differ, else 1: the drag plot
+    /// puts its coefficients on the common area ([`common_area`]).
+    #[serde(skip, default = "unit_scale")]
+    pub area_scale: f64,
+}
+
+/// Set each ranked variant's [`Row::area_scale`] onto the [`common_area`].
+fn scale_to_common_area(rows: &mut [Row]) {
+    let common = common_area(rows);
+    for r in rows {
+        r.area_scale = match common {
+            Some(a) if r.reference_area_m2 > 0.0 => r.reference_area_m2 / a,
+            _ => 1.0,
+        };
+    }
+}
+
+/// [`Row::area_scale`] where nothing rescales.
+fn unit_scale() -> f64 {
+    1.0
+}
+
+/// The reference area the drag plot puts every variant's drag on, the
+/// lowest drag area's, where the variants' areas differ: the same drag
+/// force on a larger area is a smaller coefficient (a review's mirrors,
+/// 2.9 % more frontal area, read 17 counts on the plot against 22.8 in
+/// drag area).
+fn common_area(rows: &[Row]) -> Option<f64> {
+    let lowest = rows.first()?;
+    (areas_differ(rows) && lowest.reference_area_m2 > 0.0).then_some(lowest.reference_area_m2)
 }
 
 /// `sweep.json`.
@@ -581,13 +612,16 @@ fn areas_differ<'a>(rows: impl IntoIterator<Item = &'a Row>) -> bool {
 
 /// The gap in counts from the lowest drag to the runner-up, on the
 /// runner-up's reference area (as `tuft compare` puts B, the leader, on
-/// A's, the runner-up's): a difference of drag areas.
+/// A's, the runner-up's): a difference of drag areas, always (areas a
+/// fraction of a percent apart had given the coefficients' difference
+/// here and the drag areas' in sweep.csv, 1.8 against 2.6 counts).
 fn gap_counts(first: &Row, second: &Row) -> f64 {
-    if areas_differ([first, second]) {
-        1000.0 * (drag_area(second) - drag_area(first)) / second.reference_area_m2
+    let area = if second.reference_area_m2 > 0.0 {
+        second.reference_area_m2
     } else {
-        1000.0 * (second.cd - first.cd)
-    }
+        1.0
+    };
+    1000.0 * (drag_area(second) - drag_area(first)) / area
 }
 
 /// [`best_drag_in`]'s verdict on the leader.
@@ -715,6 +749,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         bail!("{}: no finished sweep variants here", dir.display());
     }
     let mut variants = rank(rows);
+    scale_to_common_area(&mut variants);
     judge_leaders(dir, &mut variants);
     let missing = plan.map_or_else(Vec::new, |p| {
         p.variants
@@ -862,17 +897,9 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
 /// the gap to the runner-up is then given), then plan index, and number
 /// them from 1 within each wind condition.
 fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
-    // Within a wind condition, drag areas where the reference areas differ
-    // (as the gap is then given), the coefficients otherwise.
-    let measure = |r: &Row, all: &[(usize, Row)]| {
-        let group = all.iter().map(|(_, o)| o).filter(|o| same_wind(o, r));
-        if areas_differ(group) {
-            drag_area(r)
-        } else {
-            r.cd
-        }
-    };
-    let keys: Vec<f64> = rows.iter().map(|(_, r)| measure(r, &rows)).collect();
+    // Within a wind condition, by drag area, as the gap is given: the
+    // same force on a larger area is a smaller coefficient.
+    let keys: Vec<f64> = rows.iter().map(|(_, r)| drag_area(r)).collect();
     let mut keyed: Vec<(f64, (usize, Row))> = keys.into_iter().zip(rows.drain(..)).collect();
     keyed.sort_by(|(ka, (i, a)), (kb, (j, b))| {
         a.speed
@@ -979,6 +1006,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         wrapped: s.wrapped(),
         regions: s.regions.clone(),
         against_next: None,
+        area_scale: 1.0,
     };
     Ok((row, record, s.case))
 }
@@ -1312,7 +1340,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
     let metrics: [Metric; 4] = [
         ("Drag estimate", "drag estimate [counts: C_D x 1000]", |r| {
-            1000.0 * r.cd
+            1000.0 * r.cd * r.area_scale
         }),
         ("Lift", "lift [kg], negative: downforce", |r| r.lift_kg),
         ("Separated area", "separated area [m²]", |r| {
@@ -1356,14 +1384,16 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                     })
                 };
                 let mut ends: Vec<Series> =
-                    end("band, low end", |r: &Row| 1000.0 * r.cd_low).collect();
-                off_scale = end("band, high end", |r: &Row| 1000.0 * r.cd_high)
-                    .next()
-                    .map(|series| OffScale {
-                        series,
-                        note: band_top_note(c),
-                        decimals: 0,
-                    });
+                    end("band, low end", |r: &Row| 1000.0 * r.cd_low * r.area_scale).collect();
+                off_scale = end("band, high end", |r: &Row| {
+                    1000.0 * r.cd_high * r.area_scale
+                })
+                .next()
+                .map(|series| OffScale {
+                    series,
+                    note: band_top_note(c),
+                    decimals: 0,
+                });
                 if let Some(estimate) = lines.first_mut() {
                     estimate.name = "estimate".into();
                 }
@@ -1403,7 +1433,12 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                         ""
                     },
                 x_label: axis_label(key),
-                y_label: (*unit).into(),
+                y_label: match (k, common_area(&c.variants)) {
+                    (0, Some(area)) => format!(
+                        "drag estimate [counts on {area:.3} m²: C_D·A / {area:.3} m² x 1000]"
+                    ),
+                    _ => (*unit).into(),
+                },
                 invert_y: false,
                 series: lines,
                 off_scale,
@@ -2531,6 +2566,7 @@ mod tests {
             wheels_on: false,
             floor_on_ground: false,
             wrapped: false,
+            area_scale: 1.0,
             regions: Vec::new(),
             against_next: None,
         };
@@ -3249,6 +3285,19 @@ mod tests {
         let text = csv(&c);
         let above = column(&text, "counts_above_lowest");
         assert_eq!(above, ["0.0", "9.1"], "{text}");
+        // The drag plot puts both on the lowest's area: 0.34 x 2.0 / 2.2
+        // is 309.1 counts, the gap's 9.1 above 0.30 on 2.2 m^2.
+        c.variants = rank(c.variants.drain(..).enumerate().collect());
+        scale_to_common_area(&mut c.variants);
+        let drag: Vec<f64> = c
+            .variants
+            .iter()
+            .map(|r| 1000.0 * r.cd * r.area_scale)
+            .collect();
+        assert!(
+            (drag[0] - 300.0).abs() < 1e-9 && (drag[1] - 1000.0 * 0.34 * 2.0 / 2.2).abs() < 1e-9,
+            "{drag:?}"
+        );
         // The page's ranking then shows the drag area beside C_D.
         let html = shown(&c, &[]);
         assert!(
@@ -3441,11 +3490,12 @@ mod tests {
     }
 
     /// Reference areas within 1 % of each other (geometry variants'
-    /// frontal areas) rank on C_D, the measure the gap is then given in:
-    /// ranked on drag area, 0.300 on 1.860 m^2 had come before 0.299 on
-    /// 1.870 m^2 and read "within -1.0 counts" of it.
+    /// frontal areas) rank on drag area, the measure the gap is given in
+    /// (ranked on drag area with the gap in C_D, 0.300 on 1.860 m^2 had
+    /// come before 0.299 on 1.870 m^2 and read "within -1.0 counts" of
+    /// it): 0.558 m^2 before 0.559, 0.6 counts apart on 1.870 m^2.
     #[test]
-    fn reference_areas_that_nearly_agree_rank_by_the_coefficient() {
+    fn reference_areas_that_nearly_agree_rank_by_drag_area() {
         let mut c = sweep(&[10.0, 10.0]);
         for (r, (name, area, cd)) in c
             .variants
@@ -3458,9 +3508,10 @@ mod tests {
         }
         let rows: Vec<(usize, Row)> = c.variants.iter().cloned().enumerate().collect();
         c.variants = rank(rows);
-        assert_eq!(c.variants[0].name, "b");
+        assert_eq!(c.variants[0].name, "a");
         let gap = gap_counts(&c.variants[0], &c.variants[1]);
-        assert!((gap - 1.0).abs() < 1e-9, "{gap}");
+        let exact = 1000.0 * (0.299 * 1.870 - 0.300 * 1.860) / 1.870;
+        assert!((gap - exact).abs() < 1e-9 && gap > 0.0, "{gap}");
     }
 
     /// The page warns when the separated share of the surface moves by
