@@ -1357,6 +1357,16 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     let noise = sweep_floor(&c.variants);
     let mut out = Vec::new();
     for key in &c.keys {
+        // A key whose labels change in step with it is plotted against
+        // them alone (a review's ride-height sweep, labelled in mm, drew
+        // every plot twice, against ground.z and against the label).
+        if !crate::sweep::plan::is_label(key)
+            && lockstep(c, key)
+                .iter()
+                .any(|k| crate::sweep::plan::is_label(k))
+        {
+            continue;
+        }
         let categories = if numeric_key(c, key) {
             Vec::new()
         } else {
@@ -2879,6 +2889,29 @@ mod tests {
             "{note}"
         );
         assert!(notes(&c).iter().any(|n| n.starts_with("v1 has")));
+    }
+
+    /// A numeric key labelled in step (a ride-height sweep through the
+    /// ground, labelled in mm) is plotted against its labels only.
+    #[test]
+    fn a_labelled_key_is_plotted_once() {
+        let mut c = sweep(&[10.0, 10.2, 10.1]);
+        c.keys = vec!["ground.z".into(), "ride height [mm]".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            let z = 0.02 - 0.02 * k as f64;
+            r.settings.insert("ground.z".into(), serde_json::json!(z));
+            r.settings
+                .insert("ride height [mm]".into(), serde_json::json!(-1000.0 * z));
+        }
+        let names: Vec<String> = plots(&c).unwrap().into_iter().map(|p| p.0).collect();
+        assert!(
+            names.contains(&"Drag estimate against ride height [mm]".to_owned()),
+            "{names:?}"
+        );
+        assert!(
+            !names.iter().any(|n| n.ends_with("against ground.z")),
+            "{names:?}"
+        );
     }
 
     /// Variants wrapped beside variants not wrapped are named, each group;

@@ -396,7 +396,8 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 v.key
             ),
             (Some(l), _) if l.len() != v.values.len() => bail!(
-                "vary #{} (key \"{}\"): {} labels for {} values (give one number for each value)",
+                "vary #{} (key \"{}\"): {} labels for {} values (give one label, a number or a name, for \
+                 each value)",
                 k + 1,
                 v.key,
                 l.len(),
