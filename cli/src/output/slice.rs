@@ -158,6 +158,10 @@ impl Default for SliceParams {
     }
 }
 
+/// Room under a field's bottom edge for its tick labels, axis name and
+/// the colour bar's clipping note, pixels.
+const BELOW_FIELDS: f64 = 90.0;
+
 /// Where one field of the slice landed: grid index to pixel.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SliceFrame {
@@ -210,7 +214,13 @@ pub fn slice_picture_with_params(
     params: &SliceParams,
 ) -> Result<(Canvas, [SliceFrame; 2]), OutputError> {
     slice.validate()?;
-    let mut c = Canvas::new(params.width, params.height)?;
+    let frames = panel_frames(slice, params);
+    // The picture ends under its fields' axes (a review's window beside a
+    // mirror, wide and low, laid side by side, had left the lower half of
+    // the picture blank).
+    let bottom = frames.iter().map(|f| f.origin.1).fold(0.0, f64::max) + BELOW_FIELDS;
+    let height = (bottom.ceil() as u32).min(params.height);
+    let mut c = Canvas::new(params.width, height)?;
     let u = caption.speed_ms.abs().max(f64::MIN_POSITIVE);
     let speed: Vec<Option<f64>> = slice
         .velocity
@@ -241,7 +251,6 @@ pub fn slice_picture_with_params(
     let speed_name = format!("Speed |V|/U (1 = {} m/s)", short_number(u));
     let names = [speed_name.as_str(), "Pressure coefficient Cp"];
     let fields = [&painted[0], &painted[1]];
-    let frames = panel_frames(slice, params);
     for k in 0..2 {
         draw_field(&mut c, slice, fields[k], &scales[k], &frames[k]);
         draw_axes(&mut c, slice, &frames[k], names[k]);
@@ -672,7 +681,14 @@ mod tests {
         let png = canvas.to_png().unwrap();
         keep("slice.png", &png);
         let img = decode(&png);
-        assert_eq!((img.width, img.height), (1600, 1000));
+        // The picture ends under its fields' axes.
+        let bottom = frames.iter().map(|f| f.origin.1).fold(0.0, f64::max);
+        assert_eq!(img.width, 1600);
+        assert!(
+            f64::from(img.height) >= bottom + 60.0 && img.height <= 1000,
+            "{} against fields down to {bottom}",
+            img.height
+        );
         assert!(img.distinct_colours() > 100);
         let grid = |x: f64, z: f64| ((x + 3.0) / 0.05, (z + 1.5) / 0.05);
         for f in &frames {
