@@ -415,8 +415,8 @@ pub const UNDERBODY_SLICE_GAP: f64 = 0.02;
 fn slice_note(c: &Computed) -> String {
     match &c.wakes {
         Some(w) if w.passes > 1 => format!(
-            "Hatched: dead water behind separated surface (to one body height), which the model holds \
-             at {}; the colours there show the stream it lets through instead.",
+            "Hatched grey: dead water behind separated surface (to one body height), which the model \
+             holds at {} and computes no flow in (the VTK file keeps the stream it lets through).",
             w.dead_water_cp
                 .or(w.base_cp_loop)
                 .map(|v| format!("Cp {v:.2}"))

@@ -32,6 +32,12 @@ pub const BODY: Rgb = [140, 142, 150];
 const DEAD_WATER_STRIPE: (i64, i64) = (10, 3);
 const DEAD_WATER_INK: Rgb = [70, 72, 80];
 
+/// Ground colour of the dead water under its stripes: the model computes
+/// no flow there (the last pass lets the free stream through its panels),
+/// so no field colour is drawn (a review's hatched tube behind a mirror,
+/// in free-stream colours, read as "no wake").
+const DEAD_WATER_GROUND: Rgb = [226, 227, 230];
+
 /// Samples closer than this many panel sizes (longest edge) to a panel's
 /// centroid are near the surface: the velocity of a constant-strength
 /// panel is singular along its edges (Katz & Plotkin 2001, sec. 10.4),
@@ -440,15 +446,15 @@ fn draw_field(
             if gi < 0.0 || gj < 0.0 || gi > (ni - 1) as f64 || gj > (nj - 1) as f64 {
                 continue;
             }
+            let k = gi.round() as usize + gj.round() as usize * ni;
+            let dead = slice.dead_water.get(k).copied().unwrap_or(false);
             let colour = match sample(field, slice.dims, gi, gj) {
+                Some(_) if dead => DEAD_WATER_GROUND,
                 Some(v) => scale.colour(v).unwrap_or(BODY),
                 None => BODY,
             };
             c.blend(x, y, colour, 1.0);
-            let k = gi.round() as usize + gj.round() as usize * ni;
-            if slice.dead_water.get(k).copied().unwrap_or(false)
-                && (x + y).rem_euclid(DEAD_WATER_STRIPE.0) < DEAD_WATER_STRIPE.1
-            {
+            if dead && (x + y).rem_euclid(DEAD_WATER_STRIPE.0) < DEAD_WATER_STRIPE.1 {
                 c.blend(x, y, DEAD_WATER_INK, 0.55);
             }
         }
