@@ -132,7 +132,13 @@ pub fn draw_line_plot(
     params: &PlotParams,
 ) -> Result<(Canvas, PlotFrame), OutputError> {
     let mut c = Canvas::new(params.width, params.height)?;
-    let frame = plot_frame(plot, params);
+    let mut frame = plot_frame(plot, params);
+    // Where the legend would cover points in every corner, room above
+    // them for it (a review's region plot hid a point at 99 % under it).
+    if let Some(share) = legend_room(plot, &frame) {
+        let (bottom, top) = frame.y_range;
+        frame.y_range.1 = top + (top - bottom) * share / (1.0 - share);
+    }
     for sh in &plot.shading {
         draw_shading(&mut c, sh, &frame);
     }
@@ -540,11 +546,8 @@ fn draw_legend(
         return;
     }
     let style = TextStyle::new(15.0);
-    let text_w = keys
-        .iter()
-        .map(|k| text::width(k.name(), &style))
-        .fold(0.0, f32::max);
-    let (bw, bh) = (text_w + 70.0, 12.0 + 26.0 * keys.len() as f32);
+    let names: Vec<String> = keys.iter().map(|k| k.name().to_owned()).collect();
+    let (bw, bh) = legend_size(&names);
     let (x, y) = legend_corner(series, arrows, f, (bw, bh));
     c.fill_rect(x, y, bw, bh, WHITE);
     c.stroke_rect(x, y, bw, bh, [180, 182, 188], 1.0);
@@ -568,6 +571,42 @@ fn draw_legend(
     }
 }
 
+/// The share of the plot area's height to add above the data for the
+/// legend, when its box would cover a point in every corner; `None` when a
+/// corner is clear or there is no legend. The keys as
+/// [`draw_line_plot`] lists them (an off-scale curve's name as if it had
+/// arrows).
+fn legend_room(plot: &LinePlot, f: &PlotFrame) -> Option<f64> {
+    let mut names: Vec<String> = plot
+        .off_scale
+        .iter()
+        .map(|o| format!("{} (arrows: off the scale)", o.series.name))
+        .collect();
+    names.extend(plot.series.iter().map(|s| s.name.clone()));
+    names.extend(
+        plot.shading
+            .iter()
+            .filter(|sh| !sh.spans.is_empty())
+            .map(|sh| sh.name.clone()),
+    );
+    if names.len() < 2 {
+        return None;
+    }
+    let size = legend_size(&names);
+    let (_, covered) = legend_cover(&plot.series, &[], f, size);
+    (covered > 0).then(|| ((f64::from(size.1) + 24.0) / f.rect.3).min(0.4))
+}
+
+/// The size of a legend box listing `names`, pixels.
+fn legend_size(names: &[String]) -> (f32, f32) {
+    let style = TextStyle::new(15.0);
+    let text_w = names
+        .iter()
+        .map(|n| text::width(n, &style))
+        .fold(0.0, f32::max);
+    (text_w + 70.0, 12.0 + 26.0 * names.len() as f32)
+}
+
 /// The top-left corner of a legend box of size `(bw, bh)`: the corner of
 /// the plot area whose box covers the fewest curve points and `marks`
 /// (pixel positions, such as off-scale arrows), top right when several
@@ -576,8 +615,18 @@ fn legend_corner(
     series: &[Series],
     marks: &[(f64, f64)],
     f: &PlotFrame,
-    (bw, bh): (f32, f32),
+    size: (f32, f32),
 ) -> (f32, f32) {
+    legend_cover(series, marks, f, size).0
+}
+
+/// [`legend_corner`]'s corner and how many points its box covers.
+fn legend_cover(
+    series: &[Series],
+    marks: &[(f64, f64)],
+    f: &PlotFrame,
+    (bw, bh): (f32, f32),
+) -> ((f32, f32), usize) {
     let (l, t, w, h) = (
         f.rect.0 as f32,
         f.rect.1 as f32,
@@ -606,9 +655,9 @@ fn legend_corner(
     // min_by_key keeps the first of equals: top right.
     corners
         .iter()
-        .copied()
-        .min_by_key(covered)
-        .unwrap_or(corners[0])
+        .map(|c| (*c, covered(c)))
+        .min_by_key(|&(_, n)| n)
+        .unwrap_or((corners[0], 0))
 }
 
 /// Settings of the centre-line extraction.
@@ -1112,6 +1161,41 @@ mod tests {
         let frame = plot_frame(&flat, &PlotParams::default());
         let (x, _) = legend_corner(&flat.series, &[], &frame, (200.0, 64.0));
         assert!(x > (frame.rect.0 + 0.5 * frame.rect.2) as f32, "{x}");
+    }
+
+    /// Points in every corner (four categories, each with a point at the
+    /// top and the bottom): the plot makes room above them, and the
+    /// legend covers none (a review's region plot hid a point at 99 %).
+    #[test]
+    fn the_legend_gets_room_when_every_corner_is_taken() {
+        let series = |name: &str, y: f64| Series {
+            name: name.into(),
+            points: (0..4).map(|k| (f64::from(k), y)).collect(),
+            colour: [0, 0, 0],
+        };
+        let plot = LinePlot {
+            series: vec![
+                series("tailgate", 99.0),
+                series("roof", 1.0),
+                series("flank behind mirror", 0.5),
+                series("floor", 0.0),
+            ],
+            x_categories: ["none", "block", "mirrors", "pods"]
+                .map(String::from)
+                .to_vec(),
+            ..LinePlot::default()
+        };
+        let bare = plot_frame(&plot, &PlotParams::default());
+        let names: Vec<String> = plot.series.iter().map(|s| s.name.clone()).collect();
+        let size = legend_size(&names);
+        let cover = legend_cover(&plot.series, &[], &bare, size);
+        assert!(cover.1 > 0, "{size:?} {cover:?} {bare:?}");
+        let (_, frame) = draw_line_plot(&plot, &PlotParams::default()).unwrap();
+        assert!(frame.y_range.1 > bare.y_range.1);
+        assert_eq!(
+            legend_cover(&plot.series, &[], &frame, legend_size(&names)).1,
+            0
+        );
     }
 
     #[test]
