@@ -64,7 +64,13 @@ fn a_plane_across_the_stream_through_a_sphere_follows_lamb() {
         assert!(files.contains(&f.to_owned()), "{f} in {files:?}");
     }
     let pic = read_png(&std::fs::read(out.join("slice-equator.png")).unwrap());
-    assert_eq!((pic.width, pic.height), (1600, 1000));
+    // The picture ends under its fields' axes, within the canvas.
+    assert!(
+        pic.width == 1600 && (500..=1000).contains(&pic.height),
+        "{} x {}",
+        pic.width,
+        pic.height
+    );
     assert!(pic.drawn_fraction() > 0.10);
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("Flow slice: Equator"));
@@ -133,7 +139,13 @@ fn a_narrowed_window_at_a_finer_spacing_keeps_to_it_and_follows_lamb() {
     assert!(o.code <= 1, "exit {}: {}", o.code, o.stderr);
     let out = root.join("result");
     let pic = read_png(&std::fs::read(out.join("slice-beside.png")).unwrap());
-    assert_eq!((pic.width, pic.height), (1600, 1000));
+    // The picture ends under its fields' axes, within the canvas.
+    assert!(
+        pic.width == 1600 && (500..=1000).contains(&pic.height),
+        "{} x {}",
+        pic.width,
+        pic.height
+    );
     assert!(pic.drawn_fraction() > 0.10);
 
     let vti = out.join("slice-beside.vti");
