@@ -47,6 +47,9 @@ pub struct Row {
     pub rank: usize,
     /// Variant name.
     pub name: String,
+    /// Its place in the sweep's list (0-based).
+    #[serde(default)]
+    pub index: usize,
     /// Swept values by dotted key.
     pub settings: BTreeMap<String, serde_json::Value>,
     /// Drag estimate C_D.
@@ -959,6 +962,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
     let row = Row {
         rank: 0,
         name: record.name.clone(),
+        index: record.index,
         settings: record
             .settings
             .iter()
@@ -1659,8 +1663,11 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
 /// and for an STL list whose labels change in step with it (the labels
 /// are plotted instead: one swept quantity, not two).
 fn categories(c: &Collected, key: &str) -> Option<Vec<String>> {
-    let set: Vec<&serde_json::Value> = c
-        .variants
+    // In the sweep's order, not the ranking's (a review's fairing heights
+    // had read high, mid, low, none across the axis).
+    let mut in_order: Vec<&Row> = c.variants.iter().collect();
+    in_order.sort_by_key(|r| r.index);
+    let set: Vec<&serde_json::Value> = in_order
         .iter()
         .filter_map(|r| r.settings.get(key))
         .collect();
@@ -2541,6 +2548,7 @@ mod tests {
     fn sweep(shares: &[f64]) -> Collected {
         let row = |(k, &p): (usize, &f64)| Row {
             rank: k + 1,
+            index: k,
             name: format!("v{k}"),
             settings: BTreeMap::new(),
             cd: 0.3,
@@ -2711,6 +2719,13 @@ mod tests {
             categories(&c, "geometry.stl"),
             Some(vec!["deck0.stl".to_owned(), "deck30.stl".to_owned()])
         );
+        // In the sweep's order whatever the ranking.
+        c.variants.reverse();
+        assert_eq!(
+            categories(&c, "geometry.stl"),
+            Some(vec!["deck0.stl".to_owned(), "deck30.stl".to_owned()])
+        );
+        c.variants.reverse();
         let xs: Vec<f64> = series(&c, "geometry.stl", |r| r.cd)
             .iter()
             .flat_map(|s| s.points.iter().map(|p| p.0))
