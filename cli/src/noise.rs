@@ -218,7 +218,10 @@ fn target_of(case: &Case, geo: &Geometry) -> (usize, bool) {
             case.file.geometry.panels.unwrap_or(geometry::SHAPE_PANELS),
             true,
         ),
+        // A half model mirrored whole for a cross wind: the case's count
+        // is the half's, the report's the whole's.
         GeometrySource::Stl { .. } => match &geo.report.coarsen {
+            Some(c) if geometry::mirrored_whole(case) => (c.target_panels / 2, true),
             Some(c) => (c.target_panels, true),
             None => (geo.mesh.len(), false),
         },

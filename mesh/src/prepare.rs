@@ -643,11 +643,15 @@ pub fn repair_body(
     } else {
         (mesh, None)
     };
-    // Mirrored into a whole body, which then runs without the plane.
-    let (mesh, params) = if whole.whole_from_half {
-        (crate::mirror::whole_from_half(&mesh, plane_tol), &whole)
+    // A half to run whole stays a half through the coarsening, which
+    // then mirrors its panels (`Repaired::panels`): both sides panelled
+    // alike, twice the half's count (mirrored before it, a review's van
+    // was panelled 868 and 882 to a side, on half the count asked, and
+    // read 28 counts apart at yaw +5 and -5 degrees).
+    let params = if whole.whole_from_half {
+        &whole
     } else {
-        (mesh, params)
+        params
     };
     // A wrapped half model's surface facing the symmetry plane from close
     // by, and its whole area, measured here before the coarsening (for the
@@ -656,7 +660,8 @@ pub fn repair_body(
         .as_ref()
         .filter(|_| params.mirrors.symmetry)
         .map(|w| (facing_the_plane(&mesh, 2.0 * w.cell), mesh.area(), w.cell));
-    let suggested = suggest(&mesh);
+    // For the whole body when it runs whole.
+    let suggested = suggest(&mesh) * if whole.whole_from_half { 2 } else { 1 };
     let mirrors = MirrorReport {
         ground: params.mirrors.ground,
         symmetry: params.mirrors.symmetry,
@@ -705,20 +710,46 @@ impl Repaired {
             target_panels,
             ..self.params
         };
-        let target = target_panels.unwrap_or(self.parts.suggested);
-        let (mesh, coarsen) = if self.mesh.len() > target {
+        // A half to run whole is coarsened as a half model with its plane
+        // to the count asked (a half model's, as a case gives it) and its
+        // panels mirrored: twice that count runs.
+        let halves = if params.whole_from_half { 2 } else { 1 };
+        let half_target = target_panels.unwrap_or_else(|| self.parts.suggested.div_ceil(halves));
+        let target = halves * half_target;
+        let mirrors = Mirrors {
+            symmetry: params.mirrors.symmetry || params.whole_from_half,
+            ..params.mirrors
+        };
+        let (mesh, mut coarsen) = if self.mesh.len() > half_target {
             let cp = CoarsenParams {
-                target_panels: target,
+                target_panels: half_target,
                 ..params.coarsen
             };
             crate::stage::starting(|| {
-                format!("coarsening {} facets to {target} panels", self.mesh.len())
+                format!(
+                    "coarsening {} facets to {half_target} panels",
+                    self.mesh.len()
+                )
             });
-            let (m, r) = coarsen_with_params(&self.mesh, &params.mirrors, &cp);
+            let (m, r) = coarsen_with_params(&self.mesh, &mirrors, &cp);
             refuse_failed_coarsening(&r)?;
             (m, Some(r))
         } else {
             (self.mesh.clone(), None)
+        };
+        let mesh = if params.whole_from_half {
+            let tol = params.repair.plane_tolerance * self.parts.repair.diagonal;
+            let whole = crate::mirror::whole_from_half(&mesh, tol);
+            // The report counts the panels that run, the whole body's.
+            if let Some(c) = coarsen.as_mut() {
+                c.input_panels *= 2;
+                c.target_panels = target;
+                c.achieved_panels = whole.len();
+                c.largest_try *= 2;
+            }
+            whole
+        } else {
+            mesh
         };
         panel_and_report(mesh, coarsen, params, self.parts.clone())
     }
