@@ -169,6 +169,21 @@ impl Plan {
         let text = std::fs::read_to_string(path)
             .with_context(|| format!("{}: cannot read the sweep file", path.display()))?;
         crate::case::other_kind(path, &text, true)?;
+        // `base = "FILE"` and a `[base.geometry]` table beside it: TOML
+        // cannot add keys to a string (a review met its parser's "cannot
+        // extend value of type the text with a dotted key").
+        if text
+            .lines()
+            .any(|l| l.trim_start().starts_with("base") && l.contains('"'))
+            && text.lines().any(|l| l.trim_start().starts_with("[base."))
+        {
+            bail!(
+                "{}: base names a case file, so it takes no [base.*] tables of its own; change a \
+                 setting of the base case through a [[vary]] list with one value (key = \"panels\", \
+                 values = [3000]), or write the whole case under [base] instead of naming a file",
+                path.display()
+            );
+        }
         let file: SweepFile =
             toml::from_str(&text).map_err(|e| crate::case::toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
@@ -694,6 +709,25 @@ mod tests {
     /// The sentence a refused sweep file gets.
     fn refusal(text: &str) -> String {
         plan(text).unwrap_err().to_string()
+    }
+
+    /// A base case file with a [base.geometry] table beside it is refused
+    /// in words, naming the way to change a base setting.
+    #[test]
+    fn a_base_file_with_its_own_tables_is_refused_in_words() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("s.toml");
+        std::fs::write(
+            &path,
+            "base = \"c.toml\"\n[base.geometry]\npanels = 500\n[[vary]]\nkey = \"yaw\"\nvalues = [0.0]\n",
+        )
+        .unwrap();
+        let why = Plan::load(&path).unwrap_err().to_string();
+        assert!(
+            why.contains("base names a case file, so it takes no [base.*] tables")
+                && why.contains("[[vary]] list with one value"),
+            "{why}"
+        );
     }
 
     /// Labels give each value a number that sets nothing in the case and
