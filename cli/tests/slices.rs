@@ -63,15 +63,7 @@ fn a_plane_across_the_stream_through_a_sphere_follows_lamb() {
     for f in ["slice-equator.png", "slice-equator.vti"] {
         assert!(files.contains(&f.to_owned()), "{f} in {files:?}");
     }
-    let pic = read_png(&std::fs::read(out.join("slice-equator.png")).unwrap());
-    // The picture ends under its fields' axes, within the canvas.
-    assert!(
-        pic.width == 1600 && (500..=1000).contains(&pic.height),
-        "{} x {}",
-        pic.width,
-        pic.height
-    );
-    assert!(pic.drawn_fraction() > 0.10);
+    drawn_within_the_canvas(&out.join("slice-equator.png"));
     let report = std::fs::read_to_string(out.join("report.html")).unwrap();
     assert!(report.contains("Flow slice: Equator"));
 
@@ -138,15 +130,7 @@ fn a_narrowed_window_at_a_finer_spacing_keeps_to_it_and_follows_lamb() {
     let o = tuft(&root, &["run", &file, "--out", "result", "--threads", "1"]);
     assert!(o.code <= 1, "exit {}: {}", o.code, o.stderr);
     let out = root.join("result");
-    let pic = read_png(&std::fs::read(out.join("slice-beside.png")).unwrap());
-    // The picture ends under its fields' axes, within the canvas.
-    assert!(
-        pic.width == 1600 && (500..=1000).contains(&pic.height),
-        "{} x {}",
-        pic.width,
-        pic.height
-    );
-    assert!(pic.drawn_fraction() > 0.10);
+    drawn_within_the_canvas(&out.join("slice-beside.png"));
 
     let vti = out.join("slice-beside.vti");
     let grid: Vec<f64> = vtk_read(GRID, &vti)[0]
@@ -237,4 +221,18 @@ fn a_plane_that_cannot_be_drawn_is_refused_before_the_run() {
         assert!(o.stderr.contains("sphere.toml"), "{name}: {}", o.stderr);
         assert!(!root.join("result").exists(), "{name}: no result folder");
     }
+}
+
+/// A slice picture ends under its fields' axes, within the 1600 x 1000
+/// canvas, and is drawn on.
+fn drawn_within_the_canvas(png: &Path) {
+    let pic = read_png(&std::fs::read(png).unwrap());
+    assert!(
+        pic.width == 1600 && (500..=1000).contains(&pic.height),
+        "{}: {} x {}",
+        png.display(),
+        pic.width,
+        pic.height
+    );
+    assert!(pic.drawn_fraction() > 0.10);
 }
