@@ -494,7 +494,11 @@ fn check_reference(r: &ReferenceSection) -> Result<()> {
     }
     match (r.front_axle_x, r.rear_axle_x) {
         (Some(f), Some(b)) if !(b > f) => {
-            bail!("reference.rear_axle_x ({b}) must lie behind reference.front_axle_x ({f})")
+            bail!(
+                "reference.rear_axle_x ({b}) must lie behind reference.front_axle_x ({f}): x runs \
+                 from the nose backwards in metres, so the rear axle's is the larger (check both: \
+                 one off the body reads so too)"
+            )
         }
         (Some(_), None) | (None, Some(_)) => {
             bail!("reference.front_axle_x and reference.rear_axle_x must be given together")
@@ -712,6 +716,24 @@ mod tests {
 
     fn err(text: &str) -> String {
         format!("{:#}", parse(text).unwrap_err())
+    }
+
+    /// Axles in the wrong order are refused saying which way x runs (a
+    /// review's front axle typed off the body read only as an order
+    /// error); one axle alone is refused too.
+    #[test]
+    fn axles_out_of_order_or_alone_are_refused() {
+        let e = err(
+            "[geometry]\nshape = \"coupe\"\n[reference]\nfront_axle_x = 7.0\nrear_axle_x = 4.4\n",
+        );
+        assert!(
+            e.contains("must lie behind reference.front_axle_x (7)")
+                && e.contains("x runs from the nose backwards")
+                && e.contains("one off the body"),
+            "{e}"
+        );
+        let e = err("[geometry]\nshape = \"coupe\"\n[reference]\nfront_axle_x = 0.9\n");
+        assert!(e.contains("must be given together"), "{e}");
     }
 
     /// A misspelt key or value names the known one nearest to it (scores
