@@ -1364,11 +1364,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         // A key whose labels change in step with it is plotted against
         // them alone (a review's ride-height sweep, labelled in mm, drew
         // every plot twice, against ground.z and against the label).
-        if !crate::sweep::plan::is_label(key)
-            && lockstep(c, key)
-                .iter()
-                .any(|k| crate::sweep::plan::is_label(k))
-        {
+        if labelled_in_step(c, key) {
             continue;
         }
         let categories = if numeric_key(c, key) {
@@ -1507,6 +1503,7 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
     if c.regions.is_empty() || series(c, key, |r| r.cd).len() != 1 {
         return None;
     }
+    let names = categories(c, key).unwrap_or_default();
     let lines: Vec<Series> = c
         .regions
         .iter()
@@ -1516,7 +1513,7 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
                 .variants
                 .iter()
                 .filter_map(|r| {
-                    let x = x_of(c, key, r.settings.get(key)?)?;
+                    let x = x_of(&names, key, r.settings.get(key)?)?;
                     Some((x, 100.0 * region(r, name)?.separated_fraction))
                 })
                 .collect();
@@ -1657,6 +1654,16 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
     set.peek().is_some() && set.all(|v| v.as_f64().is_some())
 }
 
+/// Whether `key` is no label but has labels that change in step with it
+/// ([`lockstep`]): an STL list and the labels given to its files, one
+/// swept quantity plotted against the labels.
+fn labelled_in_step(c: &Collected, key: &str) -> bool {
+    !crate::sweep::plan::is_label(key)
+        && lockstep(c, key)
+            .iter()
+            .any(|k| crate::sweep::plan::is_label(k))
+}
+
 /// The names of a swept key whose values are text (an STL per variant,
 /// or names given as its labels), in the sweep's order, for a plot's
 /// axis of categories; `None` for a key whose values are not all text,
@@ -1671,14 +1678,7 @@ fn categories(c: &Collected, key: &str) -> Option<Vec<String>> {
         .iter()
         .filter_map(|r| r.settings.get(key))
         .collect();
-    if set.is_empty() || !set.iter().all(|v| v.is_string()) {
-        return None;
-    }
-    if !crate::sweep::plan::is_label(key)
-        && lockstep(c, key)
-            .iter()
-            .any(|k| crate::sweep::plan::is_label(k))
-    {
+    if set.is_empty() || !set.iter().all(|v| v.is_string()) || labelled_in_step(c, key) {
         return None;
     }
     let mut names: Vec<String> = Vec::new();
@@ -1691,15 +1691,12 @@ fn categories(c: &Collected, key: &str) -> Option<Vec<String>> {
     Some(names)
 }
 
-/// Where a swept value lies on a plot's axis: a number as itself, a text
-/// value at its place among [`categories`].
-fn x_of(c: &Collected, key: &str, v: &serde_json::Value) -> Option<f64> {
+/// Where a swept value of `key` lies on a plot's axis: a number as
+/// itself, a text value at its place among the key's `categories`.
+fn x_of(categories: &[String], key: &str, v: &serde_json::Value) -> Option<f64> {
     v.as_f64().or_else(|| {
         let name = shown_cell(key, v);
-        categories(c, key)?
-            .iter()
-            .position(|n| *n == name)
-            .map(|k| k as f64)
+        categories.iter().position(|n| *n == name).map(|k| k as f64)
     })
 }
 
@@ -1813,6 +1810,8 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     type Group = (Vec<(f64, String)>, String, Vec<(f64, f64)>);
     let mut groups: Vec<Group> = Vec::new();
     let along = lockstep(c, key);
+    // A text key's places on the axis, found once.
+    let names = categories(c, key).unwrap_or_default();
     // Only the variants that set `key` (see `numeric_key`).
     for r in c.variants.iter().filter(|r| r.settings.contains_key(key)) {
         let others: Vec<(&String, &serde_json::Value)> = r
@@ -1830,7 +1829,7 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
         let x = r
             .settings
             .get(key)
-            .and_then(|v| x_of(c, key, v))
+            .and_then(|v| x_of(&names, key, v))
             .unwrap_or(f64::NAN);
         match groups.iter_mut().find(|g| g.1 == name) {
             Some(g) => g.2.push((x, f(r))),

@@ -717,10 +717,8 @@ fn changed_surface(
     state_a: &[PanelState],
     out: &mut SurfaceDeltas,
 ) {
-    let mut areas: Vec<f64> = b.panels.iter().map(|p| p.area).collect();
-    areas.sort_by(f64::total_cmp);
-    let median = areas.get(areas.len() / 2).copied().unwrap_or(0.0);
-    out.panel_edge_m = (4.0 * median / 3f64.sqrt()).sqrt();
+    out.panel_edge_m =
+        tuft_mesh::quality::typical_edge(b.panels.iter().map(|p| p.area)).unwrap_or(0.0);
     let near =
         (UNCHANGED_FRACTION * b.summary.reference.length_m).max(CHANGED_EDGES * out.panel_edge_m);
     out.margins_m = [UNCHANGED_FRACTION * b.summary.reference.length_m, near];

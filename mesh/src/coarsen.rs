@@ -603,7 +603,7 @@ fn simplify_staged(
     let mut current = mesh.clone();
     while current.len() > target {
         let goal = ((current.len() as f64 * STAGE_SHARE) as usize).max(target);
-        let reach = (4.0 * area / (3f64.sqrt() * goal as f64)).sqrt();
+        let reach = crate::quality::equilateral_edge(area / goal as f64);
         let used: Vec<u32> = {
             let mut v: Vec<u32> = current.triangles.iter().flatten().copied().collect();
             v.sort_unstable();
@@ -612,11 +612,13 @@ fn simplify_staged(
         };
         let mut stage_locks = locks.to_vec();
         let mut tried = current.clone();
+        let mut closed = false;
         for _ in 0..STAGE_ROUNDS {
             tried = simplify(&current, &stage_locks, goal, regularize);
             flip_collinear(&mut tried);
             let faults = closure_faults(&tried, border_ok);
             if faults.is_empty() {
+                closed = true;
                 break;
             }
             let places: Vec<Point> = faults
@@ -630,7 +632,7 @@ fn simplify_staged(
                 }
             }
         }
-        if tried.len() >= current.len() || !closure_faults(&tried, border_ok).is_empty() {
+        if !closed || tried.len() >= current.len() {
             return tried;
         }
         current = tried;

@@ -298,10 +298,7 @@ pub const THIN_EDGES: f64 = 2.0;
 /// carried about 9 counts on 43 panels, most held at the rim bound or the
 /// dead water's pressure, where the first wording had said none).
 fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Option<String> {
-    let mut areas: Vec<f64> = panels.panels.iter().map(|p| p.area).collect();
-    areas.sort_by(f64::total_cmp);
-    let median = areas.get(areas.len() / 2).copied()?;
-    let edge = (4.0 * median / 3f64.sqrt()).sqrt();
+    let edge = crate::quality::typical_edge(panels.panels.iter().map(|p| p.area))?;
     let under: Vec<&crate::thin::PartSize> = thin
         .iter()
         .filter(|p| p.thickness < THIN_EDGES * edge)

@@ -575,6 +575,20 @@ fn spread(mut v: Vec<f64>) -> Spread {
     }
 }
 
+/// The edge of an equilateral triangle of `area` (m^2), m: a panel's
+/// typical edge.
+pub fn equilateral_edge(area: f64) -> f64 {
+    (4.0 * area / 3f64.sqrt()).sqrt()
+}
+
+/// The panels' typical edge: that of an equilateral triangle of their
+/// median area, m; `None` without panels.
+pub fn typical_edge(areas: impl IntoIterator<Item = f64>) -> Option<f64> {
+    let mut areas: Vec<f64> = areas.into_iter().collect();
+    areas.sort_by(f64::total_cmp);
+    areas.get(areas.len() / 2).map(|&a| equilateral_edge(a))
+}
+
 /// A panel count for a body of wetted `area` (m^2, the real panels only)
 /// and overall `length` (m): panels with edges about `length / 50` (so
 /// about 50 panels along the body, enough to resolve the pressure peaks at

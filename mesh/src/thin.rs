@@ -35,37 +35,14 @@ pub const MEASURED_SHARE: f64 = 0.05;
 /// largest by area, thinner than [`MEASURED_SHARE`] of the body's length
 /// and not wholly inside another part, thinnest first.
 pub fn thin_parts(mesh: &TriMesh) -> Vec<PartSize> {
-    let n = mesh.vertices.len();
-    let mut parent: Vec<u32> = (0..n as u32).collect();
-    fn root(parent: &mut [u32], mut x: u32) -> u32 {
-        while parent[x as usize] != x {
-            let up = parent[parent[x as usize] as usize];
-            parent[x as usize] = up;
-            x = up;
-        }
-        x
-    }
-    for t in &mesh.triangles {
-        let a = root(&mut parent, t[0]);
-        for &v in &t[1..] {
-            let b = root(&mut parent, v);
-            if a != b {
-                parent[b as usize] = a;
-            }
-        }
-    }
-    let part_of: Vec<u32> = mesh
-        .triangles
-        .iter()
-        .map(|t| root(&mut parent, t[0]))
-        .collect();
-    let mut ids: Vec<u32> = part_of.clone();
+    let part_of = crate::crossing::surfaces(mesh);
+    let mut ids: Vec<usize> = part_of.clone();
     ids.sort_unstable();
     ids.dedup();
     if ids.len() < 2 {
         return Vec::new();
     }
-    let index = |r: u32| ids.binary_search(&r).unwrap_or(0);
+    let index = |r: usize| ids.binary_search(&r).unwrap_or(0);
     let mut area = vec![0.0; ids.len()];
     let mut facets: Vec<Vec<usize>> = vec![Vec::new(); ids.len()];
     for (t, &r) in part_of.iter().enumerate() {
@@ -98,10 +75,12 @@ pub fn thin_parts(mesh: &TriMesh) -> Vec<PartSize> {
         }
     }
     thin.sort_by(|a, b| a.0.total_cmp(&b.0));
-    // Each enclosure test passes over every facet: the thinnest only.
+    let Some(rays) = crate::wrap::PartRays::new(mesh, &part_of) else {
+        return Vec::new();
+    };
     thin.into_iter()
         .take(MOST_TESTED)
-        .filter(|(_, k, points)| !inside_other(mesh, &part_of, part_of[facets[*k][0]], &points[0]))
+        .filter(|(_, k, points)| !rays.inside_another(part_of[facets[*k][0]], &points[0]))
         .map(|(thickness, _, points)| {
             let (plo, phi) = points
                 .iter()
@@ -115,8 +94,8 @@ pub fn thin_parts(mesh: &TriMesh) -> Vec<PartSize> {
         .collect()
 }
 
-/// Most parts [`thin_parts`] tests for lying inside another (a scan's
-/// hundreds of loose fragments would each cost a pass over its facets).
+/// Most parts [`thin_parts`] tests for lying inside another, thinnest
+/// first (a scan's hundreds of loose fragments need not all be named).
 pub const MOST_TESTED: usize = 50;
 
 /// The extent of `points` along their thinnest principal axis.
@@ -141,19 +120,6 @@ fn thinnest_extent(points: &[Point]) -> f64 {
             hi - lo
         })
         .fold(f64::INFINITY, f64::min)
-}
-
-/// Whether `p`, a vertex of part `own`, lies inside the other parts: the
-/// winding number of the line from it upwards through their facets
-/// (crossings counted as the wrap counts them).
-fn inside_other(mesh: &TriMesh, part_of: &[u32], own: u32, p: &Point) -> bool {
-    let winding: i32 = (0..mesh.len())
-        .filter(|&t| part_of[t] != own)
-        .filter_map(|t| crate::wrap::line_crossing(&mesh.corners(t), 2, [p.x, p.y]))
-        .filter(|&(z, _)| z > p.z)
-        .map(|(_, w)| w)
-        .sum();
-    winding != 0
 }
 
 #[cfg(test)]

@@ -516,10 +516,9 @@ fn near_pairs(mesh: &TriMesh, part: &[usize], reach: f64) -> usize {
 /// part (winding number of that part's facets along a ray in +x): such a
 /// part lies wholly inside.
 fn enclosed_parts(mesh: &TriMesh, part: &[usize], crossing: &HashSet<usize>) -> usize {
-    let Some((lo, hi)) = mesh.bounds() else {
+    let Some(bins) = PartRays::new(mesh, part) else {
         return 0;
     };
-    let bins = RayBins::new(mesh, &lo, &hi);
     let mut first_vertex: HashMap<usize, u32> = HashMap::new();
     for (t, tri) in mesh.triangles.iter().enumerate() {
         if !crossing.contains(&part[t]) {
@@ -528,24 +527,48 @@ fn enclosed_parts(mesh: &TriMesh, part: &[usize], crossing: &HashSet<usize>) -> 
     }
     first_vertex
         .par_iter()
-        .filter(|&(&p, &v)| {
-            let s = mesh.vertices[v as usize];
-            let mut winding: HashMap<usize, i32> = HashMap::new();
-            for &t in bins.facets_near(&s) {
-                let t = t as usize;
-                if part[t] == p {
-                    continue;
-                }
-                let corners = mesh.corners(t);
-                if let Some((x, sign)) = line_crossing(&corners, 0, [s.y, s.z])
-                    && x > s.x
-                {
-                    *winding.entry(part[t]).or_insert(0) += sign;
-                }
-            }
-            winding.values().any(|&w| w != 0)
-        })
+        .filter(|&(&p, &v)| bins.inside_another(p, &mesh.vertices[v as usize]))
         .count()
+}
+
+/// The facets of a mesh and the part each belongs to
+/// ([`crate::crossing::surfaces`]), binned for rays along x: whether a
+/// point of one part lies inside another.
+pub(crate) struct PartRays<'a> {
+    mesh: &'a TriMesh,
+    part: &'a [usize],
+    bins: RayBins,
+}
+
+impl<'a> PartRays<'a> {
+    /// `None` for an empty mesh.
+    pub(crate) fn new(mesh: &'a TriMesh, part: &'a [usize]) -> Option<Self> {
+        let (lo, hi) = mesh.bounds()?;
+        Some(Self {
+            mesh,
+            part,
+            bins: RayBins::new(mesh, &lo, &hi),
+        })
+    }
+
+    /// Whether `s`, a point of part `own`, lies inside another part: the
+    /// winding number of each other part along the ray from `s` in +x,
+    /// counted as the wrap's grid lines count it.
+    pub(crate) fn inside_another(&self, own: usize, s: &Point) -> bool {
+        let mut winding: HashMap<usize, i32> = HashMap::new();
+        for &t in self.bins.facets_near(s) {
+            let t = t as usize;
+            if self.part[t] == own {
+                continue;
+            }
+            if let Some((x, sign)) = line_crossing(&self.mesh.corners(t), 0, [s.y, s.z])
+                && x > s.x
+            {
+                *winding.entry(self.part[t]).or_insert(0) += sign;
+            }
+        }
+        winding.values().any(|&w| w != 0)
+    }
 }
 
 /// Facets binned by their extent in y and z, for rays along x.
@@ -619,7 +642,7 @@ fn edge_side(p: [f64; 2], q: [f64; 2], s: [f64; 2]) -> i32 {
 /// along the next two axes, cyclically) crosses the facet, and the change
 /// of winding number there: +1 where the line enters (the facet's normal
 /// faces against the line), -1 where it leaves.
-pub(crate) fn line_crossing(corners: &[Point; 3], d: usize, s: [f64; 2]) -> Option<(f64, i32)> {
+fn line_crossing(corners: &[Point; 3], d: usize, s: [f64; 2]) -> Option<(f64, i32)> {
     let (u, v) = ((d + 1) % 3, (d + 2) % 3);
     let p = corners.map(|c| [c[u], c[v]]);
     let a = edge_side(p[0], p[1], s);
