@@ -568,6 +568,57 @@ pub const BLUNT_NOSE_SHARE: f64 = 0.3;
 /// the other end).
 pub const NOSE_END_SHARE: f64 = 0.15;
 
+/// The other end's rim share must be under this fraction of the upstream
+/// end's for [`blunt_nose_warning`] to ask about the nose (our choice): a
+/// car driven backwards shows its flat tail's rims at the upstream end and
+/// none round its nose at the other (the slant-back body's square back:
+/// 100 % against 0 %, and with its nose edges sharp too, 100 % against
+/// 100 %; `a_flat_tail_upstream_asks_for_the_nose`), while a van's
+/// blunt front with a sharp lower edge showed 31 to 46 % of its frontal
+/// area, and its square back, turned to the wind, would show the whole of
+/// it (a review asked about the nose on 8 of 21 runs of a van the right
+/// way round).
+pub const OTHER_END_RATIO: f64 = 0.5;
+
+/// Projected area (m^2, seen along `stream`, the whole body's) of the rim
+/// zone `rim`; with `front_only`, of its panels within [`NOSE_END_SHARE`]
+/// of the body's length from the upstream end.
+fn rim_share_of(mesh: &PanelMesh, rim: &[bool], stream: &Vector3<f64>, front_only: bool) -> f64 {
+    let (lo, hi) = mesh.bounds();
+    let reach = NOSE_END_SHARE * (hi.x - lo.x);
+    let at_front = |x: f64| {
+        if stream.x >= 0.0 {
+            x < lo.x + reach
+        } else {
+            x > hi.x - reach
+        }
+    };
+    mesh.panels
+        .iter()
+        .zip(rim)
+        .filter(|&(p, &z)| z && (!front_only || at_front(p.centroid.x)))
+        .map(|(p, _)| p.area * p.normal.dot(stream).abs())
+        .sum::<f64>()
+        * mesh.mirrors.whole_body_factor()
+}
+
+/// [`rim_share_of`] the body's other end (m^2) in the stream reversed: the
+/// attached flow's velocities `attached` negated, which is that stream's
+/// attached flow exactly (the problem is linear in the free stream,
+/// images included), and the boundary layer marched on it.
+pub fn other_end_rim_share(
+    mesh: &PanelMesh,
+    attached: &[Vector3<f64>],
+    speed: f64,
+    case: &Case,
+    stream: &Vector3<f64>,
+) -> Result<f64> {
+    let reversed: Vec<Vector3<f64>> = attached.iter().map(|v| -v).collect();
+    let layer = screen_boundary_layer(mesh, &reversed, speed, &layer_params(case, -stream))
+        .context("boundary-layer screening with the stream reversed")?;
+    Ok(rim_share_of(mesh, &layer.rim_zone, &-stream, true))
+}
+
 /// Whether a warning asks whether the nose is at the other end of the
 /// file ([`blunt_nose_warning`]): such a warning comes first, before the
 /// numbers it would make wrong.
@@ -577,11 +628,17 @@ pub fn questions_the_nose(w: &str) -> bool {
 
 /// The question for an STL body whose rim zone within [`NOSE_END_SHARE`]
 /// of its upstream end shows the stream more than [`BLUNT_NOSE_SHARE`] of
-/// the reference area (`rim_share`); `nose_plus_x`:
+/// the reference area (`rim_share`), and whose other end, turned to the
+/// wind, would show under [`OTHER_END_RATIO`] of that (`other_end`; not
+/// known, no question); `nose_plus_x`:
 /// the case already says the file's nose is at +x (`geometry.nose`), so the
 /// other end is the file's -x.
-pub fn blunt_nose_warning(rim_share: f64, stl: Option<bool>) -> Option<String> {
+pub fn blunt_nose_warning(
+    (rim_share, other_end): (f64, Option<f64>),
+    stl: Option<bool>,
+) -> Option<String> {
     let nose_plus_x = stl?;
+    let other_end = other_end.filter(|&o| o < OTHER_END_RATIO * rim_share)?;
     let (end, setting) = if nose_plus_x {
         ("large-x", "geometry.nose = \"-x\" (or leave it out)")
     } else {
@@ -590,10 +647,13 @@ pub fn blunt_nose_warning(rim_share: f64, stl: Option<bool>) -> Option<String> {
     (rim_share > BLUNT_NOSE_SHARE).then(|| {
         format!(
             "the flow leaves sharp edges at the front end round {:.0} % of the frontal area, as it \
-             does off a flat tail: this case takes the nose at the {end} end of the file, so if this body's nose \
+             does off a flat tail, and would leave them round {:.0} % at the other end: this case takes \
+             the nose at the {end} end of the file, so if this body's nose \
              is at the other end, set {setting} (a body with a truly blunt, sharp-edged front runs as \
              it is)",
-            100.0 * rim_share
+            100.0 * rim_share,
+            // An empty sum is -0.
+            (100.0 * other_end).abs()
         )
     })
 }
@@ -782,16 +842,28 @@ fn finish(
             .filter(|&(_, &z)| z)
             .map(|(p, _)| p)
     };
-    let (lo, hi) = mesh.bounds();
     let share_of = |front_only: bool| {
-        rim_panels()
-            .filter(|p| !front_only || p.centroid.x < lo.x + NOSE_END_SHARE * (hi.x - lo.x))
-            .map(|p| p.area * p.normal.dot(&stream).abs())
-            .sum::<f64>()
-            * mesh.mirrors.whole_body_factor()
-            / reference.area
+        rim_share_of(mesh, &layer.rim_zone, &stream, front_only) / reference.area
     };
     let rim_share = share_of(false);
+    let nose_plus_x = match &case.source {
+        crate::case::GeometrySource::Stl { axes, .. } => Some(axes.nose_plus_x),
+        crate::case::GeometrySource::Shape { .. } => None,
+    };
+    // The nose question's two ends: the other one only when the question
+    // could be asked (it costs a march of the boundary layer).
+    let nose_share = share_of(true);
+    let other_end_share = if nose_plus_x.is_some() && nose_share > BLUNT_NOSE_SHARE {
+        let attached_velocity = wake_loop
+            .as_ref()
+            .map_or(&potential.velocity, |r| &r.attached.solution.velocity);
+        Some(
+            other_end_rim_share(mesh, attached_velocity, flow.speed, case, &stream)?
+                / reference.area,
+        )
+    } else {
+        None
+    };
     check_physical(
         &estimate,
         &attached,
@@ -907,12 +979,11 @@ fn finish(
         ));
     }
     warnings.extend(far_ground_warning(mesh));
-    let nose_plus_x = match &case.source {
-        crate::case::GeometrySource::Stl { axes, .. } => Some(axes.nose_plus_x),
-        crate::case::GeometrySource::Shape { .. } => None,
-    };
     warnings.extend(free_air_warning(mesh, nose_plus_x.is_some()));
-    warnings.extend(blunt_nose_warning(share_of(true), nose_plus_x));
+    warnings.extend(blunt_nose_warning(
+        (nose_share, other_end_share),
+        nose_plus_x,
+    ));
     warnings.extend(axle_warning(
         mesh,
         reference.front_axle_x,
@@ -1986,13 +2057,15 @@ pub(crate) mod tests {
     }
 
     /// A front whose sharp edges show the stream most of the frontal
-    /// area asks whether the nose is at the other end (STL bodies only).
+    /// area, at a body whose other end shows far less, asks whether the
+    /// nose is at the other end (STL bodies only).
     #[test]
     fn a_blunt_sharp_front_asks_for_the_nose() {
-        let w = blunt_nose_warning(0.95, Some(false)).unwrap();
+        let w = blunt_nose_warning((0.95, Some(0.02)), Some(false)).unwrap();
         assert!(
             w.starts_with(
-                "the flow leaves sharp edges at the front end round 95 % of the frontal area"
+                "the flow leaves sharp edges at the front end round 95 % of the frontal area, as it \
+                 does off a flat tail, and would leave them round 2 % at the other end"
             ) && w.contains("the small-x end of the file")
                 && w.contains("set geometry.nose = \"+x\""),
             "{w}"
@@ -2000,14 +2073,19 @@ pub(crate) mod tests {
         // It is known, to come first on stdout and in the report.
         assert!(questions_the_nose(&w) && !questions_the_nose(WHEELS_DRAG));
         // A case that already turned the file: the other setting.
-        let w = blunt_nose_warning(0.95, Some(true)).unwrap();
+        let w = blunt_nose_warning((0.95, Some(0.02)), Some(true)).unwrap();
         assert!(questions_the_nose(&w));
         assert!(
             w.contains("the large-x end") && w.contains("geometry.nose = \"-x\" (or leave it out)"),
             "{w}"
         );
-        assert!(blunt_nose_warning(0.05, Some(false)).is_none());
-        assert!(blunt_nose_warning(0.95, None).is_none());
+        assert!(blunt_nose_warning((0.05, Some(0.02)), Some(false)).is_none());
+        assert!(blunt_nose_warning((0.95, Some(0.02)), None).is_none());
+        // Both ends blunt (a van's front with a sharp lower edge, its
+        // square back): a blunt body, not one turned round.
+        assert!(blunt_nose_warning((0.4, Some(1.0)), Some(false)).is_none());
+        assert!(blunt_nose_warning((0.95, Some(0.5)), Some(false)).is_none());
+        assert!(blunt_nose_warning((0.95, None), Some(false)).is_none());
     }
 
     /// A car-length STL body without a ground is warned about; with one,
