@@ -20,7 +20,9 @@ use serde::{Deserialize, Serialize};
 
 use crate::compare::read_summary;
 use crate::output::html::escape;
-use crate::output::plot::{LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, draw_line_plot};
+use crate::output::plot::{
+    LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, Whiskers, draw_line_plot,
+};
 use crate::region::{RegionResult, SurfaceKind};
 use crate::sweep::group::{VARIANT_FILE, VariantRecord};
 use crate::sweep::{PLAN_FILE, PlanEntry};
@@ -1248,6 +1250,9 @@ pub struct NoiseRanges {
     pub separated_m2: [f64; 2],
     /// Rear-axle lift, kg.
     pub rear_axle_kg: [f64; 2],
+    /// Drag estimate, C_D on the variant's own reference area.
+    #[serde(default)]
+    pub cd: [f64; 2],
 }
 
 impl NoiseRanges {
@@ -1262,6 +1267,7 @@ impl NoiseRanges {
             ),
             separated_m2: range(n.separated_fraction.iter().map(|f| f * wetted_m2)),
             rear_axle_kg: range(n.rear_axle_kg.iter().copied()),
+            cd: range(n.cd.iter().copied()),
         }
     }
 }
@@ -1434,6 +1440,12 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 }
                 None => false,
             };
+            // Drag's panel noise as a whisker on each point (a review's
+            // fairing sweep read 4.6 to 53.7 counts of noise per variant
+            // from the table only; the band's low end, already drawn
+            // grey, leaves no room for two more grey lines). The legend
+            // names them; the subtitle is full.
+            let whiskers = (k == 0).then(|| drag_whiskers(c, key)).flatten();
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
                 subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several, noise)
@@ -1461,6 +1473,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                     0.0
                 },
                 x_categories: categories.clone(),
+                whiskers,
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1577,6 +1590,33 @@ fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
             })
             .collect(),
     )
+}
+
+/// The drag estimate's least and most over three panel counts as a bar
+/// at each point of the drag plot's lines against `key`, in each line's
+/// colour, on the plot's area ([`Row::area_scale`]); `None` when no
+/// variant on them measured its panel noise.
+fn drag_whiskers(c: &Collected, key: &str) -> Option<Whiskers> {
+    let end = |f: fn(&Row) -> f64| series(c, key, f);
+    let low = end(|r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[0]));
+    let high = end(|r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[1]));
+    let lines = series(c, key, |r| r.cd);
+    let bars: Vec<(f64, f64, f64, crate::output::canvas::Rgb)> = low
+        .iter()
+        .zip(&high)
+        .zip(&lines)
+        .flat_map(|((lo, hi), line)| {
+            lo.points
+                .iter()
+                .zip(&hi.points)
+                .map(move |(a, b)| (a.0, a.1, b.1, line.colour))
+        })
+        .filter(|b| b.1.is_finite() && b.2.is_finite())
+        .collect();
+    (!bars.is_empty()).then(|| Whiskers {
+        name: "panel noise (three panel counts)".into(),
+        bars,
+    })
 }
 
 /// One end of a variant's panel-noise range ([`Row::noise_ranges`]; NaN,
@@ -2459,7 +2499,8 @@ mod tests {
 
     /// The lift, separated-area and rear-axle plots get the least and the
     /// most of three panel counts as grey lines where every variant
-    /// measured them, and none where one did not.
+    /// measured them, and none where one did not; the drag plot gets them
+    /// as a bar on each point that has them.
     #[test]
     fn panel_noise_ranges_are_drawn_where_every_variant_has_them() {
         let mut c = sweep(&[1.0, 2.0]);
@@ -2470,6 +2511,7 @@ mod tests {
                 lift_kg: [-10.0 - k as f64, 5.0],
                 separated_m2: [0.5, 0.9 + k as f64],
                 rear_axle_kg: [6.0, 22.0 + k as f64],
+                cd: [0.300 + 0.01 * k as f64, 0.330],
             });
         }
         let lines = range_lines(&c, "deg", Ranged::Lift).unwrap();
@@ -2479,19 +2521,34 @@ mod tests {
         assert_eq!(sep[1].points, [(0.0, 0.9), (1.0, 1.9)]);
         let rear = range_lines(&c, "deg", Ranged::RearAxle).unwrap();
         assert_eq!(rear[1].points, [(0.0, 22.0), (1.0, 23.0)]);
+        // Drag: a bar per point, in counts on the plot's area, in the
+        // line's colour.
+        c.variants[1].area_scale = 2.0;
+        let w = drag_whiskers(&c, "deg").unwrap();
+        let colour = series(&c, "deg", |r| r.cd)[0].colour;
+        let near = |a: (f64, f64, f64, _), b: (f64, f64, f64)| {
+            (a.0 - b.0).abs() + (a.1 - b.1).abs() + (a.2 - b.2).abs() < 1e-9
+        };
+        assert!(near(w.bars[0], (0.0, 300.0, 330.0)) && near(w.bars[1], (1.0, 620.0, 660.0)));
+        assert!(w.bars.iter().all(|b| b.3 == colour));
+        c.variants[0].noise_ranges = None;
+        assert_eq!(drag_whiskers(&c, "deg").unwrap().bars.len(), 1);
         c.variants[1].noise_ranges = None;
         assert!(range_lines(&c, "deg", Ranged::Lift).is_none());
+        assert!(drag_whiskers(&c, "deg").is_none());
         // Ranges as NoiseRanges::of takes them from a summary's samples.
         let n = crate::noise::PanelNoise {
             front_axle_kg: vec![-28.8, -29.2, -29.8],
             rear_axle_kg: vec![-15.6, -21.1, -26.8],
             separated_fraction: vec![0.114, 0.133, 0.153],
+            cd: vec![0.45, 0.43, 0.47],
             ..Default::default()
         };
         let r = NoiseRanges::of(&n, 10.0);
         assert!((r.lift_kg[0] + 56.6).abs() < 1e-9 && (r.lift_kg[1] + 44.4).abs() < 1e-9);
         assert!((r.separated_m2[0] - 1.14).abs() < 1e-9 && (r.separated_m2[1] - 1.53).abs() < 1e-9);
         assert!((r.rear_axle_kg[0] + 26.8).abs() < 1e-9 && (r.rear_axle_kg[1] + 15.6).abs() < 1e-9);
+        assert_eq!(r.cd, [0.43, 0.47]);
     }
 
     /// Each named region gets a line of its separated share against the

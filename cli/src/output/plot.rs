@@ -78,6 +78,29 @@ pub struct LinePlot {
     /// carry the names and the points are not joined, as no value lies
     /// between two of them (empty: a numeric axis).
     pub x_categories: Vec<String>,
+    /// Vertical bars from a low to a high value at points of x (a
+    /// variant's least and most over three panel counts), behind the
+    /// curves; they count towards the vertical axis.
+    pub whiskers: Option<Whiskers>,
+}
+
+/// Vertical bars with caps ([`LinePlot::whiskers`]), one legend entry.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Whiskers {
+    /// Legend text.
+    pub name: String,
+    /// `(x, low, high, colour)`, in data units.
+    pub bars: Vec<(f64, f64, f64, Rgb)>,
+}
+
+impl Whiskers {
+    /// Each bar's two ends, in data units.
+    fn ends(&self) -> impl Iterator<Item = (f64, f64)> + '_ {
+        self.bars
+            .iter()
+            .flat_map(|&(x, lo, hi, _)| [(x, lo), (x, hi)])
+            .filter(|p| p.0.is_finite() && p.1.is_finite())
+    }
 }
 
 /// Picture size of a plot.
@@ -147,6 +170,9 @@ pub fn draw_line_plot(
         .off_scale
         .as_ref()
         .is_some_and(|o| draw_off_scale(&mut c, o, &frame));
+    if let Some(w) = &plot.whiskers {
+        draw_whiskers(&mut c, w, &frame);
+    }
     // Later series are drawn first and wider, so curves that coincide
     // (a symmetric body's upper and lower surface) both stay visible.
     for (k, s) in plot.series.iter().enumerate().rev() {
@@ -213,9 +239,13 @@ pub fn draw_line_plot(
     for sh in plot.shading.iter().filter(|sh| !sh.spans.is_empty()) {
         keys.push(Key::Patch(sh.name.clone(), sh.colour));
     }
+    if let Some(w) = plot.whiskers.as_ref().filter(|w| !w.bars.is_empty()) {
+        keys.push(Key::Whisker(w.name.clone()));
+    }
     if keys.len() > 1 {
-        // The arrows count as points at the top edge.
-        let arrows: Vec<(f64, f64)> = plot
+        // The arrows count as points at the top edge, and the whiskers'
+        // ends as points.
+        let mut marks: Vec<(f64, f64)> = plot
             .off_scale
             .iter()
             .flat_map(|o| &o.series.points)
@@ -225,7 +255,8 @@ pub fn draw_line_plot(
                 (x, frame.rect.1 + 15.0)
             })
             .collect();
-        draw_legend(&mut c, &keys, &plot.series, &arrows, &frame);
+        marks.extend(whisker_marks(plot, &frame));
+        draw_legend(&mut c, &keys, &plot.series, &marks, &frame);
     }
     Ok((c, frame))
 }
@@ -234,6 +265,34 @@ pub fn draw_line_plot(
 /// coincide both stay visible.
 fn line_width(k: usize) -> f32 {
     2.2 + 1.8 * k as f32
+}
+
+/// Half the width of a whisker's caps, pixels.
+const WHISKER_CAP: f32 = 6.0;
+
+/// The whiskers: a thin vertical line with a cap at each end.
+fn draw_whiskers(c: &mut Canvas, w: &Whiskers, f: &PlotFrame) {
+    for &(x, lo, hi, colour) in &w.bars {
+        if ![x, lo, hi].iter().all(|v| v.is_finite()) {
+            continue;
+        }
+        let (px, a) = f.pixel_at(x, lo);
+        let (_, b) = f.pixel_at(x, hi);
+        let (px, a, b) = (px as f32, a as f32, b as f32);
+        c.polyline(&[(px, a), (px, b)], colour, 1.6);
+        for y in [a, b] {
+            c.polyline(&[(px - WHISKER_CAP, y), (px + WHISKER_CAP, y)], colour, 1.6);
+        }
+    }
+}
+
+/// The whiskers' ends of `plot`, pixels (for the legend to keep clear of).
+fn whisker_marks(plot: &LinePlot, f: &PlotFrame) -> Vec<(f64, f64)> {
+    plot.whiskers
+        .iter()
+        .flat_map(Whiskers::ends)
+        .map(|(x, y)| f.pixel_at(x, y))
+        .collect()
 }
 
 /// The shaded stretches of x, over the plot area's height.
@@ -328,7 +387,8 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
     } else {
         (-0.5, plot.x_categories.len() as f64 - 0.5)
     };
-    let ys = finite(|p| p.1);
+    let mut ys = finite(|p| p.1);
+    ys.extend(plot.whiskers.iter().flat_map(Whiskers::ends).map(|p| p.1));
     // An off-scale curve joins the axis when that at most doubles it;
     // otherwise the others keep the height (a drag band's top had squeezed
     // the estimates into 6 % of it).
@@ -522,12 +582,13 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
 enum Key {
     Line(String, Rgb, usize, bool),
     Patch(String, Rgb),
+    Whisker(String),
 }
 
 impl Key {
     fn name(&self) -> &str {
         match self {
-            Key::Line(name, ..) | Key::Patch(name, _) => name,
+            Key::Line(name, ..) | Key::Patch(name, _) | Key::Whisker(name) => name,
         }
     }
 }
@@ -566,6 +627,17 @@ fn draw_legend(
                 c.fill_rect(x + 12.0, cy - 8.0, 36.0, 16.0, colour);
                 c.stroke_rect(x + 12.0, cy - 8.0, 36.0, 16.0, [180, 182, 188], 1.0);
             }
+            Key::Whisker(_) => {
+                let (a, b) = (cy - 9.0, cy + 9.0);
+                c.polyline(&[(x + 30.0, a), (x + 30.0, b)], MUTED, 1.6);
+                for y in [a, b] {
+                    c.polyline(
+                        &[(x + 30.0 - WHISKER_CAP, y), (x + 30.0 + WHISKER_CAP, y)],
+                        MUTED,
+                        1.6,
+                    );
+                }
+            }
         }
         text::draw(c, key.name(), x + 58.0, cy + 5.0, &style);
     }
@@ -589,11 +661,17 @@ fn legend_room(plot: &LinePlot, f: &PlotFrame) -> Option<f64> {
             .filter(|sh| !sh.spans.is_empty())
             .map(|sh| sh.name.clone()),
     );
+    names.extend(
+        plot.whiskers
+            .iter()
+            .filter(|w| !w.bars.is_empty())
+            .map(|w| w.name.clone()),
+    );
     if names.len() < 2 {
         return None;
     }
     let size = legend_size(&names);
-    let (_, covered) = legend_cover(&plot.series, &[], f, size);
+    let (_, covered) = legend_cover(&plot.series, &whisker_marks(plot, f), f, size);
     (covered > 0).then(|| ((f64::from(size.1) + 24.0) / f.rect.3).min(0.4))
 }
 
@@ -1051,6 +1129,43 @@ mod tests {
         assert!(hi - lo >= 24.0 && lo < 120.0 && hi > 124.0, "{lo} {hi}");
         let (lo, hi) = plot_frame(&plot(0.0), &params).y_range;
         assert!(hi - lo < 10.0, "{lo} {hi}");
+    }
+
+    /// Whiskers widen the axis to their ends and are drawn in their
+    /// colour between them.
+    #[test]
+    fn whiskers_reach_their_ends() {
+        let colour = [200, 30, 30];
+        let plot = LinePlot {
+            series: vec![Series {
+                name: "drag".into(),
+                points: vec![(0.0, 120.0), (1.0, 122.0)],
+                colour: INK,
+            }],
+            whiskers: Some(Whiskers {
+                name: "panel noise".into(),
+                bars: vec![(0.0, 100.0, 140.0, colour), (1.0, 121.0, 123.0, colour)],
+            }),
+            ..LinePlot::default()
+        };
+        let (c, f) = draw_line_plot(&plot, &PlotParams::default()).unwrap();
+        let (lo, hi) = f.y_range;
+        assert!(lo <= 100.0 && hi >= 140.0, "{lo} {hi}");
+        // The bar's thin line, smoothed: its reddest pixel across it.
+        for y in [105.0, 135.0] {
+            let (px, py) = f.pixel_at(0.0, y);
+            let reddest = (-1..=1)
+                .map(|d| c.pixel(px.round() as i64 + d, py.round() as i64))
+                .map(|p| i32::from(p[0]) - i32::from(p[1]))
+                .max();
+            assert!(reddest > Some(100), "at {y}: {reddest:?}");
+        }
+        // Nothing red beyond the bar's ends.
+        let (px, py) = f.pixel_at(0.0, 95.0);
+        if py < f.rect.1 + f.rect.3 {
+            let p = c.pixel(px.round() as i64, py.round() as i64);
+            assert!(i32::from(p[0]) - i32::from(p[1]) < 50, "{p:?}");
+        }
     }
 
     #[test]
