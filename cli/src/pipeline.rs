@@ -979,6 +979,14 @@ fn finish(
         ));
     }
     warnings.extend(far_ground_warning(mesh));
+    if dead_water_run {
+        warnings.extend(base_corner_warning(
+            mesh,
+            (&layer, &cp_separated),
+            &stream,
+            reference.area,
+        ));
+    }
     warnings.extend(free_air_warning(mesh, nose_plus_x.is_some()));
     warnings.extend(blunt_nose_warning(
         (nose_share, other_end_share),
@@ -1125,6 +1133,98 @@ pub fn side_difference_warning(
              (tuft check says) run it as a half model (geometry.half_model = true) for one answer"
         )
     })
+}
+
+/// Attached Cp above which a panel beside a base's dead water reads the
+/// open dead-water model's concave corner ([`base_corner_warning`]). Our
+/// choice, measured (2026-12-04): the demo coupes' attached panels beside
+/// their bases reach 0.46 and 0.32 (one and two above 0.3); a review's
+/// saloon with its tapering tail cut square (a Kamm tail, 18 to 20
+/// degrees of taper at the cut) read 0.83 to 0.88, 9 to 11 panels above
+/// 0.5.
+pub const BASE_CORNER_CP: f64 = 0.5;
+
+/// Edge steps from a base's dead water within which an attached panel
+/// counts as beside it ([`base_corner_warning`]).
+const BASE_CORNER_HOPS: usize = 2;
+
+/// A warning for attached panels within [`BASE_CORNER_HOPS`] edge steps
+/// of a base's dead water (separated panels facing downstream, within 45
+/// degrees of the stream) at a Cp above [`BASE_CORNER_CP`]: the model's
+/// dead water leaves a base edge straight back along the stream, which a
+/// surface tapering in towards the edge meets as a concave corner, and
+/// the panel method puts a stagnation in it; a real shear layer leaves
+/// the edge along the surface, and the pressure there falls to the
+/// base's. Their push on the body, in drag counts on `reference_area`,
+/// is said. Letting the base's outflow turn in along the taper instead
+/// (the ramp the loop gives separation lines on inclined surfaces) was
+/// tried and not kept (DEVELOPERS.md).
+pub fn base_corner_warning(
+    mesh: &PanelMesh,
+    (layer, cp): (&BoundaryLayer, &[f64]),
+    stream: &Vector3<f64>,
+    reference_area: f64,
+) -> Option<String> {
+    let base_cos = 45f64.to_radians().cos();
+    let separated = |t: usize| layer.panels[t].state == FlowState::Separated;
+    let mut depth: Vec<usize> = (0..mesh.len())
+        .map(|t| {
+            if separated(t) && mesh.panels[t].normal.dot(stream) > base_cos {
+                0
+            } else {
+                usize::MAX
+            }
+        })
+        .collect();
+    let mut queue: std::collections::VecDeque<usize> =
+        (0..mesh.len()).filter(|&t| depth[t] == 0).collect();
+    while let Some(t) = queue.pop_front() {
+        if depth[t] >= BASE_CORNER_HOPS {
+            continue;
+        }
+        for j in mesh.edge_neighbours[t].iter().flatten() {
+            let j = *j as usize;
+            if depth[j] == usize::MAX && !separated(j) {
+                depth[j] = depth[t] + 1;
+                queue.push_back(j);
+            }
+        }
+    }
+    let corner: Vec<usize> = (0..mesh.len())
+        .filter(|&t| depth[t] != 0 && depth[t] != usize::MAX && cp[t] > BASE_CORNER_CP)
+        .collect();
+    let worst = *corner.iter().max_by(|&&a, &&b| cp[a].total_cmp(&cp[b]))?;
+    let push: f64 = corner
+        .iter()
+        .map(|&t| cp[t] * mesh.panels[t].normal.dot(stream) * mesh.panels[t].area)
+        .sum::<f64>()
+        * mesh.mirrors.whole_body_factor()
+        / reference_area;
+    let c = mesh.panels[worst].centroid;
+    let effect = if push >= 0.0 {
+        format!(
+            "takes about {:.0} counts off the drag estimate",
+            1000.0 * push
+        )
+    } else {
+        format!(
+            "adds about {:.0} counts to the drag estimate",
+            -1000.0 * push
+        )
+    };
+    Some(format!(
+        "{} attached panels beside the base's dead water read Cp up to {:.2} (near x {:.3}, y {:.3}, z {:.3} m), \
+         the high-pressure colours at the base's edge: this model's dead water leaves the edge straight \
+         back, which a surface tapering in towards the edge meets as a concave corner, and the flow \
+         computed stagnates in it; a real shear layer leaves the edge along the surface and the \
+         pressure there falls towards the base's. Their pressure is the model's, not the flow's: it \
+         {effect}",
+        corner.len(),
+        cp[worst],
+        c.x,
+        c.y,
+        c.z
+    ))
 }
 
 /// The part of [`ground_contact_warning`] that `tuft check` gives too:
@@ -1761,6 +1861,51 @@ pub(crate) mod tests {
             attachments: Vec::new(),
             rim_zone: vec![false; mesh.len()],
         }
+    }
+
+    /// Attached panels a step or two from a base's dead water at a Cp
+    /// over BASE_CORNER_CP are warned about with their push on the drag;
+    /// one further off, one under the line, or a dead water that faces
+    /// no way downstream draws nothing.
+    #[test]
+    fn a_stagnation_beside_a_bases_dead_water_is_warned_about() {
+        use std::f64::consts::PI;
+        use tuft_mesh::{Mirrors, PanelMesh, generate};
+        // A unit sphere: the rear cap (x > 0.8) is the base's dead water.
+        let mesh = PanelMesh::new(generate::icosphere(1.0, 3), Mirrors::none()).unwrap();
+        let base: Vec<bool> = mesh.panels.iter().map(|p| p.centroid.x > 0.8).collect();
+        let layer = layer_with(&mesh, &base);
+        let beside = (0..mesh.len())
+            .find(|&t| {
+                !base[t]
+                    && mesh.edge_neighbours[t]
+                        .iter()
+                        .flatten()
+                        .any(|&j| base[j as usize])
+            })
+            .unwrap();
+        let far = (0..mesh.len())
+            .find(|&t| mesh.panels[t].centroid.x < 0.0)
+            .unwrap();
+        let mut cp = vec![0.0; mesh.len()];
+        cp[far] = 0.9;
+        let x = Vector3::x();
+        assert!(base_corner_warning(&mesh, (&layer, &cp), &x, PI).is_none());
+        cp[beside] = 0.4;
+        assert!(base_corner_warning(&mesh, (&layer, &cp), &x, PI).is_none());
+        cp[beside] = 0.8;
+        let w = base_corner_warning(&mesh, (&layer, &cp), &x, PI).unwrap();
+        let p = &mesh.panels[beside];
+        let counts = 1000.0 * 0.8 * p.normal.x * p.area / PI;
+        assert!(
+            w.starts_with("1 attached panels beside the base's dead water read Cp up to 0.80")
+                && w.contains(&format!(
+                    "takes about {counts:.0} counts off the drag estimate"
+                )),
+            "{w}"
+        );
+        // The stream the other way: that cap faces upstream, no base.
+        assert!(base_corner_warning(&mesh, (&layer, &cp), &-x, PI).is_none());
     }
 
     /// Only a panel beside a sharp edge (a neighbour turned more than the
