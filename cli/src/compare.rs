@@ -278,7 +278,30 @@ pub struct RegionChange {
     /// faces up.
     #[serde(default)]
     pub slope_deg: [Option<f64>; 2],
+    /// The region's area in A and in B, m^2.
+    #[serde(default)]
+    pub area_m2: [f64; 2],
 }
+
+impl RegionChange {
+    /// Separated area in A and in B, m^2.
+    fn separated_m2(&self) -> [f64; 2] {
+        [0, 1].map(|k| self.area_m2[k] * self.separated_fraction[k])
+    }
+
+    /// Whether the region's own area differs by more than
+    /// [`SEPARATED_AREA_SHIFT`] of the larger between the runs.
+    fn area_moved(&self) -> bool {
+        let [a, b] = self.area_m2;
+        (a - b).abs() > SEPARATED_AREA_SHIFT * a.max(b)
+    }
+}
+
+/// A region whose area differs between the runs by more than this
+/// fraction of the larger, or whose separated area moves by as much of
+/// it, is named by its separated area ([`largest_region_change`]; our
+/// choice, as `VERDICT_NOISE` is for the share).
+const SEPARATED_AREA_SHIFT: f64 = 0.05;
 
 /// The regions both runs name, in A's order.
 pub fn region_changes(
@@ -296,26 +319,43 @@ pub fn region_changes(
                 verdict: [ra.verdict.clone(), rb.verdict.clone()],
                 words: [ra.short_words(), rb.short_words()],
                 slope_deg: [ra.slope_deg, rb.slope_deg],
+                area_m2: [ra.area_m2, rb.area_m2],
             })
         })
         .collect()
 }
 
-/// Where two runs' named regions differ most in separated share, in words
-/// ("on the boot deck, 66 % against 85 % separated"), when by at least
-/// [`crate::region::VERDICT_NOISE`] (5 points); `None` otherwise.
+/// Where two runs' named regions differ most in separated area, in words
+/// ("on the boot deck, 66 % against 85 % separated"), among those whose
+/// share moved by at least [`crate::region::VERDICT_NOISE`] (5 points) or
+/// whose separated area moved by [`SEPARATED_AREA_SHIFT`] of the larger;
+/// `None` when none did. A region whose own area changed is named by its
+/// areas (a review's square-cut tail moved forward: the base, separated
+/// all over in both, grew from 0.47 to 1.15 m^2, while the verdict named
+/// the rear underbody, 26 against 17 %).
 fn largest_region_change(regions: &[RegionChange]) -> Option<String> {
+    let moved_m2 = |r: &RegionChange| {
+        let [a, b] = r.separated_m2();
+        (b - a).abs()
+    };
     regions
         .iter()
-        .filter(|r| r.delta_points.abs() >= 100.0 * crate::region::VERDICT_NOISE)
-        .max_by(|x, y| x.delta_points.abs().total_cmp(&y.delta_points.abs()))
+        .filter(|r| {
+            r.delta_points.abs() >= 100.0 * crate::region::VERDICT_NOISE
+                || moved_m2(r) > SEPARATED_AREA_SHIFT * r.area_m2[0].max(r.area_m2[1])
+        })
+        .max_by(|x, y| moved_m2(x).total_cmp(&moved_m2(y)))
         .map(|r| {
-            format!(
-                "on the {}, {:.0} % against {:.0} % separated",
-                r.name,
-                100.0 * r.separated_fraction[0],
-                100.0 * r.separated_fraction[1]
-            )
+            let [fa, fb] = r.separated_fraction.map(|f| 100.0 * f);
+            if r.area_moved() {
+                let [a, b] = r.separated_m2();
+                format!(
+                    "on the {}, {a:.2} against {b:.2} m^2 separated, {fa:.0} % against {fb:.0} % of it",
+                    r.name
+                )
+            } else {
+                format!("on the {}, {fa:.0} % against {fb:.0} % separated", r.name)
+            }
         })
 }
 
@@ -968,6 +1008,15 @@ pub const KIND_ONLY_WORDS: &str = "if the part in the box is what the change tur
      change itself; if another part moved under the box (the foot of a rear window into a boot deck's \
      box), the shares compare different parts of the body, and the box should move with the part";
 
+/// What a region whose area alone moved (its surface of one kind) may be:
+/// the part in its box grown or shrunk by the change (the study itself: a
+/// review's saloon tail cut square further forward grew its base from
+/// 0.47 to 1.15 m^2, in a box round every cut, and was told to move the
+/// box), or other surface moved under the box.
+pub const SIZE_ONLY_WORDS: &str = "if the part in the box grew or shrank with the change (a base as \
+     the tail is cut shorter), that is the change itself; if other surface moved under the box, the \
+     shares compare different parts of the body, and the box should move with the part";
+
 /// A note for each named region that covers other surface in B than in A:
 /// a region is a box fixed in x, y and z, and a change of shape can move
 /// another part of the body under it (a review's shorter boot deck put the
@@ -990,7 +1039,17 @@ fn region_cover_notes(a: &crate::summary::Summary, b: &crate::summary::Summary) 
             let area = region_areas_differ(ra.area_m2, rb.area_m2);
             let kind = crate::region::SurfaceKind::of;
             let slopes = kind(ra.slope_deg) != kind(rb.slope_deg);
-            if area || (slopes && areas_apart(ra.area_m2, rb.area_m2, KIND_AREA_SHIFT)) {
+            if area && !slopes {
+                Some(format!(
+                    "the region \"{}\" covers {} surface in B than in A (area {:.2} against {:.2} m^2, \
+                     slope {} in both): {SIZE_ONLY_WORDS}",
+                    ra.name,
+                    if rb.area_m2 > ra.area_m2 { "more" } else { "less" },
+                    ra.area_m2,
+                    rb.area_m2,
+                    slope(ra.slope_deg),
+                ))
+            } else if area || (slopes && areas_apart(ra.area_m2, rb.area_m2, KIND_AREA_SHIFT)) {
                 Some(format!(
                     "the region \"{}\" covers other surface in B than in A (area {:.2} against {:.2} m^2, \
                      slope {} against {}): its box stays where it is while the shape changes under it, \
@@ -1025,9 +1084,9 @@ pub const UNDERBODY_LIFT_WORDS: &str = "moves mostly with the smooth underbody's
      certain part of the lift (a real underbody, with its wheels, roughness and cooling flow, sucks far \
      less): read its trend as this model's, and confirm with validated CFD or a tunnel";
 
-/// A note when the two bodies stand at ground clearances more than half a
-/// millimetre apart: both clearances, and what the lift difference then
-/// rests on.
+/// A note when the two bodies stand at ground clearances more than
+/// [`CLEARANCE_APART_M`] apart: both clearances, and what the lift
+/// difference then rests on.
 fn clearance_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
     if let Some(words) = floors_apart_words(a, b, "B") {
         return Some(format!(
@@ -1114,14 +1173,23 @@ fn floors_apart_words(
 }
 
 /// The two runs' ground clearances, m, when both stand over the ground
-/// and they lie more than half a millimetre apart.
+/// and they lie more than [`CLEARANCE_APART_M`] apart.
 fn clearances_apart(
     a: &crate::summary::Summary,
     b: &crate::summary::Summary,
 ) -> Option<(f64, f64)> {
     let (ca, cb) = (a.clearance_m()?, b.clearance_m()?);
-    ((ca - cb).abs() > 5e-4).then_some((ca, cb))
+    ((ca - cb).abs() > CLEARANCE_APART_M).then_some((ca, cb))
 }
+
+/// Ground clearances (from the lowest point) closer than this, m, are
+/// taken as one (our choice): a scan's noise moves its lowest point (a
+/// review's scan with 0.5 mm of noise stood 1 mm lower than the surface
+/// it was scanned from, and compare said the difference mixed the ride
+/// height with the change), and 2 mm of ride height is worth little in
+/// this model (a review's SUV moved by 0.7 to 1.9 counts of drag and 5
+/// to 7 kg of lift per 20 mm).
+pub const CLEARANCE_APART_M: f64 = 0.002;
 
 /// Reference areas differing by more than this fraction of the larger
 /// make the runs' coefficients differ by as much from the area alone, a
@@ -1749,14 +1817,16 @@ mod tests {
     /// regions differ", beside a sentence about slants it did not have).
     #[test]
     fn the_region_that_moves_most_is_named() {
-        let change = |name: &str, a: f64, b: f64| RegionChange {
+        let sized = |name: &str, (a, b): (f64, f64), area_m2: [f64; 2]| RegionChange {
             name: name.to_owned(),
             separated_fraction: [a, b],
             delta_points: 100.0 * (b - a),
             verdict: Default::default(),
             words: Default::default(),
             slope_deg: [None, None],
+            area_m2,
         };
+        let change = |name: &str, a: f64, b: f64| sized(name, (a, b), [1.0, 1.0]);
         let regions = [
             change("rear window", 0.12, 0.10),
             change("boot deck", 0.66, 0.85),
@@ -1766,6 +1836,16 @@ mod tests {
             Some("on the boot deck, 66 % against 85 % separated")
         );
         assert_eq!(largest_region_change(&regions[..1]), None);
+        // A tail cut shorter: the base grows, separated all over in both,
+        // by more separated area than the underbody's share moves.
+        let cut = [
+            sized("rear underbody", (0.26, 0.17), [1.5, 1.3]),
+            sized("base", (1.0, 1.0), [0.47, 1.15]),
+        ];
+        assert_eq!(
+            largest_region_change(&cut).as_deref(),
+            Some("on the base, 0.47 against 1.15 m^2 separated, 100 % against 100 % of it")
+        );
     }
 
     /// A lift difference is set against the noise of the whole body's
@@ -1848,14 +1928,20 @@ mod tests {
             n[0].contains("reads another kind of surface") && n[0].ends_with(KIND_ONLY_WORDS),
             "{n:?}"
         );
-        assert_eq!(
-            region_cover_notes(&with(0.95, None), &with(0.6, None)).len(),
-            1
+        // Its area alone: the part may have grown with the change.
+        let n = region_cover_notes(&with(0.47, None), &with(1.15, None));
+        assert_eq!(n.len(), 1);
+        assert!(
+            n[0].starts_with(
+                "the region \"boot deck\" covers more surface in B than in A (area 0.47 against 1.15 m^2, \
+                 slope none in both)"
+            ) && n[0].ends_with(SIZE_ONLY_WORDS),
+            "{n:?}"
         );
     }
 
     /// Two ride heights: both clearances named, with what the lift then
-    /// rests on; one clearance, or free air, raises no note.
+    /// rests on; one clearance (within 2 mm), or free air, raises no note.
     #[test]
     fn two_clearances_are_named() {
         let at = |lowest: f64, ground: Option<f64>| {
@@ -1877,6 +1963,12 @@ mod tests {
             clearance_note(&at(0.12, Some(0.0)), &at(0.1202, Some(0.0))),
             None
         );
+        // A scan's noise at its lowest point: one millimetre is one height.
+        assert_eq!(
+            clearance_note(&at(0.150, Some(0.0)), &at(0.149, Some(0.0))),
+            None
+        );
+        assert!(clearance_note(&at(0.150, Some(0.0)), &at(0.147, Some(0.0))).is_some());
         assert_eq!(clearance_note(&at(0.12, None), &at(0.14, None)), None);
     }
 
