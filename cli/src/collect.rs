@@ -68,6 +68,13 @@ pub struct Row {
     pub front_axle_kg: f64,
     /// Rear-axle lift, kg.
     pub rear_axle_kg: f64,
+    /// The underbody's part of the lift, kg (the ground-facing panels',
+    /// `LiftKg::underbody`).
+    #[serde(default)]
+    pub underbody_lift_kg: f64,
+    /// The underbody's part of the rear-axle lift, kg.
+    #[serde(default)]
+    pub underbody_rear_axle_kg: f64,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, %.
@@ -977,6 +984,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         lift_kg: s.lift_kg.total,
         front_axle_kg: s.lift_kg.front_axle,
         rear_axle_kg: s.lift_kg.rear_axle,
+        underbody_lift_kg: s.lift_kg.underbody,
+        underbody_rear_axle_kg: s.lift_kg.underbody_rear_axle,
         separated_area_m2: s.separation.area_m2,
         separated_percent: 100.0 * s.separation.fraction,
         underbody_separated_percent: 100.0 * s.separation.underbody_fraction,
@@ -1440,6 +1449,31 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 }
                 None => false,
             };
+            // Lift and rear-axle lift of one line: the underbody's part
+            // beside the whole (a review's tail-cut sweep read a clean
+            // rear-axle trend that was the smooth floor's suction, the
+            // least certain part, and the plot said nothing of it).
+            let lift: fn(&Row) -> f64 = |r| r.underbody_lift_kg;
+            let rear: fn(&Row) -> f64 = |r| r.underbody_rear_axle_kg;
+            let underbody = match k {
+                1 => Some(lift),
+                3 => Some(rear),
+                _ => None,
+            }
+            .filter(|_| series(c, key, *f).len() == 1)
+            .and_then(|part| underbody_lines(c, key, [*f, part]));
+            let underbody_note = underbody.is_some();
+            if let Some(mut parts) = underbody {
+                // The one line, after the panel noise's grey ones.
+                if let Some(line) = lines.last_mut() {
+                    line.name = if line.name.is_empty() {
+                        "whole body".into()
+                    } else {
+                        format!("whole body, {}", line.name)
+                    };
+                }
+                lines.append(&mut parts);
+            }
             // Drag's panel noise as a whisker on each point (a review's
             // fairing sweep read 4.6 to 53.7 counts of noise per variant
             // from the table only; the band's low end, already drawn
@@ -1474,6 +1508,11 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 },
                 x_categories: categories.clone(),
                 whiskers,
+                note: if underbody_note {
+                    UNDERBODY_PLOT_NOTE.into()
+                } else {
+                    String::new()
+                },
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1539,6 +1578,44 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
         })
         .collect();
     (!lines.is_empty()).then_some(lines)
+}
+
+/// What the lift plots' underbody line is ([`underbody_lines`]).
+const UNDERBODY_PLOT_NOTE: &str = "Underbody: the ground-facing panels' part, a smooth floor's suction, \
+     the least certain part of the lift (a real underbody sucks far less); rest of the body: the \
+     whole less it.";
+
+/// The underbody's part (`part`) of a lift quantity `whole` and the rest
+/// of the body's against `key`, one line each, when some variant has an
+/// underbody part.
+fn underbody_lines(
+    c: &Collected,
+    key: &str,
+    [whole, part]: [fn(&Row) -> f64; 2],
+) -> Option<Vec<Series>> {
+    if c.variants.iter().all(|r| part(r) == 0.0) {
+        return None;
+    }
+    let under = series(c, key, part);
+    let rest: Vec<(f64, f64)> = series(c, key, whole)
+        .first()?
+        .points
+        .iter()
+        .zip(&under.first()?.points)
+        .map(|(w, u)| (w.0, w.1 - u.1))
+        .collect();
+    Some(vec![
+        Series {
+            name: "underbody (least certain)".into(),
+            points: under.first()?.points.clone(),
+            colour: SERIES_COLOURS[1],
+        },
+        Series {
+            name: "rest of the body".into(),
+            points: rest,
+            colour: SERIES_COLOURS[2],
+        },
+    ])
 }
 
 /// Which of a variant's [`NoiseRanges`] a plot carries.
@@ -2013,7 +2090,17 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
                     large.1.area_m2,
                     crate::compare::KIND_AREA_SHIFT,
                 );
-            if area || kind_and_area {
+            if area && slopes.is_none() {
+                Some(format!(
+                    "The region \"{name}\" covers more surface in some variants than in others (area {:.2} \
+                     m^2 in {} against {:.2} m^2 in {}): {}.",
+                    small.1.area_m2,
+                    small.0,
+                    large.1.area_m2,
+                    large.0,
+                    crate::compare::SIZE_ONLY_WORDS
+                ))
+            } else if area || kind_and_area {
                 Some(format!(
                     "The region \"{name}\" covers other surface in some variants than in others (area {:.2} \
                      m^2 in {} against {:.2} m^2 in {}{slope_words}): its box stays where it is while the shape \
@@ -2551,6 +2638,26 @@ mod tests {
         assert_eq!(r.cd, [0.43, 0.47]);
     }
 
+    /// The lift and rear-axle plots of one line carry the underbody's
+    /// part and the rest of the body's beside the whole; summaries
+    /// without an underbody part draw neither.
+    #[test]
+    fn lift_plots_split_off_the_underbody() {
+        let mut c = sweep(&[1.0, 2.0]);
+        c.keys = vec!["cut".into()];
+        let rear: [fn(&Row) -> f64; 2] = [|r| r.rear_axle_kg, |r| r.underbody_rear_axle_kg];
+        assert!(underbody_lines(&c, "cut", rear).is_none());
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.settings.insert("cut".into(), serde_json::json!(k as f64));
+            r.rear_axle_kg = -9.0 + 35.0 * k as f64;
+            r.underbody_rear_axle_kg = -77.0 + 45.0 * k as f64;
+        }
+        let lines = underbody_lines(&c, "cut", rear).unwrap();
+        assert_eq!(lines[0].points, [(0.0, -77.0), (1.0, -32.0)]);
+        assert_eq!(lines[1].points, [(0.0, 68.0), (1.0, 58.0)]);
+        assert!(lines[0].name.starts_with("underbody") && lines[1].name == "rest of the body");
+    }
+
     /// Each named region gets a line of its separated share against the
     /// swept key; a second swept key that splits the variants leaves the
     /// plot out.
@@ -2614,6 +2721,8 @@ mod tests {
             lift_kg: 0.0,
             front_axle_kg: 0.0,
             rear_axle_kg: 0.0,
+            underbody_lift_kg: 0.0,
+            underbody_rear_axle_kg: 0.0,
             separated_area_m2: p / 10.0,
             separated_percent: p,
             underbody_separated_percent: 2.0 * p,
@@ -3157,6 +3266,17 @@ mod tests {
         );
         c.variants[1].regions = vec![deck(0.90, None)];
         assert!(region_cover_spread(&c.variants).is_empty());
+        // Its area alone (a review's base, its tail cut further forward):
+        // both readings.
+        c.variants[1].regions = vec![deck(0.47, None)];
+        let n = region_cover_spread(&c.variants);
+        assert!(
+            n[0].starts_with(
+                "The region \"boot deck\" covers more surface in some variants than in others (area \
+                 0.47 m^2 in v1 against 0.97 m^2 in v0): if the part in the box grew"
+            ),
+            "{n:?}"
+        );
         // A review's boot-lid heights: the deck's slope changes, its kind
         // does not (it had read 18 degrees in one variant, none in two).
         c.variants[0].regions = vec![deck(1.55, Some(3.1))];
