@@ -145,7 +145,7 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let key = if is_case { "geometry.units" } else { "--units" };
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
-    report.quality.notes.extend(note);
+    crate::geometry::add_size_note(&mut report.quality, note);
     report
         .quality
         .notes

@@ -151,7 +151,7 @@ fn finish(
         Some(n) => anyhow::anyhow!("{e:#}; but first: {n}"),
         None => e,
     })?;
-    report.quality.notes.extend(note);
+    add_size_note(&mut report.quality, note);
     Ok(Geometry {
         mesh,
         input_facets,
@@ -373,7 +373,7 @@ fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String
     let hint = if others.is_empty() {
         String::new()
     } else {
-        format!("; if it is a car, is {key} right ({})?", others.join(", "))
+        format!("{CAR_READING_WORDS}{key} right ({})?", others.join(", "))
     };
     Some(format!(
         "the body is {} m across at its largest, a scale model's size (the STL was read as {}): its \
@@ -382,6 +382,21 @@ fn size_note(size: f64, unit: tuft_mesh::LengthUnit, key: &str) -> Option<String
         unit.name()
     ))
 }
+
+/// Add [`size_note`]'s sentence to `quality`: as a warning when another
+/// unit would make the body car-sized, since then the unit may be a slip
+/// and every number the run gives is a toy's (a review's 4.8 m car in
+/// centimetres, read as millimetres with its axles typed to match, ran
+/// to exit 0 with only a note); as a note otherwise (a scale model).
+pub fn add_size_note(quality: &mut tuft_mesh::quality::QualityReport, note: Option<String>) {
+    match note {
+        Some(n) if n.contains(CAR_READING_WORDS) => quality.add_warning(n),
+        n => quality.notes.extend(n),
+    }
+}
+
+/// The words with which [`size_note`] gives a car-sized reading.
+const CAR_READING_WORDS: &str = "; if it is a car, is ";
 
 /// Lengths of a car, metres (common practice: a city car to a large van).
 const CAR_SIZES: [f64; 2] = [2.5, 7.0];
@@ -489,8 +504,9 @@ mod tests {
     use crate::case::CaseFile;
 
     /// A 4.5 m car exported in centimetres or inches and read as
-    /// millimetres (0.45 and 0.18 m) is noted with the unit that would
-    /// make it car-sized; a 1.04 m research body or a car is not.
+    /// millimetres (0.45 and 0.18 m) is warned about with the unit that
+    /// would make it car-sized; a 1.04 m research body or a car is not,
+    /// and a 0.8 m model no unit makes a car is noted.
     #[test]
     fn a_toy_sized_stl_body_is_noted_with_the_unit_that_fits() {
         use tuft_mesh::LengthUnit;
@@ -510,6 +526,23 @@ mod tests {
         assert!(size_note(1.9, LengthUnit::M, "k").is_none());
         assert!(is_scale_model_note(&cm));
         assert!(size_note(4.5, LengthUnit::Mm, "k").is_none());
+        // With a car-sized reading it is a warning (the run exits 1); a
+        // scale model with none stays a note.
+        let ball = tuft_mesh::generate::icosphere(1.0, 2);
+        let mut q =
+            tuft_mesh::quality::quality(&PanelMesh::new(ball, tuft_mesh::Mirrors::none()).unwrap());
+        q.warnings.clear();
+        q.notes.clear();
+        add_size_note(&mut q, size_note(0.45, LengthUnit::Mm, "k"));
+        add_size_note(&mut q, size_note(0.8, LengthUnit::Mm, "k"));
+        assert!(
+            q.warnings.len() == 1 && q.warnings[0].contains("4.5 m"),
+            "{q:?}"
+        );
+        assert!(
+            q.notes.len() == 1 && is_scale_model_note(&q.notes[0]),
+            "{q:?}"
+        );
         // A car in metres read as millimetres is refused, naming the unit.
         let m = size_problem(0.0044, Some(LengthUnit::Mm), "geometry.units").unwrap();
         assert!(
