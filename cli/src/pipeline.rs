@@ -980,6 +980,7 @@ fn finish(
     }
     warnings.extend(far_ground_warning(mesh));
     if dead_water_run {
+        warnings.extend(shadowed_base_warning(mesh, &layer, &stream, reference.area));
         warnings.extend(base_corner_warning(
             mesh,
             (&layer, &cp_separated),
@@ -1133,6 +1134,99 @@ pub fn side_difference_warning(
              (tuft check says) run it as a half model (geometry.half_model = true) for one answer"
         )
     })
+}
+
+/// Share of the reference area that a base's dead water facing more of
+/// the body downstream must show the stream before
+/// [`shadowed_base_warning`] speaks (our choice: a review's cab-roof
+/// deflector, 250 mm ahead of a box van's front, 0.8 m^2 of a 5.0 m^2
+/// frontal area).
+pub const SHADOWED_BASE_SHARE: f64 = 0.02;
+
+/// A body whose lowest point is within this share of its length of the
+/// ground stands on it ([`shadowed_base_warning`]; our choice: tyres
+/// touch it, a car's floor clears it by 2 to 4 % of its length).
+const STANDING_SHARE: f64 = 0.005;
+
+/// A warning when separated panels facing downstream (within 45 degrees
+/// of the stream: a part's base) look along the stream onto more of the
+/// body, over more than [`SHADOWED_BASE_SHARE`] of the reference area: a
+/// real shear layer leaving that part reattaches on the surface behind
+/// it, while this model's dead water runs straight back to infinity at
+/// one pressure, so the gap between reads that pressure and the surface
+/// behind can read separated to the tail (a review's deflector with an
+/// open 250 mm gap to the van's box: 68 % of the box roof separated,
+/// without a word).
+pub fn shadowed_base_warning(
+    mesh: &PanelMesh,
+    layer: &BoundaryLayer,
+    stream: &Vector3<f64>,
+    reference_area: f64,
+) -> Option<String> {
+    let (lo, hi) = mesh.bounds();
+    // A body standing on the ground stands on its tyres, whose wakes meet
+    // their arches: the ground contact's warning says the wheels are
+    // outside the model (a review's sports car with wheels: 37 % of its
+    // frontal area of tyre backs 60 mm ahead of the arches).
+    if mesh
+        .mirrors
+        .ground
+        .is_some_and(|g| lo.z - g < STANDING_SHARE * (hi.x - lo.x))
+    {
+        return None;
+    }
+    let base_cos = 45f64.to_radians().cos();
+    let bases: Vec<usize> = (0..mesh.len())
+        .filter(|&t| {
+            layer.panels[t].state == FlowState::Separated
+                && mesh.panels[t].normal.dot(stream) > base_cos
+        })
+        .collect();
+    if bases.is_empty() {
+        return None;
+    }
+    let tris: Vec<[nalgebra::Point3<f64>; 3]> = mesh
+        .triangles
+        .iter()
+        .map(|t| t.map(|v| mesh.vertices[v as usize]))
+        .collect();
+    let bins = crate::rays::RayBins::new(&tris, stream);
+    let nudge = 1e-6 * (hi - lo).norm();
+    // (panel, distance to the body behind it)
+    let shadowed: Vec<(usize, f64)> = bases
+        .iter()
+        .filter_map(|&t| {
+            let from = mesh.panels[t].centroid + nudge * stream;
+            bins.along(&from)
+                .iter()
+                .filter(|&&j| j as usize != t)
+                .filter_map(|&j| crate::rays::ray_hits(&from, stream, &tris[j as usize]))
+                .min_by(f64::total_cmp)
+                .map(|d| (t, d))
+        })
+        .collect();
+    let shown = |t: usize| mesh.panels[t].area * mesh.panels[t].normal.dot(stream);
+    let area: f64 =
+        shadowed.iter().map(|&(t, _)| shown(t)).sum::<f64>() * mesh.mirrors.whole_body_factor();
+    if area <= SHADOWED_BASE_SHARE * reference_area {
+        return None;
+    }
+    let &(worst, gap) = shadowed
+        .iter()
+        .max_by(|a, b| shown(a.0).total_cmp(&shown(b.0)))?;
+    let c = mesh.panels[worst].centroid;
+    Some(format!(
+        "{area:.2} m^2 of dead water behind a part ({:.0} % of the frontal area; the largest panel near x \
+         {:.3}, y {:.3}, z {:.3} m, {gap:.2} m ahead of the body behind it) faces more of the body \
+         downstream: a real shear layer leaving that part reattaches on the surface behind it, which this \
+         model does not do (its dead water runs straight back at one pressure), so the gap reads that \
+         pressure and the surface behind can read separated to the tail; read separation and drag there as \
+         the model's limit, not the part's effect",
+        100.0 * area / reference_area,
+        c.x,
+        c.y,
+        c.z
+    ))
 }
 
 /// Attached Cp above which a panel beside a base's dead water reads the
@@ -1861,6 +1955,51 @@ pub(crate) mod tests {
             attachments: Vec::new(),
             rim_zone: vec![false; mesh.len()],
         }
+    }
+
+    /// A part's base whose dead water looks along the stream onto more of
+    /// the body is warned about, with the gap; alone, or standing on the
+    /// ground (its tyres), not.
+    #[test]
+    fn a_base_facing_more_of_the_body_is_warned_about() {
+        use std::f64::consts::PI;
+        use tuft_mesh::{Mirrors, PanelMesh, Point, generate};
+        let ball = |x: f64, z: f64| {
+            let mut b = generate::icosphere(1.0, 3);
+            b.map_vertices(|p| Point::new(p.x + x, p.y, p.z + z));
+            b
+        };
+        let warn = |tri: tuft_mesh::TriMesh, mirrors: Mirrors| {
+            let mesh = PanelMesh::new(tri, mirrors).unwrap();
+            // The front ball's rear cap is its base's dead water.
+            let base: Vec<bool> = mesh
+                .panels
+                .iter()
+                .map(|p| p.centroid.x > 0.8 && p.centroid.x < 1.5)
+                .collect();
+            shadowed_base_warning(&mesh, &layer_with(&mesh, &base), &Vector3::x(), PI)
+        };
+        let w = warn(ball(0.0, 1.5).joined(&ball(2.5, 1.5)), Mirrors::ground(0.0)).unwrap();
+        assert!(
+            w.contains("m^2 of dead water behind a part")
+                && w.contains("ahead of the body behind it"),
+            "{w}"
+        );
+        // The largest panel's gap, near the axis, where the spheres are
+        // half a metre apart.
+        let gap: f64 = w
+            .split(" m ahead")
+            .next()
+            .unwrap()
+            .rsplit(", ")
+            .next()
+            .unwrap()
+            .parse()
+            .unwrap();
+        assert!((0.45..0.65).contains(&gap), "{gap}: {w}");
+        assert!(warn(ball(0.0, 1.5), Mirrors::ground(0.0)).is_none());
+        // On the ground: its tyres' wakes meet their arches.
+        assert!(warn(ball(0.0, 1.0).joined(&ball(2.5, 1.0)), Mirrors::ground(0.0)).is_none());
     }
 
     /// Attached panels a step or two from a base's dead water at a Cp
