@@ -1143,6 +1143,18 @@ pub fn side_difference_warning(
 /// frontal area).
 pub const SHADOWED_BASE_SHARE: f64 = 0.02;
 
+/// Whether panel `t` is a base's dead water: separated, its outward
+/// normal within 45 degrees of the stream `stream` (it faces downstream).
+fn base_dead_water(
+    mesh: &PanelMesh,
+    layer: &BoundaryLayer,
+    stream: &Vector3<f64>,
+    t: usize,
+) -> bool {
+    layer.panels[t].state == FlowState::Separated
+        && mesh.panels[t].normal.dot(stream) > std::f64::consts::FRAC_1_SQRT_2
+}
+
 /// A body whose lowest point is within this share of its length of the
 /// ground stands on it ([`shadowed_base_warning`]; our choice: tyres
 /// touch it, a car's floor clears it by 2 to 4 % of its length).
@@ -1175,12 +1187,8 @@ pub fn shadowed_base_warning(
     {
         return None;
     }
-    let base_cos = 45f64.to_radians().cos();
     let bases: Vec<usize> = (0..mesh.len())
-        .filter(|&t| {
-            layer.panels[t].state == FlowState::Separated
-                && mesh.panels[t].normal.dot(stream) > base_cos
-        })
+        .filter(|&t| base_dead_water(mesh, layer, stream, t))
         .collect();
     if bases.is_empty() {
         return None;
@@ -1259,11 +1267,10 @@ pub fn base_corner_warning(
     stream: &Vector3<f64>,
     reference_area: f64,
 ) -> Option<String> {
-    let base_cos = 45f64.to_radians().cos();
     let separated = |t: usize| layer.panels[t].state == FlowState::Separated;
     let mut depth: Vec<usize> = (0..mesh.len())
         .map(|t| {
-            if separated(t) && mesh.panels[t].normal.dot(stream) > base_cos {
+            if base_dead_water(mesh, layer, stream, t) {
                 0
             } else {
                 usize::MAX
