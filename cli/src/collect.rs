@@ -178,6 +178,12 @@ pub struct Row {
     /// other variants or when either folder cannot be compared.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub against_next: Option<crate::compare::DragVerdict>,
+    /// For the same pair: `compare`'s notes on what their surface change
+    /// rests on ([`crate::compare::surface_notes`]: the moved surface in
+    /// separated flow, a change under the panels' edge); a review's
+    /// spoiler and diffuser sweep had read them only from compare.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub against_next_notes: Vec<String>,
     /// Its reference area over the sweep's common one (the lowest drag
     /// area's) where the variants' areas differ, else 1: the drag plot
     /// puts its coefficients on the common area ([`common_area`]).
@@ -275,10 +281,37 @@ fn notes(c: &Collected) -> Vec<String> {
             .into_iter()
             .flatten()
             .chain(region_cover_spread(rows))
+            .chain(pair_notes(rows))
             .map(|text| format!("{prefix}{text}")),
         );
     }
     out
+}
+
+/// `compare`'s notes on the surface change between the lowest drag and
+/// the runner-up of one wind condition ([`Row::against_next_notes`]),
+/// each led by the pair's names.
+fn pair_notes(rows: &[Row]) -> Vec<String> {
+    let [first, second, ..] = rows else {
+        return Vec::new();
+    };
+    first
+        .against_next_notes
+        .iter()
+        .map(|n| {
+            // compare's B is the lowest, its A the runner-up.
+            let n = n
+                .replace("B's surface", &format!("{}'s surface", first.name))
+                .replace(
+                    "of A's everywhere",
+                    &format!("of {}'s everywhere", second.name),
+                );
+            format!(
+                "Between {} and {} (the lowest drag and the runner-up): {n}.",
+                first.name, second.name
+            )
+        })
+        .collect()
 }
 
 /// The variants whose two sides separate differently at zero yaw (their
@@ -367,13 +400,25 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     }
     // Notes, as `tuft compare`'s, are warnings to read; caveats, the same
     // for every sweep of their kind, are not.
-    Ok(
-        if c.missing.is_empty() && warnings.is_empty() && notes.is_empty() {
-            ExitCode::SUCCESS
-        } else {
-            ExitCode::from(EXIT_WARNINGS)
-        },
-    )
+    // Planned variants missing: the study is not complete, which a script
+    // must be able to tell from its warnings (a review's batch exited 1
+    // whole or with variants missing).
+    if !c.missing.is_empty() {
+        eprintln!(
+            "tuft: {}: {} of the sweep's {} planned variants are missing or failed ({}); the page ranks \
+             the rest: run the sweep again to finish it",
+            args.dir.display(),
+            c.missing.len(),
+            c.missing.len() + c.variants.len(),
+            c.missing.join("; ")
+        );
+        return Ok(ExitCode::from(crate::EXIT_FAILURE));
+    }
+    Ok(if warnings.is_empty() && notes.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_WARNINGS)
+    })
 }
 
 /// Whether a warning says the variant's separation verdict and drag are
@@ -735,6 +780,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     let mut keys: Vec<String> = Vec::new();
     let mut name = plan.as_ref().map(|p| p.sweep.clone());
     let mut stale = Vec::new();
+    let mut extras: Vec<String> = Vec::new();
     for path in entries {
         let (row, record, case) = read_row(&path)?;
         // A result computed for an older case (the base case or the sweep
@@ -742,6 +788,13 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         let planned = plan
             .as_ref()
             .and_then(|p| p.variants.iter().find(|e| e.name == row.name));
+        // A finished variant of another sweep run into the same folder
+        // (a review's follow-up sweep: 9 folders ranked under the 3-variant
+        // sweep's name): left out, and said.
+        if plan.is_some() && planned.is_none() {
+            extras.push(row.name);
+            continue;
+        }
         if planned
             .and_then(|e| e.case.as_ref())
             .is_some_and(|c| *c != case)
@@ -792,6 +845,15 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         caution: CAUTION.into(),
     };
     judge(&mut c);
+    if !extras.is_empty() {
+        c.notes.push(format!(
+            "This folder also holds {} of another sweep ({}), not in this one's plan (sweep-plan.json): \
+             left out of the ranking; give each sweep its own --out, or list them in this sweep to rank \
+             them with it.",
+            crate::output::plural(extras.len(), "finished variant", "finished variants"),
+            extras.join(", ")
+        ));
+    }
     Ok(c)
 }
 
@@ -890,15 +952,20 @@ fn judge(c: &mut Collected) {
 fn judge_leaders(dir: &Path, rows: &mut [Row]) {
     for group in rows.chunk_by_mut(same_wind) {
         if let [first, second, ..] = group {
-            let verdict = (|| -> Result<crate::compare::DragVerdict> {
+            let judged = (|| -> Result<(crate::compare::DragVerdict, Vec<String>)> {
                 use crate::compare::ResultFolder;
                 let b = ResultFolder::read(&dir.join(&first.name))?;
                 let a = ResultFolder::read(&dir.join(&second.name))?;
                 let mapping = crate::compare::map_a_onto_b(&a, &b);
                 let names = [second.name.as_str(), first.name.as_str()];
-                Ok(crate::compare::comparison_named(&a, &b, &mapping, names).drag)
+                let c = crate::compare::comparison_named(&a, &b, &mapping, names);
+                let measured = a.summary.panel_noise.is_some() && b.summary.panel_noise.is_some();
+                Ok((c.drag, crate::compare::surface_notes(&c.surface, measured)))
             })();
-            first.against_next = verdict.ok();
+            if let Ok((verdict, notes)) = judged {
+                first.against_next = Some(verdict);
+                first.against_next_notes = notes;
+            }
         }
     }
 }
@@ -1021,6 +1088,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         wrapped: s.wrapped(),
         regions: s.regions.clone(),
         against_next: None,
+        against_next_notes: Vec::new(),
         area_scale: 1.0,
     };
     Ok((row, record, s.case))
@@ -2638,6 +2706,23 @@ mod tests {
         assert_eq!(r.cd, [0.43, 0.47]);
     }
 
+    /// compare's notes on the leader and runner-up's surface change are
+    /// given with their names; none for a lone variant.
+    #[test]
+    fn the_leaders_surface_notes_are_named() {
+        let mut c = sweep(&[1.0, 2.0]);
+        c.variants[0].against_next_notes =
+            vec!["82 % of the surface that moved lies in separated flow".into()];
+        assert_eq!(
+            pair_notes(&c.variants),
+            [
+                "Between v0 and v1 (the lowest drag and the runner-up): 82 % of the surface that moved lies \
+              in separated flow."
+            ]
+        );
+        assert!(pair_notes(&c.variants[..1]).is_empty());
+    }
+
     /// The lift and rear-axle plots of one line carry the underbody's
     /// part and the rest of the body's beside the whole; summaries
     /// without an underbody part draw neither.
@@ -2752,6 +2837,7 @@ mod tests {
             area_scale: 1.0,
             regions: Vec::new(),
             against_next: None,
+            against_next_notes: Vec::new(),
         };
         Collected {
             sweep: "s".into(),

@@ -1309,7 +1309,7 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
         };
         format!(
             "{:.0} % of the surface that moved by more than {} ({:.3} of {:.3} m^2; {margin}) lies in \
-             separated flow in A or B: \
+             separated flow in either run: \
              there the model holds the dead water's one pressure, so it misses most of what the change \
              does to the lift and drag (a spoiler, a lip or a diffuser's end working on separated flow); \
              read the difference as this model's and confirm with validated CFD or a tunnel",
@@ -1319,6 +1319,21 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
             surface.changed_m2
         )
     })
+}
+
+/// The notes on what the surface change between two runs rests on, as
+/// `compare` gives them: much of the moved surface in separated flow
+/// ([`dead_water_change_note`]) and a change under the panels' edge
+/// ([`resolution_note`]; not when both runs measured their panel noise,
+/// `measured`). `collect` gives them for its leader and runner-up.
+pub fn surface_notes(surface: &SurfaceDeltas, measured: bool) -> Vec<String> {
+    [
+        dead_water_change_note(surface),
+        resolution_note(surface, measured),
+    ]
+    .into_iter()
+    .flatten()
+    .collect()
 }
 
 /// A length in millimetres, to the millimetre ("28 mm"), or to a tenth

@@ -108,6 +108,27 @@ pub struct MeshFacts {
     pub wetted_area_m2: f64,
     /// Preparation report (reading, repair passes, coarsening, quality).
     pub preparation: serde_json::Value,
+    /// The STL's size and content hash ([`stl_fingerprint`]), so that a
+    /// sweep can tell a file replaced under its name whatever its time
+    /// stamp; absent for a built-in shape.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stl_fingerprint: Option<String>,
+}
+
+/// A file's size and a hash of its bytes, `"SIZE:HASH"` (hash: the Fx
+/// multiply-rotate step over little-endian 8-byte words, fixed here so
+/// that it stays the same across builds; not cryptographic: it tells a
+/// re-exported scan from the one a result was computed for). `None` when
+/// the file cannot be read.
+pub fn stl_fingerprint(path: &std::path::Path) -> Option<String> {
+    let bytes = std::fs::read(path).ok()?;
+    let mut hash: u64 = 0;
+    for chunk in bytes.chunks(8) {
+        let mut word = [0u8; 8];
+        word[..chunk.len()].copy_from_slice(chunk);
+        hash = (hash.rotate_left(5) ^ u64::from_le_bytes(word)).wrapping_mul(0x517c_c1b7_2722_0a95);
+    }
+    Some(format!("{}:{hash:016x}", bytes.len()))
 }
 
 /// Reference values.

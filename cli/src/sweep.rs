@@ -288,8 +288,9 @@ fn warning_words(n: usize) -> String {
 
 /// Why a finished variant's result no longer answers its inputs, if it
 /// does not: its case differs from the one the result was computed for
-/// (the base case or the sweep changed), or its STL was written after the
-/// result (a scan re-exported under the same name), or `noise` asks for
+/// (the base case or the sweep changed), or its STL is not the file the
+/// result recorded (a scan re-exported under the same name; by content,
+/// or for an older result by the file's time stamp), or `noise` asks for
 /// the panel noise it was run without. `None` keeps it.
 fn stale(summary: &Path, variant: &plan::Variant, dir: &Path, noise: bool) -> Option<String> {
     let Ok(file) = &variant.file else {
@@ -304,6 +305,17 @@ fn stale(summary: &Path, variant: &plan::Variant, dir: &Path, noise: bool) -> Op
         return Some("it was run without --noise".into());
     }
     let stl = file.geometry.stl.as_ref().map(|p| dir.join(p))?;
+    // The file's content where the result recorded it (a file copied in
+    // with its old time stamp, as `cp -p` or an unpacked archive leave it,
+    // had kept another geometry's result); its time stamp otherwise.
+    if let Some(then) = &kept.mesh.stl_fingerprint {
+        return (crate::summary::stl_fingerprint(&stl).as_ref() != Some(then)).then(|| {
+            format!(
+                "{} is not the file its result was computed from",
+                stl.display()
+            )
+        });
+    }
     let modified = |p: &Path| std::fs::metadata(p).and_then(|m| m.modified()).ok();
     match (modified(&stl), modified(summary)) {
         (Some(input), Some(result)) if input > result => {

@@ -546,6 +546,12 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             symmetry_plane: mesh.mirrors.symmetry,
             wetted_area_m2: wetted,
             preparation: serde_json::to_value(&geo.report).unwrap_or_default(),
+            stl_fingerprint: match &case.source {
+                crate::case::GeometrySource::Stl { path, .. } => {
+                    crate::summary::stl_fingerprint(path)
+                }
+                crate::case::GeometrySource::Shape { .. } => None,
+            },
         },
         reference: ReferenceValues {
             area_m2: r.area,

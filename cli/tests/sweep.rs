@@ -257,7 +257,8 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
         "--threads",
         "1",
     ]);
-    assert_eq!(code, 1);
+    // Planned variants missing: the study is incomplete, a failure.
+    assert_eq!(code, 2);
     let c = json(&out.join("sweep.json"));
     assert_eq!(c["variants"].as_array().unwrap().len(), 4);
     let missing: Vec<&str> = c["missing"]
@@ -411,8 +412,13 @@ fn collect_leaves_out_results_of_an_older_case() {
     std::fs::write(&file, sweep.replace("panels = 320", "panels = 330")).unwrap();
     let (code, err) = tuft(&[&args[..], &["--shard", "1/2"]].concat());
     assert_eq!(code, sweep_code(&err), "{err}");
-    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
-    assert_eq!(code, 1);
+    let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.starts_with("tuft: ")
+            && err.contains("1 of the sweep's 2 planned variants are missing or failed (speed-30"),
+        "{err}"
+    );
     let c = json(&out.join("sweep.json"));
     let ranked: Vec<&str> = c["variants"]
         .as_array()
@@ -425,6 +431,38 @@ fn collect_leaves_out_results_of_an_older_case() {
     assert_eq!(missing.len(), 1);
     let m = missing[0].as_str().unwrap();
     assert!(m.starts_with("speed-30") && m.contains("older case"), "{m}");
+}
+
+/// A finished variant of another sweep run into the same folder is left
+/// out of the ranking, with a note naming it (a review's follow-up sweep
+/// ranked 9 folders under its 3-variant name).
+#[test]
+fn collect_leaves_out_variants_of_another_sweep() {
+    let dir = tempfile::tempdir().unwrap();
+    let (file, out, _) = speed_sweep(dir.path());
+    let (code, err) = tuft(&sweep_args(&file, &out));
+    assert_eq!(code, sweep_code(&err), "{err}");
+    let other = out.join("speed-99");
+    std::fs::create_dir(&other).unwrap();
+    for f in std::fs::read_dir(out.join("speed-20")).unwrap() {
+        let f = f.unwrap().path();
+        if f.is_file() {
+            std::fs::copy(&f, other.join(f.file_name().unwrap())).unwrap();
+        }
+    }
+    let record = other.join("variant.json");
+    let text = std::fs::read_to_string(&record).unwrap();
+    std::fs::write(&record, text.replace("\"speed-20\"", "\"speed-99\"")).unwrap();
+    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    assert_eq!(code, 1);
+    let c = json(&out.join("sweep.json"));
+    assert_eq!(c["variants"].as_array().unwrap().len(), 2);
+    assert!(c["missing"].as_array().unwrap().is_empty());
+    let notes = c["notes"].to_string();
+    assert!(
+        notes.contains("also holds 1 finished variant of another sweep (speed-99)"),
+        "{notes}"
+    );
 }
 
 /// `tuft sweep --noise` measures each variant's panel noise; finished
@@ -640,10 +678,11 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     .unwrap();
     let out = d.join("s");
     let (code, err) = sweep_to(&file, &out);
-    // ground-0 fails: the ground through the sphere's centre.
+    // ground-0 fails: the ground through the sphere's centre; collect
+    // says the study is incomplete.
     assert_eq!(code, 2, "{err}");
     let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
-    assert_eq!(code, 1, "{err}");
+    assert_eq!(code, 2, "{err}");
     let c = json(&out.join("sweep.json"));
     let ranked: Vec<(u64, String, f64)> = c["variants"]
         .as_array()
@@ -707,7 +746,7 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     let second = &ranked[1].1;
     std::fs::remove_file(out.join(second).join("mesh.json")).unwrap();
     let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
-    assert_eq!(code, 1, "{err}");
+    assert_eq!(code, 2, "{err}");
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
     let pictures = glance_pictures(&html);
     assert_eq!(pictures.len(), 2);
@@ -730,6 +769,9 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
 /// STL variants with labels: collect writes the labels to sweep.csv and
 /// plots against them; relabelling a finished sweep keeps its results
 /// and gives collect the new labels.
+/// STL variants are plotted against their labels; relabelled, they are
+/// kept; a file replaced under its name is run again whatever its time
+/// stamp (a review's `cp -p` kept another geometry's result).
 #[test]
 fn labelled_stl_variants_are_plotted_against_their_labels() {
     let dir = tempfile::tempdir().unwrap();
@@ -765,4 +807,25 @@ fn labelled_stl_variants_are_plotted_against_their_labels() {
     let (_, err) = run();
     assert_eq!(err.matches("already finished, kept").count(), 2, "{err}");
     assert_eq!(label_column(), [0.0, 40.0]);
+    // Another file put in under the same name with an old time stamp (as
+    // `cp -p` or an unpacked archive leave it): run again, by content.
+    let high = d.join("high.stl");
+    let mut bytes = std::fs::read(&high).unwrap();
+    bytes[..12].copy_from_slice(b"re-exported ");
+    std::fs::write(&high, bytes).unwrap();
+    let old = std::time::SystemTime::UNIX_EPOCH + std::time::Duration::from_secs(1_000_000_000);
+    std::fs::File::options()
+        .write(true)
+        .open(&high)
+        .unwrap()
+        .set_modified(old)
+        .unwrap();
+    let (_, err) = run();
+    assert_eq!(err.matches("already finished, kept").count(), 1, "{err}");
+    assert_eq!(
+        err.matches("is not the file its result was computed from, so it runs again")
+            .count(),
+        1,
+        "{err}"
+    );
 }

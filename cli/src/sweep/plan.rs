@@ -277,6 +277,22 @@ impl Plan {
 /// variants first and failed the bad ones in the morning. Checks that
 /// need the prepared body (the ground, axles and regions against it) stay
 /// with each variant's run. `dir`: the sweep file's folder.
+/// Why a case's STL cannot be read, if it cannot: a missing or
+/// unreadable file is found before anything runs, not when the sweep
+/// reaches it (a review's misspelt file name surfaced after the first
+/// variant had run).
+fn unreadable_stl(case: &crate::case::Case) -> Option<String> {
+    let crate::case::GeometrySource::Stl { path, .. } = &case.source else {
+        return None;
+    };
+    std::fs::File::open(path).err().map(|e| {
+        format!(
+            "geometry.stl = \"{}\": cannot read the file: {e}",
+            path.display()
+        )
+    })
+}
+
 fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
     // A built-in shape is generated once per geometry (variants that differ
     // only in the flow share one; every Slurm shard repeats this).
@@ -291,14 +307,17 @@ fn refuse_bad_variants(dir: &Path, variants: &[Variant]) -> Result<()> {
                     let path = dir.join(format!("{}.toml", v.name));
                     match crate::case::Case::from_file(&path, file.clone()) {
                         Err(e) => format!("{e:#}"),
-                        Ok(case) => shapes
-                            .entry(v.geometry_key.as_str())
-                            .or_insert_with(|| {
-                                crate::geometry::check_shape(&case)
-                                    .err()
-                                    .map(|e| format!("{e:#}"))
-                            })
-                            .clone()?,
+                        Ok(case) => match unreadable_stl(&case) {
+                            Some(why) => why,
+                            None => shapes
+                                .entry(v.geometry_key.as_str())
+                                .or_insert_with(|| {
+                                    crate::geometry::check_shape(&case)
+                                        .err()
+                                        .map(|e| format!("{e:#}"))
+                                })
+                                .clone()?,
+                        },
                     }
                 }
             };
@@ -927,11 +946,29 @@ mod tests {
 
     #[test]
     fn each_mode_and_stl_lists() {
-        let p = plan(&format!(
+        let text = format!(
             "combine = \"each\"\n{BASE}[[vary]]\nkey = \"stl\"\nvalues = [\"a.stl\", \"b/b.stl\"]\n\
              [[vary]]\nkey = \"ground\"\nvalues = [-0.1]\n"
-        ))
-        .unwrap();
+        );
+        // The STLs must exist: a missing one is refused before anything
+        // runs.
+        let dir = tempfile::tempdir().unwrap();
+        let study = dir.path().join("study");
+        let sweep_file = study.join("s.toml");
+        let file: SweepFile = toml::from_str(&text).unwrap();
+        let e = Plan::from_file(&sweep_file, file.clone())
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("2 of 3 variants cannot run, so none was started: stl-a: geometry.stl = \"")
+                && e.contains("a.stl\": cannot read the file"),
+            "{e}"
+        );
+        std::fs::create_dir_all(study.join("b")).unwrap();
+        for f in ["a.stl", "b/b.stl"] {
+            std::fs::write(study.join(f), b"solid x\nendsolid x\n").unwrap();
+        }
+        let p = Plan::from_file(&sweep_file, file).unwrap();
         assert_eq!(p.variants.len(), 3);
         let f = p.variants[0].file.as_ref().unwrap();
         assert!(f.geometry.shape.is_none());
