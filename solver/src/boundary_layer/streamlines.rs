@@ -31,6 +31,14 @@ pub const STEP_SIZES: f64 = 0.5;
 /// Visits of one panel by one line before the line is declared a loop.
 pub const MAX_VISITS: u32 = 4;
 
+/// Steps one line may take inside one panel without leaving it before it
+/// is declared stalled: a crossing takes a few steps of [`STEP_SIZES`];
+/// a line turning on the spot where the flow's direction folds over (a
+/// review's lines at a base rim had run 20,000 steps, over a kilometre,
+/// inside a few panels, and made their streamline file five times the
+/// size of their neighbours').
+pub const MAX_STEPS_IN_PANEL: usize = 32;
+
 /// Why a traced line ended.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum TraceEnd {
@@ -84,6 +92,7 @@ impl Tracer<'_> {
         let (mut t, mut p, mut entry) = (panel as usize, start, None::<usize>);
         let mut prev_dir = Vector3::zeros();
         let mut zero_steps = 0;
+        let mut inside = 0;
         for _ in 0..self.max_steps {
             if self.field.speed[t] < self.stop_speed {
                 line.end = TraceEnd::Stagnation;
@@ -101,9 +110,15 @@ impl Tracer<'_> {
             line.panels.push(t as u32);
             line.points.push(q);
             let Some(k) = k else {
+                inside += 1;
+                if inside > MAX_STEPS_IN_PANEL {
+                    line.end = TraceEnd::Stalled;
+                    return line;
+                }
                 (entry, prev_dir, p) = (None, d, q);
                 continue;
             };
+            inside = 0;
             zero_steps = if tau < 1e-9 * self.mesh.panels[t].size {
                 zero_steps + 1
             } else {
@@ -230,5 +245,52 @@ impl Tracer<'_> {
             t = self.mesh.edge_neighbours[t][k]? as usize;
         }
         None
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tuft_mesh::{Mirrors, Point, TriMesh};
+
+    /// A line in a panel whose flow converges on a point inside it (every
+    /// vertex's velocity aimed at its centroid) turns on the spot: it is
+    /// declared stalled after [`MAX_STEPS_IN_PANEL`] steps instead of
+    /// running to the line's step limit.
+    #[test]
+    fn a_line_turning_on_the_spot_stalls() {
+        // An equilateral panel; the flow converges on its centre `c`. The
+        // line starts just past `c` towards the top corner and steps half
+        // an edge back and forth through `c` along that line, which stays
+        // inside the panel (the corner is 0.58 edges from `c`).
+        let h = 3f64.sqrt() / 2.0;
+        let triangle = TriMesh {
+            vertices: vec![
+                Point::new(0.0, 0.0, 0.0),
+                Point::new(1.0, 0.0, 0.0),
+                Point::new(0.5, h, 0.0),
+            ],
+            triangles: vec![[0, 1, 2]],
+        };
+        let mesh = PanelMesh::new(triangle, Mirrors::none()).unwrap();
+        let mut field = SurfaceField::new(&mesh, &[Vector3::x()]);
+        let centre = mesh.panels[0].centroid;
+        for (v, p) in field.vertex_velocity.iter_mut().zip(&mesh.vertices) {
+            *v = centre - p;
+        }
+        let tracer = Tracer {
+            mesh: &mesh,
+            field: &field,
+            stop_speed: 1e-6,
+            max_steps: 20_000,
+        };
+        let start = centre + 0.05 * Vector3::y();
+        let line = tracer.trace(0, start, 1.0);
+        assert_eq!(line.end, TraceEnd::Stalled);
+        assert!(
+            line.points.len() <= MAX_STEPS_IN_PANEL + 2,
+            "{}",
+            line.points.len()
+        );
     }
 }
