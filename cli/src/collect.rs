@@ -1840,13 +1840,45 @@ fn numeric_key(c: &Collected, key: &str) -> bool {
 }
 
 /// Whether `key` is no label but has labels that change in step with it
-/// ([`lockstep`]): an STL list and the labels given to its files, one
-/// swept quantity plotted against the labels.
+/// ([`lockstep`]), or labels that together tell its value: an STL list
+/// and the labels given to its files (one swept quantity, or two, as a
+/// spoiler height and a diffuser angle), plotted against the labels.
 fn labelled_in_step(c: &Collected, key: &str) -> bool {
-    !crate::sweep::plan::is_label(key)
-        && lockstep(c, key)
+    use crate::sweep::plan::is_label;
+    !is_label(key) && (lockstep(c, key).iter().any(|k| is_label(k)) || labels_determine(c, key))
+}
+
+/// Whether the sweep's labels, two or more, tell the value of `key` on
+/// every variant that sets it: variants alike in every label are alike
+/// in `key` (an STL per combination of a spoiler height and a diffuser
+/// angle, each file labelled with both).
+fn labels_determine(c: &Collected, key: &str) -> bool {
+    let labels: Vec<&String> = c
+        .keys
+        .iter()
+        .filter(|k| crate::sweep::plan::is_label(k))
+        .collect();
+    if labels.len() < 2 {
+        return false;
+    }
+    let set: Vec<&Row> = c
+        .variants
+        .iter()
+        .filter(|r| r.settings.contains_key(key))
+        .collect();
+    let tag = |r: &Row| -> Vec<Option<String>> {
+        labels
             .iter()
-            .any(|k| crate::sweep::plan::is_label(k))
+            .map(|k| r.settings.get(*k).map(cell))
+            .collect()
+    };
+    set.iter()
+        .all(|r| labels.iter().all(|k| r.settings.contains_key(*k)))
+        && set.iter().enumerate().all(|(i, a)| {
+            set[..i].iter().all(|b| {
+                tag(a) != tag(b) || a.settings.get(key).map(cell) == b.settings.get(key).map(cell)
+            })
+        })
 }
 
 /// The names of a swept key whose values are text (an STL per variant,
@@ -1994,7 +2026,12 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
     // number (infinite for text) and as text.
     type Group = (Vec<(f64, String)>, String, Vec<(f64, f64)>);
     let mut groups: Vec<Group> = Vec::new();
-    let along = lockstep(c, key);
+    let mut along = lockstep(c, key);
+    // Against one of several labels, a key the labels tell (their STL)
+    // adds no line: the other labels make them.
+    if crate::sweep::plan::is_label(key) {
+        along.extend(c.keys.iter().filter(|k| labelled_in_step(c, k)));
+    }
     // A text key's places on the axis, found once.
     let names = categories(c, key).unwrap_or_default();
     // Only the variants that set `key` (see `numeric_key`).
@@ -2704,6 +2741,38 @@ mod tests {
         assert!((r.separated_m2[0] - 1.14).abs() < 1e-9 && (r.separated_m2[1] - 1.53).abs() < 1e-9);
         assert!((r.rear_axle_kg[0] + 26.8).abs() < 1e-9 && (r.rear_axle_kg[1] + 15.6).abs() < 1e-9);
         assert_eq!(r.cd, [0.43, 0.47]);
+    }
+
+    /// STL variants labelled with two factors are plotted against each,
+    /// one line per value of the other; the STL key, which the labels
+    /// tell, is not plotted and makes no lines.
+    #[test]
+    fn two_labels_make_lines_of_each_other() {
+        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0]);
+        c.keys = vec!["geometry.stl".into(), "spoiler".into(), "diffuser".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            let (spoiler, diffuser) = ((k / 2) as f64, (k % 2) as f64 * 4.0);
+            r.settings.insert(
+                "geometry.stl".into(),
+                serde_json::json!(format!("v{k}.stl")),
+            );
+            r.settings
+                .insert("spoiler".into(), serde_json::json!(spoiler));
+            r.settings
+                .insert("diffuser".into(), serde_json::json!(diffuser));
+            r.cd = 0.3 - 0.01 * diffuser + 0.001 * spoiler;
+        }
+        assert!(labelled_in_step(&c, "geometry.stl"));
+        assert!(!labelled_in_step(&c, "diffuser"));
+        let lines = series(&c, "diffuser", |r| r.cd);
+        assert_eq!(lines.len(), 2, "{lines:?}");
+        assert!(lines.iter().all(|l| l.points.len() == 2), "{lines:?}");
+        assert!(lines[0].name.starts_with("spoiler = "), "{}", lines[0].name);
+        // A repeated label pair would not tell the STL.
+        c.variants[3]
+            .settings
+            .insert("diffuser".into(), serde_json::json!(0.0));
+        assert!(!labelled_in_step(&c, "geometry.stl"));
     }
 
     /// compare's notes on the leader and runner-up's surface change are

@@ -66,9 +66,20 @@ struct Vary {
     /// which the plots show as categories.
     #[serde(default)]
     labels: Option<Vec<toml::Value>>,
-    /// What the labels measure, with their unit ("boot lid raise [mm]").
+    /// What the labels measure, with their unit ("boot lid raise [mm]"),
+    /// or a list of names for labels that are lists, one value per name
+    /// (an STL per spoiler height and diffuser angle: `label = ["spoiler
+    /// [mm]", "diffuser [deg]"]`, `labels = [[1400, 4], [1400, 8], ...]`).
     #[serde(default)]
-    label: Option<String>,
+    label: Option<LabelNames>,
+}
+
+/// [`Vary::label`]: one name, or a name per place in each label.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(untagged)]
+enum LabelNames {
+    One(String),
+    Many(Vec<String>),
 }
 
 /// The settings one value of a `[[vary]]` list makes: the key and value,
@@ -438,24 +449,36 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 v.values.len()
             ),
             (Some(l), name) => {
+                let at =
+                    |why: String| anyhow::anyhow!("vary #{} (key \"{}\"): {why}", k + 1, v.key);
                 // A sweep.csv header and a plot's axis: no comma, no dot
                 // (a dot would read as a case key).
-                let name = name
-                    .as_deref()
-                    .unwrap_or("label")
-                    .replace([',', '.'], " ")
-                    .split_whitespace()
-                    .collect::<Vec<_>>()
-                    .join(" ");
-                if name.is_empty() {
+                let clean = |n: &str| {
+                    n.replace([',', '.'], " ")
+                        .split_whitespace()
+                        .collect::<Vec<_>>()
+                        .join(" ")
+                };
+                let names: Vec<String> = match name {
+                    None => vec!["label".to_owned()],
+                    Some(LabelNames::One(n)) => vec![clean(n)],
+                    Some(LabelNames::Many(ns)) => ns.iter().map(|n| clean(n)).collect(),
+                };
+                if names.is_empty() || names.iter().any(String::is_empty) {
                     bail!("vary #{} (key \"{}\"): label is empty", k + 1, v.key);
                 }
-                Some((
-                    name,
-                    label_values(l).map_err(|why| {
-                        anyhow::anyhow!("vary #{} (key \"{}\"): {why}", k + 1, v.key)
-                    })?,
-                ))
+                if let Some(twice) = names
+                    .iter()
+                    .enumerate()
+                    .find(|(j, n)| names[..*j].contains(n))
+                {
+                    return Err(at(format!("the label name \"{}\" is given twice", twice.1)));
+                }
+                if let [name] = names.as_slice() {
+                    Some(vec![(name.clone(), label_values(l, true).map_err(at)?)])
+                } else {
+                    Some(label_columns(l, &names).map_err(at)?)
+                }
             }
         };
         let values = v
@@ -464,7 +487,7 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
             .enumerate()
             .map(|(i, value)| {
                 let mut pairs = vec![(key.clone(), value.clone())];
-                if let Some((name, labels)) = &label {
+                for (name, labels) in label.iter().flatten() {
                     pairs.push((name.clone(), labels[i].clone()));
                 }
                 pairs
@@ -478,9 +501,51 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
     Ok(out)
 }
 
+/// Labels that are lists, one value for each of `names`: a column of
+/// settings per name ([`label_values`], values may repeat within a
+/// column), no two labels alike.
+fn label_columns(
+    labels: &[toml::Value],
+    names: &[String],
+) -> Result<Vec<(String, Vec<toml::Value>)>, String> {
+    let rows: Vec<&Vec<toml::Value>> = labels
+        .iter()
+        .enumerate()
+        .map(|(i, l)| match l.as_array() {
+            Some(row) if row.len() == names.len() => Ok(row),
+            _ => Err(format!(
+                "label names {} things ({}), so each label is a list of {} values (label {} is {l})",
+                names.len(),
+                names.join(", "),
+                names.len(),
+                i + 1
+            )),
+        })
+        .collect::<Result<_, _>>()?;
+    if let Some((i, row)) = rows
+        .iter()
+        .enumerate()
+        .find(|(i, r)| rows[..*i].contains(r))
+    {
+        return Err(format!(
+            "label {} ({}) is given twice",
+            i + 1,
+            toml::Value::Array((*row).clone())
+        ));
+    }
+    names
+        .iter()
+        .enumerate()
+        .map(|(j, name)| {
+            let column: Vec<toml::Value> = rows.iter().map(|r| r[j].clone()).collect();
+            Ok((name.clone(), label_values(&column, false)?))
+        })
+        .collect()
+}
+
 /// A `[[vary]]` list's labels as settings: all numbers (as floats) or all
-/// names (trimmed, none empty, none twice).
-fn label_values(labels: &[toml::Value]) -> Result<Vec<toml::Value>, String> {
+/// names (trimmed, none empty, none twice when `unique`).
+fn label_values(labels: &[toml::Value], unique: bool) -> Result<Vec<toml::Value>, String> {
     let numbers: Option<Vec<toml::Value>> = labels
         .iter()
         .map(|v| match v {
@@ -508,7 +573,7 @@ fn label_values(labels: &[toml::Value]) -> Result<Vec<toml::Value>, String> {
     if let Some(twice) = names
         .iter()
         .enumerate()
-        .find(|(k, n)| names[..*k].contains(n))
+        .find(|(k, n)| unique && names[..*k].contains(n))
     {
         return Err(format!("the label \"{}\" is given twice", twice.1));
     }
@@ -778,6 +843,52 @@ mod tests {
     /// Labels may be names instead (an STL per accessory), each a setting
     /// of its variant; numbers and names mixed, an empty name or one
     /// given twice are refused.
+    #[test]
+    fn labels_may_be_lists_for_two_factors() {
+        let sweep = |labels: &str, label: &str| {
+            format!(
+                "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [20.0, 22.0, 38.0, 40.0]\n\
+                 labels = {labels}\nlabel = {label}\n"
+            )
+        };
+        let names = "[\"spoiler [mm]\", \"diffuser [deg]\"]";
+        let p = plan(&sweep("[[0, 4], [0, 8], [25, 4], [25, 8]]", names)).unwrap();
+        let v = &p.variants[2].settings;
+        assert_eq!(
+            (v[1].key.as_str(), v[2].key.as_str()),
+            ("spoiler [mm]", "diffuser [deg]")
+        );
+        assert_eq!(
+            (&v[1].value, &v[2].value),
+            (&serde_json::json!(25.0), &serde_json::json!(4.0))
+        );
+        for (labels, label, words) in [
+            (
+                "[[0, 4], [0], [25, 4], [25, 8]]",
+                names,
+                "each label is a list of 2 values (label 2",
+            ),
+            (
+                "[[0, 4], [0, 8], [0, 4], [25, 8]]",
+                names,
+                "label 3 ([0, 4]) is given twice",
+            ),
+            (
+                "[[0, 4], [0, 8], [25, 4], [25, 8]]",
+                "[\"a\", \"a\"]",
+                "label name \"a\" is given twice",
+            ),
+            (
+                "[[0, \"x\"], [0, 8], [25, 4], [25, 8]]",
+                names,
+                "all numbers",
+            ),
+        ] {
+            let why = refusal(&sweep(labels, label));
+            assert!(why.contains(words), "{why}");
+        }
+    }
+
     #[test]
     fn labels_may_be_names() {
         let p = plan(&format!(
