@@ -235,6 +235,19 @@ fn run_range(
                 .iter()
                 .take_while(|m| &m.variant.geometry_key == key)
                 .count();
+        // Said as it starts, so that a log shows what runs (a review's
+        // overnight log stayed silent until the first variant finished).
+        say(
+            opt.quiet,
+            &format!(
+                "{}: running{} ...",
+                todo[start].variant.name,
+                match end - start {
+                    1 => String::new(),
+                    n => format!(" with {} more of this shape", n - 1),
+                }
+            ),
+        );
         run_group(
             &plan.name,
             dir,

@@ -440,8 +440,18 @@ fn collect_leaves_out_results_of_an_older_case() {
 fn collect_leaves_out_variants_of_another_sweep() {
     let dir = tempfile::tempdir().unwrap();
     let (file, out, _) = speed_sweep(dir.path());
-    let (code, err) = tuft(&sweep_args(&file, &out));
+    let (code, err) = tuft(&[
+        "sweep",
+        file.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
     assert_eq!(code, sweep_code(&err), "{err}");
+    // A log says what runs as it starts.
+    assert!(
+        err.lines().next() == Some("speed-20: running with 1 more of this shape ..."),
+        "{err}"
+    );
     let other = out.join("speed-99");
     std::fs::create_dir(&other).unwrap();
     for f in std::fs::read_dir(out.join("speed-20")).unwrap() {
