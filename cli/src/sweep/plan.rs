@@ -71,15 +71,17 @@ struct Vary {
     /// (an STL per spoiler height and diffuser angle: `label = ["spoiler
     /// [mm]", "diffuser [deg]"]`, `labels = [[1400, 4], [1400, 8], ...]`).
     #[serde(default)]
-    label: Option<LabelNames>,
+    label: Option<toml::Value>,
 }
 
-/// [`Vary::label`]: one name, or a name per place in each label.
-#[derive(Debug, Clone, Deserialize)]
-#[serde(untagged)]
-enum LabelNames {
-    One(String),
-    Many(Vec<String>),
+/// [`Vary::label`]'s names: one, or one per place in each label; `None`
+/// for anything else.
+fn label_names(label: &toml::Value) -> Option<Vec<String>> {
+    match label {
+        toml::Value::String(n) => Some(vec![n.clone()]),
+        toml::Value::Array(ns) => ns.iter().map(|n| n.as_str().map(str::to_owned)).collect(),
+        _ => None,
+    }
 }
 
 /// The settings one value of a `[[vary]]` list makes: the key and value,
@@ -461,8 +463,16 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 };
                 let names: Vec<String> = match name {
                     None => vec!["label".to_owned()],
-                    Some(LabelNames::One(n)) => vec![clean(n)],
-                    Some(LabelNames::Many(ns)) => ns.iter().map(|n| clean(n)).collect(),
+                    Some(given) => label_names(given)
+                        .ok_or_else(|| {
+                            at(format!(
+                                "label must be a name (\"boot lid raise [mm]\") or a list of names, one \
+                                 for each place in the labels (got {given})"
+                            ))
+                        })?
+                        .iter()
+                        .map(|n| clean(n))
+                        .collect(),
                 };
                 if names.is_empty() || names.iter().any(String::is_empty) {
                     bail!("vary #{} (key \"{}\"): label is empty", k + 1, v.key);
@@ -882,6 +892,11 @@ mod tests {
                 "[[0, \"x\"], [0, 8], [25, 4], [25, 8]]",
                 names,
                 "all numbers",
+            ),
+            (
+                "[[0, 4], [0, 8], [25, 4], [25, 8]]",
+                "5",
+                "label must be a name",
             ),
         ] {
             let why = refusal(&sweep(labels, label));
