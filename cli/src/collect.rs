@@ -940,7 +940,7 @@ fn judge(c: &mut Collected) {
     c.drag_ranking = best_drag(c);
     c.rear_lift_ranking = rear_lift_ranking(c).unwrap_or_default();
     c.notes = notes(c);
-    c.caveats = [yaw_note(c), ride_height_note(c)]
+    c.caveats = [yaw_note(c), ride_height_note(c), main_effects(c)]
         .into_iter()
         .flatten()
         .collect();
@@ -2287,6 +2287,117 @@ fn yaw_note(c: &Collected) -> Option<String> {
     })
 }
 
+/// For STL variants that cross two or more labelled factors in every
+/// combination, in one wind condition: each factor's mean drag (counts on
+/// the plots' area) and mean rear-axle lift at each of its levels, over
+/// the other factors' levels, with the spread of the means, against the
+/// sweep's drag noise floor (a review's spoiler-by-diffuser study had
+/// averaged them by hand from sweep.csv: the diffuser's 12 counts against
+/// the spoiler's 5, while the ranking line compared two variants that
+/// differed in the spoiler alone).
+fn main_effects(c: &Collected) -> Option<String> {
+    use crate::sweep::plan::is_label;
+    if wind_groups(c).len() != 1 {
+        return None;
+    }
+    let labels: Vec<&String> = c.keys.iter().filter(|k| is_label(k)).collect();
+    if labels.len() < 2
+        || !c
+            .variants
+            .iter()
+            .all(|r| labels.iter().all(|k| r.settings.contains_key(*k)))
+    {
+        return None;
+    }
+    // Each factor's levels: numbers in order, names in the sweep's.
+    let mut in_order: Vec<&Row> = c.variants.iter().collect();
+    in_order.sort_by_key(|r| r.index);
+    let levels: Vec<Vec<&serde_json::Value>> = labels
+        .iter()
+        .map(|k| {
+            let mut seen: Vec<&serde_json::Value> = Vec::new();
+            for r in &in_order {
+                if let Some(v) = r.settings.get(*k)
+                    && !seen.contains(&v)
+                {
+                    seen.push(v);
+                }
+            }
+            if seen.iter().all(|v| v.is_number()) {
+                seen.sort_by(|a, b| {
+                    a.as_f64()
+                        .unwrap_or(0.0)
+                        .total_cmp(&b.as_f64().unwrap_or(0.0))
+                });
+            }
+            seen
+        })
+        .collect();
+    // Every combination once.
+    let combos: usize = levels.iter().map(Vec::len).product();
+    let distinct: std::collections::BTreeSet<Vec<String>> = c
+        .variants
+        .iter()
+        .map(|r| {
+            labels
+                .iter()
+                .map(|k| r.settings.get(*k).map(cell).unwrap_or_default())
+                .collect()
+        })
+        .collect();
+    if combos != c.variants.len() || distinct.len() != combos || levels.iter().any(|l| l.len() < 2)
+    {
+        return None;
+    }
+    let mean = |k: &String, level: &serde_json::Value, f: &dyn Fn(&Row) -> f64| {
+        let at: Vec<f64> = c
+            .variants
+            .iter()
+            .filter(|r| r.settings.get(k) == Some(level))
+            .map(f)
+            .collect();
+        at.iter().sum::<f64>() / at.len().max(1) as f64
+    };
+    let drag = |r: &Row| 1000.0 * r.cd * r.area_scale;
+    let rear = |r: &Row| r.rear_axle_kg;
+    let factors: Vec<String> = labels
+        .iter()
+        .zip(&levels)
+        .map(|(k, lv)| {
+            let d: Vec<f64> = lv.iter().map(|v| mean(k, v, &drag)).collect();
+            let a: Vec<f64> = lv.iter().map(|v| mean(k, v, &rear)).collect();
+            let spread = |m: &[f64]| {
+                m.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+                    - m.iter().copied().fold(f64::INFINITY, f64::min)
+            };
+            let at: Vec<String> = lv
+                .iter()
+                .zip(d.iter().zip(&a))
+                .map(|(v, (d, a))| {
+                    let level = match v.as_f64() {
+                        Some(x) if x.fract() == 0.0 => format!("{x:.0}"),
+                        _ => shown_cell(k, v),
+                    };
+                    format!("at {level}: {d:.1} counts, {a:+.1} kg")
+                })
+                .collect();
+            format!(
+                "{k}: {} (drag spread {:.1} counts, rear axle {:.1} kg)",
+                at.join("; "),
+                spread(&d),
+                spread(&a)
+            )
+        })
+        .collect();
+    Some(format!(
+        "Main effects (each factor's mean over the other factors' levels; drag on the plots' area, \
+         rear-axle lift, negative downforce): {}. A spread under the drag noise floor of {:.0} counts \
+         is not an effect of the factor; the same cautions hold as for the ranking.",
+        factors.join(" | "),
+        sweep_floor(&c.variants)
+    ))
+}
+
 /// A note when the sweep moves the body against the ground (the ground's
 /// height or a built-in shape's ride height): the lift trend is then
 /// mostly the smooth underbody's suction, the least certain part of the
@@ -2773,6 +2884,43 @@ mod tests {
             .settings
             .insert("diffuser".into(), serde_json::json!(0.0));
         assert!(!labelled_in_step(&c, "geometry.stl"));
+    }
+
+    /// A full crossing of two labelled factors gets each factor's mean
+    /// drag and rear-axle lift per level; a missing combination, or one
+    /// factor, gets none.
+    #[test]
+    fn crossed_factors_get_their_main_effects() {
+        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0]);
+        c.keys = vec!["geometry.stl".into(), "spoiler".into(), "diffuser".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            let (spoiler, diffuser) = ((k / 2) as f64 * 25.0, (k % 2) as f64 * 4.0 + 4.0);
+            r.settings.insert(
+                "geometry.stl".into(),
+                serde_json::json!(format!("v{k}.stl")),
+            );
+            r.settings
+                .insert("spoiler".into(), serde_json::json!(spoiler));
+            r.settings
+                .insert("diffuser".into(), serde_json::json!(diffuser));
+            r.cd = 0.180 - 0.002 * diffuser + 0.0001 * spoiler;
+            r.rear_axle_kg = 10.0 - diffuser;
+        }
+        let m = main_effects(&c).unwrap();
+        // Diffuser 4: 180 - 8 + 1.25 = 173.25 counts on average over the
+        // spoilers (0 and 25: +0 and +2.5 counts); 8: 165.25.
+        assert!(
+            m.contains("diffuser: at 4: 173.2 counts, +6.0 kg; at 8: 165.2 counts, +2.0 kg (drag spread 8.0 counts, rear axle 4.0 kg)"),
+            "{m}"
+        );
+        assert!(
+            m.contains("spoiler: at 0: 168.0 counts") && m.contains("(drag spread 2.5 counts"),
+            "{m}"
+        );
+        c.variants.pop();
+        assert!(main_effects(&c).is_none());
+        c.keys.pop();
+        assert!(main_effects(&c).is_none());
     }
 
     /// compare's notes on the leader and runner-up's surface change are
