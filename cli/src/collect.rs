@@ -2854,25 +2854,33 @@ mod tests {
         assert_eq!(r.cd, [0.43, 0.47]);
     }
 
+    /// Four STL variants labelled with two crossed factors, "spoiler" at
+    /// `spoiler[0] * i + spoiler[1]` and "diffuser" at `diffuser[0] * j +
+    /// diffuser[1]` for i, j in 0..2, C_D 0.3 - 0.01 diffuser + 0.001
+    /// spoiler.
+    fn crossed(spoiler: [f64; 2], diffuser: [f64; 2]) -> Collected {
+        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0]);
+        c.keys = vec!["geometry.stl".into(), "spoiler".into(), "diffuser".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            let s = (k / 2) as f64 * spoiler[0] + spoiler[1];
+            let d = (k % 2) as f64 * diffuser[0] + diffuser[1];
+            r.settings.insert(
+                "geometry.stl".into(),
+                serde_json::json!(format!("v{k}.stl")),
+            );
+            r.settings.insert("spoiler".into(), serde_json::json!(s));
+            r.settings.insert("diffuser".into(), serde_json::json!(d));
+            r.cd = 0.3 - 0.01 * d + 0.001 * s;
+        }
+        c
+    }
+
     /// STL variants labelled with two factors are plotted against each,
     /// one line per value of the other; the STL key, which the labels
     /// tell, is not plotted and makes no lines.
     #[test]
     fn two_labels_make_lines_of_each_other() {
-        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0]);
-        c.keys = vec!["geometry.stl".into(), "spoiler".into(), "diffuser".into()];
-        for (k, r) in c.variants.iter_mut().enumerate() {
-            let (spoiler, diffuser) = ((k / 2) as f64, (k % 2) as f64 * 4.0);
-            r.settings.insert(
-                "geometry.stl".into(),
-                serde_json::json!(format!("v{k}.stl")),
-            );
-            r.settings
-                .insert("spoiler".into(), serde_json::json!(spoiler));
-            r.settings
-                .insert("diffuser".into(), serde_json::json!(diffuser));
-            r.cd = 0.3 - 0.01 * diffuser + 0.001 * spoiler;
-        }
+        let mut c = crossed([1.0, 0.0], [4.0, 0.0]);
         assert!(labelled_in_step(&c, "geometry.stl"));
         assert!(!labelled_in_step(&c, "diffuser"));
         let lines = series(&c, "diffuser", |r| r.cd);
@@ -2891,18 +2899,10 @@ mod tests {
     /// factor, gets none.
     #[test]
     fn crossed_factors_get_their_main_effects() {
-        let mut c = sweep(&[1.0, 2.0, 3.0, 4.0]);
-        c.keys = vec!["geometry.stl".into(), "spoiler".into(), "diffuser".into()];
-        for (k, r) in c.variants.iter_mut().enumerate() {
-            let (spoiler, diffuser) = ((k / 2) as f64 * 25.0, (k % 2) as f64 * 4.0 + 4.0);
-            r.settings.insert(
-                "geometry.stl".into(),
-                serde_json::json!(format!("v{k}.stl")),
-            );
-            r.settings
-                .insert("spoiler".into(), serde_json::json!(spoiler));
-            r.settings
-                .insert("diffuser".into(), serde_json::json!(diffuser));
+        let mut c = crossed([25.0, 0.0], [4.0, 4.0]);
+        for r in &mut c.variants {
+            let level = |k: &str| r.settings[k].as_f64().unwrap();
+            let (spoiler, diffuser) = (level("spoiler"), level("diffuser"));
             r.cd = 0.180 - 0.002 * diffuser + 0.0001 * spoiler;
             r.rear_axle_kg = 10.0 - diffuser;
         }
