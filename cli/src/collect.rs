@@ -299,13 +299,6 @@ fn pair_notes(rows: &[Row]) -> Vec<String> {
         .against_next_notes
         .iter()
         .map(|n| {
-            // compare's B is the lowest, its A the runner-up.
-            let n = n
-                .replace("B's surface", &format!("{}'s surface", first.name))
-                .replace(
-                    "of A's everywhere",
-                    &format!("of {}'s everywhere", second.name),
-                );
             format!(
                 "Between {} and {} (the lowest drag and the runner-up): {n}.",
                 first.name, second.name
@@ -960,7 +953,10 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
                 let names = [second.name.as_str(), first.name.as_str()];
                 let c = crate::compare::comparison_named(&a, &b, &mapping, names);
                 let measured = a.summary.panel_noise.is_some() && b.summary.panel_noise.is_some();
-                Ok((c.drag, crate::compare::surface_notes(&c.surface, measured)))
+                Ok((
+                    c.drag,
+                    crate::compare::surface_notes(&c.surface, measured, names),
+                ))
             })();
             if let Ok((verdict, notes)) = judged {
                 first.against_next = Some(verdict);

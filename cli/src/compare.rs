@@ -903,6 +903,7 @@ fn notes(
     notes.extend(resolution_note(
         surface,
         sa.panel_noise.is_some() && sb.panel_noise.is_some(),
+        ["A", "B"],
     ));
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
@@ -1325,11 +1326,12 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
 /// `compare` gives them: much of the moved surface in separated flow
 /// ([`dead_water_change_note`]) and a change under the panels' edge
 /// ([`resolution_note`]; not when both runs measured their panel noise,
-/// `measured`). `collect` gives them for its leader and runner-up.
-pub fn surface_notes(surface: &SurfaceDeltas, measured: bool) -> Vec<String> {
+/// `measured`; `names`: the runs, A's and B's). `collect` gives them for
+/// its leader and runner-up.
+pub fn surface_notes(surface: &SurfaceDeltas, measured: bool, names: [&str; 2]) -> Vec<String> {
     [
         dead_water_change_note(surface),
-        resolution_note(surface, measured),
+        resolution_note(surface, measured, names),
     ]
     .into_iter()
     .flatten()
@@ -1376,11 +1378,12 @@ fn sides_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Optio
 /// part changed within that distance (a roof box turned round, 1.23 m^2
 /// within 99 mm on 100 mm panels) does not read as a small change. Not when both runs measured their panel noise
 /// (`measured`): the verdict's floor then holds what the note asks for.
-fn resolution_note(surface: &SurfaceDeltas, measured: bool) -> Option<String> {
+/// `names`: the runs, A's and B's.
+fn resolution_note(surface: &SurfaceDeltas, measured: bool, [a, b]: [&str; 2]) -> Option<String> {
     let (d, e) = (surface.max_distance_m, surface.panel_edge_m);
     (surface.changed_m2 > 0.0 && d < e && !measured).then(|| {
         format!(
-            "B's surface lies within {:.0} mm of A's everywhere, under the panels' typical edge ({:.0} mm), \
+            "{b}'s surface lies within {:.0} mm of {a}'s everywhere, under the panels' typical edge ({:.0} mm), \
              over {:.2} m^2 that moved: however large the part, the panels follow moves under their own \
              size only in part, so the differences may rest as much on how each surface was cut into \
              panels as on the change; run both again with tuft run --noise, which solves each at two \
@@ -1799,12 +1802,30 @@ mod tests {
             note.starts_with("in A the two sides separate differently"),
             "{note}"
         );
-        let note = resolution_note(&surface(0.04, 0.0, 0.03), false).unwrap_or_default();
+        let note =
+            resolution_note(&surface(0.04, 0.0, 0.03), false, ["A", "B"]).unwrap_or_default();
         assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm), over 0.04 m^2 that moved"), "{note}");
         assert!(note.contains("tuft run --noise"), "{note}");
-        assert_eq!(resolution_note(&surface(0.04, 0.0, 0.03), true), None);
-        assert_eq!(resolution_note(&surface(0.04, 0.0, 0.1), false), None);
-        assert_eq!(resolution_note(&surface(0.0, 0.0, 0.003), false), None);
+        // collect's leader (B) and runner-up (A) by name.
+        let named = surface_notes(&surface(0.04, 0.0, 0.03), false, ["v1", "v0"]);
+        assert!(
+            named
+                .iter()
+                .any(|n| n.starts_with("v0's surface lies within 30 mm of v1's everywhere")),
+            "{named:?}"
+        );
+        assert_eq!(
+            resolution_note(&surface(0.04, 0.0, 0.03), true, ["A", "B"]),
+            None
+        );
+        assert_eq!(
+            resolution_note(&surface(0.04, 0.0, 0.1), false, ["A", "B"]),
+            None
+        );
+        assert_eq!(
+            resolution_note(&surface(0.0, 0.0, 0.003), false, ["A", "B"]),
+            None
+        );
         let mut a = Summary::default();
         a.mesh.ground_z = Some(0.0);
         let mut b = a.clone();
