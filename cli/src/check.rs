@@ -56,6 +56,9 @@ pub struct CheckArgs {
     /// Worker threads (default: all cores), as for the other commands.
     #[arg(long)]
     pub threads: Option<usize>,
+    /// No progress messages on stderr (errors still print).
+    #[arg(short, long)]
+    pub quiet: bool,
 }
 
 /// Run `tuft check`.
@@ -116,13 +119,18 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         file.display().to_string()
     };
     let what = format!("reading, repairing and coarsening {}", file.display());
-    let spinner = crate::progress::Progress::spinner("tuft check", &what);
-    // The stages on the spinner only: check's stderr stays as it was.
-    let stages = spinner.as_ref().and_then(|s| s.spinner_stages(&what));
+    // The phase and its stages as `tuft run` says them: a spinner on a
+    // terminal, plain lines in a log (a review's overnight log had sat
+    // silent for 25 s on a 1.26-million-facet scan), nothing with --quiet.
+    let mut progress = crate::progress::Progress::new(args.quiet, "tuft check");
+    let phase = progress.begin("geometry", &what);
+    let stages = progress.stages(&phase, &what);
     let prepared = prepare(&file, &params);
     drop(stages);
-    if let Some(s) = spinner {
-        s.clear();
+    if prepared.is_ok() {
+        progress.end(phase, "");
+    } else {
+        phase.clear();
     }
     let (panels, mut report) = prepared
         .map_err(|e| match &case {

@@ -1193,11 +1193,10 @@ pub fn shadowed_base_warning(
     if bases.is_empty() {
         return None;
     }
-    let tris: Vec<[nalgebra::Point3<f64>; 3]> = mesh
-        .triangles
-        .iter()
-        .map(|t| t.map(|v| mesh.vertices[v as usize]))
-        .collect();
+    // The body the ray can meet is the one the pictures and the region
+    // boxes see: on a half model, the mirror image too.
+    let shown_tris = crate::output::render::display_triangles(mesh);
+    let tris: Vec<[nalgebra::Point3<f64>; 3]> = shown_tris.iter().map(|t| t.corners).collect();
     let bins = crate::rays::RayBins::new(&tris, stream);
     let nudge = 1e-6 * (hi - lo).norm();
     // (panel, distance to the body behind it)
@@ -1207,7 +1206,7 @@ pub fn shadowed_base_warning(
             let from = mesh.panels[t].centroid + nudge * stream;
             bins.along(&from)
                 .iter()
-                .filter(|&&j| j as usize != t)
+                .filter(|&&j| shown_tris[j as usize].panel as usize != t)
                 .filter_map(|&j| crate::rays::ray_hits(&from, stream, &tris[j as usize]))
                 .min_by(f64::total_cmp)
                 .map(|d| (t, d))

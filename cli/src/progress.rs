@@ -57,16 +57,6 @@ impl Progress {
         }
     }
 
-    /// A spinner on a terminal only, saying `what` (nothing elsewhere, so
-    /// that a script's output stays as it was); clear it with
-    /// [`Phase::clear`]. For a command that prints its result whole at the
-    /// end (`tuft check` on a scan of millions of facets takes 10-20 s).
-    pub fn spinner(prefix: &str, what: &str) -> Option<Phase> {
-        std::io::stderr()
-            .is_terminal()
-            .then(|| Self::new(false, prefix).begin("", what))
-    }
-
     /// Finish a phase, with a short result note.
     pub fn end(&mut self, phase: Phase, note: &str) {
         let secs = phase.start.elapsed().as_secs_f64();

@@ -80,6 +80,15 @@ fn check_reports_a_generated_sphere() {
     assert!(!turned.contains("(--nose +x)"), "{turned}");
 
     let json = check(&[path.to_str().unwrap(), "--panels", "2000", "--json"]);
+    // The phase's end on stderr, with its time; stdout is the JSON alone.
+    let stderr = String::from_utf8_lossy(&json.stderr);
+    assert!(
+        stderr
+            .lines()
+            .last()
+            .is_some_and(|l| l.starts_with("tuft check: geometry done in ")),
+        "{stderr}"
+    );
     let report: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
     // Surface 4 pi r^2 = 12.57 m^2 (Archimedes); the inscribed polyhedron,
     // coarsened to 2000 panels, keeps it within 3 %.
@@ -107,16 +116,40 @@ fn check_refuses_a_truncated_file_in_one_line() {
     write_binary_stl(&path, &generate::icosphere(1.0, 2), 1.0);
     let bytes = std::fs::read(&path).unwrap();
     std::fs::write(&path, &bytes[..bytes.len() - 75]).unwrap();
-    let out = check(&[path.to_str().unwrap()]);
-    assert_eq!(out.status.code(), Some(2));
-    assert!(out.stdout.is_empty());
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert_eq!(stderr.lines().count(), 1, "{stderr}");
     let expected = format!(
         "tuft: {}: the binary STL header declares 320 facets",
         path.display()
     );
+    // Quiet: the error's one line alone.
+    let out = check(&[path.to_str().unwrap(), "--quiet"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
     assert!(stderr.starts_with(&expected), "{stderr}");
+    // In a log (stderr not a terminal), the phase and its stages as they
+    // start, as `tuft run` says them, then the error's one line last.
+    let out = check(&[path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    let lines: Vec<&str> = stderr.lines().collect();
+    assert_eq!(
+        lines[..2],
+        [
+            format!(
+                "tuft check: reading, repairing and coarsening {} ...",
+                path.display()
+            ),
+            format!("tuft check:   reading {} ...", path.display())
+        ],
+        "{stderr}"
+    );
+    assert_eq!(
+        lines.iter().filter(|l| l.starts_with("tuft:")).count(),
+        1,
+        "{stderr}"
+    );
+    assert!(lines[lines.len() - 1].starts_with(&expected), "{stderr}");
 }
 
 /// The facets of a unit sphere (24 by 48) whose corners' `coordinate`
@@ -231,7 +264,7 @@ fn check_cuts_a_whole_body_given_as_a_half_model() {
         ),
         "{stdout}"
     );
-    let out = check(&[path.to_str().unwrap(), "--units", "m", "--half"]);
+    let out = check(&[path.to_str().unwrap(), "--units", "m", "--half", "-q"]);
     assert_eq!(out.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert_eq!(stderr.lines().count(), 1, "{stderr}");
