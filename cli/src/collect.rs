@@ -423,9 +423,8 @@ fn is_coarse_mesh(warning: &str) -> bool {
 }
 
 /// Variants carrying the coarse-mesh warning.
-fn not_converged(c: &Collected) -> Vec<&str> {
-    c.variants
-        .iter()
+fn not_converged(rows: &[Row]) -> Vec<&str> {
+    rows.iter()
         .filter(|r| r.warning_texts.iter().any(|w| is_coarse_mesh(w)))
         .map(|r| r.name.as_str())
         .collect()
@@ -536,69 +535,84 @@ fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
         .collect()
 }
 
-/// Why no winner is named in any wind condition, whatever the drag
-/// differences: a variant on too coarse a mesh, one whose drag is the
-/// plateau model's, one whose floor or wheels stand on the ground; `None`
-/// when nothing holds the ranking back.
-fn withheld(c: &Collected) -> Option<String> {
-    let coarse = not_converged(c);
+/// Why no winner is named among `rows` (the sweep, or one wind
+/// condition of it), whatever the drag differences: a variant on too
+/// coarse a mesh, one whose drag is the plateau model's, one whose floor
+/// or wheels stand on the ground; `None` when nothing holds the ranking
+/// back.
+fn withheld(rows: &[Row]) -> Option<String> {
+    let coarse = not_converged(rows);
     if !coarse.is_empty() {
         return Some(format!(
             "the drag ranking is not converged ({} of {} variants are on too coarse a mesh: {}, see \
              the warnings), so no winner is named",
             coarse.len(),
-            c.variants.len(),
-            more_panels(
-                c.variants
-                    .iter()
-                    .filter(|r| coarse.contains(&r.name.as_str()))
-            )
+            rows.len(),
+            more_panels(rows.iter().filter(|r| coarse.contains(&r.name.as_str())))
         ));
     }
-    let plateau = c.variants.iter().filter(|r| r.plateau_drag).count();
+    let plateau = rows.iter().filter(|r| r.plateau_drag).count();
     if plateau > 0 {
         return Some(format!(
             "{plateau} of {} variants ran without the separated-flow loop (solver.wakes = \"attached\") \
              and separate, so their drag is the plateau model's, which is no basis for a ranking: no \
              winner is named; rank drag with the loop (the default)",
-            c.variants.len()
+            rows.len()
         ));
     }
-    let floor = c.variants.iter().filter(|r| r.floor_on_ground).count();
+    let floor = rows.iter().filter(|r| r.floor_on_ground).count();
     if floor > 0 {
         return Some(format!(
             "{floor} of {} variants have their floor on the ground (the ground set too high for \
              them, the floor cut off there), so the bodies solved are not the ones drawn: no winner \
              is named",
-            c.variants.len()
+            rows.len()
         ));
     }
-    let wheels = c.variants.iter().filter(|r| r.wheels_on).count();
+    let wheels = rows.iter().filter(|r| r.wheels_on).count();
     if wheels > 0 {
         return Some(format!(
             "{wheels} of {} variants stand on the ground with wheels on: {}; no winner is named",
-            c.variants.len(),
+            rows.len(),
             crate::pipeline::WHEELS_DRAG
         ));
     }
     None
 }
 
-/// The printed best-drag line: no winner at all when a variant's mesh is
-/// too coarse ([`is_coarse_mesh`]), its drag is the plateau model's or it
-/// stood on the ground ([`withheld`]), otherwise [`best_drag_in`] within
-/// each wind condition, since drag at another speed or yaw is another test.
+/// Whether every wind condition that has two or more variants to rank has
+/// its ranking held back ([`withheld`]); false when none has two.
+fn all_withheld(c: &Collected) -> bool {
+    let groups = wind_groups(c);
+    let ranked: Vec<&[Row]> = groups
+        .iter()
+        .map(|(_, rows)| *rows)
+        .filter(|rows| rows.len() > 1)
+        .collect();
+    !ranked.is_empty() && ranked.iter().all(|rows| withheld(rows).is_some())
+}
+
+/// The printed best-drag line: [`best_drag_in`] within each wind
+/// condition, since drag at another speed or yaw is another test, or no
+/// winner in a condition where a variant's mesh is too coarse
+/// ([`is_coarse_mesh`]), its drag is the plateau model's or it stood on
+/// the ground ([`withheld`]); said once for the sweep when that holds
+/// every condition back. A review's six shapes at yaw 0 and 5 degrees had
+/// lost the yaw-0 verdict to the yawed variants' coarse meshes.
 fn best_drag(c: &Collected) -> String {
     // With one variant per wind condition (a yaw or speed sweep) there is
     // nothing to rank, and so nothing to withhold.
     let groups = wind_groups(c);
     let ranked = groups.iter().any(|(_, rows)| rows.len() > 1);
-    if ranked && let Some(why) = withheld(c) {
+    if all_withheld(c)
+        && let Some(why) = withheld(&c.variants)
+    {
         return why;
     }
+    let in_group = |rows: &[Row]| withheld(rows).unwrap_or_else(|| best_drag_in(rows));
     match groups.as_slice() {
         [] => "no drag to rank".into(),
-        [(_, rows)] => best_drag_in(rows),
+        [(_, rows)] => in_group(rows),
         _ if !ranked => {
             let parts: Vec<String> = groups
                 .iter()
@@ -613,7 +627,7 @@ fn best_drag(c: &Collected) -> String {
         _ => {
             let parts: Vec<String> = groups
                 .iter()
-                .map(|(label, rows)| format!("{label}: {}", best_drag_in(rows)))
+                .map(|(label, rows)| format!("{label}: {}", in_group(rows)))
                 .collect();
             format!(
                 "drag ranked within each wind condition, not across them; {}",
@@ -850,20 +864,46 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     Ok(c)
 }
 
-/// The variants' rear-axle lift in one line, for a sweep in one wind
-/// condition: the most rear downforce (or least rear lift) in this model,
+/// The variants' rear-axle lift in one line: [`rear_lift_in`] for a sweep
+/// in one wind condition, or for each condition with two or more variants,
+/// labelled (a review's six shapes at yaw 0 and 5 degrees had lost the
+/// rear-axle ranking without a word).
+fn rear_lift_ranking(c: &Collected) -> Option<String> {
+    let wheels = c.variants.iter().any(|r| r.wheels_on);
+    match wind_groups(c).as_slice() {
+        [(_, rows)] => rear_lift_in(rows, wheels).map(|t| format!("rear axle: {t}")),
+        groups => {
+            let parts: Vec<String> = groups
+                .iter()
+                .filter_map(|(label, rows)| {
+                    rear_lift_in(rows, wheels).map(|t| format!("{label}: {t}"))
+                })
+                .collect();
+            (!parts.is_empty()).then(|| {
+                format!(
+                    "rear axle, within each wind condition: {}",
+                    parts.join("; ")
+                )
+            })
+        }
+    }
+}
+
+/// The rear-axle verdict among `rows`, one wind condition: the most rear
+/// downforce (or least rear lift) in this model,
 /// its lead over the runner-up, and whether that lead passes the pair's
 /// lift noise: the whole body's ([`Row::lift_noise_kg`]; the rear axle
 /// scatters as the whole body does in `bench/drag_noise`), or where both
 /// measured their panel noise and the rear axles' spreads add to more,
 /// those. A review asked which roof
 /// spoiler was best for rear-axle lift and had to work it out from
-/// sweep.csv. Wheels on, it says to compare like with like.
-fn rear_lift_ranking(c: &Collected) -> Option<String> {
-    if wind_groups(c).len() != 1 || c.variants.len() < 2 {
+/// sweep.csv. Wheels on (`wheels`, anywhere in the sweep), it says to
+/// compare like with like.
+fn rear_lift_in(rows: &[Row], wheels: bool) -> Option<String> {
+    if rows.len() < 2 {
         return None;
     }
-    let mut rows: Vec<&Row> = c.variants.iter().collect();
+    let mut rows: Vec<&Row> = rows.iter().collect();
     rows.sort_by(|a, b| a.rear_axle_kg.total_cmp(&b.rear_axle_kg));
     let (best, next) = (rows[0], rows[1]);
     let gap = next.rear_axle_kg - best.rear_axle_kg;
@@ -895,10 +935,25 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     } else {
         format!("beyond the lift noise of about {} kg", kg(noise))
     };
-    let wheels = if c.variants.iter().any(|r| r.wheels_on) {
+    let wheels = if wheels {
         "; wheels on: compare axle loads between variants with the same wheels only"
     } else {
         ""
+    };
+    // The leading pair may separate alike while the rest of the sweep
+    // does not: the lead over the others then rests on what the model
+    // cannot show (a review's diffuser sweep, 6 to 14 degrees, read the
+    // leader at 14 degrees with the diffuser half separated, the stall
+    // caution two lines further down).
+    let (lo, hi) = range(rows.iter().copied(), |r| r.underbody_separated_percent);
+    let across = if stall || hi - lo <= 100.0 * crate::compare::SEPARATION_SHIFT {
+        String::new()
+    } else {
+        format!(
+            "; across these variants the underbody's separated share moves from {lo:.1} to {hi:.1} %, \
+             and the model does not show a diffuser's stall, so the variant with the most downforce here \
+             need not have the most on the road (see the notes)"
+        )
     };
     // Lift at the rear on the leader is no downforce: then it has the
     // least lift (a review's notchbacks, +10.9 to +13.7 kg, had been
@@ -919,8 +974,8 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     };
     let [b, n] = [signed(best.rear_axle_kg), signed(next.rear_axle_kg)];
     Some(format!(
-        "rear axle: {lead} in this model is {} ({b} kg at the rear; negative is downforce), {} kg \
-         {more} than {} ({n} kg), {standing}{wheels}",
+        "{lead} in this model is {} ({b} kg at the rear; negative is downforce), {} kg \
+         {more} than {} ({n} kg), {standing}{across}{wheels}",
         best.name,
         kg(gap),
         next.name,
@@ -1257,11 +1312,11 @@ fn shown_cell(key: &str, v: &serde_json::Value) -> String {
 }
 
 /// Whether the ranking names a winner among `rows` (one wind condition):
-/// its line says "best drag" ([`best_drag_in`]), and nothing holds back
-/// every winner of the sweep ([`best_drag`]: coarse meshes, the plateau
-/// model's drag, wheels on).
-fn winner_named(c: &Collected, rows: &[Row]) -> bool {
-    withheld(c).is_none() && best_drag_in(rows).starts_with("best drag:")
+/// its line says "best drag" ([`best_drag_in`]), and nothing holds its
+/// ranking back ([`withheld`]: coarse meshes, the plateau model's drag,
+/// wheels on).
+fn winner_named(rows: &[Row]) -> bool {
+    withheld(rows).is_none() && best_drag_in(rows).starts_with("best drag:")
 }
 
 /// `sweep.csv`: one row per variant in rank order, numbers in shortest
@@ -1288,7 +1343,7 @@ pub fn csv(c: &Collected) -> String {
     s.push('\n');
     let wind: Vec<(&[Row], bool)> = wind_groups(c)
         .into_iter()
-        .map(|(_, rows)| (rows, winner_named(c, rows)))
+        .map(|(_, rows)| (rows, winner_named(rows)))
         .collect();
     for (rows, named) in wind {
         // Counts on the lowest drag area's own reference area (where the
@@ -2290,23 +2345,49 @@ fn yaw_note(c: &Collected) -> Option<String> {
 /// sweep's drag noise floor (a review's spoiler-by-diffuser study had
 /// averaged them by hand from sweep.csv: the diffuser's 12 counts against
 /// the spoiler's 5, while the ranking line compared two variants that
-/// differed in the spoiler alone).
+/// differed in the spoiler alone). Crossed with wind conditions too, each
+/// condition's (a review's six shapes at yaw 0 and 5 degrees had lost
+/// them).
 fn main_effects(c: &Collected) -> Option<String> {
+    let groups = wind_groups(c);
+    let parts: Vec<String> = groups
+        .iter()
+        .filter_map(|(label, rows)| {
+            let factors = main_effects_in(&c.keys, rows)?;
+            Some(if groups.len() > 1 {
+                format!("at {label}: {factors}")
+            } else {
+                factors
+            })
+        })
+        .collect();
+    (!parts.is_empty()).then(|| {
+        format!(
+            "Main effects (each factor's mean over the other factors' levels; drag on the plots' area, \
+             rear-axle lift, negative downforce): {}. A spread under the drag noise floor of the \
+             sweep's two noisiest variants, {:.0} counts, is not an effect of the factor; the same \
+             cautions hold as for the ranking.",
+            parts.join(" || "),
+            sweep_floor(&c.variants)
+        )
+    })
+}
+
+/// [`main_effects`] among `rows`, one wind condition: each factor's means
+/// and their spreads, or `None` when `rows` do not cross the factors in
+/// every combination.
+fn main_effects_in(keys: &[String], rows: &[Row]) -> Option<String> {
     use crate::sweep::plan::is_label;
-    if wind_groups(c).len() != 1 {
-        return None;
-    }
-    let labels: Vec<&String> = c.keys.iter().filter(|k| is_label(k)).collect();
+    let labels: Vec<&String> = keys.iter().filter(|k| is_label(k)).collect();
     if labels.len() < 2
-        || !c
-            .variants
+        || !rows
             .iter()
             .all(|r| labels.iter().all(|k| r.settings.contains_key(*k)))
     {
         return None;
     }
     // Each factor's levels: numbers in order, names in the sweep's.
-    let mut in_order: Vec<&Row> = c.variants.iter().collect();
+    let mut in_order: Vec<&Row> = rows.iter().collect();
     in_order.sort_by_key(|r| r.index);
     let levels: Vec<Vec<&serde_json::Value>> = labels
         .iter()
@@ -2331,8 +2412,7 @@ fn main_effects(c: &Collected) -> Option<String> {
         .collect();
     // Every combination once.
     let combos: usize = levels.iter().map(Vec::len).product();
-    let distinct: std::collections::BTreeSet<Vec<String>> = c
-        .variants
+    let distinct: std::collections::BTreeSet<Vec<String>> = rows
         .iter()
         .map(|r| {
             labels
@@ -2341,13 +2421,11 @@ fn main_effects(c: &Collected) -> Option<String> {
                 .collect()
         })
         .collect();
-    if combos != c.variants.len() || distinct.len() != combos || levels.iter().any(|l| l.len() < 2)
-    {
+    if combos != rows.len() || distinct.len() != combos || levels.iter().any(|l| l.len() < 2) {
         return None;
     }
     let mean = |k: &String, level: &serde_json::Value, f: &dyn Fn(&Row) -> f64| {
-        let at: Vec<f64> = c
-            .variants
+        let at: Vec<f64> = rows
             .iter()
             .filter(|r| r.settings.get(k) == Some(level))
             .map(f)
@@ -2385,13 +2463,7 @@ fn main_effects(c: &Collected) -> Option<String> {
             )
         })
         .collect();
-    Some(format!(
-        "Main effects (each factor's mean over the other factors' levels; drag on the plots' area, \
-         rear-axle lift, negative downforce): {}. A spread under the drag noise floor of {:.0} counts \
-         is not an effect of the factor; the same cautions hold as for the ranking.",
-        factors.join(" | "),
-        sweep_floor(&c.variants)
-    ))
+    Some(factors.join(" | "))
 }
 
 /// A note when the sweep moves the body against the ground (the ground's
@@ -2468,7 +2540,7 @@ fn spread(c: &[Row], f: impl Fn(&Row) -> f64, shift: f64) -> Option<(f64, f64)> 
 /// review's page said "ranked by the drag estimate" above rows each
 /// marked "drag not ranked").
 fn order_words(c: &Collected) -> &'static str {
-    if withheld(c).is_some() {
+    if all_withheld(c) {
         "listed in the order of their drag estimates, which rank nothing here (below)"
     } else {
         "ranked by the drag estimate"
@@ -2500,7 +2572,7 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
         order_words(c),
         crate::output::html::COUNT_WORDS.trim_end_matches('.')
     );
-    let class = if not_converged(c).is_empty() {
+    let class = if not_converged(&c.variants).is_empty() {
         "verdict"
     } else {
         "caution"
@@ -3329,6 +3401,109 @@ mod tests {
                  against 11.0 %), where the model does not show a diffuser's stall: no winner"
             ),
             "{line}"
+        );
+    }
+
+    /// The leading pair separates alike, the third variant's underbody
+    /// does not (a diffuser swept steeper): the rear-axle line says the
+    /// model cannot show the stall that could undo the lead.
+    #[test]
+    fn a_rear_axle_lead_over_other_underbodies_carries_the_stall_caution() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        for (r, (kg, under)) in
+            c.variants
+                .iter_mut()
+                .zip([(-30.0, 11.0), (-20.0, 11.5), (10.0, 3.0)])
+        {
+            r.rear_axle_kg = kg;
+            r.underbody_separated_percent = under;
+        }
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(
+            line.contains(
+                "beyond the lift noise of about 3.3 kg; across these variants the underbody's separated \
+                 share moves from 3.0 to 11.5 %, and the model does not show a diffuser's stall"
+            ),
+            "{line}"
+        );
+        // Every underbody alike: no caution.
+        c.variants[2].underbody_separated_percent = 11.2;
+        let line = rear_lift_ranking(&c).unwrap_or_default();
+        assert!(!line.contains("across these variants"), "{line}");
+    }
+
+    /// Shapes crossed with two yaws: each wind condition is ranked on its
+    /// own, in drag and at the rear axle, and the yawed variants' coarse
+    /// meshes hold back the yawed ranking only (a review's six shapes at
+    /// yaw 0 and 5 degrees had lost the yaw-0 verdict and the rear-axle
+    /// ranking). A coarse mesh in every condition holds back the sweep's.
+    #[test]
+    fn each_wind_condition_is_ranked_on_its_own() {
+        let mut c = sweep(&[10.0, 10.0, 10.0, 10.0]);
+        let coarse = "a yawed run on 3000 panels: the separation is not converged there; raise \
+                      geometry.panels"
+            .to_owned();
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.yaw_deg = if k < 2 { 0.0 } else { 5.0 };
+            r.rank = k % 2 + 1;
+            r.cd = [0.290, 0.300, 0.292, 0.301][k];
+            r.rear_axle_kg = [-30.0, -20.0, -28.0, -27.0][k];
+            if k >= 2 {
+                r.warning_texts.push(coarse.clone());
+            }
+        }
+        judge(&mut c);
+        assert!(
+            c.drag_ranking
+                .contains("yaw 0°: best drag: v0 (C_D 0.290), 10.0 counts below v1")
+                && c.drag_ranking
+                    .contains("yaw 5°: the drag ranking is not converged (2 of 2"),
+            "{}",
+            c.drag_ranking
+        );
+        assert!(
+            c.rear_lift_ranking.starts_with(
+                "rear axle, within each wind condition: yaw 0°: the most downforce in this model is v0"
+            ) && c.rear_lift_ranking.contains(
+                "; yaw 5°: the most downforce in this model is v2 (-28.0 kg at the rear"
+            ),
+            "{}",
+            c.rear_lift_ranking
+        );
+        assert_eq!(order_words(&c), "ranked by the drag estimate");
+        c.variants[0].warning_texts.push(coarse);
+        judge(&mut c);
+        assert!(
+            c.drag_ranking
+                .starts_with("the drag ranking is not converged (3 of 4 variants"),
+            "{}",
+            c.drag_ranking
+        );
+        assert!(order_words(&c).starts_with("listed in the order"));
+    }
+
+    /// A full crossing of two factors at two yaws gets its main effects
+    /// within each yaw.
+    #[test]
+    fn main_effects_are_given_within_each_wind_condition() {
+        let mut c = crossed([25.0, 0.0], [4.0, 4.0]);
+        let yawed: Vec<Row> = c
+            .variants
+            .iter()
+            .map(|r| Row {
+                yaw_deg: 5.0,
+                index: r.index + 4,
+                name: format!("{}-yaw", r.name),
+                rear_axle_kg: -10.0,
+                ..r.clone()
+            })
+            .collect();
+        c.variants.extend(yawed);
+        let m = main_effects(&c).unwrap();
+        assert!(
+            m.contains("): at yaw 0°: spoiler: at 0: 240.0 counts, +0.0 kg; ")
+                && m.contains(" || at yaw 5°: spoiler: at 0: 240.0 counts, -10.0 kg; "),
+            "{m}"
         );
     }
 
