@@ -373,33 +373,67 @@ fn floor_z(mesh: &PanelMesh) -> Option<f64> {
     })
 }
 
-/// The floor's height above the ground at each of two axles, m: the
-/// lowest surface facing down on the centre line, within a fortieth of the
-/// body's length of the axle and of the centre; `None` in free air or with
-/// no surface facing down there. A rake study's variants had only their
-/// lowest points to tell them apart (a review's 1-degree rake read "26 mm
-/// lower" where the front had dropped 26 mm and the rear risen 22). The
-/// centre line keeps the tyres out and the sills' rounding too (across the
-/// whole width the demo coupe's underside read 10 mm above its 120 mm
-/// floor), and the lowest rather than the median keeps a diffuser's ramp
-/// starting ahead of the axle from reading as rake.
+/// Steepest slope, degrees, of a panel that counts as flat floor for
+/// [`floor_heights`] (our choice): a rake is a degree or two, a diffuser's
+/// ramp 4 degrees and more (reviews swept 4 to 14).
+const FLAT_FLOOR_DEG: f64 = 3.0;
+
+/// The floor's height above the ground at each of two axles, m: the line
+/// fitted (by area, least squares) through the flat floor on the centre
+/// line (surface facing down and sloping by under [`FLAT_FLOOR_DEG`],
+/// within a fortieth of the body's length of the centre, between the
+/// axles and that far beyond), read at each axle; where that floor spans
+/// under half the wheelbase, the lowest surface facing down on the centre
+/// line within a fortieth of the length of each axle. `None` in free air
+/// or with no surface facing down there. A rake study's variants had only
+/// their lowest points to tell them apart (a review's 1-degree rake read
+/// "26 mm lower" where the front had dropped 26 mm and the rear risen 22).
+/// The centre line keeps the tyres out and the sills' rounding too
+/// (across the whole width the demo coupe's underside read 10 mm above its
+/// 120 mm floor); the flat floor keeps a diffuser's ramp under the rear
+/// axle out (a review's ramp starting 150 mm ahead of it read 108 to 124
+/// mm at the axle over a 100 mm floor, and `compare` called a diffuser
+/// change a rake change).
 fn floor_heights(mesh: &PanelMesh, axles: [f64; 2]) -> Option<[f64; 2]> {
     let g = mesh.mirrors.ground?;
     let (lo, hi) = mesh.bounds();
     let reach = 0.025 * (hi.x - lo.x);
     let yc = plot::centre_y(mesh);
+    let under = |p: &&tuft_mesh::Panel| p.normal.z < -0.7 && (p.centroid.y - yc).abs() <= reach;
+    let flat = FLAT_FLOOR_DEG.to_radians().cos();
+    let [front, rear] = axles;
+    let floor: Vec<(f64, f64, f64)> = mesh
+        .panels
+        .iter()
+        .filter(under)
+        .filter(|p| {
+            -p.normal.z >= flat && p.centroid.x >= front - reach && p.centroid.x <= rear + reach
+        })
+        .map(|p| (p.centroid.x, p.centroid.z - g, p.area))
+        .collect();
+    let (x0, x1) = floor
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), f| {
+            (a.min(f.0), b.max(f.0))
+        });
+    if x1 - x0 >= 0.5 * (rear - front) {
+        let w: f64 = floor.iter().map(|f| f.2).sum();
+        let xm = floor.iter().map(|f| f.2 * f.0).sum::<f64>() / w;
+        let zm = floor.iter().map(|f| f.2 * f.1).sum::<f64>() / w;
+        let sxx: f64 = floor.iter().map(|f| f.2 * (f.0 - xm).powi(2)).sum();
+        let sxz: f64 = floor.iter().map(|f| f.2 * (f.0 - xm) * (f.1 - zm)).sum();
+        let slope = sxz / sxx;
+        return Some(axles.map(|x| zm + slope * (x - xm)));
+    }
     let at = |x: f64| {
         mesh.panels
             .iter()
-            .filter(|p| {
-                p.normal.z < -0.7
-                    && (p.centroid.x - x).abs() <= reach
-                    && (p.centroid.y - yc).abs() <= reach
-            })
+            .filter(under)
+            .filter(|p| (p.centroid.x - x).abs() <= reach)
             .map(|p| p.centroid.z - g)
             .reduce(f64::min)
     };
-    Some([at(axles[0])?, at(axles[1])?])
+    Some([at(front)?, at(rear)?])
 }
 
 /// Least gap between the ground and the body's lowest point, as a share of
@@ -1210,6 +1244,70 @@ mod tests {
         assert_eq!(both.bounds().0.z, 0.0);
         let z = floor_z(&both).unwrap();
         assert!((z - 0.05).abs() < 1e-6, "floor at {z} with the block");
+    }
+
+    /// The floor's heights at the axles come from the flat floor: on the
+    /// slant-back body (floor 0.05 m above the ground) with a 10-degree
+    /// ramp starting 50 mm ahead of a rear axle, both read 50 mm, level
+    /// (the lowest surface within reach of the axle had read the ramp,
+    /// about 54 mm); the same body pitched 1 degree nose down about the
+    /// rear axle reads 1 degree, and the front axle's floor lower by the
+    /// wheelbase times its tangent.
+    #[test]
+    fn the_floor_heights_come_from_the_flat_floor() {
+        use tuft_mesh::{Mirrors, TriMesh, generate};
+        let body = generate::ahmed(0.0, 4000).unwrap();
+        let axles = [0.3, 0.8];
+        let ground = Mirrors {
+            ground: Some(0.0),
+            ..Mirrors::none()
+        };
+        let ramp = 10f64.to_radians().tan();
+        let mut ramped = body.vertices.clone();
+        for v in &mut ramped {
+            if (v.z - 0.05).abs() < 1e-9 && v.x > 0.75 {
+                v.z += (v.x - 0.75) * ramp;
+            }
+        }
+        let mesh = PanelMesh::new(
+            TriMesh::new(ramped, body.triangles.clone()).unwrap(),
+            ground,
+        )
+        .unwrap();
+        let [f, r] = floor_heights(&mesh, axles).unwrap();
+        assert!(
+            (f - 0.05).abs() < 1e-4 && (r - 0.05).abs() < 1e-4,
+            "front {f}, rear {r}"
+        );
+        let pitch = 1f64.to_radians();
+        let pitched: Vec<Point3<f64>> = body
+            .vertices
+            .iter()
+            .map(|v| {
+                // Nose down: the front falls as x falls below the rear axle.
+                let (dx, dz) = (v.x - axles[1], v.z - 0.05);
+                Point3::new(
+                    axles[1] + dx * pitch.cos() - dz * pitch.sin(),
+                    v.y,
+                    0.05 + dx * pitch.sin() + dz * pitch.cos(),
+                )
+            })
+            .collect();
+        // Lift it so that its lowest point stays above the ground.
+        let lift = 0.02;
+        let pitched: Vec<Point3<f64>> = pitched
+            .into_iter()
+            .map(|v| Point3::new(v.x, v.y, v.z + lift))
+            .collect();
+        let mesh = PanelMesh::new(
+            TriMesh::new(pitched, body.triangles.clone()).unwrap(),
+            ground,
+        )
+        .unwrap();
+        let [f, r] = floor_heights(&mesh, axles).unwrap();
+        let rake = (r - f).atan2(axles[1] - axles[0]).to_degrees();
+        assert!((rake - 1.0).abs() < 0.02, "rake {rake}");
+        assert!((r - (0.05 + lift)).abs() < 1e-3, "rear {r}");
     }
 
     /// The force band scales the central force by the band's coefficients
