@@ -1994,6 +1994,20 @@ fn axis_label(key: &str) -> String {
     }
 }
 
+/// A line's value of swept key `key` in its legend: "yaw = 5.0 degrees",
+/// "diffuser angle = 14.5 degrees" for keys tuft knows (a review's legend
+/// read "flow.yaw = 5.0"), "key = value" for others and labels (their
+/// unit in their name).
+fn legend_words(key: &str, v: &serde_json::Value) -> String {
+    let value = shown_cell(key, v);
+    match (key_name(key), unit_of(key)) {
+        _ if crate::sweep::plan::is_label(key) => format!("{key} = {value}"),
+        (_, "-") => format!("{key} = {value}"),
+        (Some(w), unit) => format!("{w} = {value} {unit}"),
+        (None, unit) => format!("{key} = {value} {unit}"),
+    }
+}
+
 /// The words for a swept key tuft knows.
 fn key_name(key: &str) -> Option<&'static str> {
     match key {
@@ -2096,7 +2110,7 @@ fn series(c: &Collected, key: &str, f: fn(&Row) -> f64) -> Vec<Series> {
         // legends carried whole paths).
         let name = others
             .iter()
-            .map(|(k, v)| format!("{k} = {}", shown_cell(k, v)))
+            .map(|(k, v)| legend_words(k, v))
             .collect::<Vec<_>>()
             .join(", ");
         let x = r
@@ -3162,9 +3176,9 @@ mod tests {
         assert_eq!(
             names,
             [
-                "geometry.diffuser_deg = 6.0",
-                "geometry.diffuser_deg = 14.5",
-                "geometry.diffuser_deg = 22.0"
+                "diffuser angle = 6.0 degrees",
+                "diffuser angle = 14.5 degrees",
+                "diffuser angle = 22.0 degrees"
             ]
         );
     }

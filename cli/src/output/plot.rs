@@ -45,6 +45,9 @@ pub struct Shading {
     /// Tint, multiplied into what lies under it (so that two shadings
     /// that overlap both show).
     pub colour: Rgb,
+    /// The share of the plot area's height it covers, `(from, to)` from
+    /// the top: `(0.0, 1.0)` the whole height.
+    pub rows: (f64, f64),
 }
 
 /// A plot to draw.
@@ -298,14 +301,16 @@ fn whisker_marks(plot: &LinePlot, f: &PlotFrame) -> Vec<(f64, f64)> {
         .collect()
 }
 
-/// The shaded stretches of x, over the plot area's height.
+/// The shaded stretches of x, over the share of the plot area's height
+/// the shading's rows give.
 fn draw_shading(c: &mut Canvas, sh: &Shading, f: &PlotFrame) {
     let (l, t, w, h) = f.rect;
+    let (top, bottom) = (t + sh.rows.0 * h, t + sh.rows.1 * h);
     for &(a, b) in &sh.spans {
         let (xa, _) = f.pixel_at(a.min(b), f.y_range.0);
         let (xb, _) = f.pixel_at(a.max(b), f.y_range.0);
         let (xa, xb) = (xa.clamp(l, l + w), xb.clamp(l, l + w));
-        for y in t.round() as i64..(t + h).round() as i64 {
+        for y in top.round() as i64..bottom.round() as i64 {
             for x in xa.round() as i64..xb.round() as i64 {
                 let under = c.pixel(x, y);
                 let mixed =
@@ -386,7 +391,7 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
             .collect()
     };
     let x_range = if plot.x_categories.is_empty() {
-        padded_range(&finite(|p| p.0), 0.0)
+        padded_range(&finite(|p| p.0), 0.0, X_TICKS)
     } else {
         (-0.5, plot.x_categories.len() as f64 - 0.5)
     };
@@ -411,12 +416,12 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
     };
     let all: Vec<f64> = ys.iter().chain(&extra).copied().collect();
     let y = if extra.is_empty() || span(&all) <= 2.0 * span(&ys).max(f64::MIN_POSITIVE) {
-        padded_range(&all, 0.05)
+        padded_range(&all, 0.05, Y_RANGE_TICKS)
     } else {
         // Room at the top for the arrows of the points above it.
         let top = ys.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         let room = top + 0.15 * span(&ys);
-        padded_range(&[ys.as_slice(), &[room]].concat(), 0.05)
+        padded_range(&[ys.as_slice(), &[room]].concat(), 0.05, Y_RANGE_TICKS)
     };
     let y = if y.1 - y.0 < plot.min_y_span {
         let mid = 0.5 * (y.0 + y.1);
@@ -438,9 +443,16 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
     }
 }
 
+/// About how many ticks the x axis carries; its range ends on one of
+/// them, so that a 4.4 m body's axis ends at 4.5 m, not 5 (a review).
+const X_TICKS: usize = 8;
+
+/// About how many ticks set the ends of the y axis's range.
+const Y_RANGE_TICKS: usize = 6;
+
 /// `[min, max]` of `v`, widened by `pad` of its span and rounded out to
-/// round ticks; `[0, 1]` for no data.
-fn padded_range(v: &[f64], pad: f64) -> (f64, f64) {
+/// the step of about `ticks` round ticks; `[0, 1]` for no data.
+fn padded_range(v: &[f64], pad: f64, ticks: usize) -> (f64, f64) {
     let lo = v.iter().copied().fold(f64::INFINITY, f64::min);
     let hi = v.iter().copied().fold(f64::NEG_INFINITY, f64::max);
     if !(lo.is_finite() && hi.is_finite()) {
@@ -452,7 +464,7 @@ fn padded_range(v: &[f64], pad: f64) -> (f64, f64) {
         (lo, hi)
     };
     let (lo, hi) = (lo - pad * (hi - lo), hi + pad * (hi - lo));
-    let ticks = nice_ticks(lo, hi, 6);
+    let ticks = nice_ticks(lo, hi, ticks);
     let step = match ticks.as_slice() {
         [a, b, ..] => b - a,
         _ => hi - lo,
@@ -468,7 +480,7 @@ fn draw_grid_and_ticks(c: &mut Canvas, f: &PlotFrame, invert_y: bool, categories
     let (l, t, w, h) = f.rect;
     let style = TextStyle::new(15.0);
     let xt = if categories.is_empty() {
-        nice_ticks(f.x_range.0, f.x_range.1, 8)
+        nice_ticks(f.x_range.0, f.x_range.1, X_TICKS)
     } else {
         (0..categories.len()).map(|k| k as f64).collect()
     };
@@ -817,12 +829,22 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
     };
     let (mut upper, mut lower) = (Vec::new(), Vec::new());
     let (mut under, mut over) = (Vec::new(), Vec::new());
+    // Covered: the nearest surface the way the panel faces faces back at
+    // it, across air. Surface met from inside the body does not count: a
+    // base's lowest panel, facing a little up, had the deck above it and
+    // read "under a part" (a review's sports car).
     for (k, &((x, z), _, cp, separated, up)) in cuts.iter().enumerate() {
-        let covered = cuts.iter().enumerate().any(|(j, c)| {
-            j != k
-                && height_at(&c.1, x)
-                    .is_some_and(|h| if up { h > z + tol_z } else { h < z - tol_z })
-        });
+        let covered = cuts
+            .iter()
+            .enumerate()
+            .filter(|&(j, _)| j != k)
+            .filter_map(|(_, c)| {
+                let h = height_at(&c.1, x)?;
+                let gap = if up { h - z } else { z - h };
+                (gap > tol_z).then_some((gap, c.4))
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+            .is_some_and(|(_, faces_up)| faces_up != up);
         let side = match (covered, up) {
             (true, true) => &mut under,
             (true, false) => &mut over,
@@ -1074,18 +1096,37 @@ fn separated_shading(
     };
     let mut shading = Vec::new();
     let mut sides = Vec::new();
-    for (side, spans, colour) in [
-        ("upper surface", upper, SERIES_COLOURS[0]),
-        ("lower surface", lower, SERIES_COLOURS[1]),
+    // Both surfaces separated: the upper's in the top half, the lower's in
+    // the bottom half, so that neither mixes into a colour the legend does
+    // not show (a review read the overlap of two full-height tints as a
+    // third kind).
+    let both = !upper.is_empty() && !lower.is_empty();
+    for (side, spans, colour, rows, half) in [
+        (
+            "upper surface",
+            upper,
+            SERIES_COLOURS[0],
+            (0.0, 0.5),
+            " (top half)",
+        ),
+        (
+            "lower surface",
+            lower,
+            SERIES_COLOURS[1],
+            (0.5, 1.0),
+            " (bottom half)",
+        ),
     ] {
         if spans.is_empty() {
             continue;
         }
-        sides.push(format!("{side} at x {} m", at(spans)));
+        let half = if both { half } else { "" };
+        sides.push(format!("{side}{half} at x {} m", at(spans)));
         shading.push(Shading {
             spans: spans.to_vec(),
             name: format!("{side} separated: {short}"),
             colour: tint(colour, SEPARATED_TINT),
+            rows: if both { rows } else { (0.0, 1.0) },
         });
     }
     let note = if sides.is_empty() {
@@ -1113,6 +1154,14 @@ mod tests {
     use super::*;
     use crate::output::canvas::testing::{decode, keep};
     use crate::output::fixture::{Fixture, caption};
+
+    /// The x axis ends on the grid's own step: a 4.4 m body's at 4.5 m,
+    /// not 5 (a review).
+    #[test]
+    fn the_x_axis_ends_at_the_next_grid_line() {
+        let (lo, hi) = padded_range(&[0.001, 4.4], 0.0, X_TICKS);
+        assert!(lo.abs() < 1e-12 && (hi - 4.5).abs() < 1e-12, "{lo} {hi}");
+    }
 
     /// A least span keeps a spread within the noise from filling the
     /// axis (a review's sweep: drag 2-4 counts apart read as an optimum).
@@ -1233,6 +1282,41 @@ mod tests {
         let plain = centreline_cp(&Fixture::sphere(3).surface(), &CentrelineParams::default());
         let xs = |v: &[(f64, f64)]| v.iter().map(|p| p.0).collect::<Vec<_>>();
         assert_eq!(xs(&c.lower), xs(&plain.lower));
+    }
+
+    /// One body with an upright base and a level deck and floor (the
+    /// slant-back body, square back): nothing is under or over a part,
+    /// though the base's panels stand one above another, the deck above
+    /// the lowest of them (a review's sports car had one base panel
+    /// "under a part").
+    #[test]
+    fn an_upright_base_is_no_part() {
+        for slant in [0.0, 25.0] {
+            let mut f = Fixture::sphere(3);
+            let mut body = tuft_mesh::generate::ahmed(slant, 3000).unwrap();
+            // The base leaning forward at the top, 3 degrees, so that its
+            // panels face a little up (an upright one is cut edge-on).
+            body.map_vertices(|p| {
+                let s = ((p.x - 0.9) / 0.144).clamp(0.0, 1.0);
+                nalgebra::Point3::new(p.x - 0.05 * (p.z - 0.05) * s, p.y, p.z)
+            });
+            f.mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::none()).unwrap();
+            let n = f.mesh.len();
+            f.cp = vec![0.0; n];
+            f.velocity = vec![nalgebra::Vector3::x(); n];
+            for field in [&mut f.theta, &mut f.shape_factor, &mut f.cf, &mut f.risk] {
+                *field = vec![0.0; n];
+            }
+            f.state = vec![PanelState::Turbulent; n];
+            let c = centreline_cp(&f.surface(), &CentrelineParams::default());
+            assert!(
+                c.under.is_empty() && c.over.is_empty(),
+                "{slant}: under {:?}, over {:?}",
+                c.under,
+                c.over
+            );
+            assert!(c.upper.len() > 10 && c.lower.len() > 10, "{c:?}");
+        }
     }
 
     /// The legend goes to the first corner (top right, top left, bottom
@@ -1493,13 +1577,19 @@ mod tests {
         // Near the bottom of the plot area, clear of curves and legend.
         let y = (t + 0.9 * h) as i64;
         let at = |x: f64| img.pixel(frame.pixel_at(x, 0.0).0 as i64, y);
-        let upper = tint(SERIES_COLOURS[0], SEPARATED_TINT);
-        let both: Rgb = [0, 1, 2].map(|k| {
-            (u16::from(upper[k]) * u16::from(tint(SERIES_COLOURS[1], SEPARATED_TINT)[k]) / 255)
-                as u8
-        });
-        assert_eq!(at(0.7), both);
+        // Both surfaces separated there: the lower surface's tint in the
+        // bottom half, the upper's in the top half, never mixed.
+        assert_eq!(at(0.7), tint(SERIES_COLOURS[1], SEPARATED_TINT));
         assert_eq!(at(-0.55), WHITE);
+        let px = frame.pixel_at(0.7, 0.0).0 as i64;
+        let top: Vec<Rgb> = ((t + 0.25 * h) as i64..(t + 0.45 * h) as i64)
+            .map(|y| img.pixel(px, y))
+            .collect();
+        let upper = tint(SERIES_COLOURS[0], SEPARATED_TINT);
+        assert!(
+            top.iter().filter(|&&p| p == upper).count() > top.len() / 2,
+            "{top:?}"
+        );
         let (shading, note) = separated_shading(Some(dead), &c.upper_separated, &c.lower_separated);
         assert_eq!(shading.len(), 2);
         assert_eq!(
@@ -1507,7 +1597,8 @@ mod tests {
             "upper surface separated: assumed Cp (dead water)"
         );
         assert!(
-            note.contains("one assumed pressure, the dead water's Cp -0.15"),
+            note.contains("one assumed pressure, the dead water's Cp -0.15")
+                && note.contains("upper surface (top half) at x"),
             "{note}"
         );
         let (_, note) = separated_shading(None, &c.upper_separated, &[]);
