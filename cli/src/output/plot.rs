@@ -814,6 +814,7 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
                 cp,
                 state == PanelState::Separated,
                 p.normal.z >= 0.0,
+                p.normal.z.abs() < UPRIGHT_NZ,
             ));
         }
     }
@@ -829,15 +830,16 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
     };
     let (mut upper, mut lower) = (Vec::new(), Vec::new());
     let (mut under, mut over) = (Vec::new(), Vec::new());
-    // Covered: the nearest surface the way the panel faces faces back at
-    // it, across air. Surface met from inside the body does not count: a
-    // base's lowest panel, facing a little up, had the deck above it and
-    // read "under a part" (a review's sports car).
-    for (k, &((x, z), _, cp, separated, up)) in cuts.iter().enumerate() {
+    // Covered: the nearest surface the way the panel faces, upright
+    // surface aside, faces back at it, across air. Surface met from inside
+    // the body does not count, nor an upright base's panels one above
+    // another, facing up and down by round-off: a base's panel had read
+    // "under a part" (a review's sports car).
+    for (k, &((x, z), _, cp, separated, up, _)) in cuts.iter().enumerate() {
         let covered = cuts
             .iter()
             .enumerate()
-            .filter(|&(j, _)| j != k)
+            .filter(|&(j, c)| j != k && !c.5)
             .filter_map(|(_, c)| {
                 let h = height_at(&c.1, x)?;
                 let gap = if up { h - z } else { z - h };
@@ -867,6 +869,11 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
         over: points(&over),
     }
 }
+
+/// |n_z| under which a panel is upright for [`centreline_cp`]: it covers
+/// no other (within 3 degrees of upright; our choice, well above a file's
+/// single-precision round-off).
+const UPRIGHT_NZ: f64 = 0.05;
 
 /// The stretches of x of the runs of separated points of `(x, Cp,
 /// separated)` sorted by x, each reaching halfway to the attached points
@@ -1294,12 +1301,15 @@ mod tests {
         for slant in [0.0, 25.0] {
             let mut f = Fixture::sphere(3);
             let mut body = tuft_mesh::generate::ahmed(slant, 3000).unwrap();
-            // The base leaning forward at the top, 3 degrees, so that its
-            // panels face a little up (an upright one is cut edge-on).
-            body.map_vertices(|p| {
-                let s = ((p.x - 0.9) / 0.144).clamp(0.0, 1.0);
-                nalgebra::Point3::new(p.x - 0.05 * (p.z - 0.05) * s, p.y, p.z)
-            });
+            // The base's corners a micrometre either way of upright, as a
+            // file's single precision leaves them, so that the centre plane
+            // cuts its panels (an exactly upright one is cut edge-on).
+            let (_, hi) = body.bounds().unwrap();
+            for (k, v) in body.vertices.iter_mut().enumerate() {
+                if (v.x - hi.x).abs() < 1e-9 {
+                    v.x += 1e-6 * ((k % 3) as f64 - 1.0);
+                }
+            }
             f.mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::none()).unwrap();
             let n = f.mesh.len();
             f.cp = vec![0.0; n];
