@@ -1187,6 +1187,17 @@ fn report(
         summary,
         numbers,
         warnings: s.warnings.clone(),
+        notes_pointer: (!s.notes.is_empty()).then(|| {
+            format!(
+                "Read the {} on the panels below: {}.",
+                if s.notes.len() == 1 { "note" } else { "notes" },
+                if s.notes.len() == 1 {
+                    "it bears on how far the numbers hold"
+                } else {
+                    "they bear on how far the numbers hold"
+                }
+            )
+        }),
         pictures,
         sections,
         cautions: vec![],

@@ -396,6 +396,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         summary: format!("{}.", upper_first(&c.drag.text)),
         numbers,
         warnings: c.notes.clone(),
+        notes_pointer: None,
         pictures,
         sections: vec![method],
         cautions: vec![],

@@ -106,6 +106,11 @@ pub struct Report {
     pub numbers: Vec<NumberRow>,
     /// Warnings the user must read (mesh repairs, unresolved panels...).
     pub warnings: Vec<String>,
+    /// Said after "No warnings." when there are none but a note below
+    /// bears on how far to trust the numbers (a review's run on under half
+    /// its suggested panels read "No warnings." above the note that said
+    /// so).
+    pub notes_pointer: Option<String>,
     /// Pictures, in order.
     pub pictures: Vec<Picture>,
     /// Free text sections after the pictures (method, settings...).
@@ -171,7 +176,7 @@ pub fn write_report<W: Write>(w: &mut W, r: &Report) -> Result<(), OutputError> 
     page.push_str(&head(r));
     page.push_str(&cautions(r));
     page.push_str(&numbers(&r.numbers));
-    page.push_str(&warnings(&r.warnings));
+    page.push_str(&warnings(&r.warnings, r.notes_pointer.as_deref()));
     page.push_str(&pictures(&r.pictures));
     for s in &r.sections {
         page.push_str(&section(s));
@@ -245,11 +250,13 @@ fn numbers(rows: &[NumberRow]) -> String {
 /// What a drag count is, said wherever counts are shown.
 pub const COUNT_WORDS: &str = "1 drag count = 0.001 of the drag coefficient C_D.";
 
-/// The warnings list (says so when there are none).
-fn warnings(list: &[String]) -> String {
+/// The warnings list (says so when there are none, with `pointer` to a
+/// note below when given).
+fn warnings(list: &[String], pointer: Option<&str>) -> String {
     let mut out = String::from("<h2>Warnings</h2>\n");
     if list.is_empty() {
-        out.push_str("<p class=\"none\">No warnings.</p>\n");
+        let pointer = pointer.map_or(String::new(), |p| format!(" {}", escape(p)));
+        out.push_str(&format!("<p class=\"none\">No warnings.{pointer}</p>\n"));
         return out;
     }
     out.push_str("<ul class=\"warnings\">\n");
@@ -311,6 +318,7 @@ mod tests {
                 NumberRow::text("Panels", "320", "-"),
             ],
             warnings: vec!["12 panels could not be reached by a surface streamline.".to_owned()],
+            notes_pointer: None,
             pictures: vec![
                 Picture {
                     title: "Surface pressure".to_owned(),
@@ -364,6 +372,25 @@ mod tests {
         assert!(html.contains("<td class=\"value\">12</td><td class=\"unit\">counts</td>"));
         assert!(html.contains("&lt;test &amp; check&gt;"));
         assert!(html.contains("12 panels could not be reached"));
+    }
+
+    /// No warnings, but notes below that bear on the numbers: the
+    /// warnings section says where to look.
+    #[test]
+    fn no_warnings_points_at_the_notes() {
+        let mut r = report();
+        r.warnings.clear();
+        let page = |r: &Report| {
+            let mut buf = Vec::new();
+            write_report(&mut buf, r).unwrap();
+            String::from_utf8(buf).unwrap()
+        };
+        assert!(page(&r).contains("<p class=\"none\">No warnings.</p>"));
+        r.notes_pointer = Some("Read the note on the panels below.".into());
+        assert!(
+            page(&r)
+                .contains("<p class=\"none\">No warnings. Read the note on the panels below.</p>")
+        );
     }
 
     #[test]

@@ -200,7 +200,7 @@ pub fn draw_line_plot(
     }
     let (l, t, w, h) = frame.rect;
     c.stroke_rect(l as f32, t as f32, w as f32, h as f32, INK, 1.2);
-    draw_labels(&mut c, plot, &frame);
+    let two = draw_labels(&mut c, plot, &frame);
     // What the arrows and the shading are, one line under the subtitle.
     let notes: Vec<&str> = [
         Some(plot.note.as_str()).filter(|n| !n.is_empty()),
@@ -219,7 +219,7 @@ pub fn draw_line_plot(
             &mut c,
             &notes,
             30.0,
-            100.0,
+            if two { 105.0 } else { 100.0 },
             &fitted(&notes, 15.0, room).colour(MUTED),
         );
     }
@@ -563,8 +563,32 @@ fn fitted(line: &str, size: f32, room: f32) -> TextStyle {
     }
 }
 
-/// Title, subtitle and axis labels.
-fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
+/// The least size, points, a subtitle is drawn at on one line before it
+/// takes two (our choice).
+const SUBTITLE_LEAST: f32 = 14.0;
+
+/// `line` cut at the space that best evens two lines at `size` within
+/// `room` pixels (the second may still need [`fitted`] to shrink).
+fn two_lines(line: &str, size: f32, room: f32) -> [String; 2] {
+    let style = TextStyle::new(size);
+    let spaces: Vec<usize> = line.match_indices(' ').map(|(i, _)| i).collect();
+    let best = spaces
+        .iter()
+        .filter(|&&i| text::width(&line[..i], &style) <= room)
+        .min_by(|&&a, &&b| {
+            let uneven = |i: usize| {
+                (text::width(&line[..i], &style) - text::width(&line[i + 1..], &style)).abs()
+            };
+            uneven(a).total_cmp(&uneven(b))
+        });
+    match best {
+        Some(&i) => [line[..i].to_owned(), line[i + 1..].to_owned()],
+        None => [line.to_owned(), String::new()],
+    }
+}
+
+/// Title, subtitle and axis labels; true when the subtitle took two lines.
+fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) -> bool {
     let (l, t, w, h) = f.rect;
     let room = c.width() as f32 - 60.0;
     text::draw(
@@ -574,13 +598,25 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
         44.0,
         &super::sheet::title_style(&plot.title, room),
     );
-    text::draw(
-        c,
-        &plot.subtitle,
-        30.0,
-        76.0,
-        &fitted(&plot.subtitle, 16.0, room).colour(MUTED),
-    );
+    // A subtitle too long for one line at a readable size takes two (a
+    // review read the centre-line plot's at 11 points, and a sweep's cut
+    // off at the right edge).
+    let one = fitted(&plot.subtitle, 16.0, room);
+    let two = one.size < SUBTITLE_LEAST;
+    if !two {
+        text::draw(c, &plot.subtitle, 30.0, 76.0, &one.colour(MUTED));
+    } else {
+        let lines = two_lines(&plot.subtitle, SUBTITLE_LEAST, room);
+        for (line, y) in lines.iter().zip([68.0, 86.0]) {
+            text::draw(
+                c,
+                line,
+                30.0,
+                y,
+                &fitted(line, SUBTITLE_LEAST, room).colour(MUTED),
+            );
+        }
+    }
     let axis = TextStyle::new(17.0).bold().align(Align::Centre);
     text::draw(
         c,
@@ -590,6 +626,7 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) {
         &axis,
     );
     text::draw_vertical(c, &plot.y_label, 30.0, (t + 0.5 * h) as f32, &axis);
+    two
 }
 
 /// One legend entry: a series' line (its index sets the width; true: it
@@ -1161,6 +1198,24 @@ mod tests {
     use super::*;
     use crate::output::canvas::testing::{decode, keep};
     use crate::output::fixture::{Fixture, caption};
+
+    /// A subtitle too long for one line at a readable size is cut at a
+    /// space into two lines that each fit, about even.
+    #[test]
+    fn a_long_subtitle_takes_two_lines() {
+        let long = "Panels on the plane y = 0 m (middle of the body's width); upper surface: normal \
+                    pointing up, nothing above it. Under a part: facing up with more of the body above \
+                    it (a roof under a box); over a part: facing down with more of the body below it. \
+                    Cp axis inverted: suction up.";
+        let room = 1340.0;
+        assert!(fitted(long, 16.0, room).size < SUBTITLE_LEAST);
+        let [a, b] = two_lines(long, SUBTITLE_LEAST, room);
+        assert_eq!(format!("{a} {b}"), long);
+        let style = TextStyle::new(SUBTITLE_LEAST);
+        let (wa, wb) = (text::width(&a, &style), text::width(&b, &style));
+        assert!(wa <= room && wb <= room, "{wa} {wb}");
+        assert!((wa - wb).abs() < 0.2 * room, "{wa} {wb}");
+    }
 
     /// The x axis ends on the grid's own step: a 4.4 m body's at 4.5 m,
     /// not 5 (a review).
