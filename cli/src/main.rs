@@ -1,8 +1,9 @@
 //! The `tuft` command: aerodynamic screening, in minutes on a laptop, of concept car shapes.
 //!
 //! Exit codes: 0 success; 1 the run finished but left warnings the user must
-//! read; 2 bad input or failure. Every error message starts with `tuft:` and
-//! names the file and the problem.
+//! read; 2 bad input or failure; 130 interrupted (Ctrl-C, or a scheduler's
+//! stop). Every error message starts with `tuft:` and names the file and
+//! the problem.
 
 use std::process::ExitCode;
 
@@ -51,6 +52,27 @@ mod write;
 pub const EXIT_WARNINGS: u8 = 1;
 /// Exit code for bad input or a failed run.
 pub const EXIT_FAILURE: u8 = 2;
+/// Exit code for a command stopped by an interrupt (SIGINT, SIGTERM or
+/// SIGHUP): 128 plus SIGINT's number, as shells give.
+pub const EXIT_INTERRUPTED: i32 = 130;
+
+/// On an interrupt, remove the result folders under construction and say
+/// so in one line before leaving (a review's run ended on Ctrl-C without a
+/// word, its hidden partial folder left for the next run to clear, and a
+/// scheduler's stop left a log that simply ended).
+fn stop_cleanly_on_interrupt() {
+    // Without a handler the signal still stops the command, as before.
+    let _ = ctrlc::set_handler(|| {
+        let removed = outdir::remove_unfinished();
+        let what = match removed {
+            0 => "nothing was being written".to_owned(),
+            1 => "the result folder being written was removed".to_owned(),
+            n => format!("the {n} result folders being written were removed"),
+        };
+        eprintln!("tuft: interrupted: {what}; results finished before are kept");
+        std::process::exit(EXIT_INTERRUPTED);
+    });
+}
 
 #[derive(Parser)]
 #[command(
@@ -112,6 +134,7 @@ fn main() -> ExitCode {
             return ExitCode::from(EXIT_FAILURE);
         }
     };
+    stop_cleanly_on_interrupt();
     let outcome = match cli.command {
         Command::Run(args) => run::run(&args),
         Command::Demo(args) => run::demo(&args),

@@ -9,6 +9,33 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result, bail};
 
+/// The hidden folders of results under construction in this process, for
+/// [`remove_unfinished`] on an interrupt.
+static UNFINISHED: std::sync::Mutex<Vec<PathBuf>> = std::sync::Mutex::new(Vec::new());
+
+/// Remember `tmp` as under construction, or (`keep` false) forget it.
+fn unfinished(tmp: &Path, keep: bool) {
+    if let Ok(mut list) = UNFINISHED.lock() {
+        list.retain(|p| p != tmp);
+        if keep {
+            list.push(tmp.to_path_buf());
+        }
+    }
+}
+
+/// Remove every result folder still under construction (on an interrupt:
+/// nothing half-written is left, as on a failure); how many there were.
+pub fn remove_unfinished() -> usize {
+    let Ok(mut list) = UNFINISHED.lock() else {
+        return 0;
+    };
+    let n = list.len();
+    for tmp in list.drain(..) {
+        std::fs::remove_dir_all(&tmp).ok();
+    }
+    n
+}
+
 /// A result folder under construction.
 pub struct Staging {
     tmp: PathBuf,
@@ -58,6 +85,7 @@ impl Staging {
                 parent.display()
             )
         })?;
+        unfinished(&tmp, true);
         Ok(Self {
             tmp,
             dest: dest.to_path_buf(),
@@ -155,6 +183,7 @@ impl Drop for Staging {
         if !self.done {
             std::fs::remove_dir_all(&self.tmp).ok();
         }
+        unfinished(&self.tmp, false);
     }
 }
 

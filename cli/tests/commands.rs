@@ -748,3 +748,56 @@ fn a_half_model_in_a_cross_wind_runs_whole() {
         serde_json::Value::Bool(true)
     );
 }
+
+/// An interrupt (here SIGINT, as Ctrl-C sends) stops a run with exit code
+/// 130 and one line saying so, and leaves neither the result folder nor
+/// its hidden partial folder (a review's run had ended without a word).
+#[test]
+fn an_interrupted_run_says_so_and_leaves_nothing_half_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = common::copy_case("coupe", dir.path());
+    let mut child = std::process::Command::new(common::TUFT)
+        .args(["run", &case, "--out", "result", "--threads", "1"])
+        .current_dir(dir.path())
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    // Wait for the hidden partial folder: the run is writing.
+    let started = std::time::Instant::now();
+    let partial = || {
+        entries(dir.path())
+            .iter()
+            .any(|e| e.starts_with(".result.partial-"))
+    };
+    while !partial() {
+        assert!(
+            started.elapsed().as_secs() < 60,
+            "no partial folder: {:?}",
+            entries(dir.path())
+        );
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    let sent = std::process::Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(sent.success());
+    let out = child.wait_with_output().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    // A run that finished before the signal arrived proves nothing.
+    assert_eq!(out.status.code(), Some(130), "{stderr}");
+    assert!(
+        stderr.lines().last().is_some_and(|l| l
+            == "tuft: interrupted: the result folder being written was removed; results \
+                finished before are kept"),
+        "{stderr}"
+    );
+    let left = entries(dir.path());
+    assert!(
+        !left
+            .iter()
+            .any(|e| e.starts_with(".result") || e == "result"),
+        "{left:?}"
+    );
+}
