@@ -756,7 +756,7 @@ fn a_half_model_in_a_cross_wind_runs_whole() {
 fn an_interrupted_run_says_so_and_leaves_nothing_half_written() {
     let dir = tempfile::tempdir().unwrap();
     let case = common::copy_case("coupe", dir.path());
-    let mut child = std::process::Command::new(common::TUFT)
+    let child = std::process::Command::new(common::TUFT)
         .args(["run", &case, "--out", "result", "--threads", "1"])
         .current_dir(dir.path())
         .stdout(std::process::Stdio::null())
