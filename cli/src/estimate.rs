@@ -318,6 +318,13 @@ pub fn check_fits(
     Ok(())
 }
 
+/// Whether `why`, a run's failure, is [`check_fits`]'s refusal for memory
+/// at the count asked (not the one blaming a coarsening that could not
+/// reach it, which depends on the geometry).
+pub fn is_memory_refusal(why: &str) -> bool {
+    why.contains(" GB is available") && !why.contains("the coarsening could not reach")
+}
+
 /// How far over the count asked the coarsening must have gone for
 /// [`check_fits`] to blame it (its tries reach 10 % over the count).
 const UNREACHED: f64 = 1.15;

@@ -188,8 +188,18 @@ fn run_range(
             stale: replace,
         });
     }
+    // The first variant refused for memory, with what its need depends
+    // on: later variants alike are not prepared only to be refused again.
+    let refused: std::cell::RefCell<Option<(String, String)>> = std::cell::RefCell::new(None);
     let mut report = |m: &Member<'_>, outcome: &Outcome, secs: f64| {
         done += 1;
+        if let (Outcome::Failed(why), Some(key)) = (outcome, memory_key(m.variant))
+            && crate::estimate::is_memory_refusal(why)
+        {
+            refused
+                .borrow_mut()
+                .get_or_insert((key, m.variant.name.clone()));
+        }
         if let Outcome::Done(s, _) = outcome {
             warned += usize::from(!s.warnings.is_empty());
         }
@@ -235,6 +245,28 @@ fn run_range(
                 .iter()
                 .take_while(|m| &m.variant.geometry_key == key)
                 .count();
+        // Variants whose memory need is one already refused: said, not
+        // prepared (a review's batch repeated the same refusal for each of
+        // nine variants of a 1.26-million-facet scan, each after reading it).
+        let same = refused.borrow().clone().filter(|(key, _)| {
+            todo[start..end]
+                .iter()
+                .all(|m| memory_key(m.variant).as_ref() == Some(key))
+        });
+        if let Some((_, first)) = same {
+            for m in &todo[start..end] {
+                report(
+                    m,
+                    &Outcome::Failed(format!(
+                        "not run: it needs the memory {first}'s run was refused for (above), at the \
+                         same panel count and solver settings"
+                    )),
+                    0.0,
+                );
+            }
+            start = end;
+            continue;
+        }
         // Said as it starts, so that a log shows what runs (a review's
         // overnight log stayed silent until the first variant finished).
         say(
@@ -259,6 +291,22 @@ fn run_range(
         start = end;
     }
     (failed, warned)
+}
+
+/// What a variant's memory need depends on, as `estimate::check_fits`
+/// reckons it: its panel count, half model (a half model in a cross wind
+/// runs whole), the separated-flow loop and the operator asked for; `None`
+/// where the case does not fix the count.
+fn memory_key(v: &plan::Variant) -> Option<String> {
+    let f = v.file.as_ref().ok()?;
+    let g = &f.geometry;
+    Some(format!(
+        "{}|{}|{}|{}",
+        g.panels?,
+        g.half_model && f.flow.yaw == 0.0,
+        f.solver.wakes,
+        f.solver.linear
+    ))
 }
 
 /// Give a kept variant's record the sweep's settings when they differ

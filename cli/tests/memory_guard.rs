@@ -152,3 +152,46 @@ fn a_limit_below_the_smallest_run_says_so() {
     );
     assert_eq!(entries(dir.path()), vec![case], "no result folder");
 }
+
+/// A sweep whose variants all need the memory the first was refused for
+/// says so for the others without preparing each one's geometry (a
+/// review's batch repeated one refusal for nine variants of a scan, each
+/// after reading it), and exits 2.
+#[test]
+fn a_sweep_refused_for_memory_says_it_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let case = write_case(dir.path(), "big", "shape = \"coupe\"\npanels = 4000");
+    std::fs::write(
+        dir.path().join("slopes.toml"),
+        format!(
+            "base = \"{case}\"\n[[vary]]\nkey = \"geometry.rear_window_deg\"\n\
+             values = [22.0, 30.0, 38.0]\n"
+        ),
+    )
+    .unwrap();
+    let out = tuft(
+        dir.path(),
+        &[
+            "sweep",
+            "slopes.toml",
+            "--memory-limit",
+            "120M",
+            "--threads",
+            "1",
+        ],
+    );
+    let all = format!("{}{}", out.stdout, out.stderr);
+    assert_eq!(out.code, 2, "{all}");
+    let refused: Vec<&str> = all
+        .lines()
+        .filter(|l| l.contains("GB is available"))
+        .collect();
+    assert_eq!(refused.len(), 1, "{all}");
+    let skipped = all
+        .lines()
+        .filter(|l| l.contains("FAILED: not run: it needs the memory"))
+        .count();
+    assert_eq!(skipped, 2, "{all}");
+    // Only the first variant ran (its geometry read, then refused).
+    assert_eq!(all.matches(": running ...").count(), 1, "{all}");
+}
