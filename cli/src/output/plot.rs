@@ -1309,6 +1309,21 @@ mod tests {
         assert!(c.under.is_empty() && c.over.is_empty(), "{c:?}");
     }
 
+    /// A fixture on `body` in free air with every field flat: Cp 0, the
+    /// stream along x, a turbulent layer.
+    fn flat_fields(body: tuft_mesh::TriMesh) -> Fixture {
+        let mut f = Fixture::sphere(3);
+        f.mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::none()).unwrap();
+        let n = f.mesh.len();
+        f.cp = vec![0.0; n];
+        f.velocity = vec![nalgebra::Vector3::x(); n];
+        for field in [&mut f.theta, &mut f.shape_factor, &mut f.cf, &mut f.risk] {
+            *field = vec![0.0; n];
+        }
+        f.state = vec![PanelState::Turbulent; n];
+        f
+    }
+
     /// A small sphere above a large one, as a roof box over a roof: the
     /// large sphere's top under the small one is "under a part", the small
     /// one's underside "over a part", and the upper and lower curves keep
@@ -1319,15 +1334,7 @@ mod tests {
         let mut top = tuft_mesh::generate::icosphere(0.3, 3);
         top.map_vertices(|p| p + nalgebra::Vector3::new(0.0, 0.0, 1.5));
         let both = tuft_mesh::generate::icosphere(1.0, 3).joined(&top);
-        let mut f = Fixture::sphere(3);
-        f.mesh = tuft_mesh::PanelMesh::new(both, tuft_mesh::Mirrors::none()).unwrap();
-        let n = f.mesh.len();
-        f.cp = vec![0.0; n];
-        f.velocity = vec![nalgebra::Vector3::x(); n];
-        for field in [&mut f.theta, &mut f.shape_factor, &mut f.cf, &mut f.risk] {
-            *field = vec![0.0; n];
-        }
-        f.state = vec![PanelState::Turbulent; n];
+        let f = flat_fields(both);
         let c = centreline_cp(&f.surface(), &CentrelineParams::default());
         // The large sphere's top within the small one's shadow (|x| under
         // 0.3, less a panel) is under it; the small one's underside over it.
@@ -1354,7 +1361,6 @@ mod tests {
     #[test]
     fn an_upright_base_is_no_part() {
         for slant in [0.0, 25.0] {
-            let mut f = Fixture::sphere(3);
             let mut body = tuft_mesh::generate::ahmed(slant, 3000).unwrap();
             // The base's corners a micrometre either way of upright, as a
             // file's single precision leaves them, so that the centre plane
@@ -1365,14 +1371,7 @@ mod tests {
                     v.x += 1e-6 * ((k % 3) as f64 - 1.0);
                 }
             }
-            f.mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::none()).unwrap();
-            let n = f.mesh.len();
-            f.cp = vec![0.0; n];
-            f.velocity = vec![nalgebra::Vector3::x(); n];
-            for field in [&mut f.theta, &mut f.shape_factor, &mut f.cf, &mut f.risk] {
-                *field = vec![0.0; n];
-            }
-            f.state = vec![PanelState::Turbulent; n];
+            let f = flat_fields(body);
             let c = centreline_cp(&f.surface(), &CentrelineParams::default());
             assert!(
                 c.under.is_empty() && c.over.is_empty(),
