@@ -184,6 +184,13 @@ pub struct Row {
     /// spoiler and diffuser sweep had read them only from compare.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub against_next_notes: Vec<String>,
+    /// On the lowest drag of each wind condition, where the condition's
+    /// first variant in the sweep's order (its baseline, as a study
+    /// usually lists it) is neither it nor the runner-up: that variant's
+    /// name and `compare`'s verdict on the leader against it (a review's
+    /// spoiler sweep compared 120 mm with 60 mm only, never with none).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub against_first: Option<(String, crate::compare::DragVerdict)>,
     /// Its reference area over the sweep's common one (the lowest drag
     /// area's) where the variants' areas differ, else 1: the drag plot
     /// puts its coefficients on the common area ([`common_area`]).
@@ -609,7 +616,7 @@ fn best_drag(c: &Collected) -> String {
     {
         return why;
     }
-    let in_group = |rows: &[Row]| withheld(rows).unwrap_or_else(|| best_drag_in(rows));
+    let in_group = |rows: &[Row]| withheld(rows).unwrap_or_else(|| with_first(rows));
     match groups.as_slice() {
         [] => "no drag to rank".into(),
         [(_, rows)] => in_group(rows),
@@ -652,6 +659,20 @@ fn best_drag_in(rows: &[Row]) -> String {
             second.name, second.reference_area_m2
         ),
         _ => text,
+    }
+}
+
+/// [`best_drag_in`], then `compare`'s verdict on the lowest drag against
+/// the condition's first variant in the sweep's order where that is
+/// neither of the two ranked ([`Row::against_first`]).
+fn with_first(rows: &[Row]) -> String {
+    let text = best_drag_in(rows);
+    match rows.first().and_then(|r| r.against_first.as_ref()) {
+        Some((name, v)) => format!(
+            "{text}; against {name}, the sweep's first variant: {}",
+            v.text
+        ),
+        None => text,
     }
 }
 
@@ -998,24 +1019,38 @@ fn judge(c: &mut Collected) {
 /// (rows ranked and grouped by [`rank`]), reading the two variants'
 /// folders in `dir` as `tuft compare` does.
 fn judge_leaders(dir: &Path, rows: &mut [Row]) {
+    // `compare`'s verdict on `lead` (as B) against `other` (as A), with
+    // its notes on their surface change.
+    let judge = |lead: &str, other: &str| -> Result<(crate::compare::DragVerdict, Vec<String>)> {
+        use crate::compare::ResultFolder;
+        let b = ResultFolder::read(&dir.join(lead))?;
+        let a = ResultFolder::read(&dir.join(other))?;
+        let mapping = crate::compare::map_a_onto_b(&a, &b);
+        let names = [other, lead];
+        let c = crate::compare::comparison_named(&a, &b, &mapping, names);
+        let measured = a.summary.panel_noise.is_some() && b.summary.panel_noise.is_some();
+        Ok((
+            c.drag,
+            crate::compare::surface_notes(&c.surface, measured, names),
+        ))
+    };
     for group in rows.chunk_by_mut(same_wind) {
+        // The condition's first variant in the sweep's order, where it is
+        // neither the leader nor the runner-up.
+        let base = group
+            .iter()
+            .enumerate()
+            .min_by_key(|(_, r)| r.index)
+            .map(|(k, r)| (k, r.name.clone()));
         if let [first, second, ..] = group {
-            let judged = (|| -> Result<(crate::compare::DragVerdict, Vec<String>)> {
-                use crate::compare::ResultFolder;
-                let b = ResultFolder::read(&dir.join(&first.name))?;
-                let a = ResultFolder::read(&dir.join(&second.name))?;
-                let mapping = crate::compare::map_a_onto_b(&a, &b);
-                let names = [second.name.as_str(), first.name.as_str()];
-                let c = crate::compare::comparison_named(&a, &b, &mapping, names);
-                let measured = a.summary.panel_noise.is_some() && b.summary.panel_noise.is_some();
-                Ok((
-                    c.drag,
-                    crate::compare::surface_notes(&c.surface, measured, names),
-                ))
-            })();
-            if let Ok((verdict, notes)) = judged {
+            if let Ok((verdict, notes)) = judge(&first.name, &second.name) {
                 first.against_next = Some(verdict);
                 first.against_next_notes = notes;
+            }
+            if let Some((_, base)) = base.filter(|(k, _)| *k > 1)
+                && let Ok((verdict, _)) = judge(&first.name, &base)
+            {
+                first.against_first = Some((base, verdict));
             }
         }
     }
@@ -1140,6 +1175,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         regions: s.regions.clone(),
         against_next: None,
         against_next_notes: Vec::new(),
+        against_first: None,
         area_scale: 1.0,
     };
     Ok((row, record, s.case))
@@ -3137,6 +3173,7 @@ mod tests {
             regions: Vec::new(),
             against_next: None,
             against_next_notes: Vec::new(),
+            against_first: None,
         };
         Collected {
             sweep: "s".into(),
@@ -3518,6 +3555,39 @@ mod tests {
             m.contains("): at yaw 0°: spoiler: at 0: 240.0 counts, +0.0 kg; ")
                 && m.contains(" || at yaw 5°: spoiler: at 0: 240.0 counts, -10.0 kg; "),
             "{m}"
+        );
+    }
+
+    /// The lowest drag's verdict against the sweep's first variant, where
+    /// that is neither of the two ranked, follows the ranking in the line.
+    #[test]
+    fn the_leader_is_also_judged_against_the_first_variant() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        for (r, cd) in c.variants.iter_mut().zip([0.286, 0.288, 0.290]) {
+            r.cd = cd;
+        }
+        // Ranked: v0, v1, v2; the sweep's first is v2 (index 0).
+        for (r, index) in c.variants.iter_mut().zip([2, 1, 0]) {
+            r.index = index;
+        }
+        c.variants[0].against_first = Some((
+            "v2".into(),
+            crate::compare::DragVerdict {
+                text:
+                    "no winner: the drag difference, -4.0 counts, is within the noise floor of 6 \
+                       counts"
+                        .into(),
+                ..Default::default()
+            },
+        ));
+        judge(&mut c);
+        assert!(
+            c.drag_ranking.ends_with(
+                "; against v2, the sweep's first variant: no winner: the drag difference, -4.0 \
+                 counts, is within the noise floor of 6 counts"
+            ),
+            "{}",
+            c.drag_ranking
         );
     }
 

@@ -113,14 +113,20 @@ pub fn holds(d: &[f64], floor: f64) -> bool {
         && mean.abs() > spread(d.iter().copied())
 }
 
-/// Why `d` does not hold ([`holds`]), in words: "they change sign", "not
-/// all clear the floor of 6 counts", "they spread by 15.2 kg, more than
+/// Why `d` does not hold ([`holds`]), in words: "they change sign", "none
+/// clears the floor of 6 counts", "not all clear the floor of 6 counts", "they spread by 15.2 kg, more than
 /// their mean of -11.2".
 pub fn failure_words(d: &[f64], floor: f64, unit: &str, decimals: usize) -> String {
     let first = d.first().copied().unwrap_or(0.0);
     let mean = d.iter().sum::<f64>() / d.len().max(1) as f64;
     if d.iter().any(|v| v.signum() != first.signum() || *v == 0.0) {
         "which change sign".to_owned()
+    } else if d.iter().all(|v| v.abs() < floor) {
+        // A review read "not all" where none did.
+        format!(
+            "none of which clears the floor of {} {unit}",
+            crate::output::fixed(floor, decimals)
+        )
     } else if d.iter().any(|v| v.abs() < floor) {
         format!(
             "not all of which clear the floor of {} {unit}",
@@ -174,6 +180,12 @@ mod tests {
         assert!(
             failure_words(&[8.0, 5.0, 9.0], 6.0, "counts", 0)
                 .contains("clear the floor of 6 counts")
+        );
+        // None clears it (a review's spoiler against none: -3.8, -4.4 and
+        // -3.2 counts had read "not all of which clear").
+        assert_eq!(
+            failure_words(&[-3.8, -4.4, -3.2], 6.0, "counts", 0),
+            "none of which clears the floor of 6 counts"
         );
         assert!(!holds(&[], 1.0));
         assert_eq!(
