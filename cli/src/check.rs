@@ -803,15 +803,7 @@ fn panel_lines(r: &PrepareReport) -> String {
                 c.samples
             );
             if let Some(u) = &c.untangled {
-                let [x, y, z] = u.first;
-                s += &format!(
-                    "           folds smoothed before coarsening: {} input facets crossed others or were turned over against their neighbours (the first near x {x:.3}, y {y:.3}, z {z:.3} m); {} vertices moved, by at most {:.1e} m, ending at most {:.1e} m off the input surface; {} facets still folded (the quality lines say where the panels are unsure)\n",
-                    u.folded_before,
-                    u.vertices_moved,
-                    u.largest_move,
-                    u.largest_offset,
-                    u.folded_after
-                );
+                s += &folds_line(u);
             }
             if let Some(f) = &c.fallback {
                 s += &format!("           {f}\n");
@@ -854,6 +846,27 @@ fn quality_lines(r: &PrepareReport) -> String {
         s += &format!("           note: {n}\n");
     }
     s
+}
+
+/// The check's line on the folds smoothed before coarsening, with where
+/// the first left folded lies (a review read "the quality lines say where"
+/// and found no place there).
+fn folds_line(u: &tuft_mesh::coarsen::UntangleReport) -> String {
+    let [x, y, z] = u.first;
+    let left = match (u.folded_after, u.still_folded_at) {
+        (0, _) => "none still folded".to_owned(),
+        (n, Some([fx, fy, fz])) => format!(
+            "{n} facets still folded, the first near x {fx:.3}, y {fy:.3}, z {fz:.3} m: the panels there \
+             are unsure"
+        ),
+        (n, None) => format!("{n} facets still folded"),
+    };
+    format!(
+        "           folds smoothed before coarsening: {} input facets crossed others or were turned over \
+         against their neighbours (the first near x {x:.3}, y {y:.3}, z {z:.3} m); {} vertices moved, by \
+         at most {:.1e} m, ending at most {:.1e} m off the input surface; {left}\n",
+        u.folded_before, u.vertices_moved, u.largest_move, u.largest_offset,
+    )
 }
 
 #[cfg(test)]
@@ -903,5 +916,30 @@ mod tests {
             "{apart}"
         );
         assert!(halves_line(&cut(60.0)).contains("differ by up to 60 mm"));
+    }
+
+    /// The folds line says where the first facet left folded lies, or
+    /// that none is.
+    #[test]
+    fn the_folds_line_says_where_folds_are_left() {
+        let mut u = tuft_mesh::coarsen::UntangleReport {
+            folded_before: 12,
+            folded_after: 8,
+            first: [1.0, 0.5, 0.25],
+            still_folded_at: Some([3.4, 0.2, 1.1]),
+            vertices_moved: 40,
+            largest_move: 2e-3,
+            largest_offset: 1e-4,
+        };
+        let line = folds_line(&u);
+        assert!(
+            line.contains(
+                "; 8 facets still folded, the first near x 3.400, y 0.200, z 1.100 m: the panels there \
+                 are unsure\n"
+            ),
+            "{line}"
+        );
+        u.folded_after = 0;
+        assert!(folds_line(&u).ends_with("; none still folded\n"));
     }
 }

@@ -52,6 +52,14 @@ pub enum MeshError {
         /// File length in bytes.
         bytes: u64,
     },
+    /// A file of another format, told by its first bytes (a review's PNG
+    /// renamed `.stl` read "header declares 68188068 facets", an OBJ "too
+    /// short for a binary STL").
+    #[error("it is {what}, not an STL: export the surface as STL (binary or ASCII)")]
+    OtherFormat {
+        /// The format in words ("a PNG image", "a Wavefront OBJ mesh").
+        what: &'static str,
+    },
     /// Text that does not start with `solid`: neither ASCII nor binary STL.
     #[error("it is text that does not start with `solid`: neither ASCII nor binary STL")]
     NotStl,

@@ -376,3 +376,33 @@ fn file_ends_and_binary_headers_read_as_they_should() {
         (80, None, 1000)
     );
 }
+
+/// Files of other formats are named as such (a review's PNG renamed
+/// `.stl` had read as a truncated binary STL declaring 68 million facets,
+/// and an OBJ as too short for a binary STL).
+#[test]
+fn other_formats_are_named() {
+    let mut png = b"\x89PNG\r\n\x1a\n".to_vec();
+    png.extend_from_slice(&[7u8; 400]);
+    let obj = "# exported\nmtllib car.mtl\nv 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n";
+    let ply = "ply\nformat ascii 1.0\nelement vertex 3\n".repeat(4);
+    for (bytes, what) in [
+        (png, "a PNG image"),
+        (obj.as_bytes().to_vec(), "a Wavefront OBJ mesh"),
+        (ply.into_bytes(), "a PLY mesh"),
+        (b"PK\x03\x04rest of a 3mf".to_vec(), "a ZIP archive"),
+    ] {
+        let e = err_of(&bytes);
+        assert!(
+            matches!(e, MeshError::OtherFormat { .. })
+                && e.to_string().starts_with(&format!("it is {what}")),
+            "{what}: {e}"
+        );
+    }
+    // A binary STL whose free-text header starts like a PNG is still read.
+    let mut stl = common::binary_stl(&generate::icosphere(1.0, 1));
+    stl[..8].copy_from_slice(b"\x89PNG\r\n\x1a\n");
+    let dir = tempfile::tempdir().unwrap();
+    let path = common::write(dir.path(), "odd-header.stl", &stl);
+    assert!(read_stl(&path).is_ok());
+}

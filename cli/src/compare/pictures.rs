@@ -103,8 +103,14 @@ pub fn write(
     let sep_style = FieldStyle {
         scale: ColourScale::diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
         legend: vec![
-            ("separates in B only".into(), Swatch::Hatched(APPEARS.0, APPEARS.1)),
-            ("separates in A only".into(), Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1)),
+            (
+                "separates in B only".into(),
+                Swatch::Hatched(APPEARS.0, APPEARS.1),
+            ),
+            (
+                "separates in A only".into(),
+                Swatch::Hatched(DISAPPEARS.0, DISAPPEARS.1),
+            ),
             ("separates in both".into(), Swatch::Hatched(BOTH.0, BOTH.1)),
         ]
         .into_iter()
@@ -116,7 +122,7 @@ pub fn write(
         )
         .collect(),
         what: "Separation change".into(),
-        note: "Where separation appears (red stripes) or disappears (blue stripes) in B; colour: risk of B minus risk of A.".into(),
+        note: separation_change_note(&cmp.surface, outlined),
     };
     let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
     let mut dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
@@ -202,6 +208,27 @@ fn delta_cp_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
         note += &format!(
             " Where the shape did not change, 95 % stays under {:.3}; spots at sharp edges are panel noise.",
             u.unchanged_delta_cp_p95
+        );
+    }
+    note
+}
+
+/// The separation-change sheet's note: what the stripes and colours mean
+/// and, with the changed shape outlined, that a change of risk far from the
+/// outline is more likely the two panellings' than the shape's (a review's
+/// roof spoiler read risk changes of 0.3 at the windscreen's foot, 2 m
+/// ahead of it, which the delta-Cp sheet's note called noise and this one
+/// did not).
+fn separation_change_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
+    let mut note =
+        "Where separation appears (red stripes) or disappears (blue stripes) in B; colour: \
+                    risk of B minus risk of A."
+            .to_owned();
+    if outlined {
+        note += &format!(
+            " Black outline: where B's shape lies more than {} from A's; far from it, a change is \
+             more likely the two panellings' than the shape's.",
+            super::mm(u.margins_m[1])
         );
     }
     note
@@ -454,6 +481,24 @@ mod tests {
             ..u
         };
         assert!(!delta_cp_note(&u, false).contains("stays under"));
+    }
+
+    /// The separation-change note says, with the change outlined, that a
+    /// change far from the outline is more likely the panellings'.
+    #[test]
+    fn the_separation_change_note_says_what_is_far_from_the_change() {
+        let u = crate::compare::SurfaceDeltas {
+            margins_m: [0.005, 0.021],
+            ..Default::default()
+        };
+        let note = separation_change_note(&u, true);
+        assert!(
+            note.contains(
+                "Black outline: where B's shape lies more than 21 mm from A's; far from it"
+            ) && note.contains("the two panellings'"),
+            "{note}"
+        );
+        assert!(!separation_change_note(&u, false).contains("outline"));
     }
 
     /// The separation-change sheet outlines regions in a colour far from

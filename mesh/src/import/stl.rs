@@ -290,6 +290,18 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
                     .trim_start()
                     .to_ascii_lowercase()
                     .starts_with("solid")));
+    // Another format's signature, unless the length says binary STL (whose
+    // 80-byte header is free text and may start with anything).
+    let exact = head.len() >= HEADER as usize && {
+        let declared = u64::from(u32::from_le_bytes([head[80], head[81], head[82], head[83]]));
+        HEADER + FACET * declared == bytes
+    };
+    if !looks_ascii
+        && !exact
+        && let Some(what) = other_format(head)
+    {
+        return Err(MeshError::OtherFormat { what });
+    }
     if head.len() < HEADER as usize {
         return if looks_ascii {
             Ok(Kind::Ascii)
@@ -323,6 +335,34 @@ fn classify(head: &[u8], bytes: u64) -> Result<Kind, MeshError> {
         });
     }
     Ok(Kind::Binary { declared })
+}
+
+/// The format a file's first bytes name, for those a studio's tools write
+/// beside STL (or an image renamed by mistake): magic numbers for the
+/// binary ones, the first keyword for the text ones.
+fn other_format(head: &[u8]) -> Option<&'static str> {
+    const MAGIC: [(&[u8], &str); 6] = [
+        (b"\x89PNG\r\n\x1a\n", "a PNG image"),
+        (b"\xff\xd8\xff", "a JPEG image"),
+        (b"%PDF", "a PDF document"),
+        (b"PK\x03\x04", "a ZIP archive (a 3MF model is one)"),
+        (b"glTF", "a binary glTF model"),
+        (b"ISO-10303-21", "a STEP file"),
+    ];
+    if let Some((_, what)) = MAGIC.iter().find(|(m, _)| head.starts_with(m)) {
+        return Some(what);
+    }
+    let text = String::from_utf8_lossy(head);
+    let first = text
+        .lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))?;
+    let word = first.split_whitespace().next()?;
+    match word {
+        "ply" => Some("a PLY mesh"),
+        "v" | "vn" | "vt" | "o" | "g" | "f" | "mtllib" | "usemtl" => Some("a Wavefront OBJ mesh"),
+        _ => None,
+    }
 }
 
 /// Binary STLs joined in one file: the facets of all of them, and the byte
