@@ -506,12 +506,24 @@ fn json_report(r: &PrepareReport) -> anyhow::Result<serde_json::Value> {
 }
 
 /// Whether the verdict is doubtful: panels crossing each other, most of
-/// the surface cut in slivers, or the floor standing on the ground (a
-/// review's ground set 10 mm into the floor had read usable).
+/// the surface cut in slivers, the floor standing on the ground (a
+/// review's ground set 10 mm into the floor had read usable), or a body
+/// a scale model's size that another unit makes a car (a review's car in
+/// centimetres read as millimetres had read usable, exit 0, its warning
+/// among the quality lines).
 fn doubtful(r: &PrepareReport) -> bool {
     r.folded
         || r.quality.slivers_dominate()
         || crate::pipeline::floor_on_ground_warning(r).is_some()
+        || unit_doubt(r)
+}
+
+/// Whether a warning says another unit would make the body a car.
+fn unit_doubt(r: &PrepareReport) -> bool {
+    r.quality
+        .warnings
+        .iter()
+        .any(|w| crate::geometry::is_unit_doubt(w))
 }
 
 /// The closing line: usable; with warnings, usable with a pointer to them
@@ -529,6 +541,10 @@ fn verdict(r: &PrepareReport) -> String {
              --ground)\n"
                 .to_string()
         }
+        (_, false) if unit_doubt(r) => "verdict    doubtful: as read, the body is a scale model's size, \
+             and another unit makes it a car (above): check the unit (geometry.units, --units) before \
+             running\n"
+            .to_string(),
         (_, false) if r.quality.slivers_dominate() => "verdict    doubtful: most of the surface is cut in \
              slivers (above), so every pressure and load is unsure; export it with even triangles or ask \
              for fewer panels\n"

@@ -395,6 +395,12 @@ pub fn add_size_note(quality: &mut tuft_mesh::quality::QualityReport, note: Opti
     }
 }
 
+/// Whether `warning` is [`add_size_note`]'s: the body a scale model's
+/// size as read, car-sized in another unit.
+pub fn is_unit_doubt(warning: &str) -> bool {
+    warning.contains(CAR_READING_WORDS)
+}
+
 /// The words with which [`size_note`] gives a car-sized reading.
 const CAR_READING_WORDS: &str = "; if it is a car, is ";
 

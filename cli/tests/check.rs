@@ -109,6 +109,29 @@ fn check_accepts_the_committed_coupe() {
     assert!(stdout.contains("verdict    usable"), "{stdout}");
 }
 
+/// A car-sized body written in centimetres and read as millimetres is a
+/// scale model's size: the verdict is doubtful, naming the unit, and the
+/// exit code 1 (a review's had read "usable", exit 0, its warning among
+/// the quality lines).
+#[test]
+fn a_car_read_in_the_wrong_unit_is_doubtful() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("cm.stl");
+    // A 4.4 m sphere in centimetres.
+    write_binary_stl(&path, &generate::icosphere(2.2, 3), 100.0);
+    let out = check(&[path.to_str().unwrap(), "--units", "mm", "-q"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(1), "{stdout}");
+    assert!(
+        stdout.contains("in centimetres it would be 4.4 m")
+            && stdout.contains("verdict    doubtful: as read, the body is a scale model's size"),
+        "{stdout}"
+    );
+    // Read in centimetres: usable.
+    let out = check(&[path.to_str().unwrap(), "--units", "cm", "-q"]);
+    assert_eq!(out.status.code(), Some(0));
+}
+
 #[test]
 fn check_refuses_a_truncated_file_in_one_line() {
     let dir = tempfile::tempdir().unwrap();
