@@ -1015,19 +1015,22 @@ fn judge(c: &mut Collected) {
         .collect();
 }
 
-/// Fill [`Row::against_next`] for the lowest drag of each wind condition
-/// (rows ranked and grouped by [`rank`]), reading the two variants'
-/// folders in `dir` as `tuft compare` does.
+/// Fill [`Row::against_next`] and [`Row::against_first`] for the lowest
+/// drag of each wind condition (rows ranked and grouped by [`rank`]),
+/// reading the variants' folders in `dir` as `tuft compare` does (the
+/// leader's once).
 fn judge_leaders(dir: &Path, rows: &mut [Row]) {
-    // `compare`'s verdict on `lead` (as B) against `other` (as A), with
-    // its notes on their surface change.
-    let judge = |lead: &str, other: &str| -> Result<(crate::compare::DragVerdict, Vec<String>)> {
-        use crate::compare::ResultFolder;
-        let b = ResultFolder::read(&dir.join(lead))?;
+    use crate::compare::ResultFolder;
+    // `compare`'s verdict on `lead` (as B) against the variant `other` (as
+    // A), with its notes on their surface change.
+    let judge = |b: &ResultFolder,
+                 lead: &str,
+                 other: &str|
+     -> Result<(crate::compare::DragVerdict, Vec<String>)> {
         let a = ResultFolder::read(&dir.join(other))?;
-        let mapping = crate::compare::map_a_onto_b(&a, &b);
+        let mapping = crate::compare::map_a_onto_b(&a, b);
         let names = [other, lead];
-        let c = crate::compare::comparison_named(&a, &b, &mapping, names);
+        let c = crate::compare::comparison_named(&a, b, &mapping, names);
         let measured = a.summary.panel_noise.is_some() && b.summary.panel_noise.is_some();
         Ok((
             c.drag,
@@ -1041,17 +1044,22 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
             .iter()
             .enumerate()
             .min_by_key(|(_, r)| r.index)
-            .map(|(k, r)| (k, r.name.clone()));
-        if let [first, second, ..] = group {
-            if let Ok((verdict, notes)) = judge(&first.name, &second.name) {
-                first.against_next = Some(verdict);
-                first.against_next_notes = notes;
-            }
-            if let Some((_, base)) = base.filter(|(k, _)| *k > 1)
-                && let Ok((verdict, _)) = judge(&first.name, &base)
-            {
-                first.against_first = Some((base, verdict));
-            }
+            .filter(|(k, _)| *k > 1)
+            .map(|(_, r)| r.name.clone());
+        let [first, second, ..] = group else {
+            continue;
+        };
+        let Ok(b) = ResultFolder::read(&dir.join(&first.name)) else {
+            continue;
+        };
+        if let Ok((verdict, notes)) = judge(&b, &first.name, &second.name) {
+            first.against_next = Some(verdict);
+            first.against_next_notes = notes;
+        }
+        if let Some(base) = base
+            && let Ok((verdict, _)) = judge(&b, &first.name, &base)
+        {
+            first.against_first = Some((base, verdict));
         }
     }
 }

@@ -1188,15 +1188,12 @@ fn report(
         numbers,
         warnings: s.warnings.clone(),
         notes_pointer: (!s.notes.is_empty()).then(|| {
-            format!(
-                "Read the {} on the panels below: {}.",
-                if s.notes.len() == 1 { "note" } else { "notes" },
-                if s.notes.len() == 1 {
-                    "it bears on how far the numbers hold"
-                } else {
-                    "they bear on how far the numbers hold"
-                }
-            )
+            let (notes, they) = if s.notes.len() == 1 {
+                ("note", "it bears")
+            } else {
+                ("notes", "they bear")
+            };
+            format!("Read the {notes} on the panels below: {they} on how far the numbers hold.")
         }),
         pictures,
         sections,
