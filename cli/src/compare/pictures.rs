@@ -199,10 +199,7 @@ fn delta_cp_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
         "Cp of B minus Cp of A (mapped onto B's body). Red: higher pressure in B; blue: more suction in B."
             .to_owned();
     if outlined {
-        note += &format!(
-            " Black outline: where B's shape lies more than {} from A's.",
-            super::mm(u.margins_m[1])
-        );
+        note += &format!(" {}.", outline_words(u));
     }
     if u.unchanged_share >= 0.2 {
         note += &format!(
@@ -211,6 +208,14 @@ fn delta_cp_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
         );
     }
     note
+}
+
+/// What the black outline on the comparison sheets marks, for their notes.
+fn outline_words(u: &super::SurfaceDeltas) -> String {
+    format!(
+        "Black outline: where B's shape lies more than {} from A's",
+        super::mm(u.margins_m[1])
+    )
 }
 
 /// The separation-change sheet's note: what the stripes and colours mean
@@ -226,9 +231,8 @@ fn separation_change_note(u: &super::SurfaceDeltas, outlined: bool) -> String {
             .to_owned();
     if outlined {
         note += &format!(
-            " Black outline: where B's shape lies more than {} from A's; far from it, a change is \
-             more likely the two panellings' than the shape's.",
-            super::mm(u.margins_m[1])
+            " {}; far from it, a change is more likely the two panellings' than the shape's.",
+            outline_words(u)
         );
     }
     note
