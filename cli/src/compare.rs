@@ -905,6 +905,7 @@ fn notes(
         sa.panel_noise.is_some() && sb.panel_noise.is_some(),
         ["A", "B"],
     ));
+    notes.extend(short_change_note(surface, ["A", "B"]));
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
     }
@@ -1322,16 +1323,62 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
     })
 }
 
+/// A changed part spanning fewer than this many of B's panel edges
+/// along the stream is resolved by one or two rows of panels
+/// ([`short_change_note`]; our choice: three panels along a part are the
+/// fewest that give it a front, a middle and an end).
+pub const SHORT_CHANGE_EDGES: f64 = 3.0;
+
+/// A note when the shape changed over a stretch along the stream shorter
+/// than [`SHORT_CHANGE_EDGES`] of B's panel edges: the part (a spoiler's
+/// extension, a mirror head, a lip) is one or two rows of panels, so the
+/// flow over it and its separation rest on where the panel edges fall (a
+/// review's 60 and 120 mm roof-spoiler extensions on 82 mm panels read
+/// as dead water with nothing saying the part was under two panels). The
+/// part's length is taken as the span of the changed panels' centroids
+/// plus one edge. It names the panel count that puts three panels along
+/// it (the count goes with the inverse square of the edge). `names`: the
+/// runs, A's and B's.
+fn short_change_note(surface: &SurfaceDeltas, [_, b]: [&str; 2]) -> Option<String> {
+    let e = surface.panel_edge_m;
+    let [lo, hi] = surface.changed_x_m?;
+    let length = hi - lo + e;
+    (surface.changed_m2 > 0.0 && e > 0.0 && length < SHORT_CHANGE_EDGES * e).then(|| {
+        let target = length / SHORT_CHANGE_EDGES;
+        let panels = surface.panels_b as f64 * (e / target).powi(2);
+        format!(
+            "the shape changed over about {} along the stream (x {lo:.2} to {hi:.2} m), under \
+             {SHORT_CHANGE_EDGES:.0} of {b}'s panel edges ({}): the part is one or two rows of panels, \
+             so the flow over it, its separation and what it does to the drag and lift rest on where \
+             the panel edges fall as much as on the part; give it {SHORT_CHANGE_EDGES:.0} or more \
+             panels along the stream (an edge of about {}, about {} panels) before judging it",
+            mm(length),
+            mm(e),
+            mm(target),
+            round_panels(panels)
+        )
+    })
+}
+
+/// A suggested panel count, to two significant figures (14,000, not
+/// 13,873): the count it comes from is an estimate.
+fn round_panels(n: f64) -> String {
+    let step = 10f64.powf((n.max(1.0).log10().floor() - 1.0).max(0.0));
+    crate::output::grouped((n / step).round() * step)
+}
+
 /// The notes on what the surface change between two runs rests on, as
 /// `compare` gives them: much of the moved surface in separated flow
-/// ([`dead_water_change_note`]) and a change under the panels' edge
+/// ([`dead_water_change_note`]), a change under the panels' edge
 /// ([`resolution_note`]; not when both runs measured their panel noise,
-/// `measured`; `names`: the runs, A's and B's). `collect` gives them for
-/// its leader and runner-up.
+/// `measured`; `names`: the runs, A's and B's) and a part too short along
+/// the stream for the panels ([`short_change_note`]). `collect` gives them
+/// for its leader and runner-up.
 pub fn surface_notes(surface: &SurfaceDeltas, measured: bool, names: [&str; 2]) -> Vec<String> {
     [
         dead_water_change_note(surface),
         resolution_note(surface, measured, names),
+        short_change_note(surface, names),
     ]
     .into_iter()
     .flatten()
@@ -1770,6 +1817,45 @@ mod tests {
     /// A change working mostly on dead water, or smaller than a panel, is
     /// noted; one on attached flow, or larger than a panel, is not. The
     /// diffuser's stall is named only for a change to the underbody.
+    #[test]
+    fn a_part_short_along_the_stream_is_noted() {
+        // A review's roof-spoiler extension: changed panels' centroids
+        // 50 mm apart along the stream on 82 mm panels, 3,000 of them.
+        let surface = |x: Option<[f64; 2]>| SurfaceDeltas {
+            panels_b: 3000,
+            changed_m2: 0.12,
+            panel_edge_m: 0.082,
+            changed_x_m: x,
+            ..SurfaceDeltas::default()
+        };
+        let note = short_change_note(&surface(Some([3.95, 4.0])), ["A", "B"]).unwrap_or_default();
+        assert!(
+            note.starts_with(
+                "the shape changed over about 132 mm along the stream (x 3.95 to 4.00 m), under 3 \
+                 of B's panel edges (82 mm)"
+            ),
+            "{note}"
+        );
+        // Three panels along 132 mm: 44 mm edges, 3,000 x (82/44)^2.
+        assert!(
+            note.ends_with("(an edge of about 44 mm, about 10,000 panels) before judging it"),
+            "{note}"
+        );
+        assert!(
+            surface_notes(&surface(Some([3.95, 4.0])), true, ["v0", "v1"])
+                .iter()
+                .any(|n| n.contains("under 3 of v1's panel edges")),
+        );
+        // A boot lid raised over its whole deck, and no change at all.
+        assert_eq!(
+            short_change_note(&surface(Some([3.6, 4.3])), ["A", "B"]),
+            None
+        );
+        assert_eq!(short_change_note(&surface(None), ["A", "B"]), None);
+        assert_eq!(round_panels(13_873.0), "14,000");
+        assert_eq!(round_panels(950.0), "950");
+    }
+
     #[test]
     fn changes_on_dead_water_or_under_a_panel_are_noted() {
         let surface = |changed: f64, separated: f64, far: f64| SurfaceDeltas {

@@ -334,22 +334,6 @@ fn smallest_spacing(size: (f64, f64), budget: usize) -> f64 {
     h
 }
 
-/// `n` with a comma between groups of three digits: "1,240,000".
-fn grouped(n: f64) -> String {
-    if !(n < 1e15) {
-        return format!("{n:.1e}");
-    }
-    let digits = format!("{:.0}", n.max(0.0));
-    let mut out = String::new();
-    for (k, c) in digits.chars().enumerate() {
-        if k > 0 && (digits.len() - k) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
-}
-
 /// The panels' median size (longest edge), m.
 fn median_panel_size(mesh: &PanelMesh) -> f64 {
     let mut sizes: Vec<f64> = mesh.panels.iter().map(|p| p.size).collect();
@@ -561,9 +545,9 @@ fn place(s: &SliceSection, w: &Window, panel_size: f64) -> Result<Plane> {
              than the {} a slice may take; the smallest spacing that fits this window is {} m \
              (or narrow the window)",
             fine_number(spacing),
-            grouped(dims.0 * dims.1),
+            crate::output::grouped(dims.0 * dims.1),
             ranges_words(&window, &[a, b]),
-            grouped(SLICE_BUDGET as f64),
+            crate::output::grouped(SLICE_BUDGET as f64),
             fine_number(smallest_spacing(plane.size, SLICE_BUDGET)),
         );
     }
@@ -870,8 +854,8 @@ mod tests {
         assert_eq!(fine_number(4.0 / 110.0), "0.0364");
         assert_eq!(fine_number(0.005), "0.005");
         assert_eq!(fine_number(0.25), "0.25");
-        assert_eq!(grouped(401_301.0), "401,301");
-        assert_eq!(grouped(250_000.0), "250,000");
-        assert_eq!(grouped(999.0), "999");
+        assert_eq!(crate::output::grouped(401_301.0), "401,301");
+        assert_eq!(crate::output::grouped(250_000.0), "250,000");
+        assert_eq!(crate::output::grouped(999.0), "999");
     }
 }

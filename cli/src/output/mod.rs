@@ -392,6 +392,22 @@ pub fn fixed(v: f64, places: usize) -> String {
     format!("{:.places$}", rounded(v, places))
 }
 
+/// `n` with a comma between groups of three digits: "1,240,000".
+pub fn grouped(n: f64) -> String {
+    if !(n < 1e15) {
+        return format!("{n:.1e}");
+    }
+    let digits = format!("{:.0}", n.max(0.0));
+    let mut out = String::new();
+    for (k, c) in digits.chars().enumerate() {
+        if k > 0 && (digits.len() - k) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
+}
+
 /// `n` and its noun: "1 pass", "4 passes".
 pub fn plural(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
