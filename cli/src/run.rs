@@ -125,7 +125,7 @@ pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary
 
 /// The geometry phase's closing words: the panel count, and why it is not
 /// the one asked for when coarsening had to settle for more.
-fn panels_note(geo: &geometry::Geometry) -> String {
+pub(crate) fn panels_note(geo: &geometry::Geometry) -> String {
     let panels = geo.mesh.len();
     let coarsen = geo.report.coarsen.as_ref();
     match coarsen.and_then(|c| {

@@ -285,7 +285,7 @@ fn run_range(
             dir,
             root,
             &todo[start..end],
-            (opt.force, memory_limit, opt.noise),
+            (opt.force, memory_limit, opt.noise, opt.quiet),
             &mut report,
         );
         start = end;

@@ -67,12 +67,24 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     let out = d.join("yaw");
     let (code, err) = sweep_to(&d.join("yaw.toml"), &out);
     assert_eq!(code, sweep_code(&err), "{err}");
-    // One progress line per variant.
+    // One result line per variant.
     assert_eq!(
         err.lines().filter(|l| l.starts_with('[')).count(),
         3,
         "{err}"
     );
+    // And the phases between, as `tuft run` says them in a log: the
+    // shared geometry and matrix once, each variant's loop (a review's
+    // sweep had sat silent for 25 to 35 s a variant).
+    for phase in [
+        "yaw-0: reading and preparing the geometry ...",
+        "yaw-0: assembling the matrix the 3 variants share",
+        "yaw-4: separated-flow loop on the shared matrix",
+        "yaw-8: drawing pictures and the report ...",
+    ] {
+        assert!(err.contains(phase), "{phase}: {err}");
+    }
+    assert_eq!(err.matches("preparing the geometry").count(), 1, "{err}");
     for (k, yaw) in [0.0, 4.0, 8.0].into_iter().enumerate() {
         let name = format!("yaw-{yaw}");
         let v = json(&out.join(&name).join("variant.json"));

@@ -86,7 +86,7 @@ pub fn run_group(
     dir: &Path,
     root: &Path,
     members: &[Member<'_>],
-    (force, memory_limit, noise): (bool, Option<f64>, bool),
+    (force, memory_limit, noise, quiet): (bool, Option<f64>, bool, bool),
     report: &mut dyn FnMut(&Member<'_>, &Outcome, f64),
 ) {
     let start = Instant::now();
@@ -100,9 +100,21 @@ pub fn run_group(
     let Some((_, first)) = cases.first() else {
         return;
     };
-    let geo = match geometry::load_keeping(first, noise) {
-        Ok(g) => g,
+    // Each phase said as `tuft run` says it (a review's sweep sat silent
+    // for 25 to 35 s a variant after its "running" line).
+    let mut progress = Progress::new(quiet, &first.name);
+    let what = "reading and preparing the geometry";
+    let phase = progress.begin("geometry", what);
+    let stages = progress.stages(&phase, what);
+    let loaded = geometry::load_keeping(first, noise);
+    drop(stages);
+    let geo = match loaded {
+        Ok(g) => {
+            progress.end(phase, &crate::run::panels_note(&g));
+            g
+        }
         Err(e) => {
+            phase.clear();
             let why = format!("{e:#}");
             for (m, _) in &cases {
                 report(m, &Outcome::Failed(why.clone()), 0.0);
@@ -132,6 +144,14 @@ pub fn run_group(
     let loop_on = pipeline::loop_wanted(first_case);
     // What the members share: the loop's body system, or the attached
     // flow of each (one solve of one matrix for every free stream).
+    let phase = progress.begin(
+        "assembly",
+        &format!(
+            "assembling the matrix the {} share, {} panels",
+            crate::output::plural(ok.len(), "variant", "variants"),
+            geo.mesh.len()
+        ),
+    );
     let shared = if loop_on {
         SharedBody::build(&geo.mesh, first_case, memory_limit).map(|b| (Some(b), Vec::new()))
     } else {
@@ -145,8 +165,12 @@ pub fn run_group(
     };
     let mut clock = start.elapsed().as_secs_f64();
     let (body, solutions) = match shared {
-        Ok(s) => s,
+        Ok(s) => {
+            progress.end(phase, "");
+            s
+        }
         Err(e) => {
+            phase.clear();
             for (m, _, _) in &ok {
                 report(
                     m,
@@ -186,6 +210,7 @@ pub fn run_group(
             (&out, force || m.stale),
             &record,
             noise.then_some(memory_limit),
+            quiet,
         ) {
             Ok(s) => Outcome::Done(Box::new(s), matrix),
             Err(e) => Outcome::Failed(format!("{e:#}")),
@@ -230,7 +255,8 @@ fn shared_solve(
 /// Boundary layer, loads and every output of one variant, into `out`
 /// (replacing a folder tuft wrote when `force`); `noise`: measure its
 /// panel noise too, within this memory limit (each of its two other panel
-/// counts on a system of its own: the group's is for its own panels).
+/// counts on a system of its own: the group's is for its own panels);
+/// `quiet`: no progress lines.
 fn run_one(
     case: &Case,
     geo: &Geometry,
@@ -238,9 +264,10 @@ fn run_one(
     (out, force): (&Path, bool),
     record: &VariantRecord,
     noise: Option<Option<f64>>,
+    quiet: bool,
 ) -> Result<Summary> {
     let staging = Staging::new(out, force)?;
-    let mut progress = Progress::new(true, &case.name);
+    let mut progress = Progress::new(quiet, &case.name);
     let mut computed = match input {
         Input::Loop(body) => pipeline::compute_on_body(&geo.mesh, case, body, &mut progress)?,
         Input::Potential(p) => pipeline::compute_from_potential(&geo.mesh, case, p, &mut progress)?,
