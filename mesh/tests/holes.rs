@@ -164,6 +164,43 @@ fn missing_end_of_a_body_is_refused_with_its_centre() {
     assert!(!hole.on_undeclared_symmetry_plane, "{text}");
 }
 
+/// A scan's openings are named by where they lie on the car, so a
+/// modeller can find them: an open floor between the axles, and a side
+/// opening low over the front axle, asked after as a wheel arch (a
+/// review's open half scan had its holes named only by centre points).
+#[test]
+fn refused_holes_are_named_by_where_they_lie_on_the_car() {
+    let coupe = generate::coupe_with_params(&generate::CoupeParams::default()).unwrap();
+    let (lo, hi) = coupe.vertices.iter().fold(
+        (
+            Point::new(f64::MAX, f64::MAX, f64::MAX),
+            Point::new(f64::MIN, f64::MIN, f64::MIN),
+        ),
+        |(lo, hi), p| (lo.inf(p), hi.sup(p)),
+    );
+    let (length, height) = (hi.x - lo.x, hi.z - lo.z);
+    // The floor's middle fifth, and the right side low over the front
+    // fifth of the length.
+    let open = common::cut(&coupe, |c| {
+        let fx = (c.x - lo.x) / length;
+        let floor = c.z < lo.z + 0.02 * height && (0.4..0.6).contains(&fx);
+        let arch = c.y > 0.9 * hi.y && c.z < lo.z + 0.35 * height && (0.15..0.25).contains(&fx);
+        !(floor || arch)
+    });
+    let e = repair(open, &Mirrors::none()).unwrap_err();
+    let text = e.to_string();
+    let MeshError::OpenHole { holes, .. } = &e else {
+        panic!("{e}")
+    };
+    let places: Vec<&str> = holes.iter().map(|h| h.place.as_str()).collect();
+    assert!(places.contains(&"under the middle"), "{text}");
+    assert!(
+        places.contains(&"low on the side at the front (a wheel arch?)"),
+        "{text}"
+    );
+    assert!(text.contains("under the middle, centre ("), "{text}");
+}
+
 #[test]
 fn a_half_model_read_as_whole_is_asked_whether_it_is_one() {
     // The generated half coupe repaired without its symmetry plane: the

@@ -126,6 +126,49 @@ pub struct RefusedHole {
     /// for the ground), the rim's coordinate and the plane's, metres.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub off_declared_plane: Option<(char, f64, f64)>,
+    /// Where on the body it lies, in words ([`place_words`]: "under the
+    /// middle", "low on the side at the front (a wheel arch?)").
+    #[serde(default)]
+    pub place: String,
+}
+
+/// Where a point lies on a car-like body with bounds `lo`..`hi` (x from
+/// nose to tail, z up), in words a modeller can find it by: underneath,
+/// on top, on the side (low or high) or at the nose or tail, and the
+/// third of the length; a low opening on the side over the front or rear
+/// quarter of the length is asked after as a wheel arch. A review's open
+/// scan had its holes named only by centre coordinates (our thresholds:
+/// the lowest and highest quarter of the height, the outer quarter of
+/// the half-width, the end tenths of the length).
+pub fn place_words(c: [f64; 3], lo: [f64; 3], hi: [f64; 3]) -> String {
+    let frac = |k: usize| (c[k] - lo[k]) / (hi[k] - lo[k]).max(f64::MIN_POSITIVE);
+    let (fx, fz) = (frac(0), frac(2));
+    let half_width = lo[1].abs().max(hi[1].abs()).max(f64::MIN_POSITIVE);
+    let fy = c[1].abs() / half_width;
+    let along = if fx < 1.0 / 3.0 {
+        "front"
+    } else if fx < 2.0 / 3.0 {
+        "middle"
+    } else {
+        "rear"
+    };
+    let arch = fz < 0.45 && fy > 0.5 && ((0.08..0.35).contains(&fx) || (0.65..0.92).contains(&fx));
+    if arch {
+        format!("low on the side at the {along} (a wheel arch?)")
+    } else if fz < 0.25 && fy < 0.75 {
+        format!("under the {along}")
+    } else if fz > 0.75 && fy < 0.75 {
+        format!("on top at the {along}")
+    } else if fy >= 0.75 {
+        let height = if fz < 0.5 { "low" } else { "high" };
+        format!("{height} on the side at the {along}")
+    } else if fx < 0.1 {
+        "at the nose".into()
+    } else if fx > 0.9 {
+        "at the tail".into()
+    } else {
+        format!("half-way up at the {along}")
+    }
 }
 
 /// How far, in plane tolerances, a flat rim may lie from a declared plane
@@ -183,8 +226,13 @@ fn describe_one(h: &RefusedHole) -> String {
         String::new()
     };
     let round = circle_words(h.measure, h.perimeter);
+    let place = if h.place.is_empty() {
+        String::new()
+    } else {
+        format!("{}, ", h.place)
+    };
     format!(
-        "centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m{round}, {why}{cut}",
+        "{place}centre ({x:.3}, {y:.3}, {z:.3}) m, perimeter {:.3} m{round}, {why}{cut}",
         h.perimeter
     )
 }
@@ -320,6 +368,12 @@ pub(crate) fn close_holes_with_uses(
             }
         }
     }
+    if !refused.is_empty() {
+        let (lo, hi) = used_bounds(mesh);
+        for h in &mut refused {
+            h.place = place_words(h.centre, lo, hi);
+        }
+    }
     refuse(refused)?;
     Ok(report)
 }
@@ -376,6 +430,7 @@ fn take_loop(
                 None
             },
             off_declared_plane: off_plane(&mesh.vertices, half, edges, s),
+            place: String::new(),
         })),
     }
 }
@@ -397,6 +452,21 @@ fn fill_if_small(
     } else {
         fill(mesh, component, half, edges, info).ok_or(Refusal::Folds)
     }
+}
+
+/// The bounds of the vertices the facets use, metres.
+fn used_bounds(mesh: &TriMesh) -> ([f64; 3], [f64; 3]) {
+    mesh.triangles.iter().flatten().fold(
+        ([f64::INFINITY; 3], [f64::NEG_INFINITY; 3]),
+        |(mut lo, mut hi), &v| {
+            let p = mesh.vertices[v as usize];
+            for (k, x) in [p.x, p.y, p.z].into_iter().enumerate() {
+                lo[k] = lo[k].min(x);
+                hi[k] = hi[k].max(x);
+            }
+            (lo, hi)
+        },
+    )
 }
 
 fn refuse(mut refused: Vec<RefusedHole>) -> Result<(), MeshError> {
