@@ -594,7 +594,16 @@ pub fn comparison_named(
     let model_notes: Vec<String> = separation.into_iter().chain(rims).chain(slope).collect();
     let regions = region_changes(&a.summary, &b.summary);
     let place = largest_region_change(&regions);
-    let mut drag = drag_verdict_named(&a.summary, &b.summary, (doubt, place.as_deref()), names);
+    let mut drag = drag_verdict_named(
+        &a.summary,
+        &b.summary,
+        (
+            doubt,
+            place.as_deref(),
+            (surface.changed_m2 > 0.0).then_some(surface.unchanged_drag_counts),
+        ),
+        names,
+    );
     // Two ride heights as well as the change: said in the verdict itself
     // (a review's variant exported 20 mm higher read "24.2 counts lower",
     // the clearance in the second of five notes).

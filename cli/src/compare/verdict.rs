@@ -92,6 +92,12 @@ pub fn floor_words(floor: f64) -> String {
     }
 }
 
+/// The least share of a drag difference that must arise on the changed
+/// surface for the separated-flow model's direction to be given when its
+/// ranking is in doubt ([`drag_verdict_named`]; our choice: the larger
+/// part).
+pub const CHANGED_PART_SHARE: f64 = 0.5;
+
 /// The verdict on a drag difference.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq, Default)]
 pub struct DragVerdict {
@@ -176,18 +182,25 @@ pub enum ModelDoubt {
 /// wheels on, [`Summary::wheels_on`]).
 #[cfg(test)]
 pub fn drag_verdict(a: &Summary, b: &Summary, doubt: Option<ModelDoubt>) -> DragVerdict {
-    drag_verdict_named(a, b, (doubt, None), ["A", "B"])
+    drag_verdict_named(a, b, (doubt, None, None), ["A", "B"])
 }
 
 /// [`drag_verdict`] with the two runs called by `names` (A's, B's) in its
 /// text: `tuft collect` names the variants, where "A" and "B" mean
-/// nothing. `(doubt, place)`: the doubt, and for separated regions that
-/// differ where they differ most in words ("on the boot deck, 66 % against
-/// 85 % separated"), so that the reason fits the pair.
+/// nothing. `(doubt, place, unchanged)`: the doubt; for separated
+/// regions that differ, where they differ most in words ("on the boot
+/// deck, 66 % against 85 % separated"), so that the reason fits the pair;
+/// and the part of the drag difference arising where the shape did not
+/// change, counts ([`crate::compare::SurfaceDeltas::unchanged_drag_counts`]),
+/// where known: when the doubt holds and under [`CHANGED_PART_SHARE`] of
+/// the difference arises on the changed surface, the model gives no
+/// direction either (a review's two mirror heads leaned 11.8 counts lower
+/// on the half model and 22.3 higher on the whole, the unchanged surface
+/// carrying -7.9 and +23.6 of them).
 pub fn drag_verdict_named(
     a: &Summary,
     b: &Summary,
-    (doubt, place): (Option<ModelDoubt>, Option<&str>),
+    (doubt, place, unchanged): (Option<ModelDoubt>, Option<&str>, Option<f64>),
     names: [&str; 2],
 ) -> DragVerdict {
     let [na, nb] = names;
@@ -253,7 +266,18 @@ pub fn drag_verdict_named(
     let apart = yaws || speeds;
     let resolved = banded && !separation_differs && !plateau && !wheels && !apart && !floor;
     let way = if delta < 0.0 { "lower" } else { "higher" };
-    let leaning = if banded && separation_differs && !plateau && !wheels && !apart && !floor {
+    // The drag difference arising mostly where the shape did not change:
+    // the flow's answer there in this model, plus panel noise.
+    let elsewhere =
+        unchanged.filter(|u| (delta - u) * delta.signum() < CHANGED_PART_SHARE * delta.abs());
+    let leaning = if banded
+        && separation_differs
+        && elsewhere.is_none()
+        && !plateau
+        && !wheels
+        && !apart
+        && !floor
+    {
         way
     } else {
         ""
@@ -309,6 +333,15 @@ pub fn drag_verdict_named(
             "no winner: the drag difference, {} counts, is within {}",
             signed(delta, 1),
             floor_words(noise)
+        )
+    } else if let (true, true, Some(u)) = (banded, separation_differs, elsewhere) {
+        format!(
+            "no winner: {why}, where the model's drag ranking is not reliable ({known}); and of the \
+             {} counts between them, {} arise where the shape did not change (the flow's answer there \
+             in this model, plus panel noise), so the model gives no direction either: confirm any \
+             ranking with validated CFD or a tunnel",
+            signed(delta, 1),
+            signed(u, 1)
         )
     } else if banded && separation_differs {
         format!(
@@ -667,6 +700,7 @@ mod tests {
             (
                 Some(ModelDoubt::Separation),
                 Some("on the deck, 30 % against 0 % separated"),
+                None,
             ),
             ["deck-30", "deck-0"],
         );
@@ -678,7 +712,7 @@ mod tests {
             "{}",
             v.text
         );
-        let v = drag_verdict_named(&a, &b, (None, None), ["deck-30", "deck-0"]);
+        let v = drag_verdict_named(&a, &b, (None, None, None), ["deck-30", "deck-0"]);
         assert!(
             v.text.starts_with("deck-0 has lower drag by 10.0 counts"),
             "{}",
@@ -692,6 +726,37 @@ mod tests {
             "{}",
             v.text
         );
+    }
+
+    /// A review's two mirror heads: the difference rests on the
+    /// separated regions and arises mostly where the shape did not change
+    /// (-7.9 of -11.8 counts on the half model, +23.6 of +22.3 on the
+    /// whole), so the model gives no direction either.
+    #[test]
+    fn a_difference_arising_off_the_change_gives_no_direction() {
+        let a = summary(0.300, 0.290, 0.320);
+        let b = summary(0.290, 0.280, 0.310);
+        let doubt = Some(ModelDoubt::Separation);
+        for unchanged in [-7.9, -10.0, -15.0] {
+            let v = drag_verdict_named(&a, &b, (doubt, None, Some(unchanged)), ["A", "B"]);
+            assert!(v.leaning.is_empty() && v.doubt.is_empty(), "{v:?}");
+            assert!(
+                v.text.contains(&format!(
+                    "of the -10.0 counts between them, {} arise where the shape did not change",
+                    signed(unchanged, 1)
+                )) && !v.text.contains("in this model B's drag"),
+                "{}",
+                v.text
+            );
+        }
+        // Most of it on the changed surface: the model's direction.
+        for unchanged in [-2.0, 3.0] {
+            let v = drag_verdict_named(&a, &b, (doubt, None, Some(unchanged)), ["A", "B"]);
+            assert_eq!(v.leaning, "lower", "{v:?}");
+        }
+        // No doubt: the verdict as before, whatever the unchanged surface.
+        let v = drag_verdict_named(&a, &b, (None, None, Some(-9.0)), ["A", "B"]);
+        assert!(v.resolved, "{v:?}");
     }
 
     #[test]
