@@ -443,6 +443,22 @@ fn a_floor_on_the_ground_is_warned_about_before_running() {
         "{text}"
     );
     assert_eq!(at_floor.status.code(), Some(1), "{text}");
+    // The same as a half model, whose cut's foot then runs along the
+    // ground (a review's half model had read as cut at its floor, usable).
+    let half = check(&[
+        stl.to_str().unwrap(),
+        "--ground",
+        "0.12",
+        "--half",
+        "--panels",
+        "1500",
+    ]);
+    let text = String::from_utf8_lossy(&half.stdout);
+    assert!(
+        text.contains("verdict    doubtful: the body's floor stands on the ground"),
+        "{text}"
+    );
+    assert_eq!(half.status.code(), Some(1), "{text}");
     let own = check(&[stl.to_str().unwrap(), "--ground", "0.0", "--panels", "2000"]);
     let text = String::from_utf8_lossy(&own.stdout);
     assert!(text.contains("verdict    usable"), "{text}");

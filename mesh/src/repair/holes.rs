@@ -700,7 +700,11 @@ fn ends(vertices: &[Point], h: &HalfEdge) -> (Point, Point) {
 
 /// The plane(s) closing a loop: every edge must lie on a declared plane
 /// (both ends within the tolerance). A half model standing on the ground
-/// has loops with edges on both planes.
+/// has loops with edges on both planes. An edge on both (along the
+/// symmetry plane's foot) counts for the symmetry plane: a half model's
+/// cut whose floor runs within the tolerance of the ground along y = 0
+/// is the symmetry plane's, not a floor cut (a review's ground set at the
+/// floor's height had read as a body cut at its floor, and passed).
 fn on_plane(
     vertices: &[Point],
     half: &[HalfEdge],
@@ -713,10 +717,10 @@ fn on_plane(
     let (mut ground, mut sym) = (false, false);
     for &e in edges {
         let (a, b) = ends(vertices, &half[e]);
-        if on_ground(&a) && on_ground(&b) {
-            ground = true;
-        } else if on_sym(&a) && on_sym(&b) {
+        if on_sym(&a) && on_sym(&b) {
             sym = true;
+        } else if on_ground(&a) && on_ground(&b) {
+            ground = true;
         } else {
             return None;
         }
