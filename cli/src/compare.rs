@@ -782,7 +782,11 @@ fn changed_surface(
             (l.min(p.centroid.z), h.max(p.centroid.z))
         });
     let floor_top = low + UNDERBODY_HEIGHT * (high - low);
-    let changed = changed_panels(mapping, b.panels.len(), near);
+    let changed = clustered(
+        &changed_panels(mapping, b.panels.len(), near),
+        &b.panels,
+        LONE_REACH_EDGES * out.panel_edge_m,
+    );
     for (i, pb) in b.panels.iter().enumerate() {
         if !changed[i] {
             continue;
@@ -801,6 +805,30 @@ fn changed_surface(
             out.changed_underbody_m2 += area;
         }
     }
+}
+
+/// A changed panel with no other changed panel's centroid within this
+/// many panel edges of its own is the two panellings' difference, not a
+/// change of shape (neighbours' centroids lie about 0.6 of an edge apart;
+/// our choice). A review's two wrapped scans differing only in a roof
+/// spoiler at the tail read "changed from x 0.81 m", lone panels re-cut
+/// by the wrap along the body, some on the floor.
+pub const LONE_REACH_EDGES: f64 = 1.5;
+
+/// `changed` without its lone panels (see [`LONE_REACH_EDGES`]; `reach`
+/// in metres), as the comparison sheets outline it.
+fn clustered(changed: &[bool], panels: &[folder::PanelRow], reach: f64) -> Vec<bool> {
+    let at: Vec<(usize, nalgebra::Point3<f64>)> = changed
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| **c)
+        .map(|(i, _)| (i, panels[i].centroid))
+        .collect();
+    let mut out = vec![false; changed.len()];
+    for &(i, p) in &at {
+        out[i] = at.iter().any(|&(j, q)| j != i && (q - p).norm() <= reach);
+    }
+    out
 }
 
 /// B's panels that lie farther than `near` from A's surface (the changed
@@ -1826,6 +1854,27 @@ mod tests {
     /// A change working mostly on dead water, or smaller than a panel, is
     /// noted; one on attached flow, or larger than a panel, is not. The
     /// diffuser's stall is named only for a change to the underbody.
+    /// Lone changed panels are the panellings' (a review's spoiler pair
+    /// read "changed from x 0.81 m" off a wrap's re-cut panels); two side
+    /// by side are a change.
+    #[test]
+    fn lone_changed_panels_are_not_a_change() {
+        let row = |x: f64| folder::PanelRow {
+            centroid: nalgebra::Point3::new(x, 0.0, 1.0),
+            normal: nalgebra::Vector3::z(),
+            area: 0.004,
+            cp: 0.0,
+            state: PanelState::Turbulent,
+            risk: 0.0,
+        };
+        let panels: Vec<_> = [0.81, 2.0, 4.22, 4.28, 4.3].into_iter().map(row).collect();
+        let changed = [true, false, true, true, false];
+        assert_eq!(
+            clustered(&changed, &panels, LONE_REACH_EDGES * 0.093),
+            [false, false, true, true, false]
+        );
+    }
+
     #[test]
     fn a_part_short_along_the_stream_is_noted() {
         // A review's roof-spoiler extension: changed panels' centroids
