@@ -9,7 +9,7 @@
 //! warning, 1 some are missing or failed or carry warnings (listed; a
 //! coarse-mesh warning also withholds the winner), 2 nothing to collect.
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -184,6 +184,12 @@ pub struct Row {
     /// spoiler and diffuser sweep had read them only from compare.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub against_next_notes: Vec<String>,
+    /// On the lowest drag of each wind condition: whether its underbody's
+    /// shape differs from the runner-up's or the first variant's
+    /// ([`crate::compare::SurfaceDeltas::changed_underbody_m2`]), where
+    /// compared ([`underbody_spread`] reads it for a sweep of STLs).
+    #[serde(skip)]
+    pub underbody_changed: Option<bool>,
     /// On the lowest drag of each wind condition, where the condition's
     /// first variant in the sweep's order (its baseline, as a study
     /// usually lists it) is neither it nor the runner-up: that variant's
@@ -1026,7 +1032,7 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
     let judge = |b: &ResultFolder,
                  lead: &str,
                  other: &str|
-     -> Result<(crate::compare::DragVerdict, Vec<String>)> {
+     -> Result<(crate::compare::DragVerdict, Vec<String>, bool)> {
         let a = ResultFolder::read(&dir.join(other))?;
         let mapping = crate::compare::map_a_onto_b(&a, b);
         let names = [other, lead];
@@ -1035,6 +1041,7 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
         Ok((
             c.drag,
             crate::compare::surface_notes(&c.surface, measured, names),
+            c.surface.changed_underbody_m2 > 0.0,
         ))
     };
     for group in rows.chunk_by_mut(same_wind) {
@@ -1052,14 +1059,16 @@ fn judge_leaders(dir: &Path, rows: &mut [Row]) {
         let Ok(b) = ResultFolder::read(&dir.join(&first.name)) else {
             continue;
         };
-        if let Ok((verdict, notes)) = judge(&b, &first.name, &second.name) {
+        if let Ok((verdict, notes, under)) = judge(&b, &first.name, &second.name) {
             first.against_next = Some(verdict);
             first.against_next_notes = notes;
+            first.underbody_changed = Some(under);
         }
         if let Some(base) = base
-            && let Ok((verdict, _)) = judge(&b, &first.name, &base)
+            && let Ok((verdict, _, under)) = judge(&b, &first.name, &base)
         {
             first.against_first = Some((base, verdict));
+            first.underbody_changed = Some(under || first.underbody_changed.unwrap_or(false));
         }
     }
 }
@@ -1183,6 +1192,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         regions: s.regions.clone(),
         against_next: None,
         against_next_notes: Vec::new(),
+        underbody_changed: None,
         against_first: None,
         area_scale: 1.0,
     };
@@ -2340,17 +2350,61 @@ fn region_cover_spread(c: &[Row]) -> Vec<String> {
         .collect()
 }
 
-/// The same for the underbody's separated share and the lift ranking.
+/// The same for the underbody's separated share and the lift ranking:
+/// the diffuser's stall named only where the sweep may change the
+/// underbody ([`underbody_unchanged`]), as `compare` does for two runs (a
+/// review's roof-spoiler sweep, its underbody identical in every STL, had
+/// been sent to a diffuser).
 fn underbody_spread(c: &[Row]) -> Option<String> {
     let (lo, hi) = spread(
         c,
         |r| r.underbody_separated_percent,
         crate::compare::SEPARATION_SHIFT,
     )?;
-    Some(format!(
-        "The separated share of the underbody ranges from {lo:.1} % to {hi:.1} % across these variants: {}.",
+    let caution = if underbody_unchanged(c) {
+        crate::compare::UNDERBODY_ELSEWHERE
+    } else {
         crate::compare::UNDERBODY_CAUTION
+    };
+    Some(format!(
+        "The separated share of the underbody ranges from {lo:.1} % to {hi:.1} % across these variants: {caution}."
     ))
+}
+
+/// Built-in shape keys that change the body above its floor only.
+const ABOVE_FLOOR_KEYS: [&str; 3] = [
+    "geometry.rear_window_deg",
+    "geometry.boot_deck_length",
+    "geometry.slant_deg",
+];
+
+/// Whether the variants' underbodies are known to share their shape: every
+/// swept key is a label, a wind or boundary-layer setting or a built-in
+/// shape key above the floor ([`ABOVE_FLOOR_KEYS`]); or the sweep varies
+/// its STL and nothing else of the geometry, and the lowest drag's
+/// underbody matched the runner-up's and the first variant's
+/// ([`Row::underbody_changed`]). Otherwise (a diffuser angle, a ride
+/// height, the ground) it may have changed.
+fn underbody_unchanged(c: &[Row]) -> bool {
+    let keys: BTreeSet<&str> = c
+        .iter()
+        .flat_map(|r| r.settings.keys().map(String::as_str))
+        .collect();
+    let kept = |k: &&str| {
+        !k.contains('.')
+            || k.starts_with("flow.")
+            || k.starts_with("boundary_layer.")
+            || ABOVE_FLOOR_KEYS.contains(k)
+    };
+    let others: Vec<&str> = keys.iter().copied().filter(|k| !kept(k)).collect();
+    match others.as_slice() {
+        [] => !keys.is_empty(),
+        ["geometry.stl"] => {
+            c.iter().any(|r| r.underbody_changed == Some(false))
+                && !c.iter().any(|r| r.underbody_changed == Some(true))
+        }
+        _ => false,
+    }
 }
 
 /// A note when the variants were solved on panel counts more than 5 % apart
@@ -3181,6 +3235,7 @@ mod tests {
             regions: Vec::new(),
             against_next: None,
             against_next_notes: Vec::new(),
+            underbody_changed: None,
             against_first: None,
         };
         Collected {
@@ -4304,6 +4359,40 @@ mod tests {
         assert!((gap - exact).abs() < 1e-9 && gap > 0.0, "{gap}");
     }
 
+    /// The diffuser's stall is named only where the sweep may change the
+    /// underbody (a review's roof-spoiler STLs, their floors identical,
+    /// had been sent to a diffuser).
+    #[test]
+    fn the_underbody_note_names_a_stall_only_where_the_floor_may_change() {
+        let with = |keys: &[&str], changed: Option<bool>| {
+            let mut c = sweep(&[10.0, 12.0]);
+            for r in &mut c.variants {
+                for k in keys {
+                    r.settings.insert((*k).to_owned(), serde_json::json!(1.0));
+                }
+            }
+            c.variants[0].underbody_changed = changed;
+            underbody_spread(&c.variants).unwrap_or_default()
+        };
+        let elsewhere = crate::compare::UNDERBODY_ELSEWHERE;
+        let stall = crate::compare::UNDERBODY_CAUTION;
+        for (keys, changed, words) in [
+            (
+                &["geometry.rear_window_deg", "flow.yaw"][..],
+                None,
+                elsewhere,
+            ),
+            (&["geometry.diffuser_deg"][..], None, stall),
+            (&["geometry.stl", "spoiler_mm"][..], Some(false), elsewhere),
+            (&["geometry.stl", "spoiler_mm"][..], Some(true), stall),
+            (&["geometry.stl"][..], None, stall),
+            (&[][..], None, stall),
+        ] {
+            let note = with(keys, changed);
+            assert!(note.contains(words), "{keys:?} {changed:?}: {note}");
+        }
+    }
+
     /// The page warns when the separated share of the surface moves by
     /// more than one point across the variants, and only then.
     #[test]
@@ -4326,6 +4415,13 @@ mod tests {
                 - shares.iter().fold(f64::INFINITY, |m, &v| m.min(v))
                 > 0.5;
             assert_eq!(underbody_spread(&c.variants).is_some(), under, "{shares:?}");
+            if under {
+                assert!(
+                    underbody_spread(&c.variants)
+                        .is_some_and(|n| n.contains(crate::compare::UNDERBODY_CAUTION)),
+                    "{shares:?}"
+                );
+            }
             let html = shown(&c, &[]);
             assert_eq!(
                 html.contains("drag ranking of rear slants"),

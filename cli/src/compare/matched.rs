@@ -119,6 +119,12 @@ pub fn holds(d: &[f64], floor: f64) -> bool {
 pub fn failure_words(d: &[f64], floor: f64, unit: &str, decimals: usize) -> String {
     let first = d.first().copied().unwrap_or(0.0);
     let mean = d.iter().sum::<f64>() / d.len().max(1) as f64;
+    // "a floor of 1 point", not "1 points".
+    let unit = if crate::output::fixed(floor, decimals) == "1" {
+        unit.strip_suffix('s').unwrap_or(unit)
+    } else {
+        unit
+    };
     if d.iter().any(|v| v.signum() != first.signum() || *v == 0.0) {
         "which change sign".to_owned()
     } else if d.iter().all(|v| v.abs() < floor) {
@@ -186,6 +192,11 @@ mod tests {
         assert_eq!(
             failure_words(&[-3.8, -4.4, -3.2], 6.0, "counts", 0),
             "none of which clears the floor of 6 counts"
+        );
+        // A floor of one point (the underbody's share) in the singular.
+        assert_eq!(
+            failure_words(&[1.1, 1.1, 0.8], 1.0, "points", 0),
+            "not all of which clear the floor of 1 point"
         );
         assert!(!holds(&[], 1.0));
         assert_eq!(
