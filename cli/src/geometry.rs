@@ -457,7 +457,7 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
     let on_body = |x: f64| (lo.x..=hi.x).contains(&x);
     // Every axle off the body, in one sentence (a review's axles typed in
     // millimetres were refused one at a time).
-    let mut off = Vec::new();
+    let (mut off, mut hints) = (Vec::new(), Vec::new());
     for (key, x) in [
         ("front_axle_x", r.front_axle_x),
         ("rear_axle_x", r.rear_axle_x),
@@ -469,7 +469,7 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
         // millimetres: typed in the STL's unit.
         let hint = if x.abs() > BODY_SIZE_LIMITS[1] && on_body(x / 1000.0) {
             format!(
-                "; in millimetres it would be {:.3} m, on the body",
+                "in millimetres it would be {:.3} m, on the body",
                 x / 1000.0
             )
         } else if on_body(-x) {
@@ -483,24 +483,44 @@ fn check_axles(mesh: &PanelMesh, case: &Case) -> Result<()> {
                 _ => "",
             };
             format!(
-                "; at x = {:.3} it would lie inside: {nose}positions in the case are in tuft's axes, x \
+                "at x = {:.3} it would lie inside: {nose}positions in the case are in tuft's axes, x \
                  from the nose backwards, which negates the x of a file whose nose points to +x",
                 -x
             )
         } else {
             String::new()
         };
-        off.push(format!("reference.{key} = {x} m{hint}"));
+        off.push(format!("reference.{key} = {x} m"));
+        if !hint.is_empty() {
+            hints.push((key, hint));
+        }
     }
     if off.is_empty() {
         return Ok(());
     }
+    // The hints after the sentence, each named when two are off (a
+    // review read the two axles' hints inside the subject as garbled).
+    let hints: Vec<String> = hints
+        .into_iter()
+        .map(|(key, hint)| {
+            if off.len() > 1 {
+                format!("{key}: {hint}")
+            } else {
+                hint
+            }
+        })
+        .collect();
     let verb = if off.len() == 1 { "lies" } else { "lie" };
     bail!(
-        "{} {verb} outside the body, which runs from x = {:.3} to {:.3} m",
-        off.join(", and "),
+        "{} {verb} outside the body, which runs from x = {:.3} to {:.3} m{}",
+        off.join(" and "),
         lo.x,
-        hi.x
+        hi.x,
+        if hints.is_empty() {
+            String::new()
+        } else {
+            format!("; {}", hints.join("; "))
+        }
     )
 }
 
@@ -611,9 +631,9 @@ mod tests {
         );
         assert!(
             e.starts_with(
-                "reference.front_axle_x = 900 m; in millimetres it would be 0.900 m, on the body, and \
-                 reference.rear_axle_x = 3550 m; in millimetres it would be 3.550 m, on the body lie \
-                 outside the body"
+                "reference.front_axle_x = 900 m and reference.rear_axle_x = 3550 m lie outside the \
+                 body, which runs from x = 0.000 to 4.000 m; front_axle_x: in millimetres it would be \
+                 0.900 m, on the body; rear_axle_x: in millimetres it would be 3.550 m, on the body"
             ),
             "{e}"
         );

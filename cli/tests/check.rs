@@ -755,7 +755,9 @@ fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
     );
     assert!(!panels.exists());
     assert!(
-        stderr.contains("reference.front_axle_x = 950 m; in millimetres it would be 0.950 m, on the body, and reference.rear_axle_x = 3650 m lie outside the body")
+        stderr.contains(
+            "reference.front_axle_x = 950 m and reference.rear_axle_x = 3650 m lie outside the body"
+        ) && stderr.contains("; front_axle_x: in millimetres it would be 0.950 m, on the body")
             && stderr.contains("(lengths in the case file are metres, and, for axles")
             && stderr.matches("(lengths").count() == 1
             && !stderr.contains(") ("),
