@@ -422,8 +422,8 @@ pub fn coarse_note(
         format!(
             "{panels} panels is under half of the {suggested} suggested for this body: a region's verdict \
              can still change with the panel count here (the demo coupe's boot deck read attached, 0 % \
-             separated, at 2,992 panels, against 22 to 36 % from 3,956 to 11,976 panels); before acting \
-             on a verdict near its line, {advice}"
+             separated, at 2,992 panels, against 22 to 36 % from 3,956 to 11,976 panels), so the \
+             verdicts are provisional at best; before acting on one, {advice}"
         )
     })
 }

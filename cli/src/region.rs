@@ -104,7 +104,17 @@ pub struct RegionResult {
     /// verdict is uncertain when they give two verdicts.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub at_counts: Option<Vec<f64>>,
+    /// The run was solved on under half of the panels suggested for its
+    /// body ([`crate::summary::Summary::under_half_suggested`]): its
+    /// verdict is at best provisional, wherever its share lies (a review's
+    /// mirror-flank box read 32 % separated, "firm", on a whole body at
+    /// 3,500 of 8,000 suggested panels, and 2 % as a half model).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub coarse_mesh: bool,
 }
+
+/// Why a verdict on a coarse mesh is provisional ([`RegionResult::coarse_mesh`]).
+pub const COARSE_WORDS: &str = "solved on under half of the panels suggested for the body, where a verdict can still move with the count";
 
 impl RegionResult {
     /// A region result for tests: `fraction` separated (the band that
@@ -123,6 +133,7 @@ impl RegionResult {
             standing: String::new(),
             sides: None,
             at_counts: None,
+            coarse_mesh: false,
         }
     }
 
@@ -139,12 +150,13 @@ impl RegionResult {
     /// How firm the verdict is: "uncertain" when the sensitivity runs'
     /// range reaches another verdict (the words say it rests on the
     /// model), else "provisional" within [`VERDICT_NOISE`] of a regime
-    /// line, else "firm".
+    /// line or on a coarse mesh ([`RegionResult::coarse_mesh`]), else
+    /// "firm".
     pub fn firmness(&self) -> &'static str {
         let [lo, hi] = self.separated_band;
         if verdict(lo) != verdict(hi) || self.sides.is_some() || self.counts_differ() {
             "uncertain"
-        } else if self.near_line().is_some() {
+        } else if self.near_line().is_some() || self.coarse_mesh {
             "provisional"
         } else {
             "firm"
@@ -183,8 +195,12 @@ impl RegionResult {
             None => String::new(),
         };
         let near = match (self.band_words(), self.near_line()) {
-            (Some((_, _, true)), _) | (_, None) => String::new(),
+            (Some((_, _, true)), _) => String::new(),
             _ if self.sides.is_some() => String::new(),
+            (_, None) if self.coarse_mesh && !self.counts_differ() => {
+                format!("; {COARSE_WORDS}: a provisional verdict")
+            }
+            (_, None) => String::new(),
             (_, Some(line)) => format!(
                 "; within {:.0} points of the {:.0} % line, which a panel count 10 % off can cross: \
                  a provisional verdict",
@@ -221,13 +237,19 @@ impl RegionResult {
     /// partly separated (21 to 41 %)", "17 % attached (17 to 28 %,
     /// verdict uncertain)" when the range would change the verdict.
     pub fn short_words(&self) -> String {
-        let near = self.near_line().is_some();
-        let range = match self.band_words() {
-            Some((lo, hi, true)) => format!(" ({lo} to {hi} %, verdict uncertain)"),
-            Some((lo, hi, false)) if near => format!(" ({lo} to {hi} %, near a line: provisional)"),
-            Some((lo, hi, false)) => format!(" ({lo} to {hi} %)"),
-            None if near => " (near a line: provisional)".to_owned(),
-            None => String::new(),
+        let tag = if self.near_line().is_some() {
+            Some("near a line: provisional")
+        } else if self.coarse_mesh {
+            Some("few panels: provisional")
+        } else {
+            None
+        };
+        let range = match (self.band_words(), tag) {
+            (Some((lo, hi, true)), _) => format!(" ({lo} to {hi} %, verdict uncertain)"),
+            (Some((lo, hi, false)), Some(tag)) => format!(" ({lo} to {hi} %, {tag})"),
+            (Some((lo, hi, false)), None) => format!(" ({lo} to {hi} %)"),
+            (None, Some(tag)) => format!(" ({tag})"),
+            (None, None) => String::new(),
         };
         let range = match self.sides {
             Some([l, r]) => format!(
@@ -524,6 +546,7 @@ pub fn evaluate(
                 standing: String::new(),
                 sides: one_sided(mesh, halves),
                 at_counts: None,
+                coarse_mesh: false,
             }
         })
         .map(|mut r| {
@@ -689,6 +712,32 @@ mod tests {
     /// counts makes the verdict uncertain and says so (a review's pickup
     /// bed: 36 % at its own count, 73 and 67 % at the others, had read
     /// "firm"); three shares with one verdict change nothing.
+    /// On under half of the suggested panels no verdict is firm, wherever
+    /// its share lies (a review's mirror-flank box: 32 %, "firm", at 3,500
+    /// of 8,000 suggested panels, 2 % as a half model).
+    #[test]
+    fn a_verdict_on_a_coarse_mesh_is_provisional() {
+        let mut r = RegionResult::example("flank", 0.32, None);
+        assert_eq!(r.firmness(), "firm");
+        r.coarse_mesh = true;
+        assert_eq!(r.firmness(), "provisional");
+        assert!(
+            r.words().ends_with(&format!(
+                "(32 % separated; {COARSE_WORDS}: a provisional verdict)"
+            )),
+            "{}",
+            r.words()
+        );
+        assert!(
+            r.short_words().contains("(few panels: provisional)"),
+            "{}",
+            r.short_words()
+        );
+        // Uncertain stays uncertain.
+        r.separated_band = [0.1, 0.32];
+        assert_eq!(r.firmness(), "uncertain");
+    }
+
     #[test]
     fn a_verdict_that_moves_with_the_panel_count_is_uncertain() {
         let mut r = RegionResult::example("bed floor", 0.36, None);

@@ -378,6 +378,17 @@ impl Summary {
         )
     }
 
+    /// Whether the run was solved on under half of the panels suggested
+    /// for its body: its region verdicts are then at best provisional
+    /// ([`crate::region::RegionResult::coarse_mesh`]).
+    pub fn under_half_suggested(&self) -> bool {
+        self.mesh
+            .preparation
+            .get("suggested_panels")
+            .and_then(serde_json::Value::as_u64)
+            .is_some_and(|n| 2 * self.mesh.panels < n as usize)
+    }
+
     /// Whether the run was on every facet of its STL (nothing was
     /// coarsened): `geometry.panels` cannot give it more, only a finer
     /// export can ([`crate::pipeline::raise_advice`]).

@@ -652,6 +652,12 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     };
     s.notes.extend(s.coarse_note());
     s.notes.extend(c.region_notes.iter().cloned());
+    if s.under_half_suggested() {
+        for r in &mut s.regions {
+            r.coarse_mesh = true;
+            r.standing = r.firmness().into();
+        }
+    }
     s
 }
 
