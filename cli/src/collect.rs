@@ -21,7 +21,7 @@ use serde::{Deserialize, Serialize};
 use crate::compare::read_summary;
 use crate::output::html::escape;
 use crate::output::plot::{
-    LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, Whiskers, draw_line_plot,
+    LinePlot, OffScale, PlotParams, SERIES_COLOURS, Series, Whiskers, YBand, draw_line_plot,
 };
 use crate::region::{RegionResult, SurfaceKind};
 use crate::sweep::group::{VARIANT_FILE, VariantRecord};
@@ -1653,6 +1653,24 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // grey, leaves no room for two more grey lines). The legend
             // names them; the subtitle is full.
             let whiskers = (k == 0).then(|| drag_whiskers(c, key)).flatten();
+            // One drag line: the noise floor above its lowest point shaded
+            // across the plot, so a trend within it reads as one (a
+            // review's spoiler sweep fell 186, 180, 179 counts on a
+            // 20-count axis, "no clear winner" in the text only).
+            let y_band = band
+                .then(|| {
+                    lines
+                        .iter()
+                        .find(|l| l.name == "estimate")
+                        .and_then(|l| l.points.iter().map(|p| p.1).reduce(f64::min))
+                })
+                .flatten()
+                .filter(|lo| lo.is_finite())
+                .map(|lo| YBand {
+                    span: (lo, lo + noise),
+                    name: format!("within the noise floor ({noise:.0} counts) of the lowest drag"),
+                    colour: FLOOR_TINT,
+                });
             let plot = LinePlot {
                 title: format!("{what} against {}, sweep {}", key_words(key), c.sweep),
                 subtitle: plot_subtitle(&speed_of_plot(c), k == 0, band, several, noise)
@@ -1681,6 +1699,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 },
                 x_categories: categories.clone(),
                 whiskers,
+                y_band,
                 note: if underbody_note {
                     UNDERBODY_PLOT_NOTE.into()
                 } else {
@@ -2108,6 +2127,10 @@ fn unit_of(key: &str) -> &'static str {
 
 /// The colour of a drag band's ends on the sweep's drag plot.
 const BAND_GREY: crate::output::canvas::Rgb = [150, 150, 150];
+
+/// The tint of the drag plot's noise floor above its lowest point, a pale
+/// green multiplied into the grid and curves under it.
+const FLOOR_TINT: crate::output::canvas::Rgb = [214, 238, 214];
 
 /// One line per combination of the other swept keys' values, in the
 /// order of those values (numbers as numbers: 6 before 14.5 before 22).

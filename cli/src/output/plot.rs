@@ -85,6 +85,21 @@ pub struct LinePlot {
     /// variant's least and most over three panel counts), behind the
     /// curves; they count towards the vertical axis.
     pub whiskers: Option<Whiskers>,
+    /// A stretch of y shaded across the whole width behind the curves (a
+    /// sweep's lowest drag and the noise floor above it), one legend
+    /// entry; it counts towards the vertical axis.
+    pub y_band: Option<YBand>,
+}
+
+/// A stretch of the vertical axis shaded across the plot ([`LinePlot::y_band`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct YBand {
+    /// `(from, to)` in data units.
+    pub span: (f64, f64),
+    /// Legend text.
+    pub name: String,
+    /// Tint, multiplied into what lies under it.
+    pub colour: Rgb,
 }
 
 /// Vertical bars with caps ([`LinePlot::whiskers`]), one legend entry.
@@ -168,6 +183,9 @@ pub fn draw_line_plot(
     for sh in &plot.shading {
         draw_shading(&mut c, sh, &frame);
     }
+    if let Some(band) = &plot.y_band {
+        draw_y_band(&mut c, band, &frame);
+    }
     draw_grid_and_ticks(&mut c, &frame, plot.invert_y, &plot.x_categories);
     let above = plot
         .off_scale
@@ -242,6 +260,9 @@ pub fn draw_line_plot(
     for sh in plot.shading.iter().filter(|sh| !sh.spans.is_empty()) {
         keys.push(Key::Patch(sh.name.clone(), sh.colour));
     }
+    if let Some(band) = &plot.y_band {
+        keys.push(Key::Patch(band.name.clone(), band.colour));
+    }
     if let Some(w) = plot.whiskers.as_ref().filter(|w| !w.bars.is_empty()) {
         keys.push(Key::Whisker(w.name.clone()));
     }
@@ -301,6 +322,27 @@ fn whisker_marks(plot: &LinePlot, f: &PlotFrame) -> Vec<(f64, f64)> {
         .collect()
 }
 
+/// The shaded stretch of y, across the plot area.
+fn draw_y_band(c: &mut Canvas, band: &YBand, f: &PlotFrame) {
+    let (l, t, w, h) = f.rect;
+    let (_, ya) = f.pixel_at(f.x_range.0, band.span.0);
+    let (_, yb) = f.pixel_at(f.x_range.0, band.span.1);
+    let (top, bottom) = (ya.min(yb).clamp(t, t + h), ya.max(yb).clamp(t, t + h));
+    multiply_box(c, (l, top), (l + w, bottom), band.colour);
+}
+
+/// Multiply `colour` into the pixels of the box from `a` to `b` (pixels),
+/// so that what lies under it still shows.
+fn multiply_box(c: &mut Canvas, a: (f64, f64), b: (f64, f64), colour: Rgb) {
+    for y in a.1.round() as i64..b.1.round() as i64 {
+        for x in a.0.round() as i64..b.0.round() as i64 {
+            let under = c.pixel(x, y);
+            let mixed = [0, 1, 2].map(|k| (u16::from(under[k]) * u16::from(colour[k]) / 255) as u8);
+            c.blend(x, y, mixed, 1.0);
+        }
+    }
+}
+
 /// The shaded stretches of x, over the share of the plot area's height
 /// the shading's rows give.
 fn draw_shading(c: &mut Canvas, sh: &Shading, f: &PlotFrame) {
@@ -310,14 +352,7 @@ fn draw_shading(c: &mut Canvas, sh: &Shading, f: &PlotFrame) {
         let (xa, _) = f.pixel_at(a.min(b), f.y_range.0);
         let (xb, _) = f.pixel_at(a.max(b), f.y_range.0);
         let (xa, xb) = (xa.clamp(l, l + w), xb.clamp(l, l + w));
-        for y in top.round() as i64..bottom.round() as i64 {
-            for x in xa.round() as i64..xb.round() as i64 {
-                let under = c.pixel(x, y);
-                let mixed =
-                    [0, 1, 2].map(|k| (u16::from(under[k]) * u16::from(sh.colour[k]) / 255) as u8);
-                c.blend(x, y, mixed, 1.0);
-            }
-        }
+        multiply_box(c, (xa, top), (xb, bottom), sh.colour);
     }
 }
 
@@ -397,6 +432,12 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
     };
     let mut ys = finite(|p| p.1);
     ys.extend(plot.whiskers.iter().flat_map(Whiskers::ends).map(|p| p.1));
+    ys.extend(
+        plot.y_band
+            .iter()
+            .flat_map(|b| [b.span.0, b.span.1])
+            .filter(|v| v.is_finite()),
+    );
     // An off-scale curve joins the axis when that at most doubles it;
     // otherwise the others keep the height (a drag band's top had squeezed
     // the estimates into 6 % of it).
@@ -713,6 +754,7 @@ fn legend_room(plot: &LinePlot, f: &PlotFrame) -> Option<f64> {
             .filter(|sh| !sh.spans.is_empty())
             .map(|sh| sh.name.clone()),
     );
+    names.extend(plot.y_band.iter().map(|b| b.name.clone()));
     names.extend(
         plot.whiskers
             .iter()
@@ -1243,6 +1285,45 @@ mod tests {
         assert!(hi - lo >= 24.0 && lo < 120.0 && hi > 124.0, "{lo} {hi}");
         let (lo, hi) = plot_frame(&plot(0.0), &params).y_range;
         assert!(hi - lo < 10.0, "{lo} {hi}");
+    }
+
+    /// A band of y (a sweep's lowest drag and the noise floor above it)
+    /// is tinted across the plot, widens the axis to its ends and has a
+    /// legend entry; outside it the plot stays white.
+    #[test]
+    fn a_y_band_is_tinted_across_the_plot() {
+        let plot = LinePlot {
+            series: vec![
+                Series {
+                    name: "band, low end".into(),
+                    points: vec![(0.0, 170.0), (1.0, 171.0)],
+                    colour: MUTED,
+                },
+                Series {
+                    name: "estimate".into(),
+                    points: vec![(0.0, 186.0), (1.0, 179.0)],
+                    colour: INK,
+                },
+            ],
+            y_band: Some(YBand {
+                span: (179.0, 195.0),
+                name: "within the noise floor".into(),
+                colour: [200, 240, 200],
+            }),
+            ..LinePlot::default()
+        };
+        let (c, f) = draw_line_plot(&plot, &PlotParams::default()).unwrap();
+        assert!(f.y_range.1 >= 195.0, "{:?}", f.y_range);
+        // Between grid lines, left of the points: tinted inside, white
+        // outside.
+        let at = |y: f64| {
+            let (px, py) = f.pixel_at(f.x_range.0, y);
+            c.pixel(px.round() as i64 + 30, py.round() as i64)
+        };
+        let inside = at(192.3);
+        assert!(inside[1] > inside[0] + 20, "{inside:?}");
+        let outside = at(175.3);
+        assert_eq!(outside, [255, 255, 255]);
     }
 
     /// Whiskers widen the axis to their ends and are drawn in their
