@@ -824,13 +824,52 @@ pub fn underbody_words(s: &Summary) -> Option<String> {
         let u = s.lift_kg.underbody_axle_words();
         format!(
             "underbody {} kg (front {}, rear {}), rest of the body {} kg; the smooth underbody is the \
-             least certain part: a real one sucks far less",
+             least certain part: a real one sucks far less{}",
             u[0],
             u[1],
             u[2],
-            s.lift_kg.rest_words()
+            s.lift_kg.rest_words(),
+            floor_sign_words(&s.lift_kg)
         )
     })
+}
+
+/// Where the lift's sign is the floor's: the total, or an axle's share,
+/// is downforce while the rest of the body lifts there, so the sign rests
+/// on the least certain part (a review's SUV read -74 kg, front -49 and
+/// rear -25, from an underbody's -162 kg against +88 kg from the rest:
+/// downforce on both axles of a road SUV, a sign a tunnel would not
+/// show). Empty where the rest of the body agrees in sign.
+fn floor_sign_words(l: &crate::summary::LiftKg) -> String {
+    // The rest as the numbers shown beside it make it, so they add up.
+    let (total, under) = (l.axle_words(), l.underbody_axle_words());
+    let shown = |w: &str| w.parse::<f64>().unwrap_or(f64::NAN);
+    let places = |w: &str| w.split('.').nth(1).map_or(0, str::len);
+    let rest = |k: usize| match k {
+        0 => l.rest_words(),
+        _ => output::signed(shown(&total[k]) - shown(&under[k]), places(&total[k])),
+    };
+    let flipped: Vec<(&str, String)> = [
+        ("the whole body", l.total, l.underbody),
+        ("the front axle", l.front_axle, l.underbody_front_axle),
+        ("the rear axle", l.rear_axle, l.underbody_rear_axle),
+    ]
+    .into_iter()
+    .enumerate()
+    .filter(|&(_, (_, t, u))| t < -0.5 && t - u > 0.5)
+    .map(|(k, (name, _, _))| (name, rest(k)))
+    .collect();
+    if flipped.is_empty() {
+        return String::new();
+    }
+    let names: Vec<&str> = flipped.iter().map(|f| f.0).collect();
+    let lifts: Vec<String> = flipped.iter().map(|f| format!("{} kg", f.1)).collect();
+    format!(
+        "; the downforce on {} is the floor's: without its suction the rest of the body lifts there \
+         ({}), so read neither its sign nor its size as the car's",
+        output::and_list(&names),
+        output::and_list(&lifts)
+    )
 }
 
 /// The drag force with the band's ends, each times `scale` (1 for N:
@@ -1385,6 +1424,33 @@ mod tests {
     /// from the underbody); not in free air, nor when it is negligible.
     #[test]
     fn the_underbodys_part_is_named_whenever_it_pulls_down() {
+        // A review's SUV: downforce on both axles, all of it the floor's.
+        let mut suv = crate::summary::Summary::default();
+        suv.mesh.ground_z = Some(0.0);
+        suv.lift_kg.total = -74.0;
+        suv.lift_kg.front_axle = -49.0;
+        suv.lift_kg.rear_axle = -25.0;
+        suv.lift_kg.underbody = -162.0;
+        suv.lift_kg.underbody_front_axle = -83.0;
+        suv.lift_kg.underbody_rear_axle = -79.0;
+        let words = super::underbody_words(&suv).unwrap();
+        assert!(
+            words.ends_with(
+                "; the downforce on the whole body, the front axle and the rear axle is the floor's: \
+                 without its suction the rest of the body lifts there (+88 kg, +34 kg and +54 kg), so \
+                 read neither its sign nor its size as the car's"
+            ),
+            "{words}"
+        );
+        // The rear's own downforce stays when the rest pulls down there too.
+        suv.lift_kg.rear_axle = -85.0;
+        suv.lift_kg.total = -134.0;
+        let words = super::underbody_words(&suv).unwrap();
+        assert!(
+            words.contains("the downforce on the whole body and the front axle is the floor's")
+                && words.contains("(+28 kg and +34 kg)"),
+            "{words}"
+        );
         let mut s = crate::summary::Summary::default();
         s.mesh.ground_z = Some(0.0);
         s.lift_kg.total = 20.0;

@@ -153,11 +153,7 @@ pub fn values_words(d: &[f64], decimals: usize) -> String {
         .iter()
         .map(|v| crate::output::signed(*v, decimals))
         .collect();
-    match words.as_slice() {
-        [] => String::new(),
-        [one] => one.clone(),
-        [rest @ .., last] => format!("{} and {last}", rest.join(", ")),
-    }
+    crate::output::and_list(&words)
 }
 
 #[cfg(test)]

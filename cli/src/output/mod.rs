@@ -392,6 +392,18 @@ pub fn fixed(v: f64, places: usize) -> String {
     format!("{:.places$}", rounded(v, places))
 }
 
+/// Items in words: "a", "a and b", "a, b and c".
+pub fn and_list<S: AsRef<str>>(items: &[S]) -> String {
+    match items {
+        [] => String::new(),
+        [one] => one.as_ref().to_owned(),
+        [rest @ .., last] => {
+            let rest: Vec<&str> = rest.iter().map(AsRef::as_ref).collect();
+            format!("{} and {}", rest.join(", "), last.as_ref())
+        }
+    }
+}
+
 /// `n` with a comma between groups of three digits: "1,240,000".
 pub fn grouped(n: f64) -> String {
     if !(n < 1e15) {
