@@ -464,6 +464,28 @@ fn a_floor_on_the_ground_is_warned_about_before_running() {
     assert!(text.contains("verdict    usable"), "{text}");
 }
 
+/// A body read back to front (the demo coupe's file with its nose taken
+/// to be at +x) is doubtful, exit 1, naming the nose setting: a review's
+/// SUV read "usable", exit 0, and its run stopped on an unphysical flow.
+#[test]
+fn a_body_read_back_to_front_is_doubtful() {
+    let stl = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/coupe.stl");
+    let stl = stl.to_str().unwrap();
+    let args = |nose| [stl, "--units", "mm", "--nose", nose, "--panels", "1500"];
+    let out = check(&args("+x"));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("warning: the end meeting the wind is the flatter one")
+            && text.contains("verdict    doubtful: the end meeting the wind is the flatter one")
+            && text.contains("geometry.nose = \"-x\""),
+        "{text}"
+    );
+    assert_eq!(out.status.code(), Some(1), "{text}");
+    let out = check(&args("-x"));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(!text.contains("flatter one"), "{text}");
+}
+
 /// A case with a built-in shape is checked as the run generates it, and
 /// its panels saved in metres: a variant to take into a modeller.
 #[test]
