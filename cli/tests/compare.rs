@@ -126,6 +126,8 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
     let copy = dir.path().join("c22-copy");
     copy_dir(Path::new(&a), &copy);
     let same = compare(&a, copy.to_str().unwrap(), &dir.path().join("self"));
+    // Nothing changed, so no close-up of a change.
+    assert!(!dir.path().join("self/delta-cp-close-up.png").exists());
     for (k, v) in same["deltas"].as_object().unwrap() {
         // Beside the differences: the noise a lift difference is set
         // against, and the built-in floor within it.
@@ -157,6 +159,17 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
 
     // Two slopes: the deltas follow from the two summaries.
     let c = compare(&a, &b, &dir.path().join("slopes"));
+    // The rear window's change, under a third of the body long, also seen
+    // close up (two reviews read a mirror head and a spoiler's lip as a
+    // few pixels on the whole-body views), on the page too.
+    let html = std::fs::read_to_string(dir.path().join("slopes/compare.html")).unwrap();
+    for f in ["delta-cp-close-up.png", "separation-change-close-up.png"] {
+        assert!(dir.path().join("slopes").join(f).is_file(), "{f}");
+    }
+    assert!(
+        html.contains("Cp of B minus Cp of A, close-up of the changed shape (outlined in black)"),
+        "the close-up on the page"
+    );
     let sa: Value =
         serde_json::from_str(&std::fs::read_to_string(Path::new(&a).join("summary.json")).unwrap())
             .unwrap();

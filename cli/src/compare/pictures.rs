@@ -11,7 +11,10 @@ use crate::outdir::Staging;
 use crate::output::colorbar::{ColourScale, Swatch};
 use crate::output::html::{self, NumberRow, Picture, Report, TextSection};
 use crate::output::render::PanelPaint;
-use crate::output::sheet::{FieldStyle, NO_VALUE, field_sheet};
+use crate::output::render::View;
+use crate::output::sheet::{
+    FieldStyle, NO_VALUE, SheetParams, close_up_layout, field_sheet, field_sheet_in,
+};
 use crate::output::{self, Caption, PanelState};
 
 /// Stripes where separation appears in B (dark red on light red).
@@ -40,6 +43,79 @@ const CHANGED_OUTLINE: output::outline::OutlineStyle = output::outline::OutlineS
 /// bodies differ nearly everywhere (another car, or one moved), and an
 /// outline round most of the body says nothing (our choice).
 const CHANGED_OUTLINE_SHARE: f64 = 0.5;
+
+/// A changed shape whose extent (along x, across y on its own side, up z)
+/// stays under this share of the body's length gets a close-up sheet
+/// ([`close_up`]): on the five whole-body views a mirror head or a
+/// spoiler's lip is a few pixels (two reviews; our choice).
+const CLOSE_UP_SHARE: f64 = 0.35;
+
+/// Room round the changed shape in a close-up, on each side: its largest
+/// extent times this, but no less than [`CLOSE_UP_ROOM_M`].
+const CLOSE_UP_ROOM: f64 = 0.6;
+
+/// The least room round the changed shape in a close-up, metres.
+const CLOSE_UP_ROOM_M: f64 = 0.25;
+
+/// The box (with room round it, [`CLOSE_UP_ROOM`]) and views of a
+/// close-up of the changed panels `member` (over B's display triangles,
+/// images after the real panels, which are left out), or `None` where
+/// the change is not compact ([`CLOSE_UP_SHARE`]) or there is none. Of a
+/// change on both sides (two mirror heads) the side at y >= 0 is framed,
+/// as a half model's is. The views: the side view of the sheet, from
+/// above or from underneath as the changed panels face, and from the
+/// front or the rear as the change lies in the front or rear half of the
+/// body.
+fn close_up(
+    mesh_b: &PanelMesh,
+    member: &[bool],
+    yaw_deg: f64,
+) -> Option<((tuft_mesh::Point, tuft_mesh::Point), Vec<View>)> {
+    let all: Vec<&tuft_mesh::panels::Panel> = mesh_b
+        .panels
+        .iter()
+        .zip(member)
+        .filter(|(_, m)| **m)
+        .map(|(p, _)| p)
+        .collect();
+    let near: Vec<&tuft_mesh::panels::Panel> = all
+        .iter()
+        .copied()
+        .filter(|p| p.centroid.y >= 0.0)
+        .collect();
+    let changed = if near.is_empty() { all } else { near };
+    let first = changed.first()?;
+    let (mut lo, mut hi) = (first.centroid, first.centroid);
+    let mut facing_down = 0.0;
+    for p in &changed {
+        for v in &p.vertices {
+            lo = lo.inf(v);
+            hi = hi.sup(v);
+        }
+        facing_down -= p.area * p.normal.z;
+    }
+    let (blo, bhi) = mesh_b.bounds();
+    let length = bhi.x - blo.x;
+    let extent = (hi - lo).max();
+    if extent >= CLOSE_UP_SHARE * length {
+        return None;
+    }
+    let room = (CLOSE_UP_ROOM * extent).max(CLOSE_UP_ROOM_M);
+    let pad = tuft_mesh::Vector::new(room, room, room);
+    let (lo, hi) = (lo - pad, hi + pad);
+    let side = View::sheet(yaw_deg)[0];
+    let plan = if facing_down > 0.0 {
+        View::Underneath
+    } else {
+        View::Top
+    };
+    let end = if 0.5 * (lo.x + hi.x) > 0.5 * (blo.x + bhi.x) {
+        View::Rear
+    } else {
+        View::Front
+    };
+    Some(((lo, hi), vec![side, plan, end]))
+}
 
 /// Share of B's surface outlined as changed, or `None` when none is or
 /// too much is ([`CHANGED_OUTLINE_SHARE`]).
@@ -97,9 +173,9 @@ pub fn write(
         what: "Cp difference".into(),
         note: delta_cp_note(&cmp.surface, outlined),
     };
-    let mut dcp = field_sheet(&surface, &cp_style, &caption, &|i| {
-        PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
-    })?;
+    let cp_paint =
+        |i: usize| PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE));
+    let mut dcp = field_sheet(&surface, &cp_style, &caption, &cp_paint)?;
     let sep_style = FieldStyle {
         scale: ColourScale::diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
         legend: vec![
@@ -125,7 +201,7 @@ pub fn write(
         note: separation_change_note(&cmp.surface, outlined),
     };
     let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
-    let mut dsep = field_sheet(&surface, &sep_style, &caption, &|i| {
+    let sep_paint = |i: usize| {
         let sep_b = owned.state()[i] == PanelState::Separated;
         match (sep_a(i), sep_b) {
             (false, true) => PanelPaint::Hatched(APPEARS.0, APPEARS.1),
@@ -135,17 +211,76 @@ pub fn write(
                 PanelPaint::Solid(sep_style.scale.colour(f.delta_risk[i]).unwrap_or(NO_VALUE))
             }
         }
-    })?;
+    };
+    let mut dsep = field_sheet(&surface, &sep_style, &caption, &sep_paint)?;
     // Where the shape changed, outlined first (unnamed: the note says
     // what the line is), then B's named regions as on its own pictures.
+    let mark = changed_mark(mesh_b, mapping, cmp.surface.margins_m[1]);
     if outlined {
         output::outline::draw_outlines_unnamed(
             &mut dcp,
             mesh_b,
-            &[changed_mark(mesh_b, mapping, cmp.surface.margins_m[1])],
+            std::slice::from_ref(&mark),
             CHANGED_OUTLINE,
             caption.yaw_deg,
         );
+    }
+    // A compact change seen close up, on both fields, outlined there too.
+    let mut close_ups = Vec::new();
+    if let Some((bounds, views)) =
+        close_up(mesh_b, &mark.member, caption.yaw_deg).filter(|_| outlined)
+    {
+        let layout = close_up_layout(&views, bounds, &SheetParams::default());
+        let on = output::outline::RegionViews {
+            views: &layout.views,
+            named: |_| false,
+            flow_corner: true,
+            scale_bar: true,
+        };
+        let sheets: [(&str, &FieldStyle, &dyn Fn(usize) -> PanelPaint, &str); 2] = [
+            (
+                "delta-cp-close-up.png",
+                &cp_style,
+                &cp_paint,
+                "Cp of B minus Cp of A",
+            ),
+            (
+                "separation-change-close-up.png",
+                &sep_style,
+                &sep_paint,
+                "Where separation appears or disappears",
+            ),
+        ];
+        for (name, style, paint, what) in sheets {
+            let close = FieldStyle {
+                what: format!("{}, close-up", style.what),
+                ..style.clone()
+            };
+            let mut img = field_sheet_in(&surface, &close, &caption, &layout, paint)?;
+            output::outline::draw_regions_in(
+                &mut img,
+                mesh_b,
+                std::slice::from_ref(&mark),
+                CHANGED_OUTLINE,
+                &on,
+            );
+            close_ups.push((
+                name,
+                Picture {
+                    title: format!(
+                        "{what}, close-up of the changed shape (outlined in black): {}",
+                        output::and_list(
+                            &layout
+                                .views
+                                .iter()
+                                .map(|(v, _)| v.label_at(caption.yaw_deg))
+                                .collect::<Vec<_>>()
+                        )
+                    ),
+                    png: img.to_png()?,
+                },
+            ));
+        }
     }
     let marks = crate::region::marks(&b.regions(), mesh_b);
     output::outline::draw_regions(&mut dcp, mesh_b, &marks, caption.yaw_deg);
@@ -181,6 +316,8 @@ pub fn write(
             },
         ),
     ];
+    let mut pictures = pictures;
+    pictures.extend(close_ups);
     for (name, p) in &pictures {
         std::fs::write(out.file(name), &p.png).with_context(|| name.to_string())?;
     }
@@ -457,6 +594,48 @@ mod tests {
     /// 0.085 in the table and 0.0848 in compare.json).
     /// The changed shape is outlined when some and at most half of B's
     /// surface changed.
+    /// A compact change is framed with room round it, on its side at
+    /// y >= 0, in the side view, from above (it faces up) and from the
+    /// rear (it lies in the rear half); one along most of the body is not.
+    #[test]
+    fn a_compact_change_is_framed_close_up() {
+        let body = tuft_mesh::generate::ahmed(25.0, 2000).unwrap();
+        let mesh = PanelMesh::new(body, tuft_mesh::Mirrors::none()).unwrap();
+        let (lo, hi) = mesh.bounds();
+        let length = hi.x - lo.x;
+        // The slant's panels near its top edge: facing up, at the tail.
+        let member: Vec<bool> = mesh
+            .panels
+            .iter()
+            .map(|p| p.normal.z > 0.3 && p.normal.x > 0.1 && p.centroid.x > hi.x - 0.15 * length)
+            .collect();
+        assert!(member.iter().any(|m| *m));
+        let ((blo, bhi), views) = close_up(&mesh, &member, 0.0).unwrap();
+        assert_eq!(views, [View::Side, View::Top, View::Rear]);
+        // Room of at least 0.25 m round the part; only the side at y >= 0.
+        let changed = mesh
+            .panels
+            .iter()
+            .zip(&member)
+            .filter(|(p, m)| **m && p.centroid.y >= 0.0);
+        for (p, _) in changed {
+            for v in &p.vertices {
+                assert!(
+                    v.x >= blo.x + 0.25 && v.x <= bhi.x - 0.25,
+                    "{v:?} {blo:?} {bhi:?}"
+                );
+            }
+        }
+        assert!(blo.y >= -0.26, "{blo:?}");
+        // At yaw the sheet's side view, and nothing for a change along
+        // the whole body.
+        let ((_, _), views) = close_up(&mesh, &member, 5.0).unwrap();
+        assert_eq!(views[0], View::SideFromRight);
+        let everywhere = vec![true; mesh.len()];
+        assert!(close_up(&mesh, &everywhere, 0.0).is_none());
+        assert!(close_up(&mesh, &vec![false; mesh.len()], 0.0).is_none());
+    }
+
     #[test]
     fn the_changed_shape_is_outlined_only_where_it_says_something() {
         let u = |changed_m2: f64| crate::compare::SurfaceDeltas {

@@ -191,15 +191,126 @@ fn field_sheet_with_params(
     paint: &dyn Fn(usize) -> PanelPaint,
 ) -> Result<Canvas, OutputError> {
     let mut canvas = views_sheet(s, caption, params, paint, &mut |_, _, _, _| {})?;
-    draw_titles(&mut canvas, &caption.title(&style.what), &style.note);
+    finish_field_sheet(&mut canvas, style, caption, params);
+    Ok(canvas)
+}
+
+/// A field sheet's titles and colour bar.
+fn finish_field_sheet(
+    canvas: &mut Canvas,
+    style: &FieldStyle,
+    caption: &Caption,
+    params: &SheetParams,
+) {
+    draw_titles(canvas, &caption.title(&style.what), &style.note);
     let bar_x = f64::from(params.width) - BAR_COLUMN + 36.0;
     let bar_h = (f64::from(params.height) * 0.5).min(520.0);
     colorbar::draw_bar(
-        &mut canvas,
+        canvas,
         &style.scale,
         (bar_x as f32, (TITLE_BAND + 50.0) as f32, 30.0, bar_h as f32),
         &style.legend,
     );
+}
+
+/// The largest share of a close-up's picture the box it frames takes
+/// ([`close_up_layout`]; our choice, room round the part to see what it
+/// meets).
+const CLOSE_UP_FILL: f64 = 0.7;
+
+/// Frames for a close-up of the box `lo`..`hi` (metres) in `views` (up to
+/// four, one to a cell of the sheet's two by two), each at the largest
+/// scale at which the box fills at most [`CLOSE_UP_FILL`] of its picture
+/// (a wide part's plan view would otherwise set a small scale for its
+/// profile too; each view carries its own scale bar), centred on the box.
+pub fn close_up_layout(views: &[View], (lo, hi): (Point, Point), params: &SheetParams) -> Layout {
+    let cell_w = (f64::from(params.width) - BAR_COLUMN - 20.0) / 2.0;
+    let cell_h = (f64::from(params.height) - TITLE_BAND - 10.0) / 2.0;
+    let (pic_w, pic_h) = (cell_w - 30.0, cell_h - LABEL_BAND - 14.0);
+    let corners: Vec<Point> = (0..8)
+        .map(|k| {
+            Point::new(
+                if k & 1 == 0 { lo.x } else { hi.x },
+                if k & 2 == 0 { lo.y } else { hi.y },
+                if k & 4 == 0 { lo.z } else { hi.z },
+            )
+        })
+        .collect();
+    let extents: Vec<(f64, f64, f64, f64)> = views
+        .iter()
+        .map(|v| {
+            let (right, up, _) = v.basis();
+            corners.iter().fold(
+                (
+                    f64::INFINITY,
+                    f64::NEG_INFINITY,
+                    f64::INFINITY,
+                    f64::NEG_INFINITY,
+                ),
+                |e, p| {
+                    let (u, w) = (p.coords.dot(&right), p.coords.dot(&up));
+                    (e.0.min(u), e.1.max(u), e.2.min(w), e.3.max(w))
+                },
+            )
+        })
+        .collect();
+    let fit = |e: &(f64, f64, f64, f64)| {
+        usable_scale(
+            (CLOSE_UP_FILL * pic_w / (e.1 - e.0).max(1e-6))
+                .min(CLOSE_UP_FILL * pic_h / (e.3 - e.2).max(1e-6)),
+        )
+    };
+    let views = views
+        .iter()
+        .zip(extents)
+        .take(4)
+        .enumerate()
+        .map(|(k, (&v, e))| {
+            let left = 20.0 + cell_w * (k % 2) as f64 + 10.0;
+            let top = TITLE_BAND + cell_h * (k / 2) as f64 + LABEL_BAND;
+            let frame = Frame {
+                scale: fit(&e),
+                centre: (0.5 * (e.0 + e.1), 0.5 * (e.2 + e.3)),
+                rect: (left as i64, top as i64, pic_w as i64, pic_h as i64),
+            };
+            (v, frame)
+        })
+        .collect();
+    Layout { views }
+}
+
+/// A field sheet as [`field_sheet`] draws it, in the views and frames of
+/// `layout` ([`close_up_layout`]): a close-up of part of the body.
+///
+/// # Errors
+/// As [`surface_sheet`].
+pub fn field_sheet_in(
+    s: &SurfaceResult<'_>,
+    style: &FieldStyle,
+    caption: &Caption,
+    layout: &Layout,
+    paint: &dyn Fn(usize) -> PanelPaint,
+) -> Result<Canvas, OutputError> {
+    s.validate()?;
+    let params = SheetParams::default();
+    let mut canvas = Canvas::new(params.width, params.height)?;
+    let tris = display_triangles(s.mesh);
+    for (view, frame) in &layout.views {
+        draw_cell(
+            &mut canvas,
+            &tris,
+            *view,
+            frame,
+            (&params, caption.yaw_deg),
+            paint,
+        );
+        decorate(&mut canvas, s, *view, frame, caption);
+        // Each view at its own scale, each with its bar.
+        if !view.is_side() {
+            draw_scale_bar(&mut canvas, frame);
+        }
+    }
+    finish_field_sheet(&mut canvas, style, caption, &params);
     Ok(canvas)
 }
 
