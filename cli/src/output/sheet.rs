@@ -291,25 +291,15 @@ pub fn field_sheet_in(
     layout: &Layout,
     paint: &dyn Fn(usize) -> PanelPaint,
 ) -> Result<Canvas, OutputError> {
-    s.validate()?;
     let params = SheetParams::default();
-    let mut canvas = Canvas::new(params.width, params.height)?;
-    let tris = display_triangles(s.mesh);
-    for (view, frame) in &layout.views {
-        draw_cell(
-            &mut canvas,
-            &tris,
-            *view,
-            frame,
-            (&params, caption.yaw_deg),
-            paint,
-        );
-        decorate(&mut canvas, s, *view, frame, caption);
-        // Each view at its own scale, each with its bar.
+    // Each view at its own scale, each with its bar (the side view's
+    // comes with its decorations).
+    let mut bars = |c: &mut Canvas, _: &[DisplayTri], view: View, frame: &Frame| {
         if !view.is_side() {
-            draw_scale_bar(&mut canvas, frame);
+            draw_scale_bar(c, frame);
         }
-    }
+    };
+    let mut canvas = views_sheet_in(s, caption, &params, Some(layout), paint, &mut bars)?;
     finish_field_sheet(&mut canvas, style, caption, &params);
     Ok(canvas)
 }
@@ -330,10 +320,30 @@ pub(crate) fn views_sheet(
     paint: &dyn Fn(usize) -> PanelPaint,
     overlay: &mut Overlay<'_>,
 ) -> Result<Canvas, OutputError> {
+    views_sheet_in(s, caption, params, None, paint, overlay)
+}
+
+/// [`views_sheet`] in the views and frames of `layout`, or of the
+/// whole-body sheet ([`layout_at`]) for `None`.
+fn views_sheet_in(
+    s: &SurfaceResult<'_>,
+    caption: &Caption,
+    params: &SheetParams,
+    layout: Option<&Layout>,
+    paint: &dyn Fn(usize) -> PanelPaint,
+    overlay: &mut Overlay<'_>,
+) -> Result<Canvas, OutputError> {
     s.validate()?;
     let mut canvas = Canvas::new(params.width, params.height)?;
     let tris = display_triangles(s.mesh);
-    let lay = layout_at(&tris, params, caption.yaw_deg);
+    let whole;
+    let lay = match layout {
+        Some(l) => l,
+        None => {
+            whole = layout_at(&tris, params, caption.yaw_deg);
+            &whole
+        }
+    };
     for (view, frame) in &lay.views {
         draw_cell(
             &mut canvas,
