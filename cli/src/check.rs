@@ -61,8 +61,33 @@ pub struct CheckArgs {
     pub quiet: bool,
 }
 
-/// Run `tuft check`.
+/// Run `tuft check`. With `--json`, a file or case that cannot be read,
+/// repaired or placed still gets a report on stdout, `"verdict":
+/// "refused"` with the error's one line as `"error"` (and an open scan's
+/// refused holes as `"holes"`), beside the line on
+/// stderr and exit 2 (a review's script read nothing for a refused open
+/// scan): no panels, no geometry, nothing a script could take for a
+/// clean report.
 pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
+    let result = run_checked(args);
+    if let (Err(e), true) = (&result, args.json) {
+        let mut refused = serde_json::json!({
+            "verdict": "refused",
+            "error": crate::error_line(e),
+        });
+        // An open scan's holes, each with its place, centre and size.
+        if let Some(tuft_mesh::MeshError::OpenHole { holes, .. }) = e
+            .chain()
+            .find_map(|c| c.downcast_ref::<tuft_mesh::MeshError>())
+        {
+            refused["holes"] = serde_json::to_value(holes)?;
+        }
+        say!("{}", serde_json::to_string_pretty(&refused)?);
+    }
+    result
+}
+
+fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     crate::run::set_threads(args.threads)?;
     let is_case = args
         .file
@@ -185,9 +210,10 @@ pub fn run(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         crate::geometry::check_placement(&panels, case)
             .with_context(|| args.file.display().to_string())
     });
-    // A case that fails writes nothing: no panels file, no JSON report (a
-    // script reading it would take it for a clean one); the text report
-    // still shows the body's extent, with a verdict that names the case.
+    // A case that fails writes no panels file nor the JSON report (a
+    // script reading it would take it for a clean one; `run` gives its
+    // "refused" verdict instead); the text report still shows the body's
+    // extent, with a verdict that names the case.
     if placement.is_err() && args.json {
         return placement.map(|()| ExitCode::SUCCESS);
     }

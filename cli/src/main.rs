@@ -199,7 +199,7 @@ fn report_error(err: &anyhow::Error) {
 /// message before it already ends with it (an error that quotes its
 /// source, as a file's "path: No space left on device" does, had printed
 /// the system's words twice).
-fn error_line(err: &anyhow::Error) -> String {
+pub(crate) fn error_line(err: &anyhow::Error) -> String {
     let mut parts: Vec<String> = Vec::new();
     for cause in err.chain() {
         let text = cause.to_string();

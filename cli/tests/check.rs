@@ -209,6 +209,16 @@ fn check_half_model_needs_the_symmetry_flag() {
         stderr.contains("open hole") && stderr.contains("perimeter"),
         "{stderr}"
     );
+    // With --json a script reads the refusal and its hole, named by place.
+    let json = check(&[p, "--units", "m", "--json"]);
+    assert_eq!(json.status.code(), Some(2));
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    assert_eq!(v["verdict"], "refused", "{v}");
+    let hole = &v["holes"][0];
+    assert!(
+        hole["perimeter"].as_f64().is_some_and(|p| p > 6.0) && hole["place"].is_string(),
+        "{v}"
+    );
     let accepted = check_ok(&[p, "--units", "m", "--half"]);
     assert!(accepted.contains("closed by the symmetry mirror"));
 
@@ -770,10 +780,20 @@ fn axles_off_the_body_still_show_the_extent_in_one_sentence() {
         panels.to_str().unwrap(),
     ]);
     assert_eq!(out.status.code(), Some(2));
+    // Only the verdict, "refused", and the error's line: nothing a script
+    // could read as a clean report (a review's script had read nothing).
+    let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(json["verdict"], "refused", "{json}");
     assert!(
-        out.stdout.is_empty(),
-        "{}",
-        String::from_utf8_lossy(&out.stdout)
+        json["error"]
+            .as_str()
+            .is_some_and(|e| e.contains("reference.front_axle_x = 950 m")),
+        "{json}"
+    );
+    assert_eq!(
+        json.as_object().map(serde_json::Map::len),
+        Some(2),
+        "{json}"
     );
     assert!(!panels.exists());
     assert!(
