@@ -179,7 +179,7 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
     crate::geometry::add_size_note(&mut report.quality, note);
-    if let Some(w) = flat_end_warning(&panels, params.axes.nose_plus_x) {
+    if let Some(w) = crate::pipeline::flat_end_warning(&panels, params.axes.nose_plus_x) {
         report.quality.add_warning(w);
     }
     // As the run warns: a floor standing on the ground.
@@ -473,56 +473,6 @@ fn summary(file: &str, r: &PrepareReport, case_fails: bool) -> String {
     out
 }
 
-/// Share of the body's box (width times height) that nearly flat faces
-/// meeting the wind must cover, and how many times the flat faces facing
-/// downstream, for [`flat_end_warning`] (our choice).
-const FLAT_END: (f64, f64) = (0.1, 2.0);
-
-/// How [`flat_end_warning`]'s text starts, for the verdict to find it.
-const FLAT_END_WORDS: &str = "the end meeting the wind is the flatter one";
-
-/// A warning when the end meeting the wind is the flatter one: nearly flat
-/// faces (normals within about 25 degrees of the stream) facing upstream
-/// cover more than [`FLAT_END`]'s share of the body's box and twice those
-/// facing downstream. A car's nose is the rounder end and its tail often
-/// flat, so this is the sign of a file whose nose points the other way;
-/// the run warns of it only after solving (its rim share), and a review's
-/// reversed body passed check without a word; another's, an SUV whose
-/// file's nose pointed to +x, then read "usable", exit 0, with this as a
-/// note, and its run stopped on an unphysical flow: it makes the verdict
-/// doubtful). `nose_plus_x`: the file was read with its nose at +x. A van
-/// or a bus, flat at both ends, is not warned about.
-fn flat_end_warning(panels: &tuft_mesh::PanelMesh, nose_plus_x: bool) -> Option<String> {
-    let flat = 25f64.to_radians().cos();
-    let (up, down) = panels.panels.iter().fold((0.0, 0.0), |(u, d), p| {
-        if p.normal.x < -flat {
-            (u + p.area, d)
-        } else if p.normal.x > flat {
-            (u, d + p.area)
-        } else {
-            (u, d)
-        }
-    });
-    let (lo, hi) = panels.bounds();
-    let width = panels.mirrors.whole_width(&lo, &hi);
-    let boxed = width * (hi.z - lo.z) / panels.mirrors.whole_body_factor();
-    let (share, times) = FLAT_END;
-    (up > share * boxed && up > times * down).then(|| {
-        let setting = if nose_plus_x {
-            "geometry.nose = \"-x\" (--nose -x)"
-        } else {
-            "geometry.nose = \"+x\" (--nose +x)"
-        };
-        format!(
-            "{FLAT_END_WORDS} ({:.2} m^2 of nearly flat faces facing upstream against {:.2} m^2 facing \
-             downstream), as a car's tail is: if this body's nose is at the other end of the file, set \
-             {setting} (a body run back to front stops on an unphysical flow)",
-            up * panels.mirrors.whole_body_factor(),
-            down * panels.mirrors.whole_body_factor()
-        )
-    })
-}
-
 /// `--json`'s report: the preparation report with the verdict beside it,
 /// `"verdict"`: `usable` or `doubtful`, as the text's last line says (a
 /// review's script found no verdict in the JSON).
@@ -554,7 +504,7 @@ fn flat_end_doubt(r: &PrepareReport) -> bool {
     r.quality
         .warnings
         .iter()
-        .any(|w| w.starts_with(FLAT_END_WORDS))
+        .any(|w| w.starts_with(crate::pipeline::FLAT_END_WORDS))
 }
 
 /// Whether a warning says another unit would make the body a car.
@@ -940,13 +890,13 @@ mod tests {
         let body = tuft_mesh::generate::ahmed(0.0, 3000).unwrap();
         let none = tuft_mesh::Mirrors::none();
         let forward = tuft_mesh::PanelMesh::new(body.clone(), none).unwrap();
-        assert!(flat_end_warning(&forward, false).is_none());
+        assert!(crate::pipeline::flat_end_warning(&forward, false).is_none());
         let mut turned = body;
         turned.map_vertices(|p| tuft_mesh::Point::new(-p.x, -p.y, p.z));
         let turned = tuft_mesh::PanelMesh::new(turned, none).unwrap();
-        let n = flat_end_warning(&turned, false).unwrap();
+        let n = crate::pipeline::flat_end_warning(&turned, false).unwrap();
         assert!(n.contains("set geometry.nose = \"+x\""), "{n}");
-        assert!(n.starts_with(FLAT_END_WORDS), "{n}");
+        assert!(n.starts_with(crate::pipeline::FLAT_END_WORDS), "{n}");
     }
 
     /// Halves that agree run as a half model; halves some centimetres
