@@ -267,9 +267,17 @@ pub fn drag_verdict_named(
     let resolved = banded && !separation_differs && !plateau && !wheels && !apart && !floor;
     let way = if delta < 0.0 { "lower" } else { "higher" };
     // The drag difference arising mostly where the shape did not change:
-    // the flow's answer there in this model, plus panel noise.
-    let elsewhere =
-        unchanged.filter(|u| (delta - u) * delta.signum() < CHANGED_PART_SHARE * delta.abs());
+    // the flow's answer there in this model, plus panel noise. Not where
+    // the runs' matched panel counts hold the difference: then it is no
+    // panelling's (a review's raised nose, blended into the bonnet, read
+    // +27.7, +30.8 and +25.7 counts at three counts, most of it on
+    // surface within 4 mm of A's).
+    let settled = paired
+        .as_ref()
+        .is_some_and(|d| super::matched::holds(d, NOISE_COUNTS));
+    let elsewhere = unchanged
+        .filter(|u| (delta - u) * delta.signum() < CHANGED_PART_SHARE * delta.abs())
+        .filter(|_| !settled);
     let leaning = if banded
         && separation_differs
         && elsewhere.is_none()
@@ -754,6 +762,24 @@ mod tests {
             let v = drag_verdict_named(&a, &b, (doubt, None, Some(unchanged)), ["A", "B"]);
             assert_eq!(v.leaning, "lower", "{v:?}");
         }
+        // Held at three matched panel counts: no panelling's, so the
+        // model's direction is given (a review's raised nose).
+        let noisy = |cd: [f64; 3]| {
+            let mut s = summary(cd[0], cd[0] - 0.01, cd[0] + 0.01);
+            s.panel_noise = Some(crate::noise::PanelNoise {
+                panels: vec![3000, 2760, 3240],
+                cd: cd.to_vec(),
+                cl: vec![0.0; 3],
+                front_axle_kg: vec![0.0; 3],
+                rear_axle_kg: vec![0.0; 3],
+                drag_counts: 1000.0 * crate::noise::spread(cd),
+                ..Default::default()
+            });
+            s
+        };
+        let (a3, b3) = (noisy([0.292, 0.291, 0.293]), noisy([0.320, 0.322, 0.319]));
+        let v = drag_verdict_named(&a3, &b3, (doubt, None, Some(34.2)), ["A", "B"]);
+        assert_eq!(v.leaning, "higher", "{v:?}");
         // No doubt: the verdict as before, whatever the unchanged surface.
         let v = drag_verdict_named(&a, &b, (None, None, Some(-9.0)), ["A", "B"]);
         assert!(v.resolved, "{v:?}");
