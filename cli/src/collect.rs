@@ -3694,7 +3694,7 @@ mod tests {
         assert_eq!(
             leader_words(&c.variants),
             "no clear winner: the lowest drag, v0 (C_D 0.290), is within 10.0 counts of v1, under the \
-             noise floor of 11 counts (from the runs' measured panel noise)"
+             noise floor of 11.3 counts (from the runs' measured panel noise)"
         );
         assert!((sweep_floor(&c.variants) - 8.0 * 2.0_f64.sqrt()).abs() < 1e-12);
     }

@@ -86,7 +86,15 @@ pub fn lift_floor_cl(spreads: [Option<f64>; 2]) -> f64 {
 /// noise, "the noise floor of 11 counts (from the runs' panel noise)".
 pub fn floor_words(floor: f64) -> String {
     if floor > NOISE_COUNTS {
-        format!("the noise floor of {floor:.0} counts (from the runs' measured panel noise)")
+        // To a tenth unless whole, as the differences set against it are
+        // given (a review read "within 26.4 counts, under the noise floor
+        // of 26 counts").
+        let shown = if (floor - floor.round()).abs() < 0.05 {
+            format!("{floor:.0}")
+        } else {
+            format!("{floor:.1}")
+        };
+        format!("the noise floor of {shown} counts (from the runs' measured panel noise)")
     } else {
         format!("the noise floor of {NOISE_COUNTS} counts")
     }
@@ -476,6 +484,14 @@ mod tests {
     /// spreads at the runs' own count but not at the others is no winner,
     /// and one that holds at all three is, though the spreads taken as
     /// independent would have buried it.
+    /// A measured floor is written to a tenth unless whole.
+    #[test]
+    fn a_measured_floor_is_written_as_finely_as_the_gap() {
+        assert!(floor_words(26.46).contains("of 26.5 counts"));
+        assert!(floor_words(11.0).contains("of 11 counts"));
+        assert_eq!(floor_words(3.0), "the noise floor of 6 counts");
+    }
+
     #[test]
     fn matched_counts_decide_when_both_runs_measured_their_noise() {
         let with = |cd: [f64; 3]| {
@@ -559,7 +575,7 @@ mod tests {
         assert!((v.noise_counts - 8.0 * 2.0_f64.sqrt()).abs() < 1e-12);
         assert_eq!(
             v.text,
-            "no winner: the drag difference, -10.0 counts, is within the noise floor of 11 counts \
+            "no winner: the drag difference, -10.0 counts, is within the noise floor of 11.3 counts \
              (from the runs' measured panel noise)"
         );
     }
