@@ -1465,16 +1465,24 @@ fn sides_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Optio
 /// `names`: the runs, A's and B's.
 fn resolution_note(surface: &SurfaceDeltas, measured: bool, [a, b]: [&str; 2]) -> Option<String> {
     let (d, e) = (surface.max_distance_m, surface.panel_edge_m);
-    (surface.changed_m2 > 0.0 && d < e && !measured).then(|| {
+    // A move beyond the unchanged margin counts though no panel cluster
+    // passed the changed one (a review's bumper corner rounded from 40 to
+    // 80 mm moved by up to 25 mm on 91 mm panels, changed_m2 0, no note).
+    let moved = surface.changed_m2 > 0.0 || d > surface.margins_m[0];
+    (moved && d < e && !measured).then(|| {
+        let over = if surface.changed_m2 > 0.0 {
+            format!("over {:.2} m^2 that moved", surface.changed_m2)
+        } else {
+            "nowhere by more than a quarter of an edge over more than a lone panel".to_owned()
+        };
         format!(
             "{b}'s surface lies within {:.0} mm of {a}'s everywhere, under the panels' typical edge ({:.0} mm), \
-             over {:.2} m^2 that moved: however large the part, the panels follow moves under their own \
+             {over}: however large the part, the panels follow moves under their own \
              size only in part, so the differences may rest as much on how each surface was cut into \
              panels as on the change; run both again with tuft run --noise, which solves each at two \
              other panel counts, and compare then judges the difference against the spread it measures",
             1000.0 * d,
             1000.0 * e,
-            surface.changed_m2
         )
     })
 }
@@ -1969,6 +1977,14 @@ mod tests {
         assert_eq!(
             resolution_note(&surface(0.0, 0.0, 0.003), false, ["A", "B"]),
             None
+        );
+        // Moved beyond the unchanged margin, though no cluster of panels
+        // passed the changed one: still noted (a review's bumper corner).
+        let note =
+            resolution_note(&surface(0.0, 0.0, 0.025), false, ["A", "B"]).unwrap_or_default();
+        assert!(
+            note.starts_with("B's surface lies within 25 mm of A's everywhere, under the panels' typical edge (80 mm), nowhere by more"),
+            "{note}"
         );
         let mut a = Summary::default();
         a.mesh.ground_z = Some(0.0);
