@@ -187,6 +187,11 @@ pub struct SurfaceDeltas {
     /// to the underbody.
     #[serde(default)]
     pub changed_underbody_m2: f64,
+    /// Of the underbody's part, the area in the front [`NOSE_SHARE`] of
+    /// the body's length, m^2: a device under the nose (a lip, a
+    /// splitter, an air dam), which this model cannot assess.
+    #[serde(default)]
+    pub changed_under_nose_m2: f64,
     /// B's typical panel edge: that of an equilateral triangle of its
     /// median panel area, m.
     #[serde(default)]
@@ -758,6 +763,18 @@ pub const CHANGED_EDGES: f64 = 0.25;
 /// car's floor and diffuser ramp lie in the lowest third; our choice).
 pub const UNDERBODY_HEIGHT: f64 = 0.3;
 
+/// Share of the body's length, from its front, within which a changed
+/// underbody panel counts as under the nose
+/// ([`SurfaceDeltas::changed_under_nose_m2`]; our choice: a bumper and
+/// its lip lie in the first tenth of a car, 0.15 leaves room for a long
+/// overhang).
+pub const NOSE_SHARE: f64 = 0.15;
+
+/// Share of the changed area under the nose from which the change is
+/// taken for a device there ([`nose_device_note`]; our choice: a lip's
+/// underside is about a third of its surface).
+pub const NOSE_DEVICE_SHARE: f64 = 0.25;
+
 /// Where the shape changed ([`SurfaceDeltas::changed_m2`]): how much of it
 /// lies in dead water or faces the ground, and B's typical panel edge.
 fn changed_surface(
@@ -782,6 +799,12 @@ fn changed_surface(
             (l.min(p.centroid.z), h.max(p.centroid.z))
         });
     let floor_top = low + UNDERBODY_HEIGHT * (high - low);
+    let front = b
+        .panels
+        .iter()
+        .map(|p| p.centroid.x)
+        .fold(f64::INFINITY, f64::min);
+    let nose_end = front + NOSE_SHARE * b.summary.reference.length_m;
     let changed = clustered(
         &changed_panels(mapping, b.panels.len(), near),
         &b.panels,
@@ -803,6 +826,9 @@ fn changed_surface(
         }
         if pb.normal.z < -crate::region::FACING_COS && pb.centroid.z < floor_top {
             out.changed_underbody_m2 += area;
+            if pb.centroid.x < nose_end {
+                out.changed_under_nose_m2 += area;
+            }
         }
     }
 }
@@ -943,6 +969,7 @@ fn notes(
         ["A", "B"],
     ));
     notes.extend(short_change_note(surface, ["A", "B"]));
+    notes.extend(nose_device_note(surface));
     if let Some(n) = clearance_note(sa, sb) {
         notes.push(n);
     }
@@ -1360,6 +1387,30 @@ fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
     })
 }
 
+/// A note when the change is a device under the nose (a lip, a splitter,
+/// an air dam): [`NOSE_DEVICE_SHARE`] or more of the changed area faces
+/// the ground in the front [`NOSE_SHARE`] of the body. The model cannot
+/// assess one (README): a review's 40 mm chin lip read 12 kg more front
+/// lift and +58 counts, its underbody 4 to 89 % separated, and was told
+/// to give the lip more panels before judging it.
+fn nose_device_note(surface: &SurfaceDeltas) -> Option<String> {
+    (surface.changed_m2 > 0.0
+        && surface.changed_under_nose_m2 >= NOSE_DEVICE_SHARE * surface.changed_m2)
+        .then(|| {
+            format!(
+                "the shape changed under the nose ({:.3} of the {:.3} m^2 that moved faces the ground in \
+                 the front {:.0} % of the body): a lip, a splitter or an air dam there is beyond this \
+                 model, which separates the floor behind such an edge and never lets it reattach, so \
+                 its lift and drag here can run opposite to a tunnel's (a chin spoiler raised the front \
+                 lift in this model, where a tunnel cuts it), at any panel count; judge it with \
+                 validated CFD or a tunnel",
+                surface.changed_under_nose_m2,
+                surface.changed_m2,
+                100.0 * NOSE_SHARE
+            )
+        })
+}
+
 /// A changed part spanning fewer than this many of B's panel edges
 /// along the stream is resolved by one or two rows of panels
 /// ([`short_change_note`]; our choice: three panels along a part are the
@@ -1380,15 +1431,19 @@ fn short_change_note(surface: &SurfaceDeltas, [_, b]: [&str; 2]) -> Option<Strin
     let e = surface.panel_edge_m;
     let [lo, hi] = surface.changed_x_m?;
     let length = hi - lo + e;
-    (surface.changed_m2 > 0.0 && e > 0.0 && length < SHORT_CHANGE_EDGES * e).then(|| {
+    // A device under the nose has its own note: no panel count makes it
+    // assessable.
+    let short = surface.changed_m2 > 0.0 && e > 0.0 && length < SHORT_CHANGE_EDGES * e;
+    (short && nose_device_note(surface).is_none()).then(|| {
         let target = length / SHORT_CHANGE_EDGES;
         let panels = surface.panels_b as f64 * (e / target).powi(2);
         format!(
-            "the shape changed over about {} along the stream (x {lo:.2} to {hi:.2} m), under \
-             {SHORT_CHANGE_EDGES:.0} of {b}'s panel edges ({}): the part is one or two rows of panels, \
-             so the flow over it, its separation and what it does to the drag and lift rest on where \
-             the panel edges fall as much as on the part; give it {SHORT_CHANGE_EDGES:.0} or more \
-             panels along the stream (an edge of about {}, about {} panels) before judging it",
+            "the shape changed over one or two rows of panels along the stream (their centres from x \
+             {lo:.2} to {hi:.2} m: a part about {} long, counting a panel's edge), under \
+             {SHORT_CHANGE_EDGES:.0} of {b}'s panel edges ({}): the flow over it, its separation and \
+             what it does to the drag and lift rest on where the panel edges fall as much as on the \
+             part; give it {SHORT_CHANGE_EDGES:.0} or more panels along the stream (an edge of about \
+             {}, about {} panels) before judging it",
             mm(length),
             mm(e),
             mm(target),
@@ -1416,6 +1471,7 @@ pub fn surface_notes(surface: &SurfaceDeltas, measured: bool, names: [&str; 2]) 
         dead_water_change_note(surface),
         resolution_note(surface, measured, names),
         short_change_note(surface, names),
+        nose_device_note(surface),
     ]
     .into_iter()
     .flatten()
@@ -1897,7 +1953,8 @@ mod tests {
         let note = short_change_note(&surface(Some([3.95, 4.0])), ["A", "B"]).unwrap_or_default();
         assert!(
             note.starts_with(
-                "the shape changed over about 132 mm along the stream (x 3.95 to 4.00 m), under 3 \
+                "the shape changed over one or two rows of panels along the stream (their centres \
+                 from x 3.95 to 4.00 m: a part about 132 mm long, counting a panel's edge), under 3 \
                  of B's panel edges (82 mm)"
             ),
             "{note}"
@@ -1918,6 +1975,19 @@ mod tests {
             None
         );
         assert_eq!(short_change_note(&surface(None), ["A", "B"]), None);
+        // A lip under the nose: its own note, and no panel count offered
+        // (a review's chin lip).
+        let mut lip = surface(Some([-0.02, 0.04]));
+        lip.changed_underbody_m2 = 0.05;
+        lip.changed_under_nose_m2 = 0.05;
+        assert_eq!(short_change_note(&lip, ["A", "B"]), None);
+        let note = nose_device_note(&lip).unwrap_or_default();
+        assert!(
+            note.starts_with("the shape changed under the nose (0.050 of the 0.120 m^2 that moved")
+                && note.contains("at any panel count"),
+            "{note}"
+        );
+        assert_eq!(nose_device_note(&surface(Some([3.95, 4.0]))), None);
         assert_eq!(round_panels(13_873.0), "14,000");
         assert_eq!(round_panels(950.0), "950");
     }
