@@ -329,6 +329,13 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
             );
             continue;
         }
+        let sides = if crate::region::one_side_only(region, panels) {
+            " (the modelled side only: its y range leaves out the mirror image, so it covers one \
+             side of the car and the side view from -y does not outline it; for the other side, \
+             name a second region with the y range negated)"
+        } else {
+            sides
+        };
         s += &format!(
             "region     \"{}\": {n} panels, {area:.3} m^2{sides}\n",
             region.name

@@ -412,6 +412,21 @@ pub fn extent(r: &RegionSection, mesh: &PanelMesh) -> (usize, f64) {
         })
 }
 
+/// Whether a region on a half model holds its real panels only, none of
+/// their mirror images (a y range on the modelled side): it then covers
+/// one side of the car, and the pictures' side view from -y, which shows
+/// the images, does not outline it (a review's A-pillar box on a half
+/// model, "both sides" by check, was missing from that view).
+pub fn one_side_only(r: &RegionSection, mesh: &PanelMesh) -> bool {
+    let n = mesh.len();
+    let member = members(r, mesh);
+    mesh.mirrors.symmetry
+        && member[..n.min(member.len())].iter().any(|m| *m)
+        && !member
+            .get(n..)
+            .is_some_and(|images| images.iter().any(|m| *m))
+}
+
 /// Refuse a region that holds no panel of `mesh` (ranges in millimetres,
 /// or a facing no panel in the ranges has): its verdict would read
 /// "attached" for nothing.

@@ -496,6 +496,38 @@ fn a_body_read_back_to_front_is_doubtful() {
     assert!(!text.contains("flatter one"), "{text}");
 }
 
+/// On a half model a region whose y range leaves out the mirror image is
+/// said to cover one side only (a review's A-pillar box had read "both
+/// sides" and was missing from the side view); one without a y range
+/// covers both.
+#[test]
+fn a_one_sided_region_on_a_half_model_is_named_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let stl = Path::new(env!("CARGO_MANIFEST_DIR")).join("../cases/coupe.stl");
+    let case = dir.path().join("half.toml");
+    std::fs::write(
+        &case,
+        format!(
+            "[geometry]\nstl = {:?}\nunits = \"mm\"\nhalf_model = true\npanels = 1500\n\
+             [ground]\nz = 0.0\n[reference]\nfront_axle_x = 0.95\nrear_axle_x = 3.65\n\
+             [[region]]\nname = \"flank\"\nx = [1.5, 3.0]\ny = [0.5, 1.0]\nfacing = \"side\"\n\
+             [[region]]\nname = \"roof\"\nx = [1.5, 3.0]\nfacing = \"up\"\n",
+            stl.to_str().unwrap()
+        ),
+    )
+    .unwrap();
+    let out = check(&[case.to_str().unwrap()]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    let line = |name: &str| {
+        text.lines()
+            .find(|l| l.contains(&format!("\"{name}\"")))
+            .unwrap_or_default()
+            .to_owned()
+    };
+    assert!(line("flank").contains("(the modelled side only"), "{text}");
+    assert!(line("roof").ends_with("(both sides)"), "{text}");
+}
+
 /// A case with a built-in shape is checked as the run generates it, and
 /// its panels saved in metres: a variant to take into a modeller.
 #[test]
