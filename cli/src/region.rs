@@ -111,7 +111,30 @@ pub struct RegionResult {
     /// 3,500 of 8,000 suggested panels, and 2 % as a half model).
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub coarse_mesh: bool,
+    /// Share of the region's area beside sharp front edges the flow
+    /// leaves (the rim zone), where the pressure is held at the free
+    /// streamline's bound rather than computed: from
+    /// [`RIM_REGION_SHARE`] on, its verdict rests on that rule and is
+    /// provisional at best (a review's bonnet read "attached" with its
+    /// leading edge's suction replaced by the dead water's pressure).
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub rim_fraction: f64,
 }
+
+/// Serde's test for a share left out of the JSON when zero.
+fn is_zero(v: &f64) -> bool {
+    *v == 0.0
+}
+
+/// Share of a region's area in the rim zone from which its verdict is
+/// provisional at best ([`RegionResult::rim_fraction`]; our choice: a
+/// quarter, more than an edge strip of a large panel).
+pub const RIM_REGION_SHARE: f64 = 0.25;
+
+/// Share of a region's area in the rim zone from which its words say so
+/// (our choice: a review's bonnet, 12 % beside its leading edge, read
+/// "attached" with nothing said of the held pressure).
+pub const RIM_REGION_WORDS: f64 = 0.05;
 
 /// Why a verdict on a coarse mesh is provisional ([`RegionResult::coarse_mesh`]).
 pub const COARSE_WORDS: &str = "solved on under half of the panels suggested for the body, where a verdict can still move with the count";
@@ -134,6 +157,7 @@ impl RegionResult {
             sides: None,
             at_counts: None,
             coarse_mesh: false,
+            rim_fraction: 0.0,
         }
     }
 
@@ -156,11 +180,17 @@ impl RegionResult {
         let [lo, hi] = self.separated_band;
         if verdict(lo) != verdict(hi) || self.sides.is_some() || self.counts_differ() {
             "uncertain"
-        } else if self.near_line().is_some() || self.coarse_mesh {
+        } else if self.near_line().is_some() || self.coarse_mesh || self.rim_held() {
             "provisional"
         } else {
             "firm"
         }
+    }
+
+    /// Whether [`RIM_REGION_SHARE`] or more of the region lies beside
+    /// sharp front edges, its pressure held there.
+    pub fn rim_held(&self) -> bool {
+        self.rim_fraction >= RIM_REGION_SHARE
     }
 
     /// Whether the shares at the panel-noise counts give two verdicts.
@@ -216,6 +246,20 @@ impl RegionResult {
                 percent(r)
             )
         });
+        let rim = if self.rim_fraction >= RIM_REGION_WORDS {
+            format!(
+                "; {:.0} % of it lies beside sharp front edges, where the pressure is held at the \
+                 free streamline's bound, not computed{}",
+                100.0 * self.rim_fraction,
+                if self.rim_held() {
+                    ": a provisional verdict"
+                } else {
+                    ""
+                }
+            )
+        } else {
+            String::new()
+        };
         let counts = match &self.at_counts {
             Some(shares) if self.counts_differ() => {
                 let each: Vec<String> = shares.iter().map(|&f| percent(f)).collect();
@@ -227,7 +271,7 @@ impl RegionResult {
             _ => String::new(),
         };
         format!(
-            "{} ({} % separated{range}{near}{sides}{counts})",
+            "{} ({} % separated{range}{near}{rim}{sides}{counts})",
             self.verdict,
             percent(self.separated_fraction)
         )
@@ -241,6 +285,8 @@ impl RegionResult {
             Some("near a line: provisional")
         } else if self.coarse_mesh {
             Some("few panels: provisional")
+        } else if self.rim_held() {
+            Some("beside sharp edges: provisional")
         } else {
             None
         };
@@ -525,6 +571,7 @@ pub fn evaluate(
         .zip(member)
         .map(|(r, member)| {
             let (mut panels, mut area, mut separated, mut risk) = (0, 0.0, 0.0, 0.0);
+            let mut rim = 0.0;
             // Area and separated area of the left (y < 0) and right half.
             let mut halves = [[0.0; 2]; 2];
             let mut normals: Vec<(Vector, f64)> = Vec::new();
@@ -540,6 +587,9 @@ pub fn evaluate(
                 area += p.area;
                 normals.push((n, p.area));
                 risk += p.area * l.risk;
+                if layer.rim_zone.get(k % n_real).copied().unwrap_or(false) {
+                    rim += p.area;
+                }
                 let half = &mut halves[usize::from(p.centroid.y > 0.0)];
                 half[0] += p.area;
                 if l.state == FlowState::Separated {
@@ -562,6 +612,7 @@ pub fn evaluate(
                 sides: one_sided(mesh, halves),
                 at_counts: None,
                 coarse_mesh: false,
+                rim_fraction: share(rim),
             }
         })
         .map(|mut r| {
@@ -718,6 +769,36 @@ pub fn verdict(fraction: f64) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A region a quarter or more of which lies beside sharp front edges
+    /// (its pressure held there) says so and is provisional (a review's
+    /// bonnet read "attached" with its leading edge held).
+    #[test]
+    fn a_region_beside_sharp_edges_is_provisional() {
+        let mut r = RegionResult::example("bonnet", 0.0, None);
+        r.rim_fraction = 0.02;
+        assert_eq!(r.words(), "attached (0 % separated)");
+        r.rim_fraction = 0.12;
+        assert_eq!(r.firmness(), "firm");
+        assert!(
+            r.words().ends_with("12 % of it lies beside sharp front edges, where the pressure is held at the free streamline's bound, not computed)"),
+            "{}",
+            r.words()
+        );
+        r.rim_fraction = 0.45;
+        assert_eq!(r.firmness(), "provisional");
+        assert!(
+            r.words()
+                .contains("45 % of it lies beside sharp front edges, where the pressure is held"),
+            "{}",
+            r.words()
+        );
+        assert!(
+            r.short_words().contains("beside sharp edges: provisional"),
+            "{}",
+            r.short_words()
+        );
+    }
 
     /// The words say the sensitivity runs' range, and that the verdict
     /// rests on the model when the range crosses a regime line (the demo
