@@ -122,6 +122,15 @@ fn close_up(
     Some(((lo, hi), vec![side, plan, end]))
 }
 
+/// A close-up sheet to draw: its file, field style, paint and what it
+/// shows in words.
+type CloseUpSheet<'a> = (
+    &'static str,
+    &'a FieldStyle,
+    &'a dyn Fn(usize) -> PanelPaint,
+    &'static str,
+);
+
 /// Share of B's surface outlined as changed, or `None` when none is or
 /// too much is ([`CHANGED_OUTLINE_SHARE`]).
 fn outlined_share(u: &super::SurfaceDeltas, area_m2: f64) -> Option<f64> {
@@ -242,7 +251,7 @@ pub fn write(
             flow_corner: true,
             scale_bar: true,
         };
-        let sheets: [(&str, &FieldStyle, &dyn Fn(usize) -> PanelPaint, &str); 2] = [
+        let sheets: [CloseUpSheet<'_>; 2] = [
             (
                 "delta-cp-close-up.png",
                 &cp_style,

@@ -362,7 +362,7 @@ pub(crate) fn close_holes_with_uses(
                         take(mesh, component, &mut report, &part, part_closed)
                     {
                         hole.loop_index = index;
-                        refused.push(hole);
+                        refused.push(*hole);
                     }
                 }
             }
@@ -388,7 +388,7 @@ fn take_loop(
     (half, edges, closed): (&[HalfEdge], &[usize], bool),
     s: &HoleSettings,
     (part_area, lowest): (&[f64], f64),
-) -> Result<(), Option<RefusedHole>> {
+) -> Result<(), Option<Box<RefusedHole>>> {
     let mut info = describe(&mesh.vertices, half, edges);
     info.plane = on_plane(&mesh.vertices, half, edges, s);
     if info.plane.is_some() {
@@ -413,7 +413,7 @@ fn take_loop(
             report.filled.push(info);
             Ok(())
         }
-        Err(reason) => Err(Some(RefusedHole {
+        Err(reason) => Err(Some(Box::new(RefusedHole {
             loop_index: 0,
             centre: info.centre,
             perimeter: info.perimeter,
@@ -431,7 +431,7 @@ fn take_loop(
             },
             off_declared_plane: off_plane(&mesh.vertices, half, edges, s),
             place: String::new(),
-        })),
+        }))),
     }
 }
 
