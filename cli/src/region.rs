@@ -800,14 +800,6 @@ mod tests {
         );
     }
 
-    /// The words say the sensitivity runs' range, and that the verdict
-    /// rests on the model when the range crosses a regime line (the demo
-    /// coupe's STL at 200 km/h: its boot deck 0 % separated, 34 % with the
-    /// earlier threshold).
-    /// With --noise, a share that gives two verdicts over the three panel
-    /// counts makes the verdict uncertain and says so (a review's pickup
-    /// bed: 36 % at its own count, 73 and 67 % at the others, had read
-    /// "firm"); three shares with one verdict change nothing.
     /// On under half of the suggested panels no verdict is firm, wherever
     /// its share lies (a review's mirror-flank box: 32 %, "firm", at 3,500
     /// of 8,000 suggested panels, 2 % as a half model).
@@ -834,6 +826,14 @@ mod tests {
         assert_eq!(r.firmness(), "uncertain");
     }
 
+    /// The words say the sensitivity runs' range, and that the verdict
+    /// rests on the model when the range crosses a regime line (the demo
+    /// coupe's STL at 200 km/h: its boot deck 0 % separated, 34 % with the
+    /// earlier threshold).
+    /// With --noise, a share that gives two verdicts over the three panel
+    /// counts makes the verdict uncertain and says so (a review's pickup
+    /// bed: 36 % at its own count, 73 and 67 % at the others, had read
+    /// "firm"); three shares with one verdict change nothing.
     #[test]
     fn a_verdict_that_moves_with_the_panel_count_is_uncertain() {
         let mut r = RegionResult::example("bed floor", 0.36, None);

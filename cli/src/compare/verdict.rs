@@ -479,11 +479,22 @@ mod tests {
         s
     }
 
-    /// With both runs' panel noise measured, the difference at the three
-    /// matched counts decides: one that passes the floor of the two
-    /// spreads at the runs' own count but not at the others is no winner,
-    /// and one that holds at all three is, though the spreads taken as
-    /// independent would have buried it.
+    /// A run with its panel noise measured: drag `cd` at its own count
+    /// and the two others, `panels` the three counts.
+    fn with_noise(cd: [f64; 3], panels: [usize; 3]) -> Summary {
+        let mut s = summary(cd[0], cd[0] - 0.01, cd[0] + 0.01);
+        s.panel_noise = Some(crate::noise::PanelNoise {
+            panels: panels.to_vec(),
+            cd: cd.to_vec(),
+            cl: vec![0.0; 3],
+            front_axle_kg: vec![0.0; 3],
+            rear_axle_kg: vec![0.0; 3],
+            drag_counts: 1000.0 * crate::noise::spread(cd),
+            ..Default::default()
+        });
+        s
+    }
+
     /// A measured floor is written to a tenth unless whole.
     #[test]
     fn a_measured_floor_is_written_as_finely_as_the_gap() {
@@ -492,21 +503,14 @@ mod tests {
         assert_eq!(floor_words(3.0), "the noise floor of 6 counts");
     }
 
+    /// With both runs' panel noise measured, the difference at the three
+    /// matched counts decides: one that passes the floor of the two
+    /// spreads at the runs' own count but not at the others is no winner,
+    /// and one that holds at all three is, though the spreads taken as
+    /// independent would have buried it.
     #[test]
     fn matched_counts_decide_when_both_runs_measured_their_noise() {
-        let with = |cd: [f64; 3]| {
-            let mut s = summary(cd[0], cd[0] - 0.01, cd[0] + 0.01);
-            s.panel_noise = Some(crate::noise::PanelNoise {
-                panels: vec![4000, 3680, 4320],
-                cd: cd.to_vec(),
-                cl: vec![0.0; 3],
-                front_axle_kg: vec![0.0; 3],
-                rear_axle_kg: vec![0.0; 3],
-                drag_counts: 1000.0 * crate::noise::spread(cd),
-                ..Default::default()
-            });
-            s
-        };
+        let with = |cd: [f64; 3]| with_noise(cd, [4000, 3680, 4320]);
         // +20 counts at the own count, +2 and +3 at the others.
         let v = drag_verdict(&with([0.300; 3]), &with([0.320, 0.302, 0.303]), None);
         assert!(v.delta_counts > drag_floor([Some(0.0), Some(18.0)]));
@@ -780,19 +784,7 @@ mod tests {
         }
         // Held at three matched panel counts: no panelling's, so the
         // model's direction is given (a review's raised nose).
-        let noisy = |cd: [f64; 3]| {
-            let mut s = summary(cd[0], cd[0] - 0.01, cd[0] + 0.01);
-            s.panel_noise = Some(crate::noise::PanelNoise {
-                panels: vec![3000, 2760, 3240],
-                cd: cd.to_vec(),
-                cl: vec![0.0; 3],
-                front_axle_kg: vec![0.0; 3],
-                rear_axle_kg: vec![0.0; 3],
-                drag_counts: 1000.0 * crate::noise::spread(cd),
-                ..Default::default()
-            });
-            s
-        };
+        let noisy = |cd: [f64; 3]| with_noise(cd, [3000, 2760, 3240]);
         let (a3, b3) = (noisy([0.292, 0.291, 0.293]), noisy([0.320, 0.322, 0.319]));
         let v = drag_verdict_named(&a3, &b3, (doubt, None, Some(34.2)), ["A", "B"]);
         assert_eq!(v.leaning, "higher", "{v:?}");
