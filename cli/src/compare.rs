@@ -1686,6 +1686,14 @@ fn rim_note(
                     zone[0], zone[1]
                 )
             }
+            // The change reaches the zone: the held area moves with the
+            // shape, no rounding need be near the rim radius (a review's
+            // nose raised 60 mm, no radius changed, read only the latter).
+            Some([lo, hi]) if zone[0] <= zone[1] && zone[0] <= hi && zone[1] >= lo => format!(
+                "; the change reaches the edges there (x {:.2} to {:.2} m), so the area held at the \
+                 edges' bound moves with the shape itself",
+                zone[0], zone[1]
+            ),
             _ => String::new(),
         };
         format!(
@@ -2444,6 +2452,17 @@ mod tests {
         let n = rim_note(&with_rims(0.0), &nose, &tail).unwrap();
         assert!(
             n.contains("the shape did not change there (x 0.00 to 0.28 m; it changed from x 3.70 to 4.40 m)"),
+            "{n}"
+        );
+        // The change reaching the edges: the held area moves with it (a
+        // review's raised nose).
+        let front = SurfaceDeltas {
+            changed_x_m: Some([0.0, 0.9]),
+            ..SurfaceDeltas::default()
+        };
+        let n = rim_note(&with_rims(0.0), &nose, &front).unwrap();
+        assert!(
+            n.ends_with("; the change reaches the edges there (x 0.00 to 0.28 m), so the area held at the edges' bound moves with the shape itself"),
             "{n}"
         );
         // A clear 20-count difference is then no win, and says why.
