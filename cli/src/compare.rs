@@ -844,15 +844,32 @@ pub const LONE_REACH_EDGES: f64 = 1.5;
 /// `changed` without its lone panels (see [`LONE_REACH_EDGES`]; `reach`
 /// in metres), as the comparison sheets outline it.
 fn clustered(changed: &[bool], panels: &[folder::PanelRow], reach: f64) -> Vec<bool> {
-    let at: Vec<(usize, nalgebra::Point3<f64>)> = changed
-        .iter()
-        .enumerate()
-        .filter(|(_, c)| **c)
-        .map(|(i, _)| (i, panels[i].centroid))
-        .collect();
+    // Changed centroids binned on a grid of `reach`: a neighbour within it
+    // lies in the same cell or one of the 26 round it (two bodies apart
+    // everywhere change every panel, up to 200,000).
+    let cell = |p: &nalgebra::Point3<f64>| {
+        let r = reach.max(f64::MIN_POSITIVE);
+        [p.x, p.y, p.z].map(|v| (v / r).floor() as i64)
+    };
+    let mut grid: std::collections::HashMap<[i64; 3], Vec<usize>> =
+        std::collections::HashMap::new();
+    for (i, _) in changed.iter().enumerate().filter(|(_, c)| **c) {
+        grid.entry(cell(&panels[i].centroid)).or_default().push(i);
+    }
     let mut out = vec![false; changed.len()];
-    for &(i, p) in &at {
-        out[i] = at.iter().any(|&(j, q)| j != i && (q - p).norm() <= reach);
+    for (i, _) in changed.iter().enumerate().filter(|(_, c)| **c) {
+        let p = panels[i].centroid;
+        let [x, y, z] = cell(&p);
+        out[i] = (-1..=1).any(|dx| {
+            (-1..=1).any(|dy| {
+                (-1..=1).any(|dz| {
+                    grid.get(&[x + dx, y + dy, z + dz]).is_some_and(|near| {
+                        near.iter()
+                            .any(|&j| j != i && (panels[j].centroid - p).norm() <= reach)
+                    })
+                })
+            })
+        });
     }
     out
 }
@@ -1945,6 +1962,12 @@ mod tests {
             clustered(&changed, &panels, LONE_REACH_EDGES * 0.093),
             [false, false, true, true, false]
         );
+        // Another body altogether: every panel changed, each beside
+        // others, on the grid the search bins them in (within a cell and
+        // across cells), in one pass.
+        let many: Vec<_> = (0..20_000).map(|k| row(0.05 * f64::from(k))).collect();
+        let all = clustered(&vec![true; many.len()], &many, 0.06);
+        assert!(all.iter().all(|c| *c));
     }
 
     #[test]
