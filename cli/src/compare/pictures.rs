@@ -229,20 +229,23 @@ pub fn write(
     let mut dsep = field_sheet(&surface, &sep_style, &caption, &sep_paint)?;
     // Where the shape changed, outlined first (unnamed: the note says
     // what the line is), then B's named regions as on its own pictures.
-    let mark = changed_mark(mesh_b, mapping, cmp.surface.margins_m[1]);
-    if outlined {
+    // The changed panels are found (with their neighbours) only when
+    // they are outlined.
+    let mark = outlined.then(|| changed_mark(mesh_b, mapping, cmp.surface.margins_m[1]));
+    if let Some(mark) = &mark {
         output::outline::draw_outlines_unnamed(
             &mut dcp,
             mesh_b,
-            std::slice::from_ref(&mark),
+            std::slice::from_ref(mark),
             CHANGED_OUTLINE,
             caption.yaw_deg,
         );
     }
     // A compact change seen close up, on both fields, outlined there too.
     let mut close_ups = Vec::new();
-    if let Some((bounds, views)) =
-        close_up(mesh_b, &mark.member, caption.yaw_deg).filter(|_| outlined)
+    if let Some((mark, (bounds, views))) = mark
+        .as_ref()
+        .and_then(|m| Some((m, close_up(mesh_b, &m.member, caption.yaw_deg)?)))
     {
         let layout = close_up_layout(&views, bounds, &SheetParams::default());
         let on = output::outline::RegionViews {
@@ -274,7 +277,7 @@ pub fn write(
             output::outline::draw_regions_in(
                 &mut img,
                 mesh_b,
-                std::slice::from_ref(&mark),
+                std::slice::from_ref(mark),
                 CHANGED_OUTLINE,
                 &on,
             );
