@@ -72,6 +72,9 @@ pub struct Row {
     /// `LiftKg::underbody`).
     #[serde(default)]
     pub underbody_lift_kg: f64,
+    /// The underbody's part of the front-axle lift, kg.
+    #[serde(default)]
+    pub underbody_front_axle_kg: f64,
     /// The underbody's part of the rear-axle lift, kg.
     #[serde(default)]
     pub underbody_rear_axle_kg: f64,
@@ -113,6 +116,10 @@ pub struct Row {
     /// --noise`; absent without it).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub drag_spread_counts: Option<f64>,
+    /// The spread of its front-axle lift over three panel counts, kg
+    /// (`tuft run --noise`; absent without it).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub front_axle_spread_kg: Option<f64>,
     /// The spread of its rear-axle lift over three panel counts, kg
     /// (`tuft run --noise`; absent without it).
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -248,8 +255,12 @@ pub struct Collected {
     /// a variant's mesh is too coarse for converged numbers.
     #[serde(default)]
     pub drag_ranking: String,
-    /// The rear axle's ranking in one line ([`rear_lift_ranking`]), empty
-    /// when the variants were not all run in one wind condition.
+    /// The front axle's ranking in one line ([`axle_lift_ranking`]), empty
+    /// with fewer than two variants in every wind condition.
+    #[serde(default)]
+    pub front_lift_ranking: String,
+    /// The rear axle's ranking in one line ([`axle_lift_ranking`]), empty
+    /// with fewer than two variants in every wind condition.
     #[serde(default)]
     pub rear_lift_ranking: String,
     /// What makes the variants hard to rank ([`notes`]), one sentence
@@ -382,8 +393,10 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             c.variants.len(),
             c.drag_ranking
         );
-        if !c.rear_lift_ranking.is_empty() {
-            say!("  {}", c.rear_lift_ranking);
+        for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
+            if !line.is_empty() {
+                say!("  {line}");
+            }
         }
         for n in notes.iter().chain(&c.caveats) {
             say!("  note: {n}");
@@ -873,6 +886,7 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         variants,
         missing,
         drag_ranking: String::new(),
+        front_lift_ranking: String::new(),
         rear_lift_ranking: String::new(),
         notes: Vec::new(),
         caveats: Vec::new(),
@@ -891,24 +905,59 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     Ok(c)
 }
 
-/// The variants' rear-axle lift in one line: [`rear_lift_in`] for a sweep
-/// in one wind condition, or for each condition with two or more variants,
-/// labelled (a review's six shapes at yaw 0 and 5 degrees had lost the
-/// rear-axle ranking without a word).
-fn rear_lift_ranking(c: &Collected) -> Option<String> {
+/// An axle, for the lift rankings.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Axle {
+    Front,
+    Rear,
+}
+
+impl Axle {
+    fn word(self) -> &'static str {
+        match self {
+            Axle::Front => "front",
+            Axle::Rear => "rear",
+        }
+    }
+
+    /// The variant's lift at this axle, kg.
+    fn kg(self, r: &Row) -> f64 {
+        match self {
+            Axle::Front => r.front_axle_kg,
+            Axle::Rear => r.rear_axle_kg,
+        }
+    }
+
+    /// Its spread over three panel counts, kg, where measured.
+    fn spread(self, r: &Row) -> Option<f64> {
+        match self {
+            Axle::Front => r.front_axle_spread_kg,
+            Axle::Rear => r.rear_axle_spread_kg,
+        }
+    }
+}
+
+/// The variants' lift at one axle in one line: [`axle_lift_in`] for a
+/// sweep in one wind condition, or for each condition with two or more
+/// variants, labelled (a review's six shapes at yaw 0 and 5 degrees had
+/// lost the rear-axle ranking without a word). Both axles are ranked: a
+/// front-end study (a chin lip, a bumper) asks of the front one, and a
+/// review's had found it only in sweep.csv.
+fn axle_lift_ranking(c: &Collected, axle: Axle) -> Option<String> {
     let wheels = c.variants.iter().any(|r| r.wheels_on);
+    let word = axle.word();
     match wind_groups(c).as_slice() {
-        [(_, rows)] => rear_lift_in(rows, wheels).map(|t| format!("rear axle: {t}")),
+        [(_, rows)] => axle_lift_in(rows, wheels, axle).map(|t| format!("{word} axle: {t}")),
         groups => {
             let parts: Vec<String> = groups
                 .iter()
                 .filter_map(|(label, rows)| {
-                    rear_lift_in(rows, wheels).map(|t| format!("{label}: {t}"))
+                    axle_lift_in(rows, wheels, axle).map(|t| format!("{label}: {t}"))
                 })
                 .collect();
             (!parts.is_empty()).then(|| {
                 format!(
-                    "rear axle, within each wind condition: {}",
+                    "{word} axle, within each wind condition: {}",
                     parts.join("; ")
                 )
             })
@@ -916,8 +965,8 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
     }
 }
 
-/// The rear-axle verdict among `rows`, one wind condition: the most rear
-/// downforce (or least rear lift) in this model,
+/// The verdict on one axle among `rows`, one wind condition: the most
+/// downforce (or least lift) there in this model,
 /// its lead over the runner-up, and whether that lead passes the pair's
 /// lift noise: the whole body's ([`Row::lift_noise_kg`]; the rear axle
 /// scatters as the whole body does in `bench/drag_noise`), or where both
@@ -926,22 +975,22 @@ fn rear_lift_ranking(c: &Collected) -> Option<String> {
 /// spoiler was best for rear-axle lift and had to work it out from
 /// sweep.csv. Wheels on (`wheels`, anywhere in the sweep), it says to
 /// compare like with like.
-fn rear_lift_in(rows: &[Row], wheels: bool) -> Option<String> {
+fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     if rows.len() < 2 {
         return None;
     }
     let mut rows: Vec<&Row> = rows.iter().collect();
-    rows.sort_by(|a, b| a.rear_axle_kg.total_cmp(&b.rear_axle_kg));
+    rows.sort_by(|a, b| axle.kg(a).total_cmp(&axle.kg(b)));
     let (best, next) = (rows[0], rows[1]);
-    let gap = next.rear_axle_kg - best.rear_axle_kg;
+    let gap = axle.kg(next) - axle.kg(best);
     // Each row's noise is against a like run: the pair's is their
     // root-mean-square.
     let whole = (0.5 * (best.lift_noise_kg.powi(2) + next.lift_noise_kg.powi(2))).sqrt();
-    let rear = match (best.rear_axle_spread_kg, next.rear_axle_spread_kg) {
+    let axle_spread = match (axle.spread(best), axle.spread(next)) {
         (Some(b), Some(n)) => b.hypot(n),
         _ => 0.0,
     };
-    let noise = whole.max(rear);
+    let noise = whole.max(axle_spread);
     let kg = |v: f64| crate::output::fixed(v, 1);
     // Underbodies that separate differently (by more than the point
     // `compare` notes) make the lift rest on what the model cannot show,
@@ -985,7 +1034,7 @@ fn rear_lift_in(rows: &[Row], wheels: bool) -> Option<String> {
     // Lift at the rear on the leader is no downforce: then it has the
     // least lift (a review's notchbacks, +10.9 to +13.7 kg, had been
     // called "the most downforce").
-    let [lead, more] = if best.rear_axle_kg < 0.0 {
+    let [lead, more] = if axle.kg(best) < 0.0 {
         ["the most downforce", "more downforce"]
     } else {
         ["the least lift", "less lift"]
@@ -999,11 +1048,12 @@ fn rear_lift_in(rows: &[Row], wheels: bool) -> Option<String> {
             t
         }
     };
-    let [b, n] = [signed(best.rear_axle_kg), signed(next.rear_axle_kg)];
+    let [b, n] = [signed(axle.kg(best)), signed(axle.kg(next))];
     Some(format!(
-        "{lead} in this model is {} ({b} kg at the rear; negative is downforce), {} kg \
+        "{lead} in this model is {} ({b} kg at the {}; negative is downforce), {} kg \
          {more} than {} ({n} kg), {standing}{across}{wheels}",
         best.name,
+        axle.word(),
         kg(gap),
         next.name,
     ))
@@ -1013,7 +1063,8 @@ fn rear_lift_in(rows: &[Row], wheels: bool) -> Option<String> {
 /// and [`Collected::notes`] and [`Collected::caveats`].
 fn judge(c: &mut Collected) {
     c.drag_ranking = best_drag(c);
-    c.rear_lift_ranking = rear_lift_ranking(c).unwrap_or_default();
+    c.front_lift_ranking = axle_lift_ranking(c, Axle::Front).unwrap_or_default();
+    c.rear_lift_ranking = axle_lift_ranking(c, Axle::Rear).unwrap_or_default();
     c.notes = notes(c);
     c.caveats = [yaw_note(c), ride_height_note(c), main_effects(c)]
         .into_iter()
@@ -1155,6 +1206,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         front_axle_kg: s.lift_kg.front_axle,
         rear_axle_kg: s.lift_kg.rear_axle,
         underbody_lift_kg: s.lift_kg.underbody,
+        underbody_front_axle_kg: s.lift_kg.underbody_front_axle,
         underbody_rear_axle_kg: s.lift_kg.underbody_rear_axle,
         separated_area_m2: s.separation.area_m2,
         separated_percent: 100.0 * s.separation.fraction,
@@ -1171,6 +1223,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
             * s.reference.area_m2
             / tuft_solver::loads::STANDARD_GRAVITY,
         drag_spread_counts: s.drag_spread(),
+        front_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[0]),
         rear_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[1]),
         noise_ranges: s
             .panel_noise
@@ -1430,6 +1483,9 @@ pub struct NoiseRanges {
     /// Separated area, m^2 (each count's share of the run's own wetted
     /// area).
     pub separated_m2: [f64; 2],
+    /// Front-axle lift, kg.
+    #[serde(default)]
+    pub front_axle_kg: [f64; 2],
     /// Rear-axle lift, kg.
     pub rear_axle_kg: [f64; 2],
     /// Drag estimate, C_D on the variant's own reference area.
@@ -1448,6 +1504,7 @@ impl NoiseRanges {
                     .map(|(f, r)| f + r),
             ),
             separated_m2: range(n.separated_fraction.iter().map(|f| f * wetted_m2)),
+            front_axle_kg: range(n.front_axle_kg.iter().copied()),
             rear_axle_kg: range(n.rear_axle_kg.iter().copied()),
             cd: range(n.cd.iter().copied()),
         }
@@ -1530,7 +1587,7 @@ fn csv_row(
 /// key; one line per combination of the other keys' values.
 fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
     type Metric = (&'static str, &'static str, fn(&Row) -> f64);
-    let metrics: [Metric; 4] = [
+    let metrics: [Metric; 5] = [
         ("Drag estimate", "drag estimate [counts: C_D x 1000]", |r| {
             1000.0 * r.cd * r.area_scale
         }),
@@ -1538,8 +1595,14 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         ("Separated area", "separated area [m²]", |r| {
             r.separated_area_m2
         }),
-        // The rear axle, the question of a spoiler or diffuser study (a
-        // review found it only in the table).
+        // Each axle: the rear, the question of a spoiler or diffuser
+        // study (a review found it only in the table), and the front, a
+        // chin lip's or a bumper's.
+        (
+            "Front-axle lift",
+            "front-axle lift [kg], negative: downforce",
+            |r| r.front_axle_kg,
+        ),
         (
             "Rear-axle lift",
             "rear-axle lift [kg], negative: downforce",
@@ -1608,6 +1671,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 None,
                 Some(Ranged::Lift),
                 Some(Ranged::Separated),
+                Some(Ranged::FrontAxle),
                 Some(Ranged::RearAxle),
             ];
             let noise_range = ranged[k].filter(|_| lines.len() == 1);
@@ -1627,10 +1691,12 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // rear-axle trend that was the smooth floor's suction, the
             // least certain part, and the plot said nothing of it).
             let lift: fn(&Row) -> f64 = |r| r.underbody_lift_kg;
+            let front: fn(&Row) -> f64 = |r| r.underbody_front_axle_kg;
             let rear: fn(&Row) -> f64 = |r| r.underbody_rear_axle_kg;
             let underbody = match k {
                 1 => Some(lift),
-                3 => Some(rear),
+                3 => Some(front),
+                4 => Some(rear),
                 _ => None,
             }
             .filter(|_| series(c, key, *f).len() == 1)
@@ -1815,6 +1881,7 @@ fn underbody_lines(
 enum Ranged {
     Lift,
     Separated,
+    FrontAxle,
     RearAxle,
 }
 
@@ -1840,6 +1907,10 @@ fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
         Ranged::Separated => [
             |r: &Row| range_end(r, |n| n.separated_m2[0]),
             |r: &Row| range_end(r, |n| n.separated_m2[1]),
+        ],
+        Ranged::FrontAxle => [
+            |r: &Row| range_end(r, |n| n.front_axle_kg[0]),
+            |r: &Row| range_end(r, |n| n.front_axle_kg[1]),
         ],
         Ranged::RearAxle => [
             |r: &Row| range_end(r, |n| n.rear_axle_kg[0]),
@@ -2717,8 +2788,10 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
         "<p class=\"{class}\"><strong>{}</strong></p>",
         escape(&sentence(&c.drag_ranking))
     );
-    if !c.rear_lift_ranking.is_empty() {
-        let _ = writeln!(s, "<p>{}</p>", escape(&sentence(&c.rear_lift_ranking)));
+    for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
+        if !line.is_empty() {
+            let _ = writeln!(s, "<p>{}</p>", escape(&sentence(line)));
+        }
     }
     for text in c.notes.iter().chain(&c.caveats) {
         let _ = writeln!(s, "<p class=\"caution\">{}</p>", escape(text));
@@ -3016,6 +3089,7 @@ mod tests {
             r.noise_ranges = Some(NoiseRanges {
                 lift_kg: [-10.0 - k as f64, 5.0],
                 separated_m2: [0.5, 0.9 + k as f64],
+                front_axle_kg: [-3.0 - k as f64, 2.0],
                 rear_axle_kg: [6.0, 22.0 + k as f64],
                 cd: [0.300 + 0.01 * k as f64, 0.330],
             });
@@ -3025,6 +3099,8 @@ mod tests {
         assert_eq!(lines[0].points, [(0.0, -10.0), (1.0, -11.0)]);
         let sep = range_lines(&c, "deg", Ranged::Separated).unwrap();
         assert_eq!(sep[1].points, [(0.0, 0.9), (1.0, 1.9)]);
+        let front = range_lines(&c, "deg", Ranged::FrontAxle).unwrap();
+        assert_eq!(front[0].points, [(0.0, -3.0), (1.0, -4.0)]);
         let rear = range_lines(&c, "deg", Ranged::RearAxle).unwrap();
         assert_eq!(rear[1].points, [(0.0, 22.0), (1.0, 23.0)]);
         // Drag: a bar per point, in counts on the plot's area, in the
@@ -3227,6 +3303,7 @@ mod tests {
             front_axle_kg: 0.0,
             rear_axle_kg: 0.0,
             underbody_lift_kg: 0.0,
+            underbody_front_axle_kg: 0.0,
             underbody_rear_axle_kg: 0.0,
             separated_area_m2: p / 10.0,
             separated_percent: p,
@@ -3239,6 +3316,7 @@ mod tests {
             half_model: false,
             lift_noise_kg: 3.3,
             drag_spread_counts: None,
+            front_axle_spread_kg: None,
             rear_axle_spread_kg: None,
             noise_ranges: None,
             warnings: 0,
@@ -3268,6 +3346,7 @@ mod tests {
             regions: Vec::new(),
             missing: Vec::new(),
             drag_ranking: String::new(),
+            front_lift_ranking: String::new(),
             rear_lift_ranking: String::new(),
             notes: Vec::new(),
             caveats: Vec::new(),
@@ -3482,7 +3561,7 @@ mod tests {
         for (r, kg) in c.variants.iter_mut().zip([-20.4, -24.7, -23.7]) {
             r.rear_axle_kg = kg;
         }
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(
             line.starts_with(
                 "rear axle: the most downforce in this model is v1 (-24.7 kg at the rear"
@@ -3493,7 +3572,7 @@ mod tests {
         );
         c.variants[2].rear_axle_kg = -12.2;
         c.variants[0].wheels_on = true;
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(
             line.contains("4.3 kg more downforce than v0 (-20.4 kg), beyond the lift noise")
                 && line.ends_with("same wheels only"),
@@ -3506,7 +3585,7 @@ mod tests {
         for (r, kg) in lifting.variants.iter_mut().zip([10.9, 13.7, 13.7]) {
             r.rear_axle_kg = kg;
         }
-        let line = rear_lift_ranking(&lifting).unwrap_or_default();
+        let line = axle_lift_ranking(&lifting, Axle::Rear).unwrap_or_default();
         assert!(
             line.starts_with(
                 "rear axle: the least lift in this model is v0 (+10.9 kg at the rear; negative is \
@@ -3518,7 +3597,7 @@ mod tests {
         // (tuft run --noise): 5 kg of noise, over the 4.3 kg lead.
         c.variants[1].rear_axle_spread_kg = Some(3.0);
         c.variants[0].rear_axle_spread_kg = Some(4.0);
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(
             line.contains(
                 "4.3 kg more downforce than v0 (-20.4 kg), within the lift noise of about 5.0 kg"
@@ -3531,13 +3610,58 @@ mod tests {
         c.variants[0].rear_axle_spread_kg = None;
         c.variants[1].underbody_separated_percent = 24.0;
         c.variants[0].underbody_separated_percent = 11.0;
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(
             line.contains(
                 "beyond the lift noise of about 3.3 kg, but their underbodies separate differently (24.0 % \
                  against 11.0 %), where the model does not show a diffuser's stall: no winner"
             ),
             "{line}"
+        );
+    }
+
+    /// The front axle is ranked as the rear is, from its own lift and its
+    /// own panel-count spread, and both lines are shown (a review's chin
+    /// lip and bumper study had found the front axle in sweep.csv only).
+    #[test]
+    fn the_front_axle_is_ranked_beside_the_rear() {
+        let mut c = sweep(&[10.0, 10.0, 10.0]);
+        for (r, (front, rear)) in
+            c.variants
+                .iter_mut()
+                .zip([(12.0, -20.4), (3.5, -24.7), (8.1, -23.7)])
+        {
+            r.front_axle_kg = front;
+            r.rear_axle_kg = rear;
+        }
+        let line = axle_lift_ranking(&c, Axle::Front).unwrap_or_default();
+        assert!(
+            line.starts_with(
+                "front axle: the least lift in this model is v1 (+3.5 kg at the front; negative is \
+                 downforce), 4.6 kg less lift than v2 (+8.1 kg), beyond the lift noise of about 3.3 kg"
+            ),
+            "{line}"
+        );
+        // The front axles' own spreads, 3 and 4 kg, put the lead within
+        // the noise; the rear's spreads do not count for the front.
+        c.variants[1].front_axle_spread_kg = Some(3.0);
+        c.variants[2].front_axle_spread_kg = Some(4.0);
+        c.variants[1].rear_axle_spread_kg = Some(0.1);
+        c.variants[2].rear_axle_spread_kg = Some(0.1);
+        let line = axle_lift_ranking(&c, Axle::Front).unwrap_or_default();
+        assert!(
+            line.contains("within the lift noise of about 5.0 kg: no winner"),
+            "{line}"
+        );
+        judge(&mut c);
+        let shown = shown(&c, &[]);
+        let (front, rear) = (
+            shown.find("Front axle: the least lift"),
+            shown.find("Rear axle: the most downforce"),
+        );
+        assert!(
+            matches!((front, rear), (Some(f), Some(r)) if f < r),
+            "{shown}"
         );
     }
 
@@ -3555,7 +3679,7 @@ mod tests {
             r.rear_axle_kg = kg;
             r.underbody_separated_percent = under;
         }
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(
             line.contains(
                 "beyond the lift noise of about 3.3 kg; across these variants the underbody's separated \
@@ -3565,7 +3689,7 @@ mod tests {
         );
         // Every underbody alike: no caution.
         c.variants[2].underbody_separated_percent = 11.2;
-        let line = rear_lift_ranking(&c).unwrap_or_default();
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
         assert!(!line.contains("across these variants"), "{line}");
     }
 

@@ -188,8 +188,8 @@ fn three_yaw_angles_share_one_matrix_and_equal_separate_runs() {
     let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
     assert_eq!(
         html.matches("<figure><img").count(),
-        4,
-        "drag, lift, separated area and rear-axle lift against yaw"
+        5,
+        "drag, lift, separated area, front- and rear-axle lift against yaw"
     );
     // Each yaw angle's variant at a glance, under its wind condition.
     assert_eq!(html.matches("<img class=\"glance\"").count(), 3);
