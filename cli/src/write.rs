@@ -42,6 +42,10 @@ pub struct Fields {
     /// The dead water's pressure coefficient, which the separated panels
     /// hold after the separated-flow loop.
     pub dead_water_cp: Option<f64>,
+    /// Panels whose pressure the loop holds beside a rim
+    /// (`BoundaryLayer::rim_zone`); empty without the dead water's
+    /// pressure.
+    pub held: Vec<bool>,
 }
 
 impl Fields {
@@ -55,6 +59,11 @@ impl Fields {
             state: l.iter().map(|p| panel_state(p.state)).collect(),
             risk: l.iter().map(|p| p.risk).collect(),
             dead_water_cp: c.wakes.as_ref().and_then(|w| w.dead_water_cp),
+            held: if c.wakes.as_ref().is_some_and(|w| w.dead_water_cp.is_some()) {
+                c.layer.rim_zone.clone()
+            } else {
+                Vec::new()
+            },
             separation_note: c.wakes.as_ref().filter(|w| w.passes > 1).map(|w| {
                 format!(
                     "Separated regions from the separated-flow loop ({}, {}).",
@@ -82,6 +91,7 @@ impl Fields {
             risk: &self.risk,
             separation_note: self.separation_note.as_deref(),
             dead_water_cp: self.dead_water_cp,
+            held: &self.held,
         }
     }
 }

@@ -154,6 +154,7 @@ impl PanelFields {
             risk: &self.risk,
             separation_note: None,
             dead_water_cp: None,
+            held: &[],
         }
     }
 }

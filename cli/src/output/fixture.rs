@@ -72,6 +72,7 @@ impl Fixture {
             risk: &self.risk,
             separation_note: None,
             dead_water_cp: None,
+            held: &[],
         }
     }
 }

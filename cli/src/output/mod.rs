@@ -112,6 +112,10 @@ pub struct SurfaceResult<'a> {
     /// separated-flow loop's dead water), which the pressure pictures mark
     /// as assumed; `None` where their `cp` is the attached flow's.
     pub dead_water_cp: Option<f64>,
+    /// Panels beside a sharp edge the flow leaves, whose attached `cp` is
+    /// held no lower than the dead water's (the separated-flow loop's rim
+    /// zone); empty where nothing is held or it is not known.
+    pub held: &'a [bool],
 }
 
 impl SurfaceResult<'_> {
@@ -166,7 +170,12 @@ impl SurfaceResult<'_> {
             ("state", self.state.len()),
             ("risk", self.risk.len()),
         ];
-        check_lengths(&lengths, n)
+        check_lengths(&lengths, n)?;
+        if self.held.is_empty() {
+            Ok(())
+        } else {
+            check_lengths(&[("held", self.held.len())], n)
+        }
     }
 }
 

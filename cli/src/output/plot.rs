@@ -869,7 +869,7 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
     // Each cut panel: where it is cut (x, z at the middle), the cut's two
     // ends, Cp, whether separated and whether it faces up.
     let mut cuts = Vec::new();
-    for ((p, &cp), &state) in s.mesh.panels.iter().zip(s.cp).zip(s.state) {
+    for (i, ((p, &cp), &state)) in s.mesh.panels.iter().zip(s.cp).zip(s.state).enumerate() {
         let ends = match params.band {
             Some(band) => ((p.centroid.y - y).abs() <= band).then(|| {
                 let (lo, hi) = p
@@ -894,6 +894,7 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
                 state == PanelState::Separated,
                 p.normal.z >= 0.0,
                 p.normal.z.abs() < UPRIGHT_NZ,
+                s.held.get(i).copied().unwrap_or(false),
             ));
         }
     }
@@ -914,7 +915,7 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
     // the body does not count, nor an upright base's panels one above
     // another, facing up and down by round-off: a base's panel had read
     // "under a part" (a review's sports car).
-    for (k, &((x, z), _, cp, separated, up, _)) in cuts.iter().enumerate() {
+    for (k, &((x, z), _, cp, separated, up, _, held)) in cuts.iter().enumerate() {
         let covered = cuts
             .iter()
             .enumerate()
@@ -932,16 +933,40 @@ pub fn centreline_cp(s: &SurfaceResult<'_>, params: &CentrelineParams) -> Centre
             (false, true) => &mut upper,
             (false, false) => &mut lower,
         };
-        side.push((x, cp, separated));
+        side.push((x, cp, separated, held && !separated));
     }
     for side in [&mut upper, &mut lower, &mut under, &mut over] {
         side.sort_by(|a, b| a.0.total_cmp(&b.0));
     }
-    let points = |v: &[(f64, f64, bool)]| v.iter().map(|p| (p.0, p.1)).collect();
+    let points = |v: &[(f64, f64, bool, bool)]| v.iter().map(|p| (p.0, p.1)).collect();
+    // The runs of one flag, as `(x, Cp, flag)` for [`separated_spans`].
+    let spans = |v: &[(f64, f64, bool, bool)], held: bool| {
+        let flagged: Vec<(f64, f64, bool)> = v
+            .iter()
+            .map(|p| (p.0, p.1, if held { p.3 } else { p.2 }))
+            .collect();
+        separated_spans(&flagged)
+    };
+    let mut held: Vec<(f64, f64)> = [&upper, &lower]
+        .into_iter()
+        .flat_map(|side| spans(side, true))
+        .collect();
+    held.sort_by(|a, b| a.0.total_cmp(&b.0));
+    // Overlapping stretches of the two surfaces made one.
+    let held = held
+        .into_iter()
+        .fold(Vec::<(f64, f64)>::new(), |mut out, (a, b)| {
+            match out.last_mut() {
+                Some(last) if a <= last.1 => last.1 = last.1.max(b),
+                _ => out.push((a, b)),
+            }
+            out
+        });
     Centreline {
         y,
-        upper_separated: separated_spans(&upper),
-        lower_separated: separated_spans(&lower),
+        upper_separated: spans(&upper, false),
+        lower_separated: spans(&lower, false),
+        held,
         upper: points(&upper),
         lower: points(&lower),
         under: points(&under),
@@ -1005,6 +1030,11 @@ pub struct Centreline {
     /// Panels facing down with surface below them: over a part (the roof
     /// box's underside).
     pub over: Vec<(f64, f64)>,
+    /// Stretches of x where the upper or lower surface's attached panels
+    /// lie beside a sharp edge the flow leaves, their Cp held rather than
+    /// computed ([`SurfaceResult::held`]), each reaching halfway to its
+    /// neighbours as the separated ones do.
+    pub held: Vec<(f64, f64)>,
 }
 
 /// The two ends `(x, z)` of the segment where the plane at `y` cuts a
@@ -1080,6 +1110,7 @@ pub fn centreline_cp_plot_with_params(
         lower_separated,
         mut under,
         mut over,
+        held,
     } = centreline_cp(s, params);
     let clipped = [&mut upper, &mut lower, &mut under, &mut over]
         .into_iter()
@@ -1104,7 +1135,22 @@ pub fn centreline_cp_plot_with_params(
             super::short_number((lowest * 10.0).round() / 10.0)
         );
     }
-    let (shading, note) = separated_shading(s.dead_water_cp, &upper_separated, &lower_separated);
+    let (mut shading, note) =
+        separated_shading(s.dead_water_cp, &upper_separated, &lower_separated);
+    // The held stretch named in the legend: the note line above the plot
+    // is full with the separated stretches.
+    if !held.is_empty() {
+        let bound = s
+            .dead_water_cp
+            .map(|cp| format!(" (no lower than Cp {cp:.2})"))
+            .unwrap_or_default();
+        shading.push(Shading {
+            spans: held,
+            name: format!("beside a sharp edge: Cp held{bound}, not computed"),
+            colour: HELD_GREY,
+            rows: HELD_ROWS,
+        });
+    }
     let between_words = if under.is_empty() && over.is_empty() {
         ""
     } else {
@@ -1225,6 +1271,13 @@ fn separated_shading(
     };
     (shading, note)
 }
+
+/// The strip along the foot of the centre-line plot that marks where the
+/// attached Cp is held beside a sharp edge: a grey no curve uses, over
+/// the bottom 6 % of the plot's height (a review read the bonnet's
+/// leading edge off the curve with nothing saying its value was held).
+const HELD_GREY: Rgb = [200, 200, 200];
+const HELD_ROWS: (f64, f64) = (0.94, 1.0);
 
 /// How much of a curve's colour its separated stretches' tint takes.
 const SEPARATED_TINT: f64 = 0.16;
@@ -1361,6 +1414,43 @@ mod tests {
             let p = c.pixel(px.round() as i64, py.round() as i64);
             assert!(i32::from(p[0]) - i32::from(p[1]) < 50, "{p:?}");
         }
+    }
+
+    /// Panels held beside a sharp edge (the loop's rim zone) make the
+    /// centre line's held stretches, the two surfaces' merged, none where
+    /// nothing is held; a held flag per panel or none.
+    #[test]
+    fn the_centre_line_marks_where_its_pressure_is_held() {
+        let f = Fixture::sphere(3);
+        let s = f.surface();
+        // The front cap, x < -0.6 of the unit sphere, attached there.
+        let held: Vec<bool> = f.mesh.panels.iter().map(|p| p.centroid.x < -0.6).collect();
+        assert!(
+            held.iter()
+                .zip(s.state)
+                .any(|(&h, &st)| h && st != PanelState::Separated)
+        );
+        let with = SurfaceResult { held: &held, ..s };
+        let c = centreline_cp(&with, &CentrelineParams::default());
+        assert_eq!(c.held.len(), 1, "{:?}", c.held);
+        let (from, to) = c.held[0];
+        // From the nose to about x -0.6 (halfway between the cuts either
+        // side of the cap's edge).
+        assert!(from < -0.9 && (-0.7..-0.3).contains(&to), "{from} {to}");
+        assert!(
+            centreline_cp(&s, &CentrelineParams::default())
+                .held
+                .is_empty()
+        );
+        assert!(centreline_cp_plot(&with, &caption()).is_ok());
+        let short = SurfaceResult {
+            held: &held[1..],
+            ..s
+        };
+        assert!(matches!(
+            centreline_cp_plot(&short, &caption()),
+            Err(OutputError::LengthMismatch { field: "held", .. })
+        ));
     }
 
     #[test]
