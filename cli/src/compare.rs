@@ -592,7 +592,10 @@ pub fn comparison_named(
     let doubt = if !separation.is_empty() {
         Some(ModelDoubt::Separation)
     } else if rims.is_some() {
-        Some(ModelDoubt::Rims)
+        Some(match rim_place(&a.summary, &b.summary, &surface) {
+            RimPlace::Reaches(_) => ModelDoubt::RimsMoved,
+            RimPlace::Clear(..) | RimPlace::Unknown => ModelDoubt::Rims,
+        })
     } else {
         slope.as_ref().map(|_| ModelDoubt::RearSlope)
     };
@@ -1681,21 +1684,9 @@ fn rim_note(
 ) -> Option<String> {
     let (ra, rb) = (a.separation.rim_m2 + 0.0, b.separation.rim_m2 + 0.0);
     let area = a.reference.area_m2.max(b.reference.area_m2);
-    // The larger rim zone's x range, clear of where the shape changed (by
-    // a tenth of the body's length): the shape did not change there, so
-    // the call flipped with the panelling (a review's diffuser variants,
-    // their noses identical, read 0.02, 0 and 0.22 m^2).
-    let zone = if rb >= ra {
-        b.separation.rim_x_m
-    } else {
-        a.separation.rim_x_m
-    };
-    let reach = 0.1 * b.reference.length_m;
     ((rb - ra).abs() > RIM_CHANGE_SHARE * area).then(|| {
-        let why = match surface.changed_x_m {
-            Some([lo, hi])
-                if zone[0] <= zone[1] && (zone[1] < lo - reach || zone[0] > hi + reach) =>
-            {
+        let why = match rim_place(a, b, surface) {
+            RimPlace::Clear(zone, [lo, hi]) => {
                 format!(
                 "; the shape did not change there (x {:.2} to {:.2} m; it changed from x {lo:.2} to \
                  {hi:.2} m), so the call flipped with the panelling: the edge's rounding lies near the \
@@ -1703,15 +1694,12 @@ fn rim_note(
                     zone[0], zone[1]
                 )
             }
-            // The change reaches the zone: the held area moves with the
-            // shape, no rounding need be near the rim radius (a review's
-            // nose raised 60 mm, no radius changed, read only the latter).
-            Some([lo, hi]) if zone[0] <= zone[1] && zone[0] <= hi && zone[1] >= lo => format!(
+            RimPlace::Reaches(zone) => format!(
                 "; the change reaches the edges there (x {:.2} to {:.2} m), so the area held at the \
                  edges' bound moves with the shape itself",
                 zone[0], zone[1]
             ),
-            _ => String::new(),
+            RimPlace::Unknown => String::new(),
         };
         format!(
             "the area beside sharp front edges the flow leaves (rims) is {ra:.2} m^2 on A and {rb:.2} \
@@ -1719,6 +1707,46 @@ fn rim_note(
              rounded with a step where the measured drag falls over a range of radii{why}"
         )
     })
+}
+
+/// Where the larger rim zone (x range, m) lies against where the shape
+/// changed ([`rim_place`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum RimPlace {
+    /// Clear of the change by a tenth of the body's length: the shape did
+    /// not change there, so the call flipped with the panelling (a
+    /// review's diffuser variants, their noses identical, read 0.02, 0
+    /// and 0.22 m^2). The zone, then the change.
+    Clear([f64; 2], [f64; 2]),
+    /// The change reaches the zone: the held area moves with the shape,
+    /// no rounding need be near the rim radius (a review's nose raised 60
+    /// mm, no radius changed).
+    Reaches([f64; 2]),
+    /// Neither: no change found, no zone, or near without reaching it.
+    Unknown,
+}
+
+/// [`RimPlace`] of the larger of the two runs' rim zones.
+fn rim_place(
+    a: &crate::summary::Summary,
+    b: &crate::summary::Summary,
+    surface: &SurfaceDeltas,
+) -> RimPlace {
+    let zone = if b.separation.rim_m2 >= a.separation.rim_m2 {
+        b.separation.rim_x_m
+    } else {
+        a.separation.rim_x_m
+    };
+    let reach = 0.1 * b.reference.length_m;
+    match surface.changed_x_m {
+        Some([lo, hi]) if zone[0] <= zone[1] && (zone[1] < lo - reach || zone[0] > hi + reach) => {
+            RimPlace::Clear(zone, [lo, hi])
+        }
+        Some([lo, hi]) if zone[0] <= zone[1] && zone[0] <= hi && zone[1] >= lo => {
+            RimPlace::Reaches(zone)
+        }
+        _ => RimPlace::Unknown,
+    }
 }
 
 /// A note when a named rear-facing region (a rear window, a slant) has a
@@ -2488,6 +2516,17 @@ mod tests {
             n.ends_with("; the change reaches the edges there (x 0.00 to 0.28 m), so the area held at the edges' bound moves with the shape itself"),
             "{n}"
         );
+        // Which reason heads the verdict: the held area moving, or an
+        // edge's rounding (away from the change, or no change found).
+        assert_eq!(
+            rim_place(&with_rims(0.0), &nose, &front),
+            RimPlace::Reaches([0.0, 0.28])
+        );
+        assert!(matches!(
+            rim_place(&with_rims(0.0), &nose, &tail),
+            RimPlace::Clear(..)
+        ));
+        assert_eq!(rim_place(&with_rims(0.0), &nose, &none), RimPlace::Unknown);
         // A clear 20-count difference is then no win, and says why.
         let drag = |s: &mut Summary, cd: f64| {
             s.coefficients.drag = cd;
@@ -2503,7 +2542,20 @@ mod tests {
         assert!(
             v.text
                 .starts_with("no winner: the sharp front edges the flow leaves differ")
-                && v.text.contains("13-30 %"),
+                && v.text.contains("13-30 %")
+                && v.text.contains("a rounding near the rim radius"),
+            "{}",
+            v.text
+        );
+        // The change reaches the edges (a nose raised, no radius
+        // changed): the reason says the held area moves with the shape,
+        // not that a rounding reads either way.
+        let v = drag_verdict(&a, &b, Some(ModelDoubt::RimsMoved));
+        assert!(
+            v.text
+                .starts_with("no winner: the sharp front edges the flow leaves differ")
+                && v.text.contains("moves with the changed shape")
+                && !v.text.contains("rim radius"),
             "{}",
             v.text
         );

@@ -179,8 +179,14 @@ pub enum ModelDoubt {
     /// [`crate::compare::SLOPE_CAUTION_DEG`].
     RearSlope,
     /// The area beside sharp front edges differs
-    /// ([`crate::compare::RIM_CHANGE_SHARE`]).
+    /// ([`crate::compare::RIM_CHANGE_SHARE`]), away from where the shape
+    /// changed, or where that is not known: the call on an edge's rounding.
     Rims,
+    /// The same, where the change reaches those edges: the area held at
+    /// their bound moves with the shape, no rounding need be in question
+    /// (a review's nose raised 60 mm, no radius changed, had read of
+    /// roundings near the rim radius at the head of its verdict).
+    RimsMoved,
 }
 
 /// Judge B's drag against A's; `doubt` when the difference rests on the
@@ -218,7 +224,9 @@ pub fn drag_verdict_named(
             "a rear slope differs and reaches {:.0} degrees or more",
             crate::compare::SLOPE_CAUTION_DEG
         ),
-        Some(ModelDoubt::Rims) => "the sharp front edges the flow leaves differ".to_owned(),
+        Some(ModelDoubt::Rims | ModelDoubt::RimsMoved) => {
+            "the sharp front edges the flow leaves differ".to_owned()
+        }
         _ => match place {
             Some(p) => format!("the separated regions differ (most {p})"),
             None => "the separated regions differ".to_owned(),
@@ -228,6 +236,10 @@ pub fn drag_verdict_named(
         Some(ModelDoubt::Rims) => {
             "flat-faced bodies come out 13-30 % below their handbook drag, and a rounding near the \
              rim radius reads either way"
+        }
+        Some(ModelDoubt::RimsMoved) => {
+            "flat-faced bodies come out 13-30 % below their handbook drag, and the area it holds at \
+             the edges' bound moves with the changed shape"
         }
         Some(ModelDoubt::RearSlope) => {
             "it ranks the slant-back research body's 25 and 35 degree slants the wrong way round"
