@@ -459,7 +459,7 @@ pub const UNDERBODY_SLICE_GAP: f64 = 0.02;
 fn slice_note(c: &Computed) -> String {
     match &c.wakes {
         Some(w) if w.passes > 1 => format!(
-            "Hatched grey: dead water behind separated surface (to one body height), which the model \
+            "Hatched grey: dead water behind separated surface (to one and a half body heights), which the model \
              holds at {} and computes no flow in (the VTK file keeps the stream it lets through).",
             w.dead_water_cp
                 .or(w.base_cp_loop)

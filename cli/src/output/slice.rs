@@ -92,8 +92,12 @@ pub fn near_surface(mesh: &tuft_mesh::PanelMesh, points: &[Point3<f64>]) -> Vec<
 /// body heights: the recirculating near wake of a bluff body closes about
 /// one to one and a half base heights behind the base (square-back bodies
 /// near the ground; from memory), and a car's base is about its height or
-/// less (our choice: one body height).
-pub const DEAD_WATER_HEIGHTS: f64 = 1.0;
+/// less (our choice: the far end, one and a half body heights, since a
+/// pocket's floor and walls hold the trapped flow in: at one body height
+/// a review's pickup, its tailgate 1.64 m behind the cab on a body 1.63 m
+/// tall, read the tailgate's inside at stagnation pressure as one file and
+/// in the dead water as the same file wrapped, 88 counts apart).
+pub const DEAD_WATER_HEIGHTS: f64 = 1.5;
 
 /// Which of `points` lie in the dead water behind `mesh`'s separated
 /// panels (`separated`, one flag per panel): looking upstream from the
@@ -110,28 +114,41 @@ pub fn dead_water(
     reach: f64,
     points: &[Point3<f64>],
 ) -> Vec<bool> {
+    first_met_separated(mesh, separated, &-stream, reach, points)
+}
+
+/// Which of `points` see, along the direction `dir`, a separated panel of
+/// `mesh` (`separated`, one flag per panel; or its mirror image for a half
+/// model) as the first surface within `reach` metres, met from the side
+/// its outward normal faces: a ray from inside the body meets a panel's
+/// inner side first and marks nothing. Against the stream it finds the
+/// dead water behind separated bases ([`dead_water`]); along it, the
+/// separated faces turned to the wind ahead of a point.
+pub fn first_met_separated(
+    mesh: &tuft_mesh::PanelMesh,
+    separated: &[bool],
+    dir: &Vector3<f64>,
+    reach: f64,
+    points: &[Point3<f64>],
+) -> Vec<bool> {
     use rayon::prelude::*;
     if separated.len() != mesh.len() || !separated.iter().any(|&s| s) || !(reach > 0.0) {
         return vec![false; points.len()];
     }
-    // Each panel (and mirror image) with whether it is separated and
-    // faces downstream, the side a point behind it sees: a ray from inside
-    // the body meets a panel's inner side first and marks nothing.
-    let along = stream.normalize();
+    let dir = dir.normalize();
     let shown = super::render::display_triangles(mesh);
     let corners: Vec<[Point3<f64>; 3]> = shown.iter().map(|t| t.corners).collect();
     let marks: Vec<bool> = shown
         .iter()
-        .map(|t| separated[t.panel as usize] && t.normal.dot(&along) > 0.0)
+        .map(|t| separated[t.panel as usize] && t.normal.dot(&dir) < 0.0)
         .collect();
-    let back = -along;
-    let bins = RayBins::new(&corners, &back);
+    let bins = RayBins::new(&corners, &dir);
     points
         .par_iter()
         .map(|q| {
             let mut nearest: Option<(f64, bool)> = None;
             for &k in bins.along(q) {
-                if let Some(t) = ray_hits(q, &back, &corners[k as usize])
+                if let Some(t) = ray_hits(q, &dir, &corners[k as usize])
                     && t <= reach
                     && nearest.is_none_or(|(d, _)| t < d)
                 {
