@@ -413,15 +413,31 @@ fn default_out(a: &ResultFolder, b: &ResultFolder) -> PathBuf {
 /// 20 mm below it, and the difference drawn over its nose; a change of
 /// shape that moves the lowest point (a deeper splitter) leaves the rest
 /// of the body in place, so its unshifted mapping stays the closer.
+/// A half model mapped onto a whole body brings its mirror image, each
+/// image panel standing for its own (a review's half-model run against
+/// the whole body of the same file had read the other half as reshaped,
+/// 52 % of B).
 pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
+    let mirrored = a_mirrored(a, b);
+    let n = a.panels.len();
     let map = |shift: nalgebra::Vector3<f64>| {
+        let images = a.panels.iter().filter(|_| mirrored).map(|p| SourcePanel {
+            centroid: nalgebra::Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z),
+            normal: nalgebra::Vector3::new(p.normal.x, -p.normal.y, p.normal.z),
+            area: p.area,
+        });
         let src: Vec<SourcePanel> = a
             .panels
             .iter()
             .map(|p| SourcePanel {
-                centroid: p.centroid + shift,
+                centroid: p.centroid,
                 normal: p.normal,
                 area: p.area,
+            })
+            .chain(images)
+            .map(|p| SourcePanel {
+                centroid: p.centroid + shift,
+                ..p
             })
             .collect();
         let targets: Vec<_> = b.panels.iter().map(|p| (p.centroid, p.normal)).collect();
@@ -433,10 +449,23 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
             shift,
         });
         m.shift = shift;
+        // An image panel's values are its own panel's.
+        for j in &mut m.source {
+            *j %= n;
+        }
+        for w in &mut m.weights {
+            for (j, _) in w.iter_mut() {
+                *j %= n;
+            }
+        }
         m
     };
     let in_place = map(nalgebra::Vector3::zeros());
-    let shift = centroid_bounds(b).0 - centroid_bounds(a).0;
+    let mut a_low = centroid_bounds(a).0;
+    if mirrored {
+        a_low.y = -centroid_bounds(a).1.y;
+    }
+    let shift = centroid_bounds(b).0 - a_low;
     if shift.norm() <= 1e-9 * b.summary.reference.length_m.max(1.0) {
         return in_place;
     }
@@ -454,6 +483,30 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
     } else {
         in_place
     }
+}
+
+/// A note when one run is a half model and the other a whole body: the
+/// same shape solved both ways differs beyond the panel noise (a review's
+/// pickup: 9 to 22 counts, half against whole, tailgate up and off), and
+/// nothing had said one was a half model.
+fn half_and_whole_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (ha, hb) = (a.mesh.symmetry_plane, b.mesh.symmetry_plane);
+    (ha != hb).then(|| {
+        let [half, whole] = if ha { ["A", "B"] } else { ["B", "A"] };
+        format!(
+            "{half} was solved as a half model and {whole} as a whole body ({half}'s mirror image stands \
+             for the other half here): the two solves differ in how the centre plane is panelled, and \
+             a whole body's separated flow can drift to one side, so the same shape run both ways \
+             differs by more than the panel noise (a review's pickup: 9 to 22 counts); compare \
+             variants run the same way"
+        )
+    })
+}
+
+/// Whether A is a half model and B a whole body: A's mirror image then
+/// stands for B's other half.
+pub fn a_mirrored(a: &ResultFolder, b: &ResultFolder) -> bool {
+    a.summary.mesh.symmetry_plane && !b.summary.mesh.symmetry_plane
 }
 
 /// The least and the greatest corner of a run's panel centroids.
@@ -947,6 +1000,9 @@ fn notes(
         notes.push(format!(
             "the runs are at different yaw angles ({ya} and {yb} degrees)"
         ));
+    }
+    if let Some(n) = half_and_whole_note(sa, sb) {
+        notes.push(n);
     }
     // A half model's panels stand for twice as many on the whole body.
     let whole = |s: &crate::summary::Summary| {
@@ -2705,6 +2761,61 @@ mod tests {
         let m = map_a_onto_b(&a, &folder(&splitter, 0.0));
         assert_eq!(m.shift, nalgebra::Vector3::zeros());
         assert!(m.distance[..grid.len()].iter().all(|&d| d < 1e-12));
+    }
+
+    /// A half model against the whole body of the same shape: A's mirror
+    /// image stands for B's other half, its panels' values their own (a
+    /// review's pickup had read B's other half as reshaped), and a note
+    /// says one is a half model; a whole body against a half needs no
+    /// image.
+    #[test]
+    fn a_half_model_is_mirrored_onto_a_whole_body() {
+        let grid = |ys: &[f64]| -> Vec<[f64; 3]> {
+            (0..10)
+                .flat_map(|i| ys.iter().map(move |&y| [0.45 * f64::from(i), y, 0.12]))
+                .collect()
+        };
+        let folder = |points: &[[f64; 3]], half: bool| {
+            let mut summary = with_area(1.9);
+            summary.mesh.symmetry_plane = half;
+            ResultFolder {
+                path: PathBuf::from("r"),
+                summary,
+                panels: points
+                    .iter()
+                    .map(|c| folder::PanelRow {
+                        centroid: nalgebra::Point3::new(c[0], c[1], c[2]),
+                        normal: -nalgebra::Vector3::z(),
+                        area: 0.05,
+                        cp: c[0] + c[1].abs(),
+                        state: PanelState::Turbulent,
+                        risk: 0.0,
+                    })
+                    .collect(),
+            }
+        };
+        let half = folder(&grid(&[0.15, 0.45, 0.75]), true);
+        let whole = folder(&grid(&[-0.75, -0.45, -0.15, 0.15, 0.45, 0.75]), false);
+        let m = map_a_onto_b(&half, &whole);
+        assert_eq!(m.shift, nalgebra::Vector3::zeros());
+        assert!(m.distance.iter().all(|&d| d < 1e-12), "{:?}", m.distance);
+        assert!(m.source.iter().all(|&j| j < half.panels.len()));
+        let f = mapped_fields(&half, &whole, &m);
+        assert!(
+            f.delta_cp.iter().all(|d| d.abs() < 1e-12),
+            "{:?}",
+            f.delta_cp
+        );
+        let note = half_and_whole_note(&half.summary, &whole.summary).unwrap_or_default();
+        assert!(
+            note.starts_with("A was solved as a half model and B as a whole body"),
+            "{note}"
+        );
+        assert!(half_and_whole_note(&whole.summary, &whole.summary).is_none());
+        // The other way round: B's half lies on A's whole body as it is.
+        assert!(!a_mirrored(&whole, &half));
+        let back = map_a_onto_b(&whole, &half);
+        assert!(back.distance.iter().all(|&d| d < 1e-12));
     }
 
     #[test]
