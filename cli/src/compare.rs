@@ -192,6 +192,11 @@ pub struct SurfaceDeltas {
     /// splitter, an air dam), which this model cannot assess.
     #[serde(default)]
     pub changed_under_nose_m2: f64,
+    /// Of the changed area, the part facing along the stream (normal
+    /// within 45 degrees of it, either way), m^2: a plate across the flow
+    /// (a tailgate) rather than a part along it.
+    #[serde(default)]
+    pub changed_across_m2: f64,
     /// B's typical panel edge: that of an equilateral triangle of its
     /// median panel area, m.
     #[serde(default)]
@@ -886,6 +891,9 @@ fn changed_surface(
                 out.changed_under_nose_m2 += area;
             }
         }
+        if pb.normal.x.abs() > std::f64::consts::FRAC_1_SQRT_2 {
+            out.changed_across_m2 += area;
+        }
     }
 }
 
@@ -1501,15 +1509,20 @@ pub const SHORT_CHANGE_EDGES: f64 = 3.0;
 /// as dead water with nothing saying the part was under two panels). The
 /// part's length is taken as the span of the changed panels' centroids
 /// plus one edge. It names the panel count that puts three panels along
-/// it (the count goes with the inverse square of the edge). `names`: the
-/// runs, A's and B's.
+/// it (the count goes with the inverse square of the edge). Not for a
+/// plate across the flow, over half of its changed area facing along the
+/// stream: the panels across it resolve its height and width, which set
+/// its pressure, and its thickness is no length to resolve (a review's
+/// 60 mm tailgate, up against removed, had been told to take 16,000
+/// panels). `names`: the runs, A's and B's.
 fn short_change_note(surface: &SurfaceDeltas, [_, b]: [&str; 2]) -> Option<String> {
     let e = surface.panel_edge_m;
     let [lo, hi] = surface.changed_x_m?;
     let length = hi - lo + e;
+    let across = surface.changed_across_m2 > 0.5 * surface.changed_m2;
     // A device under the nose has its own note: no panel count makes it
     // assessable.
-    let short = surface.changed_m2 > 0.0 && e > 0.0 && length < SHORT_CHANGE_EDGES * e;
+    let short = surface.changed_m2 > 0.0 && e > 0.0 && length < SHORT_CHANGE_EDGES * e && !across;
     (short && nose_device_note(surface).is_none()).then(|| {
         let target = length / SHORT_CHANGE_EDGES;
         let panels = surface.panels_b as f64 * (e / target).powi(2);
@@ -2096,6 +2109,14 @@ mod tests {
         lip.changed_underbody_m2 = 0.05;
         lip.changed_under_nose_m2 = 0.05;
         assert_eq!(short_change_note(&lip, ["A", "B"]), None);
+        // A plate across the flow (a review's 60 mm tailgate, up against
+        // removed): its faces meet the stream, no note; a mirror head,
+        // 44 % of its area facing along the stream, keeps it.
+        let mut plate = surface(Some([5.2, 5.26]));
+        plate.changed_across_m2 = 0.9 * plate.changed_m2;
+        assert_eq!(short_change_note(&plate, ["A", "B"]), None);
+        plate.changed_across_m2 = 0.44 * plate.changed_m2;
+        assert!(short_change_note(&plate, ["A", "B"]).is_some());
         let note = nose_device_note(&lip).unwrap_or_default();
         assert!(
             note.starts_with("the shape changed under the nose (0.050 of the 0.120 m^2 that moved")
