@@ -219,6 +219,9 @@ fn print_summary(out: &Path, s: &Summary) {
         "  separated {} % of the surface",
         crate::output::fixed(100.0 * s.separation.fraction, 1)
     );
+    if let Some(words) = s.repair_words() {
+        say!("  repairs to the STL: {words}");
+    }
     // The attached first pass's plateau figures are in the report and
     // summary.json, not here, where they were quoted as a second estimate.
     if let Some(w) = &s.separated_wakes {

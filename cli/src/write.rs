@@ -1101,6 +1101,12 @@ fn report(
         ),
         NumberRow::number("Dynamic pressure", s.dynamic_pressure_pa, "Pa"),
         NumberRow::text(
+            "Repairs to the STL",
+            &s.repair_words()
+                .unwrap_or_else(|| "none that changed its surface".into()),
+            "-",
+        ),
+        NumberRow::text(
             "Panels",
             &match (s.mesh.symmetry_plane, s.panels_instead()) {
                 (true, None) => format!("{} (half model, mirrored in y = 0)", s.mesh.panels),
