@@ -516,13 +516,30 @@ pub const LEFT_OUT: &str = "the optional region";
 
 /// The regions that hold panels of `mesh`: every one but an optional
 /// region holding none ([`RegionSection::optional`]), and a note for each
-/// of those.
+/// of those, saying when its box holds panels that its facing hides (a
+/// review's tailgate inside, facing front behind the cab, had been told
+/// its box held no panel, with 26 in it).
 pub fn on_body(regions: &[RegionSection], mesh: &PanelMesh) -> (Vec<RegionSection>, Vec<String>) {
     let (mut kept, mut notes) = (Vec::new(), Vec::new());
     for r in regions {
         if r.optional && extent(r, mesh).0 == 0 {
+            let in_box = r.facing.as_ref().map_or(0, |_| {
+                let unfaced = RegionSection {
+                    facing: None,
+                    ..r.clone()
+                };
+                extent(&unfaced, mesh).0
+            });
+            let why = match (in_box, &r.facing) {
+                (k, Some(f)) if k > 0 => format!(
+                    " seen from its facing side (\"{f}\"): {} in its box, hidden that way (a face \
+                     inside a pocket: leave facing out to take them)",
+                    crate::output::plural(k, "panel lies", "panels lie")
+                ),
+                _ => String::new(),
+            };
             notes.push(format!(
-                "{LEFT_OUT} \"{}\" holds no panel of this body and is left out of its results",
+                "{LEFT_OUT} \"{}\" holds no panel of this body{why} and is left out of its results",
                 r.name
             ));
         } else {
@@ -1121,6 +1138,34 @@ mod tests {
         // The small sphere's upper cap alone (9 % more) is hidden whole.
         let tyre = area("[[region]]\nname = \"tyre\"\nz = [-1.0, 1.0]\nfacing = \"up\"\n");
         assert_eq!(tyre, (0, 0.0));
+        // Optional, it is left out with a note that its box holds panels
+        // its facing hides; a box round nothing says only that it is empty.
+        let (kept, notes) = on_body(
+            &region(
+                "[[region]]\nname = \"tyre\"\nz = [-1.0, 1.0]\nfacing = \"up\"\noptional = true\n",
+            ),
+            &mesh,
+        );
+        assert!(kept.is_empty());
+        assert!(
+            notes[0].starts_with(
+                "the optional region \"tyre\" holds no panel of this body seen from its facing side \
+                 (\"up\"):"
+            ) && notes[0].contains("panels lie in its box, hidden that way"),
+            "{notes:?}"
+        );
+        let (_, notes) = on_body(
+            &region(
+                "[[region]]\nname = \"air\"\nz = [5.0, 6.0]\nfacing = \"up\"\noptional = true\n",
+            ),
+            &mesh,
+        );
+        assert_eq!(
+            notes,
+            [
+                "the optional region \"air\" holds no panel of this body and is left out of its results"
+            ]
+        );
         // From below: the small sphere's lower cap, pi 0.3^2, and the large
         // one's less its zone within 0.3 of the axis, 2 pi (1 - cos(asin 0.3)).
         let (_, down) = area("[[region]]\nname = \"floor\"\nfacing = \"down\"\n");
