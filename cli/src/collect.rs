@@ -728,12 +728,38 @@ fn gap_counts(first: &Row, second: &Row) -> f64 {
     1000.0 * (drag_area(second) - drag_area(first)) / area
 }
 
+/// A variant as the ranking lines name it: its folder's name, and the
+/// labels its `[[vary]]` lists gave it in quotes (a review's pickup
+/// sweep, labelled "tailgate up", "tonneau" and so on, had read only
+/// "wrap-true_stl-pickup-up").
+fn shown_name(r: &Row) -> String {
+    let labels: Vec<String> = r
+        .settings
+        .iter()
+        .filter(|(k, _)| crate::sweep::plan::is_label(k))
+        .map(|(k, v)| match v {
+            serde_json::Value::String(text) => text.clone(),
+            other => format!(
+                "{k} {}",
+                other
+                    .as_f64()
+                    .map_or_else(|| cell(other), |x| x.to_string())
+            ),
+        })
+        .collect();
+    if labels.is_empty() {
+        r.name.clone()
+    } else {
+        format!("{} \"{}\"", r.name, labels.join(", "))
+    }
+}
+
 /// [`best_drag_in`]'s verdict on the leader.
 fn leader_words(rows: &[Row]) -> String {
     let [first, rest @ ..] = rows else {
         return "no drag to rank".into();
     };
-    let lowest = format!("{} (C_D {:.3})", first.name, first.cd);
+    let lowest = format!("{} (C_D {:.3})", shown_name(first), first.cd);
     let Some(second) = rest.first() else {
         return format!("drag: {lowest}");
     };
@@ -747,7 +773,7 @@ fn leader_words(rows: &[Row]) -> String {
         };
         return format!(
             "no clear winner: the lowest drag, {lowest}, is within {gap:.1} counts of {}{raised}",
-            second.name
+            shown_name(second)
         );
     }
     // A rear slope that varies across the ranked variants and reaches the
@@ -762,27 +788,28 @@ fn leader_words(rows: &[Row]) -> String {
                  where the model's drag ranking is not reliable (see the notes below); lowest in this \
                  model: {lowest}, {gap:.1} counts below {}",
                 crate::compare::SLOPE_CAUTION_DEG,
-                second.name
+                shown_name(second)
             )
         } else if v.resolved {
             format!(
                 "best drag: {lowest}, {gap:.1} counts below {} (by at least {} counts again with both \
                  boundary layers marched at either end of the sensitivity settings, and the two share \
                  their separated regions)",
-                second.name,
+                shown_name(second),
                 crate::output::fixed(v.noise_counts, 0)
             )
         } else if !v.leaning.is_empty() {
             format!(
                 "no clear winner: {}, where the model's drag ranking is not reliable (see the notes \
                  below); lowest in this model: {lowest}, {gap:.1} counts below {}",
-                v.doubt, second.name
+                v.doubt,
+                shown_name(second)
             )
         } else {
             format!(
                 "no clear winner, within the model uncertainty: the lowest drag, {lowest}, is {gap:.1} counts \
                  below {} between the central estimates, but {}",
-                second.name,
+                shown_name(second),
                 crate::compare::band_shortfall(
                     -v.delta_counts,
                     v.band_deltas_counts.map(|d| -d),
@@ -797,7 +824,10 @@ fn leader_words(rows: &[Row]) -> String {
              below); lowest in this model: {lowest}"
         )
     } else {
-        format!("best drag: {lowest}, {gap:.1} counts below {}", second.name)
+        format!(
+            "best drag: {lowest}, {gap:.1} counts below {}",
+            shown_name(second)
+        )
     }
 }
 
@@ -1052,10 +1082,10 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     Some(format!(
         "{lead} in this model is {} ({b} kg at the {}; negative is downforce), {} kg \
          {more} than {} ({n} kg), {standing}{across}{wheels}",
-        best.name,
+        shown_name(best),
         axle.word(),
         kg(gap),
-        next.name,
+        shown_name(next),
     ))
 }
 
@@ -3616,6 +3646,32 @@ mod tests {
                 "beyond the lift noise of about 3.3 kg, but their underbodies separate differently (24.0 % \
                  against 11.0 %), where the model does not show a diffuser's stall: no winner"
             ),
+            "{line}"
+        );
+    }
+
+    /// The ranking lines name a labelled variant by its folder and its
+    /// labels, a name or a number with what it measures.
+    #[test]
+    fn ranked_variants_carry_their_labels() {
+        let mut c = sweep(&[10.0, 10.0]);
+        c.variants[0]
+            .settings
+            .insert("bed configuration".into(), serde_json::json!("tonneau"));
+        c.variants[1]
+            .settings
+            .insert("lid raise [mm]".into(), serde_json::json!(30.0));
+        c.variants[1]
+            .settings
+            .insert("geometry.wrap".into(), serde_json::json!(true));
+        assert_eq!(shown_name(&c.variants[0]), "v0 \"tonneau\"");
+        assert_eq!(shown_name(&c.variants[1]), "v1 \"lid raise [mm] 30\"");
+        c.variants[0].rear_axle_kg = -20.0;
+        c.variants[1].rear_axle_kg = -10.0;
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
+        assert!(
+            line.contains("is v0 \"tonneau\" (-20.0 kg at the rear")
+                && line.contains("than v1 \"lid raise [mm] 30\" (-10.0 kg)"),
             "{line}"
         );
     }
