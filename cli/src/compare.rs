@@ -105,6 +105,11 @@ pub struct Deltas {
     /// and reference area, kg: what each matched difference must clear.
     #[serde(default)]
     pub lift_floor_kg: f64,
+    /// Without panel noise measured on either run: the larger separated
+    /// share of the two, %, where it is over [`BLUNT_LIFT_PERCENT`] (the
+    /// built-in floor is then too low to trust; [`lift_noise_words`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub blunt_separated_percent: Option<f64>,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
     /// Separated fraction of the wetted area, percentage points.
@@ -613,6 +618,14 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
             None => lift_floor_cl([a.lift_spread(), b.lift_spread()]) * kg_per_cl,
         },
         lift_floor_kg: builtin_kg,
+        blunt_separated_percent: {
+            let most = 100.0 * a.separation.fraction.max(b.separation.fraction);
+            (paired.is_none()
+                && a.lift_spread().is_none()
+                && b.lift_spread().is_none()
+                && most > BLUNT_LIFT_PERCENT)
+                .then_some(most)
+        },
         matched_lift_kg: paired,
         separated_area_m2: b.separation.area_m2 - a.separation.area_m2,
         separated_percent_points: 100.0 * (b.separation.fraction - a.separation.fraction),
@@ -1936,6 +1949,13 @@ pub fn region_text(r: &RegionChange) -> String {
     )
 }
 
+/// The separated share of the surface, %, above which the built-in lift
+/// floor (measured on the demo coupe, 8.8 % separated) is no guide without
+/// the runs' own panel noise: about twice the coupe's (our choice; a
+/// review's pickup, 24 % separated, moved its rear-axle lift from 17.5 to
+/// 28.3 kg between panel counts 8 % apart, against a floor of 2.6 kg).
+pub const BLUNT_LIFT_PERCENT: f64 = 15.0;
+
 /// Whether the whole body's lift difference stands out of the noise, in
 /// words ([`Deltas::lift_noise_kg`]; measured on the total, whose scatter
 /// the rear axle's matches and the front axle's is a fifth of, so it says
@@ -1954,10 +1974,17 @@ pub fn lift_noise_words(d: &Deltas) -> String {
             )
         };
     }
+    let blunt = d.blunt_separated_percent.map_or(String::new(), |p| {
+        format!(
+            "; that floor is the demo coupe's, 8.8 % separated, and {p:.0} % of this surface is: its lift \
+             moves more with the panel count (a review's pickup by up to 11 kg at the rear), so run both \
+             with --noise before reading a lift difference"
+        )
+    });
     if d.lift_kg.abs() < d.lift_noise_kg {
-        format!("the whole body's within the noise of about {noise} kg")
+        format!("the whole body's within the noise of about {noise} kg{blunt}")
     } else {
-        format!("whole-body differences under about {noise} kg are noise")
+        format!("whole-body differences under about {noise} kg are noise{blunt}")
     }
 }
 
@@ -2270,6 +2297,25 @@ mod tests {
             lift_noise_words(&d(-4.0, 1.0)),
             "whole-body differences under about 3.3 kg are noise"
         );
+        // A blunt body, no panel noise measured: the floor is no guide.
+        let blunt = Deltas {
+            blunt_separated_percent: Some(24.4),
+            ..d(-4.0, 1.0)
+        };
+        assert!(
+            lift_noise_words(&blunt).ends_with(
+                "are noise; that floor is the demo coupe's, 8.8 % separated, and 24 % of this surface \
+                 is: its lift moves more with the panel count (a review's pickup by up to 11 kg at the \
+                 rear), so run both with --noise before reading a lift difference"
+            ),
+            "{}",
+            lift_noise_words(&blunt)
+        );
+        let mut bluff = with_area(1.8622);
+        bluff.separation.fraction = 0.244;
+        assert_eq!(deltas(&bluff, &bluff).blunt_separated_percent, Some(24.4));
+        bluff.separation.fraction = 0.088;
+        assert_eq!(deltas(&bluff, &bluff).blunt_separated_percent, None);
         let mut s = with_area(1.8622);
         s.dynamic_pressure_pa = 963.2;
         let noise = deltas(&s, &s).lift_noise_kg;
