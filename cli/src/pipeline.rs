@@ -1210,6 +1210,10 @@ fn base_dead_water(
 /// touch it, a car's floor clears it by 2 to 4 % of its length).
 const STANDING_SHARE: f64 = 0.005;
 
+/// What [`shadowed_base_warning`]'s text says after its area: `compare`
+/// finds the warning by it.
+pub const SHADOWED_WORDS: &str = "of dead water behind a part";
+
 /// A warning when separated panels facing downstream (within 45 degrees
 /// of the stream: a part's base) look along the stream onto more of the
 /// body, over more than [`SHADOWED_BASE_SHARE`] of the reference area: a
@@ -1273,7 +1277,7 @@ pub fn shadowed_base_warning(
         .max_by(|a, b| shown(a.0).total_cmp(&shown(b.0)))?;
     let c = mesh.panels[worst].centroid;
     Some(format!(
-        "{area:.2} m^2 of dead water behind a part ({:.0} % of the frontal area; the largest panel near x \
+        "{area:.2} m^2 {SHADOWED_WORDS} ({:.0} % of the frontal area; the largest panel near x \
          {:.3}, y {:.3}, z {:.3} m, {gap:.2} m ahead of the body behind it) faces more of the body \
          downstream: a real shear layer leaving that part reattaches on the surface behind it, which this \
          model does not do (its dead water runs straight back at one pressure), so the gap reads that \

@@ -298,9 +298,24 @@ pub fn drag_verdict_named(
     let elsewhere = unchanged
         .filter(|u| (delta - u) * delta.signum() < CHANGED_PART_SHARE * delta.abs())
         .filter(|_| !settled);
+    // Dead water behind a part that meets more of the body (a pickup's
+    // bed, a gap before a deflector) in either run: the model holds it at
+    // one pressure where a trapped flow sets the drag, so its direction is
+    // none (a review's tailgate-up pickup leaned 84 to 188 counts above
+    // the other beds, where tunnels find it a little below).
+    let pockets: Vec<&str> = [(na, a), (nb, b)]
+        .into_iter()
+        .filter(|(_, s)| {
+            s.warnings
+                .iter()
+                .any(|w| w.contains(crate::pipeline::SHADOWED_WORDS))
+        })
+        .map(|(n, _)| n)
+        .collect();
     let leaning = if banded
         && separation_differs
         && elsewhere.is_none()
+        && pockets.is_empty()
         && !plateau
         && !wheels
         && !apart
@@ -370,6 +385,17 @@ pub fn drag_verdict_named(
              ranking with validated CFD or a tunnel",
             signed(delta, 1),
             signed(u, 1)
+        )
+    } else if banded && separation_differs && !pockets.is_empty() {
+        format!(
+            "no winner: {why}, where the model's drag ranking is not reliable ({known}); and {} \
+             dead water behind a part that meets more of the body (a pickup's bed, a gap), which the \
+             model holds at one pressure where a trapped flow sets the drag, so it gives no direction \
+             either: confirm any ranking with validated CFD or a tunnel",
+            match pockets.as_slice() {
+                [one] => format!("{one} has"),
+                _ => "both have".to_owned(),
+            }
         )
     } else if banded && separation_differs {
         format!(
@@ -766,6 +792,34 @@ mod tests {
             "{}",
             v.text
         );
+    }
+
+    /// Dead water behind a part that meets more of the body (a pickup's
+    /// bed behind its cab) in either run: no model direction, and the
+    /// verdict names the run that has it.
+    #[test]
+    fn dead_water_meeting_the_body_gives_no_direction() {
+        let a = summary(0.229, 0.217, 0.44);
+        let mut b = summary(0.295, 0.280, 0.505);
+        b.warnings.push(format!(
+            "0.71 m^2 {} (23 % of the frontal area ...)",
+            crate::pipeline::SHADOWED_WORDS
+        ));
+        let doubt = Some(ModelDoubt::Separation);
+        let v = drag_verdict_named(&a, &b, (doubt, None, None), ["down", "up"]);
+        assert!(v.leaning.is_empty() && v.doubt.is_empty(), "{v:?}");
+        assert!(
+            v.text
+                .contains("and up has dead water behind a part that meets more of the body")
+                && v.text.contains("so it gives no direction either")
+                && !v.text.contains("in this model up's drag"),
+            "{}",
+            v.text
+        );
+        // Without the warning, the model's direction as before.
+        b.warnings.clear();
+        let v = drag_verdict_named(&a, &b, (doubt, None, None), ["down", "up"]);
+        assert_eq!(v.leaning, "higher", "{v:?}");
     }
 
     /// A review's two mirror heads: the difference rests on the
