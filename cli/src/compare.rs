@@ -879,9 +879,10 @@ fn changed_surface(
         .map(|p| p.centroid.x)
         .fold(f64::INFINITY, f64::min);
     let nose_end = front + NOSE_SHARE * b.summary.reference.length_m;
+    let centroids: Vec<nalgebra::Point3<f64>> = b.panels.iter().map(|p| p.centroid).collect();
     let changed = clustered(
         &changed_panels(mapping, b.panels.len(), near),
-        &b.panels,
+        &centroids,
         LONE_REACH_EDGES * out.panel_edge_m,
     );
     for (i, pb) in b.panels.iter().enumerate() {
@@ -919,8 +920,13 @@ fn changed_surface(
 pub const LONE_REACH_EDGES: f64 = 1.5;
 
 /// `changed` without its lone panels (see [`LONE_REACH_EDGES`]; `reach`
-/// in metres), as the comparison sheets outline it.
-fn clustered(changed: &[bool], panels: &[folder::PanelRow], reach: f64) -> Vec<bool> {
+/// in metres; `centroids`, one per panel): the surface deltas and the
+/// comparison sheets' outline both take the change from it.
+pub(crate) fn clustered(
+    changed: &[bool],
+    centroids: &[nalgebra::Point3<f64>],
+    reach: f64,
+) -> Vec<bool> {
     // Changed centroids binned on a grid of `reach`: a neighbour within it
     // lies in the same cell or one of the 26 round it (two bodies apart
     // everywhere change every panel, up to 200,000).
@@ -931,18 +937,18 @@ fn clustered(changed: &[bool], panels: &[folder::PanelRow], reach: f64) -> Vec<b
     let mut grid: std::collections::HashMap<[i64; 3], Vec<usize>> =
         std::collections::HashMap::new();
     for (i, _) in changed.iter().enumerate().filter(|(_, c)| **c) {
-        grid.entry(cell(&panels[i].centroid)).or_default().push(i);
+        grid.entry(cell(&centroids[i])).or_default().push(i);
     }
     let mut out = vec![false; changed.len()];
     for (i, _) in changed.iter().enumerate().filter(|(_, c)| **c) {
-        let p = panels[i].centroid;
+        let p = centroids[i];
         let [x, y, z] = cell(&p);
         out[i] = (-1..=1).any(|dx| {
             (-1..=1).any(|dy| {
                 (-1..=1).any(|dz| {
                     grid.get(&[x + dx, y + dy, z + dz]).is_some_and(|near| {
                         near.iter()
-                            .any(|&j| j != i && (panels[j].centroid - p).norm() <= reach)
+                            .any(|&j| j != i && (centroids[j] - p).norm() <= reach)
                     })
                 })
             })
@@ -2072,6 +2078,9 @@ mod tests {
     /// by side are a change.
     #[test]
     fn lone_changed_panels_are_not_a_change() {
+        let centres = |rows: &[folder::PanelRow]| -> Vec<nalgebra::Point3<f64>> {
+            rows.iter().map(|p| p.centroid).collect()
+        };
         let row = |x: f64| folder::PanelRow {
             centroid: nalgebra::Point3::new(x, 0.0, 1.0),
             normal: nalgebra::Vector3::z(),
@@ -2083,14 +2092,14 @@ mod tests {
         let panels: Vec<_> = [0.81, 2.0, 4.22, 4.28, 4.3].into_iter().map(row).collect();
         let changed = [true, false, true, true, false];
         assert_eq!(
-            clustered(&changed, &panels, LONE_REACH_EDGES * 0.093),
+            clustered(&changed, &centres(&panels), LONE_REACH_EDGES * 0.093),
             [false, false, true, true, false]
         );
         // Another body altogether: every panel changed, each beside
         // others, on the grid the search bins them in (within a cell and
         // across cells), in one pass.
         let many: Vec<_> = (0..20_000).map(|k| row(0.05 * f64::from(k))).collect();
-        let all = clustered(&vec![true; many.len()], &many, 0.06);
+        let all = clustered(&vec![true; many.len()], &centres(&many), 0.06);
         assert!(all.iter().all(|c| *c));
     }
 

@@ -140,18 +140,22 @@ fn outlined_share(u: &super::SurfaceDeltas, area_m2: f64) -> Option<f64> {
 
 /// B's changed panels ([`super::changed_panels`], beyond `near` of A's
 /// surface) as a mark on its display triangles (the mirror images of a
-/// half model's after its own).
-fn changed_mark(mesh_b: &PanelMesh, mapping: &Mapping, near: f64) -> output::outline::RegionMark {
-    let changed = super::changed_panels(mapping, mesh_b.len(), near);
-    // A lone changed panel among unchanged ones is the two panellings'
-    // difference at an edge, not a change of shape (a review saw a few
-    // outlined at an unchanged roof edge): outlined are panels with a
-    // changed neighbour.
-    let changed: Vec<bool> = changed
-        .iter()
-        .zip(&mesh_b.edge_neighbours)
-        .map(|(&c, nb)| c && nb.iter().flatten().any(|&j| changed[j as usize]))
-        .collect();
+/// half model's after its own). A lone changed panel among unchanged ones
+/// is the two panellings' difference at an edge, not a change of shape (a
+/// review saw a few outlined at an unchanged roof edge): it is left out as
+/// the surface deltas leave it out ([`super::clustered`], within `reach`
+/// metres of another).
+fn changed_mark(
+    mesh_b: &PanelMesh,
+    mapping: &Mapping,
+    (near, reach): (f64, f64),
+) -> output::outline::RegionMark {
+    let centroids: Vec<nalgebra::Point3<f64>> = mesh_b.panels.iter().map(|p| p.centroid).collect();
+    let changed = super::clustered(
+        &super::changed_panels(mapping, mesh_b.len(), near),
+        &centroids,
+        reach,
+    );
     let images = if mesh_b.mirrors.symmetry {
         changed.clone()
     } else {
@@ -231,7 +235,16 @@ pub fn write(
     // what the line is), then B's named regions as on its own pictures.
     // The changed panels are found (with their neighbours) only when
     // they are outlined.
-    let mark = outlined.then(|| changed_mark(mesh_b, mapping, cmp.surface.margins_m[1]));
+    let mark = outlined.then(|| {
+        changed_mark(
+            mesh_b,
+            mapping,
+            (
+                cmp.surface.margins_m[1],
+                super::LONE_REACH_EDGES * cmp.surface.panel_edge_m,
+            ),
+        )
+    });
     if let Some(mark) = &mark {
         output::outline::draw_outlines_unnamed(
             &mut dcp,
