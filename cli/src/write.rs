@@ -367,7 +367,7 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Ve
 /// holds most of where a tyre's contact patch holds little (a review's
 /// sports car: 0.25 m^2 of tyres on the ground under about 7 m^2 of floor);
 /// `None` for a body with no such surface.
-fn floor_z(mesh: &PanelMesh) -> Option<f64> {
+pub(crate) fn floor_z(mesh: &PanelMesh) -> Option<f64> {
     let mut down: Vec<(f64, f64)> = mesh
         .panels
         .iter()
