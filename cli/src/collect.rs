@@ -1748,7 +1748,11 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // from the table only; the band's low end, already drawn
             // grey, leaves no room for two more grey lines). The legend
             // names them; the subtitle is full.
-            let whiskers = (k == 0).then(|| drag_whiskers(c, key)).flatten();
+            let whiskers = match (k, ranged[k]) {
+                (0, _) => drag_whiskers(c, key),
+                (_, Some(which)) if !noise_range => noise_whiskers(c, key, ranged_ends(which)),
+                _ => None,
+            };
             // One drag line: the noise floor above its lowest point shaded
             // across the plot, so a trend within it reads as one (a
             // review's spoiler sweep fell 186, 180, 179 counts on a
@@ -1929,7 +1933,26 @@ fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
     if !all {
         return None;
     }
-    let ends: [fn(&Row) -> f64; 2] = match which {
+    let ends = ranged_ends(which);
+    Some(
+        ["panel noise, least", "panel noise, most"]
+            .into_iter()
+            .zip(ends)
+            .flat_map(|(name, f)| {
+                series(c, key, f).into_iter().map(move |s| Series {
+                    name: name.into(),
+                    colour: BAND_GREY,
+                    ..s
+                })
+            })
+            .collect(),
+    )
+}
+
+/// The least and the most of a [`Ranged`] quantity over a variant's three
+/// panel counts (NaN without them).
+fn ranged_ends(which: Ranged) -> [fn(&Row) -> f64; 2] {
+    match which {
         Ranged::Lift => [
             |r: &Row| range_end(r, |n| n.lift_kg[0]),
             |r: &Row| range_end(r, |n| n.lift_kg[1]),
@@ -1946,20 +1969,7 @@ fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
             |r: &Row| range_end(r, |n| n.rear_axle_kg[0]),
             |r: &Row| range_end(r, |n| n.rear_axle_kg[1]),
         ],
-    };
-    Some(
-        ["panel noise, least", "panel noise, most"]
-            .into_iter()
-            .zip(ends)
-            .flat_map(|(name, f)| {
-                series(c, key, f).into_iter().map(move |s| Series {
-                    name: name.into(),
-                    colour: BAND_GREY,
-                    ..s
-                })
-            })
-            .collect(),
-    )
+    }
 }
 
 /// The drag estimate's least and most over three panel counts as a bar
@@ -1967,9 +1977,26 @@ fn range_lines(c: &Collected, key: &str, which: Ranged) -> Option<Vec<Series>> {
 /// colour, on the plot's area ([`Row::area_scale`]); `None` when no
 /// variant on them measured its panel noise.
 fn drag_whiskers(c: &Collected, key: &str) -> Option<Whiskers> {
-    let end = |f: fn(&Row) -> f64| series(c, key, f);
-    let low = end(|r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[0]));
-    let high = end(|r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[1]));
+    noise_whiskers(
+        c,
+        key,
+        [
+            |r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[0]),
+            |r| 1000.0 * r.area_scale * range_end(r, |n| n.cd[1]),
+        ],
+    )
+}
+
+/// A quantity's least and most over three panel counts (`ends`) as a bar
+/// at each point of its plot's lines against `key`, in each line's
+/// colour; `None` when no variant on them measured its panel noise. The
+/// lift, separated-area and axle plots draw them where several lines
+/// leave no room for grey ones (a review's crossed rake sweep, run with
+/// --noise, showed bare lines whose most striking point, -69 kg at the
+/// rear, read -15 and 0 kg at its other two counts).
+fn noise_whiskers(c: &Collected, key: &str, ends: [fn(&Row) -> f64; 2]) -> Option<Whiskers> {
+    let low = series(c, key, ends[0]);
+    let high = series(c, key, ends[1]);
     let lines = series(c, key, |r| r.cd);
     let bars: Vec<(f64, f64, f64, crate::output::canvas::Rgb)> = low
         .iter()
@@ -3143,6 +3170,9 @@ mod tests {
         };
         assert!(near(w.bars[0], (0.0, 300.0, 330.0)) && near(w.bars[1], (1.0, 620.0, 660.0)));
         assert!(w.bars.iter().all(|b| b.3 == colour));
+        // The rear axle's the same way, for a plot of several lines.
+        let w = noise_whiskers(&c, "deg", ranged_ends(Ranged::RearAxle)).unwrap();
+        assert!(near(w.bars[0], (0.0, 6.0, 22.0)) && near(w.bars[1], (1.0, 6.0, 23.0)));
         c.variants[0].noise_ranges = None;
         assert_eq!(drag_whiskers(&c, "deg").unwrap().bars.len(), 1);
         c.variants[1].noise_ranges = None;
