@@ -1987,8 +1987,18 @@ pub fn lift_noise_words(d: &Deltas) -> String {
              with --noise before reading a lift difference"
         )
     });
+    // The total within the noise can hide a shift between the axles (a
+    // review's half and whole runs of one car: +1 kg in all, front -58
+    // and rear +59).
+    let shift = d.front_axle_kg.abs().max(d.rear_axle_kg.abs());
+    let split = if shift > d.lift_noise_kg {
+        let [s] = crate::output::kg_set([shift]);
+        format!(", but the split between the axles moves by about {s} kg, beyond it")
+    } else {
+        String::new()
+    };
     if d.lift_kg.abs() < d.lift_noise_kg {
-        format!("the whole body's within the noise of about {noise} kg{blunt}")
+        format!("the whole body's within the noise of about {noise} kg{split}{blunt}")
     } else {
         format!("whole-body differences under about {noise} kg are noise{blunt}")
     }
@@ -2288,7 +2298,7 @@ mod tests {
 
     /// A lift difference is set against the noise of the whole body's
     /// lift (the demo coupe's at 40 m/s, 0.018 in C_L, 3.3 kg), whatever
-    /// the axles do.
+    /// the axles do; an axle moving beyond it is said beside it.
     #[test]
     fn lift_differences_are_set_against_the_noise() {
         let d = |lift: f64, rear: f64| Deltas {
@@ -2299,8 +2309,14 @@ mod tests {
             ..Deltas::default()
         };
         assert_eq!(
-            lift_noise_words(&d(2.0, 6.0)),
+            lift_noise_words(&d(2.0, 1.0)),
             "the whole body's within the noise of about 3.3 kg"
+        );
+        // Within it in all, but an axle moves beyond it.
+        assert_eq!(
+            lift_noise_words(&d(1.0, 59.0)),
+            "the whole body's within the noise of about 3.3 kg, but the split between the axles moves \
+             by about 59 kg, beyond it"
         );
         assert_eq!(
             lift_noise_words(&d(-4.0, 1.0)),
