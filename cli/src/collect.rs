@@ -1469,7 +1469,7 @@ pub fn csv(c: &Collected) -> String {
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m");
+    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,front_minus_rear_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -1563,7 +1563,7 @@ fn csv_row(
     };
     let _ = write!(
         s,
-        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+        ",{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
         r.speed,
         r.yaw_deg,
         r.clearance_m.map(|c| c.to_string()).unwrap_or_default(),
@@ -1578,6 +1578,9 @@ fn csv_row(
         r.lift_kg,
         r.front_axle_kg,
         r.rear_axle_kg,
+        // The balance a rake study reads (a review computed it by hand):
+        // positive, the front lifts more or holds less downforce.
+        r.front_axle_kg - r.rear_axle_kg,
         r.separated_area_m2,
         r.separated_percent,
         r.panels,
@@ -4179,6 +4182,9 @@ mod tests {
         assert_eq!(c.regions, ["rear window", "boot deck"]);
         let text = csv(&c);
         let lines: Vec<&str> = text.lines().collect();
+        assert!(
+            lines[0].contains(",front_axle_kg,rear_axle_kg,front_minus_rear_kg,separated_area_m2,")
+        );
         assert!(
             lines[0].ends_with(
                 ",warnings,wheels_on,floor_front_m,floor_rear_m,region:rear window:separated_percent,\
