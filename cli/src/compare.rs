@@ -683,6 +683,7 @@ pub fn comparison_named(
         ),
         names,
     );
+    dead_change_verdict(&surface, &mut drag);
     // Two ride heights as well as the change: said in the verdict itself
     // (a review's variant exported 20 mm higher read "24.2 counts lower",
     // the clearance in the second of five notes).
@@ -1461,6 +1462,37 @@ pub const UNDERBODY_ELSEWHERE: &str = "the shape did not change there, so the un
 /// quarter).
 pub const DEAD_WATER_CHANGE_SHARE: f64 = 0.25;
 
+/// Share of the changed surface over which the verdict, naming no winner,
+/// says the change is not assessable in this model (our choice: most of
+/// it).
+pub const DEAD_WATER_VERDICT_SHARE: f64 = 0.5;
+
+/// A change working mostly on dead water ([`DEAD_WATER_VERDICT_SHARE`]),
+/// no winner named: the verdict leads with the model's blindness, not
+/// with a null (a review's roof spoiler and tailgate rake on a squareback
+/// read "within the noise floor", -1.5 and -0.7 counts, the reason in a
+/// note at the bottom).
+fn dead_change_verdict(surface: &SurfaceDeltas, drag: &mut DragVerdict) {
+    if let Some(share) = dead_change_share(surface).filter(|s| *s >= DEAD_WATER_VERDICT_SHARE)
+        && !drag.resolved
+        && drag.leaning.is_empty()
+    {
+        drag.text = format!(
+            "not assessable in this model: {:.0} % of the surface that changed lies in separated flow, \
+             which the model holds at one pressure whatever the change does there, so its drag and \
+             lift barely move ({}); judge the change with validated CFD or a tunnel",
+            100.0 * share,
+            drag.text
+        );
+    }
+}
+
+/// The share of the surface that changed lying in separated flow in
+/// either run; `None` when nothing changed.
+fn dead_change_share(surface: &SurfaceDeltas) -> Option<f64> {
+    (surface.changed_m2 > 0.0).then(|| surface.changed_separated_m2 / surface.changed_m2)
+}
+
 /// A note when much of the surface that changed lies in separated flow:
 /// the model holds the dead water at one pressure, so a spoiler, a lip or
 /// a diffuser's end working there acts only through that pressure (a
@@ -1468,8 +1500,8 @@ pub const DEAD_WATER_CHANGE_SHARE: f64 = 0.25;
 /// 4.4 kg of rear downforce in this model, where a tunnel would usually
 /// show a gain).
 fn dead_water_change_note(surface: &SurfaceDeltas) -> Option<String> {
-    let share = surface.changed_separated_m2 / surface.changed_m2.max(f64::MIN_POSITIVE);
-    (surface.changed_m2 > 0.0 && share > DEAD_WATER_CHANGE_SHARE).then(|| {
+    let share = dead_change_share(surface)?;
+    (share > DEAD_WATER_CHANGE_SHARE).then(|| {
         let [unchanged, changed] = surface.margins_m;
         let margin = if changed > unchanged {
             "a quarter of a panel edge, clear of two panellings' chord sag"
@@ -2194,6 +2226,33 @@ mod tests {
         );
         assert_eq!(dead_water_change_note(&surface(0.235, 0.05, 0.1)), None);
         assert_eq!(dead_water_change_note(&surface(0.0, 0.0, 0.0)), None);
+        // Most of it on dead water and no winner: the verdict leads with
+        // the model's blindness; a quarter, or a resolved verdict, keeps
+        // its words.
+        let null = || DragVerdict {
+            text:
+                "no winner: the drag difference, -1.5 counts, is within the noise floor of 6 counts"
+                    .into(),
+            ..DragVerdict::default()
+        };
+        let mut v = null();
+        dead_change_verdict(&surface(0.235, 0.235, 0.1), &mut v);
+        assert!(
+            v.text.starts_with(
+                "not assessable in this model: 100 % of the surface that changed lies in separated flow"
+            ) && v.text.contains("(no winner: the drag difference, -1.5 counts"),
+            "{}",
+            v.text
+        );
+        let mut v = null();
+        dead_change_verdict(&surface(0.235, 0.07, 0.1), &mut v);
+        assert_eq!(v, null());
+        let mut v = DragVerdict {
+            resolved: true,
+            ..null()
+        };
+        dead_change_verdict(&surface(0.235, 0.235, 0.1), &mut v);
+        assert!(v.text.starts_with("no winner"), "{}", v.text);
         // A run whose two sides separate differently names the drift.
         let mut one_sided = Summary::default();
         one_sided.warnings.push(format!(
