@@ -201,7 +201,14 @@ pub fn draw_regions_labelled(
             .map(|&j| j as usize + offset)
             .collect()
     };
-    for (view, frame) in on.views {
+    // The named views first; a region none of them names (a tailgate or
+    // a base, seen from the rear only) is named in the first other view
+    // that shows its face (a review's "tailgate" box was outlined in the
+    // rear view with no name anywhere).
+    let mut labelled = vec![false; marks.len()];
+    let mut order: Vec<&(View, Frame)> = on.views.iter().collect();
+    order.sort_by_key(|(v, _)| !(on.named)(*v));
+    for (view, frame) in order {
         let seen = render::visible(&tris, *view, frame);
         let (_, up, toward) = view.basis();
         let mut placed: Vec<[f32; 4]> = Vec::new();
@@ -242,7 +249,7 @@ pub fn draw_regions_labelled(
         } else {
             Some(lowest + 24.0).filter(|y| y + 5.0 <= t0 + h0)
         };
-        for mark in marks {
+        for (m, mark) in marks.iter().enumerate() {
             let member = |k: usize| mark.member.get(k).copied().unwrap_or(false);
             let mut label = (0.0, 0.0, 0.0);
             let mut facing_up = 0.0;
@@ -286,7 +293,7 @@ pub fn draw_regions_labelled(
             for &(x, y) in &dots {
                 canvas.fill_circle(x, y, 1.3, style.colour);
             }
-            if label.2 > 0.0 && (on.named)(*view) {
+            if label.2 > 0.0 && ((on.named)(*view) || !labelled[m]) {
                 let facing_up = facing_up / label.2;
                 let below = if *view == View::Underneath {
                     facing_up < NAME_SIDE_COS
@@ -321,6 +328,7 @@ pub fn draw_regions_labelled(
                     style.colour,
                 );
                 placed.push(plate);
+                labelled[m] = true;
                 labels.push(Label {
                     view: *view,
                     name: mark.name.clone(),
@@ -739,6 +747,53 @@ mod tests {
                 }
             }
         }
+    }
+
+    /// A region that no named view names (the square-back research body's
+    /// base, seen from the rear only) is named in the first other view
+    /// showing its face; the roof, named above, is not named again there.
+    #[test]
+    fn a_region_seen_from_the_rear_only_is_named_there() {
+        let body = tuft_mesh::generate::ahmed(0.0, 2000).unwrap();
+        let mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
+        let (lo, hi) = mesh.bounds();
+        let region = |name: &str, x: [f64; 2], facing: &str| crate::region::RegionSection {
+            name: name.into(),
+            x: Some(x),
+            y: None,
+            z: None,
+            facing: Some(facing.into()),
+            optional: false,
+        };
+        let sections = [
+            region("roof", [lo.x, hi.x], "up"),
+            region("base", [hi.x - 0.01, hi.x + 0.01], "rear"),
+        ];
+        let marks = crate::region::marks(&sections, &mesh);
+        let mut canvas = Canvas::new(1600, 1000).unwrap();
+        let tris = display_triangles(&mesh);
+        let lay = sheet::layout(&tris, &SheetParams::default());
+        let on = RegionViews {
+            views: &lay.views,
+            named: |v| !matches!(v, View::Front | View::Rear),
+            flow_corner: true,
+            scale_bar: true,
+        };
+        let labels =
+            draw_regions_labelled(&mut canvas, &mesh, &marks, OutlineStyle::default(), &on);
+        let views = |name: &str| -> Vec<View> {
+            labels
+                .iter()
+                .filter(|l| l.name == name)
+                .map(|l| l.view)
+                .collect()
+        };
+        assert_eq!(views("base"), [View::Rear], "{labels:?}");
+        let roof = views("roof");
+        assert!(
+            !roof.is_empty() && !roof.iter().any(|v| matches!(v, View::Front | View::Rear)),
+            "{roof:?}"
+        );
     }
 
     /// Two regions one over the other in a view: the second name goes
