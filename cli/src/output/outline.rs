@@ -657,6 +657,27 @@ mod tests {
         b
     }
 
+    /// Regions outlined and named on a 1600 by 1000 sheet as the risk
+    /// and surface-flow pictures name them (not in the front and rear
+    /// views): the names placed, the canvas, the display triangles and
+    /// the layout.
+    fn labelled_sheet(
+        mesh: &tuft_mesh::PanelMesh,
+        marks: &[RegionMark],
+    ) -> (Vec<Label>, Canvas, Vec<DisplayTri>, sheet::Layout) {
+        let mut canvas = Canvas::new(1600, 1000).unwrap();
+        let tris = display_triangles(mesh);
+        let lay = sheet::layout(&tris, &SheetParams::default());
+        let on = RegionViews {
+            views: &lay.views,
+            named: |v| !matches!(v, View::Front | View::Rear),
+            flow_corner: true,
+            scale_bar: true,
+        };
+        let labels = draw_regions_labelled(&mut canvas, mesh, marks, OutlineStyle::default(), &on);
+        (labels, canvas, tris, lay)
+    }
+
     /// In the side view a region facing down is named under the body
     /// (under the ground line) with its line up to where it is seen, one
     /// facing up over it with its line down to the top of what is seen of
@@ -669,17 +690,7 @@ mod tests {
     #[test]
     fn a_name_stands_beside_what_it_names() {
         let (mesh, marks) = coupe_with_regions();
-        let mut canvas = Canvas::new(1600, 1000).unwrap();
-        let tris = display_triangles(&mesh);
-        let lay = sheet::layout(&tris, &SheetParams::default());
-        let on = RegionViews {
-            views: &lay.views,
-            named: |v| !matches!(v, View::Front | View::Rear),
-            flow_corner: true,
-            scale_bar: true,
-        };
-        let labels =
-            draw_regions_labelled(&mut canvas, &mesh, &marks, OutlineStyle::default(), &on);
+        let (labels, canvas, tris, lay) = labelled_sheet(&mesh, &marks);
         keep("regions-coupe.png", &canvas.to_png().unwrap());
         let frame = lay.frame(View::Side).unwrap();
         let ground = frame
@@ -770,17 +781,7 @@ mod tests {
             region("base", [hi.x - 0.01, hi.x + 0.01], "rear"),
         ];
         let marks = crate::region::marks(&sections, &mesh);
-        let mut canvas = Canvas::new(1600, 1000).unwrap();
-        let tris = display_triangles(&mesh);
-        let lay = sheet::layout(&tris, &SheetParams::default());
-        let on = RegionViews {
-            views: &lay.views,
-            named: |v| !matches!(v, View::Front | View::Rear),
-            flow_corner: true,
-            scale_bar: true,
-        };
-        let labels =
-            draw_regions_labelled(&mut canvas, &mesh, &marks, OutlineStyle::default(), &on);
+        let (labels, ..) = labelled_sheet(&mesh, &marks);
         let views = |name: &str| -> Vec<View> {
             labels
                 .iter()
