@@ -595,6 +595,18 @@ mod tests {
 
     /// The built-in coupe on the ground with a rear window and a boot
     /// deck facing up and a diffuser facing down, as a case names them.
+    /// A region over the whole height and width of `x`, faced.
+    fn region(name: &str, x: [f64; 2], facing: &str) -> crate::region::RegionSection {
+        crate::region::RegionSection {
+            name: name.into(),
+            x: Some(x),
+            y: None,
+            z: None,
+            facing: Some(facing.into()),
+            optional: false,
+        }
+    }
+
     fn coupe_with_regions() -> (tuft_mesh::PanelMesh, Vec<RegionMark>) {
         use tuft_mesh::generate::{CoupeParams, coupe_with_params};
         let body = coupe_with_params(&CoupeParams {
@@ -603,14 +615,6 @@ mod tests {
         })
         .unwrap();
         let mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
-        let region = |name: &str, x: [f64; 2], facing: &str| crate::region::RegionSection {
-            name: name.into(),
-            x: Some(x),
-            y: None,
-            z: None,
-            facing: Some(facing.into()),
-            optional: false,
-        };
         let sections = [
             region("rear window", [3.15, 3.7], "up"),
             region("boot deck", [3.7, 4.2], "up"),
@@ -768,14 +772,6 @@ mod tests {
         let body = tuft_mesh::generate::ahmed(0.0, 2000).unwrap();
         let mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
         let (lo, hi) = mesh.bounds();
-        let region = |name: &str, x: [f64; 2], facing: &str| crate::region::RegionSection {
-            name: name.into(),
-            x: Some(x),
-            y: None,
-            z: None,
-            facing: Some(facing.into()),
-            optional: false,
-        };
         let sections = [
             region("roof", [lo.x, hi.x], "up"),
             region("base", [hi.x - 0.01, hi.x + 0.01], "rear"),
