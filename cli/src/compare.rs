@@ -471,9 +471,9 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
         m
     };
     let in_place = map(nalgebra::Vector3::zeros());
-    let mut a_low = centroid_bounds(a).0;
+    let (mut a_low, a_high) = centroid_bounds(a);
     if mirrored {
-        a_low.y = -centroid_bounds(a).1.y;
+        a_low.y = -a_high.y;
     }
     let shift = centroid_bounds(b).0 - a_low;
     if shift.norm() <= 1e-9 * b.summary.reference.length_m.max(1.0) {

@@ -1224,11 +1224,10 @@ fn body_behind(mesh: &PanelMesh, panels: &[usize], stream: &Vector3<f64>) -> Vec
         .iter()
         .map(|&t| {
             let from = mesh.panels[t].centroid + nudge * stream;
-            bins.along(&from)
-                .iter()
-                .filter(|&&j| shown_tris[j as usize].panel as usize != t)
-                .filter_map(|&j| crate::rays::ray_hits(&from, stream, &tris[j as usize]))
-                .min_by(f64::total_cmp)
+            bins.first_hit(&tris, &from, stream, |j| {
+                shown_tris[j as usize].panel as usize == t
+            })
+            .map(|(d, _)| d)
         })
         .collect()
 }

@@ -103,6 +103,31 @@ impl RayBins {
         }
         &self.cells[i as usize + j as usize * self.dims.0]
     }
+
+    /// The nearest of the triangles `tris` (those the bins were made of)
+    /// that a ray from `q` along `dir` (unit, the bins' direction or its
+    /// opposite) meets, leaving out those `skip` names: its distance and
+    /// index, the first listed of equally near ones.
+    pub fn first_hit(
+        &self,
+        tris: &[[Point3<f64>; 3]],
+        q: &Point3<f64>,
+        dir: &Vector3<f64>,
+        skip: impl Fn(u32) -> bool,
+    ) -> Option<(f64, u32)> {
+        let mut nearest: Option<(f64, u32)> = None;
+        for &k in self.along(q) {
+            if skip(k) {
+                continue;
+            }
+            if let Some(t) = ray_hits(q, dir, &tris[k as usize])
+                && nearest.is_none_or(|(d, _)| t < d)
+            {
+                nearest = Some((t, k));
+            }
+        }
+        nearest
+    }
 }
 
 /// Distance along the ray from `origin` in direction `dir` (unit) to the

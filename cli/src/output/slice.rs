@@ -22,7 +22,7 @@ use super::canvas::{Canvas, INK, MUTED, Rgb};
 use super::colorbar::{self, ColourScale, nice_ticks, tick_label};
 use super::text::{self, Align, TextStyle};
 use super::{Caption, OutputError, Slice, short_number};
-use crate::rays::{RayBins, ray_hits};
+use crate::rays::RayBins;
 
 /// Colour of the body cross-section.
 pub const BODY: Rgb = [140, 142, 150];
@@ -146,16 +146,8 @@ pub fn first_met_separated(
     points
         .par_iter()
         .map(|q| {
-            let mut nearest: Option<(f64, bool)> = None;
-            for &k in bins.along(q) {
-                if let Some(t) = ray_hits(q, &dir, &corners[k as usize])
-                    && t <= reach
-                    && nearest.is_none_or(|(d, _)| t < d)
-                {
-                    nearest = Some((t, marks[k as usize]));
-                }
-            }
-            nearest.is_some_and(|(_, sep)| sep)
+            bins.first_hit(&corners, q, &dir, |_| false)
+                .is_some_and(|(t, k)| t <= reach && marks[k as usize])
         })
         .collect()
 }
