@@ -494,9 +494,40 @@ pub fn check_on_body(regions: &[RegionSection], mesh: &PanelMesh) -> Result<()> 
                      hidden: leave facing out to take every panel in the box"
                 )
             });
+            // Ranges typed in the STL's millimetres (a review's diffuser
+            // box, x = [4100, 4700], was told only to check them, where an
+            // axle so typed is told the metres it means).
+            let longest = [r.x, r.y, r.z]
+                .into_iter()
+                .flatten()
+                .flatten()
+                .fold(0.0, |m: f64, v| m.max(v.abs()));
+            let in_m = RegionSection {
+                x: r.x.map(|v| v.map(|c| c / 1000.0)),
+                y: r.y.map(|v| v.map(|c| c / 1000.0)),
+                z: r.z.map(|v| v.map(|c| c / 1000.0)),
+                ..r.clone()
+            };
+            let mm = if longest > crate::geometry::BODY_SIZE_LIMITS[1] && extent(&in_m, mesh).0 > 0
+            {
+                let range = |k: &str, v: Option<[f64; 2]>| {
+                    v.map(|[a, b]| format!("{k} = [{:.3}, {:.3}]", a / 1000.0, b / 1000.0))
+                };
+                let ranges: Vec<String> = [range("x", r.x), range("y", r.y), range("z", r.z)]
+                    .into_iter()
+                    .flatten()
+                    .collect();
+                format!(
+                    "; in millimetres it would be {} m, on the body (lengths in the case file are \
+                     metres)",
+                    ranges.join(", ")
+                )
+            } else {
+                String::new()
+            };
             bail!(
                 "region \"{}\" holds no panel of the body (which spans x {:.3} to {:.3}, y {:.3} to {:.3}, \
-                 z {:.3} to {:.3} m): check its ranges (metres) and facing{hidden}; a part only \
+                 z {:.3} to {:.3} m): check its ranges (metres) and facing{hidden}{mm}; a part only \
                  some variants of a sweep have takes optional = true",
                 r.name,
                 lo.x,
@@ -1095,6 +1126,27 @@ mod tests {
         }
         let good = "[[region]]\nname = \"rear window\"\nx = [3.0, 3.8]\nfacing = \"up\"\n";
         assert!(check(&region(good)).is_ok());
+    }
+
+    /// A region typed in millimetres is told the metres it means, when
+    /// they hold panels (as an axle so typed is); one off the body in
+    /// metres gets no such hint.
+    #[test]
+    fn a_region_in_millimetres_is_told_its_metres() {
+        use tuft_mesh::{Mirrors, generate::icosphere};
+        let mesh =
+            PanelMesh::new(icosphere(1.0, 3), Mirrors::none()).unwrap_or_else(|e| panic!("{e}"));
+        let refused = |text: &str| match check_on_body(&region(text), &mesh) {
+            Ok(()) => panic!("{text} was taken"),
+            Err(e) => e.to_string(),
+        };
+        let mm = refused("[[region]]\nname = \"diffuser\"\nx = [500, 900]\nfacing = \"down\"\n");
+        assert!(
+            mm.contains("in millimetres it would be x = [0.500, 0.900] m, on the body"),
+            "{mm}"
+        );
+        let off = refused("[[region]]\nname = \"air\"\nx = [5.0, 6.0]\n");
+        assert!(!off.contains("millimetres"), "{off}");
     }
 
     /// A region means the same on a half model (mirror half counted) as on
