@@ -176,6 +176,10 @@ pub struct Row {
     /// Its surface was wrapped into one ([`crate::summary::Summary::wrapped`]).
     #[serde(default)]
     pub wrapped: bool,
+    /// What the repair changed on its STL's surface, in a few words
+    /// ([`crate::summary::Summary::repair_short`]); `None` when nothing.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub repairs: Option<String>,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
     pub regions: Vec<RegionResult>,
@@ -423,9 +427,25 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     // must be able to tell from its warnings (a review's batch exited 1
     // whole or with variants missing).
     if !c.missing.is_empty() {
+        // A failure the sweep kept the reason of (an STL cut short, an axle
+        // off the body) fails again unchanged: a review ran the sweep
+        // again as told, and both failed again in 0.03 s.
+        let failed = c
+            .missing
+            .iter()
+            .filter(|m| m.contains(FAILED_WORDS))
+            .count();
+        let next = if failed == c.missing.len() {
+            "mend what each failure names, then run the sweep again (finished variants are kept)"
+        } else if failed > 0 {
+            "mend what each failure names and run the sweep again to finish the rest (finished \
+             variants are kept)"
+        } else {
+            "run the sweep again to finish it"
+        };
         eprintln!(
             "tuft: {}: {} of the sweep's {} planned variants are missing or failed ({}); the page ranks \
-             the rest: run the sweep again to finish it",
+             the rest: {next}",
             args.dir.display(),
             c.missing.len(),
             c.missing.len() + c.variants.len(),
@@ -831,6 +851,10 @@ fn leader_words(rows: &[Row]) -> String {
     }
 }
 
+/// How a missing variant whose failure the sweep kept reads, before its
+/// reason.
+const FAILED_WORDS: &str = "failed:";
+
 #[derive(Deserialize)]
 struct PlanFile {
     sweep: String,
@@ -903,6 +927,8 @@ pub fn collect(dir: &Path) -> Result<Collected> {
                         "{} (its result was computed for an older case: run the sweep again)",
                         e.name
                     )
+                } else if let Some(why) = crate::sweep::failure_reason(dir, &e.name) {
+                    format!("{} ({FAILED_WORDS} {why})", e.name)
                 } else {
                     e.name
                 }
@@ -1272,6 +1298,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         wheels_on: s.wheels_on(),
         floor_on_ground: s.floor_on_ground(),
         wrapped: s.wrapped(),
+        repairs: s.repair_short(),
         regions: s.regions.clone(),
         against_next: None,
         against_next_notes: Vec::new(),
@@ -1464,12 +1491,25 @@ fn winner_named(rows: &[Row]) -> bool {
 /// every variant's where the areas agree), and, on each condition's rank 1, whether the ranking names it
 /// the best (`best_drag`: `yes`, or `no` when it is not clearly lower,
 /// see sweep.html), so that rank 1 is not read as a winner on its own.
+/// sweep.csv's own columns after the swept keys.
+const CSV_COLUMNS: &str = "speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,\
+                           reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,\
+                           front_minus_rear_kg,separated_area_m2,separated_percent,panels,\
+                           panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,\
+                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved";
+
+/// Whether `name` is one of sweep.csv's own columns (the two first,
+/// `rank` and `variant`, too), which a label of that name would repeat.
+pub fn is_csv_column(name: &str) -> bool {
+    ["rank", "variant"].contains(&name) || CSV_COLUMNS.split(',').any(|c| c == name)
+}
+
 pub fn csv(c: &Collected) -> String {
     let mut s = String::from("rank,variant");
     for k in &c.keys {
         let _ = write!(s, ",{k}");
     }
-    s.push_str(",speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts_above_lowest,best_drag,reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,front_minus_rear_kg,separated_area_m2,separated_percent,panels,panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m");
+    let _ = write!(s, ",{CSV_COLUMNS}");
     for g in &c.regions {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
@@ -1595,7 +1635,19 @@ fn csv_row(
             .map(|f| f[k].to_string())
             .unwrap_or_default()
     };
-    let _ = write!(s, ",{},{}", floor(0), floor(1));
+    let spread = |v: Option<f64>| v.map(|n| format!("{n:.1}")).unwrap_or_default();
+    // Words in a cell with no comma, so that a plain split on commas
+    // still finds the columns.
+    let _ = write!(
+        s,
+        ",{},{},{:.1},{},{},{}",
+        floor(0),
+        floor(1),
+        r.speed * 3.6,
+        spread(r.front_axle_spread_kg),
+        spread(r.rear_axle_spread_kg),
+        surface_words(r).replace(',', ";")
+    );
     for g in &c.regions {
         match region(r, g) {
             Some(g) => {
@@ -2978,9 +3030,15 @@ fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
         }
     }
     for m in &c.missing {
+        // A kept failure says its reason in its name's brackets.
+        let why = if m.contains(FAILED_WORDS) {
+            ""
+        } else {
+            " failed or not finished,"
+        };
         let _ = writeln!(
             s,
-            "<p class=\"glance-none\">{}: failed or not finished, no picture.</p>",
+            "<p class=\"glance-none\">{}:{why} no picture.</p>",
             escape(m)
         );
     }
@@ -3021,6 +3079,34 @@ fn warnings_section(s: &mut String, c: &Collected) {
 
 /// The ranking table, with a wind column when the ranking restarts per
 /// wind condition and a column per named region.
+/// What a variant's surface as solved rests on, for its table cell and
+/// sweep.csv: a half model, a wrapped surface, the repairs to its STL;
+/// empty when none.
+fn surface_words(r: &Row) -> String {
+    let mut parts: Vec<String> = Vec::new();
+    if r.half_model {
+        parts.push("half model".into());
+    }
+    if r.wrapped {
+        parts.push("wrapped".into());
+    }
+    parts.extend(r.repairs.clone());
+    parts.join("; ")
+}
+
+/// A variant's spreads over its three panel counts (`--noise`), for its
+/// table cell; empty without them.
+fn noise_words(r: &Row) -> String {
+    let mut parts = Vec::new();
+    if let Some(d) = r.drag_spread_counts {
+        parts.push(format!("drag {d:.1} counts"));
+    }
+    if let (Some(f), Some(b)) = (r.front_axle_spread_kg, r.rear_axle_spread_kg) {
+        parts.push(format!("front {f:.1} kg, rear {b:.1} kg"));
+    }
+    parts.join("; ")
+}
+
 fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     s.push_str("<h2>Ranking</h2>\n<table>\n<tr>");
     if by_wind {
@@ -3038,9 +3124,24 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     if by_area {
         s.push_str("<th>C_D·A [m²]</th>");
     }
-    s.push_str("<th>lift [kg] (− downforce)</th><th>front [kg]</th><th>rear [kg]</th><th>separated [m²]</th>");
+    s.push_str(
+        "<th>lift [kg] (− downforce)</th><th>front [kg]</th><th>rear [kg]</th><th>front − rear \
+         [kg]</th><th>separated [m²]</th>",
+    );
     for g in &c.regions {
         let _ = write!(s, "<th>{} separated</th>", escape(g));
+    }
+    // The panel noise beside the values where the variants ran with
+    // --noise, and what the surface solved rests on where any differs
+    // (a review's table showed neither: its rails variant, wrapped alone,
+    // ranked above the bare car, and two repaired files read as clean).
+    let noise = c.variants.iter().any(|r| r.drag_spread_counts.is_some());
+    if noise {
+        s.push_str("<th>panel noise</th>");
+    }
+    let surface = c.variants.iter().any(|r| !surface_words(r).is_empty());
+    if surface {
+        s.push_str("<th>surface solved</th>");
     }
     s.push_str("<th>warnings</th></tr>\n");
     for r in &c.variants {
@@ -3084,12 +3185,19 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
         }
         let _ = write!(
             s,
-            "<td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:.3}</td>",
+            "<td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:+.0}</td><td>{:.3}</td>",
+            r.front_axle_kg - r.rear_axle_kg,
             r.separated_area_m2,
         );
         for g in &c.regions {
             let text = region(r, g).map_or_else(String::new, RegionResult::short_words);
             let _ = write!(s, "<td>{}</td>", escape(&text));
+        }
+        if noise {
+            let _ = write!(s, "<td>{}</td>", escape(&noise_words(r)));
+        }
+        if surface {
+            let _ = write!(s, "<td>{}</td>", escape(&surface_words(r)));
         }
         let _ = writeln!(s, "<td>{}</td></tr>", r.warnings);
     }
@@ -3398,6 +3506,7 @@ mod tests {
             wheels_on: false,
             floor_on_ground: false,
             wrapped: false,
+            repairs: None,
             area_scale: 1.0,
             regions: Vec::new(),
             against_next: None,
@@ -4187,7 +4296,8 @@ mod tests {
         );
         assert!(
             lines[0].ends_with(
-                ",warnings,wheels_on,floor_front_m,floor_rear_m,region:rear window:separated_percent,\
+                ",warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,front_axle_noise_kg,\
+                 rear_axle_noise_kg,surface_solved,region:rear window:separated_percent,\
                  region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
                  region:rear window:standing,region:boot deck:separated_percent,\
@@ -4198,13 +4308,13 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,,,3,attached,3,3,firm,71,separated,71,71,firm"),
+            lines[1].ends_with(",0,0,,,144.0,,,,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,,,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,144.0,,,,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]

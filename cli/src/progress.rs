@@ -6,6 +6,20 @@ use std::time::{Duration, Instant};
 
 use indicatif::{ProgressBar, ProgressStyle};
 
+/// A duration in the words a log reads: seconds under two minutes,
+/// minutes under two hours, then hours and minutes.
+pub fn duration_words(secs: f64) -> String {
+    let secs = secs.max(0.0).round();
+    if secs < 120.0 {
+        format!("{secs:.0} s")
+    } else if secs < 7200.0 {
+        format!("{:.0} min", secs / 60.0)
+    } else {
+        let min = (secs / 60.0).round();
+        format!("{:.0} h {:.0} min", (min / 60.0).floor(), min % 60.0)
+    }
+}
+
 /// Reports the phases of a run and times them.
 pub struct Progress {
     quiet: bool,
@@ -120,5 +134,22 @@ impl Phase {
         if let Some(bar) = self.bar {
             bar.finish_and_clear();
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::duration_words;
+
+    #[test]
+    fn durations_read_in_seconds_minutes_or_hours() {
+        assert_eq!(duration_words(6.4), "6 s");
+        assert_eq!(duration_words(119.4), "119 s");
+        assert_eq!(duration_words(170.0), "3 min");
+        assert_eq!(duration_words(7199.0), "120 min");
+        assert_eq!(
+            duration_words(3.0 * 3600.0 + 25.0 * 60.0 + 10.0),
+            "3 h 25 min"
+        );
     }
 }

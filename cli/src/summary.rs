@@ -419,8 +419,12 @@ impl Summary {
                     let xyz: Vec<f64> = c.iter().filter_map(serde_json::Value::as_f64).collect();
                     let [x, y, z] = xyz[..] else { return None };
                     Some(format!(
-                        " ({}{:.2} m round, at x {x:.2}, y {y:.2}, z {z:.2} m)",
-                        if filled.len() > 1 { "the largest " } else { "" },
+                        " ({}a rim {:.2} m long, at x {x:.2}, y {y:.2}, z {z:.2} m)",
+                        if filled.len() > 1 {
+                            "the largest with "
+                        } else {
+                            ""
+                        },
                         l["perimeter"].as_f64()?
                     ))
                 })
@@ -468,6 +472,22 @@ impl Summary {
                 "{}{guess} (tuft check lists every repair)",
                 crate::output::and_list(&parts)
             )
+        })
+    }
+
+    /// The repairs in a few words for a table's cell (`collect`'s
+    /// ranking, sweep.csv's `repairs`): [`Self::repair_words`]' list
+    /// without where the largest hole lies nor the advice (a review's
+    /// morning table had shown a file with four holes filled and one with
+    /// 2,324 facets flipped as clean as the rest).
+    pub fn repair_short(&self) -> Option<String> {
+        let words = self.repair_words()?;
+        let list = words.split(';').next().unwrap_or(&words);
+        let list = list.split(" (tuft check").next().unwrap_or(list).to_owned();
+        // The largest hole's place, in brackets, is for the report.
+        Some(match (list.find(" ("), list.find(')')) {
+            (Some(a), Some(b)) if a < b => format!("{}{}", &list[..a], &list[b + 1..]),
+            _ => list,
         })
     }
 
@@ -658,11 +678,15 @@ mod tests {
         assert_eq!(
             s.repair_words().as_deref(),
             Some(
-                "2 holes filled (the largest 0.85 m round, at x 4.43, y 0.35, z 0.85 m) and 1256 \
+                "2 holes filled (the largest with a rim 0.85 m long, at x 4.43, y 0.35, z 0.85 m) and 1256 \
                  facets flipped to agree with their neighbours; a filled hole is a guess at the \
                  surface there, so a result that moves with it rests on the guess (tuft check lists \
                  every repair)"
             )
+        );
+        assert_eq!(
+            s.repair_short().as_deref(),
+            Some("2 holes filled and 1256 facets flipped to agree with their neighbours")
         );
         s.mesh.preparation["repair"]["holes"]["filled"] = serde_json::json!([]);
         assert_eq!(
@@ -670,6 +694,10 @@ mod tests {
             Some(
                 "1256 facets flipped to agree with their neighbours (tuft check lists every repair)"
             )
+        );
+        assert_eq!(
+            s.repair_short().as_deref(),
+            Some("1256 facets flipped to agree with their neighbours")
         );
     }
 }

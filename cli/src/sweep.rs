@@ -28,6 +28,39 @@ use plan::{Plan, parse_shard, shard_range};
 /// File listing every variant of the sweep, at the top of the sweep folder.
 pub const PLAN_FILE: &str = "sweep-plan.json";
 
+/// The folder in a sweep's result folder that keeps each failed variant's
+/// reason, one `<variant>.txt` per variant (one file each, so that shards
+/// running at once never write the same file), removed when the variant
+/// later finishes: a review's overnight batch had its reasons on the
+/// terminal only, and `collect` listed the variants as "missing or
+/// failed" with none.
+pub const FAILURES_DIR: &str = "failures";
+
+/// Keep (`Some`) or clear (`None`) `variant`'s failure reason under
+/// `root`. Best effort: the sweep's own line has said it already.
+fn record_failure(root: &Path, variant: &str, why: Option<&str>) {
+    let file = root.join(FAILURES_DIR).join(format!("{variant}.txt"));
+    match why {
+        Some(why) => {
+            let _ = std::fs::create_dir_all(root.join(FAILURES_DIR));
+            let _ = crate::outdir::write_whole(&file, format!("{why}\n").as_bytes());
+        }
+        None => {
+            let _ = std::fs::remove_file(&file);
+            // The folder goes with its last file.
+            let _ = std::fs::remove_dir(root.join(FAILURES_DIR));
+        }
+    }
+}
+
+/// `variant`'s failure reason kept under `root`, if any.
+pub fn failure_reason(root: &Path, variant: &str) -> Option<String> {
+    std::fs::read_to_string(root.join(FAILURES_DIR).join(format!("{variant}.txt")))
+        .ok()
+        .map(|t| t.trim().to_owned())
+        .filter(|t| !t.is_empty())
+}
+
 /// Arguments of `tuft sweep`.
 #[derive(clap::Args)]
 pub struct SweepArgs {
@@ -191,8 +224,16 @@ fn run_range(
     // The first variant refused for memory, with what its need depends
     // on: later variants alike are not prepared only to be refused again.
     let refused: std::cell::RefCell<Option<(String, String)>> = std::cell::RefCell::new(None);
+    let kept = done;
+    // The time the variants run here took, for what is left (a review's
+    // overnight log gave no estimate).
+    let (mut spent, mut runs) = (0.0, 0);
     let mut report = |m: &Member<'_>, outcome: &Outcome, secs: f64| {
         done += 1;
+        if matches!(outcome, Outcome::Done(..)) {
+            spent += secs;
+            runs += 1;
+        }
         if let (Outcome::Failed(why), Some(key)) = (outcome, memory_key(m.variant))
             && crate::estimate::is_memory_refusal(why)
         {
@@ -203,6 +244,14 @@ fn run_range(
         if let Outcome::Done(s, _) = outcome {
             warned += usize::from(!s.warnings.is_empty());
         }
+        record_failure(
+            root,
+            &m.variant.name,
+            match outcome {
+                Outcome::Failed(why) => Some(why),
+                Outcome::Done(..) => None,
+            },
+        );
         let line = match outcome {
             Outcome::Done(s, matrix) => {
                 format!(
@@ -232,9 +281,16 @@ fn run_range(
                 format!("FAILED: {why}")
             }
         };
+        let left = match total - done {
+            n if n > 0 && runs > 0 => format!(
+                " [about {} left]",
+                crate::progress::duration_words(spent / f64::from(runs) * n as f64)
+            ),
+            _ => String::new(),
+        };
         say(
             opt.quiet && matches!(outcome, Outcome::Done(..)),
-            &format!("[{done}/{total}] {}: {line}", m.variant.name),
+            &format!("[{done}/{total}] {}: {line}{left}", m.variant.name),
         );
     };
     let mut start = 0;
@@ -272,12 +328,13 @@ fn run_range(
         say(
             opt.quiet,
             &format!(
-                "{}: running{} ...",
+                "{}: running{}, variant {} of {total} ...",
                 todo[start].variant.name,
                 match end - start {
                     1 => String::new(),
                     n => format!(" with {} more of this shape", n - 1),
-                }
+                },
+                kept + start + 1
             ),
         );
         run_group(
@@ -427,4 +484,29 @@ fn write_plan(root: &Path, plan: &Plan) -> Result<()> {
         .with_context(|| format!("{}: cannot write", tmp.display()))?;
     std::fs::rename(&tmp, root.join(PLAN_FILE))
         .with_context(|| format!("{}: cannot write", root.join(PLAN_FILE).display()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{FAILURES_DIR, failure_reason, record_failure};
+
+    /// A failed variant's reason is kept until the variant finishes; the
+    /// folder goes with the last reason.
+    #[test]
+    fn a_failure_reason_is_kept_until_the_variant_finishes() {
+        let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
+        let root = dir.path();
+        record_failure(root, "v7", Some("v7.stl: the file is cut short"));
+        record_failure(root, "v6", Some("v6.stl: a half model"));
+        assert_eq!(
+            failure_reason(root, "v7").as_deref(),
+            Some("v7.stl: the file is cut short")
+        );
+        assert_eq!(failure_reason(root, "v1"), None);
+        record_failure(root, "v7", None);
+        assert_eq!(failure_reason(root, "v7"), None);
+        assert!(root.join(FAILURES_DIR).is_dir(), "v6's reason stays");
+        record_failure(root, "v6", None);
+        assert!(!root.join(FAILURES_DIR).exists());
+    }
 }

@@ -193,5 +193,9 @@ fn a_sweep_refused_for_memory_says_it_once() {
         .count();
     assert_eq!(skipped, 2, "{all}");
     // Only the first variant ran (its geometry read, then refused).
-    assert_eq!(all.matches(": running ...").count(), 1, "{all}");
+    assert_eq!(
+        all.matches(": running, variant 1 of 3 ...").count(),
+        1,
+        "{all}"
+    );
 }

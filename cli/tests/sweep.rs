@@ -262,15 +262,26 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
     );
     // Collect finds the four that finished and names the two that failed
     // (with --threads, as every command takes it).
-    let (code, _) = tuft(&[
+    let (code, err) = tuft(&[
         "collect",
         out.to_str().unwrap(),
         "--quiet",
         "--threads",
         "1",
     ]);
-    // Planned variants missing: the study is incomplete, a failure.
+    // Planned variants missing: the study is incomplete, a failure; each
+    // with the reason its run gave, kept by the sweep, and the advice to
+    // mend it (running again alone fails them again).
     assert_eq!(code, 2);
+    assert!(
+        err.contains("mend what each failure names, then run the sweep again"),
+        "{err}"
+    );
+    assert_eq!(
+        std::fs::read_dir(out.join("failures")).unwrap().count(),
+        2,
+        "one reason per failed variant"
+    );
     let c = json(&out.join("sweep.json"));
     assert_eq!(c["variants"].as_array().unwrap().len(), 4);
     let missing: Vec<&str> = c["missing"]
@@ -281,7 +292,9 @@ fn shards_split_the_variants_without_loss_or_repeats_and_failures_are_reported()
         .collect();
     assert_eq!(missing.len(), 2);
     assert!(
-        missing.iter().all(|m| m.contains("radius-0.7")),
+        missing
+            .iter()
+            .all(|m| m.contains("radius-0.7") && m.contains("(failed: ") && m.contains("ground")),
         "{missing:?}"
     );
     // The region's share and verdict per variant, in sweep.csv and on the
@@ -461,7 +474,8 @@ fn collect_leaves_out_variants_of_another_sweep() {
     assert_eq!(code, sweep_code(&err), "{err}");
     // A log says what runs as it starts.
     assert!(
-        err.lines().next() == Some("speed-20: running with 1 more of this shape ..."),
+        err.lines().next()
+            == Some("speed-20: running with 1 more of this shape, variant 1 of 2 ..."),
         "{err}"
     );
     let other = out.join("speed-99");
@@ -518,6 +532,21 @@ fn a_sweep_with_noise_runs_again_what_was_run_without() {
         spreads.len() == 2 && spreads.iter().all(|&n| n >= 0.0),
         "{spreads:?}"
     );
+    // The axles' spreads too, and the speed in km/h as a case gives it.
+    for column in ["front_axle_noise_kg", "rear_axle_noise_kg"] {
+        let kg = number_column(&out, column);
+        assert!(
+            kg.len() == 2 && kg.iter().all(|&n| n >= 0.0),
+            "{column}: {kg:?}"
+        );
+    }
+    let mut kmh = number_column(&out, "speed_kmh");
+    kmh.sort_by(f64::total_cmp);
+    assert_eq!(kmh, [72.0, 108.0]);
+    // The page's table gives them beside the values.
+    let html = std::fs::read_to_string(out.join("sweep.html")).unwrap();
+    assert!(html.contains("<th>panel noise</th>"));
+    assert!(html.contains("<td>drag "));
 }
 
 /// Values a case refuses (a negative speed) or a built-in shape's
@@ -761,7 +790,8 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     let ratio = body[2].1 / body[0].1;
     assert!((3.4..4.4).contains(&ratio), "{body:?}: one scale for all");
     assert!(
-        html.contains("<p class=\"glance-none\">ground-0: failed or not finished, no picture.</p>"),
+        html.contains("<p class=\"glance-none\">ground-0 (failed: ")
+            && html.contains("): no picture.</p>"),
         "{html}"
     );
     // Without its mesh.json the second variant gets a line, not a picture.

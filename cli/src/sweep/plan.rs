@@ -484,6 +484,16 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 {
                     return Err(at(format!("the label name \"{}\" is given twice", twice.1)));
                 }
+                // A label named as one of sweep.csv's own columns would
+                // repeat it (a review's `label = "variant"` gave two
+                // `variant` columns, and a script reading by name lost the
+                // folder's).
+                if let Some(taken) = names.iter().find(|n| crate::collect::is_csv_column(n)) {
+                    return Err(at(format!(
+                        "the label name \"{taken}\" is one of sweep.csv's own columns: name it for \
+                         what the labels measure (\"roof and window\", \"boot lid raise [mm]\")"
+                    )));
+                }
                 if let [name] = names.as_slice() {
                     Some(vec![(name.clone(), label_values(l, true).map_err(at)?)])
                 } else {
@@ -922,6 +932,19 @@ mod tests {
                 "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\nlabels = {labels}\n"
             ));
             assert!(why.contains(words), "{why}");
+        }
+        // A label named as a sweep.csv column would repeat it.
+        for taken in ["variant", "cd", "speed_kmh"] {
+            let why = refusal(&format!(
+                "{BASE}[[vary]]\nkey = \"rear_window_deg\"\nvalues = [22.0, 38.0]\n\
+                 labels = [\"low\", \"steep\"]\nlabel = \"{taken}\"\n"
+            ));
+            assert!(
+                why.contains(&format!(
+                    "the label name \"{taken}\" is one of sweep.csv's own columns"
+                )),
+                "{why}"
+            );
         }
     }
 
