@@ -1049,6 +1049,7 @@ fn finish(
         reference.rear_axle_x,
     ));
     warnings.extend(underbody_separation_warning(underbody_separation));
+    warnings.extend(stalled_floor_warning((&named, &member, &regions), mesh));
     let edge_hold = edge_hold(
         mesh,
         &spikes,
@@ -1317,25 +1318,10 @@ pub const BASE_CORNER_COUNTS: f64 = 1.0;
 /// counts as beside it ([`base_corner_warning`]).
 const BASE_CORNER_HOPS: usize = 2;
 
-/// A warning for attached panels within [`BASE_CORNER_HOPS`] edge steps
-/// of a base's dead water (separated panels facing downstream, within 45
-/// degrees of the stream) at a Cp above [`BASE_CORNER_CP`]: the model's
-/// dead water leaves a base edge straight back along the stream, which a
-/// surface tapering in towards the edge meets as a concave corner, and
-/// the panel method puts a stagnation in it; a real shear layer leaves
-/// the edge along the surface, and the pressure there falls to the
-/// base's. Their push on the body, in drag counts on `reference_area`,
-/// is said; under [`BASE_CORNER_COUNTS`] it is no warning (a review's
-/// hatchbacks each carried one panel's "about 0 counts", which made every
-/// run exit 1 and was repeated three times by collect). Letting the base's outflow turn in along the taper instead
-/// (the ramp the loop gives separation lines on inclined surfaces) was
-/// tried and not kept (DEVELOPERS.md).
-pub fn base_corner_warning(
-    mesh: &PanelMesh,
-    (layer, cp): (&BoundaryLayer, &[f64]),
-    stream: &Vector3<f64>,
-    reference_area: f64,
-) -> Option<String> {
+/// Each panel's edge steps from the tail's base dead water (0 for the
+/// base's own panels, up to [`BASE_CORNER_HOPS`] over attached panels,
+/// `usize::MAX` beyond), for [`base_corner_warning`].
+fn base_depths(mesh: &PanelMesh, layer: &BoundaryLayer, stream: &Vector3<f64>) -> Vec<usize> {
     let separated = |t: usize| layer.panels[t].state == FlowState::Separated;
     // The tail's base: dead water whose ray along the stream leaves the
     // body, and on a body standing on its tyres, above its floor. A
@@ -1377,6 +1363,29 @@ pub fn base_corner_warning(
             }
         }
     }
+    depth
+}
+
+/// A warning for attached panels within [`BASE_CORNER_HOPS`] edge steps
+/// of a base's dead water (separated panels facing downstream, within 45
+/// degrees of the stream) at a Cp above [`BASE_CORNER_CP`]: the model's
+/// dead water leaves a base edge straight back along the stream, which a
+/// surface tapering in towards the edge meets as a concave corner, and
+/// the panel method puts a stagnation in it; a real shear layer leaves
+/// the edge along the surface, and the pressure there falls to the
+/// base's. Their push on the body, in drag counts on `reference_area`,
+/// is said; under [`BASE_CORNER_COUNTS`] it is no warning (a review's
+/// hatchbacks each carried one panel's "about 0 counts", which made every
+/// run exit 1 and was repeated three times by collect). Letting the base's outflow turn in along the taper instead
+/// (the ramp the loop gives separation lines on inclined surfaces) was
+/// tried and not kept (DEVELOPERS.md).
+pub fn base_corner_warning(
+    mesh: &PanelMesh,
+    (layer, cp): (&BoundaryLayer, &[f64]),
+    stream: &Vector3<f64>,
+    reference_area: f64,
+) -> Option<String> {
+    let depth = base_depths(mesh, layer, stream);
     let corner: Vec<usize> = (0..mesh.len())
         .filter(|&t| depth[t] != 0 && depth[t] != usize::MAX && cp[t] > BASE_CORNER_CP)
         .collect();
@@ -1574,6 +1583,63 @@ pub fn underbody_separation_warning((separated, total): (f64, f64)) -> Option<St
             100.0 * share
         )
     })
+}
+
+/// Share of a named region's area facing the ground
+/// ([`UNDERBODY_NORMAL_Z`]) from which it is a floor's part (a diffuser, a
+/// splitter), whose separation [`stalled_floor_warning`] takes. Our
+/// choice: most of it.
+pub const FLOOR_REGION_SHARE: f64 = 0.5;
+
+/// The warning of a run whose named region facing the ground (most of its
+/// area, [`FLOOR_REGION_SHARE`]) is partly separated or more (from the
+/// first regime line, [`crate::region::VERDICT_LINES`]): the model keeps
+/// the floor's suction ahead of it, so its loads leave out the stall. A
+/// review's saloon with its diffuser kicked up 0 to 16 degrees read its
+/// rear axle +64, +53, +39, +9 and -11 kg, falling on in even steps while
+/// the diffuser went from 19 to 34 and 44 % separated, and its 16-degree
+/// run said "No warnings".
+pub fn stalled_floor_warning(
+    (named, member, regions): (
+        &[crate::region::RegionSection],
+        &[Vec<bool>],
+        &[crate::region::RegionResult],
+    ),
+    mesh: &PanelMesh,
+) -> Vec<String> {
+    let n = mesh.len();
+    let mut out = Vec::new();
+    for ((_, inside), r) in named.iter().zip(member).zip(regions) {
+        let (down, all) = inside
+            .iter()
+            .enumerate()
+            .filter(|(_, m)| **m)
+            .map(|(i, _)| &mesh.panels[i % n])
+            .fold((0.0, 0.0), |(d, a), p| {
+                let facing = if p.normal.z < -UNDERBODY_NORMAL_Z {
+                    p.area
+                } else {
+                    0.0
+                };
+                (d + facing, a + p.area)
+            });
+        if all > 0.0
+            && down / all > FLOOR_REGION_SHARE
+            && r.separated_fraction >= crate::region::VERDICT_LINES[0]
+        {
+            out.push(format!(
+                "the region \"{}\", facing the ground, is {:.0} % separated ({}): this model keeps the \
+                 suction of the floor ahead of a separated diffuser (its dead water holds one pressure and \
+                 the flow under the floor does not slow), so the downforce here goes on growing where a \
+                 stalled diffuser loses it (common practice); read the stall's onset from the region's share \
+                 across variants, not from the axle loads",
+                r.name,
+                100.0 * r.separated_fraction,
+                r.verdict
+            ));
+        }
+    }
+    out
 }
 
 /// Largest change the plateau model may make to the attached flow's lift or
@@ -2430,6 +2496,43 @@ pub(crate) mod tests {
         let sound = loads_with(0.001, 1e-3);
         assert!(check_physical(&sound, &attached, 1.0, (&mesh, &v), 10.0).is_ok());
         assert!(check_physical(&sound, &attached, 0.2, (&mesh, &v), 10.0).is_err());
+    }
+
+    /// A named region facing the ground and partly separated or more is
+    /// warned about, with its share; one under the first regime line, or
+    /// one facing up, is not.
+    #[test]
+    fn a_separated_floor_region_is_warned_about() {
+        use crate::region::{RegionResult, RegionSection, memberships};
+        use tuft_mesh::Mirrors;
+        let mesh = PanelMesh::new(tuft_mesh::generate::icosphere(1.0, 3), Mirrors::none())
+            .unwrap_or_else(|e| panic!("{e}"));
+        let section = |name: &str, facing: &str| RegionSection {
+            name: name.into(),
+            x: None,
+            y: None,
+            z: None,
+            facing: Some(facing.into()),
+            optional: false,
+        };
+        let named = [section("diffuser", "down"), section("roof", "up")];
+        let member = memberships(&named, &mesh);
+        let warn = |floor: f64, roof: f64| {
+            let results = [
+                RegionResult::example("diffuser", floor, None),
+                RegionResult::example("roof", roof, None),
+            ];
+            stalled_floor_warning((&named, &member, &results), &mesh)
+        };
+        let w = warn(0.44, 0.0);
+        assert_eq!(w.len(), 1, "{w:?}");
+        assert!(
+            w[0].starts_with(
+                "the region \"diffuser\", facing the ground, is 44 % separated (partly separated):"
+            ) && w[0].contains("not from the axle loads"),
+            "{w:?}"
+        );
+        assert!(warn(0.19, 0.9).is_empty());
     }
 
     /// A largely separated underbody is warned about; the wheeled coupe's
