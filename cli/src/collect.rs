@@ -1703,6 +1703,18 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
         if labelled_in_step(c, key) {
             continue;
         }
+        // A key given one value varies nothing to plot against (a review's
+        // `panels = [3200]` drew every plot again, its points in a column).
+        let mut values: Vec<String> = c
+            .variants
+            .iter()
+            .filter_map(|r| r.settings.get(key).map(cell))
+            .collect();
+        values.sort();
+        values.dedup();
+        if values.len() < 2 {
+            continue;
+        }
         let categories = if numeric_key(c, key) {
             Vec::new()
         } else {
@@ -1884,6 +1896,20 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 off_scale: None,
                 min_y_span: 10.0,
                 x_categories: categories.clone(),
+                // The verdict's lines, as the table reads the shares (a
+                // review's diffuser plot had none).
+                y_band: Some(YBand {
+                    span: (
+                        100.0 * crate::region::VERDICT_LINES[0],
+                        100.0 * crate::region::VERDICT_LINES[1],
+                    ),
+                    name: format!(
+                        "partly separated ({:.0} to {:.0} %): attached below, separated above",
+                        100.0 * crate::region::VERDICT_LINES[0],
+                        100.0 * crate::region::VERDICT_LINES[1]
+                    ),
+                    colour: VERDICT_TINT,
+                }),
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -2314,6 +2340,9 @@ const BAND_GREY: crate::output::canvas::Rgb = [150, 150, 150];
 /// The tint of the drag plot's noise floor above its lowest point, a pale
 /// green multiplied into the grid and curves under it.
 const FLOOR_TINT: crate::output::canvas::Rgb = [214, 238, 214];
+
+/// The tint of the named regions' plot between the verdict's lines.
+const VERDICT_TINT: crate::output::canvas::Rgb = [240, 230, 205];
 
 /// One line per combination of the other swept keys' values, in the
 /// order of those values (numbers as numbers: 6 before 14.5 before 22).
@@ -4061,6 +4090,26 @@ mod tests {
             !names.iter().any(|n| n.ends_with("against ground.z")),
             "{names:?}"
         );
+    }
+
+    /// A key given one value gets no plots of its own; the key that
+    /// varies keeps them.
+    #[test]
+    fn a_key_of_one_value_is_not_plotted_against() {
+        let mut c = sweep(&[10.0, 10.2, 10.1]);
+        c.keys = vec!["flow.speed".into(), "geometry.panels".into()];
+        for (k, r) in c.variants.iter_mut().enumerate() {
+            r.settings
+                .insert("flow.speed".into(), serde_json::json!(30.0 + k as f64));
+            r.settings
+                .insert("geometry.panels".into(), serde_json::json!(3200));
+        }
+        let names: Vec<String> = plots(&c).unwrap().into_iter().map(|p| p.0).collect();
+        assert!(
+            !names.iter().any(|n| n.ends_with("against geometry.panels")),
+            "{names:?}"
+        );
+        assert!(!names.is_empty(), "{names:?}");
     }
 
     /// Variants wrapped beside variants not wrapped are named, each group;

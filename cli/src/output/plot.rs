@@ -161,8 +161,20 @@ impl PlotFrame {
 }
 
 /// Series colours: a dark blue and an orange (distinguishable with the
-/// common colour-vision deficiencies), then a green and a purple.
-pub const SERIES_COLOURS: [Rgb; 4] = [[31, 90, 166], [222, 110, 20], [44, 140, 80], [120, 70, 160]];
+/// common colour-vision deficiencies), then a green and a purple, a teal,
+/// a vermilion, a brown and a pink, so that a plot of up to eight lines
+/// gives each its own (a review's five diffuser angles drew the first
+/// and the fifth in one blue).
+pub const SERIES_COLOURS: [Rgb; 8] = [
+    [31, 90, 166],
+    [222, 110, 20],
+    [44, 140, 80],
+    [120, 70, 160],
+    [0, 150, 170],
+    [200, 60, 50],
+    [140, 100, 40],
+    [220, 120, 180],
+];
 
 /// Draw a line plot.
 ///
