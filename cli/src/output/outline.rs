@@ -205,7 +205,11 @@ pub fn draw_regions_labelled(
     // a base, seen from the rear only) is named in the first other view
     // that shows its face (a review's "tailgate" box was outlined in the
     // rear view with no name anywhere).
-    let mut labelled = vec![false; marks.len()];
+    // Outlines that no view names (compare's changed shape, which its
+    // sheet's note names) get no name anywhere: a review's diffuser
+    // comparison printed "changed shape" through the diffuser's name.
+    let any_named = on.views.iter().any(|(v, _)| (on.named)(*v));
+    let mut labelled = vec![!any_named; marks.len()];
     let mut order: Vec<&(View, Frame)> = on.views.iter().collect();
     order.sort_by_key(|(v, _)| !(on.named)(*v));
     for (view, frame) in order {
@@ -791,6 +795,29 @@ mod tests {
             !roof.is_empty() && !roof.iter().any(|v| matches!(v, View::Front | View::Rear)),
             "{roof:?}"
         );
+    }
+
+    /// Outlines drawn with no view named (compare's changed shape) carry
+    /// no name in any view, the rear's included.
+    #[test]
+    fn outlines_named_in_no_view_carry_no_name() {
+        let body = tuft_mesh::generate::ahmed(0.0, 2000).unwrap();
+        let mesh = tuft_mesh::PanelMesh::new(body, tuft_mesh::Mirrors::ground(0.0)).unwrap();
+        let (_, hi) = mesh.bounds();
+        let marks =
+            crate::region::marks(&[region("base", [hi.x - 0.01, hi.x + 0.01], "rear")], &mesh);
+        let mut canvas = Canvas::new(1600, 1000).unwrap();
+        let tris = display_triangles(&mesh);
+        let lay = sheet::layout(&tris, &SheetParams::default());
+        let on = RegionViews {
+            views: &lay.views,
+            named: |_| false,
+            flow_corner: true,
+            scale_bar: true,
+        };
+        let labels =
+            draw_regions_labelled(&mut canvas, &mesh, &marks, OutlineStyle::default(), &on);
+        assert!(labels.is_empty(), "{labels:?}");
     }
 
     /// Two regions one over the other in a view: the second name goes
