@@ -141,9 +141,10 @@ pub enum MeshError {
     /// The fields describe the largest; `holes` lists every one, largest
     /// first, and the message names them all (up to ten).
     #[error(
-        "{} that no declared mirror plane closes, largest first: {}: the \
+        "{}{} that no declared mirror plane closes, largest first: {}: the \
          panel method needs a closed surface, because it holds the potential inside the body at \
          zero and an open surface has no inside; {}",
+        crate::repair::hole_lead(.holes),
         if *.refused == 1 { "1 open hole".to_string() } else { format!("{} open holes", .refused) },
         crate::repair::describe_refused(.holes),
         crate::repair::hole_advice(.holes)

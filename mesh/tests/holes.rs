@@ -217,6 +217,11 @@ fn a_half_model_read_as_whole_is_asked_whether_it_is_one() {
     };
     assert!(holes[0].on_undeclared_symmetry_plane, "{text}");
     assert!(text.contains("is this the cut of a half model?"), "{text}");
+    // The diagnosis first, where a log line is read.
+    assert!(
+        text.starts_with("open along y = 0, a half model with no symmetry plane declared"),
+        "{text}"
+    );
 }
 
 #[test]

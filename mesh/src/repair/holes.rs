@@ -237,6 +237,20 @@ fn describe_one(h: &RefusedHole) -> String {
     )
 }
 
+/// The refusal's first words when they are all one thing a user can
+/// read at a glance: every refused hole's rim on y = 0 is a half model
+/// exported without its plane declared (a review's overnight log carried
+/// the 798-character refusal with its diagnosis in the middle); empty
+/// otherwise.
+pub fn hole_lead(holes: &[RefusedHole]) -> &'static str {
+    if !holes.is_empty() && holes.iter().all(|h| h.on_undeclared_symmetry_plane) {
+        "open along y = 0, a half model with no symmetry plane declared (half_model = true, \
+         --half): "
+    } else {
+        ""
+    }
+}
+
 /// What to do about refused holes: close them in the model, and declare a
 /// mirror plane only where a hole's rim lies in one (its rim on y = 0, or
 /// flat at the body's lowest height): for any other hole a plane cannot

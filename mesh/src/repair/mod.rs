@@ -40,7 +40,7 @@ pub use fins::drop_fins;
 pub(crate) use holes::OFF_PLANE_TOLERANCES;
 pub use holes::{
     HoleReport, HoleSettings, LoopInfo, Refusal, RefusedHole, SPAN_EDGES, circle_words,
-    close_holes, describe_refused, hole_advice, hole_measure,
+    close_holes, describe_refused, hole_advice, hole_lead, hole_measure,
 };
 pub use layers::{DroppedLayer, LAYER_AREA_SHARE, LAYER_DISTANCE, describe_layers};
 pub use orient::{OrientReport, orient_consistently};
