@@ -1274,10 +1274,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         panels: s.mesh.panels,
         panels_instead: s.panels_instead(),
         half_model: s.mesh.symmetry_plane,
-        lift_noise_kg: crate::compare::lift_floor_cl([s.lift_spread(); 2])
-            * s.dynamic_pressure_pa
-            * s.reference.area_m2
-            / tuft_solver::loads::STANDARD_GRAVITY,
+        lift_noise_kg: s.lift_noise_kg(),
         drag_spread_counts: s.drag_spread(),
         front_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[0]),
         rear_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[1]),

@@ -1048,7 +1048,12 @@ fn finish(
         reference.front_axle_x,
         reference.rear_axle_x,
     ));
-    warnings.extend(underbody_separation_warning(underbody_separation));
+    // A car's floor over the road: in free air the downward-facing
+    // surface is no underbody (a review's free-air sphere was told of a
+    // chin spoiler).
+    if mesh.mirrors.ground.is_some() {
+        warnings.extend(underbody_separation_warning(underbody_separation));
+    }
     warnings.extend(stalled_floor_warning((&named, &member, &regions), mesh));
     let edge_hold = edge_hold(
         mesh,
@@ -1061,7 +1066,10 @@ fn finish(
         warnings.push(PLATEAU_DRAG_WARNING.into());
         warnings.extend(plateau_loads_warning(&estimate, &attached));
     }
-    if !reference_given.axles {
+    // In free air without axles the lift is not split (the summary says
+    // so), so there is no assumed split to warn about (a review's sphere
+    // read both in one run).
+    if !reference_given.axles && mesh.mirrors.ground.is_some() {
         warnings.push(
             "axle positions not given: front and rear axles assumed at 20 % and 80 % of the body length \
              (set reference.front_axle_x and reference.rear_axle_x)"

@@ -200,14 +200,21 @@ fn print_summary(out: &Path, s: &Summary) {
     }
     let [total, front, rear] = s.lift_kg.axle_words();
     let floor = crate::write::underbody_words(s).map_or_else(String::new, |u| format!("; {u}"));
+    // Its scatter between like runs beside it, the least certain number's
+    // (a review found the lift with no uncertainty where the drag had its
+    // band).
+    let noise = format!(
+        "; like runs scatter by about {} kg",
+        crate::output::fixed(s.lift_noise_kg(), 1)
+    );
     if s.axle_split_shown() {
         say!(
-            "  lift{speed}: {total} kg (front {front}, rear {rear}; negative is downforce){floor}"
+            "  lift{speed}: {total} kg (front {front}, rear {rear}; negative is downforce{noise}){floor}"
         );
     } else {
         say!(
             "  lift{speed}: {total} kg (not split between axles: free air, no axles given; negative is \
-             downforce){floor}"
+             downforce{noise}){floor}"
         );
     }
     // Where the floor stands at the axles, for a rake or ride-height
@@ -242,6 +249,13 @@ fn print_summary(out: &Path, s: &Summary) {
             "  separated-flow loop: {}, {state}{base} (the drag estimate above is its last pass)",
             crate::output::plural(w.passes, "pass", "passes"),
         );
+    }
+    for note in s
+        .notes
+        .iter()
+        .filter(|n| n.starts_with(crate::write::CROSS_WIND))
+    {
+        say!("  {note}");
     }
     if let Some(n) = &s.panel_noise {
         say!(

@@ -45,6 +45,13 @@ pub struct LiftKg {
     /// The underbody's part on the rear axle.
     #[serde(default)]
     pub underbody_rear_axle: f64,
+    /// How far the whole body's lift scatters between like runs, kg: the
+    /// built-in noise floor in C_L (or the run's own panel noise where
+    /// larger, `--noise`) at this run's dynamic pressure and reference
+    /// area ([`Summary::lift_noise_kg`]); a review found the lift, the
+    /// least certain number, printed with no uncertainty beside it.
+    #[serde(default)]
+    pub noise: f64,
 }
 
 /// Where the boundary layer separated.
@@ -348,6 +355,16 @@ impl Summary {
     /// (`None` without `--noise`).
     pub fn lift_spread(&self) -> Option<f64> {
         self.panel_noise.as_ref().map(|n| n.lift_cl)
+    }
+
+    /// The whole body's lift noise, kg: the built-in floor in C_L, or the
+    /// run's own panel noise where larger, at its dynamic pressure and
+    /// reference area.
+    pub fn lift_noise_kg(&self) -> f64 {
+        crate::compare::lift_floor_cl([self.lift_spread(); 2])
+            * self.dynamic_pressure_pa
+            * self.reference.area_m2
+            / tuft_solver::loads::STANDARD_GRAVITY
     }
 
     /// Whether the drag comes from the attached flow's plateau model: the

@@ -624,6 +624,8 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
             underbody: c.underbody_lift_kg[0],
             underbody_front_axle: c.underbody_lift_kg[1],
             underbody_rear_axle: c.underbody_lift_kg[2],
+            // Set below, from the summary's own panel noise.
+            noise: 0.0,
         },
         separation: Separation {
             area_m2: sym * c.separated_area,
@@ -660,8 +662,12 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         notes: geo.report.quality.notes.clone(),
         caution: CAUTION.into(),
     };
+    s.lift_kg.noise = s.lift_noise_kg();
     s.notes.extend(s.coarse_note());
     s.notes.extend(c.region_notes.iter().cloned());
+    if case.file.flow.yaw != 0.0 {
+        s.notes.push(cross_wind_note(case.file.flow.yaw));
+    }
     if s.under_half_suggested() {
         for r in &mut s.regions {
             r.coarse_mesh = true;
@@ -792,6 +798,25 @@ fn clearance_words(s: &Summary) -> String {
         (Some(_), Some(c)) => format!("{:.0}", 1000.0 * c),
         (Some(_), None) => "not recorded".to_owned(),
     }
+}
+
+/// How a yawed run's note begins ([`cross_wind_note`]).
+pub const CROSS_WIND: &str = "cross wind at";
+
+/// What a yawed run's side force is worth, in one sentence for stdout and
+/// summary.json's notes: a review scripting off summary.json read
+/// `coefficients.side` 0.038 at 10 degrees with no word that it is not
+/// the side force (the report's Cross wind section, [`cross_wind_text`],
+/// had the words).
+pub fn cross_wind_note(yaw: f64) -> String {
+    format!(
+        "{CROSS_WIND} {}: the side-force coefficient (coefficients.side) is not the side force, not \
+         even in sign (cars measure about 0.03 to 0.04 per degree, common practice, mostly from the \
+         lee side's separated flow, which this model does not hold), no yawing or rolling moment is \
+         given, and the drag can read lower than straight ahead where cars measure more; compare runs \
+         at one yaw only (the report's Cross wind section says more)",
+        output::yaw_words(yaw)
+    )
 }
 
 /// What a yawed run can and cannot say: a car's side force comes mostly

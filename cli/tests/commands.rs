@@ -633,6 +633,15 @@ fn a_yawed_run_says_what_it_cannot_give() {
         .iter()
         .any(|w| w.as_str().unwrap().starts_with("a yawed run on"));
     assert!(warned, "{}", summary["warnings"]);
+    // summary.json's side-force coefficient carries its words, as stdout
+    // does (a script reading it had none).
+    let noted = summary["notes"].as_array().unwrap().iter().any(|n| {
+        let n = n.as_str().unwrap();
+        n.starts_with("cross wind at yaw 5°") && n.contains("is not the side force")
+    });
+    assert!(noted, "{}", summary["notes"]);
+    let o = tuft(dir.path(), &["run", "yawed.toml", "--force"]);
+    assert!(o.stdout.contains("  cross wind at yaw 5°"), "{}", o.stdout);
 }
 
 /// `tuft run --noise` solves the case again at 8 % fewer and 8 % more
