@@ -153,10 +153,10 @@ fn print_summary(out: &Path, s: &Summary) {
     // The loop's estimate sits low in its band (its top adds the model's
     // largest shortfall against measured drag): say so where the number
     // is read, not only in the report.
-    let lean = if s.separated_wakes.is_some() {
-        "; a low estimate: the true drag is more likely above it than below"
-    } else {
-        ""
+    let lean = match crate::write::drag_lean(s) {
+        Some(l) if s.separation.fraction < crate::write::STREAMLINED_SHARE => format!("; {l}"),
+        Some(_) => "; a low estimate: the true drag is more likely above it than below".to_owned(),
+        None => String::new(),
     };
     say!(
         "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}{lean}), lift C_L {:.3}",

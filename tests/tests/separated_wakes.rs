@@ -255,6 +255,89 @@ fn square_back_base_pressure() {
     assert!((-0.35..=-0.15).contains(&cpb), "base Cp {cpb}");
 }
 
+/// A 4:1 prolate spheroid in free air at 40 m/s (length 4 m, Re 1.06e7),
+/// fully turbulent, through the loop as `tuft run` takes it, and its
+/// friction and pressure drag on the frontal area.
+///
+/// Returns the drag estimate, its friction part, and the wetted area over
+/// the frontal area.
+fn streamlined_spheroid() -> (f64, f64, f64) {
+    let (ratio, n_lon) = (4.0, 24);
+    let n_lat = (ratio / 2.0 * n_lon as f64).round() as usize + 1;
+    let mut m = generate::latlong_sphere(0.5, n_lat, n_lon);
+    m.map_vertices(|p| tuft_mesh::Point::new(ratio * p.x, p.y, p.z));
+    let mesh = PanelMesh::new(m, Mirrors::none()).unwrap();
+    let layer = BoundaryLayerParams {
+        transition: Transition::Turbulent,
+        ..along_x()
+    };
+    let r = run(&mesh, layer);
+    let (cd, _) = drag(&mesh, &loop_cp(&mesh, &r), &r.last);
+    // Zero pressure everywhere: the friction part alone.
+    let (friction, _) = drag(&mesh, &vec![0.0; mesh.len()], &r.last);
+    let (lo, hi) = mesh.bounds();
+    let frontal = Reference::from_mesh(&mesh, lo.x, hi.x).area;
+    let wetted: f64 = mesh.panels.iter().map(|p| p.area).sum();
+    let separated = (0..mesh.len())
+        .filter(|&t| r.last.layer.panels[t].state == FlowState::Separated)
+        .map(|t| mesh.panels[t].area)
+        .sum::<f64>()
+        / wetted;
+    println!(
+        "4:1 spheroid, {} panels, {:.2} m long: C_D {cd:.4} (friction {friction:.4}, pressure {:.4}), \
+         {:.1} % separated",
+        mesh.len(),
+        hi.x - lo.x,
+        cd - friction,
+        100.0 * separated
+    );
+    (cd, friction, wetted / frontal)
+}
+
+/// The spheroid's Reynolds number on its length, with the boundary
+/// layer's default viscosity (1.46e-5 m^2/s, ISO 2533 sea level).
+const SPHEROID_RE: f64 = SPEED * 4.0 / 1.46e-5;
+
+/// Turbulent flat-plate skin friction, Prandtl-Schlichting:
+/// C_f = 0.455 / (log10 Re)^2.58 (Schlichting, Boundary-Layer Theory,
+/// ch. 21; from memory).
+fn flat_plate_cf(re: f64) -> f64 {
+    0.455 / re.log10().powf(2.58)
+}
+
+/// The friction drag of a streamlined body is the flat plate's on its
+/// wetted area: C_Df = C_f S_wet / A_frontal (Hoerner 1965, Fluid-Dynamic
+/// Drag, ch. 6, from memory), within 15 %.
+#[test]
+fn streamlined_body_friction_is_the_flat_plates() {
+    let (_, friction, wetted_over_frontal) = streamlined_spheroid();
+    let expected = flat_plate_cf(SPHEROID_RE) * wetted_over_frontal;
+    println!("friction {friction:.4} against {expected:.4} (flat plate on the wetted area)");
+    assert!(
+        (friction / expected - 1.0).abs() < 0.15,
+        "{friction} against {expected}"
+    );
+}
+
+/// Known failure: the drag of a streamlined body. Hoerner's formula for
+/// streamlined bodies of revolution, C_D = C_f [3 l/d + 4.5 (d/l)^0.5 +
+/// 21 (d/l)^2] on the frontal area (Hoerner 1965, ch. 6, eq. 27; from
+/// memory), gives about 0.045 for 4:1 at Re 1.06e7; tuft reads about
+/// 0.083, its pressure drag five times the formula's form drag: the
+/// layer's displacement, which softens the tail's pressure rise, is not
+/// fed back into the potential flow, so the steep attached-flow recovery
+/// at the tail separates the last few per cent of the body and its
+/// thrust is lost. Within 30 % would pass. Run with `-- --ignored`.
+#[test]
+#[ignore = "known failure: a streamlined body's pressure drag about five times Hoerner's"]
+fn streamlined_body_drag_against_hoerner() {
+    let (cd, ..) = streamlined_spheroid();
+    let (l_d, d_l) = (4.0, 0.25_f64);
+    let expected = flat_plate_cf(SPHEROID_RE) * (3.0 * l_d + 4.5 * d_l.sqrt() + 21.0 * d_l * d_l);
+    println!("C_D {cd:.4} against {expected:.4} (Hoerner's streamlined-body formula)");
+    assert!((cd / expected - 1.0).abs() < 0.3, "{cd} against {expected}");
+}
+
 /// The loop converges on a sphere with a laminar layer: the separated set
 /// moves by less than one panel row (the panels the separation line
 /// crosses on the attached pass) between the last two passes. The mean
