@@ -201,6 +201,44 @@ fn refused_holes_are_named_by_where_they_lie_on_the_car() {
     assert!(text.contains("under the middle, centre ("), "{text}");
 }
 
+/// A loose open sheet beside a closed body (a scan's debris under the
+/// floor) is named as a separate piece, not a hole in the body, with the
+/// advice to delete it; its rim's perimeter is still given.
+#[test]
+fn a_loose_open_piece_is_named_as_such() {
+    let coupe = generate::coupe_with_params(&generate::CoupeParams::default()).unwrap();
+    let lo = coupe
+        .vertices
+        .iter()
+        .fold(Point::new(f64::MAX, f64::MAX, f64::MAX), |lo, p| lo.inf(p));
+    let z = lo.z - 0.15;
+    let sheet = TriMesh::new(
+        vec![
+            Point::new(1.8, 0.2, z),
+            Point::new(2.1, 0.2, z),
+            Point::new(2.1, 0.35, z),
+            Point::new(1.8, 0.35, z),
+        ],
+        vec![[0, 1, 2], [0, 2, 3]],
+    )
+    .unwrap();
+    let e = repair(coupe.joined(&sheet), &Mirrors::none()).unwrap_err();
+    let text = e.to_string();
+    let MeshError::OpenHole { holes, .. } = &e else {
+        panic!("{e}")
+    };
+    assert_eq!(holes.len(), 1, "{text}");
+    assert!(
+        holes[0].piece_m2.is_some_and(|a| (a - 0.045).abs() < 1e-6),
+        "{text}"
+    );
+    assert!(
+        text.contains("the rim of a separate open piece of 0.045 m^2, no hole in the body")
+            && text.contains("delete the loose pieces"),
+        "{text}"
+    );
+}
+
 #[test]
 fn a_half_model_read_as_whole_is_asked_whether_it_is_one() {
     // The generated half coupe repaired without its symmetry plane: the

@@ -130,7 +130,20 @@ pub struct RefusedHole {
     /// middle", "low on the side at the front (a wheel arch?)").
     #[serde(default)]
     pub place: String,
+    /// The area of the separate piece whose rim it is, m^2, when that
+    /// piece is small beside the rest ([`PIECE_SHARE`]): no hole in the
+    /// body but a loose open piece, scanner debris or a stray patch (a
+    /// review's raw scan had a sheet lying under the floor and one off the
+    /// flank refused as holes "under the middle" and "low on the side",
+    /// with the advice to cap them).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub piece_m2: Option<f64>,
 }
+
+/// The share of the STL's area under which a separate open piece is a
+/// loose piece, not the body ([`RefusedHole::piece_m2`]). Our choice: a
+/// side mirror is about 1 % of a car's surface, and would be closed.
+pub const PIECE_SHARE: f64 = 0.02;
 
 /// Where a point lies on a car-like body with bounds `lo`..`hi` (x from
 /// nose to tail, z up), in words a modeller can find it by: underneath,
@@ -256,8 +269,17 @@ pub fn hole_lead(holes: &[RefusedHole]) -> &'static str {
 /// flat at the body's lowest height): for any other hole a plane cannot
 /// help.
 pub fn hole_advice(holes: &[RefusedHole]) -> String {
-    let mut advice =
-        "close the holes in the model (cap them in the modeller or the scan software)".to_string();
+    let pieces = holes.iter().filter(|h| h.piece_m2.is_some()).count();
+    let mut advice = if pieces == holes.len() {
+        "delete the loose pieces in the modeller or the scan software (or close them, if they are \
+         parts of the car)"
+            .to_string()
+    } else {
+        "close the holes in the model (cap them in the modeller or the scan software)".to_string()
+    };
+    if pieces > 0 && pieces < holes.len() {
+        advice += ", and delete the loose pieces named as such";
+    }
     if holes.iter().any(|h| h.off_declared_plane.is_some()) {
         advice += ", or move a cut that lies flat just off its declared plane onto it (above)";
     }
@@ -385,7 +407,13 @@ pub(crate) fn close_holes_with_uses(
     if !refused.is_empty() {
         let (lo, hi) = used_bounds(mesh);
         for h in &mut refused {
-            h.place = place_words(h.centre, lo, hi);
+            h.place = match h.piece_m2 {
+                Some(a) => format!(
+                    "the rim of a separate open piece of {a:.3} m^2, no hole in the body (scanner \
+                     debris or a loose patch?)"
+                ),
+                None => place_words(h.centre, lo, hi),
+            };
         }
     }
     refuse(refused)?;
@@ -403,6 +431,7 @@ fn take_loop(
     s: &HoleSettings,
     (part_area, lowest): (&[f64], f64),
 ) -> Result<(), Option<Box<RefusedHole>>> {
+    let total: f64 = part_area.iter().sum();
     let mut info = describe(&mesh.vertices, half, edges);
     info.plane = on_plane(&mesh.vertices, half, edges, s);
     if info.plane.is_some() {
@@ -445,6 +474,7 @@ fn take_loop(
             },
             off_declared_plane: off_plane(&mesh.vertices, half, edges, s),
             place: String::new(),
+            piece_m2: (part < PIECE_SHARE * total).then_some(part),
         }))),
     }
 }
