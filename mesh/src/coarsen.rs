@@ -104,6 +104,10 @@ pub struct CoarsenReport {
     pub first_refusal: Option<String>,
     /// The largest panel count tried.
     pub largest_try: usize,
+    /// Separate parts of the input that came out with no panels (smaller
+    /// than the panels: a scan's debris, a tiny badge), set by
+    /// `prepare`.
+    pub parts_lost: usize,
 }
 
 /// What smoothing the input's folds did before the simplifier ran.
@@ -172,6 +176,7 @@ pub fn coarsen_with_params(
         kept_input: false,
         first_refusal: None,
         largest_try: 0,
+        parts_lost: 0,
     };
     if mesh.len() <= p.target_panels {
         return (mesh.clone(), report);

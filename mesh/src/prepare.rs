@@ -325,6 +325,31 @@ fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Opti
     ))
 }
 
+/// The warning of a coarsening that left `lost` separate parts of the
+/// input with no panels: they are not in the body at all (`thin` names
+/// the thinnest part, the likeliest of them).
+fn lost_parts_warning(lost: usize, thin: &[crate::thin::PartSize]) -> String {
+    let (what, verb) = if lost == 1 {
+        ("1 separate part", "is")
+    } else {
+        (&*format!("{lost} separate parts"), "are")
+    };
+    let look = thin.first().map_or(String::new(), |p| {
+        let [x, y, z] = p.centre;
+        format!(
+            " (the STL's thinnest part, {:.0} mm, near x {x:.2}, y {y:.2}, z {z:.2} m, is the one to \
+             look at first)",
+            1000.0 * p.thickness
+        )
+    });
+    format!(
+        "{what} of the STL got no panels and {verb} left out of the body, smaller than the panels{look}: \
+         scanner debris or a stray fragment is best deleted in the modeller; a part of the car needs \
+         more panels (geometry.panels, --panels) to be in the results. The coarsening's largest \
+         deviation from the input may lie there"
+    )
+}
+
 /// What the STL reader did beyond reading one plain file: several parts
 /// read as one body, a facet count that fell short.
 fn read_notes(r: &StlReport) -> Vec<String> {
@@ -728,8 +753,18 @@ impl Repaired {
                     self.mesh.len()
                 )
             });
-            let (m, r) = coarsen_with_params(&self.mesh, &mirrors, &cp);
+            let (m, mut r) = coarsen_with_params(&self.mesh, &mirrors, &cp);
             refuse_failed_coarsening(&r)?;
+            // Parts smaller than the panels can vanish whole (a review's
+            // 24 mm blob over a scan's roof got no panel and no word,
+            // its thin-part warning saying the flow round it was in).
+            let parts = |m: &TriMesh| {
+                let mut ids = crate::crossing::surfaces(m);
+                ids.sort_unstable();
+                ids.dedup();
+                ids.len()
+            };
+            r.parts_lost = parts(&self.mesh).saturating_sub(parts(&m));
             (m, Some(r))
         } else {
             (self.mesh.clone(), None)
@@ -828,7 +863,10 @@ fn panel_and_report(
                 c.fallback.as_deref().unwrap_or("no try passed the checks")
             ));
         }
-        if let Some(w) = thin_part_warning(&thin, &panels) {
+        let lost = coarsen.as_ref().map_or(0, |c| c.parts_lost);
+        if lost > 0 {
+            q.add_warning(lost_parts_warning(lost, &thin));
+        } else if let Some(w) = thin_part_warning(&thin, &panels) {
             q.add_warning(w);
         }
         if let Some((n, area)) = caps {
@@ -1514,6 +1552,7 @@ mod tests {
             kept_input: true,
             first_refusal: Some("an edge is shared by 4 panels at (-4.400, 0.008, 0.402) m".into()),
             largest_try: 28_000,
+            parts_lost: 0,
         }
     }
 

@@ -485,3 +485,42 @@ fn a_half_model_mirrored_whole_is_the_whole_body() {
     }
     assert_eq!(sides[0], sides[1]);
 }
+
+/// A small closed fragment beside a body (a scan's blob over the roof)
+/// that the coarsening leaves with no panels is warned about as left out
+/// of the body, not as a thin part whose flow is in the results; the
+/// coarsening reports it lost.
+#[test]
+fn a_fragment_left_with_no_panels_is_warned_about() {
+    let body = generate::latlong_sphere(1.0, 40, 80);
+    let blob = generate::icosphere(0.004, 1);
+    let blob = TriMesh::new(
+        blob.vertices
+            .iter()
+            .map(|p| Point::new(p.x, p.y, p.z + 1.05))
+            .collect(),
+        blob.triangles.clone(),
+    )
+    .unwrap();
+    let (panels, report) = tuft_mesh::prepare::prepare_mesh(
+        body.joined(&blob),
+        None,
+        &PrepareParams {
+            units: LengthUnit::M,
+            target_panels: Some(400),
+            ..PrepareParams::default()
+        },
+    )
+    .unwrap();
+    let lost = report.coarsen.as_ref().map(|c| c.parts_lost);
+    let near_blob = panels.panels.iter().any(|p| p.centroid.z > 1.02);
+    assert!(!near_blob, "the blob kept panels");
+    assert_eq!(lost, Some(1));
+    let w = &report.quality.warnings;
+    assert!(
+        w.iter()
+            .any(|w| w.starts_with("1 separate part of the STL got no panels")),
+        "{w:?}"
+    );
+    assert!(!w.iter().any(|w| w.contains("thinner than two")), "{w:?}");
+}
