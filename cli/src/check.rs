@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context;
-use tuft_mesh::prepare::{PrepareParams, PrepareReport, prepare};
+use tuft_mesh::prepare::{PrepareParams, PrepareReport};
 use tuft_mesh::repair::LoopInfo;
 use tuft_mesh::{LengthUnit, Mirrors};
 
@@ -150,7 +150,27 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     let mut progress = crate::progress::Progress::new(args.quiet, "tuft check");
     let phase = progress.begin("geometry", &what);
     let stages = progress.stages(&phase, &what);
-    let prepared = prepare(&file, &params);
+    // A size no unit makes a car of is refused as soon as the file is
+    // read, before the repair and the coarsening, as `tuft run` does (a
+    // review's scan in millimetres checked with --units m was refused for
+    // a 9 km hole, and with --half told of its unit after 66 s).
+    let key = if is_case { "geometry.units" } else { "--units" };
+    let read = tuft_mesh::import::read_stl(&file);
+    if let Ok((mesh, _)) = &read
+        && let Some((lo, hi)) = mesh.bounds()
+        && let Err(why) = crate::geometry::size_verdict(
+            (hi - lo).max() * params.units.to_metres(),
+            Some(params.units),
+            key,
+        )
+    {
+        drop(stages);
+        phase.clear();
+        anyhow::bail!("{label}: {why}");
+    }
+    let prepared = read.and_then(|(mesh, report)| {
+        tuft_mesh::prepare::repair_body(mesh, Some(report), &params)?.panels(params.target_panels)
+    });
     drop(stages);
     if prepared.is_ok() {
         progress.end(phase, "");
@@ -175,7 +195,6 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
         .with_context(|| label.clone())?;
     let [lo, hi] = report.bounds;
     let size = (0..3).map(|k| hi[k] - lo[k]).fold(0.0, f64::max);
-    let key = if is_case { "geometry.units" } else { "--units" };
     let note = crate::geometry::size_verdict(size, Some(params.units), key)
         .map_err(|why| anyhow::anyhow!("{label}: {why}"))?;
     crate::geometry::add_size_note(&mut report.quality, note);

@@ -130,6 +130,25 @@ fn a_car_read_in_the_wrong_unit_is_doubtful() {
     // Read in centimetres: usable.
     let out = check(&[path.to_str().unwrap(), "--units", "cm", "-q"]);
     assert_eq!(out.status.code(), Some(0));
+    // An open body read in metres is refused for its size as soon as it
+    // is read, not for a hole kilometres round (a review's scan in
+    // millimetres read as metres had been).
+    let open = dir.path().join("open.stl");
+    let cut = tuft_mesh::TriMesh::new(
+        generate::icosphere(2200.0, 3).vertices,
+        generate::icosphere(2200.0, 3).triangles[1..].to_vec(),
+    )
+    .unwrap();
+    write_binary_stl(&open, &cut, 1.0);
+    let out = check(&[open.to_str().unwrap(), "--units", "m", "-q"]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains("the body is 4400 m across at its largest")
+            && stderr.contains("in millimetres it would be 4.4 m")
+            && !stderr.contains("hole"),
+        "{stderr}"
+    );
 }
 
 #[test]
