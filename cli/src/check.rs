@@ -155,6 +155,7 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
     // review's scan in millimetres checked with --units m was refused for
     // a 9 km hole, and with --half told of its unit after 66 s).
     let key = if is_case { "geometry.units" } else { "--units" };
+    tuft_mesh::stage::starting(|| format!("reading {}", file.display()));
     let read = tuft_mesh::import::read_stl(&file);
     if let Ok((mesh, _)) = &read
         && let Some((lo, hi)) = mesh.bounds()

@@ -331,7 +331,8 @@ fn the_geometry_phase_names_its_stages() {
     assert!(
         at("reading coupe.stl ...") < at("repairing ")
             && at("repairing ") < at("coarsening ")
-            && at("coarsening ") < at("checking ")
+            && at("coarsening ") < at("  simplifying to 600 panels ...")
+            && at("  simplifying to 600 panels ...") < at("checking ")
             && at("checking ") < o.stderr.find("stages: geometry done in").unwrap_or(0),
         "{}",
         o.stderr

@@ -188,6 +188,9 @@ pub fn coarsen_with_params(
     // measured against the input.
     // The input's own crossings, searched once: `untangle` needs them, and
     // so does the refusal of a try that crosses where the input did not.
+    // Said as they start (a review's 2-million-facet scan sat on one
+    // "coarsening" line for 56 s).
+    crate::stage::starting(|| format!("  looking for folds among {} facets", mesh.len()));
     let input_crossing = same_surface_crossings(mesh);
     let untangled = untangle(mesh, &border_ok, &input_crossing);
     let mut input_crosses = untangled.is_none().then_some(!input_crossing.is_empty());
@@ -209,6 +212,16 @@ pub fn coarsen_with_params(
             continue;
         }
         report.largest_try = target;
+        crate::stage::starting(|| {
+            format!(
+                "  simplifying to {target} panels{}",
+                if k == 0 {
+                    String::new()
+                } else {
+                    format!(" (try {}, the last refused)", k + 1)
+                }
+            )
+        });
         let mut coarse = if staged {
             simplify_staged(base, &locks, &border_ok, target, regularize)
         } else {
@@ -287,6 +300,7 @@ pub fn coarsen_with_params(
     });
     report.fallback = (!notes.is_empty()).then(|| notes.join("; "));
     report.achieved_panels = out.len();
+    crate::stage::starting(|| "  measuring the panels' distance from the input".to_owned());
     measure_deviation(mesh, &out, p.deviation_samples, &mut report);
     (out, report)
 }
