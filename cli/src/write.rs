@@ -663,6 +663,16 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         caution: CAUTION.into(),
     };
     s.lift_kg.noise = s.lift_noise_kg();
+    // Folds of the input that the smoothing before the coarsening left,
+    // as `tuft check` says them (a review's run said nothing of the 48
+    // facets its check had called unsure near the nose).
+    s.notes.extend(
+        geo.report
+            .coarsen
+            .as_ref()
+            .and_then(|c| c.untangled.as_ref())
+            .and_then(folds_note),
+    );
     s.notes.extend(s.coarse_note());
     s.notes.extend(c.region_notes.iter().cloned());
     if case.file.flow.yaw != 0.0 {
@@ -798,6 +808,23 @@ fn clearance_words(s: &Summary) -> String {
         (Some(_), Some(c)) => format!("{:.0}", 1000.0 * c),
         (Some(_), None) => "not recorded".to_owned(),
     }
+}
+
+/// The note on facets of the STL still folded after the smoothing before
+/// the coarsening, where the first lies; `None` when none is.
+fn folds_note(u: &tuft_mesh::coarsen::UntangleReport) -> Option<String> {
+    (u.folded_after > 0).then(|| {
+        let at = u.still_folded_at.map_or(String::new(), |[x, y, z]| {
+            format!(", the first near x {x:.3}, y {y:.3}, z {z:.3} m")
+        });
+        format!(
+            "{} of the STL {} still folded after the smoothing before the coarsening{at}: the panels \
+             there are unsure (many facets meeting at one point, as at a scan's pole, fold so; tuft \
+             check says more)",
+            output::plural(u.folded_after, "facet", "facets"),
+            if u.folded_after == 1 { "is" } else { "are" }
+        )
+    })
 }
 
 /// The separated share of the surface under which a body is streamlined
@@ -1577,6 +1604,31 @@ mod tests {
         assert_eq!(super::clearance_words(&s), "100");
         s.mesh.ground_z = Some(0.12);
         assert_eq!(super::clearance_words(&s), "stands on the ground");
+    }
+
+    /// Facets still folded after the smoothing are noted with where the
+    /// first lies; none, no note.
+    #[test]
+    fn facets_still_folded_are_noted_where_they_lie() {
+        let mut u = tuft_mesh::coarsen::UntangleReport {
+            folded_before: 91,
+            folded_after: 48,
+            first: [0.0; 3],
+            still_folded_at: Some([0.007, 0.2, 0.468]),
+            vertices_moved: 2818,
+            largest_move: 0.038,
+            largest_offset: 0.001,
+        };
+        assert_eq!(
+            folds_note(&u).as_deref(),
+            Some(
+                "48 facets of the STL are still folded after the smoothing before the coarsening, the \
+                 first near x 0.007, y 0.200, z 0.468 m: the panels there are unsure (many facets \
+                 meeting at one point, as at a scan's pole, fold so; tuft check says more)"
+            )
+        );
+        u.folded_after = 0;
+        assert_eq!(folds_note(&u), None);
     }
 
     /// A loop run's drag leans low on a body that separates, and high on
