@@ -1318,7 +1318,11 @@ fn report(
                 "Each region's verdict reads its separated share: attached under {attached:.0} %, separated \
                  from {separated:.0} %, partly separated between (our lines; on the slant-back research body \
                  they give the published regimes at 25 and 35 degrees). Mean risk is the area mean of how \
-                 close the boundary layer came to separating, 0 far from it and 1 at the criterion."
+                 close the boundary layer came to separating, 0 far from it and 1 at the criterion. A \
+                 verdict holds at this run's speed: firm means it stands over the panel counts and the \
+                 model's settings, not over speeds (the shipped coupe STL's boot deck read 32 % \
+                 separated, firm, at 60 km/h and 0 % at 200 km/h, as its layer turns turbulent sooner; a \
+                 review, 2026-12-05)."
             ),
         });
     }
