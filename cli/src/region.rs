@@ -574,10 +574,51 @@ pub fn on_body(regions: &[RegionSection], mesh: &PanelMesh) -> (Vec<RegionSectio
                 r.name
             ));
         } else {
+            notes.extend(past_the_body(r, mesh));
             kept.push(r.clone());
         }
     }
     (kept, notes)
+}
+
+/// How far past the body a region's box may reach, along any axis, as a
+/// share of the body's length, before it is noted (our choice: a box
+/// drawn a little past the tail to be sure of the edge is common and
+/// says nothing).
+pub const PAST_THE_BODY_SHARE: f64 = 0.05;
+
+/// A note when `r`'s box reaches past the body by more than
+/// [`PAST_THE_BODY_SHARE`] of its length: what it takes in is then less
+/// than it seems (a review's diffuser box, x 4.4 to 5.2 on a tail at 4.7,
+/// read the flat floor's last 0.3 m "partly separated (31 %)" with no
+/// word that most of the box held nothing).
+fn past_the_body(r: &RegionSection, mesh: &PanelMesh) -> Option<String> {
+    let (lo, hi) = mesh.bounds();
+    let lo_y = if mesh.mirrors.symmetry { -hi.y } else { lo.y };
+    let length = hi.x - lo.x;
+    let ranges = [
+        ("x", r.x, lo.x, hi.x),
+        ("y", r.y, lo_y, hi.y),
+        ("z", r.z, lo.z, hi.z),
+    ];
+    let past: Vec<String> = ranges
+        .iter()
+        .filter_map(|&(k, range, a, b)| {
+            let [from, to] = range?;
+            let beyond = (a - from).max(0.0) + (to - b).max(0.0);
+            (beyond > PAST_THE_BODY_SHARE * length).then(|| {
+                format!("{k} {from:.3} to {to:.3} m against the body's {a:.3} to {b:.3} m")
+            })
+        })
+        .collect();
+    (!past.is_empty()).then(|| {
+        format!(
+            "region \"{}\" reaches well past the body ({}): its share is of the panels the box holds, \
+             which may be less of the part than the box suggests",
+            r.name,
+            past.join("; ")
+        )
+    })
 }
 
 /// Each region's panels as the pictures draw them: the real panels, then
@@ -1126,6 +1167,31 @@ mod tests {
         }
         let good = "[[region]]\nname = \"rear window\"\nx = [3.0, 3.8]\nfacing = \"up\"\n";
         assert!(check(&region(good)).is_ok());
+    }
+
+    /// A box reaching well past the body is noted with its range and the
+    /// body's; one a little past it is not.
+    #[test]
+    fn a_box_well_past_the_body_is_noted() {
+        use tuft_mesh::{Mirrors, generate::icosphere};
+        let mesh =
+            PanelMesh::new(icosphere(1.0, 3), Mirrors::none()).unwrap_or_else(|e| panic!("{e}"));
+        let (_, notes) = on_body(
+            &region("[[region]]\nname = \"tail\"\nx = [0.5, 1.6]\nfacing = \"rear\"\n"),
+            &mesh,
+        );
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(
+            notes[0].starts_with(
+                "region \"tail\" reaches well past the body (x 0.500 to 1.600 m against"
+            ) && notes[0].contains("to 1.000 m)"),
+            "{notes:?}"
+        );
+        let (_, notes) = on_body(
+            &region("[[region]]\nname = \"tail\"\nx = [0.5, 1.05]\nfacing = \"rear\"\n"),
+            &mesh,
+        );
+        assert!(notes.is_empty(), "{notes:?}");
     }
 
     /// A region typed in millimetres is told the metres it means, when
