@@ -456,10 +456,16 @@ fn demo_writes_two_reports() {
             .split(|c: char| !(c.is_ascii_digit() || c == '-' || c == '+' || c == '.'))
             .filter_map(|w| w.parse().ok())
             .collect();
-        // 40, 144, then total, front, rear, underbody, its front, rear, rest.
-        let [total, front, rear, under, uf, ur, rest] = numbers[2..9] else {
+        // 40, 144, then total, front, rear, how far like runs scatter,
+        // underbody, its front, rear, rest.
+        let [total, front, rear, noise, under, uf, ur, rest] = numbers[2..10] else {
             panic!("{line}")
         };
+        assert!(
+            line.contains(&format!("; like runs scatter by about {noise:.1} kg)"))
+                && noise > 0.0,
+            "{line}"
+        );
         assert_eq!(total, front + rear, "{line}");
         assert_eq!(under, uf + ur, "{line}");
         assert_eq!(total, under + rest, "{line}");
