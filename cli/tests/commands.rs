@@ -462,8 +462,7 @@ fn demo_writes_two_reports() {
             panic!("{line}")
         };
         assert!(
-            line.contains(&format!("; like runs scatter by about {noise:.1} kg)"))
-                && noise > 0.0,
+            line.contains(&format!("; like runs scatter by about {noise:.1} kg)")) && noise > 0.0,
             "{line}"
         );
         assert_eq!(total, front + rear, "{line}");
