@@ -546,39 +546,65 @@ fn wind_words(r: &Row) -> String {
     )
 }
 
-/// Two variants in the same wind condition (speed and yaw).
+/// Two variants in the same wind condition (speed and yaw), and at the
+/// same panel count where the sweep varies it: a shape at two counts is a
+/// convergence check, not two variants to rank (a review's tails swept at
+/// 1,600 and 3,200 panels had a teardrop named the rear axle's winner
+/// over itself).
 fn same_wind(a: &Row, b: &Row) -> bool {
-    a.speed.total_cmp(&b.speed).is_eq() && a.yaw_deg.total_cmp(&b.yaw_deg).is_eq()
+    a.speed.total_cmp(&b.speed).is_eq()
+        && a.yaw_deg.total_cmp(&b.yaw_deg).is_eq()
+        && swept_panels(a).total_cmp(&swept_panels(b)).is_eq()
+}
+
+/// The panel count a sweep set for this variant (`geometry.panels` among
+/// its settings), 0 where the sweep does not vary it.
+fn swept_panels(r: &Row) -> f64 {
+    r.settings
+        .get("geometry.panels")
+        .and_then(serde_json::Value::as_f64)
+        .unwrap_or(0.0)
 }
 
 /// The ranked variants cut into runs of one wind condition each, with a
 /// label ("yaw 5°", "30 m/s", "30 m/s, yaw 5°") naming what differs
 /// across the sweep; one unlabelled group when nothing does.
 fn wind_groups(c: &Collected) -> Vec<(String, &[Row])> {
-    let Some(first) = c.variants.first() else {
-        return Vec::new();
-    };
-    let speeds = c
-        .variants
-        .iter()
-        .any(|r| r.speed.total_cmp(&first.speed).is_ne());
-    let yaws = c
-        .variants
-        .iter()
-        .any(|r| r.yaw_deg.total_cmp(&first.yaw_deg).is_ne());
+    let flags = condition_flags(c);
     c.variants
         .chunk_by(same_wind)
-        .map(|rows| {
-            let r = &rows[0];
-            let label = match (speeds, yaws) {
-                (true, true) => wind_words(r),
-                (true, false) => crate::output::speed_words(r.speed),
-                (false, true) => format!("yaw {}°", r.yaw_deg),
-                (false, false) => String::new(),
-            };
-            (label, rows)
-        })
+        .map(|rows| (condition_words(&rows[0], flags), rows))
         .collect()
+}
+
+/// Whether the speed, the yaw and the swept panel count differ across the
+/// sweep.
+fn condition_flags(c: &Collected) -> (bool, bool, bool) {
+    let Some(first) = c.variants.first() else {
+        return (false, false, false);
+    };
+    let differs = |f: fn(&Row) -> f64| c.variants.iter().any(|r| f(r).total_cmp(&f(first)).is_ne());
+    (
+        differs(|r| r.speed),
+        differs(|r| r.yaw_deg),
+        differs(swept_panels),
+    )
+}
+
+/// A variant's condition in words, naming what differs across the sweep
+/// (`flags`, [`condition_flags`]): "30 m/s, yaw 5°", "3200 panels".
+fn condition_words(r: &Row, (speeds, yaws, counts): (bool, bool, bool)) -> String {
+    let mut parts = Vec::new();
+    if speeds {
+        parts.push(crate::output::speed_words(r.speed));
+    }
+    if yaws {
+        parts.push(format!("yaw {}°", r.yaw_deg));
+    }
+    if counts {
+        parts.push(format!("{} panels", swept_panels(r)));
+    }
+    parts.join(", ")
 }
 
 /// Why no winner is named among `rows` (the sweep, or one wind
@@ -1194,6 +1220,7 @@ fn rank(mut rows: Vec<(usize, Row)>) -> Vec<Row> {
         a.speed
             .total_cmp(&b.speed)
             .then(a.yaw_deg.total_cmp(&b.yaw_deg))
+            .then(swept_panels(a).total_cmp(&swept_panels(b)))
             .then(ka.total_cmp(kb))
             .then(i.cmp(j))
     });
@@ -2251,7 +2278,13 @@ fn x_of(categories: &[String], key: &str, v: &serde_json::Value) -> Option<f64> 
 /// speed and yaw" when they differ.
 fn speed_of_plot(c: &Collected) -> String {
     match c.variants.first() {
-        Some(r) if c.variants.iter().all(|v| same_wind(v, r)) => wind_words(r),
+        Some(r)
+            if c.variants.iter().all(|v| {
+                v.speed.total_cmp(&r.speed).is_eq() && v.yaw_deg.total_cmp(&r.yaw_deg).is_eq()
+            }) =>
+        {
+            wind_words(r)
+        }
         _ => "each variant's speed and yaw".into(),
     }
 }
@@ -3135,8 +3168,13 @@ fn noise_words(r: &Row) -> String {
 
 fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     s.push_str("<h2>Ranking</h2>\n<table>\n<tr>");
+    let flags = condition_flags(c);
     if by_wind {
-        s.push_str("<th>wind</th>");
+        s.push_str(if flags.2 {
+            "<th>condition</th>"
+        } else {
+            "<th>wind</th>"
+        });
     }
     s.push_str("<th>#</th><th>variant</th>");
     for k in &c.keys {
@@ -3173,7 +3211,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
     for r in &c.variants {
         s.push_str("<tr>");
         if by_wind {
-            let _ = write!(s, "<td>{}</td>", wind_words(r));
+            let _ = write!(s, "<td>{}</td>", condition_words(r, flags));
         }
         let _ = write!(
             s,
@@ -4087,6 +4125,45 @@ mod tests {
             !names.iter().any(|n| n.ends_with("against ground.z")),
             "{names:?}"
         );
+    }
+
+    /// A sweep that varies the panel count ranks within each count, as
+    /// within each wind condition: one shape at two counts is not two
+    /// variants to rank.
+    #[test]
+    fn each_swept_panel_count_is_ranked_on_its_own() {
+        let c = sweep(&[10.0, 10.0, 10.0, 10.0]);
+        let rows: Vec<(usize, Row)> = c
+            .variants
+            .into_iter()
+            .enumerate()
+            .map(|(k, mut r)| {
+                r.settings.insert(
+                    "geometry.panels".into(),
+                    serde_json::json!(if k % 2 == 0 { 1600 } else { 3200 }),
+                );
+                r.cd = 0.1 + 0.001 * k as f64;
+                (k, r)
+            })
+            .collect();
+        let mut c = sweep(&[10.0]);
+        c.variants = rank(rows);
+        let ranks: Vec<(String, usize)> = c
+            .variants
+            .iter()
+            .map(|r| (r.name.clone(), r.rank))
+            .collect();
+        assert_eq!(
+            ranks,
+            [
+                ("v0".into(), 1),
+                ("v2".into(), 2),
+                ("v1".into(), 1),
+                ("v3".into(), 2)
+            ]
+        );
+        let labels: Vec<String> = wind_groups(&c).into_iter().map(|(l, _)| l).collect();
+        assert_eq!(labels, ["1600 panels", "3200 panels"]);
     }
 
     /// A key given one value gets no plots of its own; the key that

@@ -1478,9 +1478,11 @@ fn dead_change_verdict(surface: &SurfaceDeltas, drag: &mut DragVerdict) {
         && drag.leaning.is_empty()
     {
         drag.text = format!(
-            "not assessable in this model: {:.0} % of the surface that changed lies in separated flow, \
-             which the model holds at one pressure whatever the change does there, so its drag and \
-             lift barely move ({}); judge the change with validated CFD or a tunnel",
+            "not assessable in this model: {:.0} % of the surface that changed (measured on B's \
+             panels: surface A has and B lacks is not counted) lies in separated flow, which the \
+             model holds at one pressure whatever the change does there, so what the change does to \
+             the flow there is not in these numbers ({}); judge the change with validated CFD or a \
+             tunnel",
             100.0 * share,
             drag.text
         );
