@@ -656,3 +656,35 @@ fn slant_regions_match_the_published_regimes() {
         );
     }
 }
+
+/// The slant-back body's square base (its base is most of the frontal
+/// area) is noted as held at the model's one dead-water pressure, with
+/// the drag the measured range of square-back base pressures (-0.15 to
+/// -0.35, from memory) would add; the sphere, with no base, is not.
+#[test]
+fn a_bluff_base_is_noted_with_the_drag_its_pressure_range_would_add() {
+    let r = run("ahmed-25");
+    let notes: Vec<&str> = r.summary["notes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|n| n.as_str())
+        .filter(|n| n.starts_with("the base's dead water faces the stream over"))
+        .collect();
+    assert_eq!(notes.len(), 1, "{}", r.summary["notes"]);
+    assert!(
+        notes[0].contains("square-back bodies near the ground measure about -0.15 to -0.35"),
+        "{}",
+        notes[0]
+    );
+    let s = &run("sphere").summary;
+    assert!(
+        !s["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|n| n.as_str().unwrap().starts_with("the base's dead water")),
+        "{}",
+        s["notes"]
+    );
+}
