@@ -651,6 +651,7 @@ pub fn comparison_named(
     // diffuser's stall moves the base pressure).
     let separation: Vec<String> = [
         sides_note(&a.summary, &b.summary),
+        corner_note(&a.summary, &b.summary),
         separation_note(&a.summary, &b.summary, &surface),
         underbody_note(&a.summary, &b.summary, &surface),
         dead_water_change_note(&surface),
@@ -1652,6 +1653,33 @@ fn sides_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Optio
     ))
 }
 
+/// A note when one run of the two carries the stagnation in the corner
+/// between a tapering tail and its base's dead water
+/// ([`crate::pipeline::base_corner_warning`]): it cannot cancel between
+/// them, and it reaches further up the taper than the warning's panels
+/// (a review's Kamm tail read Cp +0.14 to +0.51 over the last 0.24 m of
+/// its taper, where the uncut tail read about 0, and compare gave -43.7
+/// counts on the unchanged surface), so the drag difference rests
+/// partly on it and no drag winner is named.
+fn corner_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let carries = |s: &crate::summary::Summary| {
+        s.warnings
+            .iter()
+            .any(|w| w.contains(crate::pipeline::BASE_CORNER_WORDS))
+    };
+    let which = match (carries(a), carries(b)) {
+        (true, false) => "A",
+        (false, true) => "B",
+        _ => return None,
+    };
+    Some(format!(
+        "only {which} carries the stagnation in the corner between a tapering tail and its base's dead \
+         water (see its warning): it does not cancel between the runs and reaches further up the taper \
+         than the warning's panels, so the drag difference rests partly on it; set tails cut at the \
+         same place against each other"
+    ))
+}
+
 /// A note when B's surface lies within about a panel's edge of A's
 /// everywhere (and changed somewhere): the panels follow so small a change
 /// only in part (a review's 60 mm roof-spoiler extension on 80 mm panels
@@ -2241,8 +2269,11 @@ mod tests {
         dead_change_verdict(&surface(0.235, 0.235, 0.1), &mut v);
         assert!(
             v.text.starts_with(
-                "not assessable in this model: 100 % of the surface that changed lies in separated flow"
-            ) && v.text.contains("(no winner: the drag difference, -1.5 counts"),
+                "not assessable in this model: 100 % of the surface that changed (measured on B's \
+                 panels: surface A has and B lacks is not counted) lies in separated flow"
+            ) && v
+                .text
+                .contains("(no winner: the drag difference, -1.5 counts"),
             "{}",
             v.text
         );
@@ -2262,6 +2293,15 @@ mod tests {
             crate::pipeline::SIDES_DIFFER
         ));
         assert_eq!(sides_note(&Summary::default(), &Summary::default()), None);
+        // The base corner's stagnation in one run only.
+        let mut cornered = Summary::default();
+        cornered.warnings.push(format!(
+            "8 attached panels {} 0.77 (near x 4.213, y 0.280, z 0.244 m), ...",
+            crate::pipeline::BASE_CORNER_WORDS
+        ));
+        let note = corner_note(&Summary::default(), &cornered).unwrap_or_default();
+        assert!(note.starts_with("only B carries the stagnation"), "{note}");
+        assert_eq!(corner_note(&cornered, &cornered), None);
         let note = sides_note(&one_sided, &Summary::default()).unwrap_or_default();
         assert!(
             note.starts_with("in A the two sides separate differently"),

@@ -1439,6 +1439,10 @@ pub fn bluff_base_note(
     })
 }
 
+/// The words by which [`base_corner_warning`] is found in a summary's
+/// warnings (`compare::corner_note`).
+pub const BASE_CORNER_WORDS: &str = "beside the base's dead water read Cp up to";
+
 /// A warning for attached panels within [`BASE_CORNER_HOPS`] edge steps
 /// of a base's dead water (separated panels facing downstream, within 45
 /// degrees of the stream) at a Cp above [`BASE_CORNER_CP`]: the model's
@@ -1485,7 +1489,7 @@ pub fn base_corner_warning(
         )
     };
     Some(format!(
-        "{} beside the base's dead water read Cp up to {:.2} (near x {:.3}, y {:.3}, z {:.3} m), \
+        "{} {BASE_CORNER_WORDS} {:.2} (near x {:.3}, y {:.3}, z {:.3} m), \
          the high-pressure colours at the base's edge: this model's dead water leaves the edge straight \
          back, which a surface tapering in towards the edge meets as a concave corner, and the flow \
          computed stagnates in it; a real shear layer leaves the edge along the surface and the \
