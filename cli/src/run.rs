@@ -154,7 +154,7 @@ fn print_summary(out: &Path, s: &Summary) {
     // largest shortfall against measured drag): say so where the number
     // is read, not only in the report.
     let lean = match crate::write::drag_lean(s) {
-        Some(l) if s.separation.fraction < crate::write::STREAMLINED_SHARE => format!("; {l}"),
+        Some(l) if s.separation.fraction < crate::write::BLUFF_SHARE => format!("; {l}"),
         Some(_) => "; a low estimate: the true drag is more likely above it than below".to_owned(),
         None => String::new(),
     };
@@ -259,7 +259,8 @@ fn print_summary(out: &Path, s: &Summary) {
     }
     if let Some(n) = &s.panel_noise {
         say!(
-            "  panel noise: {} (compare and collect judge differences against it)",
+            "  panel noise: {} (compare and collect judge differences against it; it is the \
+             scatter near this count, not convergence: halving the count can move more)",
             n.words(s.axle_split_shown())
         );
     }
