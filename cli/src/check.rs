@@ -295,7 +295,7 @@ fn save_panels(
     inputs: &[Option<&Path>],
 ) -> anyhow::Result<String> {
     let same = |a: &Path| match (std::fs::canonicalize(a), std::fs::canonicalize(out)) {
-        (Ok(a), Ok(b)) => a == b,
+        (Ok(a), Ok(b)) => a == b || same_file(&a, &b),
         _ => false,
     };
     if let Some(input) = inputs.iter().flatten().find(|p| same(p)) {
@@ -303,6 +303,16 @@ fn save_panels(
             "--save-panels {}: that is the file being checked ({}); name another file for the panels",
             out.display(),
             input.display()
+        );
+    }
+    // Only a panels file an earlier check wrote is replaced (a review's
+    // `--save-panels` over another scan and over a picture had replaced
+    // both without a word).
+    if out.exists() && !tuft_mesh::export::is_panels_file(out) {
+        anyhow::bail!(
+            "--save-panels {}: the file exists and is not a panels file tuft wrote, so it is kept; name \
+             another file for the panels",
+            out.display()
         );
     }
     let mut bytes = Vec::new();
@@ -318,6 +328,19 @@ fn save_panels(
         out.display(),
         unit.name()
     ))
+}
+
+/// Whether `a` and `b` are one file under two names (a hard link).
+fn same_file(a: &Path, b: &Path) -> bool {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        if let (Ok(x), Ok(y)) = (std::fs::metadata(a), std::fs::metadata(b)) {
+            return x.dev() == y.dev() && x.ino() == y.ino();
+        }
+    }
+    let _ = (a, b);
+    false
 }
 
 /// Where the case puts the axles and its named regions on the body, and

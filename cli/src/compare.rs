@@ -390,7 +390,17 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     let a = ResultFolder::read(&args.a)?;
     let b = ResultFolder::read(&args.b)?;
     let out = args.out.clone().unwrap_or_else(|| default_out(&a, &b));
-    let staging = Staging::new(&out, args.force)?;
+    if let Ok(po) = out.canonicalize() {
+        for input in [&args.a, &args.b] {
+            anyhow::ensure!(
+                !input.canonicalize().is_ok_and(|p| po.starts_with(p)),
+                "{}: is one of the two results being compared (or lies inside it); choose another \
+                 folder with --out",
+                out.display()
+            );
+        }
+    }
+    let staging = Staging::new(&out, args.force, crate::outdir::Kind::Compare)?;
     let mesh_b = b.mesh()?;
     let mapping = map_a_onto_b(&a, &b);
     let cmp = comparison(&a, &b, &mapping);

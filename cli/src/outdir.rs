@@ -41,14 +41,15 @@ pub struct Staging {
     tmp: PathBuf,
     dest: PathBuf,
     force: bool,
+    kind: Kind,
     done: bool,
 }
 
 impl Staging {
-    /// Prepare to write `dest`. Refuses when `dest` exists and `force` is
-    /// false, and, with `force`, when `dest` is not a result folder tuft
-    /// wrote (see [`replaceable`]).
-    pub fn new(dest: &Path, force: bool) -> Result<Self> {
+    /// Prepare to write `dest`, a result folder of this `kind`. Refuses
+    /// when `dest` exists and `force` is false, and, with `force`, when
+    /// `dest` is not such a folder tuft wrote (see [`replaceable`]).
+    pub fn new(dest: &Path, force: bool, kind: Kind) -> Result<Self> {
         if dest.exists() {
             if !dest.is_dir() {
                 bail!(
@@ -62,7 +63,7 @@ impl Staging {
                     dest.display()
                 );
             }
-            replaceable(dest)?;
+            replaceable(dest, kind)?;
         }
         let parent = match dest.parent() {
             Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
@@ -90,6 +91,7 @@ impl Staging {
             tmp,
             dest: dest.to_path_buf(),
             force,
+            kind,
             done: false,
         })
     }
@@ -108,7 +110,7 @@ impl Staging {
                     self.dest.display()
                 );
             }
-            replaceable(&self.dest)?;
+            replaceable(&self.dest, self.kind)?;
             std::fs::remove_dir_all(&self.dest).with_context(|| {
                 format!("{}: cannot replace the old results", self.dest.display())
             })?;
@@ -144,19 +146,71 @@ fn remove_stale(parent: &Path, leaf: &str) {
     }
 }
 
-/// Files only a tuft result folder holds: a run's or a sweep variant's
-/// `summary.json`, a comparison's `compare.json`.
-const RESULT_MARKERS: [&str; 2] = ["summary.json", "compare.json"];
+/// The kinds of result folder, each known by the file only it holds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Kind {
+    /// A run's or a sweep variant's folder, holding `summary.json`.
+    Run,
+    /// A comparison's folder, holding `compare.json`.
+    Compare,
+}
+
+impl Kind {
+    /// The file only this kind of folder holds.
+    pub fn marker(self) -> &'static str {
+        match self {
+            Self::Run => "summary.json",
+            Self::Compare => "compare.json",
+        }
+    }
+
+    fn words(self) -> &'static str {
+        match self {
+            Self::Run => "a run's results",
+            Self::Compare => "a comparison",
+        }
+    }
+}
+
+/// The extensions of every file tuft writes into a result folder: a
+/// folder holding anything else (the case file, the STL, notes, a
+/// subfolder) holds work of the user's, which `--force` must not delete (a
+/// review's designer, starting a variant in a copy of last week's result
+/// folder, had lost the case and the STL of the run being made).
+const RESULT_EXTENSIONS: [&str; 7] = ["json", "html", "csv", "png", "vtu", "vtp", "vti"];
+
+/// Up to three entries of `dir` that tuft does not write into a result
+/// folder (hidden files, such as a file manager's, are not counted).
+fn foreign_entries(dir: &Path) -> Result<Vec<String>> {
+    let entries = std::fs::read_dir(dir)
+        .with_context(|| format!("{}: cannot read the folder", dir.display()))?;
+    let mut foreign: Vec<String> = entries
+        .flatten()
+        .filter_map(|e| {
+            let name = e.file_name().to_string_lossy().into_owned();
+            let ours = e.file_type().is_ok_and(|t| t.is_file())
+                && Path::new(&name)
+                    .extension()
+                    .is_some_and(|x| RESULT_EXTENSIONS.iter().any(|r| x.eq_ignore_ascii_case(r)));
+            (!ours && !(name.starts_with('.') && e.file_type().is_ok_and(|t| t.is_file())))
+                .then_some(name)
+        })
+        .collect();
+    foreign.sort();
+    Ok(foreign)
+}
 
 /// `--force` deletes the old folder, so it may only delete what tuft wrote:
-/// a folder holding one of [`RESULT_MARKERS`] that is neither the working
-/// folder nor one of its parents (`--out .` beside the case and the STL
-/// would otherwise delete them).
+/// a folder of this `kind` (holding its [`Kind::marker`]; a comparison
+/// never replaces a run's results, which may be one of its own two) whose
+/// every file is of a kind tuft writes ([`RESULT_EXTENSIONS`]), and which
+/// is neither the working folder nor one of its parents (`--out .` beside
+/// the case and the STL would otherwise delete them).
 ///
 /// # Errors
-/// When `dest` does not look like a result folder or holds the working
+/// When `dest` does not look like such a folder or holds the working
 /// folder.
-pub fn replaceable(dest: &Path) -> Result<()> {
+pub fn replaceable(dest: &Path, kind: Kind) -> Result<()> {
     let full = dest
         .canonicalize()
         .with_context(|| format!("{}: cannot read the folder", dest.display()))?;
@@ -167,12 +221,37 @@ pub fn replaceable(dest: &Path) -> Result<()> {
             dest.display()
         );
     }
-    if !RESULT_MARKERS.iter().any(|m| full.join(m).is_file()) {
+    if !full.join(kind.marker()).is_file() {
+        let other = [Kind::Run, Kind::Compare]
+            .into_iter()
+            .find(|k| full.join(k.marker()).is_file());
+        match other {
+            Some(o) => bail!(
+                "{}: the folder holds {} ({}), not {}, so --force will not delete it; choose another with --out",
+                dest.display(),
+                o.words(),
+                o.marker(),
+                kind.words()
+            ),
+            None => bail!(
+                "{}: the folder exists but holds no tuft results (no {}), so --force will not delete it; \
+                 choose another with --out",
+                dest.display(),
+                kind.marker()
+            ),
+        }
+    }
+    let foreign = foreign_entries(&full)?;
+    if let Some(first) = foreign.first() {
+        let more = match foreign.len() {
+            1 => String::new(),
+            n => format!(" and {} more", n - 1),
+        };
         bail!(
-            "{}: the folder exists but holds no tuft results (no {}), so --force will not delete it; \
-             choose another with --out",
+            "{}: the folder holds {first}{more}, which tuft does not write, so --force will not delete \
+             it; move {} out or choose another folder with --out",
             dest.display(),
-            RESULT_MARKERS.join(" or ")
+            if foreign.len() == 1 { "it" } else { "them" }
         );
     }
     Ok(())
@@ -235,29 +314,29 @@ mod tests {
         let root = tempfile::tempdir().unwrap();
         let dest = root.path().join("case");
         {
-            let s = Staging::new(&dest, false).unwrap();
-            std::fs::write(s.file("a.txt"), "x").unwrap();
+            let s = Staging::new(&dest, false, Kind::Run).unwrap();
+            std::fs::write(s.file("a.csv"), "x").unwrap();
         }
         assert_eq!(
             std::fs::read_dir(root.path()).unwrap().count(),
             0,
             "dropped staging cleans up"
         );
-        let s = Staging::new(&dest, false).unwrap();
-        std::fs::write(s.file("a.txt"), "1").unwrap();
+        let s = Staging::new(&dest, false, Kind::Run).unwrap();
+        std::fs::write(s.file("a.csv"), "1").unwrap();
         s.commit().unwrap();
         assert!(
-            Staging::new(&dest, false).is_err(),
+            Staging::new(&dest, false, Kind::Run).is_err(),
             "no overwrite without force"
         );
-        let err = Staging::new(&dest, true).err().unwrap();
+        let err = Staging::new(&dest, true, Kind::Run).err().unwrap();
         assert!(format!("{err}").contains("holds no tuft results"), "{err}");
-        assert_eq!(std::fs::read_to_string(dest.join("a.txt")).unwrap(), "1");
+        assert_eq!(std::fs::read_to_string(dest.join("a.csv")).unwrap(), "1");
         std::fs::write(dest.join("summary.json"), "{}").unwrap();
-        let s = Staging::new(&dest, true).unwrap();
-        std::fs::write(s.file("a.txt"), "2").unwrap();
+        let s = Staging::new(&dest, true, Kind::Run).unwrap();
+        std::fs::write(s.file("a.csv"), "2").unwrap();
         s.commit().unwrap();
-        assert_eq!(std::fs::read_to_string(dest.join("a.txt")).unwrap(), "2");
+        assert_eq!(std::fs::read_to_string(dest.join("a.csv")).unwrap(), "2");
         assert_eq!(std::fs::read_dir(root.path()).unwrap().count(), 1);
     }
 
@@ -277,7 +356,7 @@ mod tests {
         std::fs::create_dir_all(&live).unwrap();
         let other = root.path().join(".other.partial-4194304");
         std::fs::create_dir_all(&other).unwrap();
-        let s = Staging::new(&root.path().join("case"), false).unwrap();
+        let s = Staging::new(&root.path().join("case"), false, Kind::Run).unwrap();
         assert!(!stale.exists());
         assert!(live.exists(), "a live process's folder is in use");
         assert!(other.exists(), "another result's staging is not touched");
@@ -292,19 +371,62 @@ mod tests {
         let mine = root.path().join("my-scans");
         std::fs::create_dir_all(mine.join("sub")).unwrap();
         std::fs::write(mine.join("sub/scan-v3.stl"), "solid").unwrap();
-        assert!(Staging::new(&mine, true).is_err());
+        assert!(Staging::new(&mine, true, Kind::Run).is_err());
         assert!(
             mine.join("sub/scan-v3.stl").is_file(),
             "the user's file stays"
         );
         let file = root.path().join("afile");
         std::fs::write(&file, "x").unwrap();
-        let err = Staging::new(&file, true).err().unwrap();
+        let err = Staging::new(&file, true, Kind::Run).err().unwrap();
         assert!(format!("{err}").contains("a file of that name"), "{err}");
         // The working folder (cargo runs tests in the crate's folder) and
         // its parents are never replaced, even holding a summary.
         let here = std::env::current_dir().unwrap();
-        assert!(replaceable(&here).is_err());
-        assert!(replaceable(here.parent().unwrap()).is_err());
+        assert!(replaceable(&here, Kind::Run).is_err());
+        assert!(replaceable(here.parent().unwrap(), Kind::Run).is_err());
+    }
+
+    /// A result folder holding the user's files (a case and an STL copied
+    /// into last week's results) is not replaced, and a comparison never
+    /// replaces a run's results (which may be one of the two compared), nor
+    /// a run a comparison.
+    #[test]
+    fn force_keeps_the_users_files_and_the_other_kind() {
+        let root = tempfile::tempdir().unwrap();
+        let dest = root.path().join("week-49");
+        std::fs::create_dir_all(&dest).unwrap();
+        for f in ["summary.json", "report.html", "pressure.png", "surface.vtu"] {
+            std::fs::write(dest.join(f), "x").unwrap();
+        }
+        assert!(replaceable(&dest, Kind::Run).is_ok());
+        let err = replaceable(&dest, Kind::Compare).err().unwrap();
+        assert!(format!("{err}").contains("holds a run's results"), "{err}");
+        std::fs::write(dest.join("base.toml"), "x").unwrap();
+        std::fs::write(dest.join("coupe.stl"), "x").unwrap();
+        let err = format!("{}", Staging::new(&dest, true, Kind::Run).err().unwrap());
+        assert!(
+            err.contains("holds base.toml and 1 more, which tuft does not write"),
+            "{err}"
+        );
+        assert!(dest.join("coupe.stl").is_file() && dest.join("summary.json").is_file());
+        std::fs::remove_file(dest.join("base.toml")).unwrap();
+        std::fs::remove_file(dest.join("coupe.stl")).unwrap();
+        std::fs::create_dir(dest.join("old")).unwrap();
+        assert!(
+            replaceable(&dest, Kind::Run).is_err(),
+            "a subfolder is the user's"
+        );
+        std::fs::remove_dir(dest.join("old")).unwrap();
+        std::fs::write(dest.join(".DS_Store"), "x").unwrap();
+        assert!(
+            replaceable(&dest, Kind::Run).is_ok(),
+            "hidden files do not count"
+        );
+        let cmp = root.path().join("a-vs-b");
+        std::fs::create_dir_all(&cmp).unwrap();
+        std::fs::write(cmp.join("compare.json"), "x").unwrap();
+        assert!(replaceable(&cmp, Kind::Compare).is_ok());
+        assert!(replaceable(&cmp, Kind::Run).is_err());
     }
 }

@@ -105,7 +105,7 @@ fn default_out(case_path: &Path, name: &str) -> PathBuf {
 /// whole run succeeds.
 pub fn run_case(case: &Case, out: &Path, options: &RunOptions) -> Result<Summary> {
     let memory_limit = options.memory_limit_bytes()?;
-    let staging = Staging::new(out, options.force)?;
+    let staging = Staging::new(out, options.force, crate::outdir::Kind::Run)?;
     let mut progress = Progress::new(options.quiet, &case.name);
     let what = "reading and preparing the geometry";
     let phase = progress.begin("geometry", what);

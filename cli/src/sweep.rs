@@ -98,10 +98,52 @@ pub fn out_dir(args_out: Option<&Path>, plan: &Plan) -> PathBuf {
     )
 }
 
+/// A sweep writes into `root` beside what an earlier start of it left (a
+/// rerun keeps the variants finished), so `root` must be new, empty or a
+/// sweep's folder (holding [`PLAN_FILE`]): a review's sweep had mixed its
+/// variants into a folder of the user's notes and into a single run's
+/// results. Hidden entries (another shard's plan being written), the
+/// scheduler's scripts and the failure records do not count.
+fn sweep_folder(root: &Path) -> Result<()> {
+    let Ok(entries) = std::fs::read_dir(root) else {
+        return Ok(());
+    };
+    if root.join(PLAN_FILE).is_file() {
+        return Ok(());
+    }
+    let mut names: Vec<String> = entries
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| !n.starts_with('.') && n != crate::slurm::SCRIPTS_DIR && n != FAILURES_DIR)
+        .collect();
+    names.sort();
+    if let Some(first) = names.first() {
+        let what = if names
+            .iter()
+            .any(|n| n == "summary.json" || n == "compare.json")
+        {
+            "holds a single run's or a comparison's results"
+        } else {
+            "holds other files"
+        };
+        anyhow::bail!(
+            "{}: the folder {what} ({first}{}) and no sweep ({PLAN_FILE}), so the sweep will not write \
+             into it; choose another with --out",
+            root.display(),
+            match names.len() {
+                1 => String::new(),
+                n => format!(" and {} more", n - 1),
+            }
+        );
+    }
+    Ok(())
+}
+
 /// `tuft sweep`.
 pub fn run(args: &SweepArgs) -> Result<ExitCode> {
     let plan = Plan::load(&args.sweep)?;
     let root = out_dir(args.out.as_deref(), &plan);
+    sweep_folder(&root)?;
     if args.slurm {
         if args.shard.is_some() {
             anyhow::bail!("--slurm and --shard do not go together: the job array runs the shards");
@@ -488,7 +530,7 @@ fn write_plan(root: &Path, plan: &Plan) -> Result<()> {
 
 #[cfg(test)]
 mod tests {
-    use super::{FAILURES_DIR, failure_reason, record_failure};
+    use super::{FAILURES_DIR, PLAN_FILE, failure_reason, record_failure, sweep_folder};
 
     /// A failed variant's reason is kept until the variant finishes; the
     /// folder goes with the last reason.
@@ -508,5 +550,26 @@ mod tests {
         assert!(root.join(FAILURES_DIR).is_dir(), "v6's reason stays");
         record_failure(root, "v6", None);
         assert!(!root.join(FAILURES_DIR).exists());
+    }
+
+    /// A sweep writes into a new, empty or sweep folder only (its
+    /// scheduler scripts and hidden files do not count), never into a
+    /// user's folder or a single run's results.
+    #[test]
+    fn a_sweep_writes_only_into_its_own_folder() {
+        let dir = tempfile::tempdir().unwrap();
+        let root = dir.path().join("tails");
+        assert!(sweep_folder(&root).is_ok(), "a new folder");
+        std::fs::create_dir_all(root.join("slurm")).unwrap();
+        std::fs::write(root.join(".sweep-plan.json.7"), "").unwrap();
+        assert!(sweep_folder(&root).is_ok(), "scripts written, no plan yet");
+        std::fs::write(root.join("notes.txt"), "").unwrap();
+        let err = format!("{}", sweep_folder(&root).unwrap_err());
+        assert!(err.contains("holds other files (notes.txt)"), "{err}");
+        std::fs::write(root.join("summary.json"), "").unwrap();
+        let err = format!("{}", sweep_folder(&root).unwrap_err());
+        assert!(err.contains("a single run's or a comparison's"), "{err}");
+        std::fs::write(root.join(PLAN_FILE), "").unwrap();
+        assert!(sweep_folder(&root).is_ok(), "a sweep's folder resumes");
     }
 }

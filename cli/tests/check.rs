@@ -430,6 +430,40 @@ fn saved_panels_lie_over_the_file_and_never_replace_it() {
         "{stderr}"
     );
     assert_eq!(std::fs::read(&path).unwrap(), before);
+    // Nor under another name (a hard link), nor over another file that is
+    // not a panels file (another scan, a picture); an earlier panels file
+    // is replaced.
+    let other = dir.path().join("scan-v2.stl");
+    std::fs::hard_link(&path, &other).unwrap();
+    let picture = dir.path().join("front.png");
+    std::fs::write(&picture, "a picture").unwrap();
+    for (target, words) in [
+        (&other, "that is the file being checked"),
+        (&picture, "is not a panels file tuft wrote"),
+    ] {
+        let out = check(&[
+            path.to_str().unwrap(),
+            "--panels",
+            "500",
+            "--save-panels",
+            target.to_str().unwrap(),
+        ]);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert!(stderr.contains(words), "{stderr}");
+    }
+    assert_eq!(std::fs::read(&path).unwrap(), before);
+    assert_eq!(std::fs::read(&picture).unwrap(), b"a picture");
+    let out = check(&[
+        path.to_str().unwrap(),
+        "--nose",
+        "+x",
+        "--panels",
+        "500",
+        "--save-panels",
+        saved.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
 }
 
 /// A ground set into the floor is warned about by check as by the run (a

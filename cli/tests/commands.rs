@@ -364,9 +364,22 @@ fn existing_results_are_kept_without_force_and_replaced_with_it() {
     assert!(o.stderr.contains("tiny") && o.stderr.contains("--force"));
     assert_eq!(file_list_and_bytes(&out), before, "untouched");
 
+    // --force deletes only what tuft wrote: the user's notes keep the
+    // folder (a review had lost a case and its STL copied into one).
+    let o = tuft(dir.path(), &["run", "tiny.toml", "--force", "--quiet"]);
+    assert_eq!(o.code, 2);
+    assert!(
+        o.stderr
+            .contains("holds notes.txt, which tuft does not write"),
+        "{}",
+        o.stderr
+    );
+    assert_eq!(file_list_and_bytes(&out), before, "untouched");
+    std::fs::remove_file(out.join("notes.txt")).unwrap();
+    std::fs::write(out.join("old.png"), "stale").unwrap();
     let o = tuft(dir.path(), &["run", "tiny.toml", "--force", "--quiet"]);
     assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
-    assert!(!out.join("notes.txt").exists(), "replaced whole");
+    assert!(!out.join("old.png").exists(), "replaced whole");
     assert!(out.join("summary.json").is_file());
     assert_eq!(
         entries(dir.path()),

@@ -120,6 +120,22 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
         .unwrap();
     assert_eq!(twice.status.code(), Some(2), "{twice:?}");
     assert!(String::from_utf8_lossy(&twice.stderr).contains("are the same result folder"));
+    // Nor is either of the two its output, with --force or without (a
+    // review's `--out A --force` had replaced run A by the comparison).
+    for force in [true, false] {
+        let mut args = vec!["compare", &a, &b, "--out", &a, "--quiet"];
+        if force {
+            args.push("--force");
+        }
+        let onto = Command::new(TUFT).args(&args).output().unwrap();
+        assert_eq!(onto.status.code(), Some(2), "{onto:?}");
+        assert!(
+            String::from_utf8_lossy(&onto.stderr)
+                .contains("is one of the two results being compared"),
+            "{onto:?}"
+        );
+    }
+    assert!(Path::new(&a).join("summary.json").is_file(), "run A stays");
     // Against a copy of itself every difference is exactly zero (the
     // mapping of a panel set onto itself is the identity) and no winner is
     // named.

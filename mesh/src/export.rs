@@ -48,5 +48,26 @@ pub fn write_panels_stl(
     if let Some((axes, mirrored)) = axes {
         axes.restore(&mut tri, mirrored);
     }
-    stl_io::write_stl(out, stl_facets(&tri, unit).iter())
+    let mut bytes = Vec::new();
+    stl_io::write_stl(&mut bytes, stl_facets(&tri, unit).iter())?;
+    // The header marks the file as panels tuft wrote (binary STL leaves
+    // its 80 bytes free; never "solid", which reads as ASCII).
+    let tag = PANELS_HEADER.as_bytes();
+    if let Some(h) = bytes.get_mut(..tag.len()) {
+        h.copy_from_slice(tag);
+    }
+    out.write_all(&bytes)
+}
+
+/// How the 80-byte header of a panels file [`write_panels_stl`] wrote
+/// begins: `tuft check --save-panels` replaces only such a file.
+pub const PANELS_HEADER: &str = "tuft panels";
+
+/// Whether the file at `path` is a panels file [`write_panels_stl`] wrote.
+pub fn is_panels_file(path: &std::path::Path) -> bool {
+    use std::io::Read;
+    let mut head = [0u8; PANELS_HEADER.len()];
+    std::fs::File::open(path)
+        .and_then(|mut f| f.read_exact(&mut head))
+        .is_ok_and(|()| head == PANELS_HEADER.as_bytes())
 }

@@ -266,7 +266,7 @@ fn run_one(
     noise: Option<Option<f64>>,
     quiet: bool,
 ) -> Result<Summary> {
-    let staging = Staging::new(out, force)?;
+    let staging = Staging::new(out, force, crate::outdir::Kind::Run)?;
     let mut progress = Progress::new(quiet, &case.name);
     let mut computed = match input {
         Input::Loop(body) => pipeline::compute_on_body(&geo.mesh, case, body, &mut progress)?,
