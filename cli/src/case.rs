@@ -308,8 +308,7 @@ impl Case {
                 path.display()
             );
         }
-        let text = std::fs::read_to_string(path)
-            .with_context(|| format!("{}: cannot read the case file", path.display()))?;
+        let text = read_text(path, "the case file")?;
         other_kind(path, &text, false)?;
         let file: CaseFile = toml::from_str(&text).map_err(|e| toml_error(path, &text, &e))?;
         Self::from_file(path, file).with_context(|| path.display().to_string())
@@ -390,17 +389,57 @@ pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> anyhow::Error
     )
 }
 
+/// A case or sweep file's text (`what` names it). A file saved as UTF-16
+/// (as some editors on Windows do) is named as such with the fix, where the
+/// reader's own words said only that the stream was not valid UTF-8.
+///
+/// # Errors
+/// When the file cannot be read or is not UTF-8 text.
+pub fn read_text(path: &Path, what: &str) -> Result<String> {
+    let bytes =
+        std::fs::read(path).with_context(|| format!("{}: cannot read {what}", path.display()))?;
+    let utf16 = bytes.starts_with(&[0xff, 0xfe])
+        || bytes.starts_with(&[0xfe, 0xff])
+        || (bytes.len() >= 4
+            && bytes.iter().take(64).filter(|&&b| b == 0).count() * 4 >= bytes.len().min(64));
+    match String::from_utf8(bytes) {
+        Ok(text) => Ok(text),
+        Err(_) if utf16 => bail!(
+            "{}: {what} is saved as UTF-16 text; save it as UTF-8 (the editor's encoding setting)",
+            path.display()
+        ),
+        Err(e) => bail!(
+            "{}: {what} is not UTF-8 text (byte {} cannot be read); save it as UTF-8",
+            path.display(),
+            e.utf8_error().valid_up_to() + 1
+        ),
+    }
+}
+
 /// A TOML reader's complaint without Rust's type names ("expected f64"
 /// reads "where a number is expected"), on one line.
 pub fn plain_toml_words(message: &str) -> String {
     let mut what = with_nearest_name(message.trim());
     for (rust, plain) in [
         ("invalid type: ", ""),
+        // A negative count: "invalid value: integer `-5`, expected usize"
+        // (a review read "the whole number `-5` where a whole number is
+        // expected").
+        ("invalid value: integer ", ""),
         (", expected f64", " where a number is expected"),
         (", expected f32", " where a number is expected"),
-        (", expected usize", " where a whole number is expected"),
-        (", expected u64", " where a whole number is expected"),
-        (", expected u32", " where a whole number is expected"),
+        (
+            ", expected usize",
+            " where a whole number of 0 or more is expected",
+        ),
+        (
+            ", expected u64",
+            " where a whole number of 0 or more is expected",
+        ),
+        (
+            ", expected u32",
+            " where a whole number of 0 or more is expected",
+        ),
         (", expected a boolean", " where true or false is expected"),
         ("unknown field", "unknown key"),
         (", expected one of", "; the keys here are"),
@@ -757,6 +796,33 @@ mod tests {
         assert!(e.contains("`wake` (did you mean `wakes`?)"), "{e}");
         let e = words(&format!("{g}[flow]\nwind = 40\n"));
         assert!(!e.contains("did you mean"), "{e}");
+        // A negative count reads as such, not "the whole number `-5` where
+        // a whole number is expected".
+        let e = words("[geometry]\nshape = \"coupe\"\npanels = -5\n");
+        assert_eq!(e, "`-5` where a whole number of 0 or more is expected");
+    }
+
+    /// A case file saved as UTF-16 is named as such, with the fix.
+    #[test]
+    fn a_utf16_case_file_is_named_as_such() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("notepad.toml");
+        let mut bytes = vec![0xff, 0xfe];
+        for u in "[geometry]\nshape = \"coupe\"\n".encode_utf16() {
+            bytes.extend_from_slice(&u.to_le_bytes());
+        }
+        std::fs::write(&path, bytes).unwrap();
+        let e = format!("{:#}", Case::load(&path).unwrap_err());
+        assert!(
+            e.contains("is saved as UTF-16 text; save it as UTF-8"),
+            "{e}"
+        );
+        std::fs::write(&path, b"[geometry]\nshape = \"caf\xe9\"\n").unwrap();
+        let e = format!("{:#}", Case::load(&path).unwrap_err());
+        assert!(
+            e.contains("is not UTF-8 text (byte 24 cannot be read)"),
+            "{e}"
+        );
     }
 
     /// An STL in other axes: the nose at +x (ISO 8855 vehicle axes) or y

@@ -392,9 +392,9 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
     let notes = &c.notes;
     if !args.quiet {
         say!(
-            "{}: {} variants collected; {}",
+            "{}: {} collected; {}",
             c.sweep,
-            c.variants.len(),
+            crate::output::plural(c.variants.len(), "variant", "variants"),
             c.drag_ranking
         );
         for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
@@ -443,13 +443,26 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
         } else {
             "run the sweep again to finish it"
         };
+        // Names only: the reasons are on the lines above and the page (a
+        // review's line had repeated every reason, 1,100 characters).
+        let names: Vec<&str> = c
+            .missing
+            .iter()
+            .map(|m| m.split_once(" (").map_or(m.as_str(), |(name, _)| name))
+            .collect();
         eprintln!(
-            "tuft: {}: {} of the sweep's {} planned variants are missing or failed ({}); the page ranks \
-             the rest: {next}",
+            "tuft: {}: {} of the sweep's {} planned variants {} missing or failed ({}; why: {}); the page \
+             ranks the rest: {next}",
             args.dir.display(),
             c.missing.len(),
             c.missing.len() + c.variants.len(),
-            c.missing.join("; ")
+            if c.missing.len() == 1 { "is" } else { "are" },
+            names.join(", "),
+            if args.quiet {
+                "sweep.html"
+            } else {
+                "above and in sweep.html"
+            }
         );
         return Ok(ExitCode::from(crate::EXIT_FAILURE));
     }
@@ -938,6 +951,13 @@ pub fn collect(dir: &Path) -> Result<Collected> {
         rows.push((record.index, row));
     }
     if rows.is_empty() {
+        if dir.join("summary.json").is_file() {
+            bail!(
+                "{}: is one run's result, not a sweep: collect ranks the variants of a tuft sweep; \
+                 set two runs against each other with tuft compare",
+                dir.display()
+            );
+        }
         bail!("{}: no finished sweep variants here", dir.display());
     }
     let mut variants = rank(rows);

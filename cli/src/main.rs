@@ -64,12 +64,19 @@ fn stop_cleanly_on_interrupt() {
     // Without a handler the signal still stops the command, as before.
     let _ = ctrlc::set_handler(|| {
         let removed = outdir::remove_unfinished();
-        let what = match removed {
+        let names = removed
+            .iter()
+            .map(|p| p.display().to_string())
+            .collect::<Vec<_>>()
+            .join(", ");
+        let what = match removed.len() {
             0 => "nothing was being written".to_owned(),
-            1 => "the result folder being written was removed".to_owned(),
-            n => format!("the {n} result folders being written were removed"),
+            1 => format!("the result folder being written, {names}, was not made"),
+            n => format!("the {n} result folders being written, {names}, were not made"),
         };
-        eprintln!("tuft: interrupted: {what}; results finished before are kept");
+        eprintln!(
+            "tuft: interrupted: {what}; results finished before, and an older result in its place, are kept"
+        );
         std::process::exit(EXIT_INTERRUPTED);
     });
 }
@@ -202,7 +209,7 @@ fn report_error(err: &anyhow::Error) {
 pub(crate) fn error_line(err: &anyhow::Error) -> String {
     let mut parts: Vec<String> = Vec::new();
     for cause in err.chain() {
-        let text = cause.to_string();
+        let text = without_os_error(&cause.to_string());
         if !parts.last().is_some_and(|p| p.ends_with(&text)) {
             parts.push(text);
         }
@@ -210,9 +217,35 @@ pub(crate) fn error_line(err: &anyhow::Error) -> String {
     parts.join(": ")
 }
 
+/// `text` without the system's error number, " (os error 2)", which
+/// says nothing to a designer beside its words.
+fn without_os_error(text: &str) -> String {
+    let mut out = text.to_owned();
+    while let Some(start) = out.find(" (os error ") {
+        let Some(len) = out[start..].find(')') else {
+            break;
+        };
+        out.replace_range(start..=start + len, "");
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The system's error number is left out of the line.
+    #[test]
+    fn an_error_line_leaves_out_the_os_error_number() {
+        let e = anyhow::Error::new(std::io::Error::from_raw_os_error(2))
+            .context("coupe.toml: geometry.stl = \"nothere.stl\": cannot read the file");
+        let line = error_line(&e);
+        assert!(
+            line.ends_with("cannot read the file: No such file or directory"),
+            "{line}"
+        );
+        assert_eq!(without_os_error("a (os error 13) b (os error 2)"), "a b");
+    }
 
     /// A file error that quotes its cause prints the system's words once;
     /// causes that add something stay.
@@ -227,7 +260,7 @@ mod tests {
         .context("writing results");
         assert_eq!(
             error_line(&e),
-            format!("writing results: out/slice.vti: {words}")
+            format!("writing results: out/slice.vti: {}", without_os_error(&words))
         );
         let e = anyhow::anyhow!("the cause").context("what failed");
         assert_eq!(error_line(&e), "what failed: the cause");

@@ -9,31 +9,35 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result, bail};
 
-/// The hidden folders of results under construction in this process, for
-/// [`remove_unfinished`] on an interrupt.
-static UNFINISHED: std::sync::Mutex<Vec<PathBuf>> = std::sync::Mutex::new(Vec::new());
+/// The hidden folders of results under construction in this process, each
+/// with the folder it is to become, for [`remove_unfinished`] on an
+/// interrupt.
+static UNFINISHED: std::sync::Mutex<Vec<(PathBuf, PathBuf)>> = std::sync::Mutex::new(Vec::new());
 
-/// Remember `tmp` as under construction, or (`keep` false) forget it.
-fn unfinished(tmp: &Path, keep: bool) {
+/// Remember `tmp`, to become `dest`, as under construction, or (`dest`
+/// `None`) forget it.
+fn unfinished(tmp: &Path, dest: Option<&Path>) {
     if let Ok(mut list) = UNFINISHED.lock() {
-        list.retain(|p| p != tmp);
-        if keep {
-            list.push(tmp.to_path_buf());
+        list.retain(|p| p.0 != tmp);
+        if let Some(dest) = dest {
+            list.push((tmp.to_path_buf(), dest.to_path_buf()));
         }
     }
 }
 
 /// Remove every result folder still under construction (on an interrupt:
-/// nothing half-written is left, as on a failure); how many there were.
-pub fn remove_unfinished() -> usize {
+/// nothing half-written is left, as on a failure); the folders they were
+/// to become.
+pub fn remove_unfinished() -> Vec<PathBuf> {
     let Ok(mut list) = UNFINISHED.lock() else {
-        return 0;
+        return Vec::new();
     };
-    let n = list.len();
-    for tmp in list.drain(..) {
-        std::fs::remove_dir_all(&tmp).ok();
-    }
-    n
+    list.drain(..)
+        .map(|(tmp, dest)| {
+            std::fs::remove_dir_all(&tmp).ok();
+            dest
+        })
+        .collect()
 }
 
 /// A result folder under construction.
@@ -86,7 +90,7 @@ impl Staging {
                 parent.display()
             )
         })?;
-        unfinished(&tmp, true);
+        unfinished(&tmp, Some(dest));
         Ok(Self {
             tmp,
             dest: dest.to_path_buf(),
@@ -262,7 +266,7 @@ impl Drop for Staging {
         if !self.done {
             std::fs::remove_dir_all(&self.tmp).ok();
         }
-        unfinished(&self.tmp, false);
+        unfinished(&self.tmp, None);
     }
 }
 

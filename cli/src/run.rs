@@ -139,6 +139,16 @@ pub(crate) fn panels_note(geo: &geometry::Geometry) -> String {
 fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
     if !quiet {
         print_summary(out, summary);
+    } else if !summary.warnings.is_empty() {
+        // One line, so that a script's log says why the exit code is 1 (a
+        // review's quiet run of an inch file read as millimetres, a body
+        // 0.18 m long, had printed nothing).
+        eprintln!(
+            "tuft: {}: finished with {}; read them in {}",
+            summary.case_name,
+            crate::output::plural(summary.warnings.len(), "warning", "warnings"),
+            out.join("report.html").display()
+        );
     }
     Ok(if summary.warnings.is_empty() {
         ExitCode::SUCCESS

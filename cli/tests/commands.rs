@@ -343,14 +343,22 @@ fn the_geometry_phase_names_its_stages() {
 fn existing_results_are_kept_without_force_and_replaced_with_it() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("tiny.toml"), TINY).unwrap();
-    // --quiet: nothing on stdout or stderr.
+    // --quiet: nothing on stdout, and on stderr one line only when the
+    // run finished with warnings (exit code 1), saying where they are.
     let o = tuft(dir.path(), &["run", "tiny.toml", "--quiet"]);
     assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
-    assert!(
-        o.stdout.is_empty() && o.stderr.is_empty(),
-        "quiet: {o:?}",
-        o = o.stderr
-    );
+    assert!(o.stdout.is_empty(), "quiet: {}", o.stdout);
+    if o.code == 0 {
+        assert!(o.stderr.is_empty(), "quiet: {}", o.stderr);
+    } else {
+        assert_eq!(o.stderr.lines().count(), 1, "{}", o.stderr);
+        assert!(
+            o.stderr.starts_with("tuft: tiny: finished with ")
+                && o.stderr.contains("tiny/report.html"),
+            "{}",
+            o.stderr
+        );
+    }
     // The default result folder sits beside the case, named after it.
     let out = dir.path().join("tiny");
     assert!(out.join("summary.json").is_file());
@@ -817,8 +825,8 @@ fn an_interrupted_run_says_so_and_leaves_nothing_half_written() {
     assert_eq!(out.status.code(), Some(130), "{stderr}");
     assert!(
         stderr.lines().last().is_some_and(|l| l
-            == "tuft: interrupted: the result folder being written was removed; results \
-                finished before are kept"),
+            == "tuft: interrupted: the result folder being written, result, was not made; \
+                results finished before, and an older result in its place, are kept"),
         "{stderr}"
     );
     let left = entries(dir.path());

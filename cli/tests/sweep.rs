@@ -441,7 +441,7 @@ fn collect_leaves_out_results_of_an_older_case() {
     assert_eq!(code, 2);
     assert!(
         err.starts_with("tuft: ")
-            && err.contains("1 of the sweep's 2 planned variants are missing or failed (speed-30"),
+            && err.contains("1 of the sweep's 2 planned variants is missing or failed (speed-30; why: sweep.html)"),
         "{err}"
     );
     let c = json(&out.join("sweep.json"));

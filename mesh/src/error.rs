@@ -80,14 +80,18 @@ pub enum MeshError {
     },
     /// A facet could not be read or parsed (truncated file, malformed number).
     #[error("facet {} (counting from 1) cannot be read: {}", .facet + 1, match .line {
-        Some((n, text)) if *.last_line => format!(
+        Some((n, text, _)) if *.last_line => format!(
             "line {n} (`{text}`), the file's last, breaks off: the file ends in the middle of a \
              facet, so it was cut short (an interrupted export or copy); export it again"
         ),
-        Some((n, text)) if crate::import::plain_read_error(.reader).contains("NaN") => {
+        Some((n, text, _)) if crate::import::plain_read_error(.reader).contains("NaN") => {
             format!("line {n} (`{text}`): {}", crate::import::plain_read_error(.reader))
         }
-        Some((n, text)) => format!("line {n} (`{text}`) does not read as ASCII STL"),
+        Some((n, text, Some(want))) => format!(
+            "line {n} (`{text}`) does not read as ASCII STL: `{want}` belongs there (a line \
+             missing or out of order)"
+        ),
+        Some((n, text, None)) => format!("line {n} (`{text}`) does not read as ASCII STL"),
         None => crate::import::plain_read_error(.reader),
     })]
     BadFacet {
@@ -96,8 +100,9 @@ pub enum MeshError {
         /// The reader's complaint (put in plain words by the message).
         reader: std::io::Error,
         /// In an ASCII file, the first line that does not read as ASCII
-        /// STL (its number from 1 and its text), when one was found.
-        line: Option<(usize, String)>,
+        /// STL (its number from 1, its text, and the keyword that belongs
+        /// there when it is one out of order), when one was found.
+        line: Option<(usize, String, Option<&'static str>)>,
         /// That line is the file's last.
         last_line: bool,
     },
@@ -214,7 +219,7 @@ pub enum MeshError {
     /// A whole body to be run as a half model is not centred on the
     /// symmetry plane y = 0.
     #[error(
-        "mirror plane problem: a whole body run as a half model is cut at y = 0, but this one spans \
+        "symmetry plane: a whole body run as a half model is cut at y = 0, but this one spans \
          y = {y_min:.4} to {y_max:.4} m, centred {off_mm:.1} mm off that plane: move its centre plane \
          onto y = 0 in the STL, or run it whole",
         off_mm = 500.0 * (y_min + y_max)
@@ -228,7 +233,7 @@ pub enum MeshError {
     /// A half model reaches across its symmetry plane (y = 0) by more than
     /// the cut tolerance.
     #[error(
-        "mirror plane problem: a half model must lie in y >= 0 (its mirror image supplies y < 0), \
+        "symmetry plane: a half model must lie in y >= 0 (its mirror image supplies y < 0), \
          but the body reaches y = {y:.4} m ({y_mm:.1} mm; up to {moved_mm:.1} mm is moved onto the cut)",
         y_mm = 1000.0 * y,
         moved_mm = 1000.0 * moved
@@ -275,7 +280,7 @@ pub enum MeshError {
     /// off it by more than the cut tolerance: mirrored, a slot would run
     /// down the middle of the body.
     #[error(
-        "mirror plane problem: this half model is closed by a flat face of {area:.2} m^2 at y = {y:.4} m, \
+        "symmetry plane: this half model is closed by a flat face of {area:.2} m^2 at y = {y:.4} m, \
          {y_mm:.1} mm off the symmetry plane y = 0 (up to {moved_mm:.1} mm is moved onto it): mirrored, it \
          would leave a slot {slot_mm:.1} mm wide down the middle of the body; move the cut onto y = 0 in \
          the modeller (a face lying on y = 0 is dropped, since the mirror image closes the cut)",
@@ -309,12 +314,12 @@ pub enum MeshError {
 fn below_ground_words(z: f64, ground: f64, allowed: f64, top: f64) -> String {
     if top <= ground {
         format!(
-            "mirror plane problem: the whole body, from z = {z:.4} to {top:.4} m, lies below the ground \
+            "ground: the whole body, from z = {z:.4} to {top:.4} m, lies below the ground \
              plane z = {ground:.4} m (the ground's height is in metres, in tuft's axes, like the body's)"
         )
     } else {
         format!(
-            "mirror plane problem: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m \
+            "ground: the body reaches z = {z:.4} m, below the ground plane z = {ground:.4} m \
              (up to {:.0} mm below it is cut off at the ground, as tyres pressed into the floor are)",
             1000.0 * allowed
         )

@@ -134,6 +134,27 @@ fn ascii_with_a_misspelt_keyword_names_its_line() {
     );
 }
 
+/// A line missing in the middle of an ASCII file (a facet without its
+/// `endloop`): the line out of order is named with the keyword that
+/// belongs there (a review had read the STL reader's own words, `expected
+/// ["endloop"], got ["endfacet"]`, with no line).
+#[test]
+fn ascii_with_a_missing_line_names_where() {
+    let good = common::ascii_stl(&generate::icosphere(1.0, 1));
+    let at = good.match_indices("endloop").nth(40).unwrap().0;
+    let end = at + good[at..].find('\n').unwrap() + 1;
+    let line = good[..at].matches('\n').count() + 1;
+    let bad = format!("{}{}", &good[..at], &good[end..]);
+    let e = err_of(bad.as_bytes()).to_string();
+    assert!(
+        e.starts_with("facet 41 (counting from 1) cannot be read")
+            && e.contains(&format!(
+                "line {line} (`endfacet`) does not read as ASCII STL: `endloop` belongs there"
+            )),
+        "{e}"
+    );
+}
+
 /// Keywords in capitals, as some exporters write them, read as in lower
 /// case; a binary file whose header count was left at 0 reads the facets
 /// its length holds, and says so.

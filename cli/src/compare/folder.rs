@@ -40,8 +40,26 @@ pub struct ResultFolder {
 impl ResultFolder {
     /// Read `summary.json` and `panels.csv` from `path`.
     pub fn read(path: &Path) -> Result<Self> {
+        if !path.exists() {
+            bail!("{}: no such folder", path.display());
+        }
         if !path.is_dir() {
-            bail!("{}: not a result folder", path.display());
+            bail!("{}: is a file, not a result folder", path.display());
+        }
+        if !path.join("summary.json").exists() {
+            if path.join(crate::sweep::PLAN_FILE).is_file() {
+                bail!(
+                    "{}: is a sweep's folder, not one run's result: compare two of its variants \
+                     (its subfolders), or rank them all with tuft collect",
+                    path.display()
+                );
+            }
+            if path.join("compare.json").is_file() {
+                bail!(
+                    "{}: is a comparison, not a run's result: compare the run folders it compared",
+                    path.display()
+                );
+            }
         }
         let summary = read_summary(path)?;
         let csv = path.join("panels.csv");

@@ -179,8 +179,7 @@ fn short_key(key: &str) -> &str {
 impl Plan {
     /// Read a sweep file.
     pub fn load(path: &Path) -> Result<Self> {
-        let text = std::fs::read_to_string(path)
-            .with_context(|| format!("{}: cannot read the sweep file", path.display()))?;
+        let text = crate::case::read_text(path, "the sweep file")?;
         crate::case::other_kind(path, &text, true)?;
         // `base = "FILE"` and a `[base.geometry]` table beside it: TOML
         // cannot add keys to a string (a review met its parser's "cannot
@@ -375,8 +374,7 @@ fn base_value(dir: &Path, base: &BaseCase) -> Result<toml::Value> {
     let (value, case_dir) = match base {
         BaseCase::Path(p) => {
             let file = dir.join(p);
-            let text = std::fs::read_to_string(&file)
-                .with_context(|| format!("base = {}: cannot read the case file", file.display()))?;
+            let text = crate::case::read_text(&file, "the base case file")?;
             let v: toml::Value =
                 toml::from_str(&text).map_err(|e| crate::case::toml_error(&file, &text, &e))?;
             // Its mistakes named in its own file, with the line.
@@ -433,6 +431,26 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
         }
         if out.iter().any(|(o, _)| *o == key) {
             bail!("vary #{}: key \"{}\" is varied twice", k + 1, v.key);
+        }
+        // A value listed twice would run the same variant twice (a
+        // review's [30.0, 30.0] ran as speed-30-1 and speed-30-2).
+        if let Some((i, twice)) = v
+            .values
+            .iter()
+            .enumerate()
+            .find(|(i, x)| v.values[..*i].contains(x))
+        {
+            bail!(
+                "vary #{} (key \"{}\"): the value {twice} is listed twice (values {} and {}), which \
+                 would run the same variant twice; list each value once",
+                k + 1,
+                v.key,
+                v.values
+                    .iter()
+                    .position(|x| x == twice)
+                    .map_or(0, |p| p + 1),
+                i + 1
+            );
         }
         let label = match (&v.labels, &v.label) {
             (None, None) => None,
@@ -1156,6 +1174,14 @@ mod tests {
             "{BASE}[[vary]]\nkey = \"flow.speeed\"\nvalues = [1.0]\n[[vary]]\nkey = \"speed\"\nvalues = [30.0]\n"
         ));
         assert!(e.contains("speeed"), "{e}");
+        // A value listed twice would run one variant twice.
+        let e = refusal(&format!(
+            "{BASE}[[vary]]\nkey = \"speed\"\nvalues = [20.0, 30.0, 30.0]\n"
+        ));
+        assert!(
+            e.contains("the value 30.0 is listed twice (values 2 and 3)"),
+            "{e}"
+        );
     }
 
     #[test]

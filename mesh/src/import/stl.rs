@@ -143,11 +143,11 @@ pub fn read_stl_from<R: Read + Seek>(mut reader: R) -> Result<(TriMesh, StlRepor
                 .seek(SeekFrom::Start(0))
                 .ok()
                 .and_then(|_| first_bad_line(BufReader::new(inner)));
-            let last_line = found.as_ref().is_some_and(|f| f.2);
+            let last_line = found.as_ref().is_some_and(|f| f.3);
             return Err(MeshError::BadFacet {
                 facet,
                 reader,
-                line: found.map(|(n, text, _)| (n, text)),
+                line: found.map(|(n, text, want, _)| (n, text, want)),
                 last_line,
             });
         }
@@ -229,39 +229,59 @@ fn extra_facets_fit(mesh: &TriMesh, n: usize) -> bool {
     })
 }
 
+/// The keywords of one facet of an ASCII STL, in their order.
+const FACET_LINES: [&str; 7] = [
+    "facet", "outer", "vertex", "vertex", "vertex", "endloop", "endfacet",
+];
+
 /// The first line of an ASCII STL that does not read as one: an unknown
-/// keyword, or a `facet normal` or `vertex` line without three numbers.
-/// Its number (from 1), its text, shortened, and whether it is the file's
+/// keyword, a `facet normal` or `vertex` line without three numbers, or a
+/// keyword out of the facet's order (a missing `endloop`).
+/// Its number (from 1), its text, shortened, the keyword that belongs
+/// there when the line is one out of order, and whether it is the file's
 /// last (the file then breaks off there: cut short); `None` when every
 /// line reads.
-fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String, bool)> {
+fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String, Option<&'static str>, bool)> {
     let numbers = |t: &[&str]| t.iter().all(|x| x.parse::<f32>().is_ok());
-    let mut found: Option<(usize, String)> = None;
+    let mut found: Option<(usize, String, Option<&'static str>)> = None;
+    // Where in a facet's lines the next line falls.
+    let mut next = 0;
     for (k, line) in reader.split(b'\n').enumerate() {
         let line = String::from_utf8_lossy(&line.ok()?).trim().to_owned();
         if found.is_some() {
             if line.is_empty() {
                 continue;
             }
-            return found.map(|(n, text)| (n, text, false));
+            return found.map(|(n, text, want)| (n, text, want, false));
         }
         let lower = line.to_ascii_lowercase();
         let t: Vec<&str> = lower.split_whitespace().collect();
         let fine = match t.as_slice() {
-            [] | ["solid" | "endsolid", ..] | ["outer", "loop"] | ["endloop" | "endfacet"] => true,
+            [] => true,
+            ["solid" | "endsolid", ..] => next == 0,
+            ["outer", "loop"] | ["endloop" | "endfacet"] => true,
             ["facet", "normal", rest @ ..] | ["vertex", rest @ ..] => {
                 rest.len() == 3 && numbers(rest)
             }
             _ => false,
         };
-        if !fine {
+        let keyword = t.first().copied().unwrap_or("");
+        let want = FACET_LINES[next];
+        let in_order = matches!(keyword, "" | "solid" | "endsolid") || keyword == want;
+        if !fine || !in_order {
             let shown: String = line.chars().take(60).collect();
             let more = if shown.len() < line.len() { "..." } else { "" };
-            found = Some((k + 1, format!("{shown}{more}")));
+            found = Some((
+                k + 1,
+                format!("{shown}{more}"),
+                (fine && !in_order).then_some(want),
+            ));
+        } else if !matches!(keyword, "" | "solid" | "endsolid") {
+            next = (next + 1) % FACET_LINES.len();
         }
     }
     // The bad line was the file's last.
-    found.map(|(n, text)| (n, text, true))
+    found.map(|(n, text, want)| (n, text, want, true))
 }
 
 /// The flavour decided from the first bytes and the length.
