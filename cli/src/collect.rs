@@ -1843,7 +1843,9 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             .filter(|_| series(c, key, *f).len() == 1)
             .and_then(|part| underbody_lines(c, key, [*f, part]));
             let underbody_note = underbody.is_some();
+            let mut emphasis = None;
             if let Some(mut parts) = underbody {
+                emphasis = lines.len().checked_sub(1);
                 // The one line, after the panel noise's grey ones.
                 if let Some(line) = lines.last_mut() {
                     line.name = if line.name.is_empty() {
@@ -1911,8 +1913,16 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                 x_categories: categories.clone(),
                 whiskers,
                 y_band,
+                // An area from zero, so a line's height reads as its size.
+                y_from: (k == 2).then_some(0.0),
+                emphasis,
                 note: if underbody_note {
                     UNDERBODY_PLOT_NOTE.into()
+                } else if k == 0 && slope_spread(&c.variants).is_some() {
+                    // On the plot itself, which is copied onto slides
+                    // alone (a review's rear-window sweep rose steeply
+                    // from 25 degrees with the caution in the text only).
+                    slope_plot_note()
                 } else {
                     String::new()
                 },
@@ -1954,6 +1964,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
                     ),
                     colour: VERDICT_TINT,
                 }),
+                y_from: Some(0.0),
                 ..LinePlot::default()
             };
             let (canvas, _) = draw_line_plot(&plot, &PlotParams::default())?;
@@ -1998,6 +2009,17 @@ fn region_lines(c: &Collected, key: &str) -> Option<Vec<Series>> {
 }
 
 /// What the lift plots' underbody line is ([`underbody_lines`]).
+/// The drag plot's note where a named rear region's slope reaches
+/// [`crate::compare::SLOPE_CAUTION_DEG`] ([`slope_spread`]).
+fn slope_plot_note() -> String {
+    format!(
+        "Rear slopes of {:.0} degrees and more: this model's drag keeps rising with the slope, where a \
+         slant-back body's drag in the tunnel peaks near 30 degrees and falls beyond; read this line's \
+         trend there as the model's, not the car's.",
+        crate::compare::SLOPE_CAUTION_DEG
+    )
+}
+
 const UNDERBODY_PLOT_NOTE: &str = "Underbody: the ground-facing panels' part, a smooth floor's suction, \
      the least certain part of the lift (a real underbody sucks far less); rest of the body: the \
      whole less it.";

@@ -260,7 +260,10 @@ mod tests {
         .context("writing results");
         assert_eq!(
             error_line(&e),
-            format!("writing results: out/slice.vti: {}", without_os_error(&words))
+            format!(
+                "writing results: out/slice.vti: {}",
+                without_os_error(&words)
+            )
         );
         let e = anyhow::anyhow!("the cause").context("what failed");
         assert_eq!(error_line(&e), "what failed: the cause");

@@ -75,6 +75,16 @@ fn compare(a: &str, b: &str, out: &Path) -> Value {
         .as_array()
         .is_some_and(|r| !r.is_empty());
     assert_eq!(outline > 100, named, "{outline} outline pixels");
+    // The changed shape's near-black outline where the note promises it
+    // (a review found it on the Cp difference only).
+    let promised = std::fs::read_to_string(out.join("compare.html"))
+        .unwrap()
+        .contains("(the changed shape outlined in black)");
+    assert_eq!(
+        count([25, 25, 25]) > 100,
+        promised,
+        "changed shape's outline"
+    );
     let noted = v["notes"].as_array().is_some_and(|n| !n.is_empty());
     assert_eq!(code, Some(if noted { 1 } else { 0 }), "{}", v["notes"]);
     v

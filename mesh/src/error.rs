@@ -192,7 +192,7 @@ pub enum MeshError {
         /// The value given.
         value: f64,
         /// What is wrong with it.
-        reason: &'static str,
+        reason: std::borrow::Cow<'static, str>,
     },
     /// The surface passes through itself: a facet crosses another facet of
     /// the same connected surface.

@@ -245,14 +245,18 @@ pub fn write(
             ),
         )
     });
+    // On both sheets, as both notes say (a review found the separation
+    // sheet's promised outline missing).
     if let Some(mark) = &mark {
-        output::outline::draw_outlines_unnamed(
-            &mut dcp,
-            mesh_b,
-            std::slice::from_ref(mark),
-            CHANGED_OUTLINE,
-            caption.yaw_deg,
-        );
+        for sheet in [&mut dcp, &mut dsep] {
+            output::outline::draw_outlines_unnamed(
+                sheet,
+                mesh_b,
+                std::slice::from_ref(mark),
+                CHANGED_OUTLINE,
+                caption.yaw_deg,
+            );
+        }
     }
     // A compact change seen close up, on both fields, outlined there too.
     let mut close_ups = Vec::new();

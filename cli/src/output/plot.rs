@@ -89,6 +89,30 @@ pub struct LinePlot {
     /// sweep's lowest drag and the noise floor above it), one legend
     /// entry; it counts towards the vertical axis.
     pub y_band: Option<YBand>,
+    /// Where the vertical axis starts when no value lies below it (a
+    /// magnitude's zero: an area, a share), so that a line's height reads
+    /// as its size (a review read a separated area going from 1.6 to 2.3
+    /// m^2 on an axis from 1.5 as fivefold, and a share's axis reached
+    /// -10 %); `None`: as the values fall.
+    pub y_from: Option<f64>,
+    /// The series drawn widest, the one to read first (a lift plot's
+    /// whole body beside its underbody and rest-of-body parts, which a
+    /// review's eye had gone to first, drawn wider by their places);
+    /// `None`: widths by place ([`line_width`]).
+    pub emphasis: Option<usize>,
+}
+
+impl LinePlot {
+    /// The width of series `k`'s line: by its place, or, with an
+    /// [`Self::emphasis`], the widest for that one and at most the second
+    /// width for the others.
+    fn series_width(&self, k: usize) -> f32 {
+        match self.emphasis {
+            Some(e) if e == k => line_width(2),
+            Some(_) => line_width(k.min(1)),
+            None => line_width(k),
+        }
+    }
 }
 
 /// A stretch of the vertical axis shaded across the plot ([`LinePlot::y_band`]).
@@ -209,7 +233,7 @@ pub fn draw_line_plot(
     // Later series are drawn first and wider, so curves that coincide
     // (a symmetric body's upper and lower surface) both stay visible.
     for (k, s) in plot.series.iter().enumerate().rev() {
-        let width = line_width(k);
+        let width = plot.series_width(k);
         let pts: Vec<(f32, f32)> = s
             .points
             .iter()
@@ -261,13 +285,13 @@ pub fn draw_line_plot(
         } else {
             o.series.name.clone()
         };
-        keys.push(Key::Line(name, o.series.colour, 0, above));
+        keys.push(Key::Line(name, o.series.colour, line_width(0), above));
     }
     keys.extend(
         plot.series
             .iter()
             .enumerate()
-            .map(|(k, s)| Key::Line(s.name.clone(), s.colour, k, false)),
+            .map(|(k, s)| Key::Line(s.name.clone(), s.colour, plot.series_width(k), false)),
     );
     for sh in plot.shading.iter().filter(|sh| !sh.spans.is_empty()) {
         keys.push(Key::Patch(sh.name.clone(), sh.colour));
@@ -482,6 +506,13 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
     } else {
         y
     };
+    let y = match plot.y_from {
+        Some(from) if all.iter().all(|&v| v >= from) => {
+            let top = y.1.max(from + plot.min_y_span);
+            (from, padded_range(&[from, top], 0.0, Y_RANGE_TICKS).1)
+        }
+        _ => y,
+    };
     let y_range = if plot.invert_y { (y.1, y.0) } else { y };
     let rect = (
         110.0,
@@ -682,10 +713,10 @@ fn draw_labels(c: &mut Canvas, plot: &LinePlot, f: &PlotFrame) -> bool {
     two
 }
 
-/// One legend entry: a series' line (its index sets the width; true: it
-/// has arrows above the axis too), or a shaded patch.
+/// One legend entry: a series' line (with its width; true: it has arrows
+/// above the axis too), or a shaded patch.
 enum Key {
-    Line(String, Rgb, usize, bool),
+    Line(String, Rgb, f32, bool),
     Patch(String, Rgb),
     Whisker(String),
 }
@@ -720,8 +751,7 @@ fn draw_legend(
     for (k, key) in keys.iter().enumerate() {
         let cy = y + 19.0 + 26.0 * k as f32;
         match *key {
-            Key::Line(_, colour, index, arrow) => {
-                let width = line_width(index);
+            Key::Line(_, colour, width, arrow) => {
                 c.polyline(&[(x + 12.0, cy), (x + 48.0, cy)], colour, width);
                 c.fill_circle(x + 30.0, cy, 1.0 + width, colour);
                 if arrow {
@@ -1350,6 +1380,30 @@ mod tests {
         assert!(hi - lo >= 24.0 && lo < 120.0 && hi > 124.0, "{lo} {hi}");
         let (lo, hi) = plot_frame(&plot(0.0), &params).y_range;
         assert!(hi - lo < 10.0, "{lo} {hi}");
+    }
+
+    /// A magnitude's axis starts at its zero (a review read 1.6 to 2.3
+    /// m^2 on an axis from 1.5 as fivefold; a share's reached -10 %),
+    /// unless a value lies below it.
+    #[test]
+    fn a_magnitude_axis_starts_at_zero() {
+        let plot = |points: Vec<(f64, f64)>, min_y_span: f64| LinePlot {
+            series: vec![Series {
+                name: "separated".into(),
+                points,
+                colour: INK,
+            }],
+            min_y_span,
+            y_from: Some(0.0),
+            ..LinePlot::default()
+        };
+        let params = PlotParams::default();
+        let (lo, hi) = plot_frame(&plot(vec![(0.0, 1.6), (1.0, 2.3)], 0.0), &params).y_range;
+        assert!(lo == 0.0 && (2.3..3.0).contains(&hi), "{lo} {hi}");
+        let (lo, hi) = plot_frame(&plot(vec![(0.0, 0.0), (1.0, 8.0)], 10.0), &params).y_range;
+        assert!(lo == 0.0 && hi >= 10.0, "{lo} {hi}");
+        let (lo, _) = plot_frame(&plot(vec![(0.0, -1.0), (1.0, 8.0)], 10.0), &params).y_range;
+        assert!(lo < -1.0, "{lo}");
     }
 
     /// A band of y (a sweep's lowest drag and the noise floor above it)

@@ -316,11 +316,21 @@ fn top_profile(p: &CoupeParams, tail_shoulder: f64) -> Result<Profile, MeshError
         "too short",
     )?;
     let above = deck > tail_shoulder + 0.1;
+    // The steepest window that keeps the deck 0.1 m above the shoulder,
+    // said with the refusal (a review found the limit by trial and error).
+    let steepest = ((h - tail_shoulder - 0.1) / (x_deck - x_roof_end))
+        .atan()
+        .to_degrees();
     require(
         "rear_window_deg",
         p.rear_window_deg,
         above,
-        "the boot deck falls to the shoulder line",
+        format!(
+            "the boot deck falls to the shoulder line: with this roof and boot deck the rear window \
+             slopes at most {:.0} degrees (a longer boot_deck_length or roof_length lets it slope \
+             more)",
+            steepest.floor()
+        ),
     )?;
     Ok(Profile {
         points: vec![

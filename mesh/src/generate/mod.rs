@@ -69,7 +69,7 @@ fn require(
     name: &'static str,
     value: f64,
     ok: bool,
-    reason: &'static str,
+    reason: impl Into<std::borrow::Cow<'static, str>>,
 ) -> Result<(), MeshError> {
     if ok {
         Ok(())
@@ -77,7 +77,7 @@ fn require(
         Err(MeshError::InvalidParameter {
             name,
             value,
-            reason,
+            reason: reason.into(),
         })
     }
 }

@@ -142,7 +142,7 @@ pub fn wing(span: f64, chord: f64, naca: &str, alpha_deg: f64) -> Result<WingMes
     let params = params.naca(naca).ok_or(MeshError::InvalidParameter {
         name: "naca",
         value: f64::NAN,
-        reason: "a 4-digit section is four decimal digits such as 0012",
+        reason: "a 4-digit section is four decimal digits such as 0012".into(),
     })?;
     wing_with_params(&params)
 }
