@@ -50,14 +50,17 @@ const CHANGED_OUTLINE_SHARE: f64 = 0.5;
 /// spoiler's lip is a few pixels (two reviews; our choice).
 const CLOSE_UP_SHARE: f64 = 0.35;
 
-/// Room round the changed shape in a close-up, on each side: its largest
-/// extent times this, but no less than [`CLOSE_UP_ROOM_M`].
+/// Room round the changed shape in a close-up, on each side: its extent
+/// along that axis times this, but no less than [`CLOSE_UP_ROOM_M`].
 const CLOSE_UP_ROOM: f64 = 0.6;
 
 /// The least room round the changed shape in a close-up, metres.
 const CLOSE_UP_ROOM_M: f64 = 0.25;
 
-/// The box (with room round it, [`CLOSE_UP_ROOM`]) and views of a
+/// How far a close-up reaches past the body's bounds at most, metres.
+const CLOSE_UP_BEYOND_M: f64 = 0.1;
+
+/// The box (with room round it on each axis, [`CLOSE_UP_ROOM`]) and views of a
 /// close-up of the changed panels `member` (over B's display triangles,
 /// images after the real panels, which are left out), or `None` where
 /// the change is not compact ([`CLOSE_UP_SHARE`]) or there is none. Of a
@@ -106,9 +109,18 @@ fn close_up(
     if extent >= CLOSE_UP_SHARE * length {
         return None;
     }
-    let room = (CLOSE_UP_ROOM * extent).max(CLOSE_UP_ROOM_M);
-    let pad = tuft_mesh::Vector::new(room, room, room);
-    let (lo, hi) = (lo - pad, hi + pad);
+    // Room on each axis by the change's own extent along it: a change
+    // long and low (a tailgate, a deck) given its length's room up and
+    // down as well had filled its side view no larger than the whole
+    // body's (a review measured the scale bar at 112 px against 115).
+    let pad = (hi - lo).map(|e| (CLOSE_UP_ROOM * e).max(CLOSE_UP_ROOM_M));
+    // Nor room beyond the body's own ends, where there is nothing to see
+    // (a tailgate's close-up had as much empty space behind the tail).
+    let margin = tuft_mesh::Vector::repeat(CLOSE_UP_BEYOND_M);
+    let (lo, hi) = (
+        (lo - pad).sup(&(blo - margin)),
+        (hi + pad).inf(&(bhi + margin)),
+    );
     let plan = if facing_down > 0.0 {
         View::Underneath
     } else {
@@ -642,7 +654,8 @@ mod tests {
         assert!(member.iter().any(|m| *m));
         let ((blo, bhi), views) = close_up(&mesh, &member, 0.0).unwrap();
         assert_eq!(views, [View::Side, View::Top, View::Rear]);
-        // Room of at least 0.25 m round the part; only the side at y <= 0.
+        // Room of at least 0.25 m round the part, but none more than
+        // 0.1 m past the body's end; only the side at y <= 0.
         let changed = mesh
             .panels
             .iter()
@@ -650,12 +663,10 @@ mod tests {
             .filter(|(p, m)| **m && p.centroid.y <= 0.0);
         for (p, _) in changed {
             for v in &p.vertices {
-                assert!(
-                    v.x >= blo.x + 0.25 && v.x <= bhi.x - 0.25,
-                    "{v:?} {blo:?} {bhi:?}"
-                );
+                assert!(v.x >= blo.x + 0.25 && v.x <= bhi.x, "{v:?} {blo:?} {bhi:?}");
             }
         }
+        assert!((bhi.x - (hi.x + CLOSE_UP_BEYOND_M)).abs() < 1e-9, "{bhi:?}");
         assert!(bhi.y <= 0.26, "{bhi:?}");
         // At yaw the sheet's side view, and nothing for a change along
         // the whole body.

@@ -270,7 +270,10 @@ pub fn draw_regions_labelled(
                         .find(|&j| shares_edge(&tris[j], &a, &b))
                         .filter(|&j| !member(j));
                     if let Some(j) = outside {
-                        edges.push(BoundaryEdge { ends: [a, b], tris: (k, j) });
+                        edges.push(BoundaryEdge {
+                            ends: [a, b],
+                            tris: (k, j),
+                        });
                     }
                 }
                 // The name goes where the region shows its face: a panel
@@ -287,8 +290,14 @@ pub fn draw_regions_labelled(
                 seen_edge(
                     &seen,
                     edge.tris,
-                    [frame.project(*view, &edge.ends[0]), frame.project(*view, &edge.ends[1])],
-                    [frame.project(*view, &smooth[0]), frame.project(*view, &smooth[1])],
+                    [
+                        frame.project(*view, &edge.ends[0]),
+                        frame.project(*view, &edge.ends[1]),
+                    ],
+                    [
+                        frame.project(*view, &smooth[0]),
+                        frame.project(*view, &smooth[1]),
+                    ],
                     &mut dots,
                 );
             }
