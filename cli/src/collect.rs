@@ -3080,10 +3080,17 @@ fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
     let _ = writeln!(
         s,
         "<h2>Separation at a glance</h2>\n<p>Each variant's separation risk seen from the side and from above, in \
-         rank order, drawn as on its report's separation-risk picture and all at one scale, so that sizes and \
+         {}, drawn as on its report's separation-risk picture and all at one scale, so that sizes and \
          places compare from row to row: colour from 0 (far from separating) to 1 (at the criterion), \
          hatched where the flow has separated, named regions outlined{}. Each picture opens the variant's \
          report.</p>",
+        progression_key(c).map_or_else(
+            || "rank order".to_owned(),
+            |k| format!(
+                "order of {} (each row's rank by drag before its name)",
+                key_words(k)
+            )
+        ),
         if yawed {
             "; a yawed variant is seen from its lee side, where a cross wind moves the separation (from \
              +y, nose right, at a positive yaw: its side view is the mirror of a straight-ahead row's, so \
@@ -3102,12 +3109,23 @@ fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
         );
     }
     let groups = wind_groups(c);
+    let progression = progression_key(c);
     let mut rows = glance.rows.iter();
     for (label, group) in &groups {
         if groups.len() > 1 {
             let _ = writeln!(s, "<h3>{}</h3>", escape(label));
         }
-        for row in rows.by_ref().take(group.len()) {
+        let mut in_group: Vec<(&GlanceRow, &Row)> =
+            rows.by_ref().take(group.len()).zip(group.iter()).collect();
+        if let Some(key) = progression {
+            let value = |r: &Row| r.settings.get(key).and_then(serde_json::Value::as_f64);
+            in_group.sort_by(|a, b| {
+                value(a.1)
+                    .unwrap_or(f64::NAN)
+                    .total_cmp(&value(b.1).unwrap_or(f64::NAN))
+            });
+        }
+        for (row, _) in in_group {
             match &row.picture {
                 Ok(png) => {
                     let _ = writeln!(
@@ -3142,6 +3160,18 @@ fn glance_section(s: &mut String, c: &Collected, glance: &Glance) {
             "<p class=\"glance-none\">{}:{why} no picture.</p>",
             escape(m)
         );
+    }
+}
+
+/// The one swept quantity, when the sweep varies exactly one key and its
+/// values are numbers: the glance pictures then run in its order, the
+/// progression of shapes a designer follows (a review's rear-window
+/// slopes had read 20, 25, 15, 30, 37 in drag order, under a page that
+/// named no winner).
+fn progression_key(c: &Collected) -> Option<&str> {
+    match c.keys.as_slice() {
+        [key] if numeric_key(c, key) => Some(key.as_str()),
+        _ => None,
     }
 }
 
@@ -3831,6 +3861,17 @@ mod tests {
         assert!(!html.contains("lee side"));
         // No rows (nothing read): no section.
         assert!(!shown(&c, &[]).contains("Separation at a glance"));
+        // One numeric key swept: the pictures run in its order, ranks
+        // kept in their labels (the 28-degree variant ranked first).
+        c.keys = vec!["geometry.rear_window_deg".into()];
+        c.variants.swap(0, 1);
+        let rows = glance.rows.into_iter().rev().collect();
+        let html = page(&c, &[], &Glance { key: None, rows });
+        let at = |what: &str| html.find(what).unwrap_or_else(|| panic!("{what}: {html}"));
+        assert!(html.contains("in order of rear-window slope (each row's rank by drag"));
+        assert!(
+            at("alt=\"1. v0: rear-window slope 22°") < at("no picture (v1/mesh.json: missing).")
+        );
     }
 
     /// The rear axle's ranking names the most downforce, its lead, and
