@@ -438,13 +438,16 @@ fn draw_off_scale(c: &mut Canvas, o: &OffScale, f: &PlotFrame) -> bool {
                 o.series.colour,
                 2.0,
             );
-            text::draw(
-                c,
-                &format!("{y:.prec$}", prec = o.decimals),
-                px + 7.0,
-                t as f32 + 24.0,
-                &style,
-            );
+            // Right of the arrow, or left of it where the frame's edge
+            // would cut the number (a review's "435" at the last point).
+            let words = format!("{y:.prec$}", prec = o.decimals);
+            let right = (f.rect.0 + f.rect.2) as f32 - 4.0;
+            let x = if px + 7.0 + text::width(&words, &style) > right {
+                px - 7.0 - text::width(&words, &style)
+            } else {
+                px + 7.0
+            };
+            text::draw(c, &words, x, t as f32 + 24.0, &style);
         } else if y >= lo && y <= hi {
             c.fill_circle(px as f32, py as f32, 1.0 + width, o.series.colour);
         }
