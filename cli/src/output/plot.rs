@@ -316,6 +316,7 @@ pub fn draw_line_plot(
             })
             .collect();
         marks.extend(whisker_marks(plot, &frame));
+        marks.extend(shading_marks(plot, &frame));
         draw_legend(&mut c, &keys, &plot.series, &marks, &frame);
     }
     Ok((c, frame))
@@ -390,6 +391,36 @@ fn draw_shading(c: &mut Canvas, sh: &Shading, f: &PlotFrame) {
         let (xa, xb) = (xa.clamp(l, l + w), xb.clamp(l, l + w));
         multiply_box(c, (xa, top), (xb, bottom), sh.colour);
     }
+}
+
+/// Spacing of [`shading_marks`], pixels.
+const SHADING_MARK_STEP: f64 = 20.0;
+
+/// Points over the shaded stretches, one every [`SHADING_MARK_STEP`]
+/// pixels each way, for the legend to keep clear of as of curve points (a
+/// review's centre-line plot had its legend over the shaded separated
+/// tail, which a free corner would have spared).
+fn shading_marks(plot: &LinePlot, f: &PlotFrame) -> Vec<(f64, f64)> {
+    let (l, t, w, h) = f.rect;
+    let mut marks = Vec::new();
+    for sh in &plot.shading {
+        let (top, bottom) = (t + sh.rows.0 * h, t + sh.rows.1 * h);
+        for &(a, b) in &sh.spans {
+            let (xa, _) = f.pixel_at(a.min(b), f.y_range.0);
+            let (xb, _) = f.pixel_at(a.max(b), f.y_range.0);
+            let (xa, xb) = (xa.clamp(l, l + w), xb.clamp(l, l + w));
+            let mut x = xa + 0.5 * SHADING_MARK_STEP;
+            while x < xb {
+                let mut y = top + 0.5 * SHADING_MARK_STEP;
+                while y < bottom {
+                    marks.push((x, y));
+                    y += SHADING_MARK_STEP;
+                }
+                x += SHADING_MARK_STEP;
+            }
+        }
+    }
+    marks
 }
 
 /// The off-scale curve: its points within the vertical axis joined by a
