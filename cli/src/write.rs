@@ -213,7 +213,8 @@ pub fn write_all(
         &crate::region::on_body(&case.file.regions, &geo.mesh).0,
         &geo.mesh,
     );
-    let pictures = pictures(&surface, &slices, &marks, &caption)?;
+    let holes = filled_hole_marks(&geo.mesh, &geo.report.repair.holes.filled);
+    let pictures = pictures(&surface, &slices, (&marks, &holes), &caption)?;
     for p in &pictures {
         std::fs::write(out.file(&p.0), &p.1.png).with_context(|| p.0.clone())?;
     }
@@ -232,11 +233,73 @@ pub fn write_all(
     Ok(summary)
 }
 
-/// The pictures of a run, with their file names.
+/// Holes the repair filled that [`filled_hole_marks`] outlines: at most
+/// this many, the largest (our choice: more names crowd the views).
+const FILLED_HOLES_SHOWN: usize = 5;
+
+/// A filled hole is outlined when its rim is at least this many panel
+/// edges long (our choice: a scan's pinholes, under a panel across, fill
+/// one panel's corner and would only scatter marks).
+const FILLED_HOLE_EDGES: f64 = 2.0;
+
+/// Outline colour of the holes the repair filled: a dark green, apart
+/// from the regions' blue and from both colour maps.
+const FILLED_HOLE_OUTLINE: output::outline::OutlineStyle = output::outline::OutlineStyle {
+    colour: [0, 110, 80],
+    halo: true,
+};
+
+/// The holes the repair filled, as marks for the pictures: the panels
+/// (and their mirror images) whose centroids lie within the hole's
+/// radius (its rim over 2 pi, at least 0.6 of a panel edge) of its
+/// centre, for the largest [`FILLED_HOLES_SHOWN`] holes whose rim is
+/// [`FILLED_HOLE_EDGES`] panel edges or longer, each named "filled hole":
+/// the surface there is the repair's guess, which the report names in
+/// words only (a review asked where on the car it was).
+fn filled_hole_marks(
+    mesh: &PanelMesh,
+    filled: &[tuft_mesh::repair::LoopInfo],
+) -> Vec<output::outline::RegionMark> {
+    let Some(edge) = tuft_mesh::quality::typical_edge(mesh.panels.iter().map(|p| p.area)) else {
+        return Vec::new();
+    };
+    let mut holes: Vec<&tuft_mesh::repair::LoopInfo> = filled
+        .iter()
+        .filter(|h| h.perimeter >= FILLED_HOLE_EDGES * edge)
+        .collect();
+    holes.sort_by(|a, b| b.perimeter.total_cmp(&a.perimeter));
+    holes.truncate(FILLED_HOLES_SHOWN);
+    let images = mesh.mirrors.symmetry;
+    holes
+        .into_iter()
+        .map(|h| {
+            let centre = tuft_mesh::Point::from(h.centre);
+            let radius = (h.perimeter / std::f64::consts::TAU).max(0.6 * edge);
+            let near = |c: &tuft_mesh::Point| (c - centre).norm() <= radius;
+            let real: Vec<bool> = mesh.panels.iter().map(|p| near(&p.centroid)).collect();
+            let mirrored = mesh.panels.iter().filter(|_| images).map(|p| {
+                let c = p.centroid;
+                near(&tuft_mesh::Point::new(c.x, -c.y, c.z))
+            });
+            let member: Vec<bool> = real.iter().copied().chain(mirrored).collect();
+            output::outline::RegionMark {
+                name: "filled hole".into(),
+                member,
+            }
+        })
+        .filter(|m| m.member.iter().any(|&x| x))
+        .collect()
+}
+
+/// The pictures of a run, with their file names; `marks`: the named
+/// regions and the holes the repair filled ([`filled_hole_marks`]).
 fn pictures(
     s: &SurfaceResult<'_>,
     slices: &[Slice],
-    marks: &[output::outline::RegionMark],
+    (marks, holes): (
+        &[output::outline::RegionMark],
+        &[output::outline::RegionMark],
+    ),
     caption: &Caption,
 ) -> Result<Vec<(String, Picture)>> {
     let mut out = Vec::new();
@@ -249,7 +312,17 @@ fn pictures(
             },
         ));
     };
-    let cp = sheet::surface_sheet(s, SurfaceField::Pressure, caption)?;
+    let mut cp = sheet::surface_sheet(s, SurfaceField::Pressure, caption)?;
+    let show_holes = |canvas: &mut output::canvas::Canvas| {
+        output::outline::draw_regions_styled(
+            canvas,
+            s.mesh,
+            holes,
+            FILLED_HOLE_OUTLINE,
+            caption.yaw_deg,
+        );
+    };
+    show_holes(&mut cp);
     add(
         "pressure.png",
         "Surface pressure coefficient: side, top, underneath, front and rear",
@@ -257,6 +330,7 @@ fn pictures(
     );
     let mut risk = sheet::surface_sheet(s, SurfaceField::SeparationRisk, caption)?;
     output::outline::draw_regions(&mut risk, s.mesh, marks, caption.yaw_deg);
+    show_holes(&mut risk);
     add(
         "separation-risk.png",
         "Separation risk, separated areas hatched",
@@ -264,6 +338,7 @@ fn pictures(
     );
     let mut flow = tufts::tuft_sheet(s, caption)?;
     output::outline::draw_regions(&mut flow, s.mesh, marks, caption.yaw_deg);
+    show_holes(&mut flow);
     add(
         "surface-flow.png",
         "Surface flow shown as tufts, separated areas crossed",

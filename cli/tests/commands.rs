@@ -837,3 +837,72 @@ fn an_interrupted_run_says_so_and_leaves_nothing_half_written() {
         "{left:?}"
     );
 }
+
+/// A hole the repair filled is outlined on the surface pictures and named
+/// there ("filled hole", in dark green): the surface there is the
+/// repair's guess, which the report had named in words only.
+#[test]
+fn a_filled_hole_is_outlined_on_the_pictures() {
+    let dir = tempfile::tempdir().unwrap();
+    // An ellipsoid 4 x 1.6 x 1.2 m with a hole about 0.3 m across cut in
+    // its flank, written in millimetres.
+    let body = tuft_mesh::generate::ellipsoid(2.0, 0.8, 0.6, 2000).unwrap();
+    let hole = tuft_mesh::Point::new(0.0, -0.8, 0.0);
+    let mut stl = vec![0u8; 80];
+    let kept: Vec<[u32; 3]> = body
+        .triangles
+        .iter()
+        .copied()
+        .filter(|t| {
+            let c = t
+                .iter()
+                .map(|&v| body.vertices[v as usize].coords)
+                .sum::<nalgebra::Vector3<f64>>()
+                / 3.0;
+            (tuft_mesh::Point::from(c) - hole).norm() > 0.15
+        })
+        .collect();
+    assert!(kept.len() < body.triangles.len());
+    stl.extend_from_slice(&(kept.len() as u32).to_le_bytes());
+    for t in &kept {
+        stl.extend_from_slice(&[0u8; 12]);
+        for &v in t {
+            let p = body.vertices[v as usize];
+            for k in 0..3 {
+                stl.extend_from_slice(&((1000.0 * p[k]) as f32).to_le_bytes());
+            }
+        }
+        stl.extend_from_slice(&[0u8; 2]);
+    }
+    std::fs::write(dir.path().join("holed.stl"), stl).unwrap();
+    std::fs::write(
+        dir.path().join("holed.toml"),
+        "[geometry]\nstl = \"holed.stl\"\npanels = 1500\n[ground]\nz = -0.75\n",
+    )
+    .unwrap();
+    let o = tuft(
+        dir.path(),
+        &["run", "holed.toml", "--quiet", "--threads", "1"],
+    );
+    assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
+    let summary: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("holed/summary.json")).unwrap(),
+    )
+    .unwrap();
+    let filled = &summary["mesh"]["preparation"]["repair"]["holes"]["filled"];
+    assert_eq!(
+        filled.as_array().map(Vec::len),
+        Some(1),
+        "the repair filled it"
+    );
+    let green = |file: &str| {
+        let pic = common::read_png(&std::fs::read(dir.path().join("holed").join(file)).unwrap());
+        pic.pixels
+            .chunks(pic.channels)
+            .filter(|p| p[..3] == [0, 110, 80])
+            .count()
+    };
+    for file in ["pressure.png", "separation-risk.png", "surface-flow.png"] {
+        assert!(green(file) > 100, "{file}: {}", green(file));
+    }
+}
