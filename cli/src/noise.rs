@@ -214,10 +214,7 @@ pub fn other_counts(target: usize, more_possible: bool) -> [usize; 2] {
 /// down.
 fn target_of(case: &Case, geo: &Geometry) -> (usize, bool) {
     match case.source {
-        GeometrySource::Shape { .. } => (
-            case.file.geometry.panels.unwrap_or(geometry::SHAPE_PANELS),
-            true,
-        ),
+        GeometrySource::Shape { .. } => (geometry::shape_panels(case), true),
         // A half model mirrored whole for a cross wind: the case's count
         // is the half's, the report's the whole's.
         GeometrySource::Stl { .. } => match &geo.report.coarsen {
