@@ -3308,9 +3308,10 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
                 )
             );
         }
-        // The axles add up to the lift as shown.
-        let [lift, front, rear] =
-            crate::output::lift_set([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
+        // The axles add up to the lift as shown, and their difference to
+        // the balance column.
+        let ([lift, front, rear], balance) =
+            crate::output::lift_set_and_balance([r.lift_kg, r.front_axle_kg, r.rear_axle_kg]);
         let _ = write!(
             s,
             "<td>{:.3}</td><td>{:.3}–{:.3}</td>",
@@ -3321,8 +3322,7 @@ fn ranking_table(s: &mut String, c: &Collected, by_wind: bool) {
         }
         let _ = write!(
             s,
-            "<td>{lift}</td><td>{front}</td><td>{rear}</td><td>{:+.0}</td><td>{:.3}</td>",
-            r.front_axle_kg - r.rear_axle_kg,
+            "<td>{lift}</td><td>{front}</td><td>{rear}</td><td>{balance}</td><td>{:.3}</td>",
             r.separated_area_m2,
         );
         for g in &c.regions {
@@ -3749,7 +3749,9 @@ mod tests {
     }
 
     /// The ranking table's axle loads add up to the lift as shown (a
-    /// review's row had read -85 with -41 and -43).
+    /// review's row had read -85 with -41 and -43), each its value
+    /// rounded, and the front less the rear reads as their difference (a
+    /// later review's -48 and -52 beside +5).
     #[test]
     fn the_tables_axle_loads_add_up() {
         let mut c = sweep(&[10.0]);
@@ -3757,7 +3759,14 @@ mod tests {
         (r.lift_kg, r.front_axle_kg, r.rear_axle_kg) = (-84.605, -41.224, -43.381);
         let html = shown(&c, &[]);
         assert!(
-            html.contains("<td>-85</td><td>-41</td><td>-44</td>"),
+            html.contains("<td>-84.6</td><td>-41.2</td><td>-43.4</td><td>+2.2</td>"),
+            "{html}"
+        );
+        let r = &mut c.variants[0];
+        (r.lift_kg, r.front_axle_kg, r.rear_axle_kg) = (-100.51, -48.4, -52.11);
+        let html = shown(&c, &[]);
+        assert!(
+            html.contains("<td>-100.5</td><td>-48.4</td><td>-52.1</td><td>+3.7</td>"),
             "{html}"
         );
     }

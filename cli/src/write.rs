@@ -1095,8 +1095,12 @@ fn report(
         }
     };
     let k = &s.coefficients;
-    let drag_counts =
-        output::total_and_parts([k.drag, k.drag_pressure, k.drag_friction].map(|c| 1000.0 * c));
+    let (units, places) = output::total_and_parts(
+        [k.drag, k.drag_pressure, k.drag_friction].map(|c| 1000.0 * c),
+        0,
+        1,
+    );
+    let drag_counts = units.map(|u| format!("{:.places$}", output::from_units(u, places)));
     let mut numbers = vec![
         // The drag rows in one unit, counts, with C_D beside the estimate
         // and its band; the parts add up to the estimate as shown.
@@ -1128,10 +1132,10 @@ fn report(
             } else {
                 "Drag, pressure part (plateau model)"
             },
-            &drag_counts[1].to_string(),
+            &drag_counts[1],
             "counts",
         ),
-        NumberRow::text("Drag, friction part", &drag_counts[2].to_string(), "counts"),
+        NumberRow::text("Drag, friction part", &drag_counts[2], "counts"),
         NumberRow::text(
             "Drag force (estimate, band)",
             &drag_force_words(&s.drag_estimate, 1.0, 0),

@@ -486,9 +486,11 @@ fn demo_writes_two_reports() {
             line.contains(&format!("; like runs scatter by about {noise:.1} kg)")) && noise > 0.0,
             "{line}"
         );
-        assert_eq!(total, front + rear, "{line}");
-        assert_eq!(under, uf + ur, "{line}");
-        assert_eq!(total, under + rest, "{line}");
+        // Each set adds up as shown (a decimal more where it takes one);
+        // the rest, rounded on its own, within the whole kg of the total.
+        assert!((total - (front + rear)).abs() < 1e-9, "{line}");
+        assert!((under - (uf + ur)).abs() < 1e-9, "{line}");
+        assert!((total - (under + rest)).abs() <= 0.5 + 1e-9, "{line}");
         assert!(line.contains("rest of the body +"), "{line}");
         assert!(!line.contains("of which"), "{line}");
     }

@@ -461,12 +461,52 @@ pub fn kg_places(values: &[f64]) -> usize {
     }
 }
 
+/// `v` in units of `places` decimals, rounded on its own (half away from
+/// zero).
+fn units_at(v: f64, places: usize) -> i64 {
+    (v * 10f64.powi(i32::try_from(places).unwrap_or(0))).round() as i64
+}
+
+/// A total and its parts (the first value the total), in units of the
+/// fewest decimals from `places` (at most `extra` more) at which the
+/// parts, each rounded on its own, add up to the total as shown (so each
+/// figure shown is its value rounded: 44.58 = 12.15 + 32.43 reads 44.6 =
+/// 12.2 + 32.4, where whole kg read "45 = 12 + 32", and largest-remainder
+/// rounding had shown -41.603 kg as -41 in one table and -41.6 in the
+/// next line, which a review could not cross-check); where none does, at `places` with the parts rounded by
+/// largest remainder ([`largest_remainder`], each within a unit of its
+/// value). Parts that do not add up to the total (within a hundredth of
+/// a unit) are each rounded on their own at `places`. The units and their
+/// decimals.
+pub fn total_and_parts<const N: usize>(
+    values: [f64; N],
+    places: usize,
+    extra: usize,
+) -> ([i64; N], usize) {
+    let scale = |p: usize| 10f64.powi(i32::try_from(p).unwrap_or(0));
+    let adds_up = values.split_first().is_some_and(|(&total, parts)| {
+        let sum: f64 = parts.iter().sum();
+        !parts.is_empty() && sum.is_finite() && (sum - total).abs() <= 0.01 / scale(places)
+    });
+    if !adds_up {
+        return (values.map(|v| units_at(v, places)), places);
+    }
+    let holds = |p: usize| {
+        values.split_first().is_some_and(|(&t, parts)| {
+            parts.iter().map(|&v| units_at(v, p)).sum::<i64>() == units_at(t, p)
+        })
+    };
+    match (places..=places + extra).find(|&p| holds(p)) {
+        Some(p) => (values.map(|v| units_at(v, p)), p),
+        None => (largest_remainder(values.map(|v| v * scale(places))), places),
+    }
+}
+
 /// A total and its parts (the first value the total), each in whole
 /// units: the total rounded, the parts rounded by largest remainder so that
-/// they add up to the rounded total (rounded each on its own, 44.58 =
-/// 12.15 + 32.43 read "45 = 12 + 32"). Parts that do not add up to the
+/// they add up to the rounded total. Parts that do not add up to the
 /// total (within a hundredth of a unit) are each rounded on their own.
-pub fn total_and_parts<const N: usize>(values: [f64; N]) -> [i64; N] {
+fn largest_remainder<const N: usize>(values: [f64; N]) -> [i64; N] {
     let mut units = values.map(|v| v.round() as i64);
     let Some((&total, parts)) = values.split_first() else {
         return units;
@@ -499,17 +539,20 @@ pub fn total_and_parts<const N: usize>(values: [f64; N]) -> [i64; N] {
 /// A total load in kg and its parts (front and rear axle) in the units of
 /// [`kg_places`] of the set, by [`total_and_parts`]; and those places.
 fn kg_units<const N: usize>(values: [f64; N]) -> ([i64; N], usize) {
-    kg_units_at(values, kg_places(&values))
+    kg_units_at(values, kg_places(&values), KG_EXTRA_PLACES)
 }
 
-/// As [`kg_units`] to `places` decimals.
-fn kg_units_at<const N: usize>(values: [f64; N], places: usize) -> ([i64; N], usize) {
-    let scale = 10f64.powi(i32::try_from(places).unwrap_or(0));
-    (total_and_parts(values.map(|v| v * scale)), places)
+/// Decimals a set of loads may add beyond [`kg_places`] for its parts to
+/// add up as shown.
+const KG_EXTRA_PLACES: usize = 1;
+
+/// As [`kg_units`] from `places` decimals, at most `extra` more.
+fn kg_units_at<const N: usize>(values: [f64; N], places: usize, extra: usize) -> ([i64; N], usize) {
+    total_and_parts(values, places, extra)
 }
 
 /// `units` of `places` decimals as a number, never "-0".
-fn from_units(units: i64, places: usize) -> f64 {
+pub fn from_units(units: i64, places: usize) -> f64 {
     // -0.0 + 0.0 is +0.0 (IEEE 754).
     units as f64 / 10f64.powi(i32::try_from(places).unwrap_or(0)) + 0.0
 }
@@ -532,7 +575,7 @@ pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
     if !countable(&values) {
         return values.map(|v| format!("{v:+.0}"));
     }
-    let (units, places) = kg_units_at(values, kg_places(&values).min(1));
+    let (units, places) = kg_units_at(values, kg_places(&values).min(1), 1);
     units.map(|u| format!("{:+.places$}", from_units(u, places)))
 }
 
@@ -553,6 +596,42 @@ pub fn lift_set<const N: usize>(values: [f64; N]) -> [String; N] {
     })
 }
 
+/// A lift and its axle shares as [`lift_set`] with the front less the
+/// rear beside them, signed, all rounded on their own to decimals at which
+/// both the sum and the difference read as shown (a review's table had
+/// shown -48 and -52 with a difference of +5).
+pub fn lift_set_and_balance(values: [f64; 3]) -> ([String; 3], String) {
+    let [total, front, rear] = values;
+    let balance = front - rear;
+    if !countable(&values) {
+        return (kg_set(values), format!("{balance:+.0}"));
+    }
+    let adds_up = (front + rear - total).abs() <= 0.01;
+    let places = kg_places(&values);
+    let found = (places..=places + KG_EXTRA_PLACES).find(|&p| {
+        let r = |v: f64| units_at(v, p);
+        (!adds_up || r(front) + r(rear) == r(total)) && r(front) - r(rear) == r(balance)
+    });
+    // Where no decimals do, the set as shown elsewhere and the balance as
+    // its axles shown make it.
+    let (units, p) = match found {
+        Some(p) => (values.map(|v| units_at(v, p)), p),
+        None => kg_units(values),
+    };
+    let words = |u: i64| {
+        let x = from_units(u, p);
+        if u > 0 {
+            format!("{x:+.p$}")
+        } else {
+            format!("{x:.p$}")
+        }
+    };
+    (
+        units.map(words),
+        format!("{:+.p$}", from_units(units[1] - units[2], p)),
+    )
+}
+
 /// Values the unit rounding of [`kg_units`] can hold: finite and far
 /// inside the integer range (a broken solution's NaN prints as NaN, not
 /// as 0).
@@ -561,20 +640,19 @@ fn countable(values: &[f64]) -> bool {
 }
 
 /// What is left of a total once a part is taken (the body's lift less its
-/// underbody's), from the two sets as [`kg_set`] shows them (each total
-/// first), signed, so that the three shown numbers add up: `"+145"` for
-/// -94.7 less -239.5, shown -95 and -240.
+/// underbody's), beside the two sets as [`kg_set`] shows them (each total
+/// first), signed: the difference rounded on its own, to the finer of the
+/// two sets' decimals (a review found +10.05 kg shown for 10.09, the
+/// difference of two rounded figures, which no output let it check):
+/// `"+145"` for -94.7 less -239.5, shown -95 and -240.
 pub fn kg_rest_signed(total: [f64; 3], part: [f64; 3]) -> String {
     if !countable(&total) || !countable(&part) {
         return format!("{:+.0}", total[0] - part[0]);
     }
-    let (t, tp) = kg_units(total);
-    let (p, pp) = kg_units(part);
-    let places = tp.max(pp);
-    let widen = |u: i64, from: usize| u * 10i64.pow(u32::try_from(places - from).unwrap_or(0));
+    let places = kg_units(total).1.max(kg_units(part).1);
     format!(
         "{:+.places$}",
-        from_units(widen(t[0], tp) - widen(p[0], pp), places)
+        from_units(units_at(total[0] - part[0], places), places)
     )
 }
 
@@ -676,7 +754,10 @@ mod tests {
     fn small_loads_keep_a_decimal_and_signs_no_negative_zero() {
         assert_eq!(kg_set([1.32, -0.48, 1.80]), ["1.3", "-0.5", "1.8"]);
         assert_eq!(kg_set([-95.4, -50.2, -45.2]), ["-95", "-50", "-45"]);
-        assert_eq!(kg_set_signed([0.02, -0.04, 0.06]), ["+0.0", "+0.0", "+0.0"]);
+        assert_eq!(
+            kg_set_signed([0.02, -0.04, 0.06]),
+            ["+0.02", "-0.04", "+0.06"]
+        );
         assert_eq!(kg_set_signed([44.0, -0.3, 44.3]), ["+44", "+0", "+44"]);
         assert_eq!(signed(-0.04, 1), "+0.0");
         assert_eq!(signed(-33.04, 1), "-33.0");
@@ -701,41 +782,76 @@ mod tests {
         assert_eq!(kg_rest_signed([f64::NAN, 0.0, 0.0], [1.0, 0.5, 0.5]), "NaN");
     }
 
+    /// Every figure is its value rounded on its own, with a decimal more
+    /// where that is what it takes for the parts to add up as shown: the
+    /// reviews' cases, a demo comparison (+44.58 = +12.15 + +32.43), a
+    /// sweep's row (-84.61 = -41.22 + -43.38) and an underbody (-242.31 =
+    /// -136.77 + -105.54), each of which rounded to whole kg had been one
+    /// kg off, and -41.603 kg, which largest-remainder rounding had shown
+    /// as -41.
     #[test]
     fn parts_add_up_to_the_total_as_shown() {
-        assert_eq!(kg_set_signed([44.58, 12.15, 32.43]), ["+45", "+12", "+33"]);
-        assert_eq!(kg_set([-84.605, -41.224, -43.381]), ["-85", "-41", "-44"]);
+        assert_eq!(
+            kg_set_signed([44.58, 12.15, 32.43]),
+            ["+44.6", "+12.2", "+32.4"]
+        );
+        assert_eq!(
+            kg_set([-84.605, -41.224, -43.381]),
+            ["-84.6", "-41.2", "-43.4"]
+        );
         assert_eq!(
             kg_set([-242.31, -136.77, -105.54]),
-            ["-242", "-137", "-105"]
+            ["-242.3", "-136.8", "-105.5"]
         );
-        assert_eq!(kg_set([1.26, 0.63, 0.63]), ["1.3", "0.7", "0.6"]);
+        assert_eq!(kg_set([1.26, 0.63, 0.63]), ["1.26", "0.63", "0.63"]);
+        assert_eq!(kg_set([-80.0, -41.603, -38.397]), ["-80", "-42", "-38"]);
         // Already adding up: as rounded one by one.
         assert_eq!(kg_set([-94.68, -48.09, -46.58]), ["-95", "-48", "-47"]);
-        // Exact halves of both parts: the first goes up.
-        assert_eq!(kg_set([21.0, 10.5, 10.5]), ["21", "11", "10"]);
+        assert_eq!(kg_set([21.0, 10.5, 10.5]), ["21.0", "10.5", "10.5"]);
         let parse = |t: &str| t.parse::<f64>().unwrap();
-        // Any split of any total adds up, to the unit of the set.
+        // Any split of any total adds up; nearly always each figure is its
+        // value rounded.
+        let mut correct = 0;
         for k in 0..2000 {
             let total = -300.0 + 0.3137 * f64::from(k);
             let front = total * (0.5 + 0.4 * (f64::from(k) * 0.7).sin());
             let shown = kg_set([total, front, total - front]);
+            let places = shown[0].split_once('.').map_or(0, |(_, d)| d.len());
+            let unit = 10f64.powi(-i32::try_from(places).unwrap());
             let [t, f, r] = shown.clone().map(|x| parse(&x));
             assert!((t - (f + r)).abs() < 1e-9, "{total} {front}: {shown:?}");
-            assert!((t - total).abs() <= 0.5 + 1e-9);
-            assert!(
-                (f - front).abs() < 1.0 && (r - (total - front)).abs() < 1.0,
-                "{shown:?}"
+            // Within half a unit, or within one where largest remainder
+            // had to make them add up.
+            for (v, x) in [(t, total), (f, front), (r, total - front)] {
+                assert!((v - x).abs() < unit, "{shown:?}");
+            }
+            correct += usize::from(
+                [(t, total), (f, front), (r, total - front)]
+                    .iter()
+                    .all(|(v, x)| (v - x).abs() <= 0.5 * unit + 1e-9),
             );
         }
-        // The rest of the body beside its underbody, in the same units.
+        assert!(correct > 1800, "{correct} of 2000 rounded on their own");
+        // The rest of the body beside its underbody, rounded on its own.
         assert_eq!(
             kg_rest_signed([-94.68, -48.09, -46.58], [-239.54, -133.65, -105.89]),
             "+145"
         );
+        // A review's slant-back body: 0.25 less -9.84, +10.09, not +10.05.
+        assert_eq!(
+            kg_rest_signed([0.25, 0.1, 0.15], [-9.84, -5.0, -4.84]),
+            "+10.09"
+        );
         assert_eq!(
             kg_rest_signed([1.32, -0.48, 1.80], [-12.4, -7.0, -5.4]),
-            "+13.3"
+            "+13.7"
+        );
+        // The balance beside the axles reads as their difference.
+        let ([l, f, r], b) = lift_set_and_balance([-100.51, -48.4, -52.11]);
+        let [l, f, r, b] = [l, f, r, b].map(|x| parse(&x));
+        assert!(
+            (f + r - l).abs() < 1e-9 && (f - r - b).abs() < 1e-9,
+            "{l} {f} {r} {b}"
         );
     }
 
@@ -746,6 +862,6 @@ mod tests {
         assert_eq!(kg_set([-0.3, -94.53, 12.5]), ["0", "-95", "13"]);
         // Lift words carry their signs, a zero none.
         assert_eq!(lift_set([-0.3, -94.53, 12.5]), ["0", "-95", "+13"]);
-        assert_eq!(lift_set([15.2, -40.4, 55.6]), ["+15", "-40", "+55"]);
+        assert_eq!(lift_set([15.2, -40.4, 55.6]), ["+15.2", "-40.4", "+55.6"]);
     }
 }
