@@ -245,6 +245,17 @@ pub struct Side {
     pub separated_area_m2: f64,
     /// Speed, m/s.
     pub speed: f64,
+    /// Reference area its coefficients are on, m^2 (the drag difference
+    /// in counts is taken on A's, [`Deltas::drag_counts`]: a review could
+    /// not rebuild it from the two C_D without it).
+    #[serde(default)]
+    pub reference_area_m2: f64,
+    /// Front- and rear-axle lift, kg (at its own speed, as `lift_kg`).
+    #[serde(default)]
+    pub front_axle_kg: f64,
+    /// Rear-axle lift, kg.
+    #[serde(default)]
+    pub rear_axle_kg: f64,
     /// The run's panel noise, when it measured one (`tuft run --noise`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub panel_noise: Option<crate::noise::PanelNoise>,
@@ -567,6 +578,9 @@ fn side(r: &ResultFolder) -> Side {
         lift_kg: s.lift_kg.total,
         separated_area_m2: s.separation.area_m2,
         speed: speed_of(s),
+        reference_area_m2: s.reference.area_m2,
+        front_axle_kg: s.lift_kg.front_axle,
+        rear_axle_kg: s.lift_kg.rear_axle,
         panel_noise: s.panel_noise.clone(),
     }
 }
