@@ -1477,16 +1477,13 @@ pub fn base_corner_warning(
         return None;
     }
     let c = mesh.panels[worst].centroid;
+    // "about 1 count", not "1 counts" (a review).
+    let n = format!("{:.0}", 1000.0 * push.abs());
+    let counts = if n == "1" { "count" } else { "counts" };
     let effect = if push >= 0.0 {
-        format!(
-            "takes about {:.0} counts off the drag estimate",
-            1000.0 * push
-        )
+        format!("takes about {n} {counts} off the drag estimate")
     } else {
-        format!(
-            "adds about {:.0} counts to the drag estimate",
-            -1000.0 * push
-        )
+        format!("adds about {n} {counts} to the drag estimate")
     };
     Some(format!(
         "{} {BASE_CORNER_WORDS} {:.2} (near x {:.3}, y {:.3}, z {:.3} m), \
