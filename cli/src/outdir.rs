@@ -192,12 +192,12 @@ fn foreign_entries(dir: &Path) -> Result<Vec<String>> {
         .flatten()
         .filter_map(|e| {
             let name = e.file_name().to_string_lossy().into_owned();
-            let ours = e.file_type().is_ok_and(|t| t.is_file())
-                && Path::new(&name)
-                    .extension()
-                    .is_some_and(|x| RESULT_EXTENSIONS.iter().any(|r| x.eq_ignore_ascii_case(r)));
-            (!ours && !(name.starts_with('.') && e.file_type().is_ok_and(|t| t.is_file())))
-                .then_some(name)
+            let file = e.file_type().is_ok_and(|t| t.is_file());
+            let result = Path::new(&name)
+                .extension()
+                .is_some_and(|x| RESULT_EXTENSIONS.iter().any(|r| x.eq_ignore_ascii_case(r)));
+            let hidden = name.starts_with('.');
+            (!(file && (result || hidden))).then_some(name)
         })
         .collect();
     foreign.sort();
