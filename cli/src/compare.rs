@@ -352,14 +352,17 @@ pub fn region_changes(
 }
 
 /// Where two runs' named regions differ most in separated area, in words
-/// ("on the boot deck, 66 % against 85 % separated"), among those whose
+/// ("on the boot deck, 66 % separated in A against 85 % in B"), among those whose
 /// share moved by at least [`crate::region::VERDICT_NOISE`] (5 points) or
 /// whose separated area moved by [`SEPARATED_AREA_SHIFT`] of the larger;
 /// `None` when none did. A region whose own area changed is named by its
 /// areas (a review's square-cut tail moved forward: the base, separated
 /// all over in both, grew from 0.47 to 1.15 m^2, while the verdict named
 /// the rear underbody, 26 against 17 %).
-fn largest_region_change(regions: &[RegionChange]) -> Option<String> {
+/// The two runs are called by `names` (A's, B's): in `collect`'s verdict
+/// the leader is named first, and a review read "0.38 against 0.00" as
+/// the leader's when it was the runner-up's.
+fn largest_region_change(regions: &[RegionChange], [na, nb]: [&str; 2]) -> Option<String> {
     let moved_m2 = |r: &RegionChange| {
         let [a, b] = r.separated_m2();
         (b - a).abs()
@@ -376,11 +379,15 @@ fn largest_region_change(regions: &[RegionChange]) -> Option<String> {
             if r.area_moved() {
                 let [a, b] = r.separated_m2();
                 format!(
-                    "on the {}, {a:.2} against {b:.2} m^2 separated, {fa:.0} % against {fb:.0} % of it",
+                    "on the {}, {a:.2} m^2 separated in {na} against {b:.2} m^2 in {nb}, {fa:.0} % \
+                     against {fb:.0} % of it",
                     r.name
                 )
             } else {
-                format!("on the {}, {fa:.0} % against {fb:.0} % separated", r.name)
+                format!(
+                    "on the {}, {fa:.0} % separated in {na} against {fb:.0} % in {nb}",
+                    r.name
+                )
             }
         })
 }
@@ -697,7 +704,7 @@ pub fn comparison_named(
     };
     let model_notes: Vec<String> = separation.into_iter().chain(rims).chain(slope).collect();
     let regions = region_changes(&a.summary, &b.summary);
-    let place = largest_region_change(&regions);
+    let place = largest_region_change(&regions, names);
     let mut drag = drag_verdict_named(
         &a.summary,
         &b.summary,
@@ -2405,10 +2412,10 @@ mod tests {
             change("boot deck", 0.66, 0.85),
         ];
         assert_eq!(
-            largest_region_change(&regions).as_deref(),
-            Some("on the boot deck, 66 % against 85 % separated")
+            largest_region_change(&regions, ["A", "B"]).as_deref(),
+            Some("on the boot deck, 66 % separated in A against 85 % in B")
         );
-        assert_eq!(largest_region_change(&regions[..1]), None);
+        assert_eq!(largest_region_change(&regions[..1], ["A", "B"]), None);
         // A tail cut shorter: the base grows, separated all over in both,
         // by more separated area than the underbody's share moves.
         let cut = [
@@ -2416,8 +2423,10 @@ mod tests {
             sized("base", (1.0, 1.0), [0.47, 1.15]),
         ];
         assert_eq!(
-            largest_region_change(&cut).as_deref(),
-            Some("on the base, 0.47 against 1.15 m^2 separated, 100 % against 100 % of it")
+            largest_region_change(&cut, ["long", "cut"]).as_deref(),
+            Some(
+                "on the base, 0.47 m^2 separated in long against 1.15 m^2 in cut, 100 % against 100 % of it"
+            )
         );
     }
 
