@@ -463,13 +463,21 @@ pub(crate) fn floor_z(mesh: &PanelMesh) -> Option<f64> {
 /// ramp 4 degrees and more (reviews swept 4 to 14).
 const FLAT_FLOOR_DEG: f64 = 3.0;
 
+/// How far above the lowest surface facing down at its place along the
+/// body a flat panel facing down still counts as floor for
+/// [`floor_heights`], as a share of the body's height (our choice: a
+/// floor's panels within one place lie within millimetres of each other;
+/// a roof box's underside lies a body's height above).
+const FLOOR_LAYER_SHARE: f64 = 0.05;
+
 /// The floor's height above the ground at each of two axles, m: the line
 /// fitted (by area, least squares) through the flat floor on the centre
 /// line (surface facing down and sloping by under [`FLAT_FLOOR_DEG`],
 /// within a fortieth of the body's length of the centre, between the
 /// axles and that far beyond), read at each axle; where that floor spans
 /// under half the wheelbase, the lowest surface facing down on the centre
-/// line within a fortieth of the length of each axle. `None` in free air
+/// line within a fortieth of the length of each axle; only the lowest such
+/// surface at each place ([`FLOOR_LAYER_SHARE`]). `None` in free air
 /// or with no surface facing down there. A rake study's variants had only
 /// their lowest points to tell them apart (a review's 1-degree rake read
 /// "26 mm lower" where the front had dropped 26 mm and the rear risen 22).
@@ -495,6 +503,23 @@ fn floor_heights(mesh: &PanelMesh, axles: [f64; 2]) -> Option<[f64; 2]> {
             -p.normal.z >= flat && p.centroid.x >= front - reach && p.centroid.x <= rear + reach
         })
         .map(|p| (p.centroid.x, p.centroid.z - g, p.area))
+        .collect();
+    // The lowest surface facing down at each place along the body only:
+    // the underside of a roof box or a roof bar on the centre line faces
+    // down and is flat too (a review's roof box had read the floor at 110
+    // and 919 mm, 16 degrees nose down, over a level 151 mm floor).
+    let layer = FLOOR_LAYER_SHARE * (hi.z - lo.z);
+    let lowest_near = |x: f64| {
+        floor
+            .iter()
+            .filter(|f| (f.0 - x).abs() <= reach)
+            .map(|f| f.1)
+            .fold(f64::INFINITY, f64::min)
+    };
+    let floor: Vec<(f64, f64, f64)> = floor
+        .iter()
+        .copied()
+        .filter(|f| f.1 <= lowest_near(f.0) + layer)
         .collect();
     let (x0, x1) = floor
         .iter()
@@ -1562,6 +1587,44 @@ mod tests {
         let rake = (r - f).atan2(axles[1] - axles[0]).to_degrees();
         assert!((rake - 1.0).abs() < 0.02, "rake {rake}");
         assert!((r - (0.05 + lift)).abs() < 1e-3, "rear {r}");
+        // A roof box over the rear half, its flat underside facing down on
+        // the centre line 0.36 m up: not floor (a review's had read the
+        // floor 16 degrees nose down).
+        let corners: Vec<Point3<f64>> = (0..8)
+            .map(|k| {
+                Point3::new(
+                    0.55 + 0.3 * f64::from(k & 1),
+                    -0.1 + 0.2 * f64::from((k >> 1) & 1),
+                    0.36 + 0.06 * f64::from((k >> 2) & 1),
+                )
+            })
+            .collect();
+        let n = body.vertices.len() as u32;
+        let mut vertices = body.vertices.clone();
+        vertices.extend(corners);
+        let mut triangles = body.triangles.clone();
+        for t in [
+            [0, 2, 1],
+            [1, 2, 3],
+            [4, 5, 6],
+            [5, 7, 6],
+            [0, 1, 4],
+            [1, 5, 4],
+            [2, 6, 3],
+            [3, 6, 7],
+            [0, 4, 2],
+            [2, 4, 6],
+            [1, 3, 5],
+            [3, 7, 5],
+        ] {
+            triangles.push(t.map(|v: u32| v + n));
+        }
+        let boxed = PanelMesh::new(TriMesh::new(vertices, triangles).unwrap(), ground).unwrap();
+        let [f, r] = floor_heights(&boxed, axles).unwrap();
+        assert!(
+            (f - 0.05).abs() < 1e-4 && (r - 0.05).abs() < 1e-4,
+            "front {f}, rear {r} under a roof box"
+        );
     }
 
     /// The force band scales the central force by the band's coefficients
