@@ -143,7 +143,14 @@ fn remove_stale(parent: &Path, leaf: &str) {
         let Some(pid) = name.strip_prefix(&prefix) else {
             continue;
         };
-        let alive = || Path::new("/proc").join(pid).exists();
+        // A zombie (killed, not yet reaped: a review's next run started at
+        // once after `kill -9`) is gone too.
+        let alive = || {
+            std::fs::read_to_string(Path::new("/proc").join(pid).join("stat")).is_ok_and(|stat| {
+                stat.rsplit_once(')')
+                    .is_none_or(|(_, rest)| rest.trim_start().chars().next() != Some('Z'))
+            })
+        };
         if pid.parse::<u32>().is_ok() && Path::new("/proc/self").exists() && !alive() {
             std::fs::remove_dir_all(e.path()).ok();
         }
@@ -183,8 +190,8 @@ impl Kind {
 /// folder, had lost the case and the STL of the run being made).
 const RESULT_EXTENSIONS: [&str; 7] = ["json", "html", "csv", "png", "vtu", "vtp", "vti"];
 
-/// Up to three entries of `dir` that tuft does not write into a result
-/// folder (hidden files, such as a file manager's, are not counted).
+/// The entries of `dir` that tuft does not write into a result folder (a
+/// file manager's `.DS_Store` and `._` files are not counted).
 fn foreign_entries(dir: &Path) -> Result<Vec<String>> {
     let entries = std::fs::read_dir(dir)
         .with_context(|| format!("{}: cannot read the folder", dir.display()))?;
@@ -196,8 +203,11 @@ fn foreign_entries(dir: &Path) -> Result<Vec<String>> {
             let result = Path::new(&name)
                 .extension()
                 .is_some_and(|x| RESULT_EXTENSIONS.iter().any(|r| x.eq_ignore_ascii_case(r)));
-            let hidden = name.starts_with('.');
-            (!(file && (result || hidden))).then_some(name)
+            // A file manager's own files only; any other hidden file may be
+            // the user's (a review's `.notes.md`, and an STL kept as
+            // `.scan.stl`, had gone with the old results).
+            let metadata = name == ".DS_Store" || name.starts_with("._");
+            (!(file && (result || metadata))).then_some(name)
         })
         .collect();
     foreign.sort();

@@ -295,30 +295,12 @@ pub struct Summary {
 }
 
 impl LiftKg {
-    /// Total, front and rear axle in words, to the decimals of
-    /// [`crate::output::kg_set`], the axles adding up to the total, each
-    /// signed by [`crate::output::lift_set`] (lift `+`, downforce `-`, zero
-    /// unsigned; a review read "15 kg (front -40, rear 55)" beside
-    /// "+161 kg" for the rest of the body).
-    pub fn axle_words(&self) -> [String; 3] {
-        crate::output::lift_set([self.total, self.front_axle, self.rear_axle])
-    }
-
-    /// The underbody's part, front and rear, in words as
-    /// [`Self::axle_words`].
-    pub fn underbody_axle_words(&self) -> [String; 3] {
-        crate::output::lift_set([
-            self.underbody,
-            self.underbody_front_axle,
-            self.underbody_rear_axle,
-        ])
-    }
-
-    /// The rest of the body's lift (the total less the underbody's),
-    /// signed, so that it adds up with [`Self::axle_words`]' total and
-    /// [`Self::underbody_axle_words`]' as shown.
-    pub fn rest_words(&self) -> String {
-        crate::output::kg_rest_signed(
+    /// The lift, its underbody's part and the rest of the body's, each
+    /// with its front and rear axle shares, in words
+    /// ([`crate::output::lift_family`]: one set of decimals at which every
+    /// figure is its value rounded and every sum reads as shown).
+    fn family(&self) -> [[String; 3]; 3] {
+        crate::output::lift_family(
             [self.total, self.front_axle, self.rear_axle],
             [
                 self.underbody,
@@ -326,6 +308,37 @@ impl LiftKg {
                 self.underbody_rear_axle,
             ],
         )
+    }
+
+    /// Total, front and rear axle in words, the axles adding up to the
+    /// total, each signed (lift `+`, downforce `-`, zero unsigned; a
+    /// review read "15 kg (front -40, rear 55)" beside "+161 kg" for the
+    /// rest of the body), to the decimals of [`Self::family`].
+    pub fn axle_words(&self) -> [String; 3] {
+        let [t, _, _] = self.family();
+        t
+    }
+
+    /// The underbody's part, front and rear, in words as
+    /// [`Self::axle_words`].
+    pub fn underbody_axle_words(&self) -> [String; 3] {
+        let [_, u, _] = self.family();
+        u
+    }
+
+    /// The rest of the body's lift (the total less the underbody's), whole
+    /// body, front and rear axle, signed, adding up with
+    /// [`Self::axle_words`] and [`Self::underbody_axle_words`] as shown.
+    pub fn rest_axle_words(&self) -> [String; 3] {
+        let [_, _, r] = self.family();
+        r
+    }
+
+    /// The rest of the body's lift, whole body, as
+    /// [`Self::rest_axle_words`].
+    pub fn rest_words(&self) -> String {
+        let [_, _, [r, _, _]] = self.family();
+        r
     }
 }
 

@@ -1053,14 +1053,9 @@ pub fn lift_sign_caution(s: &Summary) -> Option<String> {
 }
 
 fn floor_sign_words(l: &crate::summary::LiftKg) -> String {
-    // The rest as the numbers shown beside it make it, so they add up.
-    let (total, under) = (l.axle_words(), l.underbody_axle_words());
-    let shown = |w: &str| w.parse::<f64>().unwrap_or(f64::NAN);
-    let places = |w: &str| w.split('.').nth(1).map_or(0, str::len);
-    let rest = |k: usize| match k {
-        0 => l.rest_words(),
-        _ => output::signed(shown(&total[k]) - shown(&under[k]), places(&total[k])),
-    };
+    // The rest as shown beside the total and the underbody, adding up.
+    let rests = l.rest_axle_words();
+    let rest = |k: usize| rests[k].clone();
     let flipped: Vec<(&str, String)> = [
         ("the whole body", l.total, l.underbody),
         ("the front axle", l.front_axle, l.underbody_front_axle),

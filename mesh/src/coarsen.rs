@@ -272,6 +272,14 @@ pub fn coarsen_with_params(
                     }
                     continue;
                 }
+                // Which try the panels come from, after the refusals (a
+                // review read eight refused tries, then "coarsened to
+                // 3500", and could not tell what was used).
+                if !notes.is_empty() {
+                    notes.push(format!(
+                        "the try at {target} panels{how} passed and is used"
+                    ));
+                }
                 remove_unused_vertices(&mut coarse);
                 result = Some(coarse);
                 break;

@@ -632,28 +632,68 @@ pub fn lift_set_and_balance(values: [f64; 3]) -> ([String; 3], String) {
     )
 }
 
+/// A lift with its axle shares `t`, its underbody's part `u` (each total
+/// first) and the rest of the body's (`t` less `u`), all to one set of
+/// decimals at which each figure is its value rounded and every sum and
+/// difference reads as shown (two reviews: the rest shown as +10.05 kg for
+/// 10.09 when taken from the rounded figures, and as +10.109 beside 0.319
+/// and -9.8 when rounded on its own); where no such decimals are near,
+/// `t` and `u` as [`lift_set`] shows them and the rest as their shown
+/// difference. The totals and axles signed as [`lift_set`]'s, the rest
+/// always signed.
+pub fn lift_family(t: [f64; 3], u: [f64; 3]) -> [[String; 3]; 3] {
+    let rest = [0, 1, 2].map(|k| t[k] - u[k]);
+    let lift_words = |v: i64, p: usize| {
+        let x = from_units(v, p);
+        if v > 0 {
+            format!("{x:+.p$}")
+        } else {
+            format!("{x:.p$}")
+        }
+    };
+    if !countable(&t) || !countable(&u) {
+        return [lift_set(t), lift_set(u), rest.map(|r| format!("{r:+.0}"))];
+    }
+    let floorless = u.iter().all(|v| v.abs() < 0.005);
+    let base = if floorless {
+        kg_places(&t)
+    } else {
+        kg_places(&t).max(kg_places(&u))
+    };
+    let adds = |x: [f64; 3]| (x[1] + x[2] - x[0]).abs() <= 0.01;
+    let (ta, ua) = (adds(t), adds(u));
+    let found = (base..=base + KG_EXTRA_PLACES).find(|&p| {
+        let r = |v: f64| units_at(v, p);
+        (!ta || r(t[1]) + r(t[2]) == r(t[0]))
+            && (!ua || r(u[1]) + r(u[2]) == r(u[0]))
+            && (0..3).all(|k| r(t[k]) - r(u[k]) == r(rest[k]))
+    });
+    let (tu, tp, uu, up) = match found {
+        Some(p) => (t.map(|v| units_at(v, p)), p, u.map(|v| units_at(v, p)), p),
+        None => {
+            let ((tu, tp), (uu, up)) = (kg_units(t), kg_units(u));
+            (tu, tp, uu, up)
+        }
+    };
+    let p = tp.max(up);
+    let widen = |v: i64, from: usize| v * 10i64.pow(u32::try_from(p - from).unwrap_or(0));
+    [
+        tu.map(|v| lift_words(v, tp)),
+        uu.map(|v| lift_words(v, up)),
+        [0, 1, 2].map(|k| {
+            format!(
+                "{:+.p$}",
+                from_units(widen(tu[k], tp) - widen(uu[k], up), p)
+            )
+        }),
+    ]
+}
+
 /// Values the unit rounding of [`kg_units`] can hold: finite and far
 /// inside the integer range (a broken solution's NaN prints as NaN, not
 /// as 0).
 fn countable(values: &[f64]) -> bool {
     values.iter().all(|v| v.is_finite() && v.abs() < 1e12)
-}
-
-/// What is left of a total once a part is taken (the body's lift less its
-/// underbody's), beside the two sets as [`kg_set`] shows them (each total
-/// first), signed: the difference rounded on its own, to the finer of the
-/// two sets' decimals (a review found +10.05 kg shown for 10.09, the
-/// difference of two rounded figures, which no output let it check):
-/// `"+145"` for -94.7 less -239.5, shown -95 and -240.
-pub fn kg_rest_signed(total: [f64; 3], part: [f64; 3]) -> String {
-    if !countable(&total) || !countable(&part) {
-        return format!("{:+.0}", total[0] - part[0]);
-    }
-    let places = kg_units(total).1.max(kg_units(part).1);
-    format!(
-        "{:+.places$}",
-        from_units(units_at(total[0] - part[0], places), places)
-    )
 }
 
 /// Why an output could not be written.
@@ -779,7 +819,10 @@ mod tests {
     fn a_load_that_is_no_number_prints_as_such() {
         assert_eq!(kg_set([f64::NAN, 1.0, 2.0])[0], "NaN");
         assert_eq!(kg_set_signed([f64::INFINITY, 1.0, 2.0])[0], "+inf");
-        assert_eq!(kg_rest_signed([f64::NAN, 0.0, 0.0], [1.0, 0.5, 0.5]), "NaN");
+        assert_eq!(
+            lift_family([f64::NAN, 0.0, 0.0], [1.0, 0.5, 0.5])[2][0],
+            "NaN"
+        );
     }
 
     /// Every figure is its value rounded on its own, with a decimal more
@@ -832,19 +875,38 @@ mod tests {
             );
         }
         assert!(correct > 1800, "{correct} of 2000 rounded on their own");
-        // The rest of the body beside its underbody, rounded on its own.
+        // The lift, its underbody and the rest of the body, with their
+        // axles: each figure its value rounded, every sum as shown.
+        let family = |t: [f64; 3], u: [f64; 3]| lift_family(t, u).map(|set| set.map(|x| parse(&x)));
+        for (t, u) in [
+            ([-94.68, -48.09, -46.59], [-239.54, -133.65, -105.89]),
+            // A review's slant-back body: 0.25 less -9.84, +10.09, not +10.05.
+            ([0.25, 0.1, 0.15], [-9.84, -5.0, -4.84]),
+            ([1.32, -0.48, 1.80], [-12.4, -7.0, -5.4]),
+            ([0.319, -0.63, 0.949], [-9.79, -8.31, -1.48]),
+        ] {
+            let [ts, us, rs] = family(t, u);
+            for k in 0..3 {
+                assert!((ts[k] - us[k] - rs[k]).abs() < 1e-9, "{ts:?} {us:?} {rs:?}");
+            }
+            assert!((ts[1] + ts[2] - ts[0]).abs() < 1e-9 && (us[1] + us[2] - us[0]).abs() < 1e-9);
+            let shown = &lift_family(t, u)[2][0];
+            let places = shown.split_once('.').map_or(0, |(_, d)| d.len());
+            let unit = 10f64.powi(-i32::try_from(places).unwrap());
+            assert!((rs[0] - (t[0] - u[0])).abs() < unit, "{rs:?}");
+        }
         assert_eq!(
-            kg_rest_signed([-94.68, -48.09, -46.58], [-239.54, -133.65, -105.89]),
-            "+145"
-        );
-        // A review's slant-back body: 0.25 less -9.84, +10.09, not +10.05.
-        assert_eq!(
-            kg_rest_signed([0.25, 0.1, 0.15], [-9.84, -5.0, -4.84]),
+            lift_family([0.25, 0.1, 0.15], [-9.84, -5.0, -4.84])[2][0],
             "+10.09"
         );
         assert_eq!(
-            kg_rest_signed([1.32, -0.48, 1.80], [-12.4, -7.0, -5.4]),
-            "+13.7"
+            lift_family([-94.68, -48.09, -46.59], [-239.54, -133.65, -105.89])[2][0],
+            "+145"
+        );
+        // In free air (no underbody) a car's lift keeps whole kg.
+        assert_eq!(
+            lift_family([-95.4, -50.2, -45.2], [0.0; 3])[0],
+            ["-95", "-50", "-45"]
         );
         // The balance beside the axles reads as their difference.
         let ([l, f, r], b) = lift_set_and_balance([-100.51, -48.4, -52.11]);

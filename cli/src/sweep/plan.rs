@@ -433,12 +433,18 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
             bail!("vary #{}: key \"{}\" is varied twice", k + 1, v.key);
         }
         // A value listed twice would run the same variant twice (a
-        // review's [30.0, 30.0] ran as speed-30-1 and speed-30-2).
+        // review's [30.0, 30.0] ran as speed-30-1 and speed-30-2; 20 and
+        // 20.0 are one value too).
+        let number = |x: &toml::Value| x.as_float().or_else(|| x.as_integer().map(|i| i as f64));
+        let same = |a: &toml::Value, b: &toml::Value| match (number(a), number(b)) {
+            (Some(p), Some(q)) => p == q,
+            _ => a == b,
+        };
         if let Some((i, twice)) = v
             .values
             .iter()
             .enumerate()
-            .find(|(i, x)| v.values[..*i].contains(x))
+            .find(|(i, x)| v.values[..*i].iter().any(|y| same(x, y)))
         {
             bail!(
                 "vary #{} (key \"{}\"): the value {twice} is listed twice (values {} and {}), which \
@@ -447,7 +453,7 @@ fn check_vary(vary: &[Vary]) -> Result<Vec<(String, Vec<Pairs>)>> {
                 v.key,
                 v.values
                     .iter()
-                    .position(|x| x == twice)
+                    .position(|x| same(x, twice))
                     .map_or(0, |p| p + 1),
                 i + 1
             );
@@ -1182,6 +1188,10 @@ mod tests {
             e.contains("the value 30.0 is listed twice (values 2 and 3)"),
             "{e}"
         );
+        let e = refusal(&format!(
+            "{BASE}[[vary]]\nkey = \"speed\"\nvalues = [30, 30.0]\n"
+        ));
+        assert!(e.contains("is listed twice (values 1 and 2)"), "{e}");
     }
 
     #[test]
