@@ -36,8 +36,11 @@ pub struct CheckArgs {
     pub ground: Option<f64>,
     /// Coarsen to about N panels (default: the case file's
     /// geometry.panels, or the suggested count).
-    #[arg(long, value_name = "N")]
-    pub panels: Option<usize>,
+    /// (A negative count reaches the range check as a number, not as an
+    /// unknown option: a review's `--panels -500` read "unexpected
+    /// argument".)
+    #[arg(long, value_name = "N", allow_negative_numbers = true)]
+    pub panels: Option<i64>,
     /// Where the file's nose points: -x (tuft's axes) or +x (ISO 8855
     /// vehicle axes, x forward).
     #[arg(long, value_name = "-x|+x", allow_hyphen_values = true)]
@@ -59,6 +62,13 @@ pub struct CheckArgs {
     /// No progress messages on stderr (errors still print).
     #[arg(short, long)]
     pub quiet: bool,
+}
+
+impl CheckArgs {
+    /// `--panels` as a count (checked to lie in 100 to 200,000 first).
+    fn panel_count(&self) -> Option<usize> {
+        self.panels.and_then(|n| usize::try_from(n).ok())
+    }
 }
 
 /// Run `tuft check`. With `--json`, a file or case that cannot be read,
@@ -121,7 +131,7 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             if set.len() == 1 { "applies" } else { "apply" }
         );
         let mut case = crate::case::Case::load(&args.file)?;
-        case.file.geometry.panels = args.panels.or(case.file.geometry.panels);
+        case.file.geometry.panels = args.panel_count().or(case.file.geometry.panels);
         let (file, params) = match &case.source {
             crate::case::GeometrySource::Shape { name } => return check_shape(args, &case, name),
             crate::case::GeometrySource::Stl { path, unit, axes } => {
@@ -475,7 +485,7 @@ fn settings(args: &CheckArgs) -> anyhow::Result<PrepareParams> {
             ground: args.ground,
             symmetry: args.half,
         },
-        target_panels: args.panels,
+        target_panels: args.panel_count(),
         measure_symmetry: true,
         ..PrepareParams::default()
     })

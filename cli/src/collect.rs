@@ -958,6 +958,12 @@ pub fn collect(dir: &Path) -> Result<Collected> {
                 dir.display()
             );
         }
+        if dir.join("compare.json").is_file() {
+            bail!(
+                "{}: is a comparison, not a sweep: collect ranks the variants of a tuft sweep",
+                dir.display()
+            );
+        }
         bail!("{}: no finished sweep variants here", dir.display());
     }
     let mut variants = rank(rows);

@@ -408,7 +408,16 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     let a = ResultFolder::read(&args.a)?;
     let b = ResultFolder::read(&args.b)?;
     let out = args.out.clone().unwrap_or_else(|| default_out(&a, &b));
-    if let Ok(po) = out.canonicalize() {
+    // The folder or, before it exists, its nearest existing parent (a
+    // review's `--out A/sub` wrote into run A).
+    let existing = out
+        .ancestors()
+        .find(|p| !p.as_os_str().is_empty() && p.exists())
+        .map_or_else(
+            || std::path::PathBuf::from("."),
+            std::path::Path::to_path_buf,
+        );
+    if let Ok(po) = existing.canonicalize() {
         for input in [&args.a, &args.b] {
             anyhow::ensure!(
                 !input.canonicalize().is_ok_and(|p| po.starts_with(p)),

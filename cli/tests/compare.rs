@@ -145,6 +145,13 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
             "{onto:?}"
         );
     }
+    let inside = format!("{a}/sub");
+    let onto = Command::new(TUFT)
+        .args(["compare", &a, &b, "--out", &inside, "--quiet"])
+        .output()
+        .unwrap();
+    assert_eq!(onto.status.code(), Some(2), "{onto:?}");
+    assert!(!Path::new(&inside).exists());
     assert!(Path::new(&a).join("summary.json").is_file(), "run A stays");
     // Against a copy of itself every difference is exactly zero (the
     // mapping of a panel set onto itself is the identity) and no winner is
