@@ -129,7 +129,7 @@ fn ascii_with_a_misspelt_keyword_names_its_line() {
     assert!(
         e.starts_with(&format!(
             "facet 72 (counting from 1) cannot be read: line {line} (`vertx"
-        )),
+        )) && e.contains("`vertex` belongs there"),
         "{e}"
     );
 }

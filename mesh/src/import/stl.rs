@@ -271,11 +271,9 @@ fn first_bad_line<R: BufRead>(reader: R) -> Option<(usize, String, Option<&'stat
         if !fine || !in_order {
             let shown: String = line.chars().take(60).collect();
             let more = if shown.len() < line.len() { "..." } else { "" };
-            found = Some((
-                k + 1,
-                format!("{shown}{more}"),
-                (fine && !in_order).then_some(want),
-            ));
+            // What belongs there when the line holds another keyword (one
+            // missing or out of order, or misspelt: `endlop`, `vertx`).
+            found = Some((k + 1, format!("{shown}{more}"), (!in_order).then_some(want)));
         } else if !matches!(keyword, "" | "solid" | "endsolid") {
             next = (next + 1) % FACET_LINES.len();
         }
