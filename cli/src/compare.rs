@@ -438,6 +438,15 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     staging.commit()?;
     if !args.quiet {
         print_comparison(&cmp, &out);
+    } else if !cmp.notes.is_empty() {
+        // One line, as a quiet run's, so a script's log says why the exit
+        // code is 1.
+        eprintln!(
+            "tuft: {}: finished with {}; read them in {}",
+            out.display(),
+            crate::output::plural(cmp.notes.len(), "note", "notes"),
+            out.join("compare.html").display()
+        );
     }
     // Notes say what makes the two hard to compare: warnings to read.
     Ok(if cmp.notes.is_empty() {
