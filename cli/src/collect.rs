@@ -397,6 +397,9 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
             crate::output::plural(c.variants.len(), "variant", "variants"),
             c.drag_ranking
         );
+        if let Some(line) = against_first(&c) {
+            say!("  {line}");
+        }
         for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
             if !line.is_empty() {
                 say!("  {line}");
@@ -1546,7 +1549,7 @@ const CSV_COLUMNS: &str = "speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts
                            reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,\
                            front_minus_rear_kg,separated_area_m2,separated_percent,panels,\
                            panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,\
-                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved";
+                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved,counts_above_first";
 
 /// Whether `name` is one of sweep.csv's own columns (the two first,
 /// `rank` and `variant`, too), which a label of that name would repeat.
@@ -1579,16 +1582,11 @@ pub fn csv(c: &Collected) -> String {
         let lowest = rows
             .iter()
             .min_by(|a, b| drag_area(a).total_cmp(&drag_area(b)));
+        let first = first_variant(rows);
         for r in rows {
-            let above = lowest.map(|l| {
-                let area = if l.reference_area_m2 > 0.0 {
-                    l.reference_area_m2
-                } else {
-                    1.0
-                };
-                1000.0 * (drag_area(r) - drag_area(l)) / area
-            });
-            csv_row(&mut s, c, r, above, (named, rows.len() == 1));
+            let above = lowest.map(|l| counts_above(r, l));
+            let from_first = first.map(|f| counts_above(r, f));
+            csv_row(&mut s, c, r, [above, from_first], (named, rows.len() == 1));
         }
     }
     s
@@ -1631,14 +1629,76 @@ impl NoiseRanges {
     }
 }
 
-/// One variant's line of `sweep.csv` ([`csv`]); `above`: its drag above
-/// the lowest of its wind condition, counts; `named`: the ranking names a
-/// winner in its condition; `alone`: the only variant in it.
+/// `r`'s drag area above `base`'s, in counts on `base`'s reference area.
+fn counts_above(r: &Row, base: &Row) -> f64 {
+    let area = if base.reference_area_m2 > 0.0 {
+        base.reference_area_m2
+    } else {
+        1.0
+    };
+    1000.0 * (drag_area(r) - drag_area(base)) / area
+}
+
+/// The first variant of the sweep file's plan among `rows` (the base of
+/// an accessory or a change study: a review's roof bars and roof box were
+/// ranked only against each other, the bare car leading).
+fn first_variant(rows: &[Row]) -> Option<&Row> {
+    rows.iter().min_by_key(|r| r.index)
+}
+
+/// Each variant's drag against the first of its wind condition in the
+/// plan ([`first_variant`]), in counts and as a share of the first's
+/// drag area, for the terminal and the page: "against the first variant,
+/// plain: bars +25.8 counts (+15 %), box +59.4 counts (+34 %)". `None`
+/// with under three variants in every condition (the ranking's line then
+/// says it).
+fn against_first(c: &Collected) -> Option<String> {
+    let lines: Vec<String> = wind_groups(c)
+        .into_iter()
+        .filter(|(_, rows)| rows.len() >= 3)
+        .filter_map(|(label, rows)| {
+            let first = first_variant(rows)?;
+            let mut others: Vec<&Row> = rows.iter().filter(|r| r.name != first.name).collect();
+            others.sort_by_key(|r| r.index);
+            let parts: Vec<String> = others
+                .iter()
+                .map(|r| {
+                    let counts = counts_above(r, first);
+                    let share = 100.0 * (drag_area(r) / drag_area(first) - 1.0);
+                    format!("{} {counts:+.1} counts ({share:+.0} %)", r.name)
+                })
+                .collect();
+            let when = if label.is_empty() {
+                String::new()
+            } else {
+                format!(" ({label})")
+            };
+            Some(format!(
+                "drag against the first variant, {}{when}: {}",
+                first.name,
+                parts.join(", ")
+            ))
+        })
+        .collect();
+    (!lines.is_empty()).then(|| {
+        format!(
+            "{} (drag area, on the first's reference area; read each difference with the ranking's \
+             cautions: the noise floor and the separated-flow model's doubts hold for these too)",
+            lines.join("; ")
+        )
+    })
+}
+
+/// One variant's line of `sweep.csv` ([`csv`]); `[above, from_first]`:
+/// its drag above the lowest of its wind condition and above the first
+/// variant of the plan in it ([`first_variant`]), counts; `named`: the
+/// ranking names a winner in its condition; `alone`: the only variant in
+/// it.
 fn csv_row(
     s: &mut String,
     c: &Collected,
     r: &Row,
-    above: Option<f64>,
+    [above, from_first]: [Option<f64>; 2],
     (named, alone): (bool, bool),
 ) {
     let _ = write!(s, "{},{}", r.rank, r.name);
@@ -1690,13 +1750,14 @@ fn csv_row(
     // still finds the columns.
     let _ = write!(
         s,
-        ",{},{},{:.1},{},{},{}",
+        ",{},{},{:.1},{},{},{},{}",
         floor(0),
         floor(1),
         r.speed * 3.6,
         spread(r.front_axle_spread_kg),
         spread(r.rear_axle_spread_kg),
-        surface_words(r).replace(',', ";")
+        surface_words(r).replace(',', ";"),
+        from_first.map(|a| format!("{a:.1}")).unwrap_or_default()
     );
     for g in &c.regions {
         match region(r, g) {
@@ -3010,6 +3071,9 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
         "<p class=\"{class}\"><strong>{}</strong></p>",
         escape(&sentence(&c.drag_ranking))
     );
+    if let Some(line) = against_first(c) {
+        let _ = writeln!(s, "<p>{}</p>", escape(&sentence(&line)));
+    }
     for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
         if !line.is_empty() {
             let _ = writeln!(s, "<p>{}</p>", escape(&sentence(line)));
@@ -3752,6 +3816,40 @@ mod tests {
             plot_subtitle("40 m/s", false, false, false, 6.0),
             "Screening estimates at 40 m/s"
         );
+    }
+
+    /// With three variants or more, each is set against the first of the
+    /// plan, the base of an accessory study (a review's roof bars and box
+    /// were ranked only against each other), in counts on the first's
+    /// reference area and as a share of its drag area; sweep.csv carries
+    /// the counts.
+    #[test]
+    fn each_variant_is_set_against_the_first() {
+        let mut c = sweep(&[10.0, 12.0, 11.0]);
+        for (k, (r, cd)) in c.variants.iter_mut().zip([0.177, 0.208, 0.199]).enumerate() {
+            r.cd = cd;
+            r.reference_area_m2 = 2.0;
+            r.index = [0, 2, 1][k];
+        }
+        let line = against_first(&c).unwrap();
+        assert!(
+            line.starts_with("drag against the first variant, v0: v2 +22.0 counts (+12 %), v1 +31.0 counts (+18 %)"),
+            "{line}"
+        );
+        let text = csv(&c);
+        let header: Vec<&str> = text.lines().next().unwrap().split(',').collect();
+        let at = header
+            .iter()
+            .position(|h| *h == "counts_above_first")
+            .unwrap();
+        let cells: Vec<&str> = text
+            .lines()
+            .skip(1)
+            .map(|l| l.split(',').nth(at).unwrap())
+            .collect();
+        assert_eq!(cells, ["0.0", "31.0", "22.0"], "{text}");
+        c.variants.truncate(2);
+        assert!(against_first(&c).is_none(), "two: the ranking says it");
     }
 
     /// The ranking table's axle loads add up to the lift as shown (a
@@ -4518,7 +4616,8 @@ mod tests {
         assert!(
             lines[0].ends_with(
                 ",warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,front_axle_noise_kg,\
-                 rear_axle_noise_kg,surface_solved,region:rear window:separated_percent,\
+                 rear_axle_noise_kg,surface_solved,counts_above_first,\
+                 region:rear window:separated_percent,\
                  region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
                  region:rear window:standing,region:boot deck:separated_percent,\
@@ -4529,13 +4628,13 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,,,144.0,,,,3,attached,3,3,firm,71,separated,71,71,firm"),
+            lines[1].ends_with(",0,0,,,144.0,,,,0.0,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,,,144.0,,,,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,144.0,,,,0.0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]
