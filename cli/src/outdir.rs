@@ -148,7 +148,7 @@ fn remove_stale(parent: &Path, leaf: &str) {
         let alive = || {
             std::fs::read_to_string(Path::new("/proc").join(pid).join("stat")).is_ok_and(|stat| {
                 stat.rsplit_once(')')
-                    .is_none_or(|(_, rest)| rest.trim_start().chars().next() != Some('Z'))
+                    .is_none_or(|(_, rest)| !rest.trim_start().starts_with('Z'))
             })
         };
         if pid.parse::<u32>().is_ok() && Path::new("/proc/self").exists() && !alive() {
