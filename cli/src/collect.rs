@@ -782,12 +782,17 @@ fn areas_differ<'a>(rows: impl IntoIterator<Item = &'a Row>) -> bool {
 /// fraction of a percent apart had given the coefficients' difference
 /// here and the drag areas' in sweep.csv, 1.8 against 2.6 counts).
 fn gap_counts(first: &Row, second: &Row) -> f64 {
-    let area = if second.reference_area_m2 > 0.0 {
-        second.reference_area_m2
+    1000.0 * (drag_area(second) - drag_area(first)) / reference_area(second)
+}
+
+/// A variant's reference area, m^2 (1 where a summary gave none, so that
+/// its coefficients count as drag areas).
+fn reference_area(r: &Row) -> f64 {
+    if r.reference_area_m2 > 0.0 {
+        r.reference_area_m2
     } else {
         1.0
-    };
-    1000.0 * (drag_area(second) - drag_area(first)) / area
+    }
 }
 
 /// A variant as the ranking lines name it: its folder's name, and the
@@ -1631,12 +1636,7 @@ impl NoiseRanges {
 
 /// `r`'s drag area above `base`'s, in counts on `base`'s reference area.
 fn counts_above(r: &Row, base: &Row) -> f64 {
-    let area = if base.reference_area_m2 > 0.0 {
-        base.reference_area_m2
-    } else {
-        1.0
-    };
-    1000.0 * (drag_area(r) - drag_area(base)) / area
+    1000.0 * (drag_area(r) - drag_area(base)) / reference_area(base)
 }
 
 /// The first variant of the sweep file's plan among `rows` (the base of

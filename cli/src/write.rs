@@ -1472,28 +1472,17 @@ fn report(
 mod tests {
     use super::*;
 
-    /// The floor's height is the flat underside's on the slant-back body
-    /// (0.05 m above the ground, its generator's clearance), and stays
-    /// there with a block standing on the ground under the nose, as a tyre
-    /// does.
-    #[test]
-    fn the_floor_lies_where_most_of_the_downward_surface_is() {
-        use tuft_mesh::{Mirrors, TriMesh, generate};
-        let body = generate::ahmed(25.0, 3000).unwrap();
-        let mesh = PanelMesh::new(body.clone(), Mirrors::none()).unwrap();
-        let z = floor_z(&mesh).unwrap();
-        assert!((z - 0.05).abs() < 1e-6, "floor at {z}");
-        // A 0.1 x 0.1 m block from the ground up into the floor.
-        let corners: Vec<Point3<f64>> = (0..8)
-            .map(|k| {
-                Point3::new(
-                    0.2 + 0.1 * f64::from(k & 1),
-                    -0.05 + 0.1 * f64::from((k >> 1) & 1),
-                    0.06 * f64::from((k >> 2) & 1),
-                )
-            })
-            .collect();
-        let n = body.vertices.len() as u32;
+    /// `body` with a closed box beside it, its least corner at `lo` and
+    /// its edges `size` along x, y and z, m.
+    fn with_box(body: &tuft_mesh::TriMesh, lo: Point3<f64>, size: [f64; 3]) -> tuft_mesh::TriMesh {
+        let corners = (0..8u32).map(|k| {
+            Point3::new(
+                lo.x + size[0] * f64::from(k & 1),
+                lo.y + size[1] * f64::from((k >> 1) & 1),
+                lo.z + size[2] * f64::from((k >> 2) & 1),
+            )
+        });
+        let n = u32::try_from(body.vertices.len()).unwrap();
         let mut vertices = body.vertices.clone();
         vertices.extend(corners);
         let mut triangles = body.triangles.clone();
@@ -1513,8 +1502,26 @@ mod tests {
         ] {
             triangles.push(t.map(|v: u32| v + n));
         }
-        let both =
-            PanelMesh::new(TriMesh::new(vertices, triangles).unwrap(), Mirrors::none()).unwrap();
+        tuft_mesh::TriMesh::new(vertices, triangles).unwrap()
+    }
+
+    /// The floor's height is the flat underside's on the slant-back body
+    /// (0.05 m above the ground, its generator's clearance), and stays
+    /// there with a block standing on the ground under the nose, as a tyre
+    /// does.
+    #[test]
+    fn the_floor_lies_where_most_of_the_downward_surface_is() {
+        use tuft_mesh::{Mirrors, TriMesh, generate};
+        let body = generate::ahmed(25.0, 3000).unwrap();
+        let mesh = PanelMesh::new(body.clone(), Mirrors::none()).unwrap();
+        let z = floor_z(&mesh).unwrap();
+        assert!((z - 0.05).abs() < 1e-6, "floor at {z}");
+        // A 0.1 x 0.1 m block from the ground up into the floor.
+        let both = PanelMesh::new(
+            with_box(&body, Point3::new(0.2, -0.05, 0.0), [0.1, 0.1, 0.06]),
+            Mirrors::none(),
+        )
+        .unwrap();
         assert_eq!(both.bounds().0.z, 0.0);
         let z = floor_z(&both).unwrap();
         assert!((z - 0.05).abs() < 1e-6, "floor at {z} with the block");
@@ -1585,36 +1592,11 @@ mod tests {
         // A roof box over the rear half, its flat underside facing down on
         // the centre line 0.36 m up: not floor (a review's had read the
         // floor 16 degrees nose down).
-        let corners: Vec<Point3<f64>> = (0..8)
-            .map(|k| {
-                Point3::new(
-                    0.55 + 0.3 * f64::from(k & 1),
-                    -0.1 + 0.2 * f64::from((k >> 1) & 1),
-                    0.36 + 0.06 * f64::from((k >> 2) & 1),
-                )
-            })
-            .collect();
-        let n = body.vertices.len() as u32;
-        let mut vertices = body.vertices.clone();
-        vertices.extend(corners);
-        let mut triangles = body.triangles.clone();
-        for t in [
-            [0, 2, 1],
-            [1, 2, 3],
-            [4, 5, 6],
-            [5, 7, 6],
-            [0, 1, 4],
-            [1, 5, 4],
-            [2, 6, 3],
-            [3, 6, 7],
-            [0, 4, 2],
-            [2, 4, 6],
-            [1, 3, 5],
-            [3, 7, 5],
-        ] {
-            triangles.push(t.map(|v: u32| v + n));
-        }
-        let boxed = PanelMesh::new(TriMesh::new(vertices, triangles).unwrap(), ground).unwrap();
+        let boxed = PanelMesh::new(
+            with_box(&body, Point3::new(0.55, -0.1, 0.36), [0.3, 0.2, 0.06]),
+            ground,
+        )
+        .unwrap();
         let [f, r] = floor_heights(&boxed, axles).unwrap();
         assert!(
             (f - 0.05).abs() < 1e-4 && (r - 0.05).abs() < 1e-4,
