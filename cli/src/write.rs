@@ -1511,7 +1511,7 @@ mod tests {
     /// does.
     #[test]
     fn the_floor_lies_where_most_of_the_downward_surface_is() {
-        use tuft_mesh::{Mirrors, TriMesh, generate};
+        use tuft_mesh::{Mirrors, generate};
         let body = generate::ahmed(25.0, 3000).unwrap();
         let mesh = PanelMesh::new(body.clone(), Mirrors::none()).unwrap();
         let z = floor_z(&mesh).unwrap();
