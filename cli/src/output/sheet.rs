@@ -5,7 +5,7 @@
 use tuft_mesh::Point;
 
 use super::canvas::{Canvas, GRID, INK, MUTED, Rgb};
-use super::colorbar::{self, ColourScale, Swatch, nice_ticks};
+use super::colorbar::{self, ColourScale, Swatch};
 use super::render::{self, DisplayTri, Frame, PanelPaint, RenderParams, View, display_triangles};
 use super::text::{self, Align, TextStyle};
 use super::{Caption, OutputError, PanelState, SurfaceResult};
@@ -571,13 +571,21 @@ fn decorate(
     }
 }
 
-/// The scale bar's length in a view, metres: a round number up to a
-/// quarter of the view's width.
+/// The scale bar's length in a view, metres: the largest of 1, 2 and 5
+/// times a power of ten up to a quarter of the view's width (a round step
+/// above the quarter had left no tick but 0, and the bar fell back to
+/// 1 m: a review's close-up drew 1 m beside a 0.4 m base).
 fn scale_bar_metres(frame: &Frame) -> f64 {
-    nice_ticks(0.0, 0.25 * frame.rect.2 as f64 / frame.scale, 1)
-        .get(1)
-        .copied()
-        .unwrap_or(1.0)
+    let quarter = 0.25 * frame.rect.2 as f64 / frame.scale;
+    if !(quarter.is_finite() && quarter > 0.0) {
+        return 1.0;
+    }
+    let p = 10f64.powf(quarter.log10().floor());
+    [5.0, 2.0, 1.0]
+        .into_iter()
+        .map(|m| m * p)
+        .find(|&v| v <= quarter * (1.0 + 1e-9))
+        .unwrap_or(p)
 }
 
 /// The part of a side view the scale bar and its label take
@@ -673,6 +681,31 @@ mod tests {
     use nalgebra::Vector3;
 
     use super::*;
+
+    /// The scale bar is the largest 1, 2 or 5 times a power of ten within
+    /// a quarter of the view's width: 1 m on a car's overview, 0.2 m where
+    /// the quarter is 0.48 m (it had fallen back to 1 m there).
+    #[test]
+    fn the_scale_bar_fits_its_view() {
+        let frame = |scale: f64| Frame {
+            scale,
+            centre: (0.0, 0.0),
+            rect: (0, 0, 640, 300),
+        };
+        for (scale, metres) in [
+            (128.0, 1.0),
+            (333.3, 0.2),
+            (1140.0, 0.1),
+            (640.0, 0.2),
+            (32.0, 5.0),
+        ] {
+            assert!(
+                (scale_bar_metres(&frame(scale)) - metres).abs() < 1e-12,
+                "{scale} px/m: {}",
+                scale_bar_metres(&frame(scale))
+            );
+        }
+    }
     use crate::output::canvas::testing::{decode, keep};
 
     /// A title that fits keeps its 28 px; one that would run off the
