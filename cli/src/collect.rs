@@ -782,7 +782,7 @@ fn areas_differ<'a>(rows: impl IntoIterator<Item = &'a Row>) -> bool {
 /// fraction of a percent apart had given the coefficients' difference
 /// here and the drag areas' in sweep.csv, 1.8 against 2.6 counts).
 fn gap_counts(first: &Row, second: &Row) -> f64 {
-    1000.0 * (drag_area(second) - drag_area(first)) / reference_area(second)
+    -counts_above(first, second)
 }
 
 /// A variant's reference area, m^2 (1 where a summary gave none, so that

@@ -410,13 +410,7 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     let out = args.out.clone().unwrap_or_else(|| default_out(&a, &b));
     // The folder or, before it exists, its nearest existing parent (a
     // review's `--out A/sub` wrote into run A).
-    let existing = out
-        .ancestors()
-        .find(|p| !p.as_os_str().is_empty() && p.exists())
-        .map_or_else(
-            || std::path::PathBuf::from("."),
-            std::path::Path::to_path_buf,
-        );
+    let existing = crate::outdir::nearest_existing(&out).unwrap_or(Path::new("."));
     if let Ok(po) = existing.canonicalize() {
         for input in [&args.a, &args.b] {
             anyhow::ensure!(
@@ -439,13 +433,10 @@ pub fn run(args: &CompareArgs) -> Result<ExitCode> {
     if !args.quiet {
         print_comparison(&cmp, &out);
     } else if !cmp.notes.is_empty() {
-        // One line, as a quiet run's, so a script's log says why the exit
-        // code is 1.
-        eprintln!(
-            "tuft: {}: finished with {}; read them in {}",
-            out.display(),
-            crate::output::plural(cmp.notes.len(), "note", "notes"),
-            out.join("compare.html").display()
+        crate::run::quiet_finish_line(
+            &out.display().to_string(),
+            &crate::output::plural(cmp.notes.len(), "note", "notes"),
+            &out.join("compare.html"),
         );
     }
     // Notes say what makes the two hard to compare: warnings to read.

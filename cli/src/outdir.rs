@@ -167,6 +167,9 @@ pub enum Kind {
 }
 
 impl Kind {
+    /// Every kind.
+    pub const ALL: [Self; 2] = [Self::Run, Self::Compare];
+
     /// The file only this kind of folder holds.
     pub fn marker(self) -> &'static str {
         match self {
@@ -236,7 +239,7 @@ pub fn replaceable(dest: &Path, kind: Kind) -> Result<()> {
         );
     }
     if !full.join(kind.marker()).is_file() {
-        let other = [Kind::Run, Kind::Compare]
+        let other = Kind::ALL
             .into_iter()
             .find(|k| full.join(k.marker()).is_file());
         match other {
@@ -256,19 +259,25 @@ pub fn replaceable(dest: &Path, kind: Kind) -> Result<()> {
         }
     }
     let foreign = foreign_entries(&full)?;
-    if let Some(first) = foreign.first() {
-        let more = match foreign.len() {
-            1 => String::new(),
-            n => format!(" and {} more", n - 1),
-        };
+    if let Some(named) = first_and_more(&foreign) {
         bail!(
-            "{}: the folder holds {first}{more}, which tuft does not write, so --force will not delete \
+            "{}: the folder holds {named}, which tuft does not write, so --force will not delete \
              it; move {} out or choose another folder with --out",
             dest.display(),
             if foreign.len() == 1 { "it" } else { "them" }
         );
     }
     Ok(())
+}
+
+/// The first of a folder's `names` and how many more, for a refusal:
+/// "notes.txt", "base.toml and 1 more"; `None` for none.
+pub fn first_and_more(names: &[String]) -> Option<String> {
+    let first = names.first()?;
+    Some(match names.len() {
+        1 => first.clone(),
+        n => format!("{first} and {} more", n - 1),
+    })
 }
 
 impl Drop for Staging {
@@ -294,6 +303,14 @@ pub fn write_whole(path: &Path, bytes: &[u8]) -> Result<()> {
     })
 }
 
+/// `path` itself or, where it does not exist yet, the nearest of the
+/// folders above it that does (`None` for a relative path none of whose
+/// parts exist: the working folder then holds it).
+pub fn nearest_existing(path: &Path) -> Option<&Path> {
+    path.ancestors()
+        .find(|a| !a.as_os_str().is_empty() && a.exists())
+}
+
 /// Create `folder` and the folders above it. A file standing where one
 /// of them should be is named as such (the system's own message only says
 /// that something exists).
@@ -301,11 +318,7 @@ pub fn write_whole(path: &Path, bytes: &[u8]) -> Result<()> {
 /// # Errors
 /// When a file is in the way or the folder cannot be created.
 pub fn create_folder(folder: &Path) -> Result<()> {
-    if let Some(file) = folder
-        .ancestors()
-        .find(|a| !a.as_os_str().is_empty() && a.exists())
-        .filter(|a| !a.is_dir())
-    {
+    if let Some(file) = nearest_existing(folder).filter(|a| !a.is_dir()) {
         if file == folder {
             bail!("{}: is a file, not a folder", file.display());
         }

@@ -384,7 +384,7 @@ fn inside(r: &RegionSection, c: &Point, n: &Vector) -> bool {
 /// Every panel's centroid and normal, then on a half model every mirror
 /// image's (a region means the same on a half and on a whole body): the
 /// order of [`crate::output::render::display_triangles`].
-fn copies(mesh: &PanelMesh) -> Vec<(Point, Vector)> {
+pub(crate) fn copies(mesh: &PanelMesh) -> Vec<(Point, Vector)> {
     let real = mesh
         .panels
         .iter()

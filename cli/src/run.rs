@@ -143,11 +143,10 @@ fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
         // One line, so that a script's log says why the exit code is 1 (a
         // review's quiet run of an inch file read as millimetres, a body
         // 0.18 m long, had printed nothing).
-        eprintln!(
-            "tuft: {}: finished with {}; read them in {}",
-            summary.case_name,
-            crate::output::plural(summary.warnings.len(), "warning", "warnings"),
-            out.join("report.html").display()
+        quiet_finish_line(
+            &summary.case_name,
+            &crate::output::plural(summary.warnings.len(), "warning", "warnings"),
+            &out.join("report.html"),
         );
     }
     Ok(if summary.warnings.is_empty() {
@@ -155,6 +154,16 @@ fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
     } else {
         ExitCode::from(EXIT_WARNINGS)
     })
+}
+
+/// The one line a quiet command prints on stderr when it finished with
+/// warnings or notes (`what`: "2 warnings"), naming the page to read them
+/// in, so that a script's log says why the exit code is 1.
+pub fn quiet_finish_line(name: &str, what: &str, page: &Path) {
+    eprintln!(
+        "tuft: {name}: finished with {what}; read them in {}",
+        page.display()
+    );
 }
 
 /// A few lines on stdout: the headline numbers and where the report is.

@@ -117,23 +117,20 @@ fn sweep_folder(root: &Path) -> Result<()> {
         .filter(|n| !n.starts_with('.') && n != crate::slurm::SCRIPTS_DIR && n != FAILURES_DIR)
         .collect();
     names.sort();
-    if let Some(first) = names.first() {
+    if let Some(named) = crate::outdir::first_and_more(&names) {
+        use crate::outdir::Kind;
         let what = if names
             .iter()
-            .any(|n| n == "summary.json" || n == "compare.json")
+            .any(|n| Kind::ALL.iter().any(|k| n == k.marker()))
         {
             "holds a single run's or a comparison's results"
         } else {
             "holds other files"
         };
         anyhow::bail!(
-            "{}: the folder {what} ({first}{}) and no sweep ({PLAN_FILE}), so the sweep will not write \
+            "{}: the folder {what} ({named}) and no sweep ({PLAN_FILE}), so the sweep will not write \
              into it; choose another with --out",
-            root.display(),
-            match names.len() {
-                1 => String::new(),
-                n => format!(" and {} more", n - 1),
-            }
+            root.display()
         );
     }
     Ok(())

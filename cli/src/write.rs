@@ -269,19 +269,18 @@ fn filled_hole_marks(
         .collect();
     holes.sort_by(|a, b| b.perimeter.total_cmp(&a.perimeter));
     holes.truncate(FILLED_HOLES_SHOWN);
-    let images = mesh.mirrors.symmetry;
+    // The display triangles' centroids, mirror images included, as the
+    // regions' marks take them.
+    let copies = crate::region::copies(mesh);
     holes
         .into_iter()
         .map(|h| {
             let centre = tuft_mesh::Point::from(h.centre);
             let radius = (h.perimeter / std::f64::consts::TAU).max(0.6 * edge);
-            let near = |c: &tuft_mesh::Point| (c - centre).norm() <= radius;
-            let real: Vec<bool> = mesh.panels.iter().map(|p| near(&p.centroid)).collect();
-            let mirrored = mesh.panels.iter().filter(|_| images).map(|p| {
-                let c = p.centroid;
-                near(&tuft_mesh::Point::new(c.x, -c.y, c.z))
-            });
-            let member: Vec<bool> = real.iter().copied().chain(mirrored).collect();
+            let member: Vec<bool> = copies
+                .iter()
+                .map(|(c, _)| (c - centre).norm() <= radius)
+                .collect();
             output::outline::RegionMark {
                 name: "filled hole".into(),
                 member,

@@ -461,10 +461,37 @@ pub fn kg_places(values: &[f64]) -> usize {
     }
 }
 
+/// Ten to the power `places`: one unit of `places` decimals is its
+/// inverse.
+fn ten_to(places: usize) -> f64 {
+    10f64.powi(i32::try_from(places).unwrap_or(0))
+}
+
 /// `v` in units of `places` decimals, rounded on its own (half away from
 /// zero).
 fn units_at(v: f64, places: usize) -> i64 {
-    (v * 10f64.powi(i32::try_from(places).unwrap_or(0))).round() as i64
+    (v * ten_to(places)).round() as i64
+}
+
+/// Whether the parts of `values` (the first the total) add up to the
+/// total within `tolerance` (a set with no parts, or one not finite,
+/// does not).
+fn parts_add_up(values: &[f64], tolerance: f64) -> bool {
+    values.split_first().is_some_and(|(&total, parts)| {
+        let sum: f64 = parts.iter().sum();
+        !parts.is_empty() && sum.is_finite() && (sum - total).abs() <= tolerance
+    })
+}
+
+/// A lift in `units` of `places` decimals in words: lift signed `+`,
+/// downforce `-`, a zero without its sign ("0", not "+0").
+fn lift_word(units: i64, places: usize) -> String {
+    let v = from_units(units, places);
+    if units > 0 {
+        format!("{v:+.places$}")
+    } else {
+        format!("{v:.places$}")
+    }
 }
 
 /// A total and its parts (the first value the total), in units of the
@@ -483,12 +510,7 @@ pub fn total_and_parts<const N: usize>(
     places: usize,
     extra: usize,
 ) -> ([i64; N], usize) {
-    let scale = |p: usize| 10f64.powi(i32::try_from(p).unwrap_or(0));
-    let adds_up = values.split_first().is_some_and(|(&total, parts)| {
-        let sum: f64 = parts.iter().sum();
-        !parts.is_empty() && sum.is_finite() && (sum - total).abs() <= 0.01 / scale(places)
-    });
-    if !adds_up {
+    if !parts_add_up(&values, 0.01 / ten_to(places)) {
         return (values.map(|v| units_at(v, places)), places);
     }
     let holds = |p: usize| {
@@ -498,23 +520,22 @@ pub fn total_and_parts<const N: usize>(
     };
     match (places..=places + extra).find(|&p| holds(p)) {
         Some(p) => (values.map(|v| units_at(v, p)), p),
-        None => (largest_remainder(values.map(|v| v * scale(places))), places),
+        None => (
+            largest_remainder(values.map(|v| v * ten_to(places))),
+            places,
+        ),
     }
 }
 
-/// A total and its parts (the first value the total), each in whole
-/// units: the total rounded, the parts rounded by largest remainder so that
-/// they add up to the rounded total. Parts that do not add up to the
-/// total (within a hundredth of a unit) are each rounded on their own.
+/// A total and its parts (the first value the total), which add up to
+/// it ([`total_and_parts`] has checked), each in whole units: the total
+/// rounded, the parts rounded by largest remainder so that they add up to
+/// the rounded total.
 fn largest_remainder<const N: usize>(values: [f64; N]) -> [i64; N] {
     let mut units = values.map(|v| v.round() as i64);
-    let Some((&total, parts)) = values.split_first() else {
+    let Some((_, parts)) = values.split_first() else {
         return units;
     };
-    let sum: f64 = parts.iter().sum();
-    if parts.is_empty() || !sum.is_finite() || (sum - total).abs() > 0.01 {
-        return units;
-    }
     let floors: Vec<i64> = parts.iter().map(|p| p.floor() as i64).collect();
     let short = units[0] - floors.iter().sum::<i64>();
     if !(0..=i64::try_from(parts.len()).unwrap_or(0)).contains(&short) {
@@ -539,22 +560,17 @@ fn largest_remainder<const N: usize>(values: [f64; N]) -> [i64; N] {
 /// A total load in kg and its parts (front and rear axle) in the units of
 /// [`kg_places`] of the set, by [`total_and_parts`]; and those places.
 fn kg_units<const N: usize>(values: [f64; N]) -> ([i64; N], usize) {
-    kg_units_at(values, kg_places(&values), KG_EXTRA_PLACES)
+    total_and_parts(values, kg_places(&values), KG_EXTRA_PLACES)
 }
 
 /// Decimals a set of loads may add beyond [`kg_places`] for its parts to
 /// add up as shown.
 const KG_EXTRA_PLACES: usize = 1;
 
-/// As [`kg_units`] from `places` decimals, at most `extra` more.
-fn kg_units_at<const N: usize>(values: [f64; N], places: usize, extra: usize) -> ([i64; N], usize) {
-    total_and_parts(values, places, extra)
-}
-
 /// `units` of `places` decimals as a number, never "-0".
 pub fn from_units(units: i64, places: usize) -> f64 {
     // -0.0 + 0.0 is +0.0 (IEEE 754).
-    units as f64 / 10f64.powi(i32::try_from(places).unwrap_or(0)) + 0.0
+    units as f64 / ten_to(places) + 0.0
 }
 
 /// A total load in kg and its parts (the first value the total, the rest
@@ -575,7 +591,7 @@ pub fn kg_set_signed<const N: usize>(values: [f64; N]) -> [String; N] {
     if !countable(&values) {
         return values.map(|v| format!("{v:+.0}"));
     }
-    let (units, places) = kg_units_at(values, kg_places(&values).min(1), 1);
+    let (units, places) = total_and_parts(values, kg_places(&values).min(1), 1);
     units.map(|u| format!("{:+.places$}", from_units(u, places)))
 }
 
@@ -586,14 +602,7 @@ pub fn lift_set<const N: usize>(values: [f64; N]) -> [String; N] {
         return kg_set(values);
     }
     let (units, places) = kg_units(values);
-    units.map(|u| {
-        let v = from_units(u, places);
-        if u > 0 {
-            format!("{v:+.places$}")
-        } else {
-            format!("{v:.places$}")
-        }
-    })
+    units.map(|u| lift_word(u, places))
 }
 
 /// A lift and its axle shares as [`lift_set`] with the front less the
@@ -606,7 +615,7 @@ pub fn lift_set_and_balance(values: [f64; 3]) -> ([String; 3], String) {
     if !countable(&values) {
         return (kg_set(values), format!("{balance:+.0}"));
     }
-    let adds_up = (front + rear - total).abs() <= 0.01;
+    let adds_up = parts_add_up(&values, 0.01);
     let places = kg_places(&values);
     let found = (places..=places + KG_EXTRA_PLACES).find(|&p| {
         let r = |v: f64| units_at(v, p);
@@ -618,16 +627,8 @@ pub fn lift_set_and_balance(values: [f64; 3]) -> ([String; 3], String) {
         Some(p) => (values.map(|v| units_at(v, p)), p),
         None => kg_units(values),
     };
-    let words = |u: i64| {
-        let x = from_units(u, p);
-        if u > 0 {
-            format!("{x:+.p$}")
-        } else {
-            format!("{x:.p$}")
-        }
-    };
     (
-        units.map(words),
+        units.map(|u| lift_word(u, p)),
         format!("{:+.p$}", from_units(units[1] - units[2], p)),
     )
 }
@@ -643,14 +644,6 @@ pub fn lift_set_and_balance(values: [f64; 3]) -> ([String; 3], String) {
 /// always signed.
 pub fn lift_family(t: [f64; 3], u: [f64; 3]) -> [[String; 3]; 3] {
     let rest = [0, 1, 2].map(|k| t[k] - u[k]);
-    let lift_words = |v: i64, p: usize| {
-        let x = from_units(v, p);
-        if v > 0 {
-            format!("{x:+.p$}")
-        } else {
-            format!("{x:.p$}")
-        }
-    };
     if !countable(&t) || !countable(&u) {
         return [lift_set(t), lift_set(u), rest.map(|r| format!("{r:+.0}"))];
     }
@@ -660,8 +653,7 @@ pub fn lift_family(t: [f64; 3], u: [f64; 3]) -> [[String; 3]; 3] {
     } else {
         kg_places(&t).max(kg_places(&u))
     };
-    let adds = |x: [f64; 3]| (x[1] + x[2] - x[0]).abs() <= 0.01;
-    let (ta, ua) = (adds(t), adds(u));
+    let (ta, ua) = (parts_add_up(&t, 0.01), parts_add_up(&u, 0.01));
     let found = (base..=base + KG_EXTRA_PLACES).find(|&p| {
         let r = |v: f64| units_at(v, p);
         (!ta || r(t[1]) + r(t[2]) == r(t[0]))
@@ -678,8 +670,8 @@ pub fn lift_family(t: [f64; 3], u: [f64; 3]) -> [[String; 3]; 3] {
     let p = tp.max(up);
     let widen = |v: i64, from: usize| v * 10i64.pow(u32::try_from(p - from).unwrap_or(0));
     [
-        tu.map(|v| lift_words(v, tp)),
-        uu.map(|v| lift_words(v, up)),
+        tu.map(|v| lift_word(v, tp)),
+        uu.map(|v| lift_word(v, up)),
         [0, 1, 2].map(|k| {
             format!(
                 "{:+.p$}",
