@@ -276,7 +276,10 @@ fn run_checked(args: &CheckArgs) -> anyhow::Result<ExitCode> {
             summary(&file.display().to_string(), &report, placement.is_err())
         );
         if let Some(case) = case.as_ref().filter(|_| placement.is_ok()) {
-            say_part!("{}", placement_lines(&panels, case));
+            say_part!(
+                "{}",
+                placement_lines(&panels, case, report.suggested_panels)
+            );
         }
         if let Some(line) = saved {
             say!("{line}");
@@ -356,13 +359,18 @@ fn same_file(a: &Path, b: &Path) -> bool {
 /// Where the case puts the axles and its named regions on the body, and
 /// its own flow slices with their windows and spacings, in tuft's axes
 /// (checked to lie on it, or in the slices' box, before this is printed).
-fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> String {
+fn placement_lines(
+    panels: &tuft_mesh::PanelMesh,
+    case: &crate::case::Case,
+    suggested: usize,
+) -> String {
     let r = &case.file.reference;
     let mut s = match (r.front_axle_x, r.rear_axle_x) {
         (Some(f), Some(b)) => format!("axles      front x {f:.3} m, rear x {b:.3} m\n"),
         _ => "axles      not given: a run splits the lift at 20 % and 80 % of the length, with a warning\n"
             .to_owned(),
     };
+    s += &yaw_line(case.file.flow.yaw, suggested);
     // A half model's regions count their mirror images, as a run's do
     // (a review read "(whole body)" on every region as "covers the whole
     // body").
@@ -412,6 +420,31 @@ fn placement_lines(panels: &tuft_mesh::PanelMesh, case: &crate::case::Case) -> S
     s
 }
 
+/// A cross wind's line: what a yawed run needs of the panels, said before
+/// the run rather than after it (a review's yawed case was checked without
+/// a word and then warned), and, for a yaw under one, that it is in
+/// degrees (a review typed 0.26, radians, unremarked). Empty straight
+/// ahead.
+fn yaw_line(yaw: f64, suggested: usize) -> String {
+    if yaw == 0.0 {
+        return String::new();
+    }
+    let least = (crate::pipeline::YAW_COARSE_SHARE * suggested as f64).ceil();
+    let degrees = if yaw.abs() < 1.0 {
+        format!(
+            " (flow.yaw is in degrees: {yaw} radians would be {:.1})",
+            yaw.to_degrees()
+        )
+    } else {
+        String::new()
+    };
+    format!(
+        "flow       {}{degrees}: a cross wind; a run warns on fewer than {least} panels (three quarters \
+         of the {suggested} suggested), where the separation it moves is not converged\n",
+        crate::output::yaw_words(yaw)
+    )
+}
+
 /// `tuft check` of a case with a built-in shape (`name`): the panels a run
 /// of it solves on, as for an STL, and with `--save-panels` those panels
 /// as an STL in metres, to take a variant of the shape into a modeller (a
@@ -442,7 +475,10 @@ fn check_shape(args: &CheckArgs, case: &crate::case::Case, name: &str) -> anyhow
             "{}",
             summary(&format!("built-in shape \"{name}\""), &geo.report, false)
         );
-        say_part!("{}", placement_lines(&geo.mesh, case));
+        say_part!(
+            "{}",
+            placement_lines(&geo.mesh, case, geo.report.suggested_panels)
+        );
         if let Some(line) = saved {
             say!("{line}");
         }
@@ -770,9 +806,11 @@ fn halves_line(h: &tuft_mesh::cut::HalfCut) -> String {
             String::new()
         };
         format!(
-            "           the halves about y = 0 agree to {mm:.1} mm: at zero yaw it can run as a half model \
-             (geometry.half_model = true, --half), cut at y = 0, on half the panels in a quarter of the \
-             memory, with a mirror-symmetric flow{lost}\n"
+            "           the halves about y = 0 agree to {mm:.1} mm: it can run as a half model \
+             (geometry.half_model = true, --half), cut at y = 0: straight ahead on half the panels in a \
+             quarter of the memory, with a mirror-symmetric flow, and in a cross wind mirrored into a \
+             whole body whose two sides are panelled alike (a whole mesh's sides differ, which biases a \
+             yaw against its mirror image){lost}\n"
         )
     }
 }
@@ -941,6 +979,25 @@ fn folds_line(u: &tuft_mesh::coarsen::UntangleReport) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A yawed case's check says what the run will ask of the panels, and
+    /// that a yaw under one degree is read in degrees.
+    #[test]
+    fn a_cross_wind_is_said_before_the_run() {
+        assert_eq!(yaw_line(0.0, 8000), "");
+        let line = yaw_line(15.0, 10500);
+        assert!(
+            line.starts_with("flow       yaw 15°")
+                && line.contains("fewer than 7875 panels (three quarters of the 10500 suggested)"),
+            "{line}"
+        );
+        assert!(!line.contains("radians"), "{line}");
+        let line = yaw_line(0.26, 10500);
+        assert!(
+            line.contains("(flow.yaw is in degrees: 0.26 radians would be 14.9)"),
+            "{line}"
+        );
+    }
 
     /// The square-back research body (rounded nose, flat base) facing the
     /// right way is not noted; turned round, its flat base meets the wind

@@ -62,6 +62,10 @@ pub struct Row {
     pub cd_high: f64,
     /// Lift coefficient.
     pub cl: f64,
+    /// Side-force coefficient (the wind's axes; in a cross wind a rough
+    /// figure, the variant's notes say why).
+    #[serde(default)]
+    pub cs: f64,
     /// Lift, kg at the variant's speed.
     pub lift_kg: f64,
     /// Front-axle lift, kg.
@@ -101,7 +105,7 @@ pub struct Row {
     /// Why the variant was not solved on the panel count asked for, when
     /// the coarsening settled on another
     /// ([`crate::summary::Summary::panels_instead`]).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub panels_instead: Option<String>,
     /// It was solved as a half model (its panel count is the half's).
     #[serde(default)]
@@ -113,21 +117,21 @@ pub struct Row {
     #[serde(default)]
     pub lift_noise_kg: f64,
     /// The spread of its drag over three panel counts, counts (`tuft run
-    /// --noise`; absent without it).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// --noise`; null without it).
+    #[serde(default)]
     pub drag_spread_counts: Option<f64>,
     /// The spread of its front-axle lift over three panel counts, kg
-    /// (`tuft run --noise`; absent without it).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// (`tuft run --noise`; null without it).
+    #[serde(default)]
     pub front_axle_spread_kg: Option<f64>,
     /// The spread of its rear-axle lift over three panel counts, kg
-    /// (`tuft run --noise`; absent without it).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// (`tuft run --noise`; null without it).
+    #[serde(default)]
     pub rear_axle_spread_kg: Option<f64>,
     /// The least and the most of its lift (kg) and separated area (m^2)
-    /// over its three panel counts (`tuft run --noise`; absent without
+    /// over its three panel counts (`tuft run --noise`; null without
     /// it), drawn about its line on the sweep's plots.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub noise_ranges: Option<NoiseRanges>,
     /// Warnings in the variant's summary.
     pub warnings: usize,
@@ -178,7 +182,7 @@ pub struct Row {
     pub wrapped: bool,
     /// What the repair changed on its STL's surface, in a few words
     /// ([`crate::summary::Summary::repair_short`]); `None` when nothing.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub repairs: Option<String>,
     /// The variant's named regions and their verdicts.
     #[serde(default)]
@@ -187,13 +191,13 @@ pub struct Row {
     /// on it (as B) against the runner-up (as A), panels mapped, so that
     /// the two commands name a winner or none alike; `None` for
     /// other variants or when either folder cannot be compared.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub against_next: Option<crate::compare::DragVerdict>,
     /// For the same pair: `compare`'s notes on what their surface change
     /// rests on ([`crate::compare::surface_notes`]: the moved surface in
     /// separated flow, a change under the panels' edge); a review's
     /// spoiler and diffuser sweep had read them only from compare.
-    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    #[serde(default)]
     pub against_next_notes: Vec<String>,
     /// On the lowest drag of each wind condition: whether its underbody's
     /// shape differs from the runner-up's or the first variant's
@@ -206,7 +210,7 @@ pub struct Row {
     /// usually lists it) is neither it nor the runner-up: that variant's
     /// name and `compare`'s verdict on the leader against it (a review's
     /// spoiler sweep compared 120 mm with 60 mm only, never with none).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub against_first: Option<(String, crate::compare::DragVerdict)>,
     /// Its reference area over the sweep's common one (the lowest drag
     /// area's) where the variants' areas differ, else 1: the drag plot
@@ -276,10 +280,27 @@ pub struct Collected {
     /// the same for every such sweep, not counted in the exit code.
     #[serde(default)]
     pub caveats: Vec<String>,
-    /// Planned variants with no finished folder.
+    /// Planned variants with no finished folder, each in a sentence.
     pub missing: Vec<String>,
+    /// The same, for scripts: each one's name, why it is missing and the
+    /// failure's reason (a review's script had to parse the name out of
+    /// the sentence).
+    #[serde(default)]
+    pub missing_variants: Vec<MissingVariant>,
     /// The caution that goes with every number.
     pub caution: String,
+}
+
+/// A planned variant with no finished result.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct MissingVariant {
+    /// Its name in the plan.
+    pub variant: String,
+    /// "failed" (the sweep kept its reason), "older case" (its result was
+    /// computed for a case since changed) or "not run".
+    pub status: String,
+    /// The failure's reason; null otherwise.
+    pub reason: Option<String>,
 }
 
 /// What makes the variants of each wind condition hard to rank (panel
@@ -469,11 +490,28 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
         );
         return Ok(ExitCode::from(crate::EXIT_FAILURE));
     }
-    Ok(if warnings.is_empty() && notes.is_empty() {
-        ExitCode::SUCCESS
-    } else {
-        ExitCode::from(EXIT_WARNINGS)
-    })
+    if warnings.is_empty() && notes.is_empty() {
+        return Ok(ExitCode::SUCCESS);
+    }
+    if args.quiet {
+        // As a quiet run or compare: one line says why the exit code is 1
+        // (a review's script saw 1 and nothing else).
+        let what = [
+            (warnings.len(), "warning", "warnings"),
+            (notes.len(), "note", "notes"),
+        ]
+        .iter()
+        .filter(|(n, ..)| *n > 0)
+        .map(|&(n, one, many)| crate::output::plural(n, one, many))
+        .collect::<Vec<_>>()
+        .join(" and ");
+        crate::run::quiet_finish_line(
+            &args.dir.display().to_string(),
+            &what,
+            &args.dir.join("sweep.html"),
+        );
+    }
+    Ok(ExitCode::from(EXIT_WARNINGS))
 }
 
 /// Whether a warning says the variant's separation verdict and drag are
@@ -977,30 +1015,42 @@ pub fn collect(dir: &Path) -> Result<Collected> {
     let mut variants = rank(rows);
     scale_to_common_area(&mut variants);
     judge_leaders(dir, &mut variants);
-    let missing = plan.map_or_else(Vec::new, |p| {
-        p.variants
-            .into_iter()
-            .filter(|e| !variants.iter().any(|r| r.name == e.name))
-            .map(|e| {
-                if stale.contains(&e.name) {
-                    format!(
-                        "{} (its result was computed for an older case: run the sweep again)",
-                        e.name
-                    )
-                } else if let Some(why) = crate::sweep::failure_reason(dir, &e.name) {
-                    format!("{} ({FAILED_WORDS} {why})", e.name)
-                } else {
-                    e.name
-                }
-            })
-            .collect()
-    });
+    let (missing, missing_variants): (Vec<String>, Vec<MissingVariant>) =
+        plan.map_or_else(Default::default, |p| {
+            p.variants
+                .into_iter()
+                .filter(|e| !variants.iter().any(|r| r.name == e.name))
+                .map(|e| {
+                    let (line, status, reason) = if stale.contains(&e.name) {
+                        (
+                            format!(
+                                "{} (its result was computed for an older case: run the sweep again)",
+                                e.name
+                            ),
+                            "older case",
+                            None,
+                        )
+                    } else if let Some(why) = crate::sweep::failure_reason(dir, &e.name) {
+                        (format!("{} ({FAILED_WORDS} {why})", e.name), "failed", Some(why))
+                    } else {
+                        (e.name.clone(), "not run", None)
+                    };
+                    let record = MissingVariant {
+                        variant: e.name,
+                        status: status.into(),
+                        reason,
+                    };
+                    (line, record)
+                })
+                .unzip()
+        });
     let mut c = Collected {
         sweep: name.unwrap_or_else(|| "sweep".into()),
         keys,
         regions: region_names(&variants),
         variants,
         missing,
+        missing_variants,
         drag_ranking: String::new(),
         front_lift_ranking: String::new(),
         rear_lift_ranking: String::new(),
@@ -1114,8 +1164,28 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     // sweep had named its 12-degree ramp, 24 % separated, the winner).
     let under = [best, next].map(|r| r.underbody_separated_percent);
     let stall = (under[0] - under[1]).abs() > 100.0 * crate::compare::SEPARATION_SHIFT;
+    // The floor is measured near the suggested panel count; under half of
+    // it (a note, or below a third or a yawed run's three quarters the
+    // coarse-mesh warning) the lift scatters more, unless the pair
+    // measured its own noise (a
+    // review's half models at 1,750 panels named a front-axle winner by
+    // 8.1 kg that whole bodies at 3,500 reversed by 1.5).
+    let coarse: Vec<String> = [best, next]
+        .iter()
+        .filter(|r| r.coarse || r.warning_texts.iter().any(|w| is_coarse_mesh(w)))
+        .map(|r| shown_name(r))
+        .collect();
+    let measured = axle.spread(best).is_some() && axle.spread(next).is_some();
     let standing = if gap < noise {
         format!("within the lift noise of about {} kg: no winner", kg(noise))
+    } else if !coarse.is_empty() && !measured {
+        format!(
+            "beyond the lift noise of about {} kg found near the suggested panel count, but {} ran well \
+             below it (see the notes and warnings), where the lift scatters more: no winner (raise geometry.panels, or run \
+             with --noise to measure the scatter at this count)",
+            kg(noise),
+            coarse.join(" and ")
+        )
     } else if stall {
         format!(
             "beyond the lift noise of about {} kg, but their underbodies separate differently ({:.1} % \
@@ -1319,6 +1389,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         cd_low: s.drag_estimate.cd_low,
         cd_high: s.drag_estimate.cd_high,
         cl: s.coefficients.lift,
+        cs: s.coefficients.side,
         lift_kg: s.lift_kg.total,
         front_axle_kg: s.lift_kg.front_axle,
         rear_axle_kg: s.lift_kg.rear_axle,
@@ -1554,7 +1625,7 @@ const CSV_COLUMNS: &str = "speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts
                            reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,\
                            front_minus_rear_kg,separated_area_m2,separated_percent,panels,\
                            panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,\
-                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved,counts_above_first";
+                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved,counts_above_first,cs";
 
 /// Whether `name` is one of sweep.csv's own columns (the two first,
 /// `rank` and `variant`, too), which a label of that name would repeat.
@@ -1750,14 +1821,15 @@ fn csv_row(
     // still finds the columns.
     let _ = write!(
         s,
-        ",{},{},{:.1},{},{},{},{}",
+        ",{},{},{:.1},{},{},{},{},{}",
         floor(0),
         floor(1),
         r.speed * 3.6,
         spread(r.front_axle_spread_kg),
         spread(r.rear_axle_spread_kg),
         surface_words(r).replace(',', ";"),
-        from_first.map(|a| format!("{a:.1}")).unwrap_or_default()
+        from_first.map(|a| format!("{a:.1}")).unwrap_or_default(),
+        r.cs
     );
     for g in &c.regions {
         match region(r, g) {
@@ -3679,6 +3751,7 @@ mod tests {
             cd_low: 0.28,
             cd_high: 0.32,
             cl: 0.0,
+            cs: 0.0,
             lift_kg: 0.0,
             front_axle_kg: 0.0,
             rear_axle_kg: 0.0,
@@ -3726,6 +3799,7 @@ mod tests {
             variants: shares.iter().enumerate().map(row).collect(),
             regions: Vec::new(),
             missing: Vec::new(),
+            missing_variants: Vec::new(),
             drag_ranking: String::new(),
             front_lift_ranking: String::new(),
             rear_lift_ranking: String::new(),
@@ -4039,6 +4113,29 @@ mod tests {
             ),
             "{line}"
         );
+        // Beyond the noise, but one of the pair ran on under half of the
+        // panels suggested, where the floor was not measured: no winner,
+        // unless both measured their own scatter.
+        c.variants[1].rear_axle_spread_kg = None;
+        c.variants[0].rear_axle_spread_kg = None;
+        c.variants[0].coarse = true;
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
+        assert!(
+            line.contains(
+                "beyond the lift noise of about 3.3 kg found near the suggested panel count, but v0 \
+                 ran well below it (see the notes and warnings), where the lift scatters more: no winner"
+            ),
+            "{line}"
+        );
+        c.variants[1].rear_axle_spread_kg = Some(1.0);
+        c.variants[0].rear_axle_spread_kg = Some(1.0);
+        let line = axle_lift_ranking(&c, Axle::Rear).unwrap_or_default();
+        assert!(
+            line.contains("beyond the lift noise of about 3.3 kg"),
+            "{line}"
+        );
+        assert!(!line.contains("no winner"), "{line}");
+        c.variants[0].coarse = false;
         // Beyond the noise, but the two underbodies separate differently
         // (a diffuser 24 % against 11 % separated): no winner.
         c.variants[1].rear_axle_spread_kg = None;
@@ -4616,7 +4713,7 @@ mod tests {
         assert!(
             lines[0].ends_with(
                 ",warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,front_axle_noise_kg,\
-                 rear_axle_noise_kg,surface_solved,counts_above_first,\
+                 rear_axle_noise_kg,surface_solved,counts_above_first,cs,\
                  region:rear window:separated_percent,\
                  region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
@@ -4628,13 +4725,13 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,,,144.0,,,,0.0,3,attached,3,3,firm,71,separated,71,71,firm"),
+            lines[1].ends_with(",0,0,,,144.0,,,,0.0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,,,144.0,,,,0.0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,144.0,,,,0.0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]

@@ -88,7 +88,7 @@ pub struct Deltas {
     /// like with like at B's dynamic pressure (B at 50 m/s against A at 40
     /// had read -63 kg where like for like it is -10). Coefficient
     /// differences need no such factor.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub a_loads_scaled_by: Option<f64>,
     /// The lift difference two runs of imperceptibly different shapes can
     /// show ([`lift_floor_cl`] of the two runs at B's dynamic pressure and
@@ -99,7 +99,7 @@ pub struct Deltas {
     /// three matched panel counts, kg at B's dynamic pressure (the runs'
     /// own first, [`matched`]); `lift_noise_kg` is then the larger of the
     /// built-in floor and their spread.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub matched_lift_kg: Option<Vec<f64>>,
     /// The built-in lift floor ([`verdict::LIFT_NOISE_CL`]) at B's dynamic pressure
     /// and reference area, kg: what each matched difference must clear.
@@ -108,7 +108,7 @@ pub struct Deltas {
     /// Without panel noise measured on either run: the larger separated
     /// share of the two, %, where it is over [`BLUNT_LIFT_PERCENT`] (the
     /// built-in floor is then too low to trust; [`lift_noise_words`]).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub blunt_separated_percent: Option<f64>,
     /// Separated area, m^2.
     pub separated_area_m2: f64,
@@ -212,7 +212,7 @@ pub struct SurfaceDeltas {
     pub margins_m: [f64; 2],
     /// The x range of B's changed panels' centroids, m (`None` where none
     /// changed).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub changed_x_m: Option<[f64; 2]>,
 }
 
@@ -256,8 +256,15 @@ pub struct Side {
     /// Rear-axle lift, kg.
     #[serde(default)]
     pub rear_axle_kg: f64,
+    /// Side-force coefficient (the wind's axes, positive to the car's
+    /// right; in a cross wind a rough figure, the run's notes say why).
+    #[serde(default)]
+    pub cs: f64,
+    /// Yaw, degrees.
+    #[serde(default)]
+    pub yaw_deg: f64,
     /// The run's panel noise, when it measured one (`tuft run --noise`).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub panel_noise: Option<crate::noise::PanelNoise>,
 }
 
@@ -597,6 +604,8 @@ fn side(r: &ResultFolder) -> Side {
         reference_area_m2: s.reference.area_m2,
         front_axle_kg: s.lift_kg.front_axle,
         rear_axle_kg: s.lift_kg.rear_axle,
+        cs: s.coefficients.side,
+        yaw_deg: yaw_of(s),
         panel_noise: s.panel_noise.clone(),
     }
 }

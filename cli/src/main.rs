@@ -150,6 +150,7 @@ fn main() -> ExitCode {
         Command::Sweep(args) => sweep::run(&args),
         Command::Collect(args) => collect::run(&args),
     };
+    let finished = outcome.is_ok();
     let code = match outcome {
         Ok(code) => code,
         Err(err) => {
@@ -158,7 +159,15 @@ fn main() -> ExitCode {
         }
     };
     if let Some(e) = stdout_failure() {
-        eprintln!("tuft: writing to stdout failed ({e}): what it printed is cut short");
+        // A script retrying on exit code 2 should know the results are
+        // there (a review's run to a full stdout left a complete folder,
+        // and the retry was refused as the folder existed).
+        let rest = if finished {
+            "; the command itself finished, and any folder it wrote is complete"
+        } else {
+            ""
+        };
+        eprintln!("tuft: writing to stdout failed ({e}): what it printed is cut short{rest}");
         return ExitCode::from(EXIT_FAILURE);
     }
     code

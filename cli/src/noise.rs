@@ -104,7 +104,7 @@ pub struct PanelNoise {
     pub rim_m2: Vec<f64>,
     /// Each named region's separated share at each count, in the case's
     /// order (empty in summaries written before it was kept).
-    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    #[serde(default)]
     pub region_fractions: Vec<Vec<f64>>,
     /// Largest less smallest drag, counts.
     pub drag_counts: f64,

@@ -81,9 +81,9 @@ pub struct RegionResult {
     /// For a region whose surface faces up (a rear window, a slant, a
     /// boot deck, a roof): its slope below the horizontal, degrees,
     /// positive where it falls toward the tail, negative where it rises
-    /// (see [`surface_slope`]); absent for one that does not face up (a
+    /// (see [`surface_slope`]); null for one that does not face up (a
     /// base, a floor, a flank).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub slope_deg: Option<f64>,
     /// How firm the verdict is ([`RegionResult::firmness`]): "firm",
     /// "provisional" (within [`VERDICT_NOISE`] of a regime line) or
@@ -97,19 +97,19 @@ pub struct RegionResult {
     /// has drifted to one side (a review's notchback read its diffuser
     /// "partly separated, 28 %, firm" from a strip along one sill), and
     /// the verdict is uncertain.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub sides: Option<[f64; 2]>,
     /// With `--noise`, the separated share at the run's own panel count
     /// and at the two others (`noise::PanelNoise::region_fractions`); the
     /// verdict is uncertain when they give two verdicts.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub at_counts: Option<Vec<f64>>,
     /// The run was solved on under half of the panels suggested for its
     /// body ([`crate::summary::Summary::under_half_suggested`]): its
     /// verdict is at best provisional, wherever its share lies (a review's
     /// mirror-flank box read 32 % separated, "firm", on a whole body at
     /// 3,500 of 8,000 suggested panels, and 2 % as a half model).
-    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    #[serde(default)]
     pub coarse_mesh: bool,
     /// Share of the region's area beside sharp front edges the flow
     /// leaves (the rim zone), where the pressure is held at the free
@@ -117,13 +117,8 @@ pub struct RegionResult {
     /// [`RIM_REGION_SHARE`] on, its verdict rests on that rule and is
     /// provisional at best (a review's bonnet read "attached" with its
     /// leading edge's suction replaced by the dead water's pressure).
-    #[serde(default, skip_serializing_if = "is_zero")]
+    #[serde(default)]
     pub rim_fraction: f64,
-}
-
-/// Serde's test for a share left out of the JSON when zero.
-fn is_zero(v: &f64) -> bool {
-    *v == 0.0
 }
 
 /// Share of a region's area in the rim zone from which its verdict is
@@ -248,8 +243,9 @@ impl RegionResult {
         });
         let rim = if self.rim_fraction >= RIM_REGION_WORDS {
             format!(
-                "; {:.0} % of it lies beside sharp front edges, where the pressure is held at the \
-                 free streamline's bound, not computed{}",
+                "; {:.0} % of it lies beside sharp front edges, where the boundary layer sees the \
+                 speed capped at the free streamline's bound and the loads a pressure no lower than \
+                 the dead water's, so its verdict rests on that rule{}",
                 100.0 * self.rim_fraction,
                 if self.rim_held() {
                     ": a provisional verdict"
@@ -870,15 +866,16 @@ mod tests {
         r.rim_fraction = 0.12;
         assert_eq!(r.firmness(), "firm");
         assert!(
-            r.words().ends_with("12 % of it lies beside sharp front edges, where the pressure is held at the free streamline's bound, not computed)"),
+            r.words().ends_with("12 % of it lies beside sharp front edges, where the boundary layer sees the speed capped at the free streamline's bound and the loads a pressure no lower than the dead water's, so its verdict rests on that rule)"),
             "{}",
             r.words()
         );
         r.rim_fraction = 0.45;
         assert_eq!(r.firmness(), "provisional");
         assert!(
-            r.words()
-                .contains("45 % of it lies beside sharp front edges, where the pressure is held"),
+            r.words().contains(
+                "45 % of it lies beside sharp front edges, where the boundary layer sees"
+            ),
             "{}",
             r.words()
         );

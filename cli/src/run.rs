@@ -286,7 +286,7 @@ fn print_summary(out: &Path, s: &Summary) {
     if s.rim_shown() {
         use crate::output::fixed;
         say!(
-            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, within x {} to {} m and z {} to {} m, held at the free-streamline bound",
+            "  sharp front edges: the flow leaves them (rims, tighter than {:.0} mm); {:.2} m^2 beside them, within x {} to {} m and z {} to {} m, where the boundary layer's speed is capped at the free-streamline bound and the pressure kept no lower than the dead water's",
             1000.0 * s.separation.rim_radius_m,
             s.separation.rim_m2,
             fixed(s.separation.rim_x_m[0], 2),

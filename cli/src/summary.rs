@@ -26,6 +26,28 @@ pub struct CoefficientSet {
     pub pitch: f64,
 }
 
+impl CoefficientSet {
+    /// The drag and side-force coefficients turned into the body's axes
+    /// at `yaw_deg`: `[along +x (nose to tail, rearward), along +y]`. The
+    /// wind runs along `(cos yaw, sin yaw, 0)` and the side force along
+    /// `(-sin yaw, cos yaw, 0)` (`tuft_solver::loads`), so in a cross wind
+    /// the drag along the wind takes in `sin yaw` of the side force.
+    pub fn body_axes(&self, yaw_deg: f64) -> [f64; 2] {
+        let (s, c) = yaw_deg.to_radians().sin_cos();
+        [self.drag * c - self.side * s, self.drag * s + self.side * c]
+    }
+}
+
+/// The force coefficients in the body's axes (what a cross wind's drag
+/// and side force are made of).
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct BodyAxes {
+    /// Along +x, nose to tail (rearward), on the reference area.
+    pub axial: f64,
+    /// Along +y, to the car's right, on the reference area.
+    pub lateral: f64,
+}
+
 /// Vertical loads in kilograms-force at the run speed (trade habit).
 #[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
 pub struct LiftKg {
@@ -117,8 +139,8 @@ pub struct MeshFacts {
     pub preparation: serde_json::Value,
     /// The STL's size and content hash ([`stl_fingerprint`]), so that a
     /// sweep can tell a file replaced under its name whatever its time
-    /// stamp; absent for a built-in shape.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// stamp; null for a built-in shape.
+    #[serde(default)]
     pub stl_fingerprint: Option<String>,
 }
 
@@ -156,8 +178,8 @@ pub struct ReferenceValues {
     /// The floor's height above the ground at the front and the rear axle,
     /// m (the lowest surface facing down on the centre line within a
     /// fortieth of the length of each axle, `write::floor_heights`);
-    /// absent in free air or with no surface facing down there.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// null in free air or with no surface facing down there.
+    #[serde(default)]
     pub floor_heights_m: Option<[f64; 2]>,
 }
 
@@ -222,7 +244,7 @@ pub struct SolverFacts {
     pub method: String,
     /// Krylov iterations, if iterative.
     pub iterations: Option<usize>,
-    /// Relative residual of an iterative solve (absent for a direct LU
+    /// Relative residual of an iterative solve (null for a direct LU
     /// solve, which overwrites the matrix it would be checked against).
     pub residual: Option<f64>,
     /// Surface streamlines traced.
@@ -258,6 +280,11 @@ pub struct Summary {
     /// the attached flow's drag estimate with the plateau model is
     /// `separated_wakes.cd_plateau`.
     pub coefficients_attached: CoefficientSet,
+    /// The estimate's drag and side force in the body's axes (equal to
+    /// them straight ahead; in a cross wind the drag along the wind takes
+    /// in part of the side force, [`CoefficientSet::body_axes`]).
+    #[serde(default)]
+    pub coefficients_body_axes: BodyAxes,
     /// Drag estimate with its band.
     pub drag_estimate: DragEstimate,
     /// Lift in kg at the run speed.
@@ -266,21 +293,21 @@ pub struct Summary {
     pub separation: Separation,
     /// Solver facts.
     pub solver: SolverFacts,
-    /// The separated-flow loop (absent when the case asked for attached
+    /// The separated-flow loop (null when the case asked for attached
     /// flow only).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub separated_wakes: Option<SeparatedWakes>,
     /// The case's named regions and how much of each separated.
     #[serde(default)]
     pub regions: Vec<crate::region::RegionResult>,
     /// What holding the suction beside sharp edges no surface streamline
-    /// crossed did to the loads (`pipeline::hold_edge_spikes`; absent when
+    /// crossed did to the loads (`pipeline::hold_edge_spikes`; null when
     /// no panel was held).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub edge_hold: Option<EdgeHold>,
     /// The same case solved at two other panel counts (`tuft run
-    /// --noise`; absent without it).
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    /// --noise`; null without it).
+    #[serde(default)]
     pub panel_noise: Option<crate::noise::PanelNoise>,
     /// Seconds per phase.
     pub timings_s: BTreeMap<String, f64>,

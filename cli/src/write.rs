@@ -709,6 +709,10 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
         reynolds_number: flow.speed * r.length / flow.viscosity,
         coefficients: coefficient_set(e, r),
         coefficients_attached: coefficient_set(&c.attached, r),
+        coefficients_body_axes: {
+            let [axial, lateral] = coefficient_set(e, r).body_axes(flow.yaw);
+            crate::summary::BodyAxes { axial, lateral }
+        },
         drag_estimate: DragEstimate {
             cd: e.total.coefficients.drag,
             cd_low: c.drag_band.0,
@@ -775,7 +779,8 @@ pub fn summary(case: &Case, geo: &Geometry, c: &Computed, progress: &Progress) -
     s.notes.extend(s.coarse_note());
     s.notes.extend(c.region_notes.iter().cloned());
     if case.file.flow.yaw != 0.0 {
-        s.notes.push(cross_wind_note(case.file.flow.yaw));
+        let note = cross_wind_note(&s, case.file.flow.yaw);
+        s.notes.push(note);
     }
     if s.under_half_suggested() {
         for r in &mut s.regions {
@@ -968,16 +973,51 @@ pub const CROSS_WIND: &str = "cross wind at";
 /// summary.json's notes: a review scripting off summary.json read
 /// `coefficients.side` 0.038 at 10 degrees with no word that it is not
 /// the side force (the report's Cross wind section, [`cross_wind_text`],
-/// had the words).
-pub fn cross_wind_note(yaw: f64) -> String {
+/// had the words); a later review found the drag along the wind made
+/// mostly of the side force's share and nothing saying so.
+pub fn cross_wind_note(s: &Summary, yaw: f64) -> String {
+    let k = &s.coefficients;
+    let [axial, _] = s.coefficients.body_axes(yaw);
     format!(
-        "{CROSS_WIND} {}: the side-force coefficient (coefficients.side) is not the side force, not \
-         even in sign (cars measure about 0.03 to 0.04 per degree, common practice, mostly from the \
-         lee side's separated flow, which this model does not hold), no yawing or rolling moment is \
-         given, and the drag can read lower than straight ahead where cars measure more; compare runs \
-         at one yaw only (the report's Cross wind section says more)",
-        output::yaw_words(yaw)
+        "{CROSS_WIND} {}: the side-force coefficient (coefficients.side, {:.3}) is not the side force{} \
+         (cars measure about 0.03 to 0.04 per degree, common practice, mostly from the lee side's \
+         separated, vortex-laden flow, which this model does not hold); the drag along the wind takes \
+         in {:+.3} from the force across the body (along the body's axis the force coefficient is \
+         {axial:.3}, coefficients_body_axes), so the drag at yaw carries the same doubt; no yawing or \
+         rolling moment is given; compare runs at one yaw only, and run a body whose halves agree as a \
+         half model (half_model = true), which a cross wind mirrors into a whole body with both sides \
+         alike (the report's Cross wind section says more)",
+        output::yaw_words(yaw),
+        k.side,
+        side_sign_words(s),
+        side_share_of_drag(k, yaw),
     )
+}
+
+/// How far the side force's sign can be trusted: the attached flow's can
+/// be of the wrong sign (a review's box van at 5 degrees read -0.058,
+/// pushed into the wind); the loop's comes from the lee flank's dead
+/// water, which gives its sign but not its size (a review's box van at 15
+/// degrees read 0.321, 0.021 per degree, where its attached flow gave
+/// -0.159).
+fn side_sign_words(s: &Summary) -> String {
+    if s.separated_wakes.is_some() {
+        format!(
+            ", only a rough figure: the lee side's separated regions sit at the one dead-water pressure \
+             the whole body shares, and the attached flow alone gives {:.3}",
+            s.coefficients_attached.side
+        )
+    } else {
+        ", not even in sign (it is the attached flow's)".to_owned()
+    }
+}
+
+/// The part of the drag along the wind that the body's lateral force
+/// makes: the drag is the axial force times `cos(yaw)` plus the lateral
+/// force times `sin(yaw)` ([`crate::summary::CoefficientSet::body_axes`];
+/// a review's box van at 15 degrees, 0.099 of C_D 0.280).
+fn side_share_of_drag(k: &crate::summary::CoefficientSet, yaw: f64) -> f64 {
+    k.body_axes(yaw)[1] * yaw.to_radians().sin()
 }
 
 /// What a yawed run can and cannot say: a car's side force comes mostly
@@ -987,24 +1027,39 @@ pub fn cross_wind_note(yaw: f64) -> String {
 /// and 0.027 at 10, 2026-12-02); nor the drag it adds (the shipped coupe
 /// STL case at 3,956 panels: C_D 0.151 straight ahead, 0.137 at 10
 /// degrees and 0.143 at -10 on a body whose halves agree, underbody lift
-/// -240 kg straight ahead and -268 at 10 degrees; a review, 2026-12-03).
-fn cross_wind_text(yaw: f64, side: f64) -> String {
+/// -240 kg straight ahead and -268 at 10 degrees; a review, 2026-12-03). A
+/// whole-body mesh panels its two sides differently, which a cross wind
+/// turns into a bias between a yaw and its mirror image (a review's box
+/// van at 15 and -15 degrees: side force 0.321 and -0.377, its roof 28 and
+/// 15 % separated; as a half model mirrored whole, 0.357 both ways and 11
+/// % separated).
+fn cross_wind_text(s: &Summary, yaw: f64) -> String {
+    let k = &s.coefficients;
+    let [axial, lateral] = k.body_axes(yaw);
     format!(
-        "At {} the side-force coefficient comes to {side:.3} (positive to the car's right, +y). Cars \
+        "At {} the side-force coefficient comes to {:.3} (positive to the car's right, +y){}. Cars \
          measure about 0.03 to 0.04 per degree of yaw (common practice), most of it from the separated \
-         flow and the vortices on the lee side, which attached potential flow with the dead water at one \
-         pressure does not hold: this number is not the side force, not even in sign (a review's box van \
-         at 5 degrees read -0.058, pushed into the wind, where such bodies measure about +0.3), the \
-         flanks' pressures are the attached flow's (on a long body the windward flank can read more \
-         suction than the lee), and no yawing or rolling moment is given. The drag misses the same \
-         lee-side flow: cars measure more drag in a cross wind than straight ahead (common practice), \
-         where this model can give less, and a yaw and its mirror image can differ by several counts on \
-         a symmetric body (the shipped coupe case, another run than this one: C_D 0.151 straight ahead, \
-         0.137 at 10 degrees, 0.143 at -10), so compare drag between runs at one yaw only. The lift moves \
-         mostly with the smooth underbody's suction (that case's underbody: -240 kg straight ahead, -268 \
-         at 10 degrees), the least certain part of it. Cross-wind stability needs validated CFD or a \
-         tunnel.",
-        output::yaw_words(yaw)
+         flow and the vortices on the lee side, which this model does not hold: the flanks' attached \
+         pressures are the attached flow's (on a long body the windward flank can read more suction than \
+         the lee), and no yawing or rolling moment is given. The drag is taken along the wind: the force \
+         along the body's axis times the cosine of the yaw plus the force across it times the sine. \
+         Along the axis the force coefficient is {axial:.3} and across it {lateral:.3}, so {:+.3} of \
+         the drag's {:.3} here comes from the force across the body \
+         (summary.json's coefficients_body_axes): the drag at yaw carries the side force's doubt. \
+         Cars measure more drag in a cross wind than straight ahead (common practice), where this model \
+         can give less. A whole-body mesh panels its two sides differently, and a cross wind turns that \
+         into a difference between a yaw and its mirror image (a review's box van at 15 and -15 degrees: \
+         side force 0.321 and -0.377, its roof 28 and 15 % separated; the shipped coupe case: C_D 0.137 \
+         at 10 degrees, 0.143 at -10), so run a body whose halves agree as a half model (half_model = \
+         true: in a cross wind it is mirrored into a whole body with both sides alike; that van read \
+         0.357 both ways) and compare drag between runs at one yaw only. The lift moves mostly with the \
+         smooth underbody's suction (that coupe's underbody: -240 kg straight ahead, -268 at 10 \
+         degrees), the least certain part of it. Cross-wind stability needs validated CFD or a tunnel.",
+        output::yaw_words(yaw),
+        k.side,
+        side_sign_words(s),
+        side_share_of_drag(k, yaw),
+        k.drag,
     )
 }
 
@@ -1185,16 +1240,17 @@ fn report(
             &at,
         ));
     }
-    // In a cross wind the side force is the attached flow's, not an
-    // estimate (a review's van at 5 degrees read -0.058 where such bodies
-    // measure +0.3): the number says so where it is read.
+    // In a cross wind the side force is no estimate (the attached flow's
+    // can be of the wrong sign, the loop's holds the lee side at one
+    // pressure): the number says so where it is read.
     let side = if s.flow("yaw").is_some_and(|y| y != 0.0) {
         NumberRow::text(
             "Side-force coefficient (across the wind, level, positive to the car's right, +y; the \
              drag above is along the wind, not the body's axis)",
             &format!(
-                "{:.3}: the attached flow's, not an estimate of the side force (see Cross wind)",
-                k.side
+                "{:.3}{}; not an estimate of the side force (see Cross wind)",
+                k.side,
+                side_sign_words(s)
             ),
             "-",
         )
@@ -1438,7 +1494,7 @@ fn report(
     if case.file.flow.yaw != 0.0 {
         sections.push(TextSection {
             title: "Cross wind".into(),
-            body: cross_wind_text(case.file.flow.yaw, s.coefficients.side),
+            body: cross_wind_text(s, case.file.flow.yaw),
         });
     }
     if let Some(w) = &s.separated_wakes {

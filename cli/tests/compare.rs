@@ -164,6 +164,11 @@ fn a_run_against_itself_and_two_rear_window_slopes() {
     for (k, v) in same["deltas"].as_object().unwrap() {
         // Beside the differences: the noise a lift difference is set
         // against, and the built-in floor within it.
+        // A value that does not apply is null (the loads scaled to B's
+        // dynamic pressure, the panel noise's matched differences).
+        if v.is_null() {
+            continue;
+        }
         if k != "lift_noise_kg" && k != "lift_floor_kg" {
             assert_eq!(v.as_f64().unwrap(), 0.0, "{k}");
         }

@@ -489,8 +489,16 @@ fn collect_leaves_out_variants_of_another_sweep() {
     let record = other.join("variant.json");
     let text = std::fs::read_to_string(&record).unwrap();
     std::fs::write(&record, text.replace("\"speed-20\"", "\"speed-99\"")).unwrap();
-    let (code, _) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
+    let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
     assert_eq!(code, 1);
+    // Quiet, a script still reads why the exit code is 1, on one line.
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(
+        err.starts_with(&format!("tuft: {}: finished with ", out.display()))
+            && err.contains("note")
+            && err.trim_end().ends_with("sweep.html"),
+        "{err}"
+    );
     let c = json(&out.join("sweep.json"));
     assert_eq!(c["variants"].as_array().unwrap().len(), 2);
     assert!(c["missing"].as_array().unwrap().is_empty());
@@ -735,6 +743,15 @@ fn the_page_shows_each_variant_at_a_glance_in_rank_order() {
     let (code, err) = tuft(&["collect", out.to_str().unwrap(), "--quiet"]);
     assert_eq!(code, 2, "{err}");
     let c = json(&out.join("sweep.json"));
+    // The failed variant, for a script: its name, status and reason.
+    let failed = &c["missing_variants"][0];
+    assert_eq!(c["missing_variants"].as_array().unwrap().len(), 1);
+    assert_eq!(failed["status"], "failed");
+    assert!(
+        failed["variant"].as_str().unwrap().starts_with("ground")
+            && failed["reason"].as_str().unwrap().contains("ground"),
+        "{failed}"
+    );
     let ranked: Vec<(u64, String, f64)> = c["variants"]
         .as_array()
         .unwrap()

@@ -138,12 +138,12 @@ pub struct DragVerdict {
     /// coefficients are put on, A's, m^2, so that the counts above compare
     /// drag areas C_D·A (the drag forces at one dynamic pressure) rather
     /// than coefficients on different areas.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub common_area_m2: Option<f64>,
     /// With both runs' panel noise measured: the difference at their three
     /// matched panel counts, counts (the runs' own first,
     /// [`super::matched`]), which then decides whether it stands out.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default)]
     pub matched_counts: Option<Vec<f64>>,
 }
 

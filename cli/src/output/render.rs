@@ -1,9 +1,9 @@
 //! Orthographic pictures of the body: z-buffered flat-shaded triangles,
 //! coloured per panel, with Lambert shading so the shape reads.
 //!
-//! Views (x downstream, z up): [`View::Side`] from -y (nose to the left),
-//! or [`View::SideFromRight`] from +y (nose to the right) when a cross wind
-//! makes +y the lee side ([`View::sheet`]),
+//! Views (x downstream, z up): [`View::Side`] from -y (nose to the left)
+//! and [`View::SideFromRight`] from +y (nose to the right), the lee side
+//! first in a cross wind ([`View::sheet`]),
 //! [`View::Top`] from +z, [`View::Underneath`] from -z, [`View::Front`]
 //! from -x looking downstream and [`View::Rear`] from +x looking upstream. A half model (symmetry plane declared) is drawn
 //! whole: its mirror image across y = 0 carries the same values.
@@ -50,22 +50,38 @@ impl View {
         View::Rear,
     ];
 
-    /// The views of a sheet at `yaw_deg`, in sheet order: the side view
-    /// shows the lee side, where a cross wind's separation lies (from +y
-    /// for a positive yaw, whose wind blows towards +y; from -y otherwise).
-    pub fn sheet(yaw_deg: f64) -> [View; 5] {
-        let mut views = View::ALL;
-        if yaw_deg > 0.0 {
-            views[0] = View::SideFromRight;
+    /// The views of a sheet at `yaw_deg`, in sheet order: straight ahead
+    /// [`View::ALL`]; in a cross wind both sides, the lee side first,
+    /// where a cross wind's separation lies (from +y for a positive yaw,
+    /// whose wind blows towards +y; from -y for a negative one), then the
+    /// windward side (a review's van at 15 degrees showed its windward
+    /// flank edge-on only, with suction all along it).
+    pub fn sheet(yaw_deg: f64) -> Vec<View> {
+        if yaw_deg == 0.0 {
+            return View::ALL.to_vec();
         }
-        views
+        let [lee, windward] = if yaw_deg > 0.0 {
+            [View::SideFromRight, View::Side]
+        } else {
+            [View::Side, View::SideFromRight]
+        };
+        vec![
+            lee,
+            windward,
+            View::Top,
+            View::Underneath,
+            View::Front,
+            View::Rear,
+        ]
     }
 
     /// The label printed above the view on a sheet at `yaw_deg`: a yawed
-    /// run's side view is named its lee side.
+    /// run's side views are named the lee and the windward side.
     pub fn label_at(self, yaw_deg: f64) -> String {
         if self.is_side() && yaw_deg != 0.0 {
-            format!("{}: the lee side", self.label())
+            let lee = (yaw_deg > 0.0) == (self == View::SideFromRight);
+            let which = if lee { "lee" } else { "windward" };
+            format!("{}: the {which} side", self.label())
         } else {
             self.label().to_owned()
         }

@@ -48,6 +48,19 @@ impl Default for SheetParams {
     }
 }
 
+impl SheetParams {
+    /// The whole-body sheet's height at `yaw_deg`: a cross wind's third
+    /// row of views ([`View::sheet`]) makes it a third taller, so that the
+    /// views keep their scale and the room over them for region names.
+    pub fn height_at(&self, yaw_deg: f64) -> u32 {
+        if yaw_deg == 0.0 {
+            self.height
+        } else {
+            self.height + self.height / 3
+        }
+    }
+}
+
 /// Where each view sits on the sheet.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Layout {
@@ -75,16 +88,31 @@ pub fn layout(tris: &[DisplayTri], params: &SheetParams) -> Layout {
     layout_at(tris, params, 0.0)
 }
 
-/// [`layout`] for a sheet at `yaw_deg`, whose side view shows the lee side
-/// ([`View::sheet`]).
+/// [`layout`] for a sheet at `yaw_deg` ([`View::sheet`]): in a cross wind
+/// three rows of two, the lee and the windward side, the top and the
+/// underneath, the front and the rear, on a sheet a third taller
+/// ([`SheetParams::height_at`]).
 pub fn layout_at(tris: &[DisplayTri], params: &SheetParams, yaw_deg: f64) -> Layout {
     let sheet_views = View::sheet(yaw_deg);
+    let rows = if sheet_views.len() > 5 { 3 } else { 2 };
     let cell_w = (f64::from(params.width) - BAR_COLUMN - 20.0) / 2.0;
-    let cell_h = (f64::from(params.height) - TITLE_BAND - 10.0) / 2.0;
+    let cell_h = (f64::from(params.height_at(yaw_deg)) - TITLE_BAND - 10.0) / f64::from(rows);
     let (pic_w, pic_h) = (cell_w - 30.0, cell_h - LABEL_BAND - 14.0);
-    // Width of each view's picture: the last cell holds two.
-    let width = |k: usize| if k < 3 { pic_w } else { 0.5 * pic_w - 10.0 };
-    let extents = sheet_views.map(|v| render::extent(tris, v));
+    // Each view's cell (column, row), and whether it shares it with the
+    // next: the five-view sheet's last cell holds the front and the rear.
+    let shared = |k: usize| rows == 2 && k >= 3;
+    let width = |k: usize| if shared(k) { 0.5 * pic_w - 10.0 } else { pic_w };
+    let cell = |k: usize| {
+        if rows == 2 && k >= 3 {
+            (1, 1)
+        } else {
+            (k % 2, k / 2)
+        }
+    };
+    let extents: Vec<_> = sheet_views
+        .iter()
+        .map(|&v| render::extent(tris, v))
+        .collect();
     let scale = extents
         .iter()
         .enumerate()
@@ -96,9 +124,9 @@ pub fn layout_at(tris: &[DisplayTri], params: &SheetParams, yaw_deg: f64) -> Lay
         .zip(extents)
         .enumerate()
         .map(|(k, (&v, e))| {
-            let (column, row) = if k < 3 { (k % 2, k / 2) } else { (1, 1) };
+            let (column, row) = cell(k);
             let mut left = 20.0 + cell_w * column as f64 + 10.0;
-            if k == 4 {
+            if shared(k) && k == 4 {
                 left += 0.5 * pic_w + 10.0;
             }
             let top = TITLE_BAND + cell_h * row as f64 + LABEL_BAND;
@@ -334,7 +362,12 @@ fn views_sheet_in(
     overlay: &mut Overlay<'_>,
 ) -> Result<Canvas, OutputError> {
     s.validate()?;
-    let mut canvas = Canvas::new(params.width, params.height)?;
+    let height = if layout.is_some() {
+        params.height
+    } else {
+        params.height_at(caption.yaw_deg)
+    };
+    let mut canvas = Canvas::new(params.width, height)?;
     let tris = display_triangles(s.mesh);
     let whole;
     let lay = match layout {
@@ -913,24 +946,45 @@ mod tests {
         )
         .unwrap();
         let params = SheetParams::default();
-        let lay = layout(&display_triangles(&coupe), &params);
-        assert_eq!(lay.views.len(), 5);
-        for (i, (_, a)) in lay.views.iter().enumerate() {
-            let (l, t, w, h) = a.rect;
-            assert!(l >= 0 && t >= 0 && w > 0 && h > 0);
-            assert!(l + w <= i64::from(params.width) - BAR_COLUMN as i64);
-            assert!(t + h <= i64::from(params.height));
-            for (_, b) in &lay.views[i + 1..] {
-                let (m, u, x, y) = b.rect;
-                let apart = l + w <= m || m + x <= l || t + h <= u || u + y <= t;
-                assert!(apart, "{:?} and {:?} overlap", a.rect, b.rect);
-            }
-        }
-        let (front, rear) = (
-            lay.frame(View::Front).unwrap(),
-            lay.frame(View::Rear).unwrap(),
+        let tris = display_triangles(&coupe);
+        let straight = layout(&tris, &params);
+        // In a cross wind: six views, both sides, on a taller sheet, at
+        // about the straight-ahead scale.
+        let yawed = layout_at(&tris, &params, -10.0);
+        assert_eq!(straight.views.len(), 5);
+        assert_eq!(yawed.views.len(), 6);
+        assert_eq!(
+            [yawed.views[0].0, yawed.views[1].0],
+            [View::Side, View::SideFromRight]
         );
-        assert_eq!(front.rect.1, rear.rect.1);
-        assert!(front.rect.0 < rear.rect.0);
+        let scale = |l: &Layout| l.views[0].1.scale;
+        assert!(scale(&yawed) > 0.9 * scale(&straight));
+        for (lay, yaw) in [(straight, 0.0), (yawed, -10.0)] {
+            for (i, (_, a)) in lay.views.iter().enumerate() {
+                let (l, t, w, h) = a.rect;
+                assert!(l >= 0 && t >= 0 && w > 0 && h > 0);
+                assert!(l + w <= i64::from(params.width) - BAR_COLUMN as i64);
+                assert!(t + h <= i64::from(params.height_at(yaw)));
+                for (_, b) in &lay.views[i + 1..] {
+                    let (m, u, x, y) = b.rect;
+                    let apart = l + w <= m || m + x <= l || t + h <= u || u + y <= t;
+                    assert!(apart, "{:?} and {:?} overlap", a.rect, b.rect);
+                }
+            }
+            let (front, rear) = (
+                lay.frame(View::Front).unwrap(),
+                lay.frame(View::Rear).unwrap(),
+            );
+            assert_eq!(front.rect.1, rear.rect.1);
+            assert!(front.rect.0 < rear.rect.0);
+        }
+        assert_eq!(
+            View::SideFromRight.label_at(-10.0),
+            "Side, from +y (nose right): the windward side"
+        );
+        assert_eq!(
+            View::SideFromRight.label_at(10.0),
+            "Side, from +y (nose right): the lee side"
+        );
     }
 }
