@@ -110,6 +110,12 @@ pub struct Row {
     /// It was solved as a half model (its panel count is the half's).
     #[serde(default)]
     pub half_model: bool,
+    /// Its case is a half model that a cross wind ran mirrored into a
+    /// whole body (`half_model` is then false: its panel count is the
+    /// whole's; a review's script had split one half-model yaw sweep in
+    /// two).
+    #[serde(default)]
+    pub mirrored_half: bool,
     /// The whole body's lift noise at this variant's dynamic pressure
     /// and reference area against a like run, kg: the built-in lift noise,
     /// or the floor its own panel noise gives where larger
@@ -426,8 +432,13 @@ pub fn run(args: &CollectArgs) -> Result<ExitCode> {
                 say!("  {line}");
             }
         }
-        for n in notes.iter().chain(&c.caveats) {
+        for n in notes {
             say!("  note: {n}");
+        }
+        // What every sweep of its kind carries, not counted as a note (a
+        // review counted four "note:" lines against a quiet "3 notes").
+        for n in &c.caveats {
+            say!("  caveat: {n}");
         }
         for (text, names, varied) in warning_kinds(&warnings) {
             if varied {
@@ -908,6 +919,20 @@ fn leader_words(rows: &[Row]) -> String {
                 "no clear winner: {}, where the model's drag ranking is not reliable (see the notes \
                  below); lowest in this model: {lowest}, {gap:.1} counts below {}",
                 v.doubt,
+                shown_name(second)
+            )
+        } else if crate::compare::band_holds(
+            -v.delta_counts,
+            v.band_deltas_counts.map(|d| -d),
+            v.noise_counts,
+        ) {
+            // The bands agree: what holds the winner back is in compare's
+            // notes (a review's "32.0 counts below ... but +28.3 between
+            // the bands' low ends" read as a sign change that was not).
+            format!(
+                "no clear winner: the difference holds across the sensitivity bands, but the model cannot \
+                 tell the two apart here (see the notes below); lowest in this model: {lowest}, {gap:.1} \
+                 counts below {}",
                 shown_name(second)
             )
         } else {
@@ -1406,6 +1431,8 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         panels: s.mesh.panels,
         panels_instead: s.panels_instead(),
         half_model: s.mesh.symmetry_plane,
+        mirrored_half: !s.mesh.symmetry_plane
+            && s.case["geometry"]["half_model"].as_bool() == Some(true),
         lift_noise_kg: s.lift_noise_kg(),
         drag_spread_counts: s.drag_spread(),
         front_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[0]),
@@ -2009,7 +2036,11 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // across the plot, so a trend within it reads as one (a
             // review's spoiler sweep fell 186, 180, 179 counts on a
             // 20-count axis, "no clear winner" in the text only).
-            let y_band = band
+            // Not against the wind: drag at another speed or yaw is another
+            // test, which the page does not rank (a review's yaw sweep had
+            // one band across every yaw).
+            let wind_key = matches!(key.as_str(), "flow.speed" | "flow.speed_kmh" | "flow.yaw");
+            let y_band = (band && !wind_key)
                 .then(|| {
                     lines
                         .iter()
@@ -3360,6 +3391,9 @@ fn surface_words(r: &Row) -> String {
     if r.half_model {
         parts.push("half model".into());
     }
+    if r.mirrored_half {
+        parts.push("half model mirrored whole".into());
+    }
     if r.wrapped {
         parts.push("wrapped".into());
     }
@@ -3767,6 +3801,7 @@ mod tests {
             panels: 1000,
             panels_instead: None,
             half_model: false,
+            mirrored_half: false,
             lift_noise_kg: 3.3,
             drag_spread_counts: None,
             front_axle_spread_kg: None,
@@ -5039,6 +5074,23 @@ mod tests {
         c.variants[0].against_next = Some(verdict(true, ""));
         assert!(
             best_drag(&c).starts_with("best drag: v0"),
+            "{}",
+            best_drag(&c)
+        );
+        // Held back, though the bands agree: the notes say why, not the
+        // bands (a review read "but +28.3 between the low ends" of a
+        // difference that held there).
+        c.variants[0].against_next = Some(crate::compare::DragVerdict {
+            delta_counts: 10.0,
+            band_deltas_counts: [28.3, 20.0],
+            noise_counts: 6.0,
+            ..verdict(false, "")
+        });
+        assert!(
+            best_drag(&c).starts_with(
+                "no clear winner: the difference holds across the sensitivity bands, but the model \
+                 cannot tell the two apart here"
+            ),
             "{}",
             best_drag(&c)
         );

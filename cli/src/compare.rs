@@ -31,8 +31,8 @@ use mapping::{Mapping, SourcePanel, map_nearest};
 #[cfg(test)]
 use verdict::drag_verdict;
 pub use verdict::{
-    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, band_shortfall, common_area, drag_floor,
-    drag_verdict_named, floor_words, lift_floor_cl,
+    DragVerdict, ModelDoubt, NOISE_COUNTS, area_factor, band_holds, band_shortfall, common_area,
+    drag_floor, drag_verdict_named, floor_words, lift_floor_cl,
 };
 
 use crate::outdir::Staging;
@@ -76,6 +76,10 @@ pub struct Deltas {
     pub drag_force_n: f64,
     /// Lift coefficient.
     pub lift_coefficient: f64,
+    /// Side-force coefficient, B's less A's, each in its own wind's axes
+    /// (in a cross wind a rough figure, the runs' notes say why).
+    #[serde(default)]
+    pub side_coefficient: f64,
     /// Lift, whole body, kg at B's dynamic pressure.
     pub lift_kg: f64,
     /// Lift on the front axle, kg at B's dynamic pressure.
@@ -658,6 +662,7 @@ pub fn deltas(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Delta
         drag_friction_counts: 1000.0 * (k * kb.drag_friction - ka.drag_friction),
         drag_force_n: b.drag_estimate.force_n - q * a.drag_estimate.force_n,
         lift_coefficient: kb.lift - ka.lift,
+        side_coefficient: kb.side - ka.side,
         lift_kg: b.lift_kg.total - q * a.lift_kg.total,
         front_axle_kg: b.lift_kg.front_axle - q * a.lift_kg.front_axle,
         rear_axle_kg: b.lift_kg.rear_axle - q * a.lift_kg.rear_axle,
@@ -708,7 +713,7 @@ pub fn comparison_named(
     .into_iter()
     .flatten()
     .collect();
-    let slope = slope_note(&a.summary, &b.summary);
+    let slope = slope_note(&a.summary, &b.summary, surface.changed_x_m);
     let rims = rim_note(&a.summary, &b.summary, &surface);
     let doubt = if !separation.is_empty() {
         Some(ModelDoubt::Separation)
@@ -870,7 +875,16 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     // Drag counts on the area the headline's are on (A's when the areas
     // differ, [`common_area`]).
     let reference = common_area(&a.summary, &b.summary).unwrap_or(b.summary.reference.area_m2);
-    unchanged_noise(b, reference, mapping, &f.delta_cp, &stream, &mut out);
+    let yaw_a = yaw_of(&a.summary).to_radians();
+    let stream_a = nalgebra::Vector3::new(yaw_a.cos(), yaw_a.sin(), 0.0);
+    unchanged_noise(
+        b,
+        reference,
+        mapping,
+        &f.delta_cp,
+        [&stream_a, &stream],
+        &mut out,
+    );
     changed_surface(b, mapping, &f.state_a, &mut out);
     out
 }
@@ -1021,13 +1035,16 @@ pub fn changed_panels(mapping: &Mapping, panels: usize, near: f64) -> Vec<bool> 
 /// two panellings' noise (the two cannot be told apart from two runs).
 /// Forces from
 /// `-Cp n dA` (outward normals), on the reference area `reference` and
-/// B's dynamic pressure, whole body.
+/// B's dynamic pressure, whole body; each run's drag along its own wind
+/// (`streams`, A's and B's: a review's runs at 8 and -8 degrees, all
+/// surface unchanged, read +11.4 counts there, each run's Cp taken along
+/// B's wind, against the headline's 0.0).
 fn unchanged_noise(
     b: &ResultFolder,
     reference: f64,
     mapping: &Mapping,
     delta_cp: &[f64],
-    stream: &nalgebra::Vector3<f64>,
+    [stream_a, stream_b]: [&nalgebra::Vector3<f64>; 2],
     out: &mut SurfaceDeltas,
 ) {
     let s = &b.summary;
@@ -1041,7 +1058,10 @@ fn unchanged_noise(
             continue;
         }
         area += pb.area;
-        drag -= halves * delta_cp[i] * pb.normal.dot(stream) * pb.area;
+        // B's Cp along B's wind less A's (mapped here) along A's.
+        let cp_a = pb.cp - delta_cp[i];
+        drag -=
+            halves * (pb.cp * pb.normal.dot(stream_b) - cp_a * pb.normal.dot(stream_a)) * pb.area;
         lift -= halves * delta_cp[i] * pb.normal.z * pb.area;
         spread.push((delta_cp[i].abs(), pb.area));
     }
@@ -1954,10 +1974,17 @@ fn rim_place(
 /// the model known to rank it wrongly, whatever the separated areas do
 /// (two slopes either side of 30 degrees can separate alike in the model
 /// and differ in the tunnel; [`slopes_in_doubt`]).
-fn slope_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+fn slope_note(
+    a: &crate::summary::Summary,
+    b: &crate::summary::Summary,
+    changed_x: Option<[f64; 2]>,
+) -> Option<String> {
     a.regions.iter().find_map(|ra| {
         let rb = b.regions.iter().find(|r| r.name == ra.name)?;
         let (sa, sb) = (ra.slope_deg?, rb.slope_deg?);
+        if !region_reaches_change(b, &ra.name, changed_x) {
+            return None;
+        }
         slopes_in_doubt(&[sa, sb]).map(|_| {
             format!(
                 "the slope of \"{}\" differs ({sa:.0} degrees in A, {sb:.0} in B) and reaches \
@@ -1969,6 +1996,33 @@ fn slope_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Optio
             )
         })
     })
+}
+
+/// Whether the shape changed within reach of the named region's box in
+/// B's case: its x range widened by a fiftieth of the length on each
+/// side meets the changed surface's x range. A region with no x range is
+/// taken to reach it; with no surface changed, none does. A review's rear
+/// deck, the same in both STLs, read 38 and 40 degrees on two panellings
+/// while only the windscreen moved, and the rear-slope caution had held
+/// back the windscreens' drag.
+fn region_reaches_change(
+    b: &crate::summary::Summary,
+    name: &str,
+    changed_x: Option<[f64; 2]>,
+) -> bool {
+    let Some([lo, hi]) = changed_x else {
+        return false;
+    };
+    let range = b.case["region"].as_array().and_then(|rs| {
+        rs.iter()
+            .find(|r| r["name"].as_str() == Some(name))
+            .and_then(|r| Some([r["x"][0].as_f64()?, r["x"][1].as_f64()?]))
+    });
+    let Some([x0, x1]) = range else {
+        return true;
+    };
+    let m = 0.02 * b.reference.length_m;
+    x0 - m <= hi && lo <= x1 + m
 }
 
 /// A warning when the separated regions of the two runs differ by more
@@ -2157,6 +2211,18 @@ fn print_comparison(c: &Comparison, out: &Path) {
     );
     if c.surface.separation_appears_m2 + c.surface.separation_disappears_m2 > 0.0 {
         say!("  {}", separation_change_words(c));
+    }
+    // In a cross wind the side force is what the study is about, a rough
+    // figure (the runs' notes say why): a review's yawed comparison had
+    // no word of it.
+    if c.a.yaw_deg != 0.0 || c.b.yaw_deg != 0.0 {
+        say!(
+            "  side-force coefficient {:.3} in A, {:.3} in B ({}; a rough figure in a cross wind, not the \
+             car's side force: see the runs' notes)",
+            c.a.cs,
+            c.b.cs,
+            crate::output::signed(d.side_coefficient, 3)
+        );
     }
     for r in &c.regions {
         say!("  {}: {}", r.name, region_text(r));
@@ -2877,7 +2943,7 @@ mod tests {
             ));
             s
         };
-        let note = |a: f64, b: f64| slope_note(&with_slope(a), &with_slope(b));
+        let note = |a: f64, b: f64| slope_note(&with_slope(a), &with_slope(b), Some([0.0, 5.0]));
         assert!(
             note(28.0, 30.0)
                 .is_some_and(|n| n.contains("\"rear window\" differs (28 degrees in A, 30 in B)"))
@@ -2891,6 +2957,16 @@ mod tests {
         // panellings) are no slant change; a slant becoming one is.
         assert!(note(75.0, 78.0).is_none());
         assert!(note(35.0, 60.0).is_some());
+        // Where the shape changed clear of the region's box (a windscreen
+        // ahead of a rear deck read 38 and 40 degrees on two panellings),
+        // or nowhere, the slopes differ by the panelling alone.
+        let mut boxed = with_slope(40.0);
+        boxed.reference.length_m = 4.0;
+        boxed.case = serde_json::json!({"region": [{"name": "rear window", "x": [3.3, 4.0]}]});
+        let far = slope_note(&with_slope(38.0), &boxed, Some([1.5, 2.1]));
+        assert!(far.is_none());
+        assert!(slope_note(&with_slope(38.0), &boxed, None).is_none());
+        assert!(slope_note(&with_slope(38.0), &boxed, Some([1.5, 3.25])).is_some());
     }
 
     /// A run with regions on under half of its suggested panels (2,992 of

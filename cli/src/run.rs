@@ -209,10 +209,16 @@ fn print_summary(out: &Path, s: &Summary) {
         } else {
             "the frontal area"
         };
+        let (per_n, car) = crate::write::power_factor(s, v);
+        let power_at = if car == v {
+            String::new()
+        } else {
+            format!(" {}", crate::write::power_at_words(s, v))
+        };
         say!(
-            "  drag{speed}: {} N, {} kW (band in brackets), on {area} {:.3} m^2 (C_D A {:.3} m^2)",
+            "  drag{speed}: {} N, {} kW{power_at} (band in brackets), on {area} {:.3} m^2 (C_D A {:.3} m^2)",
             crate::write::drag_force_words(&s.drag_estimate, 1.0, 0),
-            crate::write::drag_force_words(&s.drag_estimate, v / 1000.0, 1),
+            crate::write::drag_force_words(&s.drag_estimate, per_n, 1),
             s.reference.area_m2,
             k.drag * s.reference.area_m2
         );

@@ -984,14 +984,34 @@ pub fn cross_wind_note(s: &Summary, yaw: f64) -> String {
          separated, vortex-laden flow, which this model does not hold); the drag along the wind takes \
          in {:+.3} from the force across the body (along the body's axis the force coefficient is \
          {axial:.3}, coefficients_body_axes), so the drag at yaw carries the same doubt; no yawing or \
-         rolling moment is given; compare runs at one yaw only, and run a body whose halves agree as a \
-         half model (half_model = true), which a cross wind mirrors into a whole body with both sides \
-         alike (the report's Cross wind section says more)",
+         rolling moment is given; compare runs at one yaw only{} (the report's Cross wind section says \
+         more)",
         output::yaw_words(yaw),
         k.side,
         side_sign_words(s),
         side_share_of_drag(k, yaw),
+        half_model_advice(s),
     )
+}
+
+/// Whether the run is a half model, mirrored whole in a cross wind (its
+/// case's `geometry.half_model`).
+fn mirrored_half(s: &Summary) -> bool {
+    s.case["geometry"]["half_model"].as_bool() == Some(true)
+}
+
+/// The advice to run a body whose halves agree as a half model, or, for
+/// a run that is one, what it gives (a review's half model had been told
+/// to run as one).
+fn half_model_advice(s: &Summary) -> &'static str {
+    if mirrored_half(s) {
+        "; this half model ran mirrored into a whole body with both sides panelled alike, so its attached \
+         flow mirrors exactly between a yaw and its mirror image, though the separated-flow loop can \
+         still part a few panels between the sides"
+    } else {
+        ", and run a body whose halves agree as a half model (half_model = true), which a cross wind \
+         mirrors into a whole body with both sides panelled alike"
+    }
 }
 
 /// How far the side force's sign can be trusted: the attached flow's can
@@ -1050,9 +1070,11 @@ fn cross_wind_text(s: &Summary, yaw: f64) -> String {
          can give less. A whole-body mesh panels its two sides differently, and a cross wind turns that \
          into a difference between a yaw and its mirror image (a review's box van at 15 and -15 degrees: \
          side force 0.321 and -0.377, its roof 28 and 15 % separated; the shipped coupe case: C_D 0.137 \
-         at 10 degrees, 0.143 at -10), so run a body whose halves agree as a half model (half_model = \
-         true: in a cross wind it is mirrored into a whole body with both sides alike; that van read \
-         0.357 both ways) and compare drag between runs at one yaw only. The lift moves mostly with the \
+         at 10 degrees, 0.143 at -10). A half model (half_model = true) is mirrored into a whole body with \
+         both sides panelled alike, so its attached flow mirrors exactly (that van read 0.357 both \
+         ways), though the separated-flow loop can still part a few panels between the sides (a review's \
+         coupe at 8 and -8 degrees: 0.023 and -0.029 as a half model, 0.016 and -0.027 whole){}. Compare \
+         drag between runs at one yaw only. The lift moves mostly with the \
          smooth underbody's suction (that coupe's underbody: -240 kg straight ahead, -268 at 10 \
          degrees), the least certain part of it. Cross-wind stability needs validated CFD or a tunnel.",
         output::yaw_words(yaw),
@@ -1060,6 +1082,11 @@ fn cross_wind_text(s: &Summary, yaw: f64) -> String {
         side_sign_words(s),
         side_share_of_drag(k, yaw),
         k.drag,
+        if mirrored_half(s) {
+            "; this run is one"
+        } else {
+            "; run a body whose halves agree that way"
+        },
     )
 }
 
@@ -1150,6 +1177,41 @@ pub fn drag_force_words(d: &crate::summary::DragEstimate, scale: f64, decimals: 
     )
 }
 
+/// The power the aerodynamic force takes from the car: the drag times
+/// the wind speed straight ahead; in a cross wind, the force along the
+/// body's axis times the car's own speed, the wind's `U cos(yaw)` with the
+/// wind taken across a still road (a review read 11.2 kW at 8 degrees,
+/// the drag along the wind times the wind's speed, where the car's
+/// needs 10.8). Returns the factor on the drag force's words (scaling
+/// the band with the estimate) and the speed the power is at, m/s.
+pub fn power_factor(s: &Summary, wind: f64) -> (f64, f64) {
+    let Some(yaw) = s.flow("yaw").filter(|&y| y != 0.0) else {
+        return (wind / 1000.0, wind);
+    };
+    let k = &s.coefficients;
+    let car = wind * yaw.to_radians().cos();
+    let along = if k.drag.abs() > 1e-12 {
+        k.body_axes(yaw)[0] / k.drag
+    } else {
+        1.0
+    };
+    (along * car / 1000.0, car)
+}
+
+/// The words after a power in kW: the speed it is at, and in a cross
+/// wind what it is.
+pub fn power_at_words(s: &Summary, wind: f64) -> String {
+    let (_, car) = power_factor(s, wind);
+    if car == wind {
+        format!("at {} m/s", output::speed_number(wind))
+    } else {
+        format!(
+            "at the car's {} m/s (the force along its axis; the wind at the yaw taken across a still road)",
+            output::speed_number(car)
+        )
+    }
+}
+
 fn report(
     case: &Case,
     s: &Summary,
@@ -1217,8 +1279,8 @@ fn report(
         ),
         NumberRow::text(
             "Power the drag absorbs (estimate, band)",
-            &drag_force_words(&s.drag_estimate, v / 1000.0, 1),
-            &format!("kW at {} m/s", output::speed_number(v)),
+            &drag_force_words(&s.drag_estimate, power_factor(s, v).0, 1),
+            &format!("kW {}", power_at_words(s, v)),
         ),
         NumberRow::fixed("Lift coefficient C_L (negative: downforce)", k.lift, 3, "-"),
         NumberRow::text("Lift, whole body (negative: downforce)", &lift, &at),
@@ -1526,6 +1588,33 @@ fn report(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The power in a cross wind is the force along the body's axis at
+    /// the car's own speed (a review's numbers: C_D 0.1555 and C_S 0.016
+    /// at 8 degrees, the axial 0.1517); straight ahead the drag at the
+    /// wind's speed; and the side force's share of the drag is the
+    /// lateral force's times sin(yaw).
+    #[test]
+    fn a_cross_wind_takes_the_power_along_the_axis() {
+        let mut s = Summary {
+            case: serde_json::json!({"flow": {"speed": 40.0, "yaw": 8.0}}),
+            ..Summary::default()
+        };
+        s.coefficients.drag = 0.1555;
+        s.coefficients.side = 0.016;
+        let [axial, lateral] = s.coefficients.body_axes(8.0);
+        assert!((axial - 0.1517).abs() < 5e-4, "{axial}");
+        let (factor, car) = power_factor(&s, 40.0);
+        assert!((car - 40.0 * 8f64.to_radians().cos()).abs() < 1e-12);
+        assert!((factor * 0.1555 - axial * car / 1000.0).abs() < 1e-12);
+        assert!(power_at_words(&s, 40.0).starts_with("at the car's 39.6 m/s"));
+        let share = side_share_of_drag(&s.coefficients, 8.0);
+        assert!((share - lateral * 8f64.to_radians().sin()).abs() < 1e-15);
+        assert!((axial * 8f64.to_radians().cos() + share - 0.1555).abs() < 1e-12);
+        s.case = serde_json::json!({"flow": {"speed": 40.0, "yaw": 0.0}});
+        assert_eq!(power_factor(&s, 40.0), (0.04, 40.0));
+        assert_eq!(power_at_words(&s, 40.0), "at 40 m/s");
+    }
 
     /// `body` with a closed box beside it, its least corner at `lo` and
     /// its edges `size` along x, y and z, m.

@@ -112,7 +112,8 @@ pub struct MirrorReport {
 /// ([`PrepareParams::whole_from_half`]).
 pub const MIRRORED_WHOLE_NOTE: &str = "the half model was mirrored into a whole body, its two sides \
      the same shape, to run in a cross wind (a half model cannot): the panels, the pictures and the \
-     VTK files show both sides, and the differences between them are the wind's";
+     VTK files show both sides, and the differences between them are the wind's (the attached flow \
+     mirrors exactly; the separated-flow loop can still part a few panels between the two sides)";
 
 /// What the run says of a half model mirrored onto y >= 0.
 pub const MIRRORED_HALF_NOTE: &str = "the half model is the car's left side (y <= 0 in tuft's axes, in \
@@ -311,8 +312,9 @@ fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Opti
     };
     let what = if first.thickness < edge {
         "the thinnest is under one panel edge, so the panels do not resolve its section: its own \
-         pressures and drag are not in the results (a roof bar, a lip or a blade; the body's flow round \
-         it is)"
+         pressures and drag are not in the results as computed (a roof bar, a lip or a blade; the body's \
+         flow round it is), though the suction its edges draw can move the loads a good deal (held at \
+         a bound where the run says so: a review's 12 mm windscreen's side edges carried 177 counts)"
     } else {
         "a panel or two spans their section, so their own pressures and drag are rough (many of \
          their panels take the bound beside a sharp edge or the dead water's pressure)"
@@ -754,7 +756,7 @@ impl Repaired {
                 )
             });
             let (m, mut r) = coarsen_with_params(&self.mesh, &mirrors, &cp);
-            refuse_failed_coarsening(&r)?;
+            refuse_failed_coarsening(&r, self.parts.wrap.as_ref().map(|w| w.cell))?;
             // Parts smaller than the panels can vanish whole (a review's
             // 24 mm blob over a scan's roof got no panel and no word,
             // its thin-part warning saying the flow round it was in).
@@ -1047,7 +1049,12 @@ pub const KEPT_INPUT_RUNS: usize = 20_000;
 /// the run with the cause and the place: running a scan's half million
 /// facets would ask for tens of gigabytes, and the memory advice that
 /// followed (fewer panels) could not help, since fewer had been asked for.
-fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
+/// `wrap_cell`: the wrap's cell edge, m, when the surface coarsened is the
+/// wrap's (its folds are then the wrap's, not the input's: a review's 6
+/// mm windscreen meeting its cowl at a shallow angle gave 1.9 million
+/// folded facets on a clean CAD export, and the advice had blamed a
+/// scan's noise).
+fn refuse_failed_coarsening(r: &CoarsenReport, wrap_cell: Option<f64>) -> Result<(), MeshError> {
     let far_above = (r.achieved_panels as f64) > COARSEN_SHORTFALL * r.target_panels as f64;
     if !r.kept_input || !far_above || r.achieved_panels <= KEPT_INPUT_RUNS {
         return Ok(());
@@ -1059,6 +1066,26 @@ fn refuse_failed_coarsening(r: &CoarsenReport) -> Result<(), MeshError> {
     let advice = match r.untangled.as_ref().filter(|u| u.folded_after > 0) {
         Some(u) => {
             let [x, y, z] = u.still_folded_at.unwrap_or(u.first);
+            if let Some(cell) = wrap_cell {
+                return Err(MeshError::CoarseningFailed {
+                    target: r.target_panels,
+                    input: r.input_panels,
+                    largest_try: r.largest_try,
+                    why,
+                    advice: format!(
+                        "the wrapped surface's facets fold over one another there ({} facets crossed \
+                         others or were turned over against their neighbours, and {} are still folded \
+                         after smoothing, the first near x {x:.3}, y {y:.3}, z {z:.3} m), as where a part \
+                         thinner than about two of the wrap's {:.0} mm cells meets another at a shallow \
+                         angle (a thin windscreen on its cowl, a lip on a bumper): thicken that part there \
+                         to {:.0} mm or more, or leave it out of the STL, and check it again",
+                        u.folded_before,
+                        u.folded_after,
+                        1000.0 * cell,
+                        2000.0 * cell
+                    ),
+                });
+            }
             format!(
                 "the input's facets fold over one another there ({} facets crossed others or were \
                  turned over against their neighbours, and {} are still folded after smoothing, the \
@@ -1567,7 +1594,7 @@ mod tests {
             largest_move: 0.014,
             largest_offset: 0.01,
         };
-        let Err(e) = refuse_failed_coarsening(&kept(Some(folds))) else {
+        let Err(e) = refuse_failed_coarsening(&kept(Some(folds.clone())), None) else {
             panic!("a kept input far above the target must stop the run");
         };
         let text = e.to_string();
@@ -1582,8 +1609,20 @@ mod tests {
             assert!(text.contains(part), "{part:?} missing from: {text}");
         }
         assert!(!text.contains("GB"), "no memory advice: {text}");
+        // On a wrapped surface the folds are the wrap's: the advice names
+        // a thin part and the thickness the wrap resolves, not a scan.
+        let text = refuse_failed_coarsening(&kept(Some(folds)), Some(0.01))
+            .unwrap_err()
+            .to_string();
+        assert!(
+            text.contains("the wrapped surface's facets fold over one another there")
+                && text.contains("thinner than about two of the wrap's 10 mm cells")
+                && text.contains("to 20 mm or more")
+                && !text.contains("scan"),
+            "{text}"
+        );
         // Without folds left, the advice points at the place, not at folds.
-        let text = refuse_failed_coarsening(&kept(None))
+        let text = refuse_failed_coarsening(&kept(None), None)
             .unwrap_err()
             .to_string();
         assert!(text.contains("look at the STL near that point"), "{text}");
@@ -1593,13 +1632,13 @@ mod tests {
             achieved_panels: 14_000,
             ..kept(None)
         };
-        assert!(refuse_failed_coarsening(&passed).is_ok());
+        assert!(refuse_failed_coarsening(&passed, None).is_ok());
         let close = CoarsenReport {
             input_panels: 7500,
             achieved_panels: 7500,
             ..kept(None)
         };
-        assert!(refuse_failed_coarsening(&close).is_ok());
+        assert!(refuse_failed_coarsening(&close, None).is_ok());
         // A small file far above its target but within what a run handles
         // (8,000 facets for 5,000 panels) runs, with the coarsening's
         // warning, as it did before the refusal came in.
@@ -1609,6 +1648,6 @@ mod tests {
             target_panels: 5000,
             ..kept(None)
         };
-        assert!(refuse_failed_coarsening(&small).is_ok());
+        assert!(refuse_failed_coarsening(&small, None).is_ok());
     }
 }

@@ -492,6 +492,16 @@ pub fn band_shortfall(delta: f64, ends: [f64; 2], noise: f64) -> String {
     }
 }
 
+/// Whether a difference of `delta` counts holds at both band ends
+/// (`ends`, as [`band_shortfall`] takes them): the same way and beyond
+/// the noise floor `noise`.
+pub fn band_holds(delta: f64, ends: [f64; 2], noise: f64) -> bool {
+    delta != 0.0
+        && ends
+            .iter()
+            .all(|d| *d != 0.0 && d.signum() == delta.signum() && d.abs() >= noise)
+}
+
 /// The differences at the band ends in words. Each is one run's band end
 /// minus the other's (low with low, high with high), not an end of a band
 /// of the difference: the bands sit unevenly about their estimates, so the
