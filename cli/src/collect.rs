@@ -678,6 +678,9 @@ fn condition_words(r: &Row, (speeds, yaws, counts): (bool, bool, bool)) -> Strin
 /// or wheels stand on the ground; `None` when nothing holds the ranking
 /// back.
 fn withheld(rows: &[Row]) -> Option<String> {
+    if let Some(why) = sizes_apart(rows) {
+        return Some(format!("{why}: no winner is named"));
+    }
     let coarse = not_converged(rows);
     if !coarse.is_empty() {
         return Some(format!(
@@ -715,6 +718,24 @@ fn withheld(rows: &[Row]) -> Option<String> {
         ));
     }
     None
+}
+
+/// Variants whose reference areas differ by more than the square of
+/// [`crate::compare::SCALE_RATIO`]: a scale model beside the car, whose
+/// drag areas and kg differ by the size (a review's 1:4 coupe and the car
+/// in one sweep had a front-axle "winner" by 54.7 kg, and counts of 146.7
+/// on stdout against 2346.7 in sweep.csv); `None` otherwise.
+fn sizes_apart<'a>(rows: impl IntoIterator<Item = &'a Row>) -> Option<String> {
+    let (lo, hi) = range(rows, |r| r.reference_area_m2);
+    let ratio = crate::compare::SCALE_RATIO.powi(2);
+    (lo > 0.0 && hi > ratio * lo).then(|| {
+        format!(
+            "the variants' reference areas run from {lo:.3} to {hi:.3} m^2, {:.1} times apart: bodies of \
+             another size (a scale model beside the car?), whose forces, drag areas and kg differ by the \
+             size; compare their coefficients at their Reynolds numbers",
+            hi / lo
+        )
+    })
 }
 
 /// Whether every wind condition that has two or more variants to rank has
@@ -1183,6 +1204,7 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     };
     let noise = whole.max(axle_spread);
     let kg = |v: f64| crate::output::fixed(v, 1);
+    let apart = sizes_apart(rows.iter().copied());
     // Underbodies that separate differently (by more than the point
     // `compare` notes) make the lift rest on what the model cannot show,
     // a diffuser's stall: no winner, as for drag (a review's diffuser
@@ -1201,7 +1223,9 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
         .map(|r| shown_name(r))
         .collect();
     let measured = axle.spread(best).is_some() && axle.spread(next).is_some();
-    let standing = if gap < noise {
+    let standing = if let Some(why) = apart {
+        format!("but {why}: no winner")
+    } else if gap < noise {
         format!("within the lift noise of about {} kg: no winner", kg(noise))
     } else if !coarse.is_empty() && !measured {
         format!(
@@ -4148,6 +4172,17 @@ mod tests {
             ),
             "{line}"
         );
+        // Beyond the noise, but one variant is a scale model of the
+        // others: its kg are another size's, no winner.
+        let mut model = c.clone();
+        model.variants[2].reference_area_m2 = 0.116;
+        let line = axle_lift_ranking(&model, Axle::Rear).unwrap_or_default();
+        assert!(
+            line.contains("but the variants' reference areas run from 0.116 to")
+                && line.ends_with("no winner; wheels on: compare axle loads between variants with the same wheels only"),
+            "{line}"
+        );
+        assert!(withheld(&model.variants).is_some_and(|w| w.ends_with("no winner is named")));
         // Beyond the noise, but one of the pair ran on under half of the
         // panels suggested, where the floor was not measured: no winner,
         // unless both measured their own scatter.

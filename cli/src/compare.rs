@@ -739,12 +739,21 @@ pub fn comparison_named(
         names,
     );
     dead_change_verdict(&surface, &mut drag);
+    let scale = scale_note(&a.summary, &b.summary);
+    if let Some(n) = &scale {
+        drag.resolved = false;
+        drag.leaning.clear();
+        drag.doubt.clear();
+        drag.text = format!("not comparable as two shapes: {n}");
+    }
     // Two ride heights as well as the change: said in the verdict itself
     // (a review's variant exported 20 mm higher read "24.2 counts lower",
     // the clearance in the second of five notes).
     // Not where the ride height is the whole change (B's body, moved onto
     // A's, changed nowhere: a ride-height study).
-    if let Some(words) =
+    if scale.is_some() {
+        // Another size: its ride height is the scale's, not a change.
+    } else if let Some(words) =
         floors_apart_words(&a.summary, &b.summary, names[1]).filter(|_| surface.changed_m2 > 0.0)
     {
         drag.text += &format!("; {words}, so the difference mixes the ride height with the change");
@@ -762,17 +771,52 @@ pub fn comparison_named(
             1000.0 * ca
         );
     }
+    let mut notes = notes(a, b, &surface, model_notes);
+    notes.splice(0..0, scale);
     Comparison {
         tool: format!("tuft {}", env!("CARGO_PKG_VERSION")),
         a: side(a),
         b: side(b),
         deltas: deltas(&a.summary, &b.summary),
         drag,
-        notes: notes(a, b, &surface, model_notes),
+        notes,
         surface,
         regions,
         caution: crate::summary::CAUTION.into(),
     }
+}
+
+/// Length ratio between two runs' reference lengths beyond which they are
+/// not two shapes of one car but another size, a scale model against the
+/// car (our choice: variants of one car differ by far less).
+pub const SCALE_RATIO: f64 = 1.5;
+
+/// A note when the two runs' reference lengths differ by more than
+/// [`SCALE_RATIO`]: their forces, drag areas and kg differ by the size,
+/// and the panel-by-panel differences set one body on the other (a
+/// review's 1:4 coupe against the car at the same Reynolds number, equal
+/// coefficients, read +2351.9 counts, separation disappearing on 14 m^2
+/// and B 90 mm higher).
+pub fn scale_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Option<String> {
+    let (la, lb) = (a.reference.length_m, b.reference.length_m);
+    let ratio = la.max(lb) / la.min(lb).max(f64::MIN_POSITIVE);
+    (ratio > SCALE_RATIO).then(|| {
+        format!(
+            "B's reference length is {:.2} times A's ({} against {} m), a scale model against a car or \
+             two different bodies: compare their coefficients at their Reynolds numbers (A {:.2} million, \
+             B {:.2} million: C_D {:.3} against {:.3}, C_L {:.3} against {:.3}), not their forces, drag \
+             areas, kg or the pictures' differences, which set one body on the other",
+            lb / la.max(f64::MIN_POSITIVE),
+            crate::output::html::significant(lb, 3),
+            crate::output::html::significant(la, 3),
+            a.reynolds_number / 1e6,
+            b.reynolds_number / 1e6,
+            a.coefficients.drag,
+            b.coefficients.drag,
+            a.coefficients.lift,
+            b.coefficients.lift
+        )
+    })
 }
 
 /// Per-panel values of B and of A mapped onto B.
@@ -2967,6 +3011,28 @@ mod tests {
         assert!(far.is_none());
         assert!(slope_note(&with_slope(38.0), &boxed, None).is_none());
         assert!(slope_note(&with_slope(38.0), &boxed, Some([1.5, 3.25])).is_some());
+    }
+
+    /// Two runs 4 times apart in length (a 1:4 model against the car) get
+    /// the scale note with both Reynolds numbers; variants of one car do
+    /// not.
+    #[test]
+    fn another_size_is_not_compared_as_a_shape() {
+        let run = |length: f64, re: f64| {
+            let mut s = Summary::default();
+            s.reference.length_m = length;
+            s.reynolds_number = re;
+            s.coefficients.drag = 0.157;
+            s
+        };
+        let note = scale_note(&run(1.125, 3.36e6), &run(4.5, 3.36e6)).unwrap();
+        assert!(
+            note.starts_with("B's reference length is 4.00 times A's (4.50 against 1.12 m)")
+                && note.contains("(A 3.36 million, B 3.36 million: C_D 0.157 against 0.157"),
+            "{note}"
+        );
+        assert!(scale_note(&run(4.5, 1e7), &run(1.125, 1e7)).is_some());
+        assert!(scale_note(&run(4.5, 1e7), &run(4.7, 1e7)).is_none());
     }
 
     /// A run with regions on under half of its suggested panels (2,992 of

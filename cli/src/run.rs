@@ -178,12 +178,14 @@ fn print_summary(out: &Path, s: &Summary) {
         None => String::new(),
     };
     say!(
-        "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}{lean}), lift C_L {:.3}",
+        "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}{lean}), lift C_L {:.3}; Reynolds number {:.2} \
+         million on the reference length",
         s.case_name,
         k.drag,
         s.drag_estimate.cd_low,
         s.drag_estimate.cd_high,
-        k.lift
+        k.lift,
+        s.reynolds_number / 1e6
     );
     // A body that may run backwards: before the numbers that would then
     // be wrong (a review's car with its nose at +x read C_D 0.431, the
@@ -341,6 +343,7 @@ fn read_as_assumed(note: &str) -> bool {
     note == tuft_mesh::prepare::MIRRORED_HALF_NOTE
         || note.starts_with(tuft_mesh::import::PLACES_NOTE_START)
         || crate::geometry::is_scale_model_note(note)
+        || note.starts_with(crate::write::REYNOLDS_WORDS)
 }
 
 /// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle
