@@ -681,6 +681,9 @@ fn withheld(rows: &[Row]) -> Option<String> {
     if let Some(why) = sizes_apart(rows) {
         return Some(format!("{why}: no winner is named"));
     }
+    if let Some(why) = broken_loads(rows) {
+        return Some(format!("{why}: no winner is named"));
+    }
     let coarse = not_converged(rows);
     if !coarse.is_empty() {
         return Some(format!(
@@ -718,6 +721,25 @@ fn withheld(rows: &[Row]) -> Option<String> {
         ));
     }
     None
+}
+
+/// Variants whose loads rest on a defect of the surface
+/// ([`crate::pipeline::BROKEN_EDGE_WORDS`]: a review's rear spats read
+/// +231 counts, 1,024 of them the hold on a fin the wrap made, ranked as
+/// the others were); `None` when none does.
+fn broken_loads<'a>(rows: impl IntoIterator<Item = &'a Row>) -> Option<String> {
+    let names: Vec<String> = rows
+        .into_iter()
+        .filter(|r| crate::pipeline::loads_broken(&r.warning_texts))
+        .map(shown_name)
+        .collect();
+    (!names.is_empty()).then(|| {
+        format!(
+            "the loads of {} are not usable, resting on a defect of the surface (see {} warnings)",
+            names.join(", "),
+            if names.len() == 1 { "its" } else { "their" }
+        )
+    })
 }
 
 /// Variants whose reference areas differ by more than the square of
@@ -1204,7 +1226,7 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     };
     let noise = whole.max(axle_spread);
     let kg = |v: f64| crate::output::fixed(v, 1);
-    let apart = sizes_apart(rows.iter().copied());
+    let apart = sizes_apart(rows.iter().copied()).or_else(|| broken_loads(rows.iter().copied()));
     // Underbodies that separate differently (by more than the point
     // `compare` notes) make the lift rest on what the model cannot show,
     // a diffuser's stall: no winner, as for drag (a review's diffuser
@@ -1469,7 +1491,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         matrix_reused: record.matrix.reused,
         speed: flow("speed", still.speed),
         yaw_deg: flow("yaw", still.yaw),
-        clearance_m: s.clearance_m(),
+        clearance_m: s.floor_clearance_m(),
         floor_heights_m: s.reference.floor_heights_m,
         warning_texts: s.warnings.clone(),
         coarse: s.coarse_note().is_some(),
@@ -4183,6 +4205,19 @@ mod tests {
             "{line}"
         );
         assert!(withheld(&model.variants).is_some_and(|w| w.ends_with("no winner is named")));
+        // A variant whose loads rest on a surface defect: no winner either.
+        let mut broken = c.clone();
+        broken.variants[1].warning_texts = vec![format!(
+            "{}: 8 panels ...",
+            crate::pipeline::BROKEN_EDGE_WORDS
+        )];
+        assert!(
+            withheld(&broken.variants)
+                .is_some_and(|w| w.starts_with("the loads of v1 are not usable")),
+            "{:?}",
+            withheld(&broken.variants)
+        );
+        assert!(axle_lift_ranking(&broken, Axle::Rear).is_some_and(|l| l.contains("no winner")));
         // Beyond the noise, but one of the pair ran on under half of the
         // panels suggested, where the floor was not measured: no winner,
         // unless both measured their own scatter.

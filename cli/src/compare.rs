@@ -746,6 +746,26 @@ pub fn comparison_named(
         drag.doubt.clear();
         drag.text = format!("not comparable as two shapes: {n}");
     }
+    // A run whose loads rest on a surface defect (a review's rear spats:
+    // +196.1 counts, 1,024 of them the hold's) is no side of a comparison.
+    let broken: Vec<&str> = [(&a.summary, names[0]), (&b.summary, names[1])]
+        .into_iter()
+        .filter(|(s, _)| crate::pipeline::loads_broken(&s.warnings))
+        .map(|(_, n)| n)
+        .collect();
+    if !broken.is_empty() {
+        drag.resolved = false;
+        drag.leaning.clear();
+        drag.doubt.clear();
+        let whose: Vec<String> = broken.iter().map(|n| format!("{n}'s")).collect();
+        drag.text = format!(
+            "not assessable: {} loads are not usable, resting on a defect of the surface (see {} \
+             warning: a fin or a slot thinner than the panels); neither the drag nor the lift difference \
+             means anything",
+            whose.join(" and "),
+            if broken.len() == 1 { "its" } else { "their" }
+        );
+    }
     // Two ride heights as well as the change: said in the verdict itself
     // (a review's variant exported 20 mm higher read "24.2 counts lower",
     // the clearance in the second of five notes).
@@ -1458,11 +1478,13 @@ fn floors_apart_words(
 
 /// The two runs' ground clearances, m, when both stand over the ground
 /// and they lie more than [`CLEARANCE_APART_M`] apart.
+/// A body standing on its tyres is read by its floor's height, not by
+/// the tyres' contact ([`crate::summary::Summary::floor_clearance_m`]).
 fn clearances_apart(
     a: &crate::summary::Summary,
     b: &crate::summary::Summary,
 ) -> Option<(f64, f64)> {
-    let (ca, cb) = (a.clearance_m()?, b.clearance_m()?);
+    let (ca, cb) = (a.floor_clearance_m()?, b.floor_clearance_m()?);
     ((ca - cb).abs() > CLEARANCE_APART_M).then_some((ca, cb))
 }
 

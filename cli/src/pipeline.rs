@@ -1952,11 +1952,45 @@ pub fn edge_hold_matters(h: &crate::summary::EdgeHold) -> bool {
         || h.lift_cl.abs() >= crate::compare::verdict::LIFT_NOISE_CL
 }
 
+/// Attached suction beyond which a held edge is no edge but a defect of the
+/// surface (our choice: the sharpest real edges seen read Cp -32.6, a
+/// splitter's lip on one panel; a review's rear spat 20 mm off its tyre
+/// made a fin of two panels 5 mm apart facing opposite ways, Cp -1377 and
+/// +965 counts held at 3,000 panels, -274 and -124 at 2,800).
+pub const BROKEN_EDGE_CP: f64 = -100.0;
+
+/// How the warning of a hold beyond [`BROKEN_EDGE_CP`] begins; `compare`
+/// and `collect` find it by these words and name no winner.
+pub const BROKEN_EDGE_WORDS: &str = "the loads are not usable";
+
+/// Whether the held suction is beyond any edge's ([`BROKEN_EDGE_CP`]) and
+/// moves the loads past the noise floors.
+pub fn edge_hold_breaks(h: &crate::summary::EdgeHold) -> bool {
+    h.worst_cp < BROKEN_EDGE_CP && edge_hold_matters(h)
+}
+
+/// Whether a run's warnings hold [`BROKEN_EDGE_WORDS`].
+pub fn loads_broken(warnings: &[String]) -> bool {
+    warnings.iter().any(|w| w.starts_with(BROKEN_EDGE_WORDS))
+}
+
 /// A warning when holding the edge suction matters ([`edge_hold_matters`]):
 /// the loads then rest on the rule that bounds an edge's suction, not on a
 /// computed pressure.
 fn edge_spike_warning(h: &crate::summary::EdgeHold) -> Option<String> {
     let [x, y, z] = h.worst_at_m;
+    if edge_hold_breaks(h) {
+        return Some(format!(
+            "{BROKEN_EDGE_WORDS}: {} panels beside sharp edges read the attached flow's suction down to \
+             Cp {:.0} (near x {x:.3}, y {y:.3}, z {z:.3} m), far beyond any edge's (a splitter's lip read \
+             -32.6), as where two sides of the surface lie a few millimetres apart facing opposite ways, a \
+             fin or a slot the wrap and the coarsening made thinner than the panels; held at Cp {:.2}, \
+             they move the drag by {:+.0} counts and the lift by {:+.0} kg, so neither the drag nor the \
+             lift is usable: open or close that gap in the STL (or thicken the part there) and run it \
+             again",
+            h.panels, h.worst_cp, h.held_cp, h.drag_counts, h.lift_kg
+        ));
+    }
     edge_hold_matters(h).then(|| {
         format!(
             "{} panels beside sharp edges that no surface streamline crossed carry the attached \
@@ -2176,6 +2210,30 @@ fn drag_band(
 
 #[cfg(test)]
 pub(crate) mod tests {
+
+    /// A held suction beyond any edge's (a review's rear spat, Cp -1377,
+    /// +965 counts) says the loads are not usable, first; a splitter lip's
+    /// (-32.6) keeps the usual warning; and compare and collect find it.
+    #[test]
+    fn a_suction_beyond_any_edges_breaks_the_loads() {
+        let hold = |cp: f64, counts: f64| crate::summary::EdgeHold {
+            panels: 8,
+            worst_cp: cp,
+            worst_at_m: [3.15, 0.768, 0.379],
+            held_cp: -0.29,
+            drag_counts: counts,
+            lift_kg: -349.0,
+            lift_cl: -0.3,
+        };
+        let w = edge_spike_warning(&hold(-1377.0, 965.0)).unwrap();
+        assert!(w.starts_with(BROKEN_EDGE_WORDS), "{w}");
+        assert!(w.contains("Cp -1377") && w.contains("+965 counts"), "{w}");
+        assert!(loads_broken(&[w]));
+        let lip = edge_spike_warning(&hold(-32.6, 140.0)).unwrap();
+        assert!(!lip.starts_with(BROKEN_EDGE_WORDS), "{lip}");
+        assert!(!loads_broken(&[lip]));
+    }
+
     use super::*;
 
     /// A unit icosphere (`levels` subdivisions) in free air at 10 m/s, its

@@ -190,11 +190,7 @@ fn print_summary(out: &Path, s: &Summary) {
     // A body that may run backwards: before the numbers that would then
     // be wrong (a review's car with its nose at +x read C_D 0.431, the
     // hint sixth among the lines below).
-    for w in s
-        .warnings
-        .iter()
-        .filter(|w| pipeline::questions_the_nose(w))
-    {
+    for w in s.warnings.iter().filter(|w| read_first(w)) {
         say!("  warning, read first: {w}");
     }
     // The speed the kg are at, and the underbody beside the rest of the
@@ -327,11 +323,7 @@ fn print_summary(out: &Path, s: &Summary) {
     if let Some(n) = s.gaps_closed() {
         say!("  note: {n}");
     }
-    for w in s
-        .warnings
-        .iter()
-        .filter(|w| !pipeline::questions_the_nose(w))
-    {
+    for w in s.warnings.iter().filter(|w| !read_first(w)) {
         say!("  warning: {w}");
     }
     say!("  report: {}", out.join("report.html").display());
@@ -339,6 +331,12 @@ fn print_summary(out: &Path, s: &Summary) {
 
 /// Whether a note says how the file was taken in a way that changes how
 /// the numbers read ([`print_summary`] shows those on stdout).
+/// Warnings printed before the numbers they make wrong: a body that may
+/// run backwards, loads resting on a surface defect.
+fn read_first(w: &str) -> bool {
+    pipeline::questions_the_nose(w) || w.starts_with(pipeline::BROKEN_EDGE_WORDS)
+}
+
 fn read_as_assumed(note: &str) -> bool {
     note == tuft_mesh::prepare::MIRRORED_HALF_NOTE
         || note.starts_with(tuft_mesh::import::PLACES_NOTE_START)
