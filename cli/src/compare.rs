@@ -741,10 +741,7 @@ pub fn comparison_named(
     dead_change_verdict(&surface, &mut drag);
     let scale = scale_note(&a.summary, &b.summary);
     if let Some(n) = &scale {
-        drag.resolved = false;
-        drag.leaning.clear();
-        drag.doubt.clear();
-        drag.text = format!("not comparable as two shapes: {n}");
+        withhold(&mut drag, format!("not comparable as two shapes: {n}"));
     }
     // A run whose loads rest on a surface defect (a review's rear spats:
     // +196.1 counts, 1,024 of them the hold's) is no side of a comparison.
@@ -754,16 +751,16 @@ pub fn comparison_named(
         .map(|(_, n)| n)
         .collect();
     if !broken.is_empty() {
-        drag.resolved = false;
-        drag.leaning.clear();
-        drag.doubt.clear();
         let whose: Vec<String> = broken.iter().map(|n| format!("{n}'s")).collect();
-        drag.text = format!(
-            "not assessable: {} loads are not usable, resting on a defect of the surface (see {} \
-             warning: a fin or a slot thinner than the panels); neither the drag nor the lift difference \
-             means anything",
-            whose.join(" and "),
-            if broken.len() == 1 { "its" } else { "their" }
+        withhold(
+            &mut drag,
+            format!(
+                "not assessable: {} loads are not usable, resting on a defect of the surface (see {} \
+                 warning: a fin or a slot thinner than the panels); neither the drag nor the lift \
+                 difference means anything",
+                whose.join(" and "),
+                if broken.len() == 1 { "its" } else { "their" }
+            ),
         );
     }
     // Two ride heights as well as the change: said in the verdict itself
@@ -804,6 +801,14 @@ pub fn comparison_named(
         regions,
         caution: crate::summary::CAUTION.into(),
     }
+}
+
+/// Name no winner, for the reason `text` gives in place of the verdict's.
+fn withhold(drag: &mut DragVerdict, text: String) {
+    drag.resolved = false;
+    drag.leaning.clear();
+    drag.doubt.clear();
+    drag.text = text;
 }
 
 /// Length ratio between two runs' reference lengths beyond which they are
