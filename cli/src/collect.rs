@@ -66,6 +66,9 @@ pub struct Row {
     /// figure, the variant's notes say why).
     #[serde(default)]
     pub cs: f64,
+    /// Reynolds number on the reference length.
+    #[serde(default)]
+    pub reynolds_number: f64,
     /// Lift, kg at the variant's speed.
     pub lift_kg: f64,
     /// Front-axle lift, kg.
@@ -747,15 +750,19 @@ fn broken_loads<'a>(rows: impl IntoIterator<Item = &'a Row>) -> Option<String> {
 /// drag areas and kg differ by the size (a review's 1:4 coupe and the car
 /// in one sweep had a front-axle "winner" by 54.7 kg, and counts of 146.7
 /// on stdout against 2346.7 in sweep.csv); `None` otherwise.
-fn sizes_apart<'a>(rows: impl IntoIterator<Item = &'a Row>) -> Option<String> {
-    let (lo, hi) = range(rows, |r| r.reference_area_m2);
+fn sizes_apart<'a>(rows: impl IntoIterator<Item = &'a Row> + Clone) -> Option<String> {
+    let (lo, hi) = range(rows.clone(), |r| r.reference_area_m2);
+    let (re_lo, re_hi) = range(rows, |r| r.reynolds_number);
     let ratio = crate::compare::SCALE_RATIO.powi(2);
     (lo > 0.0 && hi > ratio * lo).then(|| {
         format!(
             "the variants' reference areas run from {lo:.3} to {hi:.3} m^2, {:.1} times apart: bodies of \
              another size (a scale model beside the car?), whose forces, drag areas and kg differ by the \
-             size; compare their coefficients at their Reynolds numbers",
-            hi / lo
+             size; compare their coefficients at their Reynolds numbers ({:.2} to {:.2} million; sweep.csv's \
+             cd, cl and reynolds_number)",
+            hi / lo,
+            re_lo / 1e6,
+            re_hi / 1e6
         )
     })
 }
@@ -1213,6 +1220,12 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     if rows.len() < 2 {
         return None;
     }
+    // Bodies of another size, or loads that are not usable: no leader is
+    // named, the drag line saying why (a review read "the most downforce
+    // is spats" ahead of the words that voided it, six times over).
+    if sizes_apart(rows).is_some() || broken_loads(rows).is_some() {
+        return Some("no winner, for the reason the drag line gives".to_owned());
+    }
     let mut rows: Vec<&Row> = rows.iter().collect();
     rows.sort_by(|a, b| axle.kg(a).total_cmp(&axle.kg(b)));
     let (best, next) = (rows[0], rows[1]);
@@ -1226,7 +1239,6 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
     };
     let noise = whole.max(axle_spread);
     let kg = |v: f64| crate::output::fixed(v, 1);
-    let apart = sizes_apart(rows.iter().copied()).or_else(|| broken_loads(rows.iter().copied()));
     // Underbodies that separate differently (by more than the point
     // `compare` notes) make the lift rest on what the model cannot show,
     // a diffuser's stall: no winner, as for drag (a review's diffuser
@@ -1245,9 +1257,7 @@ fn axle_lift_in(rows: &[Row], wheels: bool, axle: Axle) -> Option<String> {
         .map(|r| shown_name(r))
         .collect();
     let measured = axle.spread(best).is_some() && axle.spread(next).is_some();
-    let standing = if let Some(why) = apart {
-        format!("but {why}: no winner")
-    } else if gap < noise {
+    let standing = if gap < noise {
         format!("within the lift noise of about {} kg: no winner", kg(noise))
     } else if !coarse.is_empty() && !measured {
         format!(
@@ -1461,6 +1471,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         cd_high: s.drag_estimate.cd_high,
         cl: s.coefficients.lift,
         cs: s.coefficients.side,
+        reynolds_number: s.reynolds_number,
         lift_kg: s.lift_kg.total,
         front_axle_kg: s.lift_kg.front_axle,
         rear_axle_kg: s.lift_kg.rear_axle,
@@ -1698,7 +1709,8 @@ const CSV_COLUMNS: &str = "speed_ms,yaw_deg,clearance_m,cd,cd_low,cd_high,counts
                            reference_area_m2,drag_area_m2,cl,lift_kg,front_axle_kg,rear_axle_kg,\
                            front_minus_rear_kg,separated_area_m2,separated_percent,panels,\
                            panel_noise_counts,warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,\
-                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved,counts_above_first,cs";
+                           front_axle_noise_kg,rear_axle_noise_kg,surface_solved,counts_above_first,cs,\
+                           reynolds_number";
 
 /// Whether `name` is one of sweep.csv's own columns (the two first,
 /// `rank` and `variant`, too), which a label of that name would repeat.
@@ -1894,7 +1906,7 @@ fn csv_row(
     // still finds the columns.
     let _ = write!(
         s,
-        ",{},{},{:.1},{},{},{},{},{}",
+        ",{},{},{:.1},{},{},{},{},{},{}",
         floor(0),
         floor(1),
         r.speed * 3.6,
@@ -1902,7 +1914,8 @@ fn csv_row(
         spread(r.rear_axle_spread_kg),
         surface_words(r).replace(',', ";"),
         from_first.map(|a| format!("{a:.1}")).unwrap_or_default(),
-        r.cs
+        r.cs,
+        r.reynolds_number
     );
     for g in &c.regions {
         match region(r, g) {
@@ -3832,6 +3845,7 @@ mod tests {
             cd_high: 0.32,
             cl: 0.0,
             cs: 0.0,
+            reynolds_number: 0.0,
             lift_kg: 0.0,
             front_axle_kg: 0.0,
             rear_axle_kg: 0.0,
@@ -4199,10 +4213,9 @@ mod tests {
         let mut model = c.clone();
         model.variants[2].reference_area_m2 = 0.116;
         let line = axle_lift_ranking(&model, Axle::Rear).unwrap_or_default();
-        assert!(
-            line.contains("but the variants' reference areas run from 0.116 to")
-                && line.ends_with("no winner; wheels on: compare axle loads between variants with the same wheels only"),
-            "{line}"
+        assert_eq!(
+            line,
+            "rear axle: no winner, for the reason the drag line gives"
         );
         assert!(withheld(&model.variants).is_some_and(|w| w.ends_with("no winner is named")));
         // A variant whose loads rest on a surface defect: no winner either.
@@ -4818,7 +4831,7 @@ mod tests {
         assert!(
             lines[0].ends_with(
                 ",warnings,wheels_on,floor_front_m,floor_rear_m,speed_kmh,front_axle_noise_kg,\
-                 rear_axle_noise_kg,surface_solved,counts_above_first,cs,\
+                 rear_axle_noise_kg,surface_solved,counts_above_first,cs,reynolds_number,\
                  region:rear window:separated_percent,\
                  region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
@@ -4830,13 +4843,14 @@ mod tests {
             lines[0]
         );
         assert!(
-            lines[1].ends_with(",0,0,,,144.0,,,,0.0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
+            lines[1]
+                .ends_with(",0,0,,,144.0,,,,0.0,0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,,,144.0,,,,0.0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,144.0,,,,0.0,0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
             ),
             "{}",
             lines[2]

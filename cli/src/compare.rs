@@ -741,7 +741,7 @@ pub fn comparison_named(
     dead_change_verdict(&surface, &mut drag);
     let scale = scale_note(&a.summary, &b.summary);
     if let Some(n) = &scale {
-        withhold(&mut drag, format!("not comparable as two shapes: {n}"));
+        withhold(&mut drag, format!("{NOT_COMPARABLE_WORDS}: {n}"));
     }
     // A run whose loads rest on a surface defect (a review's rear spats:
     // +196.1 counts, 1,024 of them the hold's) is no side of a comparison.
@@ -755,7 +755,7 @@ pub fn comparison_named(
         withhold(
             &mut drag,
             format!(
-                "not assessable: {} loads are not usable, resting on a defect of the surface (see {} \
+                "{NOT_USABLE_WORDS}: {} loads are not usable, resting on a defect of the surface (see {} \
                  warning: a fin or a slot thinner than the panels); neither the drag nor the lift \
                  difference means anything",
                 whose.join(" and "),
@@ -802,6 +802,12 @@ pub fn comparison_named(
         caution: crate::summary::CAUTION.into(),
     }
 }
+
+/// How the verdict of two runs of another size begins.
+const NOT_COMPARABLE_WORDS: &str = "not comparable as two shapes";
+
+/// How the verdict of a pair with a run whose loads are not usable begins.
+const NOT_USABLE_WORDS: &str = "not assessable, a run's loads unusable";
 
 /// Name no winner, for the reason `text` gives in place of the verdict's.
 fn withhold(drag: &mut DragVerdict, text: String) {
@@ -2251,6 +2257,16 @@ fn drag_share_words(c: &Comparison) -> String {
     if !(a_counts.abs() > 1e-9 && d.drag_force_n.is_finite()) {
         return String::new();
     }
+    // In a cross wind the power is the force along the body at the car's
+    // speed, which the drag difference along the wind is not (a review
+    // read -0.2 kW here against -0.12 between the runs' own figures).
+    if c.a.yaw_deg != 0.0 || c.b.yaw_deg != 0.0 {
+        return format!(
+            " ({} % of A's, {} N along the wind; each run gives its power)",
+            crate::output::signed(100.0 * d.drag_counts / a_counts, 0),
+            crate::output::signed(d.drag_force_n, 0)
+        );
+    }
     format!(
         " ({} % of A's, {} N, {} kW at {})",
         crate::output::signed(100.0 * d.drag_counts / a_counts, 0),
@@ -2263,6 +2279,20 @@ fn drag_share_words(c: &Comparison) -> String {
 fn print_comparison(c: &Comparison, out: &Path) {
     let d = &c.deltas;
     say!("{} -> {}: {}", c.a.case_name, c.b.case_name, c.drag.text);
+    // Withheld whole (another size, loads not usable): the differences
+    // would only be read against the verdict (a review read "+2330.0
+    // counts" on the line after "not comparable").
+    if [NOT_COMPARABLE_WORDS, NOT_USABLE_WORDS]
+        .iter()
+        .any(|w| c.drag.text.starts_with(w))
+    {
+        say!(
+            "  the differences of forces, counts, kg, separated areas and pictures mean nothing for these two \
+             runs; compare.json keeps them"
+        );
+        say!("  report: {}", out.join("compare.html").display());
+        return;
+    }
     let [lift, front, rear] =
         crate::output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
     let at_b = if d.a_loads_scaled_by.is_some() {

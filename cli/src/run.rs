@@ -143,9 +143,17 @@ fn finish(out: &Path, summary: &Summary, quiet: bool) -> Result<ExitCode> {
         // One line, so that a script's log says why the exit code is 1 (a
         // review's quiet run of an inch file read as millimetres, a body
         // 0.18 m long, had printed nothing).
+        let broken = if pipeline::loads_broken(&summary.warnings) {
+            ", one that its loads are not usable"
+        } else {
+            ""
+        };
         quiet_finish_line(
             &summary.case_name,
-            &crate::output::plural(summary.warnings.len(), "warning", "warnings"),
+            &format!(
+                "{}{broken}",
+                crate::output::plural(summary.warnings.len(), "warning", "warnings")
+            ),
             &out.join("report.html"),
         );
     }
@@ -177,9 +185,16 @@ fn print_summary(out: &Path, s: &Summary) {
         Some(_) => "; a low estimate: the true drag is more likely above it than below".to_owned(),
         None => String::new(),
     };
+    // Loads resting on a defect of the surface are said before them (a
+    // review read the headline first and the warning after it).
+    let broken = if pipeline::loads_broken(&s.warnings) {
+        " LOADS NOT USABLE (see the first warning), as computed:"
+    } else {
+        ""
+    };
     say!(
-        "{}: drag estimate C_D {:.3} (band {:.3} to {:.3}{lean}), lift C_L {:.3}; Reynolds number {:.2} \
-         million on the reference length",
+        "{}:{broken} drag estimate C_D {:.3} (band {:.3} to {:.3}{lean}), lift C_L {:.3}; Reynolds number \
+         {:.2} million on the reference length",
         s.case_name,
         k.drag,
         s.drag_estimate.cd_low,
@@ -211,7 +226,13 @@ fn print_summary(out: &Path, s: &Summary) {
         let power_at = if car == v {
             String::new()
         } else {
-            format!(" {}", crate::write::power_at_words(s, v))
+            // The force the power is taken from, beside the drag's (a
+            // review could not make 282 N at 39.4 m/s come to 10.6 kW).
+            format!(
+                " {}, from {:.0} N along the body",
+                crate::write::power_at_words(s, v),
+                1000.0 * per_n * s.drag_estimate.force_n / car
+            )
         };
         say!(
             "  drag{speed}: {} N, {} kW{power_at} (band in brackets), on {area} {:.3} m^2 (C_D A {:.3} m^2)",
@@ -342,6 +363,7 @@ fn read_as_assumed(note: &str) -> bool {
         || note.starts_with(tuft_mesh::import::PLACES_NOTE_START)
         || crate::geometry::is_scale_model_note(note)
         || note.starts_with(crate::write::REYNOLDS_WORDS)
+        || note.starts_with(crate::write::TRANSITION_WORDS)
 }
 
 /// Rear-window slopes of the demo coupe, degrees from horizontal: a gentle

@@ -1000,11 +1000,14 @@ pub fn reynolds_note(s: &Summary) -> Option<String> {
              carry to the road at that speed only, and at road speeds the layer turns turbulent sooner \
              and separates later",
             re / 1e6,
-            output::html::significant(s.reference.length_m, 3),
+            output::short_number(s.reference.length_m),
             output::speed_words(car)
         )
     })
 }
+
+/// How a transition note begins ([`transition_notes`]).
+pub const TRANSITION_WORDS: &str = "boundary layer";
 
 /// Notes on the case's transition setting: `forced_at` given with another
 /// mode is not used (a review's was ignored without a word), and an
@@ -1019,17 +1022,16 @@ fn transition_notes(case: &Case) -> Vec<String> {
         matches!(case.transition, crate::case::TransitionMode::Forced(_)),
     ) {
         notes.push(format!(
-            "boundary_layer.forced_at = {at} is not used with transition = \"{}\" (only with \"forced\")",
+            "{TRANSITION_WORDS}: boundary_layer.forced_at = {at} is not used with transition = \"{}\" (only with \"forced\")",
             b.transition
         ));
     }
     if case.transition == crate::case::TransitionMode::Laminar {
-        notes.push(
-            "transition = \"laminar\" keeps the layer laminar to its separation: a bounding case, not a \
-             car's flow (a review's 1:4 coupe read 82 % of its surface separated and C_D 0.333 with it, \
-             10 % and 0.157 with free transition)"
-                .to_owned(),
-        );
+        notes.push(format!(
+            "{TRANSITION_WORDS}: transition = \"laminar\" keeps the layer laminar to its separation: a \
+             bounding case, not a car's flow (a review's 1:4 coupe read 82 % of its surface separated and \
+             C_D 0.333 with it, 10 % and 0.157 with free transition)"
+        ));
     }
     notes
 }
@@ -1134,7 +1136,7 @@ fn cross_wind_text(s: &Summary, yaw: f64) -> String {
          Cars measure more drag in a cross wind than straight ahead (common practice), where this model \
          can give less. A whole-body mesh panels its two sides differently, and a cross wind turns that \
          into a difference between a yaw and its mirror image (a review's box van at 15 and -15 degrees: \
-         side force 0.321 and -0.377, its roof 28 and 15 % separated; the shipped coupe case: C_D 0.137 \
+         side force 0.321 and -0.377, its roof 28 and 15 % separated; the shipped coupe case at its 3,956 panels: C_D 0.137 \
          at 10 degrees, 0.143 at -10). A half model (half_model = true) is mirrored into a whole body with \
          both sides panelled alike, so its attached flow mirrors exactly (that van read 0.357 both \
          ways), though the separated-flow loop can still part a few panels between the sides (a review's \
@@ -1532,7 +1534,7 @@ fn report(
         title: "How these numbers were made".into(),
         body: format!(
             "Inviscid potential flow by a source/doublet panel method on {} panels{}; integral boundary \
-             layers (Thwaites laminar, {} transition, Head turbulent with Ludwieg-Tillmann skin friction) \
+             layers (Thwaites laminar, transition {}, Head turbulent with Ludwieg-Tillmann skin friction) \
              along {} surface streamlines, separation at lambda = -0.09 (laminar) or H = {} (turbulent).{}\n\n\
              {} and adds skin friction; its band re-runs the boundary layer with {}. It is a screening \
              estimate: absolute drag can be off by more than the band, while differences between close \
@@ -1550,11 +1552,13 @@ fn report(
                 (false, false) => " in free air",
             },
             match case.transition {
-                crate::case::TransitionMode::Free => "Michel's free".to_string(),
-                crate::case::TransitionMode::Laminar => "no (all laminar)".to_string(),
-                crate::case::TransitionMode::Turbulent => "immediate (all turbulent)".to_string(),
-                crate::case::TransitionMode::Forced(f) =>
-                    format!("forced at {:.0} % of the length", 100.0 * f),
+                crate::case::TransitionMode::Free => "free by Michel's criterion".to_string(),
+                crate::case::TransitionMode::Laminar => "none (all laminar)".to_string(),
+                crate::case::TransitionMode::Turbulent => "at once (all turbulent)".to_string(),
+                crate::case::TransitionMode::Forced(f) => format!(
+                    "forced at {:.0} % of the length or sooner by Michel's",
+                    100.0 * f
+                ),
             },
             s.solver.streamlines,
             case.file.boundary_layer.separation_h.unwrap_or(2.4),
@@ -1651,7 +1655,15 @@ fn report(
         }),
         pictures,
         sections,
-        cautions: lift_sign_caution(s).into_iter().collect(),
+        // Loads resting on a defect of the surface head the page (a review
+        // read the numbers table before the warning that voids it).
+        cautions: s
+            .warnings
+            .iter()
+            .filter(|w| w.starts_with(crate::pipeline::BROKEN_EDGE_WORDS))
+            .cloned()
+            .chain(lift_sign_caution(s))
+            .collect(),
         generator: s.tool.clone(),
     }
 }
@@ -1672,7 +1684,7 @@ mod tests {
         s.reference.length_m = 1.125;
         let n = reynolds_note(&s).unwrap();
         assert!(
-            n.starts_with("Reynolds number 3.36 million on the 1.12 m reference length: a 4.5 m car's at 11.25 m/s (40 km/h)"),
+            n.starts_with("Reynolds number 3.36 million on the 1.125 m reference length: a 4.5 m car's at 11.25 m/s (40 km/h)"),
             "{n}"
         );
         s.reynolds_number = 1.079e7;
