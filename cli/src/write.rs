@@ -910,7 +910,15 @@ fn loop_text(w: &SeparatedWakes) -> String {
 fn clearance_words(s: &Summary) -> String {
     match (s.mesh.ground_z, s.clearance_m()) {
         (None, _) => "no ground (free air)".to_owned(),
-        (Some(_), Some(c)) if c < 5e-4 => "stands on the ground".to_owned(),
+        // On its tyres: the floor's height beside it (a review read "stands
+        // on the ground" here and 140 mm in sweep.csv for one run).
+        (Some(_), Some(c)) if c < 5e-4 => match s.floor_clearance_m().filter(|_| s.wheels_on()) {
+            Some(f) => format!(
+                "stands on the ground on its tyres, its floor {:.0} mm above it",
+                1000.0 * f
+            ),
+            None => "stands on the ground".to_owned(),
+        },
         (Some(_), Some(c)) => format!("{:.0}", 1000.0 * c),
         (Some(_), None) => "not recorded".to_owned(),
     }
@@ -1984,6 +1992,20 @@ mod tests {
         assert_eq!(super::clearance_words(&s), "100");
         s.mesh.ground_z = Some(0.12);
         assert_eq!(super::clearance_words(&s), "stands on the ground");
+        // On four tyre patches (0.106 m^2 of a wrapped hatchback's), with
+        // its floor 140 mm up at both axles: the floor's height beside it.
+        s.mesh.preparation = serde_json::json!({
+            "bounds": [[0.0, -0.9, 0.0], [4.3, 0.9, 1.5]],
+            "wrap": {"contact_area": 0.106}
+        });
+        s.mesh.ground_z = Some(0.0);
+        s.reference.floor_heights_m = Some([0.14, 0.14]);
+        assert!(s.wheels_on());
+        assert_eq!(
+            super::clearance_words(&s),
+            "stands on the ground on its tyres, its floor 140 mm above it"
+        );
+        assert_eq!(s.floor_clearance_m(), Some(0.14));
     }
 
     /// Facets still folded after the smoothing are noted with where the
