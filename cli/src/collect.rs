@@ -1488,8 +1488,7 @@ fn read_row(path: &Path) -> Result<(Row, VariantRecord, serde_json::Value)> {
         panels: s.mesh.panels,
         panels_instead: s.panels_instead(),
         half_model: s.mesh.symmetry_plane,
-        mirrored_half: !s.mesh.symmetry_plane
-            && s.case["geometry"]["half_model"].as_bool() == Some(true),
+        mirrored_half: s.mirrored_half(),
         lift_noise_kg: s.lift_noise_kg(),
         drag_spread_counts: s.drag_spread(),
         front_axle_spread_kg: s.panel_noise.as_ref().map(|n| n.axles_kg[0]),
@@ -2098,7 +2097,7 @@ fn plots(c: &Collected) -> Result<Vec<(String, Vec<u8>)>> {
             // Not against the wind: drag at another speed or yaw is another
             // test, which the page does not rank (a review's yaw sweep had
             // one band across every yaw).
-            let wind_key = matches!(key.as_str(), "flow.speed" | "flow.speed_kmh" | "flow.yaw");
+            let wind_key = matches!(key_name(key), Some("speed" | "yaw"));
             let y_band = (band && !wind_key)
                 .then(|| {
                     lines

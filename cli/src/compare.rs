@@ -625,6 +625,12 @@ pub fn yaw_of(s: &crate::summary::Summary) -> f64 {
     s.flow("yaw").unwrap_or(0.0)
 }
 
+/// The unit vector along a run's wind, `(cos yaw, sin yaw, 0)`.
+fn wind_direction(s: &crate::summary::Summary) -> nalgebra::Vector3<f64> {
+    let (sin, cos) = yaw_of(s).to_radians().sin_cos();
+    nalgebra::Vector3::new(cos, sin, 0.0)
+}
+
 /// Whether two runs are at different speeds (beyond rounding).
 pub fn speeds_differ(a: &crate::summary::Summary, b: &crate::summary::Summary) -> bool {
     let (va, vb) = (speed_of(a), speed_of(b));
@@ -913,8 +919,7 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     out.far_panels = mapping.distance.iter().filter(|&&d| d > far).count();
     let (mut sq, mut risk, mut risk_area) = (0.0, 0.0, 0.0);
     let mut net = 0.0;
-    let yaw = yaw_of(&b.summary).to_radians();
-    let stream = nalgebra::Vector3::new(yaw.cos(), yaw.sin(), 0.0);
+    let stream = wind_direction(&b.summary);
     for (i, pb) in b.panels.iter().enumerate() {
         let d = f.delta_cp[i];
         sq += area[i] * d * d;
@@ -950,8 +955,7 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     // Drag counts on the area the headline's are on (A's when the areas
     // differ, [`common_area`]).
     let reference = common_area(&a.summary, &b.summary).unwrap_or(b.summary.reference.area_m2);
-    let yaw_a = yaw_of(&a.summary).to_radians();
-    let stream_a = nalgebra::Vector3::new(yaw_a.cos(), yaw_a.sin(), 0.0);
+    let stream_a = wind_direction(&a.summary);
     unchanged_noise(
         b,
         reference,

@@ -629,6 +629,12 @@ impl Summary {
         Some(self.bounds()?[0][2] - self.mesh.ground_z?)
     }
 
+    /// Whether the run is a half model that a cross wind ran mirrored into
+    /// a whole body (its case a half model, no symmetry plane solved).
+    pub fn mirrored_half(&self) -> bool {
+        !self.mesh.symmetry_plane && self.case["geometry"]["half_model"].as_bool() == Some(true)
+    }
+
     /// Height of the floor above the ground, m: the lowest point's, or on
     /// a body standing on its tyres the lower of the floor's heights at
     /// the axles (a review's body with and without wheels, its floor at

@@ -1069,17 +1069,11 @@ pub fn cross_wind_note(s: &Summary, yaw: f64) -> String {
     )
 }
 
-/// Whether the run is a half model, mirrored whole in a cross wind (its
-/// case's `geometry.half_model`).
-fn mirrored_half(s: &Summary) -> bool {
-    s.case["geometry"]["half_model"].as_bool() == Some(true)
-}
-
 /// The advice to run a body whose halves agree as a half model, or, for
 /// a run that is one, what it gives (a review's half model had been told
 /// to run as one).
 fn half_model_advice(s: &Summary) -> &'static str {
-    if mirrored_half(s) {
+    if s.mirrored_half() {
         "; this half model ran mirrored into a whole body with both sides panelled alike, so its attached \
          flow mirrors exactly between a yaw and its mirror image, though the separated-flow loop can \
          still part a few panels between the sides"
@@ -1157,7 +1151,7 @@ fn cross_wind_text(s: &Summary, yaw: f64) -> String {
         side_sign_words(s),
         side_share_of_drag(k, yaw),
         k.drag,
-        if mirrored_half(s) {
+        if s.mirrored_half() {
             "; this run is one"
         } else {
             "; run a body whose halves agree that way"
