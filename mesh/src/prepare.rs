@@ -685,7 +685,7 @@ pub fn repair_body(
         .filter(|_| params.mirrors.symmetry)
         .map(|w| (facing_the_plane(&mesh, 2.0 * w.cell), mesh.area(), w.cell));
     // For the whole body when it runs whole.
-    let suggested = suggest(&mesh) * if whole.whole_from_half { 2 } else { 1 };
+    let suggested = suggest(&mesh, if whole.whole_from_half { 2.0 } else { 1.0 });
     let mirrors = MirrorReport {
         ground: params.mirrors.ground,
         symmetry: params.mirrors.symmetry,
@@ -1370,13 +1370,16 @@ fn refuse_self_crossing(mesh: &TriMesh) -> Result<Option<String>, MeshError> {
     )))
 }
 
-/// Suggested count for the whole body: a half model counts double area.
-fn suggest(mesh: &TriMesh) -> usize {
+/// Suggested count for the surface solved: a half model run whole counts
+/// its area `copies` (2) times before the count is rounded, so that it
+/// reads the whole body's count (doubling a rounded half had read 6,000
+/// where the whole body read 6,500).
+fn suggest(mesh: &TriMesh, copies: f64) -> usize {
     let Some((lo, hi)) = mesh.bounds() else {
         return 0;
     };
     let length = (hi - lo).max();
-    suggested_panels(mesh.area(), length)
+    suggested_panels(copies * mesh.area(), length)
 }
 
 /// A half model must lie in `y >= 0`, a grounded body above the ground

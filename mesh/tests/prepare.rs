@@ -413,6 +413,47 @@ fn a_smooth_body_coarsens_without_caps_or_folds() {
     }
 }
 
+/// A half model run whole is suggested the whole body's panel count: the
+/// count follows the formula of `quality::suggested_panels` on the whole
+/// area, not twice the half's rounded count (a 4:1 spheroid 4 m long,
+/// about 10.1 m^2: 3,500 whole, where doubling the half's rounded 2,000
+/// had read 4,000; a review's car read 6,000 against 6,500).
+#[test]
+fn a_half_model_run_whole_is_suggested_the_whole_bodys_count() {
+    let whole = generate::ellipsoid(2000.0, 500.0, 500.0, 6000).unwrap();
+    let mut half = cut(&whole, |c| c.y > 0.0);
+    tuft_mesh::repair::remove_unused_vertices(&mut half);
+    let unset = |p: PrepareParams| PrepareParams {
+        target_panels: Some(800),
+        ..p
+    };
+    let (_, w) = tuft_mesh::prepare::prepare_mesh(
+        whole,
+        None,
+        &unset(PrepareParams {
+            mirrors: Mirrors::none(),
+            ..half_in_mm()
+        }),
+    )
+    .unwrap();
+    let (_, h) = tuft_mesh::prepare::prepare_mesh(
+        half,
+        None,
+        &unset(PrepareParams {
+            whole_from_half: true,
+            mirrors: Mirrors::none(),
+            ..half_in_mm()
+        }),
+    )
+    .unwrap();
+    println!(
+        "whole {} m^2: {} panels suggested; half run whole: {}",
+        w.area, w.suggested_panels, h.suggested_panels
+    );
+    assert_eq!(w.suggested_panels, 3500);
+    assert_eq!(h.suggested_panels, w.suggested_panels);
+}
+
 /// A half model prepared to run whole (`whole_from_half`, a run in a cross
 /// wind) comes out as the whole body: both sides, closed, with no
 /// symmetry plane, its area twice the half's, and a note saying so.
