@@ -131,6 +131,44 @@ impl WrapReasons {
     }
 }
 
+/// A part of the input (a connected surface) that lost area to the wrap.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct LostPart {
+    /// Area lost, m^2.
+    pub area: f64,
+    /// The part's whole area, m^2 (what lies inside another part is not
+    /// lost, so a part running into the body loses only what stands out).
+    pub part_area: f64,
+    /// The area-weighted centre of the lost facets, metres.
+    pub at: [f64; 3],
+}
+
+impl LostPart {
+    /// "0.412 m^2 near x 1.20, y 0.00, z 1.05 m (all of a part of 0.412
+    /// m^2)", or the share of the part when some of it stays.
+    pub fn words(&self) -> String {
+        let [x, y, z] = self.at;
+        let share = self.area / self.part_area.max(f64::MIN_POSITIVE);
+        let fate = if share > WHOLE_PART_LOST {
+            format!("all of a part of {:.3} m^2", self.part_area)
+        } else {
+            format!(
+                "{:.0} % of a part of {:.3} m^2",
+                100.0 * share,
+                self.part_area
+            )
+        };
+        format!(
+            "{:.3} m^2 near x {x:.2}, y {y:.2}, z {z:.2} m ({fate})",
+            self.area
+        )
+    }
+}
+
+/// A part that lost more than this share of its area is called lost
+/// whole (the facets along a cut edge can stay; our choice).
+const WHOLE_PART_LOST: f64 = 0.95;
+
 /// What wrapping did (serializable).
 #[derive(Debug, Clone, Default, PartialEq, Serialize)]
 pub struct WrapReport {
@@ -163,6 +201,9 @@ pub struct WrapReport {
     /// Where the most of it was lost: the area-weighted centre of the lost
     /// facets of the part that lost the most, metres.
     pub lost_at: Option<[f64; 3]>,
+    /// Each part of the input (a connected surface) that lost area, the
+    /// most first.
+    pub lost_parts: Vec<LostPart>,
     /// Area within the contact distance of the ground left open because
     /// it was too large for a tyre's contact (a floor), m^2.
     pub open_area: f64,
@@ -321,12 +362,40 @@ impl WrapReport {
     /// more than [`LOST_AREA_WARNING`] of the input area (enclosed parts
     /// are inside, not lost).
     pub fn lost_warning(&self) -> Option<String> {
+        const SHOWN: usize = 4;
         let [x, y, z] = self.lost_at?;
         (self.lost_area > LOST_AREA_WARNING * self.input_area).then(|| {
+            // Each part that lost a share worth naming, the most first
+            // (a review's roadster had lost its windscreen glass and could
+            // not tell what else of its hoops and glass had gone).
+            let named: Vec<&LostPart> = self
+                .lost_parts
+                .iter()
+                .filter(|p| p.area > LOST_PART_SHOWN * self.input_area)
+                .collect();
+            let parts = if named.is_empty() {
+                format!("most of it near x {x:.3}, y {y:.3}, z {z:.3} m")
+            } else {
+                let more = self.lost_parts.len() - named.len().min(SHOWN);
+                let list: Vec<String> = named.iter().take(SHOWN).map(|p| p.words()).collect();
+                format!(
+                    "{}: {}{}",
+                    match self.lost_parts.len() {
+                        1 => "from one part".to_string(),
+                        n => format!("from {n} parts"),
+                    },
+                    list.join("; "),
+                    match more {
+                        0 => String::new(),
+                        1 => "; and 1 more, smaller".to_string(),
+                        n => format!("; and {n} more, smaller"),
+                    }
+                )
+            };
             format!(
-                "the wrap lost {:.3} m^2 of the surface (most of it near x {x:.3}, y {y:.3}, z {z:.3} m): parts \
-                 thinner than its {:.1} mm cell, such as a sheet-thin spoiler or mirror stalk, are not in the \
-                 panels; thicken them in the STL to keep them",
+                "the wrap lost {:.3} m^2 of the surface ({parts}): parts thinner than its {:.1} mm cell, \
+                 such as a sheet-thin spoiler, windscreen or mirror stalk, are not in the panels; thicken \
+                 them in the STL to keep them",
                 self.lost_area,
                 1000.0 * self.cell
             )
@@ -337,6 +406,11 @@ impl WrapReport {
 /// Share of the input area whose loss to the wrap is warned about (our
 /// choice: a thousandth of a car's surface is a mirror stalk's area).
 pub const LOST_AREA_WARNING: f64 = 1e-3;
+
+/// Share of the input area a part must lose to be named in
+/// [`WrapReport::lost_warning`] (a tenth of the warning's; below it the
+/// facets along a part's edge that a cell cuts off).
+const LOST_PART_SHOWN: f64 = 1e-4;
 
 /// The cell edge for a body with bounds `lo..hi`.
 pub fn cell_size(lo: &Point, hi: &Point, params: &WrapParams) -> f64 {
@@ -1070,12 +1144,14 @@ fn ground_contact(grid: &Grid, field: &mut [f32], params: &WrapParams, plan: f64
 /// cell inward, lies in a cell with every corner outside (a part thinner
 /// than about a cell has no node inside it, so no surface is cut there). Facets outside the grid (below
 /// the ground, across the symmetry plane) were cut off on purpose and do
-/// not count. Returns the lost area and the area-weighted centre of the
-/// lost facets of the part that lost the most.
-fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64; 3]>) {
+/// not count. Returns the lost area and each part that lost some, the
+/// most first.
+fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Vec<LostPart>) {
     let part = crate::crossing::surfaces(mesh);
     let mut lost: HashMap<usize, (f64, Vector)> = HashMap::new();
+    let mut part_area: HashMap<usize, f64> = HashMap::new();
     for (t, &p) in part.iter().enumerate() {
+        *part_area.entry(p).or_insert(0.0) += mesh.area_vector(t).norm();
         let [a, b, c] = mesh.corners(t);
         let centre = (a.coords + b.coords + c.coords) / 3.0;
         // Looked up a quarter cell inside the facet: a face lying on a
@@ -1103,15 +1179,20 @@ fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Option<[f64
         }
     }
     let total = lost.values().fold(0.0, |sum, l| sum + l.0);
-    let worst = lost
-        .values()
-        .filter(|l| l.0 > 0.0)
-        .max_by(|x, y| x.0.total_cmp(&y.0))
-        .map(|(area, moment)| {
+    let mut parts: Vec<LostPart> = lost
+        .iter()
+        .filter(|(_, l)| l.0 > 0.0)
+        .map(|(p, (area, moment))| {
             let c = moment / *area;
-            [c.x, c.y, c.z]
-        });
-    (total, worst)
+            LostPart {
+                area: *area,
+                part_area: part_area.get(p).copied().unwrap_or(*area),
+                at: [c.x, c.y, c.z],
+            }
+        })
+        .collect();
+    parts.sort_by(|x, y| y.area.total_cmp(&x.area));
+    (total, parts)
 }
 
 /// Corners of a cell (x fastest) and its six tetrahedra round the diagonal
@@ -1252,7 +1333,8 @@ pub fn wrap(
     let filled = close_gaps(&grid, &mut field);
     let gap_nodes = filled.len();
     let gap_places = places(&grid, filled);
-    let (lost_area, lost_at) = lost_surface(mesh, &grid, &field);
+    let (lost_area, lost_parts) = lost_surface(mesh, &grid, &field);
+    let lost_at = lost_parts.first().map(|p| p.at);
     let [nx, ny, nz] = grid.n;
     let tris: Vec<[u64; 3]> = (0..nx - 1)
         .into_par_iter()
@@ -1309,6 +1391,7 @@ pub fn wrap(
         contact_gap: params.contact_cells.max(0.0).floor() * h,
         lost_area,
         lost_at,
+        lost_parts,
         open_area,
         gap_nodes,
         gap_places,

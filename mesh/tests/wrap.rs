@@ -347,6 +347,47 @@ fn a_part_thinner_than_a_cell_is_reported_lost() {
     }
 }
 
+/// The warning names each part that lost area, with how much of it: a
+/// 1 mm plate through the top of a unit sphere loses what stands out of
+/// the sphere (the rest is inside, not lost), a 1 mm plate standing clear
+/// of it is lost whole (a review's roadster could not tell which of its
+/// hoops and glass had gone).
+#[test]
+fn the_lost_warning_names_each_part_and_its_fate() {
+    let sphere = generate::icosphere(1.0, 4);
+    let z0 = 0.9937;
+    let through = subdivided(cuboid([-0.6, -0.2, z0], [0.6, 0.2, z0 + 0.001]), 5);
+    let clear = subdivided(cuboid([0.75, 0.75, -0.0937], [0.95, 0.95, -0.0927]), 4);
+    let both = join(&join(&sphere, &through), &clear);
+    let params = WrapParams {
+        cells_along_length: 200,
+        ..WrapParams::default()
+    };
+    let why = reasons(&both, &Mirrors::none(), &params, 0.0);
+    let (_, report) = wrap(&both, &Mirrors::none(), why, &params);
+    let warning = report.lost_warning().unwrap();
+    println!("{warning}\n{:?}", report.lost_parts);
+    assert_eq!(report.lost_parts.len(), 2, "{:?}", report.lost_parts);
+    // Both faces of each plate (and its thin edges): the plate through the
+    // sphere loses its area outside the unit circle at z0.
+    let outside = 2.0 * (1.2 * 0.4 - PI * (1.0 - z0 * z0));
+    let [a, b] = [report.lost_parts[0], report.lost_parts[1]];
+    assert!((a.area - outside).abs() < 0.1 * outside, "{a:?}");
+    assert!(
+        a.area / a.part_area < 0.95 && a.area / a.part_area > 0.8,
+        "{a:?}"
+    );
+    assert!(
+        (b.area - 0.08).abs() < 0.01 && b.area / b.part_area > 0.95,
+        "{b:?}"
+    );
+    assert!((b.at[0] - 0.85).abs() < 0.02 && (b.at[1] - 0.85).abs() < 0.02);
+    assert_eq!(report.lost_at, Some(a.at));
+    assert!(warning.contains("from 2 parts"), "{warning}");
+    assert!(warning.contains("% of a part of"), "{warning}");
+    assert!(warning.contains("(all of a part of 0.08"), "{warning}");
+}
+
 #[test]
 fn a_face_on_a_grid_plane_is_not_reported_lost() {
     // A review's spoiler, a block standing proud of a boot whose top lay
