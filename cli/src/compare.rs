@@ -555,7 +555,7 @@ fn half_and_whole_note(a: &crate::summary::Summary, b: &crate::summary::Summary)
             "{half} was solved as a half model and {whole} as a whole body ({half}'s mirror image stands \
              for the other half here): the two solves differ in how the centre plane is panelled, and \
              a whole body's separated flow can drift to one side, so the same shape run both ways \
-             differs by more than the panel noise (a review's pickup: 9 to 22 counts); compare \
+             differs by more than the panel noise (a test pickup: 9 to 22 counts); compare \
              variants run the same way"
         )
     })
@@ -2229,7 +2229,7 @@ pub fn lift_noise_words(d: &Deltas) -> String {
     let blunt = d.blunt_separated_percent.map_or(String::new(), |p| {
         format!(
             "; that floor is the demo coupe's, 8.8 % separated, and {p:.0} % of this surface is: its lift \
-             moves more with the panel count (a review's pickup by up to 11 kg at the rear), so run both \
+             moves more with the panel count (a test pickup by up to 11 kg at the rear), so run both \
              with --noise before reading a lift difference"
         )
     });
@@ -2653,7 +2653,7 @@ mod tests {
         assert!(
             lift_noise_words(&blunt).ends_with(
                 "are noise; that floor is the demo coupe's, 8.8 % separated, and 24 % of this surface \
-                 is: its lift moves more with the panel count (a review's pickup by up to 11 kg at the \
+                 is: its lift moves more with the panel count (a test pickup by up to 11 kg at the \
                  rear), so run both with --noise before reading a lift difference"
             ),
             "{}",

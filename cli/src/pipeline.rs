@@ -1426,8 +1426,8 @@ pub fn bluff_base_note(
         format!(
             "the base's dead water faces the stream over {projected:.2} m^2, {:.0} % of the reference \
              area, held at Cp {base_cp:.2} (Hoerner's base-drag correlation on this model's skin \
-             friction); square-back bodies near the ground measure about {} to {} there (from \
-             memory), which on this base would add {:.0} to {:.0} counts: a bluff tail's drag is the \
+             friction); square-back bodies near the ground measure about {} to {} there (a range \
+             recalled from the literature, not checked against a published table), which on this base would add {:.0} to {:.0} counts: a bluff tail's drag is the \
              least certain part of the estimate, so set two tails with bases of different size \
              against each other with care",
             100.0 * share,
@@ -1601,7 +1601,7 @@ pub fn ground_contact_warning(report: &tuft_mesh::prepare::PrepareReport) -> Opt
          tyres also block the smooth underbody's flow, which moves the lift (on the demo coupe four \
          wheels took 35 to 55 kg off the downforce), so compare axle loads between variants with the \
          same wheels only; and their wakes and open arches can separate the flank and floor behind \
-         them in this model (a review's sports car: 41 % of its surface separated, against 7 % with the \
+         them in this model (a test sports car: 41 % of its surface separated, against 7 % with the \
          wheels off and the arches closed), so read separation verdicts from a run without wheels and \
          with the arches closed",
         w.contact_area,

@@ -1037,7 +1037,7 @@ fn transition_notes(case: &Case) -> Vec<String> {
     if case.transition == crate::case::TransitionMode::Laminar {
         notes.push(format!(
             "{TRANSITION_WORDS}: transition = \"laminar\" keeps the layer laminar to its separation: a \
-             bounding case, not a car's flow (a review's 1:4 coupe read 82 % of its surface separated and \
+             bounding case, not a car's flow (a test 1:4 coupe read 82 % of its surface separated and \
              C_D 0.333 with it, 10 % and 0.157 with free transition)"
         ));
     }
@@ -1137,11 +1137,11 @@ fn cross_wind_text(s: &Summary, yaw: f64) -> String {
          (summary.json's coefficients_body_axes): the drag at yaw carries the side force's doubt. \
          Cars measure more drag in a cross wind than straight ahead (common practice), where this model \
          can give less. A whole-body mesh panels its two sides differently, and a cross wind turns that \
-         into a difference between a yaw and its mirror image (a review's box van at 15 and -15 degrees: \
-         side force 0.321 and -0.377, its roof 28 and 15 % separated; the shipped coupe case at its 3,956 panels: C_D 0.137 \
+         into a difference between a yaw and its mirror image (a test box van at 15 and -15 degrees: \
+         side force 0.321 and -0.377, its roof 28 and 15 % separated; the example coupe case, cases/coupe.toml, at its 3,956 panels: C_D 0.137 \
          at 10 degrees, 0.143 at -10). A half model (half_model = true) is mirrored into a whole body with \
          both sides panelled alike, so its attached flow mirrors exactly (that van read 0.357 both \
-         ways), though the separated-flow loop can still part a few panels between the sides (a review's \
+         ways), though the separated-flow loop can still part a few panels between the sides (a test \
          coupe at 8 and -8 degrees: 0.023 and -0.029 as a half model, 0.016 and -0.027 whole){}. Compare \
          drag between runs at one yaw only. The lift moves mostly with the \
          smooth underbody's suction (that coupe's underbody: -240 kg straight ahead, -268 at 10 \
@@ -1568,7 +1568,7 @@ fn report(
                 " Free transition is for a smooth surface in calm air: on a road, or on a clay model \
                  with its tool marks, the layer turns turbulent sooner, which boundary_layer.transition \
                  = \"turbulent\" shows; the drag band's fully turbulent re-march, on this run's separated \
-                 regions, gives part of that change, not all (a review's coupe at 130 km/h read C_D \
+                 regions, gives part of that change, not all (a test coupe at 130 km/h read C_D \
                  0.1445 fully turbulent against a band from 0.1474). A turbulent or tripped layer can \
                  read less drag here than a free one: its friction rises, and Hoerner's base \
                  correlation, which sets the dead water's pressure from that friction, takes more than \
@@ -1624,9 +1624,9 @@ fn report(
                  they give the published regimes at 25 and 35 degrees). Mean risk is the area mean of how \
                  close the boundary layer came to separating, 0 far from it and 1 at the criterion. A \
                  verdict holds at this run's speed: firm means it stands over the panel counts and the \
-                 model's settings, not over speeds (the shipped coupe STL's boot deck read 32 % \
-                 separated, firm, at 60 km/h and 0 % at 200 km/h, as its layer turns turbulent sooner; a \
-                 review, 2026-12-05)."
+                 model's settings, not over speeds (the example coupe's boot deck, cases/coupe.stl, read \
+                 32 % separated, firm, at 60 km/h and 0 % at 200 km/h, as its layer turns turbulent \
+                 sooner)."
             ),
         });
     }

@@ -424,8 +424,21 @@ fn demo_writes_two_reports() {
     let o = tuft(dir.path(), &["demo", "--out", "demo"]);
     assert!(o.code == 0 || o.code == 1, "{}", o.stderr);
     let demo = dir.path().join("demo");
-    let runs = entries(&demo);
+    let (runs, compared): (Vec<String>, Vec<String>) = entries(&demo)
+        .into_iter()
+        .partition(|e| e.starts_with("coupe-"));
     assert_eq!(runs.len(), 2, "{runs:?}");
+    // And the two set side by side, as `tuft compare` would: its folder
+    // beside them and its verdict on stdout after theirs (the slopes
+    // reach 25 degrees, so no drag winner is named).
+    assert_eq!(compared, ["compare-coupe-22deg-vs-coupe-38deg"]);
+    assert!(demo.join(&compared[0]).join("compare.html").is_file());
+    let verdict = o
+        .stdout
+        .lines()
+        .find(|l| l.starts_with("coupe-22deg -> coupe-38deg: "))
+        .expect("the comparison's verdict");
+    assert!(verdict.contains("no winner"), "{verdict}");
     // The loop's drag sits low in its band (README, "How far to trust the
     // numbers"); the headline line says so where it gives the number.
     assert_eq!(

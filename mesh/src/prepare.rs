@@ -314,7 +314,7 @@ fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Opti
         "the thinnest is under one panel edge, so the panels do not resolve its section: its own \
          pressures and drag are not in the results as computed (a roof bar, a lip or a blade; the body's \
          flow round it is), though the suction its edges draw can move the loads a good deal (held at \
-         a bound where the run says so: a review's 12 mm windscreen's side edges carried 177 counts)"
+         a bound where the run says so: a test 12 mm windscreen's side edges carried 177 counts)"
     } else {
         "a panel or two spans their section, so their own pressures and drag are rough (many of \
          their panels take the bound beside a sharp edge or the dead water's pressure)"
@@ -839,7 +839,7 @@ fn panel_and_report(
                 "{faces} flat {} meeting the wind, cut as a fan of thin triangles from one corner (as CAD \
                  exporters cut flat faces, and as the coarsening keeps them), {} re-cut in {} \
                  rings ({added} panels more): a fan's panels each reach the face's sharp rim, and their \
-                 velocity leans on the panels round it (a review's flat face meeting the wind read Cp \
+                 velocity leans on the panels round it (a test flat face meeting the wind read Cp \
                  -0.16 as a fan and +0.81 cut in rings)",
                 if faces == 1 { "face" } else { "faces" },
                 if faces == 1 { "was" } else { "were" },

@@ -134,7 +134,7 @@ impl QualityReport {
                 // The why once, on the first such note.
                 Some(count) if (count as f64) < share * n && notes.is_empty() => notes.push(format!(
                     "{text}; this comes from the coarsening's grading (finer where the surface curves), \
-                     and the size jumps themselves move the answers little (on a review's hatchback, drag \
+                     and the size jumps themselves move the answers little (on a test hatchback, drag \
                      within 0.003 and lift within about 2 kg from 4,000 to 8,000 panels); the panel count \
                      itself can move a scan's more (a wrapped hatchback with a separated tailgate: drag by \
                      0.014 and rear lift by 5 kg from 3,500 to 4,000), so compare variants at one count \
@@ -372,7 +372,7 @@ fn warnings(
             (
             format!(
                 "most of the surface ({:.0} % of its panels) is cut in slivers: the pressures \
-                 everywhere, not only near some panels, are unsure (a review's ellipsoid cut in slivers \
+                 everywhere, not only near some panels, are unsure (a test ellipsoid cut in slivers \
                  read C_D 0.010 against 0.100 cut in even triangles); export the STL with even triangles, \
                  or ask for about a third of its facets (geometry.panels, tuft check --panels), which the \
                  coarsening evens",
