@@ -3230,14 +3230,14 @@ fn page(c: &Collected, plots: &[(String, Vec<u8>)], glance: &Glance) -> String {
     let _ = writeln!(
         s,
         "<p class=\"{class}\"><strong>{}</strong></p>",
-        escape(&sentence(&c.drag_ranking))
+        escape(&crate::output::sentence(&c.drag_ranking))
     );
     if let Some(line) = against_first(c) {
-        let _ = writeln!(s, "<p>{}</p>", escape(&sentence(&line)));
+        let _ = writeln!(s, "<p>{}</p>", escape(&crate::output::sentence(&line)));
     }
     for line in [&c.front_lift_ranking, &c.rear_lift_ranking] {
         if !line.is_empty() {
-            let _ = writeln!(s, "<p>{}</p>", escape(&sentence(line)));
+            let _ = writeln!(s, "<p>{}</p>", escape(&crate::output::sentence(line)));
         }
     }
     for text in c.notes.iter().chain(&c.caveats) {
@@ -3404,15 +3404,6 @@ fn progression_key(c: &Collected) -> Option<&str> {
         [key] if numeric_key(c, key) => Some(key.as_str()),
         _ => None,
     }
-}
-
-/// `text` with its first letter capitalised.
-fn sentence(text: &str) -> String {
-    let mut chars = text.chars();
-    chars
-        .next()
-        .map(|f| f.to_uppercase().chain(chars).collect())
-        .unwrap_or_default()
 }
 
 /// The "Warnings" section: each distinct warning once, with the variants

@@ -131,6 +131,15 @@ pub struct SurfaceDeltas {
     pub max_distance_m: f64,
     /// Median distance from a B centroid to A's surface, m.
     pub median_distance_m: f64,
+    /// Largest distance from an A centroid to B's surface, m: a part A
+    /// has and B lacks lies off B's surface, not B's off A's (a review's
+    /// body without its wing had read within 24 mm of the winged one).
+    #[serde(default)]
+    pub max_distance_a_m: f64,
+    /// B's surface with no surface of A near it where A's own surface
+    /// stayed put ([`new_in_b`]): a part added in B, m^2 (whole body).
+    #[serde(default)]
+    pub new_m2: f64,
     /// B panels farther than 2 % of the body length from A's surface
     /// (where the shapes differ, the mapped values mean little).
     pub far_panels: usize,
@@ -188,7 +197,9 @@ pub struct SurfaceDeltas {
     #[serde(default)]
     pub changed_m2: f64,
     /// Of it, the area separated in A (carried onto B's panels) or in B,
-    /// m^2: a change working on dead water.
+    /// m^2: a change working on dead water. A part added in B counts by
+    /// its own state only: A had no surface there (a review's new wing
+    /// had taken the separated deck's state from 200 mm below).
     #[serde(default)]
     pub changed_separated_m2: f64,
     /// Of it, the area facing the ground (normal within 60 degrees of
@@ -915,6 +926,10 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     dist.sort_by(f64::total_cmp);
     out.max_distance_m = dist.last().copied().unwrap_or(0.0);
     out.median_distance_m = dist.get(dist.len() / 2).copied().unwrap_or(0.0);
+    let a_off_b = a_to_b_distance(a, b, mapping);
+    out.max_distance_a_m = a_off_b.iter().copied().fold(0.0, f64::max);
+    // A part added in B has no A state to set against its own.
+    let new = new_in_b(mapping, &a_off_b, changed_margin(b).1);
     let far = 0.02 * b.summary.reference.length_m.max(f64::MIN_POSITIVE);
     out.far_panels = mapping.distance.iter().filter(|&&d| d > far).count();
     let (mut sq, mut risk, mut risk_area) = (0.0, 0.0, 0.0);
@@ -927,6 +942,9 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
         if f.delta_risk[i].is_finite() {
             risk += area[i] * f.delta_risk[i];
             risk_area += area[i];
+        }
+        if new[i] {
+            continue;
         }
         if sep(f.state_a[i]) != sep(pb.state) {
             let along = halves * area[i] * pb.normal.dot(&stream);
@@ -964,8 +982,61 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
         [&stream_a, &stream],
         &mut out,
     );
-    changed_surface(b, mapping, &f.state_a, &mut out);
+    changed_surface(b, mapping, &f.state_a, &new, &mut out);
     out
+}
+
+/// B's typical panel edge and the distance from A's surface beyond which
+/// a B panel counts as changed (the larger of [`UNCHANGED_FRACTION`] of
+/// the length and [`CHANGED_EDGES`] of an edge), m.
+fn changed_margin(b: &ResultFolder) -> (f64, f64) {
+    let edge = tuft_mesh::quality::typical_edge(b.panels.iter().map(|p| p.area)).unwrap_or(0.0);
+    let near = (UNCHANGED_FRACTION * b.summary.reference.length_m).max(CHANGED_EDGES * edge);
+    (edge, near)
+}
+
+/// Distance from each of A's panels (moved as `mapping` moved them) to
+/// B's surface, m: the other way round from [`Mapping::distance`], so
+/// that a part A has and B lacks shows (B's mirror images stand for its
+/// other half where B is a half model and A a whole body).
+pub fn a_to_b_distance(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Vec<f64> {
+    let images = b.summary.mesh.symmetry_plane && !a.summary.mesh.symmetry_plane;
+    let panel = |p: &folder::PanelRow| SourcePanel {
+        centroid: p.centroid,
+        normal: p.normal,
+        area: p.area,
+    };
+    let src: Vec<SourcePanel> = b
+        .panels
+        .iter()
+        .map(panel)
+        .chain(b.panels.iter().filter(|_| images).map(|p| SourcePanel {
+            centroid: nalgebra::Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z),
+            normal: nalgebra::Vector3::new(p.normal.x, -p.normal.y, p.normal.z),
+            area: p.area,
+        }))
+        .collect();
+    let targets: Vec<_> = a
+        .panels
+        .iter()
+        .map(|p| (p.centroid + mapping.shift, p.normal))
+        .collect();
+    map_nearest(&src, &targets).map_or_else(|| vec![0.0; a.panels.len()], |m| m.distance)
+}
+
+/// B's panels beyond `near` of A's surface whose nearest panel of A lies
+/// within `near` of B's own (`a_off_b`, [`a_to_b_distance`]): a part added
+/// in B, where A had no surface, rather than A's surface moved (a raised
+/// lid's panels find A's lid, itself off B's surface). A's values carried
+/// there belong to the surface beside it (a wing over a deck took the
+/// deck's).
+pub fn new_in_b(mapping: &Mapping, a_off_b: &[f64], near: f64) -> Vec<bool> {
+    mapping
+        .distance
+        .iter()
+        .zip(&mapping.source)
+        .map(|(&d, &j)| d > near && a_off_b.get(j).is_some_and(|&e| e <= near))
+        .collect()
 }
 
 /// Distance from A's surface, in B's typical panel edges, beyond which a
@@ -999,12 +1070,11 @@ fn changed_surface(
     b: &ResultFolder,
     mapping: &Mapping,
     state_a: &[PanelState],
+    new: &[bool],
     out: &mut SurfaceDeltas,
 ) {
-    out.panel_edge_m =
-        tuft_mesh::quality::typical_edge(b.panels.iter().map(|p| p.area)).unwrap_or(0.0);
-    let near =
-        (UNCHANGED_FRACTION * b.summary.reference.length_m).max(CHANGED_EDGES * out.panel_edge_m);
+    let (edge, near) = changed_margin(b);
+    out.panel_edge_m = edge;
     out.margins_m = [UNCHANGED_FRACTION * b.summary.reference.length_m, near];
     let halves = b.halves();
     let sep = |s: PanelState| s == PanelState::Separated;
@@ -1033,6 +1103,10 @@ fn changed_surface(
         if !changed[i] {
             continue;
         }
+        let is_new = new.get(i).copied().unwrap_or(false);
+        if is_new {
+            out.new_m2 += halves * pb.area;
+        }
         let x = pb.centroid.x;
         out.changed_x_m = Some(
             out.changed_x_m
@@ -1040,7 +1114,7 @@ fn changed_surface(
         );
         let area = halves * pb.area;
         out.changed_m2 += area;
-        if sep(pb.state) || state_a.get(i).copied().is_some_and(sep) {
+        if sep(pb.state) || (!is_new && state_a.get(i).copied().is_some_and(sep)) {
             out.changed_separated_m2 += area;
         }
         if pb.normal.z < -crate::region::FACING_COS && pb.centroid.z < floor_top {
@@ -1840,7 +1914,11 @@ fn corner_note(a: &crate::summary::Summary, b: &crate::summary::Summary) -> Opti
 /// (`measured`): the verdict's floor then holds what the note asks for.
 /// `names`: the runs, A's and B's.
 fn resolution_note(surface: &SurfaceDeltas, measured: bool, [a, b]: [&str; 2]) -> Option<String> {
-    let (d, e) = (surface.max_distance_m, surface.panel_edge_m);
+    // Both ways: a part only A has lies off B's surface, not B's off A's.
+    let (d, e) = (
+        surface.max_distance_m.max(surface.max_distance_a_m),
+        surface.panel_edge_m,
+    );
     // A move beyond the unchanged margin counts though no panel cluster
     // passed the changed one (a review's bumper corner rounded from 40 to
     // 80 mm moved by up to 25 mm on 91 mm panels, changed_m2 0, no note).
@@ -1852,7 +1930,7 @@ fn resolution_note(surface: &SurfaceDeltas, measured: bool, [a, b]: [&str; 2]) -
             "nowhere by more than a quarter of an edge over more than a lone panel".to_owned()
         };
         format!(
-            "{b}'s surface lies within {:.0} mm of {a}'s everywhere, under the panels' typical edge ({:.0} mm), \
+            "{a}'s and {b}'s surfaces lie within {:.0} mm of each other everywhere, under the panels' typical edge ({:.0} mm), \
              {over}: however large the part, the panels follow moves under their own \
              size only in part, so the differences may rest as much on how each surface was cut into \
              panels as on the change; run both again with tuft run --noise, which solves each at two \
@@ -2529,14 +2607,13 @@ mod tests {
         );
         let note =
             resolution_note(&surface(0.04, 0.0, 0.03), false, ["A", "B"]).unwrap_or_default();
-        assert!(note.starts_with("B's surface lies within 30 mm of A's everywhere, under the panels' typical edge (80 mm), over 0.04 m^2 that moved"), "{note}");
+        assert!(note.starts_with("A's and B's surfaces lie within 30 mm of each other everywhere, under the panels' typical edge (80 mm), over 0.04 m^2 that moved"), "{note}");
         assert!(note.contains("tuft run --noise"), "{note}");
         // collect's leader (B) and runner-up (A) by name.
         let named = surface_notes(&surface(0.04, 0.0, 0.03), false, ["v1", "v0"]);
         assert!(
-            named
-                .iter()
-                .any(|n| n.starts_with("v0's surface lies within 30 mm of v1's everywhere")),
+            named.iter().any(|n| n
+                .starts_with("v1's and v0's surfaces lie within 30 mm of each other everywhere")),
             "{named:?}"
         );
         assert_eq!(
@@ -2547,6 +2624,14 @@ mod tests {
             resolution_note(&surface(0.04, 0.0, 0.1), false, ["A", "B"]),
             None
         );
+        // A part only A has (a wing, 250 mm off B's deck): B's surface
+        // lies within 30 mm of A's, but not A's of B's, so no note (a
+        // review's collect had called the wing a change under a panel).
+        let wing_in_a = SurfaceDeltas {
+            max_distance_a_m: 0.25,
+            ..surface(0.04, 0.0, 0.03)
+        };
+        assert_eq!(resolution_note(&wing_in_a, false, ["A", "B"]), None);
         assert_eq!(
             resolution_note(&surface(0.0, 0.0, 0.003), false, ["A", "B"]),
             None
@@ -2556,7 +2641,7 @@ mod tests {
         let note =
             resolution_note(&surface(0.0, 0.0, 0.025), false, ["A", "B"]).unwrap_or_default();
         assert!(
-            note.starts_with("B's surface lies within 25 mm of A's everywhere, under the panels' typical edge (80 mm), nowhere by more"),
+            note.starts_with("A's and B's surfaces lie within 25 mm of each other everywhere, under the panels' typical edge (80 mm), nowhere by more"),
             "{note}"
         );
         let mut a = Summary::default();
@@ -3208,6 +3293,65 @@ mod tests {
         let m = map_a_onto_b(&a, &folder(&splitter, 0.0));
         assert_eq!(m.shift, nalgebra::Vector3::zeros());
         assert!(m.distance[..grid.len()].iter().all(|&d| d < 1e-12));
+    }
+
+    /// A part B adds (a plate 0.25 m over a deck, as a rear wing) is new
+    /// surface: A's deck stayed where it was, so A's state is not carried
+    /// up onto it, and a part only A has shows in the distance measured
+    /// the other way; a deck raised by 0.25 m is A's surface moved, which
+    /// keeps A's state (a review's new wing had read 90 % "in separated
+    /// flow" from the deck below it, and collect had called the body
+    /// without it within 24 mm of the winged one).
+    #[test]
+    fn a_part_added_in_b_is_new_surface() {
+        let deck: Vec<[f64; 3]> = (0..10)
+            .flat_map(|i| (0..4).map(move |j| [0.1 * f64::from(i), 0.1 * f64::from(j), 1.0]))
+            .collect();
+        let wing: Vec<[f64; 3]> = (0..4)
+            .flat_map(|i| (0..4).map(move |j| [0.3 + 0.1 * f64::from(i), 0.1 * f64::from(j), 1.25]))
+            .collect();
+        let folder = |points: &[[f64; 3]], state: PanelState| ResultFolder {
+            path: PathBuf::from("r"),
+            summary: with_area(1.9),
+            panels: points
+                .iter()
+                .map(|c| folder::PanelRow {
+                    centroid: nalgebra::Point3::new(c[0], c[1], c[2]),
+                    normal: nalgebra::Vector3::z(),
+                    area: 0.01,
+                    cp: 0.0,
+                    state,
+                    risk: 0.0,
+                })
+                .collect(),
+        };
+        let bare = folder(&deck, PanelState::Separated);
+        let winged = folder(&[deck.clone(), wing].concat(), PanelState::Turbulent);
+        let near = 0.02;
+        let m = map_a_onto_b(&bare, &winged);
+        let a_off_b = a_to_b_distance(&bare, &winged, &m);
+        let new = new_in_b(&m, &a_off_b, near);
+        assert_eq!(new.iter().filter(|&&n| n).count(), 16, "{new:?}");
+        assert!(new[..deck.len()].iter().all(|&n| !n));
+        // The other way round: the wing is A's, off B's surface by 0.25 m.
+        let m = map_a_onto_b(&winged, &bare);
+        let back = a_to_b_distance(&winged, &bare, &m);
+        assert!(m.distance.iter().all(|&d| d < 1e-9));
+        assert!((back.iter().copied().fold(0.0, f64::max) - 0.25).abs() < 1e-9);
+        assert!(new_in_b(&m, &back, near).iter().all(|&n| !n));
+        // A deck raised whole: its panels find A's deck, itself off B's.
+        let raised: Vec<[f64; 3]> = deck.iter().map(|&[x, y, z]| [x, y, z + 0.25]).collect();
+        let mut b = folder(&raised, PanelState::Turbulent);
+        // Raised, not shifted onto it: a taller part beside the deck keeps
+        // the least corner where it was.
+        let post = [[0.0, 0.0, 0.5]];
+        b.panels.extend(folder(&post, PanelState::Turbulent).panels);
+        let mut a = folder(&deck, PanelState::Separated);
+        a.panels.extend(folder(&post, PanelState::Separated).panels);
+        let m = map_a_onto_b(&a, &b);
+        assert_eq!(m.shift, nalgebra::Vector3::zeros());
+        let new = new_in_b(&m, &a_to_b_distance(&a, &b, &m), near);
+        assert!(new.iter().all(|&n| !n), "{new:?}");
     }
 
     /// A half model against the whole body of the same shape: A's mirror

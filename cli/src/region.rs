@@ -266,8 +266,16 @@ impl RegionResult {
             }
             _ => String::new(),
         };
+        // Said when firm too: a review reading the report had met
+        // "provisional" and "uncertain" beside verdicts and "firm" only in
+        // the definition, and could not tell what no word meant.
+        let firm = if self.firmness() == "firm" {
+            "; a firm verdict"
+        } else {
+            ""
+        };
         format!(
-            "{} ({} % separated{range}{near}{rim}{sides}{counts})",
+            "{} ({} % separated{range}{near}{rim}{sides}{counts}{firm})",
             self.verdict,
             percent(self.separated_fraction)
         )
@@ -862,7 +870,7 @@ mod tests {
     fn a_region_beside_sharp_edges_is_provisional() {
         let mut r = RegionResult::example("bonnet", 0.0, None);
         r.rim_fraction = 0.02;
-        assert_eq!(r.words(), "attached (0 % separated)");
+        assert_eq!(r.words(), "attached (0 % separated; a firm verdict)");
         r.rim_fraction = 0.12;
         assert_eq!(r.firmness(), "firm");
         assert!(
@@ -952,11 +960,11 @@ mod tests {
         );
         assert_eq!(
             result(0.31, [0.31, 0.41]).words(),
-            "partly separated (31 % separated; 31 to 41 % across the sensitivity runs)"
+            "partly separated (31 % separated; 31 to 41 % across the sensitivity runs; a firm verdict)"
         );
         assert_eq!(
             result(0.8, [0.8, 0.8]).words(),
-            "separated (80 % separated)"
+            "separated (80 % separated; a firm verdict)"
         );
         // The same three in one word for a script (summary.json, sweep.csv).
         assert_eq!(result(0.0, [0.0, 0.34]).firmness(), "uncertain");

@@ -407,7 +407,12 @@ pub fn flow_slices(mesh: &PanelMesh, c: &Computed, extra: &[Plane]) -> Result<Ve
             .map(|(dead, v)| dead && v.is_some())
             .collect();
         }
-        s.note.clone_from(&note);
+        // The hatching's words only where a slice holds dead water.
+        if s.dead_water.iter().any(|&d| d) || c.wakes.as_ref().is_none_or(|w| w.passes <= 1) {
+            s.note.clone_from(&note);
+        } else {
+            s.note = WAKE_RECOVERY.trim_start().to_string();
+        }
         s
     };
     let built_in = |k: usize, at: f64, stem: &str| {
@@ -559,7 +564,7 @@ fn slice_note(c: &Computed) -> String {
     match &c.wakes {
         Some(w) if w.passes > 1 => format!(
             "Hatched grey: dead water behind separated surface (to one and a half body heights), which the model \
-             holds at {} and computes no flow in (the VTK file keeps the stream it lets through).",
+             holds at {} and computes no flow in (the VTK file keeps the stream it lets through).{WAKE_RECOVERY}",
             w.dead_water_cp
                 .or(w.base_cp_loop)
                 .map(|v| format!("Cp {v:.2}"))
@@ -573,6 +578,12 @@ fn slice_note(c: &Computed) -> String {
         }
     }
 }
+
+/// What the slices show behind a body after the separated-flow loop (a
+/// review read the red behind the coupe's tail as the wake pushing the
+/// car forward).
+const WAKE_RECOVERY: &str = " Behind the body the pressure is the potential flow's, which recovers to \
+     above the free stream's where a real wake stays below it.";
 
 fn grid(field: &FlowField, field_speed2: f64, plane: &Plane) -> Slice {
     let (a, b) = plane.axes;
@@ -1355,6 +1366,13 @@ fn report(
         NumberRow::text("Lift, whole body (negative: downforce)", &lift, &at),
         NumberRow::text("Lift, front axle", &split(&front), &at),
         NumberRow::text("Lift, rear axle", &split(&rear), &at),
+        // As stdout gives it (a review reading only the report had not
+        // found how sure a lift difference is).
+        NumberRow::text(
+            "Lift, how far like runs scatter (a difference between variants under it is noise)",
+            &format!("about {}", output::fixed(s.lift_noise_kg(), 1)),
+            &at,
+        ),
     ];
     if s.mesh.ground_z.is_some() {
         numbers.push(NumberRow::text(
@@ -1591,8 +1609,13 @@ fn report(
     let mut sections = vec![method];
     if !s.notes.is_empty() {
         sections.push(TextSection {
-            title: "Notes on the panels".into(),
-            body: s.notes.join("\n\n"),
+            title: "Notes on the mesh and the model".into(),
+            body: s
+                .notes
+                .iter()
+                .map(|n| crate::output::sentence(n))
+                .collect::<Vec<_>>()
+                .join("\n\n"),
         });
     }
     if s.rim_shown() {
@@ -1622,11 +1645,15 @@ fn report(
                 "Each region's verdict reads its separated share: attached under {attached:.0} %, separated \
                  from {separated:.0} %, partly separated between (our lines; on the slant-back research body \
                  they give the published regimes at 25 and 35 degrees). Mean risk is the area mean of how \
-                 close the boundary layer came to separating, 0 far from it and 1 at the criterion. A \
-                 verdict holds at this run's speed: firm means it stands over the panel counts and the \
-                 model's settings, not over speeds (the example coupe's boot deck, cases/coupe.stl, read \
-                 32 % separated, firm, at 60 km/h and 0 % at 200 km/h, as its layer turns turbulent \
-                 sooner)."
+                 close the boundary layer came to separating, 0 far from it and 1 at the criterion. \
+                 Each verdict is firm, provisional or uncertain: firm means it stands over the panel \
+                 counts and the model's settings; provisional, that another panel count could cross a \
+                 line (its share within {noise:.0} points of one, too few panels, or much of it beside \
+                 sharp edges); uncertain, that the sensitivity runs, the panel counts or the two sides \
+                 give another verdict, so it rests on the model. A verdict holds at this run's speed \
+                 only (the example coupe's boot deck, cases/coupe.stl, read 32 % separated, firm, at 60 \
+                 km/h and 0 % at 200 km/h, as its layer turns turbulent sooner).",
+                noise = 100.0 * crate::region::VERDICT_NOISE
             ),
         });
     }
@@ -1653,7 +1680,10 @@ fn report(
             } else {
                 ("notes", "they bear")
             };
-            format!("Read the {notes} on the panels below: {they} on how far the numbers hold.")
+            format!(
+                "Read the {notes} on the mesh and the model below: {they} on how far the numbers \
+                 hold."
+            )
         }),
         pictures,
         sections,

@@ -297,7 +297,10 @@ pub const THIN_EDGES: f64 = 2.0;
 /// under 100 mm panels); up to two, a panel or two spans it, and its own
 /// drag is rough (a review's 100 mm mirror housing under 90 mm panels
 /// carried about 9 counts on 43 panels, most held at the rim bound or the
-/// dead water's pressure, where the first wording had said none).
+/// dead water's pressure, where the first wording had said none). Nor
+/// is a thin wing's lift: no Kutta wake leaves an STL part's trailing
+/// edge (a review's rear wing carried 3 kg where a hand estimate gives
+/// 55).
 fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Option<String> {
     let edge = crate::quality::typical_edge(panels.panels.iter().map(|p| p.area))?;
     let under: Vec<&crate::thin::PartSize> = thin
@@ -312,16 +315,20 @@ fn thin_part_warning(thin: &[crate::thin::PartSize], panels: &PanelMesh) -> Opti
     };
     let what = if first.thickness < edge {
         "the thinnest is under one panel edge, so the panels do not resolve its section: its own \
-         pressures and drag are not in the results as computed (a roof bar, a lip or a blade; the body's \
+         pressures, lift and drag are not in the results as computed (a roof bar, a lip or a blade; the body's \
          flow round it is), though the suction its edges draw can move the loads a good deal (held at \
          a bound where the run says so: a test 12 mm windscreen's side edges carried 177 counts)"
     } else {
-        "a panel or two spans their section, so their own pressures and drag are rough (many of \
+        "a panel or two spans their section, so their own pressures, lift and drag are rough (many of \
          their panels take the bound beside a sharp edge or the dead water's pressure)"
     };
     Some(format!(
         "{count} of the STL {verb} thinner than two of the panels' edges ({:.0} mm; the thinnest {:.0} mm, \
-         near x {x:.2}, y {y:.2}, z {z:.2} m): {what}; judge such parts' own drag elsewhere",
+         near x {x:.2}, y {y:.2}, z {z:.2} m): {what}; judge such parts' own lift and drag elsewhere. \
+         A wing's downforce needs the circulation its trailing edge sheds, which tuft does not model \
+         on an STL's parts: a rear wing adds next to nothing to the axle loads here (a test 1.4 m \
+         wing at 6 degrees over a coupe's deck carried about 3 kg at 200 km/h on its own panels, \
+         where a hand estimate gives about 55)",
         THIN_EDGES * edge * 1000.0,
         first.thickness * 1000.0
     ))

@@ -23,6 +23,11 @@ const APPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([150, 20, 30], [240
 const DISAPPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([20, 60, 150], [150, 190, 240]);
 /// Stripes where both runs separate.
 const BOTH: (output::canvas::Rgb, output::canvas::Rgb) = ([40, 40, 46], [150, 150, 158]);
+/// A part B adds, where A had no surface ([`super::new_in_b`]): no
+/// difference to draw there (a review's new wing had been coloured with
+/// the deck's Cp from 200 mm below set against its own). Sand, apart
+/// from the greys of "not resolved" and "separates in both".
+const NEW_IN_B: output::canvas::Rgb = [222, 206, 150];
 
 /// Named regions' outlines on the separation-change sheet: in a colour
 /// none of its stripes use, over a white halo.
@@ -201,14 +206,37 @@ pub fn write(
         yaw_deg: super::yaw_of(&b.summary),
     };
     let outlined = outlined_share(&cmp.surface, b.halves() * mesh_b.area()).is_some();
+    let new = super::new_in_b(
+        mapping,
+        &super::a_to_b_distance(a, b, mapping),
+        cmp.surface.margins_m[1],
+    );
+    let is_new = |i: usize| new.get(i).copied().unwrap_or(false);
+    let new_swatch = || {
+        new.iter()
+            .any(|&n| n)
+            .then(|| ("added in B".to_string(), Swatch::Solid(NEW_IN_B)))
+    };
+    // The scale from the panels A and B both have.
+    let shared_cp: Vec<f64> = f
+        .delta_cp
+        .iter()
+        .enumerate()
+        .filter(|&(i, _)| !is_new(i))
+        .map(|(_, &d)| d)
+        .collect();
     let cp_style = FieldStyle {
-        scale: ColourScale::diverging("\u{394}Cp [-]", &f.delta_cp, 0.02),
-        legend: vec![],
+        scale: ColourScale::diverging("\u{394}Cp [-]", &shared_cp, 0.02),
+        legend: new_swatch().into_iter().collect(),
         what: "Cp difference".into(),
         note: delta_cp_note(&cmp.surface, outlined),
     };
-    let cp_paint =
-        |i: usize| PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE));
+    let cp_paint = |i: usize| {
+        if is_new(i) {
+            return PanelPaint::Solid(NEW_IN_B);
+        }
+        PanelPaint::Solid(cp_style.scale.colour(f.delta_cp[i]).unwrap_or(NO_VALUE))
+    };
     let mut dcp = field_sheet(&surface, &cp_style, &caption, &cp_paint)?;
     let sep_style = FieldStyle {
         scale: ColourScale::diverging("\u{394} risk [-]", &f.delta_risk, 0.1),
@@ -230,12 +258,16 @@ pub fn write(
                 .any(|r| r.is_nan())
                 .then(|| ("not resolved".into(), Swatch::Solid(NO_VALUE))),
         )
+        .chain(new_swatch())
         .collect(),
         what: "Separation change".into(),
         note: separation_change_note(&cmp.surface, outlined),
     };
     let sep_a = |i: usize| f.state_a[i] == PanelState::Separated;
     let sep_paint = |i: usize| {
+        if is_new(i) {
+            return PanelPaint::Solid(NEW_IN_B);
+        }
         let sep_b = owned.state()[i] == PanelState::Separated;
         match (sep_a(i), sep_b) {
             (false, true) => PanelPaint::Hatched(APPEARS.0, APPEARS.1),
@@ -611,7 +643,7 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     };
     Report {
         caption,
-        summary: format!("{}.", upper_first(&c.drag.text)),
+        summary: format!("{}.", output::sentence(&c.drag.text)),
         numbers,
         warnings: c.notes.clone(),
         notes_pointer: None,
@@ -620,13 +652,6 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         cautions: vec![],
         generator: c.tool.clone(),
     }
-}
-
-fn upper_first(s: &str) -> String {
-    let mut cs = s.chars();
-    cs.next().map_or_else(String::new, |f| {
-        f.to_uppercase().collect::<String>() + cs.as_str()
-    })
 }
 
 /// A difference with its sign always written, to `places` decimals, a

@@ -386,11 +386,10 @@ mod tests {
             String::from_utf8(buf).unwrap()
         };
         assert!(page(&r).contains("<p class=\"none\">No warnings.</p>"));
-        r.notes_pointer = Some("Read the note on the panels below.".into());
-        assert!(
-            page(&r)
-                .contains("<p class=\"none\">No warnings. Read the note on the panels below.</p>")
-        );
+        r.notes_pointer = Some("Read the note on the mesh and the model below.".into());
+        assert!(page(&r).contains(
+            "<p class=\"none\">No warnings. Read the note on the mesh and the model below.</p>"
+        ));
     }
 
     #[test]

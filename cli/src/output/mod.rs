@@ -401,6 +401,15 @@ pub fn fixed(v: f64, places: usize) -> String {
     format!("{:.places$}", rounded(v, places))
 }
 
+/// `text` with its first letter capitalised.
+pub fn sentence(text: &str) -> String {
+    let mut chars = text.chars();
+    chars
+        .next()
+        .map(|f| f.to_uppercase().chain(chars).collect())
+        .unwrap_or_default()
+}
+
 /// Items in words: "a", "a and b", "a, b and c".
 pub fn and_list<S: AsRef<str>>(items: &[S]) -> String {
     match items {

@@ -634,10 +634,18 @@ fn describe_plane(s: &Slice) -> String {
     // +y lies to the right.
     let view = match axis_name(&n) {
         "x" => ", seen from behind",
+        "z" if n.z > 0.0 => ", seen from above (+y up)",
         _ => "",
     };
+    // A plane under the floor cuts no body: saying grey there sent a
+    // review looking for the car in it.
+    let inside = if s.cp.iter().any(Option::is_none) {
+        "Grey: inside the body."
+    } else {
+        "The plane does not cut the body."
+    };
     format!(
-        "{plane}{view}; {} x {} samples {} m apart. Grey: inside the body.",
+        "{plane}{view}; {} x {} samples {} m apart. {inside}",
         s.dims.0,
         s.dims.1,
         super::fine_number(s.spacing)
