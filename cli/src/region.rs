@@ -269,7 +269,7 @@ impl RegionResult {
         // Said when firm too: a review reading the report had met
         // "provisional" and "uncertain" beside verdicts and "firm" only in
         // the definition, and could not tell what no word meant.
-        let firm = if self.firmness() == "firm" {
+        let firm = if self.firmness() == "firm" && rim.is_empty() {
             "; a firm verdict"
         } else {
             ""

@@ -579,6 +579,34 @@ fn slice_note(c: &Computed) -> String {
     }
 }
 
+/// The report's last section, for a reader who has not met the trade's
+/// words (a review by a designer reading only the report had listed the
+/// words it did not know).
+pub const WORDS_USED: &str = "Cp, the pressure coefficient: the pressure above the free stream's, over \
+    the dynamic pressure of the oncoming air; 1 where the air stops against the body, 0 at the free \
+    stream's pressure, negative where the air speeds up and sucks.\n\n\
+    Drag count: a thousandth of the drag coefficient C_D (drag over the dynamic pressure times the \
+    reference area, here the frontal area unless the case sets another).\n\n\
+    Attached and separated: the thin layer of slowed air next to the skin (the boundary layer) either \
+    follows the surface or leaves it. Where it leaves, the air behind is a region of slow, churning \
+    flow at about one pressure, called dead water here; partly separated means a region that is \
+    between the two (attached under 20 % of its area separated, separated from 60 %).\n\n\
+    Laminar and turbulent: the boundary layer starts smooth (laminar) and turns turbulent further \
+    back (transition); a turbulent layer rubs more but stays on the surface longer.\n\n\
+    Separation risk: how close the boundary layer came to leaving the surface, 0 far from it and 1 \
+    where it leaves.\n\n\
+    Separated-flow loop: the model first solves the air as if nothing separated, finds where the \
+    boundary layer leaves, opens those regions as dead water and solves again until the separated \
+    regions stop growing. The plateau model is the first pass's cruder estimate of the same \
+    regions' pressure.\n\n\
+    Band and sensitivity runs: the drag is estimated again with the separation criterion set looser \
+    and stricter and with a fully turbulent layer; the band spans those answers and the model's \
+    known shortfall, not the car's real drag.\n\n\
+    Panels: the flat triangles the surface is cut into for the calculation; panel noise is how much \
+    an answer moves when the same shape is cut into a few more or fewer.\n\n\
+    Reynolds number: the speed times the length over the air's viscosity; where it is alike, so is \
+    the boundary layer, which is why a scale model at low speed is not the car.";
+
 /// What the slices show behind a body after the separated-flow loop (a
 /// review read the red behind the coupe's tail as the wake pushing the
 /// car forward).
@@ -1669,6 +1697,10 @@ fn report(
             body: loop_text(w),
         });
     }
+    sections.push(TextSection {
+        title: "Words used here".into(),
+        body: WORDS_USED.into(),
+    });
     Report {
         caption,
         summary,
@@ -1703,6 +1735,15 @@ fn report(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The glossary's verdict lines are the ones the verdicts use.
+    #[test]
+    fn the_words_used_give_the_verdict_lines() {
+        let [attached, separated] = crate::region::VERDICT_LINES.map(|v| 100.0 * v);
+        assert!(WORDS_USED.contains(&format!(
+            "attached under {attached:.0} % of its area separated, separated from {separated:.0} %"
+        )));
+    }
 
     /// A 1:4 model at 45 m/s (Re 3.36 million on 1.125 m) is noted as a
     /// 4.5 m car at 11.25 m/s; the car at 130 km/h (10.8 million) is not.

@@ -482,9 +482,8 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
     } else {
         "Drag difference"
     };
-    let signed = |v: f64| signed_places(v, 1);
-    let [lift, front, rear] = output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg])
-        .map(|t| t.replace('-', "\u{2212}"));
+    let signed = |v: f64| output::signed(v, 1);
+    let [lift, front, rear] = output::kg_set_signed([d.lift_kg, d.front_axle_kg, d.rear_axle_kg]);
     let mut numbers = vec![
         NumberRow::text(
             "Drag C_D, A and B",
@@ -531,17 +530,17 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         ),
         NumberRow::text(
             "Lift coefficient difference",
-            &signed_places(d.lift_coefficient, 3),
+            &output::signed(d.lift_coefficient, 3),
             "-",
         ),
         NumberRow::text(
             "Separated area difference",
-            &signed_places(d.separated_area_m2, 3),
+            &output::signed(d.separated_area_m2, 3),
             "m²",
         ),
         NumberRow::text(
             "Separated share of the surface, B's minus A's",
-            &signed_places(d.separated_percent_points, 2),
+            &output::signed(d.separated_percent_points, 2),
             "% points",
         ),
         NumberRow::fixed("Separation appears in B", s.separation_appears_m2, 3, "m²"),
@@ -576,12 +575,12 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         ),
         NumberRow::text(
             "Unchanged surface: the part of the drag difference arising there",
-            &signed_places(s.unchanged_drag_counts, 1),
+            &output::signed(s.unchanged_drag_counts, 1),
             "counts",
         ),
         NumberRow::text(
             "Unchanged surface: the part of the lift difference arising there",
-            &signed_places(
+            &output::signed(
                 s.unchanged_lift_kg,
                 output::kg_places(&[s.unchanged_lift_kg]),
             ),
@@ -652,12 +651,6 @@ fn page(c: &Comparison, caption: Caption, pictures: Vec<Picture>) -> Report {
         cautions: vec![],
         generator: c.tool.clone(),
     }
-}
-
-/// A difference with its sign always written, to `places` decimals, a
-/// typographic minus.
-fn signed_places(v: f64, places: usize) -> String {
-    output::signed(v, places).replace('-', "\u{2212}")
 }
 
 #[cfg(test)]

@@ -41,7 +41,7 @@ impl NumberRow {
         if magnitude.chars().all(|c| c == '0' || c == '.') {
             Self::text(label, magnitude, unit)
         } else {
-            Self::text(label, &text.replace('-', "\u{2212}"), unit)
+            Self::text(label, &text, unit)
         }
     }
 
@@ -74,7 +74,7 @@ pub fn significant(v: f64, digits: i32) -> String {
         return format!("{:.*e}", (digits - 1).max(0) as usize, v);
     }
     let decimals = (digits - 1 - magnitude).max(0) as usize;
-    format!("{v:.decimals$}").replace('-', "\u{2212}")
+    format!("{v:.decimals$}")
 }
 
 /// A titled block of free text; blank lines separate paragraphs.
@@ -395,17 +395,14 @@ mod tests {
     #[test]
     fn numbers_read_plainly() {
         assert_eq!(significant(1.23456, 4), "1.235");
-        assert_eq!(significant(-123.456, 4), "\u{2212}123.5");
+        // An ASCII minus, as the kg and counts beside them are written, so
+        // that a table pasted into a spreadsheet reads as numbers (a
+        // review's "\u{2212}0.518" became text there).
+        assert_eq!(significant(-123.456, 4), "-123.5");
         assert_eq!(significant(0.0123, 3), "0.0123");
         assert_eq!(NumberRow::counts("C_D", 0.2854).value, "285");
-        assert_eq!(
-            NumberRow::fixed("lift", -94.53, 0, "kg").value,
-            "\u{2212}95"
-        );
-        assert_eq!(
-            NumberRow::fixed("C_L", -0.51338, 3, "-").value,
-            "\u{2212}0.513"
-        );
+        assert_eq!(NumberRow::fixed("lift", -94.53, 0, "kg").value, "-95");
+        assert_eq!(NumberRow::fixed("C_L", -0.51338, 3, "-").value, "-0.513");
         assert_eq!(NumberRow::fixed("side", -0.0001, 3, "-").value, "0.000");
     }
 }

@@ -95,6 +95,11 @@ pub struct LinePlot {
     /// m^2 on an axis from 1.5 as fivefold, and a share's axis reached
     /// -10 %); `None`: as the values fall.
     pub y_from: Option<f64>,
+    /// A span the vertical axis covers whatever the values, so that two
+    /// runs' plots share an axis where their values allow (two centre-line
+    /// plots of the demo had read -1.0 to 1.5 and -1.5 to 1.5 and could
+    /// not be laid over each other); `None`: as the values fall.
+    pub y_covers: Option<(f64, f64)>,
     /// The series drawn widest, the one to read first (a lift plot's
     /// whole body beside its underbody and rest-of-body parts, which a
     /// review's eye had gone to first, drawn wider by their places);
@@ -547,6 +552,9 @@ fn plot_frame(plot: &LinePlot, params: &PlotParams) -> PlotFrame {
         }
         _ => y,
     };
+    let y = plot
+        .y_covers
+        .map_or(y, |(lo, hi)| (y.0.min(lo), y.1.max(hi)));
     let y_range = if plot.invert_y { (y.1, y.0) } else { y };
     let rect = (
         110.0,
@@ -1266,6 +1274,8 @@ pub fn centreline_cp_plot_with_params(
         x_label: "x [m] (downstream)".to_owned(),
         y_label: "Cp [-]".to_owned(),
         invert_y: true,
+        // From the stagnation's 1 to a suction a car's body reaches.
+        y_covers: Some((-1.5, 1.0)),
         series,
         shading,
         note,
