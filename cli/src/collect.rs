@@ -1727,7 +1727,8 @@ pub fn csv(c: &Collected) -> String {
         let g = g.replace([',', '\n'], " ");
         let _ = write!(
             s,
-            ",region:{g}:separated_percent,region:{g}:verdict,region:{g}:band_low_percent,region:{g}:band_high_percent,region:{g}:standing"
+            ",region:{g}:separated_percent,region:{g}:verdict,region:{g}:band_low_percent,region:{g}:band_high_percent,region:{g}:standing,\
+             region:{g}:drag_counts,region:{g}:lift_kg,region:{g}:front_axle_kg,region:{g}:rear_axle_kg"
         );
     }
     s.push('\n');
@@ -1928,8 +1929,20 @@ fn csv_row(
                     100.0 * g.separated_band[1],
                     g.firmness()
                 );
+                // The forces on the region's own surface (empty from a
+                // summary written before they were).
+                match &g.loads {
+                    Some(l) => {
+                        let _ = write!(
+                            s,
+                            ",{},{},{},{}",
+                            l.drag_counts, l.lift_kg, l.front_axle_kg, l.rear_axle_kg
+                        );
+                    }
+                    None => s.push_str(",,,,"),
+                }
             }
-            None => s.push_str(",,,,,"),
+            None => s.push_str(",,,,,,,,,"),
         }
     }
     s.push('\n');
@@ -4808,7 +4821,15 @@ mod tests {
         };
         c.variants[0].regions = vec![
             region("rear window", 0.03, "attached"),
-            region("boot deck", 0.71, "separated"),
+            RegionResult {
+                loads: Some(crate::region::RegionLoads {
+                    drag_counts: 12.5,
+                    lift_kg: -8.0,
+                    front_axle_kg: 1.0,
+                    rear_axle_kg: -9.0,
+                }),
+                ..region("boot deck", 0.71, "separated")
+            },
         ];
         c.variants[1].regions = vec![region("rear window", 0.29, "partly separated")];
         c.regions = region_names(&c.variants);
@@ -4825,22 +4846,26 @@ mod tests {
                  region:rear window:separated_percent,\
                  region:rear window:verdict,\
                  region:rear window:band_low_percent,region:rear window:band_high_percent,\
-                 region:rear window:standing,region:boot deck:separated_percent,\
+                 region:rear window:standing,region:rear window:drag_counts,\
+                 region:rear window:lift_kg,region:rear window:front_axle_kg,\
+                 region:rear window:rear_axle_kg,region:boot deck:separated_percent,\
                  region:boot deck:verdict,region:boot deck:band_low_percent,\
-                 region:boot deck:band_high_percent,region:boot deck:standing"
+                 region:boot deck:band_high_percent,region:boot deck:standing,\
+                 region:boot deck:drag_counts,region:boot deck:lift_kg,\
+                 region:boot deck:front_axle_kg,region:boot deck:rear_axle_kg"
             ),
             "{}",
             lines[0]
         );
         assert!(
             lines[1]
-                .ends_with(",0,0,,,144.0,,,,0.0,0,0,3,attached,3,3,firm,71,separated,71,71,firm"),
+                .ends_with(",0,0,,,144.0,,,,0.0,0,0,3,attached,3,3,firm,,,,,71,separated,71,71,firm,12.5,-8,1,-9"),
             "{}",
             lines[1]
         );
         assert!(
             lines[2].ends_with(
-                ",0,0,,,144.0,,,,0.0,0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,"
+                ",0,0,,,144.0,,,,0.0,0,0,28.999999999999996,partly separated,28.999999999999996,28.999999999999996,firm,,,,,,,,,,,,,"
             ),
             "{}",
             lines[2]

@@ -779,6 +779,45 @@ pub fn underbody_lift(
     Ok([l.lift_kg, l.axles.front_kg, l.axles.rear_kg])
 }
 
+/// The loads on one region's own surface ([`crate::region::RegionLoads`]):
+/// the run's pressure `cp` and skin friction on the panels `member` holds
+/// ([`crate::region::memberships`], mirror images after the real panels),
+/// alone; a real panel counts when it or its image is in the region.
+///
+/// # Errors
+/// Those of [`loads::integrate_loads`].
+pub fn region_loads(
+    mesh: &PanelMesh,
+    member: &[bool],
+    (cp, friction): (&[f64], &[Vector3<f64>]),
+    reference: &Reference,
+    air: &loads::FlowState,
+) -> Result<crate::region::RegionLoads> {
+    let n = mesh.len();
+    let inside = |k: usize| {
+        member.get(k).copied().unwrap_or(false) || member.get(k + n).copied().unwrap_or(false)
+    };
+    let cp: Vec<f64> = (0..n)
+        .map(|k| if inside(k) { cp[k] } else { 0.0 })
+        .collect();
+    let cf: Vec<Vector3<f64>> = (0..n)
+        .map(|k| {
+            if inside(k) {
+                friction[k]
+            } else {
+                Vector3::zeros()
+            }
+        })
+        .collect();
+    let l = loads::integrate_loads(mesh, &cp, Some(&cf), reference, air)?;
+    Ok(crate::region::RegionLoads {
+        drag_counts: 1000.0 * l.total.coefficients.drag,
+        lift_kg: l.lift_kg,
+        front_axle_kg: l.axles.front_kg,
+        rear_axle_kg: l.axles.rear_kg,
+    })
+}
+
 /// How the linear system was solved, in words for the console and the
 /// report: the method, its iterations and its residual where it has them
 /// (a direct LU computes none).
@@ -943,6 +982,15 @@ fn finish(
     let (named, mut region_notes) = crate::region::on_body(&case.file.regions, mesh);
     let member = crate::region::memberships(&named, mesh);
     let mut regions = crate::region::evaluate(&named, &member, mesh, &layer);
+    for (r, m) in regions.iter_mut().zip(&member) {
+        r.loads = Some(region_loads(
+            mesh,
+            m,
+            (&cp_separated, &friction),
+            &reference,
+            &air,
+        )?);
+    }
     // In a cross wind the sides differ by right.
     if case.file.flow.yaw != 0.0 {
         for r in &mut regions {

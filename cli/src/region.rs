@@ -119,6 +119,45 @@ pub struct RegionResult {
     /// leading edge's suction replaced by the dead water's pressure).
     #[serde(default)]
     pub rim_fraction: f64,
+    /// The forces on the region's own surface: its panels' pressure (the
+    /// dead water's on separated panels, gauge on the free stream's) and
+    /// skin friction, as the run's loads take them; on a half model, with
+    /// its mirror image. `None` in a result read from an older summary.
+    #[serde(default)]
+    pub loads: Option<RegionLoads>,
+}
+
+/// The forces on a region's own surface ([`RegionResult::loads`]): what a
+/// part (a spoiler, a diffuser, a window) carries of the run's drag and
+/// lift (a review had summed a wing's force from panels.csv by hand).
+#[derive(Debug, Clone, Copy, Serialize, Deserialize, PartialEq, Default)]
+pub struct RegionLoads {
+    /// Drag on it, counts on the run's reference area.
+    pub drag_counts: f64,
+    /// Lift on it, kg at the run's speed (negative: downforce).
+    pub lift_kg: f64,
+    /// Its lift's share on the front and the rear axle, kg.
+    pub front_axle_kg: f64,
+    /// As `front_axle_kg`, rear.
+    pub rear_axle_kg: f64,
+}
+
+impl RegionLoads {
+    /// "carries 12 drag counts and -8 kg of lift (front +1, rear -9)", the
+    /// axles only when `axles` (a run with them).
+    pub fn words(&self, axles: bool) -> String {
+        let [lift, front, rear] =
+            crate::output::lift_set([self.lift_kg, self.front_axle_kg, self.rear_axle_kg]);
+        let split = if axles {
+            format!(" (front {front}, rear {rear})")
+        } else {
+            String::new()
+        };
+        format!(
+            "its own surface carries {:.0} drag counts and {lift} kg of lift{split}",
+            self.drag_counts
+        )
+    }
 }
 
 /// Share of a region's area in the rim zone from which its verdict is
@@ -153,6 +192,7 @@ impl RegionResult {
             at_counts: None,
             coarse_mesh: false,
             rim_fraction: 0.0,
+            loads: None,
         }
     }
 
@@ -706,6 +746,7 @@ pub fn evaluate(
                 at_counts: None,
                 coarse_mesh: false,
                 rim_fraction: share(rim),
+                loads: None,
             }
         })
         .map(|mut r| {

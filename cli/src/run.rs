@@ -321,7 +321,10 @@ fn print_summary(out: &Path, s: &Summary) {
         );
     }
     for r in &s.regions {
-        say!("  {}: {}", r.name, r.words());
+        let loads = r.loads.as_ref().map_or(String::new(), |l| {
+            format!("; {}", l.words(s.axle_split_shown()))
+        });
+        say!("  {}: {}{loads}", r.name, r.words());
     }
     for n in s
         .notes

@@ -1476,6 +1476,20 @@ fn report(
             ),
             "-",
         ));
+        if let Some(l) = &r.loads {
+            numbers.push(NumberRow::text(
+                &format!(
+                    "Region \"{}\": the forces on its own surface (drag; lift, front and rear axle)",
+                    r.name
+                ),
+                &{
+                    let [lift, front, rear] =
+                        output::lift_set([l.lift_kg, l.front_axle_kg, l.rear_axle_kg]);
+                    format!("{:.0}; {lift} ({front}, {rear})", l.drag_counts)
+                },
+                &format!("counts; {at}"),
+            ));
+        }
     }
     numbers.extend([
         NumberRow::fixed(
