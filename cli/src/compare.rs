@@ -490,20 +490,8 @@ pub fn map_a_onto_b(a: &ResultFolder, b: &ResultFolder) -> Mapping {
     let mirrored = a_mirrored(a, b);
     let n = a.panels.len();
     let map = |shift: nalgebra::Vector3<f64>| {
-        let images = a.panels.iter().filter(|_| mirrored).map(|p| SourcePanel {
-            centroid: nalgebra::Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z),
-            normal: nalgebra::Vector3::new(p.normal.x, -p.normal.y, p.normal.z),
-            area: p.area,
-        });
-        let src: Vec<SourcePanel> = a
-            .panels
-            .iter()
-            .map(|p| SourcePanel {
-                centroid: p.centroid,
-                normal: p.normal,
-                area: p.area,
-            })
-            .chain(images)
+        let src: Vec<SourcePanel> = source_panels(&a.panels, mirrored)
+            .into_iter()
             .map(|p| SourcePanel {
                 centroid: p.centroid + shift,
                 ..p
@@ -875,6 +863,11 @@ pub struct MappedFields {
     pub delta_risk: Vec<f64>,
     /// A's state at each B panel.
     pub state_a: Vec<PanelState>,
+    /// B's panels that A has no surface for ([`new_in_b`]).
+    pub new_in_b: Vec<bool>,
+    /// Largest distance from an A centroid to B's surface, m
+    /// ([`a_to_b_distance`]).
+    pub max_distance_a_m: f64,
 }
 
 /// A's fields on B's panels and their differences.
@@ -903,10 +896,13 @@ pub fn mapped_fields(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> M
             }
         })
         .collect();
+    let a_off_b = a_to_b_distance(a, b, mapping);
     MappedFields {
         delta_cp,
         delta_risk,
         state_a: on_b.iter().map(|p| p.state).collect(),
+        new_in_b: new_in_b(mapping, &a_off_b, changed_margin(b).1),
+        max_distance_a_m: a_off_b.iter().copied().fold(0.0, f64::max),
     }
 }
 
@@ -926,10 +922,9 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
     dist.sort_by(f64::total_cmp);
     out.max_distance_m = dist.last().copied().unwrap_or(0.0);
     out.median_distance_m = dist.get(dist.len() / 2).copied().unwrap_or(0.0);
-    let a_off_b = a_to_b_distance(a, b, mapping);
-    out.max_distance_a_m = a_off_b.iter().copied().fold(0.0, f64::max);
+    out.max_distance_a_m = f.max_distance_a_m;
     // A part added in B has no A state to set against its own.
-    let new = new_in_b(mapping, &a_off_b, changed_margin(b).1);
+    let new = &f.new_in_b;
     let far = 0.02 * b.summary.reference.length_m.max(f64::MIN_POSITIVE);
     out.far_panels = mapping.distance.iter().filter(|&&d| d > far).count();
     let (mut sq, mut risk, mut risk_area) = (0.0, 0.0, 0.0);
@@ -982,7 +977,7 @@ fn surface_deltas(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Surf
         [&stream_a, &stream],
         &mut out,
     );
-    changed_surface(b, mapping, &f.state_a, &new, &mut out);
+    changed_surface(b, mapping, &f.state_a, new, &mut out);
     out
 }
 
@@ -999,23 +994,9 @@ fn changed_margin(b: &ResultFolder) -> (f64, f64) {
 /// B's surface, m: the other way round from [`Mapping::distance`], so
 /// that a part A has and B lacks shows (B's mirror images stand for its
 /// other half where B is a half model and A a whole body).
-pub fn a_to_b_distance(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Vec<f64> {
+fn a_to_b_distance(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) -> Vec<f64> {
     let images = b.summary.mesh.symmetry_plane && !a.summary.mesh.symmetry_plane;
-    let panel = |p: &folder::PanelRow| SourcePanel {
-        centroid: p.centroid,
-        normal: p.normal,
-        area: p.area,
-    };
-    let src: Vec<SourcePanel> = b
-        .panels
-        .iter()
-        .map(panel)
-        .chain(b.panels.iter().filter(|_| images).map(|p| SourcePanel {
-            centroid: nalgebra::Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z),
-            normal: nalgebra::Vector3::new(p.normal.x, -p.normal.y, p.normal.z),
-            area: p.area,
-        }))
-        .collect();
+    let src = source_panels(&b.panels, images);
     let targets: Vec<_> = a
         .panels
         .iter()
@@ -1024,13 +1005,30 @@ pub fn a_to_b_distance(a: &ResultFolder, b: &ResultFolder, mapping: &Mapping) ->
     map_nearest(&src, &targets).map_or_else(|| vec![0.0; a.panels.len()], |m| m.distance)
 }
 
+/// A run's panels as sources of a mapping, followed by their mirror
+/// images in y = 0 when `mirrored` (a half model standing for a whole
+/// body's other half).
+fn source_panels(panels: &[folder::PanelRow], mirrored: bool) -> Vec<SourcePanel> {
+    let real = panels.iter().map(|p| SourcePanel {
+        centroid: p.centroid,
+        normal: p.normal,
+        area: p.area,
+    });
+    let images = panels.iter().filter(|_| mirrored).map(|p| SourcePanel {
+        centroid: nalgebra::Point3::new(p.centroid.x, -p.centroid.y, p.centroid.z),
+        normal: nalgebra::Vector3::new(p.normal.x, -p.normal.y, p.normal.z),
+        area: p.area,
+    });
+    real.chain(images).collect()
+}
+
 /// B's panels beyond `near` of A's surface whose nearest panel of A lies
 /// within `near` of B's own (`a_off_b`, [`a_to_b_distance`]): a part added
 /// in B, where A had no surface, rather than A's surface moved (a raised
 /// lid's panels find A's lid, itself off B's surface). A's values carried
 /// there belong to the surface beside it (a wing over a deck took the
 /// deck's).
-pub fn new_in_b(mapping: &Mapping, a_off_b: &[f64], near: f64) -> Vec<bool> {
+fn new_in_b(mapping: &Mapping, a_off_b: &[f64], near: f64) -> Vec<bool> {
     mapping
         .distance
         .iter()

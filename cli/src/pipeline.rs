@@ -763,20 +763,48 @@ pub fn underbody_lift(
     reference: &Reference,
     air: &loads::FlowState,
 ) -> Result<[f64; 3]> {
-    let under: Vec<f64> = mesh
-        .panels
-        .iter()
-        .zip(cp)
-        .map(|(p, &c)| {
-            if p.normal.z < -UNDERBODY_NORMAL_Z {
-                c
-            } else {
-                0.0
-            }
-        })
-        .collect();
-    let l = loads::integrate_loads(mesh, &under, None, reference, air)?;
+    let under = |k: usize| {
+        mesh.panels
+            .get(k)
+            .is_some_and(|p| p.normal.z < -UNDERBODY_NORMAL_Z)
+    };
+    let l = loads_on(mesh, under, (cp, None), reference, air)?;
     Ok([l.lift_kg, l.axles.front_kg, l.axles.rear_kg])
+}
+
+/// The loads of the pressure `cp` and, when given, the skin friction on
+/// the real panels `inside` holds alone (the others' zeroed): a part's
+/// share of the body's loads.
+///
+/// # Errors
+/// Those of [`loads::integrate_loads`].
+fn loads_on(
+    mesh: &PanelMesh,
+    inside: impl Fn(usize) -> bool,
+    (cp, friction): (&[f64], Option<&[Vector3<f64>]>),
+    reference: &Reference,
+    air: &loads::FlowState,
+) -> Result<Loads> {
+    // Masked as given, so that a length that does not match the mesh is
+    // integrate_loads's error, not an index out of bounds.
+    let cp: Vec<f64> = cp
+        .iter()
+        .enumerate()
+        .map(|(k, &c)| if inside(k) { c } else { 0.0 })
+        .collect();
+    let cf: Option<Vec<Vector3<f64>>> = friction.map(|f| {
+        f.iter()
+            .enumerate()
+            .map(|(k, &v)| if inside(k) { v } else { Vector3::zeros() })
+            .collect()
+    });
+    Ok(loads::integrate_loads(
+        mesh,
+        &cp,
+        cf.as_deref(),
+        reference,
+        air,
+    )?)
 }
 
 /// The loads on one region's own surface ([`crate::region::RegionLoads`]):
@@ -797,19 +825,7 @@ pub fn region_loads(
     let inside = |k: usize| {
         member.get(k).copied().unwrap_or(false) || member.get(k + n).copied().unwrap_or(false)
     };
-    let cp: Vec<f64> = (0..n)
-        .map(|k| if inside(k) { cp[k] } else { 0.0 })
-        .collect();
-    let cf: Vec<Vector3<f64>> = (0..n)
-        .map(|k| {
-            if inside(k) {
-                friction[k]
-            } else {
-                Vector3::zeros()
-            }
-        })
-        .collect();
-    let l = loads::integrate_loads(mesh, &cp, Some(&cf), reference, air)?;
+    let l = loads_on(mesh, inside, (cp, Some(friction)), reference, air)?;
     Ok(crate::region::RegionLoads {
         drag_counts: 1000.0 * l.total.coefficients.drag,
         lift_kg: l.lift_kg,

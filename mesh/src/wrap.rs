@@ -1151,16 +1151,15 @@ fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Vec<LostPar
     let mut lost: HashMap<usize, (f64, Vector)> = HashMap::new();
     let mut part_area: HashMap<usize, f64> = HashMap::new();
     for (t, &p) in part.iter().enumerate() {
-        *part_area.entry(p).or_insert(0.0) += mesh.area_vector(t).norm();
+        let area_vector = mesh.area_vector(t);
+        let area = area_vector.norm();
+        *part_area.entry(p).or_insert(0.0) += area;
         let [a, b, c] = mesh.corners(t);
         let centre = (a.coords + b.coords + c.coords) / 3.0;
         // Looked up a quarter cell inside the facet: a face lying on a
         // grid plane (a CAD part whose top sits on a multiple of the cell)
         // has the cell above it all outside, however thick the part.
-        let inward = -mesh
-            .area_vector(t)
-            .try_normalize(0.0)
-            .unwrap_or_else(Vector::zeros);
+        let inward = -area_vector.try_normalize(0.0).unwrap_or_else(Vector::zeros);
         let probe = centre + 0.25 * grid.h * inward;
         let cell = [0, 1, 2].map(|k| ((probe[k] - grid.origin[k]) / grid.h).floor());
         let inside_grid = (0..3).all(|k| cell[k] >= 0.0 && cell[k] < (grid.n[k] - 1) as f64);
@@ -1172,7 +1171,6 @@ fn lost_surface(mesh: &TriMesh, grid: &Grid, field: &[f32]) -> (f64, Vec<LostPar
             .iter()
             .all(|o| field[grid.index([cell[0] + o[0], cell[1] + o[1], cell[2] + o[2]])] > 0.0);
         if outside {
-            let area = mesh.area_vector(t).norm();
             let entry = lost.entry(p).or_insert((0.0, Vector::zeros()));
             entry.0 += area;
             entry.1 += centre * area;

@@ -23,7 +23,7 @@ const APPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([150, 20, 30], [240
 const DISAPPEARS: (output::canvas::Rgb, output::canvas::Rgb) = ([20, 60, 150], [150, 190, 240]);
 /// Stripes where both runs separate.
 const BOTH: (output::canvas::Rgb, output::canvas::Rgb) = ([40, 40, 46], [150, 150, 158]);
-/// A part B adds, where A had no surface ([`super::new_in_b`]): no
+/// A part B adds, where A had no surface ([`super::MappedFields::new_in_b`]): no
 /// difference to draw there (a review's new wing had been coloured with
 /// the deck's Cp from 200 mm below set against its own). Sand, apart
 /// from the greys of "not resolved" and "separates in both".
@@ -206,14 +206,10 @@ pub fn write(
         yaw_deg: super::yaw_of(&b.summary),
     };
     let outlined = outlined_share(&cmp.surface, b.halves() * mesh_b.area()).is_some();
-    let new = super::new_in_b(
-        mapping,
-        &super::a_to_b_distance(a, b, mapping),
-        cmp.surface.margins_m[1],
-    );
-    let is_new = |i: usize| new.get(i).copied().unwrap_or(false);
+    let is_new = |i: usize| f.new_in_b.get(i).copied().unwrap_or(false);
     let new_swatch = || {
-        new.iter()
+        f.new_in_b
+            .iter()
             .any(|&n| n)
             .then(|| ("added in B".to_string(), Swatch::Solid(NEW_IN_B)))
     };
